@@ -1,0 +1,62 @@
+"""Domain exceptions. The command line turns each into one line and exit code 2."""
+
+from __future__ import annotations
+
+
+class AerialError(Exception):
+    """Base class for every error aerial reports to a user without a traceback."""
+
+
+class SiteError(AerialError):
+    """A site file that cannot be used as written.
+
+    Parameters
+    ----------
+    file : str
+        Path of the site file (or ``"<built-in example>"``).
+    key : str
+        Dotted key path inside the file, e.g. ``"spans[2].sag"``.
+    value : object
+        The offending value as the user wrote it.
+    expected : str
+        What would be accepted, in plain words.
+    line : int, optional
+        Line number in the file when it is known.
+    """
+
+    def __init__(self, file, key, value, expected, line=None):
+        self.file = str(file)
+        self.key = key
+        self.value = value
+        self.expected = expected
+        self.line = line
+        super().__init__(self.message)
+
+    @property
+    def message(self) -> str:
+        where = self.file if self.line is None else f"{self.file}:{self.line}"
+        shown = _show(self.value)
+        if self.key:
+            return f"{where}: {self.key} = {shown}: {self.expected}"
+        return f"{where}: {self.expected}" if shown == "" else f"{where}: {shown}: {self.expected}"
+
+
+class SafetyRefusal(AerialError):
+    """A layout aerial will not analyse because it breaks a safety rule (e.g. power-line clearance)."""
+
+
+class ResourceLimit(AerialError):
+    """A computation that would exceed the stated memory or time budget."""
+
+
+class ModelInputError(AerialError, ValueError):
+    """An argument to a physics function that lies outside what the function accepts."""
+
+
+def _show(value) -> str:
+    if isinstance(value, str):
+        text = value if len(value) <= 60 else value[:57] + "..."
+        text = "".join(ch if ch.isprintable() else repr(ch)[1:-1] for ch in text)
+        return f'"{text}"'
+    text = repr(value)
+    return text if len(text) <= 60 else text[:57] + "..."
