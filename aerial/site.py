@@ -1,0 +1,973 @@
+"""Read and validate a site file (TOML) into a :class:`Site`.
+
+The file speaks the user's language: supports with plan positions and heights,
+spans between them, explicit wire runs as 3-D polylines, the lead-in to the
+receiver, the earth system, the soil, the bands and the stations. Cutting the
+wires into segments is :mod:`aerial.geometry`'s job.
+
+Every rejection raises :class:`aerial.errors.SiteError` naming the file, the key
+(with the line where it can be found), the value and what is expected. The
+file is only ever read.
+
+Frame: metres, x east, y north, z up; z = 0 is the ground surface.
+"""
+
+from __future__ import annotations
+
+import math
+import tomllib
+from dataclasses import dataclass, field, replace
+from importlib import resources
+from pathlib import Path
+
+import numpy as np
+
+from aerial import units
+from aerial.errors import SiteError
+from aerial.materials import CONDUCTOR_ALIASES, CONDUCTORS, SOILS, Soil
+from aerial.tomlpos import find_line
+
+BUILTIN_NAME = "<built-in example>"
+BUILTIN_RESOURCE = "backyard_inverted_l.toml"
+
+#: Largest site file read [bytes]; a larger one is refused before parsing.
+MAX_FILE_BYTES = 2_000_000
+
+#: Points closer than this are the same point (wires joined there). [m]
+JOIN_TOLERANCE_M = 0.01
+
+#: A straight piece of wire must be at least this many radii long (thin-wire models).
+MIN_LENGTH_TO_RADIUS = 10.0
+
+#: A receiver below this height is fed at ground level (no earth-lead wire is modelled). [m]
+EARTH_LEAD_MIN_HEIGHT_M = 0.05
+
+#: Plain-number pieces a sagging span is cut into.
+SAG_PIECES = 8
+
+#: Default height uncertainty by support kind (one-sided, +/-) [m]. Users rarely know a tree's height.
+HEIGHT_TOLERANCE_M = {
+    "tree": 2.0,
+    "eave": 0.3,
+    "gable": 0.5,
+    "chimney": 0.5,
+    "mast": 0.2,
+    "pole": 0.3,
+    "balcony rail": 0.2,
+    "fence": 0.1,
+    "other": 0.5,
+}
+SUPPORT_KINDS = tuple(HEIGHT_TOLERANCE_M)
+
+NOISE_CATEGORIES = ("city", "residential", "rural", "quiet-rural")
+
+#: Named bands [Hz]. MF covers every ITU region's broadcast allocation
+#: (Regions 1/3: 526.5-1606.5 kHz; Region 2: 525-1705 kHz; ITU Radio Regulations).
+NAMED_BANDS: dict[str, list[tuple[str, float, float]]] = {
+    "lf": [("LF broadcast", 148.5e3, 283.5e3)],
+    "mf": [("MF broadcast", 520e3, 1710e3)],
+    "hf": [
+        ("HF 120 m", 2.300e6, 2.495e6),
+        ("HF 90 m", 3.200e6, 3.400e6),
+        ("HF 75 m", 3.900e6, 4.000e6),
+        ("HF 60 m", 4.750e6, 5.060e6),
+        ("HF 49 m", 5.900e6, 6.200e6),
+        ("HF 41 m", 7.200e6, 7.450e6),
+        ("HF 31 m", 9.400e6, 9.900e6),
+        ("HF 25 m", 11.600e6, 12.100e6),
+        ("HF 22 m", 13.570e6, 13.870e6),
+        ("HF 19 m", 15.100e6, 15.800e6),
+        ("HF 16 m", 17.480e6, 17.900e6),
+        ("HF 15 m", 18.900e6, 19.020e6),
+        ("HF 13 m", 21.450e6, 21.850e6),
+        ("HF 11 m", 25.670e6, 26.100e6),
+    ],
+}
+
+EARTH_KINDS = ("rods", "buried_wires", "water_pipe", "building_earth", "counterpoise")
+COUPLINGS = ("direct", "series capacitor", "coil tap", "separate primary")
+DETECTORS = ("germanium", "schottky", "silicon")
+
+
+# --------------------------------------------------------------------------- data
+
+
+@dataclass(frozen=True)
+class WireSize:
+    radius_m: float
+    material: str
+    described_as: str
+
+
+@dataclass(frozen=True)
+class Support:
+    name: str
+    x_m: float
+    y_m: float
+    height_m: float
+    kind: str
+    height_tolerance_m: float
+
+
+@dataclass(frozen=True)
+class WireRun:
+    """One resolved wire: a 3-D polyline with its size and role.
+
+    ``role`` is "aerial", "lead-in", "earth lead" or "counterpoise".
+    ``supports`` names the supports whose heights set its points, index-aligned with
+    ``points_m`` (None where a point is not on a support), for the what-if and
+    uncertainty runs.
+    """
+
+    name: str
+    role: str
+    points_m: np.ndarray
+    size: WireSize
+    key: str
+    support_at_point: tuple = ()
+
+    @property
+    def length_m(self) -> float:
+        return float(np.linalg.norm(np.diff(self.points_m, axis=0), axis=1).sum())
+
+
+@dataclass(frozen=True)
+class SoilSpec:
+    name: str
+    relative_permittivity: float
+    conductivity_s_m: float
+    conductivity_low_s_m: float
+    conductivity_high_s_m: float
+    source: str
+
+
+@dataclass(frozen=True)
+class Electrode:
+    """One part of the earth system, lengths in metres."""
+
+    kind: str  # "rods", "buried_wires", "water_pipe", "building_earth"
+    key: str
+    count: int = 1
+    length_m: float = 0.0
+    diameter_m: float = 0.0
+    spacing_m: float = 0.0
+    depth_m: float = 0.0
+    x_m: float | None = None
+    y_m: float | None = None
+    resistance_ohm: float | None = None
+    continuous_metal: bool | None = None
+    arrangement: str = ""
+
+
+@dataclass(frozen=True)
+class Station:
+    name: str
+    frequency_hz: float
+    power_w: float
+    distance_m: float
+    soil: SoilSpec
+    key: str
+
+
+@dataclass(frozen=True)
+class Receiver:
+    x_m: float
+    y_m: float
+    height_m: float
+    coupling: str = "direct"
+    inductance_h: float | None = None
+    coil: dict | None = None
+    capacitor_min_f: float | None = None
+    capacitor_max_f: float | None = None
+    coupling_capacitor_f: float | None = None
+    tap_fraction: float | None = None
+    primary_inductance_h: float | None = None
+    coupling_factor: float | None = None
+    detector: str = "germanium"
+    earphone_ohm: float = 2000.0
+    measured: dict | None = None
+    given: bool = False
+
+
+@dataclass
+class Site:
+    """A validated site: what the user described, resolved to metres and SI units."""
+
+    path: str
+    name: str
+    text: str
+    region: str | None
+    noise: str
+    soil: SoilSpec
+    bands: list
+    frequency_step_hz: dict
+    supports: dict
+    wires: list
+    receiver: Receiver
+    electrodes: list
+    stations: list
+    field_strength_v_per_m: float
+    plan: dict = field(default_factory=dict)
+    notes: list = field(default_factory=list)
+    raw: dict = field(default_factory=dict)
+
+    @property
+    def feed_m(self) -> np.ndarray:
+        return np.array([self.receiver.x_m, self.receiver.y_m, self.receiver.height_m])
+
+
+# --------------------------------------------------------------------------- reading
+
+
+class _Reader:
+    """Carries the file name and text so every error can name the file and line."""
+
+    def __init__(self, path: str, text: str):
+        self.path = path
+        self.text = text
+
+    def fail(self, key, value, expected):
+        raise SiteError(self.path, key, value, expected, line=find_line(self.text, key))
+
+    # typed getters -----------------------------------------------------------
+    def table(self, data, key, name, required=False):
+        value = data.get(name)
+        full = f"{key}.{name}" if key else name
+        if value is None:
+            if required:
+                self.fail(full, "", f"missing table [{full}]")
+            return {}
+        if not isinstance(value, dict):
+            self.fail(full, value, f"expected a table [{full}]")
+        return value
+
+    def array_of_tables(self, data, key, name):
+        value = data.get(name, [])
+        full = f"{key}.{name}" if key else name
+        if isinstance(value, dict):
+            return [value]
+        if not isinstance(value, list) or not all(isinstance(v, dict) for v in value):
+            self.fail(full, value, f"expected one or more [[{full}]] tables")
+        return value
+
+    def string(self, data, key, name, default=None, choices=None):
+        full = f"{key}.{name}" if key else name
+        value = data.get(name, default)
+        if value is None:
+            return None
+        if not isinstance(value, str) or not value.strip():
+            self.fail(full, value, "expected a non-empty text value in quotes")
+        value = value.strip()
+        if choices is not None:
+            norm = value.lower().replace("_", " ").replace("-", " ")
+            for choice in choices:
+                if norm == choice.replace("-", " "):
+                    return choice
+            self.fail(full, value, "expected one of " + ", ".join(f'"{c}"' for c in choices))
+        return value
+
+    def length(self, data, key, name, default=None, minimum=None, positive=False, required=False):
+        full = f"{key}.{name}" if key else name
+        value = data.get(name)
+        if value is None:
+            if required:
+                self.fail(full, "", "missing: expected a length such as 12 or \"40 ft\"")
+            return default
+        try:
+            metres = units.parse_length(value)
+        except units.UnitError as err:
+            self.fail(full, value, err.expected)
+        if positive and metres <= 0:
+            self.fail(full, value, "expected a length greater than zero")
+        if minimum is not None and metres < minimum:
+            self.fail(full, value, f"expected a length of at least {minimum:g} m")
+        return metres
+
+    def quantity(self, data, key, name, table, kind, default_unit, default=None, positive=True):
+        full = f"{key}.{name}" if key else name
+        value = data.get(name)
+        if value is None:
+            return default
+        try:
+            number = units.parse_quantity(value, table, kind, default_unit)
+        except units.UnitError as err:
+            self.fail(full, value, err.expected)
+        if positive and number <= 0:
+            self.fail(full, value, f"expected {kind} greater than zero")
+        return number
+
+    def number(self, data, key, name, default=None, low=None, high=None, integer=False, what="a number"):
+        full = f"{key}.{name}" if key else name
+        value = data.get(name, default)
+        if value is None:
+            return None
+        ok = isinstance(value, (int, float)) and not isinstance(value, bool)
+        if ok and integer and not (isinstance(value, int) or float(value).is_integer()):
+            ok = False
+        if ok and not math.isfinite(float(value)):
+            ok = False
+        if ok and low is not None and value < low:
+            ok = False
+        if ok and high is not None and value > high:
+            ok = False
+        if not ok:
+            rng = ""
+            if low is not None and high is not None:
+                rng = f" from {low:g} to {high:g}"
+            elif low is not None:
+                rng = f" of at least {low:g}"
+            self.fail(full, value, f"expected {what}{rng}")
+        return int(value) if integer else float(value)
+
+    def boolean(self, data, key, name, default=None):
+        full = f"{key}.{name}" if key else name
+        value = data.get(name, default)
+        if value is None:
+            return None
+        if not isinstance(value, bool):
+            self.fail(full, value, "expected true or false")
+        return value
+
+    def plan_point(self, value, key):
+        if not isinstance(value, list) or len(value) != 2:
+            self.fail(key, value, "expected a plan position [x, y] (metres east and north, or strings with units)")
+        out = []
+        for i, item in enumerate(value):
+            try:
+                out.append(units.parse_length(item))
+            except units.UnitError as err:
+                self.fail(f"{key}[{i}]", item, err.expected)
+        return out
+
+    def point3(self, value, key):
+        if not isinstance(value, list) or len(value) != 3:
+            self.fail(key, value, "expected a point [x, y, height] (metres, or strings with units)")
+        out = []
+        for i, item in enumerate(value):
+            try:
+                out.append(units.parse_length(item))
+            except units.UnitError as err:
+                self.fail(f"{key}[{i}]", item, err.expected)
+        if out[2] < 0:
+            self.fail(f"{key}[2]", value[2], "a point below ground: heights are measured up from the ground (0 or more)")
+        return out
+
+    def check_keys(self, data, key, allowed):
+        for name in data:
+            if name not in allowed:
+                full = f"{key}.{name}" if key else name
+                self.fail(full, data[name], "unknown key; expected one of " + ", ".join(sorted(allowed)))
+
+
+# --------------------------------------------------------------------------- loaders
+
+
+def load_site(path) -> Site:
+    """Read, parse and validate a site file.
+
+    Parameters
+    ----------
+    path : str or Path or None
+        The site file; None loads the built-in example.
+
+    Raises
+    ------
+    SiteError
+        With the file, key, value and what is expected.
+    """
+    if path is None:
+        return builtin_example()
+    p = Path(path)
+    shown = str(path)
+    if not p.exists():
+        raise SiteError(shown, "", "", "no such file")
+    if p.is_dir():
+        raise SiteError(shown, "", "", "is a folder; expected a site file (.toml)")
+    try:
+        size = p.stat().st_size
+        if size > MAX_FILE_BYTES:
+            raise SiteError(shown, "", "", f"is {size / 1e6:.1f} MB; a site file is at most {MAX_FILE_BYTES / 1e6:.0f} MB")
+        data = p.read_bytes()
+    except PermissionError:
+        raise SiteError(shown, "", "", "cannot be read (permission denied)") from None
+    except OSError as err:
+        raise SiteError(shown, "", "", f"cannot be read ({err.strerror or err})") from None
+    try:
+        text = data.decode("utf-8")
+    except UnicodeDecodeError as err:
+        raise SiteError(shown, "", "", f"is not UTF-8 text (byte {err.start}); save it as UTF-8") from None
+    return load_site_text(text, shown)
+
+
+def builtin_example() -> Site:
+    """The built-in example site (a backyard inverted-L)."""
+    text = resources.files("aerial").joinpath("data", BUILTIN_RESOURCE).read_text(encoding="utf-8")
+    return load_site_text(text, BUILTIN_NAME)
+
+
+def load_site_text(text: str, path: str = "<text>") -> Site:
+    """Parse and validate site-file text; ``path`` is used in messages."""
+    try:
+        raw = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as err:
+        msg = str(err)
+        line = None
+        import re
+
+        m = re.search(r"line (\d+)", msg)
+        if m:
+            line = int(m.group(1))
+        raise SiteError(path, "", "", f"not valid TOML ({msg})", line=line) from None
+    r = _Reader(path, text)
+    return _build(r, raw, text, path)
+
+
+TOP_KEYS = {
+    "site", "soil", "wire", "supports", "spans", "runs", "lead_in", "receiver", "earth", "stations", "plan",
+}
+
+
+def _build(r: _Reader, raw: dict, text: str, path: str) -> Site:
+    r.check_keys(raw, "", TOP_KEYS)
+    site_t = r.table(raw, "", "site")
+    r.check_keys(site_t, "site", {"name", "notes", "region", "noise", "bands", "frequency_step", "field_strength", "soil"})
+    name = r.string(site_t, "site", "name", default=Path(path).stem if not path.startswith("<") else "example site")
+    region = r.string(site_t, "site", "region")
+    noise = r.string(site_t, "site", "noise", default="residential", choices=NOISE_CATEGORIES)
+    bands = _bands(r, site_t)
+    steps = _steps(r, site_t)
+    field_strength = r.quantity(
+        site_t, "site", "field_strength", {"v/m": 1.0, "mv/m": 1e-3, "uv/m": 1e-6, "µv/m": 1e-6},
+        "a field strength", "V/m", default=1e-3,
+    )
+    if "soil" in site_t and "soil" in raw:
+        r.fail("site.soil", site_t["soil"], "the soil is given twice (also as [soil]); keep one")
+    soil = _soil(r, raw.get("soil", site_t.get("soil", "medium-dry")), "soil" if "soil" in raw else "site.soil")
+    default_size = _wire_size(r, r.table(raw, "", "wire"), "wire", None)
+    supports = _supports(r, raw)
+    wires: list[WireRun] = []
+    wires += _spans(r, raw, supports, default_size)
+    wires += _runs(r, raw, default_size)
+    if not wires:
+        r.fail("spans", "", "the site has no aerial wire: add [[spans]] between [supports] or a [[runs]] polyline")
+    receiver = _receiver(r, raw)
+    lead, receiver = _lead_in(r, raw, supports, wires, receiver, default_size)
+    if lead is not None:
+        wires.append(lead)
+    electrodes, earth_wires, notes = _earth(r, raw, receiver, default_size, soil)
+    wires += earth_wires
+    stations = _stations(r, raw, soil)
+    plan = r.table(raw, "", "plan")
+    _check_wires(r, wires)
+    return Site(
+        path=path, name=name, text=text, region=region, noise=noise, soil=soil, bands=bands,
+        frequency_step_hz=steps, supports=supports, wires=wires, receiver=receiver, electrodes=electrodes,
+        stations=stations, field_strength_v_per_m=field_strength, plan=plan, notes=notes, raw=raw,
+    )
+
+
+def _bands(r: _Reader, site_t) -> list:
+    value = site_t.get("bands", ["mf"])
+    if not isinstance(value, list) or not value:
+        r.fail("site.bands", value, 'expected a list such as ["mf"], ["lf", "mf", "hf"] or [{from = "500 kHz", to = "1.7 MHz"}]')
+    out = []
+    for i, item in enumerate(value):
+        key = f"site.bands[{i}]"
+        if isinstance(item, str):
+            named = NAMED_BANDS.get(item.strip().lower())
+            if named is None:
+                r.fail(key, item, "expected a band name: " + ", ".join(f'"{n}"' for n in NAMED_BANDS))
+            out += named
+        elif isinstance(item, dict):
+            lo = r.quantity(item, key, "from", units.FREQUENCY_UNITS, "a frequency", "Hz")
+            hi = r.quantity(item, key, "to", units.FREQUENCY_UNITS, "a frequency", "Hz")
+            if lo is None or hi is None or hi <= lo:
+                r.fail(key, item, 'expected {from = "...", to = "..."} with "to" above "from"')
+            if lo < 10e3 or hi > 30e6:
+                r.fail(key, item, "expected a band inside 10 kHz - 30 MHz (the range aerial models)")
+            out.append((r.string(item, key, "name", default=f"{lo / 1e3:g}-{hi / 1e3:g} kHz"), lo, hi))
+        else:
+            r.fail(key, item, "expected a band name or a {from, to} table")
+    return out
+
+
+def _steps(r: _Reader, site_t) -> dict:
+    value = site_t.get("frequency_step")
+    if value is None:
+        return {}
+    try:
+        step = units.parse_quantity(value, units.FREQUENCY_UNITS, "a frequency step", "Hz")
+    except units.UnitError as err:
+        r.fail("site.frequency_step", value, err.expected)
+    if not 100.0 <= step <= 1e6:
+        r.fail("site.frequency_step", value, "expected a step from 100 Hz to 1 MHz")
+    return {"all": step}
+
+
+def _soil(r: _Reader, value, key) -> SoilSpec:
+    as_text = isinstance(value, str)
+    if as_text:
+        value = {"category": value}
+    if not isinstance(value, dict):
+        r.fail(key, value, 'expected a soil category such as "medium-dry" or a [soil] table')
+    r.check_keys(value, key, {"category", "conductivity", "resistivity", "relative_permittivity", "notes"})
+    category = value.get("category")
+    base: Soil | None = None
+    if category is not None:
+        if not isinstance(category, str) or category.strip().lower().replace(" ", "-").replace("_", "-") not in SOILS:
+            r.fail(key if as_text else f"{key}.category", category,
+                   "expected a soil category: " + ", ".join(f'"{s}"' for s in SOILS))
+        base = SOILS[category.strip().lower().replace(" ", "-").replace("_", "-")]
+    sigma = None
+    if "conductivity" in value:
+        sigma = r.quantity(value, key, "conductivity", {"s/m": 1.0, "ms/m": 1e-3}, "a conductivity", "S/m", positive=False)
+        if sigma <= 0:
+            r.fail(f"{key}.conductivity", value["conductivity"], "a conductivity must be greater than zero (S/m)")
+    if "resistivity" in value:
+        rho = r.quantity(value, key, "resistivity", {"ohm m": 1.0, "ohm-m": 1.0, "ohm·m": 1.0, "ω·m": 1.0, "ωm": 1.0, "ohm*m": 1.0}, "a resistivity", "ohm m", positive=False)
+        if rho <= 0:
+            r.fail(f"{key}.resistivity", value["resistivity"], "a resistivity must be greater than zero (ohm m)")
+        if sigma is not None:
+            r.fail(f"{key}.resistivity", value["resistivity"], "give conductivity or resistivity, not both")
+        sigma = 1.0 / rho
+    eps = r.number(value, key, "relative_permittivity", low=1.0, high=100.0, what="a relative permittivity")
+    if base is None and sigma is None:
+        r.fail(key, value, "expected a category or a conductivity/resistivity")
+    if sigma is not None:
+        eps = eps if eps is not None else (base.relative_permittivity if base else 15.0)
+        # a measured value: assume it is known within a factor of 2 either way
+        return SoilSpec(
+            "measured" if base is None else base.name, eps, sigma, sigma / 2.0, sigma * 2.0,
+            "user-given conductivity (taken as known within a factor of 2)",
+        )
+    return SoilSpec(
+        base.name, eps if eps is not None else base.relative_permittivity, base.conductivity_s_m,
+        base.conductivity_low_s_m, base.conductivity_high_s_m, f"ITU-R P.527 category: {base.description}",
+    )
+
+
+_SIZE_KEYS = {"gauge", "diameter", "cross_section", "material"}
+
+
+def _wire_size(r: _Reader, t: dict, key: str, default: WireSize | None) -> WireSize:
+    given = [k for k in ("gauge", "diameter", "cross_section") if k in t]
+    if len(given) > 1:
+        r.fail(f"{key}.{given[1]}", t[given[1]], f"give only one of gauge, diameter or cross_section (also has {given[0]})")
+    material = default.material if default else "copper"
+    if "material" in t:
+        m = t["material"]
+        name = m.strip().lower() if isinstance(m, str) else None
+        name = CONDUCTOR_ALIASES.get(name, name) if name else None
+        if name not in CONDUCTORS:
+            r.fail(f"{key}.material", m, "expected a conductor: " + ", ".join(f'"{c}"' for c in CONDUCTORS))
+        material = name
+    if not given:
+        if default is not None:
+            return WireSize(default.radius_m, material, default.described_as)
+        return WireSize(units.awg_diameter(14) / 2, material, "14 AWG (default)")
+    what = given[0]
+    value = t[what]
+    if what == "gauge":
+        import re
+
+        text = str(value).strip() if isinstance(value, (str, int)) and not isinstance(value, bool) else None
+        m = re.fullmatch(r"(\S+)\s*(awg|swg)", text, re.IGNORECASE) if text else None
+        if not m:
+            r.fail(f"{key}.gauge", value, 'expected a gauge with its system, such as "14 AWG" or "16 SWG"')
+        try:
+            n = units.parse_gauge(m.group(1))
+        except units.UnitError as err:
+            r.fail(f"{key}.gauge", value, err.expected)
+        system = m.group(2).upper()
+        if system == "AWG":
+            if not -3 <= n <= 40:
+                r.fail(f"{key}.gauge", value, "expected an AWG gauge from 4/0 to 40")
+            d = units.awg_diameter(n)
+        else:
+            if n not in units.SWG_INCHES:
+                r.fail(f"{key}.gauge", value, "expected an SWG gauge from 7/0 to 50")
+            d = units.swg_diameter(n)
+        desc = f"{m.group(1)} {system}"
+    elif what == "diameter":
+        d = r.length(t, key, "diameter", positive=True)
+        desc = f"{d * 1e3:g} mm diameter"
+    else:
+        area = r.quantity(t, key, "cross_section", {"mm2": 1e-6, "mm²": 1e-6, "mm^2": 1e-6, "m2": 1.0}, "a cross-section", "mm2")
+        d = 2.0 * math.sqrt(area / math.pi)
+        desc = f"{area * 1e6:g} mm² cross-section"
+    if d > 0.2:
+        r.fail(f"{key}.{what}", value, "a wire diameter above 200 mm is not a wire; check the unit")
+    return WireSize(d / 2.0, material, desc)
+
+
+def _supports(r: _Reader, raw) -> dict:
+    table = r.table(raw, "", "supports")
+    out = {}
+    for name, t in table.items():
+        key = f"supports.{name}"
+        if not isinstance(t, dict):
+            r.fail(key, t, "expected a table with at = [x, y] and height")
+        r.check_keys(t, key, {"at", "height", "kind", "height_tolerance", "notes"})
+        if "at" not in t:
+            r.fail(f"{key}.at", "", "missing: expected a plan position at = [x, y]")
+        x, y = r.plan_point(t["at"], f"{key}.at")
+        h = r.length(t, key, "height", required=True)
+        if h < 0:
+            r.fail(f"{key}.height", t["height"], "a point below ground: a support height is measured up from the ground")
+        if h == 0:
+            r.fail(f"{key}.height", t["height"], "a support of zero height would lay the wire on the ground; expected a height above 0")
+        kind = r.string(t, key, "kind", default="other", choices=SUPPORT_KINDS)
+        tol = r.length(t, key, "height_tolerance", default=HEIGHT_TOLERANCE_M[kind])
+        if tol < 0:
+            r.fail(f"{key}.height_tolerance", t["height_tolerance"], "expected a tolerance of 0 or more")
+        out[name] = Support(name, x, y, h, kind, tol)
+    return out
+
+
+def _spans(r: _Reader, raw, supports, default_size) -> list:
+    out = []
+    for i, t in enumerate(r.array_of_tables(raw, "", "spans")):
+        key = f"spans[{i}]"
+        r.check_keys(t, key, {"from", "to", "sag", "name", "notes"} | _SIZE_KEYS)
+        ends = []
+        for end in ("from", "to"):
+            v = t.get(end)
+            if not isinstance(v, str):
+                r.fail(f"{key}.{end}", v if v is not None else "", "expected the name of a support in [supports]")
+            if v not in supports:
+                known = ", ".join(f'"{s}"' for s in supports) or "none defined"
+                r.fail(f"{key}.{end}", v, f"no support of that name (supports: {known})")
+            ends.append(supports[v])
+        a, b = ends
+        p0 = np.array([a.x_m, a.y_m, a.height_m])
+        p1 = np.array([b.x_m, b.y_m, b.height_m])
+        if np.linalg.norm(p1 - p0) < JOIN_TOLERANCE_M:
+            r.fail(f"{key}.to", t["to"], f"a zero-length span: \"{a.name}\" and \"{b.name}\" are at the same place")
+        sag = r.length(t, key, "sag", default=0.0)
+        if sag < 0:
+            r.fail(f"{key}.sag", t["sag"], "expected a sag of 0 or more (how far the middle hangs below the straight line)")
+        low = min(a.height_m, b.height_m)
+        if sag >= low:
+            r.fail(f"{key}.sag", t["sag"], f"a sag deeper than the supports are high (lower support {low:g} m): the wire would touch the ground")
+        size = _wire_size(r, t, key, default_size)
+        if sag > 0:
+            s = np.linspace(0.0, 1.0, SAG_PIECES + 1)
+            pts = p0[None, :] + s[:, None] * (p1 - p0)[None, :]
+            pts[:, 2] -= 4.0 * sag * s * (1.0 - s)  # parabolic sag, deepest at mid-span
+            marks = (a.name,) + (None,) * (SAG_PIECES - 1) + (b.name,)
+        else:
+            pts = np.vstack([p0, p1])
+            marks = (a.name, b.name)
+        name = r.string(t, key, "name", default=f"span {a.name} to {b.name}")
+        out.append(WireRun(name, "aerial", pts, size, key, marks))
+    return out
+
+
+def _polyline(r: _Reader, value, key, min_points=2):
+    if not isinstance(value, list) or len(value) < min_points:
+        r.fail(key, value, f"expected a list of at least {min_points} points [[x, y, height], ...]")
+    pts = np.array([r.point3(p, f"{key}[{j}]") for j, p in enumerate(value)], dtype=float)
+    for j in range(1, len(pts)):
+        if np.linalg.norm(pts[j] - pts[j - 1]) < JOIN_TOLERANCE_M:
+            r.fail(f"{key}[{j}]", value[j], "a zero-length piece: this point repeats the one before it")
+    return pts
+
+
+def _runs(r: _Reader, raw, default_size) -> list:
+    out = []
+    for i, t in enumerate(r.array_of_tables(raw, "", "runs")):
+        key = f"runs[{i}]"
+        r.check_keys(t, key, {"points", "name", "notes"} | _SIZE_KEYS)
+        pts = _polyline(r, t.get("points"), f"{key}.points")
+        if np.any(pts[:, 2] <= 0):
+            j = int(np.argmax(pts[:, 2] <= 0))
+            r.fail(f"{key}.points[{j}]", t["points"][j], "an aerial point at or below ground; expected a height above 0")
+        size = _wire_size(r, t, key, default_size)
+        name = r.string(t, key, "name", default=f"run {i + 1}")
+        out.append(WireRun(name, "aerial", pts, size, key, (None,) * len(pts)))
+    return out
+
+
+def _receiver(r: _Reader, raw) -> Receiver:
+    t = r.table(raw, "", "receiver")
+    key = "receiver"
+    r.check_keys(t, key, {
+        "at", "height", "coupling", "coil", "capacitor", "coupling_capacitor", "tap", "primary", "coupling_factor",
+        "detector", "earphone", "measured", "notes",
+    })
+    if "at" in t:
+        x, y = r.plan_point(t["at"], "receiver.at")
+    else:
+        x = y = None
+    h = r.length(t, key, "height", default=0.0)
+    if h < 0:
+        r.fail("receiver.height", t["height"], "a point below ground: heights are measured up from the ground")
+    coupling = r.string(t, key, "coupling", default="direct", choices=COUPLINGS)
+    inductance = None
+    coil = None
+    if "coil" in t:
+        c = t["coil"]
+        if isinstance(c, dict):
+            r.check_keys(c, "receiver.coil", {"diameter", "turns", "gauge", "wire_diameter", "length", "pitch", "strands", "strand_gauge"})
+            coil = dict(c)
+        else:
+            inductance = r.quantity(t, key, "coil", units.INDUCTANCE_UNITS, "an inductance", "H")
+    cap = t.get("capacitor")
+    cmin = cmax = None
+    if cap is not None:
+        if not isinstance(cap, list) or len(cap) != 2:
+            r.fail("receiver.capacitor", cap, 'expected the variable capacitor\'s range ["15 pF", "365 pF"]')
+        vals = []
+        for j, v in enumerate(cap):
+            try:
+                vals.append(units.parse_quantity(v, units.CAPACITANCE_UNITS, "a capacitance", "F"))
+            except units.UnitError as err:
+                r.fail(f"receiver.capacitor[{j}]", v, err.expected)
+        cmin, cmax = vals
+        if not 0 <= cmin < cmax:
+            r.fail("receiver.capacitor", cap, "expected [minimum, maximum] with 0 <= minimum < maximum")
+    cc = r.quantity(t, key, "coupling_capacitor", units.CAPACITANCE_UNITS, "a capacitance", "F")
+    tap = r.number(t, key, "tap", low=0.01, high=1.0, what="a tap position as a fraction of the coil's turns")
+    primary = r.quantity(t, key, "primary", units.INDUCTANCE_UNITS, "an inductance", "H")
+    kf = r.number(t, key, "coupling_factor", low=0.001, high=0.99, what="a coupling factor k")
+    if coupling == "series capacitor" and cc is None:
+        r.fail("receiver.coupling_capacitor", "", 'coupling "series capacitor" needs coupling_capacitor = "100 pF" (or similar)')
+    if coupling == "coil tap" and tap is None:
+        r.fail("receiver.tap", "", 'coupling "coil tap" needs tap = 0.25 (the fraction of turns from the earthy end)')
+    detector = r.string(t, key, "detector", default="germanium", choices=DETECTORS)
+    ear = t.get("earphone", "high-impedance")
+    if isinstance(ear, str) and ear.strip().lower() in ("high-impedance", "high impedance"):
+        ear_ohm = 2000.0
+    elif isinstance(ear, str) and ear.strip().lower() in ("low-impedance", "low impedance"):
+        ear_ohm = 32.0
+    else:
+        ear_ohm = r.quantity(t, key, "earphone", units.RESISTANCE_UNITS, "an earphone impedance", "ohm")
+    measured = None
+    if "measured" in t:
+        m = r.table(t, key, "measured")
+        r.check_keys(m, "receiver.measured", {"coil", "capacitor", "frequency", "bandwidth"})
+        measured = {
+            "inductance_h": r.quantity(m, "receiver.measured", "coil", units.INDUCTANCE_UNITS, "an inductance", "H"),
+            "capacitor_f": r.quantity(m, "receiver.measured", "capacitor", units.CAPACITANCE_UNITS, "a capacitance", "F", positive=False),
+            "frequency_hz": r.quantity(m, "receiver.measured", "frequency", units.FREQUENCY_UNITS, "a frequency", "Hz"),
+            "bandwidth_hz": r.quantity(m, "receiver.measured", "bandwidth", units.FREQUENCY_UNITS, "a bandwidth", "Hz"),
+        }
+        for name in ("inductance_h", "capacitor_f", "frequency_hz"):
+            if measured[name] is None:
+                r.fail("receiver.measured", m, "a measured resonance needs coil, capacitor and frequency")
+    return Receiver(
+        x_m=x if x is not None else float("nan"), y_m=y if y is not None else float("nan"), height_m=h,
+        coupling=coupling, inductance_h=inductance, coil=coil, capacitor_min_f=cmin, capacitor_max_f=cmax,
+        coupling_capacitor_f=cc, tap_fraction=tap, primary_inductance_h=primary, coupling_factor=kf,
+        detector=detector, earphone_ohm=ear_ohm, measured=measured, given="at" in t,
+    )
+
+
+def _aerial_ends(wires):
+    pts = []
+    for w in wires:
+        pts.append(w.points_m[0])
+        pts.append(w.points_m[-1])
+    return np.array(pts)
+
+
+def _lead_in(r: _Reader, raw, supports, wires, receiver: Receiver, default_size) -> tuple:
+    t = r.table(raw, "", "lead_in")
+    key = "lead_in"
+    r.check_keys(t, key, {"from", "via", "notes"} | _SIZE_KEYS)
+    start = None
+    if "from" in t:
+        v = t["from"]
+        if isinstance(v, str):
+            if v not in supports:
+                known = ", ".join(f'"{s}"' for s in supports) or "none defined"
+                r.fail("lead_in.from", v, f"no support of that name (supports: {known})")
+            s = supports[v]
+            start = np.array([s.x_m, s.y_m, s.height_m])
+            ends = _aerial_ends(wires)
+            if np.min(np.linalg.norm(ends - start, axis=1)) > JOIN_TOLERANCE_M and not _on_any_wire(start, wires):
+                r.fail("lead_in.from", v, "the lead-in must start on the aerial: no span or run reaches that support")
+        else:
+            start = np.array(r.point3(v, "lead_in.from"))
+            if not _on_any_wire(start, wires):
+                r.fail("lead_in.from", v, "the lead-in must start on the aerial wire: this point is not on any span or run")
+    if math.isnan(receiver.x_m):
+        # no receiver position: the aerial's lowest end is the feed, straight down to ground.
+        ends = _aerial_ends(wires)
+        low = ends[np.argmin(ends[:, 2])] if start is None else start
+        receiver = replace(receiver, x_m=float(low[0]), y_m=float(low[1]))
+    feed = np.array([receiver.x_m, receiver.y_m, receiver.height_m])
+    if start is None:
+        ends = _aerial_ends(wires)
+        d = np.linalg.norm(ends - feed, axis=1)
+        start = ends[int(np.argmin(d))]
+    via = []
+    if "via" in t:
+        via = list(_polyline(r, t["via"], "lead_in.via", min_points=1))
+    pts = np.array([start, *via, feed], dtype=float)
+    keep = [0]
+    for j in range(1, len(pts)):
+        if np.linalg.norm(pts[j] - pts[keep[-1]]) >= JOIN_TOLERANCE_M:
+            keep.append(j)
+    pts = pts[keep]
+    if len(pts) < 2:
+        return None, receiver  # the aerial comes straight to the receiver
+    size = _wire_size(r, t, key, default_size)
+    return WireRun("lead-in", "lead-in", pts, size, key, (None,) * len(pts)), receiver
+
+
+def _on_any_wire(point, wires) -> bool:
+    for w in wires:
+        p = w.points_m
+        a, b = p[:-1], p[1:]
+        ab = b - a
+        t = np.clip(np.einsum("ij,ij->i", point - a, ab) / np.maximum(np.einsum("ij,ij->i", ab, ab), 1e-30), 0, 1)
+        d = np.linalg.norm(a + t[:, None] * ab - point, axis=1)
+        if np.min(d) <= JOIN_TOLERANCE_M:
+            return True
+    return False
+
+
+_GAS_WORDS = ("gas",)
+
+
+def _earth(r: _Reader, raw, receiver: Receiver, default_size, soil) -> tuple:
+    t = r.table(raw, "", "earth")
+    for name in t:
+        if any(g in name.lower() for g in _GAS_WORDS):
+            r.fail(f"earth.{name}", t[name], "refused: gas piping is never an earth electrode (fire and explosion risk; "
+                   "codes forbid it). Use a driven rod, buried wire or a continuous metal cold-water pipe")
+    r.check_keys(t, "earth", {"lead_via", "notes", "lead"} | set(EARTH_KINDS))
+    _refuse_gas_anywhere(r, t, "earth")
+    electrodes: list[Electrode] = []
+    wires: list[WireRun] = []
+    notes: list[str] = []
+    for i, rod in enumerate(r.array_of_tables(t, "earth", "rods")):
+        key = f"earth.rods[{i}]"
+        r.check_keys(rod, key, {"count", "length", "diameter", "spacing", "at", "notes"})
+        count = r.number(rod, key, "count", default=1, low=1, high=64, integer=True, what="a whole number of rods")
+        length = r.length(rod, key, "length", default=2.4, positive=True)
+        dia = r.length(rod, key, "diameter", default=0.016, positive=True)
+        if dia >= length / 4:
+            r.fail(f"{key}.diameter", rod.get("diameter", dia), "a rod's diameter must be small next to its length")
+        spacing = r.length(rod, key, "spacing", default=length, positive=True)
+        x, y = r.plan_point(rod["at"], f"{key}.at") if "at" in rod else (None, None)
+        electrodes.append(Electrode("rods", key, count, length, dia, spacing, 0.0, x, y))
+    for i, bw in enumerate(r.array_of_tables(t, "earth", "buried_wires")):
+        key = f"earth.buried_wires[{i}]"
+        r.check_keys(bw, key, {"count", "length", "depth", "at", "arrangement", "notes"} | _SIZE_KEYS)
+        count = r.number(bw, key, "count", default=1, low=1, high=120, integer=True, what="a whole number of wires")
+        length = r.length(bw, key, "length", required=True, positive=True)
+        depth = r.length(bw, key, "depth", default=0.15, positive=True)
+        size = _wire_size(r, bw, key, default_size)
+        arrangement = r.string(bw, key, "arrangement", default="radials" if count > 1 else "straight", choices=("radials", "straight"))
+        x, y = r.plan_point(bw["at"], f"{key}.at") if "at" in bw else (None, None)
+        electrodes.append(Electrode("buried_wires", key, count, length, 2 * size.radius_m, 0.0, depth, x, y, arrangement=arrangement))
+    if "water_pipe" in t:
+        key = "earth.water_pipe"
+        wp = r.table(t, "earth", "water_pipe")
+        r.check_keys(wp, key, {"buried_length", "diameter", "depth", "continuous_metal", "at", "contents", "notes"})
+        cont = r.boolean(wp, key, "continuous_metal")
+        if cont is False:
+            r.fail(f"{key}.continuous_metal", False, "refused as an earth: a pipe with a plastic section is not connected to the ground; "
+                   "use a driven rod or buried wire instead")
+        if cont is None:
+            notes.append("The water pipe's continuity is not stated: it is an earth only if no plastic section "
+                         "(repair, meter, filter) interrupts it. Check, or set continuous_metal = true.")
+        length = r.length(wp, key, "buried_length", default=10.0, positive=True)
+        dia = r.length(wp, key, "diameter", default=0.022, positive=True)
+        depth = r.length(wp, key, "depth", default=0.8, positive=True)
+        x, y = r.plan_point(wp["at"], f"{key}.at") if "at" in wp else (None, None)
+        electrodes.append(Electrode("water_pipe", key, 1, length, dia, 0.0, depth, x, y, continuous_metal=cont))
+    if "building_earth" in t:
+        key = "earth.building_earth"
+        be = r.table(t, "earth", "building_earth")
+        r.check_keys(be, key, {"resistance", "at", "notes"})
+        res = r.quantity(be, key, "resistance", units.RESISTANCE_UNITS, "a resistance", "ohm")
+        x, y = r.plan_point(be["at"], f"{key}.at") if "at" in be else (None, None)
+        electrodes.append(Electrode("building_earth", key, 1, x_m=x, y_m=y, resistance_ohm=res))
+    counterpoise = r.array_of_tables(t, "earth", "counterpoise")
+    for i, cp in enumerate(counterpoise):
+        key = f"earth.counterpoise[{i}]"
+        r.check_keys(cp, key, {"points", "name", "notes"} | _SIZE_KEYS)
+        pts = _polyline(r, cp.get("points"), f"{key}.points")
+        if np.any(pts[:, 2] <= 0):
+            j = int(np.argmax(pts[:, 2] <= 0))
+            r.fail(f"{key}.points[{j}]", cp["points"][j], "a counterpoise is insulated above ground: expected a height above 0 "
+                   "(a wire in the ground is a buried wire: use [[earth.buried_wires]])")
+        size = _wire_size(r, cp, key, default_size)
+        wires.append(WireRun(r.string(cp, key, "name", default=f"counterpoise {i + 1}"), "counterpoise", pts, size, key, (None,) * len(pts)))
+    grounded = [e for e in electrodes]
+    if not grounded and not counterpoise:
+        r.fail("earth", t or "", "no earth: add [[earth.rods]], [[earth.buried_wires]], [earth.water_pipe], "
+               "[earth.building_earth] or [[earth.counterpoise]]")
+    # the earth lead from the receiver to the first electrode that has a position (else straight down)
+    feed = np.array([receiver.x_m, receiver.y_m, receiver.height_m])
+    if grounded:
+        first = grounded[0]
+        ex = first.x_m if first.x_m is not None else receiver.x_m
+        ey = first.y_m if first.y_m is not None else receiver.y_m
+        via = list(_polyline(r, t["lead_via"], "earth.lead_via", min_points=1)) if "lead_via" in t else []
+        pts = np.array([feed, *via, [ex, ey, 0.0]], dtype=float)
+        keep = [0]
+        for j in range(1, len(pts)):
+            if np.linalg.norm(pts[j] - pts[keep[-1]]) >= JOIN_TOLERANCE_M:
+                keep.append(j)
+        pts = pts[keep]
+        lead_size = _wire_size(r, r.table(t, "earth", "lead"), "earth.lead", default_size) if "lead" in t else default_size
+        if "lead" in t:
+            r.check_keys(t["lead"], "earth.lead", _SIZE_KEYS)
+        if receiver.height_m > EARTH_LEAD_MIN_HEIGHT_M and len(pts) >= 2:
+            wires.append(WireRun("earth lead", "earth lead", pts, lead_size, "earth", (None,) * len(pts)))
+    return electrodes, wires, notes
+
+
+def _refuse_gas_anywhere(r: _Reader, t, key):
+    for name, value in t.items():
+        full = f"{key}.{name}"
+        if isinstance(value, dict):
+            _refuse_gas_anywhere(r, value, full)
+        elif isinstance(value, list):
+            for i, v in enumerate(value):
+                if isinstance(v, dict):
+                    _refuse_gas_anywhere(r, v, f"{full}[{i}]")
+        elif isinstance(value, str) and name in ("contents", "kind", "notes") and "gas" in value.lower().split():
+            r.fail(full, value, "refused: gas piping is never an earth electrode (fire and explosion risk; codes forbid it)")
+
+
+def _stations(r: _Reader, raw, soil: SoilSpec) -> list:
+    out = []
+    for i, t in enumerate(r.array_of_tables(raw, "", "stations")):
+        key = f"stations[{i}]"
+        r.check_keys(t, key, {"name", "frequency", "power", "distance", "soil", "notes"})
+        name = r.string(t, key, "name", default=f"station {i + 1}")
+        f = r.quantity(t, key, "frequency", units.FREQUENCY_UNITS, "a frequency", "Hz")
+        if f is None:
+            r.fail(f"{key}.frequency", "", 'missing: expected a frequency such as "810 kHz"')
+        if not 10e3 <= f <= 30e6:
+            r.fail(f"{key}.frequency", t["frequency"], "expected a frequency from 10 kHz to 30 MHz")
+        p = r.quantity(t, key, "power", units.POWER_UNITS, "a transmitter power", "W")
+        if p is None:
+            r.fail(f"{key}.power", "", 'missing: expected a transmitter power such as "10 kW"')
+        d = r.length(t, key, "distance", required=True, positive=True)
+        st_soil = soil
+        if "soil" in t:
+            s = t["soil"]
+            norm = s.strip().lower().replace(" ", "-").replace("_", "-") if isinstance(s, str) else None
+            if norm not in SOILS:
+                r.fail(f"{key}.soil", s, "expected a soil category: " + ", ".join(f'"{c}"' for c in SOILS))
+            b = SOILS[norm]
+            st_soil = SoilSpec(b.name, b.relative_permittivity, b.conductivity_s_m, b.conductivity_low_s_m,
+                               b.conductivity_high_s_m, f"ITU-R P.527 category: {b.description}")
+        out.append(Station(name, f, p, d, st_soil, key))
+    return out
+
+
+def _check_wires(r: _Reader, wires):
+    for w in wires:
+        seg = np.linalg.norm(np.diff(w.points_m, axis=0), axis=1)
+        j = int(np.argmin(seg))
+        if seg[j] < MIN_LENGTH_TO_RADIUS * w.size.radius_m:
+            r.fail(w.key, w.size.described_as,
+                   f"the wire radius ({w.size.radius_m * 1e3:g} mm) is not small next to a {seg[j]:.3g} m piece of "
+                   f"\"{w.name}\"; each straight piece must be at least {MIN_LENGTH_TO_RADIUS:g} radii long")
