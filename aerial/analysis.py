@@ -1,0 +1,376 @@
+"""The orchestrator: one site in, one JSON-ready result out.
+
+This is the Python API behind ``aerial report``; a notebook user calls
+:func:`analyse` and gets the same dict the command line prints with
+``--json``. It connects the pure models in :mod:`aerial.models` and knows
+nothing of rich or the terminal.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+
+import numpy as np
+
+from aerial import __version__
+from aerial.errors import ModelInputError
+from aerial.geometry import EARTH_ROLES, resolve, wires_json
+from aerial.safety import cautions_for
+
+METHODS = ("closed-form", "full-wave")
+
+#: Default sweep step by band [Hz] when the site gives none.
+DEFAULT_STEP_HZ = ((300e3, 5e3), (2e6, 10e3), (31e6, 25e3))
+
+#: Height change and added length in the what-if table.
+WHAT_IF_RAISE_M = 3.0
+WHAT_IF_EXTEND_M = 10.0
+
+
+def frequency_grid(site, step_hz: float | None = None) -> np.ndarray:
+    """Sweep frequencies for the site's bands, band edges included. [Hz]"""
+    step_override = step_hz or site.frequency_step_hz.get("all")
+    out = []
+    for _name, lo, hi in site.bands:
+        step = step_override
+        if step is None:
+            step = next(s for top, s in DEFAULT_STEP_HZ if hi <= top)
+        n = max(2, int(math.ceil((hi - lo) / step)) + 1)
+        n = min(n, 5001)
+        out.append(np.linspace(lo, hi, n))
+    return np.unique(np.round(np.concatenate(out), 3))
+
+
+def band_points(site) -> list[tuple[str, float]]:
+    """Band edges and centres (geometric) for the report tables. [Hz]"""
+    pts = []
+    for name, lo, hi in site.bands:
+        pts += [(f"{name} low edge", lo), (f"{name} centre", math.sqrt(lo * hi)), (f"{name} high edge", hi)]
+    return pts
+
+
+# --------------------------------------------------------------------------- earth
+
+
+def earth_system(site, conductivity_s_m: float | None = None) -> dict:
+    """Resistance of the site's earth system at low frequency. [ohm]"""
+    from aerial import earth
+
+    sigma = site.soil.conductivity_s_m if conductivity_s_m is None else conductivity_s_m
+    return earth.earth_resistance(site.electrodes, 1.0 / sigma)
+
+
+# --------------------------------------------------------------------------- aerial
+
+
+def aerial_response(site, geometry, frequency, earth_ohm: float, method: str = "closed-form", progress=None) -> dict:
+    """Per-frequency electrical figures of the aerial with its earth. Returns numpy arrays."""
+    if method not in METHODS:
+        raise ModelInputError(f"'{method}' is not a valid method, must be one of " + ", ".join(f"'{m}'" for m in METHODS))
+    if method == "full-wave":
+        from aerial.fullwave_bridge import full_wave_response
+
+        out = full_wave_response(site, geometry, frequency, earth_ohm, progress=progress)
+    else:
+        from aerial.models.closed_form import closed_form_response
+
+        out = dict(closed_form_response(geometry.segments, frequency))
+        out["ground_loss_ohm"] = np.full(len(frequency), float(earth_ohm))
+        out["warnings"] = list(out.get("warnings", []))
+    rr = np.asarray(out["radiation_resistance_ohm"], float)
+    rc = np.asarray(out["conductor_loss_ohm"], float)
+    rg = np.asarray(out["ground_loss_ohm"], float)
+    r_total = rr + rc + rg
+    x = np.asarray(out["reactance_ohm"], float)
+    out["series_resistance_ohm"] = r_total
+    out["impedance_ohm"] = np.stack([r_total, x], axis=1)
+    out["efficiency"] = rr / r_total
+    e = site.field_strength_v_per_m
+    voc = e * np.asarray(out["effective_height_m"], float)
+    out["open_circuit_voltage_v"] = voc
+    out["available_power_w"] = voc**2 / (4.0 * r_total)
+    return out
+
+
+def _perturbed_wires(site, delta_sign: float = 0.0, raise_m: float = 0.0, extend_m: float = 0.0):
+    """Aerial wires with support heights moved by their tolerance (sign -1/+1) or by ``raise_m``.
+
+    The receiver end of the lead-in and the earth side stay where they are.
+    """
+    supports = site.supports
+    feed = site.feed_m
+    out = []
+    for w in site.wires:
+        if w.role in EARTH_ROLES:
+            out.append(w)
+            continue
+        p = np.array(w.points_m, dtype=float)
+        marks = list(w.support_at_point) or [None] * len(p)
+        tol = np.array([supports[m].height_tolerance_m if m in supports else np.nan for m in marks], dtype=float)
+        if np.all(np.isnan(tol)):
+            tol[:] = 0.3  # an explicit polyline: measured, take +/-0.3 m
+        else:
+            idx = np.arange(len(p))
+            good = ~np.isnan(tol)
+            tol = np.interp(idx, idx[good], tol[good])
+        at_feed = np.linalg.norm(p - feed, axis=1) < 1e-6
+        dz = delta_sign * tol + raise_m
+        dz = np.where(at_feed, 0.0, dz)
+        p[:, 2] = np.maximum(p[:, 2] + dz, 0.3 * p[:, 2] + 0.05 * (~at_feed))
+        if w.role == "lead-in":
+            # the lead-in's top follows the aerial; its receiver end stays put
+            pass
+        out.append(replace(w, points_m=p))
+    if extend_m > 0:
+        out = _extend_far_end(out, feed, extend_m)
+    return out
+
+
+def _extend_far_end(wires, feed, extend_m):
+    """Add ``extend_m`` of wire at the aerial end farthest from the feed, continuing its last piece."""
+    best = None
+    for i, w in enumerate(wires):
+        if w.role != "aerial":
+            continue
+        for end in (0, -1):
+            d = np.linalg.norm(w.points_m[end] - feed)
+            if best is None or d > best[0]:
+                best = (d, i, end)
+    if best is None:
+        return wires
+    _, i, end = best
+    w = wires[i]
+    p = np.array(w.points_m, dtype=float)
+    if end == 0:
+        p = p[::-1]
+    direction = p[-1] - p[-2]
+    direction[2] = 0.0
+    norm = np.linalg.norm(direction)
+    if norm < 1e-9:
+        direction = np.array([1.0, 0.0, 0.0])
+    else:
+        direction /= norm
+    new = p[-1] + extend_m * direction
+    p = np.vstack([p, new])
+    marks = tuple(w.support_at_point) + (None,) if end == -1 else (None,) + tuple(w.support_at_point)
+    if end == 0:
+        p = p[::-1]
+    wires = list(wires)
+    wires[i] = replace(w, points_m=p, support_at_point=marks)
+    return wires
+
+
+def _headline(site, wires, frequency, earth_ohm):
+    from aerial.models.closed_form import closed_form_response
+
+    geo = resolve(site, wires=wires)
+    r = closed_form_response(geo.segments, np.atleast_1d(frequency))
+    rr = np.asarray(r["radiation_resistance_ohm"])
+    rt = rr + np.asarray(r["conductor_loss_ohm"]) + earth_ohm
+    voc = site.field_strength_v_per_m * np.asarray(r["effective_height_m"])
+    return {
+        "capacitance_f": np.asarray(r["capacitance_f"]),
+        "effective_height_m": np.asarray(r["effective_height_m"]),
+        "loss_resistance_ohm": rt - rr,
+        "series_resistance_ohm": rt,
+        "open_circuit_voltage_v": voc,
+        "available_power_w": voc**2 / (4 * rt),
+    }
+
+
+def uncertainty(site, frequency, earth: dict) -> dict:
+    """Low and high values of the headline figures from the inputs' tolerances.
+
+    Heights move by each support's tolerance; the soil by its category's bounds.
+    """
+    lo = _headline(site, _perturbed_wires(site, -1.0), frequency, earth["resistance_high_ohm"])
+    hi = _headline(site, _perturbed_wires(site, +1.0), frequency, earth["resistance_low_ohm"])
+    out = {}
+    for key in lo:
+        a, b = np.asarray(lo[key]), np.asarray(hi[key])
+        out[key] = np.stack([np.minimum(a, b), np.maximum(a, b)], axis=1)
+    out["ground_loss_ohm"] = np.tile([earth["resistance_low_ohm"], earth["resistance_high_ohm"]], (len(np.atleast_1d(frequency)), 1))
+    return out
+
+
+def what_if(site, frequency: float, earth: dict) -> list[dict]:
+    """What raising the wire, lengthening it, or improving the earth buys, at one frequency."""
+    from aerial import earth as earth_mod
+
+    base = _headline(site, site.wires, frequency, earth["resistance_ohm"])
+    rows = [("as described", base)]
+    rows.append((f"raise the wire {WHAT_IF_RAISE_M:g} m", _headline(site, _perturbed_wires(site, raise_m=WHAT_IF_RAISE_M), frequency, earth["resistance_ohm"])))
+    rows.append((f"add {WHAT_IF_EXTEND_M:g} m to the far end", _headline(site, _perturbed_wires(site, extend_m=WHAT_IF_EXTEND_M), frequency, earth["resistance_ohm"])))
+    better = earth_mod.improved_earth(site.electrodes, 1.0 / site.soil.conductivity_s_m)
+    rows.append((better["description"], _headline(site, site.wires, frequency, better["resistance_ohm"])))
+    out = []
+    p0 = float(base["available_power_w"][0])
+    for label, h in rows:
+        p = float(h["available_power_w"][0])
+        out.append({
+            "change": label,
+            "frequency_hz": float(frequency),
+            "effective_height_m": float(h["effective_height_m"][0]),
+            "capacitance_f": float(h["capacitance_f"][0]),
+            "loss_resistance_ohm": float(h["loss_resistance_ohm"][0]),
+            "open_circuit_voltage_v": float(h["open_circuit_voltage_v"][0]),
+            "available_power_w": p,
+            "power_change_db": 10.0 * math.log10(p / p0) if p > 0 and p0 > 0 else 0.0,
+        })
+    return out
+
+
+# --------------------------------------------------------------------------- main entry
+
+
+def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, progress=None, what_ifs: bool = True) -> dict:
+    """Run the whole chain for a site.
+
+    Parameters
+    ----------
+    site : Site
+        From :func:`aerial.load_site`.
+    method : {"closed-form", "full-wave"}
+        Which aerial model produces the per-frequency figures.
+    step_hz : float, optional
+        Sweep step [Hz]; default depends on the band.
+    progress : callable, optional
+        ``progress(done, total)`` during long sweeps.
+
+    Returns
+    -------
+    dict
+        JSON-ready: SI units, the unit in every key name (docs/json-output.md).
+    """
+    if method not in METHODS:
+        raise ModelInputError(f"'{method}' is not a valid method, must be one of " + ", ".join(f"'{m}'" for m in METHODS))
+    warnings: list[str] = list(site.notes)
+    freqs = frequency_grid(site, step_hz)
+    earth = earth_system(site)
+    warnings += earth.get("warnings", [])
+    geometry = resolve(site, electrode_ohm=earth["resistance_ohm"])
+    resp = aerial_response(site, geometry, freqs, earth["resistance_ohm"], method=method, progress=progress)
+    warnings += resp.get("warnings", [])
+
+    result: dict = {
+        "aerial_version": __version__,
+        "site": {
+            "name": site.name,
+            "file": site.path,
+            "region": site.region,
+            "noise_category": site.noise,
+            "soil": {
+                "category": site.soil.name,
+                "relative_permittivity": site.soil.relative_permittivity,
+                "conductivity_s_m": site.soil.conductivity_s_m,
+                "conductivity_range_s_m": [site.soil.conductivity_low_s_m, site.soil.conductivity_high_s_m],
+                "source": site.soil.source,
+            },
+            "field_strength_v_per_m": site.field_strength_v_per_m,
+        },
+        "geometry": {
+            "wires": wires_json(geometry),
+            "feed_m": [float(v) for v in geometry.feed_m],
+            "base_fed": geometry.base_fed,
+            "total_length_m": geometry.total_length_m,
+            "earth_lead_length_m": geometry.earth_lead_length_m,
+            "max_height_m": geometry.max_height_m,
+            "mean_height_m": geometry.mean_height_m,
+            "plan_extent_m": geometry.plan_extent_m(),
+            "shape": resp.get("shape"),
+        },
+        "bands": [{"name": n, "from_hz": lo, "to_hz": hi} for n, lo, hi in site.bands],
+        "frequencies_hz": freqs,
+        "aerial": {
+            "model": resp["model"],
+            "capacitance_f": resp["capacitance_f"],
+            "static_capacitance_f": resp.get("static_capacitance_f"),
+            "effective_height_m": resp["effective_height_m"],
+            "radiation_resistance_ohm": resp["radiation_resistance_ohm"],
+            "reactance_ohm": resp["reactance_ohm"],
+            "impedance_ohm": resp["impedance_ohm"],
+            "conductor_loss_ohm": resp["conductor_loss_ohm"],
+            "ground_loss_ohm": resp["ground_loss_ohm"],
+            "series_resistance_ohm": resp["series_resistance_ohm"],
+            "efficiency": resp["efficiency"],
+            "open_circuit_voltage_v": resp["open_circuit_voltage_v"],
+            "available_power_w": resp["available_power_w"],
+        },
+        "earth": {k: v for k, v in earth.items() if k != "warnings"},
+    }
+    for key in ("convergence", "ground_treatment", "segments"):
+        if key in resp:
+            result["aerial"][key] = resp[key]
+
+    # honest precision: ranges at the band points
+    pts = band_points(site)
+    pf = np.array([f for _, f in pts])
+    unc = uncertainty(site, pf, earth)
+    result["ranges"] = {
+        "frequencies_hz": pf,
+        "labels": [label for label, _ in pts],
+        **{f"{k}": v for k, v in unc.items()},
+        "notes": [
+            "Ranges move every support by its height tolerance and the soil between its category's bounds.",
+            "Nearby buildings, trees and wiring are not modelled; measured aerial capacitance can differ from any "
+            "formula by a large factor. A bench measurement ([receiver.measured]) replaces the estimate.",
+        ],
+    }
+    if what_ifs:
+        centre = pts[len(pts) // 2][1] if len(site.bands) == 1 else pts[1][1]
+        result["what_if"] = what_if(site, centre, earth)
+
+    from aerial import receiver_bridge
+
+    tuning, stations, rx_warnings = receiver_bridge.receiver_results(site, freqs, resp)
+    result["tuning"] = tuning
+    result["stations"] = stations
+    warnings += rx_warnings
+
+    result["cautions"] = cautions_for(site)
+    result["warnings"] = _unique(warnings)
+    return finalise(result)
+
+
+def _unique(items):
+    seen = set()
+    out = []
+    for item in items:
+        if item not in seen:
+            seen.add(item)
+            out.append(item)
+    return out
+
+
+def finalise(result: dict) -> dict:
+    """Turn numpy values into plain JSON types; any non-finite number becomes null with a warning."""
+    bad: list[str] = []
+
+    def clean(value, path):
+        if isinstance(value, dict):
+            return {k: clean(v, f"{path}.{k}" if path else k) for k, v in value.items()}
+        if isinstance(value, (list, tuple)):
+            return [clean(v, path) for v in value]
+        if isinstance(value, np.ndarray):
+            return clean(value.tolist(), path)
+        if isinstance(value, (np.bool_, bool)):
+            return bool(value)
+        if isinstance(value, (np.integer,)):
+            return int(value)
+        if isinstance(value, (float, np.floating)):
+            v = float(value)
+            if not math.isfinite(v):
+                bad.append(path)
+                return None
+            return v
+        if isinstance(value, complex):
+            return [clean(value.real, path), clean(value.imag, path)]
+        return value
+
+    out = clean(result, "")
+    if bad:
+        out.setdefault("warnings", []).append(
+            "Some figures could not be computed and are shown as null: " + ", ".join(sorted(set(bad)))
+        )
+    return out

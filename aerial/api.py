@@ -1,0 +1,89 @@
+"""The functions the command line calls, one per command; a notebook can call them too."""
+
+from __future__ import annotations
+
+from aerial.errors import AerialError
+
+
+def check_site(path) -> dict:
+    """Validate a site file and return the resolved geometry summary (JSON-ready)."""
+    from aerial.analysis import finalise, frequency_grid
+    from aerial.geometry import resolve, wires_json
+    from aerial.safety import cautions_for
+    from aerial.site import load_site
+
+    site = load_site(path)
+    refusal_check(site)
+    geo = resolve(site)
+    freqs = frequency_grid(site)
+    return finalise({
+        "site": {"name": site.name, "file": site.path, "region": site.region, "noise_category": site.noise,
+                 "soil": site.soil.name},
+        "geometry": {
+            "wires": wires_json(geo),
+            "feed_m": [float(v) for v in geo.feed_m],
+            "base_fed": geo.base_fed,
+            "total_length_m": geo.total_length_m,
+            "earth_lead_length_m": geo.earth_lead_length_m,
+            "max_height_m": geo.max_height_m,
+            "mean_height_m": geo.mean_height_m,
+            "plan_extent_m": geo.plan_extent_m(),
+            "segment_count": len(geo.segments),
+        },
+        "earth": [e.kind for e in site.electrodes],
+        "bands": [{"name": n, "from_hz": lo, "to_hz": hi} for n, lo, hi in site.bands],
+        "frequency_count": len(freqs),
+        "stations": len(site.stations),
+        "cautions": cautions_for(site),
+        "warnings": list(site.notes),
+    })
+
+
+def refusal_check(site) -> None:
+    """Refuse (raise SafetyRefusal) a site whose own wire breaks a power-line clearance."""
+    try:
+        from aerial.clearance import enforce_site_clearance
+    except ImportError:  # the planner module is optional at this stage
+        return
+    enforce_site_clearance(site)
+
+
+def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=None, force=False) -> dict:
+    """Load a site (None: the built-in example), run the whole chain, optionally draw pictures."""
+    from aerial.analysis import analyse
+    from aerial.site import load_site
+
+    site = load_site(path)
+    refusal_check(site)
+    if pictures:
+        from aerial.pictures import check_picture_folder
+
+        check_picture_folder(pictures, force, site)
+    result = analyse(site, method="full-wave" if full_wave else "closed-form", step_hz=step_hz, progress=progress)
+    if pictures:
+        from aerial.pictures import draw_report_pictures
+
+        result["pictures"] = draw_report_pictures(result, pictures, force=force, protected=(site.path,))
+    return result
+
+
+def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allow_large=False) -> dict:
+    from aerial.site import load_site
+
+    site = load_site(path)
+    try:
+        from aerial.planner import plan_layouts
+    except ImportError:
+        raise AerialError("the layout planner is not available in this build") from None
+    if picture:
+        from aerial.files import check_writable
+
+        check_writable(picture, force, protected=(site.path,))
+    return plan_layouts(site, best=best, full_wave=full_wave, picture=picture, force=force, allow_large=allow_large)
+
+
+def coil_helper(*, diameter, wire, turns=None, inductance=None, pitch=None, strands=1, frequency="1 MHz") -> dict:
+    from aerial.receiver_bridge import coil_design
+
+    return coil_design(diameter=diameter, wire=wire, turns=turns, inductance=inductance, pitch=pitch,
+                       strands=strands, frequency=frequency)

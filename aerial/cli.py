@@ -1,0 +1,230 @@
+"""The ``aerial`` command line: parse, call the Python API, render.
+
+Every command opens the input, calls one API function and renders the
+result: the rich report for people or ``--json`` for scripts. Errors the
+user can fix come out as one line on stderr and exit code 2; Ctrl-C exits
+130 with one line. Data goes to stdout, diagnostics to stderr.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import sys
+
+from aerial import __version__
+from aerial.errors import AerialError, SafetyRefusal
+
+EXIT_OK = 0
+EXIT_USER = 2
+EXIT_REFUSED = 3
+EXIT_INTERRUPTED = 130
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message):  # one line, exit 2, no usage dump
+        raise AerialError(f"{self.prog}: {message} (see '{self.prog} --help')")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    p = _Parser(
+        prog="aerial",
+        description="Estimate how well a wire receiving aerial and its earth system will work.",
+        epilog="Site files are TOML; see docs/site-file.md. Figures are estimates: local codes and licensed practice govern.",
+    )
+    p.add_argument("--version", action="version", version=f"aerial {__version__}")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+
+    c = sub.add_parser("check", help="validate a site file and summarise the wires as aerial understood them",
+                       description="Validate a site file and summarise the resolved wires.")
+    c.add_argument("site", metavar="SITE", help="site file (TOML)")
+    c.add_argument("--json", action="store_true", help="print machine-readable JSON instead of the report")
+
+    r = sub.add_parser("report", help="run the whole chain: aerial figures, earth, tuning, stations, cautions",
+                       description="Run the whole chain for a site (the built-in example when SITE is left out).")
+    r.add_argument("site", metavar="SITE", nargs="?", help="site file (TOML); omit for the built-in example")
+    r.add_argument("--json", action="store_true", help="print machine-readable JSON instead of the report")
+    r.add_argument("--full-wave", action="store_true", help="use the method-of-moments wire solver instead of closed forms")
+    r.add_argument("--step", metavar="FREQ", help='sweep step, e.g. "1 kHz" (default depends on the band)')
+    r.add_argument("--pictures", metavar="DIR", help="write SVG pictures of impedance, capacitance and tuning range into DIR")
+    r.add_argument("--force", action="store_true", help="replace picture files that already exist")
+
+    lay = sub.add_parser("layout", help="search the site's supports for the best safe wire layouts",
+                         description="Rank wire layouts among the site's candidate supports, keeping clear of power lines.")
+    lay.add_argument("site", metavar="SITE", help="site file (TOML) with a [plan] table")
+    lay.add_argument("--json", action="store_true", help="print machine-readable JSON instead of the report")
+    lay.add_argument("--best", type=int, default=5, metavar="N", help="how many layouts to show (default 5)")
+    lay.add_argument("--full-wave", action="store_true", help="refine the winning layout with the wire solver")
+    lay.add_argument("--picture", metavar="FILE", help="write a plan drawing (SVG, or PNG by extension) to FILE")
+    lay.add_argument("--force", action="store_true", help="replace FILE if it exists")
+    lay.add_argument("--allow-large", action="store_true", help="run a search beyond the stated time and memory budget")
+
+    coil = sub.add_parser("coil", help="single-layer coil helper: inductance from turns, or turns for an inductance",
+                          description="Single-layer solenoid: inductance from turns, or turns for a wanted inductance.")
+    coil.add_argument("--diameter", required=True, metavar="LEN", help='form diameter, e.g. "50 mm"')
+    coil.add_argument("--wire", required=True, metavar="GAUGE", help='wire gauge, e.g. "26 AWG" or "24 SWG"')
+    g = coil.add_mutually_exclusive_group(required=True)
+    g.add_argument("--turns", type=float, help="number of turns (gives the inductance)")
+    g.add_argument("--inductance", metavar="L", help='wanted inductance, e.g. "240 uH" (gives the turns)')
+    coil.add_argument("--pitch", metavar="LEN", help="turn-to-turn pitch (default: close-wound, one wire diameter)")
+    coil.add_argument("--strands", type=int, default=1, help="strands of a stranded (litz) wire, each of --wire gauge")
+    coil.add_argument("--frequency", metavar="FREQ", default="1 MHz", help='frequency for the Q estimate (default "1 MHz")')
+    coil.add_argument("--json", action="store_true", help="print machine-readable JSON")
+    return p
+
+
+def _console(stderr=False):
+    from rich.console import Console
+
+    return Console(stderr=stderr, highlight=False, soft_wrap=False)
+
+
+def _print_json(data) -> None:
+    sys.stdout.write(json.dumps(data, indent=2, sort_keys=False, allow_nan=False))
+    sys.stdout.write("\n")
+
+
+def _progress_factory(enabled: bool):
+    """A rich progress bar that appears only when a sweep takes more than a moment."""
+    if not enabled:
+        return None, None
+    from rich.progress import BarColumn, Progress, TextColumn, TimeRemainingColumn
+
+    prog = Progress(TextColumn("solving"), BarColumn(), TextColumn("{task.completed}/{task.total}"),
+                    TimeRemainingColumn(), console=_console(stderr=True), transient=True)
+    state = {"task": None, "started": False}
+    import time
+
+    t0 = time.monotonic()
+
+    def update(done, total):
+        if not state["started"] and time.monotonic() - t0 > 0.5:
+            prog.start()
+            state["started"] = True
+            state["task"] = prog.add_task("sweep", total=total)
+        if state["started"]:
+            prog.update(state["task"], completed=done, total=total)
+
+    def stop():
+        if state["started"]:
+            prog.stop()
+
+    return update, stop
+
+
+def cmd_check(args) -> int:
+    from aerial.api import check_site
+
+    summary = check_site(args.site)
+    if args.json:
+        _print_json(summary)
+    else:
+        from aerial.report import render_check
+
+        render_check(summary, _console())
+    return EXIT_OK
+
+
+def cmd_report(args) -> int:
+    from aerial.api import run_report
+
+    step = None
+    if args.step:
+        from aerial import units
+
+        try:
+            step = units.parse_quantity(args.step, units.FREQUENCY_UNITS, "a frequency step", "Hz")
+        except units.UnitError as err:
+            raise AerialError(f"--step {args.step}: {err.expected}") from None
+        if not 100 <= step <= 1e6:
+            raise AerialError(f"--step {args.step}: expected a step from 100 Hz to 1 MHz")
+    update, stop = _progress_factory(sys.stderr.isatty() and not args.json)
+    try:
+        result = run_report(args.site, full_wave=args.full_wave, step_hz=step, progress=update,
+                            pictures=args.pictures, force=args.force)
+    finally:
+        if stop:
+            stop()
+    if args.json:
+        _print_json(result)
+    else:
+        from aerial.report import render_report
+
+        render_report(result, _console())
+    return EXIT_OK
+
+
+def cmd_layout(args) -> int:
+    from aerial.api import run_layout
+
+    result = run_layout(args.site, best=args.best, full_wave=args.full_wave, picture=args.picture,
+                        force=args.force, allow_large=args.allow_large)
+    if args.json:
+        _print_json(result)
+    else:
+        from aerial.report import render_layout
+
+        render_layout(result, _console())
+    return EXIT_OK
+
+
+def cmd_coil(args) -> int:
+    from aerial.api import coil_helper
+
+    result = coil_helper(diameter=args.diameter, wire=args.wire, turns=args.turns, inductance=args.inductance,
+                         pitch=args.pitch, strands=args.strands, frequency=args.frequency)
+    if args.json:
+        _print_json(result)
+    else:
+        from aerial.report import render_coil
+
+        render_coil(result, _console())
+    return EXIT_OK
+
+
+COMMANDS = {"check": cmd_check, "report": cmd_report, "layout": cmd_layout, "coil": cmd_coil}
+
+
+def main(argv=None) -> int:
+    """Entry point of the ``aerial`` console script; returns the exit code."""
+    try:
+        parser = build_parser()
+        args = parser.parse_args(argv)
+        if args.command is None:
+            parser.print_help()
+            return EXIT_USER
+        return COMMANDS[args.command](args)
+    except SafetyRefusal as err:
+        sys.stderr.write(f"aerial: refused: {err}\n")
+        return EXIT_REFUSED
+    except AerialError as err:
+        sys.stderr.write(f"aerial: {err}\n")
+        return EXIT_USER
+    except KeyboardInterrupt:
+        sys.stderr.write("aerial: interrupted\n")
+        return EXIT_INTERRUPTED
+    except BrokenPipeError:
+        # the reader went away (e.g. `| head`): not an error
+        try:
+            sys.stdout = open(os.devnull, "w")
+        except OSError:
+            pass
+        return EXIT_OK
+    except MemoryError:
+        sys.stderr.write("aerial: out of memory; use a coarser segmentation or fewer supports\n")
+        return EXIT_USER
+    except Exception as err:  # a bug: still one line for the user
+        if os.environ.get("AERIAL_DEBUG"):
+            raise
+        sys.stderr.write(f"aerial: internal error ({type(err).__name__}: {err}); "
+                         "please report it with the site file (set AERIAL_DEBUG=1 for details)\n")
+        return 1
+
+
+def console_main():  # pragma: no cover
+    sys.exit(main())
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

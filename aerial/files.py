@@ -1,0 +1,53 @@
+"""Safe writes: a temporary file in the same folder, then an atomic rename.
+
+An existing file is never replaced unless the caller passes ``force``; a
+failure or an interruption leaves no partial file behind.
+"""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from pathlib import Path
+
+from aerial.errors import AerialError
+
+
+def check_writable(path, force: bool = False, protected=()) -> Path:
+    """Raise :class:`AerialError` unless ``path`` may be written."""
+    p = Path(path)
+    for other in protected:
+        try:
+            if other and Path(other).exists() and p.exists() and p.resolve() == Path(other).resolve():
+                raise AerialError(f"{path}: refusing to write over an input file")
+        except OSError:
+            pass
+    if p.exists() and p.is_dir():
+        raise AerialError(f"{path}: is a folder; expected a file name to write")
+    if p.exists() and not force:
+        raise AerialError(f"{path}: already exists; choose another name or add --force to replace it")
+    parent = p.parent if str(p.parent) else Path(".")
+    if not parent.exists():
+        raise AerialError(f"{path}: the folder {parent} does not exist")
+    return p
+
+
+def write_atomic(path, data: bytes | str, force: bool = False, protected=()) -> Path:
+    """Write ``data`` to ``path`` through a temporary file and a rename."""
+    p = check_writable(path, force, protected)
+    if isinstance(data, str):
+        data = data.encode("utf-8")
+    fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".part", dir=p.parent if str(p.parent) else ".")
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+        if p.exists() and not force:  # appeared meanwhile
+            raise AerialError(f"{path}: already exists; choose another name or add --force to replace it")
+        os.replace(tmp, p)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        raise
+    return p

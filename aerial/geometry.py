@@ -1,0 +1,144 @@
+"""Turn a validated :class:`aerial.site.Site` into straight 3-D segments and a plan footprint.
+
+Frame: metres, x east, y north, z up; z = 0 is the ground surface. Shapely
+geometries are plan views (x, y) in the same frame.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import shapely
+from shapely.geometry import LineString, MultiLineString
+
+from aerial.materials import CONDUCTORS
+from aerial.models.segments import FEED_GAP_M, Segments
+
+#: Roles on the earth side of the receiver.
+EARTH_ROLES = ("earth lead", "counterpoise")
+
+
+@dataclass(frozen=True)
+class Geometry:
+    """The resolved wires of a site.
+
+    Attributes
+    ----------
+    wires : list of WireRun
+        As resolved from the site file (points in metres).
+    segments : Segments
+        Every straight piece, ready for the electrical models.
+    feed_m : ndarray (3,)
+        The receiver's aerial terminal. [m]
+    base_fed : bool
+        True when the receiver is at ground level (no earth-lead wire): the
+        aerial's lowest point is then raised to the feed gap above ground.
+    """
+
+    wires: list
+    segments: Segments
+    feed_m: np.ndarray
+    base_fed: bool
+
+    @property
+    def aerial_wires(self):
+        return [w for w in self.wires if w.role not in EARTH_ROLES]
+
+    @property
+    def total_length_m(self) -> float:
+        """Length of the aerial including its lead-in. [m]"""
+        return float(sum(w.length_m for w in self.aerial_wires))
+
+    @property
+    def earth_lead_length_m(self) -> float:
+        return float(sum(w.length_m for w in self.wires if w.role in EARTH_ROLES))
+
+    @property
+    def max_height_m(self) -> float:
+        return float(max(w.points_m[:, 2].max() for w in self.aerial_wires))
+
+    @property
+    def mean_height_m(self) -> float:
+        """Length-weighted mean height of the aerial and lead-in. [m]"""
+        seg = self.segments
+        m = seg.aerial
+        return float(np.sum(seg.midpoint[m, 2] * seg.length[m]) / np.sum(seg.length[m]))
+
+    def footprint(self) -> MultiLineString:
+        """Plan view of the aerial and lead-in (x, y in metres)."""
+        lines = []
+        for w in self.aerial_wires:
+            xy = w.points_m[:, :2]
+            if np.ptp(xy, axis=0).max() > 1e-9:
+                lines.append(LineString(xy))
+        return MultiLineString(lines) if lines else MultiLineString()
+
+    def plan_extent_m(self) -> float:
+        """Longest plan dimension of the aerial's footprint. [m]"""
+        fp = self.footprint()
+        if fp.is_empty:
+            return 0.0
+        x0, y0, x1, y1 = shapely.bounds(fp)
+        return float(np.hypot(x1 - x0, y1 - y0))
+
+
+def resolve(site, electrode_ohm: float = 0.0, wires=None) -> Geometry:
+    """Cut the site's wires into straight segments for the electrical models.
+
+    Parameters
+    ----------
+    site : Site
+        A validated site.
+    electrode_ohm : float
+        Earth-electrode resistance where the earth lead meets the ground. [ohm]
+    wires : list of WireRun, optional
+        Wires to use instead of ``site.wires`` (what-if and uncertainty runs).
+    """
+    wires = list(site.wires if wires is None else wires)
+    feed = site.feed_m.astype(float).copy()
+    has_earth_lead = any(w.role == "earth lead" for w in wires)
+    base_fed = not has_earth_lead
+    if base_fed and feed[2] < FEED_GAP_M:
+        feed[2] = FEED_GAP_M
+    starts, ends, radius, grounded, index, rho, mur = [], [], [], [], [], [], []
+    for i, w in enumerate(wires):
+        p = np.array(w.points_m, dtype=float)
+        # a base-fed aerial's lowest point stays one feed gap above its image
+        p[:, 2] = np.where((p[:, 2] < FEED_GAP_M) & (w.role not in EARTH_ROLES), FEED_GAP_M, p[:, 2])
+        if w.role == "counterpoise":
+            p[:, 2] = np.maximum(p[:, 2], FEED_GAP_M)
+        cond = CONDUCTORS[w.size.material]
+        n = len(p) - 1
+        starts.append(p[:-1])
+        ends.append(p[1:])
+        radius.append(np.full(n, w.size.radius_m))
+        grounded.append(np.full(n, w.role in EARTH_ROLES))
+        index.append(np.full(n, i))
+        rho.append(np.full(n, cond.resistivity_ohm_m))
+        mur.append(np.full(n, cond.relative_permeability))
+    seg = Segments(
+        np.vstack(starts), np.vstack(ends), np.concatenate(radius), np.concatenate(grounded), feed,
+        wire_index=np.concatenate(index), resistivity=np.concatenate(rho),
+        relative_permeability=np.concatenate(mur), electrode_ohm=float(electrode_ohm),
+    )
+    return Geometry(wires, seg, feed, base_fed)
+
+
+def wires_json(geometry: Geometry) -> list[dict]:
+    """The resolved wires as the JSON contract lists them."""
+    out = []
+    for w in geometry.wires:
+        pts = np.array(w.points_m, dtype=float)
+        if geometry.base_fed and w.role not in EARTH_ROLES:
+            pts[:, 2] = np.maximum(pts[:, 2], FEED_GAP_M)
+        out.append({
+            "name": w.name,
+            "role": w.role,
+            "points_m": [[round(float(v), 6) for v in p] for p in pts],
+            "radius_m": float(w.size.radius_m),
+            "size": w.size.described_as,
+            "material": w.size.material,
+            "length_m": round(w.length_m, 6),
+        })
+    return out

@@ -1,0 +1,49 @@
+"""Electrical-safety cautions printed with every report.
+
+These are the usual cautions of the trade. They do not replace local codes:
+the local electrical code, the authority that enforces it and a licensed
+electrician decide what is required where the aerial is put up.
+"""
+
+from __future__ import annotations
+
+GENERAL_CAUTIONS: tuple[str, ...] = (
+    "Lightning: an outdoor wire collects static charge and can be struck. Disconnect the lead-in and connect it "
+    "to earth when the receiver is not in use and whenever a storm is near; fit an antenna discharge unit "
+    "(lightning arrester) where the lead-in enters the building.",
+    "Power lines: put the wire, its supports and the lead-in where nothing can fall or blow onto a power line, "
+    "even if a support breaks; never cross over or under a power line. Contact is often fatal.",
+    "Never use gas piping as an earth.",
+    "Do not open mains outlets or rely on the mains (protective) earth for the aerial without a licensed electrician.",
+    "Bond the aerial's earth to the building's grounding electrode system as your local code requires.",
+    "The figures here are estimates. Local electrical codes and licensed practice govern the installation.",
+)
+
+
+def cautions_for(site) -> list[str]:
+    """The general cautions plus those the site's own earth system calls for."""
+    out = list(GENERAL_CAUTIONS)
+    kinds = {e.kind for e in site.electrodes}
+    if "water_pipe" in kinds:
+        out.append(
+            "Water-pipe earth: a metal cold-water pipe is an earth only if no plastic section (a repair, a meter, "
+            "a filter) interrupts it between you and the ground; a pipe can also be made plastic later by a plumber. "
+            "Codes require a supplementary electrode and bonding; ask a licensed electrician."
+        )
+    if "building_earth" in kinds:
+        out.append(
+            "Building protective earth: it exists to clear mains faults, can carry fault and leakage current, and "
+            "brings mains noise with it. Connect to it only at the building's earthing terminal or bonding point, "
+            "through a licensed electrician, never through an outlet."
+        )
+    if any(w.role == "counterpoise" for w in site.wires):
+        out.append(
+            "Counterpoise: it is not an earth for lightning or static; keep a separate earth connection for "
+            "the discharge unit."
+        )
+    if site.receiver.coupling == "series capacitor":
+        out.append(
+            "Series coupling capacitor: the aerial has no DC path to earth and will build up static charge; add a "
+            "bleed resistor (about 1 MΩ) or an RF choke from the aerial terminal to earth."
+        )
+    return out
