@@ -1,0 +1,349 @@
+"""Diode envelope detector driving an earphone, from a Shockley diode model.
+
+The detector is a diode feeding a load resistance R_L (the earphone, or a
+resistor across it) bypassed for radio frequency by a capacitor. The diode
+sees the tank's RF peak voltage Vp; the capacitor holds the detected voltage
+Vdc. Averaging the Shockley current over one RF cycle gives the equations used
+below (I0, I1 are modified Bessel functions, x = Vp/(nVT)):
+
+* average current:      Vdc/R_L = Is·[e^(−Vdc/nVT)·I0(x) − 1]
+* RF fundamental:       I1_peak = 2·Is·e^(−Vdc/nVT)·I1(x)
+* RF input resistance:  R_in = Vp / I1_peak   (→ nVT/Is small-signal, → R_L/2 strong-signal)
+
+References
+----------
+.. [1] W. Shockley, "The theory of p-n junctions in semiconductors and p-n
+   junction transistors", Bell System Technical Journal 28, 435-489, 1949.
+.. [2] F. E. Terman, Radio Engineers' Handbook, McGraw-Hill, 1943, section on
+   diode detectors: square-law and linear (peak) detection (from memory).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import NamedTuple
+
+import numpy as np
+from scipy.constants import Boltzmann, elementary_charge
+from scipy.special import ive
+
+from aerial.errors import ModelInputError
+
+#: Default junction temperature. [K]
+DEFAULT_TEMPERATURE_K = 300.0
+
+#: Forward current at which a diode is said to "conduct" in :func:`conduction_voltage`. [A]
+CONDUCTION_CURRENT_A = 1e-3
+
+#: Default relative tolerance of the loaded-detector solver. [1]
+DETECTOR_RTOL = 1e-10
+#: Default iteration limit of the loaded-detector solver (bisection halvings).
+DETECTOR_MAX_ITER = 200
+
+#: Default modulation depth of an AM broadcast for audio estimates (assumption: a typical average). [1]
+DEFAULT_MODULATION_DEPTH = 0.3
+
+
+@dataclass(frozen=True)
+class Diode:
+    """Shockley parameters of a detector diode.
+
+    Attributes
+    ----------
+    name : str
+        Plain name.
+    saturation_current_a : float
+        Saturation current Is. [A]
+    ideality : float
+        Ideality factor n (1 ... 2). [1]
+    description : str
+        What the preset stands for.
+    """
+
+    name: str
+    saturation_current_a: float
+    ideality: float
+    description: str
+
+
+#: Typical order-of-magnitude parameters (assumptions, not a particular part).
+#: Common practice: metal–semiconductor junctions conduct from about 0.15-0.46 V,
+#: silicon pn junctions from about 0.6 V.
+DIODE_PRESETS: dict[str, Diode] = {
+    "germanium": Diode("germanium", 2e-6, 1.3,
+                       "germanium point-contact (a metal whisker on germanium): low turn-on, some leakage"),
+    "schottky": Diode("schottky", 3e-8, 1.05, "metal-semiconductor (Schottky) junction, low barrier"),
+    "silicon": Diode("silicon", 2e-9, 1.9, "silicon pn junction: turns on near 0.6 V, poor for weak signals"),
+}
+
+
+def get_diode(name: str) -> Diode:
+    """Look up a diode preset by name.
+
+    Examples
+    --------
+    >>> get_diode("schottky").ideality
+    1.05
+    """
+    if name not in DIODE_PRESETS:
+        valid = ", ".join(f"'{k}'" for k in DIODE_PRESETS)
+        raise ModelInputError(f"'{name}' is not a valid detector, must be one of {valid}")
+    return DIODE_PRESETS[name]
+
+
+def _check(name, value, allow_zero=False):
+    arr = np.asarray(value, dtype=float)
+    bad = (arr < 0) if allow_zero else (arr <= 0)
+    if not np.all(np.isfinite(arr)) or np.any(bad):
+        kind = "non-negative" if allow_zero else "positive"
+        raise ModelInputError(f"{name} must be a {kind} finite number, got {value!r}")
+    return arr
+
+
+def thermal_voltage(temperature=DEFAULT_TEMPERATURE_K):
+    """Thermal voltage kT/q.
+
+    Parameters
+    ----------
+    temperature : array_like
+        [K]
+
+    Returns
+    -------
+    ndarray
+        [V]
+
+    Examples
+    --------
+    >>> round(float(thermal_voltage(300.0)) * 1e3, 2)
+    25.85
+    """
+    return Boltzmann * _check("temperature", temperature) / elementary_charge
+
+
+def conduction_voltage(saturation_current, ideality, current=CONDUCTION_CURRENT_A,
+                       temperature=DEFAULT_TEMPERATURE_K):
+    """Forward voltage at which the diode passes ``current`` (Shockley equation).
+
+    Parameters
+    ----------
+    saturation_current : array_like
+        Is. [A]
+    ideality : array_like
+        n. [1]
+    current : array_like
+        Forward current. [A]
+    temperature : float
+        [K]
+
+    Returns
+    -------
+    ndarray
+        V = nVT·ln(1 + I/Is). [V]
+
+    References
+    ----------
+    Shockley, Bell System Technical Journal 28, 1949.
+
+    Examples
+    --------
+    >>> round(float(conduction_voltage(2e-9, 1.9)), 2)
+    0.64
+    """
+    n = _check("ideality", ideality)
+    return n * thermal_voltage(temperature) * np.log1p(_check("current", current) / _check("saturation_current", saturation_current))
+
+
+def _log_i0(x):
+    return np.log(ive(0, x)) + x
+
+
+def _log_i1(x):
+    return np.log(np.maximum(ive(1, x), 1e-300)) + x
+
+
+def open_circuit_detected_voltage(peak_voltage, ideality, temperature=DEFAULT_TEMPERATURE_K):
+    """DC output of a peak detector with no load (infinite load resistance).
+
+    Parameters
+    ----------
+    peak_voltage : array_like
+        RF peak voltage at the diode. [V]
+    ideality : float
+        n. [1]
+    temperature : float
+        [K]
+
+    Returns
+    -------
+    ndarray
+        Vdc = nVT·ln I0(Vp/nVT). [V]
+
+    Notes
+    -----
+    Square law Vdc ≈ Vp²/(4nVT) for Vp ≲ nVT; linear Vdc → Vp − nVT·ln√(2πVp/nVT)
+    for Vp ≫ nVT [2]_. Computed with exponentially scaled Bessel functions.
+
+    References
+    ----------
+    .. [2] Terman, Radio Engineers' Handbook, 1943 (from memory).
+
+    Examples
+    --------
+    >>> round(float(open_circuit_detected_voltage(1.0, 1.0)), 3)
+    0.929
+    """
+    vt = _check("ideality", ideality) * thermal_voltage(temperature)
+    return vt * _log_i0(_check("peak_voltage", peak_voltage, allow_zero=True) / vt)
+
+
+def square_law_detected_voltage(peak_voltage, ideality, temperature=DEFAULT_TEMPERATURE_K):
+    """Small-signal approximation Vdc ≈ Vp²/(4nVT) of the unloaded detector. [V]
+
+    Examples
+    --------
+    >>> v = 1e-3
+    >>> abs(float(square_law_detected_voltage(v, 1.0)) / float(open_circuit_detected_voltage(v, 1.0)) - 1) < 1e-3
+    True
+    """
+    vt = _check("ideality", ideality) * thermal_voltage(temperature)
+    return _check("peak_voltage", peak_voltage, allow_zero=True) ** 2 / (4.0 * vt)
+
+
+class Detection(NamedTuple):
+    detected_voltage: np.ndarray  #: DC across the load [V]
+    input_resistance: np.ndarray  #: RF input resistance seen by the tank [ohm]
+    converged: np.ndarray  #: solver converged
+    iterations: int
+
+
+def loaded_detector(peak_voltage, saturation_current, ideality, load_resistance,
+                    temperature=DEFAULT_TEMPERATURE_K, rtol=DETECTOR_RTOL, max_iter=DETECTOR_MAX_ITER):
+    """Detected voltage and RF input resistance of a diode detector with a resistive load.
+
+    Parameters
+    ----------
+    peak_voltage : array_like
+        RF peak voltage across the detector. [V]
+    saturation_current : float
+        Is. [A]
+    ideality : float
+        n. [1]
+    load_resistance : array_like
+        DC load (earphone) resistance. [ohm]
+    temperature : float
+        [K]
+    rtol : float
+        Relative tolerance on the detected voltage. [1]
+    max_iter : int
+        Bisection limit.
+
+    Returns
+    -------
+    Detection
+
+    Notes
+    -----
+    Solves Vdc/R_L = Is[e^(−Vdc/nVT) I0(x) − 1], x = Vp/nVT, written as
+    ln(Vdc/R_L + Is) − ln Is + Vdc/nVT − ln I0(x) = 0 (increasing in Vdc; the
+    root lies between 0 and the open-circuit value). Then
+    R_in = Vp / (2 Is e^(−Vdc/nVT) I1(x)), which tends to nVT/Is (the diode's
+    zero-bias "video" resistance) for weak signals and to R_L/2 for strong ones.
+
+    References
+    ----------
+    Shockley 1949; Terman, Radio Engineers' Handbook, 1943 (from memory).
+
+    Examples
+    --------
+    >>> d = loaded_detector(2.0, 3e-8, 1.05, 10e3)
+    >>> bool(d.converged), round(float(d.input_resistance) / 5e3, 1)  # about R_L/2 at 2 V
+    (True, 1.2)
+    """
+    vp = _check("peak_voltage", peak_voltage, allow_zero=True)
+    i_s = float(_check("saturation_current", saturation_current))
+    rl = _check("load_resistance", load_resistance)
+    vt = float(_check("ideality", ideality)) * thermal_voltage(temperature)
+    if not (0 < rtol < 0.1):
+        raise ModelInputError(f"rtol must lie between 0 and 0.1, got {rtol!r}")
+    vp, rl = np.broadcast_arrays(vp, rl)
+    x = vp / vt
+    li0 = _log_i0(x)
+    lo = np.zeros_like(vp)
+    hi = vt * li0
+    it = 0
+    for it in range(1, int(max_iter) + 1):
+        mid = 0.5 * (lo + hi)
+        h = np.log(mid / rl + i_s) - np.log(i_s) + mid / vt - li0
+        up = h > 0
+        hi = np.where(up, mid, hi)
+        lo = np.where(up, lo, mid)
+        if np.all(hi - lo <= rtol * hi + 1e-300):
+            break
+    vdc = 0.5 * (lo + hi)
+    converged = np.asarray(hi - lo <= rtol * hi + 1e-300)
+    small = x < 1e-6
+    xs = np.where(small, 1e-6, x)
+    r_in = vp / (2.0 * i_s) * np.exp(vdc / vt - _log_i1(xs))
+    r_in = np.where(small, vt / i_s, r_in)
+    return Detection(vdc, r_in, converged, it)
+
+
+class AudioOutput(NamedTuple):
+    audio_voltage: np.ndarray  #: peak audio voltage across the earphone [V]
+    audio_power: np.ndarray  #: audio power into the earphone [W]
+    detected_voltage: np.ndarray  #: DC across the earphone for the unmodulated carrier [V]
+    input_resistance: np.ndarray  #: detector RF input resistance at the carrier [ohm]
+    converged: np.ndarray
+
+
+def audio_output(peak_voltage, diode: Diode, earphone_resistance,
+                 modulation_depth=DEFAULT_MODULATION_DEPTH, temperature=DEFAULT_TEMPERATURE_K):
+    """Audio delivered to an earphone by the detector for an AM carrier.
+
+    Parameters
+    ----------
+    peak_voltage : array_like
+        Carrier peak voltage across the detector. [V]
+    diode : Diode
+        Detector parameters.
+    earphone_resistance : float
+        Earphone impedance, taken as the detector's DC and audio load. [ohm]
+    modulation_depth : float
+        AM modulation depth m (0 < m ≤ 1). [1]
+    temperature : float
+        [K]
+
+    Returns
+    -------
+    AudioOutput
+
+    Notes
+    -----
+    The envelope swings between Vp(1 − m) and Vp(1 + m) slowly compared with the
+    RF; the audio peak is half the difference of the detected voltages at those
+    two envelope values, and P = V_audio²/(2 R_L). Low-impedance (≈ 32 Ω)
+    headphones load the detector so heavily that R_in ≈ R_L/2 ≈ 16 Ω collapses
+    the tank's voltage; without a matching transformer they hear almost nothing.
+
+    References
+    ----------
+    Terman, Radio Engineers' Handbook, 1943 (detection of modulated waves, from memory).
+
+    Examples
+    --------
+    >>> a = audio_output(1.0, get_diode("germanium"), 10e3)
+    >>> 1e-7 < float(a.audio_power) < 1e-5
+    True
+    """
+    m = float(modulation_depth)
+    if not (0 < m <= 1):
+        raise ModelInputError(f"modulation_depth must lie in (0, 1], got {modulation_depth!r}")
+    vp = _check("peak_voltage", peak_voltage, allow_zero=True)
+    carrier = loaded_detector(vp, diode.saturation_current_a, diode.ideality, earphone_resistance, temperature)
+    high = loaded_detector(vp * (1 + m), diode.saturation_current_a, diode.ideality, earphone_resistance, temperature)
+    low = loaded_detector(vp * (1 - m), diode.saturation_current_a, diode.ideality, earphone_resistance, temperature)
+    va = 0.5 * (high.detected_voltage - low.detected_voltage)
+    return AudioOutput(va, va**2 / (2.0 * np.asarray(earphone_resistance, dtype=float)),
+                       carrier.detected_voltage, carrier.input_resistance,
+                       carrier.converged & high.converged & low.converged)
