@@ -1,0 +1,265 @@
+"""Rich rendering of the result dicts. No computation here: everything comes from the API's dicts."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from rich.panel import Panel
+from rich.table import Table
+from rich.text import Text
+
+
+# --------------------------------------------------------------------------- number formats
+
+
+def eng(value, unit: str, digits: int = 3) -> str:
+    """Engineering notation with an SI prefix: eng(1.8e-10, 'F') -> '180 pF'."""
+    if value is None:
+        return "—"
+    v = float(value)
+    if not math.isfinite(v):
+        return "—"
+    if v == 0:
+        return f"0 {unit}"
+    prefixes = [(1e9, "G"), (1e6, "M"), (1e3, "k"), (1, ""), (1e-3, "m"), (1e-6, "µ"), (1e-9, "n"), (1e-12, "p"), (1e-15, "f")]
+    for scale, p in prefixes:
+        if abs(v) >= scale * 0.9995:
+            break
+    else:
+        scale, p = 1e-15, "f"
+    x = v / scale
+    text = f"{x:.{digits}g}"
+    if "e" in text:
+        text = f"{x:.1f}"
+    return f"{text} {p}{unit}"
+
+
+def rng(pair, unit: str) -> str:
+    if pair is None:
+        return "—"
+    return f"{eng(pair[0], unit, 2)} – {eng(pair[1], unit, 2)}"
+
+
+def db(x) -> str:
+    return "—" if x is None else f"{x:+.1f} dB"
+
+
+def _nearest(freqs, f):
+    freqs = np.asarray(freqs, float)
+    return int(np.argmin(np.abs(freqs - f)))
+
+
+# --------------------------------------------------------------------------- pieces
+
+
+def _geometry_table(geo: dict) -> Table:
+    t = Table(title="Wires as aerial understood them", title_justify="left")
+    for col in ("wire", "role", "length", "size", "lowest", "highest", "points (x, y, height) m"):
+        t.add_column(col, overflow="fold")
+    for w in geo["wires"]:
+        pts = w["points_m"]
+        zs = [p[2] for p in pts]
+        shown = pts if len(pts) <= 3 else [pts[0], "…", pts[-1]]
+        text = " → ".join("…" if p == "…" else "(" + ", ".join(f"{v:.2f}" for v in p) + ")" for p in shown)
+        t.add_row(w["name"], w["role"], f"{w['length_m']:.2f} m", w["size"], f"{min(zs):.2f} m", f"{max(zs):.2f} m", text)
+    return t
+
+
+def _summary_line(geo: dict) -> str:
+    feed = ", ".join(f"{v:.2f}" for v in geo["feed_m"])
+    parts = [
+        f"aerial + lead-in {geo['total_length_m']:.1f} m",
+        f"highest {geo['max_height_m']:.1f} m",
+        f"mean height {geo['mean_height_m']:.1f} m",
+        f"receiver terminals at ({feed}) m",
+    ]
+    if geo.get("earth_lead_length_m"):
+        parts.append(f"earth lead {geo['earth_lead_length_m']:.1f} m")
+    if geo.get("shape"):
+        parts.append(f"shape: {geo['shape']}")
+    return " · ".join(parts)
+
+
+def _lines(console, title, lines, style):
+    if not lines:
+        return
+    body = Text()
+    for i, line in enumerate(lines):
+        if i:
+            body.append("\n")
+        body.append("• " + line)
+    console.print(Panel(body, title=title, title_align="left", border_style=style))
+
+
+# --------------------------------------------------------------------------- commands
+
+
+def render_check(summary: dict, console) -> None:
+    site = summary["site"]
+    console.print(f"[bold]{site['name']}[/bold]  ({site['file']})")
+    console.print(_geometry_table(summary["geometry"]))
+    console.print(_summary_line(summary["geometry"]))
+    bands = ", ".join(f"{b['name']} {eng(b['from_hz'], 'Hz')}–{eng(b['to_hz'], 'Hz')}" for b in summary["bands"])
+    console.print(f"bands: {bands} ({summary['frequency_count']} frequencies) · earth: {', '.join(summary['earth']) or 'none'} · "
+                  f"stations: {summary['stations']}")
+    _lines(console, "Warnings", summary.get("warnings", []), "yellow")
+    console.print("[green]The site file is valid.[/green]")
+
+
+def render_report(result: dict, console) -> None:
+    site = result["site"]
+    geo = result["geometry"]
+    a = result["aerial"]
+    console.print(f"[bold]{site['name']}[/bold]  ({site['file']})")
+    console.print(_summary_line(geo))
+    console.print(f"model: {a['model']}")
+    console.print(_geometry_table(geo))
+
+    freqs = result["frequencies_hz"]
+    ranges = result.get("ranges", {})
+    labels = ranges.get("labels", [])
+    t = Table(title="The aerial at the band edges and centre (range from the stated tolerances)", title_justify="left")
+    for col in ("where", "frequency", "capacitance presented", "effective height", "radiation resistance",
+                "loss resistance", "reactance", "efficiency", f"voltage at {eng(site['field_strength_v_per_m'], 'V/m')}",
+                "available power"):
+        t.add_column(col, justify="right" if col not in ("where",) else "left")
+    for j, label in enumerate(labels):
+        f = ranges["frequencies_hz"][j]
+        i = _nearest(freqs, f)
+        loss = a["conductor_loss_ohm"][i] + a["ground_loss_ohm"][i]
+        t.add_row(
+            label, eng(freqs[i], "Hz"),
+            f"{eng(a['capacitance_f'][i], 'F')}\n({rng(ranges['capacitance_f'][j], 'F')})",
+            f"{eng(a['effective_height_m'][i], 'm')}\n({rng(ranges['effective_height_m'][j], 'm')})",
+            eng(a["radiation_resistance_ohm"][i], "Ω"),
+            f"{eng(loss, 'Ω')}\n({rng(ranges['loss_resistance_ohm'][j], 'Ω')})",
+            eng(a["reactance_ohm"][i], "Ω"),
+            f"{100 * a['efficiency'][i]:.2g} %",
+            f"{eng(a['open_circuit_voltage_v'][i], 'V')}\n({rng(ranges['open_circuit_voltage_v'][j], 'V')})",
+            f"{eng(a['available_power_w'][i], 'W')}\n({rng(ranges['available_power_w'][j], 'W')})",
+        )
+    console.print(t)
+    if "convergence" in a and a["convergence"]:
+        conv = a["convergence"]
+        console.print(f"full-wave convergence: {conv}")
+    for note in ranges.get("notes", []):
+        console.print(f"[dim]{note}[/dim]")
+
+    earth = result.get("earth", {})
+    if earth:
+        et = Table(title="Earth system", title_justify="left")
+        for col in ("part", "resistance", "method"):
+            et.add_column(col)
+        for part in earth.get("parts", []):
+            et.add_row(part.get("description", ""), rng([part.get("resistance_low_ohm"), part.get("resistance_high_ohm")], "Ω")
+                       if part.get("resistance_low_ohm") is not None else eng(part.get("resistance_ohm"), "Ω"),
+                       part.get("method", ""))
+        et.add_row("[bold]whole earth system[/bold]",
+                   f"[bold]{eng(earth.get('resistance_ohm'), 'Ω')}[/bold] ({rng([earth.get('resistance_low_ohm'), earth.get('resistance_high_ohm')], 'Ω')})", "")
+        console.print(et)
+
+    wi = result.get("what_if")
+    if wi:
+        wt = Table(title=f"What would help (at {eng(wi[0]['frequency_hz'], 'Hz')})", title_justify="left")
+        for col in ("change", "effective height", "capacitance", "loss resistance", "available power", "change"):
+            wt.add_column(col, justify="left" if col == "change" else "right")
+        for row in wi:
+            wt.add_row(row["change"], eng(row["effective_height_m"], "m"), eng(row["capacitance_f"], "F"),
+                       eng(row["loss_resistance_ohm"], "Ω"), eng(row["available_power_w"], "W"), db(row["power_change_db"]))
+        console.print(wt)
+
+    _render_tuning(result.get("tuning"), console)
+    _render_stations(result.get("stations"), console)
+    if result.get("pictures"):
+        console.print("pictures: " + ", ".join(result["pictures"]))
+    _lines(console, "Warnings", result.get("warnings", []), "yellow")
+    _lines(console, "Safety", result.get("cautions", []), "red")
+
+
+def _render_tuning(tuning, console) -> None:
+    if not tuning:
+        return
+    rows = tuning.get("rows") or []
+    if rows:
+        t = Table(title=f"Tuning ({tuning.get('arrangement', '')})", title_justify="left")
+        cols = [("frequency", "frequency_hz", "Hz"), ("coil", "inductance_h", "H"),
+                ("total C at resonance", "total_capacitance_f", "F"), ("capacitor setting", "capacitor_setting_f", "F"),
+                ("aerial share of C", "aerial_share", None), ("loaded Q", "loaded_q", None),
+                ("bandwidth", "bandwidth_hz", "Hz"), ("1 channel away", "rejection_1_channel_db", "dB"),
+                ("2 channels away", "rejection_2_channels_db", "dB"), ("power to detector", "detector_power_w", "W")]
+        present = [c for c in cols if any(c[1] in r for r in rows)]
+        for name, _, _ in present:
+            t.add_column(name, justify="right")
+        for r in rows:
+            cells = []
+            for _, key, unit in present:
+                v = r.get(key)
+                if v is None:
+                    cells.append("—")
+                elif unit == "dB":
+                    cells.append(f"{v:.1f} dB")
+                elif unit is None and key == "aerial_share":
+                    cells.append(f"{100 * v:.0f} %")
+                elif unit is None:
+                    cells.append(f"{v:.3g}")
+                else:
+                    cells.append(eng(v, unit))
+            t.add_row(*cells)
+        console.print(t)
+    for line in tuning.get("summary", []):
+        console.print(line)
+
+
+def _render_stations(stations, console) -> None:
+    if not stations:
+        return
+    t = Table(title="Stations", title_justify="left")
+    for col in ("station", "frequency", "distance", "field", "at the detector", "S/N", "verdict"):
+        t.add_column(col, justify="left" if col in ("station", "verdict") else "right")
+    for s in stations:
+        verdict = s.get("verdict", "")
+        style = {"clearly heard": "green", "marginal": "yellow", "not heard": "red"}.get(verdict, "")
+        why = s.get("reason", "")
+        t.add_row(s.get("name", ""), eng(s.get("frequency_hz"), "Hz"), eng(s.get("distance_m"), "m"),
+                  eng(s.get("field_strength_v_per_m"), "V/m"), eng(s.get("detector_power_w"), "W"),
+                  "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
+                  Text(verdict + (f"\n{why}" if why else ""), style=style))
+    console.print(t)
+
+
+def render_layout(result: dict, console) -> None:
+    console.print(f"[bold]{result['site']['name']}[/bold]  ({result['site']['file']})")
+    console.print(f"objective: {result.get('objective', '')}")
+    console.print(f"candidates: {result.get('candidates_considered', 0)} considered, "
+                  f"{result.get('candidates_refused', 0)} refused for safety or geometry")
+    t = Table(title="Best safe layouts", title_justify="left")
+    for col in ("rank", "layout", "wire", "effective height", "capacitance", "score", "why"):
+        t.add_column(col, justify="right" if col in ("rank", "wire", "effective height", "capacitance", "score") else "left")
+    for i, c in enumerate(result.get("layouts", []), 1):
+        t.add_row(str(i), c.get("description", ""), eng(c.get("wire_length_m"), "m"), eng(c.get("effective_height_m"), "m"),
+                  eng(c.get("capacitance_f"), "F"), f"{c.get('score', 0):.3g}", c.get("reason", ""))
+    console.print(t)
+    for section in ("apartment", "code_checklist"):
+        lines = result.get(section)
+        if lines:
+            _lines(console, section.replace("_", " ").capitalize(), lines, "blue")
+    if result.get("picture"):
+        console.print(f"plan drawing: {result['picture']}")
+    _lines(console, "Warnings", result.get("warnings", []), "yellow")
+    _lines(console, "Safety", result.get("cautions", []), "red")
+
+
+def render_coil(result: dict, console) -> None:
+    t = Table(title="Single-layer coil", title_justify="left")
+    t.add_column("quantity")
+    t.add_column("value", justify="right")
+    for key, value in result.items():
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            unit = {"_h": "H", "_m": "m", "_ohm": "Ω", "_hz": "Hz"}.get("_" + key.rsplit("_", 1)[-1], "")
+            t.add_row(key.replace("_", " "), eng(value, unit) if unit else f"{value:.4g}")
+        elif isinstance(value, str):
+            t.add_row(key.replace("_", " "), value)
+    console.print(t)
+    for w in result.get("warnings", []):
+        console.print(f"[yellow]• {w}[/yellow]")

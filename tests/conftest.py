@@ -1,0 +1,39 @@
+"""Shared fixtures: example sites and a helper that writes a site file for a test."""
+
+from __future__ import annotations
+
+import textwrap
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parents[1]
+EXAMPLES = sorted((ROOT / "site_examples").glob("*.toml"))
+
+# A minimal valid site (invented for these tests): a 10 m vertical with one rod.
+MINIMAL = """
+[site]
+name = "test vertical"
+
+[[runs]]
+points = [[0, 0, 0.5], [0, 0, 10]]
+
+[receiver]
+at = [0, 0]
+height = "0 m"
+
+[[earth.rods]]
+length = "2.4 m"
+"""
+
+
+@pytest.fixture
+def write_site(tmp_path):
+    """Write TOML text (dedented) to a file and return its path."""
+
+    def _write(text: str, name: str = "site.toml") -> Path:
+        p = tmp_path / name
+        p.write_text(textwrap.dedent(text), encoding="utf-8")
+        return p
+
+    return _write

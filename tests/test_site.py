@@ -1,0 +1,188 @@
+"""Site-file loading and validation: one test per rejection, each asserting the message names the key.
+
+The sites here are invented test inputs.
+"""
+
+import hashlib
+
+import numpy as np
+import pytest
+
+from aerial.errors import SiteError
+from aerial.site import load_site, load_site_text
+
+from .conftest import EXAMPLES, MINIMAL
+
+SPAN_SITE = """
+[supports.house]
+at = [0, 0]
+height = 6
+kind = "eave"
+
+[supports.tree]
+at = [20, 0]
+height = "10 m"
+kind = "tree"
+
+[[spans]]
+from = "house"
+to = "tree"
+{span_extra}
+
+[receiver]
+at = [0, 0]
+height = 1
+
+[[earth.rods]]
+length = 2.4
+"""
+
+
+def span_site(extra=""):
+    return SPAN_SITE.replace("{span_extra}", extra)
+
+
+def rejects(text, *fragments, path="t.toml"):
+    with pytest.raises(SiteError) as info:
+        load_site_text(text, path)
+    msg = str(info.value)
+    assert msg.startswith(path), msg
+    for frag in fragments:
+        assert frag in msg, msg
+    return msg
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.name)
+def test_every_example_loads(path):
+    site = load_site(path)
+    assert site.wires
+    assert any(w.role in ("aerial",) for w in site.wires)
+
+
+def test_builtin_example_matches_the_shipped_file():
+    from aerial.site import builtin_example
+    from .conftest import ROOT
+
+    shipped = (ROOT / "site_examples" / "backyard_inverted_l.toml").read_text()
+    packaged = (ROOT / "aerial" / "data" / "backyard_inverted_l.toml").read_text()
+    assert shipped == packaged
+    assert builtin_example().name.startswith("Backyard")
+
+
+def test_minimal_site_resolves():
+    site = load_site_text(MINIMAL, "min.toml")
+    assert site.wires[0].points_m.shape == (2, 3)
+    assert site.receiver.height_m == 0.0
+
+
+def test_units_in_site_file():
+    site = load_site_text(span_site('sag = "12 in"'), "t.toml")
+    span = site.wires[0]
+    # parabolic sag: the midpoint hangs 12 in = 0.3048 m (NIST SP 811) below the chord
+    mid = span.points_m[len(span.points_m) // 2]
+    assert mid[2] == pytest.approx(8.0 - 0.3048)
+
+
+def test_point_below_ground():
+    text = MINIMAL.replace("[0, 0, 0.5]", "[0, 0, -1]")
+    rejects(text, "runs[0].points[0][2]", "below ground")
+
+
+def test_zero_length_span():
+    text = span_site().replace("at = [20, 0]\nheight = \"10 m\"", "at = [0, 0]\nheight = 6")
+    rejects(text, "spans[0].to", "zero-length span")
+
+
+def test_radius_not_small_next_to_segment():
+    text = MINIMAL.replace("[site]", '[wire]\ndiameter = "150 mm"\n\n[site]')
+    text = text.replace("[[0, 0, 0.5], [0, 0, 10]]", "[[0, 0, 0.5], [0, 0, 1.0], [0, 0, 10]]")
+    rejects(text, "runs[0]", "not small next to", "0.5 m piece")
+
+
+def test_span_naming_a_missing_support():
+    text = span_site().replace('to = "tree"', 'to = "oak"')
+    msg = rejects(text, "spans[0].to", '"oak"', "no support of that name")
+    assert '"tree"' in msg  # lists the supports that exist
+
+
+def test_unknown_unit():
+    text = MINIMAL.replace('length = "2.4 m"', 'length = "2.4 cubits"')
+    rejects(text, "earth.rods[0].length", 'unknown unit "cubits"')
+
+
+def test_negative_conductivity():
+    text = '[soil]\nconductivity = -0.01\n' + MINIMAL
+    rejects(text, "soil.conductivity", "greater than zero")
+
+
+def test_sag_deeper_than_supports():
+    rejects(span_site('sag = "7 m"'), "spans[0].sag", "sag deeper than the supports are high")
+
+
+def test_malformed_toml():
+    msg = rejects("[site\nname = 1\n", "not valid TOML")
+    assert ":1" in msg  # the line is named
+
+
+def test_missing_file(tmp_path):
+    with pytest.raises(SiteError, match="no such file"):
+        load_site(tmp_path / "nothing.toml")
+
+
+def test_directory_instead_of_file(tmp_path):
+    with pytest.raises(SiteError, match="is a folder"):
+        load_site(tmp_path)
+
+
+def test_gas_pipe_earth_is_refused():
+    text = MINIMAL + '\n[earth.gas_pipe]\nburied_length = "10 m"\n'
+    rejects(text, "earth.gas_pipe", "gas piping is never an earth electrode")
+
+
+def test_water_pipe_said_to_carry_gas_is_refused():
+    text = MINIMAL.replace("[[earth.rods]]\nlength = \"2.4 m\"", '[earth.water_pipe]\ncontents = "natural gas"')
+    rejects(text, "earth.water_pipe.contents", "gas piping")
+
+
+def test_water_pipe_with_plastic_section_is_refused():
+    text = MINIMAL.replace("[[earth.rods]]\nlength = \"2.4 m\"", "[earth.water_pipe]\ncontinuous_metal = false")
+    rejects(text, "earth.water_pipe.continuous_metal", "plastic section")
+
+
+def test_unknown_key_lists_the_choices():
+    rejects(MINIMAL.replace('name = "test vertical"', 'nmae = "x"'), "site.nmae", "unknown key", "name")
+
+
+def test_unknown_soil_category_lists_choices():
+    rejects('[soil]\ncategory = "swamp"\n' + MINIMAL, "soil.category", '"medium-dry"')
+
+
+def test_line_number_is_given():
+    msg = rejects(span_site('sag = "7 m"'), "spans[0].sag")
+    assert "t.toml:" in msg.split(" ")[0]
+
+
+def test_missing_earth_is_refused():
+    rejects(MINIMAL.replace('[[earth.rods]]\nlength = "2.4 m"', ""), "earth", "no earth")
+
+
+def test_gauge_needs_its_system():
+    rejects(MINIMAL.replace("[site]", '[wire]\ngauge = 14\n\n[site]'), "wire.gauge", '"14 AWG"')
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.name)
+def test_input_files_are_never_modified(path):
+    before = hashlib.sha256(path.read_bytes()).hexdigest()
+    load_site(path)
+    assert hashlib.sha256(path.read_bytes()).hexdigest() == before
+
+
+def test_geometry_has_segments_and_footprint():
+    from aerial.geometry import resolve
+
+    site = load_site_text(span_site('sag = "0.5 m"'), "t.toml")
+    geo = resolve(site)
+    assert geo.total_length_m > 20.0
+    assert np.all(geo.segments.length > 0)
+    assert geo.footprint().length == pytest.approx(20.0 + 0.0, abs=1e-6)
+    assert geo.max_height_m == pytest.approx(10.0)

@@ -1,0 +1,66 @@
+"""Units and wire gauges against published definitions."""
+
+import math
+
+import pytest
+from hypothesis import given
+from hypothesis import strategies as st
+
+from aerial import units
+
+
+def test_foot_is_exactly_0_3048_m():
+    # NIST SP 811 (2008), appendix B.8: 1 ft = 0.3048 m exactly
+    assert units.parse_length("1 ft") == 0.3048
+    assert units.parse_length("30 ft") == pytest.approx(9.144, abs=0)
+
+
+def test_inch_is_exactly_25_4_mm():
+    # NIST SP 811 (2008), appendix B.8: 1 in = 0.0254 m exactly
+    assert units.parse_length("12 in") == 0.3048
+    assert units.parse_length("1 inch") == 0.0254
+
+
+def test_plain_number_is_metres_and_units_are_explicit():
+    assert units.parse_length(9.5) == 9.5
+    assert units.parse_length("9.5 m") == 9.5
+    assert units.parse_length("950 cm") == 9.5
+    with pytest.raises(units.UnitError, match="needs its unit"):
+        units.parse_length("9.5")  # a number written as text: never guessed
+    with pytest.raises(units.UnitError, match='unknown unit "furlong"'):
+        units.parse_length("3 furlong")
+
+
+@pytest.mark.parametrize("gauge, mm", [
+    # ASTM B258, table of nominal diameters (to 3 decimals)
+    (10, 2.588), (12, 2.053), (14, 1.628), (16, 1.291), (18, 1.024), (20, 0.812), (22, 0.644), (24, 0.511),
+])
+def test_awg_diameters_astm_b258(gauge, mm):
+    assert units.awg_diameter(gauge) * 1e3 == pytest.approx(mm, abs=0.0006)
+
+
+def test_awg_defining_points():
+    # ASTM B258: 36 AWG = 0.005 in, 0000 AWG = 0.46 in, by definition of the series
+    assert units.awg_diameter(36) == pytest.approx(0.005 * 0.0254, rel=1e-12)
+    assert units.awg_diameter(-3) == pytest.approx(0.46 * 0.0254, rel=1e-12)
+
+
+@pytest.mark.parametrize("gauge, inches", [
+    # British Standard Wire Gauge (1883) table, from memory: 14 SWG = 0.080 in, 16 = 0.064 in, 22 = 0.028 in
+    (14, 0.080), (16, 0.064), (22, 0.028), (0, 0.324),
+])
+def test_swg_table(gauge, inches):
+    assert units.swg_diameter(gauge) == pytest.approx(inches * 0.0254, rel=1e-12)
+
+
+@given(st.floats(min_value=1e-3, max_value=1e4, allow_nan=False))
+def test_feet_round_trip(metres):
+    # property: a length written in feet reads back as the same metres
+    text = f"{metres / 0.3048!r} ft"
+    assert units.parse_length(text) == pytest.approx(metres, rel=1e-12)
+
+
+def test_not_finite_is_refused():
+    for bad in (math.nan, math.inf, "inf m", "nan m", True):
+        with pytest.raises(units.UnitError):
+            units.parse_length(bad)
