@@ -53,12 +53,11 @@ def band_points(site) -> list[tuple[str, float]]:
 # --------------------------------------------------------------------------- earth
 
 
-def earth_system(site, conductivity_s_m: float | None = None) -> dict:
-    """Resistance of the site's earth system at low frequency. [ohm]"""
+def earth_system(site) -> dict:
+    """Resistance of the site's earth system at low frequency, with its range. [ohm]"""
     from aerial import earth
 
-    sigma = site.soil.conductivity_s_m if conductivity_s_m is None else conductivity_s_m
-    return earth.earth_resistance(site.electrodes, 1.0 / sigma)
+    return earth.earth_system(site.electrodes, site.soil, earth.as_counterpoise_site(site))
 
 
 # --------------------------------------------------------------------------- aerial
@@ -202,7 +201,7 @@ def what_if(site, frequency: float, earth: dict) -> list[dict]:
     rows = [("as described", base)]
     rows.append((f"raise the wire {WHAT_IF_RAISE_M:g} m", _headline(site, _perturbed_wires(site, raise_m=WHAT_IF_RAISE_M), frequency, earth["resistance_ohm"])))
     rows.append((f"add {WHAT_IF_EXTEND_M:g} m to the far end", _headline(site, _perturbed_wires(site, extend_m=WHAT_IF_EXTEND_M), frequency, earth["resistance_ohm"])))
-    better = earth_mod.improved_earth(site.electrodes, 1.0 / site.soil.conductivity_s_m)
+    better = earth_mod.improved_earth(site.electrodes, site.soil)
     rows.append((better["description"], _headline(site, site.wires, frequency, better["resistance_ohm"])))
     out = []
     p0 = float(base["available_power_w"][0])

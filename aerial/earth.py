@@ -1,0 +1,144 @@
+"""The site's whole earth system: its electrodes combined, with a range from the soil's bounds.
+
+Pure functions over the site's electrode descriptions; the physics is in
+:mod:`aerial.models.electrodes`.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+import numpy as np
+
+from aerial.models import electrodes as el
+
+#: Stated typical range for a building's protective earth whose resistance the user does not know [ohm].
+#: An assumption: a TN-C-S (PME) supply earth is often under 1 ohm, a TT installation's rod up to ~200 ohm.
+BUILDING_EARTH_TYPICAL_OHM = (1.0, 10.0, 100.0)  # low, nominal, high
+
+#: The "better earth" of the what-if table: eight buried radials of this length at this depth.
+WHAT_IF_RADIALS = (8, 10.0, 0.15)
+
+
+def _one(e, resistivity: float, radius_default: float) -> tuple[float, str, list]:
+    """Resistance [ohm], method and warnings for one electrode description."""
+    if e.kind == "rods":
+        a = e.diameter_m / 2.0
+        if e.count == 1:
+            est = el.dwight_rod(e.length_m, a, resistivity)
+        elif e.count == 2 and e.spacing_m > e.length_m:
+            est = el.dwight_two_rods(e.length_m, a, e.spacing_m, resistivity)
+        else:
+            est = el.multiple_rods(e.count, e.length_m, a, e.spacing_m, resistivity)
+        what = f"{e.count} rod{'s' if e.count > 1 else ''} {e.length_m:.2f} m × {e.diameter_m * 1e3:.0f} mm"
+    elif e.kind == "buried_wires":
+        a = e.diameter_m / 2.0
+        if e.arrangement == "radials" and e.count >= 2:
+            est = el.dwight_star(e.count, e.length_m, a, e.depth_m, resistivity)
+            what = f"{e.count} buried radials {e.length_m:.1f} m at {e.depth_m:.2f} m"
+        else:
+            one = el.sunde_buried_wire(e.length_m, a, e.depth_m, resistivity)
+            if e.count > 1:
+                par = el.parallel_combination([one.resistance_ohm] * e.count)
+                est = el.ElectrodeEstimate(par.resistance_ohm, one.warnings + par.warnings, one.method + ", in parallel")
+            else:
+                est = one
+            what = f"{e.count} buried wire{'s' if e.count > 1 else ''} {e.length_m:.1f} m at {e.depth_m:.2f} m"
+    elif e.kind == "water_pipe":
+        est = el.water_pipe(e.length_m, e.diameter_m / 2.0, e.depth_m, resistivity)
+        what = f"metal water pipe, {e.length_m:.1f} m buried"
+    elif e.kind == "counterpoise":
+        est = el.dwight_star(max(e.count, 2), e.length_m, radius_default, max(e.depth_m, 0.05), resistivity)
+        est = el.ElectrodeEstimate(est.resistance_ohm, est.warnings + (
+            "counterpoise loss estimated as if its wires were buried radials at their height: a rough guide only",),
+            "counterpoise as radials (rough)")
+        what = f"counterpoise, {e.count} wire(s) {e.length_m:.1f} m"
+    else:
+        raise ValueError(e.kind)
+    return float(np.asarray(est.resistance_ohm)), est.method, list(est.warnings), what
+
+
+def earth_system(electrodes, soil, counterpoise_wires=()) -> dict:
+    """Combined earth resistance with a low/high range from the soil's conductivity bounds.
+
+    Parameters
+    ----------
+    electrodes : list of aerial.site.Electrode
+    soil : aerial.site.SoilSpec
+    counterpoise_wires : list of WireRun
+        Counterpoise wires (used only when there is no electrode).
+
+    Returns
+    -------
+    dict
+        ``resistance_ohm``, ``resistance_low_ohm``, ``resistance_high_ohm`` [ohm], ``parts``, ``warnings``.
+    """
+    from aerial.site import Electrode
+
+    items = list(electrodes)
+    warnings: list[str] = []
+    if not items and counterpoise_wires:
+        lengths = [w.length_m for w in counterpoise_wires]
+        h = float(np.mean([w.points_m[:, 2].mean() for w in counterpoise_wires]))
+        items = [Electrode("counterpoise", "earth.counterpoise", len(lengths), float(np.mean(lengths)), 0.0, 0.0, h)]
+        radius = counterpoise_wires[0].size.radius_m
+    else:
+        radius = 1e-3
+    parts = []
+    nominal, low, high = [], [], []
+    for e in items:
+        if e.kind == "building_earth":
+            if e.resistance_ohm is not None:
+                r = (e.resistance_ohm,) * 3
+                method = "measured (user-given)"
+            else:
+                r = (BUILDING_EARTH_TYPICAL_OHM[1], BUILDING_EARTH_TYPICAL_OHM[0], BUILDING_EARTH_TYPICAL_OHM[2])
+                method = "typical range (assumption: 1-100 ohm; the building's supply earthing decides)"
+                warnings.append("The building's protective earth resistance is not known: a typical 1-100 ohm "
+                                "range is assumed. Its long conductor to the main earthing terminal also acts as "
+                                "an inductive lead at radio frequencies.")
+            parts.append({"kind": e.kind, "description": "building protective earth", "resistance_ohm": r[0],
+                          "resistance_low_ohm": r[1], "resistance_high_ohm": r[2], "method": method})
+            nominal.append(r[0]); low.append(r[1]); high.append(r[2])
+            continue
+        rn, method, w, what = _one(e, 1.0 / soil.conductivity_s_m, radius)
+        rl, _, _, _ = _one(e, 1.0 / soil.conductivity_high_s_m, radius)
+        rh, _, _, _ = _one(e, 1.0 / soil.conductivity_low_s_m, radius)
+        warnings += w
+        parts.append({"kind": e.kind, "description": what, "resistance_ohm": rn, "resistance_low_ohm": rl,
+                      "resistance_high_ohm": rh, "method": method})
+        nominal.append(rn); low.append(rl); high.append(rh)
+    if not parts:
+        return {"resistance_ohm": 0.0, "resistance_low_ohm": 0.0, "resistance_high_ohm": 0.0, "parts": [],
+                "warnings": ["No earth system described: ground loss taken as zero (optimistic)."]}
+    if len(parts) > 1:
+        comb = el.parallel_combination(nominal)
+        warnings += list(comb.warnings)
+        r = float(np.asarray(comb.resistance_ohm))
+        rl = float(np.asarray(el.parallel_combination(low).resistance_ohm))
+        rh = float(np.asarray(el.parallel_combination(high).resistance_ohm))
+    else:
+        r, rl, rh = nominal[0], low[0], high[0]
+    warnings.append("Earth resistance is the low-frequency value in uniform soil; at MF the soil's permittivity "
+                    "and skin depth change it somewhat.")
+    return {"resistance_ohm": r, "resistance_low_ohm": min(rl, r), "resistance_high_ohm": max(rh, r),
+            "parts": parts, "warnings": warnings}
+
+
+def improved_earth(electrodes, soil) -> dict:
+    """The what-if earth: the site's electrodes plus eight 10 m buried radials."""
+    from aerial.site import Electrode
+
+    n, length, depth = WHAT_IF_RADIALS
+    extra = Electrode("buried_wires", "what-if", n, length, 1.628e-3, 0.0, depth, arrangement="radials")
+    out = earth_system(list(electrodes) + [extra], soil)
+    out["description"] = f"add {n} buried radials of {length:g} m"
+    return out
+
+
+def as_counterpoise_site(site):
+    """Counterpoise wires of a site (for the earth estimate when there is no electrode)."""
+    return [w for w in site.wires if w.role == "counterpoise"]
+
+
+__all__ = ["earth_system", "improved_earth", "BUILDING_EARTH_TYPICAL_OHM", "replace"]
