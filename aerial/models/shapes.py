@@ -1,0 +1,321 @@
+"""Sort a wire set into the shapes the closed-form models describe.
+
+Starting at the feed, the down-lead is the chain of steep aerial segments
+(|dz| / length >= ``STEEP_FRACTION``) up to the first junction or the first
+turn to a flatter run. Whatever branches leave that point are top arms. The
+kinds:
+
+* ``"vertical"``: a down-lead and nothing else, within ``VERTICAL_TILT_FRACTION``
+  of plumb;
+* ``"sloping wire"``: one straight wire from the feed that is not plumb
+  (steep or not), rising at least ``MIN_SLOPE_FRACTION`` of its length;
+* ``"inverted-L"``: a down-lead and one top arm (a horizontal long wire with
+  its down-lead, a balcony run with corners in plan);
+* ``"T"``: a down-lead and two or more top arms from its top;
+* ``"irregular"``: anything else (no steep down-lead and not one straight
+  sloper; forked or looped tops; zig-zags with steep runs in the top; parts
+  not connected to the feed).
+
+Frame: metres, x east, y north, z up. Earth-lead (``grounded``) segments are
+not part of the shape; their length is reported.
+"""
+
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass
+
+import numpy as np
+
+from aerial.errors import ModelInputError
+from aerial.models.segments import Segments
+
+SHAPE_KINDS = ("vertical", "sloping wire", "inverted-L", "T", "irregular")
+
+#: A segment is steep (part of a down-lead) when |dz|/length is at least this (about 44 degrees). [1]
+STEEP_FRACTION = 0.7
+#: A down-lead with |rise|/length at least this (within about 8 degrees of plumb) is "vertical". [1]
+VERTICAL_TILT_FRACTION = 0.99
+#: A straight wire from the feed must rise at least this fraction of its length to be a sloper. [1]
+MIN_SLOPE_FRACTION = 0.1
+#: End points closer than this are the same junction. [m]
+JOIN_TOLERANCE_M = 1e-3
+#: Direction change (cosine) above which consecutive segments count as one straight wire. [1]
+STRAIGHT_COSINE = 0.9995
+
+#: Section codes in ``AerialShape.segment_section``.
+SECTION_EARTH_LEAD = -2
+SECTION_UNASSIGNED = -1
+SECTION_DOWN_LEAD = 0
+
+
+@dataclass(frozen=True)
+class AerialShape:
+    """What kind of aerial a wire set is, with the dimensions the closed forms need.
+
+    Attributes
+    ----------
+    kind : str
+        One of ``SHAPE_KINDS``.
+    vertical_height_m : float
+        Height of the top of the down-lead above the ground. [m]
+    feed_height_m : float
+        Height of the feed above the ground. [m]
+    downlead_length_m : float
+        Wire length of the down-lead (the whole wire for a sloper). [m]
+    downlead_rise_m : float
+        Height gained along the down-lead. [m]
+    downlead_radius_m : float
+        Length-weighted mean radius of the down-lead. [m]
+    top_lengths_m, top_heights_m, top_radii_m : tuple of float
+        Length, length-weighted mean height and radius of each top arm. [m]
+    total_length_m : float
+        All aerial wire. [m]
+    earth_lead_length_m : float
+        All earth-lead wire. [m]
+    segment_section : tuple of int
+        Per segment: -2 earth lead, -1 not assigned (irregular parts),
+        0 down-lead, i + 1 for top arm i.
+    notes : tuple of str
+        Plain-English remarks on the classification.
+    """
+
+    kind: str
+    vertical_height_m: float
+    feed_height_m: float
+    downlead_length_m: float
+    downlead_rise_m: float
+    downlead_radius_m: float
+    top_lengths_m: tuple
+    top_heights_m: tuple
+    top_radii_m: tuple
+    total_length_m: float
+    earth_lead_length_m: float
+    segment_section: tuple
+    notes: tuple
+
+    def as_dict(self) -> dict:
+        """Plain dict of the shape (JSON-ready; the per-segment map left out)."""
+        d = asdict(self)
+        d.pop("segment_section")
+        for key in ("top_lengths_m", "top_heights_m", "top_radii_m", "notes"):
+            d[key] = list(d[key])
+        return d
+
+
+def _cluster(points, tol):
+    """Label points so that points within ``tol`` of an earlier point share its label."""
+    n = len(points)
+    d = np.linalg.norm(points[:, None, :] - points[None, :, :], axis=-1)
+    first = np.argmax(d < tol, axis=1)  # first index within tol (itself at worst)
+    labels = first.copy()
+    # follow chains to a fixed point
+    for _ in range(n):
+        nxt = labels[labels]
+        if np.array_equal(nxt, labels):
+            break
+        labels = nxt
+    _, labels = np.unique(labels, return_inverse=True)
+    return labels
+
+
+def classify(segments: Segments) -> AerialShape:
+    """Classify a wire set as vertical, sloping wire, inverted-L, T or irregular.
+
+    Parameters
+    ----------
+    segments : Segments
+        The aerial and earth lead. Frame: m, x east, y north, z up.
+
+    Returns
+    -------
+    AerialShape
+        Kind, heights, arm lengths, radii and notes.
+
+    Notes
+    -----
+    A walk over the graph of aerial segments (end points within
+    ``JOIN_TOLERANCE_M`` are one node): the down-lead is the unbranched chain
+    of steep segments from the feed; each branch leaving its top must be an
+    unbranched chain with no steep segment to be a top arm. Thresholds are the
+    module constants.
+
+    References
+    ----------
+    Shape names as used in the trade; e.g. E. A. Laport, *Radio Antenna
+    Engineering*, 1952, ch. 1 (inverted-L and T aerials). (from memory)
+
+    Examples
+    --------
+    >>> from aerial.models.segments import polyline_segments
+    >>> s = polyline_segments([[0, 0, 0.02], [0, 0, 10], [20, 0, 10]], 1e-3)
+    >>> shape = classify(s)
+    >>> shape.kind, shape.top_lengths_m
+    ('inverted-L', (20.0,))
+    """
+    if len(segments) == 0:
+        raise ModelInputError("no segments to classify")
+    aer = np.flatnonzero(segments.aerial)
+    if aer.size == 0:
+        raise ModelInputError("the segment set has no aerial (ungrounded) segment")
+    lengths = segments.length
+    if np.any(lengths <= 0):
+        raise ModelInputError("every segment must have a positive length")
+    section = np.full(len(segments), SECTION_UNASSIGNED, dtype=int)
+    section[segments.grounded] = SECTION_EARTH_LEAD
+    earth_len = float(np.sum(lengths[segments.grounded]))
+    total_len = float(np.sum(lengths[aer]))
+    notes = []
+    if earth_len > 0:
+        notes.append(f"earth lead of {earth_len:.1f} m is part of the electrostatic solution, not of the shape")
+
+    pts = np.concatenate([segments.start[aer], segments.end[aer]])
+    labels = _cluster(pts, JOIN_TOLERANCE_M)
+    m = aer.size
+    node_a, node_b = labels[:m], labels[m:]
+    n_nodes = int(labels.max()) + 1
+    node_xyz = np.zeros((n_nodes, 3))
+    node_xyz[labels] = pts
+    adj: list[list[tuple[int, int]]] = [[] for _ in range(n_nodes)]
+    for k in range(m):
+        adj[node_a[k]].append((k, node_b[k]))
+        adj[node_b[k]].append((k, node_a[k]))
+
+    dist = np.linalg.norm(node_xyz - segments.feed, axis=1)
+    feed_node = int(np.argmin(dist))
+    if dist[feed_node] > 10 * JOIN_TOLERANCE_M:
+        raise ModelInputError(
+            f"the feed point is {dist[feed_node]:.3f} m from the nearest aerial wire end; "
+            "it must sit at the end of an aerial segment"
+        )
+    feed_z = float(segments.feed[2])
+
+    # reachability and loops
+    seen = {feed_node}
+    stack = [feed_node]
+    while stack:
+        u = stack.pop()
+        for _, v in adj[u]:
+            if v not in seen:
+                seen.add(v)
+                stack.append(v)
+    reach_edges = sum(1 for k in range(m) if node_a[k] in seen)
+    irregular_reasons = []
+    if reach_edges < m:
+        irregular_reasons.append(f"{m - reach_edges} aerial segment(s) not connected to the feed")
+    if reach_edges >= len(seen):
+        irregular_reasons.append("the wires form a closed loop")
+
+    seg_dz = lambda k, frm: node_xyz[node_b[k] if node_a[k] == frm else node_a[k], 2] - node_xyz[frm, 2]  # noqa: E731
+
+    def steep(k):
+        return abs(segments.end[aer[k], 2] - segments.start[aer[k], 2]) >= STEEP_FRACTION * lengths[aer[k]]
+
+    # walk the down-lead
+    down = []
+    node, prev = feed_node, None
+    rise = 0.0
+    while True:
+        nxt = [(k, v) for k, v in adj[node] if k != prev]
+        if len(nxt) != 1 or not steep(nxt[0][0]):
+            break
+        k, v = nxt[0]
+        rise += seg_dz(k, node)
+        down.append(k)
+        node, prev = v, k
+    junction = node
+
+    def straight(ks):
+        d = [(segments.end[aer[k]] - segments.start[aer[k]]) / lengths[aer[k]] for k in ks]
+        return all(abs(float(np.dot(d[0], x))) >= STRAIGHT_COSINE for x in d[1:])
+
+    def chain_from(start_node, first_seg):
+        ks, node_, prev_ = [first_seg], None, first_seg
+        node_ = node_b[first_seg] if node_a[first_seg] == start_node else node_a[first_seg]
+        forked = False
+        while True:
+            nxt = [(k, v) for k, v in adj[node_] if k != prev_]
+            if not nxt:
+                break
+            if len(nxt) > 1:
+                forked = True
+                break
+            k, v = nxt[0]
+            ks.append(k)
+            node_, prev_ = v, k
+        return ks, forked
+
+    arms: list[list[int]] = []
+    if not down:
+        # no steep start: one straight sloper, or irregular
+        ks, forked = chain_from(feed_node, adj[feed_node][0][0]) if len(adj[feed_node]) == 1 else ([], True)
+        if not forked and len(ks) == m and straight(ks) and not irregular_reasons:
+            rise_s = float(sum(seg_dz(k, n) for k, n in _walk_nodes(ks, feed_node, node_a, node_b)))
+            length_s = float(np.sum(lengths[aer[ks]]))
+            if rise_s >= MIN_SLOPE_FRACTION * length_s:
+                section[aer[ks]] = SECTION_DOWN_LEAD
+                radius = float(np.average(segments.radius[aer[ks]], weights=lengths[aer[ks]]))
+                return AerialShape(
+                    "sloping wire", feed_z + rise_s, feed_z, length_s, rise_s, radius, (), (), (),
+                    total_len, earth_len, tuple(int(x) for x in section), tuple(notes),
+                )
+            irregular_reasons.append("a single straight wire that barely rises from the feed")
+        else:
+            irregular_reasons.append("no steep down-lead from the feed and not a single straight sloping wire")
+    else:
+        branches = [k for k, _ in adj[junction] if k != down[-1]]
+        for b in branches:
+            ks, forked = chain_from(junction, b)
+            if forked:
+                irregular_reasons.append("a top arm divides again (branched top)")
+                break
+            if any(steep(k) for k in ks):
+                irregular_reasons.append("a top arm has a steep run in it (zig-zag or second vertical)")
+                break
+            arms.append(ks)
+
+    if irregular_reasons:
+        notes.extend(irregular_reasons)
+        return AerialShape(
+            "irregular", float(np.max(np.maximum(segments.start[aer, 2], segments.end[aer, 2]))), feed_z,
+            0.0, 0.0, float(np.average(segments.radius[aer], weights=lengths[aer])), (), (), (),
+            total_len, earth_len, tuple(int(x) for x in section), tuple(notes),
+        )
+
+    section[aer[down]] = SECTION_DOWN_LEAD
+    d_len = float(np.sum(lengths[aer[down]]))
+    d_rad = float(np.average(segments.radius[aer[down]], weights=lengths[aer[down]]))
+    top_l, top_h, top_r = [], [], []
+    for i, ks in enumerate(arms):
+        idx = aer[ks]
+        section[idx] = i + 1
+        w = lengths[idx]
+        top_l.append(float(np.sum(w)))
+        mid_z = 0.5 * (segments.start[idx, 2] + segments.end[idx, 2])
+        top_h.append(float(np.average(mid_z, weights=w)))
+        top_r.append(float(np.average(segments.radius[idx], weights=w)))
+        span = float(np.max(mid_z) - np.min(mid_z))
+        if span > 0.25 * top_h[-1]:
+            notes.append(f"top arm {i + 1} changes height by {span:.1f} m; its mean height is used")
+    if not arms:
+        kind = "vertical" if rise >= VERTICAL_TILT_FRACTION * d_len else "sloping wire"
+        if kind == "vertical" and not straight(down):
+            notes.append("the down-lead bends; treated as a vertical of its total length")
+        if kind == "sloping wire" and not straight(down):
+            notes.append("the wire bends; treated as one sloping wire")
+    elif len(arms) == 1:
+        kind = "inverted-L"
+    else:
+        kind = "T"
+    return AerialShape(
+        kind, float(node_xyz[junction, 2]), feed_z, d_len, float(rise), d_rad,
+        tuple(top_l), tuple(top_h), tuple(top_r), total_len, earth_len,
+        tuple(int(x) for x in section), tuple(notes),
+    )
+
+
+def _walk_nodes(ks, start, node_a, node_b):
+    """Yield (segment, node it is entered from) along a chain starting at ``start``."""
+    node = start
+    for k in ks:
+        yield k, node
+        node = node_b[k] if node_a[k] == node else node_a[k]
