@@ -1,0 +1,1087 @@
+"""From aerial to earphone: tuning design, calibration and station verdicts for a diode-detector receiver.
+
+Pure combination layer: dataclasses in, JSON-ready dicts out (plain floats,
+lists and strings; every key carries its unit: ``_hz``, ``_f``, ``_h``, ``_ohm``,
+``_v``, ``_w``, ``_db``, ``_v_per_m``, ``_m``; ``_ratio`` for dimensionless
+fractions, ``_q`` for quality factors). No I/O, no printing. Values that would
+not be finite are clamped and flagged in ``warnings``.
+
+The aerial arrives as arrays on a frequency grid: series resistance (radiation
+plus every loss) [ohm], series reactance [ohm], radiation resistance [ohm] and
+effective height [m]. Values at other frequencies are interpolated linearly on
+the grid (``np.interp``); frequencies outside the grid take the nearest edge
+value and are flagged.
+
+Assumptions (stated, not published figures) are module constants below.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from aerial.errors import ModelInputError
+from aerial.models import coil as coil_mod
+from aerial.models import detector as det_mod
+from aerial.models import groundwave as gw_mod
+from aerial.models import noise as noise_mod
+from aerial.models import tank as tank_mod
+
+#: Unloaded Q assumed for a coil given only by its inductance (assumption; common practice:
+#: a good air-cored MF coil reaches Q of 100-300).
+DEFAULT_COIL_Q = 150.0
+
+#: Audio power into the earphone taken as just audible (ASSUMPTION: a sensitive earphone giving
+#: about 100 dB SPL for 1 mW makes 1e-11 W about 20 dB SPL, audible in a quiet room). [W]
+AUDIBLE_POWER_W = 1e-11
+#: Audio power taken as clearly heard (ASSUMPTION: about 40 dB SPL with the same earphone). [W]
+CLEAR_POWER_W = 1e-9
+#: Carrier-to-noise ratio in the tank's −3 dB bandwidth for "marginal" (assumption). [dB]
+MARGINAL_SNR_DB = 6.0
+#: Carrier-to-noise ratio in the tank's −3 dB bandwidth for "clearly heard" (assumption). [dB]
+CLEAR_SNR_DB = 20.0
+
+#: Earphones below this impedance are treated as low-impedance headphones. [ohm]
+LOW_IMPEDANCE_EARPHONE_OHM = 600.0
+
+#: Relative tolerance and iteration limit of the tank-voltage solver.
+VOLTAGE_RTOL = 1e-9
+VOLTAGE_MAX_ITER = 200
+
+#: Largest magnitude written to a result; anything larger is clamped and flagged.
+CLAMP = 1e30
+
+VERDICTS = ("clearly heard", "marginal", "not heard")
+
+LOW_IMPEDANCE_NOTE = (
+    "low-impedance headphones (about 32 Ω) hear almost nothing from an unpowered receiver: as the detector's "
+    "load they pull its RF input resistance down to about half their impedance (~16 Ω), which short-circuits a "
+    "tank whose resonant resistance is tens of kilohms, and the little audio left is delivered at a fraction "
+    "of a millivolt; use a high-impedance earphone, or a matching (audio) transformer of about 100:1 in "
+    "impedance between detector and headphones"
+)
+
+
+@dataclass(frozen=True)
+class CoilWinding:
+    """A single-layer tank coil as wound.
+
+    Attributes
+    ----------
+    form_diameter_m : float
+        Outside diameter of the former. [m]
+    wire_diameter_m : float
+        Outside diameter of the wire (of the bundle for stranded wire). [m]
+    turns : float or None
+        Number of turns; None when the coil is still to be designed (the
+        result then gives the turns and winding length). [1]
+    winding_length_m : float or None
+        Length of the winding; gives the pitch as length/turns. [m]
+    pitch_m : float or None
+        Turn spacing; default close-wound (one wire diameter). [m]
+    strands : int
+        Number of strands of a stranded (litz) wire; 1 for solid wire. [1]
+    strand_diameter_m : float or None
+        Bare diameter of one strand, needed when ``strands`` > 1. [m]
+    resistivity_ohm_m : float
+        Conductor resistivity, default annealed copper. [ohm m]
+    """
+
+    form_diameter_m: float
+    wire_diameter_m: float
+    turns: float | None = None
+    winding_length_m: float | None = None
+    pitch_m: float | None = None
+    strands: int = 1
+    strand_diameter_m: float | None = None
+    resistivity_ohm_m: float = coil_mod.COPPER_RESISTIVITY
+
+    def pitch(self) -> float:
+        """Turn spacing. [m]"""
+        if self.pitch_m is not None:
+            return float(self.pitch_m)
+        if self.winding_length_m is not None and self.turns:
+            return float(self.winding_length_m) / float(self.turns)
+        return float(self.wire_diameter_m)
+
+
+@dataclass(frozen=True)
+class Calibration:
+    """A measured resonance with the aerial connected.
+
+    Attributes
+    ----------
+    coil_inductance_h : float
+        Inductance of the coil used in the measurement. [H]
+    capacitor_setting_f : float
+        Tank capacitor setting where the station peaked. [F]
+    frequency_hz : float
+        Frequency of the station that peaked. [Hz]
+    bandwidth_hz : float or None
+        Measured −3 dB bandwidth at that setting (gives the aerial's loss). [Hz]
+    """
+
+    coil_inductance_h: float
+    capacitor_setting_f: float
+    frequency_hz: float
+    bandwidth_hz: float | None = None
+
+
+@dataclass(frozen=True)
+class TuningParts:
+    """The receiver's tuning parts, detector and earphone.
+
+    Attributes
+    ----------
+    arrangement : str
+        Coupling: "direct", "series capacitor", "coil tap" or "separate primary".
+    coil_inductance_h : float or None
+        Tank coil inductance when known. [H]
+    coil : CoilWinding or None
+        The coil's winding; with ``turns`` it gives the inductance and the Q,
+        without ``turns`` it is the former and wire for a coil to be designed.
+    coil_unloaded_q : float or None
+        Coil Q when known (used when the winding is not given). [1]
+    capacitor_min_f, capacitor_max_f : float or None
+        Variable capacitor range. [F]
+    series_capacitance_f : float or None
+        Coupling capacitor for "series capacitor". [F]
+    tap_fraction : float or None
+        Aerial tap as a fraction of the turns from the earthy end, for "coil tap". [1]
+    primary_inductance_h : float or None
+        Primary winding for "separate primary". [H]
+    coupling_coefficient : float or None
+        Coupling k between primary and tank coil for "separate primary". [1]
+    detector : str
+        Diode preset: "germanium", "schottky" or "silicon".
+    diode_saturation_current_a, diode_ideality : float or None
+        Override the preset's Shockley parameters. [A], [1]
+    earphone_ohm : float
+        Earphone impedance, the detector's load. [ohm]
+    detector_tap_fraction : float
+        The detector's tap on the coil as a fraction of the turns (1 = top). [1]
+    calibration : Calibration or None
+        A measured resonance; its aerial capacitance (and loss, with a bandwidth)
+        replaces the computed aerial reactance (and resistance).
+    """
+
+    arrangement: str = "direct"
+    coil_inductance_h: float | None = None
+    coil: CoilWinding | None = None
+    coil_unloaded_q: float | None = None
+    capacitor_min_f: float | None = None
+    capacitor_max_f: float | None = None
+    series_capacitance_f: float | None = None
+    tap_fraction: float | None = None
+    primary_inductance_h: float | None = None
+    coupling_coefficient: float | None = None
+    detector: str = "germanium"
+    diode_saturation_current_a: float | None = None
+    diode_ideality: float | None = None
+    earphone_ohm: float = 10e3
+    detector_tap_fraction: float = 1.0
+    calibration: Calibration | None = None
+
+
+@dataclass(frozen=True)
+class Station:
+    """A transmitter to assess.
+
+    Attributes
+    ----------
+    name : str
+    frequency_hz : float
+        Carrier frequency. [Hz]
+    power_w : float
+        Radiated power (as from a short vertical). [W]
+    distance_m : float
+        Distance from the receiver. [m]
+    soil_relative_permittivity : float
+        Path ground permittivity. [1]
+    soil_conductivity_s_per_m : float
+        Path ground conductivity. [S/m]
+    """
+
+    name: str
+    frequency_hz: float
+    power_w: float
+    distance_m: float
+    soil_relative_permittivity: float
+    soil_conductivity_s_per_m: float
+
+
+# ----------------------------------------------------------------------------------------- helpers
+
+
+def _num(value, name: str, warnings: list) -> float:
+    v = float(value)
+    if not np.isfinite(v) or abs(v) > CLAMP:
+        clamped = 0.0 if np.isnan(v) else float(np.clip(v, -CLAMP, CLAMP))
+        warnings.append(f"{name} was not finite or out of range and was clamped to {clamped:g}")
+        return clamped
+    return v
+
+
+def _nums(values, name: str, warnings: list) -> list:
+    return [_num(v, name, warnings) for v in np.ravel(values)]
+
+
+class _Aerial:
+    """Aerial arrays on the grid, with interpolation and optional calibration overrides."""
+
+    def __init__(self, frequency_hz, r_ohm, x_ohm, rr_ohm=None, he_m=None):
+        self.f = np.asarray(frequency_hz, dtype=float).ravel()
+        if self.f.size < 1 or not np.all(np.isfinite(self.f)) or np.any(self.f <= 0):
+            raise ModelInputError("frequency_hz must be a non-empty array of positive frequencies")
+        if self.f.size > 1 and np.any(np.diff(self.f) <= 0):
+            raise ModelInputError("frequency_hz must be strictly increasing")
+        self.r = self._arr(r_ohm, "aerial_r_ohm", positive=True)
+        self.x = self._arr(x_ohm, "aerial_x_ohm")
+        self.rr = None if rr_ohm is None else self._arr(rr_ohm, "aerial_rr_ohm", nonneg=True)
+        self.he = None if he_m is None else self._arr(he_m, "effective_height_m", nonneg=True)
+        self.cal_capacitance = None
+        self.cal_resistance = None
+
+    def _arr(self, v, name, positive=False, nonneg=False):
+        a = np.broadcast_to(np.asarray(v, dtype=float), self.f.shape).copy()
+        if not np.all(np.isfinite(a)):
+            raise ModelInputError(f"{name} must be finite at every frequency")
+        if positive and np.any(a <= 0):
+            raise ModelInputError(f"{name} must be positive (it includes every loss) at every frequency")
+        if nonneg and np.any(a < 0):
+            raise ModelInputError(f"{name} must not be negative")
+        return a
+
+    def outside(self, f):
+        f = np.asarray(f, dtype=float)
+        return (f < self.f[0] * (1 - 1e-9)) | (f > self.f[-1] * (1 + 1e-9))
+
+    def impedance(self, f):
+        f = np.asarray(f, dtype=float)
+        r = np.interp(f, self.f, self.r)
+        x = np.interp(f, self.f, self.x * self.f) / f  # X·f interpolated: exact for a capacitive aerial
+        if self.cal_capacitance is not None:
+            x = -1.0 / (2.0 * np.pi * f * self.cal_capacitance)
+        if self.cal_resistance is not None:
+            r = np.full_like(f, self.cal_resistance)
+        return r, x
+
+    def radiation_resistance(self, f):
+        return np.interp(f, self.f, self.rr)
+
+    def effective_height(self, f):
+        return np.interp(f, self.f, self.he)
+
+
+class _Coil:
+    def __init__(self, inductance, q_fun, info, notes):
+        self.inductance = float(inductance)
+        self.q = q_fun
+        self.info = info
+        self.notes = notes
+
+    def resistance(self, f):
+        return 2.0 * np.pi * np.asarray(f, dtype=float) * self.inductance / self.q(f)
+
+
+def _constant_q(q):
+    return lambda f: np.full(np.shape(np.asarray(f, dtype=float)), float(q))
+
+
+def _coil_from_winding(w: CoilWinding, inductance=None, design_freq=1e6):
+    notes = []
+    pitch = w.pitch()
+    if w.turns is None:
+        design = coil_mod.winding_for_inductance(inductance, w.form_diameter_m, w.wire_diameter_m, pitch)
+        turns = design.turns_whole
+        if not design.converged:
+            notes.append("the turns solver did not converge; the winding is approximate")
+        L = design.inductance_whole
+    else:
+        turns = float(w.turns)
+        L = float(coil_mod.solenoid_inductance(w.form_diameter_m, w.wire_diameter_m, turns, pitch))
+        if inductance is not None:
+            L = float(inductance)
+    loss_args = dict(form_diameter=w.form_diameter_m, wire_diameter=w.wire_diameter_m, turns=turns, pitch=pitch,
+                     strands=w.strands, strand_diameter=w.strand_diameter_m, resistivity=w.resistivity_ohm_m)
+    notes.extend(coil_mod.coil_loss(design_freq, L, **loss_args).warnings)
+
+    def q_fun(f):
+        return coil_mod.coil_loss(np.asarray(f, dtype=float), L, **loss_args).unloaded_q
+
+    d_sheet = w.form_diameter_m + w.wire_diameter_m
+    wheeler = coil_mod.wheeler_inductance(d_sheet, turns * pitch, turns)
+    info = {
+        "turns": float(turns),
+        "winding_length_m": float(turns * pitch),
+        "pitch_m": float(pitch),
+        "form_diameter_m": float(w.form_diameter_m),
+        "wire_diameter_m": float(w.wire_diameter_m),
+        "wire_length_m": float(turns * np.pi * d_sheet),
+        "strands": int(w.strands),
+        "inductance_wheeler_h": float(wheeler.inductance),
+        "wheeler_within_stated_accuracy": bool(wheeler.within_stated_accuracy),
+    }
+    if w.strands > 1:
+        rng = coil_mod.stranded_advantage_range(w.form_diameter_m, w.wire_diameter_m, turns, w.strands,
+                                                w.strand_diameter_m, pitch, w.resistivity_ohm_m)
+        info["stranded_better_up_to_hz"] = None if rng.better_up_to is None else float(rng.better_up_to)
+        if rng.better_up_to is not None:
+            notes.append(
+                f"stranded wire: loses less than solid wire of the same size only up to about "
+                f"{rng.better_up_to / 1e3:.0f} kHz; above that the strands' proximity loss outweighs the gain"
+            )
+    return L, q_fun, info, notes
+
+
+def _resolve_coil(parts: TuningParts, inductance=None) -> _Coil:
+    """The tank coil: given, from its winding, or designed for ``inductance``."""
+    notes = []
+    w = parts.coil
+    L_given = parts.coil_inductance_h
+    if L_given is None and inductance is None and (w is None or w.turns is None):
+        raise ModelInputError("the coil needs an inductance, a winding with turns, or a capacitor range to design it")
+    if w is not None and (L_given is not None or w.turns is not None or inductance is not None):
+        target = L_given if L_given is not None else inductance
+        L, q_fun, info, more = _coil_from_winding(w, target)
+        source = "given" if L_given is not None else ("from winding" if w.turns is not None else "designed")
+        notes.extend(more)
+    else:
+        L = L_given if L_given is not None else inductance
+        source = "given" if L_given is not None else "designed"
+        info = {}
+        if parts.coil_unloaded_q is not None:
+            q_fun = _constant_q(parts.coil_unloaded_q)
+        else:
+            q_fun = _constant_q(DEFAULT_COIL_Q)
+            notes.append(f"coil Q not known: assumed {DEFAULT_COIL_Q:.0f} (a good air-cored coil)")
+    if parts.coil_unloaded_q is not None and w is not None and w.turns is not None:
+        q_fun = _constant_q(parts.coil_unloaded_q)
+    if not (np.isfinite(L) and L > 0):
+        raise ModelInputError("coil inductance must be positive")
+    info = {"inductance_h": float(L), "source": source, **info}
+    return _Coil(L, q_fun, info, notes)
+
+
+def _diode(parts: TuningParts) -> det_mod.Diode:
+    d = det_mod.get_diode(parts.detector)
+    i_s = d.saturation_current_a if parts.diode_saturation_current_a is None else float(parts.diode_saturation_current_a)
+    n = d.ideality if parts.diode_ideality is None else float(parts.diode_ideality)
+    if not (i_s > 0 and np.isfinite(i_s)) or not (0.5 <= n <= 5):
+        raise ModelInputError("diode saturation current must be positive and ideality between 0.5 and 5")
+    return det_mod.Diode(d.name, i_s, n, d.description)
+
+
+def _check_parts(parts: TuningParts):
+    tank_mod.check_arrangement(parts.arrangement)
+    det_mod.get_diode(parts.detector)
+    if not (parts.earphone_ohm > 0 and np.isfinite(parts.earphone_ohm)):
+        raise ModelInputError(f"earphone_ohm must be positive, got {parts.earphone_ohm!r}")
+    if not (0 < parts.detector_tap_fraction <= 1):
+        raise ModelInputError(f"detector_tap_fraction must lie in (0, 1], got {parts.detector_tap_fraction!r}")
+    cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
+    if (cmin is None) != (cmax is None):
+        raise ModelInputError("give both capacitor_min_f and capacitor_max_f, or neither")
+    if cmin is not None and not (0 <= cmin < cmax):
+        raise ModelInputError("the capacitor range needs 0 <= capacitor_min_f < capacitor_max_f")
+
+
+def _config(parts: TuningParts, **override) -> dict:
+    cfg = dict(arrangement=parts.arrangement, series_capacitance=parts.series_capacitance_f,
+               tap_fraction=parts.tap_fraction, primary_inductance=parts.primary_inductance_h,
+               coupling_coefficient=parts.coupling_coefficient)
+    cfg.update(override)
+    return cfg
+
+
+def _coupling(f, aerial: _Aerial, L, q_fun, cfg):
+    f = np.asarray(f, dtype=float)
+    r, x = aerial.impedance(f)
+    q = q_fun(f)
+    w = 2.0 * np.pi * f
+    rp = 0.0
+    if cfg["arrangement"] == "separate primary" and cfg["primary_inductance"] is not None:
+        rp = w * cfg["primary_inductance"] / q  # primary wound like the tank coil (assumption)
+    return tank_mod.tank_coupling(cfg["arrangement"], f, r, x, L, w * L / q, cfg["series_capacitance"],
+                                  cfg["tap_fraction"], cfg["primary_inductance"], cfg["coupling_coefficient"], rp)
+
+
+def _needed(f, aerial, L, q_fun, cfg):
+    t = _coupling(f, aerial, L, q_fun, cfg)
+    return tank_mod.capacitance_needed(f, t.coil_admittance, t.aerial_admittance)
+
+
+def _covers(f_lo, f_hi, aerial, L, q_fun, cfg, cmin, cmax):
+    c = _needed(np.array([f_lo, f_hi]), aerial, L, q_fun, cfg)
+    return bool(c[0] <= cmax and c[1] >= cmin), c
+
+
+def _ok_range(ok, lo, hi, points=48, refine=40):
+    """Range [a, b] (log grid, refined at the ends) where ``ok(x)`` holds; None if nowhere on the grid."""
+    xs = np.geomspace(lo, hi, points)
+    flags = np.array([ok(x) for x in xs])
+    if not flags.any():
+        return None
+    idx = np.flatnonzero(flags)
+    i0, i1 = idx[0], idx[-1]
+
+    def edge(good, bad):
+        for _ in range(refine):
+            mid = np.sqrt(good * bad)
+            if ok(mid):
+                good = mid
+            else:
+                bad = mid
+        return good
+
+    a = xs[i0] if i0 == 0 else edge(xs[i0], xs[i0 - 1])
+    b = xs[i1] if i1 == xs.size - 1 else edge(xs[i1], xs[i1 + 1])
+    return float(a), float(b)
+
+
+def _pf(c):
+    return f"{c * 1e12:.0f} pF"
+
+
+def _uh(L):
+    return f"{L * 1e6:.0f} µH"
+
+
+def _khz(f):
+    return f"{f / 1e3:.0f} kHz"
+
+
+def _apply_calibration(aerial: _Aerial, parts: TuningParts, diode, notes: list) -> dict | None:
+    cal = parts.calibration
+    if cal is None:
+        return None
+    f = float(cal.frequency_hz)
+    q_coil = DEFAULT_COIL_Q if parts.coil_unloaded_q is None else float(parts.coil_unloaded_q)
+    if parts.coil is not None and parts.coil.turns is not None and cal.bandwidth_hz is not None:
+        L_w, q_fun, _, _ = _coil_from_winding(parts.coil, cal.coil_inductance_h)
+        q_coil = float(q_fun(f))
+    g_det = parts.detector_tap_fraction**2 / (parts.earphone_ohm / 2.0)
+    res = tank_mod.calibrate_from_resonance(f, cal.coil_inductance_h, cal.capacitor_setting_f, cal.bandwidth_hz,
+                                            q_coil if cal.bandwidth_hz is not None else None, g_det)
+    notes.extend(res.warnings)
+    y = res.aerial_admittance
+    out = {
+        "frequency_hz": f,
+        "aerial_shunt_capacitance_f": float(res.shunt_capacitance),
+        "aerial_shunt_resistance_ohm": None if res.shunt_resistance is None else float(res.shunt_resistance),
+        "total_capacitance_f": float(res.total_capacitance),
+        "loaded_q": None if res.loaded_q is None else float(res.loaded_q),
+        "note": "these values come from your measured resonance, not from the aerial model",
+    }
+    if y.imag <= 0:
+        notes.append("the measured resonance shows no aerial capacitance: the computed aerial reactance is kept")
+        return out
+    if y.real == 0:
+        y = complex(1e-12, y.imag)
+    L = float(cal.coil_inductance_h)
+    rc = 2.0 * np.pi * f * L / q_coil
+    cfg = _config(parts)
+    rp = 0.0 if cfg["primary_inductance"] is None else 2.0 * np.pi * f * cfg["primary_inductance"] / q_coil
+    za = tank_mod.aerial_impedance_from_admittance(cfg["arrangement"], f, y, L, rc, cfg["series_capacitance"],
+                                                   cfg["tap_fraction"], cfg["primary_inductance"],
+                                                   cfg["coupling_coefficient"], rp)
+    if za.imag >= 0:
+        notes.append("the measured resonance implies an inductive aerial: the computed aerial reactance is kept")
+        return out
+    aerial.cal_capacitance = -1.0 / (2.0 * np.pi * f * za.imag)
+    out["aerial_series_capacitance_f"] = float(aerial.cal_capacitance)
+    if cal.bandwidth_hz is not None and res.shunt_resistance is not None and za.real > 0:
+        aerial.cal_resistance = float(za.real)
+        out["aerial_series_resistance_ohm"] = float(za.real)
+    notes.append(
+        f"aerial capacitance {_pf(aerial.cal_capacitance)} taken from your measured resonance at {_khz(f)}"
+        + (" (and its loss resistance from the measured bandwidth)" if aerial.cal_resistance is not None else "")
+    )
+    return out
+
+
+def calibrate_aerial(calibration: Calibration, parts: TuningParts) -> dict:
+    """The aerial's capacitance (and loss) from a measured resonance, as a JSON-ready dict.
+
+    Parameters
+    ----------
+    calibration : Calibration
+        The measurement.
+    parts : TuningParts
+        The arrangement the measurement was made with (its coupling parts, detector
+        and earphone; the coil inductance is the calibration's).
+
+    Returns
+    -------
+    dict
+        ``aerial_shunt_capacitance_f``, ``aerial_shunt_resistance_ohm`` (None
+        without a bandwidth), ``aerial_series_capacitance_f`` and
+        ``aerial_series_resistance_ohm`` (the aerial's own series values,
+        usable in place of the model's), ``warnings``, and a note that they
+        come from measurement.
+
+    Examples
+    --------
+    >>> out = calibrate_aerial(Calibration(240e-6, 5.554e-12, 1e6), TuningParts())
+    >>> round(out["aerial_shunt_capacitance_f"] * 1e12)
+    100
+    """
+    parts = TuningParts(**{**parts.__dict__, "calibration": calibration})
+    _check_parts(parts)
+    aerial = _Aerial([calibration.frequency_hz], 1.0, -1e3)
+    notes: list = []
+    out = _apply_calibration(aerial, parts, _diode(parts), notes)
+    out["warnings"] = notes
+    return out
+
+
+# ----------------------------------------------------------------------------------- tuning design
+
+
+def _advice(band, aerial, coil: _Coil, parts: TuningParts, c_edges) -> list:
+    f_lo, f_hi = band
+    cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
+    L, q = coil.inductance, coil.q
+    cfg = _config(parts)
+    adv = []
+    low_ok = c_edges[0] <= cmax
+    high_ok = c_edges[1] >= cmin
+
+    if not low_ok:
+        adv.append(f"needs a capacitor of at least {_pf(c_edges[0])} maximum to reach {_khz(f_lo)}")
+    if not high_ok:
+        if c_edges[1] < 0:
+            adv.append(f"the aerial's own capacitance tunes this coil below {_khz(f_hi)} even with no capacitor")
+        else:
+            adv.append(f"the capacitor's minimum of {_pf(cmin)} is too large to reach {_khz(f_hi)} "
+                       f"(needs {_pf(c_edges[1])} or less)")
+    # a different coil, same everything else
+    rng = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax)[0], 1e-6, 1e-2)
+    if rng:
+        adv.append(f"a coil between {_uh(rng[0])} and {_uh(rng[1])} covers the whole band with this capacitor")
+    # coupling changes that lighten the aerial's load on the tank
+    arr = parts.arrangement
+    if arr in ("direct", "series capacitor"):
+        r = _ok_range(lambda c: _covers(f_lo, f_hi, aerial, L, q, _config(parts, arrangement="series capacitor",
+                                                                          series_capacitance=c), cmin, cmax)[0],
+                      1e-12, 1e-8)
+        if r:
+            adv.append(f"use a series capacitor of {_pf(r[0])} to {_pf(r[1])} between aerial and tank "
+                       f"(the largest passes the most signal)")
+    if arr in ("direct", "coil tap"):
+        r = _ok_range(lambda n: _covers(f_lo, f_hi, aerial, L, q, _config(parts, arrangement="coil tap",
+                                                                          tap_fraction=n), cmin, cmax)[0],
+                      0.02, 1.0)
+        if r:
+            adv.append(f"use a tap at {r[0]:.2f} to {r[1]:.2f} of the turns from the earthy end")
+    if arr == "separate primary" and parts.primary_inductance_h is not None:
+        r = _ok_range(lambda k: _covers(f_lo, f_hi, aerial, L, q, _config(parts, coupling_coefficient=k),
+                                        cmin, cmax)[0], 0.01, 0.95)
+        if r:
+            adv.append(f"set the primary's coupling to k = {r[0]:.2f} ... {r[1]:.2f}")
+    ratio = (f_hi / f_lo) ** 2
+    if cmin > 0 and cmax / cmin < ratio * 1.05:
+        adv.append(f"the band needs a capacitance ratio of at least {ratio:.2f} plus strays; this capacitor "
+                   f"gives {cmax / cmin:.2f}: use a capacitor with a wider range or split the band in two")
+    return adv
+
+
+def _design_inductance(band, aerial, parts, notes) -> float:
+    f_lo, f_hi = band
+    cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
+    q = _constant_q(DEFAULT_COIL_Q if parts.coil_unloaded_q is None else parts.coil_unloaded_q)
+    cfg = _config(parts)
+    rng = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax)[0], 1e-6, 1e-2)
+    if rng:
+        L = float(np.sqrt(rng[0] * rng[1]))
+        notes.append(f"any coil from {_uh(rng[0])} to {_uh(rng[1])} covers the band; chose {_uh(L)} "
+                     "for equal margin at both ends")
+        return L
+    top = _ok_range(lambda Lx: _needed(np.array([f_hi]), aerial, Lx, q, cfg)[0] >= cmin, 1e-6, 1e-2)
+    L = top[1] if top else 1e-6
+    notes.append(f"no single coil covers the band with this capacitor and coupling; chose {_uh(L)}, "
+                 f"the largest that still reaches {_khz(f_hi)}")
+    return L
+
+
+def _strong_signal_conductance(parts):
+    return parts.detector_tap_fraction**2 / (parts.earphone_ohm / 2.0)
+
+
+def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, band=None) -> dict:
+    """Tuning design across a band: capacitor settings, coverage, loaded Q, selectivity, advice.
+
+    Parameters
+    ----------
+    frequency_hz : array_like
+        Frequency grid of the aerial arrays, strictly increasing. [Hz]
+    aerial_r_ohm : array_like
+        Aerial series resistance including every loss. [ohm]
+    aerial_x_ohm : array_like
+        Aerial series reactance. [ohm]
+    parts : TuningParts
+        Coil, capacitor, coupling, detector, earphone (and optional calibration).
+    band : (float, float), optional
+        Band edges (f_lo, f_hi); default the grid's range. [Hz]
+
+    Returns
+    -------
+    dict
+        ``coil`` (inductance, source, turns and winding length when known),
+        ``rows`` (one per tabulated frequency: ``frequency_hz``, ``inductance_h``
+        and ``total_capacitance_f`` with f = 1/(2π√(LC)), ``capacitor_setting_f``,
+        ``within_capacitor_range``, the aerial's shunt capacitance and resistance
+        as seen by the tank, ``aerial_share_ratio`` of the tuning capacitance,
+        ``unloaded_q``, ``loaded_q``, ``bandwidth_hz``, rejections one and two
+        channels away for 9 and 10 kHz spacings, ``power_transfer_ratio``
+        (detector power / available aerial power from the circuit) and the
+        matched-ports reference ``power_transfer_if_matched_ratio``),
+        ``coverage`` (verdict, capacitor needed at each band edge, reachable
+        range), ``advice``, ``notes``, ``warnings``.
+
+    Notes
+    -----
+    The detector is represented by its strong-signal RF input resistance
+    R_L/2 (a local station); weak stations load the tank less (see
+    :func:`assess_stations`). The aerial is treated at each frequency as the
+    series R + jX given there.
+
+    Examples
+    --------
+    >>> f = [500e3, 1000e3, 1700e3]
+    >>> x = [-1 / (2 * 3.141592653589793 * fi * 200e-12) for fi in f]
+    >>> parts = TuningParts("series capacitor", coil_inductance_h=240e-6, capacitor_min_f=15e-12,
+    ...                     capacitor_max_f=365e-12, series_capacitance_f=100e-12)
+    >>> out = design_tuning(f, [25, 25, 25], x, parts, band=(550e3, 1100e3))
+    >>> out["coverage"]["covered"]
+    True
+    """
+    _check_parts(parts)
+    aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm)
+    warnings: list = []
+    notes: list = []
+    diode = _diode(parts)
+    calibration = _apply_calibration(aerial, parts, diode, notes)
+    f_lo, f_hi = (aerial.f[0], aerial.f[-1]) if band is None else (float(band[0]), float(band[1]))
+    if not (0 < f_lo < f_hi):
+        raise ModelInputError("band must be (f_lo, f_hi) with 0 < f_lo < f_hi")
+    if aerial.outside([f_lo, f_hi]).any():
+        warnings.append("the band reaches beyond the aerial's frequency grid: edge values of the aerial were used")
+    has_cap = parts.capacitor_min_f is not None
+    designed_L = None
+    if parts.coil_inductance_h is None and (parts.coil is None or parts.coil.turns is None):
+        if not has_cap:
+            raise ModelInputError("give the coil (inductance or winding) or the capacitor range to design one")
+        designed_L = _design_inductance((f_lo, f_hi), aerial, parts, notes)
+    coil = _resolve_coil(parts, designed_L)
+    notes.extend(coil.notes)
+    L = coil.inductance
+    cfg = _config(parts)
+
+    grid_in = aerial.f[(aerial.f > f_lo) & (aerial.f < f_hi)]
+    table_f = np.unique(np.concatenate([[f_lo], grid_in, [f_hi]]))
+    t = _coupling(table_f, aerial, L, coil.q, cfg)
+    c_needed = tank_mod.capacitance_needed(table_f, t.coil_admittance, t.aerial_admittance)
+    w = 2.0 * np.pi * table_f
+    shunt = tank_mod.shunt_from_admittance(table_f, t.aerial_admittance)
+    b_coil = -np.imag(t.coil_admittance)
+    g_coil = np.real(t.coil_admittance)
+    c_total = b_coil / w  # everything but the coil, at resonance
+    l_equiv = 1.0 / (w * b_coil)  # the coil's shunt-equivalent inductance L(1 + 1/Qu²)
+    qu = b_coil / g_coil
+    g_aerial = np.maximum(np.real(t.aerial_admittance), 1e-15)
+    g_det = _strong_signal_conductance(parts)
+    q_aerial = b_coil / g_aerial
+    q_det = b_coil / g_det
+    ql = tank_mod.loaded_q(qu, q_aerial, q_det)
+    bw = tank_mod.bandwidth(table_f, ql)
+    r_a, x_a = aerial.impedance(table_f)
+    # circuit power transfer: P_det / P_av, P_av = V²/(4 Ra), V_top = V·|I_N| / G_total
+    g_total = g_coil + g_aerial + g_det
+    v_top = np.abs(t.current_per_volt) / g_total
+    p_det = v_top**2 * g_det
+    transfer = p_det / (1.0 / (4.0 * r_a))
+    matched = tank_mod.matched_power_ratio(ql, qu)
+    within = np.ones_like(table_f, dtype=bool)
+    if has_cap:
+        within = (c_needed >= parts.capacitor_min_f) & (c_needed <= parts.capacitor_max_f)
+    share = shunt.capacitance / np.where(c_total != 0, c_total, 1e-30)
+
+    rows = []
+    for i, fi in enumerate(table_f):
+        row = {
+            "frequency_hz": _num(fi, "frequency_hz", warnings),
+            "inductance_h": _num(l_equiv[i], "inductance_h", warnings),
+            "total_capacitance_f": _num(c_total[i], "total_capacitance_f", warnings),
+            "capacitor_setting_f": _num(c_needed[i], "capacitor_setting_f", warnings),
+            "within_capacitor_range": bool(within[i]),
+            "aerial_shunt_capacitance_f": _num(shunt.capacitance[i], "aerial_shunt_capacitance_f", warnings),
+            "aerial_shunt_resistance_ohm": _num(shunt.resistance[i], "aerial_shunt_resistance_ohm", warnings),
+            "aerial_share_ratio": _num(share[i], "aerial_share_ratio", warnings),
+            "unloaded_q": _num(qu[i], "unloaded_q", warnings),
+            "loaded_q": _num(ql[i], "loaded_q", warnings),
+            "bandwidth_hz": _num(bw[i], "bandwidth_hz", warnings),
+            "power_transfer_ratio": _num(transfer[i], "power_transfer_ratio", warnings),
+            "power_transfer_if_matched_ratio": _num(matched[i], "power_transfer_if_matched_ratio", warnings),
+        }
+        for spacing in tank_mod.CHANNEL_SPACINGS_HZ:
+            k = int(spacing / 1e3)
+            row[f"rejection_{k}khz_db"] = _num(tank_mod.adjacent_rejection_db(fi, ql[i], spacing), "rejection", warnings)
+            row[f"rejection_{2 * k}khz_db"] = _num(tank_mod.adjacent_rejection_db(fi, ql[i], 2 * spacing),
+                                                   "rejection", warnings)
+        if shunt.capacitance[i] < 0:
+            row["note"] = "the aerial looks inductive here (above its first resonance)"
+        rows.append(row)
+
+    c_edges = _needed(np.array([f_lo, f_hi]), aerial, L, coil.q, cfg)
+    coverage = {
+        "band_low_hz": f_lo,
+        "band_high_hz": f_hi,
+        "capacitor_needed_at_low_edge_f": _num(c_edges[0], "capacitor_needed_at_low_edge_f", warnings),
+        "capacitor_needed_at_high_edge_f": _num(c_edges[1], "capacitor_needed_at_high_edge_f", warnings),
+    }
+    advice: list = []
+    if has_cap:
+        covered = bool(c_edges[0] <= parts.capacitor_max_f and c_edges[1] >= parts.capacitor_min_f)
+        coverage["covered"] = covered
+        curve = tuning_range_curve(aerial.f, aerial.r, aerial.x, parts, coil_inductance_h=L, _aerial=aerial, _coil=coil)
+        coverage["reachable_low_hz"] = curve["reachable_low_hz"]
+        coverage["reachable_high_hz"] = curve["reachable_high_hz"]
+        coverage["verdict"] = ("covers the band" if covered else
+                               "does not cover the band" + (f": reaches {_khz(curve['reachable_low_hz'])} to "
+                                                            f"{_khz(curve['reachable_high_hz'])}"
+                                                            if curve["reachable_low_hz"] is not None else ""))
+        if not covered:
+            advice = _advice((f_lo, f_hi), aerial, coil, parts, c_edges)
+    else:
+        coverage["covered"] = None
+        coverage["verdict"] = "no capacitor range given: the settings needed are listed"
+    if parts.arrangement in tank_mod.NO_DC_PATH_ARRANGEMENTS:
+        notes.append(tank_mod.BLEED_NOTE)
+    if parts.earphone_ohm < LOW_IMPEDANCE_EARPHONE_OHM:
+        warnings.append(LOW_IMPEDANCE_NOTE)
+    notes.append("loaded Q and bandwidth use the detector's strong-signal input resistance (half the earphone "
+                  "impedance); weak stations load the tank less")
+    coil_info = dict(coil.info)
+    return {
+        "arrangement": parts.arrangement,
+        "coil": coil_info,
+        "detector": parts.detector,
+        "earphone_ohm": float(parts.earphone_ohm),
+        "calibration": calibration,
+        "rows": rows,
+        "coverage": coverage,
+        "advice": advice,
+        "notes": notes,
+        "warnings": warnings,
+    }
+
+
+def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, points=60,
+                       coil_inductance_h=None, _aerial=None, _coil=None) -> dict:
+    """Frequency against capacitor setting, for a picture of the dial.
+
+    Parameters
+    ----------
+    frequency_hz, aerial_r_ohm, aerial_x_ohm : array_like
+        The aerial on its grid. [Hz], [ohm], [ohm]
+    parts : TuningParts
+        Must give the capacitor range and the coil.
+    points : int
+        Number of capacitor settings.
+    coil_inductance_h : float, optional
+        Override the coil inductance (e.g. a designed one). [H]
+
+    Returns
+    -------
+    dict
+        ``capacitor_setting_f`` and ``frequency_hz`` (the settings that tune
+        inside the aerial grid), ``reachable_low_hz``/``reachable_high_hz``
+        (None when nothing tunes in the grid), ``warnings``.
+
+    Notes
+    -----
+    The capacitance needed is computed on a fine log grid over the aerial's
+    range, and each setting is placed where that curve crosses it.
+
+    Examples
+    --------
+    >>> f = [500e3, 1700e3]
+    >>> x = [-1 / (2 * 3.141592653589793 * fi * 100e-12) for fi in f]
+    >>> c = tuning_range_curve(f, [25, 25], x, TuningParts(coil_inductance_h=240e-6,
+    ...                        capacitor_min_f=15e-12, capacitor_max_f=365e-12))
+    >>> round(c["reachable_high_hz"] / 1e3)  # 1/(2π√(240 µH × 115 pF))
+    958
+    """
+    _check_parts(parts)
+    if parts.capacitor_min_f is None:
+        raise ModelInputError("a tuning curve needs the capacitor range (capacitor_min_f, capacitor_max_f)")
+    aerial = _aerial if _aerial is not None else _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm)
+    notes: list = []
+    if _aerial is None:
+        _apply_calibration(aerial, parts, _diode(parts), notes)
+    coil = _coil if _coil is not None else _resolve_coil(
+        parts if coil_inductance_h is None else TuningParts(**{**parts.__dict__, "coil_inductance_h": coil_inductance_h}))
+    fine = np.geomspace(aerial.f[0], aerial.f[-1], 600) if aerial.f.size > 1 else aerial.f.copy()
+    c_need = _needed(fine, aerial, coil.inductance, coil.q, _config(parts))
+    settings = np.linspace(parts.capacitor_min_f, parts.capacitor_max_f, int(points))
+    out_c, out_f = [], []
+    for cs in settings:
+        diff = c_need - cs
+        idx = np.flatnonzero(np.sign(diff[:-1]) != np.sign(diff[1:]))
+        if idx.size == 0:
+            continue
+        i = idx[0]
+        t = diff[i] / (diff[i] - diff[i + 1])
+        fr = fine[i] * (fine[i + 1] / fine[i]) ** t
+        out_c.append(float(cs))
+        out_f.append(float(fr))
+    warnings = []
+    if len(out_c) < len(settings):
+        warnings.append(f"{len(settings) - len(out_c)} capacitor settings tune outside the aerial's frequency grid")
+    return {
+        "capacitor_setting_f": out_c,
+        "frequency_hz": out_f,
+        "reachable_low_hz": min(out_f) if out_f else None,
+        "reachable_high_hz": max(out_f) if out_f else None,
+        "warnings": warnings + notes,
+    }
+
+
+# ------------------------------------------------------------------------------------ station verdicts
+
+
+def _solve_tank_voltage(current, g0, tap, diode, load, rtol=VOLTAGE_RTOL, max_iter=VOLTAGE_MAX_ITER):
+    """RMS tank-top voltage V with V·(G0 + tap²/R_in(√2·tap·V)) = I (bisection in log V)."""
+    current = np.asarray(current, dtype=float)
+    g0 = np.asarray(g0, dtype=float)
+    hi = np.maximum(current / g0, 1e-30)
+    lo = hi * 1e-12
+    it = 0
+    for it in range(1, max_iter + 1):
+        mid = np.sqrt(lo * hi)
+        d = det_mod.loaded_detector(np.sqrt(2.0) * tap * mid, diode.saturation_current_a, diode.ideality, load)
+        resid = mid * (g0 + tap**2 / d.input_resistance) - current
+        up = resid > 0
+        hi = np.where(up, mid, hi)
+        lo = np.where(up, lo, mid)
+        if np.all(hi / lo - 1.0 <= rtol):
+            break
+    v = np.sqrt(lo * hi)
+    return v, bool(np.all(hi / lo - 1.0 <= rtol)), it
+
+
+def _audio_power(v_rms, tap, diode, load):
+    return det_mod.audio_output(np.sqrt(2.0) * tap * np.asarray(v_rms, dtype=float), diode, load).audio_power
+
+
+def _threshold_voltage(tap, diode, load, power=AUDIBLE_POWER_W):
+    """RMS tank voltage at which the audio reaches ``power`` (bisection in log V)."""
+    lo, hi = 1e-9, 1e3
+    if _audio_power(hi, tap, diode, load) < power:
+        return np.inf
+    for _ in range(100):
+        mid = np.sqrt(lo * hi)
+        if _audio_power(mid, tap, diode, load) >= power:
+            hi = mid
+        else:
+            lo = mid
+    return hi
+
+
+def assess_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m,
+                    parts: TuningParts, stations, noise_category="residential",
+                    modulation_depth=det_mod.DEFAULT_MODULATION_DEPTH) -> list:
+    """Which stations will be heard, and how well.
+
+    Parameters
+    ----------
+    frequency_hz : array_like
+        Aerial frequency grid, strictly increasing. [Hz]
+    aerial_r_ohm : array_like
+        Aerial series resistance including every loss. [ohm]
+    aerial_x_ohm : array_like
+        Aerial series reactance. [ohm]
+    aerial_rr_ohm : array_like
+        Aerial radiation resistance. [ohm]
+    effective_height_m : array_like
+        Aerial effective height. [m]
+    parts : TuningParts
+        Tuning parts, detector, earphone.
+    stations : sequence of Station
+    noise_category : {"city", "residential", "rural", "quiet rural"}
+        Man-made noise environment (ITU-R P.372).
+    modulation_depth : float
+        AM modulation depth assumed for the audio estimate. [1]
+
+    Returns
+    -------
+    list of dict
+        One dict per station: ``field_v_per_m``, ``open_circuit_voltage_v``,
+        ``available_power_w``, ``detector_power_w``, ``tank_voltage_v`` (RMS),
+        ``detected_voltage_v``, ``audio_power_w``, ``loaded_q``,
+        ``bandwidth_hz``, ``noise_field_v_per_m``, ``signal_to_noise_db``,
+        ``verdict`` (one of "clearly heard", "marginal", "not heard") with its
+        ``reason``, ``heard_behind`` (stations whose spill-over is audible when
+        tuned here), ``spills_over`` (stations this one is heard behind),
+        ``audible_width_hz`` (dial width over which this station stays audible),
+        ``warnings``.
+
+    Notes
+    -----
+    Field: Sommerfeld–Norton flat earth; V_oc = E·h_e. The tank is tuned to
+    each station; the tank voltage and the detector's input resistance are
+    solved together (:func:`aerial.models.detector.loaded_detector`). The
+    noise is man-made noise only, in the tank's −3 dB bandwidth. Spill-over
+    uses the single-tuned response at the wanted station's loaded Q.
+
+    Examples
+    --------
+    >>> f = [500e3, 1700e3]
+    >>> x = [-1 / (2 * 3.141592653589793 * fi * 100e-12) for fi in f]
+    >>> parts = TuningParts(coil_inductance_h=200e-6, capacitor_min_f=15e-12, capacitor_max_f=365e-12)
+    >>> s = Station("Demo Local", 1e6, 10e3, 20e3, 15.0, 1e-3)
+    >>> assess_stations(f, [25, 25], x, [0.3, 3.0], [8, 8], parts, [s])[0]["verdict"]
+    'clearly heard'
+    """
+    _check_parts(parts)
+    noise_mod.check_noise_category(noise_category)
+    if not (0 < modulation_depth <= 1):
+        raise ModelInputError(f"modulation_depth must lie in (0, 1], got {modulation_depth!r}")
+    stations = list(stations)
+    if not stations:
+        return []
+    aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m)
+    common: list = []
+    diode = _diode(parts)
+    _apply_calibration(aerial, parts, diode, common)
+    if parts.coil_inductance_h is None and (parts.coil is None or parts.coil.turns is None):
+        if parts.capacitor_min_f is None:
+            raise ModelInputError("give the coil (inductance or winding) or the capacitor range to design one")
+        band = (aerial.f[0], aerial.f[-1])
+        coil = _resolve_coil(parts, _design_inductance(band, aerial, parts, []))
+    else:
+        coil = _resolve_coil(parts)
+    cfg = _config(parts)
+    tap = float(parts.detector_tap_fraction)
+    load = float(parts.earphone_ohm)
+
+    fs = np.array([float(s.frequency_hz) for s in stations])
+    for s in stations:
+        for name in ("frequency_hz", "power_w", "distance_m", "soil_relative_permittivity"):
+            v = float(getattr(s, name))
+            if not (np.isfinite(v) and v > 0):
+                raise ModelInputError(f"station '{s.name}': {name} must be positive, got {v!r}")
+    gw = gw_mod.groundwave_field(np.array([s.power_w for s in stations]), np.array([s.distance_m for s in stations]),
+                                 fs, np.array([s.soil_relative_permittivity for s in stations]),
+                                 np.array([s.soil_conductivity_s_per_m for s in stations]))
+    he = aerial.effective_height(fs)
+    r_a, _ = aerial.impedance(fs)
+    rr = aerial.radiation_resistance(fs)
+    v_oc = gw.field * he
+    t = _coupling(fs, aerial, coil.inductance, coil.q, cfg)
+    c_need = tank_mod.capacitance_needed(fs, t.coil_admittance, t.aerial_admittance)
+    b_coil = -np.imag(t.coil_admittance)
+    g0 = np.real(t.coil_admittance) + np.maximum(np.real(t.aerial_admittance), 0.0)
+    current = v_oc * np.abs(t.current_per_volt)
+    v_top, converged, _ = _solve_tank_voltage(current, g0, tap, diode, load)
+    det = det_mod.loaded_detector(np.sqrt(2.0) * tap * v_top, diode.saturation_current_a, diode.ideality, load)
+    audio = det_mod.audio_output(np.sqrt(2.0) * tap * v_top, diode, load, modulation_depth)
+    g_det = tap**2 / det.input_resistance
+    p_det = v_top**2 * g_det
+    p_av = v_oc**2 / (4.0 * r_a)
+    ql = tank_mod.loaded_q(b_coil / np.real(t.coil_admittance), b_coil / np.maximum(np.real(t.aerial_admittance), 1e-15),
+                           b_coil / g_det)
+    bw = tank_mod.bandwidth(fs, ql)
+    fam = noise_mod.man_made_noise_figure(fs, noise_category)
+    en = noise_mod.v_per_m_from_dbuv_per_m(noise_mod.noise_field_dbuv_per_m(fam.noise_figure_db, fs, bw))
+    snr = noise_mod.db_from_voltage_ratio(gw.field / en)
+    threshold = _threshold_voltage(tap, diode, load)
+
+    results = []
+    for i, s in enumerate(stations):
+        warn = list(common)
+        if aerial.outside(fs[i]):
+            warn.append("station lies outside the aerial's frequency grid: the aerial's edge values were used")
+        if gw.beyond_flat_earth[i] if np.ndim(gw.beyond_flat_earth) else gw.beyond_flat_earth:
+            warn.append("beyond the flat-earth range: curved-earth effects not included, field likely lower")
+        if np.ravel(gw.too_close)[i]:
+            warn.append("within one wavelength of the transmitter: the ground-wave formula is not valid this close")
+        if np.ravel(fam.below_range)[i]:
+            warn.append(noise_mod.BELOW_RANGE_NOTE)
+        if not converged or not bool(np.ravel(audio.converged)[i]):
+            warn.append("the tank-voltage / detector solution did not converge fully")
+        tunable = True
+        reason_tune = ""
+        if parts.capacitor_min_f is not None and not (parts.capacitor_min_f <= c_need[i] <= parts.capacitor_max_f):
+            tunable = False
+            reason_tune = (f"the tuning capacitor cannot reach {_khz(fs[i])} (needs {_pf(c_need[i])}, range "
+                           f"{_pf(parts.capacitor_min_f)} to {_pf(parts.capacitor_max_f)})")
+        pa = float(audio.audio_power[i])
+        sn = float(snr[i])
+        if not tunable:
+            verdict, reason = "not heard", reason_tune
+        elif pa >= CLEAR_POWER_W and sn >= CLEAR_SNR_DB:
+            verdict, reason = "clearly heard", f"audio {pa:.1e} W and {sn:.0f} dB above man-made noise"
+        elif pa >= AUDIBLE_POWER_W and sn >= MARGINAL_SNR_DB:
+            why = "weak audio" if pa < CLEAR_POWER_W else "noisy"
+            verdict, reason = "marginal", f"{why}: audio {pa:.1e} W, {sn:.0f} dB above man-made noise"
+        elif pa < AUDIBLE_POWER_W:
+            verdict, reason = "not heard", (f"too little audio ({pa:.1e} W; about {AUDIBLE_POWER_W:.0e} W is assumed "
+                                            "to be just audible)")
+        else:
+            verdict, reason = "not heard", f"buried in man-made noise ({sn:.0f} dB signal-to-noise)"
+        r_ratio = threshold / v_top[i] if np.isfinite(threshold) else np.inf
+        width = float(fs[i] * np.sqrt(1.0 / r_ratio**2 - 1.0) / ql[i]) if r_ratio < 1 else 0.0
+        results.append({
+            "name": s.name,
+            "frequency_hz": _num(fs[i], "frequency_hz", warn),
+            "distance_m": _num(s.distance_m, "distance_m", warn),
+            "power_w": _num(s.power_w, "power_w", warn),
+            "field_v_per_m": _num(gw.field[i], "field_v_per_m", warn),
+            "ground_attenuation_ratio": _num(gw.attenuation[i], "ground_attenuation_ratio", warn),
+            "effective_height_m": _num(he[i], "effective_height_m", warn),
+            "open_circuit_voltage_v": _num(v_oc[i], "open_circuit_voltage_v", warn),
+            "aerial_efficiency_ratio": _num(rr[i] / r_a[i], "aerial_efficiency_ratio", warn),
+            "available_power_w": _num(p_av[i], "available_power_w", warn),
+            "capacitor_setting_f": _num(c_need[i], "capacitor_setting_f", warn),
+            "tunable": tunable,
+            "tank_voltage_v": _num(v_top[i], "tank_voltage_v", warn),
+            "detector_power_w": _num(p_det[i], "detector_power_w", warn),
+            "detector_input_resistance_ohm": _num(det.input_resistance[i], "detector_input_resistance_ohm", warn),
+            "detected_voltage_v": _num(det.detected_voltage[i], "detected_voltage_v", warn),
+            "audio_voltage_v": _num(audio.audio_voltage[i], "audio_voltage_v", warn),
+            "audio_power_w": _num(pa, "audio_power_w", warn),
+            "loaded_q": _num(ql[i], "loaded_q", warn),
+            "bandwidth_hz": _num(bw[i], "bandwidth_hz", warn),
+            "noise_field_v_per_m": _num(en[i], "noise_field_v_per_m", warn),
+            "signal_to_noise_db": _num(sn, "signal_to_noise_db", warn),
+            "verdict": verdict,
+            "reason": reason,
+            "audible_width_hz": _num(width, "audible_width_hz", warn),
+            "heard_behind": [],
+            "spills_over": [],
+            "warnings": warn,
+        })
+
+    # spill-over: station j heard while tuned to station i
+    for i in range(len(stations)):
+        if not results[i]["tunable"]:
+            continue
+        for j in range(len(stations)):
+            if i == j:
+                continue
+            h = float(tank_mod.single_tuned_response(fs[j], fs[i], ql[i]))
+            v_spill = v_top[j] * h
+            if v_spill >= threshold:
+                rel = float(noise_mod.db_from_voltage_ratio(v_spill / v_top[i]))
+                results[i]["heard_behind"].append({"name": stations[j].name, "level_relative_db": _num(rel, "level", [])})
+                results[j]["spills_over"].append(stations[i].name)
+    if parts.arrangement in tank_mod.NO_DC_PATH_ARRANGEMENTS:
+        for r in results:
+            r["warnings"].append(tank_mod.BLEED_NOTE)
+    if load < LOW_IMPEDANCE_EARPHONE_OHM:
+        for r in results:
+            r["warnings"].append(LOW_IMPEDANCE_NOTE)
+    return results
