@@ -1,0 +1,120 @@
+"""Closed-form response of whole wire sets (geometries invented for the tests)."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from aerial.errors import ModelInputError
+from aerial.models import short_aerial as sa
+from aerial.models.capacitance import electrostatic_solution
+from aerial.models.closed_form import closed_form_response
+from aerial.models.conductor import resistance_per_m
+from aerial.models.segments import Segments, polyline_segments
+
+A = 1e-3
+INV_L = polyline_segments([[0, 0, 0.02], [0, 0, 10], [20, 0, 10]], A)
+VERTICAL = polyline_segments([[0, 0, 0.02], [0, 0, 10]], A)
+KEYS = ("capacitance_f", "static_capacitance_f", "effective_height_m", "radiation_resistance_ohm",
+        "reactance_ohm", "conductor_loss_ohm")
+
+
+def test_static_limit_is_the_electrostatic_solution():
+    # [num] REFERENCES sec. 3 (independent moment solution): 181.6 pF, 8.133 m for the 10 + 20 m inverted-L.
+    r = closed_form_response(INV_L, [1e3, 10e3])
+    es = electrostatic_solution(INV_L)
+    assert r["capacitance_f"] == pytest.approx([es.capacitance_f] * 2, rel=1e-6)
+    assert r["effective_height_m"] == pytest.approx([es.effective_height_m] * 2, rel=1e-5)
+    assert r["capacitance_f"][0] == pytest.approx(181.6e-12, rel=0.01)
+    assert r["effective_height_m"][0] == pytest.approx(8.133, rel=0.01)
+    assert r["model"] == "closed form: inverted-L, top-loading angle normalised to electrostatic moment solution"
+    assert r["shape"]["kind"] == "inverted-L"
+
+
+def test_frequency_dependence_follows_top_loading_model():
+    # Consistency with the un-normalised top-loading model (REFERENCES sec. 4 [num]: X = -779.8 ohm, h_e = 8.274 m
+    # at 1 MHz); normalisation changes them by the static ratios, well under 1 % here.
+    r = closed_form_response(INV_L, [1e6])
+    line = sa.inverted_l(9.98, 20.0, A, 1e6)
+    assert r["reactance_ohm"][0] == pytest.approx(float(line.reactance_ohm), rel=0.01)
+    assert r["effective_height_m"][0] == pytest.approx(float(line.effective_height_m), rel=0.01)
+    assert r["capacitance_f"][0] > r["static_capacitance_f"][0]  # capacitance rises towards resonance
+
+
+def test_vertical_conductor_loss_short_limit_is_triangular():
+    # Triangular current: R = R' h / 3 (power balance; Balanis sec. 2.14, from memory).
+    f = 1e5
+    r = closed_form_response(VERTICAL, [f])
+    expected = float(resistance_per_m(A, f)) * 9.98 / 3
+    assert r["conductor_loss_ohm"][0] == pytest.approx(expected, rel=2e-3)
+
+
+def test_earth_lead_loss_is_added():
+    lead = Segments([[0, 0, 1], [0, 0, 1], [0, 0, 10]], [[0, 0, 0], [0, 0, 10], [20, 0, 10]], A, [True, False, False], [0, 0, 1])
+    base = polyline_segments([[0, 0, 1], [0, 0, 10], [20, 0, 10]], A)
+    with_lead = closed_form_response(lead, [0.5e6])["conductor_loss_ohm"][0]
+    without = closed_form_response(base, [0.5e6])["conductor_loss_ohm"][0]
+    assert with_lead - without == pytest.approx(float(resistance_per_m(A, 0.5e6)) * 1.0, rel=0.05)
+
+
+def test_past_resonance_returns_static_capacitance_and_warns():
+    f = np.array([0.5e6, 3e6, 30e6])
+    r = closed_form_response(INV_L, f)
+    for k in KEYS:
+        assert np.all(np.isfinite(r[k])), k
+    assert r["capacitance_f"][1] == r["static_capacitance_f"][1]
+    assert list(r["reliable"]) == [True, False, False]
+    text = " ".join(r["warnings"])
+    assert "1/8 wavelength" in text and "first resonance" in text
+
+
+def test_irregular_shape_uses_uniform_line_and_warns():
+    horiz = polyline_segments([[0, 0, 10], [30, 0, 10]], A)
+    r = closed_form_response(horiz, [1e3, 0.5e6])
+    assert r["shape"]["kind"] == "irregular"
+    assert "uniform-line equivalent" in r["model"]
+    assert any("irregular shape" in w for w in r["warnings"])
+    # [num] REFERENCES sec. 3: horizontal 30 m at 10 m, 179.1 pF
+    assert r["capacitance_f"][0] == pytest.approx(179.1e-12, rel=0.01)
+
+
+def test_z0_form_choice_is_checked():
+    with pytest.raises(ModelInputError, match="'wide' is not a valid z0_form, must be one of 'uniform-charge', 'schelkunoff'"):
+        closed_form_response(INV_L, [1e6], z0_form="wide")
+    both = [closed_form_response(INV_L, [1e6], z0_form=z)["reactance_ohm"][0] for z in sa.Z0_FORMS]
+    assert both[0] == pytest.approx(both[1], rel=0.05)  # normalisation leaves only the ratio Zv/Zt
+
+
+def test_rejects_bad_frequency():
+    with pytest.raises(ModelInputError, match="frequency"):
+        closed_form_response(INV_L, [0.0, 1e6])
+
+
+@settings(max_examples=25, deadline=None)
+@given(
+    height=st.floats(0.5, 100.0),
+    top=st.floats(1.0, 1000.0),
+    radius=st.floats(1e-4, 5e-2),
+    kind=st.sampled_from(["inverted-L", "T", "vertical", "sloper"]),
+)
+def test_no_nan_and_positive_losses_for_extreme_valid_inputs(height, top, radius, kind):
+    if height < 10 * radius:
+        return
+    if kind == "inverted-L":
+        seg = polyline_segments([[0, 0, 0.02], [0, 0, height], [top, 0, height]], radius)
+    elif kind == "T":
+        seg = Segments([[0, 0, 0.02], [0, 0, height], [0, 0, height]],
+                       [[0, 0, height], [top / 2, 0, height], [-top / 2, 0, height]], radius, False, [0, 0, 0.02])
+    elif kind == "vertical":
+        seg = polyline_segments([[0, 0, 0.02], [0, 0, height]], radius)
+    else:
+        seg = polyline_segments([[0, 0, 0.02], [top, 0, height]], radius)
+    f = np.geomspace(1e5, 3e7, 25)
+    r = closed_form_response(seg, f)
+    for k in KEYS:
+        assert np.all(np.isfinite(r[k])), k
+    assert np.all(r["conductor_loss_ohm"] > 0)
+    assert np.all(r["radiation_resistance_ohm"] >= 0)
+    assert np.all(r["capacitance_f"] > 0)
