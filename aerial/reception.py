@@ -49,6 +49,10 @@ LOW_IMPEDANCE_EARPHONE_OHM = 600.0
 VOLTAGE_RTOL = 1e-9
 VOLTAGE_MAX_ITER = 200
 
+#: A designed coil that cannot cover the whole band is made this fraction of the largest
+#: inductance that reaches the top edge (room for whole turns and strays). [1]
+DESIGN_MARGIN = 0.93
+
 #: Largest magnitude written to a result; anything larger is clamped and flagged.
 CLAMP = 1e30
 
@@ -580,6 +584,16 @@ def _advice(band, aerial, coil: _Coil, parts: TuningParts, c_edges) -> list:
                                         cmin, cmax)[0], 0.01, 0.95)
         if r:
             adv.append(f"set the primary's coupling to k = {r[0]:.2f} ... {r[1]:.2f}")
+    if len(adv) == (not low_ok) + (not high_ok) and arr in ("direct", "series capacitor"):
+        # no single change works: look for a series capacitor together with a new coil
+        for cc in np.geomspace(1e-9, 5e-12, 24):
+            cfg_cc = _config(parts, arrangement="series capacitor", series_capacitance=cc)
+            rng_l = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg_cc, cmin, cmax)[0], 1e-6, 1e-2,
+                              points=32, refine=20)
+            if rng_l:
+                adv.append(f"use a series capacitor of about {_pf(cc)} together with a coil of "
+                           f"{_uh(np.sqrt(rng_l[0] * rng_l[1]))}")
+                break
     ratio = (f_hi / f_lo) ** 2
     if cmin > 0 and cmax / cmin < ratio * 1.05:
         adv.append(f"the band needs a capacitance ratio of at least {ratio:.2f} plus strays; this capacitor "
@@ -599,9 +613,9 @@ def _design_inductance(band, aerial, parts, notes) -> float:
                      "for equal margin at both ends")
         return L
     top = _ok_range(lambda Lx: _needed(np.array([f_hi]), aerial, Lx, q, cfg)[0] >= cmin, 1e-6, 1e-2)
-    L = top[1] if top else 1e-6
+    L = top[1] * DESIGN_MARGIN if top else 1e-6
     notes.append(f"no single coil covers the band with this capacitor and coupling; chose {_uh(L)}, "
-                 f"the largest that still reaches {_khz(f_hi)}")
+                 f"{(1 - DESIGN_MARGIN) * 100:.0f} % below the largest that still reaches {_khz(f_hi)}")
     return L
 
 
@@ -798,7 +812,8 @@ def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningPa
     dict
         ``capacitor_setting_f`` and ``frequency_hz`` (the settings that tune
         inside the aerial grid), ``reachable_low_hz``/``reachable_high_hz``
-        (None when nothing tunes in the grid), ``warnings``.
+        (the part of the aerial grid the capacitor can reach; None when
+        nothing tunes in the grid), ``warnings``.
 
     Notes
     -----
@@ -837,14 +852,17 @@ def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningPa
         fr = fine[i] * (fine[i + 1] / fine[i]) ** t
         out_c.append(float(cs))
         out_f.append(float(fr))
+    inside = fine[(c_need >= parts.capacitor_min_f) & (c_need <= parts.capacitor_max_f)]
     warnings = []
+    if inside.size and (inside[0] <= fine[0] or inside[-1] >= fine[-1]):
+        warnings.append("the tuning range reaches the edge of the aerial's frequency grid and may extend beyond it")
     if len(out_c) < len(settings):
         warnings.append(f"{len(settings) - len(out_c)} capacitor settings tune outside the aerial's frequency grid")
     return {
         "capacitor_setting_f": out_c,
         "frequency_hz": out_f,
-        "reachable_low_hz": min(out_f) if out_f else None,
-        "reachable_high_hz": max(out_f) if out_f else None,
+        "reachable_low_hz": float(inside[0]) if inside.size else None,
+        "reachable_high_hz": float(inside[-1]) if inside.size else None,
         "warnings": warnings + notes,
     }
 
@@ -876,12 +894,18 @@ def _audio_power(v_rms, tap, diode, load):
     return det_mod.audio_output(np.sqrt(2.0) * tap * np.asarray(v_rms, dtype=float), diode, load).audio_power
 
 
-def _threshold_voltage(tap, diode, load, power=AUDIBLE_POWER_W):
-    """RMS tank voltage at which the audio reaches ``power`` (bisection in log V)."""
-    lo, hi = 1e-9, 1e3
-    if _audio_power(hi, tap, diode, load) < power:
+def _threshold_voltage(tap, diode, load, power=AUDIBLE_POWER_W, refine=40):
+    """RMS tank voltage at which the audio reaches ``power`` (log grid, then bisection in log V)."""
+    grid = np.geomspace(1e-9, 1e3, 241)
+    p = _audio_power(grid, tap, diode, load)
+    above = np.flatnonzero(p >= power)
+    if above.size == 0:
         return np.inf
-    for _ in range(100):
+    i = above[0]
+    if i == 0:
+        return grid[0]
+    lo, hi = grid[i - 1], grid[i]
+    for _ in range(refine):
         mid = np.sqrt(lo * hi)
         if _audio_power(mid, tap, diode, load) >= power:
             hi = mid
