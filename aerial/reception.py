@@ -841,17 +841,21 @@ def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningPa
     fine = np.geomspace(aerial.f[0], aerial.f[-1], 600) if aerial.f.size > 1 else aerial.f.copy()
     c_need = _needed(fine, aerial, coil.inductance, coil.q, _config(parts))
     settings = np.linspace(parts.capacitor_min_f, parts.capacitor_max_f, int(points))
-    out_c, out_f = [], []
-    for cs in settings:
+    def crossing(cs):
         diff = c_need - cs
         idx = np.flatnonzero(np.sign(diff[:-1]) != np.sign(diff[1:]))
         if idx.size == 0:
-            continue
+            return None
         i = idx[0]
         t = diff[i] / (diff[i] - diff[i + 1])
-        fr = fine[i] * (fine[i + 1] / fine[i]) ** t
-        out_c.append(float(cs))
-        out_f.append(float(fr))
+        return float(fine[i] * (fine[i + 1] / fine[i]) ** t)
+
+    out_c, out_f = [], []
+    for cs in settings:
+        fr = crossing(cs)
+        if fr is not None:
+            out_c.append(float(cs))
+            out_f.append(fr)
     inside = fine[(c_need >= parts.capacitor_min_f) & (c_need <= parts.capacitor_max_f)]
     warnings = []
     if inside.size and (inside[0] <= fine[0] or inside[-1] >= fine[-1]):
@@ -861,8 +865,8 @@ def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningPa
     return {
         "capacitor_setting_f": out_c,
         "frequency_hz": out_f,
-        "reachable_low_hz": float(inside[0]) if inside.size else None,
-        "reachable_high_hz": float(inside[-1]) if inside.size else None,
+        "reachable_low_hz": (crossing(parts.capacitor_max_f) or float(inside[0])) if inside.size else None,
+        "reachable_high_hz": (crossing(parts.capacitor_min_f) or float(inside[-1])) if inside.size else None,
         "warnings": warnings + notes,
     }
 
