@@ -205,7 +205,10 @@ def classify(segments: Segments) -> AerialShape:
     if reach_edges >= len(seen):
         irregular_reasons.append("the wires form a closed loop")
 
-    seg_dz = lambda k, frm: node_xyz[node_b[k] if node_a[k] == frm else node_a[k], 2] - node_xyz[frm, 2]  # noqa: E731
+    def seg_dz(k, frm):
+        """Height gained along aerial segment k when entered from node ``frm``."""
+        to = node_b[k] if node_a[k] == frm else node_a[k]
+        return node_xyz[to, 2] - node_xyz[frm, 2]
 
     def steep(k):
         return abs(segments.end[aer[k], 2] - segments.start[aer[k], 2]) >= STEEP_FRACTION * lengths[aer[k]]

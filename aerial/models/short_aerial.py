@@ -475,9 +475,10 @@ def top_loaded(height, top_lengths, radius, frequency, *, top_radius=None, top_h
     height : array_like
         Length of the vertical down-lead from the feed (top-wire height above
         the ground when fed at ground level). [m]
-    top_lengths : sequence of array_like
+    top_lengths : list or tuple of array_like
         Length of each top arm, measured from the junction; each entry
-        broadcasts with the other arguments. [m]
+        broadcasts with the other arguments (a bare scalar or array is one
+        arm). [m]
     radius : array_like
         Radius of the vertical wire. [m]
     frequency : array_like
@@ -531,8 +532,8 @@ def top_loaded(height, top_lengths, radius, frequency, *, top_radius=None, top_h
     h = _positive("height", height)
     a = _positive("radius", radius)
     k = wavenumber(frequency)
-    if isinstance(top_lengths, np.ndarray) and top_lengths.ndim == 0:
-        top_lengths = [top_lengths]
+    if not isinstance(top_lengths, (list, tuple)):
+        top_lengths = [top_lengths]  # one arm given as a scalar or an array
     arms = [_positive("top_lengths", t) for t in top_lengths]
     if not arms:
         raise ModelInputError("top_lengths must hold at least one arm length (use monopole functions for none)")
