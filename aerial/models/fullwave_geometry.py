@@ -1,0 +1,421 @@
+"""Wire topology for the full-wave solver: sub-segments, nodes and triangle basis functions.
+
+Frame: metres, x east, y north, z up; the ground is the plane z = 0.
+
+Every :class:`~aerial.models.segments.Segments` segment is cut into straight
+sub-segments ("pieces"). Pieces whose end points coincide meet at a node. A
+triangle (rooftop) basis function lives at a node and spans two pieces: it
+rises linearly from zero at the far end of the first piece to one at the node
+and falls to zero across the second, so the current is continuous through the
+node. A node where k >= 3 pieces meet carries k - 1 such functions, all sharing
+one reference piece, so Kirchhoff's current law holds at the junction. A node
+on the ground plane carries one half-triangle per piece: its other half is the
+image in the ground, supplied by the image terms of the kernel. Free wire ends
+carry no basis function (zero current there).
+
+The receiver's feed is a delta-gap source:
+
+* no earth lead: a short vertical connector from the ground plane up to the
+  feed (the aerial's lowest point, ``FEED_GAP_M`` above ground) is added, and
+  the gap is at its ground end (the basis function that straddles the wire and
+  its image);
+* with an earth lead: the gap sits at ``feed`` between the earth-lead side and
+  the aerial side; the earth lead's lower end meets the ground plane through
+  the lumped electrode resistance.
+
+References
+----------
+.. [1] S. M. Rao, D. R. Wilton and A. W. Glisson, "Electromagnetic scattering
+   by surfaces of arbitrary shape", IEEE Trans. Antennas Propag. 30(3),
+   409-418, 1982 (triangle basis functions; here their one-dimensional wire
+   form).
+.. [2] R. F. Harrington, *Field Computation by Moment Methods*, Macmillan,
+   1968, ch. 4 (wire antennas, junctions, delta-gap source).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.sparse as sp
+
+from aerial.errors import ModelInputError
+from aerial.models.segments import Segments
+
+#: Highest feed point accepted without an earth lead: the connector from the
+#: ground to the feed is modelled as part of the aerial. [m]
+MAX_BASE_GAP_M = 0.1
+
+#: Fewest pieces each user wire is cut into, whatever the frequency. [1]
+DEFAULT_MIN_PIECES_PER_WIRE = 12
+
+#: Shortest piece in wire radii: below this the reduced thin-wire kernel is
+#: inaccurate, so pieces are not cut shorter and a warning is given. [1]
+MIN_LENGTH_TO_RADIUS = 8.0
+
+#: Pieces shorter than this many radii make the thin-wire model meaningless:
+#: refused. [1]
+HARD_MIN_LENGTH_TO_RADIUS = 1.0
+
+# Relative tolerance (of the structure's size) for deciding that two end
+# points are the same node, and absolute floor. [1], [m]
+_NODE_RTOL = 1e-7
+_NODE_ATOL = 1e-9
+
+
+@dataclass(frozen=True)
+class Topology:
+    """Pieces, basis functions and their incidence (internal to the solver).
+
+    Attributes
+    ----------
+    start, end : ndarray, shape (P, 3)
+        Piece end points. [m]
+    length : ndarray, shape (P,)
+        Piece lengths. [m]
+    tangent : ndarray, shape (P, 3)
+        Unit vectors from start to end.
+    radius, resistivity, relative_permeability : ndarray, shape (P,)
+        Wire radius [m], resistivity [ohm m], relative permeability [1].
+    grounded : ndarray of bool, shape (P,)
+        Earth-lead pieces.
+    parent : ndarray of int, shape (P,)
+        Index of the input segment each piece was cut from (-1 for the added
+        feed connector).
+    t_end : tuple of two scipy.sparse.csr_matrix, shape (P, N)
+        ``t_end[e][p, n]`` is the value (+1 or -1, the sign of the current
+        along ``tangent[p]``) of basis function n at end e (0 = start,
+        1 = end) of piece p; the current on piece p is
+        ``t_end[0] @ I * (1 - u) + t_end[1] @ I * u`` along the tangent.
+    charge : scipy.sparse.csr_matrix, shape (P, N)
+        d(current)/ds of basis n on piece p. [1/m]
+    centre : ndarray, shape (N, 3)
+        The node each basis function peaks at. [m]
+    feed_weight : ndarray, shape (N,)
+        Gap voltage seen by each basis function for a 1 V feed (+1 on the
+        function that crosses the gap, from the earth side into the aerial).
+    electrode : ndarray, shape (N,)
+        Lumped series resistance on each basis function (the earth electrode). [ohm]
+    n_connector : int
+        Number of added feed-connector pieces (0 or 1).
+    warnings : tuple of str
+        Geometry warnings (thin-wire limits, extra ground contacts).
+    """
+
+    start: np.ndarray
+    end: np.ndarray
+    length: np.ndarray
+    tangent: np.ndarray
+    radius: np.ndarray
+    resistivity: np.ndarray
+    relative_permeability: np.ndarray
+    grounded: np.ndarray
+    parent: np.ndarray
+    t_end: tuple
+    charge: sp.csr_matrix
+    centre: np.ndarray
+    feed_weight: np.ndarray
+    electrode: np.ndarray
+    n_connector: int
+    warnings: tuple
+
+    @property
+    def n_pieces(self) -> int:
+        return len(self.length)
+
+    @property
+    def n_unknowns(self) -> int:
+        return len(self.feed_weight)
+
+    @property
+    def midpoint(self) -> np.ndarray:
+        return 0.5 * (self.start + self.end)
+
+
+def check_segments(segments: Segments) -> None:
+    """Reject a wire set the solver cannot use (raises ModelInputError)."""
+    if not isinstance(segments, Segments):
+        raise ModelInputError(f"segments must be an aerial.models.segments.Segments, got {type(segments).__name__}")
+    if len(segments) == 0:
+        raise ModelInputError("segments is empty: give at least one wire segment")
+    for name in ("start", "end", "radius", "resistivity", "relative_permeability", "feed"):
+        if not np.all(np.isfinite(getattr(segments, name))):
+            raise ModelInputError(f"segments.{name} has a non-finite value")
+    if np.any(segments.radius <= 0):
+        raise ModelInputError("segments.radius must be positive")
+    if np.any(segments.resistivity < 0) or np.any(segments.relative_permeability <= 0):
+        raise ModelInputError(
+            "segments.resistivity must be >= 0 (0 = perfect conductor) and segments.relative_permeability positive"
+        )
+    if not np.isfinite(segments.electrode_ohm) or segments.electrode_ohm < 0:
+        raise ModelInputError(f"segments.electrode_ohm must be >= 0, got {segments.electrode_ohm!r}")
+    length = segments.length
+    if np.any(length <= 0):
+        raise ModelInputError("segments has a zero-length segment")
+    if np.any(length < HARD_MIN_LENGTH_TO_RADIUS * segments.radius):
+        raise ModelInputError(
+            f"a segment is shorter than {HARD_MIN_LENGTH_TO_RADIUS:g} wire radius: the thin-wire model does not apply"
+        )
+    zmin = min(segments.start[:, 2].min(), segments.end[:, 2].min())
+    if zmin < -_NODE_ATOL:
+        raise ModelInputError(f"a segment goes below the ground plane (z = {zmin:g} m); every z must be >= 0")
+    if segments.feed[2] < -_NODE_ATOL:
+        raise ModelInputError("segments.feed is below the ground plane")
+
+
+def piece_counts(
+    segments: Segments,
+    max_piece_length: float,
+    min_pieces_per_wire: int = DEFAULT_MIN_PIECES_PER_WIRE,
+    refine: int = 1,
+) -> np.ndarray:
+    """Number of pieces each segment is cut into.
+
+    Parameters
+    ----------
+    segments : Segments
+        The wires.
+    max_piece_length : float
+        Longest piece allowed (a fraction of the shortest wavelength). [m]
+    min_pieces_per_wire : int
+        Fewest pieces for each user wire (``wire_index``), shared between its
+        segments in proportion to length. [1]
+    refine : int
+        Multiply every count by this (2 for the convergence check). [1]
+
+    Returns
+    -------
+    ndarray of int, shape (N,)
+        Pieces per segment, at least 1, never making pieces shorter than
+        ``MIN_LENGTH_TO_RADIUS`` radii unless the segment itself is.
+    """
+    length = segments.length
+    wire_len = np.zeros(segments.wire_index.max() + 1)
+    np.add.at(wire_len, segments.wire_index, length)
+    per_wire = wire_len[segments.wire_index] / max(int(min_pieces_per_wire), 1)
+    target = np.minimum(per_wire, max_piece_length)
+    n = np.ceil(length / target * (1.0 - 1e-12)).astype(int) * int(refine)
+    shortest = MIN_LENGTH_TO_RADIUS * segments.radius
+    n_cap = np.maximum(np.floor(length / shortest).astype(int), 1)
+    return np.maximum(np.minimum(n, n_cap), 1)
+
+
+def build_topology(segments: Segments, counts: np.ndarray) -> Topology:
+    """Cut the segments into pieces and lay the triangle basis functions.
+
+    Parameters
+    ----------
+    segments : Segments
+        Checked wire set (see :func:`check_segments`).
+    counts : ndarray of int, shape (N,)
+        Pieces per segment (:func:`piece_counts`).
+
+    Returns
+    -------
+    Topology
+    """
+    warnings: list[str] = []
+    seg = segments
+    extent = max(np.ptp(np.vstack([seg.start, seg.end]), axis=0).max(), seg.length.max())
+    tol = max(_NODE_ATOL, _NODE_RTOL * extent)
+    feed = seg.feed.copy()
+    has_lead = bool(np.any(seg.grounded))
+
+    s0, s1 = seg.start.copy(), seg.end.copy()
+    rad, rho, mur = seg.radius.copy(), seg.resistivity.copy(), seg.relative_permeability.copy()
+    gnd = seg.grounded.copy()
+    par = np.arange(len(seg))
+    counts = np.asarray(counts, dtype=int).copy()
+
+    d_feed = np.minimum(np.linalg.norm(s0 - feed, axis=1), np.linalg.norm(s1 - feed, axis=1))
+    at_feed = d_feed <= tol
+    if not np.any(at_feed):
+        raise ModelInputError(
+            f"segments.feed {tuple(float(v) for v in feed)} is not the end point of any segment: "
+            "put the feed where the aerial meets the earth side"
+        )
+    n_connector = 0
+    if not has_lead:
+        if feed[2] > MAX_BASE_GAP_M:
+            raise ModelInputError(
+                f"with no earth lead the feed must be the aerial's lowest point, within {MAX_BASE_GAP_M:g} m "
+                f"of the ground; it is at z = {feed[2]:g} m: add earth-lead segments (grounded = True) "
+                "from the feed to the ground"
+            )
+        if feed[2] > tol:
+            # the feed connector: from the ground plane up to the aerial's lowest point
+            k = int(np.flatnonzero(at_feed)[0])
+            s0 = np.vstack([[feed[0], feed[1], 0.0], s0])
+            s1 = np.vstack([feed, s1])
+            rad = np.concatenate([[rad[k]], rad])
+            rho = np.concatenate([[rho[k]], rho])
+            mur = np.concatenate([[mur[k]], mur])
+            gnd = np.concatenate([[False], gnd])
+            par = np.concatenate([[-1], par])
+            counts = np.concatenate([[1], counts])
+            n_connector = 1
+            if feed[2] < MIN_LENGTH_TO_RADIUS * rad[0]:
+                warnings.append(
+                    f"the feed gap ({feed[2] * 1e3:.3g} mm) is shorter than {MIN_LENGTH_TO_RADIUS:g} wire radii: "
+                    "the thin-wire kernel is rough there"
+                )
+        feed = np.array([feed[0], feed[1], 0.0])
+    else:
+        if not np.any(at_feed & gnd) or not np.any(at_feed & ~gnd):
+            raise ModelInputError(
+                "the feed must join the aerial (grounded = False) and the earth lead (grounded = True): "
+                "both must have a segment ending at segments.feed"
+            )
+
+    # --- cut into pieces ---
+    idx = np.repeat(np.arange(len(s0)), counts)
+    first = np.concatenate([[0], np.cumsum(counts)[:-1]])
+    kk = np.arange(idx.size) - np.repeat(first, counts)
+    c = counts[idx].astype(float)
+    d = s1[idx] - s0[idx]
+    p_start = s0[idx] + (kk / c)[:, None] * d
+    p_end = s0[idx] + ((kk + 1) / c)[:, None] * d
+    # exact shared end points between consecutive pieces of one segment
+    last = kk == counts[idx] - 1
+    p_end[last] = s1[idx[last]]
+    length = np.linalg.norm(p_end - p_start, axis=1)
+    tangent = (p_end - p_start) / length[:, None]
+    P = len(length)
+    p_rad, p_rho, p_mur, p_gnd, p_par = rad[idx], rho[idx], mur[idx], gnd[idx], par[idx]
+
+    short = length < MIN_LENGTH_TO_RADIUS * p_rad
+    if np.any(short):
+        warnings.append(
+            f"{int(short.sum())} sub-segment(s) shorter than {MIN_LENGTH_TO_RADIUS:g} wire radii "
+            f"(shortest {float((length / p_rad).min()):.3g} radii): the reduced thin-wire kernel is approximate there"
+        )
+
+    # --- nodes: merge coincident piece ends ---
+    ends = np.vstack([p_start, p_end])  # row i: piece i % P, end i // P
+    key = np.round(ends / tol).astype(np.int64)
+    _, node_of, = np.unique(key, axis=0, return_inverse=True)[:2]
+    node_of = node_of.ravel()
+    # a second pass catches points that straddle a rounding boundary
+    from scipy.spatial import cKDTree
+
+    pairs = cKDTree(ends).query_pairs(tol, output_type="ndarray")
+    if len(pairs):
+        graph = sp.coo_matrix((np.ones(len(pairs)), (node_of[pairs[:, 0]], node_of[pairs[:, 1]])), shape=(ends.shape[0],) * 2)
+        _, comp = sp.csgraph.connected_components(graph, directed=False)
+        node_of = comp[node_of]
+    _, node_of = np.unique(node_of, return_inverse=True)
+    n_nodes = node_of.max() + 1
+    node_pos = np.zeros((n_nodes, 3))
+    node_pos[node_of] = ends
+    on_ground = node_pos[:, 2] <= tol
+    feed_node = int(node_of[np.argmin(np.linalg.norm(ends - feed, axis=1))])
+
+    # incidence lists: for each node, (piece, end)
+    order = np.argsort(node_of, kind="stable")
+    bounds = np.searchsorted(node_of[order], np.arange(n_nodes + 1))
+
+    rows_e: list[list[int]] = [[], []]
+    cols_e: list[list[int]] = [[], []]
+    vals_e: list[list[float]] = [[], []]
+    centre: list[np.ndarray] = []
+    feed_w: list[float] = []
+    elec: list[float] = []
+    n_basis = 0
+
+    def add_half(n, piece, end, incoming):
+        # incoming: current flows toward the node along this piece
+        toward_plus = end == 1  # node at the piece's end point: toward node = +tangent
+        sign = 1.0 if (toward_plus == incoming) else -1.0
+        rows_e[end].append(piece)
+        cols_e[end].append(n)
+        vals_e[end].append(sign)
+
+    ground_contacts = 0
+    for node in range(n_nodes):
+        members = order[bounds[node] : bounds[node + 1]]
+        pieces = members % P
+        pend = members // P
+        if on_ground[node]:
+            for piece, end in zip(pieces, pend):
+                # half-triangle from the ground into the wire; the image supplies the other half
+                add_half(n_basis, piece, end, incoming=False)
+                centre.append(node_pos[node])
+                is_feed = (not has_lead) and node == feed_node
+                feed_w.append(1.0 if is_feed else 0.0)
+                if p_gnd[piece]:
+                    elec.append(float(seg.electrode_ohm))
+                    ground_contacts += 1
+                else:
+                    elec.append(0.0)
+                    if not is_feed:
+                        warnings.append(
+                            "an aerial wire touches the ground at "
+                            f"({node_pos[node][0]:.3g}, {node_pos[node][1]:.3g}) m: modelled as a direct connection"
+                        )
+                n_basis += 1
+            continue
+        if len(pieces) < 2:
+            continue  # free end
+        if has_lead and node == feed_node:
+            lead = [(p, e) for p, e in zip(pieces, pend) if p_gnd[p]]
+            aer = [(p, e) for p, e in zip(pieces, pend) if not p_gnd[p]]
+            ref_l, ref_a = lead[0], aer[0]
+            # the gap: current from the earth side into the aerial
+            add_half(n_basis, *ref_l, incoming=True)
+            add_half(n_basis, *ref_a, incoming=False)
+            centre.append(node_pos[node])
+            feed_w.append(1.0)
+            elec.append(0.0)
+            n_basis += 1
+            for ref, others in ((ref_l, lead[1:]), (ref_a, aer[1:])):
+                for other in others:
+                    add_half(n_basis, *ref, incoming=True)
+                    add_half(n_basis, *other, incoming=False)
+                    centre.append(node_pos[node])
+                    feed_w.append(0.0)
+                    elec.append(0.0)
+                    n_basis += 1
+            continue
+        ref = (pieces[0], pend[0])
+        for other in zip(pieces[1:], pend[1:]):
+            add_half(n_basis, *ref, incoming=True)
+            add_half(n_basis, *other, incoming=False)
+            centre.append(node_pos[node])
+            feed_w.append(0.0)
+            elec.append(0.0)
+            n_basis += 1
+
+    if has_lead and ground_contacts == 0:
+        raise ModelInputError("the earth lead (grounded segments) does not reach the ground plane z = 0")
+    if ground_contacts > 1:
+        warnings.append(
+            f"the earth lead meets the ground at {ground_contacts} points; each is given the electrode resistance"
+        )
+    if n_basis == 0 or not any(feed_w):
+        raise ModelInputError("the wire set has no feed connection: check segments.feed")
+
+    t_end = tuple(
+        sp.csr_matrix((vals_e[e], (rows_e[e], cols_e[e])), shape=(P, n_basis)) for e in (0, 1)
+    )
+    # d/ds of sign * shape: shape_0 = 1 - s/L (slope -1/L), shape_1 = s/L (slope +1/L)
+    inv_len = sp.diags(1.0 / length)
+    charge = (inv_len @ (t_end[1] - t_end[0])).tocsr()
+    return Topology(
+        start=p_start,
+        end=p_end,
+        length=length,
+        tangent=tangent,
+        radius=p_rad,
+        resistivity=p_rho,
+        relative_permeability=p_mur,
+        grounded=p_gnd,
+        parent=p_par,
+        t_end=t_end,
+        charge=charge,
+        centre=np.array(centre).reshape(-1, 3),
+        feed_weight=np.array(feed_w),
+        electrode=np.array(elec),
+        n_connector=n_connector,
+        warnings=tuple(dict.fromkeys(warnings)),
+    )
