@@ -342,10 +342,11 @@ def loaded_q(unloaded_q, *external_q):
     >>> float(loaded_q(200.0, 200.0))
     100.0
     """
-    inv = 1.0 / _positive("unloaded_q", unloaded_q)
+    qu = _positive("unloaded_q", unloaded_q)
+    inv = 1.0 / qu
     for q in external_q:
         inv = inv + 1.0 / _positive("external_q", q)
-    return 1.0 / inv
+    return np.minimum(1.0 / inv, qu)  # no rounding above Q_u
 
 
 def bandwidth(frequency, q):

@@ -1,0 +1,111 @@
+"""Tests for the single-layer coil helper."""
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from aerial.errors import ModelInputError
+from aerial.models import coil
+
+# Nagaoka's coefficient for l/d = 0.5, 1, 2, 4 (Nagaoka 1909 table; values from memory,
+# confirmed by the working sheet's own evaluation [num]). Tolerance: the 4th decimal.
+NAGAOKA_TABLE = [(0.5, 0.5255), (1.0, 0.6884), (2.0, 0.8181), (4.0, 0.9016)]
+
+
+@pytest.mark.parametrize("ratio, expected", NAGAOKA_TABLE)
+def test_nagaoka_coefficient_against_table(ratio, expected):
+    assert coil.nagaoka_coefficient(ratio) == pytest.approx(expected, abs=6e-5)
+
+
+def test_nagaoka_long_and_short_limits():
+    # Independent limits (consistency): K -> 1 for a long solenoid; K ~ 2d/(3π l)... small l/d
+    # behaviour is checked only for K < 1 and increasing.
+    k = coil.nagaoka_coefficient(np.array([0.01, 0.1, 1, 10, 1000]))
+    assert np.all(np.diff(k) > 0) and k[-1] == pytest.approx(1.0, abs=1e-3)
+
+
+def test_wheeler_worked_value():
+    # Wheeler, Proc. IRE 16, 1928: L(µH) = d²n²/(18d + 40l), inches. Worked value (working sheet §10):
+    # d = l = 50 mm, 60 turns ≈ 122.2 µH; the current sheet gives 122.3 µH [num].
+    r = coil.wheeler_inductance(0.05, 0.05, 60)
+    assert float(r.inductance) == pytest.approx(122.2e-6, rel=1e-3)
+    assert bool(r.within_stated_accuracy)
+    assert float(coil.current_sheet_inductance(0.05, 0.05, 60)) == pytest.approx(122.3e-6, rel=1e-3)
+
+
+@pytest.mark.parametrize("ratio", [0.45, 0.6, 1.0, 2.0, 5.0])
+def test_wheeler_within_one_percent_of_current_sheet_above_0_4(ratio):
+    # Wheeler 1928 states about 1 % accuracy for l > 0.4 d (against the current sheet).
+    d = 0.05
+    w = coil.wheeler_inductance(d, ratio * d, 50).inductance
+    exact = coil.current_sheet_inductance(d, ratio * d, 50)
+    assert float(w) == pytest.approx(float(exact), rel=0.011)
+
+
+def test_wheeler_flags_short_coils():
+    assert not bool(coil.wheeler_inductance(0.05, 0.01, 10).within_stated_accuracy)
+
+
+def test_winding_round_trip():
+    # consistency: the turns found give back the wanted inductance
+    w = coil.winding_for_inductance(240e-6, 0.06, 0.5e-3)
+    assert w.converged
+    l_exact = coil.solenoid_inductance(0.06, 0.5e-3, w.turns)
+    assert float(l_exact) == pytest.approx(240e-6, rel=1e-8)
+    assert w.inductance_whole >= 240e-6
+    assert w.winding_length == pytest.approx(w.turns_whole * 0.5e-3)
+
+
+def test_winding_at_pitch_needs_more_turns():
+    close = coil.winding_for_inductance(200e-6, 0.05, 0.4e-3)
+    spaced = coil.winding_for_inductance(200e-6, 0.05, 0.4e-3, pitch=0.8e-3)
+    assert spaced.turns > close.turns
+
+
+def test_skin_depth_copper():
+    # working sheet §5 (IEC 60028 copper): δ = 66.09 µm at 1 MHz [num from the formula]
+    assert float(coil.skin_depth(1e6)) == pytest.approx(66.09e-6, rel=1e-3)
+
+
+def test_isolated_wire_factor_matches_exact_internal_impedance():
+    # working sheet §5: 14 AWG at 1 MHz, 53.15 mΩ/m exact, R_dc 8.286 mΩ/m [num]
+    assert float(coil.isolated_wire_ac_factor(1.628e-3, 1e6)) == pytest.approx(53.15 / 8.286, rel=2e-3)
+
+
+def test_coil_q_in_plausible_range():
+    # common practice: a close-wound air-cored MF coil of thin enamelled wire has Q of 100-300
+    L = float(coil.solenoid_inductance(0.06, 0.5e-3, 63))
+    r = coil.coil_loss(np.array([0.5e6, 1e6]), L, 0.06, 0.5e-3, 63)
+    assert np.all((r.unloaded_q > 80) & (r.unloaded_q < 400))
+    assert np.all(r.ac_factor > 1)
+
+
+def test_stranded_wire_helps_at_lf_and_stops_helping_higher():
+    # common practice: stranded (litz) wire helps at LF/MF and loses its advantage at a few MHz
+    rng = coil.stranded_advantage_range(0.06, 0.9e-3, 80, 27, 0.1e-3)
+    assert rng.better_up_to is not None and 5e5 < rng.better_up_to < 5e6
+    hi = coil.coil_loss(5e6, 2e-4, 0.06, 0.9e-3, 80, strands=27, strand_diameter=0.1e-3)
+    assert any("stranding" in w for w in hi.warnings)
+
+
+def test_short_and_spaced_coils_are_flagged():
+    r = coil.coil_loss(1e6, 1e-4, 0.1, 0.5e-3, 20, pitch=2e-3)
+    assert any("short coil" in w for w in r.warnings)
+    assert any("widely spaced" in w for w in r.warnings)
+
+
+def test_bad_inputs():
+    with pytest.raises(ModelInputError, match="must be one of 'nagaoka', 'wheeler'"):
+        coil.solenoid_inductance(0.05, 0.5e-3, 10, model="exact")
+    with pytest.raises(ModelInputError, match="turns cannot overlap"):
+        coil.solenoid_inductance(0.05, 0.5e-3, 10, pitch=0.2e-3)
+    with pytest.raises(ModelInputError, match="strand_diameter"):
+        coil.coil_loss(1e6, 1e-4, 0.05, 0.5e-3, 10, strands=7)
+
+
+@settings(max_examples=40, deadline=None)
+@given(st.floats(1e-6, 5e-3), st.floats(0.01, 0.15), st.floats(0.1e-3, 1.5e-3))
+def test_property_winding_solver(inductance, form, wire):
+    w = coil.winding_for_inductance(inductance, form, wire)
+    assert w.converged and w.turns > 0 and np.isfinite(w.winding_length)

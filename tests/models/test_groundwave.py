@@ -1,0 +1,68 @@
+"""Tests for the ground-wave field."""
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from aerial.errors import ModelInputError
+from aerial.models import groundwave as gw
+
+WET = (30.0, 1e-2)  # ITU-R P.527 wet ground (working sheet §7)
+MEDIUM_DRY = (15.0, 1e-3)  # ITU-R P.527 medium dry ground
+
+
+@pytest.mark.parametrize("p_kw, d_km", [(1, 1), (10, 50), (50, 80), (0.1, 3)])
+def test_reference_field_itu_p368(p_kw, d_km):
+    # ITU-R P.368: E0 = 300 √P_kW / d_km mV/m (cymomotive force 300 V)
+    assert float(gw.reference_field(p_kw * 1e3, d_km * 1e3)) == pytest.approx(
+        300e-3 * np.sqrt(p_kw) / d_km, rel=1e-12)
+
+
+@pytest.mark.parametrize("d_km, soil, expected", [
+    (10, WET, 0.7077), (100, WET, 0.1223), (10, MEDIUM_DRY, 0.1345),
+])
+def test_norton_attenuation_checks(d_km, soil, expected):
+    # Sommerfeld–Norton checks, 1 MHz (working sheet §8 [num from the Norton form]); 1e-3 absolute
+    f = abs(complex(gw.norton_attenuation(d_km * 1e3, 1e6, *soil)))
+    assert f == pytest.approx(expected, abs=1e-3)
+
+
+@pytest.mark.parametrize("soil, mv_per_m", [(WET, 5.26), (MEDIUM_DRY, 0.459)])
+def test_field_10kw_50km(soil, mv_per_m):
+    # working sheet §8 [num]: 10 kW at 50 km, 1 MHz
+    g = gw.groundwave_field(10e3, 50e3, 1e6, *soil)
+    assert float(g.field) * 1e3 == pytest.approx(mv_per_m, rel=3e-3)
+
+
+def test_perfect_conductor_limit():
+    # independent limit: a very good conductor gives |F| -> 1 (sea water at short range)
+    assert abs(complex(gw.norton_attenuation(1e3, 1e6, 80, 1e4))) == pytest.approx(1.0, abs=1e-3)
+
+
+def test_flat_earth_limit_and_flag():
+    # rule of thumb 80/f_MHz^(1/3) km (from memory, working sheet §8)
+    assert float(gw.flat_earth_range(8e6)) == pytest.approx(40e3)
+    g = gw.groundwave_field(1e3, np.array([50e3, 120e3]), 1e6, *WET)
+    assert list(g.beyond_flat_earth) == [False, True]
+
+
+def test_vectorised_over_distance_and_frequency():
+    d = np.array([[10e3], [100e3]])
+    f = np.array([[0.5e6, 1e6, 1.5e6]])
+    g = gw.groundwave_field(1e3, d, f, *MEDIUM_DRY)
+    assert g.field.shape == (2, 3)
+    assert np.all(g.field[1] < g.field[0])
+    assert np.all(np.diff(g.field, axis=1) < 0)  # higher frequency, more loss
+
+
+def test_bad_distance():
+    with pytest.raises(ModelInputError, match="distance"):
+        gw.groundwave_field(1e3, -1.0, 1e6, *WET)
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.floats(100, 1e6), st.floats(1e4, 3e6), st.floats(1, 80), st.floats(1e-5, 5))
+def test_property_attenuation_bounded(d, f, er, sigma):
+    a = abs(complex(gw.norton_attenuation(d, f, er, sigma)))
+    assert np.isfinite(a) and 0 < a <= 1.0 + 1e-9
