@@ -255,6 +255,19 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
     earth = sections == SECTION_EARTH_LEAD
     if np.any(earth):
         loss = loss + _section_r_per_m(segments, f, earth) * float(np.sum(segments.length[earth]))
+        low = np.minimum(segments.start[earth, 2], segments.end[earth, 2])
+        ends = np.concatenate([segments.start[earth], segments.end[earth]])
+        at_feed = int(np.sum(np.linalg.norm(ends - segments.feed, axis=1) < 1e-3))
+        if not np.any(low <= 1e-3):
+            warnings.append(
+                "the earth-lead wires do not reach the ground (e.g. a counterpoise): they are held at earth "
+                "potential in the electrostatic solution, so capacitance and effective height are approximate"
+            )
+        if at_feed > 1 or not np.any(low <= 1e-3):
+            warnings.append(
+                "the earth-lead wires branch or end in the air: their conductor loss assumes the full feed "
+                "current along every one of them, which overstates it"
+            )
 
     if np.any(too_long):
         f_limit = sa.MAX_RELIABLE_LENGTH_WAVELENGTHS * SPEED_OF_LIGHT / total

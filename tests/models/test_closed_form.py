@@ -118,3 +118,16 @@ def test_no_nan_and_positive_losses_for_extreme_valid_inputs(height, top, radius
     assert np.all(r["conductor_loss_ohm"] > 0)
     assert np.all(r["radiation_resistance_ohm"] >= 0)
     assert np.all(r["capacitance_f"] > 0)
+
+
+def test_counterpoise_earth_wires_are_flagged():
+    # Invented portable vertical with two raised counterpoise wires (grounded segments that end in the air).
+    seg = Segments(
+        [[0, 0, 0.3], [0, 0, 0.3], [0, 0, 0.3]],
+        [[0, 0, 7.0], [0, 8, 0.2], [0, -8, 0.2]],
+        A, [False, True, True], [0, 0, 0.3],
+    )
+    r = closed_form_response(seg, [1e6])
+    assert r["shape"]["kind"] == "vertical"
+    assert any("do not reach the ground" in w for w in r["warnings"])
+    assert any("overstates" in w for w in r["warnings"])
