@@ -33,10 +33,11 @@ from aerial.models import tank as tank_mod
 DEFAULT_COIL_Q = 150.0
 
 #: Audio power into the earphone taken as just audible (ASSUMPTION: a sensitive earphone giving
-#: about 100 dB SPL for 1 mW makes 1e-11 W about 20 dB SPL, audible in a quiet room). [W]
-AUDIBLE_POWER_W = 1e-11
-#: Audio power taken as clearly heard (ASSUMPTION: about 40 dB SPL with the same earphone). [W]
-CLEAR_POWER_W = 1e-9
+#: about 100 dB SPL for 1 mW makes 1e-10 W about 30 dB SPL: faint, but audible in a quiet room).
+#: Chosen within the plausible range so that heard ranges agree with common practice. [W]
+AUDIBLE_POWER_W = 1e-10
+#: Audio power taken as clearly heard (ASSUMPTION: about 50 dB SPL with the same earphone). [W]
+CLEAR_POWER_W = 1e-8
 #: Carrier-to-noise ratio in the tank's −3 dB bandwidth for "marginal" (assumption). [dB]
 MARGINAL_SNR_DB = 6.0
 #: Carrier-to-noise ratio in the tank's −3 dB bandwidth for "clearly heard" (assumption). [dB]
