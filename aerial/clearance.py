@@ -1,0 +1,341 @@
+"""Power-line fall zones and crossings: the hard safety rule of every layout.
+
+The rule (public safety guidance for antennas near power lines, US Consumer
+Product Safety Commission safety alerts, from memory): keep every part of the
+aerial -- each wire, each support and the lead-in -- a horizontal distance of
+at least 1.5 times the height of the antenna or its support, whichever is
+taller, from any power line, so that nothing can reach the line if it falls.
+aerial adds two things of its own: the distance is never less than the power
+line's own height (a line conductor can fall too), and no wire may cross over
+or under a power line in plan, whatever the heights.
+
+A line whose kind cannot be told is a power line. Telephone/cable lines are
+not refused on distance, but a wire crossing one in plan is flagged (they
+often share poles with power conductors).
+
+Frame: metres, x east, y north (plan view). Every buffer passes ``quad_segs``
+explicitly; the fall-zone polygon is drawn *around* the true zone (its radius
+is enlarged by 1/cos(pi/(4 quad_segs))), so a point within the required
+distance is always inside the polygon: the polygon errs on the safe side by
+at most 0.2 % with the default 16 segments per quarter circle.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+import shapely
+from shapely.geometry import LineString, Point
+
+from aerial.errors import ModelInputError, SafetyRefusal
+
+#: Fall-zone factor on the tallest height of the aerial and its supports
+#: (US Consumer Product Safety Commission safety alerts; from memory). [1]
+FALL_ZONE_FACTOR = 1.5
+#: Segments per quarter circle of every buffer drawn here.
+QUAD_SEGS = 16
+#: A wire within this distance of the lot boundary counts as inside (drawing tolerance). [m]
+LOT_TOLERANCE_M = 0.05
+#: Roles of the site's wires that the rule covers (the earth side lies on the ground).
+COVERED_ROLES = ("aerial", "lead-in")
+
+
+def fall_zone_distance(tallest_height, line_height):
+    """Horizontal distance every part of an aerial must keep from a power line.
+
+    Parameters
+    ----------
+    tallest_height : array_like
+        Height of the aerial or of its tallest support, whichever is taller. [m]
+    line_height : array_like
+        Height of the power line's conductors. [m]
+
+    Returns
+    -------
+    ndarray
+        d = max(1.5 h, h_line). [m]
+
+    Notes
+    -----
+    1.5 h is the public-safety fall zone for antennas near power lines; the
+    line's own height is added as a floor because a broken conductor can fall
+    the other way.
+
+    References
+    ----------
+    US Consumer Product Safety Commission, safety alerts on antennas and power
+    lines (from memory).
+
+    Examples
+    --------
+    >>> float(fall_zone_distance(12.0, 7.5))
+    18.0
+    >>> float(fall_zone_distance(3.0, 7.5))
+    7.5
+    """
+    h = np.asarray(tallest_height, dtype=float)
+    hl = np.asarray(line_height, dtype=float)
+    if np.any(~np.isfinite(h) | (h < 0)) or np.any(~np.isfinite(hl) | (hl <= 0)):
+        raise ModelInputError("heights must be finite; the aerial's zero or more, the line's above zero")
+    return np.maximum(FALL_ZONE_FACTOR * h, hl)
+
+
+def fall_zone(path: LineString, distance: float, quad_segs: int = QUAD_SEGS):
+    """The fall zone around a line in plan: a polygon containing every point within ``distance``.
+
+    Parameters
+    ----------
+    path : LineString
+        The line's course in plan. [m]
+    distance : float
+        Required horizontal distance. [m]
+    quad_segs : int
+        Segments per quarter circle of the round ends and corners.
+
+    Returns
+    -------
+    Polygon
+        The buffer, with its radius enlarged by 1/cos(pi/(4 quad_segs)) so
+        that the polygonal arcs lie outside the true circle.
+    """
+    if quad_segs < 1:
+        raise ModelInputError(f"quad_segs must be 1 or more; got {quad_segs!r}")
+    return shapely.buffer(path, distance / math.cos(math.pi / (4 * quad_segs)), quad_segs=quad_segs)
+
+
+# --------------------------------------------------------------------------- findings
+
+
+@dataclass(frozen=True)
+class Finding:
+    """One breach of the rule: which part, which line, distance found and needed. [m]"""
+
+    part: str
+    part_kind: str  # "wire", "lead-in", "support"
+    line: str
+    line_kind: str
+    line_height_m: float
+    distance_m: float
+    required_m: float
+    crosses: bool
+    tallest_m: float
+    tallest_what: str
+
+    def sentence(self) -> str:
+        what = {"wire": "the wire", "lead-in": "the lead-in", "support": "the support"}[self.part_kind]
+        rule = (f"at least {self.required_m:.1f} m is needed: 1.5 × {self.tallest_m:.1f} m ({self.tallest_what}, the "
+                f"tallest point of the aerial and its supports), and never less than the line's height "
+                f"({self.line_height_m:.1f} m)")
+        if self.crosses:
+            return (f'{what} "{self.part}" crosses the {self.line_kind} line "{self.line}" in plan (passing over or '
+                    f"under it); a wire must never cross a power line, and {rule}. Re-route it so every part stays "
+                    f"at least {self.required_m:.1f} m away.")
+        more = max(self.required_m - self.distance_m, 0.0)
+        return (f'{what} "{self.part}" is {self.distance_m:.1f} m (in plan) from the {self.line_kind} line '
+                f'"{self.line}"; {rule}. Move it at least {more:.1f} m further from the line, or use lower supports '
+                f"(for a tallest point of h the distance needed is 1.5 h).")
+
+
+@dataclass
+class ClearanceReport:
+    """The outcome of checking a site's own wires: breaches (refusals) and warnings."""
+
+    findings: list = field(default_factory=list)
+    warnings: list = field(default_factory=list)
+    tallest_m: float = 0.0
+
+    @property
+    def refused(self) -> bool:
+        return bool(self.findings)
+
+    def message(self) -> str:
+        parts = [f.sentence() for f in self.findings]
+        return ("this layout puts part of the aerial inside a power line's fall zone, where a falling wire or "
+                "support could reach the line: " + " ".join(parts) +
+                " aerial will not analyse it. See docs/site-planner.md (safety rule).")
+
+
+def _plan_geometry(points_m: np.ndarray):
+    xy = np.asarray(points_m, dtype=float)[:, :2]
+    if np.ptp(xy, axis=0).max() <= 1e-9:
+        return Point(xy[0])
+    return LineString(xy)
+
+
+def site_parts(site) -> tuple[list, float, str]:
+    """The parts of a site's aerial the rule covers, and its tallest point.
+
+    Returns
+    -------
+    parts : list of (name, kind, geometry)
+        Wires (aerial and lead-in) and the supports they hang from, in plan.
+    tallest_m : float
+        Height of the tallest point of the aerial or its supports. [m]
+    tallest_what : str
+        What that tallest point is.
+    """
+    parts = []
+    tallest, what = 0.0, "the aerial"
+    used = set()
+    for w in site.wires:
+        if w.role not in COVERED_ROLES:
+            continue
+        kind = "lead-in" if w.role == "lead-in" else "wire"
+        parts.append((w.name, kind, _plan_geometry(w.points_m)))
+        z = float(np.max(w.points_m[:, 2]))
+        if z > tallest:
+            tallest, what = z, f'wire "{w.name}"'
+        used.update(m for m in w.support_at_point if m)
+    for name in sorted(used):
+        s = site.supports.get(name)
+        if s is None:
+            continue
+        parts.append((name, "support", Point(s.x_m, s.y_m)))
+        if s.height_m >= tallest:
+            tallest, what = s.height_m, f'support "{name}"'
+    return parts, tallest, what
+
+
+def check_parts(parts, tallest_m: float, tallest_what: str, lines) -> list:
+    """Every breach of the rule by the given parts.
+
+    Parameters
+    ----------
+    parts : list of (name, kind, geometry)
+        Plan geometries of wires, lead-in and supports. [m]
+    tallest_m : float
+        Tallest point of the aerial or its supports. [m]
+    tallest_what : str
+        Its description, for the message.
+    lines : list of OverheadLine
+        Only power lines are checked.
+
+    Returns
+    -------
+    list of Finding
+    """
+    out = []
+    for line in lines:
+        if not line.is_power:
+            continue
+        need = float(fall_zone_distance(tallest_m, line.height_m))
+        zone = fall_zone(line.path, need)
+        for name, kind, geom in parts:
+            if geom.intersects(zone):
+                out.append(Finding(name, kind, line.name, line.kind, line.height_m, float(geom.distance(line.path)),
+                                   need, bool(geom.intersects(line.path)), tallest_m, tallest_what))
+    return out
+
+
+def check_site_clearance(site, plan=None) -> ClearanceReport:
+    """Check the site's own wires, lead-in and supports against its overhead lines and lot.
+
+    Returns a report; nothing is raised here (see :func:`enforce_site_clearance`).
+    """
+    if plan is None:
+        if not site.plan:
+            return ClearanceReport()
+        from aerial.plan import parse_plan
+
+        plan = parse_plan(site)
+    parts, tallest, what = site_parts(site)
+    report = ClearanceReport(check_parts(parts, tallest, what, plan.lines), [], tallest)
+    for line in plan.telecom_lines:
+        for name, kind, geom in parts:
+            if kind != "support" and geom.intersects(line.path):
+                report.warnings.append(
+                    f'{kind} "{name}" crosses the telephone/cable line "{line.name}" in plan: do not run an aerial '
+                    "over or under it (such lines often share poles with power conductors); re-route it.")
+    if plan.lot is not None:
+        lot = shapely.buffer(plan.lot, LOT_TOLERANCE_M, quad_segs=QUAD_SEGS)
+        for name, kind, geom in parts:
+            if not lot.covers(geom):
+                outside = geom.difference(lot)
+                size = outside.length if outside.length > 0 else float(geom.distance(plan.lot))
+                report.warnings.append(
+                    f'{kind} "{name}" runs outside the lot (about {size:.1f} m of it): you need the neighbour\'s '
+                    "consent for that part.")
+    return report
+
+
+def enforce_site_clearance(site) -> ClearanceReport:
+    """Refuse a site whose own wires, lead-in or supports break the power-line rule.
+
+    Parameters
+    ----------
+    site : Site
+        A validated site; its ``[plan]`` overhead lines are read (and the
+        ``[plan]`` table validated). Sites without power lines pass.
+
+    Returns
+    -------
+    ClearanceReport
+        With the warnings (wires outside the lot, telephone/cable crossings).
+
+    Raises
+    ------
+    SafetyRefusal
+        Naming each wire, lead-in or support inside a fall zone (or crossing a
+        power line), the line, the distance found, the distance needed and
+        what to do.
+    SiteError
+        When the ``[plan]`` table itself is invalid.
+    """
+    report = check_site_clearance(site)
+    if report.refused:
+        raise SafetyRefusal(report.message())
+    return report
+
+
+# --------------------------------------------------------------------------- many layouts at once
+
+
+def refuse_many(paths, tallest_m, lines):
+    """Apply the rule to many candidate layouts at once.
+
+    Parameters
+    ----------
+    paths : ndarray of shapely geometries
+        Each candidate's wires, lead-in and support points in plan (one
+        geometry per candidate). [m]
+    tallest_m : ndarray
+        Each candidate's tallest point of aerial or support. [m]
+    lines : list of OverheadLine
+
+    Returns
+    -------
+    refused : ndarray of bool
+        True where any part lies in a power line's fall zone.
+    margin_m : ndarray
+        Smallest (distance - required) over the power lines; +inf without
+        power lines. [m]
+    """
+    paths = np.asarray(paths, dtype=object)
+    tallest = np.asarray(tallest_m, dtype=float)
+    refused = np.zeros(len(paths), dtype=bool)
+    margin = np.full(len(paths), np.inf)
+    power = [ln for ln in lines if ln.is_power]
+    if not power or len(paths) == 0:
+        return refused, margin
+    heights, group = np.unique(tallest, return_inverse=True)
+    for line in power:
+        need = fall_zone_distance(tallest, line.height_m)
+        dist = shapely.distance(paths, line.path)
+        margin = np.minimum(margin, dist - need)
+        for g, h in enumerate(heights):
+            sel = np.flatnonzero(group == g)
+            zone = fall_zone(line.path, float(fall_zone_distance(h, line.height_m)))
+            shapely.prepare(zone)
+            refused[sel] |= shapely.intersects(zone, paths[sel])
+    return refused, margin
+
+
+def crosses_many(paths, lines) -> np.ndarray:
+    """True where a candidate's plan geometry crosses any of ``lines`` (e.g. telephone/cable)."""
+    paths = np.asarray(paths, dtype=object)
+    out = np.zeros(len(paths), dtype=bool)
+    for line in lines:
+        out |= shapely.intersects(paths, line.path)
+    return out

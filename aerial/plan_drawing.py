@@ -1,0 +1,262 @@
+"""A plan drawing of a site and its planned wire: SVG written as text, or PNG through matplotlib.
+
+The drawing shows the lot, the buildings and obstacles, the candidate supports,
+the overhead lines with the power lines' fall zones, the top-ranked wire (and
+faintly the next two), the lead-in and the entry point, a scale bar and a north
+arrow. Frame: metres, x east, y north; north is up on the page.
+
+Files are written only through :func:`aerial.files.write_atomic` (temporary
+file and rename; an existing file is replaced only with ``force``).
+"""
+
+from __future__ import annotations
+
+import io
+import math
+from pathlib import Path
+from xml.sax.saxutils import escape
+
+import numpy as np
+
+from aerial.errors import AerialError
+from aerial.files import write_atomic
+
+PICTURE_SUFFIXES = (".svg", ".png")
+#: Drawing width in pixels (SVG user units) and margin.
+WIDTH_PX = 900
+MARGIN_PX = 50
+#: Metres of surroundings drawn around the lot, buildings and supports.
+VIEW_MARGIN_M = 8.0
+
+COLOURS = {
+    "lot": "#7a7a7a", "building": "#c9b79c", "obstacle": "#e0a0a0", "zone": "#ff4d4d", "power": "#d40000",
+    "telecom": "#6a3d9a", "support": "#2f6f2f", "wire": "#0050c8", "other": "#7fa7e0", "lead": "#0050c8",
+    "entry": "#000000",
+}
+
+
+def _coords(geom) -> list:
+    return [[float(x), float(y)] for x, y in np.asarray(geom.coords)[:, :2]]
+
+
+def build_scene(site, plan, layouts, zones) -> dict:
+    """Everything the drawing shows, as plain lists of plan coordinates [m].
+
+    Parameters
+    ----------
+    site : Site
+    plan : Plan
+    layouts : list of dict
+        Ranked layouts (best first) as :func:`aerial.planner.plan_layouts` lists them.
+    zones : list of (name, Polygon, distance_m)
+        Fall zones to shade.
+    """
+    def rings(poly):
+        return [_coords(poly.exterior)] + [_coords(r) for r in poly.interiors]
+
+    zone_out = []
+    for name, poly, dist in zones:
+        parts = list(poly.geoms) if hasattr(poly, "geoms") else [poly]
+        zone_out.append({"name": name, "rings": [r for p in parts for r in rings(p)], "distance_m": float(dist)})
+    return {
+        "title": site.name,
+        "lot": _coords(plan.lot.exterior) if plan.lot is not None else None,
+        "buildings": [{"name": b.name, "outline": _coords(b.outline.exterior), "height_m": b.height_m} for b in plan.buildings],
+        "obstacles": [{"name": o.name, "outline": _coords(o.outline.exterior)} for o in plan.obstacles],
+        "supports": [{"name": s.name, "x": s.x_m, "y": s.y_m, "height_m": s.height_m, "kind": s.kind} for s in plan.supports],
+        "entry": {"x": plan.entry.x_m, "y": plan.entry.y_m, "height_m": plan.entry.height_m},
+        "lines": [{"name": ln.name, "kind": ln.kind, "path": _coords(ln.path), "height_m": ln.height_m} for ln in plan.lines],
+        "zones": zone_out,
+        "layouts": [{"rank": lay["rank"], "description": lay["description"],
+                     "top": [p[:2] for p in lay["top_points_m"]], "lead": [p[:2] for p in lay["lead_in_points_m"]]}
+                    for lay in layouts],
+    }
+
+
+def _view(scene) -> tuple[float, float, float, float]:
+    pts = []
+    if scene["lot"]:
+        pts += scene["lot"]
+    for b in scene["buildings"] + scene["obstacles"]:
+        pts += b["outline"]
+    pts += [[s["x"], s["y"]] for s in scene["supports"]]
+    pts.append([scene["entry"]["x"], scene["entry"]["y"]])
+    for lay in scene["layouts"]:
+        pts += lay["top"] + lay["lead"]
+    a = np.array(pts, float)
+    x0, y0 = a.min(axis=0) - VIEW_MARGIN_M
+    x1, y1 = a.max(axis=0) + VIEW_MARGIN_M
+    return float(x0), float(y0), float(x1), float(y1)
+
+
+def nice_length(span_m: float) -> float:
+    """A round scale-bar length (1, 2 or 5 x 10^k m) near a fifth of ``span_m``.
+
+    >>> nice_length(60.0)
+    10.0
+    """
+    target = max(span_m / 5.0, 1e-3)
+    p = 10 ** math.floor(math.log10(target))
+    for m in (1, 2, 5, 10):
+        if m * p >= target * 0.75:
+            return float(m * p)
+    return float(10 * p)
+
+
+def svg_text(scene) -> str:
+    """The plan drawing as an SVG document (text)."""
+    x0, y0, x1, y1 = _view(scene)
+    s = (WIDTH_PX - 2 * MARGIN_PX) / (x1 - x0)
+    height_px = int(round((y1 - y0) * s + 2 * MARGIN_PX + 40))
+
+    def X(x):
+        return MARGIN_PX + (x - x0) * s
+
+    def Y(y):
+        return MARGIN_PX + 30 + (y1 - y) * s
+
+    def pts(coords):
+        return " ".join(f"{X(x):.1f},{Y(y):.1f}" for x, y in coords)
+
+    def ring_path(rings):
+        return " ".join("M " + " L ".join(f"{X(x):.1f} {Y(y):.1f}" for x, y in r) + " Z" for r in rings)
+
+    out = [
+        '<?xml version="1.0" encoding="UTF-8"?>',
+        f'<svg xmlns="http://www.w3.org/2000/svg" width="{WIDTH_PX}" height="{height_px}" '
+        f'viewBox="0 0 {WIDTH_PX} {height_px}" font-family="sans-serif" font-size="12">',
+        f"<title>Plan: {escape(scene['title'])}</title>",
+        "<defs>",
+        f'<clipPath id="view"><rect x="{MARGIN_PX}" y="{MARGIN_PX + 30}" width="{(x1 - x0) * s:.1f}" '
+        f'height="{(y1 - y0) * s:.1f}"/></clipPath>',
+        '<marker id="arrow" viewBox="0 0 10 10" refX="5" refY="5" markerWidth="8" markerHeight="8" orient="auto">'
+        '<path d="M 0 0 L 10 5 L 0 10 z" fill="black"/></marker>',
+        "</defs>",
+        '<rect width="100%" height="100%" fill="white"/>',
+        f'<text x="{MARGIN_PX}" y="24" font-size="16" font-weight="bold">{escape(scene["title"])} — plan</text>',
+        '<g clip-path="url(#view)">',
+    ]
+    for z in scene["zones"]:
+        out.append(f'<path class="fall-zone" d="{ring_path(z["rings"])}" fill="{COLOURS["zone"]}" fill-opacity="0.15" '
+                   f'stroke="{COLOURS["zone"]}" stroke-dasharray="6 4" fill-rule="evenodd">'
+                   f"<title>fall zone of {escape(z['name'])}: {z['distance_m']:.1f} m</title></path>")
+    if scene["lot"]:
+        out.append(f'<polygon class="lot" points="{pts(scene["lot"])}" fill="none" stroke="{COLOURS["lot"]}" '
+                   'stroke-width="2" stroke-dasharray="10 5"><title>lot boundary</title></polygon>')
+    for b in scene["buildings"]:
+        out.append(f'<polygon class="building" points="{pts(b["outline"])}" fill="{COLOURS["building"]}" stroke="#555">'
+                   f"<title>{escape(b['name'])}, {b['height_m']:.1f} m</title></polygon>")
+    for o in scene["obstacles"]:
+        out.append(f'<polygon class="obstacle" points="{pts(o["outline"])}" fill="{COLOURS["obstacle"]}" '
+                   f'stroke="#a33" stroke-dasharray="3 3"><title>{escape(o["name"])} (do not cross)</title></polygon>')
+    for ln in scene["lines"]:
+        col = COLOURS["power"] if ln["kind"] == "power" else COLOURS["telecom"]
+        out.append(f'<polyline class="overhead-line {"power" if ln["kind"] == "power" else "telecom"}" '
+                   f'points="{pts(ln["path"])}" fill="none" stroke="{col}" stroke-width="3">'
+                   f"<title>{escape(ln['name'])} ({escape(ln['kind'])}, {ln['height_m']:.1f} m)</title></polyline>")
+    for lay in reversed(scene["layouts"]):
+        first = lay["rank"] == 1
+        col = COLOURS["wire"] if first else COLOURS["other"]
+        width = 3.5 if first else 1.5
+        out.append(f'<polyline id="wire-{lay["rank"]}" class="aerial-wire" points="{pts(lay["top"])}" fill="none" '
+                   f'stroke="{col}" stroke-width="{width}" stroke-linecap="round">'
+                   f"<title>#{lay['rank']}: {escape(lay['description'])}</title></polyline>")
+        out.append(f'<polyline id="lead-in-{lay["rank"]}" class="lead-in" points="{pts(lay["lead"])}" fill="none" '
+                   f'stroke="{col}" stroke-width="{width * 0.6:.1f}" stroke-dasharray="5 3"/>')
+    out.append("</g>")
+    for sp in scene["supports"]:
+        out.append(f'<circle class="support" cx="{X(sp["x"]):.1f}" cy="{Y(sp["y"]):.1f}" r="5" fill="{COLOURS["support"]}">'
+                   f"<title>{escape(sp['name'])} ({escape(sp['kind'])}, {sp['height_m']:.1f} m)</title></circle>")
+        out.append(f'<text x="{X(sp["x"]) + 7:.1f}" y="{Y(sp["y"]) - 6:.1f}">{escape(sp["name"])} {sp["height_m"]:.1f} m</text>')
+    e = scene["entry"]
+    out.append(f'<rect class="entry" x="{X(e["x"]) - 5:.1f}" y="{Y(e["y"]) - 5:.1f}" width="10" height="10" '
+               f'fill="{COLOURS["entry"]}"><title>lead-in entry, {e["height_m"]:.1f} m</title></rect>')
+    out.append(f'<text x="{X(e["x"]) + 7:.1f}" y="{Y(e["y"]) + 16:.1f}">entry</text>')
+    # scale bar
+    bar = nice_length(x1 - x0)
+    bx, by = MARGIN_PX, height_px - 18
+    out.append(f'<g class="scale-bar"><line x1="{bx}" y1="{by}" x2="{bx + bar * s:.1f}" y2="{by}" stroke="black" '
+               f'stroke-width="3"/><text x="{bx + bar * s + 6:.1f}" y="{by + 4}">{bar:g} m</text></g>')
+    # north arrow
+    nx, ny = WIDTH_PX - MARGIN_PX, MARGIN_PX + 70
+    out.append(f'<g class="north-arrow"><line x1="{nx}" y1="{ny}" x2="{nx}" y2="{ny - 36}" stroke="black" '
+               f'stroke-width="2" marker-end="url(#arrow)"/><text x="{nx - 4}" y="{ny + 16}" font-weight="bold">N</text></g>')
+    # legend
+    legend = [("top-ranked wire", COLOURS["wire"]), ("lead-in (dashed)", COLOURS["lead"]),
+              ("power line", COLOURS["power"]), ("fall zone", COLOURS["zone"]), ("telephone/cable", COLOURS["telecom"]),
+              ("support", COLOURS["support"])]
+    lx = WIDTH_PX - MARGIN_PX - 150
+    for n, (label, col) in enumerate(legend):
+        ly = height_px - 18 - 16 * (len(legend) - 1 - n)
+        out.append(f'<rect x="{lx}" y="{ly - 9}" width="12" height="10" fill="{col}"/>'
+                   f'<text x="{lx + 18}" y="{ly}">{escape(label)}</text>')
+    out.append("</svg>")
+    return "\n".join(out) + "\n"
+
+
+def png_bytes(scene) -> bytes:
+    """The plan drawing as PNG bytes (matplotlib, Agg backend, no global pyplot state)."""
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+    from matplotlib.patches import PathPatch, Polygon as MplPolygon
+    from matplotlib.path import Path as MplPath
+
+    x0, y0, x1, y1 = _view(scene)
+    fig = Figure(figsize=(9, 9 * (y1 - y0) / (x1 - x0) + 0.6), dpi=100)
+    FigureCanvasAgg(fig)
+    ax = fig.add_subplot(111)
+    for z in scene["zones"]:
+        verts, codes = [], []
+        for r in z["rings"]:
+            verts += r + [r[0]]
+            codes += [MplPath.MOVETO] + [MplPath.LINETO] * (len(r) - 1) + [MplPath.CLOSEPOLY]
+        ax.add_patch(PathPatch(MplPath(verts, codes), facecolor=COLOURS["zone"], alpha=0.15,
+                               edgecolor=COLOURS["zone"], linestyle="--"))
+    if scene["lot"]:
+        ax.add_patch(MplPolygon(scene["lot"], closed=True, fill=False, edgecolor=COLOURS["lot"], linestyle="--"))
+    for b in scene["buildings"]:
+        ax.add_patch(MplPolygon(b["outline"], closed=True, facecolor=COLOURS["building"], edgecolor="#555"))
+    for o in scene["obstacles"]:
+        ax.add_patch(MplPolygon(o["outline"], closed=True, facecolor=COLOURS["obstacle"], edgecolor="#a33"))
+    for ln in scene["lines"]:
+        p = np.array(ln["path"])
+        ax.plot(p[:, 0], p[:, 1], color=COLOURS["power"] if ln["kind"] == "power" else COLOURS["telecom"], lw=2.5)
+    for lay in reversed(scene["layouts"]):
+        first = lay["rank"] == 1
+        t, ld = np.array(lay["top"]), np.array(lay["lead"])
+        col = COLOURS["wire"] if first else COLOURS["other"]
+        ax.plot(t[:, 0], t[:, 1], color=col, lw=3 if first else 1.2)
+        ax.plot(ld[:, 0], ld[:, 1], color=col, lw=1.8 if first else 0.8, linestyle="--")
+    for sp in scene["supports"]:
+        ax.plot(sp["x"], sp["y"], "o", color=COLOURS["support"])
+        ax.annotate(f"{sp['name']} {sp['height_m']:.1f} m", (sp["x"], sp["y"]), xytext=(4, 4),
+                    textcoords="offset points", fontsize=8)
+    e = scene["entry"]
+    ax.plot(e["x"], e["y"], "s", color=COLOURS["entry"])
+    bar = nice_length(x1 - x0)
+    ax.plot([x0 + 1, x0 + 1 + bar], [y0 + 1, y0 + 1], color="black", lw=3)
+    ax.text(x0 + 1 + bar, y0 + 1, f" {bar:g} m", va="center")
+    ax.annotate("N", xy=(x1 - 2, y1 - 2), xytext=(x1 - 2, y1 - 8), ha="center",
+                arrowprops={"arrowstyle": "->"}, fontweight="bold")
+    ax.set_xlim(x0, x1)
+    ax.set_ylim(y0, y1)
+    ax.set_aspect("equal")
+    ax.set_xlabel("east [m]")
+    ax.set_ylabel("north [m]")
+    ax.set_title(f"{scene['title']} — plan")
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png")
+    return buf.getvalue()
+
+
+def write_plan_picture(path, scene, force: bool = False, protected=()) -> Path:
+    """Write the drawing to ``path`` (SVG or PNG by its extension) through a temporary file and a rename."""
+    suffix = Path(path).suffix.lower()
+    if suffix not in PICTURE_SUFFIXES:
+        raise AerialError(f"{path}: '{suffix or '(none)'}' is not a valid picture type, must be one of "
+                          + ", ".join(f"'{s}'" for s in PICTURE_SUFFIXES))
+    from aerial.files import check_writable
+
+    check_writable(path, force, protected)
+    data = svg_text(scene) if suffix == ".svg" else png_bytes(scene)
+    return write_atomic(path, data, force=force, protected=protected)

@@ -1,0 +1,842 @@
+"""The site planner: enumerate wire layouts among the candidate supports, refuse the unsafe ones, rank the rest.
+
+One site in, one JSON-ready dict out (:func:`plan_layouts`); the command line
+``aerial layout`` renders it. The search:
+
+1. Candidate supports are the site's ``[supports.*]`` plus ``[[plan.supports]]``
+   (and a fixing on the wall above the entry, when given). The lead-in ends at
+   the entry point (``[plan.entry]``, else the receiver).
+2. Five families of layout are enumerated as index arrays (no Python loop per
+   candidate): a single span with the lead-in from the end nearer the entry
+   (an inverted-L), a T (lead-in from mid-span), a dog-leg of two spans
+   through a third support with the lead-in from the nearer end, two spans
+   meeting at a middle support with the lead-in from there (a T with unequal
+   arms), and a sloping wire from a support down to the entry.
+3. Every candidate is checked in plan against the power-line rule
+   (:mod:`aerial.clearance`): those inside a fall zone are refused before
+   ranking and counted. Candidates crossing an obstacle or a telephone/cable
+   line, whose lead-in passes over a building, or whose span passes over a
+   roof with less than ``ROOF_CLEARANCE_M`` to spare, are excluded; spans
+   that clear a roof are kept with a penalty, as are wires leaving the lot.
+4. The survivors are scored with the closed-form short-aerial models
+   (:mod:`aerial.models.short_aerial`, :mod:`aerial.models.capacitance`,
+   :mod:`aerial.models.conductor`), vectorised as candidates x frequencies.
+
+Frame: metres, x east, y north, z up (heights above the ground).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+
+import numpy as np
+import shapely
+
+from aerial.errors import AerialError, ResourceLimit
+from aerial.materials import CONDUCTORS
+from aerial.models import capacitance as cap
+from aerial.models import conductor
+from aerial.models import short_aerial as sa
+
+#: Largest number of candidate layouts searched without ``allow_large``.
+MAX_CANDIDATES = 2_000_000
+#: Candidates scored per batch (bounds the memory of the candidates x frequencies arrays).
+CHUNK_CANDIDATES = 100_000
+#: Measured ranking speed on a 2-core machine (docs/performance-planner.md), for the time estimate. [1/s]
+CANDIDATES_PER_SECOND = 60_000
+#: Spans shorter than this are not worth hanging. [m]
+MIN_SPAN_M = 2.0
+#: A dog-leg whose legs meet at less than this angle folds back on itself. [deg]
+MIN_DOGLEG_ANGLE_DEG = 60.0
+#: A span may pass over a roof if its lower end is at least this much higher than the roof. [m]
+ROOF_CLEARANCE_M = 1.0
+#: Building outlines are shrunk by this much before the crossing test (wall fixings touch the outline). [m]
+WALL_ALLOWANCE_M = 0.5
+#: Score penalties [dB].
+PENALTY_OVER_ROOF_DB = 3.0
+PENALTY_OUTSIDE_LOT_DB = 3.0
+#: Lowest height used in the models (the wire keeps clear of the ground or slab). [m]
+MIN_MODEL_HEIGHT_M = 0.5
+#: Upper limit of ``best``.
+MAX_BEST = 100
+
+FAMILIES = ("span", "T", "dog-leg", "two spans from a middle support", "sloping wire")
+SPAN, TEE, DOGLEG, VEE, SLOPER = range(5)
+
+EXCLUSION_REASONS = (
+    "crosses an obstacle",
+    "crosses a telephone/cable line",
+    "lead-in or sloping wire passes over a building",
+    "span passes over a roof without clearance",
+    "span shorter than the minimum",
+    "dog-leg folds back on itself",
+)
+
+
+# --------------------------------------------------------------------------- counting and enumeration
+
+
+def estimate_candidates(n_supports: int) -> int:
+    """Number of candidate layouts for ``n`` supports.
+
+    Spans and T's: n(n-1)/2 each; dog-legs and two-spans-from-the-middle:
+    n(n-1)(n-2)/2 each; sloping wires: n.
+
+    Examples
+    --------
+    >>> estimate_candidates(3)
+    15
+    >>> estimate_candidates(23)
+    11155
+    """
+    n = int(n_supports)
+    if n < 1:
+        return 0
+    return n * (n - 1) + n * (n - 1) * (n - 2) + n
+
+
+def _chunks(n: int, size: int):
+    """Yield (family, i, j, k) index arrays in batches of at most about ``size`` candidates."""
+    I, J = np.triu_indices(n, 1)
+    for fam in (SPAN, TEE):
+        for s in range(0, len(I), size):
+            e = min(s + size, len(I))
+            yield np.full(e - s, fam), I[s:e], J[s:e], np.full(e - s, -1)
+    pairs = len(I)
+    if pairs and n >= 3:
+        block = max(1, size // max(pairs, 1))
+        for k0 in range(0, n, block):
+            ks = np.arange(k0, min(k0 + block, n))
+            kk = np.repeat(ks, pairs)
+            ii = np.tile(I, len(ks))
+            jj = np.tile(J, len(ks))
+            m = (ii != kk) & (jj != kk)
+            kk, ii, jj = kk[m], ii[m], jj[m]
+            for fam in (DOGLEG, VEE):
+                yield np.full(len(kk), fam), ii, jj, kk
+    s = np.arange(n)
+    yield np.full(n, SLOPER), s, s, np.full(n, -1)
+
+
+# --------------------------------------------------------------------------- scoring (pure, vectorised)
+
+
+def layout_figures(kind, junction_height, arm1, arm2, arm1_height, arm2_height, lead_in_length, entry_height,
+                   radius, frequency, resistivity, relative_permeability=1.0):
+    """Effective height, resistances and capacitance of many layouts at many frequencies.
+
+    Parameters
+    ----------
+    kind : ndarray of int, shape (N,)
+        0: a vertical with one top arm (span or dog-leg, fed from its end);
+        1: a vertical with two top arms (T, or two spans from a middle
+        support); 2: a sloping wire from a support down to the entry.
+    junction_height : ndarray, shape (N,)
+        Height where the lead-in leaves the top (kind 0, 1), or the
+        support's height (kind 2). [m]
+    arm1, arm2 : ndarray, shape (N,)
+        Top-arm lengths (arm2 = 0 for kind 0 and 2); for kind 2, ``arm1`` is
+        the sloping wire's length. [m]
+    arm1_height, arm2_height : ndarray, shape (N,)
+        Mean height of each arm (for kind 2: of the sloping wire). [m]
+    lead_in_length : ndarray, shape (N,)
+        Lead-in length from the top to the entry (0 for kind 2). [m]
+    entry_height : float
+        Height of the entry point (the earth lead below it is taken as part
+        of the vertical). [m]
+    radius : float
+        Wire radius. [m]
+    frequency : ndarray, shape (F,)
+        [Hz]
+    resistivity : float
+        Conductor resistivity. [ohm m]
+    relative_permeability : float
+        [1]
+
+    Returns
+    -------
+    dict
+        ``effective_height_m`` (N, F), ``radiation_resistance_ohm`` (N, F),
+        ``loss_resistance_ohm`` (N, F) (conductor only), ``capacitance_f``
+        (N,), ``out_of_range`` (N,) bool: outside the closed forms' range at
+        some frequency.
+
+    Notes
+    -----
+    Kinds 0 and 1 are the top-loading-angle model (``short_aerial.top_loaded``)
+    of a vertical from the ground to the junction, which stands for the
+    earth lead plus the lead-in's vertical projection (the lead-in's
+    horizontal offset adds loss, not pick-up). Kind 2 is
+    ``short_aerial.sloping_wire`` of length (wire + entry height) rising to
+    the support's height. Conductor loss referred to the feed: the vertical
+    and lead-in carry about the feed current (R' l), the top arms and the
+    sloping wire a current falling to zero (R' l / 3). Capacitance: the sum
+    of the sections' average-potential capacitances (Howe), a few per cent
+    high because the sections shield each other (REFERENCES.md sec. 3).
+
+    References
+    ----------
+    E. A. Laport, *Radio Antenna Engineering*, 1952, ch. 1 (top loading);
+    G. W. O. Howe, The Electrician, 1914 (average potential); C. A. Balanis,
+    *Antenna Theory*, 3rd ed., 2005, sec. 2.14 (loss referred to the input).
+    (all from memory)
+    """
+    kind = np.asarray(kind)
+    f = np.asarray(frequency, dtype=float)[None, :]
+    n = len(kind)
+    he = np.zeros((n, f.shape[1]))
+    rr = np.zeros_like(he)
+    rl = np.zeros_like(he)
+    c = np.zeros(n)
+    bad = np.zeros(n, dtype=bool)
+    rprime = conductor.resistance_per_m(radius, f, resistivity, relative_permeability)  # (1, F)
+    hv = np.maximum(np.asarray(junction_height, float), MIN_MODEL_HEIGHT_M)
+    a1 = np.asarray(arm1, float)
+    a2 = np.asarray(arm2, float)
+    t1 = np.maximum(np.asarray(arm1_height, float), MIN_MODEL_HEIGHT_M)
+    t2 = np.maximum(np.asarray(arm2_height, float), MIN_MODEL_HEIGHT_M)
+    lead = np.asarray(lead_in_length, float)
+    for k in (0, 1, 2):
+        sel = np.flatnonzero(kind == k)
+        if len(sel) == 0:
+            continue
+        col = (lambda v: v[sel][:, None])
+        if k == 0:
+            res = sa.top_loaded(col(hv), [col(a1)], radius, f, top_height=col(t1))
+            c[sel] = cap.vertical_wire_capacitance(hv[sel], radius) + cap.horizontal_wire_capacitance(a1[sel], t1[sel], radius)
+            rl[sel] = rprime * (col(lead) + col(a1) / 3.0)
+        elif k == 1:
+            res = sa.top_loaded(col(hv), [col(a1), col(a2)], radius, f, top_height=[col(t1), col(t2)])
+            c[sel] = (cap.vertical_wire_capacitance(hv[sel], radius) + cap.horizontal_wire_capacitance(a1[sel], t1[sel], radius)
+                      + cap.horizontal_wire_capacitance(a2[sel], t2[sel], radius))
+            rl[sel] = rprime * (col(lead) + (col(a1) + col(a2)) / 3.0)
+        else:
+            length = a1[sel] + max(float(entry_height), 0.0)
+            rise = np.minimum(hv[sel], length)
+            res = sa.sloping_wire(length[:, None], rise[:, None], radius, f)
+            c[sel] = cap.horizontal_wire_capacitance(a1[sel], t1[sel], radius)
+            rl[sel] = rprime * col(a1) / 3.0
+        he[sel] = np.abs(res.effective_height_m)
+        rr[sel] = res.radiation_resistance_ohm
+        bad[sel] = np.any(res.too_long | res.past_resonance, axis=1)
+    return {"effective_height_m": he, "radiation_resistance_ohm": rr, "loss_resistance_ohm": rl,
+            "capacitance_f": c, "out_of_range": bad}
+
+
+def station_score_db(effective_height, radiation_resistance, loss_resistance, field, earth_ohm=0.0):
+    """Mean over stations of the available power, in dB above 1 W.
+
+    Parameters
+    ----------
+    effective_height : ndarray (N, S)
+        At each station's frequency. [m]
+    radiation_resistance, loss_resistance : ndarray (N, S)
+        [ohm]
+    field : ndarray (S,)
+        RMS field strength of each station at the site. [V/m]
+    earth_ohm : float
+        Earth-system resistance in series. [ohm]
+
+    Returns
+    -------
+    ndarray (N,)
+        mean_s 10 log10[(E_s h_e)^2 / (4 (Rr + R_loss + R_earth))]. [dBW]
+
+    Notes
+    -----
+    Power available to a matched load (Balanis, *Antenna Theory*, 2005,
+    sec. 2.15, from memory); the detector sees at most this.
+    """
+    tot = np.asarray(radiation_resistance) + np.asarray(loss_resistance) + float(earth_ohm)
+    p = (np.asarray(field)[None, :] * np.asarray(effective_height)) ** 2 / (4.0 * tot)
+    return np.mean(10.0 * np.log10(np.maximum(p, 1e-300)), axis=1)
+
+
+def height_capacitance_score_db(effective_height, capacitance):
+    """Mean over band centres of 20 log10(h_e C / (1 m pF)).
+
+    Parameters
+    ----------
+    effective_height : ndarray (N, B)
+        At each band centre. [m]
+    capacitance : ndarray (N,)
+        [F]
+
+    Returns
+    -------
+    ndarray (N,)
+        [dB re 1 m pF]
+
+    Notes
+    -----
+    A short aerial is a source of voltage E h_e behind its capacitance C;
+    loosely coupled into a tuned circuit (load resistance well below 1/wC)
+    it drives a current w C E h_e, so the power delivered goes as (h_e C)^2
+    [der].
+    """
+    prod = np.asarray(effective_height) * (np.asarray(capacitance)[:, None] * 1e12)
+    return np.mean(20.0 * np.log10(np.maximum(prod, 1e-300)), axis=1)
+
+
+# --------------------------------------------------------------------------- the search
+
+
+class _Context:
+    """Everything the batch evaluator needs, built once per search."""
+
+    def __init__(self, site, plan, objective):
+        self.site = site
+        self.plan = plan
+        sup = plan.supports
+        self.names = [s.name for s in sup]
+        self.kinds = [s.kind for s in sup]
+        self.x = np.array([s.x_m for s in sup], float)
+        self.y = np.array([s.y_m for s in sup], float)
+        self.h = np.array([s.height_m for s in sup], float)
+        e = plan.entry
+        self.ex, self.ey, self.eh = float(e.x_m), float(e.y_m), float(e.height_m)
+        self.floor = 0.0
+        if plan.building == "apartment" and plan.balcony is not None and plan.balcony.conductive:
+            self.floor = plan.balcony.floor_height_m
+        self.hm = np.maximum(self.h - self.floor, MIN_MODEL_HEIGHT_M)  # model heights
+        self.ehm = max(self.eh - self.floor, 0.0)
+        self.dentry = np.hypot(self.x - self.ex, self.y - self.ey)
+        self.objective = objective
+        size = _aerial_size(site)
+        self.radius = size.radius_m
+        cond = CONDUCTORS[size.material]
+        self.resistivity = cond.resistivity_ohm_m
+        self.mu = cond.relative_permeability
+        self.size = size
+        self.obstacles = [o.outline for o in plan.obstacles]
+        for o in self.obstacles:
+            shapely.prepare(o)
+        self.buildings = []
+        for b in plan.buildings:
+            shrunk = shapely.buffer(b.outline, -WALL_ALLOWANCE_M, quad_segs=8)
+            if shrunk.is_empty:
+                continue
+            entry_inside = shrunk.contains(shapely.Point(self.ex, self.ey))
+            shapely.prepare(shrunk)
+            self.buildings.append((b, shrunk, entry_inside))
+        self.lot = None
+        if plan.lot is not None:
+            from aerial.clearance import LOT_TOLERANCE_M, QUAD_SEGS
+
+            self.lot = shapely.buffer(plan.lot, LOT_TOLERANCE_M, quad_segs=QUAD_SEGS)
+            shapely.prepare(self.lot)
+
+
+def _aerial_size(site):
+    for w in site.wires:
+        if w.role == "aerial":
+            return w.size
+    from aerial.site import WireSize
+    from aerial import units
+
+    return WireSize(units.awg_diameter(14) / 2, "copper", "14 AWG (default)")
+
+
+def _geometry(ctx: _Context, fam, i, j, k):
+    """Plan paths and model parameters of a batch."""
+    x, y, h, hm = ctx.x, ctx.y, ctx.h, ctx.hm
+    n = len(fam)
+    kk = np.where(k >= 0, k, 0)
+    near = np.where(ctx.dentry[i] <= ctx.dentry[j], i, j)
+    far = np.where(near == i, j, i)
+    E = np.array([ctx.ex, ctx.ey])
+    P = np.stack([x, y], axis=1)
+    mid = 0.5 * (P[i] + P[j])
+    Eb = np.broadcast_to(E, (n, 2))
+    top = np.empty((n, 3, 2))
+    lead = np.empty((n, 2, 2))
+    span = (fam == SPAN)
+    tee = (fam == TEE)
+    dog = (fam == DOGLEG)
+    vee = (fam == VEE)
+    slo = (fam == SLOPER)
+    # top wire in plan
+    top[:, 0] = np.where(span[:, None] | dog[:, None], P[far], P[i])
+    top[:, 1] = np.select([span[:, None], tee[:, None], dog[:, None] | vee[:, None]], [P[near], mid, P[kk]], P[i])
+    top[:, 2] = np.select([span[:, None], tee[:, None], dog[:, None]], [P[near], P[j], P[near]], P[j])
+    top[slo] = np.stack([P[i[slo]], Eb[slo], Eb[slo]], axis=1)
+    # lead-in in plan: from the junction to the entry
+    junction = np.select([span[:, None] | dog[:, None], tee[:, None], vee[:, None]], [P[near], mid, P[kk]], Eb)
+    lead[:, 0] = junction
+    lead[:, 1] = Eb
+    # heights
+    hj = np.select([span | dog, tee, vee, slo], [h[near], 0.5 * (h[i] + h[j]), h[kk], h[i]])
+    hjm = np.select([span | dog, tee, vee, slo], [hm[near], 0.5 * (hm[i] + hm[j]), hm[kk], hm[i]])
+    L = lambda a, b: np.sqrt((x[a] - x[b]) ** 2 + (y[a] - y[b]) ** 2 + (h[a] - h[b]) ** 2)  # noqa: E731
+    Lij = L(i, j)
+    Lfk, Lkn = L(far, kk), L(kk, near)
+    Lik, Ljk = L(i, kk), L(j, kk)
+    a1 = np.select([span, tee, dog, vee], [Lij, 0.5 * Lij, Lfk + Lkn, Lik], 0.0)
+    a2 = np.select([tee, vee], [0.5 * Lij, Ljk], 0.0)
+    mean = lambda a, b: 0.5 * (hm[a] + hm[b])  # noqa: E731
+    dog_h = (Lfk * mean(far, kk) + Lkn * mean(kk, near)) / np.maximum(Lfk + Lkn, 1e-9)
+    t1 = np.select([span, tee, dog, vee, slo], [mean(i, j), mean(i, j), dog_h, mean(i, kk), 0.5 * (hm[i] + ctx.ehm)])
+    t2 = np.select([tee, vee], [mean(i, j), mean(j, kk)], 0.0)
+    jx, jy = junction[:, 0], junction[:, 1]
+    lead_len = np.sqrt((jx - ctx.ex) ** 2 + (jy - ctx.ey) ** 2 + (hj - ctx.eh) ** 2)
+    slope_len = np.sqrt((x[i] - ctx.ex) ** 2 + (y[i] - ctx.ey) ** 2 + (h[i] - ctx.eh) ** 2)
+    a1 = np.where(slo, slope_len, a1)
+    lead_len = np.where(slo, 0.0, lead_len)
+    tallest = np.maximum(np.maximum(h[i], h[j]), np.where(k >= 0, h[kk], 0.0))
+    tallest = np.maximum(tallest, ctx.eh)
+    top_low = np.select([span | tee, dog | vee, slo],
+                        [np.minimum(h[i], h[j]), np.minimum(np.minimum(h[i], h[j]), h[kk]), np.minimum(h[i], ctx.eh)])
+    # shortest span and the dog-leg angle
+    shortest = np.select([span | tee, dog | vee, slo], [Lij, np.minimum(Lik, Ljk), np.inf])
+    v1 = P[i] - P[kk]
+    v2 = P[j] - P[kk]
+    cosang = np.einsum("ij,ij->i", v1, v2) / np.maximum(np.linalg.norm(v1, axis=1) * np.linalg.norm(v2, axis=1), 1e-12)
+    folds = (dog | vee) & (cosang > math.cos(math.radians(MIN_DOGLEG_ANGLE_DEG)))
+    kind = np.select([span | dog, tee | vee, slo], [0, 1, 2])
+    full = np.concatenate([top, lead], axis=1)
+    return {
+        "top_xy": top, "lead_xy": lead, "full_xy": full, "junction_height": hj, "junction_height_model": hjm,
+        "arm1": a1, "arm2": a2, "t1": t1, "t2": t2, "lead_len": lead_len, "tallest": tallest, "top_low": top_low,
+        "shortest": shortest, "folds": folds, "kind": kind, "near": near, "far": far,
+    }
+
+
+def _evaluate(ctx: _Context, fam, i, j, k, *, details=False):
+    """Check and score one batch; returns the survivors' scores and the counts."""
+    from aerial.clearance import crosses_many, refuse_many
+
+    g = _geometry(ctx, fam, i, j, k)
+    full = shapely.linestrings(g["full_xy"])
+    top = shapely.linestrings(g["top_xy"])
+    lead = shapely.linestrings(g["lead_xy"])
+    n = len(fam)
+    refused, margin = refuse_many(full, g["tallest"], ctx.plan.lines)
+    reasons = np.full(n, -1)
+
+    def mark(mask, code):
+        sel = mask & (reasons < 0) & ~refused
+        reasons[sel] = code
+
+    live = ~refused
+    obst = np.zeros(n, bool)
+    for o in ctx.obstacles:
+        obst[live] |= shapely.intersects(o, full[live])
+    mark(obst, 0)
+    mark(crosses_many(full, ctx.plan.telecom_lines) if ctx.plan.telecom_lines else np.zeros(n, bool), 1)
+    over_roof = np.zeros(n, bool)
+    low_roof = np.zeros(n, bool)
+    lead_over = np.zeros(n, bool)
+    slo = fam == SLOPER
+    roof_names = [[] for _ in range(n)] if details else None
+    for b, shrunk, entry_inside in ctx.buildings:
+        t = np.zeros(n, bool)
+        t[live] = shapely.intersects(shrunk, top[live])
+        if not entry_inside:
+            ld = np.zeros(n, bool)
+            ld[live] = shapely.intersects(shrunk, lead[live])
+            lead_over |= ld | (t & slo)
+        high = g["top_low"] >= b.height_m + ROOF_CLEARANCE_M
+        low_roof |= t & ~high & ~slo
+        over_roof |= t & high & ~slo
+        if details:
+            for idx in np.flatnonzero(t & high & ~slo):
+                roof_names[idx].append(b.name)
+    mark(lead_over, 2)
+    mark(low_roof, 3)
+    mark(g["shortest"] < MIN_SPAN_M, 4)
+    mark(g["folds"], 5)
+    keep = ~refused & (reasons < 0)
+    outside = np.zeros(n, bool)
+    if ctx.lot is not None:
+        outside[keep] = ~shapely.covers(ctx.lot, full[keep])
+    counts = {"refused_safety": int(refused.sum())}
+    for code, name in enumerate(EXCLUSION_REASONS):
+        counts[name] = int((reasons == code).sum())
+    sel = np.flatnonzero(keep)
+    figs = layout_figures(g["kind"][sel], g["junction_height_model"][sel], g["arm1"][sel], g["arm2"][sel],
+                          g["t1"][sel], g["t2"][sel], g["lead_len"][sel], ctx.ehm, ctx.radius,
+                          ctx.objective["frequency_hz"], ctx.resistivity, ctx.mu)
+    if ctx.objective["kind"] == "stations":
+        score = station_score_db(figs["effective_height_m"], figs["radiation_resistance_ohm"],
+                                 figs["loss_resistance_ohm"], ctx.objective["field_v_per_m"], ctx.objective["earth_ohm"])
+    else:
+        score = height_capacitance_score_db(figs["effective_height_m"], figs["capacitance_f"])
+    score = score - PENALTY_OVER_ROOF_DB * over_roof[sel] - PENALTY_OUTSIDE_LOT_DB * outside[sel]
+    out = {"index": sel, "score": score, "counts": counts}
+    if details:
+        out.update(geometry=g, figures=figs, margin=margin[sel], over_roof=over_roof[sel], outside=outside[sel],
+                   roof_names=[roof_names[s] for s in sel], full=full[sel])
+    return out
+
+
+def _objective(site, warnings: list) -> dict:
+    """The quantity ranked, its frequencies and fields, in words and numbers."""
+    earth_ohm, earth_note = _earth_resistance(site)
+    if site.stations:
+        from aerial.models.groundwave import groundwave_field
+
+        f = np.array([s.frequency_hz for s in site.stations])
+        e = np.array([float(groundwave_field(s.power_w, s.distance_m, s.frequency_hz, s.soil.relative_permittivity,
+                                             s.soil.conductivity_s_m).field) for s in site.stations])
+        if earth_ohm is None:
+            text = ("signal for the listed stations: the power available at the receiver, (E·h_e)²/(4(Rr + R_loss)), "
+                    "with conductor loss only (no earth-resistance model is available in this build), averaged over "
+                    "the stations in dB above 1 W; E from the ground-wave model at each station's frequency")
+            if earth_note:
+                warnings.append(earth_note)
+        else:
+            text = (f"signal for the listed stations: the power available at the receiver, (E·h_e)²/(4·R_total), "
+                    f"R_total = radiation + conductor loss + the site's earth resistance ({earth_ohm:.3g} Ω), averaged "
+                    "over the stations in dB above 1 W; E from the ground-wave model at each station's frequency")
+        return {"kind": "stations", "frequency_hz": f, "field_v_per_m": e, "earth_ohm": earth_ohm or 0.0,
+                "text": text, "unit": "dBW"}
+    f = np.array([math.sqrt(lo * hi) for _, lo, hi in site.bands])
+    text = ("no stations listed: effective height times capacitance at the centre of each band, "
+            "20·log10(h_e·C / 1 m·pF) averaged over the bands (a short aerial drives a current ωC·E·h_e into a "
+            "loosely coupled tuned circuit)")
+    return {"kind": "height-capacitance", "frequency_hz": f, "field_v_per_m": None, "earth_ohm": 0.0,
+            "text": text, "unit": "dB(m·pF)"}
+
+
+def _earth_resistance(site):
+    """The site's earth resistance from ``aerial.earth`` if that module is present. [ohm]"""
+    try:
+        import aerial.earth  # noqa: F401
+    except ImportError:
+        return None, None
+    from aerial.analysis import earth_system
+
+    try:
+        res = earth_system(site)
+        value = res.get("resistance_ohm") if isinstance(res, dict) else getattr(res, "resistance_ohm", None)
+        value = float(value)
+    except (AttributeError, KeyError, TypeError, ValueError) as err:
+        return None, f"the earth resistance could not be read ({type(err).__name__}); ranked with conductor loss only"
+    if not math.isfinite(value) or value < 0:
+        return None, "the earth resistance is not a finite number; ranked with conductor loss only"
+    return value, None
+
+
+def plan_layouts(site, best=5, full_wave=False, picture=None, force=False, allow_large=False, progress=None) -> dict:
+    """Search the site's candidate supports for the best safe wire layouts.
+
+    Parameters
+    ----------
+    site : Site
+        A validated site (its ``[plan]`` table is read here).
+    best : int
+        How many layouts to return (1 to ``MAX_BEST``).
+    full_wave : bool
+        Refine the winner with the full-wave solver when it is available.
+    picture : str or Path, optional
+        Write a plan drawing there (``.svg``, or ``.png`` through matplotlib).
+    force : bool
+        Replace an existing picture file.
+    allow_large : bool
+        Search beyond ``MAX_CANDIDATES``.
+    progress : callable, optional
+        ``progress(done, total)`` after each batch of candidates.
+
+    Returns
+    -------
+    dict
+        JSON-ready: site, objective, candidates_considered, candidates_refused
+        (safety and geometry), candidates_refused_safety, excluded (by reason),
+        layouts (best first), apartment, code_checklist, picture, full_wave,
+        warnings, cautions.
+
+    Raises
+    ------
+    ResourceLimit
+        When the candidate count exceeds ``MAX_CANDIDATES`` without ``allow_large``.
+    AerialError
+        When there is nothing to search (no candidate support) or ``best`` is out of range.
+    """
+    from aerial.clearance import check_site_clearance, fall_zone, fall_zone_distance
+    from aerial.plan import parse_plan
+    from aerial.safety import cautions_for
+
+    if isinstance(best, bool) or not isinstance(best, int) or not 1 <= best <= MAX_BEST:
+        raise AerialError(f"best = {best!r}: expected a whole number from 1 to {MAX_BEST}")
+    plan = parse_plan(site)
+    warnings: list[str] = list(plan.notes)
+    n = len(plan.supports)
+    if n == 0:
+        raise AerialError(f"{site.path}: no candidate supports: add [supports.*] or [[plan.supports]] to search")
+    total = estimate_candidates(n)
+    if total > MAX_CANDIDATES and not allow_large:
+        secs = total / CANDIDATES_PER_SECOND
+        raise ResourceLimit(
+            f"{site.path}: {n} candidate supports give {total:,} candidate layouts, above the budget of "
+            f"{MAX_CANDIDATES:,} (about {secs:,.0f} s at {CANDIDATES_PER_SECOND:,} per second); remove supports that "
+            "cannot win (low, or far from the entry) or run again with --allow-large (allow_large=True)")
+    if not plan.power_lines:
+        warnings.append("No overhead power line is listed in [plan]: the planner cannot keep clear of lines it does "
+                        "not know about. Look up and add every nearby line as [[plan.overhead_lines]].")
+    if not plan.entry.given:
+        warnings.append("No [plan.entry]: the lead-in is taken to end at the receiver's position and height.")
+    own = check_site_clearance(site, plan)
+    if own.refused:
+        warnings.append("Your present wire breaks the power-line rule (aerial report and aerial check will refuse it): "
+                        + own.message())
+    warnings += own.warnings
+    objective = _objective(site, warnings)
+    ctx = _Context(site, plan, objective)
+
+    counts = {"refused_safety": 0, **{r: 0 for r in EXCLUSION_REASONS}}
+    top_score = np.empty(0)
+    top_rec = np.empty((0, 4), dtype=np.int64)
+    done = 0
+    for fam, i, j, k in _chunks(n, CHUNK_CANDIDATES):
+        ev = _evaluate(ctx, fam, i, j, k)
+        for key, v in ev["counts"].items():
+            counts[key] += v
+        sel = ev["index"]
+        rec = np.stack([fam[sel], i[sel], j[sel], k[sel]], axis=1)
+        top_score = np.concatenate([top_score, ev["score"]])
+        top_rec = np.concatenate([top_rec, rec])
+        if len(top_score) > best:
+            part = np.argpartition(-top_score, best - 1)[:best]
+            top_score, top_rec = top_score[part], top_rec[part]
+        done += len(fam)
+        if progress is not None:
+            progress(done, total)
+    order = np.argsort(-top_score, kind="stable")
+    top_rec = top_rec[order]
+    refused_total = counts["refused_safety"] + sum(counts[r] for r in EXCLUSION_REASONS)
+
+    layouts = []
+    if len(top_rec):
+        ev = _evaluate(ctx, top_rec[:, 0], top_rec[:, 1], top_rec[:, 2], top_rec[:, 3], details=True)
+        layouts = _describe(ctx, top_rec, ev)
+    else:
+        warnings.append("No safe layout was found among the candidate supports: every candidate was refused or "
+                        "excluded (see the counts). Add supports further from the power lines or lower ones.")
+    if any(lay.get("outside_model_range") for lay in layouts):
+        warnings.append("Some layouts are long compared with the wavelength at a ranking frequency (past 1/8 wave or "
+                        "the first resonance): their closed-form figures are rough there; they are flagged.")
+
+    result = {
+        "site": {"name": site.name, "file": site.path},
+        "objective": objective["text"],
+        "score_unit": objective["unit"],
+        "ranking_frequencies_hz": [float(v) for v in objective["frequency_hz"]],
+        "candidates_considered": int(total),
+        "candidates_refused": int(refused_total),
+        "candidates_refused_safety": int(counts["refused_safety"]),
+        "excluded": {r: int(counts[r]) for r in EXCLUSION_REASONS},
+        "rules": {
+            "fall_zone": "every wire, support and the lead-in at least max(1.5 × tallest point of the aerial or its "
+                         "supports, the line's height) from any power line in plan, and no wire crossing one "
+                         "(US Consumer Product Safety Commission safety alerts, from memory; aerial's own floor)",
+            "buildings": f"lead-in or sloping wire over a building: excluded; span over a roof with its lower end less "
+                         f"than {ROOF_CLEARANCE_M:g} m above the roof: excluded; higher: kept, -{PENALTY_OVER_ROOF_DB:g} dB",
+            "obstacles": "any wire crossing an obstacle or a telephone/cable line in plan: excluded",
+            "lot": f"any wire outside the lot: kept, flagged, -{PENALTY_OUTSIDE_LOT_DB:g} dB",
+        },
+        "layouts": layouts,
+        "apartment": apartment_notes(site, plan, objective["frequency_hz"]) if plan.building == "apartment" else [],
+        "code_checklist": [],
+        "picture": None,
+        "full_wave": None,
+        "warnings": warnings,
+        "cautions": cautions_for(site) + [
+            "The planner keeps clear only of the overhead lines listed in the site file. Look up before you put up "
+            "anything, and ask the electricity supplier when a line's kind or height is in doubt.",
+        ],
+    }
+    if layouts:
+        from aerial.codes import LayoutFacts, code_checklist
+
+        win = layouts[0]
+        lead_geo = [shapely.LineString(np.array(win["lead_in_points_m"])[:, :2])] if win["lead_in_length_m"] > 0 else []
+        facts = LayoutFacts(win["open_spans_m"], 2 * ctx.radius, ctx.size.material, ctx.size.described_as,
+                            lead_geo, [ctx.kinds[ctx.names.index(s)] for s in win["supports"]],
+                            f"the top-ranked layout ({win['description']})")
+        result["code_checklist"] = code_checklist(site, plan, facts)
+        if full_wave:
+            result["full_wave"] = _refine(site, ctx, win, objective)
+            if not result["full_wave"]["available"]:
+                warnings.append(result["full_wave"]["note"])
+    if picture:
+        from aerial.plan_drawing import build_scene, write_plan_picture
+
+        zones = []
+        tallest = layouts[0]["tallest_m"] if layouts else float(np.max(ctx.h))
+        for line in plan.power_lines:
+            d = float(fall_zone_distance(tallest, line.height_m))
+            zones.append((line.name, fall_zone(line.path, d), d))
+        scene = build_scene(site, plan, layouts[:3], zones)
+        result["picture"] = str(write_plan_picture(picture, scene, force=force, protected=(site.path,)))
+    return result
+
+
+def _fmt_names(names):
+    return " – ".join(f'"{s}"' for s in names)
+
+
+def _describe(ctx: _Context, rec, ev) -> list[dict]:
+    g = ev["geometry"]
+    figs = ev["figures"]
+    out = []
+    names = ctx.names
+    lines = {ln.name: ln for ln in ctx.plan.power_lines}
+    for row, idx in enumerate(ev["index"]):
+        fam, i, j, k = (int(v) for v in rec[idx])
+        near, far = int(g["near"][idx]), int(g["far"][idx])
+        hj = float(g["junction_height"][idx])
+        if fam == SPAN:
+            sup = [names[far], names[near]]
+            desc = f"inverted-L: span {_fmt_names(sup)}, lead-in down from \"{names[near]}\""
+            spans = [float(g["arm1"][idx])]
+            top_pts = [[ctx.x[far], ctx.y[far], ctx.h[far]], [ctx.x[near], ctx.y[near], ctx.h[near]]]
+            jxyz = top_pts[-1]
+        elif fam == TEE:
+            sup = [names[i], names[j]]
+            desc = f"T: span {_fmt_names(sup)}, lead-in from mid-span"
+            spans = [float(2 * g["arm1"][idx])]
+            jxyz = [0.5 * (ctx.x[i] + ctx.x[j]), 0.5 * (ctx.y[i] + ctx.y[j]), hj]
+            top_pts = [[ctx.x[i], ctx.y[i], ctx.h[i]], jxyz, [ctx.x[j], ctx.y[j], ctx.h[j]]]
+        elif fam == DOGLEG:
+            sup = [names[far], names[k], names[near]]
+            desc = f"dog-leg: {_fmt_names(sup)}, lead-in down from \"{names[near]}\""
+            top_pts = [[ctx.x[a], ctx.y[a], ctx.h[a]] for a in (far, k, near)]
+            spans = [float(np.linalg.norm(np.subtract(top_pts[1], top_pts[0]))),
+                     float(np.linalg.norm(np.subtract(top_pts[2], top_pts[1])))]
+            jxyz = top_pts[-1]
+        elif fam == VEE:
+            sup = [names[i], names[k], names[j]]
+            desc = f"T with unequal arms: {_fmt_names(sup)}, lead-in from \"{names[k]}\""
+            top_pts = [[ctx.x[a], ctx.y[a], ctx.h[a]] for a in (i, k, j)]
+            spans = [float(g["arm1"][idx]), float(g["arm2"][idx])]
+            jxyz = top_pts[1]
+        else:
+            sup = [names[i]]
+            desc = f"sloping wire from \"{names[i]}\" down to the entry"
+            top_pts = [[ctx.x[i], ctx.y[i], ctx.h[i]], [ctx.ex, ctx.ey, ctx.eh]]
+            spans = [float(g["arm1"][idx])]
+            jxyz = top_pts[-1]
+        lead_pts = [list(map(float, jxyz)), [ctx.ex, ctx.ey, ctx.eh]]
+        lead_len = float(g["lead_len"][idx])
+        top_len = float(g["arm1"][idx] + g["arm2"][idx])
+        he = figs["effective_height_m"][row]
+        c = float(figs["capacitance_f"][row])
+        margin = float(ev["margin"][row])
+        reason = [f"h_e {he[0]:.1f} m (junction {hj:.1f} m high)" if fam != SLOPER else
+                  f"h_e {he[0]:.1f} m (top end {float(ctx.h[i]):.1f} m high)",
+                  f"{top_len:.0f} m {'top' if fam != SLOPER else 'sloping wire'}"]
+        if math.isfinite(margin):
+            closest = min(lines.values(), key=lambda ln: float(ev["full"][row].distance(ln.path))
+                          - float(max(1.5 * g["tallest"][idx], ln.height_m)))
+            reason.append(f"{margin:.1f} m outside the fall zone of \"{closest.name}\"")
+        if ev["over_roof"][row]:
+            reason.append(f"passes over the roof of {', '.join(repr(s) for s in ev['roof_names'][row])} "
+                          f"(-{PENALTY_OVER_ROOF_DB:g} dB)")
+        if ev["outside"][row]:
+            reason.append(f"part of it is outside the lot (-{PENALTY_OUTSIDE_LOT_DB:g} dB; ask the neighbour)")
+        if figs["out_of_range"][row]:
+            reason.append("long for the wavelength: figures rough")
+        item = {
+            "rank": len(out) + 1,
+            "family": FAMILIES[fam],
+            "description": desc,
+            "supports": sup,
+            "wire_length_m": top_len + lead_len,
+            "top_length_m": top_len,
+            "lead_in_length_m": lead_len,
+            "open_spans_m": spans,
+            "junction_height_m": hj,
+            "tallest_m": float(g["tallest"][idx]),
+            "effective_height_m": float(he[0]),
+            "effective_height_by_frequency_m": [float(v) for v in he],
+            "capacitance_f": c,
+            "radiation_resistance_ohm": float(figs["radiation_resistance_ohm"][row][0]),
+            "conductor_loss_ohm": float(figs["loss_resistance_ohm"][row][0]),
+            "score": float(ev["score"][row]),
+            "clearance_margin_m": margin if math.isfinite(margin) else None,
+            "over_roof": bool(ev["over_roof"][row]),
+            "outside_lot": bool(ev["outside"][row]),
+            "outside_model_range": bool(figs["out_of_range"][row]),
+            "reason": "; ".join(reason),
+            "top_points_m": [[float(v) for v in p] for p in top_pts],
+            "lead_in_points_m": lead_pts,
+        }
+        out.append(item)
+    # why the winner wins
+    if len(out) > 1:
+        d = out[0]["score"] - out[1]["score"]
+        out[0]["reason"] += f"; {d:.1f} dB ahead of #2"
+    return out
+
+
+def _refine(site, ctx: _Context, win: dict, objective: dict) -> dict:
+    """Run the full-wave solver on the winner when the solver is present; otherwise say so."""
+    try:
+        import aerial.models.fullwave  # noqa: F401
+        from aerial.analysis import aerial_response
+        import aerial.fullwave_bridge  # noqa: F401
+    except ImportError:
+        return {"available": False,
+                "note": "full-wave refinement is unavailable in this build (no full-wave solver installed); the "
+                        "ranking uses the closed forms only"}
+    from aerial.geometry import resolve
+    from aerial.site import WireRun
+
+    size = ctx.size
+    top = WireRun("planned top", "aerial", np.array(win["top_points_m"]), size, "plan", (None,) * len(win["top_points_m"]))
+    wires = [top]
+    if win["lead_in_length_m"] > 0:
+        wires.append(WireRun("planned lead-in", "lead-in", np.array(win["lead_in_points_m"]), size, "plan", (None, None)))
+    if ctx.eh > 0.05:
+        wires.append(WireRun("earth lead", "earth lead", np.array([[ctx.ex, ctx.ey, ctx.eh], [ctx.ex, ctx.ey, 0.0]]),
+                             size, "plan", (None, None)))
+    wires += [w for w in site.wires if w.role == "counterpoise"]
+    planned = replace(site, wires=wires, receiver=replace(site.receiver, x_m=ctx.ex, y_m=ctx.ey, height_m=ctx.eh))
+    earth = objective["earth_ohm"]
+    geo = resolve(planned, electrode_ohm=earth, wires=wires)
+    resp = aerial_response(planned, geo, np.asarray(objective["frequency_hz"]), earth, method="full-wave")
+    return {"available": True, "frequencies_hz": [float(v) for v in objective["frequency_hz"]],
+            "effective_height_m": [float(v) for v in np.asarray(resp["effective_height_m"])],
+            "radiation_resistance_ohm": [float(v) for v in np.asarray(resp["radiation_resistance_ohm"])],
+            "reactance_ohm": [float(v) for v in np.asarray(resp["reactance_ohm"])],
+            "note": "the winner re-solved with the full-wave wire solver"}
+
+
+# --------------------------------------------------------------------------- apartment
+
+
+def apartment_notes(site, plan, frequency) -> list[str]:
+    """What the building does to a balcony wire, the earth options and the likely noise, in words."""
+    from aerial.models.noise import man_made_noise_figure
+
+    out = []
+    b = plan.balcony
+    if b is None:
+        out.append("Structure: not described ([plan.balcony] is missing), so heights are taken above the street. "
+                   "In a reinforced-concrete or steel-framed building that is optimistic: the figure may be far lower.")
+    elif b.conductive:
+        what = "unknown, so it is treated as" if b.structure == "unknown" else f"{b.structure}:"
+        out.append(f"Structure {what} a grounded conductor close to the wire. Assumption used: heights are reckoned "
+                   f"from the balcony's floor slab ({b.floor_height_m:.1f} m above the street), not from the street, "
+                   "so a rail wire 1 m above the slab is modelled about 1 m high. This is an assumption; the real "
+                   "figure depends on the reinforcement and the wire's distance from the façade and may be far "
+                   "lower than a free wire at the same height.")
+    else:
+        out.append(f"Structure {b.structure}: not treated as a conductor; heights are taken above the street "
+                   f"(balcony floor {b.floor_height_m:.1f} m up). Wiring, pipes and metal lintels in the walls still "
+                   "shield the wire: treat the figures as optimistic.")
+    out.append("Earth options: a metal cold-water pipe, only if no plastic section (repair, meter, filter, riser) "
+               "interrupts it on the way to the ground; the building's protective earth, only at its earthing terminal "
+               "and only through a licensed electrician; a counterpoise wire along the balcony if neither is possible. "
+               "Never gas piping.")
+    f = float(np.min(frequency)) if len(frequency) else 1e6
+    cat = site.noise if site.noise in ("city", "residential") else "residential"
+    fam = man_made_noise_figure(f, cat)
+    city = man_made_noise_figure(f, "city")
+    flag = " (below the 0.3 MHz range of the curve: extended)" if bool(fam.below_range) else ""
+    out.append(f"Man-made noise: expect the \"city\" or \"residential\" category of ITU-R P.372 (median Fam "
+               f"{float(city.noise_figure_db):.1f} dB and {float(man_made_noise_figure(f, 'residential').noise_figure_db):.1f} dB "
+               f"above kT0b at {f / 1e3:.0f} kHz{flag}); the site file says \"{site.noise}\". Switch-mode supplies and "
+               "lighting in the flats nearby can be much louder.")
+    return out
