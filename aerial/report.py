@@ -7,6 +7,7 @@ import math
 import numpy as np
 from rich.panel import Panel
 from rich.table import Table
+from rich.markup import escape
 from rich.text import Text
 
 
@@ -76,8 +77,11 @@ def _summary_line(geo: dict) -> str:
     ]
     if geo.get("earth_lead_length_m"):
         parts.append(f"earth lead {geo['earth_lead_length_m']:.1f} m")
-    if geo.get("shape"):
-        parts.append(f"shape: {geo['shape']}")
+    shape = geo.get("shape")
+    if isinstance(shape, dict):
+        shape = shape.get("kind")
+    if shape:
+        parts.append(f"shape: {shape}")
     return " · ".join(parts)
 
 
@@ -97,9 +101,9 @@ def _lines(console, title, lines, style):
 
 def render_check(summary: dict, console) -> None:
     site = summary["site"]
-    console.print(f"[bold]{site['name']}[/bold]  ({site['file']})")
+    console.print(f"[bold]{escape(site['name'])}[/bold]  ({escape(site['file'])})")
     console.print(_geometry_table(summary["geometry"]))
-    console.print(_summary_line(summary["geometry"]))
+    console.print(escape(_summary_line(summary["geometry"])))
     bands = ", ".join(f"{b['name']} {eng(b['from_hz'], 'Hz')}–{eng(b['to_hz'], 'Hz')}" for b in summary["bands"])
     console.print(f"bands: {bands} ({summary['frequency_count']} frequencies) · earth: {', '.join(summary['earth']) or 'none'} · "
                   f"stations: {summary['stations']}")
@@ -111,9 +115,9 @@ def render_report(result: dict, console) -> None:
     site = result["site"]
     geo = result["geometry"]
     a = result["aerial"]
-    console.print(f"[bold]{site['name']}[/bold]  ({site['file']})")
-    console.print(_summary_line(geo))
-    console.print(f"model: {a['model']}")
+    console.print(f"[bold]{escape(site['name'])}[/bold]  ({escape(site['file'])})")
+    console.print(escape(_summary_line(geo)))
+    console.print(f"model: {escape(a['model'])}")
     console.print(_geometry_table(geo))
 
     freqs = result["frequencies_hz"]
@@ -144,7 +148,7 @@ def render_report(result: dict, console) -> None:
         conv = a["convergence"]
         console.print(f"full-wave convergence: {conv}")
     for note in ranges.get("notes", []):
-        console.print(f"[dim]{note}[/dim]")
+        console.print(f"[dim]{escape(note)}[/dim]")
 
     earth = result.get("earth", {})
     if earth:
@@ -181,34 +185,54 @@ def _render_tuning(tuning, console) -> None:
     if not tuning:
         return
     rows = tuning.get("rows") or []
+    band = tuning.get("band", {})
+    coil = tuning.get("coil", {})
+    title = f"Tuning: {tuning.get('arrangement', '')} coupling, {band.get('name', '')}, coil {eng(coil.get('inductance_h'), 'H')}"
+    if coil.get("turns"):
+        title += f" ({coil['turns']:.0f} turns"
+        if coil.get("winding_length_m"):
+            title += f" over {eng(coil['winding_length_m'], 'm')}"
+        title += ")"
+    if tuning.get("source") == "measured":
+        title += " — aerial from the bench measurement"
     if rows:
-        t = Table(title=f"Tuning ({tuning.get('arrangement', '')})", title_justify="left")
-        cols = [("frequency", "frequency_hz", "Hz"), ("coil", "inductance_h", "H"),
-                ("total C at resonance", "total_capacitance_f", "F"), ("capacitor setting", "capacitor_setting_f", "F"),
-                ("aerial share of C", "aerial_share", None), ("loaded Q", "loaded_q", None),
-                ("bandwidth", "bandwidth_hz", "Hz"), ("1 channel away", "rejection_1_channel_db", "dB"),
-                ("2 channels away", "rejection_2_channels_db", "dB"), ("power to detector", "detector_power_w", "W")]
-        present = [c for c in cols if any(c[1] in r for r in rows)]
-        for name, _, _ in present:
+        t = Table(title=title, title_justify="left")
+        cols = [("frequency", "frequency_hz", "Hz"), ("total C at resonance", "total_capacitance_f", "F"),
+                ("capacitor setting", "capacitor_setting_f", "F"), ("aerial's share of C", "aerial_share_ratio", "%"),
+                ("loaded Q", "loaded_q", ""), ("bandwidth", "bandwidth_hz", "Hz"),
+                ("9 kHz away", "rejection_9khz_db", "dB"), ("10 kHz away", "rejection_10khz_db", "dB"),
+                ("to detector", "power_transfer_ratio", "%")]
+        for name, _, _ in cols:
             t.add_column(name, justify="right")
-        for r in rows:
+        idx = np.unique(np.linspace(0, len(rows) - 1, min(len(rows), 5)).round().astype(int))
+        for k in idx:
+            r = rows[int(k)]
             cells = []
-            for _, key, unit in present:
+            for _, key, unit in cols:
                 v = r.get(key)
                 if v is None:
                     cells.append("—")
                 elif unit == "dB":
                     cells.append(f"{v:.1f} dB")
-                elif unit is None and key == "aerial_share":
+                elif unit == "%":
                     cells.append(f"{100 * v:.0f} %")
-                elif unit is None:
+                elif unit == "":
                     cells.append(f"{v:.3g}")
                 else:
-                    cells.append(eng(v, unit))
+                    text = eng(v, unit)
+                    if key == "capacitor_setting_f" and not r.get("within_capacitor_range", True):
+                        text += " (out of range)"
+                    cells.append(text)
             t.add_row(*cells)
         console.print(t)
-    for line in tuning.get("summary", []):
-        console.print(line)
+    cov = tuning.get("coverage", {})
+    if cov.get("verdict"):
+        style = "green" if cov.get("covered") else "yellow"
+        console.print(f"[{style}]Band coverage: {escape(cov['verdict'])}[/{style}]")
+    for line in tuning.get("advice", []):
+        console.print(f"  → {escape(line)}")
+    for line in tuning.get("notes", []):
+        console.print(f"[dim]{escape(line)}[/dim]")
 
 
 def _render_stations(stations, console) -> None:
@@ -220,16 +244,21 @@ def _render_stations(stations, console) -> None:
     for s in stations:
         verdict = s.get("verdict", "")
         style = {"clearly heard": "green", "marginal": "yellow", "not heard": "red"}.get(verdict, "")
-        why = s.get("reason", "")
         t.add_row(s.get("name", ""), eng(s.get("frequency_hz"), "Hz"), eng(s.get("distance_m"), "m"),
-                  eng(s.get("field_strength_v_per_m"), "V/m"), eng(s.get("detector_power_w"), "W"),
+                  eng(s.get("field_v_per_m"), "V/m"), eng(s.get("detector_power_w"), "W"),
                   "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
-                  Text(verdict + (f"\n{why}" if why else ""), style=style))
+                  Text(verdict, style=style))
     console.print(t)
+    for s in stations:
+        why = s.get("reason", "")
+        if s.get("spills_over"):
+            why += ("; " if why else "") + "heard under: " + ", ".join(s["spills_over"])
+        if why:
+            console.print(f"  {escape(s.get('name', ''))}: {escape(why)}")
 
 
 def render_layout(result: dict, console) -> None:
-    console.print(f"[bold]{result['site']['name']}[/bold]  ({result['site']['file']})")
+    console.print(f"[bold]{escape(result['site']['name'])}[/bold]  ({escape(result['site']['file'])})")
     console.print(f"objective: {result.get('objective', '')}")
     console.print(f"candidates: {result.get('candidates_considered', 0)} considered, "
                   f"{result.get('candidates_refused', 0)} refused for safety or geometry")

@@ -59,6 +59,12 @@ HEIGHT_TOLERANCE_M = {
 }
 SUPPORT_KINDS = tuple(HEIGHT_TOLERANCE_M)
 
+#: Audio-frequency impedance taken for a "high-impedance" earphone (a 2000-ohm-DC magnetic headset is
+#: roughly 10 kohm at 1 kHz; a crystal earphone with its load resistor is higher): an assumption. [ohm]
+HIGH_IMPEDANCE_EARPHONE_OHM = 10_000.0
+#: A "low-impedance" headphone. [ohm]
+LOW_IMPEDANCE_EARPHONE_OHM = 32.0
+
 NOISE_CATEGORIES = ("city", "residential", "rural", "quiet-rural")
 
 #: Named bands [Hz]. MF covers every ITU region's broadcast allocation
@@ -737,9 +743,9 @@ def _receiver(r: _Reader, raw) -> Receiver:
     detector = r.string(t, key, "detector", default="germanium", choices=DETECTORS)
     ear = t.get("earphone", "high-impedance")
     if isinstance(ear, str) and ear.strip().lower() in ("high-impedance", "high impedance"):
-        ear_ohm = 2000.0
+        ear_ohm = HIGH_IMPEDANCE_EARPHONE_OHM
     elif isinstance(ear, str) and ear.strip().lower() in ("low-impedance", "low impedance"):
-        ear_ohm = 32.0
+        ear_ohm = LOW_IMPEDANCE_EARPHONE_OHM
     else:
         ear_ohm = r.quantity(t, key, "earphone", units.RESISTANCE_UNITS, "an earphone impedance", "ohm")
     measured = None

@@ -52,7 +52,9 @@ def test_report_json_holds_the_contract(capsys, path):
             assert len(data["aerial"][key]) == n
     assert all(len(z) == 2 for z in data["aerial"]["impedance_ohm"])
     assert data["cautions"], "every report carries the safety cautions"
-    assert "null" not in out, "no figure may be missing"
+    assert not any("could not be computed" in w for w in data["warnings"]), "no figure may be missing"
+    for key in REQUIRED_AERIAL_KEYS[:-1]:
+        assert None not in (data["aerial"][key] if key != "impedance_ohm" else sum(data["aerial"][key], []))
     assert hashlib.sha256(path.read_bytes()).hexdigest() == before
 
 

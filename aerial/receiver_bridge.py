@@ -1,0 +1,174 @@
+"""Map the site's ``[receiver]`` and ``[[stations]]`` onto the reception models and back into JSON.
+
+This is orchestration only: the physics is in :mod:`aerial.reception` and
+:mod:`aerial.models`.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from aerial import reception, units
+from aerial.errors import AerialError
+
+#: Tabulated frequencies per band in the tuning table.
+TUNING_ROWS = 5
+
+
+def _coil_winding(site) -> reception.CoilWinding | None:
+    c = site.receiver.coil
+    if not c:
+        return None
+    from aerial.site import _Reader, _wire_size
+
+    r = _Reader(site.path, site.text)
+    key = "receiver.coil"
+    dia = r.length(c, key, "diameter", required=True, positive=True)
+    if "gauge" in c or "wire_diameter" in c:
+        size = _wire_size(r, {"gauge": c["gauge"]} if "gauge" in c else {"diameter": c["wire_diameter"]}, key, None)
+        wire_d = 2 * size.radius_m
+    else:
+        r.fail(f"{key}.gauge", "", 'a coil needs its wire: gauge = "26 AWG" or wire_diameter = "0.4 mm"')
+    turns = r.number(c, key, "turns", low=1, high=10000, what="a number of turns")
+    length = r.length(c, key, "length", positive=True)
+    pitch = r.length(c, key, "pitch", positive=True)
+    strands = r.number(c, key, "strands", default=1, low=1, high=2000, integer=True, what="a whole number of strands")
+    strand_d = None
+    if strands > 1:
+        if "strand_gauge" not in c:
+            r.fail(f"{key}.strand_gauge", "", 'stranded wire needs strand_gauge = "40 AWG" (each strand)')
+        strand_d = 2 * _wire_size(r, {"gauge": c["strand_gauge"]}, key, None).radius_m
+    if pitch is not None and pitch < wire_d:
+        r.fail(f"{key}.pitch", c["pitch"], "the pitch is less than the wire's diameter: the turns would overlap")
+    return reception.CoilWinding(dia, wire_d, turns, length, pitch, int(strands), strand_d)
+
+
+def tuning_parts(site) -> reception.TuningParts:
+    rx = site.receiver
+    cal = None
+    if rx.measured:
+        m = rx.measured
+        cal = reception.Calibration(m["inductance_h"], m["capacitor_f"], m["frequency_hz"], m.get("bandwidth_hz"))
+    return reception.TuningParts(
+        arrangement=rx.coupling,
+        coil_inductance_h=rx.inductance_h,
+        coil=_coil_winding(site),
+        capacitor_min_f=rx.capacitor_min_f,
+        capacitor_max_f=rx.capacitor_max_f,
+        series_capacitance_f=rx.coupling_capacitor_f,
+        tap_fraction=rx.tap_fraction,
+        primary_inductance_h=rx.primary_inductance_h,
+        coupling_coefficient=rx.coupling_factor,
+        detector=rx.detector,
+        earphone_ohm=rx.earphone_ohm,
+        calibration=cal,
+    )
+
+
+def _primary_band(site):
+    for name, lo, hi in site.bands:
+        if name.startswith("MF"):
+            return name, lo, hi
+    return site.bands[0]
+
+
+def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
+    """Tuning design and station verdicts for the site. Returns (tuning, stations, warnings)."""
+    parts = tuning_parts(site)
+    f = np.asarray(freqs, float)
+    r = np.asarray(resp["series_resistance_ohm"], float)
+    x = np.asarray(resp["reactance_ohm"], float)
+    rr = np.asarray(resp["radiation_resistance_ohm"], float)
+    he = np.asarray(resp["effective_height_m"], float)
+    name, lo, hi = _primary_band(site)
+    m = (f >= lo - 1e-6) & (f <= hi + 1e-6)
+    warnings: list[str] = []
+    tuning = reception.design_tuning(f[m], r[m], x[m], parts, band=(lo, hi))
+    tuning = dict(tuning)
+    tuning["band"] = {"name": name, "from_hz": lo, "to_hz": hi}
+    tuning["arrangement"] = parts.arrangement
+    tuning["source"] = "measured" if parts.calibration else "estimate"
+    if len(site.bands) > 1:
+        tuning.setdefault("notes", []).append(
+            f"The tuning parts are designed for the {name} band; other bands need their own coil.")
+    if parts.capacitor_min_f is not None and parts.capacitor_max_f is not None:
+        try:
+            tuning["range_curve"] = reception.tuning_range_curve(f[m], r[m], x[m], parts,
+                                                                 coil_inductance_h=tuning.get("coil", {}).get("inductance_h"))
+        except Exception as err:  # the curve is a picture aid; say why it is missing
+            warnings.append(f"tuning-range picture not drawn: {err}")
+    warnings += list(tuning.get("warnings", []))
+    stations = []
+    if site.stations:
+        st = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
+                                s.soil.conductivity_s_m) for s in site.stations]
+        stations = reception.assess_stations(f, r, x, rr, he, parts, st, noise_category=site.noise.replace("-", " "))
+        for s, src in zip(stations, site.stations):
+            s.setdefault("power_w", src.power_w)
+            s.setdefault("distance_m", src.distance_m)
+            s.setdefault("frequency_hz", src.frequency_hz)
+            s.setdefault("name", src.name)
+    return tuning, stations, warnings
+
+
+def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, strands=1, frequency="1 MHz") -> dict:
+    """The ``aerial coil`` helper: inductance from turns, or turns and winding length for an inductance."""
+    from aerial.models import coil as coil_mod
+
+    def length(text, what):
+        try:
+            return units.parse_length(text)
+        except units.UnitError as err:
+            raise AerialError(f"{what} {text}: {err.expected}") from None
+
+    d = length(diameter, "--diameter")
+    m = __import__("re").fullmatch(r"\s*(\S+)\s*(awg|swg)\s*", str(wire), __import__("re").IGNORECASE)
+    if not m:
+        raise AerialError(f'--wire {wire}: expected a gauge with its system, such as "26 AWG" or "24 SWG"')
+    try:
+        g = units.parse_gauge(m.group(1))
+        wd = units.awg_diameter(g) if m.group(2).lower() == "awg" else units.swg_diameter(g)
+    except (units.UnitError, KeyError):
+        raise AerialError(f"--wire {wire}: not a gauge in that system") from None
+    p = length(pitch, "--pitch") if pitch else None
+    try:
+        f = units.parse_quantity(frequency, units.FREQUENCY_UNITS, "a frequency", "Hz")
+    except units.UnitError as err:
+        raise AerialError(f"--frequency {frequency}: {err.expected}") from None
+    if d <= 0 or (p is not None and p < wd):
+        raise AerialError("--diameter must be positive and --pitch at least the wire's diameter")
+    out: dict = {"form_diameter_m": d, "wire_diameter_m": wd, "frequency_hz": f}
+    if turns is not None:
+        if not (math.isfinite(turns) and 0 < turns <= 10000):
+            raise AerialError(f"--turns {turns}: expected a number of turns from 1 to 10000")
+        L = float(np.asarray(coil_mod.solenoid_inductance(d, wd, turns, pitch=p)))
+        out.update({"turns": turns, "inductance_h": L, "winding_length_m": turns * (p or wd)})
+    else:
+        try:
+            want = units.parse_quantity(inductance, units.INDUCTANCE_UNITS, "an inductance", "H")
+        except units.UnitError as err:
+            raise AerialError(f"--inductance {inductance}: {err.expected}") from None
+        if want <= 0:
+            raise AerialError(f"--inductance {inductance}: expected an inductance greater than zero")
+        design = coil_mod.winding_for_inductance(want, d, wd, pitch=p)
+        out.update({k: (float(v) if isinstance(v, (int, float, np.floating, np.integer)) else v)
+                    for k, v in design._asdict().items()})
+        out["inductance_h"] = float(out.get("inductance_h", want))
+        turns = out.get("turns")
+    try:
+        loss = coil_mod.coil_loss(f, out["inductance_h"], d, wd, turns, pitch=p, strands=strands)
+        for k, v in loss._asdict().items():
+            if isinstance(v, (int, float, np.floating, np.ndarray)):
+                out[k] = float(np.asarray(v))
+            elif isinstance(v, (list, tuple)):
+                out.setdefault("warnings", []).extend(v)
+    except TypeError:
+        loss = coil_mod.coil_loss(f, out["inductance_h"], d, wd, turns, pitch=p)
+        for k, v in loss._asdict().items():
+            if isinstance(v, (int, float, np.floating, np.ndarray)):
+                out[k] = float(np.asarray(v))
+    from aerial.analysis import finalise
+
+    return finalise(out)
