@@ -1,7 +1,8 @@
 """From aerial to earphone: tuning design, calibration and station verdicts for a diode-detector receiver.
 
 Pure combination layer: dataclasses in, JSON-ready dicts out (plain floats,
-lists and strings; every key carries its unit: ``_hz``, ``_f``, ``_h``, ``_ohm``,
+lists and strings, never null: a figure that is not known is left out; every
+key carries its unit: ``_hz``, ``_f``, ``_h``, ``_ohm``,
 ``_v``, ``_w``, ``_db``, ``_v_per_m``, ``_m``; ``_ratio`` for dimensionless
 fractions, ``_q`` for quality factors). No I/O, no printing. Values that would
 not be finite are clamped and flagged in ``warnings``.
@@ -331,8 +332,8 @@ def _coil_from_winding(w: CoilWinding, inductance=None, design_freq=1e6):
     if w.strands > 1:
         rng = coil_mod.stranded_advantage_range(w.form_diameter_m, w.wire_diameter_m, turns, w.strands,
                                                 w.strand_diameter_m, pitch, w.resistivity_ohm_m)
-        info["stranded_better_up_to_hz"] = None if rng.better_up_to is None else float(rng.better_up_to)
         if rng.better_up_to is not None:
+            info["stranded_better_up_to_hz"] = float(rng.better_up_to)
             notes.append(
                 f"stranded wire: loses less than solid wire of the same size only up to about "
                 f"{rng.better_up_to / 1e3:.0f} kHz; above that the strands' proximity loss outweighs the gain"
@@ -474,11 +475,13 @@ def _apply_calibration(aerial: _Aerial, parts: TuningParts, diode, notes: list) 
     out = {
         "frequency_hz": f,
         "aerial_shunt_capacitance_f": float(res.shunt_capacitance),
-        "aerial_shunt_resistance_ohm": None if res.shunt_resistance is None else float(res.shunt_resistance),
         "total_capacitance_f": float(res.total_capacitance),
-        "loaded_q": None if res.loaded_q is None else float(res.loaded_q),
         "note": "these values come from your measured resonance, not from the aerial model",
     }
+    if res.shunt_resistance is not None:
+        out["aerial_shunt_resistance_ohm"] = float(res.shunt_resistance)
+    if res.loaded_q is not None:
+        out["loaded_q"] = float(res.loaded_q)
     if y.imag <= 0:
         notes.append("the measured resonance shows no aerial capacitance: the computed aerial reactance is kept")
         return out
@@ -520,7 +523,7 @@ def calibrate_aerial(calibration: Calibration, parts: TuningParts) -> dict:
     Returns
     -------
     dict
-        ``aerial_shunt_capacitance_f``, ``aerial_shunt_resistance_ohm`` (None
+        ``aerial_shunt_capacitance_f``, ``aerial_shunt_resistance_ohm`` (absent
         without a bandwidth), ``aerial_series_capacitance_f`` and
         ``aerial_series_resistance_ohm`` (the aerial's own series values,
         usable in place of the model's), ``warnings``, and a note that they
@@ -653,7 +656,8 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
         (detector power / available aerial power from the circuit) and the
         matched-ports reference ``power_transfer_if_matched_ratio``),
         ``coverage`` (verdict, capacitor needed at each band edge, reachable
-        range), ``advice``, ``notes``, ``warnings``.
+        range; ``covered`` only with a capacitor range), ``advice``, ``notes``,
+        ``warnings``, and ``calibration`` when one was given.
 
     Notes
     -----
@@ -761,16 +765,17 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
         covered = bool(c_edges[0] <= parts.capacitor_max_f and c_edges[1] >= parts.capacitor_min_f)
         coverage["covered"] = covered
         curve = tuning_range_curve(aerial.f, aerial.r, aerial.x, parts, coil_inductance_h=L, _aerial=aerial, _coil=coil)
-        coverage["reachable_low_hz"] = curve["reachable_low_hz"]
-        coverage["reachable_high_hz"] = curve["reachable_high_hz"]
+        reach = "reachable_low_hz" in curve
+        if reach:
+            coverage["reachable_low_hz"] = curve["reachable_low_hz"]
+            coverage["reachable_high_hz"] = curve["reachable_high_hz"]
         coverage["verdict"] = ("covers the band" if covered else
                                "does not cover the band" + (f": reaches {_khz(curve['reachable_low_hz'])} to "
-                                                            f"{_khz(curve['reachable_high_hz'])}"
-                                                            if curve["reachable_low_hz"] is not None else ""))
+                                                            f"{_khz(curve['reachable_high_hz'])}" if reach
+                                                            else ": nothing in the aerial's grid"))
         if not covered:
             advice = _advice((f_lo, f_hi), aerial, coil, parts, c_edges)
     else:
-        coverage["covered"] = None
         coverage["verdict"] = "no capacitor range given: the settings needed are listed"
     if parts.arrangement in tank_mod.NO_DC_PATH_ARRANGEMENTS:
         notes.append(tank_mod.BLEED_NOTE)
@@ -779,18 +784,20 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
     notes.append("loaded Q and bandwidth use the detector's strong-signal input resistance (half the earphone "
                   "impedance); weak stations load the tank less")
     coil_info = dict(coil.info)
-    return {
+    result = {
         "arrangement": parts.arrangement,
         "coil": coil_info,
         "detector": parts.detector,
         "earphone_ohm": float(parts.earphone_ohm),
-        "calibration": calibration,
         "rows": rows,
         "coverage": coverage,
         "advice": advice,
         "notes": notes,
         "warnings": warnings,
     }
+    if calibration is not None:
+        result["calibration"] = calibration
+    return result
 
 
 def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, points=60,
@@ -813,7 +820,7 @@ def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningPa
     dict
         ``capacitor_setting_f`` and ``frequency_hz`` (the settings that tune
         inside the aerial grid), ``reachable_low_hz``/``reachable_high_hz``
-        (the part of the aerial grid the capacitor can reach; None when
+        (the part of the aerial grid the capacitor can reach; absent when
         nothing tunes in the grid), ``warnings``.
 
     Notes
@@ -863,13 +870,13 @@ def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningPa
         warnings.append("the tuning range reaches the edge of the aerial's frequency grid and may extend beyond it")
     if len(out_c) < len(settings):
         warnings.append(f"{len(settings) - len(out_c)} capacitor settings tune outside the aerial's frequency grid")
-    return {
-        "capacitor_setting_f": out_c,
-        "frequency_hz": out_f,
-        "reachable_low_hz": (crossing(parts.capacitor_max_f) or float(inside[0])) if inside.size else None,
-        "reachable_high_hz": (crossing(parts.capacitor_min_f) or float(inside[-1])) if inside.size else None,
-        "warnings": warnings + notes,
-    }
+    result = {"capacitor_setting_f": out_c, "frequency_hz": out_f, "warnings": warnings + notes}
+    if inside.size:
+        result["reachable_low_hz"] = crossing(parts.capacitor_max_f) or float(inside[0])
+        result["reachable_high_hz"] = crossing(parts.capacitor_min_f) or float(inside[-1])
+    else:
+        result["warnings"].append("no capacitor setting tunes inside the aerial's frequency grid")
+    return result
 
 
 # ------------------------------------------------------------------------------------ station verdicts

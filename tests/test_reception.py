@@ -41,7 +41,8 @@ def walk(obj):
 
 
 def all_finite(obj):
-    return all(not isinstance(v, float) or math.isfinite(v) for v in walk(obj))
+    """Every number finite and nothing null (the JSON contract)."""
+    return all(v is not None and (not isinstance(v, float) or math.isfinite(v)) for v in walk(obj))
 
 
 # Hand-worked band coverage (no published source; worked here by hand):
