@@ -657,8 +657,7 @@ def plan_layouts(site, best=5, full_wave=False, picture=None, force=False, allow
         result["code_checklist"] = code_checklist(site, plan, facts)
         if full_wave:
             result["full_wave"] = _refine(site, ctx, win, objective)
-            if not result["full_wave"]["available"]:
-                warnings.append(result["full_wave"]["note"])
+            warnings.append("Full-wave check: " + result["full_wave"]["note"])
     if picture:
         from aerial.plan_drawing import build_scene, write_plan_picture
 
@@ -771,11 +770,9 @@ def _describe(ctx: _Context, rec, ev) -> list[dict]:
 
 
 def _refine(site, ctx: _Context, win: dict, objective: dict) -> dict:
-    """Run the full-wave solver on the winner when the solver is present; otherwise say so."""
+    """Solve the winner with the full-wave wire solver when it is present; otherwise say so."""
     try:
-        import aerial.models.fullwave  # noqa: F401
-        from aerial.analysis import aerial_response
-        import aerial.fullwave_bridge  # noqa: F401
+        from aerial.models.fullwave import solve_full_wave
     except ImportError:
         return {"available": False,
                 "note": "full-wave refinement is unavailable in this build (no full-wave solver installed); the "
@@ -793,14 +790,27 @@ def _refine(site, ctx: _Context, win: dict, objective: dict) -> dict:
                              size, "plan", (None, None)))
     wires += [w for w in site.wires if w.role == "counterpoise"]
     planned = replace(site, wires=wires, receiver=replace(site.receiver, x_m=ctx.ex, y_m=ctx.ey, height_m=ctx.eh))
-    earth = objective["earth_ohm"]
+    earth = float(objective["earth_ohm"])
     geo = resolve(planned, electrode_ohm=earth, wires=wires)
-    resp = aerial_response(planned, geo, np.asarray(objective["frequency_hz"]), earth, method="full-wave")
-    return {"available": True, "frequencies_hz": [float(v) for v in objective["frequency_hz"]],
-            "effective_height_m": [float(v) for v in np.asarray(resp["effective_height_m"])],
-            "radiation_resistance_ohm": [float(v) for v in np.asarray(resp["radiation_resistance_ohm"])],
-            "reactance_ohm": [float(v) for v in np.asarray(resp["reactance_ohm"])],
-            "note": "the winner re-solved with the full-wave wire solver"}
+    freqs = np.asarray(objective["frequency_hz"], dtype=float)
+    res = solve_full_wave(geo.segments, freqs)
+    he = np.abs(np.asarray(res.effective_height))
+    closed = np.asarray(win["effective_height_by_frequency_m"])
+    return {
+        "available": True,
+        "frequencies_hz": [float(v) for v in freqs],
+        "effective_height_m": [float(v) for v in he],
+        "closed_form_effective_height_m": [float(v) for v in closed],
+        "radiation_resistance_ohm": [float(v) for v in np.asarray(res.radiation_resistance)],
+        "resistance_ohm": [float(v) for v in np.asarray(res.impedance).real],
+        "reactance_ohm": [float(v) for v in np.asarray(res.impedance).imag],
+        "converged": bool(res.converged),
+        "convergence": float(res.convergence),
+        "solver_warnings": [str(w) for w in res.warnings],
+        "note": (f"the top-ranked layout solved with the full-wave wire solver ({res.model}); effective height "
+                 + ", ".join(f"{a:.2f} m (closed form {b:.2f} m)" for a, b in zip(he, closed))
+                 + ("" if res.converged else "; NOT converged within the solver's tolerance")),
+    }
 
 
 # --------------------------------------------------------------------------- apartment

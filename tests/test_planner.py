@@ -1,0 +1,283 @@
+"""The site planner: enumeration counts, the safety filter, ranking sanity, limits, apartment and code text, CLI.
+
+Sites here are invented test inputs. The fall-zone rule is re-checked with an
+independent exact distance (shapely.distance) rather than the planner's own
+buffers. The ranking checks are consistency properties of the closed forms
+(higher or longer wins, all else equal), not published values. Code-table
+values are from NFPA 70, 810.16(A) (from memory; check the edition).
+"""
+
+import importlib.util
+import json
+
+import numpy as np
+import pytest
+import shapely
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from shapely.geometry import LineString
+
+from aerial.cli import EXIT_OK, EXIT_USER, main
+from aerial.codes import minimum_awg, region_code
+from aerial.errors import AerialError, ResourceLimit
+from aerial.plan import parse_plan
+from aerial.planner import (
+    MAX_CANDIDATES,
+    _chunks,
+    estimate_candidates,
+    height_capacitance_score_db,
+    layout_figures,
+    plan_layouts,
+    station_score_db,
+)
+from aerial.site import load_site, load_site_text
+
+from .conftest import ROOT
+
+EXAMPLE = ROOT / "site_examples" / "suburban_lot_service_line.toml"
+
+BASE = """
+[site]
+name = "planner test"
+region = "{region}"
+
+[wire]
+gauge = "{gauge}"
+
+[[runs]]
+points = [[0, 0, 2], [0, 0, 6]]
+
+[receiver]
+at = [0, 0]
+height = "1 m"
+
+[[earth.rods]]
+length = "2.4 m"
+
+{stations}
+
+[plan]
+building = "{building}"
+{plan_extra}
+
+[plan.entry]
+at = [0, 0]
+height = "{entry_h}"
+
+{supports}
+"""
+
+
+def support(name, x, y, h, kind="mast"):
+    return f'[[plan.supports]]\nname = "{name}"\nat = [{x}, {y}]\nheight = "{h} m"\nkind = "{kind}"\n'
+
+
+def site_with(supports, *, stations="", building="house", plan_extra="", region="US", gauge="14 AWG", entry_h="2 m"):
+    text = BASE.format(supports="\n".join(supports), stations=stations, building=building, plan_extra=plan_extra,
+                       region=region, gauge=gauge, entry_h=entry_h)
+    return load_site_text(text, "planner.toml")
+
+
+STATION = '[[stations]]\nname = "test station"\nfrequency = "800 kHz"\npower = "10 kW"\ndistance = "30 km"\n'
+
+
+# --------------------------------------------------------------------------- counting
+
+
+@pytest.mark.parametrize("n", [1, 2, 3, 4, 7])
+def test_estimate_matches_the_enumeration(n):
+    # consistency: the count stated before the search is the count searched
+    assert sum(len(f) for f, *_ in _chunks(n, 5)) == estimate_candidates(n)
+
+
+def test_budget_refuses_a_huge_search_with_numbers():
+    sups = [support(f"s{q}", q % 13 * 3.0 + 5, q // 13 * 3.0 + 5, 8) for q in range(130)]
+    site = site_with(sups)
+    with pytest.raises(ResourceLimit) as err:
+        plan_layouts(site)
+    msg = str(err.value)
+    assert f"{estimate_candidates(130):,} candidate layouts" in msg
+    assert f"above the budget of {MAX_CANDIDATES:,}" in msg
+    assert "--allow-large" in msg and "remove supports" in msg
+
+
+def test_best_out_of_range_is_an_error():
+    site = site_with([support("a", 10, 0, 8), support("b", 30, 0, 8)])
+    with pytest.raises(AerialError, match="expected a whole number from 1 to 100"):
+        plan_layouts(site, best=0)
+
+
+def test_no_candidate_support_is_an_error():
+    site = site_with([])
+    with pytest.raises(AerialError, match="no candidate supports"):
+        plan_layouts(site)
+
+
+# --------------------------------------------------------------------------- safety filter on the example
+
+
+def test_example_layouts_keep_clear_of_the_power_line():
+    site = load_site(EXAMPLE)
+    plan = parse_plan(site)
+    result = plan_layouts(site, best=20)
+    assert result["candidates_refused_safety"] > 0
+    assert result["layouts"]
+    for lay in result["layouts"]:
+        assert "front cherry" not in lay["supports"]  # 4 + 3 m from the line: refused
+        parts = [LineString(np.array(lay["top_points_m"])[:, :2]), LineString(np.array(lay["lead_in_points_m"])[:, :2])]
+        for line in plan.power_lines:
+            need = max(1.5 * lay["tallest_m"], line.height_m)
+            for part in parts:
+                # independent check: exact plan distance, not the planner's buffer
+                assert shapely.distance(part, line.path) >= need
+        assert lay["clearance_margin_m"] >= 0
+    scores = [lay["score"] for lay in result["layouts"]]
+    assert scores == sorted(scores, reverse=True)
+    assert result["objective"].startswith("signal for the listed stations")
+    json.dumps(result, allow_nan=False)
+
+
+def test_obstacle_crossings_are_excluded_and_counted():
+    obstacle = '[[plan.obstacles]]\nname = "shed"\noutline = [[18, -2], [22, -2], [22, 2], [18, 2]]\n'
+    site = site_with([support("a", 10, 0, 8), support("b", 30, 0, 8)])
+    site_o = load_site_text(site.text + "\n" + obstacle, "obstacle.toml")  # the shed sits under the span a-b
+    free = plan_layouts(site, best=10)
+    blocked = plan_layouts(site_o, best=10)
+    assert blocked["excluded"]["crosses an obstacle"] > 0
+    assert all(not ("a" in lay["supports"] and "b" in lay["supports"]) for lay in blocked["layouts"])
+    assert any(("a" in lay["supports"] and "b" in lay["supports"]) for lay in free["layouts"])
+
+
+# --------------------------------------------------------------------------- ranking sanity
+
+
+@settings(max_examples=40, deadline=None)
+@given(h=st.floats(3, 14), dh=st.floats(0.5, 5), top=st.floats(5, 35), f=st.floats(0.53e6, 1.0e6),
+       earth=st.floats(5, 100))
+def test_higher_wire_wins_all_else_equal(h, dh, top, f, earth):
+    # consistency property of the closed forms: raise the whole layout, keep its lengths
+    kind = np.array([0, 0])
+    figs = layout_figures(kind, np.array([h, h + dh]), np.array([top, top]), np.zeros(2), np.array([h, h + dh]),
+                          np.zeros(2), np.array([h, h]), 1.0, 0.8e-3, np.array([f]), 1.72e-8)
+    s = station_score_db(figs["effective_height_m"], figs["radiation_resistance_ohm"], figs["loss_resistance_ohm"],
+                         np.array([1e-3]), earth)
+    assert s[1] > s[0]
+    hc = height_capacitance_score_db(figs["effective_height_m"], figs["capacitance_f"])
+    assert hc[1] > hc[0]
+
+
+@settings(max_examples=40, deadline=None)
+@given(h=st.floats(3, 14), top=st.floats(5, 30), extra=st.floats(1, 10), f=st.floats(0.53e6, 1.0e6),
+       earth=st.floats(5, 100))
+def test_longer_wire_wins_all_else_equal(h, top, extra, f, earth):
+    kind = np.array([0, 0])
+    figs = layout_figures(kind, np.array([h, h]), np.array([top, top + extra]), np.zeros(2), np.array([h, h]),
+                          np.zeros(2), np.array([h, h]), 1.0, 0.8e-3, np.array([f]), 1.72e-8)
+    s = station_score_db(figs["effective_height_m"], figs["radiation_resistance_ohm"], figs["loss_resistance_ohm"],
+                         np.array([1e-3]), earth)
+    assert s[1] > s[0]
+    assert figs["capacitance_f"][1] > figs["capacitance_f"][0]
+
+
+@pytest.mark.parametrize("stations", ["", STATION])
+@pytest.mark.parametrize("change", ["higher", "longer"])
+def test_end_to_end_higher_or_longer_site_scores_more(stations, change):
+    # two sites alike but for the masts: 4 m taller, or 10 m further apart
+    base = [support("west", 10, 10, 7), support("east", 30, 10, 7)]
+    if change == "higher":
+        better = [support("west", 10, 10, 11), support("east", 30, 10, 11)]
+    else:
+        better = [support("west", 10, 10, 7), support("east", 40, 10, 7)]
+    a = plan_layouts(site_with(base, stations=stations), best=1)["layouts"][0]
+    b = plan_layouts(site_with(better, stations=stations), best=1)["layouts"][0]
+    assert b["score"] > a["score"]
+    assert b["family"] == a["family"]
+
+
+# --------------------------------------------------------------------------- apartment, codes, full wave
+
+
+def test_apartment_case_states_the_assumption_and_options():
+    balcony = '[plan.balcony]\nfloor_height = "9 m"\nstructure = "reinforced concrete"\nfloor = 3\n'
+    sups = [support("rail west", 0, 0.5, 10, "balcony rail"), support("rail east", 6, 0.5, 10, "balcony rail")]
+    text = site_with(sups, building="apartment", entry_h="9.5 m").text + "\n" + balcony
+    site = load_site_text(text, "flat.toml")
+    result = plan_layouts(site, best=2)
+    notes = " ".join(result["apartment"])
+    assert "assumption" in notes.lower() and "floor slab (9.0 m above the street)" in notes
+    assert "Never gas piping" in notes and "licensed electrician" in notes and "plastic section" in notes
+    assert "ITU-R P.372" in notes
+    # heights reckoned from the slab: a rail 1 m above it gives an effective height near 1 m, not near 10 m
+    assert result["layouts"][0]["effective_height_m"] < 2.0
+
+
+def test_code_table_minimum_sizes():
+    # NFPA 70, 810.16(A) (from memory): hard-drawn copper 19 / 14 / 12 AWG for open spans
+    # under 35 ft, 35-150 ft, over 150 ft; copper-clad steel 20 / 17 / 14
+    assert minimum_awg(9.0, "copper") == (19, "hard-drawn copper")
+    assert minimum_awg(30.0, "copper")[0] == 14
+    assert minimum_awg(50.0, "copper")[0] == 12
+    assert [minimum_awg(s, "copper-clad steel")[0] for s in (9.0, 30.0, 50.0)] == [20, 17, 14]
+    assert region_code("US") == "nfpa70" and region_code("DE") == "en60728" and region_code("Mars") is None
+
+
+def test_checklist_flags_a_thin_wire_on_a_long_span():
+    sups = [support("a", 10, 0, 8), support("b", 40, 0, 8)]
+    result = plan_layouts(site_with(sups, gauge="22 AWG"), best=1)
+    text = "\n".join(result["code_checklist"])
+    assert "NFPA 70" in text and "not a compliance check" in text
+    assert "ATTENTION: thinner than the table minimum" in text
+    assert "compliant" not in text.replace("not a compliance check", "")
+
+
+def test_checklist_for_europe_and_unknown_region():
+    sups = [support("a", 10, 0, 8), support("b", 30, 0, 8)]
+    eu = plan_layouts(site_with(sups, region="NL"), best=1)["code_checklist"]
+    assert eu[0].startswith("EN 60728-11") and "from memory" in eu[0]
+    other = plan_layouts(site_with(sups, region="Atlantis"), best=1)["code_checklist"]
+    assert "no code text" in other[0]
+
+
+def test_full_wave_refinement_runs_or_says_it_is_unavailable():
+    sups = [support("a", 10, 0, 8), support("b", 30, 0, 8)]
+    result = plan_layouts(site_with(sups), best=1, full_wave=True)
+    fw = result["full_wave"]
+    if importlib.util.find_spec("aerial.models.fullwave") is None:
+        assert fw["available"] is False and "unavailable" in fw["note"]
+    else:
+        # consistency: the wire solver and the closed form agree on the effective height within 25 %
+        assert fw["available"] is True
+        assert np.allclose(fw["effective_height_m"], fw["closed_form_effective_height_m"], rtol=0.25)
+    assert any(w.startswith("Full-wave check: ") for w in result["warnings"])
+
+
+def test_progress_callback_reaches_the_total():
+    seen = []
+    sups = [support(f"s{q}", 5 + 4 * q, 3 * (q % 3), 6 + q % 4) for q in range(8)]
+    plan_layouts(site_with(sups), best=2, progress=lambda done, total: seen.append((done, total)))
+    assert seen and seen[-1][0] == seen[-1][1] == estimate_candidates(8)
+
+
+# --------------------------------------------------------------------------- command line
+
+
+def test_cli_layout_json_exit_0(capsys):
+    assert main(["layout", str(EXAMPLE), "--json", "--best", "2"]) == EXIT_OK
+    data = json.loads(capsys.readouterr().out)
+    assert len(data["layouts"]) == 2 and data["candidates_considered"] == estimate_candidates(6)
+
+
+def test_cli_layout_resource_limit_exit_2(tmp_path, capsys):
+    sups = [support(f"s{q}", q % 13 * 3.0 + 5, q // 13 * 3.0 + 5, 8) for q in range(130)]
+    p = tmp_path / "big.toml"
+    p.write_text(site_with(sups).text, encoding="utf-8")
+    assert main(["layout", str(p)]) == EXIT_USER
+    assert "above the budget of 2,000,000" in capsys.readouterr().err
+
+
+def test_cli_layout_invalid_plan_exit_2(tmp_path, capsys):
+    text = site_with([support("a", 10, 0, 8)]).text.replace('building = "house"', 'building = "castle"')
+    p = tmp_path / "castle.toml"
+    p.write_text(text, encoding="utf-8")
+    assert main(["layout", str(p)]) == EXIT_USER
+    assert 'plan.building = "castle": expected one of "house", "apartment"' in capsys.readouterr().err
