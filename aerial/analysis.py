@@ -63,14 +63,15 @@ def earth_system(site) -> dict:
 # --------------------------------------------------------------------------- aerial
 
 
-def aerial_response(site, geometry, frequency, earth_ohm: float, method: str = "closed-form", progress=None) -> dict:
+def aerial_response(site, geometry, frequency, earth_ohm: float, method: str = "closed-form", progress=None,
+                    ground: str = "perfect") -> dict:
     """Per-frequency electrical figures of the aerial with its earth. Returns numpy arrays."""
     if method not in METHODS:
         raise ModelInputError(f"'{method}' is not a valid method, must be one of " + ", ".join(f"'{m}'" for m in METHODS))
     if method == "full-wave":
         from aerial.fullwave_bridge import full_wave_response
 
-        out = full_wave_response(site, geometry, frequency, earth_ohm, progress=progress)
+        out = full_wave_response(site, geometry, frequency, earth_ohm, progress=progress, ground=ground)
     else:
         from aerial.models.closed_form import closed_form_response
 
@@ -223,7 +224,8 @@ def what_if(site, frequency: float, earth: dict) -> list[dict]:
 # --------------------------------------------------------------------------- main entry
 
 
-def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, progress=None, what_ifs: bool = True) -> dict:
+def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, progress=None, what_ifs: bool = True,
+            ground: str = "perfect") -> dict:
     """Run the whole chain for a site.
 
     Parameters
@@ -236,6 +238,9 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
         Sweep step [Hz]; default depends on the band.
     progress : callable, optional
         ``progress(done, total)`` during long sweeps.
+    ground : {"perfect", "lossy"}
+        Full wave only: perfect ground by images, or the reflection-coefficient
+        approximation for the site's soil.
 
     Returns
     -------
@@ -249,7 +254,12 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     earth = earth_system(site)
     warnings += earth.get("warnings", [])
     geometry = resolve(site, electrode_ohm=earth["resistance_ohm"])
-    resp = aerial_response(site, geometry, freqs, earth["resistance_ohm"], method=method, progress=progress)
+    if ground not in ("perfect", "lossy"):
+        raise ModelInputError(f"'{ground}' is not a valid ground, must be one of 'perfect', 'lossy'")
+    if ground == "lossy" and method != "full-wave":
+        warnings.append("lossy ground applies to the full-wave solver only; the closed forms assume a perfect "
+                        "ground plane with the earth system's resistance in series")
+    resp = aerial_response(site, geometry, freqs, earth["resistance_ohm"], method=method, progress=progress, ground=ground)
     warnings += resp.get("warnings", [])
 
     result: dict = {

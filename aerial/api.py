@@ -48,7 +48,7 @@ def refusal_check(site) -> None:
     enforce_site_clearance(site)
 
 
-def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=None, force=False) -> dict:
+def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=None, force=False, ground="perfect") -> dict:
     """Load a site (None: the built-in example), run the whole chain, optionally draw pictures."""
     from aerial.analysis import analyse
     from aerial.site import load_site
@@ -59,7 +59,8 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
         from aerial.pictures import check_picture_folder
 
         check_picture_folder(pictures, force, site)
-    result = analyse(site, method="full-wave" if full_wave else "closed-form", step_hz=step_hz, progress=progress)
+    result = analyse(site, method="full-wave" if full_wave else "closed-form", step_hz=step_hz, progress=progress,
+                     ground=ground)
     if pictures:
         from aerial.pictures import draw_report_pictures
 

@@ -46,6 +46,8 @@ def build_parser() -> argparse.ArgumentParser:
     r.add_argument("site", metavar="SITE", nargs="?", help="site file (TOML); omit for the built-in example")
     r.add_argument("--json", action="store_true", help="print machine-readable JSON instead of the report")
     r.add_argument("--full-wave", action="store_true", help="use the method-of-moments wire solver instead of closed forms")
+    r.add_argument("--lossy-ground", action="store_true",
+                   help="full wave: treat the soil by the reflection-coefficient approximation instead of a perfect ground")
     r.add_argument("--step", metavar="FREQ", help='sweep step, e.g. "1 kHz" (default depends on the band)')
     r.add_argument("--pictures", metavar="DIR", help="write SVG pictures of impedance, capacitance and tuning range into DIR")
     r.add_argument("--force", action="store_true", help="replace picture files that already exist")
@@ -142,7 +144,8 @@ def cmd_report(args) -> int:
     update, stop = _progress_factory(sys.stderr.isatty() and not args.json)
     try:
         result = run_report(args.site, full_wave=args.full_wave, step_hz=step, progress=update,
-                            pictures=args.pictures, force=args.force)
+                            pictures=args.pictures, force=args.force,
+                            ground="lossy" if args.lossy_ground else "perfect")
     finally:
         if stop:
             stop()

@@ -144,9 +144,14 @@ def render_report(result: dict, console) -> None:
             f"{eng(a['available_power_w'][i], 'W')}\n({rng(ranges['available_power_w'][j], 'W')})",
         )
     console.print(t)
-    if "convergence" in a and a["convergence"]:
-        conv = a["convergence"]
-        console.print(f"full-wave convergence: {conv}")
+    conv = a.get("convergence")
+    if conv:
+        state = "converged" if conv.get("converged") else "NOT converged"
+        console.print(f"full-wave convergence: {conv['pieces']} pieces against twice as many changes the impedance by "
+                      f"{100 * conv['relative_change']:.2g} % at {eng(conv['frequency_hz'], 'Hz')} ({state}, "
+                      f"tolerance {100 * conv['tolerance']:.2g} %)")
+    if a.get("ground_treatment"):
+        console.print(f"ground treatment: {escape(a['ground_treatment'])}")
     for note in ranges.get("notes", []):
         console.print(f"[dim]{escape(note)}[/dim]")
 
