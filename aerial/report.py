@@ -30,9 +30,7 @@ def eng(value, unit: str, digits: int = 3) -> str:
     else:
         scale, p = 1e-15, "f"
     x = v / scale
-    text = f"{x:.{digits}g}"
-    if "e" in text:
-        text = f"{x:.1f}"
+    text = f"{float(f'{x:.{digits}g}'):g}"
     return f"{text} {p}{unit}"
 
 
@@ -40,6 +38,17 @@ def rng(pair, unit: str) -> str:
     if pair is None:
         return "—"
     return f"{eng(pair[0], unit, 2)} – {eng(pair[1], unit, 2)}"
+
+
+def span(pair, unit: str) -> str:
+    """A compact dim range "(5.7–7.7 m)" under a value."""
+    if pair is None or pair[0] is None or pair[1] is None:
+        return ""
+    lo, hi = eng(pair[0], unit, 3), eng(pair[1], unit, 3)
+    lo_num, lo_unit = lo.rsplit(" ", 1)
+    hi_num, hi_unit = hi.rsplit(" ", 1)
+    text = f"({lo_num}–{hi_num} {hi_unit})" if lo_unit == hi_unit else f"({lo}–{hi})"
+    return f"[dim]{text}[/dim]"
 
 
 def db(x) -> str:
@@ -123,25 +132,26 @@ def render_report(result: dict, console) -> None:
     freqs = result["frequencies_hz"]
     ranges = result.get("ranges", {})
     labels = ranges.get("labels", [])
-    t = Table(title="The aerial at the band edges and centre (range from the stated tolerances)", title_justify="left")
-    for col in ("where", "frequency", "capacitance presented", "effective height", "radiation resistance",
-                "loss resistance", "reactance", "efficiency", f"voltage at {eng(site['field_strength_v_per_m'], 'V/m')}",
-                "available power"):
-        t.add_column(col, justify="right" if col not in ("where",) else "left")
+    t = Table(title="The aerial at the band edges and centres — value (low–high from the stated tolerances)",
+              title_justify="left")
+    field = eng(site["field_strength_v_per_m"], "V/m")
+    for col in ("frequency", "C presented", "eff. height", "R rad", "R loss", "X", "efficiency",
+                f"V open at {field}", "P available"):
+        t.add_column(col, justify="right")
     for j, label in enumerate(labels):
         f = ranges["frequencies_hz"][j]
         i = _nearest(freqs, f)
         loss = a["conductor_loss_ohm"][i] + a["ground_loss_ohm"][i]
         t.add_row(
-            label, eng(freqs[i], "Hz"),
-            f"{eng(a['capacitance_f'][i], 'F')}\n({rng(ranges['capacitance_f'][j], 'F')})",
-            f"{eng(a['effective_height_m'][i], 'm')}\n({rng(ranges['effective_height_m'][j], 'm')})",
+            f"{eng(freqs[i], 'Hz')}\n[dim]{escape(label.split(' ', 1)[0])} {escape(label.rsplit(' ', 2)[-2] if 'edge' in label else 'centre')}[/dim]",
+            f"{eng(a['capacitance_f'][i], 'F')}\n{span(ranges['capacitance_f'][j], 'F')}",
+            f"{eng(a['effective_height_m'][i], 'm')}\n{span(ranges['effective_height_m'][j], 'm')}",
             eng(a["radiation_resistance_ohm"][i], "Ω"),
-            f"{eng(loss, 'Ω')}\n({rng(ranges['loss_resistance_ohm'][j], 'Ω')})",
+            f"{eng(loss, 'Ω')}\n{span(ranges['loss_resistance_ohm'][j], 'Ω')}",
             eng(a["reactance_ohm"][i], "Ω"),
             f"{100 * a['efficiency'][i]:.2g} %",
-            f"{eng(a['open_circuit_voltage_v'][i], 'V')}\n({rng(ranges['open_circuit_voltage_v'][j], 'V')})",
-            f"{eng(a['available_power_w'][i], 'W')}\n({rng(ranges['available_power_w'][j], 'W')})",
+            f"{eng(a['open_circuit_voltage_v'][i], 'V')}\n{span(ranges['open_circuit_voltage_v'][j], 'V')}",
+            f"{eng(a['available_power_w'][i], 'W')}\n{span(ranges['available_power_w'][j], 'W')}",
         )
     console.print(t)
     conv = a.get("convergence")
