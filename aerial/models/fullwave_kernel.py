@@ -39,15 +39,14 @@ References
 from __future__ import annotations
 
 import numpy as np
-import scipy.sparse as sp
 
 from aerial.models.fullwave_geometry import Topology
 
 #: Gauss-Legendre points per piece for the regular part of the fill. [1]
-DEFAULT_GAUSS_POINTS = 4
+DEFAULT_GAUSS_POINTS = 3
 
 #: Pieces whose gap is below this many piece lengths get the accurate static part. [1]
-NEAR_GAP_FACTOR = 1.0
+NEAR_GAP_FACTOR = 2.0
 
 #: Bytes allowed for one block of kernel values during the fill. [byte]
 DEFAULT_CHUNK_BYTES = 16 * 2**20
@@ -208,8 +207,8 @@ class Filler:
         return p, q, acc
 
     # ---------------------------------------------------------------- fill
-    def _block(self, k, r0, r1, image):
-        """Piece-level integrals S_ef for rows r0:r1 against all pieces, shape (2, 2, Pc, P)."""
+    def _distances(self, r0, r1, image):
+        """Reduced-kernel distances between the Gauss points of rows r0:r1 and all pieces, (Pc,Q,P,Q). [m]"""
         Q = self.q
         x = self.pts[r0:r1].reshape(-1, 3)
         y = self.pts.reshape(-1, 3)
@@ -221,12 +220,11 @@ class Filler:
         Pc, P = r1 - r0, self.pts.shape[0]
         d2 = d2.reshape(Pc, Q, P, Q)
         d2 += self.a2[r0:r1, None, :, None]
-        r = np.sqrt(d2, out=d2)
-        if k == 0.0:
-            g = (1.0 / _FOUR_PI) / r
-        else:
-            kr = k * r
-            g = (np.cos(kr) - 1j * np.sin(kr)) / (_FOUR_PI * r)
+        return np.sqrt(d2, out=d2)
+
+    def _reduce(self, g, r0, r1, image, static_correction):
+        """Piece-level integrals S_ef (2, 2, Pc, P) of kernel values g at the Gauss points."""
+        Pc, P = r1 - r0, self.pts.shape[0]
         S = np.empty((2, 2, Pc, P), dtype=complex)
         h1 = np.einsum("aibj,bj->aib", g, self.wphi[1])
         h0 = np.einsum("aibj,bj->aib", g, self.wphi[0])
@@ -234,13 +232,33 @@ class Filler:
             we = self.wphi[e][r0:r1]
             S[e, 0] = np.einsum("ai,aib->ab", we, h0)
             S[e, 1] = np.einsum("ai,aib->ab", we, h1)
-        p, q, corr = self._near[image]
-        sel = (p >= r0) & (p < r1)
-        if np.any(sel):
-            for e in range(2):
-                for f in range(2):
-                    S[e, f, p[sel] - r0, q[sel]] += corr[sel, e, f]
+        if static_correction:
+            p, q, corr = self._near[image]
+            sel = (p >= r0) & (p < r1)
+            if np.any(sel):
+                for e in range(2):
+                    for f in range(2):
+                        S[e, f, p[sel] - r0, q[sel]] += corr[sel, e, f]
         return S
+
+    def _assemble(self, S, r0, r1, image, coefs, out):
+        """Add the basis-level contribution of piece rows r0:r1 to ``out`` (N, N)."""
+        te_T, ch_T = self.te_T, self.charge_T
+        if image:
+            parts = {"A_image_h": self.tt_h[r0:r1], "A_image_v": self.tt_v[r0:r1]}
+            pname = "Phi_image"
+        else:
+            parts = {"A_direct": self.tt_direct[r0:r1]}
+            pname = "Phi_direct"
+        # vector-potential parts: sum over ends of T_e^T (TT * S_ef) T_f
+        tt = sum(coefs[n] * parts[n] for n in parts if n in coefs)
+        if not isinstance(tt, int):
+            for e in range(2):
+                m = (te_T[0] @ (tt * S[e, 0]).T + te_T[1] @ (tt * S[e, 1]).T).T  # (Pc, N)
+                out += te_T[e][:, r0:r1] @ m
+        if pname in coefs:
+            g = S.sum(axis=(0, 1)) * coefs[pname]
+            out += ch_T[:, r0:r1] @ (ch_T @ g.T).T
 
     def fill(self, k: float, outputs, progress=None):
         """Basis-level matrices at wavenumber k.
@@ -257,35 +275,74 @@ class Filler:
         -------
         list of ndarray, complex, shape (N, N)
         """
-        topo = self.topo
-        N = topo.n_unknowns
-        P = topo.n_pieces
+        N, P = self.topo.n_unknowns, self.topo.n_pieces
         out = [np.zeros((N, N), dtype=complex) for _ in outputs]
         need_image = self.image and any(n in o for o in outputs for n in PART_NAMES[2:])
-        te_T, ch_T = self.te_T, self.charge_T
-        te = topo.t_end
         for r0 in range(0, P, self.rows):
             r1 = min(P, r0 + self.rows)
-            blocks = [(False, self._block(k, r0, r1, False))]
-            if need_image:
-                blocks.append((True, self._block(k, r0, r1, True)))
-            for image, S in blocks:
-                if image:
-                    parts = {"A_image_h": self.tt_h[r0:r1], "A_image_v": self.tt_v[r0:r1]}
-                    pname = "Phi_image"
+            for image in (False, True) if need_image else (False,):
+                r = self._distances(r0, r1, image)
+                if k == 0.0:
+                    g = (1.0 / _FOUR_PI) / r
                 else:
-                    parts = {"A_direct": self.tt_direct[r0:r1]}
-                    pname = "Phi_direct"
+                    kr = k * r
+                    g = np.exp(-1j * kr) / (_FOUR_PI * r)
+                S = self._reduce(g, r0, r1, image, True)
                 for o, coefs in zip(out, outputs):
-                    # vector-potential parts: sum over ends of T_e^T (TT * S_ef) T_f
-                    tt = sum(coefs[n] * parts[n] for n in parts if n in coefs)
-                    if not isinstance(tt, int):
-                        for e in range(2):
-                            m = (te_T[0] @ (tt * S[e, 0]).T + te_T[1] @ (tt * S[e, 1]).T).T  # (Pc, N)
-                            o += te_T[e][:, r0:r1] @ m
-                    if pname in coefs:
-                        g = S.sum(axis=(0, 1)) * coefs[pname]
-                        o += ch_T[:, r0:r1] @ (ch_T @ g.T).T
+                    self._assemble(S, r0, r1, image, coefs, o)
             if progress is not None:
                 progress(r1, P)
         return out
+
+    def series(self, k0: float, half_width: float, order: int):
+        """Taylor coefficients in x = (k - k0)/half_width of Y(k) = k^2 A(k) - Phi(k) (perfect ground).
+
+        Parameters
+        ----------
+        k0 : float
+            Expansion point. [rad/m]
+        half_width : float
+            Scale of x (half the sub-band). [rad/m]
+        order : int
+            Highest power of x kept in the kernel expansion. [1]
+
+        Returns
+        -------
+        ndarray, complex, shape (order + 3, N, N)
+            Y_j with Y(k) = sum_j Y_j x^j; the impedance matrix is
+            Z = (j eta / k) Y(k). [1/m]
+
+        Notes
+        -----
+        exp(-jkR)/R = exp(-j k0 R)/R * sum_n (-j h R x)^n / n!, h = half_width,
+        so each kernel value needs one exponential and ``order`` products; the
+        static correction of near pairs enters the n = 0 term only.
+        """
+        N, P = self.topo.n_unknowns, self.topo.n_pieces
+        y = np.zeros((order + 3, N, N), dtype=complex)
+        a_coefs = [{"A_direct": 1.0}, {"A_image_h": -1.0, "A_image_v": 1.0}]
+        p_coefs = [{"Phi_direct": 1.0}, {"Phi_image": -1.0}]
+        tmp_a = np.zeros((N, N), dtype=complex)
+        tmp_p = np.zeros((N, N), dtype=complex)
+        for r0 in range(0, P, self.rows):
+            r1 = min(P, r0 + self.rows)
+            for image in ((False, True) if self.image else (False,)):
+                r = self._distances(r0, r1, image)
+                g = np.exp(-1j * k0 * r) / (_FOUR_PI * r)
+                r *= half_width
+                scale = 1.0 + 0j
+                for n in range(order + 1):
+                    if n:
+                        g *= r  # e^{-j k0 R} (h R)^n / (4 pi R)
+                        scale *= -1j / n
+                    S = self._reduce(g, r0, r1, image, n == 0)
+                    if n:
+                        S *= scale
+                    tmp_a[:] = 0.0
+                    tmp_p[:] = 0.0
+                    self._assemble(S, r0, r1, image, a_coefs[image], tmp_a)
+                    self._assemble(S, r0, r1, image, p_coefs[image], tmp_p)
+                    y[n] += k0 * k0 * tmp_a - tmp_p
+                    y[n + 1] += (2 * k0 * half_width) * tmp_a
+                    y[n + 2] += (half_width * half_width) * tmp_a
+        return y

@@ -284,8 +284,8 @@ def test_band_interpolation_matches_direct_fill():
     seg = table_shape("inverted-L 10 + 20 m")
     f = np.linspace(0.5e6, 1.7e6, 12)
     a = solve_full_wave(seg, f, convergence_check=False)
-    b = solve_full_wave(seg, f, convergence_check=False, band_interpolation=False)
-    assert "degree" in a.interpolation and "direct" in b.interpolation
+    b = solve_full_wave(seg, f, convergence_check=False, band_expansion=False)
+    assert "Taylor" in a.band_method and "direct" in b.band_method
     assert np.allclose(a.impedance, b.impedance, rtol=1e-7)
 
 
