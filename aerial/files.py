@@ -41,6 +41,9 @@ def write_atomic(path, data: bytes | str, force: bool = False, protected=()) -> 
     try:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes 0600; give the file the usual permissions
         if p.exists() and not force:  # appeared meanwhile
             raise AerialError(f"{path}: already exists; choose another name or add --force to replace it")
         os.replace(tmp, p)

@@ -129,9 +129,11 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
         raise AerialError(f'--wire {wire}: expected a gauge with its system, such as "26 AWG" or "24 SWG"')
     try:
         g = units.parse_gauge(m.group(1))
+        if m.group(2).lower() == "awg" and not -3 <= g <= 40:
+            raise KeyError(g)
         wd = units.awg_diameter(g) if m.group(2).lower() == "awg" else units.swg_diameter(g)
     except (units.UnitError, KeyError):
-        raise AerialError(f"--wire {wire}: not a gauge in that system") from None
+        raise AerialError(f"--wire {wire}: not a gauge in that system (AWG 4/0 to 40, SWG 7/0 to 50)") from None
     p = length(pitch, "--pitch") if pitch else None
     try:
         f = units.parse_quantity(frequency, units.FREQUENCY_UNITS, "a frequency", "Hz")
@@ -171,4 +173,10 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
                 out[k] = float(np.asarray(v))
     from aerial.analysis import finalise
 
+    renames = {"turns_whole": "whole_turns", "winding_length": "winding_length_m", "inductance_whole": "inductance_whole_turns_h",
+               "wire_length": "wire_length_m", "ac_resistance": "ac_resistance_ohm", "dc_resistance": "dc_resistance_ohm",
+               "ac_factor": "ac_to_dc_resistance_ratio", "iterations": "solver_iterations"}
+    out = {renames.get(k, k): v for k, v in out.items()}
+    if "converged" in out:
+        out["converged"] = bool(out["converged"])
     return finalise(out)

@@ -294,16 +294,27 @@ def render_layout(result: dict, console) -> None:
     _lines(console, "Safety", result.get("cautions", []), "red")
 
 
+COIL_ROWS = (
+    ("turns", "turns", ""), ("whole turns", "whole_turns", ""), ("inductance", "inductance_h", "H"),
+    ("inductance with whole turns", "inductance_whole_turns_h", "H"), ("winding length", "winding_length_m", "m"),
+    ("form diameter", "form_diameter_m", "m"), ("wire diameter", "wire_diameter_m", "m"),
+    ("wire needed", "wire_length_m", "m"), ("DC resistance", "dc_resistance_ohm", "Ω"),
+    ("AC resistance", "ac_resistance_ohm", "Ω"), ("AC/DC resistance", "ac_to_dc_resistance_ratio", ""),
+    ("unloaded Q", "unloaded_q", ""), ("at frequency", "frequency_hz", "Hz"),
+)
+
+
 def render_coil(result: dict, console) -> None:
     t = Table(title="Single-layer coil", title_justify="left")
     t.add_column("quantity")
     t.add_column("value", justify="right")
-    for key, value in result.items():
-        if isinstance(value, (int, float)) and not isinstance(value, bool):
-            unit = {"_h": "H", "_m": "m", "_ohm": "Ω", "_hz": "Hz"}.get("_" + key.rsplit("_", 1)[-1], "")
-            t.add_row(key.replace("_", " "), eng(value, unit) if unit else f"{value:.4g}")
-        elif isinstance(value, str):
-            t.add_row(key.replace("_", " "), value)
+    for label, key, unit in COIL_ROWS:
+        value = result.get(key)
+        if value is None:
+            continue
+        t.add_row(label, eng(value, unit) if unit else f"{value:.4g}")
     console.print(t)
+    if result.get("converged") is False:
+        console.print("[yellow]• the turns search did not converge; treat the figure as approximate[/yellow]")
     for w in result.get("warnings", []):
-        console.print(f"[yellow]• {w}[/yellow]")
+        console.print(f"[yellow]• {escape(w)}[/yellow]")

@@ -113,3 +113,54 @@ def test_every_command_has_help(capsys):
         assert info.value.code == 0
         out, _ = capsys.readouterr()
         assert "usage: aerial " + cmd in out
+
+
+def test_coil_helper_gives_turns_and_length(capsys):
+    code, out, err = run(capsys, "coil", "--diameter", "50 mm", "--wire", "26 AWG", "--inductance", "240 uH", "--json")
+    assert code == 0, err
+    data = json.loads(out)
+    # Wheeler's formula / Nagaoka's current sheet: a 50 mm form needs roughly 70 close-wound turns of
+    # 26 AWG for 240 uH (consistency with tests/models/test_coil.py, computed from the formula)
+    assert 60 < data["turns"] < 80
+    assert data["winding_length_m"] == pytest.approx(data["whole_turns"] * data["wire_diameter_m"], rel=1e-6)
+    assert data["unloaded_q"] > 0
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["--wire", "99 AWG", "--turns", "3"], "not a gauge"),
+    (["--wire", "26", "--turns", "3"], "with its system"),
+    (["--wire", "26 AWG", "--turns", "0"], "--turns"),
+    (["--wire", "26 AWG", "--inductance", "-5 uH"], "greater than zero"),
+])
+def test_coil_helper_rejects_bad_input(capsys, argv, words):
+    code, _, err = run(capsys, "coil", "--diameter", "50 mm", *argv)
+    assert code == 2 and words in err and len(err.strip().splitlines()) == 1
+
+
+def test_pictures_are_written_and_never_overwritten(capsys, tmp_path):
+    pics = tmp_path / "pics"
+    code, _, err = run(capsys, "report", "--pictures", str(pics))
+    assert code == 0, err
+    names = sorted(p.name for p in pics.iterdir())
+    assert "aerial-impedance.svg" in names and "aerial-capacitance.svg" in names
+    import xml.etree.ElementTree as ET
+
+    ET.parse(pics / "aerial-impedance.svg")  # valid SVG (XML)
+    before = (pics / "aerial-impedance.svg").read_bytes()
+    code, _, err = run(capsys, "report", "--pictures", str(pics))
+    assert code == 2 and "already exists" in err and "--force" in err
+    assert (pics / "aerial-impedance.svg").read_bytes() == before
+    code, _, err = run(capsys, "report", "--pictures", str(pics), "--force")
+    assert code == 0, err
+    assert not [p for p in pics.iterdir() if p.name.endswith(".part")]
+
+
+def test_bench_measurement_replaces_the_estimate(capsys, write_site):
+    from .conftest import ROOT
+
+    text = (ROOT / "site_examples" / "backyard_inverted_l.toml").read_text()
+    text = text.replace('earphone = "high-impedance"\n', 'earphone = "high-impedance"\n\n[receiver.measured]\n'
+                        'coil = "240 uH"\ncapacitor = "150 pF"\nfrequency = "600 kHz"\n')
+    code, out, err = run(capsys, "report", str(write_site(text)), "--json")
+    assert code == 0, err
+    assert json.loads(out)["tuning"]["source"] == "measured"
