@@ -228,3 +228,22 @@ def test_check_reports_an_invalid_plan_with_exit_2(tmp_path, capsys):
     p.write_text(text, encoding="utf-8")
     assert main(["check", str(p)]) == EXIT_USER
     assert "plan.overhead_lines[0].height" in capsys.readouterr().err
+
+
+def test_report_refuses_an_unsafe_site_with_exit_3(tmp_path, capsys):
+    text = SITE.format(eave_y=30.0, oak_x=20.0, oak_y=16.0, rx_x=0, rx_y=31, lead_via="", kind='kind = "power"')
+    p = tmp_path / "unsafe.toml"
+    p.write_text(text, encoding="utf-8")
+    assert main(["report", str(p), "--json"]) == EXIT_REFUSED
+    captured = capsys.readouterr()
+    assert captured.out == ""
+    assert 'the support "oak" is 16.0 m (in plan) from the power line "street line"' in captured.err
+
+
+def test_example_site_passes_its_own_clearance():
+    from aerial.site import load_site
+
+    from .conftest import ROOT
+
+    report = enforce_site_clearance(load_site(ROOT / "site_examples" / "suburban_lot_service_line.toml"))
+    assert not report.refused and report.warnings == []
