@@ -380,15 +380,17 @@ def solve_full_wave(
     v = topo.feed_weight.astype(complex)
     t0, t1 = topo.t_end
     hand_pb, hand_qs, hand_lt, rca_unphysical = [], [], [], []
+    zi_all = system.piece_impedance(f)  # (P, F) wire impedance per metre
+    loss_all = system.loss_entries(zi_all)
 
     for done, i in enumerate(order, start=1):
         fi, k = f[i], k_all[i]
-        zi = system.piece_impedance(fi)
+        zi = zi_all[:, i]
         qs = k * system.size < QUASI_STATIC_KD
         if not qs:
             tab = next((t for t in tables if t.k_lo <= k <= t.k_hi), None)
             z = tab.matrix(k) if tab is not None else system.matrix_direct(k)
-            system.add_losses(z, zi)
+            system.add_losses(z, entries=loss_all[:, i])
             if not np.all(np.isfinite(z)):
                 qs = True
                 warnings.append(f"non-finite matrix at {fi:.6g} Hz: quasi-static solution used")

@@ -153,11 +153,16 @@ class FarField:
         self.t = t[first]
         s_a = np.einsum("pk,pk->p", start - self.centre[run], self.t[run])
         s_b = s_a + length
-        n = np.arange(self.N_TERMS + 2)
+        x_max = k_max * float(np.maximum(np.abs(s_a), np.abs(s_b)).max())
+        nt = 1
+        while nt < self.N_TERMS and x_max ** (nt + 1) / math.factorial(nt + 1) > 1e-14:
+            nt += 1
+        self.n_terms = nt
+        n = np.arange(nt + 2)
         self.pow_int = (s_b[:, None] ** (n + 1) - s_a[:, None] ** (n + 1)) / (n + 1)  # int s^n ds per piece
         self.s_a, self.length = s_a, length
         self.runs = sp.csr_matrix((np.ones(P), (run, np.arange(P))), shape=(n_run, P))
-        self.fact = np.array([math.factorial(i) for i in range(self.N_TERMS + 1)], dtype=float)
+        self.fact = np.array([math.factorial(i) for i in range(nt + 1)], dtype=float)
 
         pts = np.vstack([start, end])
         size = float(np.ptp(np.vstack([pts, pts * [1.0, 1.0, -1.0]]), axis=0).max())
@@ -176,13 +181,16 @@ class FarField:
         d = self.n_t * self.n_p
         rhat = rhat.reshape(d, 3)
         flip = np.array([1.0, 1.0, -1.0])
-        # per direction and run: r^.c and r^.t for the run and its image
-        self.rc = (rhat @ self.centre.T, rhat @ (self.centre * flip).T)
-        self.rt = (rhat @ self.t.T, rhat @ (self.t * flip).T)
-        # current directions of run and image (perfect-conductor image: horizontal part reversed)
+        # per direction, for the runs and then their images (columns 0..R-1, R..2R-1):
+        # r^.c, r^.t, and the theta and phi components of the current direction
+        # (perfect-conductor image: horizontal part reversed)
         tim = self.t * np.array([-1.0, -1.0, 1.0])
-        self.t_theta = (self.t @ th.reshape(d, 3).T, tim @ th.reshape(d, 3).T)  # (R, D)
-        self.t_phi = (self.t @ ph.reshape(d, 3).T, tim @ ph.reshape(d, 3).T)
+        self.rc = np.hstack([rhat @ self.centre.T, rhat @ (self.centre * flip).T])  # (D, 2R)
+        self.rt = np.hstack([rhat @ self.t.T, rhat @ (self.t * flip).T])
+        tt = np.vstack([self.t, tim])
+        self.t_theta = th.reshape(d, 3) @ tt.T  # (D, 2R)
+        self.t_phi = ph.reshape(d, 3) @ tt.T
+        self.n_run = n_run
 
     def power(self, k, current_ends, eps_c=None):
         """Radiated power into the upper half-space. [W]
@@ -201,19 +209,19 @@ class FarField:
         ia, ib = current_ends[:, 0], current_ends[:, 1]
         beta = (ib - ia) / self.length
         alpha = ia - beta * self.s_a
-        nt = self.N_TERMS
+        nt = self.n_terms
         moments = self.runs @ (alpha[:, None] * self.pow_int[:, : nt + 1] + beta[:, None] * self.pow_int[:, 1 : nt + 2])
-        moments = moments / self.fact  # (R, nt+1): M_n / n!
-        fields = []
-        for side in (0, 1):
-            u = 1j * k * self.rt[side]  # (D, R)
-            acc = np.broadcast_to(moments[:, nt], u.shape).copy()
-            for n in range(nt - 1, -1, -1):
-                acc *= u
-                acc += moments[:, n]
-            acc *= np.exp(1j * k * self.rc[side])
-            fields.append((np.sum(acc * self.t_theta[side].T, axis=1), np.sum(acc * self.t_phi[side].T, axis=1)))
-        (nt_d, np_d), (nt_i, np_i) = fields
+        moments = np.vstack([moments, moments]) / self.fact  # (2R, nt+1): M_n / n!, runs then images
+        u = 1j * k * self.rt  # (D, 2R)
+        acc = np.broadcast_to(moments[:, nt], u.shape).copy()
+        for n in range(nt - 1, -1, -1):
+            acc *= u
+            acc += moments[:, n]
+        acc *= np.exp(1j * k * self.rc)
+        r = self.n_run
+        a_t, a_p = acc * self.t_theta, acc * self.t_phi
+        nt_d, nt_i = a_t[:, :r].sum(axis=1), a_t[:, r:].sum(axis=1)
+        np_d, np_i = a_p[:, :r].sum(axis=1), a_p[:, r:].sum(axis=1)
         if eps_c is not None:
             r_h, r_v = fresnel_reflection(np.repeat(self.mu, self.n_p), eps_c)
             nt_i, np_i = nt_i * r_v, np_i * (-r_h)

@@ -49,7 +49,7 @@ DEFAULT_GAUSS_POINTS = 3
 NEAR_GAP_FACTOR = 2.0
 
 #: Bytes allowed for one block of kernel values during the fill. [byte]
-DEFAULT_CHUNK_BYTES = 16 * 2**20
+DEFAULT_CHUNK_BYTES = 4 * 2**20
 
 _FOUR_PI = 4.0 * np.pi
 PART_NAMES = ("A_direct", "Phi_direct", "A_image_h", "A_image_v", "Phi_image")
@@ -143,11 +143,8 @@ class Filler:
         self.pts = topo.start[:, None, :] + u[None, :, None] * (topo.end - topo.start)[:, None, :]  # (P,Q,3)
         W = w[None, :] * topo.length[:, None]
         self.wphi = (W * (1.0 - u)[None, :], W * u[None, :])  # shape weights, (P,Q) each
-        self.a2 = 0.5 * (topo.radius[:, None] ** 2 + topo.radius[None, :] ** 2)  # (P,P)
-        t = topo.tangent
-        self.tt_direct = t @ t.T
-        self.tt_h = t[:, :2] @ t[:, :2].T
-        self.tt_v = np.outer(t[:, 2], t[:, 2])
+        self.rad2 = topo.radius**2
+        self.t = topo.tangent
         self.rows = max(1, int(chunk_bytes // (16 * n_gauss * n_gauss * P)))
         self._near = {False: self._near_correction(False)}
         if image:
@@ -155,6 +152,7 @@ class Filler:
         te = topo.t_end
         self.te_T = (te[0].T.tocsr(), te[1].T.tocsr())
         self.charge_T = topo.charge.T.tocsr()
+        self._row_cache = {}
 
     # ---------------------------------------------------------------- near pairs
     def _near_pairs(self, image):
@@ -163,7 +161,7 @@ class Filler:
         src = mid * np.array([1.0, 1.0, -1.0]) if image else mid
         half = 0.5 * topo.length
         out_p, out_q = [], []
-        step = max(1, int(4_000_000 // max(len(mid), 1)))
+        step = max(1, int(2**20 // max(len(mid), 1)))
         for i0 in range(0, len(mid), step):
             d = np.linalg.norm(mid[i0 : i0 + step, None, :] - src[None, :, :], axis=2)
             gap = d - half[i0 : i0 + step, None] - half[None, :]
@@ -183,11 +181,11 @@ class Filler:
         a_q = topo.start[q] * flip
         t_q = topo.tangent[q] * flip
         L_q = topo.length[q]
-        a2 = self.a2[p, q]
+        a2 = 0.5 * (self.rad2[p] + self.rad2[q])
         # accurate: graded outer rule on piece p, analytic inner on piece q
         uo, wo = graded_rule()
         acc = np.zeros((len(p), 2, 2))
-        step = max(1, int(2_000_000 // len(uo)))
+        step = max(1, int(2**18 // len(uo)))
         for s in range(0, len(p), step):
             sl = slice(s, s + step)
             obs = topo.start[p[sl], None, :] + uo[None, :, None] * (topo.end[p[sl]] - topo.start[p[sl]])[:, None, :]
@@ -219,7 +217,7 @@ class Filler:
         d2 += (x[:, None, 2] - y[None, :, 2]) ** 2
         Pc, P = r1 - r0, self.pts.shape[0]
         d2 = d2.reshape(Pc, Q, P, Q)
-        d2 += self.a2[r0:r1, None, :, None]
+        d2 += 0.5 * (self.rad2[r0:r1, None, None, None] + self.rad2[None, None, :, None])
         return np.sqrt(d2, out=d2)
 
     def _reduce(self, g, r0, r1, image, static_correction):
@@ -245,20 +243,34 @@ class Filler:
         """Add the basis-level contribution of piece rows r0:r1 to ``out`` (N, N)."""
         te_T, ch_T = self.te_T, self.charge_T
         if image:
-            parts = {"A_image_h": self.tt_h[r0:r1], "A_image_v": self.tt_v[r0:r1]}
+            t = self.t
+            parts = {"A_image_h": t[r0:r1, :2] @ t[:, :2].T, "A_image_v": np.outer(t[r0:r1, 2], t[:, 2])}
             pname = "Phi_image"
         else:
-            parts = {"A_direct": self.tt_direct[r0:r1]}
+            parts = {"A_direct": self.t[r0:r1] @ self.t.T}
             pname = "Phi_direct"
         # vector-potential parts: sum over ends of T_e^T (TT * S_ef) T_f
         tt = sum(coefs[n] * parts[n] for n in parts if n in coefs)
         if not isinstance(tt, int):
             for e in range(2):
                 m = (te_T[0] @ (tt * S[e, 0]).T + te_T[1] @ (tt * S[e, 1]).T).T  # (Pc, N)
-                out += te_T[e][:, r0:r1] @ m
+                rows, left = self._rows(("t", e, r0, r1), te_T[e])
+                out[rows] += left @ m
         if pname in coefs:
             g = S.sum(axis=(0, 1)) * coefs[pname]
-            out += ch_T[:, r0:r1] @ (ch_T @ g.T).T
+            rows, left = self._rows(("c", r0, r1), ch_T)
+            out[rows] += left @ (ch_T @ g.T).T
+
+    def _rows(self, key, mat_T):
+        """Basis rows touched by pieces r0:r1 of a (N, P) incidence matrix, and that block (cached)."""
+        hit = self._row_cache.get(key)
+        if hit is None:
+            r0, r1 = key[-2], key[-1]
+            block = mat_T[:, r0:r1].tocsr()
+            rows = np.unique(block.nonzero()[0])
+            hit = (rows, block[rows])
+            self._row_cache[key] = hit
+        return hit
 
     def fill(self, k: float, outputs, progress=None):
         """Basis-level matrices at wavenumber k.

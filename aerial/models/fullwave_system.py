@@ -89,20 +89,29 @@ def wire_impedance_per_m(radius, frequency, resistivity, relative_permeability):
     Uses :func:`aerial.models.conductor.internal_impedance_per_m` (the exact
     Bessel form of Ramo, Whinnery and Van Duzer) when it is available.
     """
-    radius, resistivity, mur = np.broadcast_arrays(radius, resistivity, relative_permeability)
+    radius, frequency, resistivity, mur = np.broadcast_arrays(radius, frequency, resistivity, relative_permeability)
     out = np.zeros(radius.shape, dtype=complex)
     ok = resistivity > 0
     if np.any(ok):
         fn = _internal_impedance if _internal_impedance is not None else _internal_impedance_fallback
-        out[ok] = np.asarray(fn(radius[ok], frequency, resistivity[ok], mur[ok]), dtype=complex)
+        out[ok] = np.asarray(fn(radius[ok], frequency[ok], resistivity[ok], mur[ok]), dtype=complex)
     return out
 
 
 def lu_solve(z, rhs):
-    """Solve z x = rhs by LU (z is overwritten); return x and the 1-norm condition estimate."""
-    anorm = np.abs(z).sum(axis=0).max()
-    lu, piv = sla.lu_factor(z, overwrite_a=True, check_finite=False)
-    x = sla.lu_solve((lu, piv), rhs, check_finite=False)
+    """Solve z x = rhs by LU, in place (z is overwritten); return x and a condition estimate.
+
+    The transpose of the C-ordered z is factored (a Fortran-ordered view, so
+    no copy) and the transposed system solved; the condition number is the
+    LAPACK 1-norm estimate of z^T (the infinity-norm one of z).
+    """
+    n = z.shape[0]
+    anorm = 0.0
+    step = max(1, 2**21 // max(n, 1))
+    for r0 in range(0, n, step):
+        anorm = max(anorm, float(np.abs(z[r0 : r0 + step]).sum(axis=1).max()))
+    lu, piv = sla.lu_factor(z.T, overwrite_a=True, check_finite=False)
+    x = sla.lu_solve((lu, piv), rhs, trans=1, check_finite=False)
     rcond, _ = sla.lapack.zgecon(lu, anorm, norm="1")
     cond = 1.0 / rcond if rcond > 0 else np.inf
     return x, cond
@@ -143,6 +152,7 @@ class System:
         uniq, self._wire_of_piece = np.unique(kinds, axis=0, return_inverse=True)
         self._wire_of_piece = self._wire_of_piece.ravel()
         self._wire_kinds = (uniq[:, 0], uniq[:, 1], uniq[:, 2])
+        self._electrode_at = np.flatnonzero(topo.electrode)
         self._loss_pattern()
 
     # ------------------------------------------------------------ losses
@@ -165,14 +175,26 @@ class System:
         self._loss_map = sp.csr_matrix((weight, (inv.ravel(), piece)), shape=(len(uniq), self.topo.n_pieces))
 
     def piece_impedance(self, frequency):
-        """Wire internal impedance Z' of every piece at one frequency. [ohm/m]"""
+        """Wire internal impedance Z' of every piece, shape (P,) or (P, F) for an array of frequencies. [ohm/m]"""
         r, rho, mur = self._wire_kinds
-        return wire_impedance_per_m(r, frequency, rho, mur)[self._wire_of_piece]
+        f = np.asarray(frequency, dtype=float)
+        if f.ndim == 0:
+            return wire_impedance_per_m(r, float(f), rho, mur)[self._wire_of_piece]
+        zk = wire_impedance_per_m(r[:, None], f[None, :], rho[:, None], mur[:, None])  # (kinds, F)
+        return zk[self._wire_of_piece]
 
-    def add_losses(self, z, zi):
-        """Add the wire impedance zi [ohm/m] per piece and the electrode resistance to z in place."""
-        z[self._loss_index] += self._loss_map @ (zi * self.topo.length)
-        z[np.diag_indices_from(z)] += self.topo.electrode
+    def loss_entries(self, zi):
+        """Values of the loss matrix at ``loss_index`` for Z' per piece, shape (nnz,) or (nnz, F). [ohm]"""
+        zl = zi * (self.topo.length if zi.ndim == 1 else self.topo.length[:, None])
+        return self._loss_map @ zl
+
+    def add_losses(self, z, zi=None, entries=None):
+        """Add the wire impedance (zi [ohm/m] per piece, or precomputed ``entries``) and the electrode resistance."""
+        if entries is None:
+            entries = self.loss_entries(zi)
+        z[self._loss_index] += entries
+        if self._electrode_at.size:
+            z[self._electrode_at, self._electrode_at] += self.topo.electrode[self._electrode_at]
         return z
 
     def loss_matrix(self, zi):
