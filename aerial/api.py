@@ -13,7 +13,7 @@ def check_site(path) -> dict:
     from aerial.site import load_site
 
     site = load_site(path)
-    refusal_check(site)
+    clearance_warnings = refusal_check(site)
     geo = resolve(site)
     freqs = frequency_grid(site)
     return finalise({
@@ -35,17 +35,19 @@ def check_site(path) -> dict:
         "frequency_count": len(freqs),
         "stations": len(site.stations),
         "cautions": cautions_for(site),
-        "warnings": list(site.notes),
+        "warnings": list(site.notes) + clearance_warnings,
     })
 
 
-def refusal_check(site) -> None:
-    """Refuse (raise SafetyRefusal) a site whose own wire breaks a power-line clearance."""
-    try:
-        from aerial.clearance import enforce_site_clearance
-    except ImportError:  # the planner module is optional at this stage
-        return
-    enforce_site_clearance(site)
+def refusal_check(site) -> list[str]:
+    """Refuse (raise SafetyRefusal) a site whose own wire breaks a power-line clearance.
+
+    Returns the clearance warnings (wires outside the lot, telephone or cable crossings).
+    """
+    from aerial.clearance import enforce_site_clearance
+
+    report = enforce_site_clearance(site)
+    return list(getattr(report, "warnings", []) or [])
 
 
 def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=None, force=False, ground="perfect") -> dict:
@@ -54,13 +56,15 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
     from aerial.site import load_site
 
     site = load_site(path)
-    refusal_check(site)
+    clearance_warnings = refusal_check(site)
     if pictures:
         from aerial.pictures import check_picture_folder
 
         check_picture_folder(pictures, force, site)
     result = analyse(site, method="full-wave" if full_wave else "closed-form", step_hz=step_hz, progress=progress,
                      ground=ground)
+    if clearance_warnings:
+        result["warnings"] = clearance_warnings + [w for w in result["warnings"] if w not in clearance_warnings]
     if pictures:
         from aerial.pictures import draw_report_pictures
 
@@ -68,7 +72,7 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
     return result
 
 
-def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allow_large=False) -> dict:
+def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allow_large=False, progress=None) -> dict:
     from aerial.site import load_site
 
     site = load_site(path)
@@ -80,7 +84,8 @@ def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allo
         from aerial.files import check_writable
 
         check_writable(picture, force, protected=(site.path,))
-    return plan_layouts(site, best=best, full_wave=full_wave, picture=picture, force=force, allow_large=allow_large)
+    return plan_layouts(site, best=best, full_wave=full_wave, picture=picture, force=force, allow_large=allow_large,
+                        progress=progress)
 
 
 def coil_helper(*, diameter, wire, turns=None, inductance=None, pitch=None, strands=1, frequency="1 MHz") -> dict:

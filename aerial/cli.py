@@ -161,8 +161,13 @@ def cmd_report(args) -> int:
 def cmd_layout(args) -> int:
     from aerial.api import run_layout
 
-    result = run_layout(args.site, best=args.best, full_wave=args.full_wave, picture=args.picture,
-                        force=args.force, allow_large=args.allow_large)
+    update, stop = _progress_factory(sys.stderr.isatty() and not args.json)
+    try:
+        result = run_layout(args.site, best=args.best, full_wave=args.full_wave, picture=args.picture,
+                            force=args.force, allow_large=args.allow_large, progress=update)
+    finally:
+        if stop:
+            stop()
     if args.json:
         _print_json(result)
     else:

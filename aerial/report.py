@@ -97,6 +97,7 @@ def _summary_line(geo: dict) -> str:
 def _lines(console, title, lines, style):
     if not lines:
         return
+    lines = [str(x) for x in lines]
     body = Text()
     for i, line in enumerate(lines):
         if i:
@@ -274,22 +275,33 @@ def _render_stations(stations, console) -> None:
 
 def render_layout(result: dict, console) -> None:
     console.print(f"[bold]{escape(result['site']['name'])}[/bold]  ({escape(result['site']['file'])})")
-    console.print(f"objective: {result.get('objective', '')}")
+    console.print(f"objective: {escape(result.get('objective', ''))}")
     console.print(f"candidates: {result.get('candidates_considered', 0)} considered, "
                   f"{result.get('candidates_refused', 0)} refused for safety or geometry")
+    excluded = {k: v for k, v in (result.get("excluded") or {}).items() if v}
+    if excluded:
+        console.print("[dim]excluded: " + escape(", ".join(f"{k} ({v})" for k, v in excluded.items())) + "[/dim]")
+    unit = result.get("score_unit", "")
     t = Table(title="Best safe layouts", title_justify="left")
-    for col in ("rank", "layout", "wire", "effective height", "capacitance", "score", "why"):
-        t.add_column(col, justify="right" if col in ("rank", "wire", "effective height", "capacitance", "score") else "left")
-    for i, c in enumerate(result.get("layouts", []), 1):
-        t.add_row(str(i), c.get("description", ""), eng(c.get("wire_length_m"), "m"), eng(c.get("effective_height_m"), "m"),
-                  eng(c.get("capacitance_f"), "F"), f"{c.get('score', 0):.3g}", c.get("reason", ""))
+    for col in ("#", "layout", "wire", "eff. height", "capacitance", f"score [{unit}]" if unit else "score"):
+        t.add_column(col, justify="left" if col == "layout" else "right")
+    layouts = result.get("layouts", [])
+    for i, c in enumerate(layouts, 1):
+        t.add_row(str(i), escape(c.get("description", "")), eng(c.get("wire_length_m"), "m"),
+                  eng(c.get("effective_height_m"), "m"), eng(c.get("capacitance_f"), "F"), f"{c.get('score', 0):.1f}")
     console.print(t)
-    for section in ("apartment", "code_checklist"):
+    for i, c in enumerate(layouts, 1):
+        if c.get("reason"):
+            console.print(f"  {i}. {escape(c['reason'])}")
+    fw = result.get("full_wave")
+    if isinstance(fw, dict) and fw.get("note"):
+        console.print(f"full-wave check of the winner: {escape(fw['note'])}")
+    for section, title in (("apartment", "Apartment"), ("code_checklist", "Code checklist (typical requirements, not a compliance check)")):
         lines = result.get(section)
         if lines:
-            _lines(console, section.replace("_", " ").capitalize(), lines, "blue")
+            _lines(console, title, lines, "blue")
     if result.get("picture"):
-        console.print(f"plan drawing: {result['picture']}")
+        console.print(f"plan drawing: {escape(str(result['picture']))}")
     _lines(console, "Warnings", result.get("warnings", []), "yellow")
     _lines(console, "Safety", result.get("cautions", []), "red")
 
