@@ -59,6 +59,7 @@ from aerial.models.fullwave_system import (
     System,
     loop_tree_currents,
     lu_solve,
+    build_table,
     plan_band,
     quasi_static_currents,
     wire_impedance_per_m,
@@ -301,8 +302,19 @@ def solve_full_wave(
     which stays accurate; where even the currents are not resolved (or the
     aerial is electrically tiny) the quasi-static solution of the same
     discretisation is used (C and h_e from the k -> 0 charge problem,
-    R_rad = 160 pi^2 (h_e/lambda)^2). Both hand-offs are reported in
-    ``warnings`` and ``method``.
+    R_rad = 160 pi^2 (h_e/lambda)^2), or, for wires forming a loop, the
+    loop-tree basis. Every hand-off is reported in ``warnings`` and ``method``.
+
+    Band sweeps on a perfect ground use Taylor-series tables of the matrix in
+    k (:mod:`aerial.models.fullwave_system`); ``band_method`` says how.
+
+    Examples
+    --------
+    >>> from aerial.models.segments import polyline_segments
+    >>> seg = polyline_segments([[0, 0, 0.02], [0, 0, 10.02]], 1e-3)   # 10 m vertical, 2 cm gap
+    >>> r = solve_full_wave(seg, [100e3], convergence_check=False)
+    >>> round(float(r.capacitance[0]) * 1e12, 1), round(float(r.effective_height[0].real), 2)
+    (68.6, 4.85)
 
     References
     ----------
@@ -356,13 +368,12 @@ def solve_full_wave(
     # ---------- band plan
     order = np.argsort(f)
     k_all = 2 * np.pi * f / C0
-    tables = []
+    plan = []
     if band_expansion and ground == "perfect":
-        tables, notes = plan_band(system, k_all[order], expansion_tolerance, memory_limit)
+        plan, notes = plan_band(system, k_all[order], expansion_tolerance, memory_limit)
         warnings.extend(notes)
-    band_method = "direct fill at every frequency" if not tables else "Taylor series in k: " + "; ".join(
-        f"{t.k_lo * C0 / 2 / np.pi / 1e6:.6g}-{t.k_hi * C0 / 2 / np.pi / 1e6:.6g} MHz order {t.order}" for t in tables
-    )
+    used_tables = []
+    table, table_band = None, None
     far = FarField(topo.start, topo.end, topo.parent, k_all.max())
 
     F = f.size
@@ -388,8 +399,15 @@ def solve_full_wave(
         zi = zi_all[:, i]
         qs = k * system.size < QUASI_STATIC_KD
         if not qs:
-            tab = next((t for t in tables if t.k_lo <= k <= t.k_hi), None)
-            z = tab.matrix(k) if tab is not None else system.matrix_direct(k)
+            band = next((p for p in plan if p[0] <= k <= p[1]), None)
+            if band is not None and band is not table_band:
+                table, table_band = None, band  # drop the previous table before building the next
+                table, note = build_table(system, *band)
+                if note:
+                    warnings.append(note)
+                if table is not None:
+                    used_tables.append((band[0], band[1], table.order))
+            z = table.matrix(k) if (band is not None and table is not None) else system.matrix_direct(k)
             system.add_losses(z, entries=loss_all[:, i])
             if not np.all(np.isfinite(z)):
                 qs = True
@@ -539,7 +557,9 @@ def solve_full_wave(
         convergence_tolerance=float(convergence_tolerance),
         n_unknowns=N,
         n_pieces=P,
-        band_method=band_method,
+        band_method="direct fill at every frequency" if not used_tables else "Taylor series in k: " + "; ".join(
+            f"{a * C0 / 2 / np.pi / 1e6:.6g}-{b * C0 / 2 / np.pi / 1e6:.6g} MHz order {o}" for a, b, o in used_tables
+        ),
         ground=ground,
         model=model,
         warnings=tuple(dict.fromkeys(warnings)),

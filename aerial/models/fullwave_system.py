@@ -309,49 +309,63 @@ def series_order(half_width, r_max, tol):
 
 
 def plan_band(system: System, k_sorted, tol, memory_limit):
-    """Band tables worth building for a sweep (perfect ground), checked against a direct fill.
+    """Sub-bands worth a Taylor-series table for a sweep (perfect ground).
 
     Returns
     -------
-    tables : list of SeriesTable
+    plan : list of (k_lo, k_hi, order)
+        Sub-bands holding four or more of the frequencies, in increasing k.
+        Tables are built one at a time (:func:`build_table`) as the sweep
+        reaches them, so only one is held in memory.
     notes : list of str
-        Why tables were not built, or were raised in order.
+        Why no table is planned.
     """
     notes = []
     if len(k_sorted) < 4:
         return [], notes
     N = system.topo.n_unknowns
-    r_max = system.size
     k_lo, k_hi = k_sorted[0], k_sorted[-1]
     n_sub = 1
-    order = series_order(0.5 * (k_hi - k_lo), r_max, tol)
+    order = series_order(0.5 * (k_hi - k_lo), system.size, tol)
     while order is None:
         n_sub *= 2
-        order = series_order(0.5 * (k_hi - k_lo) / n_sub, r_max, tol)
-    if (order + 4) * N * N * 16 > memory_limit:
+        order = series_order(0.5 * (k_hi - k_lo) / n_sub, system.size, tol)
+    if (MAX_SERIES_ORDER + 4) * N * N * 16 > memory_limit:
         notes.append("band tables skipped: they would exceed the memory limit; direct fill at every frequency")
         return [], notes
     edges = np.linspace(k_lo, k_hi, n_sub + 1)
-    tables = []
+    plan = []
     for a, b in zip(edges[:-1], edges[1:]):
-        inside = np.count_nonzero((k_sorted >= a) & (k_sorted <= b))
-        if inside < 4:
-            continue
-        ordr = order
-        while True:
-            tab = SeriesTable(system, a, b, ordr)
-            z_tab = system.feed_impedance(tab.matrix(b))
-            z_dir = system.feed_impedance(system.matrix_direct(b))
-            err = abs(z_tab - z_dir) / abs(z_dir)
-            if err <= SERIES_CHECK_TOLERANCE or ordr + 4 > MAX_SERIES_ORDER:
-                break
-            ordr += 4
-            notes.append(f"band table order raised to {ordr} (check mismatch {err:.2g})")
-        if err > SERIES_CHECK_TOLERANCE:
-            notes.append(f"band table for {a:.4g}-{b:.4g} rad/m rejected (mismatch {err:.2g}); direct fill used")
-            continue
-        tables.append(tab)
-    return tables, notes
+        if np.count_nonzero((k_sorted >= a) & (k_sorted <= b)) >= 4:
+            plan.append((a, b, order))
+    return plan, notes
+
+
+def build_table(system: System, k_lo, k_hi, order):
+    """Build one sub-band table and check it against a direct fill at the upper edge.
+
+    The order is raised by 4 (up to ``MAX_SERIES_ORDER``) while the input
+    impedance from the table differs from the direct one by more than
+    ``SERIES_CHECK_TOLERANCE``.
+
+    Returns
+    -------
+    table : SeriesTable or None
+        None when no order passes the check (the sub-band is then filled directly).
+    note : str
+        Empty, or what happened.
+    """
+    z_dir = system.feed_impedance(system.matrix_direct(k_hi))
+    note = ""
+    while True:
+        tab = SeriesTable(system, k_lo, k_hi, order)
+        err = abs(system.feed_impedance(tab.matrix(k_hi)) - z_dir) / abs(z_dir)
+        if err <= SERIES_CHECK_TOLERANCE:
+            return tab, note
+        if order + 4 > MAX_SERIES_ORDER:
+            return None, f"band table rejected (check mismatch {err:.2g}); direct fill used in that sub-band"
+        order += 4
+        note = f"band table order raised to {order} (check mismatch {err:.2g})"
 
 
 def loop_tree_currents(system: System, k, v, zloss):

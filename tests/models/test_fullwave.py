@@ -289,6 +289,16 @@ def test_band_interpolation_matches_direct_fill():
     assert np.allclose(a.impedance, b.impedance, rtol=1e-7)
 
 
+def test_wide_band_sweep_splits_into_sub_bands_and_matches_direct_fill():
+    seg = table_shape("T 10 m + 2 x 10 m")
+    f = np.geomspace(0.15e6, 12e6, 24)
+    a = solve_full_wave(seg, f, convergence_check=False)
+    b = solve_full_wave(seg, f, convergence_check=False, band_expansion=False)
+    assert a.band_method.count("order") >= 2
+    assert np.allclose(a.impedance, b.impedance, rtol=1e-6)
+    assert np.allclose(a.radiation_resistance, b.radiation_resistance, rtol=1e-5)
+
+
 def test_progress_callback_and_result_shape():
     calls = []
     f = [3e5, 1e5, 2e5]
