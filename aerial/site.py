@@ -33,6 +33,21 @@ BUILTIN_RESOURCE = "backyard_inverted_l.toml"
 #: Largest site file read [bytes]; a larger one is refused before parsing.
 MAX_FILE_BYTES = 2_000_000
 
+#: Most straight wire pieces a site may hold (spans count SAG_PIECES each when they sag; the lead-in,
+#: earth lead and counterpoise wires count too). The electrostatic solution cuts every piece into
+#: about 20 unknowns and solves a dense system several times per report, so this keeps a report
+#: to tens of seconds and a few hundred MB on a small machine.
+MAX_WIRE_PIECES = 100
+
+#: Largest coordinate, height or length inside a site (a lot, its supports and its wires). [m]
+MAX_SITE_LENGTH_M = 10_000.0
+
+#: Largest distance to a station (half the Earth's circumference). [m]
+MAX_STATION_DISTANCE_M = 20_000e3
+
+#: Thinnest wire accepted (about 50 SWG is 0.025 mm). [m]
+MIN_WIRE_DIAMETER_M = 0.01e-3
+
 #: Points closer than this are the same point (wires joined there). [m]
 JOIN_TOLERANCE_M = 0.01
 
@@ -272,21 +287,29 @@ class _Reader:
             self.fail(full, value, "expected one of " + ", ".join(f'"{c}"' for c in choices))
         return value
 
-    def length(self, data, key, name, default=None, minimum=None, positive=False, required=False):
+    def length(self, data, key, name, default=None, minimum=None, positive=False, required=False,
+               maximum=MAX_SITE_LENGTH_M):
         full = f"{key}.{name}" if key else name
         value = data.get(name)
         if value is None:
             if required:
                 self.fail(full, "", "missing: expected a length such as 12 or \"40 ft\"")
             return default
-        try:
-            metres = units.parse_length(value)
-        except units.UnitError as err:
-            self.fail(full, value, err.expected)
+        metres = self.metres(value, full, maximum)
         if positive and metres <= 0:
             self.fail(full, value, "expected a length greater than zero")
         if minimum is not None and metres < minimum:
             self.fail(full, value, f"expected a length of at least {minimum:g} m")
+        return metres
+
+    def metres(self, value, full, maximum=MAX_SITE_LENGTH_M):
+        """A length in metres, refused when not finite or beyond ``maximum`` either way."""
+        try:
+            metres = units.parse_length(value)
+        except units.UnitError as err:
+            self.fail(full, value, err.expected)
+        if abs(metres) > maximum:
+            self.fail(full, value, f"expected a length within {maximum / 1e3:g} km; check the number and its unit")
         return metres
 
     def quantity(self, data, key, name, table, kind, default_unit, default=None, positive=True):
@@ -337,23 +360,12 @@ class _Reader:
     def plan_point(self, value, key):
         if not isinstance(value, list) or len(value) != 2:
             self.fail(key, value, "expected a plan position [x, y] (metres east and north, or strings with units)")
-        out = []
-        for i, item in enumerate(value):
-            try:
-                out.append(units.parse_length(item))
-            except units.UnitError as err:
-                self.fail(f"{key}[{i}]", item, err.expected)
-        return out
+        return [self.metres(item, f"{key}[{i}]") for i, item in enumerate(value)]
 
     def point3(self, value, key):
         if not isinstance(value, list) or len(value) != 3:
             self.fail(key, value, "expected a point [x, y, height] (metres, or strings with units)")
-        out = []
-        for i, item in enumerate(value):
-            try:
-                out.append(units.parse_length(item))
-            except units.UnitError as err:
-                self.fail(f"{key}[{i}]", item, err.expected)
+        out = [self.metres(item, f"{key}[{i}]") for i, item in enumerate(value)]
         if out[2] < 0:
             self.fail(f"{key}[2]", value[2], "a point below ground: heights are measured up from the ground (0 or more)")
         return out
@@ -389,6 +401,8 @@ def load_site(path) -> Site:
         raise SiteError(shown, "", "", "no such file")
     if p.is_dir():
         raise SiteError(shown, "", "", "is a folder; expected a site file (.toml)")
+    if not p.is_file():  # a named pipe or a device would block or never end
+        raise SiteError(shown, "", "", "is not a regular file; expected a site file (.toml)")
     try:
         size = p.stat().st_size
         if size > MAX_FILE_BYTES:
@@ -398,6 +412,8 @@ def load_site(path) -> Site:
         raise SiteError(shown, "", "", "cannot be read (permission denied)") from None
     except OSError as err:
         raise SiteError(shown, "", "", f"cannot be read ({err.strerror or err})") from None
+    if data.startswith(b"\xef\xbb\xbf"):  # a UTF-8 byte-order mark, as some editors save: not part of the text
+        data = data[3:]
     try:
         text = data.decode("utf-8")
     except UnicodeDecodeError as err:
@@ -451,6 +467,7 @@ def _build(r: _Reader, raw: dict, text: str, path: str) -> Site:
     soil = _soil(r, raw.get("soil", site_t.get("soil", "medium-dry")), "soil" if "soil" in raw else "site.soil")
     default_size = _wire_size(r, r.table(raw, "", "wire"), "wire", None)
     supports = _supports(r, raw)
+    _check_table_count(r, raw)
     wires: list[WireRun] = []
     wires += _spans(r, raw, supports, default_size)
     wires += _runs(r, raw, default_size)
@@ -465,6 +482,8 @@ def _build(r: _Reader, raw: dict, text: str, path: str) -> Site:
     stations = _stations(r, raw, soil)
     plan = r.table(raw, "", "plan")
     _check_wires(r, wires)
+    _check_piece_count(r, wires)
+    _check_overlaps(r, wires)
     return Site(
         path=path, name=name, text=text, region=region, noise=noise, soil=soil, bands=bands,
         frequency_step_hz=steps, supports=supports, wires=wires, receiver=receiver, electrodes=electrodes,
@@ -603,6 +622,9 @@ def _wire_size(r: _Reader, t: dict, key: str, default: WireSize | None) -> WireS
         desc = f"{area * 1e6:g} mm² cross-section"
     if d > 0.2:
         r.fail(f"{key}.{what}", value, "a wire diameter above 200 mm is not a wire; check the unit")
+    if d < MIN_WIRE_DIAMETER_M:
+        r.fail(f"{key}.{what}", value, f"a wire diameter below {MIN_WIRE_DIAMETER_M * 1e3:g} mm is thinner than any "
+               "gauge; check the unit")
     return WireSize(d / 2.0, material, desc)
 
 
@@ -955,7 +977,7 @@ def _stations(r: _Reader, raw, soil: SoilSpec) -> list:
         p = r.quantity(t, key, "power", units.POWER_UNITS, "a transmitter power", "W")
         if p is None:
             r.fail(f"{key}.power", "", 'missing: expected a transmitter power such as "10 kW"')
-        d = r.length(t, key, "distance", required=True, positive=True)
+        d = r.length(t, key, "distance", required=True, positive=True, maximum=MAX_STATION_DISTANCE_M)
         st_soil = soil
         if "soil" in t:
             s = t["soil"]
@@ -977,3 +999,66 @@ def _check_wires(r: _Reader, wires):
             r.fail(w.key, w.size.described_as,
                    f"the wire radius ({w.size.radius_m * 1e3:g} mm) is not small next to a {seg[j]:.3g} m piece of "
                    f"\"{w.name}\"; each straight piece must be at least {MIN_LENGTH_TO_RADIUS:g} radii long")
+
+
+def _check_table_count(r: _Reader, raw):
+    """Refuse, before building anything, a file with more spans and runs than wire pieces allowed."""
+    n = 0
+    for name in ("spans", "runs"):
+        value = raw.get(name)
+        if isinstance(value, list):
+            n += len(value)
+            if n > MAX_WIRE_PIECES:
+                r.fail(f"{name}[{len(value) - 1}]", f"{n} spans and runs",
+                       f"too many wires: a site holds at most {MAX_WIRE_PIECES} straight wire pieces")
+
+
+def _check_piece_count(r: _Reader, wires):
+    """Refuse a site with more straight pieces than :data:`MAX_WIRE_PIECES`."""
+    total = 0
+    for w in wires:
+        total += len(w.points_m) - 1
+        if total > MAX_WIRE_PIECES:
+            r.fail(w.key, f"{total} pieces so far",
+                   f"too many wire pieces: a site holds at most {MAX_WIRE_PIECES} straight pieces (a sagging span "
+                   f"counts {SAG_PIECES}); join straight runs, leave out sag, or describe fewer wires")
+
+
+def _check_overlaps(r: _Reader, wires):
+    """Refuse wires that lie along one another (a duplicated span, a run doubling back on itself).
+
+    Points at the quarter, half and three-quarter marks of every straight piece
+    are tested against every other piece; one closer than
+    :data:`JOIN_TOLERANCE_M` to it (and not at a shared end) means two
+    conductors occupy the same place, which no wire model can solve.
+    """
+    starts, ends, owner = [], [], []
+    for i, w in enumerate(wires):
+        p = np.asarray(w.points_m, float)
+        starts.append(p[:-1])
+        ends.append(p[1:])
+        owner += [(i, j) for j in range(len(p) - 1)]
+    a = np.vstack(starts)
+    b = np.vstack(ends)
+    n = len(a)
+    if n < 2:
+        return
+    t = np.array([0.25, 0.5, 0.75])
+    samples = a[:, None, :] + t[None, :, None] * (b - a)[:, None, :]  # (n, 3, 3)
+    ab = b - a
+    ab2 = np.maximum(np.einsum("ij,ij->i", ab, ab), 1e-30)
+    for i in range(n):
+        q = samples[i]  # (3, 3)
+        s = np.clip(np.einsum("kj,mj->km", q, ab) - np.einsum("mj,mj->m", a, ab)[None, :], 0, None) / ab2[None, :]
+        s = np.clip(s, 0.0, 1.0)
+        nearest = a[None, :, :] + s[:, :, None] * ab[None, :, :]
+        d = np.linalg.norm(nearest - q[:, None, :], axis=2)  # (3, n)
+        d[:, i] = np.inf
+        hit = np.argwhere(d < JOIN_TOLERANCE_M)
+        if hit.size:
+            j = int(hit[0][1])
+            wi, wj = wires[owner[i][0]], wires[owner[j][0]]
+            if wi is wj:
+                r.fail(wi.key, wi.name, "the wire doubles back along itself; each wire must go somewhere new")
+            r.fail(wj.key, wj.name, f"lies along \"{wi.name}\" (closer than {JOIN_TOLERANCE_M * 100:g} cm over its "
+                   "length): two wires in one place; remove the duplicate")
