@@ -64,14 +64,15 @@ def earth_system(site) -> dict:
 
 
 def aerial_response(site, geometry, frequency, earth_ohm: float, method: str = "closed-form", progress=None,
-                    ground: str = "perfect") -> dict:
+                    ground: str = "perfect", allow_large: bool = False) -> dict:
     """Per-frequency electrical figures of the aerial with its earth. Returns numpy arrays."""
     if method not in METHODS:
         raise ModelInputError(f"'{method}' is not a valid method, must be one of " + ", ".join(f"'{m}'" for m in METHODS))
     if method == "full-wave":
         from aerial.fullwave_bridge import full_wave_response
 
-        out = full_wave_response(site, geometry, frequency, earth_ohm, progress=progress, ground=ground)
+        out = full_wave_response(site, geometry, frequency, earth_ohm, progress=progress, ground=ground,
+                                 allow_large=allow_large)
     else:
         from aerial.models.closed_form import closed_form_response
 
@@ -225,7 +226,7 @@ def what_if(site, frequency: float, earth: dict) -> list[dict]:
 
 
 def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, progress=None, what_ifs: bool = True,
-            ground: str = "perfect") -> dict:
+            ground: str = "perfect", allow_large: bool = False) -> dict:
     """Run the whole chain for a site.
 
     Parameters
@@ -241,6 +242,9 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     ground : {"perfect", "lossy"}
         Full wave only: perfect ground by images, or the reflection-coefficient
         approximation for the site's soil.
+    allow_large : bool
+        Full wave only: run even when the estimated memory or time passes the
+        budget (:func:`aerial.fullwave_bridge.check_full_wave_budget`).
 
     Returns
     -------
@@ -259,7 +263,8 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     if ground == "lossy" and method != "full-wave":
         warnings.append("lossy ground applies to the full-wave solver only; the closed forms assume a perfect "
                         "ground plane with the earth system's resistance in series")
-    resp = aerial_response(site, geometry, freqs, earth["resistance_ohm"], method=method, progress=progress, ground=ground)
+    resp = aerial_response(site, geometry, freqs, earth["resistance_ohm"], method=method, progress=progress, ground=ground,
+                           allow_large=allow_large)
     warnings += resp.get("warnings", [])
 
     result: dict = {

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from aerial.errors import AerialError
+from aerial.errors import AerialError, SafetyRefusal, SiteError
 
 
 def check_site(path) -> dict:
@@ -46,23 +46,49 @@ def refusal_check(site) -> list[str]:
     """
     from aerial.clearance import enforce_site_clearance
 
-    report = enforce_site_clearance(site)
+    try:
+        report = enforce_site_clearance(site)
+    except SafetyRefusal as err:  # name the file, as every other message does
+        raise SafetyRefusal(f"{err} (site file {site.path})") from None
     return list(getattr(report, "warnings", []) or [])
 
 
-def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=None, force=False, ground="perfect") -> dict:
-    """Load a site (None: the built-in example), run the whole chain, optionally draw pictures."""
+def check_tuning_inputs(site) -> None:
+    """Refuse, before any computing, a receiver the tuning design cannot start from.
+
+    The design needs the coil (an inductance, or a winding with its turns) or
+    the variable capacitor's range to work from.
+    """
+    from aerial.tomlpos import find_line
+
+    rx = site.receiver
+    has_coil = rx.inductance_h is not None or (rx.coil is not None and "turns" in rx.coil)
+    if not has_coil and rx.capacitor_min_f is None:
+        raise SiteError(site.path, "receiver.coil", "",
+                        'missing: give the coil (coil = "240 uH", or a [receiver.coil] winding with turns) or the '
+                        'capacitor range (capacitor = ["15 pF", "365 pF"]) so the tuning can be designed',
+                        line=find_line(site.text, "receiver") if site.text else None)
+
+
+def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=None, force=False, ground="perfect",
+               allow_large=False) -> dict:
+    """Load a site (None: the built-in example), run the whole chain, optionally draw pictures.
+
+    ``allow_large`` lets a full-wave sweep run past the memory and time budget
+    (:func:`aerial.fullwave_bridge.check_full_wave_budget`).
+    """
     from aerial.analysis import analyse
     from aerial.site import load_site
 
     site = load_site(path)
     clearance_warnings = refusal_check(site)
+    check_tuning_inputs(site)
     if pictures:
         from aerial.pictures import check_picture_folder
 
         check_picture_folder(pictures, force, site)
     result = analyse(site, method="full-wave" if full_wave else "closed-form", step_hz=step_hz, progress=progress,
-                     ground=ground)
+                     ground=ground, allow_large=allow_large)
     if clearance_warnings:
         result["warnings"] = clearance_warnings + [w for w in result["warnings"] if w not in clearance_warnings]
     if pictures:

@@ -21,6 +21,14 @@ EXIT_USER = 2
 EXIT_REFUSED = 3
 EXIT_INTERRUPTED = 130
 
+#: Most layouts ``aerial layout --best`` shows (the planner's own limit).
+MAX_BEST = 100
+
+
+def one_line(text) -> str:
+    """``text`` with line breaks and other control characters written as escapes: one terminal line."""
+    return "".join(ch if ch.isprintable() else repr(ch)[1:-1] for ch in str(text))
+
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message):  # one line, exit 2, no usage dump
@@ -51,6 +59,8 @@ def build_parser() -> argparse.ArgumentParser:
     r.add_argument("--step", metavar="FREQ", help='sweep step, e.g. "1 kHz" (default depends on the band)')
     r.add_argument("--pictures", metavar="DIR", help="write SVG pictures of impedance, capacitance and tuning range into DIR")
     r.add_argument("--force", action="store_true", help="replace picture files that already exist")
+    r.add_argument("--allow-large", action="store_true",
+                   help="full wave: run a sweep beyond the stated memory and time budget")
 
     lay = sub.add_parser("layout", help="search the site's supports for the best safe wire layouts",
                          description="Rank wire layouts among the site's candidate supports, keeping clear of power lines.")
@@ -145,7 +155,7 @@ def cmd_report(args) -> int:
     try:
         result = run_report(args.site, full_wave=args.full_wave, step_hz=step, progress=update,
                             pictures=args.pictures, force=args.force,
-                            ground="lossy" if args.lossy_ground else "perfect")
+                            ground="lossy" if args.lossy_ground else "perfect", allow_large=args.allow_large)
     finally:
         if stop:
             stop()
@@ -161,6 +171,8 @@ def cmd_report(args) -> int:
 def cmd_layout(args) -> int:
     from aerial.api import run_layout
 
+    if not 1 <= args.best <= MAX_BEST:
+        raise AerialError(f"--best {args.best}: expected a whole number from 1 to {MAX_BEST}")
     update, stop = _progress_factory(sys.stderr.isatty() and not args.json)
     try:
         result = run_layout(args.site, best=args.best, full_wave=args.full_wave, picture=args.picture,
@@ -204,10 +216,10 @@ def main(argv=None) -> int:
             return EXIT_USER
         return COMMANDS[args.command](args)
     except SafetyRefusal as err:
-        sys.stderr.write(f"aerial: refused: {err}\n")
+        sys.stderr.write(f"aerial: refused: {one_line(err)}\n")
         return EXIT_REFUSED
     except AerialError as err:
-        sys.stderr.write(f"aerial: {err}\n")
+        sys.stderr.write(f"aerial: {one_line(err)}\n")
         return EXIT_USER
     except KeyboardInterrupt:
         sys.stderr.write("aerial: interrupted\n")
@@ -225,7 +237,7 @@ def main(argv=None) -> int:
     except Exception as err:  # a bug: still one line for the user
         if os.environ.get("AERIAL_DEBUG"):
             raise
-        sys.stderr.write(f"aerial: internal error ({type(err).__name__}: {err}); "
+        sys.stderr.write(f"aerial: internal error ({type(err).__name__}: {one_line(err)}); "
                          "please report it with the site file (set AERIAL_DEBUG=1 for details)\n")
         return 1
 

@@ -4,20 +4,109 @@ from __future__ import annotations
 
 import numpy as np
 
+from aerial.errors import ResourceLimit
 from aerial.models.capacitance import electrostatic_solution
-from aerial.models.fullwave import solve_full_wave
+from aerial.models.fullwave import (
+    DEFAULT_MAX_SEGMENT_WAVELENGTHS,
+    DEFAULT_MEMORY_LIMIT,
+    solve_full_wave,
+)
+from aerial.models.fullwave_geometry import DEFAULT_MIN_PIECES_PER_WIRE, piece_counts
 from aerial.models.shapes import classify
 
 GROUNDS = ("perfect", "lossy")
 
+SPEED_OF_LIGHT = 299_792_458.0  # [m/s], exact (SI)
 
-def full_wave_response(site, geometry, frequency, earth_ohm: float, progress=None, ground: str = "perfect") -> dict:
+#: Memory a full-wave run may plan to use without ``allow_large``. [byte]
+MEMORY_BUDGET_BYTES = 2 * 2**30
+
+#: Time a full-wave run may plan to take without ``allow_large``. [s]
+TIME_BUDGET_S = 600.0
+
+#: Cost model of one frequency, fitted to direct-fill solves (one BLAS thread, this project's 2-core
+#: reference machine; see docs/reliability.md): seconds = FILL_S_PER_N2 N^2 + SOLVE_S_PER_N3 N^3,
+#: memory = MATRIX_COPIES 16 N^2 + BYTES_PER_UNKNOWN N. Measured: N = 686 -> 1.9 s, 224 MB;
+#: N = 1358 -> 4.9 s, 413 MB; N = 2675 -> 17.5 s, 828 MB (one frequency, set-up included).
+FILL_S_PER_N2 = 2.5e-6
+SOLVE_S_PER_N3 = 1.0e-10
+MATRIX_COPIES = 3
+BYTES_PER_UNKNOWN = 250e3
+
+
+def estimate_full_wave(segments, frequency) -> dict:
+    """Unknowns, memory and time a full-wave sweep of ``segments`` over ``frequency`` will need.
+
+    Parameters
+    ----------
+    segments : Segments
+        The resolved wires.
+    frequency : array_like
+        The sweep. [Hz]
+
+    Returns
+    -------
+    dict
+        ``unknowns`` [1], ``frequencies`` [1], ``memory_bytes`` [byte] and
+        ``seconds`` [s]: an upper estimate from the piece count the solver
+        will use (pieces of at most DEFAULT_MAX_SEGMENT_WAVELENGTHS of the
+        shortest wavelength, DEFAULT_MIN_PIECES_PER_WIRE per wire) and the
+        cost model above, a direct fill at every frequency plus the
+        convergence check at twice the pieces (a band sweep that reuses
+        work runs faster).
+    """
+    f = np.atleast_1d(np.asarray(frequency, float))
+    lam_min = SPEED_OF_LIGHT / float(f.max())
+    n = int(np.sum(piece_counts(segments, DEFAULT_MAX_SEGMENT_WAVELENGTHS * lam_min, DEFAULT_MIN_PIECES_PER_WIRE)))
+    per_freq = FILL_S_PER_N2 * n**2 + SOLVE_S_PER_N3 * n**3
+    seconds = f.size * per_freq
+    memory = MATRIX_COPIES * 16.0 * n**2 + BYTES_PER_UNKNOWN * n
+    if (2 * n) ** 2 * 16 * 3 <= DEFAULT_MEMORY_LIMIT:  # the solver's convergence check at twice the pieces
+        seconds += FILL_S_PER_N2 * (2 * n) ** 2 + SOLVE_S_PER_N3 * (2 * n) ** 3
+    return {"unknowns": n, "frequencies": int(f.size), "memory_bytes": float(memory), "seconds": float(seconds)}
+
+
+def check_full_wave_budget(segments, frequency, allow_large: bool = False) -> dict:
+    """Raise :class:`ResourceLimit` when a sweep would pass the memory or time budget.
+
+    Returns the estimate (see :func:`estimate_full_wave`) when it fits, or
+    when ``allow_large`` is set.
+    """
+    est = estimate_full_wave(segments, frequency)
+    if allow_large:
+        return est
+    over = []
+    if est["memory_bytes"] > MEMORY_BUDGET_BYTES:
+        over.append(f"about {est['memory_bytes'] / 2**30:.1f} GB of memory (budget {MEMORY_BUDGET_BYTES / 2**30:g} GB)")
+    if est["seconds"] > TIME_BUDGET_S:
+        over.append(f"about {_duration(est['seconds'])} (budget {_duration(TIME_BUDGET_S)})")
+    if over:
+        raise ResourceLimit(
+            f"the full-wave sweep needs {est['unknowns']} unknowns at {est['frequencies']} frequencies: "
+            + " and ".join(over)
+            + '; use fewer frequencies (--step "25 kHz" or fewer bands), fewer or shorter wires, '
+            "the closed-form report (without --full-wave), or add --allow-large to run it anyway"
+        )
+    return est
+
+
+def _duration(seconds: float) -> str:
+    if seconds < 120:
+        return f"{seconds:.0f} s"
+    if seconds < 7200:
+        return f"{seconds / 60:.0f} min"
+    return f"{seconds / 3600:.1f} h"
+
+
+def full_wave_response(site, geometry, frequency, earth_ohm: float, progress=None, ground: str = "perfect",
+                       allow_large: bool = False) -> dict:
     """Per-frequency figures from the full-wave solver (arrays aligned with ``frequency``).
 
     With an earth lead the electrode's resistance is a lumped load where the
     lead meets the ground; a base-fed aerial gets the earth resistance in series.
     """
     seg = geometry.segments
+    check_full_wave_budget(seg, frequency, allow_large)
     series = 0.0 if not geometry.base_fed else float(earth_ohm)
     kwargs = {}
     if ground == "lossy":
