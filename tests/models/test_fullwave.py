@@ -87,7 +87,7 @@ def test_induced_emf_formula_reproduces_the_reference_values():
 
 def test_quarter_wave_monopole_tends_to_induced_emf_as_wire_thins():
     # Balanis induced EMF assumes a sinusoidal current, which a real wire only approaches as a -> 0;
-    # the moment solution should come down toward 36.5 Ω monotonically (brief values from memory:
+    # the moment solution should come down toward 36.5 Ω monotonically (values recalled, from memory:
     # about 40 Ω at a = 1e-4 λ and 38 Ω at a = 1e-8 λ).
     radii = [1e-4, 1e-6, 1e-8]
     z = [solve_full_wave(monopole(0.25, a), [c], min_pieces_per_wire=24, convergence_check=False).impedance[0]
