@@ -19,7 +19,7 @@ from __future__ import annotations
 
 import numpy as np
 from scipy.constants import c as C0
-from scipy.constants import epsilon_0, mu_0
+from scipy.constants import mu_0
 
 from aerial.errors import ModelInputError
 
@@ -100,4 +100,4 @@ def hallen_monopole_impedance(height, radius, frequency, n_pulses: int = DEFAULT
     return complex(0.5 * v_dipole / i_gap)
 
 
-__all__ = ["hallen_monopole_impedance", "DEFAULT_PULSES", "epsilon_0"]
+__all__ = ["hallen_monopole_impedance", "DEFAULT_PULSES"]
