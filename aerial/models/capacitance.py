@@ -36,6 +36,7 @@ from scipy.constants import epsilon_0
 
 from aerial.errors import ModelInputError
 from aerial.models.segments import FEED_GAP_M, Segments
+from aerial.models.checks import positive as _check_positive
 
 _TWO_PI_EPS0 = 2 * np.pi * epsilon_0
 _FOUR_PI_EPS0 = 4 * np.pi * epsilon_0
@@ -56,11 +57,6 @@ DEFAULT_MAX_UNKNOWNS = 4000
 DEFAULT_RELATIVE_TOLERANCE = 0.01
 
 
-def _check_positive(name, value):
-    arr = np.asarray(value, dtype=float)
-    if np.any(~np.isfinite(arr) | (arr <= 0)):
-        raise ModelInputError(f"{name} must be finite and positive; got {value!r}")
-    return arr
 
 
 # --------------------------------------------------------------------------------------

@@ -31,6 +31,7 @@ from scipy.optimize import brentq
 from scipy.special import ellipe, ellipk, ive
 
 from aerial.errors import ModelInputError
+from aerial.models.checks import positive as _positive
 
 #: Resistivity of annealed copper at 20 °C (IEC 60028). [ohm m]
 COPPER_RESISTIVITY = 1.72414e-8
@@ -54,11 +55,6 @@ DOWELL_MIN_LENGTH_TO_DIAMETER = 1.0
 DOWELL_MAX_PITCH_RATIO = 2.0
 
 
-def _positive(name, value):
-    arr = np.asarray(value, dtype=float)
-    if not np.all(np.isfinite(arr)) or np.any(arr <= 0):
-        raise ModelInputError(f"{name} must be a positive finite number, got {value!r}")
-    return arr
 
 
 def nagaoka_coefficient(length_to_diameter):

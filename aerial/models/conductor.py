@@ -32,6 +32,7 @@ from scipy.constants import mu_0
 from scipy.special import ive, kve
 
 from aerial.errors import ModelInputError
+from aerial.models.checks import positive as _positive
 
 #: Resistivity of annealed copper at 20 degC, IEC 60028. [ohm m]
 COPPER_RESISTIVITY = 1.72414e-8
@@ -41,13 +42,6 @@ COPPER_TEMPERATURE_COEFFICIENT = 0.00393
 CURRENT_DISTRIBUTIONS = ("uniform", "triangular")
 
 
-def _positive(name, value, allow_zero=False):
-    arr = np.asarray(value, dtype=float)
-    bad = ~np.isfinite(arr) | ((arr < 0) if allow_zero else (arr <= 0))
-    if np.any(bad):
-        need = "zero or positive" if allow_zero else "positive"
-        raise ModelInputError(f"{name} must be finite and {need}; got {value!r}")
-    return arr
 
 
 def dc_resistance_per_m(radius, resistivity=COPPER_RESISTIVITY):

@@ -28,6 +28,7 @@ from scipy.constants import Boltzmann, elementary_charge
 from scipy.special import ive
 
 from aerial.errors import ModelInputError
+from aerial.models.checks import positive as _check
 
 #: Default junction temperature. [K]
 DEFAULT_TEMPERATURE_K = 300.0
@@ -91,13 +92,6 @@ def get_diode(name: str) -> Diode:
     return DIODE_PRESETS[name]
 
 
-def _check(name, value, allow_zero=False):
-    arr = np.asarray(value, dtype=float)
-    bad = (arr < 0) if allow_zero else (arr <= 0)
-    if not np.all(np.isfinite(arr)) or np.any(bad):
-        kind = "non-negative" if allow_zero else "positive"
-        raise ModelInputError(f"{name} must be a {kind} finite number, got {value!r}")
-    return arr
 
 
 def thermal_voltage(temperature=DEFAULT_TEMPERATURE_K):

@@ -35,6 +35,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from aerial.errors import ModelInputError
+from aerial.models.checks import positive as _positive
 
 #: IEEE Std 142 multiple-rod factors F for n rods about one rod length apart
 #: (R_n = R_1 F / n). (from memory)
@@ -80,11 +81,6 @@ class ElectrodeEstimate:
     method: str = ""
 
 
-def _positive(name, value):
-    arr = np.asarray(value, dtype=float)
-    if np.any(~np.isfinite(arr) | (arr <= 0)):
-        raise ModelInputError(f"{name} must be finite and positive; got {value!r}")
-    return arr
 
 
 def resistivity_from_conductivity(conductivity):

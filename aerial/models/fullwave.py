@@ -65,6 +65,7 @@ from aerial.models.fullwave_system import (
     wire_impedance_per_m,
 )
 from aerial.models.segments import Segments
+from aerial.models.checks import option as _check_option
 
 __all__ = [
     "FullWaveResult",
@@ -218,9 +219,6 @@ class FullWaveResult:
     warnings: tuple = field(default=())
 
 
-def _check_option(name, value, choices):
-    if value not in choices:
-        raise ModelInputError(f"{value!r} is not a valid {name}, must be one of " + ", ".join(repr(c) for c in choices))
 
 
 def solve_full_wave(

@@ -21,6 +21,7 @@ from scipy.constants import c, epsilon_0
 from scipy.special import wofz
 
 from aerial.errors import ModelInputError
+from aerial.models.checks import positive as _positive
 
 #: Flat-earth range coefficient: use the flat-earth formula within 80 / f_MHz^(1/3) km (from memory). [km]
 FLAT_EARTH_RANGE_KM_AT_1MHZ = 80.0
@@ -29,11 +30,6 @@ FLAT_EARTH_RANGE_KM_AT_1MHZ = 80.0
 GROUNDWAVE_FREQUENCY_RANGE_HZ = (10e3, 30e6)
 
 
-def _positive(name, value):
-    arr = np.asarray(value, dtype=float)
-    if not np.all(np.isfinite(arr)) or np.any(arr <= 0):
-        raise ModelInputError(f"{name} must be a positive finite number, got {value!r}")
-    return arr
 
 
 def reference_field(power, distance):

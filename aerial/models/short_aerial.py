@@ -43,6 +43,8 @@ from scipy.constants import c as SPEED_OF_LIGHT
 from scipy.constants import mu_0
 
 from aerial.errors import ModelInputError
+from aerial.models.checks import positive as _positive
+from aerial.models.checks import option as _check_option
 
 ETA0 = mu_0 * SPEED_OF_LIGHT  #: Impedance of free space. [ohm]
 _Z_UNIT = ETA0 / (2 * np.pi)  # ~59.96 ohm; the classic rounded value is 60 (eta0 ~ 120 pi)
@@ -60,20 +62,8 @@ MAX_RELIABLE_LENGTH_WAVELENGTHS = 1.0 / 8.0
 _TINY = 1e-12
 
 
-def _check_option(name, value, choices):
-    if value not in choices:
-        raise ModelInputError(
-            f"{value!r} is not a valid {name}, must be one of " + ", ".join(repr(c) for c in choices)
-        )
 
 
-def _positive(name, value, allow_zero=False):
-    arr = np.asarray(value, dtype=float)
-    bad = ~np.isfinite(arr) | ((arr < 0) if allow_zero else (arr <= 0))
-    if np.any(bad):
-        need = "zero or positive" if allow_zero else "positive"
-        raise ModelInputError(f"{name} must be finite and {need}; got {value!r}")
-    return arr
 
 
 def wavenumber(frequency):

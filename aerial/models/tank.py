@@ -35,6 +35,7 @@ from typing import NamedTuple
 import numpy as np
 
 from aerial.errors import ModelInputError
+from aerial.models.checks import positive as _positive
 
 ARRANGEMENTS = ("direct", "series capacitor", "coil tap", "separate primary")
 
@@ -64,11 +65,6 @@ def check_arrangement(name: str) -> str:
     return name
 
 
-def _positive(name, value):
-    arr = np.asarray(value, dtype=float)
-    if not np.all(np.isfinite(arr)) or np.any(arr <= 0):
-        raise ModelInputError(f"{name} must be a positive finite number, got {value!r}")
-    return arr
 
 
 def resonant_frequency(inductance, capacitance):
