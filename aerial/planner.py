@@ -500,17 +500,11 @@ def _objective(site, warnings: list) -> dict:
 
 
 def _earth_resistance(site):
-    """The site's earth resistance from ``aerial.earth`` if that module is present. [ohm]"""
-    try:
-        import aerial.earth  # noqa: F401
-    except ImportError:
-        return None, None
+    """The site's earth resistance, or None with a note when it cannot be had. [ohm]"""
     from aerial.analysis import earth_system
 
     try:
-        res = earth_system(site)
-        value = res.get("resistance_ohm") if isinstance(res, dict) else getattr(res, "resistance_ohm", None)
-        value = float(value)
+        value = float(earth_system(site)["resistance_ohm"])
     except (AttributeError, KeyError, TypeError, ValueError) as err:
         return None, f"the earth resistance could not be read ({type(err).__name__}); ranked with conductor loss only"
     if not math.isfinite(value) or value < 0:
