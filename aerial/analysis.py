@@ -17,6 +17,7 @@ from aerial import __version__
 from aerial.errors import ModelInputError
 from aerial.geometry import EARTH_ROLES, resolve, wires_json
 from aerial.safety import cautions_for
+from aerial.site import JOIN_TOLERANCE_M
 
 METHODS = ("closed-form", "full-wave")
 
@@ -115,7 +116,7 @@ def _perturbed_wires(site, delta_sign: float = 0.0, raise_m: float = 0.0, extend
             idx = np.arange(len(p))
             good = ~np.isnan(tol)
             tol = np.interp(idx, idx[good], tol[good])
-        at_feed = np.linalg.norm(p - feed, axis=1) < 1e-6
+        at_feed = np.linalg.norm(p - feed, axis=1) < JOIN_TOLERANCE_M  # the loader joins points this close
         dz = delta_sign * tol + raise_m
         dz = np.where(at_feed, 0.0, dz)
         p[:, 2] = np.maximum(p[:, 2] + dz, 0.3 * p[:, 2] + 0.05 * (~at_feed))

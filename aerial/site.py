@@ -45,6 +45,15 @@ MAX_SITE_LENGTH_M = 10_000.0
 #: Largest distance to a station (half the Earth's circumference). [m]
 MAX_STATION_DISTANCE_M = 20_000e3
 
+#: Nearest station accepted (the ground-wave field is a far-field model). [m]
+MIN_STATION_DISTANCE_M = 100.0
+
+#: Transmitter powers accepted (the largest broadcast transmitters are about 2 MW). [W]
+STATION_POWER_W = (1e-3, 10e6)
+
+#: Reference field strengths accepted for site.field_strength. [V/m]
+FIELD_STRENGTH_V_PER_M = (1e-7, 10.0)
+
 #: Thinnest wire accepted (about 50 SWG is 0.025 mm). [m]
 MIN_WIRE_DIAMETER_M = 0.01e-3
 
@@ -240,6 +249,14 @@ class Site:
 # --------------------------------------------------------------------------- reading
 
 
+def shown_key(name: str) -> str:
+    """A key as TOML writes it: bare when it can be, else in quotes (so a blank key is visible)."""
+    name = str(name)
+    if name and all(ch.isalnum() or ch in "_-" for ch in name) and name.isascii():
+        return name
+    return '"' + name.replace("\\", "\\\\").replace('"', '\\"') + '"'
+
+
 class _Reader:
     """Carries the file name and text so every error can name the file and line."""
 
@@ -373,7 +390,7 @@ class _Reader:
     def check_keys(self, data, key, allowed):
         for name in data:
             if name not in allowed:
-                full = f"{key}.{name}" if key else name
+                full = f"{key}.{shown_key(name)}" if key else shown_key(name)
                 self.fail(full, data[name], "unknown key; expected one of " + ", ".join(sorted(allowed)))
 
 
@@ -462,6 +479,8 @@ def _build(r: _Reader, raw: dict, text: str, path: str) -> Site:
         site_t, "site", "field_strength", {"v/m": 1.0, "mv/m": 1e-3, "uv/m": 1e-6, "µv/m": 1e-6},
         "a field strength", "V/m", default=1e-3,
     )
+    if not FIELD_STRENGTH_V_PER_M[0] <= field_strength <= FIELD_STRENGTH_V_PER_M[1]:
+        r.fail("site.field_strength", site_t["field_strength"], "expected a field strength from 0.1 uV/m to 10 V/m")
     if "soil" in site_t and "soil" in raw:
         r.fail("site.soil", site_t["soil"], "the soil is given twice (also as [soil]); keep one")
     soil = _soil(r, raw.get("soil", site_t.get("soil", "medium-dry")), "soil" if "soil" in raw else "site.soil")
@@ -632,7 +651,7 @@ def _supports(r: _Reader, raw) -> dict:
     table = r.table(raw, "", "supports")
     out = {}
     for name, t in table.items():
-        key = f"supports.{name}"
+        key = f"supports.{shown_key(name)}"
         if not isinstance(t, dict):
             r.fail(key, t, "expected a table with at = [x, y] and height")
         r.check_keys(t, key, {"at", "height", "kind", "height_tolerance", "notes"})
@@ -977,7 +996,13 @@ def _stations(r: _Reader, raw, soil: SoilSpec) -> list:
         p = r.quantity(t, key, "power", units.POWER_UNITS, "a transmitter power", "W")
         if p is None:
             r.fail(f"{key}.power", "", 'missing: expected a transmitter power such as "10 kW"')
+        if not STATION_POWER_W[0] <= p <= STATION_POWER_W[1]:
+            r.fail(f"{key}.power", t["power"], f"expected a transmitter power from {STATION_POWER_W[0] * 1e3:g} mW "
+                   f"to {STATION_POWER_W[1] / 1e6:g} MW")
         d = r.length(t, key, "distance", required=True, positive=True, maximum=MAX_STATION_DISTANCE_M)
+        if d < MIN_STATION_DISTANCE_M:
+            r.fail(f"{key}.distance", t["distance"], f"expected a distance of at least {MIN_STATION_DISTANCE_M:g} m "
+                   "(the ground-wave model needs the receiver well away from the transmitter)")
         st_soil = soil
         if "soil" in t:
             s = t["soil"]
