@@ -55,6 +55,9 @@ DEFAULT_MAX_UNKNOWNS = 4000
 #: Relative change in capacitance between the chosen and a half-density
 #: subdivision below which the solution is reported as converged.
 DEFAULT_RELATIVE_TOLERANCE = 0.01
+#: An earth-side segment reaching this close to the ground plane connects to it;
+#: an earth side that never does is a counterpoise and floats. [m]
+GROUND_CONTACT_M = 1e-3
 
 
 
@@ -338,7 +341,8 @@ class ElectrostaticSolution:
     Attributes
     ----------
     capacitance_f : float
-        Charge on the aerial per volt between aerial and earth. [F]
+        Charge on the aerial per volt between aerial and earth (or, with a
+        floating counterpoise, between aerial and counterpoise). [F]
     effective_height_m : float
         Sum over all real charges of q z, divided by the aerial charge. [m]
     charge_c : ndarray, shape (M,)
@@ -383,7 +387,13 @@ def _subdivide(seg: Segments, counts):
     return seg.start[idx] + t0 * d, seg.start[idx] + t1 * d, idx
 
 
-def _solve(start, end, radius, grounded, image):
+def _solve(start, end, radius, grounded, image, floating=False):
+    """Charges for 1 V on the aerial. Returns (charge [C], midpoints, counterpoise potential [V]).
+
+    With ``floating`` the earth side (``grounded``) is a counterpoise insulated
+    from the ground: its potential is an unknown and the aerial and counterpoise
+    together carry no net charge (the source only moves charge between them).
+    """
     mid = 0.5 * (start + end)
     p = mid[:, None, :]
     a = radius[None, :]
@@ -394,9 +404,16 @@ def _solve(start, end, radius, grounded, image):
     lengths = np.linalg.norm(end - start, axis=1)
     # unknowns: line charge density lambda_j; potential = lambda_j * I_ij / (4 pi eps0)
     rhs = np.where(grounded, 0.0, 1.0)
-    lam = np.linalg.solve(pot, rhs) * _FOUR_PI_EPS0
-    q = lam * lengths
-    return q, mid
+    if not floating:
+        lam = np.linalg.solve(pot, rhs) * _FOUR_PI_EPS0
+        return lam * lengths, mid, 0.0
+    n = len(rhs)
+    system = np.zeros((n + 1, n + 1))
+    system[:n, :n] = pot
+    system[:n, n] = -grounded.astype(float)  # counterpoise rows: potential - V_c = 0
+    system[n, :n] = lengths  # no net charge on aerial + counterpoise
+    sol = np.linalg.solve(system, np.append(rhs, 0.0))
+    return sol[:n] * _FOUR_PI_EPS0 * lengths, mid, float(sol[n])
 
 
 def electrostatic_solution(
@@ -470,6 +487,14 @@ def electrostatic_solution(
     quantity is (1/I0) integral I dz, because the current at a point is
     j omega times the charge beyond it.
 
+    A counterpoise (an earth side that never reaches the ground plane) floats:
+    its potential V_c is one more unknown, closed by the condition that the
+    aerial and the counterpoise together carry no net charge (the receiver
+    only moves charge between them). Then C = Q_aerial / (1 - V_c), and the
+    same reciprocity argument, with both conductors open in state 2, gives the
+    open-circuit voltage between aerial and counterpoise as
+    E0 sum_(aerial + counterpoise) q1 z / Q1_aerial.
+
     The pulse-basis solution converges from below in C with subdivision; the
     result reports the change against a half-density subdivision.
 
@@ -523,9 +548,13 @@ def electrostatic_solution(
     start, end, parent = _subdivide(segments, counts)
     rad = segments.radius[parent]
     gnd = segments.grounded[parent]
-    q, mid = _solve(start, end, rad, gnd, ground_plane)
+    # an earth side that never reaches the ground plane is a counterpoise: it floats
+    floating = bool(np.any(segments.grounded)) and not bool(
+        np.any(segments.grounded & (np.minimum(segments.start[:, 2], segments.end[:, 2]) <= GROUND_CONTACT_M)))
+    q, mid, v_cp = _solve(start, end, rad, gnd, ground_plane, floating)
     aerial_q = float(np.sum(q[~gnd]))
     h_e = float(np.sum(q * mid[:, 2]) / aerial_q)
+    capacitance = aerial_q / (1.0 - v_cp)
 
     # half-density check
     coarse = np.maximum((counts + 1) // 2, 1)
@@ -533,11 +562,11 @@ def electrostatic_solution(
         rel = 0.0
     else:
         s2, e2, p2 = _subdivide(segments, coarse)
-        q2, _ = _solve(s2, e2, segments.radius[p2], segments.grounded[p2], ground_plane)
-        c2 = float(np.sum(q2[~segments.grounded[p2]]))
-        rel = abs(aerial_q - c2) / abs(aerial_q)
+        q2, _, v2 = _solve(s2, e2, segments.radius[p2], segments.grounded[p2], ground_plane, floating)
+        c2 = float(np.sum(q2[~segments.grounded[p2]])) / (1.0 - v2)
+        rel = abs(capacitance - c2) / abs(capacitance)
     return ElectrostaticSolution(
-        capacitance_f=aerial_q,
+        capacitance_f=capacitance,
         effective_height_m=h_e,
         charge_c=q,
         start=start,

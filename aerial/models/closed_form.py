@@ -254,20 +254,26 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
             loss = loss + _section_r_per_m(segments, f, sections == sec) * np.asarray(w, float)
     earth = sections == SECTION_EARTH_LEAD
     if np.any(earth):
-        loss = loss + _section_r_per_m(segments, f, earth) * float(np.sum(segments.length[earth]))
         low = np.minimum(segments.start[earth, 2], segments.end[earth, 2])
         ends = np.concatenate([segments.start[earth], segments.end[earth]])
         at_feed = int(np.sum(np.linalg.norm(ends - segments.feed, axis=1) < 1e-3))
+        r_earth = _section_r_per_m(segments, f, earth)
         if not np.any(low <= 1e-3):
+            # a counterpoise: the feed current divides between its arms and falls to zero at their
+            # free ends (triangular), so each of n arms dissipates R' L_i (1/n)^2 / 3
+            n_arms = max(at_feed, 1)
+            loss = loss + r_earth * float(np.sum(segments.length[earth])) / (3.0 * n_arms**2)
             warnings.append(
-                "the earth-lead wires do not reach the ground (e.g. a counterpoise): they are held at earth "
-                "potential in the electrostatic solution, so capacitance and effective height are approximate"
+                "the earth side does not reach the ground: treated as a counterpoise insulated above the ground "
+                "(floating in the electrostatic solution); the soil's loss under it is estimated roughly"
             )
-        if at_feed > 1 or not np.any(low <= 1e-3):
-            warnings.append(
-                "the earth-lead wires branch or end in the air: their conductor loss assumes the full feed "
-                "current along every one of them, which overstates it"
-            )
+        else:
+            loss = loss + r_earth * float(np.sum(segments.length[earth]))
+            if at_feed > 1:
+                warnings.append(
+                    "the earth-lead wires branch: their conductor loss assumes the full feed current along every "
+                    "one of them, which overstates it"
+                )
 
     if np.any(too_long):
         f_limit = sa.MAX_RELIABLE_LENGTH_WAVELENGTHS * SPEED_OF_LIGHT / total

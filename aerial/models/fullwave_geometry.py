@@ -387,7 +387,10 @@ def build_topology(segments: Segments, counts: np.ndarray) -> Topology:
             n_basis += 1
 
     if has_lead and ground_contacts == 0:
-        raise ModelInputError("the earth lead (grounded segments) does not reach the ground plane z = 0")
+        # an earth side that never touches the ground is a counterpoise: the feed is the gap between
+        # the aerial and the counterpoise, and nothing connects to the ground plane
+        warnings.append("the earth side does not reach the ground: modelled as a counterpoise insulated above "
+                        "the ground (no electrode resistance; the ground's own loss under it is not included)")
     if ground_contacts > 1:
         warnings.append(
             f"the earth lead meets the ground at {ground_contacts} points; each is given the electrode resistance"
