@@ -54,6 +54,15 @@ STATION_POWER_W = (1e-3, 10e6)
 #: Reference field strengths accepted for site.field_strength. [V/m]
 FIELD_STRENGTH_V_PER_M = (1e-7, 10.0)
 
+#: Coil and primary inductances accepted. [H]
+INDUCTANCE_RANGE_H = (10e-9, 1.0)
+
+#: Largest tuning or coupling capacitance accepted. [F]
+CAPACITANCE_MAX_F = 1e-6
+
+#: Earphone impedances accepted. [ohm]
+EARPHONE_RANGE_OHM = (1.0, 100e6)
+
 #: Thinnest wire accepted (about 50 SWG is 0.025 mm). [m]
 MIN_WIRE_DIAMETER_M = 0.01e-3
 
@@ -341,6 +350,13 @@ class _Reader:
         if positive and number <= 0:
             self.fail(full, value, f"expected {kind} greater than zero")
         return number
+
+    def within(self, data, key, name, value, low, high, words):
+        """Refuse ``value`` (already in SI units) outside [low, high]; ``words`` names the range for the user."""
+        if value is not None and not low <= value <= high:
+            full = f"{key}.{name}" if key else name
+            self.fail(full, data.get(name, value), f"expected {words}")
+        return value
 
     def number(self, data, key, name, default=None, low=None, high=None, integer=False, what="a number"):
         full = f"{key}.{name}" if key else name
@@ -759,6 +775,7 @@ def _receiver(r: _Reader, raw) -> Receiver:
             coil = dict(c)
         else:
             inductance = r.quantity(t, key, "coil", units.INDUCTANCE_UNITS, "an inductance", "H")
+            r.within(t, key, "coil", inductance, *INDUCTANCE_RANGE_H, "a coil from 10 nH to 1 H")
     cap = t.get("capacitor")
     cmin = cmax = None
     if cap is not None:
@@ -773,9 +790,13 @@ def _receiver(r: _Reader, raw) -> Receiver:
         cmin, cmax = vals
         if not 0 <= cmin < cmax:
             r.fail("receiver.capacitor", cap, "expected [minimum, maximum] with 0 <= minimum < maximum")
+        if cmax > CAPACITANCE_MAX_F:
+            r.fail("receiver.capacitor[1]", cap[1], "expected a tuning capacitor of at most 1 uF")
     cc = r.quantity(t, key, "coupling_capacitor", units.CAPACITANCE_UNITS, "a capacitance", "F")
+    r.within(t, key, "coupling_capacitor", cc, 0.1e-12, CAPACITANCE_MAX_F, "a capacitance from 0.1 pF to 1 uF")
     tap = r.number(t, key, "tap", low=0.01, high=1.0, what="a tap position as a fraction of the coil's turns")
     primary = r.quantity(t, key, "primary", units.INDUCTANCE_UNITS, "an inductance", "H")
+    r.within(t, key, "primary", primary, *INDUCTANCE_RANGE_H, "a primary from 10 nH to 1 H")
     kf = r.number(t, key, "coupling_factor", low=0.001, high=0.99, what="a coupling factor k")
     if coupling == "series capacitor" and cc is None:
         r.fail("receiver.coupling_capacitor", "", 'coupling "series capacitor" needs coupling_capacitor = "100 pF" (or similar)')
@@ -789,6 +810,8 @@ def _receiver(r: _Reader, raw) -> Receiver:
         ear_ohm = LOW_IMPEDANCE_EARPHONE_OHM
     else:
         ear_ohm = r.quantity(t, key, "earphone", units.RESISTANCE_UNITS, "an earphone impedance", "ohm")
+        r.within(t, key, "earphone", ear_ohm, *EARPHONE_RANGE_OHM, 'an earphone impedance from 1 ohm to 100 Mohm, '
+                 'or "high-impedance" / "low-impedance"')
     measured = None
     if "measured" in t:
         m = r.table(t, key, "measured")
@@ -802,6 +825,13 @@ def _receiver(r: _Reader, raw) -> Receiver:
         for name in ("inductance_h", "capacitor_f", "frequency_hz"):
             if measured[name] is None:
                 r.fail("receiver.measured", m, "a measured resonance needs coil, capacitor and frequency")
+        mk = "receiver.measured"
+        r.within(m, mk, "coil", measured["inductance_h"], *INDUCTANCE_RANGE_H, "a coil from 10 nH to 1 H")
+        r.within(m, mk, "capacitor", measured["capacitor_f"], 0.0, CAPACITANCE_MAX_F, "a capacitance from 0 to 1 uF")
+        r.within(m, mk, "frequency", measured["frequency_hz"], 10e3, 30e6, "a frequency from 10 kHz to 30 MHz")
+        if measured["bandwidth_hz"] is not None:
+            r.within(m, mk, "bandwidth", measured["bandwidth_hz"], 1.0, measured["frequency_hz"],
+                     "a bandwidth from 1 Hz up to the measured frequency")
     return Receiver(
         x_m=x if x is not None else float("nan"), y_m=y if y is not None else float("nan"), height_m=h,
         coupling=coupling, inductance_h=inductance, coil=coil, capacitor_min_f=cmin, capacitor_max_f=cmax,
@@ -1017,7 +1047,19 @@ def _stations(r: _Reader, raw, soil: SoilSpec) -> list:
 
 
 def _check_wires(r: _Reader, wires):
+    from aerial.models.segments import FEED_GAP_M
+
     for w in wires:
+        # the electrical models lift aerial and counterpoise points lower than the feed gap up to it
+        # (aerial.geometry.resolve); a piece must keep its length after that
+        if w.role != "earth lead":
+            lifted = np.array(w.points_m, dtype=float)
+            lifted[:, 2] = np.maximum(lifted[:, 2], FEED_GAP_M)
+            short = np.linalg.norm(np.diff(lifted, axis=0), axis=1) < JOIN_TOLERANCE_M
+            if np.any(short):
+                j = int(np.argmax(short))
+                r.fail(w.key, w.name, f"points lower than {FEED_GAP_M * 100:g} cm are taken at {FEED_GAP_M * 100:g} cm "
+                       f"(the feed gap), which leaves piece {j + 1} of \"{w.name}\" without length; raise its points")
         seg = np.linalg.norm(np.diff(w.points_m, axis=0), axis=1)
         j = int(np.argmin(seg))
         if seg[j] < MIN_LENGTH_TO_RADIUS * w.size.radius_m:
@@ -1079,6 +1121,9 @@ def _check_overlaps(r: _Reader, wires):
         nearest = a[None, :, :] + s[:, :, None] * ab[None, :, :]
         d = np.linalg.norm(nearest - q[:, None, :], axis=2)  # (3, n)
         d[:, i] = np.inf
+        # a sample within the join tolerance of its own piece's ends sits at a joint, where wires meet by design
+        own_end = np.minimum(np.linalg.norm(q - a[i], axis=1), np.linalg.norm(q - b[i], axis=1))
+        d[own_end <= JOIN_TOLERANCE_M, :] = np.inf
         hit = np.argwhere(d < JOIN_TOLERANCE_M)
         if hit.size:
             j = int(hit[0][1])

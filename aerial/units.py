@@ -115,13 +115,22 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
     return float(Decimal(match.group(1)) * Decimal(repr(units[unit])))
 
 
+#: Longest length read anywhere (about the Earth's circumference); anything longer is a wrong number or unit. [m]
+MAX_LENGTH_M = 4.0e7
+
+
 def parse_length(value) -> float:
     """A length in metres from a number [m] or a string with a unit. [m]
+
+    Raises :class:`UnitError` beyond +/- ``MAX_LENGTH_M`` as well.
 
     >>> parse_length("12 in")
     0.3048
     """
-    return parse_quantity(value, LENGTH_UNITS, "a length", "m")
+    metres = parse_quantity(value, LENGTH_UNITS, "a length", "m")
+    if abs(metres) > MAX_LENGTH_M:
+        raise UnitError(f"expected a length within {MAX_LENGTH_M / 1e3:,.0f} km; check the number and its unit")
+    return metres
 
 
 def awg_diameter(gauge: int | float) -> float:
