@@ -800,6 +800,10 @@ def _receiver(r: _Reader, raw) -> Receiver:
     kf = r.number(t, key, "coupling_factor", low=0.001, high=0.99, what="a coupling factor k")
     if coupling == "series capacitor" and cc is None:
         r.fail("receiver.coupling_capacitor", "", 'coupling "series capacitor" needs coupling_capacitor = "100 pF" (or similar)')
+    if coupling == "separate primary" and (primary is None or kf is None):
+        missing = "primary" if primary is None else "coupling_factor"
+        r.fail(f"receiver.{missing}", "", 'coupling "separate primary" needs primary = "30 uH" (the primary\'s '
+               "inductance) and coupling_factor = 0.3 (k between primary and coil)")
     if coupling == "coil tap" and tap is None:
         r.fail("receiver.tap", "", 'coupling "coil tap" needs tap = 0.25 (the fraction of turns from the earthy end)')
     detector = r.string(t, key, "detector", default="germanium", choices=DETECTORS)
