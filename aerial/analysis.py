@@ -120,6 +120,8 @@ def _perturbed_wires(site, delta_sign: float = 0.0, raise_m: float = 0.0, extend
         dz = delta_sign * tol + raise_m
         dz = np.where(at_feed, 0.0, dz)
         p[:, 2] = np.maximum(p[:, 2] + dz, 0.3 * p[:, 2] + 0.05 * (~at_feed))
+        if not _keeps_length(p, w.size.radius_m):
+            p = np.array(w.points_m, dtype=float)  # moving would fold a piece onto itself: keep it as described
         if w.role == "lead-in":
             # the lead-in's top follows the aerial; its receiver end stays put
             pass
@@ -127,6 +129,17 @@ def _perturbed_wires(site, delta_sign: float = 0.0, raise_m: float = 0.0, extend
     if extend_m > 0:
         out = _extend_far_end(out, feed, extend_m)
     return out
+
+
+def _keeps_length(points, radius_m: float) -> bool:
+    """Every piece stays a usable thin wire once low points are lifted to the feed gap (as resolve does)."""
+    from aerial.models.segments import FEED_GAP_M
+    from aerial.site import MIN_LENGTH_TO_RADIUS
+
+    lifted = np.array(points, dtype=float)
+    lifted[:, 2] = np.maximum(lifted[:, 2], FEED_GAP_M)
+    pieces = np.linalg.norm(np.diff(lifted, axis=0), axis=1)
+    return bool(np.all(pieces >= max(JOIN_TOLERANCE_M, MIN_LENGTH_TO_RADIUS * radius_m)))
 
 
 def _extend_far_end(wires, feed, extend_m):
