@@ -33,7 +33,13 @@ def check_writable(path, force: bool = False, protected=()) -> Path:
 
 
 def write_atomic(path, data: bytes | str, force: bool = False, protected=()) -> Path:
-    """Write ``data`` to ``path`` through a temporary file and a rename."""
+    """Write ``data`` to ``path`` through a temporary file and a rename.
+
+    The data is flushed to disk before the rename, so ``path`` holds either
+    its old content or all of the new, never part. Without ``force`` the last
+    step is a hard link, which fails if a file of that name appeared
+    meanwhile, so nothing is ever replaced.
+    """
     p = check_writable(path, force, protected)
     if isinstance(data, str):
         data = data.encode("utf-8")
@@ -41,16 +47,30 @@ def write_atomic(path, data: bytes | str, force: bool = False, protected=()) -> 
     try:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
         umask = os.umask(0)
         os.umask(umask)
         os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes 0600; give the file the usual permissions
-        if p.exists() and not force:  # appeared meanwhile
-            raise AerialError(f"{path}: already exists; choose another name or add --force to replace it")
-        os.replace(tmp, p)
+        if force:
+            os.replace(tmp, p)
+        else:
+            try:
+                os.link(tmp, p)  # fails if the name exists: never replaces a file that appeared meanwhile
+            except FileExistsError:
+                raise AerialError(f"{path}: already exists; choose another name or add --force to replace it") from None
+            except OSError:  # a file system without hard links
+                if p.exists():
+                    raise AerialError(f"{path}: already exists; choose another name or add --force to replace it") from None
+                os.replace(tmp, p)
     except BaseException:
         try:
             os.unlink(tmp)
         except OSError:
             pass
         raise
+    try:
+        os.unlink(tmp)  # the temporary name of a hard-linked file (already gone after a rename)
+    except OSError:
+        pass
     return p
