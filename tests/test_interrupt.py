@@ -1,0 +1,94 @@
+"""Ctrl-C: one line, exit 130, no traceback, no partial output file.
+
+A real process gets SIGINT in the middle of a full-wave sweep (the invented
+backyard example swept in 1 kHz steps takes several seconds); in-process
+tests interrupt the closed-form chain and the picture writing.
+"""
+
+from __future__ import annotations
+
+import os
+import signal
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+import pytest
+
+import aerial.analysis
+import aerial.pictures
+from aerial.cli import EXIT_INTERRUPTED, main
+
+from .conftest import ROOT
+
+BACKYARD = ROOT / "site_examples" / "backyard_inverted_l.toml"
+
+#: How long the process runs before the interrupt [s]: past start-up, inside the sweep.
+INTERRUPT_AFTER_S = 2.0
+
+
+def partial_files(folder: Path) -> list[str]:
+    if not folder.exists():
+        return []
+    bad = []
+    for p in folder.iterdir():
+        if p.name.endswith(".part") or p.name.startswith("."):
+            bad.append(p.name)
+        elif p.suffix == ".svg" and not p.read_text(encoding="utf-8").rstrip().endswith("</svg>"):
+            bad.append(p.name)
+    return bad
+
+
+@pytest.mark.skipif(os.name != "posix", reason="SIGINT delivery to a child needs POSIX")
+def test_sigint_during_a_full_wave_sweep(tmp_path):
+    pics = tmp_path / "pics"
+    env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    env.pop("AERIAL_DEBUG", None)
+    proc = subprocess.Popen(
+        [sys.executable, "-m", "aerial.cli", "report", str(BACKYARD), "--full-wave", "--step", "1 kHz",
+         "--pictures", str(pics), "--json"],
+        stdout=subprocess.PIPE, stderr=subprocess.PIPE, env=env, cwd=tmp_path,
+    )
+    time.sleep(INTERRUPT_AFTER_S)
+    assert proc.poll() is None, "the sweep ended before the interrupt; choose a longer one"
+    proc.send_signal(signal.SIGINT)
+    out, err = proc.communicate(timeout=120)
+    err = err.decode()
+    assert proc.returncode == EXIT_INTERRUPTED, err
+    assert err == "aerial: interrupted\n"
+    assert out == b""
+    assert partial_files(pics) == []
+    assert not pics.exists() or list(pics.iterdir()) == []
+
+
+def test_interrupt_in_the_closed_form_chain(capsys, monkeypatch, tmp_path):
+    def interrupted(*a, **k):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(aerial.analysis, "analyse", interrupted)
+    pics = tmp_path / "pics"
+    code = main(["report", str(BACKYARD), "--pictures", str(pics)])
+    out, err = capsys.readouterr()
+    assert code == EXIT_INTERRUPTED
+    assert err == "aerial: interrupted\n" and out == ""
+    assert not pics.exists()
+
+
+def test_interrupt_between_pictures_leaves_only_whole_files(capsys, monkeypatch, tmp_path):
+    real_svg = aerial.pictures._svg
+    calls = {"n": 0}
+
+    def svg_then_interrupt(fig):
+        calls["n"] += 1
+        if calls["n"] == 2:
+            raise KeyboardInterrupt
+        return real_svg(fig)
+
+    monkeypatch.setattr(aerial.pictures, "_svg", svg_then_interrupt)
+    pics = tmp_path / "pics"
+    code = main(["report", str(BACKYARD), "--json", "--pictures", str(pics)])
+    out, err = capsys.readouterr()
+    assert code == EXIT_INTERRUPTED
+    assert err == "aerial: interrupted\n" and out == ""
+    assert partial_files(pics) == []
