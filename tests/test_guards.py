@@ -1,0 +1,161 @@
+"""Numerical guards: extreme but valid sites give finite figures, and model-range breaches are flagged.
+
+Property tests (hypothesis) over sites written as TOML text and run through
+:func:`aerial.api.run_report`: wires from 1 m to 1 km, radii from 0.1 mm to
+5 cm, heights from 0.5 m to 100 m, bands anywhere in 100 kHz - 30 MHz, every
+soil category. The sites are generated test inputs, not reference data.
+
+The one physical fact checked is the short-aerial limit: the closed forms are
+stated valid up to 1/8 wavelength of wire (aerial.models.short_aerial
+MAX_RELIABLE_LENGTH_WAVELENGTHS, common practice for "electrically short"),
+with the wavelength c/f (c from scipy.constants).
+"""
+
+from __future__ import annotations
+
+import math
+
+import pytest
+from hypothesis import HealthCheck, assume, given, settings
+from hypothesis import strategies as st
+from scipy.constants import c as SPEED_OF_LIGHT
+
+from aerial.api import run_report
+from aerial.fullwave_bridge import MEMORY_BUDGET_BYTES, TIME_BUDGET_S, check_full_wave_budget, estimate_full_wave
+from aerial.errors import ResourceLimit
+from aerial.materials import SOILS
+
+from .fuzzlib import load
+
+fz = load()
+
+SHAPES = ("vertical", "horizontal", "inverted-L", "sloping")
+
+
+@st.composite
+def extreme_sites(draw):
+    shape = draw(st.sampled_from(SHAPES))
+    height = draw(st.floats(0.5, 100.0))
+    length = draw(st.floats(1.0, 1000.0))
+    radius = draw(st.floats(1e-4, 0.05))
+    lo = draw(st.floats(100e3, 29.5e6))
+    hi = draw(st.floats(min(lo * 1.01, 30e6), 30e6))
+    assume(hi > lo)
+    soil = draw(st.sampled_from(sorted(SOILS)))
+    base = 0.5
+    if shape == "vertical":
+        top = min(base + length, 100.0)
+        points = [[0, 0, base], [0, 0, top]]
+    elif shape == "horizontal":
+        points = [[0, 0, height], [length, 0, height]]
+    elif shape == "inverted-L":
+        h = max(height, base + 10 * radius + 0.01)
+        points = [[0, 0, base], [0, 0, h], [length, 0, h]]
+    else:
+        points = [[0, 0, base], [length, 0, max(height, base + 0.01)]]
+    step = min(1e6, max(100.0, (hi - lo) / 30.0))
+    pts = ", ".join("[" + ", ".join(f"{v:.6g}" for v in p) + "]" for p in points)
+    text = f"""
+[site]
+name = "extreme {shape}"
+bands = [{{from = "{lo:.0f} Hz", to = "{hi:.0f} Hz"}}]
+frequency_step = "{step:.0f} Hz"
+soil = "{soil}"
+
+[wire]
+diameter = "{2 * radius * 1e3:.6g} mm"
+
+[[runs]]
+points = [{pts}]
+
+[receiver]
+at = [0, 0]
+height = "0 m"
+coil = "240 uH"
+capacitor = ["15 pF", "365 pF"]
+
+[[earth.rods]]
+length = "2.4 m"
+
+[[stations]]
+frequency = "{math.sqrt(lo * hi):.0f} Hz"
+power = "10 kW"
+distance = "30 km"
+"""
+    return text, hi
+
+
+@settings(max_examples=14, deadline=None, suppress_health_check=[HealthCheck.too_slow, HealthCheck.function_scoped_fixture])
+@given(extreme_sites())
+def test_extreme_sites_give_finite_figures_and_flag_long_wires(tmp_path, site):
+    text, f_top = site
+    p = tmp_path / "extreme.toml"
+    p.write_text(text, encoding="utf-8")
+    result = run_report(str(p))
+    # no figure came out null (finalise turns a NaN or inf into null plus a warning)
+    assert fz._nulls(result) == []
+    assert not any("could not be computed" in w for w in result["warnings"]), result["warnings"]
+    # every model-range breach is flagged: wire longer than 1/8 wavelength at the top frequency
+    total = result["geometry"]["total_length_m"]
+    eighth = SPEED_OF_LIGHT / f_top / 8.0
+    flagged = any("1/8 wavelength" in w for w in result["warnings"])
+    if total > 1.001 * eighth:
+        assert flagged, (total, eighth, result["warnings"])
+    elif total < 0.999 * eighth:
+        assert not flagged, (total, eighth, result["warnings"])
+
+
+@settings(max_examples=40, deadline=None)
+@given(st.floats(1.0, 2000.0), st.floats(1e5, 30e6), st.integers(2, 3000))
+def test_full_wave_estimate_grows_with_length_and_frequencies(length, f_top, n_freq):
+    # consistency check: more wire or more frequencies never needs less memory or time. (With a single
+    # frequency it can: the solver skips its convergence check at twice the pieces once that would pass
+    # its memory limit, and the estimate follows the solver.)
+    import numpy as np
+
+    from aerial.models.segments import polyline_segments
+
+    f = np.linspace(f_top / 2, f_top, n_freq)
+    a = estimate_full_wave(polyline_segments(np.array([[0, 0, 0.5], [0, 0, 8], [length, 0, 8]]), 1e-3), f)
+    b = estimate_full_wave(polyline_segments(np.array([[0, 0, 0.5], [0, 0, 8], [2 * length, 0, 8]]), 1e-3), f)
+    c = estimate_full_wave(polyline_segments(np.array([[0, 0, 0.5], [0, 0, 8], [length, 0, 8]]), 1e-3),
+                           np.linspace(f_top / 2, f_top, n_freq + 10))
+    assert b["unknowns"] >= a["unknowns"] and b["seconds"] >= a["seconds"] and b["memory_bytes"] >= a["memory_bytes"]
+    assert c["seconds"] > a["seconds"]
+    assert all(math.isfinite(v) and v > 0 for v in (a["seconds"], a["memory_bytes"]))
+
+
+def test_full_wave_over_budget_is_refused_with_numbers_and_a_way_out():
+    import numpy as np
+
+    from aerial.models.segments import polyline_segments
+
+    # a 1 km wire swept over HF in 1 kHz steps: far past any budget
+    seg = polyline_segments(np.array([[0, 0, 0.5], [0, 0, 10], [1000, 0, 10]]), 1e-3)
+    f = np.arange(2.3e6, 26.1e6, 1e3)
+    with pytest.raises(ResourceLimit, match=r"unknowns at \d+ frequencies: .*budget.*--step.*--allow-large"):
+        check_full_wave_budget(seg, f)
+    est = check_full_wave_budget(seg, f, allow_large=True)
+    assert est["seconds"] > TIME_BUDGET_S or est["memory_bytes"] > MEMORY_BUDGET_BYTES
+
+
+def test_report_full_wave_refuses_a_large_sweep_before_solving(capsys, tmp_path):
+    from aerial.cli import main
+
+    p = tmp_path / "long.toml"
+    p.write_text("""
+[site]
+bands = ["hf"]
+[[runs]]
+points = [[0, 0, 0.5], [0, 0, 10], [1000, 0, 10]]
+[receiver]
+at = [0, 0]
+height = 0
+coil = "240 uH"
+[[earth.rods]]
+length = "2.4 m"
+""", encoding="utf-8")
+    code = main(["report", str(p), "--full-wave", "--step", "1 kHz", "--json"])
+    out, err = capsys.readouterr()
+    assert code == 2 and out == ""
+    assert err.count("\n") == 1 and "--allow-large" in err and "unknowns" in err
