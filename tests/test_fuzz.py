@@ -311,3 +311,41 @@ def test_no_traceback_reaches_the_terminal(tmp_path, content, argv_tail):
     assert proc.stdout == ""
     assert "Traceback" not in proc.stderr
     assert proc.stderr.count("\n") == 1 and proc.stderr.startswith("aerial: ")
+
+
+# --------------------------------------------------------------------------- found by the fuzzer (seed 3)
+
+
+def _example(name: str) -> str:
+    return (ROOT / "site_examples" / name).read_text(encoding="utf-8")
+
+
+@pytest.mark.parametrize("name, old, new, key", [
+    # a denormal earphone impedance divided by zero in the detector
+    ("backyard_inverted_l.toml", 'earphone = "high-impedance"', "earphone = 5e-324", "receiver.earphone"),
+    # a separate primary without its coupling factor reached the tuning model
+    ("rural_long_wire.toml", "coupling_factor = 0.3", "", "receiver.coupling_factor"),
+    # a plan corner at 1e300 m overflowed inside the geometry library
+    ("suburban_lot_service_line.toml", "[3, 20]]", "[3, 1e300]]", "plan.buildings[0].outline[3][1]"),
+])
+def test_fuzz_findings_are_refused_with_key(capsys, tmp_path, name, old, new, key):
+    text = _example(name)
+    assert old in text
+    p = tmp_path / "found.toml"
+    p.write_text(text.replace(old, new, 1), encoding="utf-8")
+    for command in ("report", "layout"):
+        code, out, err = run(capsys, command, str(p), "--json")
+        if command == "layout" and code == 0:
+            continue
+        assert code == 2, (command, err)
+        line = one_line(err)
+        assert f"{key} = " in line, line
+
+
+def test_wire_down_to_the_ground_keeps_its_length_in_the_ranges(capsys, tmp_path):
+    # the uncertainty run moved the low end onto the feed end (a zero-length piece reached the models)
+    p = tmp_path / "down.toml"
+    p.write_text(_example("portable_vertical_counterpoise.toml").replace("[0, 0, 7.0]", "[0, 0, 5e-324]"), encoding="utf-8")
+    code, out, err = run(capsys, "report", str(p), "--json")
+    assert code == 0, err
+    assert fz._nulls(json.loads(out)) == []
