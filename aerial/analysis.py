@@ -24,6 +24,14 @@ METHODS = ("closed-form", "full-wave")
 #: Default sweep step by band [Hz] when the site gives none.
 DEFAULT_STEP_HZ = ((300e3, 5e3), (2e6, 10e3), (31e6, 25e3))
 
+#: Said in every report of a wire on a block of flats: the models see a wire over open ground.
+APARTMENT_NOTE = (
+    "The wire is on a block of flats: these figures treat it as a wire over open ground at its height above "
+    "the street. A reinforced-concrete or steel-framed building is a grounded conductor close to the wire, so "
+    "the real effective height and signal may be far lower; 'aerial layout' reckons heights from the balcony "
+    "slab instead (an assumption, stated there). A bench measurement ([receiver.measured]) settles it."
+)
+
 #: Height change and added length in the what-if table.
 WHAT_IF_RAISE_M = 3.0
 WHAT_IF_EXTEND_M = 10.0
@@ -268,6 +276,8 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     if method not in METHODS:
         raise ModelInputError(f"'{method}' is not a valid method, must be one of " + ", ".join(f"'{m}'" for m in METHODS))
     warnings: list[str] = list(site.notes)
+    if isinstance(site.plan, dict) and str(site.plan.get("building", "")).lower() == "apartment":
+        warnings.append(APARTMENT_NOTE)
     freqs = frequency_grid(site, step_hz)
     earth = earth_system(site)
     warnings += earth.get("warnings", [])
