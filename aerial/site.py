@@ -464,6 +464,8 @@ def load_site_text(text: str, path: str = "<text>") -> Site:
     """Parse and validate site-file text; ``path`` is used in messages."""
     try:
         raw = tomllib.loads(text)
+    except RecursionError:
+        raise SiteError(path, "", "", "not valid TOML for aerial: arrays or tables nested too deeply") from None
     except tomllib.TOMLDecodeError as err:
         msg = str(err)
         line = None
