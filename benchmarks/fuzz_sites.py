@@ -379,7 +379,7 @@ def mutate_document(rng: random.Random, doc: dict, notes: list) -> dict:
         notes.append(f"drop [{top}]")
     elif op == "deep":
         v: object = rng.choice([1, "1 m"])
-        for _ in range(rng.choice([5, 50, 200])):
+        for _ in range(rng.choice([5, 30, 60])):  # deeper nesting is made as text (mutate_text "deep-array")
             v = [v]
         container[key] = v
         notes.append(f"deeply nested list at {where}")
@@ -395,9 +395,12 @@ def mutate_document(rng: random.Random, doc: dict, notes: list) -> dict:
 def mutate_text(rng: random.Random, data: bytes, notes: list) -> bytes:
     """Apply one byte-level mutation."""
     op = rng.choice(["bom", "bom", "truncate", "junk", "nul", "invalid-utf8", "utf16", "duplicate-header", "crlf",
-                     "cr", "drop-line", "dup-line", "flip", "insert-char", "tabs", "shuffle"])
+                     "cr", "drop-line", "dup-line", "flip", "insert-char", "tabs", "shuffle", "deep-array"])
     text = data
-    if op == "bom":
+    if op == "deep-array":
+        depth = rng.choice([100, 400, 990, 3000])
+        text = b"deep = " + b"[" * depth + b"1" + b"]" * depth + b"\n" + data
+    elif op == "bom":
         text = b"\xef\xbb\xbf" + data
     elif op == "truncate":
         text = data[: rng.randint(0, max(len(data) - 1, 0))]
@@ -651,7 +654,7 @@ def _toml_readable(case: Case) -> bool:
         return False
     try:
         tomllib.loads((case.data or b"").decode("utf-8"))
-    except (UnicodeDecodeError, tomllib.TOMLDecodeError):
+    except (UnicodeDecodeError, tomllib.TOMLDecodeError, RecursionError):
         return False
     return True
 
@@ -738,9 +741,9 @@ def _worker(conn, seed: int, memory_limit: int):
             index = conn.recv()
             if index is None:
                 break
-            case = make_case(seed, index, bases)
             folder = scratch / f"c{index}"
             try:
+                case = make_case(seed, index, bases)
                 results = run_case(case, folder)
             except BaseException as exc:  # noqa: BLE001 - a harness problem is reported, not hidden
                 results = [{"command": "harness", "argv": [], "exit": None, "class": "escaped-exception",
@@ -804,7 +807,11 @@ def run_fuzz(count: int, seed: int, *, workers: int = 2, timeout: float = DEFAUL
             summary.outcomes[r["class"]] = summary.outcomes.get(r["class"], 0) + 1
             summary.slowest.append((r["seconds"], index, r["command"]))
         if any(r["class"] in FAILURE_CLASSES for r in results):
-            case = make_case(seed, index)
+            try:
+                case = make_case(seed, index)
+            except Exception as exc:  # noqa: BLE001 - a harness fault must not end the run
+                summary.failures.append((index, f"(case could not be rebuilt: {type(exc).__name__})", results))
+                return
             summary.failures.append((index, case.description, results))
             if save_dir is not None:
                 save_reproducer(case, results, save_dir)

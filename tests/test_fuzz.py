@@ -349,3 +349,11 @@ def test_wire_down_to_the_ground_keeps_its_length_in_the_ranges(capsys, tmp_path
     code, out, err = run(capsys, "report", str(p), "--json")
     assert code == 0, err
     assert fz._nulls(json.loads(out)) == []
+
+
+def test_arrays_nested_too_deeply_for_the_parser(capsys, tmp_path):
+    # found by the fuzzer (seed 1): the TOML parser recursed past Python's limit -> internal error
+    p = tmp_path / "deep.toml"
+    p.write_text("deep = " + "[" * 3000 + "1" + "]" * 3000 + "\n", encoding="utf-8")
+    code, _, err = run(capsys, "check", str(p))
+    assert code == 2 and "nested too deeply" in one_line(err)
