@@ -264,7 +264,7 @@ def loaded_detector(peak_voltage, saturation_current, ideality, load_resistance,
     x = vp / vt
     li0 = _log_i0(x)
     lo = np.zeros_like(vp)
-    hi = vt * li0
+    hi = vt * np.maximum(li0, 0.0)  # ln I0(x) >= 0; round-off can make it a hair negative
     it = 0
     for it in range(1, int(max_iter) + 1):
         mid = 0.5 * (lo + hi)
