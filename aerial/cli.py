@@ -9,9 +9,11 @@ user can fix come out as one line on stderr and exit code 2; Ctrl-C exits
 from __future__ import annotations
 
 import argparse
+import contextlib
 import json
 import os
 import sys
+import time
 
 from aerial import __version__
 from aerial.errors import AerialError, SafetyRefusal
@@ -97,45 +99,51 @@ def _print_json(data) -> None:
     sys.stdout.write("\n")
 
 
-def _progress_factory(enabled: bool):
-    """A rich progress bar that appears only when a sweep takes more than a moment."""
+@contextlib.contextmanager
+def _progress(enabled: bool):
+    """Yield a ``progress(done, total)`` callback; its rich bar appears only after half a second.
+
+    Yields None when disabled (JSON output, or stderr is not a terminal).
+    """
     if not enabled:
-        return None, None
+        yield None
+        return
     from rich.progress import BarColumn, Progress, TextColumn, TimeRemainingColumn
 
-    prog = Progress(TextColumn("solving"), BarColumn(), TextColumn("{task.completed}/{task.total}"),
+    prog = Progress(TextColumn("working"), BarColumn(), TextColumn("{task.completed}/{task.total}"),
                     TimeRemainingColumn(), console=_console(stderr=True), transient=True)
-    state = {"task": None, "started": False}
-    import time
-
+    state = {"task": None}
     t0 = time.monotonic()
 
     def update(done, total):
-        if not state["started"] and time.monotonic() - t0 > 0.5:
+        if state["task"] is None and time.monotonic() - t0 > 0.5:
             prog.start()
-            state["started"] = True
             state["task"] = prog.add_task("sweep", total=total)
-        if state["started"]:
+        if state["task"] is not None:
             prog.update(state["task"], completed=done, total=total)
 
-    def stop():
-        if state["started"]:
+    try:
+        yield update
+    finally:
+        if state["task"] is not None:
             prog.stop()
 
-    return update, stop
+
+def _render(args, result, renderer_name: str) -> int:
+    """One rendering path for every command: JSON for scripts, the rich report for people."""
+    if args.json:
+        _print_json(result)
+    else:
+        from aerial import report
+
+        getattr(report, renderer_name)(result, _console())
+    return EXIT_OK
 
 
 def cmd_check(args) -> int:
     from aerial.api import check_site
 
-    summary = check_site(args.site)
-    if args.json:
-        _print_json(summary)
-    else:
-        from aerial.report import render_check
-
-        render_check(summary, _console())
-    return EXIT_OK
+    return _render(args, check_site(args.site), "render_check")
 
 
 def cmd_report(args) -> int:
@@ -151,21 +159,11 @@ def cmd_report(args) -> int:
             raise AerialError(f"--step {args.step}: {err.expected}") from None
         if not 100 <= step <= 1e6:
             raise AerialError(f"--step {args.step}: expected a step from 100 Hz to 1 MHz")
-    update, stop = _progress_factory(sys.stderr.isatty() and not args.json)
-    try:
+    with _progress(sys.stderr.isatty() and not args.json) as update:
         result = run_report(args.site, full_wave=args.full_wave, step_hz=step, progress=update,
                             pictures=args.pictures, force=args.force,
                             ground="lossy" if args.lossy_ground else "perfect", allow_large=args.allow_large)
-    finally:
-        if stop:
-            stop()
-    if args.json:
-        _print_json(result)
-    else:
-        from aerial.report import render_report
-
-        render_report(result, _console())
-    return EXIT_OK
+    return _render(args, result, "render_report")
 
 
 def cmd_layout(args) -> int:
@@ -173,20 +171,10 @@ def cmd_layout(args) -> int:
 
     if not 1 <= args.best <= MAX_BEST:
         raise AerialError(f"--best {args.best}: expected a whole number from 1 to {MAX_BEST}")
-    update, stop = _progress_factory(sys.stderr.isatty() and not args.json)
-    try:
+    with _progress(sys.stderr.isatty() and not args.json) as update:
         result = run_layout(args.site, best=args.best, full_wave=args.full_wave, picture=args.picture,
                             force=args.force, allow_large=args.allow_large, progress=update)
-    finally:
-        if stop:
-            stop()
-    if args.json:
-        _print_json(result)
-    else:
-        from aerial.report import render_layout
-
-        render_layout(result, _console())
-    return EXIT_OK
+    return _render(args, result, "render_layout")
 
 
 def cmd_coil(args) -> int:
@@ -194,13 +182,7 @@ def cmd_coil(args) -> int:
 
     result = coil_helper(diameter=args.diameter, wire=args.wire, turns=args.turns, inductance=args.inductance,
                          pitch=args.pitch, strands=args.strands, frequency=args.frequency)
-    if args.json:
-        _print_json(result)
-    else:
-        from aerial.report import render_coil
-
-        render_coil(result, _console())
-    return EXIT_OK
+    return _render(args, result, "render_coil")
 
 
 COMMANDS = {"check": cmd_check, "report": cmd_report, "layout": cmd_layout, "coil": cmd_coil}
