@@ -35,10 +35,11 @@ class SiteError(AerialError):
     @property
     def message(self) -> str:
         where = self.file if self.line is None else f"{self.file}:{self.line}"
-        shown = _show(self.value)
         if self.key:
-            return f"{where}: {self.key} = {shown}: {self.expected}"
-        return f"{where}: {self.expected}" if shown == "" else f"{where}: {shown}: {self.expected}"
+            return f"{where}: {self.key} = {_show(self.value)}: {self.expected}"
+        if self.value is None or self.value == "":
+            return f"{where}: {self.expected}"
+        return f"{where}: {_show(self.value)}: {self.expected}"
 
 
 class SafetyRefusal(AerialError):

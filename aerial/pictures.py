@@ -66,7 +66,7 @@ def draw_report_pictures(result: dict, folder, force: bool = False, protected=()
     z = np.asarray(a["impedance_ohm"], float)
     c = np.asarray(a["capacitance_f"], float)
     bands = list(_bands(result))
-    written = []
+    drawn: list[tuple[str, str]] = []  # draw every picture first, then write them in quick succession
 
     fig, axes = plt.subplots(2, max(1, len(bands)), figsize=(5 * max(1, len(bands)), 6), squeeze=False)
     for j, (band, m) in enumerate(bands):
@@ -82,7 +82,7 @@ def draw_report_pictures(result: dict, folder, force: bool = False, protected=()
         ax.grid(True, alpha=0.3)
     fig.suptitle(f"{result['site']['name']}: impedance at the receiver ({a['model'].split(':')[0]})")
     fig.tight_layout()
-    written.append(str(write_atomic(d / PICTURE_NAMES[0], _svg(fig), force, protected)))
+    drawn.append((PICTURE_NAMES[0], _svg(fig)))
     plt.close(fig)
 
     fig, axes = plt.subplots(1, max(1, len(bands)), figsize=(5 * max(1, len(bands)), 3.5), squeeze=False)
@@ -95,7 +95,7 @@ def draw_report_pictures(result: dict, folder, force: bool = False, protected=()
         ax.grid(True, alpha=0.3)
     fig.suptitle("Capacitance the aerial presents to the tuning circuit")
     fig.tight_layout()
-    written.append(str(write_atomic(d / PICTURE_NAMES[1], _svg(fig), force, protected)))
+    drawn.append((PICTURE_NAMES[1], _svg(fig)))
     plt.close(fig)
 
     curve = (result.get("tuning") or {}).get("range_curve")
@@ -110,6 +110,6 @@ def draw_report_pictures(result: dict, folder, force: bool = False, protected=()
         ax.set_title("Tuning range (dashed: band edges)")
         ax.grid(True, alpha=0.3)
         fig.tight_layout()
-        written.append(str(write_atomic(d / PICTURE_NAMES[2], _svg(fig), force, protected)))
+        drawn.append((PICTURE_NAMES[2], _svg(fig)))
         plt.close(fig)
-    return written
+    return [str(write_atomic(d / name, text, force, protected)) for name, text in drawn]

@@ -281,3 +281,17 @@ def test_cli_layout_invalid_plan_exit_2(tmp_path, capsys):
     p.write_text(text, encoding="utf-8")
     assert main(["layout", str(p)]) == EXIT_USER
     assert 'plan.building = "castle": expected one of "house", "apartment"' in capsys.readouterr().err
+
+
+def test_support_standing_on_the_entry_is_not_a_layout(tmp_path):
+    # regression (found by the fuzzing harness): a candidate support at the entry point made a
+    # zero-length arm; it must be excluded as too short, not crash the models
+    from .conftest import ROOT
+
+    text = (ROOT / "site_examples" / "balcony_water_pipe.toml").read_text()
+    text = text.replace('name = "rail corner"\nat = [6.0, 0.0]', 'name = "rail corner"\nat = [0.3, -0.5]')
+    site_file = tmp_path / "on_entry.toml"
+    site_file.write_text(text)
+    from aerial.cli import main
+
+    assert main(["layout", str(site_file), "--json"]) == 0
