@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from aerial.errors import AerialError, SafetyRefusal, SiteError
+from aerial.errors import AerialError, SafetyRefusal
 
 
 def check_site(path) -> dict:
@@ -53,23 +53,6 @@ def refusal_check(site) -> list[str]:
     return list(getattr(report, "warnings", []) or [])
 
 
-def check_tuning_inputs(site) -> None:
-    """Refuse, before any computing, a receiver the tuning design cannot start from.
-
-    The design needs the coil (an inductance, or a winding with its turns) or
-    the variable capacitor's range to work from.
-    """
-    from aerial.tomlpos import find_line
-
-    rx = site.receiver
-    has_coil = rx.inductance_h is not None or (rx.coil is not None and "turns" in rx.coil)
-    if not has_coil and rx.capacitor_min_f is None:
-        raise SiteError(site.path, "receiver.coil", "",
-                        'missing: give the coil (coil = "240 uH", or a [receiver.coil] winding with turns) or the '
-                        'capacitor range (capacitor = ["15 pF", "365 pF"]) so the tuning can be designed',
-                        line=find_line(site.text, "receiver") if site.text else None)
-
-
 def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=None, force=False, ground="perfect",
                allow_large=False) -> dict:
     """Load a site (None: the built-in example), run the whole chain, optionally draw pictures.
@@ -82,7 +65,6 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
 
     site = load_site(path)
     clearance_warnings = refusal_check(site)
-    check_tuning_inputs(site)
     if pictures:
         from aerial.pictures import check_picture_folder
 

@@ -45,6 +45,11 @@ def _coil_winding(site) -> reception.CoilWinding | None:
     return reception.CoilWinding(dia, wire_d, turns, length, pitch, int(strands), strand_d)
 
 
+#: The variable capacitor assumed when the site gives neither coil nor capacitor: a common
+#: broadcast-receiver tuning capacitor (an assumption, said in the report). [F]
+ASSUMED_CAPACITOR_F = (15e-12, 365e-12)
+
+
 def tuning_parts(site) -> reception.TuningParts:
     rx = site.receiver
     cal = None
@@ -55,8 +60,8 @@ def tuning_parts(site) -> reception.TuningParts:
         arrangement=rx.coupling,
         coil_inductance_h=rx.inductance_h,
         coil=_coil_winding(site),
-        capacitor_min_f=rx.capacitor_min_f,
-        capacitor_max_f=rx.capacitor_max_f,
+        capacitor_min_f=rx.capacitor_min_f if not _needs_assumed_capacitor(rx) else ASSUMED_CAPACITOR_F[0],
+        capacitor_max_f=rx.capacitor_max_f if not _needs_assumed_capacitor(rx) else ASSUMED_CAPACITOR_F[1],
         series_capacitance_f=rx.coupling_capacitor_f,
         tap_fraction=rx.tap_fraction,
         primary_inductance_h=rx.primary_inductance_h,
@@ -65,6 +70,11 @@ def tuning_parts(site) -> reception.TuningParts:
         earphone_ohm=rx.earphone_ohm,
         calibration=cal,
     )
+
+
+def _needs_assumed_capacitor(rx) -> bool:
+    has_coil = rx.inductance_h is not None or (rx.coil is not None and "turns" in rx.coil)
+    return not has_coil and rx.capacitor_min_f is None
 
 
 def _primary_band(site):
@@ -90,6 +100,10 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     tuning["band"] = {"name": name, "from_hz": lo, "to_hz": hi}
     tuning["arrangement"] = parts.arrangement
     tuning["source"] = "measured" if parts.calibration else "estimate"
+    if _needs_assumed_capacitor(site.receiver):
+        tuning.setdefault("notes", []).insert(0, (
+            "No coil or capacitor given: the coil is designed for a common 15-365 pF variable capacitor (an "
+            "assumption). Give [receiver] coil and capacitor to check your own parts."))
     if len(site.bands) > 1:
         tuning.setdefault("notes", []).append(
             f"The tuning parts are designed for the {name} band; other bands need their own coil.")

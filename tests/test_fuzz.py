@@ -240,11 +240,15 @@ def test_wire_doubling_back_is_refused(capsys, write_site):
     assert code == 2 and "doubles back along itself" in one_line(err)
 
 
-def test_receiver_without_coil_or_capacitor_is_refused_before_computing(capsys, write_site):
+def test_receiver_without_coil_or_capacitor_gets_a_designed_coil(capsys, write_site):
+    # a homeowner sizing a wire has no tuning parts yet: the report designs a coil for a common
+    # variable capacitor and says it assumed one
     p = write_site(MINIMAL)
-    code, _, err = run(capsys, "report", str(p), "--json")
-    assert code == 2
-    assert 'receiver.coil = "": missing: give the coil' in one_line(err)
+    code, out, err = run(capsys, "report", str(p), "--json")
+    assert code == 0, err
+    tuning = json.loads(out)["tuning"]
+    assert tuning["coil"]["inductance_h"] > 0
+    assert any("15-365 pF" in n for n in tuning["notes"])
 
 
 @pytest.mark.parametrize("key, value, words", [
@@ -297,7 +301,7 @@ def test_refusal_names_the_site_file(capsys, tmp_path):
 @pytest.mark.parametrize("content, argv_tail", [
     (b"\x89PNG\r\n\x1a\n\x00\x00binary", ["report", "--json"]),
     (MINIMAL.replace('length = "2.4 m"', "length = nan").encode(), ["check"]),
-    (MINIMAL.encode(), ["report", "--json"]),  # no coil: refused before computing
+    (MINIMAL.replace("[site]", '[site]\nbands = ["vlf"]').encode(), ["report", "--json"]),  # unknown band name
     (MINIMAL.encode(), ["layout", "--best", "x"]),
 ])
 def test_no_traceback_reaches_the_terminal(tmp_path, content, argv_tail):
