@@ -331,6 +331,15 @@ def build_topology(segments: Segments, counts: np.ndarray) -> Topology:
         cols_e[end].append(n)
         vals_e[end].append(sign)
 
+    def add_triangle(n, node, into, out_of, feed=False):
+        # one triangle basis across a node: current flows along ``into`` toward the node and on along ``out_of``
+        add_half(n, *into, incoming=True)
+        add_half(n, *out_of, incoming=False)
+        centre.append(node_pos[node])
+        feed_w.append(1.0 if feed else 0.0)
+        elec.append(0.0)
+        return n + 1
+
     ground_contacts = 0
     for node in range(n_nodes):
         members = order[bounds[node] : bounds[node + 1]]
@@ -360,31 +369,14 @@ def build_topology(segments: Segments, counts: np.ndarray) -> Topology:
         if has_lead and node == feed_node:
             lead = [(p, e) for p, e in zip(pieces, pend) if p_gnd[p]]
             aer = [(p, e) for p, e in zip(pieces, pend) if not p_gnd[p]]
-            ref_l, ref_a = lead[0], aer[0]
             # the gap: current from the earth side into the aerial
-            add_half(n_basis, *ref_l, incoming=True)
-            add_half(n_basis, *ref_a, incoming=False)
-            centre.append(node_pos[node])
-            feed_w.append(1.0)
-            elec.append(0.0)
-            n_basis += 1
-            for ref, others in ((ref_l, lead[1:]), (ref_a, aer[1:])):
+            n_basis = add_triangle(n_basis, node, lead[0], aer[0], feed=True)
+            for ref, others in ((lead[0], lead[1:]), (aer[0], aer[1:])):
                 for other in others:
-                    add_half(n_basis, *ref, incoming=True)
-                    add_half(n_basis, *other, incoming=False)
-                    centre.append(node_pos[node])
-                    feed_w.append(0.0)
-                    elec.append(0.0)
-                    n_basis += 1
+                    n_basis = add_triangle(n_basis, node, ref, other)
             continue
-        ref = (pieces[0], pend[0])
         for other in zip(pieces[1:], pend[1:]):
-            add_half(n_basis, *ref, incoming=True)
-            add_half(n_basis, *other, incoming=False)
-            centre.append(node_pos[node])
-            feed_w.append(0.0)
-            elec.append(0.0)
-            n_basis += 1
+            n_basis = add_triangle(n_basis, node, (pieces[0], pend[0]), other)
 
     if has_lead and ground_contacts == 0:
         # an earth side that never touches the ground is a counterpoise: the feed is the gap between
