@@ -17,13 +17,11 @@ the text of :func:`shapely.is_valid_reason`.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 
 import shapely
 from shapely.geometry import LineString, Point, Polygon
 
-from aerial import units
 from aerial.site import SUPPORT_KINDS, Site, _Reader
 
 #: Words accepted for an overhead line's ``kind``; anything else (or nothing) is a power line.
@@ -224,25 +222,10 @@ def line_kind(given) -> tuple[str, str]:
     return "power", (f'kind "{given}" not understood (expected "power" or "telephone/cable"): treated as a power line')
 
 
-def _number_pair(r: _Reader, value, key):
-    if not isinstance(value, list) or len(value) != 2:
-        r.fail(key, value, "expected a plan position [x, y] (metres east and north, or strings with units)")
-    out = []
-    for i, item in enumerate(value):
-        try:
-            v = units.parse_length(item)
-        except units.UnitError as err:
-            r.fail(f"{key}[{i}]", item, err.expected)
-        if not math.isfinite(v):
-            r.fail(f"{key}[{i}]", item, "expected a finite length")
-        out.append(v)
-    return out
-
-
 def _polygon(r: _Reader, value, key) -> Polygon:
     if not isinstance(value, list) or len(value) < 3:
         r.fail(key, value, "expected at least three corners [[x, y], [x, y], [x, y], ...]")
-    pts = [_number_pair(r, p, f"{key}[{j}]") for j, p in enumerate(value)]
+    pts = [r.plan_point(p, f"{key}[{j}]") for j, p in enumerate(value)]
     poly = Polygon(pts)
     if not shapely.is_valid(poly) or poly.area <= 0:
         reason = shapely.is_valid_reason(poly) if not shapely.is_valid(poly) else "the corners enclose no area"
@@ -253,7 +236,7 @@ def _polygon(r: _Reader, value, key) -> Polygon:
 def _path(r: _Reader, value, key) -> LineString:
     if not isinstance(value, list) or len(value) < 2:
         r.fail(key, value, "expected at least two points [[x, y], [x, y], ...]")
-    pts = [_number_pair(r, p, f"{key}[{j}]") for j, p in enumerate(value)]
+    pts = [r.plan_point(p, f"{key}[{j}]") for j, p in enumerate(value)]
     line = LineString(pts)
     if line.length <= 0:
         r.fail(key, value, "the line has no length: give two different points")
@@ -269,7 +252,7 @@ def _entry(r: _Reader, raw, site: Site) -> Entry:
     r.check_keys(t, key, {"at", "height", "fixing_height", "notes"})
     if "at" not in t:
         r.fail(f"{key}.at", "", "missing: expected the plan position [x, y] where the lead-in enters the building")
-    x, y = _number_pair(r, t["at"], f"{key}.at")
+    x, y = r.plan_point(t["at"], f"{key}.at")
     h = r.length(t, key, "height", default=0.0, minimum=0.0)
     fix = r.length(t, key, "fixing_height", positive=True)
     if fix is not None and fix <= h:
@@ -289,7 +272,7 @@ def _supports(r: _Reader, raw, site: Site, entry: Entry) -> list:
         names.add(name)
         if "at" not in t:
             r.fail(f"{key}.at", "", "missing: expected a plan position at = [x, y]")
-        x, y = _number_pair(r, t["at"], f"{key}.at")
+        x, y = r.plan_point(t["at"], f"{key}.at")
         h = r.length(t, key, "height", required=True, positive=True)
         kind = r.string(t, key, "kind", default="other", choices=SUPPORT_KINDS)
         out.append(PlanSupport(name, x, y, h, kind, key))
