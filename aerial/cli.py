@@ -91,7 +91,14 @@ def build_parser() -> argparse.ArgumentParser:
 def _console(stderr=False):
     from rich.console import Console
 
-    return Console(stderr=stderr, highlight=False, soft_wrap=False)
+    class _Console(Console):
+        def on_broken_pipe(self) -> None:
+            # rich exits with status 1 here; a reader that went away (`| head`) is not an error
+            devnull = os.open(os.devnull, os.O_WRONLY)
+            os.dup2(devnull, sys.stdout.fileno())
+            raise BrokenPipeError
+
+    return _Console(stderr=stderr, highlight=False, soft_wrap=False)
 
 
 def _print_json(data) -> None:

@@ -164,3 +164,17 @@ def test_bench_measurement_replaces_the_estimate(capsys, write_site):
     code, out, err = run(capsys, "report", str(write_site(text)), "--json")
     assert code == 0, err
     assert json.loads(out)["tuning"]["source"] == "measured"
+
+
+def test_a_closed_pipe_is_not_an_error():
+    # `aerial report | head -1`: the reader goes away; aerial exits 0 with nothing on stderr
+    import subprocess
+    import sys
+
+    proc = subprocess.Popen([sys.executable, "-m", "aerial.cli", "report"], stdout=subprocess.PIPE,
+                            stderr=subprocess.PIPE)
+    proc.stdout.readline()
+    proc.stdout.close()
+    err = proc.stderr.read()
+    assert proc.wait(timeout=120) == 0
+    assert err == b""
