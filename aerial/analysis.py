@@ -66,7 +66,7 @@ def earth_system(site) -> dict:
     """Resistance of the site's earth system at low frequency, with its range. [ohm]"""
     from aerial import earth
 
-    return earth.earth_system(site.electrodes, site.soil, earth.as_counterpoise_site(site))
+    return earth.earth_system(site.electrodes, site.soil, earth.as_counterpoise_site(site), path=site.path)
 
 
 # --------------------------------------------------------------------------- aerial

@@ -58,7 +58,7 @@ def _one(e, resistivity: float, radius_default: float) -> tuple[float, str, list
     return float(np.asarray(est.resistance_ohm)), est.method, list(est.warnings), what
 
 
-def earth_system(electrodes, soil, counterpoise_wires=()) -> dict:
+def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>") -> dict:
     """Combined earth resistance with a low/high range from the soil's conductivity bounds.
 
     Parameters
@@ -104,6 +104,11 @@ def earth_system(electrodes, soil, counterpoise_wires=()) -> dict:
         rn, method, w, what = _one(e, 1.0 / soil.conductivity_s_m, radius)
         rl, _, _, _ = _one(e, 1.0 / soil.conductivity_high_s_m, radius)
         rh, _, _, _ = _one(e, 1.0 / soil.conductivity_low_s_m, radius)
+        if not all(np.isfinite(v) and v > 0 for v in (rn, rl, rh)):
+            from aerial.errors import SiteError
+
+            raise SiteError(path, e.key, what, "outside the range of the electrode formula (its resistance "
+                            "comes out non-positive): check the length, diameter and depth")
         warnings += w
         parts.append({"kind": e.kind, "description": what, "resistance_ohm": rn, "resistance_low_ohm": rl,
                       "resistance_high_ohm": rh, "method": method})

@@ -75,6 +75,9 @@ MIN_LENGTH_TO_RADIUS = 10.0
 #: A receiver below this height is fed at ground level (no earth-lead wire is modelled). [m]
 EARTH_LEAD_MIN_HEIGHT_M = 0.05
 
+#: Shortest rod, buried wire or buried pipe the electrode formulas are used for. [m]
+MIN_ELECTRODE_LENGTH_M = 0.3
+
 #: Plain-number pieces a sagging span is cut into.
 SAG_PIECES = 8
 
@@ -929,7 +932,7 @@ def _earth(r: _Reader, raw, receiver: Receiver, default_size, soil) -> tuple:
         key = f"earth.rods[{i}]"
         r.check_keys(rod, key, {"count", "length", "diameter", "spacing", "at", "notes"})
         count = r.number(rod, key, "count", default=1, low=1, high=64, integer=True, what="a whole number of rods")
-        length = r.length(rod, key, "length", default=2.4, positive=True)
+        length = r.length(rod, key, "length", default=2.4, minimum=MIN_ELECTRODE_LENGTH_M)
         dia = r.length(rod, key, "diameter", default=0.016, positive=True)
         if dia >= length / 4:
             r.fail(f"{key}.diameter", rod.get("diameter", dia), "a rod's diameter must be small next to its length")
@@ -940,8 +943,11 @@ def _earth(r: _Reader, raw, receiver: Receiver, default_size, soil) -> tuple:
         key = f"earth.buried_wires[{i}]"
         r.check_keys(bw, key, {"count", "length", "depth", "at", "arrangement", "notes"} | _SIZE_KEYS)
         count = r.number(bw, key, "count", default=1, low=1, high=120, integer=True, what="a whole number of wires")
-        length = r.length(bw, key, "length", required=True, positive=True)
+        length = r.length(bw, key, "length", required=True, minimum=MIN_ELECTRODE_LENGTH_M)
         depth = r.length(bw, key, "depth", default=0.15, positive=True)
+        if depth > length:
+            r.fail(f"{key}.depth", bw.get("depth"), f"a burial depth greater than the wire's length ({length:g} m); "
+                   "a wire going straight down is a rod: use [[earth.rods]]")
         size = _wire_size(r, bw, key, default_size)
         arrangement = r.string(bw, key, "arrangement", default="radials" if count > 1 else "straight", choices=("radials", "straight"))
         x, y = r.plan_point(bw["at"], f"{key}.at") if "at" in bw else (None, None)
@@ -957,9 +963,13 @@ def _earth(r: _Reader, raw, receiver: Receiver, default_size, soil) -> tuple:
         if cont is None:
             notes.append("The water pipe's continuity is not stated: it is an earth only if no plastic section "
                          "(repair, meter, filter) interrupts it. Check, or set continuous_metal = true.")
-        length = r.length(wp, key, "buried_length", default=10.0, positive=True)
+        length = r.length(wp, key, "buried_length", default=10.0, minimum=MIN_ELECTRODE_LENGTH_M)
         dia = r.length(wp, key, "diameter", default=0.022, positive=True)
+        if dia >= length / 4:
+            r.fail(f"{key}.diameter", wp.get("diameter", dia), "a pipe's diameter must be small next to its buried length")
         depth = r.length(wp, key, "depth", default=0.8, positive=True)
+        if depth > length:
+            r.fail(f"{key}.depth", wp.get("depth"), f"a burial depth greater than the pipe's buried length ({length:g} m)")
         x, y = r.plan_point(wp["at"], f"{key}.at") if "at" in wp else (None, None)
         electrodes.append(Electrode("water_pipe", key, 1, length, dia, 0.0, depth, x, y, continuous_metal=cont))
     if "building_earth" in t:

@@ -186,3 +186,14 @@ def test_geometry_has_segments_and_footprint():
     assert np.all(geo.segments.length > 0)
     assert geo.footprint().length == pytest.approx(20.0 + 0.0, abs=1e-6)
     assert geo.max_height_m == pytest.approx(10.0)
+
+
+@pytest.mark.parametrize("table, expected", [
+    ('[earth.water_pipe]\nburied_length = "1e-300 m"', "earth.water_pipe.buried_length"),
+    ('[[earth.buried_wires]]\nlength = "5 m"\ndepth = "8 m"', "earth.buried_wires[0].depth"),
+    ('[[earth.rods]]\nlength = "1 cm"', "earth.rods[0].length"),
+])
+def test_electrodes_outside_their_formulas_are_refused(table, expected):
+    # regression (found by the fuzzing harness): a 1e-300 m water pipe gave a negative resistance
+    text = MINIMAL.replace('[[earth.rods]]\nlength = "2.4 m"', table)
+    rejects(text, expected)
