@@ -727,6 +727,11 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
         within = (c_needed >= parts.capacitor_min_f) & (c_needed <= parts.capacitor_max_f)
     share = shunt.capacitance / np.where(c_total != 0, c_total, 1e-30)
 
+    rejection = {}
+    for spacing in tank_mod.CHANNEL_SPACINGS_HZ:
+        for offset in (spacing, 2 * spacing):
+            rejection[f"rejection_{int(offset / 1e3)}khz_db"] = tank_mod.adjacent_rejection_db(table_f, ql, offset)
+
     rows = []
     for i, fi in enumerate(table_f):
         row = {
@@ -744,11 +749,8 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
             "power_transfer_ratio": _num(transfer[i], "power_transfer_ratio", warnings),
             "power_transfer_if_matched_ratio": _num(matched[i], "power_transfer_if_matched_ratio", warnings),
         }
-        for spacing in tank_mod.CHANNEL_SPACINGS_HZ:
-            k = int(spacing / 1e3)
-            row[f"rejection_{k}khz_db"] = _num(tank_mod.adjacent_rejection_db(fi, ql[i], spacing), "rejection", warnings)
-            row[f"rejection_{2 * k}khz_db"] = _num(tank_mod.adjacent_rejection_db(fi, ql[i], 2 * spacing),
-                                                   "rejection", warnings)
+        for key, values in rejection.items():
+            row[key] = _num(values[i], "rejection", warnings)
         if shunt.capacitance[i] < 0:
             row["note"] = "the aerial looks inductive here (above its first resonance)"
         rows.append(row)
