@@ -25,6 +25,8 @@ One site in, one JSON-ready dict out (:func:`plan_layouts`); the command line
 Frame: metres, x east, y north, z up (heights above the ground).
 """
 
+# "check values §N" refers to the sections of docs/check-values.md.
+
 from __future__ import annotations
 
 import math
@@ -173,7 +175,7 @@ def layout_figures(kind, junction_height, arm1, arm2, arm1_height, arm2_height, 
     and lead-in carry about the feed current (R' l), the top arms and the
     sloping wire a current falling to zero (R' l / 3). Capacitance: the sum
     of the sections' average-potential capacitances (Howe), a few per cent
-    high because the sections shield each other (REFERENCES.md sec. 3).
+    high because the sections shield each other (check values §3).
 
     References
     ----------

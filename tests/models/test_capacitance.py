@@ -1,5 +1,7 @@
 """Capacitance: average-potential closed forms and the electrostatic moment solution."""
 
+# "check values §N" refers to the sections of docs/check-values.md.
+
 from __future__ import annotations
 
 import numpy as np
@@ -15,7 +17,7 @@ from aerial.models.segments import Segments, polyline_segments
 A = 1e-3  # wire radius of the reference table [m]
 GAP = 0.02  # base gap of the reference table [m]
 
-# REFERENCES sec. 3: [num] consistency values from an independent thin-wire electrostatic
+# check values §3: [num] consistency values from an independent thin-wire electrostatic
 # moment solution with images (a = 1 mm, base gap 2 cm, perfect ground). Not published values.
 INDEPENDENT_MOMENT_SOLUTION = {
     "vertical 10 m": (polyline_segments([[0, 0, GAP], [0, 0, 10]], A), 68.25e-12, 4.866),
@@ -31,7 +33,7 @@ INDEPENDENT_MOMENT_SOLUTION = {
 
 
 def test_horizontal_wire_per_metre():
-    # Image method (any electromagnetics text): C' = 2 pi eps0 / arccosh(H/a); REFERENCES sec. 3: 5.6175 pF/m.
+    # Image method (any electromagnetics text): C' = 2 pi eps0 / arccosh(H/a); check values §3: 5.6175 pF/m.
     assert cp.horizontal_wire_capacitance_per_m(10.0, 1e-3) == pytest.approx(5.6175e-12, rel=1e-4)
     assert cp.horizontal_wire_capacitance_per_m(10.0, 1e-3) == pytest.approx(
         2 * np.pi * epsilon_0 / np.arccosh(1e4), rel=1e-12
@@ -40,13 +42,13 @@ def test_horizontal_wire_per_metre():
 
 def test_isolated_wire_howe_and_jackson():
     # Howe (average potential) and Jackson, Am. J. Phys. 68, 789 (2000) series, both from memory;
-    # REFERENCES sec. 3 values for L = 20 m, a = 1 mm: Howe 115.94 pF, Jackson 116.14 pF.
+    # check values §3 values for L = 20 m, a = 1 mm: Howe 115.94 pF, Jackson 116.14 pF.
     assert cp.isolated_wire_capacitance(20.0, 1e-3) == pytest.approx(115.94e-12, rel=2e-4)
     assert cp.isolated_wire_capacitance_jackson(20.0, 1e-3) == pytest.approx(116.14e-12, rel=2e-4)
 
 
 def test_isolated_wire_moment_solution():
-    # [num] REFERENCES sec. 3: numerical 116.27 pF; Thomson's theorem: at least the Howe value;
+    # [num] check values §3: numerical 116.27 pF; Thomson's theorem: at least the Howe value;
     # Jackson's series (2000) within 0.2 %.
     sol = cp.electrostatic_solution(polyline_segments([[0, 0, 0], [20, 0, 0]], 1e-3), target_unknowns=480, ground_plane=False)
     assert sol.capacitance_f == pytest.approx(116.27e-12, rel=2e-3)
@@ -55,13 +57,13 @@ def test_isolated_wire_moment_solution():
 
 
 def test_vertical_howe_reduces_to_no_gap_form():
-    # Howe's vertical wire from the ground: C = 2 pi eps0 h / [ln(h/a) - 1] (REFERENCES sec. 3, from memory).
+    # Howe's vertical wire from the ground: C = 2 pi eps0 h / [ln(h/a) - 1] (check values §3, from memory).
     h, a = 10.0, 1e-3
     assert cp.vertical_wire_capacitance(h, a, 0.0) == pytest.approx(2 * np.pi * epsilon_0 * h / (np.log(h / a) - 1), rel=1e-12)
 
 
 def test_horizontal_howe_section_value():
-    # [num] REFERENCES sec. 3: the 20 m top of the 10 + 20 m inverted-L alone, 121.9 pF.
+    # [num] check values §3: the 20 m top of the 10 + 20 m inverted-L alone, 121.9 pF.
     assert cp.horizontal_wire_capacitance(20.0, 10.0, 1e-3) == pytest.approx(121.9e-12, rel=5e-4)
 
 
@@ -70,7 +72,7 @@ def test_reference_table(name):
     seg, c_ref, he_ref = INDEPENDENT_MOMENT_SOLUTION[name]
     sol = cp.electrostatic_solution(seg)
     assert sol.converged
-    assert sol.capacitance_f == pytest.approx(c_ref, rel=0.01)  # [num] consistency, REFERENCES sec. 3
+    assert sol.capacitance_f == pytest.approx(c_ref, rel=0.01)  # [num] consistency, check values §3
     if he_ref is not None:
         assert sol.effective_height_m == pytest.approx(he_ref, rel=0.01)
 
@@ -92,7 +94,7 @@ def test_howe_lower_bound_thomson():
 
 
 def test_section_sums_overshoot():
-    # REFERENCES sec. 3 [num]: sections shield each other, so the sum of section capacitances overshoots.
+    # check values §3 [num]: sections shield each other, so the sum of section capacitances overshoots.
     sol = cp.electrostatic_solution(INDEPENDENT_MOMENT_SOLUTION["inverted-L 10 + 20 m"][0])
     parts = cp.vertical_wire_capacitance(10.0, A, GAP) + cp.horizontal_wire_capacitance(20.0, 10.0, A)
     assert sol.capacitance_f < parts

@@ -1,5 +1,7 @@
 """Closed-form response of whole wire sets (geometries invented for the tests)."""
 
+# "check values §N" refers to the sections of docs/check-values.md.
+
 from __future__ import annotations
 
 import numpy as np
@@ -22,7 +24,7 @@ KEYS = ("capacitance_f", "static_capacitance_f", "effective_height_m", "radiatio
 
 
 def test_static_limit_is_the_electrostatic_solution():
-    # [num] REFERENCES sec. 3 (independent moment solution): 181.6 pF, 8.133 m for the 10 + 20 m inverted-L.
+    # [num] check values §3 (independent moment solution): 181.6 pF, 8.133 m for the 10 + 20 m inverted-L.
     r = closed_form_response(INV_L, [1e3, 10e3])
     es = electrostatic_solution(INV_L)
     assert r["capacitance_f"] == pytest.approx([es.capacitance_f] * 2, rel=1e-6)
@@ -34,7 +36,7 @@ def test_static_limit_is_the_electrostatic_solution():
 
 
 def test_frequency_dependence_follows_top_loading_model():
-    # Consistency with the un-normalised top-loading model (REFERENCES sec. 4 [num]: X = -779.8 ohm, h_e = 8.274 m
+    # Consistency with the un-normalised top-loading model (check values §4 [num]: X = -779.8 ohm, h_e = 8.274 m
     # at 1 MHz); normalisation changes them by the static ratios, well under 1 % here.
     r = closed_form_response(INV_L, [1e6])
     line = sa.inverted_l(9.98, 20.0, A, 1e6)
@@ -76,7 +78,7 @@ def test_irregular_shape_uses_uniform_line_and_warns():
     assert r["shape"]["kind"] == "irregular"
     assert "uniform-line equivalent" in r["model"]
     assert any("irregular shape" in w for w in r["warnings"])
-    # [num] REFERENCES sec. 3: horizontal 30 m at 10 m, 179.1 pF
+    # [num] check values §3: horizontal 30 m at 10 m, 179.1 pF
     assert r["capacitance_f"][0] == pytest.approx(179.1e-12, rel=0.01)
 
 

@@ -9,7 +9,7 @@ from aerial.errors import ModelInputError
 from aerial.models import coil
 
 # Nagaoka's coefficient for l/d = 0.5, 1, 2, 4 (Nagaoka 1909 table; values from memory,
-# confirmed by the working sheet's own evaluation [num]). Tolerance: the 4th decimal.
+# confirmed by an independent evaluation, docs/check-values.md §10 [num]). Tolerance: the 4th decimal.
 NAGAOKA_TABLE = [(0.5, 0.5255), (1.0, 0.6884), (2.0, 0.8181), (4.0, 0.9016)]
 
 
@@ -26,7 +26,7 @@ def test_nagaoka_long_and_short_limits():
 
 
 def test_wheeler_worked_value():
-    # Wheeler, Proc. IRE 16, 1928: L(µH) = d²n²/(18d + 40l), inches. Worked value (working sheet §10):
+    # Wheeler, Proc. IRE 16, 1928: L(µH) = d²n²/(18d + 40l), inches. Worked value (check values §10):
     # d = l = 50 mm, 60 turns ≈ 122.2 µH; the current sheet gives 122.3 µH [num].
     r = coil.wheeler_inductance(0.05, 0.05, 60)
     assert float(r.inductance) == pytest.approx(122.2e-6, rel=1e-3)
@@ -64,12 +64,12 @@ def test_winding_at_pitch_needs_more_turns():
 
 
 def test_skin_depth_copper():
-    # working sheet §5 (IEC 60028 copper): δ = 66.09 µm at 1 MHz [num from the formula]
+    # check values §5 (IEC 60028 copper): δ = 66.09 µm at 1 MHz [num from the formula]
     assert float(coil.skin_depth(1e6)) == pytest.approx(66.09e-6, rel=1e-3)
 
 
 def test_isolated_wire_factor_matches_exact_internal_impedance():
-    # working sheet §5: 14 AWG at 1 MHz, 53.15 mΩ/m exact, R_dc 8.286 mΩ/m [num]
+    # check values §5: 14 AWG at 1 MHz, 53.15 mΩ/m exact, R_dc 8.286 mΩ/m [num]
     assert float(coil.isolated_wire_ac_factor(1.628e-3, 1e6)) == pytest.approx(53.15 / 8.286, rel=2e-3)
 
 

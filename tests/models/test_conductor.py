@@ -1,5 +1,7 @@
 """Conductor loss: resistivity, skin depth, round-wire and clad-wire internal impedance."""
 
+# "check values §N" refers to the sections of docs/check-values.md.
+
 from __future__ import annotations
 
 import numpy as np
@@ -22,7 +24,7 @@ def test_copper_resistivity_is_iec_60028():
 
 
 def test_skin_depth_copper_1mhz_with_scipy_mu0():
-    # delta = sqrt(rho / (pi f mu0)) with scipy.constants.mu_0; REFERENCES sec. 5: 66.09 um at 1 MHz.
+    # delta = sqrt(rho / (pi f mu0)) with scipy.constants.mu_0; check values §5: 66.09 um at 1 MHz.
     expected = np.sqrt(1.72414e-8 / (np.pi * 1e6 * mu_0))
     assert cd.skin_depth(1e6) == pytest.approx(expected, rel=1e-12)
     assert cd.skin_depth(1e6) == pytest.approx(66.09e-6, rel=2e-4)
@@ -31,7 +33,7 @@ def test_skin_depth_copper_1mhz_with_scipy_mu0():
 
 
 def test_awg14_at_1mhz():
-    # [num] consistency value, REFERENCES sec. 5: exact Bessel solution 53.15 mOhm/m, R_dc 8.286 mOhm/m.
+    # [num] consistency value, check values §5: exact Bessel solution 53.15 mOhm/m, R_dc 8.286 mOhm/m.
     assert cd.dc_resistance_per_m(AWG14_RADIUS) == pytest.approx(8.286e-3, rel=5e-4)
     assert cd.resistance_per_m(AWG14_RADIUS, 1e6) == pytest.approx(53.15e-3, rel=5e-4)
 

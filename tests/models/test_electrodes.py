@@ -1,5 +1,7 @@
 """Earth electrodes: Dwight rods and stars, IEEE Std 142 factors, Sunde buried wire, pipes, parallel sets."""
 
+# "check values §N" refers to the sections of docs/check-values.md.
+
 from __future__ import annotations
 
 import numpy as np
@@ -20,12 +22,12 @@ def test_dwight_rod_ieee_142_worked_value():
 
 
 def test_dwight_rod_second_value():
-    # [num] REFERENCES sec. 6: 3.0 m x 16 mm rod in 100 ohm m, 33.49 ohm.
+    # [num] check values §6: 3.0 m x 16 mm rod in 100 ohm m, 33.49 ohm.
     assert el.dwight_rod(3.0, 8e-3, 100.0).resistance_ohm == pytest.approx(33.49, abs=0.01)
 
 
 def test_sunde_buried_wire():
-    # Sunde, Earth Conduction Effects (1949), from memory; [num] REFERENCES sec. 6: 10 m x 2 mm at 0.3 m, 100 ohm m: 18.16 ohm.
+    # Sunde, Earth Conduction Effects (1949), from memory; [num] check values §6: 10 m x 2 mm at 0.3 m, 100 ohm m: 18.16 ohm.
     assert el.sunde_buried_wire(10.0, 1e-3, 0.3, 100.0).resistance_ohm == pytest.approx(18.16, abs=0.01)
 
 

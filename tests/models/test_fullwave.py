@@ -1,7 +1,7 @@
 """Validation of the full-wave thin-wire solver (method of moments).
 
 Sources are named beside each check. Values tagged [num] in
-/work/shared/REFERENCES.md come from an independent numerical solution, not a
+docs/check-values.md come from an independent numerical solution, not a
 published table: they are consistency targets.
 """
 
@@ -31,7 +31,7 @@ def induced_emf_dipole(length, radius, wavelength=1.0):
     """Induced-EMF input impedance of a thin centre-fed dipole (sinusoidal current).
 
     Balanis, Antenna Theory (Wiley), ch. 8 self-impedance with Si/Ci from
-    scipy.special.sici, referred to the input by 1/sin^2(kl/2); REFERENCES.md §2.
+    scipy.special.sici, referred to the input by 1/sin^2(kl/2); check values §2.
     """
     k = 2 * np.pi / wavelength
     kl = k * length
@@ -54,10 +54,10 @@ def monopole(height, radius, gap=0.0, lossless=True):
                     resistivity=0.0 if lossless else None)
 
 
-# ----------------------------------------------------------------- fixtures from REFERENCES.md
-# REFERENCES.md §2 [num from the Balanis induced-EMF formula]: λ/4 monopole 36.54 + j21.26 Ω.
+# ----------------------------------------------------------------- fixtures from docs/check-values.md (independent computations)
+# check values §2 [num from the Balanis induced-EMF formula]: λ/4 monopole 36.54 + j21.26 Ω.
 INDUCED_EMF_QUARTER_WAVE = 36.54 + 21.26j
-# REFERENCES.md §3 table [num]: independent electrostatic moment solution, a = 1 mm, 2 cm base gap.
+# check values §3 table [num]: independent electrostatic moment solution, a = 1 mm, 2 cm base gap.
 ELECTROSTATIC_TABLE = {
     "vertical 10 m": (68.25e-12, 4.866),
     "inverted-L 10 + 20 m": (181.6e-12, 8.133),
@@ -78,7 +78,7 @@ def table_shape(name, radius=1e-3, gap=0.02):
 
 # ----------------------------------------------------------------- induced EMF (thin limit)
 def test_induced_emf_formula_reproduces_the_reference_values():
-    # consistency of the test helper with REFERENCES.md §2 [num]: λ/2 dipole 73.08 + j42.52 Ω
+    # consistency of the test helper with check values §2 [num]: λ/2 dipole 73.08 + j42.52 Ω
     z = induced_emf_dipole(0.5, 1e-5)
     assert z.real == pytest.approx(73.08, abs=0.01)
     assert z.imag == pytest.approx(42.52, abs=0.01)
@@ -100,7 +100,7 @@ def test_quarter_wave_monopole_tends_to_induced_emf_as_wire_thins():
 
 
 def test_short_thin_monopole_approaches_induced_emf():
-    # Balanis induced EMF, l = 0.1 λ dipole (monopole h = 0.05 λ), REFERENCES.md §2; thin wire a = 1e-8 λ
+    # Balanis induced EMF, l = 0.1 λ dipole (monopole h = 0.05 λ), check values §2; thin wire a = 1e-8 λ
     ref = induced_emf_dipole(0.1, 1e-8) / 2
     z = solve_full_wave(monopole(0.05, 1e-8), [c], min_pieces_per_wire=24, convergence_check=False).impedance[0]
     assert z.real == pytest.approx(ref.real, rel=0.04)
@@ -130,7 +130,7 @@ def test_agrees_with_hallen_at_quarter_wave():
 # ----------------------------------------------------------------- electrostatic limit
 @pytest.mark.parametrize("name", list(ELECTROSTATIC_TABLE))
 def test_short_limit_matches_electrostatic_table(name):
-    # REFERENCES.md §3 [num]: independent electrostatic thin-wire solution, a = 1 mm, 2 cm base gap; within 2 %.
+    # check values §3 [num]: independent electrostatic thin-wire solution, a = 1 mm, 2 cm base gap; within 2 %.
     cap, h_e = ELECTROSTATIC_TABLE[name]
     r = solve_full_wave(table_shape(name), [100e3], convergence_check=False)
     assert r.capacitive[0]
@@ -150,15 +150,15 @@ def test_short_limit_matches_shared_electrostatic_solver():
 
 
 def test_short_monopole_resistance_slightly_below_triangular_current_formula():
-    # REFERENCES.md §1 (Balanis ch. 4; from memory): Rr = 40 π² (h/λ)² for a triangular current.
+    # check values §1 (Balanis ch. 4; from memory): Rr = 40 π² (h/λ)² for a triangular current.
     # A real base feed makes the current slightly less than triangular (h_e ≈ 4.87 m, not 5 m, for the
     # 10 m wire), so the moment result is a few percent low: that is physics, not error.
     h, f = 10.0, 1e6
-    ref = 40 * np.pi**2 * (h * f / c) ** 2  # 0.4393 Ω (REFERENCES.md §1 check)
+    ref = 40 * np.pi**2 * (h * f / c) ** 2  # 0.4393 Ω (check values §1 check)
     r = solve_full_wave(table_shape("vertical 10 m"), [f], convergence_check=False)
     ratio = r.radiation_resistance[0] / ref
     assert 0.90 < ratio < 1.0
-    # consistency: Rr = 160 π² (h_e/λ)² with the solver's own effective height (REFERENCES.md §1)
+    # consistency: Rr = 160 π² (h_e/λ)² with the solver's own effective height (check values §1)
     assert r.radiation_resistance[0] == pytest.approx(160 * np.pi**2 * (abs(r.effective_height[0]) * f / c) ** 2,
                                                       rel=0.01)
 
@@ -204,7 +204,7 @@ def test_earth_lead_resistor_appears_in_input_resistance_at_low_frequency():
 
 
 def test_earth_lead_effective_height_quasi_static_identity():
-    # REFERENCES.md §1 [der]: in the short limit h_e = sum(q z) over all real charges / aerial charge.
+    # check values §1 [der]: in the short limit h_e = sum(q z) over all real charges / aerial charge.
     # The earth lead carries a negative induced charge, which lowers h_e below the aerial's own
     # charge-weighted height. Charges from the solver's currents: q = (I_start - I_end)/(j ω) per piece.
     seg = _upper_floor()
@@ -263,7 +263,7 @@ def test_low_frequency_hand_offs_stay_accurate():
     assert "resistance from power balance" in r.method[0]
     assert any("low-frequency" in w for w in r.warnings)
     assert np.allclose(r.capacitance, ref.capacitance[0], rtol=1e-3)
-    # Rr = 160 π² (h_e/λ)² (REFERENCES.md §1) holds in the short limit
+    # Rr = 160 π² (h_e/λ)² (check values §1) holds in the short limit
     lam = c / r.frequency
     assert np.allclose(r.radiation_resistance, 160 * np.pi**2 * (r.effective_height.real / lam) ** 2, rtol=0.01)
 

@@ -1,5 +1,7 @@
 """Tests for the ground-wave field."""
 
+# "check values §N" refers to the sections of docs/check-values.md.
+
 import numpy as np
 import pytest
 from hypothesis import given, settings
@@ -8,7 +10,7 @@ from hypothesis import strategies as st
 from aerial.errors import ModelInputError
 from aerial.models import groundwave as gw
 
-WET = (30.0, 1e-2)  # ITU-R P.527 wet ground (working sheet §7)
+WET = (30.0, 1e-2)  # ITU-R P.527 wet ground (check values §7)
 MEDIUM_DRY = (15.0, 1e-3)  # ITU-R P.527 medium dry ground
 
 
@@ -23,14 +25,14 @@ def test_reference_field_itu_p368(p_kw, d_km):
     (10, WET, 0.7077), (100, WET, 0.1223), (10, MEDIUM_DRY, 0.1345),
 ])
 def test_norton_attenuation_checks(d_km, soil, expected):
-    # Sommerfeld–Norton checks, 1 MHz (working sheet §8 [num from the Norton form]); 1e-3 absolute
+    # Sommerfeld–Norton checks, 1 MHz (check values §8 [num from the Norton form]); 1e-3 absolute
     f = abs(complex(gw.norton_attenuation(d_km * 1e3, 1e6, *soil)))
     assert f == pytest.approx(expected, abs=1e-3)
 
 
 @pytest.mark.parametrize("soil, mv_per_m", [(WET, 5.26), (MEDIUM_DRY, 0.459)])
 def test_field_10kw_50km(soil, mv_per_m):
-    # working sheet §8 [num]: 10 kW at 50 km, 1 MHz
+    # check values §8 [num]: 10 kW at 50 km, 1 MHz
     g = gw.groundwave_field(10e3, 50e3, 1e6, *soil)
     assert float(g.field) * 1e3 == pytest.approx(mv_per_m, rel=3e-3)
 
@@ -41,7 +43,7 @@ def test_perfect_conductor_limit():
 
 
 def test_flat_earth_limit_and_flag():
-    # rule of thumb 80/f_MHz^(1/3) km (from memory, working sheet §8)
+    # rule of thumb 80/f_MHz^(1/3) km (from memory, check values §8)
     assert float(gw.flat_earth_range(8e6)) == pytest.approx(40e3)
     g = gw.groundwave_field(1e3, np.array([50e3, 120e3]), 1e6, *WET)
     assert list(g.beyond_flat_earth) == [False, True]

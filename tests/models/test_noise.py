@@ -1,5 +1,7 @@
 """Tests for man-made noise (ITU-R P.372)."""
 
+# "check values §N" refers to the sections of docs/check-values.md.
+
 import numpy as np
 import pytest
 
@@ -18,7 +20,7 @@ def test_p372_coefficients(category, c, d):
 
 
 def test_residential_field_1mhz_10khz():
-    # working sheet §9 [num from ITU-R P.372]: residential, 1 MHz, 10 kHz -> 17.0 dB(µV/m)
+    # check values §9 [num from ITU-R P.372]: residential, 1 MHz, 10 kHz -> 17.0 dB(µV/m)
     fa = noise.man_made_noise_figure(1e6, "residential").noise_figure_db
     assert float(noise.noise_field_dbuv_per_m(fa, 1e6, 10e3)) == pytest.approx(17.0, abs=0.05)
 

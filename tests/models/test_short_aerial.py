@@ -1,5 +1,7 @@
 """Short-aerial closed forms: radiation resistance, average Z0, line reactance, top loading."""
 
+# "check values §N" refers to the sections of docs/check-values.md.
+
 from __future__ import annotations
 
 import numpy as np
@@ -21,7 +23,7 @@ def induced_emf_monopole(height, radius, frequency, eta=ETA0):
 
     Balanis, Antenna Theory, ch. 8 (self-impedance of a centre-fed dipole, equations for Rm, Xm
     and the input values Rm/sin^2(kl/2), Xm/sin^2(kl/2)); the monopole is half the dipole with
-    l = 2h. Transcribed from REFERENCES sec. 2 (from memory of the text).
+    l = 2h. Transcribed from check values §2 (from memory of the text).
     """
     k = 2 * np.pi * frequency / c
     ell = 2 * height
@@ -40,7 +42,7 @@ def induced_emf_monopole(height, radius, frequency, eta=ETA0):
 
 def test_induced_emf_oracle_half_wave():
     # Balanis, Antenna Theory, ch. 4/8: half-wave dipole 73 + j42.5 ohm (published, with eta = 120 pi,
-    # 73.13 unrounded); REFERENCES sec. 2 [num] with the CODATA eta0: 73.08 + j42.52. The quarter-wave
+    # 73.13 unrounded); check values §2 [num] with the CODATA eta0: 73.08 + j42.52. The quarter-wave
     # monopole is half of the dipole.
     f = 1e6
     lam = c / f
@@ -54,7 +56,7 @@ def test_induced_emf_oracle_half_wave():
 
 def test_radiation_resistance_uniform_and_triangular():
     # Balanis ch. 4 / Terman (from memory): Rr = 160 pi^2 (h_e/lambda)^2; uniform h_e = h, triangular h/2.
-    # REFERENCES sec. 1 [num]: 10 m at 1 MHz, 1.757 ohm and 0.4393 ohm (with eta = 120 pi; CODATA eta0 is 0.06 % lower).
+    # check values §1 [num]: 10 m at 1 MHz, 1.757 ohm and 0.4393 ohm (with eta = 120 pi; CODATA eta0 is 0.06 % lower).
     assert sa.radiation_resistance_uniform(10.0, 1e6) == pytest.approx(1.757, rel=1e-3)
     assert sa.radiation_resistance_triangular(10.0, 1e6) == pytest.approx(0.4393, rel=1e-3)
     assert sa.radiation_resistance_triangular(10.0, 1e6) == pytest.approx(40 * np.pi**2 * (10 / (c / 1e6)) ** 2, rel=1e-3)
@@ -67,13 +69,13 @@ def test_schelkunoff_z0_and_reactance():
     assert z0 == pytest.approx(60 * (np.log(2 * h / a) - 1), rel=1e-3)
     k = 2 * np.pi * f / c
     assert sa.monopole_reactance(h, a, f, "schelkunoff") == pytest.approx(-z0 / np.tan(k * h), rel=1e-12)
-    # REFERENCES sec. 2 [num]: -2511.5 ohm
+    # check values §2 [num]: -2511.5 ohm
     assert sa.monopole_reactance(h, a, f, "schelkunoff") == pytest.approx(-2511.5, rel=1e-3)
 
 
 def test_uniform_charge_z0_agrees_with_induced_emf():
     # Induced-EMF reactance (Balanis ch. 8 via scipy.special.sici) against the two average impedances:
-    # the uniform-charge form within 1 %, Schelkunoff's form about 8 % high (REFERENCES sec. 2 [num]).
+    # the uniform-charge form within 1 %, Schelkunoff's form about 8 % high (check values §2 [num]).
     h, a, f = 10.0, 1e-3, 1e6
     _, x_emf = induced_emf_monopole(h, a, f)
     x_uc = sa.monopole_reactance(h, a, f, "uniform-charge")
@@ -91,14 +93,14 @@ def test_uniform_charge_tracks_induced_emf_for_short_wires(h, a, f):
 
 
 def test_wire_over_ground_impedance():
-    # Image method: Z0 = (eta0 / 2 pi) arccosh(H/a); REFERENCES sec. 3: 593.8 ohm at H = 10 m, a = 1 mm.
+    # Image method: Z0 = (eta0 / 2 pi) arccosh(H/a); check values §3: 593.8 ohm at H = 10 m, a = 1 mm.
     assert sa.horizontal_wire_z0(10.0, 1e-3) == pytest.approx(593.8, rel=2e-4)
     # the trade's 138 log10(4H/d) form (common practice)
     assert sa.horizontal_wire_z0(10.0, 1e-3) == pytest.approx(138 * np.log10(4 * 10.0 / 2e-3), rel=2e-3)
 
 
 class TestInvertedL:
-    # REFERENCES sec. 4 [num] check values for Laport's top-loading-angle method (from memory), computed
+    # check values §4 [num] check values for Laport's top-loading-angle method (from memory), computed
     # with Zv = 60 [ln(h/a) - 1] and Zt = 60 ln(2h/a); the module uses eta0/2pi and arccosh, 0.07 % apart.
     def test_one_megahertz(self):
         r = sa.inverted_l(10.0, 20.0, 1e-3, 1e6)
@@ -172,7 +174,7 @@ def test_bad_z0_form_lists_choices():
 
 
 def test_lossless_available_power_independent_of_height():
-    # [der] REFERENCES sec. 1: P = E^2 lambda^2 / (640 pi^2) for any short height (160 pi^2 form; CODATA eta0 0.06 % apart).
+    # [der] check values §1: P = E^2 lambda^2 / (640 pi^2) for any short height (160 pi^2 form; CODATA eta0 0.06 % apart).
     e, f = 1e-3, 1e6
     lam = c / f
     for h in (2.0, 10.0, 30.0):

@@ -1,5 +1,7 @@
 """Tests for the tank circuit and its coupling to the aerial."""
 
+# "check values §N" refers to the sections of docs/check-values.md.
+
 import numpy as np
 import pytest
 from hypothesis import given, settings
@@ -19,7 +21,7 @@ def test_resonance_thomson_formula():
 
 
 def test_capacitance_ratio_for_bands():
-    # working sheet §10: (f_max/f_min)² = 9.10 for 531–1602 kHz, 10.29 for 530–1700, 3.33 for 153–279
+    # check values §10: (f_max/f_min)² = 9.10 for 531–1602 kHz, 10.29 for 530–1700, 3.33 for 153–279
     for lo, hi, ratio in [(531e3, 1602e3, 9.10), (530e3, 1700e3, 10.29), (153e3, 279e3, 3.33)]:
         c = tank.resonant_capacitance(np.array([lo, hi]), 100e-6)
         assert c[0] / c[1] == pytest.approx(ratio, abs=0.005)
@@ -34,14 +36,14 @@ def test_series_to_shunt_hand_worked():
 
 
 def test_tap_transforms_by_n_squared():
-    # Z/n² for an ideal tap (working sheet §10)
+    # Z/n² for an ideal tap (check values §10)
     za = 25 - 800j
     t = tank.tank_coupling("coil tap", 1e6, za.real, za.imag, 240e-6, 5.0, tap_fraction=0.3)
     assert complex(t.aerial_admittance) == pytest.approx(0.09 / za)
 
 
 def test_series_capacitor_combines_in_series():
-    # working sheet §10: Cs = Ca·Cc/(Ca + Cc); 200 pF with 100 pF -> 66.67 pF (lossless aerial limit)
+    # check values §10: Cs = Ca·Cc/(Ca + Cc); 200 pF with 100 pF -> 66.67 pF (lossless aerial limit)
     f = 1e6
     xa = -1 / (TWO_PI * f * 200e-12)
     t = tank.tank_coupling("series capacitor", f, 1e-6, xa, 240e-6, 5.0, series_capacitance=100e-12)
