@@ -102,12 +102,14 @@ def draw_report_pictures(result: dict, folder, force: bool = False, protected=()
     if curve and curve.get("capacitor_setting_f"):
         fig, ax = plt.subplots(figsize=(6, 4))
         ax.plot(np.asarray(curve["capacitor_setting_f"]) * 1e12, np.asarray(curve["frequency_hz"]) / 1e3, color="tab:purple")
-        for band in result["bands"]:
+        tuned = (result.get("tuning") or {}).get("band") or {}
+        bands = [tuned] if tuned else result["bands"]
+        for band in bands:
             for edge in (band["from_hz"], band["to_hz"]):
                 ax.axhline(edge / 1e3, color="grey", linestyle="--", linewidth=0.8)
         ax.set_xlabel("capacitor setting [pF]")
         ax.set_ylabel("tuned frequency [kHz]")
-        ax.set_title("Tuning range (dashed: band edges)")
+        ax.set_title(f"Tuning range{' for ' + tuned['name'] if tuned else ''} (dashed: band edges)")
         ax.grid(True, alpha=0.3)
         fig.tight_layout()
         drawn.append((PICTURE_NAMES[2], _svg(fig)))
