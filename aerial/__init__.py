@@ -9,21 +9,21 @@ The public API a notebook user calls is the same one the command line uses::
 Frame: metres, x east, y north, z up; z = 0 is the ground surface.
 """
 
-__version__ = "0.1.0"
+from aerial.core.version import __version__  # noqa: E402
 
-from aerial.errors import AerialError, SiteError  # noqa: E402
+from aerial.core.errors import AerialError, SiteError  # noqa: E402
 
 
 def load_site(path):
     """Load and validate a site file (TOML). Raises :class:`SiteError` on bad input."""
-    from aerial.site import load_site as _load
+    from aerial.site.reader import load_site as _load
 
     return _load(path)
 
 
 def analyse(site, **options):
     """Run the whole chain for a loaded site and return the JSON-ready result dict."""
-    from aerial.analysis import analyse as _analyse
+    from aerial.estimate.assemble import analyse as _analyse
 
     return _analyse(site, **options)
 

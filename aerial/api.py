@@ -2,15 +2,16 @@
 
 from __future__ import annotations
 
-from aerial.errors import AerialError, SafetyRefusal
+from aerial.core.errors import AerialError, SafetyRefusal
 
 
 def check_site(path) -> dict:
     """Validate a site file and return the resolved geometry summary (JSON-ready)."""
-    from aerial.analysis import finalise, frequency_grid
-    from aerial.geometry import resolve, wires_json
-    from aerial.safety import cautions_for
-    from aerial.site import load_site
+    from aerial.estimate.assemble import frequency_grid
+    from aerial.estimate.plain import finalise
+    from aerial.geometry.resolve import resolve, wires_json
+    from aerial.estimate.cautions import cautions_for
+    from aerial.site.reader import load_site
 
     site = load_site(path)
     clearance_warnings = refusal_check(site)
@@ -44,7 +45,7 @@ def refusal_check(site) -> list[str]:
 
     Returns the clearance warnings (wires outside the lot, telephone or cable crossings).
     """
-    from aerial.clearance import enforce_site_clearance
+    from aerial.planner.clearance import enforce_site_clearance
 
     try:
         report = enforce_site_clearance(site)
@@ -58,15 +59,15 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
     """Load a site (None: the built-in example), run the whole chain, optionally draw pictures.
 
     ``allow_large`` lets a full-wave sweep run past the memory and time budget
-    (:func:`aerial.fullwave_bridge.check_full_wave_budget`).
+    (:func:`aerial.estimate.fullwave_sweep.check_full_wave_budget`).
     """
-    from aerial.analysis import analyse
-    from aerial.site import load_site
+    from aerial.estimate.assemble import analyse
+    from aerial.site.reader import load_site
 
     site = load_site(path)
     clearance_warnings = refusal_check(site)
     if pictures:
-        from aerial.pictures import check_picture_folder
+        from aerial.outputs.pictures import check_picture_folder
 
         check_picture_folder(pictures, force, site)
     result = analyse(site, method="full-wave" if full_wave else "closed-form", step_hz=step_hz, progress=progress,
@@ -74,30 +75,35 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
     if clearance_warnings:
         result["warnings"] = clearance_warnings + [w for w in result["warnings"] if w not in clearance_warnings]
     if pictures:
-        from aerial.pictures import draw_report_pictures
+        from aerial.outputs.pictures import draw_report_pictures
 
         result["pictures"] = draw_report_pictures(result, pictures, force=force, protected=(site.path,))
     return result
 
 
 def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allow_large=False, progress=None) -> dict:
-    from aerial.site import load_site
+    from aerial.site.reader import load_site
 
     site = load_site(path)
     try:
-        from aerial.planner import plan_layouts
+        from aerial.planner.search import plan_layouts
     except ImportError:
         raise AerialError("the layout planner is not available in this build") from None
     if picture:
-        from aerial.files import check_writable
+        from aerial.outputs.files import check_writable
 
         check_writable(picture, force, protected=(site.path,))
-    return plan_layouts(site, best=best, full_wave=full_wave, picture=picture, force=force, allow_large=allow_large,
+    draw = None
+    if picture:
+        from aerial.outputs.plan_drawing import plan_picture_writer
+
+        draw = plan_picture_writer(picture, force=force)
+    return plan_layouts(site, best=best, full_wave=full_wave, draw=draw, allow_large=allow_large,
                         progress=progress)
 
 
 def coil_helper(*, diameter, wire, turns=None, inductance=None, pitch=None, strands=1, frequency="1 MHz") -> dict:
-    from aerial.receiver_bridge import coil_design
+    from aerial.estimate.receiver import coil_design
 
     return coil_design(diameter=diameter, wire=wire, turns=turns, inductance=inductance, pitch=pitch,
                        strands=strands, frequency=frequency)

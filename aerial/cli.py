@@ -15,8 +15,8 @@ import os
 import sys
 import time
 
-from aerial import __version__
-from aerial.errors import AerialError, SafetyRefusal
+from aerial.core.version import __version__
+from aerial.core.errors import AerialError, SafetyRefusal
 
 EXIT_OK = 0
 EXIT_USER = 2
@@ -141,7 +141,7 @@ def _render(args, result, renderer_name: str) -> int:
     if args.json:
         _print_json(result)
     else:
-        from aerial import report
+        from aerial.outputs import terminal as report
 
         getattr(report, renderer_name)(result, _console())
     return EXIT_OK
@@ -158,7 +158,7 @@ def cmd_report(args) -> int:
 
     step = None
     if args.step:
-        from aerial import units
+        from aerial.core import units
 
         try:
             step = units.parse_quantity(args.step, units.FREQUENCY_UNITS, "a frequency step", "Hz")

@@ -2,7 +2,7 @@
 
 Builds an invented lot (80 m x 60 m, a power line along the south side, two
 buildings and an obstacle) with N candidate supports at seeded random places
-and heights, and times :func:`aerial.planner.plan_layouts` end to end (plan
+and heights, and times :func:`aerial.planner.search.plan_layouts` end to end (plan
 parsing, enumeration, fall-zone and crossing checks, vectorised scoring,
 ranking). Run:
 
@@ -22,8 +22,8 @@ import numpy as np
 
 sys.path.insert(0, os.path.dirname(os.path.dirname(os.path.abspath(__file__))))
 
-from aerial.planner import estimate_candidates, plan_layouts
-from aerial.site import load_site_text
+from aerial.planner.search import estimate_candidates, plan_layouts
+from aerial.site.reader import load_site_text
 
 TARGET_CANDIDATES = 10_000
 TARGET_SECONDS = 2.0

@@ -12,10 +12,10 @@ from pathlib import Path
 
 import numpy as np
 
-from aerial.analysis import analyse, frequency_grid
-from aerial.geometry import resolve
+from aerial.estimate.assemble import analyse, frequency_grid
+from aerial.geometry.resolve import resolve
 from aerial.models.closed_form import closed_form_response
-from aerial.site import load_site_text
+from aerial.site.reader import load_site_text
 
 ROOT = Path(__file__).resolve().parents[1]
 

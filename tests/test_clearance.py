@@ -18,7 +18,7 @@ from shapely.geometry import LineString, Point
 from shapely.testing import assert_geometries_equal
 
 from aerial.cli import EXIT_REFUSED, EXIT_USER, main
-from aerial.clearance import (
+from aerial.planner.clearance import (
     FALL_ZONE_FACTOR,
     QUAD_SEGS,
     check_site_clearance,
@@ -27,9 +27,9 @@ from aerial.clearance import (
     fall_zone_distance,
     refuse_many,
 )
-from aerial.errors import SafetyRefusal, SiteError
-from aerial.plan import line_kind, parse_plan
-from aerial.site import load_site_text
+from aerial.core.errors import SafetyRefusal, SiteError
+from aerial.site.plan import line_kind, parse_plan
+from aerial.site.reader import load_site_text
 
 # An invented site: a 12 m oak and a 5 m eave, a span between them, the
 # lead-in from the eave to the receiver. A power line runs east-west at
@@ -241,7 +241,7 @@ def test_report_refuses_an_unsafe_site_with_exit_3(tmp_path, capsys):
 
 
 def test_example_site_passes_its_own_clearance():
-    from aerial.site import load_site
+    from aerial.site.reader import load_site
 
     from .conftest import ROOT
 

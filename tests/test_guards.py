@@ -21,9 +21,9 @@ from hypothesis import strategies as st
 from scipy.constants import c as SPEED_OF_LIGHT
 
 from aerial.api import run_report
-from aerial.fullwave_bridge import MEMORY_BUDGET_BYTES, TIME_BUDGET_S, check_full_wave_budget, estimate_full_wave
-from aerial.errors import ResourceLimit
-from aerial.materials import SOILS
+from aerial.estimate.fullwave_sweep import MEMORY_BUDGET_BYTES, TIME_BUDGET_S, check_full_wave_budget, estimate_full_wave
+from aerial.core.errors import ResourceLimit
+from aerial.core.materials import SOILS
 
 from .fuzzlib import load
 

@@ -16,8 +16,8 @@ from pathlib import Path
 
 import pytest
 
-import aerial.analysis
-import aerial.pictures
+import aerial.estimate.assemble
+import aerial.outputs.pictures
 from aerial.cli import EXIT_INTERRUPTED, main
 
 from .conftest import ROOT
@@ -66,7 +66,7 @@ def test_interrupt_in_the_closed_form_chain(capsys, monkeypatch, tmp_path):
     def interrupted(*a, **k):
         raise KeyboardInterrupt
 
-    monkeypatch.setattr(aerial.analysis, "analyse", interrupted)
+    monkeypatch.setattr(aerial.estimate.assemble, "analyse", interrupted)
     pics = tmp_path / "pics"
     code = main(["report", str(BACKYARD), "--pictures", str(pics)])
     out, err = capsys.readouterr()
@@ -76,7 +76,7 @@ def test_interrupt_in_the_closed_form_chain(capsys, monkeypatch, tmp_path):
 
 
 def test_interrupt_between_pictures_leaves_only_whole_files(capsys, monkeypatch, tmp_path):
-    real_svg = aerial.pictures._svg
+    real_svg = aerial.outputs.pictures._svg
     calls = {"n": 0}
 
     def svg_then_interrupt(fig):
@@ -85,7 +85,7 @@ def test_interrupt_between_pictures_leaves_only_whole_files(capsys, monkeypatch,
             raise KeyboardInterrupt
         return real_svg(fig)
 
-    monkeypatch.setattr(aerial.pictures, "_svg", svg_then_interrupt)
+    monkeypatch.setattr(aerial.outputs.pictures, "_svg", svg_then_interrupt)
     pics = tmp_path / "pics"
     code = main(["report", str(BACKYARD), "--json", "--pictures", str(pics)])
     out, err = capsys.readouterr()

@@ -8,11 +8,11 @@ import xml.etree.ElementTree as ET
 import pytest
 
 from aerial.cli import EXIT_OK, EXIT_USER, main
-from aerial.errors import AerialError
-from aerial.plan import parse_plan
-from aerial.plan_drawing import build_scene, nice_length, svg_text, write_plan_picture
-from aerial.planner import plan_layouts
-from aerial.site import load_site
+from aerial.core.errors import AerialError
+from aerial.site.plan import parse_plan
+from aerial.outputs.plan_drawing import build_scene, nice_length, plan_picture_writer, svg_text, write_plan_picture
+from aerial.planner.search import plan_layouts
+from aerial.site.reader import load_site
 
 from .conftest import ROOT
 
@@ -29,7 +29,7 @@ def scene():
 
 def test_picture_is_valid_svg_with_the_wire(tmp_path):
     out = tmp_path / "plan.svg"
-    result = plan_layouts(load_site(EXAMPLE), best=3, picture=out)
+    result = plan_layouts(load_site(EXAMPLE), best=3, draw=plan_picture_writer(out))
     assert result["picture"] == str(out)
     root = ET.parse(out).getroot()  # raises on malformed XML
     assert root.tag == SVG + "svg"

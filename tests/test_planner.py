@@ -18,10 +18,10 @@ from hypothesis import strategies as st
 from shapely.geometry import LineString
 
 from aerial.cli import EXIT_OK, EXIT_USER, main
-from aerial.codes import minimum_awg, region_code
-from aerial.errors import AerialError, ResourceLimit
-from aerial.plan import parse_plan
-from aerial.planner import (
+from aerial.planner.codes import minimum_awg, region_code
+from aerial.core.errors import AerialError, ResourceLimit
+from aerial.site.plan import parse_plan
+from aerial.planner.search import (
     MAX_CANDIDATES,
     _chunks,
     estimate_candidates,
@@ -30,7 +30,7 @@ from aerial.planner import (
     plan_layouts,
     station_score_db,
 )
-from aerial.site import load_site, load_site_text
+from aerial.site.reader import load_site, load_site_text
 
 from .conftest import ROOT
 

@@ -8,8 +8,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from aerial.errors import ModelInputError
-from aerial.reception import (
+from aerial.core.errors import ModelInputError
+from aerial.estimate.reception import (
     Calibration,
     CoilWinding,
     Station,

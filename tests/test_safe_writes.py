@@ -13,9 +13,9 @@ from pathlib import Path
 
 import pytest
 
-from aerial import files
+from aerial.outputs import files
 from aerial.cli import main
-from aerial.errors import AerialError
+from aerial.core.errors import AerialError
 
 from .conftest import EXAMPLES, ROOT
 

@@ -8,8 +8,8 @@ import hashlib
 import numpy as np
 import pytest
 
-from aerial.errors import SiteError
-from aerial.site import load_site, load_site_text
+from aerial.core.errors import SiteError
+from aerial.site.reader import load_site, load_site_text
 
 from .conftest import EXAMPLES, MINIMAL
 
@@ -60,7 +60,7 @@ def test_every_example_loads(path):
 
 
 def test_builtin_example_matches_the_shipped_file():
-    from aerial.site import builtin_example
+    from aerial.site.reader import builtin_example
     from .conftest import ROOT
 
     shipped = (ROOT / "site_examples" / "backyard_inverted_l.toml").read_text()
@@ -178,7 +178,7 @@ def test_input_files_are_never_modified(path):
 
 
 def test_geometry_has_segments_and_footprint():
-    from aerial.geometry import resolve
+    from aerial.geometry.resolve import resolve
 
     site = load_site_text(span_site('sag = "0.5 m"'), "t.toml")
     geo = resolve(site)

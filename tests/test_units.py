@@ -6,7 +6,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from aerial import units
+from aerial.core import units
 
 
 def test_foot_is_exactly_0_3048_m():

@@ -34,7 +34,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.constants import epsilon_0
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models.segments import FEED_GAP_M, Segments
 from aerial.models.checks import positive as _check_positive
 

@@ -1,6 +1,6 @@
 """Argument checks shared by the physics functions.
 
-Each raises :class:`aerial.errors.ModelInputError` with the argument's name and
+Each raises :class:`aerial.core.errors.ModelInputError` with the argument's name and
 value, so a caller (or the command line) can say exactly what was wrong.
 """
 
@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 
 
 def positive(name: str, value, allow_zero: bool = False) -> np.ndarray:
@@ -19,7 +19,7 @@ def positive(name: str, value, allow_zero: bool = False) -> np.ndarray:
     >>> positive("radius", -1.0)
     Traceback (most recent call last):
     ...
-    aerial.errors.ModelInputError: radius must be finite and positive; got -1.0
+    aerial.core.errors.ModelInputError: radius must be finite and positive; got -1.0
     """
     arr = np.asarray(value, dtype=float)
     bad = ~np.isfinite(arr) | ((arr < 0) if allow_zero else (arr <= 0))
@@ -35,7 +35,7 @@ def option(name: str, value, choices) -> str:
     >>> option("ground", "wet", ("perfect", "lossy"))
     Traceback (most recent call last):
     ...
-    aerial.errors.ModelInputError: 'wet' is not a valid ground, must be one of 'perfect', 'lossy'
+    aerial.core.errors.ModelInputError: 'wet' is not a valid ground, must be one of 'perfect', 'lossy'
     """
     if value not in choices:
         raise ModelInputError(f"{value!r} is not a valid {name}, must be one of " + ", ".join(repr(c) for c in choices))

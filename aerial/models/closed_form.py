@@ -25,7 +25,7 @@ from __future__ import annotations
 import numpy as np
 from scipy.constants import c as SPEED_OF_LIGHT
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models import short_aerial as sa
 from aerial.models.capacitance import electrostatic_solution
 from aerial.models.conductor import resistance_per_m

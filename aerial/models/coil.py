@@ -25,12 +25,13 @@ from __future__ import annotations
 
 from typing import NamedTuple
 
+from dataclasses import dataclass
+
 import numpy as np
 from scipy.constants import mu_0
-from scipy.optimize import brentq
 from scipy.special import ellipe, ellipk, ive
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _positive
 
 #: Resistivity of annealed copper at 20 °C (IEC 60028). [ohm m]
@@ -301,6 +302,8 @@ def winding_for_inductance(inductance, form_diameter, wire_diameter, pitch=None,
         hi *= 2.0
         if hi > 1e7:
             raise ModelInputError("the wanted inductance needs more than ten million turns on this former")
+    from scipy.optimize import brentq  # imported here: scipy.optimize is slow to import
+
     n, info = brentq(excess, lo, hi, rtol=rtol, maxiter=int(max_iter), full_output=True, disp=False)
     whole = max(1, int(np.ceil(n - 1e-6)))
     return WindingDesign(
@@ -598,3 +601,46 @@ def stranded_advantage_range(form_diameter, bundle_diameter, turns, strands, str
     lo = None if better[0] == 0 else float(f[better[0]])
     hi = None if better[-1] == f.size - 1 else float(f[better[-1]])
     return StrandedRange(lo, hi)
+
+
+@dataclass(frozen=True)
+class CoilWinding:
+    """A single-layer tank coil as wound.
+
+    Attributes
+    ----------
+    form_diameter_m : float
+        Outside diameter of the former. [m]
+    wire_diameter_m : float
+        Outside diameter of the wire (of the bundle for stranded wire). [m]
+    turns : float or None
+        Number of turns; None when the coil is still to be designed (the
+        result then gives the turns and winding length). [1]
+    winding_length_m : float or None
+        Length of the winding; gives the pitch as length/turns. [m]
+    pitch_m : float or None
+        Turn spacing; default close-wound (one wire diameter). [m]
+    strands : int
+        Number of strands of a stranded (litz) wire; 1 for solid wire. [1]
+    strand_diameter_m : float or None
+        Bare diameter of one strand, needed when ``strands`` > 1. [m]
+    resistivity_ohm_m : float
+        Conductor resistivity, default annealed copper. [ohm m]
+    """
+
+    form_diameter_m: float
+    wire_diameter_m: float
+    turns: float | None = None
+    winding_length_m: float | None = None
+    pitch_m: float | None = None
+    strands: int = 1
+    strand_diameter_m: float | None = None
+    resistivity_ohm_m: float = COPPER_RESISTIVITY
+
+    def pitch(self) -> float:
+        """Turn spacing. [m]"""
+        if self.pitch_m is not None:
+            return float(self.pitch_m)
+        if self.winding_length_m is not None and self.turns:
+            return float(self.winding_length_m) / float(self.turns)
+        return float(self.wire_diameter_m)

@@ -31,7 +31,7 @@ import numpy as np
 from scipy.constants import mu_0
 from scipy.special import ive, kve
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _positive
 
 #: Resistivity of annealed copper at 20 degC, IEC 60028. [ohm m]

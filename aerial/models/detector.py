@@ -27,7 +27,7 @@ import numpy as np
 from scipy.constants import Boltzmann, elementary_charge
 from scipy.special import ive
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _check
 
 #: Default junction temperature. [K]

@@ -34,7 +34,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _positive
 
 #: IEEE Std 142 multiple-rod factors F for n rods about one rod length apart

@@ -51,7 +51,7 @@ from dataclasses import dataclass, field
 import numpy as np
 from scipy.constants import c as C0
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models.fullwave_fields import FarField, complex_permittivity, fresnel_reflection
 from aerial.models.fullwave_geometry import DEFAULT_MIN_PIECES_PER_WIRE, check_segments, piece_counts
 from aerial.models.fullwave_kernel import DEFAULT_GAUSS_POINTS

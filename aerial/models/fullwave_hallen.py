@@ -21,7 +21,7 @@ import numpy as np
 from scipy.constants import c as C0
 from scipy.constants import mu_0
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 
 ETA0 = mu_0 * C0
 

@@ -20,7 +20,7 @@ import numpy as np
 from scipy.constants import c, epsilon_0
 from scipy.special import wofz
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _positive
 
 #: Flat-earth range coefficient: use the flat-earth formula within 80 / f_MHz^(1/3) km (from memory). [km]

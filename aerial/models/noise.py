@@ -18,7 +18,7 @@ from typing import NamedTuple
 
 import numpy as np
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 
 #: ITU-R P.372 Table 1: median man-made noise Fam = c − d·log10(f_MHz), dB above kT0b.
 MAN_MADE_NOISE_COEFFICIENTS: dict[str, tuple[float, float]] = {

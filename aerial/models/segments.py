@@ -1,6 +1,6 @@
 """The wire description every electrical model takes: straight segments in 3-D.
 
-The geometry layer (``aerial.geometry``) cuts a site's wires into this form;
+The geometry layer (``aerial.geometry.resolve``) cuts a site's wires into this form;
 models never read site files.
 
 Conventions

@@ -26,7 +26,7 @@ from dataclasses import asdict, dataclass
 
 import numpy as np
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models.segments import Segments
 
 SHAPE_KINDS = ("vertical", "sloping wire", "inverted-L", "T", "irregular")

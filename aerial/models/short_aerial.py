@@ -42,7 +42,7 @@ import numpy as np
 from scipy.constants import c as SPEED_OF_LIGHT
 from scipy.constants import mu_0
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _positive
 from aerial.models.checks import option as _check_option
 

@@ -34,7 +34,7 @@ from typing import NamedTuple
 
 import numpy as np
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _positive
 
 ARRANGEMENTS = ("direct", "series capacitor", "coil tap", "separate primary")

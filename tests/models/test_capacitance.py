@@ -10,7 +10,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.constants import epsilon_0
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models import capacitance as cp
 from aerial.models.segments import Segments, polyline_segments
 

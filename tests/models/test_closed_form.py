@@ -9,7 +9,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models import short_aerial as sa
 from aerial.models.capacitance import electrostatic_solution
 from aerial.models.closed_form import closed_form_response

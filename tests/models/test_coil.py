@@ -5,7 +5,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models import coil
 
 # Nagaoka's coefficient for l/d = 0.5, 1, 2, 4 (Nagaoka 1909 table; values from memory,

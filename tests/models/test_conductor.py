@@ -10,7 +10,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.constants import mu_0
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models import conductor as cd
 
 # ASTM B258: d = 0.127 mm x 92**((36 - n)/39) (published formula).

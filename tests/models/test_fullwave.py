@@ -14,7 +14,7 @@ from hypothesis import strategies as st
 from scipy.constants import c, mu_0
 from scipy.special import sici
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models.fullwave import (
     FullWaveResult,
     complex_permittivity,

@@ -7,7 +7,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models import groundwave as gw
 
 WET = (30.0, 1e-2)  # ITU-R P.527 wet ground (check values §7)

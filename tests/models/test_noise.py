@@ -5,7 +5,7 @@
 import numpy as np
 import pytest
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models import noise
 
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import pytest
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models.segments import Segments, polyline_segments
 from aerial.models.shapes import SHAPE_KINDS, classify
 

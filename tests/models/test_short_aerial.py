@@ -11,7 +11,7 @@ from hypothesis import strategies as st
 from scipy.constants import c, mu_0
 from scipy.special import sici
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models import short_aerial as sa
 
 ETA0 = mu_0 * c

@@ -22,7 +22,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-from aerial import units
+from aerial.core import units
 
 US_REGIONS = ("us", "usa", "united states")
 EUROPE_REGIONS = (

@@ -1,4 +1,4 @@
-"""Turn a validated :class:`aerial.site.Site` into straight 3-D segments and a plan footprint.
+"""Turn a validated :class:`aerial.site.reader.Site` into straight 3-D segments and a plan footprint.
 
 Frame: metres, x east, y north, z up; z = 0 is the ground surface. Shapely
 geometries are plan views (x, y) in the same frame.
@@ -12,7 +12,7 @@ import numpy as np
 import shapely
 from shapely.geometry import LineString, MultiLineString
 
-from aerial.materials import CONDUCTORS
+from aerial.core.materials import CONDUCTORS
 from aerial.models.segments import FEED_GAP_M, Segments
 
 #: Roles on the earth side of the receiver.

@@ -5,7 +5,7 @@ the overhead lines with the power lines' fall zones, the top-ranked wire (and
 faintly the next two), the lead-in and the entry point, a scale bar and a north
 arrow. Frame: metres, x east, y north; north is up on the page.
 
-Files are written only through :func:`aerial.files.write_atomic` (temporary
+Files are written only through :func:`aerial.outputs.files.write_atomic` (temporary
 file and rename; an existing file is replaced only with ``force``).
 """
 
@@ -18,8 +18,8 @@ from xml.sax.saxutils import escape
 
 import numpy as np
 
-from aerial.errors import AerialError
-from aerial.files import write_atomic
+from aerial.core.errors import AerialError
+from aerial.outputs.files import write_atomic
 
 PICTURE_SUFFIXES = (".svg", ".png")
 #: Drawing width in pixels (SVG user units) and margin.
@@ -47,7 +47,7 @@ def build_scene(site, plan, layouts, zones) -> dict:
     site : Site
     plan : Plan
     layouts : list of dict
-        Ranked layouts (best first) as :func:`aerial.planner.plan_layouts` lists them.
+        Ranked layouts (best first) as :func:`aerial.planner.search.plan_layouts` lists them.
     zones : list of (name, Polygon, distance_m)
         Fall zones to shade.
     """
@@ -255,8 +255,21 @@ def write_plan_picture(path, scene, force: bool = False, protected=()) -> Path:
     if suffix not in PICTURE_SUFFIXES:
         raise AerialError(f"{path}: '{suffix or '(none)'}' is not a valid picture type, must be one of "
                           + ", ".join(f"'{s}'" for s in PICTURE_SUFFIXES))
-    from aerial.files import check_writable
+    from aerial.outputs.files import check_writable
 
     check_writable(path, force, protected)
     data = svg_text(scene) if suffix == ".svg" else png_bytes(scene)
     return write_atomic(path, data, force=force, protected=protected)
+
+
+def plan_picture_writer(path, force: bool = False, protected=()):
+    """A ``draw`` callable for :func:`aerial.planner.search.plan_layouts` that writes the plan to ``path``.
+
+    The returned function builds the scene and writes it with :func:`write_plan_picture`,
+    returning the path written as a string.
+    """
+    def draw(site, plan, layouts, zones) -> str:
+        keep = tuple(protected) + ((site.path,) if getattr(site, "path", None) else ())
+        return str(write_plan_picture(path, build_scene(site, plan, layouts, zones), force=force, protected=keep))
+
+    return draw

@@ -1,6 +1,6 @@
 """Map the site's ``[receiver]`` and ``[[stations]]`` onto the reception models and back into JSON.
 
-This is orchestration only: the physics is in :mod:`aerial.reception` and
+This is orchestration only: the physics is in :mod:`aerial.estimate.reception` and
 :mod:`aerial.models`.
 """
 
@@ -10,39 +10,12 @@ import math
 
 import numpy as np
 
-from aerial import reception, units
-from aerial.errors import AerialError
+from aerial.estimate import reception
+from aerial.core import units
+from aerial.core.errors import AerialError
 
 #: Tabulated frequencies per band in the tuning table.
 TUNING_ROWS = 5
-
-
-def _coil_winding(site) -> reception.CoilWinding | None:
-    c = site.receiver.coil
-    if not c:
-        return None
-    from aerial.site import _Reader, _wire_size
-
-    r = _Reader(site.path, site.text)
-    key = "receiver.coil"
-    dia = r.length(c, key, "diameter", required=True, positive=True)
-    if "gauge" in c or "wire_diameter" in c:
-        size = _wire_size(r, {"gauge": c["gauge"]} if "gauge" in c else {"diameter": c["wire_diameter"]}, key, None)
-        wire_d = 2 * size.radius_m
-    else:
-        r.fail(f"{key}.gauge", "", 'a coil needs its wire: gauge = "26 AWG" or wire_diameter = "0.4 mm"')
-    turns = r.number(c, key, "turns", low=1, high=10000, what="a number of turns")
-    length = r.length(c, key, "length", positive=True)
-    pitch = r.length(c, key, "pitch", positive=True)
-    strands = r.number(c, key, "strands", default=1, low=1, high=2000, integer=True, what="a whole number of strands")
-    strand_d = None
-    if strands > 1:
-        if "strand_gauge" not in c:
-            r.fail(f"{key}.strand_gauge", "", 'stranded wire needs strand_gauge = "40 AWG" (each strand)')
-        strand_d = 2 * _wire_size(r, {"gauge": c["strand_gauge"]}, key, None).radius_m
-    if pitch is not None and pitch < wire_d:
-        r.fail(f"{key}.pitch", c["pitch"], "the pitch is less than the wire's diameter: the turns would overlap")
-    return reception.CoilWinding(dia, wire_d, turns, length, pitch, int(strands), strand_d)
 
 
 #: The variable capacitor assumed when the site gives neither coil nor capacitor: a common
@@ -59,7 +32,7 @@ def tuning_parts(site) -> reception.TuningParts:
     return reception.TuningParts(
         arrangement=rx.coupling,
         coil_inductance_h=rx.inductance_h,
-        coil=_coil_winding(site),
+        coil=site.receiver.coil,
         capacitor_min_f=rx.capacitor_min_f if not _needs_assumed_capacitor(rx) else ASSUMED_CAPACITOR_F[0],
         capacitor_max_f=rx.capacitor_max_f if not _needs_assumed_capacitor(rx) else ASSUMED_CAPACITOR_F[1],
         series_capacitance_f=rx.coupling_capacitor_f,
@@ -73,7 +46,7 @@ def tuning_parts(site) -> reception.TuningParts:
 
 
 def _needs_assumed_capacitor(rx) -> bool:
-    has_coil = rx.inductance_h is not None or (rx.coil is not None and "turns" in rx.coil)
+    has_coil = rx.inductance_h is not None or (rx.coil is not None and rx.coil.turns is not None)
     return not has_coil and rx.capacitor_min_f is None
 
 
@@ -185,7 +158,7 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
         for k, v in loss._asdict().items():
             if isinstance(v, (int, float, np.floating, np.ndarray)):
                 out[k] = float(np.asarray(v))
-    from aerial.analysis import finalise
+    from aerial.estimate.plain import finalise
 
     renames = {"turns_whole": "whole_turns", "winding_length": "winding_length_m", "inductance_whole": "inductance_whole_turns_h",
                "wire_length": "wire_length_m", "ac_resistance": "ac_resistance_ohm", "dc_resistance": "dc_resistance_ohm",

@@ -29,7 +29,7 @@ import numpy as np
 import shapely
 from shapely.geometry import LineString, Point
 
-from aerial.errors import ModelInputError, SafetyRefusal
+from aerial.core.errors import ModelInputError, SafetyRefusal
 
 #: Fall-zone factor on the tallest height of the aerial and its supports
 #: (US Consumer Product Safety Commission safety alerts; from memory). [1]
@@ -237,7 +237,7 @@ def check_site_clearance(site, plan=None) -> ClearanceReport:
     if plan is None:
         if not site.plan:
             return ClearanceReport()
-        from aerial.plan import parse_plan
+        from aerial.site.plan import parse_plan
 
         plan = parse_plan(site)
     parts, tallest, what = site_parts(site)

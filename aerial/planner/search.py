@@ -13,7 +13,7 @@ One site in, one JSON-ready dict out (:func:`plan_layouts`); the command line
    meeting at a middle support with the lead-in from there (a T with unequal
    arms), and a sloping wire from a support down to the entry.
 3. Every candidate is checked in plan against the power-line rule
-   (:mod:`aerial.clearance`): those inside a fall zone are refused before
+   (:mod:`aerial.planner.clearance`): those inside a fall zone are refused before
    ranking and counted. Candidates crossing an obstacle or a telephone/cable
    line, whose lead-in passes over a building, or whose span passes over a
    roof with less than ``ROOF_CLEARANCE_M`` to spare, are excluded; spans
@@ -35,8 +35,8 @@ from dataclasses import replace
 import numpy as np
 import shapely
 
-from aerial.errors import AerialError, ResourceLimit
-from aerial.materials import CONDUCTORS
+from aerial.core.errors import AerialError, ResourceLimit
+from aerial.core.materials import CONDUCTORS
 from aerial.models import capacitance as cap
 from aerial.models import conductor
 from aerial.models import short_aerial as sa
@@ -324,7 +324,7 @@ class _Context:
             self.buildings.append((b, shrunk, entry_inside))
         self.lot = None
         if plan.lot is not None:
-            from aerial.clearance import LOT_TOLERANCE_M, QUAD_SEGS
+            from aerial.planner.clearance import LOT_TOLERANCE_M, QUAD_SEGS
 
             self.lot = shapely.buffer(plan.lot, LOT_TOLERANCE_M, quad_segs=QUAD_SEGS)
             shapely.prepare(self.lot)
@@ -334,8 +334,8 @@ def _aerial_size(site):
     for w in site.wires:
         if w.role == "aerial":
             return w.size
-    from aerial.site import WireSize
-    from aerial import units
+    from aerial.site.reader import WireSize
+    from aerial.core import units
 
     return WireSize(units.awg_diameter(14) / 2, "copper", "14 AWG (default)")
 
@@ -406,7 +406,7 @@ def _geometry(ctx: _Context, fam, i, j, k):
 
 def _evaluate(ctx: _Context, fam, i, j, k, *, details=False):
     """Check and score one batch; returns the survivors' scores and the counts."""
-    from aerial.clearance import crosses_many, refuse_many
+    from aerial.planner.clearance import crosses_many, refuse_many
 
     g = _geometry(ctx, fam, i, j, k)
     full = shapely.linestrings(g["full_xy"])
@@ -505,7 +505,7 @@ def _objective(site, warnings: list) -> dict:
 
 def _earth_resistance(site):
     """The site's earth resistance, or None with a note when it cannot be had. [ohm]"""
-    from aerial.analysis import earth_system
+    from aerial.estimate.assemble import earth_system
 
     try:
         value = float(earth_system(site)["resistance_ohm"])
@@ -516,7 +516,7 @@ def _earth_resistance(site):
     return value, None
 
 
-def plan_layouts(site, best=5, full_wave=False, picture=None, force=False, allow_large=False, progress=None) -> dict:
+def plan_layouts(site, best=5, full_wave=False, draw=None, allow_large=False, progress=None) -> dict:
     """Search the site's candidate supports for the best safe wire layouts.
 
     Parameters
@@ -527,10 +527,11 @@ def plan_layouts(site, best=5, full_wave=False, picture=None, force=False, allow
         How many layouts to return (1 to ``MAX_BEST``).
     full_wave : bool
         Refine the winner with the full-wave solver when it is available.
-    picture : str or Path, optional
-        Write a plan drawing there (``.svg``, or ``.png`` through matplotlib).
-    force : bool
-        Replace an existing picture file.
+    draw : callable, optional
+        ``draw(site, plan, layouts, zones) -> str``: draws the plan with the best
+        layouts and the fall zones (name, polygon, distance [m]) and returns where
+        it went (:func:`aerial.outputs.plan_drawing.plan_picture_writer` makes one).
+        The planner itself writes nothing.
     allow_large : bool
         Search beyond ``MAX_CANDIDATES``.
     progress : callable, optional
@@ -551,9 +552,9 @@ def plan_layouts(site, best=5, full_wave=False, picture=None, force=False, allow
     AerialError
         When there is nothing to search (no candidate support) or ``best`` is out of range.
     """
-    from aerial.clearance import check_site_clearance, fall_zone, fall_zone_distance
-    from aerial.plan import parse_plan
-    from aerial.safety import cautions_for
+    from aerial.planner.clearance import check_site_clearance, fall_zone, fall_zone_distance
+    from aerial.site.plan import parse_plan
+    from aerial.estimate.cautions import cautions_for
 
     if isinstance(best, bool) or not isinstance(best, int) or not 1 <= best <= MAX_BEST:
         raise AerialError(f"best = {best!r}: expected a whole number from 1 to {MAX_BEST}")
@@ -645,7 +646,7 @@ def plan_layouts(site, best=5, full_wave=False, picture=None, force=False, allow
         ],
     }
     if layouts:
-        from aerial.codes import LayoutFacts, code_checklist
+        from aerial.planner.codes import LayoutFacts, code_checklist
 
         win = layouts[0]
         lead_geo = [shapely.LineString(np.array(win["lead_in_points_m"])[:, :2])] if win["lead_in_length_m"] > 0 else []
@@ -656,16 +657,13 @@ def plan_layouts(site, best=5, full_wave=False, picture=None, force=False, allow
         if full_wave:
             result["full_wave"] = _refine(site, ctx, win, objective)
             warnings.append("Full-wave check: " + result["full_wave"]["note"])
-    if picture:
-        from aerial.plan_drawing import build_scene, write_plan_picture
-
+    if draw is not None:
         zones = []
         tallest = layouts[0]["tallest_m"] if layouts else float(np.max(ctx.h))
         for line in plan.power_lines:
             d = float(fall_zone_distance(tallest, line.height_m))
             zones.append((line.name, fall_zone(line.path, d), d))
-        scene = build_scene(site, plan, layouts[:3], zones)
-        result["picture"] = str(write_plan_picture(picture, scene, force=force, protected=(site.path,)))
+        result["picture"] = draw(site, plan, layouts[:3], zones)
     return result
 
 
@@ -775,8 +773,8 @@ def _refine(site, ctx: _Context, win: dict, objective: dict) -> dict:
         return {"available": False,
                 "note": "full-wave refinement is unavailable in this build (no full-wave solver installed); the "
                         "ranking uses the closed forms only"}
-    from aerial.geometry import resolve
-    from aerial.site import WireRun
+    from aerial.geometry.resolve import resolve
+    from aerial.site.reader import WireRun
 
     size = ctx.size
     top = WireRun("planned top", "aerial", np.array(win["top_points_m"]), size, "plan", (None,) * len(win["top_points_m"]))

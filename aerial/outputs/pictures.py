@@ -1,7 +1,7 @@
 """Pictures for ``aerial report --pictures DIR``: impedance and capacitance across each band, tuning range.
 
 Drawn with matplotlib's Agg backend into SVG text, then written through
-:func:`aerial.files.write_atomic` (temporary file and rename; never over an
+:func:`aerial.outputs.files.write_atomic` (temporary file and rename; never over an
 existing file without ``force``).
 """
 
@@ -12,8 +12,8 @@ from pathlib import Path
 
 import numpy as np
 
-from aerial.errors import AerialError
-from aerial.files import check_writable, write_atomic
+from aerial.core.errors import AerialError
+from aerial.outputs.files import check_writable, write_atomic
 
 PICTURE_NAMES = ("aerial-impedance.svg", "aerial-capacitance.svg", "tuning-range.svg")
 

@@ -13,11 +13,12 @@ from dataclasses import replace
 
 import numpy as np
 
-from aerial import __version__
-from aerial.errors import ModelInputError
-from aerial.geometry import EARTH_ROLES, resolve, wires_json
-from aerial.safety import cautions_for
-from aerial.site import JOIN_TOLERANCE_M
+from aerial.core.version import __version__
+from aerial.estimate.plain import finalise
+from aerial.core.errors import ModelInputError
+from aerial.geometry.resolve import EARTH_ROLES, resolve, wires_json
+from aerial.estimate.cautions import cautions_for
+from aerial.site.reader import JOIN_TOLERANCE_M
 
 METHODS = ("closed-form", "full-wave")
 
@@ -64,7 +65,7 @@ def band_points(site) -> list[tuple[str, float]]:
 
 def earth_system(site) -> dict:
     """Resistance of the site's earth system at low frequency, with its range. [ohm]"""
-    from aerial import earth
+    from aerial.estimate import earth
 
     return earth.earth_system(site.electrodes, site.soil, earth.as_counterpoise_site(site), path=site.path)
 
@@ -78,7 +79,7 @@ def aerial_response(site, geometry, frequency, earth_ohm: float, method: str = "
     if method not in METHODS:
         raise ModelInputError(f"'{method}' is not a valid method, must be one of " + ", ".join(f"'{m}'" for m in METHODS))
     if method == "full-wave":
-        from aerial.fullwave_bridge import full_wave_response
+        from aerial.estimate.fullwave_sweep import full_wave_response
 
         out = full_wave_response(site, geometry, frequency, earth_ohm, progress=progress, ground=ground,
                                  allow_large=allow_large)
@@ -142,7 +143,7 @@ def _perturbed_wires(site, delta_sign: float = 0.0, raise_m: float = 0.0, extend
 def _keeps_length(points, radius_m: float) -> bool:
     """Every piece stays a usable thin wire once low points are lifted to the feed gap (as resolve does)."""
     from aerial.models.segments import FEED_GAP_M
-    from aerial.site import MIN_LENGTH_TO_RADIUS
+    from aerial.site.reader import MIN_LENGTH_TO_RADIUS
 
     lifted = np.array(points, dtype=float)
     lifted[:, 2] = np.maximum(lifted[:, 2], FEED_GAP_M)
@@ -219,7 +220,7 @@ def uncertainty(site, frequency, earth: dict) -> dict:
 
 def what_if(site, frequency: float, earth: dict) -> list[dict]:
     """What raising the wire, lengthening it, or improving the earth buys, at one frequency."""
-    from aerial import earth as earth_mod
+    from aerial.estimate import earth as earth_mod
 
     base = _headline(site, site.wires, frequency, earth["resistance_ohm"])
     rows = [("as described", base)]
@@ -266,7 +267,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
         approximation for the site's soil.
     allow_large : bool
         Full wave only: run even when the estimated memory or time passes the
-        budget (:func:`aerial.fullwave_bridge.check_full_wave_budget`).
+        budget (:func:`aerial.estimate.fullwave_sweep.check_full_wave_budget`).
 
     Returns
     -------
@@ -359,7 +360,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
         centre = pts[len(pts) // 2][1] if len(site.bands) == 1 else pts[1][1]
         result["what_if"] = what_if(site, centre, earth)
 
-    from aerial import receiver_bridge
+    from aerial.estimate import receiver as receiver_bridge
 
     tuning, stations, rx_warnings = receiver_bridge.receiver_results(site, freqs, resp)
     result["tuning"] = tuning
@@ -378,37 +379,4 @@ def _unique(items):
         if item not in seen:
             seen.add(item)
             out.append(item)
-    return out
-
-
-def finalise(result: dict) -> dict:
-    """Turn numpy values into plain JSON types; any non-finite number becomes null with a warning."""
-    bad: list[str] = []
-
-    def clean(value, path):
-        if isinstance(value, dict):
-            return {k: clean(v, f"{path}.{k}" if path else k) for k, v in value.items()}
-        if isinstance(value, (list, tuple)):
-            return [clean(v, path) for v in value]
-        if isinstance(value, np.ndarray):
-            return clean(value.tolist(), path)
-        if isinstance(value, (np.bool_, bool)):
-            return bool(value)
-        if isinstance(value, (np.integer,)):
-            return int(value)
-        if isinstance(value, (float, np.floating)):
-            v = float(value)
-            if not math.isfinite(v):
-                bad.append(path)
-                return None
-            return v
-        if isinstance(value, complex):
-            return [clean(value.real, path), clean(value.imag, path)]
-        return value
-
-    out = clean(result, "")
-    if bad:
-        out.setdefault("warnings", []).append(
-            "Some figures could not be computed and are shown as null: " + ", ".join(sorted(set(bad)))
-        )
     return out

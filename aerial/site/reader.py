@@ -3,9 +3,9 @@
 The file speaks the user's language: supports with plan positions and heights,
 spans between them, explicit wire runs as 3-D polylines, the lead-in to the
 receiver, the earth system, the soil, the bands and the stations. Cutting the
-wires into segments is :mod:`aerial.geometry`'s job.
+wires into segments is :mod:`aerial.geometry.resolve`'s job.
 
-Every rejection raises :class:`aerial.errors.SiteError` naming the file, the key
+Every rejection raises :class:`aerial.core.errors.SiteError` naming the file, the key
 (with the line where it can be found), the value and what is expected. The
 file is only ever read.
 
@@ -22,10 +22,11 @@ from pathlib import Path
 
 import numpy as np
 
-from aerial import units
-from aerial.errors import SiteError
-from aerial.materials import CONDUCTOR_ALIASES, CONDUCTORS, SOILS, Soil
-from aerial.tomlpos import find_line
+from aerial.core import units
+from aerial.core.errors import SiteError
+from aerial.core.materials import CONDUCTOR_ALIASES, CONDUCTORS, SOILS, Soil
+from aerial.models.coil import CoilWinding
+from aerial.site.tomlpos import find_line
 
 BUILTIN_NAME = "<built-in example>"
 BUILTIN_RESOURCE = "backyard_inverted_l.toml"
@@ -218,7 +219,7 @@ class Receiver:
     height_m: float
     coupling: str = "direct"
     inductance_h: float | None = None
-    coil: dict | None = None
+    coil: CoilWinding | None = None
     capacitor_min_f: float | None = None
     capacitor_max_f: float | None = None
     coupling_capacitor_f: float | None = None
@@ -269,7 +270,7 @@ def shown_key(name: str) -> str:
     return '"' + name.replace("\\", "\\\\").replace('"', '\\"') + '"'
 
 
-class _Reader:
+class TableReader:
     """Carries the file name and text so every error can name the file and line."""
 
     def __init__(self, path: str, text: str):
@@ -478,7 +479,7 @@ def load_site_text(text: str, path: str = "<text>") -> Site:
         if m:
             line = int(m.group(1))
         raise SiteError(path, "", "", f"not valid TOML ({msg})", line=line) from None
-    r = _Reader(path, text)
+    r = TableReader(path, text)
     return _build(r, raw, text, path)
 
 
@@ -487,7 +488,7 @@ TOP_KEYS = {
 }
 
 
-def _build(r: _Reader, raw: dict, text: str, path: str) -> Site:
+def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
     r.check_keys(raw, "", TOP_KEYS)
     site_t = r.table(raw, "", "site")
     r.check_keys(site_t, "site", {"name", "notes", "region", "noise", "bands", "frequency_step", "field_strength", "soil"})
@@ -505,7 +506,7 @@ def _build(r: _Reader, raw: dict, text: str, path: str) -> Site:
     if "soil" in site_t and "soil" in raw:
         r.fail("site.soil", site_t["soil"], "the soil is given twice (also as [soil]); keep one")
     soil = _soil(r, raw.get("soil", site_t.get("soil", "medium-dry")), "soil" if "soil" in raw else "site.soil")
-    default_size = _wire_size(r, r.table(raw, "", "wire"), "wire", None)
+    default_size = wire_size(r, r.table(raw, "", "wire"), "wire", None)
     supports = _supports(r, raw)
     _check_table_count(r, raw)
     wires: list[WireRun] = []
@@ -531,7 +532,7 @@ def _build(r: _Reader, raw: dict, text: str, path: str) -> Site:
     )
 
 
-def _bands(r: _Reader, site_t) -> list:
+def _bands(r: TableReader, site_t) -> list:
     value = site_t.get("bands", ["mf"])
     if not isinstance(value, list) or not value:
         r.fail("site.bands", value, 'expected a list such as ["mf"], ["lf", "mf", "hf"] or [{from = "500 kHz", to = "1.7 MHz"}]')
@@ -556,7 +557,7 @@ def _bands(r: _Reader, site_t) -> list:
     return out
 
 
-def _steps(r: _Reader, site_t) -> dict:
+def _steps(r: TableReader, site_t) -> dict:
     value = site_t.get("frequency_step")
     if value is None:
         return {}
@@ -569,7 +570,7 @@ def _steps(r: _Reader, site_t) -> dict:
     return {"all": step}
 
 
-def _soil(r: _Reader, value, key) -> SoilSpec:
+def _soil(r: TableReader, value, key) -> SoilSpec:
     as_text = isinstance(value, str)
     if as_text:
         value = {"category": value}
@@ -614,7 +615,7 @@ def _soil(r: _Reader, value, key) -> SoilSpec:
 _SIZE_KEYS = {"gauge", "diameter", "cross_section", "material"}
 
 
-def _wire_size(r: _Reader, t: dict, key: str, default: WireSize | None) -> WireSize:
+def wire_size(r: TableReader, t: dict, key: str, default: WireSize | None) -> WireSize:
     given = [k for k in ("gauge", "diameter", "cross_section") if k in t]
     if len(given) > 1:
         r.fail(f"{key}.{given[1]}", t[given[1]], f"give only one of gauge, diameter or cross_section (also has {given[0]})")
@@ -668,7 +669,7 @@ def _wire_size(r: _Reader, t: dict, key: str, default: WireSize | None) -> WireS
     return WireSize(d / 2.0, material, desc)
 
 
-def _supports(r: _Reader, raw) -> dict:
+def _supports(r: TableReader, raw) -> dict:
     table = r.table(raw, "", "supports")
     out = {}
     for name, t in table.items():
@@ -692,7 +693,7 @@ def _supports(r: _Reader, raw) -> dict:
     return out
 
 
-def _spans(r: _Reader, raw, supports, default_size) -> list:
+def _spans(r: TableReader, raw, supports, default_size) -> list:
     out = []
     for i, t in enumerate(r.array_of_tables(raw, "", "spans")):
         key = f"spans[{i}]"
@@ -717,7 +718,7 @@ def _spans(r: _Reader, raw, supports, default_size) -> list:
         low = min(a.height_m, b.height_m)
         if sag >= low:
             r.fail(f"{key}.sag", t["sag"], f"a sag deeper than the supports are high (lower support {low:g} m): the wire would touch the ground")
-        size = _wire_size(r, t, key, default_size)
+        size = wire_size(r, t, key, default_size)
         if sag > 0:
             s = np.linspace(0.0, 1.0, SAG_PIECES + 1)
             pts = p0[None, :] + s[:, None] * (p1 - p0)[None, :]
@@ -731,7 +732,7 @@ def _spans(r: _Reader, raw, supports, default_size) -> list:
     return out
 
 
-def _polyline(r: _Reader, value, key, min_points=2):
+def _polyline(r: TableReader, value, key, min_points=2):
     if not isinstance(value, list) or len(value) < min_points:
         r.fail(key, value, f"expected a list of at least {min_points} points [[x, y, height], ...]")
     pts = np.array([r.point3(p, f"{key}[{j}]") for j, p in enumerate(value)], dtype=float)
@@ -741,7 +742,7 @@ def _polyline(r: _Reader, value, key, min_points=2):
     return pts
 
 
-def _runs(r: _Reader, raw, default_size) -> list:
+def _runs(r: TableReader, raw, default_size) -> list:
     out = []
     for i, t in enumerate(r.array_of_tables(raw, "", "runs")):
         key = f"runs[{i}]"
@@ -750,13 +751,13 @@ def _runs(r: _Reader, raw, default_size) -> list:
         if np.any(pts[:, 2] <= 0):
             j = int(np.argmax(pts[:, 2] <= 0))
             r.fail(f"{key}.points[{j}]", t["points"][j], "an aerial point at or below ground; expected a height above 0")
-        size = _wire_size(r, t, key, default_size)
+        size = wire_size(r, t, key, default_size)
         name = r.string(t, key, "name", default=f"run {i + 1}")
         out.append(WireRun(name, "aerial", pts, size, key, (None,) * len(pts)))
     return out
 
 
-def _receiver(r: _Reader, raw) -> Receiver:
+def _receiver(r: TableReader, raw) -> Receiver:
     t = r.table(raw, "", "receiver")
     key = "receiver"
     r.check_keys(t, key, {
@@ -777,7 +778,7 @@ def _receiver(r: _Reader, raw) -> Receiver:
         c = t["coil"]
         if isinstance(c, dict):
             r.check_keys(c, "receiver.coil", {"diameter", "turns", "gauge", "wire_diameter", "length", "pitch", "strands", "strand_gauge"})
-            coil = dict(c)
+            coil = _coil_winding(r, c)
         else:
             inductance = r.quantity(t, key, "coil", units.INDUCTANCE_UNITS, "an inductance", "H")
             r.within(t, key, "coil", inductance, *INDUCTANCE_RANGE_H, "a coil from 10 nH to 1 H")
@@ -849,6 +850,29 @@ def _receiver(r: _Reader, raw) -> Receiver:
     )
 
 
+def _coil_winding(r: TableReader, c: dict) -> CoilWinding:
+    """The ``[receiver.coil]`` table as a validated winding (SI units)."""
+    key = "receiver.coil"
+    dia = r.length(c, key, "diameter", required=True, positive=True)
+    if "gauge" in c or "wire_diameter" in c:
+        size = wire_size(r, {"gauge": c["gauge"]} if "gauge" in c else {"diameter": c["wire_diameter"]}, key, None)
+        wire_d = 2 * size.radius_m
+    else:
+        r.fail(f"{key}.gauge", "", 'a coil needs its wire: gauge = "26 AWG" or wire_diameter = "0.4 mm"')
+    turns = r.number(c, key, "turns", low=1, high=10000, what="a number of turns")
+    length = r.length(c, key, "length", positive=True)
+    pitch = r.length(c, key, "pitch", positive=True)
+    strands = r.number(c, key, "strands", default=1, low=1, high=2000, integer=True, what="a whole number of strands")
+    strand_d = None
+    if strands > 1:
+        if "strand_gauge" not in c:
+            r.fail(f"{key}.strand_gauge", "", 'stranded wire needs strand_gauge = "40 AWG" (each strand)')
+        strand_d = 2 * wire_size(r, {"gauge": c["strand_gauge"]}, key, None).radius_m
+    if pitch is not None and pitch < wire_d:
+        r.fail(f"{key}.pitch", c["pitch"], "the pitch is less than the wire's diameter: the turns would overlap")
+    return CoilWinding(dia, wire_d, turns, length, pitch, int(strands), strand_d)
+
+
 def _aerial_ends(wires):
     pts = []
     for w in wires:
@@ -857,7 +881,7 @@ def _aerial_ends(wires):
     return np.array(pts)
 
 
-def _lead_in(r: _Reader, raw, supports, wires, receiver: Receiver, default_size) -> tuple:
+def _lead_in(r: TableReader, raw, supports, wires, receiver: Receiver, default_size) -> tuple:
     t = r.table(raw, "", "lead_in")
     key = "lead_in"
     r.check_keys(t, key, {"from", "via", "notes"} | _SIZE_KEYS)
@@ -898,7 +922,7 @@ def _lead_in(r: _Reader, raw, supports, wires, receiver: Receiver, default_size)
     pts = pts[keep]
     if len(pts) < 2:
         return None, receiver  # the aerial comes straight to the receiver
-    size = _wire_size(r, t, key, default_size)
+    size = wire_size(r, t, key, default_size)
     return WireRun("lead-in", "lead-in", pts, size, key, (None,) * len(pts)), receiver
 
 
@@ -917,7 +941,7 @@ def _on_any_wire(point, wires) -> bool:
 _GAS_WORDS = ("gas",)
 
 
-def _earth(r: _Reader, raw, receiver: Receiver, default_size, soil) -> tuple:
+def _earth(r: TableReader, raw, receiver: Receiver, default_size, soil) -> tuple:
     t = r.table(raw, "", "earth")
     for name in t:
         if any(g in name.lower() for g in _GAS_WORDS):
@@ -948,7 +972,7 @@ def _earth(r: _Reader, raw, receiver: Receiver, default_size, soil) -> tuple:
         if depth > length:
             r.fail(f"{key}.depth", bw.get("depth"), f"a burial depth greater than the wire's length ({length:g} m); "
                    "a wire going straight down is a rod: use [[earth.rods]]")
-        size = _wire_size(r, bw, key, default_size)
+        size = wire_size(r, bw, key, default_size)
         arrangement = r.string(bw, key, "arrangement", default="radials" if count > 1 else "straight", choices=("radials", "straight"))
         x, y = r.plan_point(bw["at"], f"{key}.at") if "at" in bw else (None, None)
         electrodes.append(Electrode("buried_wires", key, count, length, 2 * size.radius_m, 0.0, depth, x, y, arrangement=arrangement))
@@ -988,7 +1012,7 @@ def _earth(r: _Reader, raw, receiver: Receiver, default_size, soil) -> tuple:
             j = int(np.argmax(pts[:, 2] <= 0))
             r.fail(f"{key}.points[{j}]", cp["points"][j], "a counterpoise is insulated above ground: expected a height above 0 "
                    "(a wire in the ground is a buried wire: use [[earth.buried_wires]])")
-        size = _wire_size(r, cp, key, default_size)
+        size = wire_size(r, cp, key, default_size)
         wires.append(WireRun(r.string(cp, key, "name", default=f"counterpoise {i + 1}"), "counterpoise", pts, size, key, (None,) * len(pts)))
     grounded = [e for e in electrodes]
     if not grounded and not counterpoise:
@@ -1007,7 +1031,7 @@ def _earth(r: _Reader, raw, receiver: Receiver, default_size, soil) -> tuple:
             if np.linalg.norm(pts[j] - pts[keep[-1]]) >= JOIN_TOLERANCE_M:
                 keep.append(j)
         pts = pts[keep]
-        lead_size = _wire_size(r, r.table(t, "earth", "lead"), "earth.lead", default_size) if "lead" in t else default_size
+        lead_size = wire_size(r, r.table(t, "earth", "lead"), "earth.lead", default_size) if "lead" in t else default_size
         if "lead" in t:
             r.check_keys(t["lead"], "earth.lead", _SIZE_KEYS)
         if receiver.height_m > EARTH_LEAD_MIN_HEIGHT_M and len(pts) >= 2:
@@ -1015,7 +1039,7 @@ def _earth(r: _Reader, raw, receiver: Receiver, default_size, soil) -> tuple:
     return electrodes, wires, notes
 
 
-def _refuse_gas_anywhere(r: _Reader, t, key):
+def _refuse_gas_anywhere(r: TableReader, t, key):
     for name, value in t.items():
         full = f"{key}.{name}"
         if isinstance(value, dict):
@@ -1028,7 +1052,7 @@ def _refuse_gas_anywhere(r: _Reader, t, key):
             r.fail(full, value, "refused: gas piping is never an earth electrode (fire and explosion risk; codes forbid it)")
 
 
-def _stations(r: _Reader, raw, soil: SoilSpec) -> list:
+def _stations(r: TableReader, raw, soil: SoilSpec) -> list:
     out = []
     for i, t in enumerate(r.array_of_tables(raw, "", "stations")):
         key = f"stations[{i}]"
@@ -1062,7 +1086,7 @@ def _stations(r: _Reader, raw, soil: SoilSpec) -> list:
     return out
 
 
-def _check_wires(r: _Reader, wires):
+def _check_wires(r: TableReader, wires):
     from aerial.models.segments import FEED_GAP_M
 
     for w in wires:
@@ -1084,7 +1108,7 @@ def _check_wires(r: _Reader, wires):
                    f"\"{w.name}\"; each straight piece must be at least {MIN_LENGTH_TO_RADIUS:g} radii long")
 
 
-def _check_table_count(r: _Reader, raw):
+def _check_table_count(r: TableReader, raw):
     """Refuse, before building anything, a file with more spans and runs than wire pieces allowed."""
     n = 0
     for name in ("spans", "runs"):
@@ -1096,7 +1120,7 @@ def _check_table_count(r: _Reader, raw):
                        f"too many wires: a site holds at most {MAX_WIRE_PIECES} straight wire pieces")
 
 
-def _check_piece_count(r: _Reader, wires):
+def _check_piece_count(r: TableReader, wires):
     """Refuse a site with more straight pieces than :data:`MAX_WIRE_PIECES`."""
     total = 0
     for w in wires:
@@ -1107,7 +1131,7 @@ def _check_piece_count(r: _Reader, wires):
                    f"counts {SAG_PIECES}); join straight runs, leave out sag, or describe fewer wires")
 
 
-def _check_overlaps(r: _Reader, wires):
+def _check_overlaps(r: TableReader, wires):
     """Refuse wires that lie along one another (a duplicated span, a run doubling back on itself).
 
     Points at the quarter, half and three-quarter marks of every straight piece

@@ -63,8 +63,8 @@ def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>") 
 
     Parameters
     ----------
-    electrodes : list of aerial.site.Electrode
-    soil : aerial.site.SoilSpec
+    electrodes : list of aerial.site.reader.Electrode
+    soil : aerial.site.reader.SoilSpec
     counterpoise_wires : list of WireRun
         Counterpoise wires (used only when there is no electrode).
 
@@ -73,7 +73,7 @@ def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>") 
     dict
         ``resistance_ohm``, ``resistance_low_ohm``, ``resistance_high_ohm`` [ohm], ``parts``, ``warnings``.
     """
-    from aerial.site import Electrode
+    from aerial.site.reader import Electrode
 
     items = list(electrodes)
     warnings: list[str] = []
@@ -105,7 +105,7 @@ def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>") 
         rl, _, _, _ = _one(e, 1.0 / soil.conductivity_high_s_m, radius)
         rh, _, _, _ = _one(e, 1.0 / soil.conductivity_low_s_m, radius)
         if not all(np.isfinite(v) and v > 0 for v in (rn, rl, rh)):
-            from aerial.errors import SiteError
+            from aerial.core.errors import SiteError
 
             raise SiteError(path, e.key, what, "outside the range of the electrode formula (its resistance "
                             "comes out non-positive): check the length, diameter and depth")
@@ -132,7 +132,7 @@ def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>") 
 
 def improved_earth(electrodes, soil) -> dict:
     """The what-if earth: the site's electrodes plus eight 10 m buried radials."""
-    from aerial.site import Electrode
+    from aerial.site.reader import Electrode
 
     n, length, depth = WHAT_IF_RADIALS
     extra = Electrode("buried_wires", "what-if", n, length, 1.628e-3, 0.0, depth, arrangement="radials")

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from aerial.errors import ResourceLimit
+from aerial.core.errors import ResourceLimit
 from aerial.models.capacitance import electrostatic_solution
 from aerial.models.fullwave import (
     DEFAULT_MAX_SEGMENT_WAVELENGTHS,

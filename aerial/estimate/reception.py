@@ -22,8 +22,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from aerial.errors import ModelInputError
+from aerial.core.errors import ModelInputError
 from aerial.models import coil as coil_mod
+from aerial.models.coil import CoilWinding
 from aerial.models import detector as det_mod
 from aerial.models import groundwave as gw_mod
 from aerial.models import noise as noise_mod
@@ -67,49 +68,6 @@ LOW_IMPEDANCE_NOTE = (
     "of a millivolt; use a high-impedance earphone, or a matching (audio) transformer of about 100:1 in "
     "impedance between detector and headphones"
 )
-
-
-@dataclass(frozen=True)
-class CoilWinding:
-    """A single-layer tank coil as wound.
-
-    Attributes
-    ----------
-    form_diameter_m : float
-        Outside diameter of the former. [m]
-    wire_diameter_m : float
-        Outside diameter of the wire (of the bundle for stranded wire). [m]
-    turns : float or None
-        Number of turns; None when the coil is still to be designed (the
-        result then gives the turns and winding length). [1]
-    winding_length_m : float or None
-        Length of the winding; gives the pitch as length/turns. [m]
-    pitch_m : float or None
-        Turn spacing; default close-wound (one wire diameter). [m]
-    strands : int
-        Number of strands of a stranded (litz) wire; 1 for solid wire. [1]
-    strand_diameter_m : float or None
-        Bare diameter of one strand, needed when ``strands`` > 1. [m]
-    resistivity_ohm_m : float
-        Conductor resistivity, default annealed copper. [ohm m]
-    """
-
-    form_diameter_m: float
-    wire_diameter_m: float
-    turns: float | None = None
-    winding_length_m: float | None = None
-    pitch_m: float | None = None
-    strands: int = 1
-    strand_diameter_m: float | None = None
-    resistivity_ohm_m: float = coil_mod.COPPER_RESISTIVITY
-
-    def pitch(self) -> float:
-        """Turn spacing. [m]"""
-        if self.pitch_m is not None:
-            return float(self.pitch_m)
-        if self.winding_length_m is not None and self.turns:
-            return float(self.winding_length_m) / float(self.turns)
-        return float(self.wire_diameter_m)
 
 
 @dataclass(frozen=True)

@@ -10,7 +10,7 @@ import os
 import tempfile
 from pathlib import Path
 
-from aerial.errors import AerialError
+from aerial.core.errors import AerialError
 
 
 def check_writable(path, force: bool = False, protected=()) -> Path:

@@ -4,13 +4,13 @@ The plan is the site seen from above: the lot boundary, the buildings, the
 places a wire could be fixed (candidate supports), obstacles a wire must not
 cross, where the lead-in enters the building, and the overhead power and
 telephone/cable lines nearby. The layout planner searches it; the clearance
-rules (:mod:`aerial.clearance`) read its overhead lines.
+rules (:mod:`aerial.planner.clearance`) read its overhead lines.
 
 Frame: metres, x east, y north, z up; z = 0 is the ground surface. Shapely
 geometries here are plan views (x, y) in that frame. Lengths are numbers
 (metres) or strings with a unit, as everywhere in the site file.
 
-Every rejection raises :class:`aerial.errors.SiteError` naming the file, the
+Every rejection raises :class:`aerial.core.errors.SiteError` naming the file, the
 key (with its line) and what is expected; an invalid polygon is rejected with
 the text of :func:`shapely.is_valid_reason`.
 """
@@ -22,7 +22,7 @@ from dataclasses import dataclass, field
 import shapely
 from shapely.geometry import LineString, Point, Polygon
 
-from aerial.site import SUPPORT_KINDS, Site, _Reader
+from aerial.site.reader import SUPPORT_KINDS, Site, TableReader
 
 #: Words accepted for an overhead line's ``kind``; anything else (or nothing) is a power line.
 POWER_WORDS = ("power", "electric", "electricity", "mains", "service", "distribution")
@@ -146,7 +146,7 @@ def parse_plan(site: Site) -> Plan:
     SiteError
         With the file, key, line and what is expected.
     """
-    r = _Reader(site.path, site.text)
+    r = TableReader(site.path, site.text)
     raw = site.plan or {}
     r.check_keys(raw, "plan", PLAN_KEYS)
     notes: list[str] = []
@@ -222,7 +222,7 @@ def line_kind(given) -> tuple[str, str]:
     return "power", (f'kind "{given}" not understood (expected "power" or "telephone/cable"): treated as a power line')
 
 
-def _polygon(r: _Reader, value, key) -> Polygon:
+def _polygon(r: TableReader, value, key) -> Polygon:
     if not isinstance(value, list) or len(value) < 3:
         r.fail(key, value, "expected at least three corners [[x, y], [x, y], [x, y], ...]")
     pts = [r.plan_point(p, f"{key}[{j}]") for j, p in enumerate(value)]
@@ -233,7 +233,7 @@ def _polygon(r: _Reader, value, key) -> Polygon:
     return poly
 
 
-def _path(r: _Reader, value, key) -> LineString:
+def _path(r: TableReader, value, key) -> LineString:
     if not isinstance(value, list) or len(value) < 2:
         r.fail(key, value, "expected at least two points [[x, y], [x, y], ...]")
     pts = [r.plan_point(p, f"{key}[{j}]") for j, p in enumerate(value)]
@@ -243,7 +243,7 @@ def _path(r: _Reader, value, key) -> LineString:
     return line
 
 
-def _entry(r: _Reader, raw, site: Site) -> Entry:
+def _entry(r: TableReader, raw, site: Site) -> Entry:
     if "entry" not in raw:
         rc = site.receiver
         return Entry(rc.x_m, rc.y_m, rc.height_m, None, "receiver", False)
@@ -260,7 +260,7 @@ def _entry(r: _Reader, raw, site: Site) -> Entry:
     return Entry(x, y, h, fix, key, True)
 
 
-def _supports(r: _Reader, raw, site: Site, entry: Entry) -> list:
+def _supports(r: TableReader, raw, site: Site, entry: Entry) -> list:
     out = [PlanSupport(s.name, s.x_m, s.y_m, s.height_m, s.kind, f"supports.{s.name}", True) for s in site.supports.values()]
     names = {s.name for s in out}
     for i, t in enumerate(r.array_of_tables(raw, "plan", "supports")):
