@@ -210,6 +210,9 @@ class Station:
     distance_m: float
     soil: SoilSpec
     key: str
+    latitude_deg: float | None = None
+    longitude_deg: float | None = None
+    bearing_deg: float | None = None
 
 
 @dataclass(frozen=True)
@@ -253,6 +256,11 @@ class Site:
     plan: dict = field(default_factory=dict)
     notes: list = field(default_factory=list)
     raw: dict = field(default_factory=dict)
+    latitude_deg: float | None = None
+    longitude_deg: float | None = None
+    season: str | None = None
+    atmospheric_noise_db: float | None = None
+    sunspot_number: float | None = None
 
     @property
     def feed_m(self) -> np.ndarray:
@@ -491,7 +499,8 @@ TOP_KEYS = {
 def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
     r.check_keys(raw, "", TOP_KEYS)
     site_t = r.table(raw, "", "site")
-    r.check_keys(site_t, "site", {"name", "notes", "region", "noise", "bands", "frequency_step", "field_strength", "soil"})
+    r.check_keys(site_t, "site", {"name", "notes", "region", "noise", "bands", "frequency_step", "field_strength", "soil",
+                                  "latitude", "longitude", "season", "atmospheric_noise", "sunspots"})
     name = r.string(site_t, "site", "name", default=Path(path).stem if not path.startswith("<") else "example site")
     region = r.string(site_t, "site", "region")
     noise = r.string(site_t, "site", "noise", default="residential", choices=NOISE_CATEGORIES)
@@ -520,7 +529,9 @@ def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
         wires.append(lead)
     electrodes, earth_wires, notes = _earth(r, raw, receiver, default_size, soil)
     wires += earth_wires
-    stations = _stations(r, raw, soil)
+    position = _position(r, site_t, "site")
+    stations = _stations(r, raw, soil, position)
+    night = _night_inputs(r, site_t)
     plan = r.table(raw, "", "plan")
     _check_wires(r, wires)
     _check_piece_count(r, wires)
@@ -529,6 +540,7 @@ def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
         path=path, name=name, text=text, region=region, noise=noise, soil=soil, bands=bands,
         frequency_step_hz=steps, supports=supports, wires=wires, receiver=receiver, electrodes=electrodes,
         stations=stations, field_strength_v_per_m=field_strength, plan=plan, notes=notes, raw=raw,
+        latitude_deg=position[0] if position else None, longitude_deg=position[1] if position else None, **night,
     )
 
 
@@ -1052,11 +1064,12 @@ def _refuse_gas_anywhere(r: TableReader, t, key):
             r.fail(full, value, "refused: gas piping is never an earth electrode (fire and explosion risk; codes forbid it)")
 
 
-def _stations(r: TableReader, raw, soil: SoilSpec) -> list:
+def _stations(r: TableReader, raw, soil: SoilSpec, site_position=None) -> list:
     out = []
     for i, t in enumerate(r.array_of_tables(raw, "", "stations")):
         key = f"stations[{i}]"
-        r.check_keys(t, key, {"name", "frequency", "power", "distance", "soil", "notes"})
+        r.check_keys(t, key, {"name", "frequency", "power", "distance", "soil", "notes", "latitude", "longitude",
+                              "bearing"})
         name = r.string(t, key, "name", default=f"station {i + 1}")
         f = r.quantity(t, key, "frequency", units.FREQUENCY_UNITS, "a frequency", "Hz")
         if f is None:
@@ -1069,7 +1082,24 @@ def _stations(r: TableReader, raw, soil: SoilSpec) -> list:
         if not STATION_POWER_W[0] <= p <= STATION_POWER_W[1]:
             r.fail(f"{key}.power", t["power"], f"expected a transmitter power from {STATION_POWER_W[0] * 1e3:g} mW "
                    f"to {STATION_POWER_W[1] / 1e6:g} MW")
-        d = r.length(t, key, "distance", required=True, positive=True, maximum=MAX_STATION_DISTANCE_M)
+        where = _position(r, t, key)
+        bearing = _degrees(r, t, key, "bearing", -360.0, 360.0)
+        if where is not None and ("distance" in t or bearing is not None):
+            r.fail(f"{key}.distance" if "distance" in t else f"{key}.bearing", t.get("distance", t.get("bearing")),
+                   "give the station's latitude and longitude, or its distance (and bearing), not both")
+        if where is not None and site_position is None:
+            r.fail(f"{key}.latitude", t["latitude"], "a station's position needs the site's own: add latitude and "
+                   "longitude to [site] (or give the station's distance instead)")
+        if where is not None:
+            from aerial.models.skywave import great_circle
+
+            dist, brg = great_circle(site_position[0], site_position[1], where[0], where[1])
+            d, bearing = float(dist), float(brg)
+            if d > MAX_STATION_DISTANCE_M:
+                r.fail(f"{key}.latitude", t["latitude"], "expected a station on the same planet side: at most "
+                       f"{MAX_STATION_DISTANCE_M / 1e3:g} km away")
+        else:
+            d = r.length(t, key, "distance", required=True, positive=True, maximum=MAX_STATION_DISTANCE_M)
         if d < MIN_STATION_DISTANCE_M:
             r.fail(f"{key}.distance", t["distance"], f"expected a distance of at least {MIN_STATION_DISTANCE_M:g} m "
                    "(the ground-wave model needs the receiver well away from the transmitter)")
@@ -1082,8 +1112,82 @@ def _stations(r: TableReader, raw, soil: SoilSpec) -> list:
             b = SOILS[norm]
             st_soil = SoilSpec(b.name, b.relative_permittivity, b.conductivity_s_m, b.conductivity_low_s_m,
                                b.conductivity_high_s_m, f"ITU-R P.527 category: {b.description}")
-        out.append(Station(name, f, p, d, st_soil, key))
+        out.append(Station(name, f, p, d, st_soil, key, where[0] if where else None, where[1] if where else None,
+                           None if bearing is None else bearing % 360.0))
     return out
+
+
+SEASONS = ("winter", "spring", "summer", "autumn")
+
+#: Smoothed sunspot numbers accepted (a solar cycle peaks at 100–250). [1]
+SUNSPOT_RANGE = (0.0, 400.0)
+
+
+def _degrees(r: TableReader, data, key, name, low, high):
+    """An angle in degrees: a number, or text such as "51.5 deg", "51.5°", "51.5 N", "0.12 W"."""
+    full = f"{key}.{name}"
+    value = data.get(name)
+    if value is None:
+        return None
+    hemi = {"n": 1.0, "e": 1.0, "s": -1.0, "w": -1.0}
+    ok = True
+    if isinstance(value, bool):
+        ok = False
+    elif isinstance(value, (int, float)):
+        v = float(value)
+    elif isinstance(value, str):
+        text = value.lower().replace("°", " deg ").replace("degrees", "deg").strip()
+        sign = 1.0
+        if text and text[-1] in hemi:
+            if (text[-1] in "ns") != (name == "latitude") or name == "bearing":
+                r.fail(full, value, f"expected {'N or S' if name == 'latitude' else 'E or W'} after a {name}")
+            sign = hemi[text[-1]]
+            text = text[:-1].strip()
+        text = text.removesuffix("deg").strip()
+        if text.startswith(("-", "+")) and sign < 0:
+            ok = False
+        try:
+            v = sign * float(text)
+        except ValueError:
+            ok = False
+    else:
+        ok = False
+    if ok and not (math.isfinite(v) and low <= v <= high):
+        ok = False
+    if not ok:
+        r.fail(full, value, f"expected a {name} in degrees from {low:g} to {high:g}, such as 51.5 or \"51.5 deg\""
+               + (' or "51.5 N"' if name == "latitude" else ' or "0.12 W"' if name == "longitude" else ""))
+    return v
+
+
+def _position(r: TableReader, data, key):
+    """(latitude, longitude) in degrees, or None when neither is given."""
+    lat = _degrees(r, data, key, "latitude", -90.0, 90.0)
+    lon = _degrees(r, data, key, "longitude", -180.0, 180.0)
+    if (lat is None) != (lon is None):
+        missing = "longitude" if lon is None else "latitude"
+        r.fail(f"{key}.{missing}", "", "a position needs both latitude and longitude")
+    return None if lat is None else (lat, lon)
+
+
+def _night_inputs(r: TableReader, site_t) -> dict:
+    """The [site] keys that set night-time reception: season, atmospheric noise, sunspots."""
+    season = r.string(site_t, "site", "season", choices=SEASONS)
+    fam = None
+    if "atmospheric_noise" in site_t:
+        v = site_t["atmospheric_noise"]
+        text = v.strip().lower() if isinstance(v, str) else None
+        try:
+            fam = float(text.removesuffix("db").strip()) if text is not None else (
+                float(v) if isinstance(v, (int, float)) and not isinstance(v, bool) else None)
+        except ValueError:
+            fam = None
+        if fam is None or not (math.isfinite(fam) and 0.0 <= fam <= 140.0):
+            r.fail("site.atmospheric_noise", v, 'expected the night-time atmospheric noise Fam at 1 MHz read from '
+                   'the ITU-R P.372 maps, 0–140 dB above kT0b, such as "62 dB"')
+    spots = r.number(site_t, "site", "sunspots", low=SUNSPOT_RANGE[0], high=SUNSPOT_RANGE[1],
+                     what="a smoothed sunspot number")
+    return {"season": season, "atmospheric_noise_db": fam, "sunspot_number": spots}
 
 
 def _check_wires(r: TableReader, wires):
