@@ -120,8 +120,6 @@ LONG_FUNCTIONS_BEING_SPLIT = {
     "aerial/models/fullwave.py:solve_full_wave",
     "aerial/models/fullwave_geometry.py:build_topology",
     "aerial/models/shapes.py:classify",
-    "aerial/estimate/reception.py:assess_stations",
-    "aerial/estimate/reception.py:design_tuning",
     "aerial/models/closed_form.py:closed_form_response",
     "aerial/planner/search.py:plan_layouts",
 }

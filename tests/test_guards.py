@@ -159,3 +159,41 @@ length = "2.4 m"
     out, err = capsys.readouterr()
     assert code == 2 and out == ""
     assert err.count("\n") == 1 and "--allow-large" in err and "unknowns" in err
+
+
+def _many_stations_site(n: int) -> str:
+    """The worst legal station list: every station strong, near, tunable and crowded onto few channels.
+
+    Generated test input (invented stations), not reference data.
+    """
+    from importlib import resources
+
+    base = resources.files("aerial.data").joinpath("backyard_inverted_l.toml").read_text(encoding="utf-8")
+    base = base.split("[[stations]]")[0]
+    lines = [base]
+    for i in range(n):
+        lines.append(f'\n[[stations]]\nname = "Demo {i}"\nfrequency = "{531 + (i % 120) * 9} kHz"\n'
+                     f'power = "2 MW"\ndistance = "{5 + i % 7} km"\n')
+    return "".join(lines)
+
+
+def test_the_worst_legal_station_list_is_answered(tmp_path):
+    """At the station limit, with every station heard behind every other, the report finishes and answers."""
+    from aerial.site.reader import MAX_STATIONS
+
+    p = tmp_path / "many.toml"
+    p.write_text(_many_stations_site(MAX_STATIONS), encoding="utf-8")
+    result = run_report(str(p))
+    assert len(result["stations"]) == MAX_STATIONS
+    assert fz._nulls(result) == []
+
+
+def test_one_station_past_the_limit_is_refused(tmp_path, capsys):
+    from aerial.cli import main
+    from aerial.site.reader import MAX_STATIONS
+
+    p = tmp_path / "too_many.toml"
+    p.write_text(_many_stations_site(MAX_STATIONS + 1), encoding="utf-8")
+    assert main(["check", str(p)]) == 2
+    err = capsys.readouterr().err
+    assert "too many stations" in err and f"stations[{MAX_STATIONS}]" in err

@@ -645,108 +645,26 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
         raise ModelInputError("band must be (f_lo, f_hi) with 0 < f_lo < f_hi")
     if aerial.outside([f_lo, f_hi]).any():
         warnings.append("the band reaches beyond the aerial's frequency grid: edge values of the aerial were used")
-    has_cap = parts.capacitor_min_f is not None
     designed_L = None
     if parts.coil_inductance_h is None and (parts.coil is None or parts.coil.turns is None):
-        if not has_cap:
+        if parts.capacitor_min_f is None:
             raise ModelInputError("give the coil (inductance or winding) or the capacitor range to design one")
         designed_L = _design_inductance((f_lo, f_hi), aerial, parts, notes)
     coil = _resolve_coil(parts, designed_L)
     notes.extend(coil.notes)
-    L = coil.inductance
-    cfg = _config(parts)
-
     grid_in = aerial.f[(aerial.f > f_lo) & (aerial.f < f_hi)]
     table_f = np.unique(np.concatenate([[f_lo], grid_in, [f_hi]]))
-    t = _coupling(table_f, aerial, L, coil.q, cfg)
-    c_needed = tank_mod.capacitance_needed(table_f, t.coil_admittance, t.aerial_admittance)
-    w = 2.0 * np.pi * table_f
-    shunt = tank_mod.shunt_from_admittance(table_f, t.aerial_admittance)
-    b_coil = -np.imag(t.coil_admittance)
-    g_coil = np.real(t.coil_admittance)
-    c_total = b_coil / w  # everything but the coil, at resonance
-    l_equiv = 1.0 / (w * b_coil)  # the coil's shunt-equivalent inductance L(1 + 1/Qu²)
-    qu = b_coil / g_coil
-    g_aerial = np.maximum(np.real(t.aerial_admittance), 1e-15)
-    g_det = _strong_signal_conductance(parts)
-    q_aerial = b_coil / g_aerial
-    q_det = b_coil / g_det
-    ql = tank_mod.loaded_q(qu, q_aerial, q_det)
-    bw = tank_mod.bandwidth(table_f, ql)
-    r_a, x_a = aerial.impedance(table_f)
-    # circuit power transfer: P_det / P_av, P_av = V²/(4 Ra), V_top = V·|I_N| / G_total
-    g_total = g_coil + g_aerial + g_det
-    v_top = np.abs(t.current_per_volt) / g_total
-    p_det = v_top**2 * g_det
-    transfer = p_det / (1.0 / (4.0 * r_a))
-    matched = tank_mod.matched_power_ratio(ql, qu)
-    within = np.ones_like(table_f, dtype=bool)
-    if has_cap:
-        within = (c_needed >= parts.capacitor_min_f) & (c_needed <= parts.capacitor_max_f)
-    share = shunt.capacitance / np.where(c_total != 0, c_total, 1e-30)
-
-    rejection = {}
-    for spacing in tank_mod.CHANNEL_SPACINGS_HZ:
-        for offset in (spacing, 2 * spacing):
-            rejection[f"rejection_{int(offset / 1e3)}khz_db"] = tank_mod.adjacent_rejection_db(table_f, ql, offset)
-
-    rows = []
-    for i, fi in enumerate(table_f):
-        row = {
-            "frequency_hz": _num(fi, "frequency_hz", warnings),
-            "inductance_h": _num(l_equiv[i], "inductance_h", warnings),
-            "total_capacitance_f": _num(c_total[i], "total_capacitance_f", warnings),
-            "capacitor_setting_f": _num(c_needed[i], "capacitor_setting_f", warnings),
-            "within_capacitor_range": bool(within[i]),
-            "aerial_shunt_capacitance_f": _num(shunt.capacitance[i], "aerial_shunt_capacitance_f", warnings),
-            "aerial_shunt_resistance_ohm": _num(shunt.resistance[i], "aerial_shunt_resistance_ohm", warnings),
-            "aerial_share_ratio": _num(share[i], "aerial_share_ratio", warnings),
-            "unloaded_q": _num(qu[i], "unloaded_q", warnings),
-            "loaded_q": _num(ql[i], "loaded_q", warnings),
-            "bandwidth_hz": _num(bw[i], "bandwidth_hz", warnings),
-            "power_transfer_ratio": _num(transfer[i], "power_transfer_ratio", warnings),
-            "power_transfer_if_matched_ratio": _num(matched[i], "power_transfer_if_matched_ratio", warnings),
-        }
-        for key, values in rejection.items():
-            row[key] = _num(values[i], "rejection", warnings)
-        if shunt.capacitance[i] < 0:
-            row["note"] = "the aerial looks inductive here (above its first resonance)"
-        rows.append(row)
-
-    c_edges = _needed(np.array([f_lo, f_hi]), aerial, L, coil.q, cfg)
-    coverage = {
-        "band_low_hz": f_lo,
-        "band_high_hz": f_hi,
-        "capacitor_needed_at_low_edge_f": _num(c_edges[0], "capacitor_needed_at_low_edge_f", warnings),
-        "capacitor_needed_at_high_edge_f": _num(c_edges[1], "capacitor_needed_at_high_edge_f", warnings),
-    }
-    advice: list = []
-    if has_cap:
-        covered = bool(c_edges[0] <= parts.capacitor_max_f and c_edges[1] >= parts.capacitor_min_f)
-        coverage["covered"] = covered
-        curve = tuning_range_curve(aerial.f, aerial.r, aerial.x, parts, coil_inductance_h=L, _aerial=aerial, _coil=coil)
-        reach = "reachable_low_hz" in curve
-        if reach:
-            coverage["reachable_low_hz"] = curve["reachable_low_hz"]
-            coverage["reachable_high_hz"] = curve["reachable_high_hz"]
-        coverage["verdict"] = ("covers the band" if covered else
-                               "does not cover the band" + (f": reaches {_khz(curve['reachable_low_hz'])} to "
-                                                            f"{_khz(curve['reachable_high_hz'])}" if reach
-                                                            else ": nothing in the aerial's grid"))
-        if not covered:
-            advice = _advice((f_lo, f_hi), aerial, coil, parts, c_edges)
-    else:
-        coverage["verdict"] = "no capacitor range given: the settings needed are listed"
+    rows = _table_rows(table_f, _table_arrays(table_f, aerial, coil, parts), warnings)
+    coverage, advice = _coverage((f_lo, f_hi), aerial, coil, parts, warnings)
     if parts.arrangement in tank_mod.NO_DC_PATH_ARRANGEMENTS:
         notes.append(tank_mod.BLEED_NOTE)
     if parts.earphone_ohm < LOW_IMPEDANCE_EARPHONE_OHM:
         warnings.append(LOW_IMPEDANCE_NOTE)
     notes.append("loaded Q and bandwidth use the detector's strong-signal input resistance (half the earphone "
-                  "impedance); weak stations load the tank less")
-    coil_info = dict(coil.info)
+                 "impedance); weak stations load the tank less")
     result = {
         "arrangement": parts.arrangement,
-        "coil": coil_info,
+        "coil": dict(coil.info),
         "detector": parts.detector,
         "earphone_ohm": float(parts.earphone_ohm),
         "rows": rows,
@@ -758,6 +676,98 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
     if calibration is not None:
         result["calibration"] = calibration
     return result
+
+
+def _table_arrays(table_f, aerial, coil, parts) -> dict:
+    """The tuning table's figures as arrays over the tabulated frequencies."""
+    t = _coupling(table_f, aerial, coil.inductance, coil.q, _config(parts))
+    c_needed = tank_mod.capacitance_needed(table_f, t.coil_admittance, t.aerial_admittance)
+    w = 2.0 * np.pi * table_f
+    shunt = tank_mod.shunt_from_admittance(table_f, t.aerial_admittance)
+    b_coil = -np.imag(t.coil_admittance)
+    g_coil = np.real(t.coil_admittance)
+    c_total = b_coil / w  # everything but the coil, at resonance
+    qu = b_coil / g_coil
+    g_aerial = np.maximum(np.real(t.aerial_admittance), 1e-15)
+    g_det = _strong_signal_conductance(parts)
+    ql = tank_mod.loaded_q(qu, b_coil / g_aerial, b_coil / g_det)
+    r_a, _ = aerial.impedance(table_f)
+    # circuit power transfer: P_det / P_av, P_av = V²/(4 Ra), V_top = V·|I_N| / G_total
+    v_top = np.abs(t.current_per_volt) / (g_coil + g_aerial + g_det)
+    within = np.ones_like(table_f, dtype=bool)
+    if parts.capacitor_min_f is not None:
+        within = (c_needed >= parts.capacitor_min_f) & (c_needed <= parts.capacitor_max_f)
+    rejection = {}
+    for spacing in tank_mod.CHANNEL_SPACINGS_HZ:
+        for offset in (spacing, 2 * spacing):
+            rejection[f"rejection_{int(offset / 1e3)}khz_db"] = tank_mod.adjacent_rejection_db(table_f, ql, offset)
+    return {
+        "inductance_h": 1.0 / (w * b_coil),  # the coil's shunt-equivalent inductance L(1 + 1/Qu²)
+        "total_capacitance_f": c_total,
+        "capacitor_setting_f": c_needed,
+        "within": within,
+        "aerial_shunt_capacitance_f": shunt.capacitance,
+        "aerial_shunt_resistance_ohm": shunt.resistance,
+        "aerial_share_ratio": shunt.capacitance / np.where(c_total != 0, c_total, 1e-30),
+        "unloaded_q": qu,
+        "loaded_q": ql,
+        "bandwidth_hz": tank_mod.bandwidth(table_f, ql),
+        "power_transfer_ratio": v_top**2 * g_det / (1.0 / (4.0 * r_a)),
+        "power_transfer_if_matched_ratio": tank_mod.matched_power_ratio(ql, qu),
+        "rejection": rejection,
+    }
+
+
+#: Keys of the tuning table's rows, in order, after ``frequency_hz``.
+_ROW_KEYS = ("inductance_h", "total_capacitance_f", "capacitor_setting_f", "within_capacitor_range",
+             "aerial_shunt_capacitance_f", "aerial_shunt_resistance_ohm", "aerial_share_ratio", "unloaded_q",
+             "loaded_q", "bandwidth_hz", "power_transfer_ratio", "power_transfer_if_matched_ratio")
+
+
+def _table_rows(table_f, arr, warnings) -> list:
+    rows = []
+    for i, fi in enumerate(table_f):
+        row = {"frequency_hz": _num(fi, "frequency_hz", warnings)}
+        for key in _ROW_KEYS:
+            if key == "within_capacitor_range":
+                row[key] = bool(arr["within"][i])
+            else:
+                row[key] = _num(arr[key][i], key, warnings)
+        for key, values in arr["rejection"].items():
+            row[key] = _num(values[i], "rejection", warnings)
+        if arr["aerial_shunt_capacitance_f"][i] < 0:
+            row["note"] = "the aerial looks inductive here (above its first resonance)"
+        rows.append(row)
+    return rows
+
+
+def _coverage(band, aerial, coil, parts, warnings) -> tuple:
+    """Band coverage by the capacitor range, with advice when it falls short. Returns (coverage, advice)."""
+    f_lo, f_hi = band
+    c_edges = _needed(np.array([f_lo, f_hi]), aerial, coil.inductance, coil.q, _config(parts))
+    coverage = {
+        "band_low_hz": f_lo,
+        "band_high_hz": f_hi,
+        "capacitor_needed_at_low_edge_f": _num(c_edges[0], "capacitor_needed_at_low_edge_f", warnings),
+        "capacitor_needed_at_high_edge_f": _num(c_edges[1], "capacitor_needed_at_high_edge_f", warnings),
+    }
+    if parts.capacitor_min_f is None:
+        coverage["verdict"] = "no capacitor range given: the settings needed are listed"
+        return coverage, []
+    covered = bool(c_edges[0] <= parts.capacitor_max_f and c_edges[1] >= parts.capacitor_min_f)
+    coverage["covered"] = covered
+    curve = tuning_range_curve(aerial.f, aerial.r, aerial.x, parts, coil_inductance_h=coil.inductance,
+                               _aerial=aerial, _coil=coil)
+    reach = "reachable_low_hz" in curve
+    if reach:
+        coverage["reachable_low_hz"] = curve["reachable_low_hz"]
+        coverage["reachable_high_hz"] = curve["reachable_high_hz"]
+    coverage["verdict"] = ("covers the band" if covered else
+                           "does not cover the band" + (f": reaches {_khz(curve['reachable_low_hz'])} to "
+                                                        f"{_khz(curve['reachable_high_hz'])}" if reach
+                                                        else ": nothing in the aerial's grid"))
+    advice = [] if covered else _advice((f_lo, f_hi), aerial, coil, parts, c_edges)
+    return coverage, advice
 
 
 def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, points=60,
@@ -948,27 +958,52 @@ def assess_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, eff
     stations = list(stations)
     if not stations:
         return []
+    _check_stations(stations)
     aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m)
     common: list = []
     diode = _diode(parts)
     _apply_calibration(aerial, parts, diode, common)
-    if parts.coil_inductance_h is None and (parts.coil is None or parts.coil.turns is None):
-        if parts.capacitor_min_f is None:
-            raise ModelInputError("give the coil (inductance or winding) or the capacitor range to design one")
-        band = (aerial.f[0], aerial.f[-1])
-        coil = _resolve_coil(parts, _design_inductance(band, aerial, parts, []))
-    else:
-        coil = _resolve_coil(parts)
-    cfg = _config(parts)
-    tap = float(parts.detector_tap_fraction)
-    load = float(parts.earphone_ohm)
+    coil = _station_coil(aerial, parts)
+    a = _station_arrays(aerial, coil, parts, diode, stations, noise_category, modulation_depth)
+    results = []
+    for i, s in enumerate(stations):
+        warn = list(common) + _station_warnings(aerial, a, i)
+        tunable, reason_tune = _tunable(parts, a["fs"][i], a["c_need"][i])
+        verdict, reason = _verdict(tunable, reason_tune, float(a["audio"].audio_power[i]), float(a["snr"][i]))
+        results.append(_station_row(s, a, i, tunable, verdict, reason, warn))
+    _spill_over(results, stations, a)
+    if parts.arrangement in tank_mod.NO_DC_PATH_ARRANGEMENTS:
+        for r in results:
+            r["warnings"].append(tank_mod.BLEED_NOTE)
+    if parts.earphone_ohm < LOW_IMPEDANCE_EARPHONE_OHM:
+        for r in results:
+            r["warnings"].append(LOW_IMPEDANCE_NOTE)
+    return results
 
-    fs = np.array([float(s.frequency_hz) for s in stations])
+
+def _check_stations(stations):
     for s in stations:
         for name in ("frequency_hz", "power_w", "distance_m", "soil_relative_permittivity"):
             v = float(getattr(s, name))
             if not (np.isfinite(v) and v > 0):
                 raise ModelInputError(f"station '{s.name}': {name} must be positive, got {v!r}")
+
+
+def _station_coil(aerial, parts) -> _Coil:
+    """The coil the stations are heard with: given, from its winding, or designed for the band."""
+    if parts.coil_inductance_h is None and (parts.coil is None or parts.coil.turns is None):
+        if parts.capacitor_min_f is None:
+            raise ModelInputError("give the coil (inductance or winding) or the capacitor range to design one")
+        band = (aerial.f[0], aerial.f[-1])
+        return _resolve_coil(parts, _design_inductance(band, aerial, parts, []))
+    return _resolve_coil(parts)
+
+
+def _station_arrays(aerial, coil, parts, diode, stations, noise_category, modulation_depth) -> dict:
+    """Every per-station figure as arrays over the stations (one vectorised pass)."""
+    tap = float(parts.detector_tap_fraction)
+    load = float(parts.earphone_ohm)
+    fs = np.array([float(s.frequency_hz) for s in stations])
     gw = gw_mod.groundwave_field(np.array([s.power_w for s in stations]), np.array([s.distance_m for s in stations]),
                                  fs, np.array([s.soil_relative_permittivity for s in stations]),
                                  np.array([s.soil_conductivity_s_per_m for s in stations]))
@@ -976,7 +1011,7 @@ def assess_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, eff
     r_a, _ = aerial.impedance(fs)
     rr = aerial.radiation_resistance(fs)
     v_oc = gw.field * he
-    t = _coupling(fs, aerial, coil.inductance, coil.q, cfg)
+    t = _coupling(fs, aerial, coil.inductance, coil.q, _config(parts))
     c_need = tank_mod.capacitance_needed(fs, t.coil_admittance, t.aerial_admittance)
     b_coil = -np.imag(t.coil_admittance)
     g0 = np.real(t.coil_admittance) + np.maximum(np.real(t.aerial_admittance), 0.0)
@@ -985,99 +1020,104 @@ def assess_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, eff
     det = det_mod.loaded_detector(np.sqrt(2.0) * tap * v_top, diode.saturation_current_a, diode.ideality, load)
     audio = det_mod.audio_output(np.sqrt(2.0) * tap * v_top, diode, load, modulation_depth)
     g_det = tap**2 / det.input_resistance
-    p_det = v_top**2 * g_det
-    p_av = v_oc**2 / (4.0 * r_a)
     ql = tank_mod.loaded_q(b_coil / np.real(t.coil_admittance), b_coil / np.maximum(np.real(t.aerial_admittance), 1e-15),
                            b_coil / g_det)
     bw = tank_mod.bandwidth(fs, ql)
     fam = noise_mod.man_made_noise_figure(fs, noise_category)
     en = noise_mod.v_per_m_from_dbuv_per_m(noise_mod.noise_field_dbuv_per_m(fam.noise_figure_db, fs, bw))
-    snr = noise_mod.db_from_voltage_ratio(gw.field / en)
-    threshold = _threshold_voltage(tap, diode, load)
+    return {
+        "fs": fs, "gw": gw, "he": he, "r_a": r_a, "rr": rr, "v_oc": v_oc, "c_need": c_need, "v_top": v_top,
+        "converged": converged, "det": det, "audio": audio, "p_det": v_top**2 * g_det,
+        "p_av": v_oc**2 / (4.0 * r_a), "ql": ql, "bw": bw, "fam": fam, "en": en,
+        "snr": noise_mod.db_from_voltage_ratio(gw.field / en), "threshold": _threshold_voltage(tap, diode, load),
+    }
 
-    results = []
-    for i, s in enumerate(stations):
-        warn = list(common)
-        if aerial.outside(fs[i]):
-            warn.append("station lies outside the aerial's frequency grid: the aerial's edge values were used")
-        if gw.beyond_flat_earth[i] if np.ndim(gw.beyond_flat_earth) else gw.beyond_flat_earth:
-            warn.append("beyond the flat-earth range: curved-earth effects not included, field likely lower")
-        if np.ravel(gw.too_close)[i]:
-            warn.append("within one wavelength of the transmitter: the ground-wave formula is not valid this close")
-        if np.ravel(fam.below_range)[i]:
-            warn.append(noise_mod.BELOW_RANGE_NOTE)
-        if not converged or not bool(np.ravel(audio.converged)[i]):
-            warn.append("the tank-voltage / detector solution did not converge fully")
-        tunable = True
-        reason_tune = ""
-        if parts.capacitor_min_f is not None and not (parts.capacitor_min_f <= c_need[i] <= parts.capacitor_max_f):
-            tunable = False
-            reason_tune = (f"the tuning capacitor cannot reach {_khz(fs[i])} (needs {_pf(c_need[i])}, range "
-                           f"{_pf(parts.capacitor_min_f)} to {_pf(parts.capacitor_max_f)})")
-        pa = float(audio.audio_power[i])
-        sn = float(snr[i])
-        if not tunable:
-            verdict, reason = "not heard", reason_tune
-        elif pa >= CLEAR_POWER_W and sn >= CLEAR_SNR_DB:
-            verdict, reason = "clearly heard", f"audio {pa:.1e} W and {sn:.0f} dB above man-made noise"
-        elif pa >= AUDIBLE_POWER_W and sn >= MARGINAL_SNR_DB:
-            why = "weak audio" if pa < CLEAR_POWER_W else "noisy"
-            verdict, reason = "marginal", f"{why}: audio {pa:.1e} W, {sn:.0f} dB above man-made noise"
-        elif pa < AUDIBLE_POWER_W:
-            verdict, reason = "not heard", (f"too little audio ({pa:.1e} W; about {AUDIBLE_POWER_W:.0e} W is assumed "
-                                            "to be just audible)")
-        else:
-            verdict, reason = "not heard", f"buried in man-made noise ({sn:.0f} dB signal-to-noise)"
-        r_ratio = threshold / v_top[i] if np.isfinite(threshold) else np.inf
-        width = float(fs[i] * np.sqrt(1.0 / r_ratio**2 - 1.0) / ql[i]) if r_ratio < 1 else 0.0
-        results.append({
-            "name": s.name,
-            "frequency_hz": _num(fs[i], "frequency_hz", warn),
-            "distance_m": _num(s.distance_m, "distance_m", warn),
-            "power_w": _num(s.power_w, "power_w", warn),
-            "field_v_per_m": _num(gw.field[i], "field_v_per_m", warn),
-            "ground_attenuation_ratio": _num(gw.attenuation[i], "ground_attenuation_ratio", warn),
-            "effective_height_m": _num(he[i], "effective_height_m", warn),
-            "open_circuit_voltage_v": _num(v_oc[i], "open_circuit_voltage_v", warn),
-            "aerial_efficiency_ratio": _num(rr[i] / r_a[i], "aerial_efficiency_ratio", warn),
-            "available_power_w": _num(p_av[i], "available_power_w", warn),
-            "capacitor_setting_f": _num(c_need[i], "capacitor_setting_f", warn),
-            "tunable": tunable,
-            "tank_voltage_v": _num(v_top[i], "tank_voltage_v", warn),
-            "detector_power_w": _num(p_det[i], "detector_power_w", warn),
-            "detector_input_resistance_ohm": _num(det.input_resistance[i], "detector_input_resistance_ohm", warn),
-            "detected_voltage_v": _num(det.detected_voltage[i], "detected_voltage_v", warn),
-            "audio_voltage_v": _num(audio.audio_voltage[i], "audio_voltage_v", warn),
-            "audio_power_w": _num(pa, "audio_power_w", warn),
-            "loaded_q": _num(ql[i], "loaded_q", warn),
-            "bandwidth_hz": _num(bw[i], "bandwidth_hz", warn),
-            "noise_field_v_per_m": _num(en[i], "noise_field_v_per_m", warn),
-            "signal_to_noise_db": _num(sn, "signal_to_noise_db", warn),
-            "verdict": verdict,
-            "reason": reason,
-            "audible_width_hz": _num(width, "audible_width_hz", warn),
-            "heard_behind": [],
-            "spills_over": [],
-            "warnings": warn,
-        })
 
-    # spill-over: station j heard while tuned to station i
-    for i in range(len(stations)):
-        if not results[i]["tunable"]:
-            continue
-        for j in range(len(stations)):
-            if i == j:
-                continue
-            h = float(tank_mod.single_tuned_response(fs[j], fs[i], ql[i]))
-            v_spill = v_top[j] * h
-            if v_spill >= threshold:
-                rel = float(noise_mod.db_from_voltage_ratio(v_spill / v_top[i]))
-                results[i]["heard_behind"].append({"name": stations[j].name, "level_relative_db": _num(rel, "level", [])})
-                results[j]["spills_over"].append(stations[i].name)
-    if parts.arrangement in tank_mod.NO_DC_PATH_ARRANGEMENTS:
-        for r in results:
-            r["warnings"].append(tank_mod.BLEED_NOTE)
-    if load < LOW_IMPEDANCE_EARPHONE_OHM:
-        for r in results:
-            r["warnings"].append(LOW_IMPEDANCE_NOTE)
-    return results
+def _station_warnings(aerial, a, i) -> list:
+    warn = []
+    gw, fam = a["gw"], a["fam"]
+    if aerial.outside(a["fs"][i]):
+        warn.append("station lies outside the aerial's frequency grid: the aerial's edge values were used")
+    if gw.beyond_flat_earth[i] if np.ndim(gw.beyond_flat_earth) else gw.beyond_flat_earth:
+        warn.append("beyond the flat-earth range: curved-earth effects not included, field likely lower")
+    if np.ravel(gw.too_close)[i]:
+        warn.append("within one wavelength of the transmitter: the ground-wave formula is not valid this close")
+    if np.ravel(fam.below_range)[i]:
+        warn.append(noise_mod.BELOW_RANGE_NOTE)
+    if not a["converged"] or not bool(np.ravel(a["audio"].converged)[i]):
+        warn.append("the tank-voltage / detector solution did not converge fully")
+    return warn
+
+
+def _tunable(parts, f, c_need) -> tuple:
+    if parts.capacitor_min_f is not None and not (parts.capacitor_min_f <= c_need <= parts.capacitor_max_f):
+        return False, (f"the tuning capacitor cannot reach {_khz(f)} (needs {_pf(c_need)}, range "
+                       f"{_pf(parts.capacitor_min_f)} to {_pf(parts.capacitor_max_f)})")
+    return True, ""
+
+
+def _verdict(tunable, reason_tune, pa, sn) -> tuple:
+    """(verdict, reason) from the audio power [W] and the signal-to-noise ratio [dB]."""
+    if not tunable:
+        return "not heard", reason_tune
+    if pa >= CLEAR_POWER_W and sn >= CLEAR_SNR_DB:
+        return "clearly heard", f"audio {pa:.1e} W and {sn:.0f} dB above man-made noise"
+    if pa >= AUDIBLE_POWER_W and sn >= MARGINAL_SNR_DB:
+        why = "weak audio" if pa < CLEAR_POWER_W else "noisy"
+        return "marginal", f"{why}: audio {pa:.1e} W, {sn:.0f} dB above man-made noise"
+    if pa < AUDIBLE_POWER_W:
+        return "not heard", (f"too little audio ({pa:.1e} W; about {AUDIBLE_POWER_W:.0e} W is assumed "
+                             "to be just audible)")
+    return "not heard", f"buried in man-made noise ({sn:.0f} dB signal-to-noise)"
+
+
+def _station_row(s, a, i, tunable, verdict, reason, warn) -> dict:
+    fs, gw, v_top, det, audio = a["fs"], a["gw"], a["v_top"], a["det"], a["audio"]
+    threshold, ql = a["threshold"], a["ql"]
+    pa = float(audio.audio_power[i])
+    r_ratio = threshold / v_top[i] if np.isfinite(threshold) else np.inf
+    width = float(fs[i] * np.sqrt(1.0 / r_ratio**2 - 1.0) / ql[i]) if r_ratio < 1 else 0.0
+    return {
+        "name": s.name,
+        "frequency_hz": _num(fs[i], "frequency_hz", warn),
+        "distance_m": _num(s.distance_m, "distance_m", warn),
+        "power_w": _num(s.power_w, "power_w", warn),
+        "field_v_per_m": _num(gw.field[i], "field_v_per_m", warn),
+        "ground_attenuation_ratio": _num(gw.attenuation[i], "ground_attenuation_ratio", warn),
+        "effective_height_m": _num(a["he"][i], "effective_height_m", warn),
+        "open_circuit_voltage_v": _num(a["v_oc"][i], "open_circuit_voltage_v", warn),
+        "aerial_efficiency_ratio": _num(a["rr"][i] / a["r_a"][i], "aerial_efficiency_ratio", warn),
+        "available_power_w": _num(a["p_av"][i], "available_power_w", warn),
+        "capacitor_setting_f": _num(a["c_need"][i], "capacitor_setting_f", warn),
+        "tunable": tunable,
+        "tank_voltage_v": _num(v_top[i], "tank_voltage_v", warn),
+        "detector_power_w": _num(a["p_det"][i], "detector_power_w", warn),
+        "detector_input_resistance_ohm": _num(det.input_resistance[i], "detector_input_resistance_ohm", warn),
+        "detected_voltage_v": _num(det.detected_voltage[i], "detected_voltage_v", warn),
+        "audio_voltage_v": _num(audio.audio_voltage[i], "audio_voltage_v", warn),
+        "audio_power_w": _num(pa, "audio_power_w", warn),
+        "loaded_q": _num(ql[i], "loaded_q", warn),
+        "bandwidth_hz": _num(a["bw"][i], "bandwidth_hz", warn),
+        "noise_field_v_per_m": _num(a["en"][i], "noise_field_v_per_m", warn),
+        "signal_to_noise_db": _num(a["snr"][i], "signal_to_noise_db", warn),
+        "verdict": verdict,
+        "reason": reason,
+        "audible_width_hz": _num(width, "audible_width_hz", warn),
+        "heard_behind": [],
+        "spills_over": [],
+        "warnings": warn,
+    }
+
+
+def _spill_over(results, stations, a):
+    """Station j heard while tuned to station i: every pair at once, as an n × n array."""
+    fs, v_top, ql = a["fs"], a["v_top"], a["ql"]
+    h = tank_mod.single_tuned_response(fs[np.newaxis, :], fs[:, np.newaxis], ql[:, np.newaxis])
+    v_spill = v_top[np.newaxis, :] * h
+    heard = v_spill >= a["threshold"]
+    np.fill_diagonal(heard, False)
+    heard &= np.array([r["tunable"] for r in results])[:, np.newaxis]
+    for i, j in zip(*np.nonzero(heard)):
+        rel = float(noise_mod.db_from_voltage_ratio(v_spill[i, j] / v_top[i]))
+        results[i]["heard_behind"].append({"name": stations[j].name, "level_relative_db": _num(rel, "level", [])})
+        results[j]["spills_over"].append(stations[i].name)

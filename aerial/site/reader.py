@@ -43,6 +43,11 @@ MAX_WIRE_PIECES = 100
 #: Largest coordinate, height or length inside a site (a lot, its supports and its wires). [m]
 MAX_SITE_LENGTH_M = 10_000.0
 
+#: Most stations a site may list: every 9 kHz broadcast channel of the LF (15) and MF (120) bands
+#: fits. Each station's verdict weighs every other listed station (interference), so the work grows
+#: with the square of the count; at this limit the worst legal file takes a few seconds.
+MAX_STATIONS = 150
+
 #: Largest distance to a station (half the Earth's circumference). [m]
 MAX_STATION_DISTANCE_M = 20_000e3
 
@@ -1066,7 +1071,11 @@ def _refuse_gas_anywhere(r: TableReader, t, key):
 
 def _stations(r: TableReader, raw, soil: SoilSpec, site_position=None) -> list:
     out = []
-    for i, t in enumerate(r.array_of_tables(raw, "", "stations")):
+    tables = r.array_of_tables(raw, "", "stations")
+    if len(tables) > MAX_STATIONS:
+        r.fail(f"stations[{MAX_STATIONS}]", tables[MAX_STATIONS].get("name", ""),
+               f"too many stations: a site lists at most {MAX_STATIONS} (every LF and MF broadcast channel fits)")
+    for i, t in enumerate(tables):
         key = f"stations[{i}]"
         r.check_keys(t, key, {"name", "frequency", "power", "distance", "soil", "notes", "latitude", "longitude",
                               "bearing"})
