@@ -119,8 +119,6 @@ def test_the_checker_catches_an_upward_import(tmp_path):
 LONG_FUNCTIONS_BEING_SPLIT = {
     "aerial/models/fullwave.py:solve_full_wave",
     "aerial/models/fullwave_geometry.py:build_topology",
-    "aerial/models/shapes.py:classify",
-    "aerial/models/closed_form.py:closed_form_response",
     "aerial/planner/search.py:plan_layouts",
 }
 #: Longest function body allowed, in lines of code (docstring, comments and blank lines not counted).

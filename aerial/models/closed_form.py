@@ -202,14 +202,7 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
     >>> [round(x * 1e12) for x in r["capacitance_f"]]
     [187, 206]
     """
-    if z0_form not in sa.Z0_FORMS:
-        raise ModelInputError(
-            f"{z0_form!r} is not a valid z0_form, must be one of " + ", ".join(repr(c) for c in sa.Z0_FORMS)
-        )
-    f = np.atleast_1d(np.asarray(frequency, dtype=float))
-    if f.ndim != 1 or f.size == 0 or np.any(~np.isfinite(f) | (f <= 0)):
-        raise ModelInputError(f"frequency must be a non-empty list of positive frequencies in Hz; got {frequency!r}")
-
+    f = _checked_frequencies(frequency, z0_form)
     shape = classify(segments)
     es = electrostatic_solution(segments)
     c_s = es.capacitance_f
@@ -226,14 +219,7 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
     kind = shape.kind
     total = shape.total_length_m
     model = _LineModel(kind, shape, z0_form, total)
-    f_ref = np.array([STATIC_ELECTRICAL_LENGTH * SPEED_OF_LIGHT / (2 * np.pi * total)])
-    ref = model.evaluate(f_ref, c_s)
-    c0 = float(-1.0 / (2 * np.pi * f_ref[0] * ref.reactance_ohm[0]))
-    h0 = float(ref.effective_height_m[0])
-    res = model.evaluate(f, c_s)
-    x = np.asarray(res.reactance_ohm, float) * (c0 / c_s)
-    he = np.asarray(res.effective_height_m, float) * (he_s / h0 if h0 != 0 else 0.0)
-    he = np.abs(he)
+    res, x, he = _normalised_line(model, f, c_s, he_s, total)
     rr = sa.radiation_resistance(he, f)
 
     omega = 2 * np.pi * f
@@ -242,39 +228,103 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
     too_long = np.asarray(res.too_long, bool)
     past = np.asarray(res.past_resonance, bool) | ~negative
 
-    # conductor loss
+    loss = _aerial_loss(segments, shape, model, f, res)
+    loss = loss + _earth_lead_loss(segments, shape, f, warnings)
+    warnings.extend(_validity_warnings(shape, f, too_long, past))
+    n = f.size
+    return {
+        "frequency_hz": f,
+        "capacitance_f": np.asarray(cap, float),
+        "static_capacitance_f": np.full(n, c_s),
+        "effective_height_m": he,
+        "static_effective_height_m": np.full(n, he_s),
+        "radiation_resistance_ohm": np.asarray(rr, float),
+        "reactance_ohm": x,
+        "conductor_loss_ohm": np.asarray(loss, float),
+        "reliable": ~(too_long | past),
+        "model": f"closed form: {kind}, {_METHOD_OF_KIND[kind]} normalised to electrostatic moment solution",
+        "shape": shape.as_dict(),
+        "warnings": warnings,
+    }
+
+
+#: How each shape's frequency dependence is modelled (named in the result's ``model``).
+_METHOD_OF_KIND = {
+    "vertical": "open-line (sinusoidal current)",
+    "sloping wire": "open-line along the slope",
+    "inverted-L": "top-loading angle",
+    "T": "top-loading angle",
+    "irregular": "uniform-line equivalent",
+}
+
+
+def _checked_frequencies(frequency, z0_form):
+    """The frequencies as a 1-D float array [Hz]; raises on a bad list or Z0 form."""
+    if z0_form not in sa.Z0_FORMS:
+        raise ModelInputError(
+            f"{z0_form!r} is not a valid z0_form, must be one of " + ", ".join(repr(c) for c in sa.Z0_FORMS)
+        )
+    f = np.atleast_1d(np.asarray(frequency, dtype=float))
+    if f.ndim != 1 or f.size == 0 or np.any(~np.isfinite(f) | (f <= 0)):
+        raise ModelInputError(f"frequency must be a non-empty list of positive frequencies in Hz; got {frequency!r}")
+    return f
+
+
+def _normalised_line(model, f, c_s, he_s, total):
+    """The line model scaled to the electrostatic limit: (line result, reactance [ohm], |h_e| [m])."""
+    f_ref = np.array([STATIC_ELECTRICAL_LENGTH * SPEED_OF_LIGHT / (2 * np.pi * total)])
+    ref = model.evaluate(f_ref, c_s)
+    c0 = float(-1.0 / (2 * np.pi * f_ref[0] * ref.reactance_ohm[0]))
+    h0 = float(ref.effective_height_m[0])
+    res = model.evaluate(f, c_s)
+    x = np.asarray(res.reactance_ohm, float) * (c0 / c_s)
+    he = np.asarray(res.effective_height_m, float) * (he_s / h0 if h0 != 0 else 0.0)
+    return res, x, np.abs(he)
+
+
+def _aerial_loss(segments, shape, model, f, res):
+    """Skin-effect loss of the aerial wires referred to the feed current, per frequency. [ohm]"""
     sections = np.asarray(shape.segment_section)
     weights = model.loss_weights(f, res)
     loss = np.zeros_like(f)
-    if kind == "irregular":
+    if shape.kind == "irregular":
         r_aer = _section_r_per_m(segments, f, segments.aerial)
-        loss = loss + r_aer * weights[SECTION_DOWN_LEAD]
-    else:
-        for sec, w in weights.items():
-            loss = loss + _section_r_per_m(segments, f, sections == sec) * np.asarray(w, float)
-    earth = sections == SECTION_EARTH_LEAD
-    if np.any(earth):
-        low = np.minimum(segments.start[earth, 2], segments.end[earth, 2])
-        ends = np.concatenate([segments.start[earth], segments.end[earth]])
-        at_feed = int(np.sum(np.linalg.norm(ends - segments.feed, axis=1) < 1e-3))
-        r_earth = _section_r_per_m(segments, f, earth)
-        if not np.any(low <= 1e-3):
-            # a counterpoise: the feed current divides between its arms and falls to zero at their
-            # free ends (triangular), so each of n arms dissipates R' L_i (1/n)^2 / 3
-            n_arms = max(at_feed, 1)
-            loss = loss + r_earth * float(np.sum(segments.length[earth])) / (3.0 * n_arms**2)
-            warnings.append(
-                "the earth side does not reach the ground: treated as a counterpoise insulated above the ground "
-                "(floating in the electrostatic solution); the soil's loss under it is estimated roughly"
-            )
-        else:
-            loss = loss + r_earth * float(np.sum(segments.length[earth]))
-            if at_feed > 1:
-                warnings.append(
-                    "the earth-lead wires branch: their conductor loss assumes the full feed current along every "
-                    "one of them, which overstates it"
-                )
+        return loss + r_aer * weights[SECTION_DOWN_LEAD]
+    for sec, w in weights.items():
+        loss = loss + _section_r_per_m(segments, f, sections == sec) * np.asarray(w, float)
+    return loss
 
+
+def _earth_lead_loss(segments, shape, f, warnings):
+    """Skin-effect loss of the earth-lead wires, per frequency [ohm]; appends its caveats to ``warnings``."""
+    earth = np.asarray(shape.segment_section) == SECTION_EARTH_LEAD
+    if not np.any(earth):
+        return np.zeros_like(f)
+    low = np.minimum(segments.start[earth, 2], segments.end[earth, 2])
+    ends = np.concatenate([segments.start[earth], segments.end[earth]])
+    at_feed = int(np.sum(np.linalg.norm(ends - segments.feed, axis=1) < 1e-3))
+    r_earth = _section_r_per_m(segments, f, earth)
+    if not np.any(low <= 1e-3):
+        # a counterpoise: the feed current divides between its arms and falls to zero at their
+        # free ends (triangular), so each of n arms dissipates R' L_i (1/n)^2 / 3
+        n_arms = max(at_feed, 1)
+        warnings.append(
+            "the earth side does not reach the ground: treated as a counterpoise insulated above the ground "
+            "(floating in the electrostatic solution); the soil's loss under it is estimated roughly"
+        )
+        return r_earth * float(np.sum(segments.length[earth])) / (3.0 * n_arms**2)
+    if at_feed > 1:
+        warnings.append(
+            "the earth-lead wires branch: their conductor loss assumes the full feed current along every "
+            "one of them, which overstates it"
+        )
+    return r_earth * float(np.sum(segments.length[earth]))
+
+
+def _validity_warnings(shape, f, too_long, past) -> list:
+    """Plain-English warnings on where the closed form leaves its validity range."""
+    kind, total = shape.kind, shape.total_length_m
+    warnings = []
     if np.any(too_long):
         f_limit = sa.MAX_RELIABLE_LENGTH_WAVELENGTHS * SPEED_OF_LIGHT / total
         warnings.append(
@@ -297,25 +347,4 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
         warnings.append(
             "sloping wire: the horizontal part of its current is taken not to radiate (true close to a good ground)"
         )
-    method = {
-        "vertical": "open-line (sinusoidal current)",
-        "sloping wire": "open-line along the slope",
-        "inverted-L": "top-loading angle",
-        "T": "top-loading angle",
-        "irregular": "uniform-line equivalent",
-    }[kind]
-    n = f.size
-    return {
-        "frequency_hz": f,
-        "capacitance_f": np.asarray(cap, float),
-        "static_capacitance_f": np.full(n, c_s),
-        "effective_height_m": he,
-        "static_effective_height_m": np.full(n, he_s),
-        "radiation_resistance_ohm": np.asarray(rr, float),
-        "reactance_ohm": x,
-        "conductor_loss_ohm": np.asarray(loss, float),
-        "reliable": ~(too_long | past),
-        "model": f"closed form: {kind}, {method} normalised to electrostatic moment solution",
-        "shape": shape.as_dict(),
-        "warnings": warnings,
-    }
+    return warnings

@@ -118,6 +118,187 @@ def _cluster(points, tol):
     return labels
 
 
+class _WireGraph:
+    """The aerial segments as a graph: end points within ``JOIN_TOLERANCE_M`` are one node."""
+
+    def __init__(self, segments: Segments, aer):
+        self.segments = segments
+        self.aer = aer
+        pts = np.concatenate([segments.start[aer], segments.end[aer]])
+        labels = _cluster(pts, JOIN_TOLERANCE_M)
+        m = aer.size
+        self.m = m
+        self.node_a, self.node_b = labels[:m], labels[m:]
+        n_nodes = int(labels.max()) + 1
+        self.node_xyz = np.zeros((n_nodes, 3))
+        self.node_xyz[labels] = pts
+        self.adj: list[list[tuple[int, int]]] = [[] for _ in range(n_nodes)]
+        for k in range(m):
+            self.adj[self.node_a[k]].append((k, self.node_b[k]))
+            self.adj[self.node_b[k]].append((k, self.node_a[k]))
+
+    def feed_node(self) -> int:
+        """The node at the feed; raises when the feed is not at the end of an aerial segment."""
+        dist = np.linalg.norm(self.node_xyz - self.segments.feed, axis=1)
+        feed_node = int(np.argmin(dist))
+        if dist[feed_node] > 10 * JOIN_TOLERANCE_M:
+            raise ModelInputError(
+                f"the feed point is {dist[feed_node]:.3f} m from the nearest aerial wire end; "
+                "it must sit at the end of an aerial segment"
+            )
+        return feed_node
+
+    def topology_reasons(self, feed_node) -> list:
+        """Reasons for "irregular" found by a walk from the feed: unconnected parts, closed loops."""
+        seen = {feed_node}
+        stack = [feed_node]
+        while stack:
+            u = stack.pop()
+            for _, v in self.adj[u]:
+                if v not in seen:
+                    seen.add(v)
+                    stack.append(v)
+        reach_edges = sum(1 for k in range(self.m) if self.node_a[k] in seen)
+        reasons = []
+        if reach_edges < self.m:
+            reasons.append(f"{self.m - reach_edges} aerial segment(s) not connected to the feed")
+        if reach_edges >= len(seen):
+            reasons.append("the wires form a closed loop")
+        return reasons
+
+    def other_end(self, k, frm):
+        """The node at the far end of aerial segment k entered from node ``frm``."""
+        return self.node_b[k] if self.node_a[k] == frm else self.node_a[k]
+
+    def seg_dz(self, k, frm):
+        """Height gained along aerial segment k when entered from node ``frm``."""
+        return self.node_xyz[self.other_end(k, frm), 2] - self.node_xyz[frm, 2]
+
+    def steep(self, k):
+        """True when aerial segment k is steep enough to belong to a down-lead."""
+        s, i = self.segments, self.aer[k]
+        return abs(s.end[i, 2] - s.start[i, 2]) >= STEEP_FRACTION * s.length[i]
+
+    def straight(self, ks):
+        """True when the aerial segments ``ks`` run in one direction."""
+        s = self.segments
+        d = [(s.end[self.aer[k]] - s.start[self.aer[k]]) / s.length[self.aer[k]] for k in ks]
+        return all(abs(float(np.dot(d[0], x))) >= STRAIGHT_COSINE for x in d[1:])
+
+    def walk_down_lead(self, feed_node):
+        """The unbranched chain of steep segments from the feed: (segments, top node, rise [m])."""
+        down = []
+        node, prev = feed_node, None
+        rise = 0.0
+        while True:
+            nxt = [(k, v) for k, v in self.adj[node] if k != prev]
+            if len(nxt) != 1 or not self.steep(nxt[0][0]):
+                break
+            k, v = nxt[0]
+            rise += self.seg_dz(k, node)
+            down.append(k)
+            node, prev = v, k
+        return down, node, rise
+
+    def chain_from(self, start_node, first_seg):
+        """The unbranched chain that leaves ``start_node`` by ``first_seg``: (segments, forked)."""
+        ks, prev_ = [first_seg], first_seg
+        node_ = self.other_end(first_seg, start_node)
+        forked = False
+        while True:
+            nxt = [(k, v) for k, v in self.adj[node_] if k != prev_]
+            if not nxt:
+                break
+            if len(nxt) > 1:
+                forked = True
+                break
+            k, v = nxt[0]
+            ks.append(k)
+            node_, prev_ = v, k
+        return ks, forked
+
+
+def _shape(kind, graph, section, notes, vertical_height, feed_z, d_len, rise, d_rad, tops=((), (), ())):
+    """An AerialShape with the totals measured from the graph's segments."""
+    s, aer = graph.segments, graph.aer
+    return AerialShape(
+        kind, float(vertical_height), float(feed_z), float(d_len), float(rise), float(d_rad),
+        tuple(tops[0]), tuple(tops[1]), tuple(tops[2]),
+        float(np.sum(s.length[aer])), float(np.sum(s.length[s.grounded])),
+        tuple(int(x) for x in section), tuple(notes),
+    )
+
+
+def _irregular(graph, section, notes, reasons, feed_z) -> AerialShape:
+    s, aer = graph.segments, graph.aer
+    notes.extend(reasons)
+    top = np.max(np.maximum(s.start[aer, 2], s.end[aer, 2]))
+    return _shape("irregular", graph, section, notes, top, feed_z, 0.0, 0.0,
+                  np.average(s.radius[aer], weights=s.length[aer]))
+
+
+def _sloper_or_reason(graph, feed_node, section, notes, reasons, feed_z):
+    """With no steep start: the one straight sloping wire, or None with the reason appended."""
+    s, aer = graph.segments, graph.aer
+    adj = graph.adj[feed_node]
+    ks, forked = graph.chain_from(feed_node, adj[0][0]) if len(adj) == 1 else ([], True)
+    if not forked and len(ks) == graph.m and graph.straight(ks) and not reasons:
+        rise_s = float(sum(graph.seg_dz(k, n) for k, n in _walk_nodes(ks, feed_node, graph.node_a, graph.node_b)))
+        length_s = float(np.sum(s.length[aer[ks]]))
+        if rise_s >= MIN_SLOPE_FRACTION * length_s:
+            section[aer[ks]] = SECTION_DOWN_LEAD
+            radius = float(np.average(s.radius[aer[ks]], weights=s.length[aer[ks]]))
+            return _shape("sloping wire", graph, section, notes, feed_z + rise_s, feed_z, length_s, rise_s, radius)
+        reasons.append("a single straight wire that barely rises from the feed")
+    else:
+        reasons.append("no steep down-lead from the feed and not a single straight sloping wire")
+    return None
+
+
+def _top_arms(graph, junction, down, reasons):
+    """The chains leaving the top of the down-lead; a reason is appended when one is not a top arm."""
+    arms: list[list[int]] = []
+    for b in [k for k, _ in graph.adj[junction] if k != down[-1]]:
+        ks, forked = graph.chain_from(junction, b)
+        if forked:
+            reasons.append("a top arm divides again (branched top)")
+            break
+        if any(graph.steep(k) for k in ks):
+            reasons.append("a top arm has a steep run in it (zig-zag or second vertical)")
+            break
+        arms.append(ks)
+    return arms
+
+
+def _measure_arms(graph, arms, section, notes):
+    """Length, mean height and radius of each top arm; marks their sections."""
+    s, aer = graph.segments, graph.aer
+    top_l, top_h, top_r = [], [], []
+    for i, ks in enumerate(arms):
+        idx = aer[ks]
+        section[idx] = i + 1
+        w = s.length[idx]
+        top_l.append(float(np.sum(w)))
+        mid_z = 0.5 * (s.start[idx, 2] + s.end[idx, 2])
+        top_h.append(float(np.average(mid_z, weights=w)))
+        top_r.append(float(np.average(s.radius[idx], weights=w)))
+        span = float(np.max(mid_z) - np.min(mid_z))
+        if span > 0.25 * top_h[-1]:
+            notes.append(f"top arm {i + 1} changes height by {span:.1f} m; its mean height is used")
+    return top_l, top_h, top_r
+
+
+def _kind_of(graph, arms, down, rise, d_len, notes) -> str:
+    if not arms:
+        kind = "vertical" if rise >= VERTICAL_TILT_FRACTION * d_len else "sloping wire"
+        if kind == "vertical" and not graph.straight(down):
+            notes.append("the down-lead bends; treated as a vertical of its total length")
+        if kind == "sloping wire" and not graph.straight(down):
+            notes.append("the wire bends; treated as one sloping wire")
+        return kind
+    return "inverted-L" if len(arms) == 1 else "T"
+
+
 def classify(segments: Segments) -> AerialShape:
     """Classify a wire set as vertical, sloping wire, inverted-L, T or irregular.
 
@@ -163,157 +344,31 @@ def classify(segments: Segments) -> AerialShape:
     section = np.full(len(segments), SECTION_UNASSIGNED, dtype=int)
     section[segments.grounded] = SECTION_EARTH_LEAD
     earth_len = float(np.sum(lengths[segments.grounded]))
-    total_len = float(np.sum(lengths[aer]))
     notes = []
     if earth_len > 0:
         notes.append(f"earth lead of {earth_len:.1f} m is part of the electrostatic solution, not of the shape")
 
-    pts = np.concatenate([segments.start[aer], segments.end[aer]])
-    labels = _cluster(pts, JOIN_TOLERANCE_M)
-    m = aer.size
-    node_a, node_b = labels[:m], labels[m:]
-    n_nodes = int(labels.max()) + 1
-    node_xyz = np.zeros((n_nodes, 3))
-    node_xyz[labels] = pts
-    adj: list[list[tuple[int, int]]] = [[] for _ in range(n_nodes)]
-    for k in range(m):
-        adj[node_a[k]].append((k, node_b[k]))
-        adj[node_b[k]].append((k, node_a[k]))
-
-    dist = np.linalg.norm(node_xyz - segments.feed, axis=1)
-    feed_node = int(np.argmin(dist))
-    if dist[feed_node] > 10 * JOIN_TOLERANCE_M:
-        raise ModelInputError(
-            f"the feed point is {dist[feed_node]:.3f} m from the nearest aerial wire end; "
-            "it must sit at the end of an aerial segment"
-        )
+    graph = _WireGraph(segments, aer)
+    feed_node = graph.feed_node()
     feed_z = float(segments.feed[2])
-
-    # reachability and loops
-    seen = {feed_node}
-    stack = [feed_node]
-    while stack:
-        u = stack.pop()
-        for _, v in adj[u]:
-            if v not in seen:
-                seen.add(v)
-                stack.append(v)
-    reach_edges = sum(1 for k in range(m) if node_a[k] in seen)
-    irregular_reasons = []
-    if reach_edges < m:
-        irregular_reasons.append(f"{m - reach_edges} aerial segment(s) not connected to the feed")
-    if reach_edges >= len(seen):
-        irregular_reasons.append("the wires form a closed loop")
-
-    def seg_dz(k, frm):
-        """Height gained along aerial segment k when entered from node ``frm``."""
-        to = node_b[k] if node_a[k] == frm else node_a[k]
-        return node_xyz[to, 2] - node_xyz[frm, 2]
-
-    def steep(k):
-        return abs(segments.end[aer[k], 2] - segments.start[aer[k], 2]) >= STEEP_FRACTION * lengths[aer[k]]
-
-    # walk the down-lead
-    down = []
-    node, prev = feed_node, None
-    rise = 0.0
-    while True:
-        nxt = [(k, v) for k, v in adj[node] if k != prev]
-        if len(nxt) != 1 or not steep(nxt[0][0]):
-            break
-        k, v = nxt[0]
-        rise += seg_dz(k, node)
-        down.append(k)
-        node, prev = v, k
-    junction = node
-
-    def straight(ks):
-        d = [(segments.end[aer[k]] - segments.start[aer[k]]) / lengths[aer[k]] for k in ks]
-        return all(abs(float(np.dot(d[0], x))) >= STRAIGHT_COSINE for x in d[1:])
-
-    def chain_from(start_node, first_seg):
-        ks, node_, prev_ = [first_seg], None, first_seg
-        node_ = node_b[first_seg] if node_a[first_seg] == start_node else node_a[first_seg]
-        forked = False
-        while True:
-            nxt = [(k, v) for k, v in adj[node_] if k != prev_]
-            if not nxt:
-                break
-            if len(nxt) > 1:
-                forked = True
-                break
-            k, v = nxt[0]
-            ks.append(k)
-            node_, prev_ = v, k
-        return ks, forked
-
+    irregular_reasons = graph.topology_reasons(feed_node)
+    down, junction, rise = graph.walk_down_lead(feed_node)
     arms: list[list[int]] = []
     if not down:
-        # no steep start: one straight sloper, or irregular
-        ks, forked = chain_from(feed_node, adj[feed_node][0][0]) if len(adj[feed_node]) == 1 else ([], True)
-        if not forked and len(ks) == m and straight(ks) and not irregular_reasons:
-            rise_s = float(sum(seg_dz(k, n) for k, n in _walk_nodes(ks, feed_node, node_a, node_b)))
-            length_s = float(np.sum(lengths[aer[ks]]))
-            if rise_s >= MIN_SLOPE_FRACTION * length_s:
-                section[aer[ks]] = SECTION_DOWN_LEAD
-                radius = float(np.average(segments.radius[aer[ks]], weights=lengths[aer[ks]]))
-                return AerialShape(
-                    "sloping wire", feed_z + rise_s, feed_z, length_s, rise_s, radius, (), (), (),
-                    total_len, earth_len, tuple(int(x) for x in section), tuple(notes),
-                )
-            irregular_reasons.append("a single straight wire that barely rises from the feed")
-        else:
-            irregular_reasons.append("no steep down-lead from the feed and not a single straight sloping wire")
+        sloper = _sloper_or_reason(graph, feed_node, section, notes, irregular_reasons, feed_z)
+        if sloper is not None:
+            return sloper
     else:
-        branches = [k for k, _ in adj[junction] if k != down[-1]]
-        for b in branches:
-            ks, forked = chain_from(junction, b)
-            if forked:
-                irregular_reasons.append("a top arm divides again (branched top)")
-                break
-            if any(steep(k) for k in ks):
-                irregular_reasons.append("a top arm has a steep run in it (zig-zag or second vertical)")
-                break
-            arms.append(ks)
-
+        arms = _top_arms(graph, junction, down, irregular_reasons)
     if irregular_reasons:
-        notes.extend(irregular_reasons)
-        return AerialShape(
-            "irregular", float(np.max(np.maximum(segments.start[aer, 2], segments.end[aer, 2]))), feed_z,
-            0.0, 0.0, float(np.average(segments.radius[aer], weights=lengths[aer])), (), (), (),
-            total_len, earth_len, tuple(int(x) for x in section), tuple(notes),
-        )
+        return _irregular(graph, section, notes, irregular_reasons, feed_z)
 
     section[aer[down]] = SECTION_DOWN_LEAD
     d_len = float(np.sum(lengths[aer[down]]))
     d_rad = float(np.average(segments.radius[aer[down]], weights=lengths[aer[down]]))
-    top_l, top_h, top_r = [], [], []
-    for i, ks in enumerate(arms):
-        idx = aer[ks]
-        section[idx] = i + 1
-        w = lengths[idx]
-        top_l.append(float(np.sum(w)))
-        mid_z = 0.5 * (segments.start[idx, 2] + segments.end[idx, 2])
-        top_h.append(float(np.average(mid_z, weights=w)))
-        top_r.append(float(np.average(segments.radius[idx], weights=w)))
-        span = float(np.max(mid_z) - np.min(mid_z))
-        if span > 0.25 * top_h[-1]:
-            notes.append(f"top arm {i + 1} changes height by {span:.1f} m; its mean height is used")
-    if not arms:
-        kind = "vertical" if rise >= VERTICAL_TILT_FRACTION * d_len else "sloping wire"
-        if kind == "vertical" and not straight(down):
-            notes.append("the down-lead bends; treated as a vertical of its total length")
-        if kind == "sloping wire" and not straight(down):
-            notes.append("the wire bends; treated as one sloping wire")
-    elif len(arms) == 1:
-        kind = "inverted-L"
-    else:
-        kind = "T"
-    return AerialShape(
-        kind, float(node_xyz[junction, 2]), feed_z, d_len, float(rise), d_rad,
-        tuple(top_l), tuple(top_h), tuple(top_r), total_len, earth_len,
-        tuple(int(x) for x in section), tuple(notes),
-    )
+    tops = _measure_arms(graph, arms, section, notes)
+    kind = _kind_of(graph, arms, down, rise, d_len, notes)
+    return _shape(kind, graph, section, notes, graph.node_xyz[junction, 2], feed_z, d_len, rise, d_rad, tops)
 
 
 def _walk_nodes(ks, start, node_a, node_b):
