@@ -318,6 +318,40 @@ def solve_full_wave(
     ----------
     See the module docstring.
     """
+    f, eps_s, sig_s = _checked_arguments(
+        segments, frequency, ground, soil_permittivity, soil_conductivity, series_ohm, max_segment_wavelengths,
+        convergence_tolerance, expansion_tolerance, min_pieces_per_wire, gauss_points)
+    lam_min = C0 / f.max()
+    counts = piece_counts(segments, max_segment_wavelengths * lam_min, min_pieces_per_wire)
+    system = System(segments, counts, ground, eps_s, sig_s, gauss_points)
+    warnings = _setup_warnings(system, f, max_segment_wavelengths)
+    sweep = _Sweep(system, f, series_ohm, warnings)
+    sweep.run(band_expansion, expansion_tolerance, memory_limit, progress)
+    sweep.summarise()
+
+    # ---------- convergence: N against 2N at the highest frequency
+    conv = conv_r = 0.0
+    f_conv = 0.0
+    if convergence_check:
+        conv, conv_r, f_conv, note = _convergence(system, segments, counts, f, sweep.i_feed, sweep.z_in, series_ohm,
+                                                  sweep.v, gauss_points, memory_limit)
+        if note:
+            warnings.append(note)
+    converged = (not convergence_check) or conv <= convergence_tolerance
+    if convergence_check and not converged:
+        warnings.append(
+            f"not converged: the impedance changes by {conv:.3g} (relative) when every piece is halved "
+            f"at {f_conv:.6g} Hz (tolerance {convergence_tolerance:g})"
+        )
+    result = sweep.result(float(conv), float(conv_r), float(f_conv), bool(converged), float(convergence_tolerance))
+    _assert_finite(result)
+    return result
+
+
+def _checked_arguments(segments, frequency, ground, soil_permittivity, soil_conductivity, series_ohm,
+                       max_segment_wavelengths, convergence_tolerance, expansion_tolerance, min_pieces_per_wire,
+                       gauss_points):
+    """Frequencies [Hz] as a 1-D array and the soil's (eps_r, sigma) or (None, None); raise ModelInputError."""
     _check_option("ground", ground, GROUND_MODELS)
     f = np.atleast_1d(np.asarray(frequency, dtype=float))
     if f.ndim != 1 or f.size == 0 or not np.all(np.isfinite(f)) or np.any(f <= 0):
@@ -341,20 +375,20 @@ def solve_full_wave(
         if not (np.isfinite(eps_s) and eps_s >= 1.0) or not (np.isfinite(sig_s) and sig_s >= 0.0):
             raise ModelInputError("soil_permittivity must be >= 1 and soil_conductivity >= 0 and finite")
     check_segments(segments)
+    return f, eps_s, sig_s
 
-    warnings: list[str] = []
-    lam_min = C0 / f.max()
-    counts = piece_counts(segments, max_segment_wavelengths * lam_min, min_pieces_per_wire)
-    system = System(segments, counts, ground, eps_s, sig_s, gauss_points)
+
+def _setup_warnings(system, f, max_segment_wavelengths) -> list:
+    """Warnings that depend on the discretisation only (thin-wire limits, ground treatment)."""
     topo = system.topo
-    warnings.extend(topo.warnings)
-    N, P = topo.n_unknowns, topo.n_pieces
+    warnings = list(topo.warnings)
+    lam_min = C0 / f.max()
     if np.max(topo.length) > max_segment_wavelengths * lam_min * 1.0001:
         warnings.append("some pieces are longer than the requested fraction of a wavelength")
     ka = 2 * np.pi * f.max() / C0 * topo.radius.max()
     if ka > MAX_KA:
         warnings.append(f"wire radius is {ka:.3g}/k at the highest frequency: thin-wire approximation doubtful (ka > {MAX_KA:g})")
-    if ground == "lossy":
+    if system.ground == "lossy":
         hmax = max(topo.start[:, 2].max(), topo.end[:, 2].max())
         if hmax < RCA_MIN_HEIGHT_WAVELENGTHS * lam_min:
             warnings.append(
@@ -362,208 +396,210 @@ def solve_full_wave(
                 f"{RCA_MIN_HEIGHT_WAVELENGTHS:g} wavelength (highest point {hmax / lam_min:.3g} wavelength); "
                 "its resistance is an indication only"
             )
+    return warnings
 
-    # ---------- band plan
-    order = np.argsort(f)
-    k_all = 2 * np.pi * f / C0
-    plan = []
-    if band_expansion and ground == "perfect":
-        plan, notes = plan_band(system, k_all[order], expansion_tolerance, memory_limit)
-        warnings.extend(notes)
-    used_tables = []
-    table, table_band = None, None
-    far = FarField(topo.start, topo.end, topo.parent, k_all.max())
 
-    F = f.size
-    z_in = np.zeros(F, complex)
-    i_feed = np.zeros(F, complex)
-    cur_ends = np.zeros((F, P, 2), complex)
-    h_eff = np.zeros(F, complex)
-    r_rad = np.zeros(F)
-    r_cond = np.zeros(F)
-    r_elec = np.zeros(F)
-    r_gnd = np.zeros(F)
-    mismatch = np.zeros(F)
-    cond = np.zeros(F)
-    method = [""] * F
-    v = topo.feed_weight.astype(complex)
-    t0, t1 = topo.t_end
-    hand_pb, hand_qs, hand_lt, rca_unphysical = [], [], [], []
-    zi_all = system.piece_impedance(f)  # (P, F) wire impedance per metre
-    loss_all = system.loss_entries(zi_all)
+class _Sweep:
+    """The frequency loop of :func:`solve_full_wave`: per-frequency solves and the figures drawn from them."""
 
-    for done, i in enumerate(order, start=1):
-        fi, k = f[i], k_all[i]
-        zi = zi_all[:, i]
+    def __init__(self, system, f, series_ohm, warnings):
+        self.system, self.f, self.series_ohm, self.warnings = system, f, series_ohm, warnings
+        topo = system.topo
+        F, P = f.size, topo.n_pieces
+        self.k_all = 2 * np.pi * f / C0
+        self.z_in = np.zeros(F, complex)
+        self.i_feed = np.zeros(F, complex)
+        self.cur_ends = np.zeros((F, P, 2), complex)
+        self.h_eff = np.zeros(F, complex)
+        self.r_rad = np.zeros(F)
+        self.r_cond = np.zeros(F)
+        self.r_elec = np.zeros(F)
+        self.r_gnd = np.zeros(F)
+        self.mismatch = np.zeros(F)
+        self.cond = np.zeros(F)
+        self.method = [""] * F
+        self.v = topo.feed_weight.astype(complex)
+        self.hand_pb, self.hand_qs, self.hand_lt, self.rca_unphysical = [], [], [], []
+        self.used_tables = []
+        self.far = FarField(topo.start, topo.end, topo.parent, self.k_all.max())
+
+    def run(self, band_expansion, expansion_tolerance, memory_limit, progress):
+        """Solve at every frequency (in increasing order), building band tables as the sweep reaches them."""
+        system, f = self.system, self.f
+        order = np.argsort(f)
+        plan = []
+        if band_expansion and system.ground == "perfect":
+            plan, notes = plan_band(system, self.k_all[order], expansion_tolerance, memory_limit)
+            self.warnings.extend(notes)
+        self._table, self._table_band = None, None
+        zi_all = system.piece_impedance(f)  # (P, F) wire impedance per metre
+        loss_all = system.loss_entries(zi_all)
+        for done, i in enumerate(order, start=1):
+            cur = self._currents(i, plan, zi_all[:, i], loss_all[:, i])
+            self._figures(i, cur, zi_all[:, i])
+            if progress is not None:
+                progress(done, f.size)
+
+    def _matrix(self, k, plan, loss_entries):
+        """Impedance matrix with losses at k, from the band table where one covers k."""
+        system = self.system
+        band = next((p for p in plan if p[0] <= k <= p[1]), None)
+        if band is not None and band is not self._table_band:
+            self._table, self._table_band = None, band  # drop the previous table before building the next
+            self._table, note = build_table(system, *band)
+            if note:
+                self.warnings.append(note)
+            if self._table is not None:
+                self.used_tables.append((band[0], band[1], self._table.order))
+        z = self._table.matrix(k) if (band is not None and self._table is not None) else system.matrix_direct(k)
+        system.add_losses(z, entries=loss_entries)
+        return z
+
+    def _currents(self, i, plan, zi, loss_entries):
+        """Basis-function currents at frequency i for 1 V at the feed, with the low-frequency hand-offs."""
+        system, fi, k = self.system, self.f[i], self.k_all[i]
+        cur = None
         qs = k * system.size < QUASI_STATIC_KD
         if not qs:
-            band = next((p for p in plan if p[0] <= k <= p[1]), None)
-            if band is not None and band is not table_band:
-                table, table_band = None, band  # drop the previous table before building the next
-                table, note = build_table(system, *band)
-                if note:
-                    warnings.append(note)
-                if table is not None:
-                    used_tables.append((band[0], band[1], table.order))
-            z = table.matrix(k) if (band is not None and table is not None) else system.matrix_direct(k)
-            system.add_losses(z, entries=loss_all[:, i])
+            z = self._matrix(k, plan, loss_entries)
             if not np.all(np.isfinite(z)):
                 qs = True
-                warnings.append(f"non-finite matrix at {fi:.6g} Hz: quasi-static solution used")
+                self.warnings.append(f"non-finite matrix at {fi:.6g} Hz: quasi-static solution used")
             else:
-                cur, cnd = lu_solve(z, v)
-                cond[i] = cnd
+                cur, cnd = lu_solve(z, self.v)
+                self.cond[i] = cnd
                 delta = 10 * _EPS * cnd
                 if not np.all(np.isfinite(cur)) or delta > QUASI_STATIC_HANDOFF:
                     qs = True
         if qs and system.loop_tree()[1] > 0:
             # loops (possibly through the ground): the charge-only limit is wrong, use loop-tree
-            cur, cond[i] = loop_tree_currents(system, k, v, system.loss_matrix(zi))
-            qs = False
-            hand_lt.append(fi)
-            method[i] = "moment, loop-tree basis"
+            cur, self.cond[i] = loop_tree_currents(system, k, self.v, system.loss_matrix(zi))
+            self.hand_lt.append(fi)
+            self.method[i] = "moment, loop-tree basis"
         elif qs:
-            cur, cond[i] = quasi_static_currents(system, k, v)
-            method[i] = "quasi-static"
-            hand_qs.append(fi)
+            cur, self.cond[i] = quasi_static_currents(system, k, self.v)
+            self.method[i] = "quasi-static"
+            self.hand_qs.append(fi)
+        return cur
+
+    def _figures(self, i, cur, zi):
+        """Feed current, effective height, loss and radiation resistances and the input impedance at frequency i."""
+        system, fi, k = self.system, self.f[i], self.k_all[i]
+        topo = system.topo
+        ground, eps_s, sig_s = system.ground, system.eps_soil, system.sigma_soil
+        t0, t1 = topo.t_end
         ie = np.stack([t0 @ cur, t1 @ cur], axis=-1)
-        i0 = v @ cur
-        cur_ends[i] = ie
-        i_feed[i] = i0
+        i0 = self.v @ cur
+        self.cur_ends[i] = ie
+        self.i_feed[i] = i0
         zvi = 1.0 / i0
         # effective height: vertical current moment over the real wires
         mz = np.sum(topo.tangent[:, 2] * topo.length * 0.5 * (ie[:, 0] + ie[:, 1]))
-        h_eff[i] = mz / i0
+        self.h_eff[i] = mz / i0
         # losses
         pc = 0.5 * np.sum(zi.real * topo.length * (np.abs(ie[:, 0]) ** 2 + np.abs(ie[:, 1]) ** 2
                                                    + (ie[:, 0] * np.conj(ie[:, 1])).real) / 3.0)
         pe = 0.5 * np.sum(topo.electrode * np.abs(cur) ** 2)
         i0sq = abs(i0) ** 2
-        r_cond[i], r_elec[i] = 2 * pc / i0sq, 2 * pe / i0sq
+        self.r_cond[i], self.r_elec[i] = 2 * pc / i0sq, 2 * pe / i0sq
         lam = 2 * np.pi / k
-        if method[i] == "quasi-static":
-            r_rad[i] = 160 * np.pi**2 * abs(h_eff[i] / lam) ** 2
+        if self.method[i] == "quasi-static":
+            self.r_rad[i] = 160 * np.pi**2 * abs(self.h_eff[i] / lam) ** 2
         else:
             refl = complex_permittivity(fi, eps_s, sig_s) if ground == "lossy" else None
-            r_rad[i] = 2 * far.power(k, ie, refl) / i0sq
-        r_pb = r_rad[i] + r_cond[i] + r_elec[i]
-        if method[i] == "quasi-static":
+            self.r_rad[i] = 2 * self.far.power(k, ie, refl) / i0sq
+        r_pb = self.r_rad[i] + self.r_cond[i] + self.r_elec[i]
+        if self.method[i] == "quasi-static":
             zvi = complex(r_pb, zvi.imag)
         else:
-            res_err = 10 * _EPS * cond[i] * abs(zvi)
-            if ground == "perfect" and res_err > RESISTANCE_RESOLUTION_TOLERANCE * r_pb:
-                zvi = complex(r_pb, zvi.imag)
-                method[i] = (method[i] or "moment") + ", resistance from power balance"
-                hand_pb.append(fi)
-            else:
-                method[i] = method[i] or "moment"
-                if ground == "perfect":
-                    mismatch[i] = abs(zvi.real - r_pb) / max(abs(zvi.real), 1e-300)
-                elif res_err > RESISTANCE_RESOLUTION_TOLERANCE * max(zvi.real, 1e-300):
-                    warnings.append(
-                        f"lossy ground at {fi:.6g} Hz: the input resistance is not resolved by the solution "
-                        f"(estimated error {res_err:.3g} ohm)"
-                    )
-            if ground == "lossy":
-                r_gnd[i] = max(zvi.real - r_pb, 0.0)
-                if zvi.real < 0.99 * r_pb:
-                    rca_unphysical.append(fi)
-        z_in[i] = zvi + series_ohm
-        if progress is not None:
-            progress(done, F)
+            zvi = self._resolved_resistance(i, zvi, r_pb)
+        self.z_in[i] = zvi + self.series_ohm
 
-    if hand_pb:
-        warnings.append(
-            "low-frequency limit: at " + _freq_list(hand_pb) + " the input resistance is below what the matrix "
-            "solution resolves; it is taken from the power balance (far-field radiation plus wire and electrode losses)"
-        )
-    if hand_lt:
-        warnings.append(
-            "low-frequency breakdown: at " + _freq_list(hand_lt) + " the wires form a loop and the plain solution "
-            "is not resolved; solved in the loop-tree basis instead"
-        )
-    if hand_qs:
-        warnings.append(
-            "low-frequency breakdown: at " + _freq_list(hand_qs) + " the full-wave solution is not resolved; "
-            "the quasi-static solution (capacitance, effective height, 160 pi^2 (h_e/lambda)^2) is used"
-        )
-    if rca_unphysical:
-        warnings.append(
-            "lossy ground: at " + _freq_list(rca_unphysical) + " the reflection-coefficient approximation gives an "
-            "input resistance below the space-wave radiation plus wire losses (not physical at this height above "
-            "ground); use a perfect ground with series_ohm for the ground loss"
-        )
-    bad_pb = mismatch > POWER_BALANCE_WARNING
-    if np.any(bad_pb):
-        warnings.append(
-            f"power balance: far-field radiated power and V/I resistance differ by up to {mismatch.max():.3g} "
-            f"(at {_freq_list(f[bad_pb])})"
-        )
+    def _resolved_resistance(self, i, zvi, r_pb):
+        """V/I, or its resistance from the power balance where the solution does not resolve it."""
+        fi, ground = self.f[i], self.system.ground
+        res_err = 10 * _EPS * self.cond[i] * abs(zvi)
+        if ground == "perfect" and res_err > RESISTANCE_RESOLUTION_TOLERANCE * r_pb:
+            zvi = complex(r_pb, zvi.imag)
+            self.method[i] = (self.method[i] or "moment") + ", resistance from power balance"
+            self.hand_pb.append(fi)
+        else:
+            self.method[i] = self.method[i] or "moment"
+            if ground == "perfect":
+                self.mismatch[i] = abs(zvi.real - r_pb) / max(abs(zvi.real), 1e-300)
+            elif res_err > RESISTANCE_RESOLUTION_TOLERANCE * max(zvi.real, 1e-300):
+                self.warnings.append(
+                    f"lossy ground at {fi:.6g} Hz: the input resistance is not resolved by the solution "
+                    f"(estimated error {res_err:.3g} ohm)"
+                )
+        if ground == "lossy":
+            self.r_gnd[i] = max(zvi.real - r_pb, 0.0)
+            if zvi.real < 0.99 * r_pb:
+                self.rca_unphysical.append(fi)
+        return zvi
 
-    # ---------- convergence: N against 2N at the highest frequency
-    conv = conv_r = 0.0
-    f_conv = 0.0
-    if convergence_check:
-        conv, conv_r, f_conv, note = _convergence(system, segments, counts, f, i_feed, z_in, series_ohm, v,
-                                                  gauss_points, memory_limit)
-        if note:
-            warnings.append(note)
-    converged = (not convergence_check) or conv <= convergence_tolerance
-    if convergence_check and not converged:
-        warnings.append(
-            f"not converged: the impedance changes by {conv:.3g} (relative) when every piece is halved "
-            f"at {f_conv:.6g} Hz (tolerance {convergence_tolerance:g})"
+    def summarise(self):
+        """One warning per hand-off or doubtful condition, naming the frequencies where it holds."""
+        warnings = self.warnings
+        if self.hand_pb:
+            warnings.append(
+                "low-frequency limit: at " + _freq_list(self.hand_pb) + " the input resistance is below what the "
+                "matrix solution resolves; it is taken from the power balance (far-field radiation plus wire and "
+                "electrode losses)"
+            )
+        if self.hand_lt:
+            warnings.append(
+                "low-frequency breakdown: at " + _freq_list(self.hand_lt) + " the wires form a loop and the plain "
+                "solution is not resolved; solved in the loop-tree basis instead"
+            )
+        if self.hand_qs:
+            warnings.append(
+                "low-frequency breakdown: at " + _freq_list(self.hand_qs) + " the full-wave solution is not resolved; "
+                "the quasi-static solution (capacitance, effective height, 160 pi^2 (h_e/lambda)^2) is used"
+            )
+        if self.rca_unphysical:
+            warnings.append(
+                "lossy ground: at " + _freq_list(self.rca_unphysical) + " the reflection-coefficient approximation "
+                "gives an input resistance below the space-wave radiation plus wire losses (not physical at this "
+                "height above ground); use a perfect ground with series_ohm for the ground loss"
+            )
+        bad_pb = self.mismatch > POWER_BALANCE_WARNING
+        if np.any(bad_pb):
+            warnings.append(
+                f"power balance: far-field radiated power and V/I resistance differ by up to {self.mismatch.max():.3g} "
+                f"(at {_freq_list(self.f[bad_pb])})"
+            )
+
+    def result(self, conv, conv_r, f_conv, converged, tolerance) -> FullWaveResult:
+        """The sweep's figures as a :class:`FullWaveResult`."""
+        f, z_in, topo = self.f, self.z_in, self.system.topo
+        ground, eps_s, sig_s = self.system.ground, self.system.eps_soil, self.system.sigma_soil
+        x = z_in.imag
+        capacitive = x < 0
+        with np.errstate(divide="ignore"):
+            cap = np.where(capacitive, -1.0 / (2 * np.pi * f * np.where(capacitive, x, -1.0)), 0.0)
+        r_total = z_in.real
+        eff = np.where(r_total > 0, self.r_rad / np.where(r_total > 0, r_total, 1.0), 0.0)
+        cur_mid = 0.5 * (self.cur_ends[:, :, 0] + self.cur_ends[:, :, 1])
+        gname = "perfect ground (images)" if ground == "perfect" else (
+            f"lossy ground by the reflection-coefficient approximation (eps_r {eps_s:g}, sigma {sig_s:g} S/m)")
+        model = ("full wave: method of moments, mixed-potential EFIE with triangle basis and Galerkin testing, "
+                 f"thin-wire reduced kernel, {gname}")
+        band_method = "direct fill at every frequency" if not self.used_tables else "Taylor series in k: " + "; ".join(
+            f"{a * C0 / 2 / np.pi / 1e6:.6g}-{b * C0 / 2 / np.pi / 1e6:.6g} MHz order {o}"
+            for a, b, o in self.used_tables)
+        return FullWaveResult(
+            frequency=f, impedance=z_in, feed_current=self.i_feed, current_position=topo.midpoint,
+            current_direction=topo.tangent, current=cur_mid, current_ends=self.cur_ends,
+            effective_height=self.h_eff, open_circuit_voltage_per_field=self.h_eff.copy(),
+            radiation_resistance=self.r_rad, conductor_loss_resistance=self.r_cond,
+            electrode_loss_resistance=self.r_elec, series_resistance=float(self.series_ohm),
+            ground_loss_resistance=self.r_gnd, efficiency=eff, capacitance=cap, capacitive=capacitive,
+            power_balance_mismatch=self.mismatch, condition_number=self.cond, method=tuple(self.method),
+            convergence=conv, convergence_resistance=conv_r, convergence_frequency=f_conv, converged=converged,
+            convergence_tolerance=tolerance, n_unknowns=topo.n_unknowns, n_pieces=topo.n_pieces,
+            band_method=band_method, ground=ground, model=model, warnings=tuple(dict.fromkeys(self.warnings)),
         )
-
-    x = z_in.imag
-    capacitive = x < 0
-    with np.errstate(divide="ignore"):
-        cap = np.where(capacitive, -1.0 / (2 * np.pi * f * np.where(capacitive, x, -1.0)), 0.0)
-    r_total = z_in.real
-    eff = np.where(r_total > 0, r_rad / np.where(r_total > 0, r_total, 1.0), 0.0)
-    cur_mid = 0.5 * (cur_ends[:, :, 0] + cur_ends[:, :, 1])
-
-    gname = "perfect ground (images)" if ground == "perfect" else (
-        f"lossy ground by the reflection-coefficient approximation (eps_r {eps_s:g}, sigma {sig_s:g} S/m)")
-    model = ("full wave: method of moments, mixed-potential EFIE with triangle basis and Galerkin testing, "
-             f"thin-wire reduced kernel, {gname}")
-    result = FullWaveResult(
-        frequency=f,
-        impedance=z_in,
-        feed_current=i_feed,
-        current_position=topo.midpoint,
-        current_direction=topo.tangent,
-        current=cur_mid,
-        current_ends=cur_ends,
-        effective_height=h_eff,
-        open_circuit_voltage_per_field=h_eff.copy(),
-        radiation_resistance=r_rad,
-        conductor_loss_resistance=r_cond,
-        electrode_loss_resistance=r_elec,
-        series_resistance=float(series_ohm),
-        ground_loss_resistance=r_gnd,
-        efficiency=eff,
-        capacitance=cap,
-        capacitive=capacitive,
-        power_balance_mismatch=mismatch,
-        condition_number=cond,
-        method=tuple(method),
-        convergence=float(conv),
-        convergence_resistance=float(conv_r),
-        convergence_frequency=float(f_conv),
-        converged=bool(converged),
-        convergence_tolerance=float(convergence_tolerance),
-        n_unknowns=N,
-        n_pieces=P,
-        band_method="direct fill at every frequency" if not used_tables else "Taylor series in k: " + "; ".join(
-            f"{a * C0 / 2 / np.pi / 1e6:.6g}-{b * C0 / 2 / np.pi / 1e6:.6g} MHz order {o}" for a, b, o in used_tables
-        ),
-        ground=ground,
-        model=model,
-        warnings=tuple(dict.fromkeys(warnings)),
-    )
-    _assert_finite(result)
-    return result
 
 
 def _freq_list(fs):

@@ -219,9 +219,72 @@ def build_topology(segments: Segments, counts: np.ndarray) -> Topology:
     seg = segments
     extent = max(np.ptp(np.vstack([seg.start, seg.end]), axis=0).max(), seg.length.max())
     tol = max(_NODE_ATOL, _NODE_RTOL * extent)
-    feed = seg.feed.copy()
     has_lead = bool(np.any(seg.grounded))
+    wires, feed, n_connector = _wires_with_feed_connector(seg, counts, tol, has_lead, warnings)
+    pieces = _cut_into_pieces(wires)
+    length, p_rad = pieces["length"], pieces["radius"]
+    short = length < MIN_LENGTH_TO_RADIUS * p_rad
+    if np.any(short):
+        warnings.append(
+            f"{int(short.sum())} sub-segment(s) shorter than {MIN_LENGTH_TO_RADIUS:g} wire radii "
+            f"(shortest {float((length / p_rad).min()):.3g} radii): the reduced thin-wire kernel is approximate there"
+        )
+    node_of, node_pos = _merge_nodes(pieces["start"], pieces["end"], tol)
+    feed_node = int(node_of[np.argmin(np.linalg.norm(np.vstack([pieces["start"], pieces["end"]]) - feed, axis=1))])
+    basis = _BasisLayout(node_pos, pieces["grounded"], float(seg.electrode_ohm), has_lead, feed_node, warnings)
+    basis.lay(node_of, node_pos[:, 2] <= tol, len(length))
+    if has_lead and basis.ground_contacts == 0:
+        # an earth side that never touches the ground is a counterpoise: the feed is the gap between
+        # the aerial and the counterpoise, and nothing connects to the ground plane
+        warnings.append("the earth side does not reach the ground: modelled as a counterpoise insulated above "
+                        "the ground (no electrode resistance; the ground's own loss under it is not included)")
+    if basis.ground_contacts > 1:
+        warnings.append(
+            f"the earth lead meets the ground at {basis.ground_contacts} points; each is given the electrode resistance"
+        )
+    if basis.n_basis == 0 or not any(basis.feed_w):
+        raise ModelInputError("the wire set has no feed connection: check segments.feed")
+    P, n_basis = len(length), basis.n_basis
+    t_end = tuple(
+        sp.csr_matrix((basis.vals[e], (basis.rows[e], basis.cols[e])), shape=(P, n_basis)) for e in (0, 1)
+    )
+    # d/ds of sign * shape: shape_0 = 1 - s/L (slope -1/L), shape_1 = s/L (slope +1/L)
+    inv_len = sp.diags(1.0 / length)
+    charge = (inv_len @ (t_end[1] - t_end[0])).tocsr()
+    return Topology(
+        start=pieces["start"],
+        end=pieces["end"],
+        length=length,
+        tangent=pieces["tangent"],
+        radius=p_rad,
+        resistivity=pieces["resistivity"],
+        relative_permeability=pieces["relative_permeability"],
+        grounded=pieces["grounded"],
+        parent=pieces["parent"],
+        t_end=t_end,
+        charge=charge,
+        centre=np.array(basis.centre).reshape(-1, 3),
+        feed_weight=np.array(basis.feed_w),
+        electrode=np.array(basis.elec),
+        n_connector=n_connector,
+        warnings=tuple(dict.fromkeys(warnings)),
+    )
 
+
+def _wires_with_feed_connector(seg, counts, tol, has_lead, warnings):
+    """The segments' per-wire arrays, with the feed connector prepended when there is no earth lead.
+
+    Returns
+    -------
+    wires : dict of ndarray
+        ``start``, ``end`` [m], ``radius`` [m], ``resistivity`` [ohm m],
+        ``relative_permeability``, ``grounded``, ``parent``, ``counts``.
+    feed : ndarray, shape (3,)
+        The gap's position (on the ground plane when there is no earth lead). [m]
+    n_connector : int
+        Added connector pieces (0 or 1).
+    """
+    feed = seg.feed.copy()
     s0, s1 = seg.start.copy(), seg.end.copy()
     rad, rho, mur = seg.radius.copy(), seg.resistivity.copy(), seg.relative_permeability.copy()
     gnd = seg.grounded.copy()
@@ -267,8 +330,14 @@ def build_topology(segments: Segments, counts: np.ndarray) -> Topology:
                 "the feed must join the aerial (grounded = False) and the earth lead (grounded = True): "
                 "both must have a segment ending at segments.feed"
             )
+    wires = {"start": s0, "end": s1, "radius": rad, "resistivity": rho, "relative_permeability": mur,
+             "grounded": gnd, "parent": par, "counts": counts}
+    return wires, feed, n_connector
 
-    # --- cut into pieces ---
+
+def _cut_into_pieces(wires):
+    """Cut every wire into ``counts`` equal pieces; per-piece arrays (same keys, plus ``length``, ``tangent``)."""
+    s0, s1, counts = wires["start"], wires["end"], wires["counts"]
     idx = np.repeat(np.arange(len(s0)), counts)
     first = np.concatenate([[0], np.cumsum(counts)[:-1]])
     kk = np.arange(idx.size) - np.repeat(first, counts)
@@ -280,18 +349,13 @@ def build_topology(segments: Segments, counts: np.ndarray) -> Topology:
     last = kk == counts[idx] - 1
     p_end[last] = s1[idx[last]]
     length = np.linalg.norm(p_end - p_start, axis=1)
-    tangent = (p_end - p_start) / length[:, None]
-    P = len(length)
-    p_rad, p_rho, p_mur, p_gnd, p_par = rad[idx], rho[idx], mur[idx], gnd[idx], par[idx]
+    out = {key: wires[key][idx] for key in ("radius", "resistivity", "relative_permeability", "grounded", "parent")}
+    out.update(start=p_start, end=p_end, length=length, tangent=(p_end - p_start) / length[:, None])
+    return out
 
-    short = length < MIN_LENGTH_TO_RADIUS * p_rad
-    if np.any(short):
-        warnings.append(
-            f"{int(short.sum())} sub-segment(s) shorter than {MIN_LENGTH_TO_RADIUS:g} wire radii "
-            f"(shortest {float((length / p_rad).min()):.3g} radii): the reduced thin-wire kernel is approximate there"
-        )
 
-    # --- nodes: merge coincident piece ends ---
+def _merge_nodes(p_start, p_end, tol):
+    """Node index of every piece end (rows: starts then ends) and the node positions [m]."""
     ends = np.vstack([p_start, p_end])  # row i: piece i % P, end i // P
     key = np.round(ends / tol).astype(np.int64)
     _, node_of, = np.unique(key, axis=0, return_inverse=True)[:2]
@@ -308,109 +372,84 @@ def build_topology(segments: Segments, counts: np.ndarray) -> Topology:
     n_nodes = node_of.max() + 1
     node_pos = np.zeros((n_nodes, 3))
     node_pos[node_of] = ends
-    on_ground = node_pos[:, 2] <= tol
-    feed_node = int(node_of[np.argmin(np.linalg.norm(ends - feed, axis=1))])
+    return node_of, node_pos
 
-    # incidence lists: for each node, (piece, end)
-    order = np.argsort(node_of, kind="stable")
-    bounds = np.searchsorted(node_of[order], np.arange(n_nodes + 1))
 
-    rows_e: list[list[int]] = [[], []]
-    cols_e: list[list[int]] = [[], []]
-    vals_e: list[list[float]] = [[], []]
-    centre: list[np.ndarray] = []
-    feed_w: list[float] = []
-    elec: list[float] = []
-    n_basis = 0
+class _BasisLayout:
+    """Lays the triangle and half-triangle basis functions node by node (incidence triplets per piece end)."""
 
-    def add_half(n, piece, end, incoming):
-        # incoming: current flows toward the node along this piece
+    def __init__(self, node_pos, grounded, electrode_ohm, has_lead, feed_node, warnings):
+        self.node_pos, self.grounded, self.electrode_ohm = node_pos, grounded, electrode_ohm
+        self.has_lead, self.feed_node, self.warnings = has_lead, feed_node, warnings
+        self.rows: list[list[int]] = [[], []]
+        self.cols: list[list[int]] = [[], []]
+        self.vals: list[list[float]] = [[], []]
+        self.centre: list[np.ndarray] = []
+        self.feed_w: list[float] = []
+        self.elec: list[float] = []
+        self.n_basis = 0
+        self.ground_contacts = 0
+
+    def add_half(self, n, piece, end, incoming):
+        """Half of basis n on one piece end; ``incoming``: the current flows toward the node along it."""
         toward_plus = end == 1  # node at the piece's end point: toward node = +tangent
         sign = 1.0 if (toward_plus == incoming) else -1.0
-        rows_e[end].append(piece)
-        cols_e[end].append(n)
-        vals_e[end].append(sign)
+        self.rows[end].append(piece)
+        self.cols[end].append(n)
+        self.vals[end].append(sign)
 
-    def add_triangle(n, node, into, out_of, feed=False):
-        # one triangle basis across a node: current flows along ``into`` toward the node and on along ``out_of``
-        add_half(n, *into, incoming=True)
-        add_half(n, *out_of, incoming=False)
-        centre.append(node_pos[node])
-        feed_w.append(1.0 if feed else 0.0)
-        elec.append(0.0)
-        return n + 1
+    def add_triangle(self, node, into, out_of, feed=False):
+        """One triangle across a node: current along ``into`` toward the node and on along ``out_of``."""
+        n = self.n_basis
+        self.add_half(n, *into, incoming=True)
+        self.add_half(n, *out_of, incoming=False)
+        self.centre.append(self.node_pos[node])
+        self.feed_w.append(1.0 if feed else 0.0)
+        self.elec.append(0.0)
+        self.n_basis = n + 1
 
-    ground_contacts = 0
-    for node in range(n_nodes):
-        members = order[bounds[node] : bounds[node + 1]]
-        pieces = members % P
-        pend = members // P
-        if on_ground[node]:
-            for piece, end in zip(pieces, pend):
-                # half-triangle from the ground into the wire; the image supplies the other half
-                add_half(n_basis, piece, end, incoming=False)
-                centre.append(node_pos[node])
-                is_feed = (not has_lead) and node == feed_node
-                feed_w.append(1.0 if is_feed else 0.0)
-                if p_gnd[piece]:
-                    elec.append(float(seg.electrode_ohm))
-                    ground_contacts += 1
-                else:
-                    elec.append(0.0)
-                    if not is_feed:
-                        warnings.append(
-                            "an aerial wire touches the ground at "
-                            f"({node_pos[node][0]:.3g}, {node_pos[node][1]:.3g}) m: modelled as a direct connection"
-                        )
-                n_basis += 1
-            continue
-        if len(pieces) < 2:
-            continue  # free end
-        if has_lead and node == feed_node:
-            lead = [(p, e) for p, e in zip(pieces, pend) if p_gnd[p]]
-            aer = [(p, e) for p, e in zip(pieces, pend) if not p_gnd[p]]
-            # the gap: current from the earth side into the aerial
-            n_basis = add_triangle(n_basis, node, lead[0], aer[0], feed=True)
-            for ref, others in ((lead[0], lead[1:]), (aer[0], aer[1:])):
-                for other in others:
-                    n_basis = add_triangle(n_basis, node, ref, other)
-            continue
-        for other in zip(pieces[1:], pend[1:]):
-            n_basis = add_triangle(n_basis, node, (pieces[0], pend[0]), other)
+    def lay(self, node_of, on_ground, P):
+        """Basis functions at every node (``node_of`` as from :func:`_merge_nodes`)."""
+        order = np.argsort(node_of, kind="stable")
+        n_nodes = len(self.node_pos)
+        bounds = np.searchsorted(node_of[order], np.arange(n_nodes + 1))
+        for node in range(n_nodes):
+            members = order[bounds[node] : bounds[node + 1]]
+            pieces = members % P
+            pend = members // P
+            if on_ground[node]:
+                self._ground_node(node, pieces, pend)
+                continue
+            if len(pieces) < 2:
+                continue  # free end
+            if self.has_lead and node == self.feed_node:
+                lead = [(p, e) for p, e in zip(pieces, pend) if self.grounded[p]]
+                aer = [(p, e) for p, e in zip(pieces, pend) if not self.grounded[p]]
+                # the gap: current from the earth side into the aerial
+                self.add_triangle(node, lead[0], aer[0], feed=True)
+                for ref, others in ((lead[0], lead[1:]), (aer[0], aer[1:])):
+                    for other in others:
+                        self.add_triangle(node, ref, other)
+                continue
+            for other in zip(pieces[1:], pend[1:]):
+                self.add_triangle(node, (pieces[0], pend[0]), other)
 
-    if has_lead and ground_contacts == 0:
-        # an earth side that never touches the ground is a counterpoise: the feed is the gap between
-        # the aerial and the counterpoise, and nothing connects to the ground plane
-        warnings.append("the earth side does not reach the ground: modelled as a counterpoise insulated above "
-                        "the ground (no electrode resistance; the ground's own loss under it is not included)")
-    if ground_contacts > 1:
-        warnings.append(
-            f"the earth lead meets the ground at {ground_contacts} points; each is given the electrode resistance"
-        )
-    if n_basis == 0 or not any(feed_w):
-        raise ModelInputError("the wire set has no feed connection: check segments.feed")
-
-    t_end = tuple(
-        sp.csr_matrix((vals_e[e], (rows_e[e], cols_e[e])), shape=(P, n_basis)) for e in (0, 1)
-    )
-    # d/ds of sign * shape: shape_0 = 1 - s/L (slope -1/L), shape_1 = s/L (slope +1/L)
-    inv_len = sp.diags(1.0 / length)
-    charge = (inv_len @ (t_end[1] - t_end[0])).tocsr()
-    return Topology(
-        start=p_start,
-        end=p_end,
-        length=length,
-        tangent=tangent,
-        radius=p_rad,
-        resistivity=p_rho,
-        relative_permeability=p_mur,
-        grounded=p_gnd,
-        parent=p_par,
-        t_end=t_end,
-        charge=charge,
-        centre=np.array(centre).reshape(-1, 3),
-        feed_weight=np.array(feed_w),
-        electrode=np.array(elec),
-        n_connector=n_connector,
-        warnings=tuple(dict.fromkeys(warnings)),
-    )
+    def _ground_node(self, node, pieces, pend):
+        """A node on the ground plane: one half-triangle per piece (the image supplies the other half)."""
+        pos = self.node_pos[node]
+        for piece, end in zip(pieces, pend):
+            self.add_half(self.n_basis, piece, end, incoming=False)
+            self.centre.append(pos)
+            is_feed = (not self.has_lead) and node == self.feed_node
+            self.feed_w.append(1.0 if is_feed else 0.0)
+            if self.grounded[piece]:
+                self.elec.append(self.electrode_ohm)
+                self.ground_contacts += 1
+            else:
+                self.elec.append(0.0)
+                if not is_feed:
+                    self.warnings.append(
+                        "an aerial wire touches the ground at "
+                        f"({pos[0]:.3g}, {pos[1]:.3g}) m: modelled as a direct connection"
+                    )
+            self.n_basis += 1
