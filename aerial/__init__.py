@@ -9,6 +9,10 @@ The public API a notebook user calls is the same one the command line uses::
 Frame: metres, x east, y north, z up; z = 0 is the ground surface.
 """
 
+from aerial.core import threads as _threads
+
+_threads.default_to_one_thread()  # before anything loads numpy; see aerial/core/threads.py
+
 from aerial.core.version import __version__  # noqa: E402
 
 from aerial.core.errors import AerialError, SiteError  # noqa: E402

@@ -34,6 +34,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.constants import epsilon_0
 
+from aerial.core.threads import blas_threads
 from aerial.core.errors import ModelInputError
 from aerial.models.segments import FEED_GAP_M, Segments
 from aerial.models.checks import positive as _check_positive
@@ -405,14 +406,16 @@ def _solve(start, end, radius, grounded, image, floating=False):
     # unknowns: line charge density lambda_j; potential = lambda_j * I_ij / (4 pi eps0)
     rhs = np.where(grounded, 0.0, 1.0)
     if not floating:
-        lam = np.linalg.solve(pot, rhs) * _FOUR_PI_EPS0
+        with blas_threads(len(rhs)):
+            lam = np.linalg.solve(pot, rhs) * _FOUR_PI_EPS0
         return lam * lengths, mid, 0.0
     n = len(rhs)
     system = np.zeros((n + 1, n + 1))
     system[:n, :n] = pot
     system[:n, n] = -grounded.astype(float)  # counterpoise rows: potential - V_c = 0
     system[n, :n] = lengths  # no net charge on aerial + counterpoise
-    sol = np.linalg.solve(system, np.append(rhs, 0.0))
+    with blas_threads(n + 1):
+        sol = np.linalg.solve(system, np.append(rhs, 0.0))
     return sol[:n] * _FOUR_PI_EPS0 * lengths, mid, float(sol[n])
 
 

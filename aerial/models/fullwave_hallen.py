@@ -21,6 +21,7 @@ import numpy as np
 from scipy.constants import c as C0
 from scipy.constants import mu_0
 
+from aerial.core.threads import blas_threads
 from aerial.core.errors import ModelInputError
 
 ETA0 = mu_0 * C0
@@ -95,7 +96,8 @@ def hallen_monopole_impedance(height, radius, frequency, n_pulses: int = DEFAULT
     a[:, n] = 1j / ETA0 * np.cos(k * zm)
     v_dipole = 1.0
     rhs = -1j / ETA0 * (v_dipole / 2) * np.sin(k * np.abs(zm))
-    sol = np.linalg.solve(a, rhs)
+    with blas_threads(n + 1):
+        sol = np.linalg.solve(a, rhs)
     i_gap = 1.5 * sol[0] - 0.5 * sol[1]
     return complex(0.5 * v_dipole / i_gap)
 

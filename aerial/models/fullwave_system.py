@@ -40,6 +40,7 @@ import scipy.sparse as sp
 from scipy.constants import c as C0
 from scipy.constants import mu_0
 
+from aerial.core.threads import blas_threads
 from aerial.models.fullwave_fields import ETA0, complex_permittivity, fresnel_reflection
 from aerial.models.fullwave_geometry import Topology, build_topology
 from aerial.models.fullwave_kernel import Filler
@@ -110,9 +111,10 @@ def lu_solve(z, rhs):
     step = max(1, 2**21 // max(n, 1))
     for r0 in range(0, n, step):
         anorm = max(anorm, float(np.abs(z[r0 : r0 + step]).sum(axis=1).max()))
-    lu, piv = sla.lu_factor(z.T, overwrite_a=True, check_finite=False)
-    x = sla.lu_solve((lu, piv), rhs, trans=1, check_finite=False)
-    rcond, _ = sla.lapack.zgecon(lu, anorm, norm="1")
+    with blas_threads(n, threaded=True):
+        lu, piv = sla.lu_factor(z.T, overwrite_a=True, check_finite=False)
+        x = sla.lu_solve((lu, piv), rhs, trans=1, check_finite=False)
+        rcond, _ = sla.lapack.zgecon(lu, anorm, norm="1")
     cond = 1.0 / rcond if rcond > 0 else np.inf
     return x, cond
 
@@ -257,7 +259,8 @@ class System:
         """
         if self._lt is None:
             d = self.topo.charge.toarray() * self.topo.length[:, None]
-            _, s, vt = np.linalg.svd(d, full_matrices=True)
+            with blas_threads(max(d.shape)):
+                _, s, vt = np.linalg.svd(d, full_matrices=True)
             rank = int(np.count_nonzero(s > s.max() * 1e-10)) if s.size else 0
             u = np.vstack([vt[rank:], vt[:rank]]).T  # loops first
             self._lt = (u, vt.shape[0] - rank)
@@ -381,8 +384,9 @@ def loop_tree_currents(system: System, k, v, zloss):
     """
     u, n_loop = system.loop_tree()
     a_part, phi_part = system.potential_parts(k)
-    zp = u.T @ ((1j * k * ETA0) * a_part + zloss) @ u
-    pp = u.T @ phi_part @ u
+    with blas_threads(len(u)):
+        zp = u.T @ ((1j * k * ETA0) * a_part + zloss) @ u
+        pp = u.T @ phi_part @ u
     pp[:n_loop, :] = 0.0
     pp[:, :n_loop] = 0.0
     zp += (ETA0 / (1j * k)) * pp
@@ -395,6 +399,7 @@ def loop_tree_currents(system: System, k, v, zloss):
 def quasi_static_currents(system: System, k, v):
     """Currents of the k -> 0 charge problem, Phi I = (j k / eta) V, for a wire set without loops."""
     phi = system.static_potential()
-    x = sla.solve(phi, v.real, assume_a="sym", check_finite=False)
-    cond = np.linalg.cond(phi, 1)
+    with blas_threads(len(phi)):
+        x = sla.solve(phi, v.real, assume_a="sym", check_finite=False)
+        cond = np.linalg.cond(phi, 1)
     return (1j * k / ETA0) * x, float(cond)
