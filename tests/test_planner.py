@@ -218,6 +218,10 @@ def test_code_table_minimum_sizes():
     assert minimum_awg(30.0, "copper")[0] == 14
     assert minimum_awg(50.0, "copper")[0] == 12
     assert [minimum_awg(s, "copper-clad steel")[0] for s in (9.0, 30.0, 50.0)] == [20, 17, 14]
+    # the table's boundaries are 35 ft and 150 ft (1 ft = 0.3048 m exactly, NIST SP 811): either side of each
+    ft = 0.3048
+    assert [minimum_awg(n * ft, "copper")[0] for n in (34, 36, 49, 149, 151)] == [19, 14, 14, 14, 12]
+    assert [minimum_awg(n * ft, "copper-clad steel")[0] for n in (34, 36, 149, 151)] == [20, 17, 17, 14]
     assert region_code("US") == "nfpa70" and region_code("DE") == "en60728" and region_code("Mars") is None
 
 
@@ -227,6 +231,8 @@ def test_checklist_flags_a_thin_wire_on_a_long_span():
     text = "\n".join(result["code_checklist"])
     assert "NFPA 70" in text and "not a compliance check" in text
     assert "ATTENTION: thinner than the table minimum" in text
+    # NFPA 70 810.18(A) (from memory): lead-in at least 600 mm from power circuits up to 250 V, 3 m above 250 V
+    assert "at least 600 mm from power circuits up to 250 V and 3 m above 250 V" in text
     assert "compliant" not in text.replace("not a compliance check", "")
 
 

@@ -13,9 +13,10 @@ from aerial.core.errors import ModelInputError
 from aerial.models import electrodes as el
 
 
-def test_dwight_rod_ieee_142_worked_value():
-    # IEEE Std 142 (Green Book) ch. 4 worked example (from memory): a 5/8 in x 8 ft rod
-    # (15.875 mm x 2.44 m) in 100 ohm m soil is about 39.9 ohm by Dwight's formula.
+def test_dwight_rod_formula_value():
+    # Dwight's formula R = ρ/(2πL)[ln(4L/a) − 1] (Dwight 1936; the form given in IEEE Std 142; from memory)
+    # evaluated for a 5/8 in x 8 ft rod (15.875 mm x 2.44 m) in 100 ohm m: 39.88 ohm. This is the formula's
+    # own output [num], not a worked example read from the standard.
     r = el.dwight_rod(2.44, 15.875e-3 / 2, 100.0)
     assert r.resistance_ohm == pytest.approx(39.88, abs=0.05)
     assert r.warnings == ()
@@ -65,9 +66,10 @@ def test_two_rods():
 
 
 def test_multiple_rod_factors():
-    # IEEE Std 142 multiple-rod table (from memory): F = 1.16, 1.29, 1.36, 1.68 for n = 2, 3, 4, 8.
+    # IEEE Std 142 multiple-rod table (from memory): F = 1.16, 1.29, 1.36, 1.68, 1.80, 1.92, 2.00, 2.16
+    # for n = 2, 3, 4, 8, 12, 16, 20, 24 (rods at one rod length; R_n = R_1 F / n). Every row is checked.
     one = float(el.dwight_rod(3.0, 8e-3, 100.0).resistance_ohm)
-    for n, f in [(2, 1.16), (3, 1.29), (4, 1.36), (8, 1.68), (24, 2.16)]:
+    for n, f in [(2, 1.16), (3, 1.29), (4, 1.36), (8, 1.68), (12, 1.80), (16, 1.92), (20, 2.00), (24, 2.16)]:
         r = el.multiple_rods(n, 3.0, 8e-3, 3.0, 100.0)
         assert float(r.resistance_ohm) == pytest.approx(one * f / n, rel=1e-12)
         assert r.warnings == ()
