@@ -114,3 +114,24 @@ def test_check_accepts_positions_in_the_users_words(write_site, capsys):
     p = write_site(BASE.format(site_extra='latitude = "51.5°"\nlongitude = "0.12 W"\nseason = "winter"',
                                station_extra='latitude = "48.9 N"\nlongitude = "2.3 E"'))
     assert main(["check", str(p)]) == 0
+
+
+def test_report_gives_each_station_a_day_and_a_night_verdict(write_site, capsys):
+    import json
+
+    p = write_site(BASE.format(site_extra='latitude = 52.0\nlongitude = -1.0\nseason = "winter"',
+                               station_extra='distance = "600 km"\nbearing = 135'))
+    assert main(["report", str(p), "--json"]) == 0
+    st = json.loads(capsys.readouterr().out)["stations"][0]
+    n = st["night"]
+    # by day the ground wave alone; by night the sky wave adds in power
+    assert st["sky_wave_field_v_per_m"] == 0.0
+    assert n["field_v_per_m"] == pytest.approx(math.hypot(n["ground_wave_field_v_per_m"], n["sky_wave_field_v_per_m"]))
+    assert n["sky_wave_field_range_v_per_m"][0] < n["sky_wave_field_v_per_m"] < n["sky_wave_field_range_v_per_m"][1]
+    assert n["verdict"] in ("clearly heard", "marginal", "not heard")
+    assert n["noise_dominant"] in ("man-made", "atmospheric")
+    # 600 km away a 100 kW station is far beyond its daytime ground wave but arrives by sky wave at night
+    assert n["field_v_per_m"] > 10 * st["field_v_per_m"]
+    assert main(["report", str(p)]) == 0
+    out = capsys.readouterr().out
+    assert "by night" in out and "by day" in out

@@ -89,15 +89,69 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     warnings += list(tuning.get("warnings", []))
     stations = []
     if site.stations:
-        st = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
-                                s.soil.conductivity_s_m) for s in site.stations]
-        stations = reception.assess_stations(f, r, x, rr, he, parts, st, noise_category=site.noise.replace("-", " "))
-        for s, src in zip(stations, site.stations):
-            s.setdefault("power_w", src.power_w)
-            s.setdefault("distance_m", src.distance_m)
-            s.setdefault("frequency_hz", src.frequency_hz)
-            s.setdefault("name", src.name)
+        stations, night_warnings = _stations_day_and_night(site, f, r, x, rr, he, parts)
+        warnings += night_warnings
     return tuning, stations, warnings
+
+
+def _stations_day_and_night(site, f, r, x, rr, he, parts) -> tuple[list, list]:
+    """Station verdicts by day (ground wave) and by night (ground plus sky wave), each against its noise floor."""
+    from aerial.estimate import night
+
+    freqs = [s.frequency_hz for s in site.stations]
+    floor = night.noise_floor(site, freqs)
+    skies = [night.sky_wave(site, s) for s in site.stations]
+    category = site.noise.replace("-", " ")
+
+    def assess(time_of_day):
+        st = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
+                                s.soil.conductivity_s_m,
+                                sky_wave_field_v_per_m=sky["field_v_per_m"] if time_of_day == "night" else 0.0,
+                                atmospheric_noise_db=float(floor[time_of_day]["atmospheric_db"][i]))
+              for i, (s, sky) in enumerate(zip(site.stations, skies))]
+        return reception.assess_stations(f, r, x, rr, he, parts, st, noise_category=category)
+
+    stations = assess("day")
+    by_night = assess("night")
+    for i, (s, n, sky, src) in enumerate(zip(stations, by_night, skies, site.stations)):
+        s.setdefault("power_w", src.power_w)
+        s.setdefault("distance_m", src.distance_m)
+        s.setdefault("frequency_hz", src.frequency_hz)
+        s.setdefault("name", src.name)
+        if src.bearing_deg is not None:
+            s["bearing_deg"] = src.bearing_deg
+        s["noise_dominant"] = floor["day"]["dominant"][i]
+        _, fading = night.combined_night_field(n["ground_wave_field_v_per_m"], sky["field_v_per_m"])
+        s["night"] = {
+            "verdict": n["verdict"],
+            "reason": n["reason"],
+            "field_v_per_m": n["field_v_per_m"],
+            "ground_wave_field_v_per_m": n["ground_wave_field_v_per_m"],
+            "sky_wave_field_v_per_m": sky["field_v_per_m"],
+            "sky_wave_field_range_v_per_m": sky["field_range_v_per_m"],
+            "fading": fading,
+            "detector_power_w": n["detector_power_w"],
+            "audio_power_w": n["audio_power_w"],
+            "signal_to_noise_db": n["signal_to_noise_db"],
+            "noise_figure_db": n["noise_figure_db"],
+            "noise_figure_range_db": [float(v[i]) for v in floor["night"]["noise_figure_range_db"]],
+            "noise_dominant": floor["night"]["dominant"][i],
+            "heard_behind": n.get("heard_behind", []),
+            "spills_over": n.get("spills_over", []),
+            "geomagnetic_latitude_deg": sky["geomagnetic_latitude_deg"],
+            "geomagnetic_latitude_from": sky["geomagnetic_latitude_from"],
+            "sky_wave_outside_method": sky["outside_method"],
+        }
+    warnings = list(floor["notes"])
+    outside = [s.name for s, sky in zip(site.stations, skies) if sky["outside_method"]]
+    if outside:
+        warnings.append("Sky wave: the ITU-R P.1147 method holds for 150–1700 kHz and paths of 50–12 000 km; "
+                        "extended for " + ", ".join(outside) + " — treat their night figures with care.")
+    atm_night = [st["name"] for st in stations if st["night"]["noise_dominant"] == "atmospheric"]
+    if atm_night:
+        warnings.append("By night atmospheric noise (distant lightning), not man-made noise, sets the noise floor "
+                        "for " + ", ".join(atm_night) + ".")
+    return stations, warnings
 
 
 def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, strands=1, frequency="1 MHz") -> dict:

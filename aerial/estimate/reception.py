@@ -165,6 +165,12 @@ class Station:
         Path ground permittivity. [1]
     soil_conductivity_s_per_m : float
         Path ground conductivity. [S/m]
+    sky_wave_field_v_per_m : float
+        Sky-wave field arriving as well as the ground wave (by night); the two
+        add in power. 0 by day. [V/m]
+    atmospheric_noise_db : float or None
+        Atmospheric noise figure Fam at the station's frequency, added in power
+        to the man-made noise; None leaves man-made noise alone. [dB]
     """
 
     name: str
@@ -173,6 +179,8 @@ class Station:
     distance_m: float
     soil_relative_permittivity: float
     soil_conductivity_s_per_m: float
+    sky_wave_field_v_per_m: float = 0.0
+    atmospheric_noise_db: float | None = None
 
 
 # ----------------------------------------------------------------------------------------- helpers
@@ -1010,7 +1018,9 @@ def _station_arrays(aerial, coil, parts, diode, stations, noise_category, modula
     he = aerial.effective_height(fs)
     r_a, _ = aerial.impedance(fs)
     rr = aerial.radiation_resistance(fs)
-    v_oc = gw.field * he
+    sky = np.array([float(s.sky_wave_field_v_per_m) for s in stations])
+    field = np.hypot(gw.field, sky)
+    v_oc = field * he
     t = _coupling(fs, aerial, coil.inductance, coil.q, _config(parts))
     c_need = tank_mod.capacitance_needed(fs, t.coil_admittance, t.aerial_admittance)
     b_coil = -np.imag(t.coil_admittance)
@@ -1024,12 +1034,14 @@ def _station_arrays(aerial, coil, parts, diode, stations, noise_category, modula
                            b_coil / g_det)
     bw = tank_mod.bandwidth(fs, ql)
     fam = noise_mod.man_made_noise_figure(fs, noise_category)
-    en = noise_mod.v_per_m_from_dbuv_per_m(noise_mod.noise_field_dbuv_per_m(fam.noise_figure_db, fs, bw))
+    atm = np.array([-np.inf if s.atmospheric_noise_db is None else float(s.atmospheric_noise_db) for s in stations])
+    fam_total = 10.0 * np.log10(10.0 ** (fam.noise_figure_db / 10.0) + 10.0 ** (atm / 10.0))
+    en = noise_mod.v_per_m_from_dbuv_per_m(noise_mod.noise_field_dbuv_per_m(fam_total, fs, bw))
     return {
         "fs": fs, "gw": gw, "he": he, "r_a": r_a, "rr": rr, "v_oc": v_oc, "c_need": c_need, "v_top": v_top,
         "converged": converged, "det": det, "audio": audio, "p_det": v_top**2 * g_det,
         "p_av": v_oc**2 / (4.0 * r_a), "ql": ql, "bw": bw, "fam": fam, "en": en,
-        "snr": noise_mod.db_from_voltage_ratio(gw.field / en), "threshold": _threshold_voltage(tap, diode, load),
+        "snr": noise_mod.db_from_voltage_ratio(field / en), "field": field, "sky": sky, "fam_total": fam_total, "threshold": _threshold_voltage(tap, diode, load),
     }
 
 
@@ -1061,14 +1073,14 @@ def _verdict(tunable, reason_tune, pa, sn) -> tuple:
     if not tunable:
         return "not heard", reason_tune
     if pa >= CLEAR_POWER_W and sn >= CLEAR_SNR_DB:
-        return "clearly heard", f"audio {pa:.1e} W and {sn:.0f} dB above man-made noise"
+        return "clearly heard", f"audio {pa:.1e} W and {sn:.0f} dB above the noise"
     if pa >= AUDIBLE_POWER_W and sn >= MARGINAL_SNR_DB:
         why = "weak audio" if pa < CLEAR_POWER_W else "noisy"
-        return "marginal", f"{why}: audio {pa:.1e} W, {sn:.0f} dB above man-made noise"
+        return "marginal", f"{why}: audio {pa:.1e} W, {sn:.0f} dB above the noise"
     if pa < AUDIBLE_POWER_W:
         return "not heard", (f"too little audio ({pa:.1e} W; about {AUDIBLE_POWER_W:.0e} W is assumed "
                              "to be just audible)")
-    return "not heard", f"buried in man-made noise ({sn:.0f} dB signal-to-noise)"
+    return "not heard", f"buried in the noise ({sn:.0f} dB signal-to-noise)"
 
 
 def _station_row(s, a, i, tunable, verdict, reason, warn) -> dict:
@@ -1082,7 +1094,10 @@ def _station_row(s, a, i, tunable, verdict, reason, warn) -> dict:
         "frequency_hz": _num(fs[i], "frequency_hz", warn),
         "distance_m": _num(s.distance_m, "distance_m", warn),
         "power_w": _num(s.power_w, "power_w", warn),
-        "field_v_per_m": _num(gw.field[i], "field_v_per_m", warn),
+        "field_v_per_m": _num(a["field"][i], "field_v_per_m", warn),
+        "ground_wave_field_v_per_m": _num(gw.field[i], "ground_wave_field_v_per_m", warn),
+        "sky_wave_field_v_per_m": _num(a["sky"][i], "sky_wave_field_v_per_m", warn),
+        "noise_figure_db": _num(a["fam_total"][i], "noise_figure_db", warn),
         "ground_attenuation_ratio": _num(gw.attenuation[i], "ground_attenuation_ratio", warn),
         "effective_height_m": _num(a["he"][i], "effective_height_m", warn),
         "open_circuit_voltage_v": _num(a["v_oc"][i], "open_circuit_voltage_v", warn),

@@ -251,19 +251,28 @@ def _render_tuning(tuning, console) -> None:
         console.print(f"[dim]{escape(line)}[/dim]")
 
 
+VERDICT_STYLES = {"clearly heard": "green", "marginal": "yellow", "not heard": "red"}
+
+
 def _render_stations(stations, console) -> None:
     if not stations:
         return
-    t = Table(title="Stations", title_justify="left")
-    for col in ("station", "frequency", "distance", "field", "at the detector", "S/N", "verdict"):
-        t.add_column(col, justify="left" if col in ("station", "verdict") else "right")
+    t = Table(title="Stations (by day: ground wave; by night: ground and sky wave)", title_justify="left")
+    for col in ("station", "frequency", "distance", "field", "at the detector", "S/N", "by day",
+                "night field", "by night"):
+        t.add_column(col, justify="left" if col in ("station", "by day", "by night") else "right")
     for s in stations:
         verdict = s.get("verdict", "")
-        style = {"clearly heard": "green", "marginal": "yellow", "not heard": "red"}.get(verdict, "")
+        night = s.get("night") or {}
+        nv = night.get("verdict", "")
+        nfield = eng(night.get("field_v_per_m"), "V/m") if night else "—"
+        if night.get("fading"):
+            nfield += " fading"
         t.add_row(s.get("name", ""), eng(s.get("frequency_hz"), "Hz"), eng(s.get("distance_m"), "m"),
                   eng(s.get("field_v_per_m"), "V/m"), eng(s.get("detector_power_w"), "W"),
                   "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
-                  Text(verdict, style=style))
+                  Text(verdict, style=VERDICT_STYLES.get(verdict, "")), nfield,
+                  Text(nv or "—", style=VERDICT_STYLES.get(nv, "")))
     console.print(t)
     for s in stations:
         why = s.get("reason", "")
@@ -271,6 +280,11 @@ def _render_stations(stations, console) -> None:
             why += ("; " if why else "") + "heard under: " + ", ".join(s["spills_over"])
         if why:
             console.print(f"  {escape(s.get('name', ''))}: {escape(why)}")
+        night = s.get("night") or {}
+        if night.get("reason") and night.get("verdict") != s.get("verdict"):
+            sky = night.get("sky_wave_field_v_per_m")
+            console.print(f"  {escape(s.get('name', ''))} by night: {escape(night['reason'])}"
+                          + (f" (sky wave {eng(sky, 'V/m')})" if sky else ""))
 
 
 def render_layout(result: dict, console) -> None:
