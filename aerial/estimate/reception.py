@@ -885,7 +885,23 @@ def _audio_power(v_rms, tap, diode, load):
 
 
 def _threshold_voltage(tap, diode, load, power=AUDIBLE_POWER_W, refine=40):
-    """RMS tank voltage at which the audio reaches ``power`` (log grid, then bisection in log V)."""
+    """RMS tank voltage at which the audio reaches ``power`` (log grid, then bisection in log V).
+
+    Depends only on the detector, its tap and load, so it is worked out once per set of those
+    (the day and the night assessments share it).
+    """
+    key = (float(tap), diode, float(load), float(power), int(refine))
+    if key not in _THRESHOLD_CACHE:
+        if len(_THRESHOLD_CACHE) > 256:
+            _THRESHOLD_CACHE.clear()
+        _THRESHOLD_CACHE[key] = _threshold_voltage_uncached(tap, diode, load, power, refine)
+    return _THRESHOLD_CACHE[key]
+
+
+_THRESHOLD_CACHE: dict = {}
+
+
+def _threshold_voltage_uncached(tap, diode, load, power, refine):
     grid = np.geomspace(1e-9, 1e3, 241)
     p = _audio_power(grid, tap, diode, load)
     above = np.flatnonzero(p >= power)

@@ -1,0 +1,83 @@
+"""Cost of night-time reception: sky waves, atmospheric noise and the second (night) station assessment.
+
+Run: python benchmarks/bench_night.py
+Times a closed-form report of an invented site with ten stations, with and
+without the night-time part, paired, and prints medians for docs/performance.md.
+"""
+
+from __future__ import annotations
+
+import os
+import statistics
+import time
+from unittest import mock
+
+from aerial.estimate import assemble, receiver
+from aerial.site.reader import load_site_text
+
+SITE = """
+[site]
+name = "ten stations (invented)"
+latitude = 52.0
+longitude = -1.5
+season = "winter"
+
+[supports.house]
+at = [0, 0]
+height = "7 m"
+kind = "eave"
+
+[supports.tree]
+at = [30, 0]
+height = "10 m"
+kind = "tree"
+
+[[spans]]
+from = "house"
+to = "tree"
+
+[receiver]
+at = [0, -1]
+height = "1 m"
+
+[[earth.rods]]
+at = [0, -1.5]
+length = "2.4 m"
+""" + "".join(f"""
+[[stations]]
+name = "Invented {i}"
+frequency = "{540 + 110 * i} kHz"
+power = "{10 + 5 * i} kW"
+distance = "{20 + 90 * i} km"
+bearing = {36 * i}
+""" for i in range(10))
+
+
+def _day_only(site, f, r, x, rr, he, parts):
+    from aerial.estimate import reception
+
+    st = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
+                            s.soil.conductivity_s_m) for s in site.stations]
+    return reception.assess_stations(f, r, x, rr, he, parts, st, noise_category=site.noise.replace("-", " ")), []
+
+
+def main(repeats: int = 7) -> None:
+    site = load_site_text(SITE)
+    with_night, without = [], []
+    for _ in range(repeats):
+        t = time.perf_counter()
+        assemble.analyse(site)
+        with_night.append(time.perf_counter() - t)
+        with mock.patch.object(receiver, "_stations_day_and_night", _day_only):
+            t = time.perf_counter()
+            assemble.analyse(site)
+            without.append(time.perf_counter() - t)
+    a, b = statistics.median(with_night), statistics.median(without)
+    print(f"cores: {os.cpu_count()}; load average {os.getloadavg()[0]:.1f}; {repeats} paired runs, medians")
+    print("| report, 10 stations | day only | day and night | night share |")
+    print("|---|---|---|---|")
+    print(f"| closed form, MF | {b * 1e3:.0f} ms | {a * 1e3:.0f} ms | {100 * (a - b) / a:.0f} % |")
+
+
+if __name__ == "__main__":
+    main()
