@@ -189,7 +189,7 @@ def test_file_name_with_a_line_break_stays_one_line(capsys, tmp_path):
     ("1e300", "expected a length within 40,000 km"),
     ('"20 km"', "expected a length within 10 km"),
     ('"12 furlong"', 'unknown unit "furlong"'),
-    ('"3 ft 4 in"', "expected a length"),
+    ('"3 ft 4"', "expected a length"),
     ('"12"', "needs its unit written out"),
     ('""', "expected a length"),
 ])
@@ -348,11 +348,16 @@ def test_fuzz_findings_are_refused_with_key(capsys, tmp_path, name, old, new, ke
 
 def test_wire_down_to_the_ground_keeps_its_length_in_the_ranges(capsys, tmp_path):
     # the uncertainty run moved the low end onto the feed end (a zero-length piece reached the models)
+    # (a point just above the 1 cm floor and below the 2 cm feed gap: lifted to the gap)
     p = tmp_path / "down.toml"
-    p.write_text(_example("portable_vertical_counterpoise.toml").replace("[0, 0, 7.0]", "[0, 0, 5e-324]"), encoding="utf-8")
+    p.write_text(_example("portable_vertical_counterpoise.toml").replace("[0, 0, 7.0]", "[0, 0, 0.011]"), encoding="utf-8")
     code, out, err = run(capsys, "report", str(p), "--json")
     assert code == 0, err
     assert fz._nulls(json.loads(out)) == []
+    # 5e-324 m is below the physical floor: refused naming the point
+    p.write_text(_example("portable_vertical_counterpoise.toml").replace("[0, 0, 7.0]", "[0, 0, 5e-324]"), encoding="utf-8")
+    code, out, err = run(capsys, "report", str(p), "--json")
+    assert code == 2 and "runs[0].points[1] = [0, 0, 5e-324]: an aerial point lower than 1 cm" in one_line(err)
 
 
 def test_arrays_nested_too_deeply_for_the_parser(capsys, tmp_path):

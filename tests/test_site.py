@@ -154,7 +154,7 @@ def test_unknown_key_lists_the_choices():
 
 
 def test_unknown_soil_category_lists_choices():
-    rejects('[soil]\ncategory = "swamp"\n' + MINIMAL, "soil.category", '"medium-dry"')
+    rejects('[soil]\ncategory = "quicksand"\n' + MINIMAL, "soil.category", '"medium-dry"')
 
 
 def test_line_number_is_given():

@@ -78,3 +78,48 @@ SOILS: dict[str, Soil] = {
     "dry": Soil("dry", 7.0, 3e-4, 1e-4, 1e-3, "dry ground, sandy or stony"),
     "very-dry": Soil("very-dry", 3.0, 1e-4, 3e-5, 3e-4, "very dry ground, desert, rock"),
 }
+
+
+#: Soil in a homeowner's words, mapped to the category above whose conductivity lies nearest (on a
+#: log scale) to the typical resistivity of that ground. Typical resistivities from BS 7430 (Code of
+#: practice for protective earthing), table of soil resistivities (from memory): marshy ground
+#: 2-2.7 ohm m, loam and clay 4-150 ohm m, chalk 60-400 ohm m, sand 90-8000 ohm m, peat 200 ohm m and
+#: upwards, rock 1000 ohm m and upwards. Where a range spans two categories the drier is taken, so a
+#: word never promises a better earth than the ground gives.
+SOIL_WORDS: dict[str, tuple[str, str]] = {
+    "marsh": ("wet", "marshy ground, 2-2.7 ohm m"),
+    "clay": ("wet", "loam and clay, 4-150 ohm m"),
+    "loam": ("wet", "loam and clay, 4-150 ohm m"),
+    "chalk": ("intermediate", "chalk, 60-400 ohm m"),
+    "peat": ("intermediate", "peat, 200 ohm m and upwards"),
+    "sand": ("dry", "sand, 90-8000 ohm m"),
+    "rock": ("very-dry", "rock, 1000 ohm m and upwards"),
+}
+#: Other spellings of the same words.
+SOIL_WORD_ALIASES: dict[str, str] = {
+    "marshy": "marsh", "marshland": "marsh", "bog": "marsh", "boggy": "marsh", "swamp": "marsh",
+    "clay soil": "clay", "clayey": "clay", "loamy": "loam", "garden soil": "loam", "topsoil": "loam",
+    "chalky": "chalk", "peaty": "peat", "sandy": "sand", "sand and gravel": "sand",
+    "gravel": "sand", "stony": "sand", "rocky": "rock", "granite": "rock",
+}
+
+
+def soil_category(written: str) -> tuple[str, str] | None:
+    """The category for a soil name or a homeowner's word, with a note when a word was mapped.
+
+    Returns ``(category, note)`` (``note`` empty for a category name), or None when unknown.
+
+    >>> soil_category("Clay")[0]
+    'wet'
+    >>> soil_category("medium dry")
+    ('medium-dry', '')
+    """
+    norm = " ".join(str(written).strip().lower().replace("_", " ").replace("-", " ").split())
+    if norm.replace(" ", "-") in SOILS:
+        return norm.replace(" ", "-"), ""
+    word = SOIL_WORD_ALIASES.get(norm, norm)
+    if word not in SOIL_WORDS:
+        return None
+    category, why = SOIL_WORDS[word]
+    return category, (f'soil "{str(written).strip()}" is read as the category "{category}" (typical resistivity of '
+                      f'{why}, BS 7430); give [soil] conductivity or resistivity if it has been measured')

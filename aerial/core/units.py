@@ -19,8 +19,9 @@ from __future__ import annotations
 import math
 import re
 from decimal import Decimal
+from fractions import Fraction
 
-# metres per unit (NIST SP 811: the foot and inch are exact)
+# metres per unit (NIST SP 811: the foot, inch, yard and international mile are exact)
 LENGTH_UNITS: dict[str, float] = {
     "m": 1.0,
     "metre": 1.0,
@@ -41,13 +42,48 @@ LENGTH_UNITS: dict[str, float] = {
     "yards": 0.9144,
 }
 
-FREQUENCY_UNITS: dict[str, float] = {"hz": 1.0, "khz": 1e3, "mhz": 1e6}
-CAPACITANCE_UNITS: dict[str, float] = {"f": 1.0, "uf": 1e-6, "µf": 1e-6, "nf": 1e-9, "pf": 1e-12}
-INDUCTANCE_UNITS: dict[str, float] = {"h": 1.0, "mh": 1e-3, "uh": 1e-6, "µh": 1e-6, "nh": 1e-9}
-POWER_UNITS: dict[str, float] = {"w": 1.0, "kw": 1e3, "mw": 1e6}
-RESISTANCE_UNITS: dict[str, float] = {"ohm": 1.0, "ohms": 1.0, "kohm": 1e3, "mohm": 1e6, "ω": 1.0, "kω": 1e3}
+#: Distances to stations also accept the international mile (NIST SP 811, B.8: 1 mi = 1609.344 m exactly).
+DISTANCE_UNITS: dict[str, float] = {**LENGTH_UNITS, "mi": 1609.344, "mile": 1609.344, "miles": 1609.344}
 
-_QUANTITY = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*([^\s\d].*?)?\s*$")
+# SI prefixes are case-sensitive (SI Brochure, 9th edition, 3): the spellings below are exact;
+# other case spellings are accepted only when no other SI reading exists (see parse_quantity).
+FREQUENCY_UNITS: dict[str, float] = {"Hz": 1.0, "kHz": 1e3, "MHz": 1e6}
+CAPACITANCE_UNITS: dict[str, float] = {"F": 1.0, "uF": 1e-6, "µF": 1e-6, "μF": 1e-6, "nF": 1e-9, "pF": 1e-12}
+INDUCTANCE_UNITS: dict[str, float] = {"H": 1.0, "mH": 1e-3, "uH": 1e-6, "µH": 1e-6, "μH": 1e-6, "nH": 1e-9}
+POWER_UNITS: dict[str, float] = {"mW": 1e-3, "W": 1.0, "kW": 1e3, "MW": 1e6}
+RESISTANCE_UNITS: dict[str, float] = {
+    "ohm": 1.0, "ohms": 1.0, "Ω": 1.0,
+    "kohm": 1e3, "kohms": 1e3, "kilohm": 1e3, "kilohms": 1e3, "kΩ": 1e3,
+    "Mohm": 1e6, "Mohms": 1e6, "megohm": 1e6, "megohms": 1e6, "MΩ": 1e6,
+}
+FIELD_STRENGTH_UNITS: dict[str, float] = {"V/m": 1.0, "mV/m": 1e-3, "uV/m": 1e-6, "µV/m": 1e-6, "μV/m": 1e-6}
+CONDUCTIVITY_UNITS: dict[str, float] = {"S/m": 1.0, "mS/m": 1e-3}
+RESISTIVITY_UNITS: dict[str, float] = {
+    "ohm m": 1.0, "ohm-m": 1.0, "ohm·m": 1.0, "ohm*m": 1.0, "Ω·m": 1.0, "Ωm": 1.0, "Ω m": 1.0,
+}
+AREA_UNITS: dict[str, float] = {"mm2": 1e-6, "mm²": 1e-6, "mm^2": 1e-6, "m2": 1.0, "m²": 1.0, "m^2": 1.0}
+
+#: The SI prefixes whose case matters in the units aerial reads (SI Brochure, 9th edition, table 7).
+#: "u" stands for micro where "µ" cannot be typed. Rarer prefixes (femto, peta, ...) are no
+#: reading of any quantity a site holds, so "PF" is a picofarad and not a petafarad.
+SI_PREFIXES: dict[str, float] = {"p": 1e-12, "n": 1e-9, "u": 1e-6, "µ": 1e-6, "μ": 1e-6, "m": 1e-3, "c": 1e-2,
+                                 "k": 1e3, "M": 1e6, "G": 1e9}
+_PREFIX_NAMES = {"p": "pico", "n": "nano", "u": "micro", "µ": "micro", "μ": "micro", "m": "milli", "c": "centi",
+                 "k": "kilo", "M": "mega", "G": "giga"}
+#: Unit symbols a prefix attaches to (compared case-insensitively).
+_SI_SYMBOLS = {"m": "metre", "hz": "hertz", "f": "farad", "h": "henry", "w": "watt", "ohm": "ohm", "ω": "ohm",
+               "v/m": "volt per metre", "s/m": "siemens per metre", "m2": "square metre", "m²": "square metre",
+               "m^2": "square metre"}
+
+_NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
+_QUANTITY = re.compile(r"^\s*(" + _NUMBER + r")\s*([^\s\d].*?)?\s*$")
+# a fraction "5/8", a mixed number "1 1/2" or "1-1/2", or a decimal number
+_AMOUNT = r"(?:(\d+)(?:\s+|-)(\d+)\s*/\s*(\d+)|(\d+)\s*/\s*(\d+)|(\d+\.?\d*|\.\d+))"
+_FRACTION_QUANTITY = re.compile(r"^\s*" + _AMOUNT + r"\s*([^\s\d/].*?)\s*$")
+_FEET_INCHES = re.compile(r"^\s*" + _AMOUNT + r"\s*(?:ft|foot|feet|')\s*" + _AMOUNT + r"\s*(?:in|inch|inches|\")\s*$",
+                          re.IGNORECASE)
+_FEET_MARK = re.compile(r"^\s*" + _AMOUNT + r"\s*(')\s*$")
+_INCH_MARK = re.compile(r"^\s*" + _AMOUNT + r"\s*(\")\s*$")
 
 
 class UnitError(ValueError):
@@ -58,6 +94,69 @@ class UnitError(ValueError):
         super().__init__(expected)
 
 
+def _amount(groups) -> Fraction:
+    """The exact value of one ``_AMOUNT`` match: (whole, num, den, num, den, decimal)."""
+    whole, n1, d1, n2, d2, dec = groups
+    if dec is not None:
+        return Fraction(Decimal(dec))
+    num, den = (n1, d1) if n1 is not None else (n2, d2)
+    if int(den) == 0:
+        raise UnitError(f"a fraction with a zero denominator ({num}/{den})")
+    return Fraction(int(whole or 0)) + Fraction(int(num), int(den))
+
+
+def find_unit(written: str, units: dict[str, float], number: str = "1") -> str:
+    """The accepted spelling in ``units`` that ``written`` means, or raise :class:`UnitError`.
+
+    SI prefixes are case-sensitive ("mW" is a milliwatt, "MW" a megawatt). An exact spelling
+    is taken as written. Another case spelling ("khz", "UF", "OHM") is accepted when it has
+    one reading only; one that could be two units ("mw", "MHZ", "Mm", "mohm") is refused,
+    naming both readings.
+
+    >>> find_unit("khz", FREQUENCY_UNITS)
+    'kHz'
+    >>> find_unit("mw", POWER_UNITS)
+    Traceback (most recent call last):
+    ...
+    aerial.core.units.UnitError: ambiguous unit "mw": SI prefixes are case-sensitive: "mW" reads 1 mW = 0.001 W, "MW" reads 1 MW = 1e+06 W; write the one you mean
+    """
+    if written in units:
+        return written
+    key = written.casefold()
+    matches = [u for u in units if u.casefold() == key]
+    if not matches:
+        raise UnitError(f"unknown unit \"{written}\"")
+    readings: dict[str, float] = {u: units[u] for u in matches}
+    # the same letters with the prefix in the other case: an SI unit of its own ("Mm" is a megametre)
+    first, rest = written[0], written[1:]
+    if rest.casefold() in _SI_SYMBOLS:
+        for u in matches:
+            p_written = SI_PREFIXES.get(first)
+            p_table = SI_PREFIXES.get(u[0])
+            if p_written is not None and p_table is not None and u[1:].casefold() == rest.casefold():
+                base = units[u] / p_table
+                readings.setdefault(first + u[1:], p_written * base)
+            # a written prefix letter whose other case is also a prefix ("m" written for "M")
+            for other in (first.upper(), first.lower()):
+                if other != u[0] and other in SI_PREFIXES and u[0] in SI_PREFIXES and other.casefold() == first.casefold():
+                    readings.setdefault(other + u[1:], SI_PREFIXES[other] * units[u] / SI_PREFIXES[u[0]])
+    values = sorted(set(readings.values()))
+    if len(values) == 1:
+        return matches[0]
+    shown = ", ".join(f'"{u}" reads {number} {u} = {_fmt(v * float(number))} {_base_symbol(u)}'
+                      for u, v in sorted(readings.items(), key=lambda kv: kv[1]))
+    raise UnitError(f"ambiguous unit \"{written}\": SI prefixes are case-sensitive: {shown}; write the one you mean")
+
+
+def _fmt(value: float) -> str:
+    return f"{value:g}"
+
+
+def _base_symbol(unit: str) -> str:
+    rest = unit[1:] if unit[:1] in SI_PREFIXES and unit[1:].casefold() in _SI_SYMBOLS else unit
+    return {"ohm": "ohm", "Ω": "ohm"}.get(rest, rest)
+
+
 def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str) -> float:
     """Read a number (in ``default_unit``) or a string "<number> <unit>" into SI.
 
@@ -66,7 +165,7 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
     value : int, float or str
         As written in the site file.
     units : dict
-        Accepted unit words (lower case) and their factor to SI.
+        Accepted unit spellings (case-exact, see :func:`find_unit`) and their factor to SI.
     kind : str
         Name of the quantity for messages, e.g. "a length".
     default_unit : str
@@ -80,7 +179,12 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
     Raises
     ------
     UnitError
-        When the value is not a finite number or the unit is unknown.
+        When the value is not a finite number, or the unit is unknown or ambiguous.
+
+    Notes
+    -----
+    A number may be a decimal, a fraction or a mixed number ("5/8 in", "1 1/2 in",
+    "1-1/2 in"); lengths also read feet and inches together ("6 ft 3 in", "6'3\"").
 
     Examples
     --------
@@ -88,46 +192,87 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
     9.144
     >>> parse_quantity(2.5, LENGTH_UNITS, "a length", "m")
     2.5
+    >>> parse_quantity("5 mW", POWER_UNITS, "a power", "W")
+    0.005
     """
-    accepted = ", ".join(sorted({k for k in units if len(k) <= 3}))
+    accepted = ", ".join(sorted({k for k in units if len(k) <= 3}, key=lambda k: (k.casefold(), k)))
     expected = f"expected {kind}: a number in {default_unit} or a string like \"12 {default_unit}\" (units: {accepted})"
     if isinstance(value, bool):
         raise UnitError(expected)
     if isinstance(value, (int, float)):
-        number = float(value)
+        try:
+            number = float(value)
+        except OverflowError:
+            raise UnitError(expected + "; got a number too large to be " + kind) from None
         if not math.isfinite(number):
             raise UnitError(expected + "; got a value that is not finite")
         return number
     if not isinstance(value, str):
         raise UnitError(expected)
-    match = _QUANTITY.match(value)
-    if not match:
+    if "ft" in units and "in" in units:
+        compound = _feet_and_inches(value)
+        if compound is not None:
+            return compound
+    fraction = _FRACTION_QUANTITY.match(value)
+    if fraction and fraction.group(6) is not None:
+        fraction = None  # a plain decimal: read below, in full (exponent included)
+    match = None if fraction else _QUANTITY.match(value)
+    if not match and not fraction:
         raise UnitError(expected)
-    number = float(match.group(1))
-    unit = (match.group(2) or "").strip().lower()
-    if not unit:
+    written = ((match or fraction).group(2) if match else fraction.group(7)) or ""
+    written = written.strip()
+    if not written:
         raise UnitError(expected + "; a number given as text needs its unit written out")
-    if unit not in units:
-        raise UnitError(f"unknown unit \"{match.group(2).strip()}\"; {expected}")
-    if not math.isfinite(number):
-        raise UnitError(expected + "; got a value that is not finite")
-    # decimal arithmetic so that "12 in" is exactly 0.3048 m, as NIST SP 811 defines it
-    return float(Decimal(match.group(1)) * Decimal(repr(units[unit])))
+    try:
+        unit = find_unit(written, units, match.group(1) if match else "1")
+    except UnitError as err:
+        raise UnitError(f"{err.expected}; {expected}") from None
+    if match:
+        number = float(match.group(1))
+        if not math.isfinite(number):
+            raise UnitError(expected + "; got a value that is not finite")
+        # decimal arithmetic so that "12 in" is exactly 0.3048 m, as NIST SP 811 defines it
+        return float(Decimal(match.group(1)) * Decimal(repr(units[unit])))
+    try:
+        amount = _amount(fraction.groups()[:6])
+    except UnitError as err:
+        raise UnitError(f"{err.expected}; {expected}") from None
+    return float(amount * Fraction(Decimal(repr(units[unit]))))
+
+
+def _feet_and_inches(value: str) -> float | None:
+    """ "6 ft 3 in", "6'3\"", "6'" or "3\"" in metres, exactly; None when the text is not of that form. [m]"""
+    foot, inch = Fraction(3048, 10000), Fraction(254, 10000)
+    m = _FEET_INCHES.match(value)
+    if m:
+        return float(_amount(m.groups()[:6]) * foot + _amount(m.groups()[6:12]) * inch)
+    m = _FEET_MARK.match(value)
+    if m:
+        return float(_amount(m.groups()[:6]) * foot)
+    m = _INCH_MARK.match(value)
+    if m:
+        return float(_amount(m.groups()[:6]) * inch)
+    return None
 
 
 #: Longest length read anywhere (about the Earth's circumference); anything longer is a wrong number or unit. [m]
 MAX_LENGTH_M = 4.0e7
 
 
-def parse_length(value) -> float:
+def parse_length(value, units: dict[str, float] = LENGTH_UNITS) -> float:
     """A length in metres from a number [m] or a string with a unit. [m]
 
+    ``units`` may be :data:`DISTANCE_UNITS` where miles make sense (a station's distance).
     Raises :class:`UnitError` beyond +/- ``MAX_LENGTH_M`` as well.
 
     >>> parse_length("12 in")
     0.3048
+    >>> parse_length("6 ft 3 in")
+    1.905
+    >>> parse_length("5/8 in")
+    0.015875
     """
-    metres = parse_quantity(value, LENGTH_UNITS, "a length", "m")
+    metres = parse_quantity(value, units, "a length", "m")
     if abs(metres) > MAX_LENGTH_M:
         raise UnitError(f"expected a length within {MAX_LENGTH_M / 1e3:,.0f} km; check the number and its unit")
     return metres

@@ -15,10 +15,10 @@ import numpy as np
 
 from aerial.core.version import __version__
 from aerial.estimate.plain import finalise
-from aerial.core.errors import ModelInputError
+from aerial.core.errors import AerialError, ModelInputError
 from aerial.geometry.resolve import EARTH_ROLES, resolve, wires_json
 from aerial.estimate.cautions import cautions_for
-from aerial.site.reader import JOIN_TOLERANCE_M
+from aerial.site.reader import JOIN_TOLERANCE_M, MAX_POINTS_PER_BAND, check_sweep_size
 
 METHODS = ("closed-form", "full-wave")
 
@@ -41,13 +41,18 @@ WHAT_IF_EXTEND_M = 10.0
 def frequency_grid(site, step_hz: float | None = None) -> np.ndarray:
     """Sweep frequencies for the site's bands, band edges included. [Hz]"""
     step_override = step_hz or site.frequency_step_hz.get("all")
+    if step_override:
+        try:
+            check_sweep_size(site.bands, step_override, "--step" if step_hz else "site.frequency_step")
+        except ValueError as err:
+            raise AerialError(str(err)) from None
     out = []
     for _name, lo, hi in site.bands:
         step = step_override
         if step is None:
             step = next(s for top, s in DEFAULT_STEP_HZ if hi <= top)
         n = max(2, int(math.ceil((hi - lo) / step)) + 1)
-        n = min(n, 5001)
+        n = min(n, MAX_POINTS_PER_BAND)
         out.append(np.linspace(lo, hi, n))
     return np.unique(np.round(np.concatenate(out), 3))
 

@@ -15,6 +15,7 @@ Frame: metres, x east, y north, z up; z = 0 is the ground surface.
 from __future__ import annotations
 
 import math
+import re
 import tomllib
 from dataclasses import dataclass, field, replace
 from importlib import resources
@@ -24,7 +25,7 @@ import numpy as np
 
 from aerial.core import units
 from aerial.core.errors import SiteError
-from aerial.core.materials import CONDUCTOR_ALIASES, CONDUCTORS, SOILS, Soil
+from aerial.core.materials import CONDUCTOR_ALIASES, CONDUCTORS, SOIL_WORDS, SOILS, Soil, soil_category
 from aerial.models.coil import CoilWinding
 from aerial.site.tomlpos import find_line
 
@@ -39,6 +40,21 @@ MAX_FILE_BYTES = 2_000_000
 #: about 20 unknowns and solves a dense system several times per report, so this keeps a report
 #: to tens of seconds and a few hundred MB on a small machine.
 MAX_WIRE_PIECES = 100
+
+#: Most named supports in [supports] (each is a candidate for `aerial layout`, whose search grows with
+#: the square of their number, and every span names two).
+MAX_SUPPORTS = 200
+
+#: Most entries in site.bands (the named "hf" counts as one entry and holds 14 bands).
+MAX_BAND_ENTRIES = 32
+
+#: Most sweep frequencies a report computes (all bands together). The worst named set, "lf", "mf" and
+#: "hf" at the finest step of 100 Hz, gives 51,616; the closed-form report on it takes about 6 s and
+#: writes 24 MB of JSON on the reference machine.
+MAX_FREQUENCIES = 60_000
+
+#: Points a band is swept at, at most (band edges included).
+MAX_POINTS_PER_BAND = 5001
 
 #: Largest coordinate, height or length inside a site (a lot, its supports and its wires). [m]
 MAX_SITE_LENGTH_M = 10_000.0
@@ -71,6 +87,10 @@ EARPHONE_RANGE_OHM = (1.0, 100e6)
 
 #: Thinnest wire accepted (about 50 SWG is 0.025 mm). [m]
 MIN_WIRE_DIAMETER_M = 0.01e-3
+
+#: Lowest height above ground a support or a wire point may have (0 is allowed only where it means "at
+#: ground level": the receiver, a lead's end); anything lower is a slip of the number or its unit. [m]
+MIN_HEIGHT_M = 0.01
 
 #: Points closer than this are the same point (wires joined there). [m]
 JOIN_TOLERANCE_M = 0.01
@@ -331,24 +351,24 @@ class TableReader:
         return value
 
     def length(self, data, key, name, default=None, minimum=None, positive=False, required=False,
-               maximum=MAX_SITE_LENGTH_M):
+               maximum=MAX_SITE_LENGTH_M, units_table=units.LENGTH_UNITS):
         full = f"{key}.{name}" if key else name
         value = data.get(name)
         if value is None:
             if required:
                 self.fail(full, "", "missing: expected a length such as 12 or \"40 ft\"")
             return default
-        metres = self.metres(value, full, maximum)
+        metres = self.metres(value, full, maximum, units_table)
         if positive and metres <= 0:
             self.fail(full, value, "expected a length greater than zero")
         if minimum is not None and metres < minimum:
             self.fail(full, value, f"expected a length of at least {minimum:g} m")
         return metres
 
-    def metres(self, value, full, maximum=MAX_SITE_LENGTH_M):
+    def metres(self, value, full, maximum=MAX_SITE_LENGTH_M, units_table=units.LENGTH_UNITS):
         """A length in metres, refused when not finite or beyond ``maximum`` either way."""
         try:
-            metres = units.parse_length(value)
+            metres = units.parse_length(value, units_table)
         except units.UnitError as err:
             self.fail(full, value, err.expected)
         if abs(metres) > maximum:
@@ -381,6 +401,8 @@ class TableReader:
         if value is None:
             return None
         ok = isinstance(value, (int, float)) and not isinstance(value, bool)
+        if ok and isinstance(value, int) and abs(value) > 2**63:
+            ok = False  # no count or factor in a site is this large (and a float cannot hold one past 1e308)
         if ok and integer and not (isinstance(value, int) or float(value).is_integer()):
             ok = False
         if ok and not math.isfinite(float(value)):
@@ -421,10 +443,29 @@ class TableReader:
         return out
 
     def check_keys(self, data, key, allowed):
+        """Refuse a key not in ``allowed``, suggesting the nearest allowed spelling (a misspelt
+        key would otherwise be ignored and its default used without a word). ``notes`` (free
+        text for the user's own record) is allowed in every table."""
+        allowed = set(allowed) | {"notes"}
         for name in data:
             if name not in allowed:
                 full = f"{key}.{shown_key(name)}" if key else shown_key(name)
-                self.fail(full, data[name], "unknown key; expected one of " + ", ".join(sorted(allowed)))
+                self.fail(full, data[name], unknown_key_words(name, allowed))
+        if "notes" in data:
+            notes = data["notes"]
+            ok = isinstance(notes, str) or (isinstance(notes, list) and all(isinstance(n, str) for n in notes))
+            if not ok:
+                self.fail(f"{key}.notes" if key else "notes", notes, "expected free text in quotes (or a list of texts)")
+
+
+def unknown_key_words(name, allowed) -> str:
+    """ "unknown key; did you mean ...? expected one of ..." for a key not in ``allowed``."""
+    import difflib
+
+    near = difflib.get_close_matches(str(name).strip().lower().replace("-", "_").replace(" ", "_"),
+                                     sorted(allowed), n=1, cutoff=0.6)
+    hint = f'did you mean "{near[0]}"? ' if near else ""
+    return f"unknown key; {hint}expected one of " + ", ".join(sorted(allowed))
 
 
 # --------------------------------------------------------------------------- loaders
@@ -471,6 +512,12 @@ def load_site(path) -> Site:
     return load_site_text(text, shown)
 
 
+def _long_number_line(text: str):
+    """The line of the first run of 1000 or more digits in ``text`` (None if there is none)."""
+    m = re.search(r"\d{1000,}", text)
+    return text.count("\n", 0, m.start()) + 1 if m else None
+
+
 def builtin_example() -> Site:
     """The built-in example site (a backyard inverted-L)."""
     text = resources.files("aerial").joinpath("data", BUILTIN_RESOURCE).read_text(encoding="utf-8")
@@ -483,10 +530,12 @@ def load_site_text(text: str, path: str = "<text>") -> Site:
         raw = tomllib.loads(text)
     except RecursionError:
         raise SiteError(path, "", "", "not valid TOML for aerial: arrays or tables nested too deeply") from None
-    except tomllib.TOMLDecodeError as err:
+    except ValueError as err:
+        if not isinstance(err, tomllib.TOMLDecodeError):  # an integer past Python's digit limit
+            raise SiteError(path, "", "", "a number with thousands of digits: no quantity in a site is written so; "
+                            "check the file", line=_long_number_line(text)) from None
         msg = str(err)
         line = None
-        import re
 
         m = re.search(r"line (\d+)", msg)
         if m:
@@ -511,16 +560,25 @@ def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
     noise = r.string(site_t, "site", "noise", default="residential", choices=NOISE_CATEGORIES)
     bands = _bands(r, site_t)
     steps = _steps(r, site_t)
+    if steps:
+        try:
+            check_sweep_size(bands, steps["all"], "site.frequency_step")
+        except ValueError as err:
+            r.fail("site.frequency_step", site_t["frequency_step"], str(err).split(": ", 1)[1])
     field_strength = r.quantity(
-        site_t, "site", "field_strength", {"v/m": 1.0, "mv/m": 1e-3, "uv/m": 1e-6, "µv/m": 1e-6},
+        site_t, "site", "field_strength", units.FIELD_STRENGTH_UNITS,
         "a field strength", "V/m", default=1e-3,
     )
     if not FIELD_STRENGTH_V_PER_M[0] <= field_strength <= FIELD_STRENGTH_V_PER_M[1]:
         r.fail("site.field_strength", site_t["field_strength"], "expected a field strength from 0.1 uV/m to 10 V/m")
     if "soil" in site_t and "soil" in raw:
         r.fail("site.soil", site_t["soil"], "the soil is given twice (also as [soil]); keep one")
-    soil = _soil(r, raw.get("soil", site_t.get("soil", "medium-dry")), "soil" if "soil" in raw else "site.soil")
-    default_size = wire_size(r, r.table(raw, "", "wire"), "wire", None)
+    soil_notes: list[str] = []
+    soil = _soil(r, raw.get("soil", site_t.get("soil", "medium-dry")), "soil" if "soil" in raw else "site.soil",
+                 soil_notes)
+    wire_t = r.table(raw, "", "wire")
+    r.check_keys(wire_t, "wire", _SIZE_KEYS)
+    default_size = wire_size(r, wire_t, "wire", None)
     supports = _supports(r, raw)
     _check_table_count(r, raw)
     wires: list[WireRun] = []
@@ -534,8 +592,9 @@ def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
         wires.append(lead)
     electrodes, earth_wires, notes = _earth(r, raw, receiver, default_size, soil)
     wires += earth_wires
+    _check_counterpoise(r, wires, receiver)
     position = _position(r, site_t, "site")
-    stations = _stations(r, raw, soil, position)
+    stations = _stations(r, raw, soil, soil_notes, position)
     night = _night_inputs(r, site_t)
     plan = r.table(raw, "", "plan")
     _check_wires(r, wires)
@@ -544,7 +603,7 @@ def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
     return Site(
         path=path, name=name, text=text, region=region, noise=noise, soil=soil, bands=bands,
         frequency_step_hz=steps, supports=supports, wires=wires, receiver=receiver, electrodes=electrodes,
-        stations=stations, field_strength_v_per_m=field_strength, plan=plan, notes=notes, raw=raw,
+        stations=stations, field_strength_v_per_m=field_strength, plan=plan, notes=soil_notes + notes, raw=raw,
         latitude_deg=position[0] if position else None, longitude_deg=position[1] if position else None, **night,
     )
 
@@ -553,6 +612,8 @@ def _bands(r: TableReader, site_t) -> list:
     value = site_t.get("bands", ["mf"])
     if not isinstance(value, list) or not value:
         r.fail("site.bands", value, 'expected a list such as ["mf"], ["lf", "mf", "hf"] or [{from = "500 kHz", to = "1.7 MHz"}]')
+    if len(value) > MAX_BAND_ENTRIES:
+        r.fail(f"site.bands[{MAX_BAND_ENTRIES}]", f"{len(value)} bands", f"too many bands: at most {MAX_BAND_ENTRIES} entries")
     out = []
     for i, item in enumerate(value):
         key = f"site.bands[{i}]"
@@ -562,6 +623,7 @@ def _bands(r: TableReader, site_t) -> list:
                 r.fail(key, item, "expected a band name: " + ", ".join(f'"{n}"' for n in NAMED_BANDS))
             out += named
         elif isinstance(item, dict):
+            r.check_keys(item, key, {"from", "to", "name"})
             lo = r.quantity(item, key, "from", units.FREQUENCY_UNITS, "a frequency", "Hz")
             hi = r.quantity(item, key, "to", units.FREQUENCY_UNITS, "a frequency", "Hz")
             if lo is None or hi is None or hi <= lo:
@@ -587,7 +649,39 @@ def _steps(r: TableReader, site_t) -> dict:
     return {"all": step}
 
 
-def _soil(r: TableReader, value, key) -> SoilSpec:
+def sweep_count(bands, step_hz: float) -> int:
+    """Frequencies a sweep of ``bands`` at ``step_hz`` computes (before shared edges are merged).
+
+    >>> sweep_count([("MF broadcast", 520e3, 1710e3)], 10e3)
+    120
+    """
+    return sum(min(MAX_POINTS_PER_BAND, max(2, math.ceil((hi - lo) / step_hz) + 1)) for _n, lo, hi in bands)
+
+
+def check_sweep_size(bands, step_hz: float, where: str) -> None:
+    """Raise :class:`ValueError` with a message for the user when a sweep exceeds :data:`MAX_FREQUENCIES`."""
+    n = sweep_count(bands, step_hz)
+    if n > MAX_FREQUENCIES:
+        raise ValueError(f"{where}: a step of {step_hz:g} Hz over these bands gives {n:,} frequencies; at most "
+                         f"{MAX_FREQUENCIES:,} are computed: use a coarser step or fewer bands")
+
+
+SOIL_CHOICES = ("expected a soil category (" + ", ".join(f'"{c}"' for c in SOILS) + ") or a word for the ground ("
+                + ", ".join(f'"{w}"' for w in SOIL_WORDS) + ")")
+
+
+def soil_base(r: TableReader, written, key, notes: list) -> Soil:
+    """The soil category a category name or a homeowner's word stands for; the mapping goes into ``notes``."""
+    found = soil_category(written) if isinstance(written, str) else None
+    if found is None:
+        r.fail(key, written, SOIL_CHOICES)
+    category, note = found
+    if note and f"{key}: {note}" not in notes:
+        notes.append(f"{key}: {note}")
+    return SOILS[category]
+
+
+def _soil(r: TableReader, value, key, notes: list) -> SoilSpec:
     as_text = isinstance(value, str)
     if as_text:
         value = {"category": value}
@@ -597,17 +691,14 @@ def _soil(r: TableReader, value, key) -> SoilSpec:
     category = value.get("category")
     base: Soil | None = None
     if category is not None:
-        if not isinstance(category, str) or category.strip().lower().replace(" ", "-").replace("_", "-") not in SOILS:
-            r.fail(key if as_text else f"{key}.category", category,
-                   "expected a soil category: " + ", ".join(f'"{s}"' for s in SOILS))
-        base = SOILS[category.strip().lower().replace(" ", "-").replace("_", "-")]
+        base = soil_base(r, category, key if as_text else f"{key}.category", notes)
     sigma = None
     if "conductivity" in value:
-        sigma = r.quantity(value, key, "conductivity", {"s/m": 1.0, "ms/m": 1e-3}, "a conductivity", "S/m", positive=False)
+        sigma = r.quantity(value, key, "conductivity", units.CONDUCTIVITY_UNITS, "a conductivity", "S/m", positive=False)
         if sigma <= 0:
             r.fail(f"{key}.conductivity", value["conductivity"], "a conductivity must be greater than zero (S/m)")
     if "resistivity" in value:
-        rho = r.quantity(value, key, "resistivity", {"ohm m": 1.0, "ohm-m": 1.0, "ohm·m": 1.0, "ω·m": 1.0, "ωm": 1.0, "ohm*m": 1.0}, "a resistivity", "ohm m", positive=False)
+        rho = r.quantity(value, key, "resistivity", units.RESISTIVITY_UNITS, "a resistivity", "ohm m", positive=False)
         if rho <= 0:
             r.fail(f"{key}.resistivity", value["resistivity"], "a resistivity must be greater than zero (ohm m)")
         if sigma is not None:
@@ -675,7 +766,7 @@ def wire_size(r: TableReader, t: dict, key: str, default: WireSize | None) -> Wi
         d = r.length(t, key, "diameter", positive=True)
         desc = f"{d * 1e3:g} mm diameter"
     else:
-        area = r.quantity(t, key, "cross_section", {"mm2": 1e-6, "mm²": 1e-6, "mm^2": 1e-6, "m2": 1.0}, "a cross-section", "mm2")
+        area = r.quantity(t, key, "cross_section", units.AREA_UNITS, "a cross-section", "mm2")
         d = 2.0 * math.sqrt(area / math.pi)
         desc = f"{area * 1e6:g} mm² cross-section"
     if d > 0.2:
@@ -688,6 +779,10 @@ def wire_size(r: TableReader, t: dict, key: str, default: WireSize | None) -> Wi
 
 def _supports(r: TableReader, raw) -> dict:
     table = r.table(raw, "", "supports")
+    if len(table) > MAX_SUPPORTS:
+        name = list(table)[MAX_SUPPORTS]
+        r.fail(f"supports.{shown_key(name)}", f"{len(table)} supports",
+               f"too many supports: a site names at most {MAX_SUPPORTS}")
     out = {}
     for name, t in table.items():
         key = f"supports.{shown_key(name)}"
@@ -702,6 +797,8 @@ def _supports(r: TableReader, raw) -> dict:
             r.fail(f"{key}.height", t["height"], "a point below ground: a support height is measured up from the ground")
         if h == 0:
             r.fail(f"{key}.height", t["height"], "a support of zero height would lay the wire on the ground; expected a height above 0")
+        if h < MIN_HEIGHT_M:
+            r.fail(f"{key}.height", t["height"], f"a support lower than {MIN_HEIGHT_M * 100:g} cm; check the number and its unit")
         kind = r.string(t, key, "kind", default="other", choices=SUPPORT_KINDS)
         tol = r.length(t, key, "height_tolerance", default=HEIGHT_TOLERANCE_M[kind])
         if tol < 0:
@@ -768,6 +865,10 @@ def _runs(r: TableReader, raw, default_size) -> list:
         if np.any(pts[:, 2] <= 0):
             j = int(np.argmax(pts[:, 2] <= 0))
             r.fail(f"{key}.points[{j}]", t["points"][j], "an aerial point at or below ground; expected a height above 0")
+        if np.any(pts[:, 2] < MIN_HEIGHT_M):
+            j = int(np.argmax(pts[:, 2] < MIN_HEIGHT_M))
+            r.fail(f"{key}.points[{j}]", t["points"][j], f"an aerial point lower than {MIN_HEIGHT_M * 100:g} cm above "
+                   "ground; check the number and its unit")
         size = wire_size(r, t, key, default_size)
         name = r.string(t, key, "name", default=f"run {i + 1}")
         out.append(WireRun(name, "aerial", pts, size, key, (None,) * len(pts)))
@@ -788,6 +889,9 @@ def _receiver(r: TableReader, raw) -> Receiver:
     h = r.length(t, key, "height", default=0.0)
     if h < 0:
         r.fail("receiver.height", t["height"], "a point below ground: heights are measured up from the ground")
+    if 0 < h < MIN_HEIGHT_M:
+        r.fail("receiver.height", t["height"], f"a height between 0 and {MIN_HEIGHT_M * 100:g} cm; write 0 for a "
+               "receiver at ground level, or check the number and its unit")
     coupling = r.string(t, key, "coupling", default="direct", choices=COUPLINGS)
     inductance = None
     coil = None
@@ -955,17 +1059,40 @@ def _on_any_wire(point, wires) -> bool:
     return False
 
 
-_GAS_WORDS = ("gas",)
+#: Gas in any spelling, case or punctuation ("gas-pipe", "Gas, yellow pipe", "GAS", "gaspipe", "natural_gas"),
+#: but not a gasket.
+_GAS = re.compile(r"gas(?!ket)", re.IGNORECASE)
+#: A central-heating pipe or radiator ("radiator", "heating pipe", "under-floor heating", "CH pipe").
+_HEATING = re.compile(r"radiator|heating|\bch[\s_-]*pipe", re.IGNORECASE)
+
+GAS_REFUSAL = ("refused: gas piping is never an earth electrode (fire and explosion risk; codes forbid it). "
+               "Use a driven rod, buried wire or a continuous metal cold-water pipe")
+HEATING_REFUSAL = ("refused: a radiator or heating pipe is not an earth. A heating circuit is a closed loop inside the "
+                   "building that reaches the ground, if at all, only through the boiler's bonding; plastic pipe, "
+                   "valves and pumps break it, and a fault current on it would appear on every radiator. Use a "
+                   "driven rod, buried wire or the incoming metal cold-water main")
+
+
+def earth_text_refusal(text) -> str | None:
+    """The refusal for free text that names gas piping or a heating pipe as an earth, else None.
+
+    >>> earth_text_refusal("the Gas-pipe by the boiler")[:36]
+    'refused: gas piping is never an eart'
+    >>> earth_text_refusal("copper rod by the gasket store") is None
+    True
+    """
+    text = str(text).replace("_", " ")
+    if _GAS.search(text):
+        return GAS_REFUSAL
+    if _HEATING.search(text):
+        return HEATING_REFUSAL
+    return None
 
 
 def _earth(r: TableReader, raw, receiver: Receiver, default_size, soil) -> tuple:
     t = r.table(raw, "", "earth")
-    for name in t:
-        if any(g in name.lower() for g in _GAS_WORDS):
-            r.fail(f"earth.{name}", t[name], "refused: gas piping is never an earth electrode (fire and explosion risk; "
-                   "codes forbid it). Use a driven rod, buried wire or a continuous metal cold-water pipe")
-    r.check_keys(t, "earth", {"lead_via", "notes", "lead"} | set(EARTH_KINDS))
     _refuse_gas_anywhere(r, t, "earth")
+    r.check_keys(t, "earth", {"lead_via", "notes", "lead"} | set(EARTH_KINDS))
     electrodes: list[Electrode] = []
     wires: list[WireRun] = []
     notes: list[str] = []
@@ -1029,6 +1156,10 @@ def _earth(r: TableReader, raw, receiver: Receiver, default_size, soil) -> tuple
             j = int(np.argmax(pts[:, 2] <= 0))
             r.fail(f"{key}.points[{j}]", cp["points"][j], "a counterpoise is insulated above ground: expected a height above 0 "
                    "(a wire in the ground is a buried wire: use [[earth.buried_wires]])")
+        if np.any(pts[:, 2] < MIN_HEIGHT_M):
+            j = int(np.argmax(pts[:, 2] < MIN_HEIGHT_M))
+            r.fail(f"{key}.points[{j}]", cp["points"][j], f"a counterpoise point lower than {MIN_HEIGHT_M * 100:g} cm "
+                   "above ground; check the number and its unit")
         size = wire_size(r, cp, key, default_size)
         wires.append(WireRun(r.string(cp, key, "name", default=f"counterpoise {i + 1}"), "counterpoise", pts, size, key, (None,) * len(pts)))
     grounded = [e for e in electrodes]
@@ -1057,19 +1188,25 @@ def _earth(r: TableReader, raw, receiver: Receiver, default_size, soil) -> tuple
 
 
 def _refuse_gas_anywhere(r: TableReader, t, key):
+    """Refuse gas piping or a heating pipe named anywhere in the earth: a key or any text under [earth]."""
     for name, value in t.items():
-        full = f"{key}.{name}"
+        full = f"{key}.{shown_key(name)}"
+        why = earth_text_refusal(name)
+        if why:
+            r.fail(full, value, why)
         if isinstance(value, dict):
             _refuse_gas_anywhere(r, value, full)
         elif isinstance(value, list):
             for i, v in enumerate(value):
                 if isinstance(v, dict):
                     _refuse_gas_anywhere(r, v, f"{full}[{i}]")
-        elif isinstance(value, str) and name in ("contents", "kind", "notes") and "gas" in value.lower().split():
-            r.fail(full, value, "refused: gas piping is never an earth electrode (fire and explosion risk; codes forbid it)")
+                elif isinstance(v, str) and earth_text_refusal(v):
+                    r.fail(f"{full}[{i}]", v, earth_text_refusal(v))
+        elif isinstance(value, str) and earth_text_refusal(value):
+            r.fail(full, value, earth_text_refusal(value))
 
 
-def _stations(r: TableReader, raw, soil: SoilSpec, site_position=None) -> list:
+def _stations(r: TableReader, raw, soil: SoilSpec, notes: list, site_position=None) -> list:
     out = []
     tables = r.array_of_tables(raw, "", "stations")
     if len(tables) > MAX_STATIONS:
@@ -1108,17 +1245,14 @@ def _stations(r: TableReader, raw, soil: SoilSpec, site_position=None) -> list:
                 r.fail(f"{key}.latitude", t["latitude"], "expected a station on the same planet side: at most "
                        f"{MAX_STATION_DISTANCE_M / 1e3:g} km away")
         else:
-            d = r.length(t, key, "distance", required=True, positive=True, maximum=MAX_STATION_DISTANCE_M)
+            d = r.length(t, key, "distance", required=True, positive=True, maximum=MAX_STATION_DISTANCE_M,
+                         units_table=units.DISTANCE_UNITS)
         if d < MIN_STATION_DISTANCE_M:
             r.fail(f"{key}.distance", t["distance"], f"expected a distance of at least {MIN_STATION_DISTANCE_M:g} m "
                    "(the ground-wave model needs the receiver well away from the transmitter)")
         st_soil = soil
         if "soil" in t:
-            s = t["soil"]
-            norm = s.strip().lower().replace(" ", "-").replace("_", "-") if isinstance(s, str) else None
-            if norm not in SOILS:
-                r.fail(f"{key}.soil", s, "expected a soil category: " + ", ".join(f'"{c}"' for c in SOILS))
-            b = SOILS[norm]
+            b = soil_base(r, t["soil"], f"{key}.soil", notes)
             st_soil = SoilSpec(b.name, b.relative_permittivity, b.conductivity_s_m, b.conductivity_low_s_m,
                                b.conductivity_high_s_m, f"ITU-R P.527 category: {b.description}")
         out.append(Station(name, f, p, d, st_soil, key, where[0] if where else None, where[1] if where else None,
@@ -1219,6 +1353,43 @@ def _check_wires(r: TableReader, wires):
             r.fail(w.key, w.size.described_as,
                    f"the wire radius ({w.size.radius_m * 1e3:g} mm) is not small next to a {seg[j]:.3g} m piece of "
                    f"\"{w.name}\"; each straight piece must be at least {MIN_LENGTH_TO_RADIUS:g} radii long")
+
+
+def _check_counterpoise(r: TableReader, wires, receiver: Receiver):
+    """A counterpoise wire starts at the receiver's earth terminal (or on a counterpoise wire that does) and
+    touches no aerial wire: one from anywhere else has no place in the circuit (the aerial's end is not the
+    receiver's earth side), and one that touches the aerial shorts the aerial to the earth side."""
+    from aerial.models.segments import FEED_GAP_M
+
+    def lifted(p):
+        p = np.array(p, dtype=float).reshape(-1, 3)
+        p[:, 2] = np.maximum(p[:, 2], FEED_GAP_M)  # as the electrical models take them
+        return p
+
+    feed = lifted([receiver.x_m, receiver.y_m, receiver.height_m])[0]
+    aerial = [w for w in wires if w.role in ("aerial", "lead-in")]
+    joined: list[WireRun] = []
+    for w in [w for w in wires if w.role == "counterpoise"]:
+        pts = lifted(w.points_m)
+        raw_pts = np.asarray(w.points_m, float)
+        for j, q in enumerate(raw_pts):
+            if np.linalg.norm(pts[j] - feed) <= JOIN_TOLERANCE_M:
+                continue  # the receiver's terminals: aerial and earth sides meet there across the feed gap
+            hit = next((a for a in aerial if _on_any_wire(q, [a])), None)
+            if hit is not None:
+                r.fail(f"{w.key}.points[{j}]", [round(float(v), 6) for v in q],
+                       f'this counterpoise point is on the aerial ("{hit.name}"), which would short the aerial to the '
+                       "earth side; a counterpoise starts at the receiver's earth terminal "
+                       f"([{receiver.x_m:g}, {receiver.y_m:g}] at {receiver.height_m:g} m)")
+        ends = pts[[0, -1]]
+        at_feed = np.min(np.linalg.norm(ends - feed, axis=1)) <= JOIN_TOLERANCE_M
+        on_other = any(_on_any_wire(e, [o]) for e in raw_pts[[0, -1]] for o in joined)
+        if not (at_feed or on_other):
+            r.fail(f"{w.key}.points[0]", [round(float(v), 6) for v in raw_pts[0]],
+                   "a counterpoise starts at the receiver's earth terminal "
+                   f"([{receiver.x_m:g}, {receiver.y_m:g}] at {receiver.height_m:g} m, [receiver] at and height) or "
+                   "on another counterpoise wire that does; neither end of this one is there")
+        joined.append(w)
 
 
 def _check_table_count(r: TableReader, raw):
