@@ -6,6 +6,7 @@ Sites here are the invented examples in site_examples/ and small invented test i
 import hashlib
 import json
 
+import numpy as np
 import pytest
 
 from aerial.cli import main
@@ -56,6 +57,78 @@ def test_report_json_holds_the_contract(capsys, path):
     for key in REQUIRED_AERIAL_KEYS[:-1]:
         assert None not in (data["aerial"][key] if key != "impedance_ohm" else sum(data["aerial"][key], []))
     assert hashlib.sha256(path.read_bytes()).hexdigest() == before
+    check_units_and_ranges(data)
+    check_figures_plausible(data)
+
+
+# Units of every numeric key: the suffix names the unit (docs/json-output.md). A few plain counts and
+# dimensionless names are listed; anything else numeric must carry a unit suffix.
+UNIT_BOUNDS = {  # suffix: (low, high) for the magnitude of a plausible value in that unit
+    "_hz": (0.0, 30e6), "_m": (0.0, 1e7), "_f": (0.0, 1e-6), "_h": (1e-8, 1.0), "_ohm": (0.0, 1e9),
+    "_w": (0.0, 1e7), "_v": (0.0, 1e3), "_v_per_m": (0.0, 10.0), "_s_m": (0.0, 10.0), "_db": (0.0, 400.0),
+    "_q": (0.0, 1e4), "_ratio": (0.0, 10.0),
+}
+PLAIN_NUMBERS = {"efficiency", "relative_permittivity", "turns", "whole_turns", "solver_iterations", "count",
+                 "points", "iterations", "score", "rank"}
+
+
+def _numbers(obj, key=""):
+    if isinstance(obj, dict):
+        for k, v in obj.items():
+            yield from _numbers(v, k)
+    elif isinstance(obj, list):
+        for v in obj:
+            yield from _numbers(v, key)
+    elif isinstance(obj, (int, float)) and not isinstance(obj, bool):
+        yield key, float(obj)
+
+
+def check_units_and_ranges(data):
+    for key, v in _numbers(data):
+        unit = next((u for u in sorted(UNIT_BOUNDS, key=len, reverse=True) if key.endswith(u)), None)
+        assert unit is not None or key in PLAIN_NUMBERS, f"numeric key without a unit: {key}"
+        if unit is not None:
+            lo, hi = UNIT_BOUNDS[unit]
+            assert lo <= abs(v) <= hi, f"{key} = {v!r} is outside {lo}–{hi}"
+
+
+def check_figures_plausible(data):
+    """Each aerial figure against an outside relation, at the frequencies where the closed forms claim validity
+    (total wire length at most 1/8 wavelength; beyond it the report flags the figures)."""
+    c0 = 299_792_458.0  # scipy.constants.c
+    f = np.array(data["frequencies_hz"])
+    assert np.all((f >= 10e3) & (f <= 30e6))  # the bands aerial covers: 10 kHz – 30 MHz
+    a = {k: np.array(v) for k, v in data["aerial"].items() if k != "model"}
+    geo = data["geometry"]
+    ok = geo["total_length_m"] <= c0 / f / 8
+    assert ok.any()
+    h_max = geo["max_height_m"]
+    he, rr, rs = a["effective_height_m"][ok], a["radiation_resistance_ohm"][ok], a["series_resistance_ohm"][ok]
+    lam = c0 / f[ok]
+    # h_e of a wire no higher than h_max lies in (0, h_max] (IEEE Std 145 definition; Balanis ch. 4)
+    assert np.all((he > 0) & (he <= h_max * 1.001))
+    # Rr = 160π²(h_e/λ)² for an electrically short aerial over perfect ground (Balanis ch. 4), within 2 %
+    np.testing.assert_allclose(rr, 160 * np.pi**2 * (he / lam) ** 2, rtol=0.02)
+    # capacitance of a backyard wire: tens to hundreds of picofarads (common practice); 5 pF – 5 nF
+    assert np.all((a["capacitance_f"][ok] > 5e-12) & (a["capacitance_f"][ok] < 5e-9))
+    # the loss budget: R = Rr + wire + earth, η = Rr/R, R = Re Z, V = E·h_e, P = V²/4R (circuit definitions)
+    np.testing.assert_allclose(rs, rr + a["conductor_loss_ohm"][ok] + a["ground_loss_ohm"][ok], rtol=1e-9)
+    np.testing.assert_allclose(a["efficiency"][ok], rr / rs, rtol=1e-9)
+    np.testing.assert_allclose(a["impedance_ohm"][ok][:, 0], rs, rtol=1e-9)
+    e = data["site"]["field_strength_v_per_m"]
+    np.testing.assert_allclose(a["open_circuit_voltage_v"][ok], e * he, rtol=1e-9)
+    np.testing.assert_allclose(a["available_power_w"][ok], (e * he) ** 2 / (4 * rs), rtol=1e-9)
+    assert np.all(a["reactance_ohm"][ok] < 0)  # a wire shorter than λ/8 is capacitive
+    earth = data["earth"]
+    assert 0 < earth["resistance_low_ohm"] <= earth["resistance_ohm"] <= earth["resistance_high_ohm"]
+    for st in data["stations"]:
+        # ITU-R P.368: E0 = 300 √P_kW / d_km mV/m over perfect earth; a real ground only attenuates (|F| ≤ 1)
+        e0 = 0.3 * np.sqrt(st["power_w"] / 1e3) / (st["distance_m"] / 1e3)
+        assert 0 < st["field_v_per_m"] <= e0 * (1 + 1e-9)
+        assert st["field_v_per_m"] == pytest.approx(e0 * st["ground_attenuation_ratio"], rel=1e-6)
+        assert st["signal_to_noise_db"] == pytest.approx(
+            20 * np.log10(st["field_v_per_m"] / st["noise_field_v_per_m"]), abs=0.01)
+        assert st["verdict"] in ("clearly heard", "marginal", "not heard")
 
 
 def test_report_without_site_uses_builtin_example(capsys):
@@ -119,9 +192,14 @@ def test_coil_helper_gives_turns_and_length(capsys):
     code, out, err = run(capsys, "coil", "--diameter", "50 mm", "--wire", "26 AWG", "--inductance", "240 uH", "--json")
     assert code == 0, err
     data = json.loads(out)
-    # Wheeler's formula / Nagaoka's current sheet: a 50 mm form needs roughly 70 close-wound turns of
-    # 26 AWG for 240 uH (consistency with tests/models/test_coil.py, computed from the formula)
-    assert 60 < data["turns"] < 80
+    # Wheeler's formula (Proc. IRE 16, 1928), L[µH] = d²n²/(18d + 40l), d and l in inches, solved here for n
+    # with the current sheet at the wire centres (d = 50 mm + 0.405 mm, 26 AWG per ASTM B258) and close
+    # winding (l = n × 0.405 mm): 69.98 turns. Wheeler states about 1 % for l > 0.4 d (here l/d = 0.56), so 1.5 %.
+    d_in, p_in, l_uh = (50e-3 + 0.405e-3) / 25.4e-3, 0.405e-3 / 25.4e-3, 240.0
+    n = (40 * p_in * l_uh + ((40 * p_in * l_uh) ** 2 + 72 * d_in**3 * l_uh) ** 0.5) / (2 * d_in**2)
+    assert n == pytest.approx(69.98, abs=0.01)
+    assert data["turns"] == pytest.approx(n, rel=0.015)
+    assert data["wire_diameter_m"] == pytest.approx(0.405e-3, rel=0.002)
     assert data["winding_length_m"] == pytest.approx(data["whole_turns"] * data["wire_diameter_m"], rel=1e-6)
     assert data["unloaded_q"] > 0
 

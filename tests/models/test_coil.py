@@ -74,10 +74,14 @@ def test_isolated_wire_factor_matches_exact_internal_impedance():
 
 
 def test_coil_q_in_plausible_range():
-    # common practice: a close-wound air-cored MF coil of thin enamelled wire has Q of 100-300
+    # Common practice: a close-wound air-cored MF coil of thin enamelled wire has Q of 100-300 (no published
+    # figure is narrower for a coil without a stated former and finish, so the window is the trade's).
+    # Outside physics: deep in the skin-effect regime R_ac ∝ √f while X ∝ f, so Q ∝ √f: Q(1 MHz)/Q(0.5 MHz)
+    # = √2 within 2 % (the wire is about 5 skin depths across at 0.5 MHz).
     L = float(coil.solenoid_inductance(0.06, 0.5e-3, 63))
     r = coil.coil_loss(np.array([0.5e6, 1e6]), L, 0.06, 0.5e-3, 63)
-    assert np.all((r.unloaded_q > 80) & (r.unloaded_q < 400))
+    assert np.all((r.unloaded_q > 100) & (r.unloaded_q < 300))
+    assert r.unloaded_q[1] / r.unloaded_q[0] == pytest.approx(np.sqrt(2), rel=0.02)
     assert np.all(r.ac_factor > 1)
 
 
