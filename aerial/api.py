@@ -55,11 +55,14 @@ def refusal_check(site) -> list[str]:
 
 
 def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=None, force=False, ground="perfect",
-               allow_large=False) -> dict:
-    """Load a site (None: the built-in example), run the whole chain, optionally draw pictures.
+               allow_large=False, page=None) -> dict:
+    """Load a site (None: the built-in example), run the whole chain, optionally draw pictures and a page.
 
     ``allow_large`` lets a full-wave sweep run past the memory and time budget
-    (:func:`aerial.estimate.fullwave_sweep.check_full_wave_budget`).
+    (:func:`aerial.estimate.fullwave_sweep.check_full_wave_budget`). ``page``
+    names an HTML file to write the shareable page to
+    (:func:`aerial.outputs.page_report.report_page`); its path comes back as
+    ``result["page"]``.
     """
     from aerial.estimate.assemble import analyse
     from aerial.site.reader import load_site
@@ -70,6 +73,8 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
         from aerial.outputs.pictures import check_picture_folder
 
         check_picture_folder(pictures, force, site)
+    if page:
+        check_page_file(page, force, site)
     result = analyse(site, method="full-wave" if full_wave else "closed-form", step_hz=step_hz, progress=progress,
                      ground=ground, allow_large=allow_large)
     if clearance_warnings:
@@ -78,10 +83,35 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
         from aerial.outputs.pictures import draw_report_pictures
 
         result["pictures"] = draw_report_pictures(result, pictures, force=force, protected=(site.path,))
+    if page:
+        from aerial.outputs.files import write_atomic
+        from aerial.outputs.page_report import report_page
+        from aerial.outputs.site_drawings import site_surroundings
+
+        text = report_page(result, site_surroundings(site))
+        result["page"] = str(write_atomic(page, text, force=force, protected=(site.path,)))
     return result
 
 
-def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allow_large=False, progress=None) -> dict:
+def check_page_file(page, force, site) -> None:
+    """Fail early (before any computing) if the page cannot be written: an .html name, free or ``force``."""
+    from pathlib import Path
+
+    from aerial.outputs.files import check_writable
+
+    suffix = Path(page).suffix.lower()
+    if suffix not in (".html", ".htm"):
+        raise AerialError(f"--page {page}: expected a file name ending in .html")
+    check_writable(page, force, protected=(site.path,))
+
+
+def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allow_large=False, progress=None,
+               page=None) -> dict:
+    """Search the site's supports for the best safe layouts; optionally draw the plan and write the page.
+
+    ``page`` names an HTML file for the shareable page
+    (:func:`aerial.outputs.page_layout.layout_page`); its path comes back as ``result["page"]``.
+    """
     from aerial.site.reader import load_site
 
     site = load_site(path)
@@ -93,13 +123,30 @@ def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allo
         from aerial.outputs.files import check_writable
 
         check_writable(picture, force, protected=(site.path,))
-    draw = None
+    if page:
+        check_page_file(page, force, site)
+    writer = None
     if picture:
         from aerial.outputs.plan_drawing import plan_picture_writer
 
-        draw = plan_picture_writer(picture, force=force)
-    return plan_layouts(site, best=best, full_wave=full_wave, draw=draw, allow_large=allow_large,
-                        progress=progress)
+        writer = plan_picture_writer(picture, force=force)
+    seen = {}
+
+    def draw(site_, plan, layouts, zones):
+        from aerial.outputs.plan_drawing import build_scene
+
+        seen["scene"] = build_scene(site_, plan, layouts, zones)
+        return writer(site_, plan, layouts, zones) if writer else None
+
+    result = plan_layouts(site, best=best, full_wave=full_wave, draw=draw if (picture or page) else None,
+                          allow_large=allow_large, progress=progress)
+    if page:
+        from aerial.outputs.files import write_atomic
+        from aerial.outputs.page_layout import layout_page
+
+        text = layout_page(result, seen.get("scene"))
+        result["page"] = str(write_atomic(page, text, force=force, protected=(site.path,)))
+    return result
 
 
 def coil_helper(*, diameter, wire, turns=None, inductance=None, pitch=None, strands=1, frequency="1 MHz") -> dict:

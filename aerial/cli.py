@@ -60,7 +60,9 @@ def build_parser() -> argparse.ArgumentParser:
                    help="full wave: treat the soil by the reflection-coefficient approximation instead of a perfect ground")
     r.add_argument("--step", metavar="FREQ", help='sweep step, e.g. "1 kHz" (default depends on the band)')
     r.add_argument("--pictures", metavar="DIR", help="write SVG pictures of impedance, capacitance and tuning range into DIR")
-    r.add_argument("--force", action="store_true", help="replace picture files that already exist")
+    r.add_argument("--page", metavar="FILE",
+                   help="also write the whole report as one self-contained HTML page (pictures inside) to FILE, to share or print")
+    r.add_argument("--force", action="store_true", help="replace picture or page files that already exist")
     r.add_argument("--allow-large", action="store_true",
                    help="full wave: run a sweep beyond the stated memory and time budget")
 
@@ -71,7 +73,9 @@ def build_parser() -> argparse.ArgumentParser:
     lay.add_argument("--best", type=int, default=5, metavar="N", help="how many layouts to show (default 5)")
     lay.add_argument("--full-wave", action="store_true", help="refine the winning layout with the wire solver")
     lay.add_argument("--picture", metavar="FILE", help="write a plan drawing (SVG, or PNG by extension) to FILE")
-    lay.add_argument("--force", action="store_true", help="replace FILE if it exists")
+    lay.add_argument("--page", metavar="FILE",
+                     help="also write the ranked layouts, refusals and code checklist as one self-contained HTML page to FILE")
+    lay.add_argument("--force", action="store_true", help="replace the picture or page file if it exists")
     lay.add_argument("--allow-large", action="store_true", help="run a search beyond the stated time and memory budget")
 
     coil = sub.add_parser("coil", help="single-layer coil helper: inductance from turns, or turns for an inductance",
@@ -147,6 +151,12 @@ def _render(args, result, renderer_name: str) -> int:
     return EXIT_OK
 
 
+def _note_page(result) -> None:
+    """Say on stderr where the shared page went (stdout stays the report or the JSON)."""
+    if result.get("page"):
+        sys.stderr.write(f"aerial: page written to {one_line(result['page'])}\n")
+
+
 def cmd_check(args) -> int:
     from aerial.api import check_site
 
@@ -169,7 +179,9 @@ def cmd_report(args) -> int:
     with _progress(sys.stderr.isatty() and not args.json) as update:
         result = run_report(args.site, full_wave=args.full_wave, step_hz=step, progress=update,
                             pictures=args.pictures, force=args.force,
-                            ground="lossy" if args.lossy_ground else "perfect", allow_large=args.allow_large)
+                            ground="lossy" if args.lossy_ground else "perfect", allow_large=args.allow_large,
+                            page=args.page)
+    _note_page(result)
     return _render(args, result, "render_report")
 
 
@@ -180,7 +192,8 @@ def cmd_layout(args) -> int:
         raise AerialError(f"--best {args.best}: expected a whole number from 1 to {MAX_BEST}")
     with _progress(sys.stderr.isatty() and not args.json) as update:
         result = run_layout(args.site, best=args.best, full_wave=args.full_wave, picture=args.picture,
-                            force=args.force, allow_large=args.allow_large, progress=update)
+                            force=args.force, allow_large=args.allow_large, progress=update, page=args.page)
+    _note_page(result)
     return _render(args, result, "render_layout")
 
 

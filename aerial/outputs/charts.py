@@ -1,0 +1,234 @@
+"""Charts of a report's result dict, drawn with matplotlib into SVG text whose words stay text.
+
+Every chart here reads only the result dict of :func:`aerial.estimate.assemble.analyse`
+(no second set of figures) and returns an SVG document as a string. The SVG
+keeps its words as ``<text>`` elements (matplotlib's ``svg.fonttype = "none"``),
+so they can be selected, searched and read by a screen reader. Colours come from
+the Okabe–Ito palette, which stays distinct under the common colour-vision
+deficiencies; no meaning rests on red against green alone (line styles, marker
+shapes and words carry it too). Every axis names its quantity and its unit.
+
+Used by the shared HTML page (:mod:`aerial.outputs.page`) and by the loose SVG
+files of ``aerial report --pictures`` (:mod:`aerial.outputs.pictures`).
+"""
+
+from __future__ import annotations
+
+import io
+import re
+
+import numpy as np
+
+#: Okabe & Ito (2008), "Color Universal Design": distinguishable with the common colour-vision deficiencies.
+PALETTE = {"blue": "#0072B2", "orange": "#E69F00", "sky": "#56B4E9", "green": "#009E73", "yellow": "#F0E442",
+           "vermillion": "#D55E00", "purple": "#CC79A7", "black": "#000000", "grey": "#777777"}
+
+#: Marker and colour per station verdict: the shape and the printed word carry the meaning, not the colour.
+VERDICT_STYLE = {"clearly heard": ("o", PALETTE["blue"]), "marginal": ("s", PALETTE["orange"]),
+                 "not heard": ("X", PALETTE["vermillion"])}
+
+_RC = {"svg.fonttype": "none", "font.family": "sans-serif", "font.size": 9.0, "axes.titlesize": 10.0,
+       "svg.image_inline": True, "text.usetex": False}
+
+
+def plain_label(text) -> str:
+    """A site string made safe for matplotlib: no mathtext (``$``), no leading underscore.
+
+    >>> plain_label("$5 a _night_")
+    '\\\\$5 a _night_'
+    """
+    text = str(text).replace("$", r"\$")
+    return text[1:] if text.startswith("_") else text
+
+
+def new_figure(width_in: float, height_in: float, layout: str | None = "constrained"):
+    """A matplotlib Figure that belongs to no global pyplot state (safe in a library)."""
+    from matplotlib.figure import Figure
+
+    return Figure(figsize=(width_in, height_in), layout=layout)
+
+
+def svg_of(fig, name: str, label: str) -> str:
+    """The figure as an SVG document with text kept as text, deterministic ids and an accessible name.
+
+    ``name`` seeds the ids (so several charts can live in one HTML page without
+    clashing); ``label`` becomes the picture's ``<title>`` and ``aria-label``.
+    """
+    import matplotlib
+    from xml.sax.saxutils import escape, quoteattr
+
+    buf = io.StringIO()
+    with matplotlib.rc_context({**_RC, "svg.hashsalt": f"aerial-{name}"}):
+        fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": "aerial", "Title": label})
+    text = buf.getvalue()
+    # ids unique across charts: matplotlib's ids come from a hash; prefix them with the chart's name
+    text = re.sub(r'id="([^"]+)"', lambda m: f'id="{name}-{m.group(1)}"', text)
+    text = re.sub(r'(url\(#|xlink:href="#|href="#)([^)"]+)', lambda m: f"{m.group(1)}{name}-{m.group(2)}", text)
+    text = text.replace("<svg ", f'<svg role="img" aria-label={quoteattr(label)} class="chart" ', 1)
+    return re.sub(r"(<svg[^>]*>)", lambda m: m.group(1) + f"\n <title>{escape(label)}</title>", text, count=1)
+
+
+def _axes_style(ax) -> None:
+    ax.grid(True, alpha=0.3, linewidth=0.6)
+
+
+def bands_in(result):
+    """(band, mask) for each band with at least two frequencies of the result's grid."""
+    f = np.asarray(result["frequencies_hz"], float)
+    for band in result.get("bands", []):
+        m = (f >= band["from_hz"] - 1e-6) & (f <= band["to_hz"] + 1e-6)
+        if m.sum() >= 2:
+            yield band, m
+
+
+def _range_points(result, key, band):
+    """Frequencies [Hz] and (low, high) of ``ranges[key]`` at the points inside ``band``, or None."""
+    ranges = result.get("ranges") or {}
+    fr = ranges.get("frequencies_hz") or []
+    pairs = ranges.get(key) or []
+    pts = [(f, p[0], p[1]) for f, p in zip(fr, pairs)
+           if p and p[0] is not None and p[1] is not None and band["from_hz"] - 1 <= f <= band["to_hz"] + 1]
+    if len(pts) < 2:
+        return None
+    pts.sort()
+    a = np.array(pts, float)
+    return a[:, 0], a[:, 1], a[:, 2]
+
+
+def _shade_range(ax, result, key, band, scale, label):
+    pts = _range_points(result, key, band)
+    if pts is None:
+        return False
+    f, lo, hi = pts
+    ax.fill_between(f / 1e3, lo * scale, hi * scale, color=PALETTE["sky"], alpha=0.35, linewidth=0,
+                    hatch="///", edgecolor=PALETTE["blue"], label=label)
+    return True
+
+
+def impedance_chart(result) -> str:
+    """Series resistance and reactance at the receiver terminals across each band, tolerance range shaded."""
+    f = np.asarray(result["frequencies_hz"], float)
+    z = np.asarray(result["aerial"]["impedance_ohm"], float).reshape(len(f), 2)
+    bands = list(bands_in(result))
+    fig = new_figure(min(7.0, 3.5 * max(1, len(bands)) + 0.6), 4.4)
+    axes = fig.subplots(2, max(1, len(bands)), squeeze=False)
+    for j, (band, m) in enumerate(bands):
+        ax = axes[0, j]
+        ax.plot(f[m] / 1e3, z[m, 0], color=PALETTE["blue"], linewidth=1.8, label="estimate")
+        _shade_range(ax, result, "series_resistance_ohm", band, 1.0, "range from the stated tolerances")
+        ax.set_ylabel("series resistance [Ω]")
+        ax.set_title(plain_label(band["name"]))
+        ax.legend(loc="best", fontsize=7)
+        _axes_style(ax)
+        ax = axes[1, j]
+        ax.plot(f[m] / 1e3, z[m, 1], color=PALETTE["vermillion"], linewidth=1.8, linestyle="--")
+        ax.set_ylabel("reactance [Ω]")
+        ax.set_xlabel("frequency [kHz]")
+        _axes_style(ax)
+    fig.suptitle(f"Impedance at the receiver terminals ({plain_label(result['aerial']['model'].split(':')[0])})",
+                 fontsize=10)
+    return svg_of(fig, "impedance", "Impedance at the receiver terminals against frequency")
+
+
+def capacitance_chart(result) -> str:
+    """Capacitance the aerial presents across each band, tolerance range shaded."""
+    f = np.asarray(result["frequencies_hz"], float)
+    c = np.asarray(result["aerial"]["capacitance_f"], float)
+    bands = list(bands_in(result))
+    fig = new_figure(min(7.0, 3.5 * max(1, len(bands)) + 0.6), 2.6)
+    axes = fig.subplots(1, max(1, len(bands)), squeeze=False)
+    for j, (band, m) in enumerate(bands):
+        ax = axes[0, j]
+        ax.plot(f[m] / 1e3, c[m] * 1e12, color=PALETTE["blue"], linewidth=1.8, label="estimate")
+        _shade_range(ax, result, "capacitance_f", band, 1e12, "range from the stated tolerances")
+        ax.set_xlabel("frequency [kHz]")
+        ax.set_ylabel("capacitance presented [pF]")
+        ax.set_title(plain_label(band["name"]))
+        ax.legend(loc="best", fontsize=7)
+        _axes_style(ax)
+    fig.suptitle("Capacitance the aerial presents to the tuning circuit", fontsize=10)
+    return svg_of(fig, "capacitance", "Capacitance the aerial presents against frequency")
+
+
+def tuning_chart(result) -> str | None:
+    """Tuned frequency against the capacitor setting, the band shaded and each listed station marked."""
+    tuning = result.get("tuning") or {}
+    curve = tuning.get("range_curve") or {}
+    if not curve.get("capacitor_setting_f"):
+        return None
+    fig = new_figure(7.0, 3.8)
+    ax = fig.subplots()
+    ax.plot(np.asarray(curve["capacitor_setting_f"]) * 1e12, np.asarray(curve["frequency_hz"]) / 1e3,
+            color=PALETTE["blue"], linewidth=2, label="tuned frequency")
+    band = tuning.get("band") or {}
+    if band:
+        ax.axhspan(band["from_hz"] / 1e3, band["to_hz"] / 1e3, color=PALETTE["yellow"], alpha=0.25, linewidth=0,
+                   label=f"band: {plain_label(band.get('name', ''))}")
+        for edge in (band["from_hz"], band["to_hz"]):
+            ax.axhline(edge / 1e3, color=PALETTE["grey"], linestyle="--", linewidth=0.8)
+    for s in result.get("stations") or []:
+        f_khz = s["frequency_hz"] / 1e3
+        ax.axhline(f_khz, color=PALETTE["purple"], linestyle=":", linewidth=0.9)
+        c = s.get("capacitor_setting_f")
+        if c is not None and s.get("tunable", True):
+            ax.plot([c * 1e12], [f_khz], marker="o", color=PALETTE["purple"], markersize=5)
+        ax.annotate(plain_label(s.get("name", "")) + ("" if s.get("tunable", True) else " (out of reach)"),
+                    xy=(1.0, f_khz), xycoords=("axes fraction", "data"), xytext=(-4, 2), textcoords="offset points",
+                    ha="right", va="bottom", fontsize=7, color=PALETTE["black"])
+    ax.set_xlabel("capacitor setting [pF]")
+    ax.set_ylabel("tuned frequency [kHz]")
+    ax.set_title("Tuning range (dotted lines and dots: listed stations)")
+    ax.legend(loc="upper left", fontsize=7)
+    _axes_style(ax)
+    return svg_of(fig, "tuning", "Tuned frequency against capacitor setting, with the band and the stations")
+
+
+def noise_power_at_detector(station) -> float | None:
+    """Man-made noise in the tuned bandwidth carried to the detector like the station [W], or None.
+
+    The station's detector power divided by its signal-to-noise ratio (a field
+    ratio in dB, so the power ratio is 10^(dB/10)): the aerial and the tuned
+    circuit pass noise and signal at the same frequency alike.
+
+    >>> noise_power_at_detector({"detector_power_w": 1e-6, "signal_to_noise_db": 30.0})
+    1e-09
+    """
+    p, snr = station.get("detector_power_w"), station.get("signal_to_noise_db")
+    if p is None or snr is None or p <= 0:
+        return None
+    return float(p / 10 ** (snr / 10))
+
+
+def station_chart(result) -> str | None:
+    """Power at the detector for each station against the man-made noise floor carried with it."""
+    stations = [s for s in result.get("stations") or [] if s.get("detector_power_w")]
+    if not stations:
+        return None
+    fig = new_figure(7.0, 1.5 + 0.4 * len(stations))
+    ax = fig.subplots()
+    y = np.arange(len(stations))[::-1]
+    seen = set()
+    for yi, s in zip(y, stations):
+        p, noise = s["detector_power_w"], noise_power_at_detector(s)
+        marker, colour = VERDICT_STYLE.get(s.get("verdict"), ("D", PALETTE["grey"]))
+        if noise is not None:
+            ax.plot([noise, p], [yi, yi], color=PALETTE["grey"], linewidth=1.5)
+            ax.plot([noise], [yi], marker="|", markersize=14, color=PALETTE["black"],
+                    label=None if "noise" in seen else "man-made noise in the tuned bandwidth")
+            seen.add("noise")
+        verdict = s.get("verdict", "")
+        ax.plot([p], [yi], marker=marker, markersize=8, linestyle="none", color=colour,
+                label=None if verdict in seen else verdict)
+        seen.add(verdict)
+        ax.annotate(f" {plain_label(verdict)}", xy=(p, yi), xytext=(6, 0), textcoords="offset points",
+                    va="center", fontsize=7)
+    ax.set_xscale("log")
+    ax.set_yticks(y, [plain_label(s.get("name", "")) for s in stations])
+    ax.set_ylim(-0.7, len(stations) - 0.3)
+    lo, hi = ax.get_xlim()
+    ax.set_xlim(lo, hi * 30)  # room for the verdict words
+    ax.set_xlabel("power at the detector [W]")
+    ax.set_title("Each station at the detector, against the noise that comes with it")
+    fig.legend(loc="outside lower center", ncols=4, fontsize=7, frameon=False)
+    _axes_style(ax)
+    return svg_of(fig, "stations", "Power at the detector for each station against the man-made noise")

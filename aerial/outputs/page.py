@@ -1,0 +1,218 @@
+"""One self-contained HTML page to share: the report or the layout plan, with inline SVG pictures.
+
+The page is built from the same result dict as the terminal report and the
+JSON (one rendering path per format, no second set of figures). It loads
+nothing from the network: the style sheet and the pictures are inside the file,
+and its Content-Security-Policy forbids any fetch and any script. Every string
+that came from the site file is HTML-escaped, the site file is named without
+its folder, and the user's home folder and working folder are removed from any
+text, so the page can be passed on as it is. A print style sheet lays it out
+on A4 or US Letter.
+
+Sections the page does not know by name (keys other parts of aerial add to the
+result later) are still shown, as generic tables and lists.
+"""
+
+from __future__ import annotations
+
+import html
+import os
+from importlib import resources
+from pathlib import Path
+
+from aerial.core.version import __version__
+from aerial.outputs.terminal import eng
+
+#: Content-Security-Policy of the page: nothing may be fetched and no script may run.
+CSP = "default-src 'none'; style-src 'unsafe-inline'; img-src data:; base-uri 'none'; form-action 'none'"
+
+#: Unit of a JSON key by its suffix (longest first), for generic tables.
+SUFFIX_UNITS = (("_v_per_m", "V/m"), ("_s_m", "S/m"), ("_ohm", "Ω"), ("_hz", "Hz"), ("_db", "dB"), ("_w", "W"),
+                ("_v", "V"), ("_f", "F"), ("_h", "H"), ("_m", "m"), ("_ratio", "%"), ("_s", "s"), ("_a", "A"))
+
+#: Symbols beside each station verdict: the word and the shape carry the meaning, the colour only helps.
+VERDICT_MARK = {"clearly heard": "●", "marginal": "■", "not heard": "✕"}
+
+
+def esc(value) -> str:
+    """HTML-escaped text of any value (quotes too: safe in attributes).
+
+    >>> esc('<script>alert("x")</script>')
+    '&lt;script&gt;alert(&quot;x&quot;)&lt;/script&gt;'
+    """
+    return html.escape("" if value is None else str(value), quote=True)
+
+
+def stylesheet() -> str:
+    """The page's CSS (package data ``aerial/outputs/page.css``)."""
+    return resources.files("aerial.outputs").joinpath("page.css").read_text(encoding="utf-8")
+
+
+# --------------------------------------------------------------------------- values
+
+
+def key_label(key: str) -> str:
+    """A column heading from a JSON key: the unit suffix dropped, underscores as spaces.
+
+    >>> key_label("detector_power_w")
+    'detector power'
+    """
+    for suffix, _ in SUFFIX_UNITS:
+        if key.endswith(suffix):
+            key = key[: -len(suffix)]
+            break
+    return key.replace("_", " ")
+
+
+def format_value(key: str, value) -> str:
+    """Plain text of one JSON value, its unit taken from the key's suffix.
+
+    >>> format_value("bandwidth_hz", 8550.0), format_value("share_ratio", 0.25), format_value("x", None)
+    ('8.55 kHz', '25 %', '—')
+    """
+    if value is None:
+        return "—"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, str):
+        return value
+    if isinstance(value, dict):
+        return "; ".join(f"{key_label(k)}: {format_value(k, v)}" for k, v in value.items())
+    if isinstance(value, (list, tuple)):
+        if len(value) == 2 and all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in value) \
+                and any(key.endswith(s) for s, _ in SUFFIX_UNITS):
+            return f"{format_value(key, value[0])} – {format_value(key, value[1])}"
+        return ", ".join(format_value(key, v) for v in value) or "—"
+    unit = next((u for s, u in SUFFIX_UNITS if key.endswith(s)), None)
+    v = float(value)
+    if unit == "dB":
+        return f"{v:+.1f} dB" if "change" in key else f"{v:.1f} dB"
+    if unit == "%":
+        return f"{100 * v:.3g} %"
+    if unit:
+        return eng(v, unit)
+    return f"{v:.4g}"
+
+
+def range_text(pair, unit: str) -> str:
+    """ "low – high unit" of a (low, high) pair, or an empty string."""
+    if not pair or pair[0] is None or pair[1] is None:
+        return ""
+    return f"{eng(pair[0], unit)} – {eng(pair[1], unit)}"
+
+
+# --------------------------------------------------------------------------- building blocks
+
+
+def table(headers, rows, caption=None, cls="") -> str:
+    """An HTML table; every cell is escaped text (a cell may be a (text, css class) pair)."""
+    out = [f'<table class="{esc(cls)}">' if cls else "<table>"]
+    if caption:
+        out.append(f"<caption>{esc(caption)}</caption>")
+    out.append("<thead><tr>" + "".join(f'<th scope="col">{esc(h)}</th>' for h in headers) + "</tr></thead><tbody>")
+    for row in rows:
+        cells = []
+        for cell in row:
+            text, klass = cell if isinstance(cell, tuple) else (cell, "")
+            cells.append(f'<td class="{esc(klass)}">{esc(text)}</td>' if klass else f"<td>{esc(text)}</td>")
+        out.append("<tr>" + "".join(cells) + "</tr>")
+    out.append("</tbody></table>")
+    return "".join(out)
+
+
+def dict_rows_table(rows: list, caption=None, skip=()) -> str:
+    """A table of a list of row dicts: one column per key (in first-seen order), units from the key names."""
+    keys = []
+    for r in rows:
+        for k in r:
+            if k not in keys and k not in skip:
+                keys.append(k)
+    headers = [key_label(k) + next((f" [{u}]" for s, u in SUFFIX_UNITS if k.endswith(s) and u != "%"), "")
+               for k in keys]
+    return table(headers, [[format_value(k, r.get(k)) for k in keys] for r in rows], caption)
+
+
+def bullets(lines, cls="") -> str:
+    if not lines:
+        return ""
+    klass = f' class="{esc(cls)}"' if cls else ""
+    return f"<ul{klass}>" + "".join(f"<li>{esc(x)}</li>" for x in lines) + "</ul>"
+
+
+def figure(svg: str | None, caption: str, ident: str) -> str:
+    """A figure holding an inline SVG (already text, produced by aerial) and its caption."""
+    if not svg:
+        return ""
+    body = svg[svg.index("<svg"):]  # drop the XML declaration and doctype: inline SVG
+    return f'<figure id="{esc(ident)}" class="picture">{body}<figcaption>{esc(caption)}</figcaption></figure>'
+
+
+def section(ident: str, title: str, body: str, cls: str = "") -> str:
+    if not body.strip():
+        return ""
+    klass = f' class="{esc(cls)}"' if cls else ""
+    return f'<section id="{esc(ident)}"{klass}><h2>{esc(title)}</h2>{body}</section>'
+
+
+def generic_block(key: str, value) -> str:
+    """Any JSON value as HTML: a list of row dicts as a table, strings as a list, a dict as a definition list."""
+    if isinstance(value, list):
+        if value and all(isinstance(v, dict) for v in value):
+            return dict_rows_table(value)
+        return bullets([format_value(key, v) for v in value])
+    if isinstance(value, dict):
+        items = []
+        for k, v in value.items():
+            if isinstance(v, list) and v and all(isinstance(x, dict) for x in v):
+                items.append(f"<dt>{esc(key_label(k))}</dt><dd>{dict_rows_table(v)}</dd>")
+            else:
+                items.append(f"<dt>{esc(key_label(k))}</dt><dd>{esc(format_value(k, v))}</dd>")
+        return "<dl class=\"facts\">" + "".join(items) + "</dl>" if items else ""
+    return f"<p>{esc(format_value(key, value))}</p>"
+
+
+# --------------------------------------------------------------------------- whole page
+
+
+def scrub_paths(text: str, site_file=None) -> str:
+    """Remove the folders of the user's machine (site folder, working folder, home) from ``text``.
+
+    >>> scrub_paths("see " + os.path.join(os.path.expanduser("~"), "x.toml")) == "see ~" + os.sep + "x.toml"
+    True
+    """
+    prefixes = []
+    if site_file:
+        try:
+            prefixes.append((str(Path(site_file).resolve().parent) + os.sep, ""))
+        except OSError:
+            pass
+    prefixes.append((os.getcwd() + os.sep, ""))
+    home = os.path.expanduser("~")
+    prefixes.append((home + os.sep, "~" + os.sep))
+    prefixes.append((home, "~"))
+    for prefix, new in sorted(prefixes, key=lambda p: -len(p[0])):
+        if len(prefix.strip(os.sep)) > 1:
+            text = text.replace(prefix, new).replace(esc(prefix), esc(new))
+    return text
+
+
+def document(title: str, body: str, site_file=None) -> str:
+    """The complete HTML document around ``body``: inline style, no script, nothing fetched."""
+    page = (
+        "<!DOCTYPE html>\n"
+        '<html lang="en"><head><meta charset="utf-8">'
+        f'<meta http-equiv="Content-Security-Policy" content="{esc(CSP)}">'
+        '<meta name="viewport" content="width=device-width, initial-scale=1">'
+        f'<meta name="generator" content="aerial {esc(__version__)}">'
+        f"<title>{esc(title)}</title><style>{stylesheet()}</style></head>\n"
+        f"<body><main>{body}</main>"
+        f'<footer><p>Made with aerial {esc(__version__)}. Figures are estimates: local electrical codes and licensed '
+        "practice govern the installation.</p></footer></body></html>\n"
+    )
+    return scrub_paths(page, site_file)
+
+
+def site_file_name(site: dict) -> str:
+    """The site file's name without its folder (the page must not show the user's folders)."""
+    f = site.get("file")
+    return Path(str(f)).name if f else "the built-in example"

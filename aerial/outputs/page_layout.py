@@ -1,0 +1,125 @@
+"""The shared page of ``aerial layout --page FILE``: ranked layouts, refusals by cause, code checklist.
+
+Built only from the planner's result dict (:func:`aerial.planner.search.plan_layouts`)
+and its plan scene (:func:`aerial.outputs.plan_drawing.build_scene`).
+"""
+
+from __future__ import annotations
+
+from aerial.outputs import site_drawings
+from aerial.outputs.page import (bullets, document, esc, figure, generic_block, key_label, section, site_file_name,
+                                 table)
+from aerial.outputs.terminal import eng
+
+#: Keys the layout page shows in its own sections; any other key is shown generically.
+KNOWN_KEYS = {"site", "objective", "score_unit", "ranking_frequencies_hz", "candidates_considered",
+              "candidates_refused", "candidates_refused_safety", "excluded", "rules", "layouts", "apartment",
+              "code_checklist", "picture", "full_wave", "warnings", "cautions", "page"}
+
+#: Which of the planner's rules each exclusion cause applies.
+CAUSE_RULE = {"crosses an obstacle": "obstacles", "crosses a telephone/cable line": "obstacles",
+              "lead-in or sloping wire passes over a building": "buildings",
+              "span passes over a roof without clearance": "buildings"}
+
+#: Cause shown for the power-line refusals (the planner counts them apart).
+SAFETY_CAUSE = "inside a power line's fall zone, or crossing a power line (refused for safety)"
+
+
+def refusal_rows(result) -> list[list]:
+    """(cause, candidates, rule applied) for every cause with at least one candidate, the safety refusals first."""
+    rules = result.get("rules") or {}
+    rows = []
+    if result.get("candidates_refused_safety"):
+        rows.append([(SAFETY_CAUSE, "bad"), result["candidates_refused_safety"], rules.get("fall_zone", "")])
+    for cause, n in (result.get("excluded") or {}).items():
+        if n:
+            rows.append([cause, n, rules.get(CAUSE_RULE.get(cause, ""), "")])
+    return rows
+
+
+def _flags(lay) -> str:
+    flags = [text for key, text in (("over_roof", "over a roof (-3 dB)"), ("outside_lot", "outside the lot"),
+                                    ("outside_model_range", "long for the wavelength: rough")) if lay.get(key)]
+    return "; ".join(flags) or "—"
+
+
+def _layouts_table(result) -> str:
+    unit = result.get("score_unit", "")
+    rows = []
+    for lay in result.get("layouts", []):
+        margin = lay.get("clearance_margin_m")
+        rows.append([f"#{lay['rank']}", lay.get("description", ""), eng(lay.get("wire_length_m"), "m"),
+                     eng(lay.get("top_length_m"), "m"), eng(lay.get("lead_in_length_m"), "m"),
+                     eng(lay.get("effective_height_m"), "m"), eng(lay.get("capacitance_f"), "F"),
+                     "no power line listed" if margin is None else eng(margin, "m"),
+                     f"{lay.get('score', 0):.1f}", _flags(lay)])
+    reasons = [f"#{lay['rank']}: {lay['reason']}" for lay in result.get("layouts", []) if lay.get("reason")]
+    return (table(["rank", "layout", "wire", "top", "lead-in", "effective height", "capacitance",
+                   "margin outside the fall zone", f"score [{unit}]" if unit else "score", "flags"], rows,
+                  "Best safe layouts, best first", "wide") + bullets(reasons, "reasons"))
+
+
+def _summary(result, scene) -> str:
+    site = result["site"]
+    layouts = result.get("layouts", [])
+    sentence = (f"{result.get('candidates_considered', 0)} candidate layouts considered among the site's supports; "
+                f"{result.get('candidates_refused', 0)} refused or excluded "
+                f"({result.get('candidates_refused_safety', 0)} of them for power-line safety); "
+                f"{len(layouts)} shown.")
+    cards = []
+    if layouts:
+        win = layouts[0]
+        cards = [("top-ranked layout", win.get("description", ""), ""),
+                 ("effective height", eng(win.get("effective_height_m"), "m"), ""),
+                 ("wire (top and lead-in)", eng(win.get("wire_length_m"), "m"), ""),
+                 ("capacitance", eng(win.get("capacitance_f"), "F"), ""),
+                 (f"score [{result.get('score_unit', '')}]", f"{win.get('score', 0):.1f}", "")]
+    facts = "".join(f'<div class="figure-card{" wide-card" if i == 0 else ""}"><dt>{esc(w)}</dt><dd>'
+                    f'<span class="value">{esc(v)}</span></dd></div>' for i, (w, v, _) in enumerate(cards))
+    drawings = ""
+    if scene and layouts:
+        sc = site_drawings.layout_scene(scene, layouts)
+        drawings = section("drawings", "Where the wire would go",
+                           figure(site_drawings.plan_chart(sc), "Plan view: the chosen layout (#1, bold) and the "
+                                  "runners-up, the overhead lines and their fall zones", "plan-view")
+                           + figure(site_drawings.elevation_chart(sc), "Side elevation of the chosen layout with the "
+                                    "heights of its fixing points", "side-elevation"))
+    return (f'<header id="summary" class="sheet"><h1>{esc(site["name"])} — layout plan</h1>'
+            f'<p class="sentence">{esc(sentence)}</p>'
+            f'<p class="meta">Site file {esc(site_file_name(site))} · ranked by {esc(result.get("objective", ""))}</p>'
+            + (f'<section id="headline"><h2>Headline figures</h2><dl class="cards">{facts}</dl></section>' if facts
+               else "") + drawings + "</header>")
+
+
+def layout_page(result: dict, scene: dict | None = None) -> str:
+    """The planner's result as one self-contained HTML document (text).
+
+    Parameters
+    ----------
+    result : dict
+        As :func:`aerial.planner.search.plan_layouts` returns it (``aerial layout --json``).
+    scene : dict, optional
+        The plan scene (:func:`aerial.outputs.plan_drawing.build_scene`) for the drawings.
+    """
+    body = _summary(result, scene)
+    body += section("layouts", "Ranked layouts", _layouts_table(result), "sheet")
+    refusals = refusal_rows(result)
+    body += section("refusals", "Refused and excluded layouts, by cause",
+                    (table(["cause", "candidates", "rule applied"], refusals) if refusals
+                     else "<p>No candidate was refused or excluded.</p>")
+                    + generic_block("rules", result.get("rules") or {}))
+    if isinstance(result.get("full_wave"), dict):
+        body += section("full-wave", "Full-wave check of the winner", generic_block("full_wave", result["full_wave"]))
+    body += section("apartment", "Apartment", bullets(result.get("apartment", [])))
+    body += section("code-checklist", "Code checklist (typical requirements, not a compliance check)",
+                    bullets(result.get("code_checklist", [])), "sheet")
+    for key, value in result.items():
+        if key not in KNOWN_KEYS and value not in (None, [], {}, ""):
+            body += section(f"more-{key.replace('_', '-')}", key_label(key).capitalize(), generic_block(key, value))
+    safety = ""
+    if result.get("warnings"):
+        safety += '<h3 id="warnings">Warnings</h3>' + bullets(result["warnings"], "warn")
+    safety += '<h3 id="cautions">Safety cautions</h3>' + bullets(result.get("cautions", []), "caution-list")
+    body += section("safety", "Warnings and safety", safety)
+    return document(f"{result['site']['name']} — aerial layout plan", body, result["site"].get("file"))
+

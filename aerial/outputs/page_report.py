@@ -1,0 +1,328 @@
+"""The shared page of ``aerial report --page FILE``: the terminal report's content as one HTML file.
+
+Built only from the result dict of :func:`aerial.estimate.assemble.analyse` (and,
+for the plan drawing, the site's surroundings from its ``[plan]`` table).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from aerial.outputs import charts, site_drawings
+from aerial.outputs.page import (VERDICT_MARK, bullets, dict_rows_table, document, esc, figure, format_value,
+                                 generic_block, key_label, range_text, section, site_file_name, table)
+from aerial.outputs.terminal import eng
+
+#: Top-level keys of the result the report page shows in its own sections; any other key is shown generically.
+KNOWN_KEYS = {"aerial_version", "site", "geometry", "bands", "frequencies_hz", "aerial", "earth", "ranges", "what_if",
+              "tuning", "stations", "cautions", "warnings", "pictures", "page"}
+
+#: Tuning table columns: heading, row key, unit ("" plain number, "%" a ratio, "dB").
+TUNING_COLUMNS = (("frequency", "frequency_hz", "Hz"), ("total C at resonance", "total_capacitance_f", "F"),
+                  ("capacitor setting", "capacitor_setting_f", "F"), ("aerial's share of C", "aerial_share_ratio", "%"),
+                  ("loaded Q", "loaded_q", ""), ("bandwidth", "bandwidth_hz", "Hz"),
+                  ("9 kHz away", "rejection_9khz_db", "dB"), ("10 kHz away", "rejection_10khz_db", "dB"),
+                  ("to detector", "power_transfer_ratio", "%"))
+
+
+def _nearest(freqs, f) -> int:
+    return int(np.argmin(np.abs(np.asarray(freqs, float) - f)))
+
+
+def _centre_index(result) -> int | None:
+    """Index into ``ranges`` of the first band's centre (or its middle point)."""
+    labels = (result.get("ranges") or {}).get("labels") or []
+    if not labels:
+        return None
+    for j, label in enumerate(labels):
+        if label.endswith("centre"):
+            return j
+    return len(labels) // 2
+
+
+def headline(result) -> list[tuple[str, str, str]]:
+    """The headline figures: (what, value, low–high range) at the first band's centre, the earth and the verdicts."""
+    a, ranges = result["aerial"], result.get("ranges") or {}
+    out = []
+    j = _centre_index(result)
+    if j is not None:
+        f = ranges["frequencies_hz"][j]
+        i = _nearest(result["frequencies_hz"], f)
+        where = f"at {eng(f, 'Hz')}"
+        field = eng(result["site"].get("field_strength_v_per_m"), "V/m")
+        loss = a["conductor_loss_ohm"][i] + a["ground_loss_ohm"][i]
+        out += [(f"capacitance presented {where}", eng(a["capacitance_f"][i], "F"), range_text(ranges["capacitance_f"][j], "F")),
+                (f"effective height {where}", eng(a["effective_height_m"][i], "m"),
+                 range_text(ranges["effective_height_m"][j], "m")),
+                (f"loss resistance {where}", eng(loss, "Ω"), range_text(ranges["loss_resistance_ohm"][j], "Ω")),
+                (f"power available in {field} {where}", eng(a["available_power_w"][i], "W"),
+                 range_text(ranges["available_power_w"][j], "W"))]
+    earth = result.get("earth") or {}
+    if earth.get("resistance_ohm") is not None:
+        out.append(("earth system resistance", eng(earth["resistance_ohm"], "Ω"),
+                    range_text([earth.get("resistance_low_ohm"), earth.get("resistance_high_ohm")], "Ω")))
+    cov = ((result.get("tuning") or {}).get("coverage") or {})
+    if cov.get("verdict"):
+        out.append(("band coverage", cov["verdict"], ""))
+    stations = result.get("stations") or []
+    if stations:
+        counts = {}
+        for s in stations:
+            counts[s.get("verdict", "")] = counts.get(s.get("verdict", ""), 0) + 1
+        text = ", ".join(f"{n} {v}" for v, n in counts.items())
+        out.append((f"stations ({len(stations)} listed)", text, ""))
+    return out
+
+
+def site_sentence(result) -> str:
+    """The site in a sentence, from the resolved geometry and the site's settings."""
+    site, geo = result["site"], result["geometry"]
+    shape = geo.get("shape")
+    kind = shape.get("kind") if isinstance(shape, dict) else shape
+    aerial_wires = [w for w in geo.get("wires", []) if w.get("role") == "aerial"]
+    size = aerial_wires[0].get("size") if aerial_wires else None
+    material = aerial_wires[0].get("material") if aerial_wires else None
+    what = f"{'An' if (kind or 'x')[0] in 'aeiouAEIOU' else 'A'} {kind or 'wire'} aerial"
+    if size:
+        what += f" of {size}{' ' + material if material else ''} wire"
+    parts = [f"{what}: {geo['total_length_m']:.1f} m of wire with its lead-in, highest point {geo['max_height_m']:.1f} m, "
+             f"mean height {geo['mean_height_m']:.1f} m"]
+    earth = result.get("earth") or {}
+    if earth.get("parts"):
+        parts.append("earthed through " + " and ".join(p.get("description", p.get("kind", "")) for p in earth["parts"]))
+    soil = site.get("soil")
+    soil = soil.get("category") if isinstance(soil, dict) else soil
+    parts.append(f"{soil} soil, {site.get('noise_category', '')} man-made noise, region {site.get('region', '')}")
+    bands = result.get("bands") or []
+    if bands:
+        parts.append("listening on " + ", ".join(f"{b['name']} ({eng(b['from_hz'], 'Hz')} – {eng(b['to_hz'], 'Hz')})"
+                                                 for b in bands))
+    n = len(result.get("stations") or [])
+    parts.append(f"{n} station{'s' if n != 1 else ''} listed")
+    return "; ".join(parts) + "."
+
+
+def _summary(result, surroundings) -> str:
+    site = result["site"]
+    facts = "".join(f'<div class="figure-card"><dt>{esc(what)}</dt><dd><span class="value">{esc(value)}</span>'
+                    + (f'<span class="range">{esc(rng)}</span>' if rng else "") + "</dd></div>"
+                    for what, value, rng in headline(result))
+    scene = site_drawings.report_scene(result, surroundings)
+    return (f'<header id="summary" class="sheet"><h1>{esc(site["name"])}</h1>'
+            f'<p class="sentence">{esc(site_sentence(result))}</p>'
+            f'<p class="meta">Site file {esc(site_file_name(site))} · model: {esc(result["aerial"]["model"])} · '
+            f'aerial {esc(result.get("aerial_version", ""))}</p>'
+            f'<section id="headline"><h2>Headline figures</h2><p class="hint">Value, then the range it may take given '
+            f'the stated tolerances (support heights, soil).</p><dl class="cards">{facts}</dl></section>'
+            + section("drawings", "Where the wire goes",
+                      figure(site_drawings.plan_chart(scene), "Plan view: the wires as aerial understood them"
+                             + (", with the overhead lines and their fall zones" if scene.get("zones") else ""),
+                             "plan-view")
+                      + figure(site_drawings.elevation_chart(scene), "Side elevation with the heights of the fixing "
+                               "points", "side-elevation"))
+            + "</header>")
+
+
+def _wires_table(geo) -> str:
+    rows = []
+    for w in geo["wires"]:
+        zs = [p[2] for p in w["points_m"]]
+        rows.append([w["name"], w["role"], eng(w["length_m"], "m"), w.get("size", ""), f"{min(zs):.2f} m",
+                     f"{max(zs):.2f} m", len(w["points_m"])])
+    return table(["wire", "role", "length", "size", "lowest", "highest", "points"], rows,
+                 "Wires as aerial understood them")
+
+
+def _aerial_table(result) -> str:
+    a, ranges = result["aerial"], result.get("ranges") or {}
+    freqs = result["frequencies_hz"]
+    field = eng(result["site"].get("field_strength_v_per_m"), "V/m")
+    rows = []
+    for j, label in enumerate(ranges.get("labels", [])):
+        i = _nearest(freqs, ranges["frequencies_hz"][j])
+        loss = a["conductor_loss_ohm"][i] + a["ground_loss_ohm"][i]
+
+        def cell(value, key, unit):
+            rng = range_text(ranges.get(key, [None] * (j + 1))[j], unit)
+            return f"{eng(value, unit)}" + (f" ({rng})" if rng else "")
+
+        rows.append([f"{eng(freqs[i], 'Hz')} ({label})", cell(a["capacitance_f"][i], "capacitance_f", "F"),
+                     cell(a["effective_height_m"][i], "effective_height_m", "m"),
+                     eng(a["radiation_resistance_ohm"][i], "Ω"), cell(loss, "loss_resistance_ohm", "Ω"),
+                     eng(a["reactance_ohm"][i], "Ω"), f"{100 * a['efficiency'][i]:.2g} %",
+                     cell(a["open_circuit_voltage_v"][i], "open_circuit_voltage_v", "V"),
+                     cell(a["available_power_w"][i], "available_power_w", "W")])
+    return table(["frequency", "capacitance presented", "effective height", "radiation resistance", "loss resistance",
+                  "reactance", "efficiency", f"open-circuit voltage in {field}", "power available"], rows,
+                 "The aerial at the band edges and centres — value (low – high from the stated tolerances)", "wide")
+
+
+def _aerial_section(result) -> str:
+    a = result["aerial"]
+    extra = []
+    conv = a.get("convergence")
+    if conv:
+        extra.append(f"full-wave convergence: {conv.get('pieces')} pieces against twice as many change the impedance by "
+                     f"{100 * conv.get('relative_change', 0):.2g} % at {eng(conv.get('frequency_hz'), 'Hz')} "
+                     f"({'converged' if conv.get('converged') else 'NOT converged'})")
+    for key, value in a.items():
+        if isinstance(value, str) and key != "model":
+            extra.append(f"{key_label(key)}: {value}")
+    body = (_wires_table(result["geometry"]) + _aerial_table(result) + bullets(extra)
+            + bullets((result.get("ranges") or {}).get("notes", []), "notes"))
+    return section("aerial", "The aerial", body, "sheet")
+
+
+def _earth_section(result) -> str:
+    earth = result.get("earth") or {}
+    if not earth:
+        return ""
+    rows = [[p.get("description", p.get("kind", "")),
+             eng(p.get("resistance_ohm"), "Ω"),
+             range_text([p.get("resistance_low_ohm"), p.get("resistance_high_ohm")], "Ω"), p.get("method", "")]
+            for p in earth.get("parts", [])]
+    rows.append([("whole earth system", "total"), (eng(earth.get("resistance_ohm"), "Ω"), "total"),
+                 (range_text([earth.get("resistance_low_ohm"), earth.get("resistance_high_ohm")], "Ω"), "total"), ""])
+    body = table(["part", "resistance", "range", "method"], rows)
+    others = {k: v for k, v in earth.items() if k not in ("parts", "resistance_ohm", "resistance_low_ohm",
+                                                          "resistance_high_ohm")}
+    return section("earth", "Earth system", body + (generic_block("earth", others) if others else ""))
+
+
+def _what_if_section(result) -> str:
+    rows = result.get("what_if") or []
+    if not rows:
+        return ""
+    f = rows[0].get("frequency_hz")
+    return section("what-if", f"What would help (at {eng(f, 'Hz')})", dict_rows_table(rows, skip=("frequency_hz",)))
+
+
+def _tuning_table(tuning) -> str:
+    rows = tuning.get("rows") or []
+    if not rows:
+        return ""
+    out = []
+    for k in np.unique(np.linspace(0, len(rows) - 1, min(len(rows), 7)).round().astype(int)):
+        r = rows[int(k)]
+        cells = []
+        for _, key, unit in TUNING_COLUMNS:
+            v = r.get(key)
+            if v is None:
+                cells.append("—")
+            elif unit == "dB":
+                cells.append(f"{v:.1f} dB")
+            elif unit == "%":
+                cells.append(f"{100 * v:.0f} %")
+            elif unit == "":
+                cells.append(f"{v:.3g}")
+            else:
+                text = eng(v, unit)
+                if key == "capacitor_setting_f" and not r.get("within_capacitor_range", True):
+                    text += " (out of range)"
+                cells.append(text)
+        out.append(cells)
+    return table([c[0] for c in TUNING_COLUMNS], out, "Tuning across the band (selected frequencies)", "wide")
+
+
+def _tuning_section(result) -> str:
+    tuning = result.get("tuning") or {}
+    if not tuning:
+        return ""
+    band, coil = tuning.get("band") or {}, tuning.get("coil") or {}
+    intro = (f"{tuning.get('arrangement', '')} coupling for {band.get('name', 'the band')}, coil "
+             f"{eng(coil.get('inductance_h'), 'H')}")
+    if coil.get("turns"):
+        intro += f" ({coil['turns']:.0f} turns)"
+    if tuning.get("source") == "measured":
+        intro += "; aerial from the bench measurement"
+    cov = tuning.get("coverage") or {}
+    verdict = ""
+    if cov.get("verdict"):
+        klass = "good" if cov.get("covered") else "caution"
+        mark = "✔" if cov.get("covered") else "⚠"
+        verdict = f'<p class="verdict {klass}"><strong>Band coverage:</strong> {mark} {esc(cov["verdict"])}</p>'
+    known = {"arrangement", "coil", "detector", "earphone_ohm", "rows", "coverage", "advice", "notes", "warnings",
+             "band", "source", "range_curve"}
+    extra = "".join(f"<h3>{esc(key_label(k).capitalize())}</h3>{generic_block(k, v)}"
+                    for k, v in tuning.items() if k not in known and v not in (None, [], {}, ""))
+    body = (f"<p>{esc(intro)}; detector: {esc(tuning.get('detector', ''))}, earphone "
+            f"{esc(eng(tuning.get('earphone_ohm'), 'Ω'))}.</p>" + _tuning_table(tuning) + verdict
+            + bullets(tuning.get("advice", []), "advice") + bullets(tuning.get("notes", []), "notes")
+            + bullets(tuning.get("warnings", []) + (tuning.get("range_curve") or {}).get("warnings", []), "warn")
+            + extra
+            + figure(charts.tuning_chart(result), "Tuned frequency against the capacitor setting; the band shaded, each "
+                     "listed station a dotted line (a dot where the capacitor reaches it)", "tuning-range"))
+    return section("tuning", "Tuning", body, "sheet")
+
+
+def _stations_section(result) -> str:
+    stations = result.get("stations") or []
+    if not stations:
+        return ""
+    rows = []
+    for s in stations:
+        v = s.get("verdict", "")
+        klass = {"clearly heard": "good", "marginal": "caution", "not heard": "bad"}.get(v, "")
+        rows.append([s.get("name", ""), eng(s.get("frequency_hz"), "Hz"), eng(s.get("distance_m"), "m"),
+                     eng(s.get("field_v_per_m"), "V/m"), eng(s.get("detector_power_w"), "W"),
+                     format_value("audio_power_w", s.get("audio_power_w")),
+                     "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
+                     (f"{VERDICT_MARK.get(v, '')} {v}".strip(), f"verdict {klass}")])
+    why = []
+    for s in stations:
+        text = s.get("reason", "")
+        for key in ("spills_over", "heard_behind"):
+            if s.get(key):
+                text += ("; " if text else "") + key_label(key) + ": " + ", ".join(str(x) for x in s[key])
+        text += "".join(f"; {w}" for w in s.get("warnings", []))
+        if text:
+            why.append(f"{s.get('name', '')}: {text}")
+    body = (table(["station", "frequency", "distance", "field", "at the detector", "audio", "signal-to-noise",
+                   "verdict"], rows, "Stations (● clearly heard, ■ marginal, ✕ not heard)")
+            + bullets(why, "reasons")
+            + figure(charts.station_chart(result), "Power each station delivers to the detector, and the man-made "
+                     "noise that comes with it in the tuned bandwidth (the gap is the signal-to-noise ratio)",
+                     "station-power"))
+    return section("stations", "Stations", body, "sheet")
+
+
+def _pictures_section(result) -> str:
+    body = (figure(charts.impedance_chart(result), "Series resistance (solid) and reactance (dashed) at the receiver "
+                   "terminals; the hatched band is the range from the stated tolerances, joined between the band edges "
+                   "and centre", "impedance")
+            + figure(charts.capacitance_chart(result), "Capacitance the aerial presents; hatched: the range from the "
+                     "stated tolerances", "capacitance"))
+    return section("frequency-pictures", "Across the band", body, "sheet")
+
+
+def _safety_section(result) -> str:
+    body = ""
+    if result.get("warnings"):
+        body += '<h3 id="warnings">Warnings</h3>' + bullets(result["warnings"], "warn")
+    body += ('<h3 id="cautions">Safety cautions</h3>' + bullets(result.get("cautions", []), "caution-list"))
+    return section("safety", "Warnings and safety", body, "sheet")
+
+
+def _extras(result) -> str:
+    out = ""
+    for key, value in result.items():
+        if key in KNOWN_KEYS or value in (None, [], {}, ""):
+            continue
+        out += section(f"more-{key.replace('_', '-')}", key_label(key).capitalize(), generic_block(key, value))
+    return out
+
+
+def report_page(result: dict, surroundings: dict | None = None) -> str:
+    """The whole report as one self-contained HTML document (text).
+
+    Parameters
+    ----------
+    result : dict
+        The result of :func:`aerial.estimate.assemble.analyse` (as ``aerial report --json`` prints it).
+    surroundings : dict, optional
+        The site's plan surroundings (:func:`aerial.outputs.site_drawings.site_surroundings`) for the plan view.
+    """
+    body = _summary(result, surroundings) + _aerial_section(result) + _earth_section(result) + _what_if_section(result)
+    body += _pictures_section(result) + _tuning_section(result) + _stations_section(result) + _extras(result)
+    body += _safety_section(result)
+    return document(f"{result['site']['name']} — aerial report", body, result["site"].get("file"))
