@@ -59,7 +59,7 @@ def build_parser() -> argparse.ArgumentParser:
     r.add_argument("--lossy-ground", action="store_true",
                    help="full wave: treat the soil by the reflection-coefficient approximation instead of a perfect ground")
     r.add_argument("--step", metavar="FREQ", help='sweep step, e.g. "1 kHz" (default depends on the band)')
-    r.add_argument("--pictures", metavar="DIR", help="write SVG pictures of impedance, capacitance and tuning range into DIR")
+    r.add_argument("--pictures", metavar="DIR", help="write SVG pictures of impedance, capacitance, tuning range and stations into DIR")
     r.add_argument("--page", metavar="FILE",
                    help="also write the whole report as one self-contained HTML page (pictures inside) to FILE, to share or print")
     r.add_argument("--force", action="store_true", help="replace picture or page files that already exist")

@@ -105,8 +105,11 @@ def _shade_range(ax, result, key, band, scale, label):
     return True
 
 
-def impedance_chart(result) -> str:
-    """Series resistance and reactance at the receiver terminals across each band, tolerance range shaded."""
+def impedance_figure(result):
+    """Series resistance and reactance at the receiver terminals across each band, tolerance range shaded.
+
+    Returns the matplotlib Figure (None when there is nothing to draw); :func:`impedance_chart` gives its SVG.
+    """
     f = np.asarray(result["frequencies_hz"], float)
     z = np.asarray(result["aerial"]["impedance_ohm"], float).reshape(len(f), 2)
     bands = list(bands_in(result))
@@ -117,6 +120,7 @@ def impedance_chart(result) -> str:
         ax.plot(f[m] / 1e3, z[m, 0], color=PALETTE["blue"], linewidth=1.8, label="estimate")
         _shade_range(ax, result, "series_resistance_ohm", band, 1.0, "range from the stated tolerances")
         ax.set_ylabel("series resistance [Ω]")
+        ax.set_xlabel("frequency [kHz]")
         ax.set_title(plain_label(band["name"]))
         ax.legend(loc="best", fontsize=7)
         _axes_style(ax)
@@ -127,11 +131,15 @@ def impedance_chart(result) -> str:
         _axes_style(ax)
     fig.suptitle(f"Impedance at the receiver terminals ({plain_label(result['aerial']['model'].split(':')[0])})",
                  fontsize=10)
-    return svg_of(fig, "impedance", "Impedance at the receiver terminals against frequency")
+    fig.aerial_svg = ("impedance", "Impedance at the receiver terminals against frequency")
+    return fig
 
 
-def capacitance_chart(result) -> str:
-    """Capacitance the aerial presents across each band, tolerance range shaded."""
+def capacitance_figure(result):
+    """Capacitance the aerial presents across each band, tolerance range shaded.
+
+    Returns the matplotlib Figure (None when there is nothing to draw); :func:`capacitance_chart` gives its SVG.
+    """
     f = np.asarray(result["frequencies_hz"], float)
     c = np.asarray(result["aerial"]["capacitance_f"], float)
     bands = list(bands_in(result))
@@ -147,11 +155,15 @@ def capacitance_chart(result) -> str:
         ax.legend(loc="best", fontsize=7)
         _axes_style(ax)
     fig.suptitle("Capacitance the aerial presents to the tuning circuit", fontsize=10)
-    return svg_of(fig, "capacitance", "Capacitance the aerial presents against frequency")
+    fig.aerial_svg = ("capacitance", "Capacitance the aerial presents against frequency")
+    return fig
 
 
-def tuning_chart(result) -> str | None:
-    """Tuned frequency against the capacitor setting, the band shaded and each listed station marked."""
+def tuning_figure(result):
+    """Tuned frequency against the capacitor setting, the band shaded and each listed station marked.
+
+    Returns the matplotlib Figure (None when there is nothing to draw); :func:`tuning_chart` gives its SVG.
+    """
     tuning = result.get("tuning") or {}
     curve = tuning.get("range_curve") or {}
     if not curve.get("capacitor_setting_f"):
@@ -180,7 +192,8 @@ def tuning_chart(result) -> str | None:
     ax.set_title("Tuning range (dotted lines and dots: listed stations)")
     ax.legend(loc="upper left", fontsize=7)
     _axes_style(ax)
-    return svg_of(fig, "tuning", "Tuned frequency against capacitor setting, with the band and the stations")
+    fig.aerial_svg = ("tuning", "Tuned frequency against capacitor setting, with the band and the stations")
+    return fig
 
 
 def noise_power_at_detector(station) -> float | None:
@@ -199,8 +212,11 @@ def noise_power_at_detector(station) -> float | None:
     return float(p / 10 ** (snr / 10))
 
 
-def station_chart(result) -> str | None:
-    """Power at the detector for each station against the man-made noise floor carried with it."""
+def station_figure(result):
+    """Power at the detector for each station against the man-made noise floor carried with it.
+
+    Returns the matplotlib Figure (None when there is nothing to draw); :func:`station_chart` gives its SVG.
+    """
     stations = [s for s in result.get("stations") or [] if s.get("detector_power_w")]
     if not stations:
         return None
@@ -228,7 +244,30 @@ def station_chart(result) -> str | None:
     lo, hi = ax.get_xlim()
     ax.set_xlim(lo, hi * 30)  # room for the verdict words
     ax.set_xlabel("power at the detector [W]")
+    ax.set_ylabel("station")
     ax.set_title("Each station at the detector, against the noise that comes with it")
     fig.legend(loc="outside lower center", ncols=4, fontsize=7, frameon=False)
     _axes_style(ax)
-    return svg_of(fig, "stations", "Power at the detector for each station against the man-made noise")
+    fig.aerial_svg = ("stations", "Power at the detector for each station against the man-made noise")
+    return fig
+
+
+def chart_svg(fig) -> str | None:
+    """The SVG text of a figure made by one of the ``*_figure`` functions (None for None)."""
+    return None if fig is None else svg_of(fig, *fig.aerial_svg)
+
+
+def impedance_chart(result) -> str:
+    return chart_svg(impedance_figure(result))
+
+
+def capacitance_chart(result) -> str:
+    return chart_svg(capacitance_figure(result))
+
+
+def tuning_chart(result) -> str | None:
+    return chart_svg(tuning_figure(result))
+
+
+def station_chart(result) -> str | None:
+    return chart_svg(station_figure(result))

@@ -201,7 +201,7 @@ def document(title: str, body: str, site_file=None) -> str:
     page = (
         "<!DOCTYPE html>\n"
         '<html lang="en"><head><meta charset="utf-8">'
-        f'<meta http-equiv="Content-Security-Policy" content="{esc(CSP)}">'
+        f'<meta http-equiv="Content-Security-Policy" content="{CSP}">'
         '<meta name="viewport" content="width=device-width, initial-scale=1">'
         f'<meta name="generator" content="aerial {esc(__version__)}">'
         f"<title>{esc(title)}</title><style>{stylesheet()}</style></head>\n"

@@ -28,9 +28,10 @@ MARGIN_PX = 50
 #: Metres of surroundings drawn around the lot, buildings and supports.
 VIEW_MARGIN_M = 8.0
 
+#: Okabe–Ito colours (distinct under the common colour-vision deficiencies); shapes and labels carry the meaning too.
 COLOURS = {
-    "lot": "#7a7a7a", "building": "#c9b79c", "obstacle": "#e0a0a0", "zone": "#ff4d4d", "power": "#d40000",
-    "telecom": "#6a3d9a", "support": "#2f6f2f", "wire": "#0050c8", "other": "#7fa7e0", "lead": "#0050c8",
+    "lot": "#777777", "building": "#e8dcc8", "obstacle": "#dddddd", "zone": "#D55E00", "power": "#D55E00",
+    "telecom": "#CC79A7", "support": "#000000", "wire": "#0072B2", "other": "#56B4E9", "lead": "#0072B2",
     "entry": "#000000",
 }
 

@@ -16,7 +16,7 @@ import textwrap
 
 import numpy as np
 
-from aerial.outputs.charts import PALETTE, new_figure, plain_label, svg_of
+from aerial.outputs.charts import PALETTE, chart_svg, new_figure, plain_label
 
 WIRE_STYLE = {
     "aerial": {"color": PALETTE["blue"], "linewidth": 2.6, "linestyle": "-"},
@@ -116,8 +116,8 @@ def _draw_surroundings(ax, scene) -> None:
                     textcoords="offset points", fontsize=6.5)
 
 
-def plan_chart(scene: dict) -> str:
-    """Plan view (north up): surroundings, fall zones, and the wires with their labels."""
+def plan_figure(scene: dict):
+    """Plan view (north up): surroundings, fall zones, and the wires with their labels (a Figure)."""
     pts = [p[:2] for w in scene["wires"] for p in w["points"]]
     for key in ("lot",):
         pts += scene.get(key) or []
@@ -149,7 +149,8 @@ def plan_chart(scene: dict) -> str:
     ax.legend(handles, [textwrap.fill(t, 30) for t in labels], loc="upper left", bbox_to_anchor=(1.02, 1.0),
               fontsize=7, frameon=False)
     ax.grid(True, alpha=0.25, linewidth=0.5)
-    return svg_of(fig, "plan", f"Plan view of {scene.get('title', 'the site')}")
+    fig.aerial_svg = ("plan", f"Plan view of {scene.get('title', 'the site')}")
+    return fig
 
 
 def _draw_wires(ax, scene, plan: bool, along=None) -> None:
@@ -193,8 +194,8 @@ def _main_direction(points: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return centre + u * s.min(), u
 
 
-def elevation_chart(scene: dict) -> str:
-    """Side elevation along the wire's main direction, with the height of every fixing point."""
+def elevation_figure(scene: dict):
+    """Side elevation along the wire's main direction, with the height of every fixing point (a Figure)."""
     main = [w for w in scene["wires"] if w["kind"] == "aerial"] or scene["wires"]
     allp = np.asarray([p for w in main for p in w["points"]], float)
     origin, u = _main_direction(allp)
@@ -224,4 +225,15 @@ def elevation_chart(scene: dict) -> str:
     ax.set_title("Side elevation (heights of the fixing points marked)")
     ax.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize=7, frameon=False)
     ax.grid(True, alpha=0.25, linewidth=0.5)
-    return svg_of(fig, "elevation", f"Side elevation of {scene.get('title', 'the site')}")
+    fig.aerial_svg = ("elevation", f"Side elevation of {scene.get('title', 'the site')}")
+    return fig
+
+
+def plan_chart(scene: dict) -> str:
+    """The plan view as SVG text."""
+    return chart_svg(plan_figure(scene))
+
+
+def elevation_chart(scene: dict) -> str:
+    """The side elevation as SVG text."""
+    return chart_svg(elevation_figure(scene))

@@ -1,0 +1,233 @@
+"""The shared HTML page (``aerial report --page``, ``aerial layout --page``): content, safety to share, file handling.
+
+Sites here are the invented examples in site_examples/ and small invented test inputs.
+The figures the page must show are read from the same run's JSON (consistency checks).
+"""
+
+from __future__ import annotations
+
+import getpass
+import json
+import os
+import re
+import xml.etree.ElementTree as ET
+
+import pytest
+
+from aerial.cli import main
+from aerial.outputs.terminal import eng
+
+from .conftest import EXAMPLES, MINIMAL
+
+SUBURBAN = next(p for p in EXAMPLES if p.name == "suburban_lot_service_line.toml")
+
+#: A site whose strings try to break out of the page (invented for this test).
+HOSTILE = MINIMAL.replace('name = "test vertical"', 'name = "<b>Bold</b> & \\"quoted\\" </title><img src=x>"') + """
+[[stations]]
+name = "<script>alert(1)</script>"
+frequency = "1 MHz"
+power = "10 kW"
+distance = "20 km"
+
+[[stations]]
+name = "$x^2$ _under \\u00e9t\\u00e9"
+frequency = "700 kHz"
+power = "5 kW"
+distance = "30 km"
+"""
+
+#: Sections every report page carries (ids), in page order.
+REPORT_SECTIONS = ("summary", "headline", "drawings", "aerial", "earth", "what-if", "frequency-pictures", "tuning",
+                   "stations", "safety", "warnings", "cautions")
+#: Pictures every report page of a site with stations carries (figure ids).
+REPORT_PICTURES = ("plan-view", "side-elevation", "impedance", "capacitance", "tuning-range", "station-power")
+
+
+def run(capsys, *argv):
+    code = main([str(a) for a in argv])
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+@pytest.fixture(scope="module")
+def built_in(tmp_path_factory):
+    """The built-in example's report: (result dict, page text), from one run of the API."""
+    from aerial.api import run_report
+
+    path = tmp_path_factory.mktemp("page") / "report.html"
+    result = run_report(None, page=str(path))
+    return result, path.read_text(encoding="utf-8")
+
+
+def _svgs(page: str) -> list[str]:
+    return re.findall(r"<svg\b.*?</svg>", page, flags=re.S)
+
+
+def test_report_page_has_every_section_and_picture(built_in):
+    result, page = built_in
+    for ident in REPORT_SECTIONS + REPORT_PICTURES:
+        assert f'id="{ident}"' in page, ident
+    assert page.count('<figure id="') == len(REPORT_PICTURES)
+    for caution in result["cautions"]:  # the safety cautions in full
+        assert caution.replace("&", "&amp;").replace("'", "&#x27;").replace('"', "&quot;") in page
+    assert result["tuning"]["coverage"]["verdict"] in page
+
+
+def test_report_page_shows_the_headline_figures_of_the_json(built_in):
+    """Consistency check: the page's figures are the JSON's, formatted as the terminal formats them."""
+    result, page = built_in
+    earth = result["earth"]
+    for value, unit in ((earth["resistance_ohm"], "Ω"), (earth["resistance_low_ohm"], "Ω"),
+                        (earth["resistance_high_ohm"], "Ω")):
+        assert eng(value, unit) in page
+    ranges = result["ranges"]
+    j = ranges["labels"].index(next(lb for lb in ranges["labels"] if lb.endswith("centre")))
+    for key, unit in (("capacitance_f", "F"), ("effective_height_m", "m"), ("available_power_w", "W")):
+        lo, hi = ranges[key][j]
+        assert f"{eng(lo, unit)} – {eng(hi, unit)}" in page, key
+    for s in result["stations"]:
+        assert eng(s["detector_power_w"], "W") in page
+
+
+def test_report_page_is_self_contained(built_in):
+    _, page = built_in
+    assert page.startswith("<!DOCTYPE html>")
+    assert "Content-Security-Policy" in page and "default-src 'none'" in page
+    low = page.lower()
+    for forbidden in ("<script", "<link", "<iframe", "@import", " src=", "<img"):
+        assert forbidden not in low, forbidden
+    for ref in re.findall(r'(?:href|url)\s*[=(]\s*"?([^")\s>]+)', page):
+        assert ref.startswith("#"), ref  # only references inside the page
+    # namespaces and metadata identifiers are not fetched; nothing else names a web address
+    for url in re.findall(r"https?://[^\s\"'<>]+", page):
+        assert url.startswith(("http://www.w3.org/", "http://purl.org/dc/", "http://creativecommons.org/ns",
+                               "http://www.w3.org/1999/02/22-rdf-syntax-ns")), url
+
+
+def test_report_page_pictures_keep_their_words_as_text(built_in):
+    _, page = built_in
+    svgs = _svgs(page)
+    assert len(svgs) == len(REPORT_PICTURES)
+    for svg in svgs:
+        ET.fromstring(svg)  # each inline picture is well-formed XML
+        assert "<text" in svg
+        assert "DejaVuSans-" not in svg  # no glyphs drawn as paths
+        assert "<title>" in svg and 'role="img"' in svg
+    ids = re.findall(r'\bid="([^"]+)"', page)
+    assert len(ids) == len(set(ids)), "ids repeat across the page's pictures"
+
+
+def test_every_chart_axis_names_its_quantity_and_unit(built_in):
+    from aerial.outputs import charts, site_drawings
+
+    result, _ = built_in
+    scene = site_drawings.report_scene(result)
+    figures = [charts.impedance_figure(result), charts.capacitance_figure(result), charts.tuning_figure(result),
+               charts.station_figure(result), site_drawings.plan_figure(scene), site_drawings.elevation_figure(scene)]
+    for fig in figures:
+        for ax in fig.axes:
+            for label, ticks in ((ax.get_xlabel(), ax.get_xticklabels()), (ax.get_ylabel(), ax.get_yticklabels())):
+                categorical = any(t.get_text() and not re.fullmatch(r"[−\-\d.,e+$^{}\\mathdefault ]+", t.get_text())
+                                  for t in ticks)
+                assert label, f"{fig.aerial_svg[0]}: an axis without a label"
+                assert categorical or re.search(r"\[[^\]]+\]", label), f"{fig.aerial_svg[0]}: '{label}' has no unit"
+
+
+def test_charts_do_not_rest_on_red_against_green():
+    """The palette is Okabe–Ito (common practice for colour-blind-safe charts); verdicts differ by shape too."""
+    from aerial.outputs.charts import VERDICT_STYLE
+
+    shapes = [m for m, _ in VERDICT_STYLE.values()]
+    assert len(set(shapes)) == len(shapes)
+    colours = {c.lower() for _, c in VERDICT_STYLE.values()}
+    assert "#009e73" not in colours or "#d55e00" not in colours  # never green against vermillion
+
+
+def test_page_escapes_site_strings_and_hides_the_users_folders(capsys, write_site, tmp_path):
+    site = write_site(HOSTILE)
+    out_page = tmp_path / "shared.html"
+    out_page.write_text("an older page", encoding="utf-8")
+    code, _, err = run(capsys, "report", str(site.resolve()), "--page", out_page, "--force")
+    assert code == 0, err
+    page = out_page.read_text(encoding="utf-8")  # --force replaced the older file
+    assert "<script" not in page.lower()
+    assert "&lt;script&gt;alert(1)&lt;/script&gt;" in page
+    assert "<b>Bold</b>" not in page and "&lt;b&gt;Bold&lt;/b&gt;" in page
+    assert "<img" not in page.lower()
+    assert "été" in page
+    assert str(tmp_path) not in page and str(tmp_path.resolve()) not in page
+    assert os.path.expanduser("~") + os.sep not in page
+    user = getpass.getuser()
+    if len(user) >= 4 and user not in ("root", "user"):
+        assert not re.search(rf"\b{re.escape(user)}\b", page)
+    assert "site.toml" in page  # the file is named, without its folder
+
+
+def test_report_page_and_pictures_through_the_command_line(capsys, tmp_path):
+    target, pics = tmp_path / "report.html", tmp_path / "pics"
+    code, out, err = run(capsys, "report", "--json", "--page", target, "--pictures", pics)
+    assert code == 0, err
+    data = json.loads(out)
+    assert data["page"] == str(target)
+    assert "page written to" in err
+    before = target.read_bytes()
+    code, _, err = run(capsys, "report", "--page", target)  # never over an existing file without --force
+    assert code == 2 and "already exists" in err and "--force" in err
+    assert target.read_bytes() == before
+    # the loose SVG pictures are the page's charts: words kept as text
+    names = sorted(p.name for p in pics.iterdir())
+    assert names == sorted(["aerial-impedance.svg", "aerial-capacitance.svg", "tuning-range.svg", "station-power.svg"])
+    for p in pics.iterdir():
+        text = p.read_text(encoding="utf-8")
+        ET.fromstring(text.split("?>", 1)[1] if text.startswith("<?xml") else text)
+        assert "<text" in text and "DejaVuSans-" not in text
+
+
+@pytest.mark.parametrize("name, words", [("report.txt", "ending in .html"), ("missing/report.html", "does not exist")])
+def test_bad_page_names_are_refused_before_any_work(capsys, tmp_path, name, words):
+    code, out, err = run(capsys, "report", "--page", tmp_path / name)
+    assert code == 2 and words in err
+    assert out == "" and err.count("\n") == 1
+
+
+def test_page_never_replaces_the_site_file(capsys, write_site):
+    site = write_site(MINIMAL, name="site.html")
+    before = site.read_bytes()
+    code, _, err = run(capsys, "report", site, "--page", site, "--force")
+    assert code == 2 and "input file" in err
+    assert site.read_bytes() == before
+
+
+def test_layout_page_ranks_groups_refusals_and_lists_the_code(capsys, tmp_path):
+    target = tmp_path / "plan.html"
+    code, out, err = run(capsys, "layout", SUBURBAN, "--json", "--page", target)
+    assert code == 0, err
+    data = json.loads(out)
+    page = target.read_text(encoding="utf-8")
+    for ident in ("summary", "drawings", "plan-view", "side-elevation", "layouts", "refusals", "code-checklist",
+                  "safety", "cautions"):
+        assert f'id="{ident}"' in page, ident
+    from aerial.outputs.page import esc
+
+    for lay in data["layouts"]:
+        assert esc(lay["description"]) in page
+    assert "refused for safety" in page and f">{data['candidates_refused_safety']}<" in page
+    for cause, n in data["excluded"].items():
+        if n:
+            assert esc(cause) in page and f">{n}<" in page
+    for line in data["code_checklist"]:
+        assert esc(line) in page
+    assert "<script" not in page.lower()
+
+
+def test_new_result_keys_appear_without_new_code(built_in):
+    """Parts of the result this page does not know by name are still shown, as tables and lists."""
+    from aerial.outputs.page_report import report_page
+
+    result, _ = built_in
+    extended = dict(result, interference=[{"station": "Example One", "level_db": -12.5, "frequency_hz": 999e3}],
+                    tuning=dict(result["tuning"], network_notes=["a note from a new part"]))
+    page = report_page(extended)
+    assert 'id="more-interference"' in page
+    assert "Example One" in page and "-12.5 dB" in page and "999 kHz" in page
+    assert "a note from a new part" in page
