@@ -112,16 +112,18 @@ def test_interrupt_in_the_closed_form_chain(capsys, monkeypatch, tmp_path):
 
 
 def test_interrupt_between_pictures_leaves_only_whole_files(capsys, monkeypatch, tmp_path):
-    real_svg = aerial.outputs.pictures._svg
+    import aerial.outputs.charts
+
+    real_svg = aerial.outputs.charts.svg_of
     calls = {"n": 0}
 
-    def svg_then_interrupt(fig):
+    def svg_then_interrupt(*args):
         calls["n"] += 1
         if calls["n"] == 2:
             raise KeyboardInterrupt
-        return real_svg(fig)
+        return real_svg(*args)
 
-    monkeypatch.setattr(aerial.outputs.pictures, "_svg", svg_then_interrupt)
+    monkeypatch.setattr(aerial.outputs.charts, "svg_of", svg_then_interrupt)
     pics = tmp_path / "pics"
     code = main(["report", str(BACKYARD), "--json", "--pictures", str(pics)])
     out, err = capsys.readouterr()

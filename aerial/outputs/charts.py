@@ -203,7 +203,7 @@ def noise_power_at_detector(station) -> float | None:
     ratio in dB, so the power ratio is 10^(dB/10)): the aerial and the tuned
     circuit pass noise and signal at the same frequency alike.
 
-    >>> noise_power_at_detector({"detector_power_w": 1e-6, "signal_to_noise_db": 30.0})
+    >>> round(noise_power_at_detector({"detector_power_w": 1e-6, "signal_to_noise_db": 30.0}), 15)
     1e-09
     """
     p, snr = station.get("detector_power_w"), station.get("signal_to_noise_db")
