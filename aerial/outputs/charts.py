@@ -197,7 +197,7 @@ def tuning_figure(result):
 
 
 def noise_power_at_detector(station) -> float | None:
-    """Man-made noise in the tuned bandwidth carried to the detector like the station [W], or None.
+    """Noise in the tuned bandwidth carried to the detector like the station [W], or None.
 
     The station's detector power divided by its signal-to-noise ratio (a field
     ratio in dB, so the power ratio is 10^(dB/10)): the aerial and the tuned
@@ -213,42 +213,50 @@ def noise_power_at_detector(station) -> float | None:
 
 
 def station_figure(result):
-    """Power at the detector for each station against the man-made noise floor carried with it.
+    """Power at the detector for each station against the noise floor carried with it, by day (and by night).
 
     Returns the matplotlib Figure (None when there is nothing to draw); :func:`station_chart` gives its SVG.
     """
     stations = [s for s in result.get("stations") or [] if s.get("detector_power_w")]
     if not stations:
         return None
-    fig = new_figure(7.0, 1.5 + 0.4 * len(stations))
+    fig = new_figure(7.0, 1.5 + 0.45 * len(stations))
     ax = fig.subplots()
     y = np.arange(len(stations))[::-1]
     seen = set()
-    for yi, s in zip(y, stations):
-        p, noise = s["detector_power_w"], noise_power_at_detector(s)
-        marker, colour = VERDICT_STYLE.get(s.get("verdict"), ("D", PALETTE["grey"]))
+
+    def mark(p, noise, yi, verdict, night):
+        marker, colour = VERDICT_STYLE.get(verdict, ("D", PALETTE["grey"]))
+        label = f"{verdict} by night" if night else verdict
         if noise is not None:
-            ax.plot([noise, p], [yi, yi], color=PALETTE["grey"], linewidth=1.5)
-            ax.plot([noise], [yi], marker="|", markersize=14, color=PALETTE["black"],
-                    label=None if "noise" in seen else "man-made noise in the tuned bandwidth")
+            ax.plot([noise, p], [yi, yi], color=PALETTE["grey"], linewidth=1.0 if night else 1.5,
+                    linestyle=":" if night else "-")
+            ax.plot([noise], [yi], marker="|", markersize=12, color=PALETTE["black"],
+                    label=None if "noise" in seen else "noise in the tuned bandwidth")
             seen.add("noise")
-        verdict = s.get("verdict", "")
         ax.plot([p], [yi], marker=marker, markersize=8, linestyle="none", color=colour,
-                label=None if verdict in seen else verdict)
-        seen.add(verdict)
-        ax.annotate(f" {plain_label(verdict)}", xy=(p, yi), xytext=(6, 0), textcoords="offset points",
-                    va="center", fontsize=7)
+                markerfacecolor="white" if night else colour, label=None if label in seen else label)
+        seen.add(label)
+        ax.annotate(f" {plain_label(verdict)}{' (night)' if night else ''}", xy=(p, yi), xytext=(6, 0),
+                    textcoords="offset points", va="center", fontsize=7)
+
+    for yi, s in zip(y, stations):
+        night = s.get("night") or {}
+        day_y = yi + (0.17 if night.get("detector_power_w") else 0.0)
+        mark(s["detector_power_w"], noise_power_at_detector(s), day_y, s.get("verdict", ""), False)
+        if night.get("detector_power_w"):
+            mark(night["detector_power_w"], noise_power_at_detector(night), yi - 0.17, night.get("verdict", ""), True)
     ax.set_xscale("log")
     ax.set_yticks(y, [plain_label(s.get("name", "")) for s in stations])
     ax.set_ylim(-0.7, len(stations) - 0.3)
     lo, hi = ax.get_xlim()
-    ax.set_xlim(lo, hi * 30)  # room for the verdict words
+    ax.set_xlim(lo, hi * 60)  # room for the verdict words
     ax.set_xlabel("power at the detector [W]")
     ax.set_ylabel("station")
-    ax.set_title("Each station at the detector, against the noise that comes with it")
-    fig.legend(loc="outside lower center", ncols=4, fontsize=7, frameon=False)
+    ax.set_title("Stations at the detector, against their noise")
+    fig.legend(loc="outside lower center", ncols=3, fontsize=7, frameon=False)
     _axes_style(ax)
-    fig.aerial_svg = ("stations", "Power at the detector for each station against the man-made noise")
+    fig.aerial_svg = ("stations", "Power at the detector for each station against the noise")
     return fig
 
 

@@ -255,34 +255,52 @@ def _tuning_section(result) -> str:
     return section("tuning", "Tuning", body, "sheet")
 
 
+def _verdict_cell(verdict) -> tuple[str, str]:
+    klass = {"clearly heard": "good", "marginal": "caution", "not heard": "bad"}.get(verdict or "", "")
+    return (f"{VERDICT_MARK.get(verdict, '')} {verdict or '—'}".strip(), f"verdict {klass}")
+
+
+def _station_reasons(s) -> list[str]:
+    name = s.get("name", "")
+    text = s.get("reason", "")
+    for key in ("spills_over", "heard_behind"):
+        if s.get(key):
+            text += ("; " if text else "") + key_label(key) + ": " + ", ".join(str(x) for x in s[key])
+    text += "".join(f"; {w}" for w in s.get("warnings", []))
+    out = [f"{name}{' by day' if s.get('night') else ''}: {text}"] if text else []
+    night = s.get("night") or {}
+    if night.get("reason"):
+        sky = night.get("sky_wave_field_v_per_m")
+        out.append(f"{name} by night: {night['reason']}" + (f" (sky wave {eng(sky, 'V/m')}" if sky else "")
+                   + (", fading" if sky and night.get("fading") else "") + (")" if sky else ""))
+    return out
+
+
 def _stations_section(result) -> str:
     stations = result.get("stations") or []
     if not stations:
         return ""
+    nights = any(s.get("night") for s in stations)
     rows = []
     for s in stations:
-        v = s.get("verdict", "")
-        klass = {"clearly heard": "good", "marginal": "caution", "not heard": "bad"}.get(v, "")
-        rows.append([s.get("name", ""), eng(s.get("frequency_hz"), "Hz"), eng(s.get("distance_m"), "m"),
-                     eng(s.get("field_v_per_m"), "V/m"), eng(s.get("detector_power_w"), "W"),
-                     format_value("audio_power_w", s.get("audio_power_w")),
-                     "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
-                     (f"{VERDICT_MARK.get(v, '')} {v}".strip(), f"verdict {klass}")])
-    why = []
-    for s in stations:
-        text = s.get("reason", "")
-        for key in ("spills_over", "heard_behind"):
-            if s.get(key):
-                text += ("; " if text else "") + key_label(key) + ": " + ", ".join(str(x) for x in s[key])
-        text += "".join(f"; {w}" for w in s.get("warnings", []))
-        if text:
-            why.append(f"{s.get('name', '')}: {text}")
-    body = (table(["station", "frequency", "distance", "field", "at the detector", "audio", "signal-to-noise",
-                   "verdict"], rows, "Stations (● clearly heard, ■ marginal, ✕ not heard)")
-            + bullets(why, "reasons")
-            + figure(charts.station_chart(result), "Power each station delivers to the detector, and the man-made "
-                     "noise that comes with it in the tuned bandwidth (the gap is the signal-to-noise ratio)",
-                     "station-power"))
+        row = [s.get("name", ""), eng(s.get("frequency_hz"), "Hz"), eng(s.get("distance_m"), "m"),
+               eng(s.get("field_v_per_m"), "V/m"), eng(s.get("detector_power_w"), "W"),
+               format_value("audio_power_w", s.get("audio_power_w")),
+               "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
+               _verdict_cell(s.get("verdict"))]
+        if nights:
+            night = s.get("night") or {}
+            field = eng(night.get("field_v_per_m"), "V/m") if night else "—"
+            row += [field + (" fading" if night.get("fading") else ""), _verdict_cell(night.get("verdict"))]
+        rows.append(row)
+    headers = ["station", "frequency", "distance", "field", "at the detector", "audio", "signal-to-noise",
+               "by day" if nights else "verdict"] + (["night field", "by night"] if nights else [])
+    caption = ("Stations (by day: ground wave; by night: ground and sky wave) — " if nights else "Stations — ")
+    body = (table(headers, rows, caption + "● clearly heard, ■ marginal, ✕ not heard")
+            + bullets([line for s in stations for line in _station_reasons(s)], "reasons")
+            + figure(charts.station_chart(result), "Power each station delivers to the detector, and the noise that "
+                     "comes with it in the tuned bandwidth (the gap is the signal-to-noise ratio)"
+                     + ("; hollow marks: by night" if nights else ""), "station-power"))
     return section("stations", "Stations", body, "sheet")
 
 
