@@ -23,6 +23,35 @@ TUNING_ROWS = 5
 ASSUMED_CAPACITOR_F = (15e-12, 365e-12)
 
 
+#: Broadcast channel spacing by region (ITU Radio Regulations, Geneva 1975 plan: Regions 1 and 3
+#: use 9 kHz, Region 2, the Americas, 10 kHz). Names are the ones [site] region accepts elsewhere,
+#: lower-cased, plus the ITU region numbers.
+TEN_KHZ_REGIONS = ("us", "usa", "united states", "ca", "canada", "mx", "mexico", "br", "brazil", "ar", "argentina",
+                   "americas", "region 2")
+NINE_KHZ_REGIONS = (
+    "eu", "europe", "uk", "gb", "at", "be", "bg", "ch", "cy", "cz", "de", "dk", "ee", "es", "fi", "fr", "gr", "hr",
+    "hu", "ie", "is", "it", "lt", "lu", "lv", "mt", "nl", "no", "pl", "pt", "ro", "se", "si", "sk",
+    "au", "australia", "nz", "new zealand", "jp", "japan", "in", "india", "za", "south africa", "africa", "asia",
+    "region 1", "region 3",
+)
+
+
+def channel_spacings(region) -> list:
+    """Broadcast channel spacings [Hz] to judge selectivity by: the region's, or both when unknown.
+
+    Examples
+    --------
+    >>> channel_spacings("US"), channel_spacings("de"), channel_spacings(None)
+    ([10000.0], [9000.0], [9000.0, 10000.0])
+    """
+    norm = str(region or "").strip().lower()
+    if norm in TEN_KHZ_REGIONS or norm.startswith("us-"):
+        return [10e3]
+    if norm in NINE_KHZ_REGIONS:
+        return [9e3]
+    return [9e3, 10e3]
+
+
 def tuning_parts(site) -> reception.TuningParts:
     rx = site.receiver
     cal = None
@@ -41,7 +70,9 @@ def tuning_parts(site) -> reception.TuningParts:
         coupling_coefficient=rx.coupling_factor,
         detector=rx.detector,
         earphone_ohm=rx.earphone_ohm,
+        detector_tap_fraction=rx.detector_tap_fraction,
         calibration=cal,
+        interference_margin_db=rx.interference_margin_db,
     )
 
 
@@ -72,6 +103,7 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     tuning = dict(tuning)
     tuning["band"] = {"name": name, "from_hz": lo, "to_hz": hi}
     tuning["arrangement"] = parts.arrangement
+    tuning["channel_spacings_hz"] = channel_spacings(site.region)
     tuning["source"] = "measured" if parts.calibration else "estimate"
     if _needs_assumed_capacitor(site.receiver):
         tuning.setdefault("notes", []).insert(0, (
@@ -124,7 +156,9 @@ def _stations_day_and_night(site, f, r, x, rr, he, parts) -> tuple[list, list]:
         _, fading = night.combined_night_field(n["ground_wave_field_v_per_m"], sky["field_v_per_m"])
         s["night"] = {
             "verdict": n["verdict"],
+            "verdict_text": n.get("verdict_text", n["verdict"]),
             "reason": n["reason"],
+            **({"interference": n["interference"]} if "interference" in n else {}),
             "field_v_per_m": n["field_v_per_m"],
             "ground_wave_field_v_per_m": n["ground_wave_field_v_per_m"],
             "sky_wave_field_v_per_m": sky["field_v_per_m"],

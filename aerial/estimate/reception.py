@@ -29,6 +29,7 @@ from aerial.models import detector as det_mod
 from aerial.models import groundwave as gw_mod
 from aerial.models import noise as noise_mod
 from aerial.models import tank as tank_mod
+from aerial.estimate import tuned_network as tn_mod
 
 #: Unloaded Q assumed for a coil given only by its inductance (assumption; common practice:
 #: a good air-cored MF coil reaches Q of 100-300).
@@ -59,7 +60,18 @@ DESIGN_MARGIN = 0.93
 #: Largest magnitude written to a result; anything larger is clamped and flagged.
 CLAMP = 1e30
 
-VERDICTS = ("clearly heard", "marginal", "not heard")
+#: Verdicts a station can get: heard (clearly, or marginal), heard with another listed station
+#: underneath, swamped by one, out of the tuning range, below the noise, or too little audio.
+VERDICTS = ("clearly heard", "marginal", "heard with interference", "swamped", "out of the tuning range",
+            "below the noise", "not heard")
+
+#: How far below the wanted station every other listed station should stay at the detector for
+#: listening to be undisturbed (ASSUMPTION, overridable with [receiver] interference_margin: an
+#: interferer 20 dB down is heard only in the pauses; broadcast planning asks about 26-30 dB for
+#: co-channel protection, from memory, a crystal-set listener settles for less). [dB]
+DEFAULT_INTERFERENCE_MARGIN_DB = 20.0
+#: An interferer less than this far below the wanted station (or above it) swamps it. [dB]
+SWAMP_DB = 6.0
 
 LOW_IMPEDANCE_NOTE = (
     "low-impedance headphones (about 32 Ω) hear almost nothing from an unpowered receiver: as the detector's "
@@ -128,6 +140,9 @@ class TuningParts:
     calibration : Calibration or None
         A measured resonance; its aerial capacitance (and loss, with a bandwidth)
         replaces the computed aerial reactance (and resistance).
+    interference_margin_db : float or None
+        How far below the wanted station every other listed station must stay at the
+        detector; None for :data:`DEFAULT_INTERFERENCE_MARGIN_DB`. [dB]
     """
 
     arrangement: str = "direct"
@@ -146,6 +161,7 @@ class TuningParts:
     earphone_ohm: float = 10e3
     detector_tap_fraction: float = 1.0
     calibration: Calibration | None = None
+    interference_margin_db: float | None = None
 
 
 @dataclass(frozen=True)
@@ -247,11 +263,12 @@ class _Aerial:
 
 
 class _Coil:
-    def __init__(self, inductance, q_fun, info, notes):
+    def __init__(self, inductance, q_fun, info, notes, block=None):
         self.inductance = float(inductance)
         self.q = q_fun
         self.info = info
         self.notes = notes
+        self.block = block  # F(x): inductance of a block of a fraction x of the turns [H]; None: tight
 
     def resistance(self, f):
         return 2.0 * np.pi * np.asarray(f, dtype=float) * self.inductance / self.q(f)
@@ -304,7 +321,20 @@ def _coil_from_winding(w: CoilWinding, inductance=None, design_freq=1e6):
                 f"stranded wire: loses less than solid wire of the same size only up to about "
                 f"{rng.better_up_to / 1e3:.0f} kHz; above that the strands' proximity loss outweighs the gain"
             )
-    return L, q_fun, info, notes
+    return L, q_fun, info, notes, _winding_block(w, turns, pitch, L)
+
+
+def _winding_block(w: CoilWinding, turns, pitch, L):
+    """F(x) of a single-layer winding (Nagaoka), scaled so that F(1) is the coil's inductance."""
+    whole = float(coil_mod.solenoid_inductance(w.form_diameter_m, w.wire_diameter_m, turns, pitch))
+
+    def block(x):
+        x = float(x)
+        if x <= 0:
+            return 0.0
+        return float(coil_mod.solenoid_inductance(w.form_diameter_m, w.wire_diameter_m, x * turns, pitch)) * L / whole
+
+    return block
 
 
 def _resolve_coil(parts: TuningParts, inductance=None) -> _Coil:
@@ -316,13 +346,14 @@ def _resolve_coil(parts: TuningParts, inductance=None) -> _Coil:
         raise ModelInputError("the coil needs an inductance, a winding with turns, or a capacitor range to design it")
     if w is not None and (L_given is not None or w.turns is not None or inductance is not None):
         target = L_given if L_given is not None else inductance
-        L, q_fun, info, more = _coil_from_winding(w, target)
+        L, q_fun, info, more, block = _coil_from_winding(w, target)
         source = "given" if L_given is not None else ("from winding" if w.turns is not None else "designed")
         notes.extend(more)
     else:
         L = L_given if L_given is not None else inductance
         source = "given" if L_given is not None else "designed"
         info = {}
+        block = None
         if parts.coil_unloaded_q is not None:
             q_fun = _constant_q(parts.coil_unloaded_q)
         else:
@@ -333,7 +364,7 @@ def _resolve_coil(parts: TuningParts, inductance=None) -> _Coil:
     if not (np.isfinite(L) and L > 0):
         raise ModelInputError("coil inductance must be positive")
     info = {"inductance_h": float(L), "source": source, **info}
-    return _Coil(L, q_fun, info, notes)
+    return _Coil(L, q_fun, info, notes, block)
 
 
 def _diode(parts: TuningParts) -> det_mod.Diode:
@@ -361,6 +392,7 @@ def _check_parts(parts: TuningParts):
 
 def _config(parts: TuningParts, **override) -> dict:
     cfg = dict(arrangement=parts.arrangement, series_capacitance=parts.series_capacitance_f,
+               detector_tap=parts.detector_tap_fraction,
                tap_fraction=parts.tap_fraction, primary_inductance=parts.primary_inductance_h,
                coupling_coefficient=parts.coupling_coefficient)
     cfg.update(override)
@@ -431,7 +463,7 @@ def _apply_calibration(aerial: _Aerial, parts: TuningParts, diode, notes: list) 
     f = float(cal.frequency_hz)
     q_coil = DEFAULT_COIL_Q if parts.coil_unloaded_q is None else float(parts.coil_unloaded_q)
     if parts.coil is not None and parts.coil.turns is not None and cal.bandwidth_hz is not None:
-        L_w, q_fun, _, _ = _coil_from_winding(parts.coil, cal.coil_inductance_h)
+        L_w, q_fun, _, _, _ = _coil_from_winding(parts.coil, cal.coil_inductance_h)
         q_coil = float(q_fun(f))
     g_det = parts.detector_tap_fraction**2 / (parts.earphone_ohm / 2.0)
     res = tank_mod.calibrate_from_resonance(f, cal.coil_inductance_h, cal.capacitor_setting_f, cal.bandwidth_hz,
@@ -590,7 +622,8 @@ def _design_inductance(band, aerial, parts, notes) -> float:
 
 
 def _strong_signal_conductance(parts):
-    return parts.detector_tap_fraction**2 / (parts.earphone_ohm / 2.0)
+    """The detector's strong-signal RF input conductance 2/R_L, at its own tap. [S]"""
+    return 1.0 / (parts.earphone_ohm / 2.0)
 
 
 def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, band=None) -> dict:
@@ -686,29 +719,46 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
     return result
 
 
+def _net_parts(coil: _Coil, parts: TuningParts, **override):
+    cfg = _config(parts, **override)
+    return tn_mod.network_parts(cfg["arrangement"], coil.inductance, coil.q, cfg["detector_tap"], cfg["tap_fraction"],
+                                cfg["series_capacitance"], cfg["primary_inductance"], cfg["coupling_coefficient"],
+                                coil.block)
+
+
+def _za(aerial: _Aerial):
+    def za(f):
+        r, x = aerial.impedance(f)
+        return r + 1j * x
+
+    return za
+
+
 def _table_arrays(table_f, aerial, coil, parts) -> dict:
-    """The tuning table's figures as arrays over the tabulated frequencies."""
+    """The tuning table's figures as arrays over the tabulated frequencies.
+
+    The capacitor setting, loaded Q, bandwidth, rejections and power to the detector come from
+    the network solve (:mod:`aerial.models.network`), with the detector at its strong-signal
+    input resistance (R_L/2) and again at its weak-signal one; the aerial's shunt equivalent
+    and share of the tuning capacitance from the closed-form coupling.
+    """
     t = _coupling(table_f, aerial, coil.inductance, coil.q, _config(parts))
-    c_needed = tank_mod.capacitance_needed(table_f, t.coil_admittance, t.aerial_admittance)
     w = 2.0 * np.pi * table_f
     shunt = tank_mod.shunt_from_admittance(table_f, t.aerial_admittance)
     b_coil = -np.imag(t.coil_admittance)
     g_coil = np.real(t.coil_admittance)
     c_total = b_coil / w  # everything but the coil, at resonance
     qu = b_coil / g_coil
-    g_aerial = np.maximum(np.real(t.aerial_admittance), 1e-15)
-    g_det = _strong_signal_conductance(parts)
-    ql = tank_mod.loaded_q(qu, b_coil / g_aerial, b_coil / g_det)
+    net = _net_parts(coil, parts)
+    offsets = [o for spacing in tank_mod.CHANNEL_SPACINGS_HZ for o in (spacing, 2 * spacing)]
+    g_strong = _strong_signal_conductance(parts)
+    strong = tn_mod.tuned_figures(table_f, _za(aerial), net, g_strong, offsets)
+    weak = tn_mod.tuned_figures(table_f, _za(aerial), net, tn_mod.weak_signal_conductance(_diode(parts)), offsets)
     r_a, _ = aerial.impedance(table_f)
-    # circuit power transfer: P_det / P_av, P_av = V²/(4 Ra), V_top = V·|I_N| / G_total
-    v_top = np.abs(t.current_per_volt) / (g_coil + g_aerial + g_det)
+    c_needed = strong.capacitance
     within = np.ones_like(table_f, dtype=bool)
     if parts.capacitor_min_f is not None:
         within = (c_needed >= parts.capacitor_min_f) & (c_needed <= parts.capacitor_max_f)
-    rejection = {}
-    for spacing in tank_mod.CHANNEL_SPACINGS_HZ:
-        for offset in (spacing, 2 * spacing):
-            rejection[f"rejection_{int(offset / 1e3)}khz_db"] = tank_mod.adjacent_rejection_db(table_f, ql, offset)
     return {
         "inductance_h": 1.0 / (w * b_coil),  # the coil's shunt-equivalent inductance L(1 + 1/Qu²)
         "total_capacitance_f": c_total,
@@ -718,18 +768,25 @@ def _table_arrays(table_f, aerial, coil, parts) -> dict:
         "aerial_shunt_resistance_ohm": shunt.resistance,
         "aerial_share_ratio": shunt.capacitance / np.where(c_total != 0, c_total, 1e-30),
         "unloaded_q": qu,
-        "loaded_q": ql,
-        "bandwidth_hz": tank_mod.bandwidth(table_f, ql),
-        "power_transfer_ratio": v_top**2 * g_det / (1.0 / (4.0 * r_a)),
-        "power_transfer_if_matched_ratio": tank_mod.matched_power_ratio(ql, qu),
-        "rejection": rejection,
+        "loaded_q": strong.loaded_q,
+        "bandwidth_hz": strong.bandwidth,
+        "power_transfer_ratio": strong.detector_per_volt**2 * g_strong * 4.0 * r_a,
+        "power_transfer_if_matched_ratio": tank_mod.matched_power_ratio(np.minimum(strong.loaded_q, qu), qu),
+        "loaded_q_weak_signal": weak.loaded_q,
+        "bandwidth_weak_signal_hz": weak.bandwidth,
+        "power_transfer_weak_signal_ratio": weak.detector_per_volt**2 * tn_mod.weak_signal_conductance(_diode(parts))
+        * 4.0 * r_a,
+        "rejection": {f"rejection_{int(d / 1e3)}khz_db": v for d, v in strong.rejection.items()},
+        "rejection_weak": {f"rejection_{int(d / 1e3)}khz_weak_signal_db": v for d, v in weak.rejection.items()},
+        "wide": strong.wider_than_searched,
     }
 
 
 #: Keys of the tuning table's rows, in order, after ``frequency_hz``.
 _ROW_KEYS = ("inductance_h", "total_capacitance_f", "capacitor_setting_f", "within_capacitor_range",
              "aerial_shunt_capacitance_f", "aerial_shunt_resistance_ohm", "aerial_share_ratio", "unloaded_q",
-             "loaded_q", "bandwidth_hz", "power_transfer_ratio", "power_transfer_if_matched_ratio")
+             "loaded_q", "bandwidth_hz", "power_transfer_ratio", "power_transfer_if_matched_ratio",
+             "loaded_q_weak_signal", "bandwidth_weak_signal_hz", "power_transfer_weak_signal_ratio")
 
 
 def _table_rows(table_f, arr, warnings) -> list:
@@ -741,8 +798,10 @@ def _table_rows(table_f, arr, warnings) -> list:
                 row[key] = bool(arr["within"][i])
             else:
                 row[key] = _num(arr[key][i], key, warnings)
-        for key, values in arr["rejection"].items():
+        for key, values in list(arr["rejection"].items()) + list(arr["rejection_weak"].items()):
             row[key] = _num(values[i], "rejection", warnings)
+        if arr["wide"][i]:
+            row["bandwidth_note"] = "wider than a third of the frequency either side: the bandwidth is a lower bound"
         if arr["aerial_shunt_capacitance_f"][i] < 0:
             row["note"] = "the aerial looks inductive here (above its first resonance)"
         rows.append(row)
@@ -989,12 +1048,11 @@ def assess_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, eff
     _apply_calibration(aerial, parts, diode, common)
     coil = _station_coil(aerial, parts)
     a = _station_arrays(aerial, coil, parts, diode, stations, noise_category, modulation_depth)
+    judged = judge_stations(a, parts, [s.name for s in stations])
     results = []
     for i, s in enumerate(stations):
         warn = list(common) + _station_warnings(aerial, a, i)
-        tunable, reason_tune = _tunable(parts, a["fs"][i], a["c_need"][i])
-        verdict, reason = _verdict(tunable, reason_tune, float(a["audio"].audio_power[i]), float(a["snr"][i]))
-        results.append(_station_row(s, a, i, tunable, verdict, reason, warn))
+        results.append(_station_row(s, a, i, judged[i], warn))
     _spill_over(results, stations, a)
     if parts.arrangement in tank_mod.NO_DC_PATH_ARRANGEMENTS:
         for r in results:
@@ -1024,8 +1082,7 @@ def _station_coil(aerial, parts) -> _Coil:
 
 
 def _station_arrays(aerial, coil, parts, diode, stations, noise_category, modulation_depth) -> dict:
-    """Every per-station figure as arrays over the stations (one vectorised pass)."""
-    tap = float(parts.detector_tap_fraction)
+    """Every per-station figure as arrays over the stations (one vectorised pass through the network)."""
     load = float(parts.earphone_ohm)
     fs = np.array([float(s.frequency_hz) for s in stations])
     gw = gw_mod.groundwave_field(np.array([s.power_w for s in stations]), np.array([s.distance_m for s in stations]),
@@ -1033,31 +1090,24 @@ def _station_arrays(aerial, coil, parts, diode, stations, noise_category, modula
                                  np.array([s.soil_conductivity_s_per_m for s in stations]))
     he = aerial.effective_height(fs)
     r_a, _ = aerial.impedance(fs)
-    rr = aerial.radiation_resistance(fs)
     sky = np.array([float(s.sky_wave_field_v_per_m) for s in stations])
     field = np.hypot(gw.field, sky)
     v_oc = field * he
-    t = _coupling(fs, aerial, coil.inductance, coil.q, _config(parts))
-    c_need = tank_mod.capacitance_needed(fs, t.coil_admittance, t.aerial_admittance)
-    b_coil = -np.imag(t.coil_admittance)
-    g0 = np.real(t.coil_admittance) + np.maximum(np.real(t.aerial_admittance), 0.0)
-    current = v_oc * np.abs(t.current_per_volt)
-    v_top, converged, _ = _solve_tank_voltage(current, g0, tap, diode, load)
-    det = det_mod.loaded_detector(np.sqrt(2.0) * tap * v_top, diode.saturation_current_a, diode.ideality, load)
-    audio = det_mod.audio_output(np.sqrt(2.0) * tap * v_top, diode, load, modulation_depth)
-    g_det = tap**2 / det.input_resistance
-    ql = tank_mod.loaded_q(b_coil / np.real(t.coil_admittance), b_coil / np.maximum(np.real(t.aerial_admittance), 1e-15),
-                           b_coil / g_det)
-    bw = tank_mod.bandwidth(fs, ql)
+    lv = tn_mod.station_levels(fs, v_oc, _za(aerial), _net_parts(coil, parts), diode, load)
+    v_det = lv.detector_voltage
+    det = det_mod.loaded_detector(np.sqrt(2.0) * v_det, diode.saturation_current_a, diode.ideality, load)
+    audio = det_mod.audio_output(np.sqrt(2.0) * v_det, diode, load, modulation_depth)
     fam = noise_mod.man_made_noise_figure(fs, noise_category)
     atm = np.array([-np.inf if s.atmospheric_noise_db is None else float(s.atmospheric_noise_db) for s in stations])
     fam_total = 10.0 * np.log10(10.0 ** (fam.noise_figure_db / 10.0) + 10.0 ** (atm / 10.0))
-    en = noise_mod.v_per_m_from_dbuv_per_m(noise_mod.noise_field_dbuv_per_m(fam_total, fs, bw))
+    en = noise_mod.v_per_m_from_dbuv_per_m(noise_mod.noise_field_dbuv_per_m(fam_total, fs, lv.bandwidth))
     return {
-        "fs": fs, "gw": gw, "he": he, "r_a": r_a, "rr": rr, "v_oc": v_oc, "c_need": c_need, "v_top": v_top,
-        "converged": converged, "det": det, "audio": audio, "p_det": v_top**2 * g_det,
-        "p_av": v_oc**2 / (4.0 * r_a), "ql": ql, "bw": bw, "fam": fam, "en": en,
-        "snr": noise_mod.db_from_voltage_ratio(field / en), "field": field, "sky": sky, "fam_total": fam_total, "threshold": _threshold_voltage(tap, diode, load),
+        "fs": fs, "gw": gw, "he": he, "r_a": r_a, "rr": aerial.radiation_resistance(fs), "v_oc": v_oc,
+        "c_need": lv.capacitance, "v_top": lv.top_voltage, "v_det": v_det,
+        "converged": lv.converged, "det": det, "audio": audio, "p_det": v_det**2 / lv.input_resistance,
+        "p_av": v_oc**2 / (4.0 * r_a), "ql": lv.loaded_q, "bw": lv.bandwidth, "fam": fam, "en": en,
+        "snr": noise_mod.db_from_voltage_ratio(field / en), "field": field, "sky": sky, "fam_total": fam_total,
+        "threshold": _threshold_voltage(1.0, diode, load), "others": lv.others,
     }
 
 
@@ -1077,33 +1127,91 @@ def _station_warnings(aerial, a, i) -> list:
     return warn
 
 
-def _tunable(parts, f, c_need) -> tuple:
-    if parts.capacitor_min_f is not None and not (parts.capacitor_min_f <= c_need <= parts.capacitor_max_f):
-        return False, (f"the tuning capacitor cannot reach {_khz(f)} (needs {_pf(c_need)}, range "
-                       f"{_pf(parts.capacitor_min_f)} to {_pf(parts.capacitor_max_f)})")
-    return True, ""
+def _tuning_need(parts, c_need) -> str:
+    """What it would take to tune a station the capacitor cannot reach ("" when it can)."""
+    cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
+    if cmin is None or cmin <= c_need <= cmax:
+        return ""
+    rng = f"the capacitor gives {_pf(cmin)} to {_pf(cmax)}"
+    if c_need < 0:
+        return (f"needs less than no capacitance: the aerial alone tunes the coil lower; {rng}; "
+                "use a smaller coil, a tap or a series capacitor")
+    if c_need < cmin:
+        return f"needs {_pf(c_need)}; {rng}: use a smaller coil, or a tap or series capacitor for the aerial"
+    return f"needs {_pf(c_need)}; {rng}: use a larger coil or add fixed capacitance"
 
 
-def _verdict(tunable, reason_tune, pa, sn) -> tuple:
-    """(verdict, reason) from the audio power [W] and the signal-to-noise ratio [dB]."""
-    if not tunable:
-        return "not heard", reason_tune
-    if pa >= CLEAR_POWER_W and sn >= CLEAR_SNR_DB:
-        return "clearly heard", f"audio {pa:.1e} W and {sn:.0f} dB above the noise"
-    if pa >= AUDIBLE_POWER_W and sn >= MARGINAL_SNR_DB:
-        why = "weak audio" if pa < CLEAR_POWER_W else "noisy"
-        return "marginal", f"{why}: audio {pa:.1e} W, {sn:.0f} dB above the noise"
-    if pa < AUDIBLE_POWER_W:
-        return "not heard", (f"too little audio ({pa:.1e} W; about {AUDIBLE_POWER_W:.0e} W is assumed "
-                             "to be just audible)")
-    return "not heard", f"buried in the noise ({sn:.0f} dB signal-to-noise)"
+def judge_stations(a: dict, parts: TuningParts, names) -> list:
+    """One verdict per station under one set of conditions (fields, noise and interference).
+
+    Parameters
+    ----------
+    a : dict
+        Arrays over the stations: ``c_need`` [F], ``audio`` (audio power [W]), ``snr`` [dB],
+        ``others`` (n × n RMS detector voltage of station j when tuned to i [V]) and
+        ``threshold`` (just-audible detector voltage [V]).
+    parts : TuningParts
+    names : sequence of str
+
+    Returns
+    -------
+    list of dict
+        ``verdict`` (one of :data:`VERDICTS`), ``verdict_text`` (the verdict in words, with the
+        interferer's name and level or what tuning needs), ``reason``, and ``interference``
+        (the strongest audible other station: ``name``, ``level_relative_db``) when there is one.
+
+    Notes
+    -----
+    Called once per condition (day, and a night column can call it again with night-time
+    fields and noise). Order of judgement: out of the tuning range; too little audio; below the
+    noise; swamped (another station less than :data:`SWAMP_DB` below); heard with another
+    station underneath (less than the interference margin below); heard.
+    """
+    margin = DEFAULT_INTERFERENCE_MARGIN_DB if parts.interference_margin_db is None else parts.interference_margin_db
+    others = np.array(a["others"], dtype=float)
+    own = np.diag(others).copy()
+    audible = others >= a["threshold"]
+    np.fill_diagonal(audible, False)
+    rel = np.where(audible, 20.0 * np.log10(np.maximum(others, 1e-300) / np.maximum(own, 1e-300)[:, None]), -np.inf)
+    out = []
+    for i, name in enumerate(names):
+        pa, sn = float(a["audio"].audio_power[i]), float(a["snr"][i])
+        need = _tuning_need(parts, float(a["c_need"][i]))
+        j = int(np.argmax(rel[i])) if len(names) > 1 else 0
+        worst = float(rel[i, j]) if len(names) > 1 else -np.inf
+        v = {"interference": {"name": names[j], "level_relative_db": worst}} if np.isfinite(worst) else {}
+        level = f"audio {pa:.1e} W, {sn:.0f} dB above the noise"
+        if need:
+            v = {"verdict": "out of the tuning range", "verdict_text": f"out of the tuning range ({need})",
+                 "reason": f"the tuning capacitor cannot reach {_khz(a['fs'][i])} ({need})"}
+        elif pa < AUDIBLE_POWER_W:
+            v.update(verdict="not heard", verdict_text="not heard: too little audio",
+                     reason=f"too little audio ({pa:.1e} W; about {AUDIBLE_POWER_W:.0e} W is assumed to be just audible)")
+        elif sn < MARGINAL_SNR_DB:
+            v.update(verdict="below the noise", verdict_text=f"below the noise ({sn:.0f} dB signal-to-noise)",
+                     reason=f"buried in the noise ({sn:.0f} dB signal-to-noise)")
+        elif worst > -SWAMP_DB:
+            how = f"{-worst:.0f} dB down" if worst <= 0 else f"{worst:.0f} dB louder"
+            v.update(verdict="swamped", verdict_text=f"swamped by {names[j]} ({how})",
+                     reason=f"{names[j]} comes through {how} at the detector; {level}")
+        else:
+            clear = pa >= CLEAR_POWER_W and sn >= CLEAR_SNR_DB
+            verdict = "clearly heard" if clear else "marginal"
+            why = "" if clear else ("weak audio: " if pa < CLEAR_POWER_W else "noisy: ")
+            v.update(verdict=verdict, verdict_text=verdict, reason=why + level)
+            if worst > -margin:
+                v.update(verdict="heard with interference",
+                         verdict_text=f"heard with {names[j]} underneath ({-worst:.0f} dB down)",
+                         reason=why + level + f"; {names[j]} {-worst:.0f} dB down (less than the {margin:g} dB margin)")
+        out.append(v)
+    return out
 
 
-def _station_row(s, a, i, tunable, verdict, reason, warn) -> dict:
+def _station_row(s, a, i, judged, warn) -> dict:
     fs, gw, v_top, det, audio = a["fs"], a["gw"], a["v_top"], a["det"], a["audio"]
     threshold, ql = a["threshold"], a["ql"]
     pa = float(audio.audio_power[i])
-    r_ratio = threshold / v_top[i] if np.isfinite(threshold) else np.inf
+    r_ratio = threshold / a["v_det"][i] if np.isfinite(threshold) else np.inf
     width = float(fs[i] * np.sqrt(1.0 / r_ratio**2 - 1.0) / ql[i]) if r_ratio < 1 else 0.0
     return {
         "name": s.name,
@@ -1120,7 +1228,7 @@ def _station_row(s, a, i, tunable, verdict, reason, warn) -> dict:
         "aerial_efficiency_ratio": _num(a["rr"][i] / a["r_a"][i], "aerial_efficiency_ratio", warn),
         "available_power_w": _num(a["p_av"][i], "available_power_w", warn),
         "capacitor_setting_f": _num(a["c_need"][i], "capacitor_setting_f", warn),
-        "tunable": tunable,
+        "tunable": judged["verdict"] != "out of the tuning range",
         "tank_voltage_v": _num(v_top[i], "tank_voltage_v", warn),
         "detector_power_w": _num(a["p_det"][i], "detector_power_w", warn),
         "detector_input_resistance_ohm": _num(det.input_resistance[i], "detector_input_resistance_ohm", warn),
@@ -1131,8 +1239,11 @@ def _station_row(s, a, i, tunable, verdict, reason, warn) -> dict:
         "bandwidth_hz": _num(a["bw"][i], "bandwidth_hz", warn),
         "noise_field_v_per_m": _num(a["en"][i], "noise_field_v_per_m", warn),
         "signal_to_noise_db": _num(a["snr"][i], "signal_to_noise_db", warn),
-        "verdict": verdict,
-        "reason": reason,
+        "verdict": judged["verdict"],
+        "verdict_text": judged["verdict_text"],
+        "reason": judged["reason"],
+        **({"interference": {"name": judged["interference"]["name"], "level_relative_db": _num(
+            judged["interference"]["level_relative_db"], "level_relative_db", warn)}} if "interference" in judged else {}),
         "audible_width_hz": _num(width, "audible_width_hz", warn),
         "heard_behind": [],
         "spills_over": [],
@@ -1142,13 +1253,12 @@ def _station_row(s, a, i, tunable, verdict, reason, warn) -> dict:
 
 def _spill_over(results, stations, a):
     """Station j heard while tuned to station i: every pair at once, as an n × n array."""
-    fs, v_top, ql = a["fs"], a["v_top"], a["ql"]
-    h = tank_mod.single_tuned_response(fs[np.newaxis, :], fs[:, np.newaxis], ql[:, np.newaxis])
-    v_spill = v_top[np.newaxis, :] * h
+    v_spill = a["others"]
+    own = np.diag(v_spill)
     heard = v_spill >= a["threshold"]
     np.fill_diagonal(heard, False)
     heard &= np.array([r["tunable"] for r in results])[:, np.newaxis]
     for i, j in zip(*np.nonzero(heard)):
-        rel = float(noise_mod.db_from_voltage_ratio(v_spill[i, j] / v_top[i]))
+        rel = float(noise_mod.db_from_voltage_ratio(v_spill[i, j] / own[i]))
         results[i]["heard_behind"].append({"name": stations[j].name, "level_relative_db": _num(rel, "level", [])})
         results[j]["spills_over"].append(stations[i].name)

@@ -218,6 +218,8 @@ def _render_tuning(tuning, console) -> None:
                 ("loaded Q", "loaded_q", ""), ("bandwidth", "bandwidth_hz", "Hz"),
                 ("9 kHz away", "rejection_9khz_db", "dB"), ("10 kHz away", "rejection_10khz_db", "dB"),
                 ("to detector", "power_transfer_ratio", "%")]
+        spacings = [int(round(v / 1e3)) for v in tuning.get("channel_spacings_hz", [9e3, 10e3])]
+        cols = [c for c in cols if not c[1].startswith("rejection_") or int(c[1].split("_")[1][:-3]) in spacings]
         for name, _, _ in cols:
             t.add_column(name, justify="right")
         idx = np.unique(np.linspace(0, len(rows) - 1, min(len(rows), 5)).round().astype(int))
@@ -230,6 +232,8 @@ def _render_tuning(tuning, console) -> None:
                     cells.append("—")
                 elif unit == "dB":
                     cells.append(f"{v:.1f} dB")
+                elif key == "aerial_share_ratio" and r.get("aerial_shunt_capacitance_f") is not None:
+                    cells.append(f"{eng(r['aerial_shunt_capacitance_f'], 'F')} ({100 * v:.0f} %)")
                 elif unit == "%":
                     cells.append(f"{100 * v:.0f} %")
                 elif unit == "":
@@ -251,7 +255,8 @@ def _render_tuning(tuning, console) -> None:
         console.print(f"[dim]{escape(line)}[/dim]")
 
 
-VERDICT_STYLES = {"clearly heard": "green", "marginal": "yellow", "not heard": "red"}
+VERDICT_STYLES = {"clearly heard": "green", "marginal": "yellow", "heard with interference": "yellow",
+                  "swamped": "red", "out of the tuning range": "red", "below the noise": "red", "not heard": "red"}
 
 
 def _render_stations(stations, console) -> None:
@@ -268,11 +273,14 @@ def _render_stations(stations, console) -> None:
         nfield = eng(night.get("field_v_per_m"), "V/m") if night else "—"
         if night.get("fading"):
             nfield += " fading"
+        style = VERDICT_STYLES.get(verdict, "")
+        verdict = s.get("verdict_text", verdict)
+        nstyle = VERDICT_STYLES.get(nv, "")
+        nv = night.get("verdict_text", nv)
         t.add_row(s.get("name", ""), eng(s.get("frequency_hz"), "Hz"), eng(s.get("distance_m"), "m"),
                   eng(s.get("field_v_per_m"), "V/m"), eng(s.get("detector_power_w"), "W"),
                   "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
-                  Text(verdict, style=VERDICT_STYLES.get(verdict, "")), nfield,
-                  Text(nv or "—", style=VERDICT_STYLES.get(nv, "")))
+                  Text(verdict, style=style), nfield, Text(nv or "—", style=nstyle))
     console.print(t)
     for s in stations:
         why = s.get("reason", "")

@@ -258,6 +258,8 @@ class Receiver:
     earphone_ohm: float = 2000.0
     measured: dict | None = None
     given: bool = False
+    detector_tap_fraction: float = 1.0
+    interference_margin_db: float | None = None
 
 
 @dataclass
@@ -880,7 +882,7 @@ def _receiver(r: TableReader, raw) -> Receiver:
     key = "receiver"
     r.check_keys(t, key, {
         "at", "height", "coupling", "coil", "capacitor", "coupling_capacitor", "tap", "primary", "coupling_factor",
-        "detector", "earphone", "measured", "notes",
+        "detector", "earphone", "measured", "notes", "detector_tap", "interference_margin",
     })
     if "at" in t:
         x, y = r.plan_point(t["at"], "receiver.at")
@@ -934,6 +936,8 @@ def _receiver(r: TableReader, raw) -> Receiver:
     if coupling == "coil tap" and tap is None:
         r.fail("receiver.tap", "", 'coupling "coil tap" needs tap = 0.25 (the fraction of turns from the earthy end)')
     detector = r.string(t, key, "detector", default="germanium", choices=DETECTORS)
+    det_tap = r.number(t, key, "detector_tap", low=0.01, high=1.0, what="a tap position as a fraction of the coil's turns")
+    margin = _decibels(r, t, key, "interference_margin", 0.0, 60.0)
     ear = t.get("earphone", "high-impedance")
     if isinstance(ear, str) and ear.strip().lower() in ("high-impedance", "high impedance"):
         ear_ohm = HIGH_IMPEDANCE_EARPHONE_OHM
@@ -968,7 +972,25 @@ def _receiver(r: TableReader, raw) -> Receiver:
         coupling=coupling, inductance_h=inductance, coil=coil, capacitor_min_f=cmin, capacitor_max_f=cmax,
         coupling_capacitor_f=cc, tap_fraction=tap, primary_inductance_h=primary, coupling_factor=kf,
         detector=detector, earphone_ohm=ear_ohm, measured=measured, given="at" in t,
+        detector_tap_fraction=1.0 if det_tap is None else det_tap, interference_margin_db=margin,
     )
+
+
+def _decibels(r: TableReader, t, key, name, low, high):
+    """A level in decibels: a number or text such as "20 dB"; None when absent."""
+    if name not in t:
+        return None
+    v = t[name]
+    text = v.strip() if isinstance(v, str) else None
+    if text is not None and text.lower().endswith("db"):
+        text = text[:-2].strip()
+    try:
+        value = float(text) if text is not None else (float(v) if isinstance(v, (int, float)) and not isinstance(v, bool) else None)
+    except (ValueError, OverflowError):
+        value = None
+    if value is None or not (low <= value <= high):
+        r.fail(f"{key}.{name}", v, f'expected a level in decibels from {low:g} to {high:g}, such as "20 dB"')
+    return value
 
 
 def _coil_winding(r: TableReader, c: dict) -> CoilWinding:

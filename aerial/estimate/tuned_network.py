@@ -1,0 +1,232 @@
+"""The receiving network tuned to a frequency: table figures, station levels and interference.
+
+Glue between the network solver (:mod:`aerial.models.network`) and the detector model
+(:mod:`aerial.models.detector`): tunes the network to each wanted frequency, finds the
+detector's operating point for a station (its RF input resistance depends on the signal
+level) and evaluates every other station through the same tuned network. Arrays in, arrays
+out; no dicts, no wording.
+
+Voltages are RMS unless said otherwise; the detector model takes the RF peak (√2 × RMS).
+"""
+
+from __future__ import annotations
+
+from typing import Callable, NamedTuple
+
+import numpy as np
+
+from aerial.models import detector as det_mod
+from aerial.models import network as net_mod
+
+#: Relative tolerance and iteration limit of the detector operating-point solver.
+LEVEL_RTOL = 1e-9
+LEVEL_MAX_ITER = 200
+
+
+def network_parts(arrangement, inductance, q_fun, detector_tap=1.0, tap_fraction=None, series_capacitance=None,
+                  primary_inductance=None, coupling_coefficient=None, block=None,
+                  primary_capacitance=None) -> net_mod.NetworkParts:
+    """The network's parts for a coil of ``inductance`` [H] whose unloaded Q is ``q_fun(f)``.
+
+    A separate primary is taken as wound like the tank coil (same Q, an assumption).
+
+    Examples
+    --------
+    >>> p = network_parts("coil tap", 200e-6, lambda f: 150.0, 0.5, tap_fraction=0.2)
+    >>> round(float(p.coil_resistance(1e6)), 2)  # ωL/Q
+    8.38
+    """
+    L = float(inductance)
+
+    def coil_r(f):
+        return 2.0 * np.pi * np.asarray(f, dtype=float) * L / q_fun(f)
+
+    rp = 0.0
+    if primary_inductance is not None:
+        lp = float(primary_inductance)
+
+        def rp(f):
+            return 2.0 * np.pi * np.asarray(f, dtype=float) * lp / q_fun(f)
+
+    return net_mod.NetworkParts(arrangement, L, coil_r, float(detector_tap), tap_fraction, series_capacitance,
+                                primary_inductance, coupling_coefficient, rp, primary_capacitance, 0.0, block)
+
+
+class TunedFigures(NamedTuple):
+    capacitance: np.ndarray  #: tuning capacitor setting [F]
+    detector_per_volt: np.ndarray  #: |V_det| per volt of aerial EMF at the tuned frequency [1]
+    loaded_q: np.ndarray  #: f0 / −3 dB bandwidth of the detector voltage [1]
+    bandwidth: np.ndarray  #: [Hz]
+    wider_than_searched: np.ndarray  #: bandwidth is a floor [bool]
+    rejection: dict  #: offset [Hz] -> rejection of the weaker side [dB]
+
+
+def tuned_figures(frequency, za: Callable, parts: net_mod.NetworkParts, detector_conductance,
+                  offsets=()) -> TunedFigures:
+    """Tune the network to each ``frequency`` and measure its response at the detector.
+
+    Parameters
+    ----------
+    frequency : ndarray
+        [Hz]
+    za : callable
+        Aerial impedance za(f) -> complex array. [ohm]
+    parts : NetworkParts
+    detector_conductance : array_like
+        The detector's RF input conductance at each frequency (its signal level). [S]
+    offsets : sequence of float
+        Frequency offsets for the rejection figures. [Hz]
+
+    Returns
+    -------
+    TunedFigures
+
+    Examples
+    --------
+    >>> p = network_parts("direct", 240e-6, lambda f: 150.0)
+    >>> t = tuned_figures(np.array([1e6]), lambda f: 25 - 1j / (2 * np.pi * f * 100e-12), p, 0.0, [9e3])
+    >>> round(float(t.capacitance[0]) * 1e12, 1)  # 1/(ω²L) less the aerial's 100 pF, a little more
+    5.6
+    """
+    f0 = np.asarray(frequency, dtype=float)
+    g = np.broadcast_to(np.asarray(detector_conductance, dtype=float), f0.shape)
+    c = net_mod.tuning_capacitance_for(f0, za(f0), parts, g)
+    c_pos = np.maximum(c, 0.0)
+
+    def response(f):
+        return np.abs(net_mod.solve_network(f, za(f), parts, c_pos, g).detector_voltage)
+
+    tuned = response(f0)
+    edges = net_mod.detector_bandwidth(f0, response)
+    rej = {}
+    for d in offsets:
+        below = np.maximum(f0 - d, f0 * 1e-3)
+        rej[d] = net_mod.rejection_db(tuned, (response(below), response(f0 + d)))
+    return TunedFigures(c, tuned, edges.loaded_q, edges.bandwidth, edges.wider_than_searched, rej)
+
+
+def weak_signal_conductance(diode: det_mod.Diode) -> float:
+    """The detector's RF input conductance for a vanishing signal, Is/(nVT). [S]
+
+    Examples
+    --------
+    >>> d = det_mod.get_diode("germanium")
+    >>> weak_signal_conductance(d) > 0
+    True
+    """
+    return float(1.0 / det_mod.loaded_detector(0.0, diode.saturation_current_a, diode.ideality, 1e4).input_resistance)
+
+
+def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL, max_iter=LEVEL_MAX_ITER):
+    """RMS detector voltage V with V·|1 + Z_s/R_in(√2 V)| = V_open (bisection in log V).
+
+    Parameters
+    ----------
+    open_voltage : ndarray
+        RMS voltage at the detector's tap with the detector removed. [V]
+    source_impedance : ndarray of complex
+        Impedance seen by the detector (Re ≥ 0). [ohm]
+    diode : Diode
+    load : float
+        Earphone resistance. [ohm]
+
+    Returns
+    -------
+    (ndarray, ndarray, bool)
+        V [V], the detector's RF input resistance at that level [ohm], converged.
+
+    Examples
+    --------
+    >>> d = det_mod.get_diode("germanium")
+    >>> v, r, ok = detector_level(np.array([1.0]), np.array([10e3 + 0j]), d, 10e3)
+    >>> ok and 0.3 < float(v[0]) < 0.5  # R_in near R_L/2 = 5 kΩ: about a third of the open voltage
+    True
+    """
+    v0 = np.asarray(open_voltage, dtype=float)
+    z = np.asarray(source_impedance, dtype=complex)
+    hi = np.maximum(v0, 1e-30)
+    lo = hi * 1e-12
+    for _ in range(int(max_iter)):
+        mid = np.sqrt(lo * hi)
+        r_in = det_mod.loaded_detector(np.sqrt(2.0) * mid, diode.saturation_current_a, diode.ideality, load).input_resistance
+        up = mid * np.abs(1.0 + z / r_in) - v0 > 0
+        hi = np.where(up, mid, hi)
+        lo = np.where(up, lo, mid)
+        if np.all(hi / lo - 1.0 <= rtol):
+            break
+    v = np.sqrt(lo * hi)
+    r_in = det_mod.loaded_detector(np.sqrt(2.0) * v, diode.saturation_current_a, diode.ideality, load).input_resistance
+    return v, r_in, bool(np.all(hi / lo - 1.0 <= rtol))
+
+
+class StationLevels(NamedTuple):
+    capacitance: np.ndarray  #: tuning capacitor setting for each station [F]
+    detector_voltage: np.ndarray  #: RMS at the detector [V]
+    input_resistance: np.ndarray  #: detector RF input resistance at that level [ohm]
+    top_voltage: np.ndarray  #: RMS at the tank top [V]
+    converged: bool
+    loaded_q: np.ndarray  #: at the station's own level [1]
+    bandwidth: np.ndarray  #: [Hz]
+    others: np.ndarray  #: (n, n): RMS detector voltage of station j while tuned to station i [V]
+
+
+def station_levels(frequency, open_circuit_voltage, za: Callable, parts: net_mod.NetworkParts, diode,
+                   load) -> StationLevels:
+    """Tune to each station in turn: its detector level, selectivity, and every other station's level.
+
+    Parameters
+    ----------
+    frequency : ndarray
+        Station frequencies. [Hz]
+    open_circuit_voltage : ndarray
+        Aerial EMF of each station, RMS. [V]
+    za : callable
+        Aerial impedance za(f). [ohm]
+    parts : NetworkParts
+    diode : Diode
+    load : float
+        Earphone resistance. [ohm]
+
+    Returns
+    -------
+    StationLevels
+
+    Notes
+    -----
+    The tuning is found with the detector at its weak-signal conductance, the operating point
+    solved, then the tuning and the operating point found again at that level. The other
+    stations pass through the network tuned to the wanted one, with the detector held at the
+    wanted station's input resistance (a weaker carrier rides on the stronger one), linearly:
+    the detector's mixing of the two is not modelled.
+
+    Examples
+    --------
+    >>> d = det_mod.get_diode("germanium")
+    >>> p = network_parts("direct", 240e-6, lambda f: 150.0, 0.5)
+    >>> za = lambda f: 25 - 1j / (2 * np.pi * f * 150e-12)
+    >>> s = station_levels(np.array([6e5, 1e6]), np.array([0.05, 0.01]), za, p, d, 10e3)
+    >>> bool(s.others[1, 0] < s.detector_voltage[0])
+    True
+    """
+    fs = np.asarray(frequency, dtype=float)
+    v_oc = np.asarray(open_circuit_voltage, dtype=float)
+    z_s = za(fs)
+    g = np.full(fs.shape, weak_signal_conductance(diode))
+    converged = True
+    for _ in range(2):
+        c = np.maximum(net_mod.tuning_capacitance_for(fs, z_s, parts, g), 0.0)
+        bare = net_mod.solve_network(fs, z_s, parts, c, 0.0)
+        v, r_in, ok = detector_level(v_oc * np.abs(bare.detector_voltage), bare.detector_impedance, diode, load)
+        g = 1.0 / r_in
+        converged = ok
+    c_raw = net_mod.tuning_capacitance_for(fs, z_s, parts, g)
+    top = v_oc * np.abs(net_mod.solve_network(fs, z_s, parts, c, g).top_voltage)
+
+    def response(f):
+        return np.abs(net_mod.solve_network(f, za(f), parts, c, g).detector_voltage)
+
+    edges = net_mod.detector_bandwidth(fs, response)
+    cross = net_mod.solve_network(fs[np.newaxis, :], z_s[np.newaxis, :], parts, c[:, np.newaxis],
+                                  g[:, np.newaxis]).detector_voltage
+    others = v_oc[np.newaxis, :] * np.abs(cross)
+    return StationLevels(c_raw, v, r_in, top, converged, edges.loaded_q, edges.bandwidth, others)

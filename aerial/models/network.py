@@ -1,0 +1,465 @@
+"""The receiving network solved as a small linear circuit at each frequency.
+
+Everything from the aerial to the detector is one linear network, solved by modified nodal
+analysis (node voltages plus the current in every winding) with numpy at each frequency, many
+frequencies (and part values) at once as a batch of small complex systems:
+
+* the aerial: its EMF V (open-circuit voltage E·h_e) behind its impedance Za(f) = Ra + jXa,
+  radiation and every loss included, entered as a Norton source V/Za in parallel with 1/Za at
+  the node the aerial joins;
+* the coupling: ``"direct"`` (the aerial joins the tank top), ``"series capacitor"`` (the aerial
+  node joins the top through Cc), ``"coil tap"`` (the aerial joins a tap on the tank coil) or
+  ``"separate primary"`` (the aerial feeds a primary winding Lp, loss Rp, to earth, coupled to
+  the tank coil by k; a capacitor across the primary tunes it: a double-tuned pair);
+* the tank coil: one winding cut at its taps into sections. The section inductances and the
+  mutual inductances between sections come from the inductance F(x) of a contiguous block of a
+  fraction x of the turns: for blocks [p, q] and [r, s] (q ≤ r)
+  M = [F(s − p) − F(r − p) − F(s − q) + F(r − q)]/2, and a section's own inductance is
+  F(q − p). For a single-layer winding F comes from the solenoid formula (Nagaoka), which
+  gives the sections' real, less than tight, coupling; without a winding F(x) = x²L (tight
+  coupling, an ideal autotransformer). The loss resistance is shared by turns; the coil's
+  self-capacitance sits across the whole winding;
+* the tuning capacitor across the whole coil;
+* the detector as its small-signal RF input conductance G_d at its tap (the caller picks the
+  value for the signal level: nVT/Is for a weak signal, R_L/2 for a strong one, or the
+  self-consistent value for a given station).
+
+Results per volt of aerial EMF: the voltage at the tank top and at the detector, and the
+driving-point impedances at the top and at the detector with the aerial's EMF shorted. The
+tuning capacitance for resonance at f makes the admittance seen at the top, capacitor excluded,
+purely real: C = −Im(1/Z_top)/ω, which maximises the top voltage for a given EMF.
+
+References
+----------
+.. [1] F. E. Terman, Radio Engineers' Handbook, McGraw-Hill, 1943, section 3: resonant circuits,
+   coupled circuits (critical coupling k_c = 1/√(Q1Q2), flat-topped response), tapped
+   circuits (from memory).
+.. [2] C.-W. Ho, A. E. Ruehli, P. A. Brennan, "The modified nodal approach to network
+   analysis", IEEE Trans. Circuits and Systems 22(6), 1975 (from memory).
+"""
+
+from __future__ import annotations
+
+from typing import Callable, NamedTuple
+
+import numpy as np
+
+from aerial.core.errors import ModelInputError
+
+ARRANGEMENTS = ("direct", "series capacitor", "coil tap", "separate primary")
+
+#: Relative tolerance and iteration limit of the −3 dB edge search (bisection in frequency).
+EDGE_RTOL = 1e-9
+EDGE_MAX_ITER = 60
+
+
+def block_inductance_tight(inductance: float) -> Callable:
+    """F(x) = x²L: a block of a fraction x of the turns of a tightly coupled winding. [H]
+
+    Examples
+    --------
+    >>> round(float(block_inductance_tight(200e-6)(0.5)) * 1e6, 1)
+    50.0
+    """
+    L = float(inductance)
+    return lambda x: L * np.asarray(x, dtype=float) ** 2
+
+
+def section_inductances(taps, block) -> np.ndarray:
+    """Self and mutual inductances of the sections of a tapped winding.
+
+    Parameters
+    ----------
+    taps : sequence of float
+        Tap positions as fractions of the turns from the earthy end, increasing, the last 1. [1]
+    block : callable
+        F(x): inductance of a contiguous block of a fraction x of the turns; F(0) = 0. [H]
+
+    Returns
+    -------
+    ndarray, shape (K, K)
+        Section k runs from taps[k−1] (0 for the first) to taps[k]. [H]
+
+    Notes
+    -----
+    For blocks A = [p, q] and B = [r, s] with a gap G = [q, r] between them,
+    F(s − p) = L_A + L_G + L_B + 2M_AG + 2M_AB + 2M_GB, from which
+    M_AB = [F(s − p) − F(r − p) − F(s − q) + F(r − q)]/2. The sum of every entry is F(1).
+
+    Examples
+    --------
+    >>> m = section_inductances([0.25, 1.0], block_inductance_tight(160e-6))
+    >>> [round(float(v) * 1e6, 1) for v in m.ravel()]  # tight: M = √(L1 L2)
+    [10.0, 30.0, 30.0, 90.0]
+    """
+    t = np.asarray(taps, dtype=float)
+    if t.ndim != 1 or t.size < 1 or abs(t[-1] - 1.0) > 1e-12 or np.any(np.diff(np.concatenate([[0.0], t])) <= 0):
+        raise ModelInputError("taps must increase from above 0 to exactly 1")
+    edges = np.concatenate([[0.0], t])
+    k = t.size
+    out = np.empty((k, k))
+    for a in range(k):
+        for b in range(k):
+            if a == b:
+                out[a, a] = float(block(edges[a + 1] - edges[a]))
+                continue
+            i, j = min(a, b), max(a, b)
+            p, q, r, s = edges[i], edges[i + 1], edges[j], edges[j + 1]
+            gap = float(block(r - q)) if r > q else 0.0
+            out[a, b] = 0.5 * (float(block(s - p)) - float(block(r - p)) - float(block(s - q)) + gap)
+    return out
+
+
+class NetworkParts(NamedTuple):
+    """The network's parts (everything but the frequency, the aerial and the tuning capacitor).
+
+    ``coil_resistance`` may be a callable of frequency; every capacitance in farads, inductance
+    in henries, resistance in ohms, fraction of turns from the earthy end.
+    """
+
+    arrangement: str
+    coil_inductance: float  #: [H]
+    coil_resistance: object  #: series loss of the whole coil, callable f -> [ohm] or a number
+    detector_tap: float = 1.0  #: [1]
+    aerial_tap: float | None = None  #: "coil tap" [1]
+    series_capacitance: float | None = None  #: "series capacitor" [F]
+    primary_inductance: float | None = None  #: "separate primary" [H]
+    coupling_coefficient: float | None = None  #: "separate primary" [1]
+    primary_resistance: object = 0.0  #: callable f -> [ohm] or a number
+    primary_capacitance: float | None = None  #: tunes the primary (double-tuned) [F]
+    self_capacitance: float = 0.0  #: across the whole coil [F]
+    block: Callable | None = None  #: F(x) [H]; default tight coupling
+
+
+class NetworkSolution(NamedTuple):
+    top_voltage: np.ndarray  #: tank-top voltage per volt of aerial EMF [1]
+    detector_voltage: np.ndarray  #: detector-tap voltage per volt of aerial EMF [1]
+    top_impedance: np.ndarray  #: driving-point impedance at the top, EMF shorted [ohm]
+    detector_impedance: np.ndarray  #: driving-point impedance at the detector tap, EMF shorted [ohm]
+    primary_voltage: np.ndarray  #: voltage at the aerial's node per volt of EMF [1]
+
+
+def _value(v, f):
+    return v(f) if callable(v) else np.asarray(v, dtype=float)
+
+
+def check_parts(parts: NetworkParts) -> NetworkParts:
+    """Raise when the parts do not make a network; return them otherwise.
+
+    Examples
+    --------
+    >>> check_parts(NetworkParts("coil tap", 200e-6, 5.0, aerial_tap=0.3)).aerial_tap
+    0.3
+    """
+    if parts.arrangement not in ARRANGEMENTS:
+        valid = ", ".join(f"'{a}'" for a in ARRANGEMENTS)
+        raise ModelInputError(f"'{parts.arrangement}' is not a valid coupling arrangement, must be one of {valid}")
+    if not (parts.coil_inductance > 0 and np.isfinite(parts.coil_inductance)):
+        raise ModelInputError("coil_inductance must be positive")
+    if not (0 < parts.detector_tap <= 1):
+        raise ModelInputError(f"detector_tap must lie in (0, 1], got {parts.detector_tap!r}")
+    need = {"series capacitor": ("series_capacitance",), "coil tap": ("aerial_tap",),
+            "separate primary": ("primary_inductance", "coupling_coefficient")}.get(parts.arrangement, ())
+    for name in need:
+        v = getattr(parts, name)
+        if v is None or not (v > 0 and np.isfinite(v)):
+            raise ModelInputError(f"the '{parts.arrangement}' arrangement needs a positive {name}")
+    if parts.arrangement == "coil tap" and parts.aerial_tap > 1:
+        raise ModelInputError(f"aerial_tap must not exceed 1, got {parts.aerial_tap!r}")
+    if parts.arrangement == "separate primary" and parts.coupling_coefficient >= 1:
+        raise ModelInputError(f"coupling_coefficient must be below 1, got {parts.coupling_coefficient!r}")
+    return parts
+
+
+def _taps(parts: NetworkParts):
+    taps = {1.0, float(parts.detector_tap)}
+    if parts.arrangement == "coil tap":
+        taps.add(float(parts.aerial_tap))
+    taps = sorted(taps)
+    return taps, {t: i for i, t in enumerate(taps)}
+
+
+def solve_network(frequency, aerial_impedance, parts: NetworkParts, tuning_capacitance=0.0,
+                  detector_conductance=0.0, emf=1.0) -> NetworkSolution:
+    """Node voltages and driving-point impedances of the receiving network.
+
+    Parameters
+    ----------
+    frequency : array_like
+        [Hz]
+    aerial_impedance : array_like of complex
+        Za = Ra + jXa at each frequency (broadcast with ``frequency``). [ohm]
+    parts : NetworkParts
+        Coupling, coil, taps, detector tap.
+    tuning_capacitance : array_like
+        The tuning capacitor across the whole coil (broadcast with ``frequency``). [F]
+    detector_conductance : array_like
+        The detector's RF input conductance at its tap. [S]
+    emf : array_like of complex
+        Aerial EMF. [V]
+
+    Returns
+    -------
+    NetworkSolution
+        Voltages per ``emf`` (so in volts for a real EMF), impedances in ohms; arrays of the
+        broadcast shape of the inputs.
+
+    Notes
+    -----
+    Modified nodal analysis [2]_: one equation per node (Kirchhoff's current law) and one per
+    winding section, V_hi − V_lo = Σ_j (R_k δ_kj + jωM_kj) I_j. Tight coupling (a singular
+    inductance matrix) is allowed: the windings' currents are unknowns.
+
+    Examples
+    --------
+    200 µH of Q 100 at 1 MHz with 126.65 pF, fed from a 1 MΩ source: the impedance at the top
+    is about the tank's resonant resistance Q·ωL ≈ 125.7 kΩ in parallel with 1 MΩ.
+
+    >>> w = 2e6 * np.pi
+    >>> p = NetworkParts("direct", 200e-6, w * 200e-6 / 100)
+    >>> s = solve_network(1e6, 1e6 + 0j, p, 1 / (w * w * 200e-6))
+    >>> round(float(abs(s.top_impedance)) / 1e3, 1)
+    111.6
+    """
+    check_parts(parts)
+    f = np.asarray(frequency, dtype=float)
+    if np.any(~np.isfinite(f)) or np.any(f <= 0):
+        raise ModelInputError("frequency must be positive and finite")
+    za = np.asarray(aerial_impedance, dtype=complex)
+    shape = np.broadcast_shapes(f.shape, za.shape, np.shape(tuning_capacitance), np.shape(detector_conductance),
+                                np.shape(emf))
+    f = np.broadcast_to(f, shape)
+    w = 2.0 * np.pi * f
+    za = np.broadcast_to(za, shape)
+    taps, node = _taps(parts)
+    block = parts.block or block_inductance_tight(parts.coil_inductance)
+    msec = section_inductances(taps, block)
+    k = len(taps)
+    has_x = parts.arrangement in ("series capacitor", "separate primary")
+    primary = parts.arrangement == "separate primary"
+    n_nodes = k + int(has_x)
+    n_l = k + int(primary)
+    n = n_nodes + n_l
+    a = np.zeros(shape + (n, n), dtype=complex)
+    rhs = np.zeros(shape + (n, 3), dtype=complex)
+    top, det = node[1.0], node[float(parts.detector_tap)]
+    aer = {"direct": top, "coil tap": node.get(float(parts.aerial_tap or 1.0)), "series capacitor": k,
+           "separate primary": k}[parts.arrangement]
+    a[..., aer, aer] += 1.0 / za
+    rhs[..., aer, 0] = np.broadcast_to(np.asarray(emf, dtype=complex), shape) / za
+    rhs[..., top, 1] = 1.0
+    rhs[..., det, 2] = 1.0
+    a[..., top, top] += 1j * w * (np.asarray(tuning_capacitance, dtype=float) + parts.self_capacitance)
+    a[..., det, det] += np.asarray(detector_conductance, dtype=float)
+    if parts.arrangement == "series capacitor":
+        y = 1j * w * parts.series_capacitance
+        a[..., k, k] += y
+        a[..., top, top] += y
+        a[..., k, top] -= y
+        a[..., top, k] -= y
+    edges = np.concatenate([[0.0], taps])
+    r_coil = np.broadcast_to(_value(parts.coil_resistance, f), shape)
+    for s in range(k):
+        row = n_nodes + s
+        a[..., s, row] += 1.0  # the section's current leaves its upper node ...
+        if s > 0:
+            a[..., s - 1, row] -= 1.0  # ... and enters the lower one
+        a[..., row, s] += 1.0
+        if s > 0:
+            a[..., row, s - 1] -= 1.0
+        a[..., row, row] -= r_coil * (edges[s + 1] - edges[s])
+        for j in range(k):
+            a[..., row, n_nodes + j] -= 1j * w * msec[s, j]
+    if primary:
+        lp = float(parts.primary_inductance)
+        row = n_nodes + k
+        m_total = parts.coupling_coefficient * np.sqrt(lp * parts.coil_inductance)
+        share = msec.sum(axis=1) / msec.sum()
+        a[..., k, row] += 1.0
+        a[..., row, k] += 1.0
+        a[..., row, row] -= np.broadcast_to(_value(parts.primary_resistance, f), shape) + 1j * w * lp
+        for s in range(k):
+            a[..., row, n_nodes + s] -= 1j * w * m_total * share[s]
+            a[..., n_nodes + s, row] -= 1j * w * m_total * share[s]
+        if parts.primary_capacitance is not None:
+            a[..., k, k] += 1j * w * parts.primary_capacitance
+    x = np.linalg.solve(a, rhs)
+    return NetworkSolution(x[..., top, 0], x[..., det, 0], x[..., top, 1], x[..., det, 2], x[..., aer, 0])
+
+
+def tuning_capacitance_for(frequency, aerial_impedance, parts: NetworkParts, detector_conductance=0.0):
+    """The tuning capacitor setting that brings the network to resonance at ``frequency``. [F]
+
+    Parameters
+    ----------
+    frequency : array_like
+        [Hz]
+    aerial_impedance : array_like of complex
+        [ohm]
+    parts : NetworkParts
+    detector_conductance : array_like
+        [S]
+
+    Returns
+    -------
+    ndarray
+        C = −Im(1/Z_top)/ω with the capacitor left out (negative when the rest of the network
+        already tunes above ``frequency``). [F]
+
+    Examples
+    --------
+    >>> w = 2e6 * np.pi
+    >>> p = NetworkParts("direct", 240e-6, 0.0 + 1e-9)
+    >>> round(float(tuning_capacitance_for(1e6, 1e12 + 0j, p)) * 1e12, 2)  # 1/(ω²L)
+    105.54
+    """
+    s = solve_network(frequency, aerial_impedance, parts, 0.0, detector_conductance)
+    w = 2.0 * np.pi * np.asarray(frequency, dtype=float)
+    return -np.imag(1.0 / s.top_impedance) / w
+
+
+class TunedResponse(NamedTuple):
+    bandwidth: np.ndarray  #: −3 dB bandwidth of the detector voltage [Hz]
+    low_edge: np.ndarray  #: lower −3 dB frequency [Hz]
+    high_edge: np.ndarray  #: upper −3 dB frequency [Hz]
+    loaded_q: np.ndarray  #: f0 / bandwidth [1]
+    wider_than_searched: np.ndarray  #: an edge lay beyond the search range (bandwidth is a floor) [bool]
+
+
+def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER) -> TunedResponse:
+    """−3 dB edges of a tuned response around its tuned frequency, by bisection in frequency.
+
+    Parameters
+    ----------
+    centre : array_like
+        Tuned frequencies f0. [Hz]
+    response : callable
+        response(f) -> |V_det(f)| with the tuning fixed for each f0 (same shape as ``centre``). [V]
+    rtol : float
+        Relative tolerance on each edge. [1]
+    max_iter : int
+        Bisection limit.
+
+    Returns
+    -------
+    TunedResponse
+
+    Notes
+    -----
+    Each edge is where |V(f)| = |V(f0)|/√2, searched from f0 out to f0/3 and 3·f0; the loaded Q
+    is f0/(f_high − f_low), the usual definition for a single resonance [1]_.
+
+    Examples
+    --------
+    >>> r = detector_bandwidth(np.array([1e6]), lambda f: 1 / np.abs(1 + 1j * 50 * (f / 1e6 - 1e6 / f)))
+    >>> round(float(r.loaded_q[0]), 3)
+    50.0
+    """
+    if not (0 < rtol < 0.1):
+        raise ModelInputError(f"rtol must lie between 0 and 0.1, got {rtol!r}")
+    f0 = np.asarray(centre, dtype=float)
+    ref = np.abs(response(f0)) / np.sqrt(2.0)
+    edges = []
+    floor = np.zeros(f0.shape, dtype=bool)
+    for far in (f0 / 3.0, f0 * 3.0):
+        near = f0.copy()
+        far = far.copy()
+        beyond = np.abs(response(far)) >= ref
+        floor |= beyond
+        for _ in range(int(max_iter)):
+            mid = np.sqrt(near * far)
+            inside = np.abs(response(mid)) >= ref
+            near = np.where(inside, mid, near)
+            far = np.where(inside, far, mid)
+            if np.all(np.abs(far / near - 1.0) <= rtol):
+                break
+        edges.append(np.sqrt(near * far))
+    bw = np.maximum(edges[1] - edges[0], 1e-9 * f0)
+    return TunedResponse(bw, edges[0], edges[1], f0 / bw, floor)
+
+
+def rejection_db(tuned, offset_response) -> np.ndarray:
+    """Rejection [dB] of the weaker side: −20 log10(max(|V(f0 − d)|, |V(f0 + d)|)/|V(f0)|).
+
+    Parameters
+    ----------
+    tuned : array_like
+        |V_det| at the tuned frequency. [V]
+    offset_response : tuple of array_like
+        (|V_det(f0 − d)|, |V_det(f0 + d)|). [V]
+
+    Returns
+    -------
+    ndarray
+        [dB], at least 0.
+
+    Examples
+    --------
+    >>> float(rejection_db(1.0, (0.1, 0.01)))
+    20.0
+    """
+    worst = np.maximum(np.abs(offset_response[0]), np.abs(offset_response[1]))
+    return np.maximum(-20.0 * np.log10(np.maximum(worst, 1e-300) / np.maximum(np.abs(tuned), 1e-300)), 0.0)
+
+
+def critical_coupling(q1, q2):
+    """Critical coupling of two coupled tuned circuits: k_c = 1/√(Q1 Q2). [1]
+
+    Parameters
+    ----------
+    q1, q2 : array_like
+        Loaded Q of each circuit alone. [1]
+
+    Returns
+    -------
+    ndarray
+        [1]
+
+    References
+    ----------
+    Terman, Radio Engineers' Handbook, 1943, coupled circuits (from memory).
+
+    Examples
+    --------
+    >>> float(critical_coupling(50.0, 50.0))
+    0.02
+    """
+    return 1.0 / np.sqrt(np.asarray(q1, dtype=float) * np.asarray(q2, dtype=float))
+
+
+def trap_source(frequency, aerial_impedance, kind, inductance, capacitance, resistance):
+    """The aerial seen through a wave trap tuned to an interfering station.
+
+    Parameters
+    ----------
+    frequency : array_like
+        [Hz]
+    aerial_impedance : array_like of complex
+        [ohm]
+    kind : {"series", "parallel"}
+        "series": a series L–C from the aerial terminal to earth (shorts the interferer);
+        "parallel": a parallel L–C in the aerial lead (blocks it).
+    inductance, capacitance, resistance : float
+        The trap's coil, capacitor and coil loss resistance (in series with its coil). [H], [F], [ohm]
+
+    Returns
+    -------
+    (ndarray, ndarray)
+        EMF scale (the Thevenin EMF over the aerial's own) and the new source impedance. [1], [ohm]
+
+    Examples
+    --------
+    >>> s, z = trap_source(1e6, 20 - 800j, "parallel", 100e-6, 1 / ((2e6 * np.pi) ** 2 * 100e-6), 1.0)
+    >>> round(float(abs(z)) / 1e3)  # at its own frequency the trap is ~ (ωL)²/R in the lead
+    395
+    """
+    w = 2.0 * np.pi * np.asarray(frequency, dtype=float)
+    za = np.asarray(aerial_impedance, dtype=complex)
+    z_l = resistance + 1j * w * inductance
+    z_c = 1.0 / (1j * w * capacitance)
+    if kind == "series":
+        zt = z_l + z_c
+        return zt / (za + zt), za * zt / (za + zt)
+    if kind == "parallel":
+        return np.ones_like(za), za + z_l * z_c / (z_l + z_c)
+    raise ModelInputError(f"'{kind}' is not a valid trap, must be one of 'series', 'parallel'")

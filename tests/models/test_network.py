@@ -1,0 +1,169 @@
+"""The receiving network solver against textbook tank and coupled-circuit relations.
+
+Sources: F. E. Terman, Radio Engineers' Handbook, McGraw-Hill, 1943, section 3 (resonant
+circuits: f0 = 1/(2π√(LC)), Q = ωL/R, bandwidth f0/Q, parallel resonant resistance Q²R ≈ QωL;
+coupled circuits: critical coupling k_c = 1/√(Q1Q2), at which the secondary current is the
+largest any coupling gives and the response is flat-topped, with a −3 dB bandwidth √2 times that
+of one circuit) — relations from memory. The maximum-power condition (a load takes the most power
+when it equals the source's resistance; through a tap, when the load reflected to the top, R/n²,
+equals the rest of the tank's resonant resistance) is common practice. The tank example (100 µH
+and 253.3 pF resonate at 1 MHz) is the usual handbook example, from memory; its figures are
+worked here from the relations.
+"""
+
+import numpy as np
+import pytest
+
+from aerial.core.errors import ModelInputError
+from aerial.models import network as net
+from aerial.models import tank as tank_mod
+
+TWO_PI = 2 * np.pi
+
+# Textbook tank (handbook example, from memory): 100 µH, 253.3 pF -> 1.000 MHz; R = 6.283 Ω -> Q = 100,
+# bandwidth 10 kHz, parallel resonant resistance Q·ωL = 62.83 kΩ.
+L_TB, C_TB, F_TB = 100e-6, 253.3e-12, 1.000e6
+R_TB = TWO_PI * F_TB * L_TB / 100.0
+
+
+def test_parallel_tank_resonance_q_and_bandwidth():
+    """A parallel tank fed from a very high impedance: resonance, resonant resistance and bandwidth."""
+    p = net.NetworkParts("direct", L_TB, R_TB)
+    big = 1e12 + 0j  # a current source: the aerial loads nothing
+    c = net.tuning_capacitance_for(F_TB, big, p)
+    assert float(c) == pytest.approx(C_TB, rel=2e-3)  # f0 = 1/(2π√(LC)), Terman (from memory)
+    s = net.solve_network(F_TB, big, p, c)
+    assert abs(float(s.top_impedance.real)) == pytest.approx(100 * TWO_PI * F_TB * L_TB, rel=2e-3)  # Q·ωL
+    resp = net.detector_bandwidth(np.array([F_TB]), lambda f: np.abs(net.solve_network(f, big, p, c).top_voltage))
+    assert float(resp.bandwidth[0]) == pytest.approx(F_TB / 100, rel=1e-2)  # f0/Q = 10 kHz
+    assert float(resp.loaded_q[0]) == pytest.approx(100, rel=1e-2)
+
+
+def test_series_resonance_of_the_aerial_capacitance_with_the_coil():
+    """The coil in series with a capacitive source resonates at 1/(2π√(LC)); the voltage step-up is Q."""
+    p = net.NetworkParts("direct", L_TB, 1e-9)
+    w = TWO_PI * F_TB
+
+    def za(f):
+        return R_TB + 1 / (1j * TWO_PI * f * C_TB)
+
+    grid = np.linspace(0.95e6, 1.05e6, 20001)
+    v = np.abs(net.solve_network(grid, za(grid), p, 0.0).top_voltage)
+    assert grid[np.argmax(v)] == pytest.approx(F_TB, rel=1e-3)  # series resonance
+    at = float(np.abs(net.solve_network(F_TB, za(F_TB), p, 0.0).top_voltage))
+    assert at == pytest.approx(w * L_TB / R_TB, rel=1e-2)  # |V_L|/V = ωL/R = Q = 100
+
+
+def _double_tuned(k, q=50.0, f0=1e6, L=200e-6):
+    """Two identical tanks of Q 50, the first fed by a current source, coupled by k; both tuned to f0."""
+    c = 1 / ((TWO_PI * f0) ** 2 * L)
+    r = TWO_PI * f0 * L / q
+    p = net.NetworkParts("separate primary", L, r, primary_inductance=L, coupling_coefficient=k,
+                         primary_resistance=r, primary_capacitance=c)
+    return p, c
+
+
+def test_critical_coupling_gives_the_largest_secondary_voltage_and_a_flat_top():
+    q = 50.0
+    kc = float(net.critical_coupling(q, q))
+    assert kc == pytest.approx(0.02)  # k_c = 1/√(Q1Q2), Terman (from memory)
+    big = 1e12 + 0j
+    ks = np.linspace(0.2, 3.0, 57) * kc
+    peak = [float(np.abs(net.solve_network(1e6, big, _double_tuned(k)[0], _double_tuned(k)[1]).top_voltage)) for k in ks]
+    assert ks[int(np.argmax(peak))] == pytest.approx(kc, rel=0.06)  # the most secondary voltage at k_c
+    p, c = _double_tuned(kc)
+    grid = np.linspace(0.97e6, 1.03e6, 6001)
+    v = np.abs(net.solve_network(grid, big, p, c).top_voltage)
+    v0 = float(np.abs(net.solve_network(1e6, big, p, c).top_voltage))
+    assert v.max() <= v0 * 1.01  # flat-topped: no hump above the centre at k_c
+    resp = net.detector_bandwidth(np.array([1e6]), lambda f: np.abs(net.solve_network(f, big, p, c).top_voltage))
+    assert float(resp.bandwidth[0]) == pytest.approx(np.sqrt(2) * 1e6 / q, rel=0.03)  # √2·f0/Q
+    p2, c2 = _double_tuned(2.5 * kc)
+    v2 = np.abs(net.solve_network(grid, big, p2, c2).top_voltage)
+    assert v2.max() > 1.3 * float(np.abs(net.solve_network(1e6, big, p2, c2).top_voltage))  # over-coupled: two humps
+
+
+def test_a_tapped_load_takes_the_most_power_when_matched():
+    """Maximum power: a load R_L at tap n takes the most when R_L/n² equals the rest of the tank (common practice)."""
+    f0, L, q = 1e6, 200e-6, 100.0
+    r = TWO_PI * f0 * L / q
+    rp = q * TWO_PI * f0 * L  # the tank's own resonant resistance
+    r_load = 5e3
+    n_match = np.sqrt(r_load / rp)  # R_L/n² = R_p
+    big = 1e12 + 0j
+    taps = np.linspace(0.05, 0.6, 221)
+    power = []
+    for n in taps:
+        p = net.NetworkParts("direct", L, r, detector_tap=float(n))
+        c = net.tuning_capacitance_for(f0, big, p, 1 / r_load)
+        v = float(np.abs(net.solve_network(f0, big, p, c, 1 / r_load, emf=1e12).detector_voltage))
+        power.append(v**2 / r_load)
+    best = taps[int(np.argmax(power))]
+    assert best == pytest.approx(n_match, rel=0.03)
+    # at the match the load takes I²R_p/4 (1 A injected): half the current's power goes to the load
+    assert max(power) == pytest.approx(rp / 4, rel=0.02)
+
+
+@pytest.mark.parametrize("arrangement, extra", [
+    ("direct", {}),
+    ("coil tap", {"aerial_tap": 0.3}),
+    ("series capacitor", {"series_capacitance": 50e-12}),
+    ("separate primary", {"primary_inductance": 30e-6, "coupling_coefficient": 0.4}),
+])
+def test_consistency_check_the_network_reproduces_the_closed_form_tank(arrangement, extra):
+    """Consistency check (project closed forms, aerial.models.tank): tuning capacitance and loaded Q agree
+    where the closed forms hold (tight windings, detector at the top, loaded Q well above 1)."""
+    f = np.array([600e3, 1000e3, 1500e3])
+    L, qu = 240e-6, 150.0
+    ra, ca = 30.0, 150e-12
+    za = ra + 1 / (1j * TWO_PI * f * ca)
+    rc = TWO_PI * f * L / qu
+    g_det = 1 / 200e3
+    rp = TWO_PI * f * extra.get("primary_inductance", 0.0) / qu
+    p = net.NetworkParts(arrangement, L, lambda x: TWO_PI * x * L / qu, primary_resistance=lambda x: TWO_PI * x
+                         * extra.get("primary_inductance", 0.0) / qu, **extra)
+    t = tank_mod.tank_coupling(arrangement, f, ra, za.imag, L, rc, extra.get("series_capacitance"),
+                               extra.get("aerial_tap"), extra.get("primary_inductance"),
+                               extra.get("coupling_coefficient"), rp)
+    c_closed = tank_mod.capacitance_needed(f, t.coil_admittance, t.aerial_admittance)
+    c_net = net.tuning_capacitance_for(f, za, p, g_det)
+    # the network shares the coil's loss along its turns; the closed form puts it all above the tap
+    np.testing.assert_allclose(c_net, c_closed, rtol=1e-3)
+    b = -np.imag(t.coil_admittance)
+    q_closed = tank_mod.loaded_q(b / np.real(t.coil_admittance), b / np.real(t.aerial_admittance), b / g_det)
+
+    def resp(x):
+        zx = ra + 1 / (1j * TWO_PI * x * ca)
+        return np.abs(net.solve_network(x, zx, p, c_net, g_det).top_voltage)
+
+    q_net = net.detector_bandwidth(f, resp).loaded_q
+    # the closed form takes the coupled aerial's admittance at f0 only; the network follows it across the
+    # passband (a separate primary's reflected impedance changes fastest: up to 5 % at Q 45)
+    np.testing.assert_allclose(q_net, q_closed, rtol=0.05)
+
+
+def test_section_inductances_add_up_to_the_whole_winding():
+    block = net.block_inductance_tight(300e-6)
+    m = net.section_inductances([0.1, 0.4, 1.0], block)
+    assert m.sum() == pytest.approx(300e-6)
+    with pytest.raises(ModelInputError, match="taps must increase"):
+        net.section_inductances([0.5, 0.4, 1.0], block)
+
+
+def test_bad_parts_are_refused_with_their_names():
+    with pytest.raises(ModelInputError, match="'magnetic' is not a valid coupling arrangement"):
+        net.check_parts(net.NetworkParts("magnetic", 1e-4, 1.0))
+    with pytest.raises(ModelInputError, match="needs a positive aerial_tap"):
+        net.check_parts(net.NetworkParts("coil tap", 1e-4, 1.0))
+    with pytest.raises(ModelInputError, match="not a valid trap"):
+        net.trap_source(1e6, 20 - 800j, "shunt", 1e-4, 1e-10, 1.0)
+
+
+def test_a_parallel_trap_in_the_lead_blocks_its_frequency_only():
+    f_trap = 1e6
+    L, c = 100e-6, 1 / ((TWO_PI * f_trap) ** 2 * 100e-6)
+    za = 25 - 800j
+    _, z_at = net.trap_source(f_trap, za, "parallel", L, c, 2.0)
+    _, z_off = net.trap_source(1.3e6, za, "parallel", L, c, 2.0)
+    assert abs(z_at) > 100 * abs(za)  # (ωL)²/R at resonance
+    assert abs(z_off) < 3 * abs(za)
