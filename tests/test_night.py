@@ -10,7 +10,7 @@ import math
 import pytest
 
 from aerial.cli import main
-from aerial.estimate import night
+from aerial.estimate import night, reception
 from aerial.models import skywave as sw
 from aerial.site.reader import load_site_text
 
@@ -128,7 +128,7 @@ def test_report_gives_each_station_a_day_and_a_night_verdict(write_site, capsys)
     assert st["sky_wave_field_v_per_m"] == 0.0
     assert n["field_v_per_m"] == pytest.approx(math.hypot(n["ground_wave_field_v_per_m"], n["sky_wave_field_v_per_m"]))
     assert n["sky_wave_field_range_v_per_m"][0] < n["sky_wave_field_v_per_m"] < n["sky_wave_field_range_v_per_m"][1]
-    assert n["verdict"] in ("clearly heard", "marginal", "not heard")
+    assert n["verdict"] in reception.VERDICTS
     assert n["noise_dominant"] in ("man-made", "atmospheric")
     # 600 km away a 100 kW station is far beyond its daytime ground wave but arrives by sky wave at night
     assert n["field_v_per_m"] > 10 * st["field_v_per_m"]
