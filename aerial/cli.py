@@ -57,7 +57,11 @@ def build_parser() -> argparse.ArgumentParser:
     r.add_argument("--json", action="store_true", help="print machine-readable JSON instead of the report")
     r.add_argument("--full-wave", action="store_true", help="use the method-of-moments wire solver instead of closed forms")
     r.add_argument("--lossy-ground", action="store_true",
-                   help="full wave: treat the soil by the reflection-coefficient approximation instead of a perfect ground")
+                   help="full wave: solve the wire over the site's soil exactly (Sommerfeld integrals) instead of over "
+                        "a perfect ground")
+    r.add_argument("--quick-ground", action="store_true",
+                   help="with --lossy-ground: use the fast reflection-coefficient approximation instead (rough for "
+                        "wires lower than a tenth of a wavelength)")
     r.add_argument("--step", metavar="FREQ", help='sweep step, e.g. "1 kHz" (default depends on the band)')
     r.add_argument("--pictures", metavar="DIR", help="write SVG pictures of impedance, capacitance, tuning range and stations into DIR")
     r.add_argument("--page", metavar="FILE",
@@ -179,10 +183,18 @@ def cmd_report(args) -> int:
     with _progress(sys.stderr.isatty() and not args.json) as update:
         result = run_report(args.site, full_wave=args.full_wave, step_hz=step, progress=update,
                             pictures=args.pictures, force=args.force,
-                            ground="lossy" if args.lossy_ground else "perfect", allow_large=args.allow_large,
+                            ground=_ground_option(args), allow_large=args.allow_large,
                             page=args.page)
     _note_page(result)
     return _render(args, result, "render_report")
+
+
+def _ground_option(args) -> str:
+    if args.quick_ground and not args.lossy_ground:
+        raise AerialError("--quick-ground: only with --lossy-ground (it chooses how the soil is treated)")
+    if not args.lossy_ground:
+        return "perfect"
+    return "reflection-coefficient" if args.quick_ground else "lossy"
 
 
 def cmd_layout(args) -> int:

@@ -78,6 +78,10 @@ def earth_system(site) -> dict:
 # --------------------------------------------------------------------------- aerial
 
 
+#: Ground treatments of the full-wave solver.
+GROUNDS = ("perfect", "lossy", "reflection-coefficient")
+
+
 def aerial_response(site, geometry, frequency, earth_ohm: float, method: str = "closed-form", progress=None,
                     ground: str = "perfect", allow_large: bool = False) -> dict:
     """Per-frequency electrical figures of the aerial with its earth. Returns numpy arrays."""
@@ -94,6 +98,12 @@ def aerial_response(site, geometry, frequency, earth_ohm: float, method: str = "
         out = dict(closed_form_response(geometry.segments, frequency))
         out["ground_loss_ohm"] = np.full(len(frequency), float(earth_ohm))
         out["warnings"] = list(out.get("warnings", []))
+        out["loss_budget"] = {
+            "soil_under_aerial_ohm": np.zeros(len(frequency)),
+            "soil_treatment": "not modelled: closed forms over a perfect ground plane",
+            "electrode_ohm": np.full(len(frequency), float(earth_ohm)),
+            "electrode_treatment": "earth-system resistance in series at the feed",
+        }
     rr = np.asarray(out["radiation_resistance_ohm"], float)
     rc = np.asarray(out["conductor_loss_ohm"], float)
     rg = np.asarray(out["ground_loss_ohm"], float)
@@ -267,9 +277,10 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
         Sweep step [Hz]; default depends on the band.
     progress : callable, optional
         ``progress(done, total)`` during long sweeps.
-    ground : {"perfect", "lossy"}
-        Full wave only: perfect ground by images, or the reflection-coefficient
-        approximation for the site's soil.
+    ground : {"perfect", "lossy", "reflection-coefficient"}
+        Full wave only: perfect ground by images, the site's soil as an exact
+        half-space (Sommerfeld integrals), or the fast reflection-coefficient
+        approximation.
     allow_large : bool
         Full wave only: run even when the estimated memory or time passes the
         budget (:func:`aerial.estimate.fullwave_sweep.check_full_wave_budget`).
@@ -288,9 +299,9 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     earth = earth_system(site)
     warnings += earth.get("warnings", [])
     geometry = resolve(site, electrode_ohm=earth["resistance_ohm"])
-    if ground not in ("perfect", "lossy"):
-        raise ModelInputError(f"'{ground}' is not a valid ground, must be one of 'perfect', 'lossy'")
-    if ground == "lossy" and method != "full-wave":
+    if ground not in GROUNDS:
+        raise ModelInputError(f"'{ground}' is not a valid ground, must be one of " + ", ".join(f"'{g}'" for g in GROUNDS))
+    if ground != "perfect" and method != "full-wave":
         warnings.append("lossy ground applies to the full-wave solver only; the closed forms assume a perfect "
                         "ground plane with the earth system's resistance in series")
     resp = aerial_response(site, geometry, freqs, earth["resistance_ohm"], method=method, progress=progress, ground=ground,
@@ -343,7 +354,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
         },
         "earth": {k: v for k, v in earth.items() if k != "warnings"},
     }
-    for key in ("convergence", "ground_treatment", "segments"):
+    for key in ("convergence", "ground_treatment", "segments", "loss_budget"):
         if key in resp:
             result["aerial"][key] = resp[key]
 

@@ -14,7 +14,7 @@ from aerial.models.fullwave import (
 from aerial.models.fullwave_geometry import DEFAULT_MIN_PIECES_PER_WIRE, piece_counts
 from aerial.models.shapes import classify
 
-GROUNDS = ("perfect", "lossy")
+GROUNDS = ("perfect", "lossy", "reflection-coefficient")
 
 SPEED_OF_LIGHT = 299_792_458.0  # [m/s], exact (SI)
 
@@ -109,7 +109,7 @@ def full_wave_response(site, geometry, frequency, earth_ohm: float, progress=Non
     check_full_wave_budget(seg, frequency, allow_large)
     series = 0.0 if not geometry.base_fed else float(earth_ohm)
     kwargs = {}
-    if ground == "lossy":
+    if ground != "perfect":
         kwargs = {"soil_permittivity": site.soil.relative_permittivity, "soil_conductivity": site.soil.conductivity_s_m}
     res = solve_full_wave(seg, np.asarray(frequency, float), ground=ground, series_ohm=series, progress=progress, **kwargs)
     z = np.asarray(res.impedance, complex)
@@ -123,8 +123,10 @@ def full_wave_response(site, geometry, frequency, earth_ohm: float, progress=Non
         warnings.append(f"the aerial is inductive (past its first resonance) from {f_bad.min() / 1e3:.0f} kHz: "
                         "'capacitance presented' there shows the static value; use the reactance instead")
     rg = np.asarray(res.electrode_loss_resistance, float) + float(res.series_resistance) + np.asarray(res.ground_loss_resistance, float)
-    treatment = ("perfect ground by images" if ground == "perfect" else
-                 "lossy ground by the reflection-coefficient approximation")
+    treatment = {"perfect": "perfect ground by images",
+                 "lossy": "the site's soil as an exact half-space (Sommerfeld integrals); soil loss under the aerial "
+                          "from the solved currents",
+                 }.get(ground, "lossy ground by the reflection-coefficient approximation (fast, rough near the soil)")
     treatment += ("; earth electrode as a lumped resistance where the earth lead meets the ground" if not geometry.base_fed
                   else "; earth-system resistance in series at the feed")
     try:
@@ -143,6 +145,13 @@ def full_wave_response(site, geometry, frequency, earth_ohm: float, progress=Non
         "ground_loss_ohm": rg,
         "warnings": warnings,
         "ground_treatment": treatment,
+        "loss_budget": {
+            "soil_under_aerial_ohm": np.asarray(res.ground_loss_resistance, float),
+            "soil_treatment": ("not modelled: perfect ground plane" if ground == "perfect" else treatment.split(";")[0]),
+            "electrode_ohm": np.asarray(res.electrode_loss_resistance, float) + float(res.series_resistance),
+            "electrode_treatment": ("earth electrodes' resistance as a lumped load where the earth lead meets the soil"
+                                    if not geometry.base_fed else "earth-system resistance in series at the feed"),
+        },
         "convergence": {
             "relative_change": float(res.convergence),
             "resistance_relative_change": float(res.convergence_resistance),

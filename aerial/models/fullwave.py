@@ -12,15 +12,21 @@ resistance. See :mod:`aerial.models.fullwave_geometry` for the topology and
 Ground models (``ground``):
 
 * ``"perfect"`` (default): a perfectly conducting plane, exact images.
-* ``"lossy"``: the reflection-coefficient approximation: the image of each
+* ``"lossy"``: the exact half-space: the field reflected by a soil of complex
+  permittivity eps_c = eps_r - j sigma/(omega eps0) as Sommerfeld integrals,
+  the quasi-static image in closed form and the remainder from tables over
+  distance and angle (:mod:`aerial.models.sommerfeld`,
+  :mod:`aerial.models.fullwave_halfspace`). Valid at any height; the
+  ground-loss resistance (soil absorption under the aerial) follows from the
+  power balance of the solved currents.
+* ``"reflection-coefficient"``: the fast approximation: the image of each
   basis function is scaled by the Fresnel plane-wave reflection coefficients
-  of the soil (complex permittivity eps_c = eps_r - j sigma/(omega eps0)) at
-  the specular angle between the two basis functions' centres, the horizontal
-  current by R_h and the vertical current and charge by R_v ([3]_, [4]_). It
-  is a far-field approximation: rough for wires lower than about a tenth of a
-  wavelength, which at LF/MF is nearly every receiving aerial, so the result
-  carries a warning. The ground loss of the earth system is better added
-  through ``series_ohm`` over a perfect ground.
+  at the specular angle between the two basis functions' centres, the
+  horizontal current by R_h and the vertical current and charge by R_v
+  ([3]_, [4]_). It is a far-field approximation, close to the exact
+  treatment for wires a quarter wavelength or more above the soil and rough
+  below about a tenth of a wavelength (nearly every receiving aerial at
+  LF/MF), so the result then carries a warning.
 
 Validity: thin wires (radius << piece length << wavelength, radius << wavelength),
 all wires above the ground plane, the feed at the junction of the aerial and
@@ -77,7 +83,7 @@ __all__ = [
 ]
 
 #: Valid ``ground`` options.
-GROUND_MODELS = ("perfect", "lossy")
+GROUND_MODELS = ("perfect", "lossy", "reflection-coefficient")
 
 #: Longest piece as a fraction of the shortest wavelength (lambda/20). [1]
 DEFAULT_MAX_SEGMENT_WAVELENGTHS = 0.05
@@ -247,13 +253,13 @@ def solve_full_wave(
         The aerial and (optionally) the earth lead. Frame: m, z up, ground at z = 0.
     frequency : array_like
         Frequencies, positive. [Hz]
-    ground : {"perfect", "lossy"}
-        Perfect ground plane (images), or the reflection-coefficient
-        approximation for a lossy soil.
+    ground : {"perfect", "lossy", "reflection-coefficient"}
+        Perfect ground plane (images), the exact lossy half-space (Sommerfeld
+        integrals), or the fast reflection-coefficient approximation.
     soil_permittivity : float, optional
-        Relative permittivity of the soil; required for ``ground="lossy"``. [1]
+        Relative permittivity of the soil; required over a lossy soil. [1]
     soil_conductivity : float, optional
-        Soil conductivity; required for ``ground="lossy"``. [S/m]
+        Soil conductivity; required over a lossy soil. [S/m]
     series_ohm : float
         Ground-system loss computed elsewhere, added in series to the input
         impedance and to the loss budget. [ohm]
@@ -368,9 +374,9 @@ def _checked_arguments(segments, frequency, ground, soil_permittivity, soil_cond
     if int(min_pieces_per_wire) < 1 or int(gauss_points) < 2:
         raise ModelInputError("min_pieces_per_wire must be >= 1 and gauss_points >= 2")
     eps_s = sig_s = None
-    if ground == "lossy":
+    if ground != "perfect":
         if soil_permittivity is None or soil_conductivity is None:
-            raise ModelInputError("ground='lossy' needs soil_permittivity [1] and soil_conductivity [S/m]")
+            raise ModelInputError(f"ground='{ground}' needs soil_permittivity [1] and soil_conductivity [S/m]")
         eps_s, sig_s = float(soil_permittivity), float(soil_conductivity)
         if not (np.isfinite(eps_s) and eps_s >= 1.0) or not (np.isfinite(sig_s) and sig_s >= 0.0):
             raise ModelInputError("soil_permittivity must be >= 1 and soil_conductivity >= 0 and finite")
@@ -388,7 +394,7 @@ def _setup_warnings(system, f, max_segment_wavelengths) -> list:
     ka = 2 * np.pi * f.max() / C0 * topo.radius.max()
     if ka > MAX_KA:
         warnings.append(f"wire radius is {ka:.3g}/k at the highest frequency: thin-wire approximation doubtful (ka > {MAX_KA:g})")
-    if system.ground == "lossy":
+    if system.ground == "reflection-coefficient":
         hmax = max(topo.start[:, 2].max(), topo.end[:, 2].max())
         if hmax < RCA_MIN_HEIGHT_WAVELENGTHS * lam_min:
             warnings.append(
@@ -420,6 +426,7 @@ class _Sweep:
         self.method = [""] * F
         self.v = topo.feed_weight.astype(complex)
         self.hand_pb, self.hand_qs, self.hand_lt, self.rca_unphysical = [], [], [], []
+        self.unresolved, self.non_finite = [], []
         self.used_tables = []
         self.far = FarField(topo.start, topo.end, topo.parent, self.k_all.max())
 
@@ -464,7 +471,7 @@ class _Sweep:
             z = self._matrix(k, plan, loss_entries)
             if not np.all(np.isfinite(z)):
                 qs = True
-                self.warnings.append(f"non-finite matrix at {fi:.6g} Hz: quasi-static solution used")
+                self.non_finite.append(fi)
             else:
                 cur, cnd = lu_solve(z, self.v)
                 self.cond[i] = cnd
@@ -506,7 +513,7 @@ class _Sweep:
         if self.method[i] == "quasi-static":
             self.r_rad[i] = 160 * np.pi**2 * abs(self.h_eff[i] / lam) ** 2
         else:
-            refl = complex_permittivity(fi, eps_s, sig_s) if ground == "lossy" else None
+            refl = complex_permittivity(fi, eps_s, sig_s) if ground != "perfect" else None
             self.r_rad[i] = 2 * self.far.power(k, ie, refl) / i0sq
         r_pb = self.r_rad[i] + self.r_cond[i] + self.r_elec[i]
         if self.method[i] == "quasi-static":
@@ -528,11 +535,8 @@ class _Sweep:
             if ground == "perfect":
                 self.mismatch[i] = abs(zvi.real - r_pb) / max(abs(zvi.real), 1e-300)
             elif res_err > RESISTANCE_RESOLUTION_TOLERANCE * max(zvi.real, 1e-300):
-                self.warnings.append(
-                    f"lossy ground at {fi:.6g} Hz: the input resistance is not resolved by the solution "
-                    f"(estimated error {res_err:.3g} ohm)"
-                )
-        if ground == "lossy":
+                self.unresolved.append((fi, res_err))
+        if ground != "perfect":
             self.r_gnd[i] = max(zvi.real - r_pb, 0.0)
             if zvi.real < 0.99 * r_pb:
                 self.rca_unphysical.append(fi)
@@ -558,10 +562,21 @@ class _Sweep:
                 "the quasi-static solution (capacitance, effective height, 160 pi^2 (h_e/lambda)^2) is used"
             )
         if self.rca_unphysical:
+            how = ("the reflection-coefficient approximation gives" if self.system.ground != "lossy"
+                   else "the solution gives")
             warnings.append(
-                "lossy ground: at " + _freq_list(self.rca_unphysical) + " the reflection-coefficient approximation "
-                "gives an input resistance below the space-wave radiation plus wire losses (not physical at this "
-                "height above ground); use a perfect ground with series_ohm for the ground loss"
+                "lossy ground: at " + _freq_list(self.rca_unphysical) + f" {how} an input resistance below the "
+                "space-wave radiation plus wire losses (not physical); "
+                + ("use the exact half-space (ground='lossy') instead" if self.system.ground != "lossy"
+                   else "the ground loss there is set to zero")
+            )
+        if self.non_finite:
+            warnings.append("non-finite matrix at " + _freq_list(self.non_finite) + ": quasi-static solution used")
+        if self.unresolved:
+            worst = max(e for _, e in self.unresolved)
+            warnings.append(
+                "lossy ground: at " + _freq_list([fi for fi, _ in self.unresolved]) + " the input resistance is not "
+                f"resolved by the solution (estimated error up to {worst:.3g} ohm)"
             )
         bad_pb = self.mismatch > POWER_BALANCE_WARNING
         if np.any(bad_pb):
@@ -581,8 +596,12 @@ class _Sweep:
         r_total = z_in.real
         eff = np.where(r_total > 0, self.r_rad / np.where(r_total > 0, r_total, 1.0), 0.0)
         cur_mid = 0.5 * (self.cur_ends[:, :, 0] + self.cur_ends[:, :, 1])
-        gname = "perfect ground (images)" if ground == "perfect" else (
-            f"lossy ground by the reflection-coefficient approximation (eps_r {eps_s:g}, sigma {sig_s:g} S/m)")
+        if ground == "perfect":
+            gname = "perfect ground (images)"
+        elif ground == "lossy":
+            gname = f"lossy ground, exact half-space by Sommerfeld integrals (eps_r {eps_s:g}, sigma {sig_s:g} S/m)"
+        else:
+            gname = f"lossy ground by the reflection-coefficient approximation (eps_r {eps_s:g}, sigma {sig_s:g} S/m)"
         model = ("full wave: method of moments, mixed-potential EFIE with triangle basis and Galerkin testing, "
                  f"thin-wire reduced kernel, {gname}")
         band_method = "direct fill at every frequency" if not self.used_tables else "Taylor series in k: " + "; ".join(

@@ -43,7 +43,9 @@ from scipy.constants import mu_0
 from aerial.core.threads import blas_threads
 from aerial.models.fullwave_fields import ETA0, complex_permittivity, fresnel_reflection
 from aerial.models.fullwave_geometry import Topology, build_topology
+from aerial.models.fullwave_halfspace import remainder_matrices
 from aerial.models.fullwave_kernel import Filler
+from aerial.models.sommerfeld import sommerfeld_table
 
 try:  # the shared conductor model
     from aerial.models.conductor import internal_impedance_per_m as _internal_impedance
@@ -129,7 +131,8 @@ class System:
     counts : ndarray of int
         Pieces per segment.
     ground : str
-        "perfect" or "lossy".
+        "perfect", "lossy" (the exact half-space by Sommerfeld integrals) or
+        "reflection-coefficient" (the fast approximation).
     eps_soil, sigma_soil : float or None
         Soil relative permittivity [1] and conductivity [S/m] (lossy ground).
     n_gauss : int
@@ -239,10 +242,24 @@ class System:
         ad, pd, ah, av, pi_ = self.filler.fill(
             k, [{"A_direct": 1.0}, {"Phi_direct": 1.0}, {"A_image_h": 1.0}, {"A_image_v": 1.0}, {"Phi_image": 1.0}]
         )
+        if self.ground == "lossy":
+            table = self.sommerfeld(k)
+            kq = table.quasi_static_image
+            a_extra, phi_extra = remainder_matrices(self.filler, table)
+            ad += kq * av + a_extra
+            pd += phi_extra - kq * pi_
+            return ad, pd
         r_h, r_v = self.reflection(k)
         ad += r_h * ah + r_v * av
         pd -= r_v * pi_
         return ad, pd
+
+    def sommerfeld(self, k):
+        """The soil's Sommerfeld table at wavenumber k (built once per soil and frequency, then reused)."""
+        f = k * C0 / (2 * np.pi)
+        pts = np.vstack([self.topo.start, self.topo.end])
+        reach = float(np.linalg.norm(np.ptp(np.vstack([pts, pts * [1.0, 1.0, -1.0]]), axis=0)))  # box diagonal
+        return sommerfeld_table(f, self.eps_soil, self.sigma_soil, 1.05 * reach)
 
     def static_potential(self):
         """The k -> 0 scalar-potential matrix Phi (direct minus image), real. [1/m]"""

@@ -163,6 +163,13 @@ def render_report(result: dict, console) -> None:
                       f"tolerance {100 * conv['tolerance']:.2g} %)")
     if a.get("ground_treatment"):
         console.print(f"ground treatment: {escape(a['ground_treatment'])}")
+    budget = a.get("loss_budget")
+    if budget and labels:
+        i = _nearest(freqs, ranges["frequencies_hz"][len(labels) // 2])
+        console.print(
+            f"loss budget at {eng(freqs[i], 'Hz')}: wire {eng(a['conductor_loss_ohm'][i], 'Ω')}; soil under the aerial "
+            f"{eng(budget['soil_under_aerial_ohm'][i], 'Ω')} ({escape(budget['soil_treatment'])}); earth electrode "
+            f"{eng(budget['electrode_ohm'][i], 'Ω')} ({escape(budget['electrode_treatment'])})")
     for note in ranges.get("notes", []):
         console.print(f"[dim]{escape(note)}[/dim]")
 

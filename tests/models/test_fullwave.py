@@ -235,7 +235,7 @@ def test_lossy_ground_tends_to_perfect_ground_as_conductivity_grows():
     pec = solve_full_wave(seg, [1e6], convergence_check=False)
     prev = None
     for sigma in (1e-1, 1e3, 1e8):
-        r = solve_full_wave(seg, [1e6], ground="lossy", soil_permittivity=15.0, soil_conductivity=sigma,
+        r = solve_full_wave(seg, [1e6], ground="reflection-coefficient", soil_permittivity=15.0, soil_conductivity=sigma,
                             convergence_check=False)
         err = abs(r.impedance[0] - pec.impedance[0]) / abs(pec.impedance[0])
         if prev is not None:
