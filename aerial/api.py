@@ -149,8 +149,9 @@ def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allo
     return result
 
 
-def coil_helper(*, diameter, wire, turns=None, inductance=None, pitch=None, strands=1, frequency="1 MHz") -> dict:
+def coil_helper(*, diameter, wire, turns=None, inductance=None, pitch=None, strands=1, frequency="1 MHz",
+                strand_size=None) -> dict:
     from aerial.estimate.receiver import coil_design
 
     return coil_design(diameter=diameter, wire=wire, turns=turns, inductance=inductance, pitch=pitch,
-                       strands=strands, frequency=frequency)
+                       strands=strands, frequency=frequency, strand_size=strand_size)

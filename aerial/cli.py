@@ -26,6 +26,52 @@ EXIT_INTERRUPTED = 130
 #: Most layouts ``aerial layout --best`` shows (the planner's own limit).
 MAX_BEST = 100
 
+#: Set when Ctrl-C arrived (by :func:`raise_interrupt`): a library that turns the interrupt into an error of
+#: its own while it loads (numpy does) is still reported as an interruption.
+_INTERRUPT = {"seen": False}
+
+
+def raise_interrupt(signum, frame):
+    """SIGINT handler while a command runs: remember it, then raise KeyboardInterrupt as Python does."""
+    _INTERRUPT["seen"] = True
+    raise KeyboardInterrupt
+
+
+def interrupted() -> int:
+    sys.stderr.write("aerial: interrupted\n")
+    return EXIT_INTERRUPTED
+
+
+def _quiet_stdout() -> None:
+    """Point stdout at the null device, so that Python's own flush at exit cannot fail a second time."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+    except (OSError, ValueError, AttributeError):
+        pass
+
+
+def flush_output(code: int) -> int:
+    """Flush stdout; a full disk or a closed reader becomes one line and exit 2 (a reader gone: exit as is)."""
+    try:
+        sys.stdout.flush()
+    except BrokenPipeError:
+        _quiet_stdout()
+    except OSError as err:
+        _quiet_stdout()
+        sys.stderr.write(f"aerial: {os_error_line(err)}\n")
+        return EXIT_USER
+    return code
+
+
+def os_error_line(err: OSError) -> str:
+    """One line for an operating-system fault on a file the user named (or on the output)."""
+    from aerial.core.errors import os_error_words
+
+    if err.filename is None:
+        return f"cannot write the output ({os_error_words(err)})"
+    return f"{one_line(err.filename)}: {os_error_words(err)}"
+
 
 def one_line(text) -> str:
     """``text`` with line breaks and other control characters written as escapes: one terminal line."""
@@ -84,13 +130,18 @@ def build_parser() -> argparse.ArgumentParser:
 
     coil = sub.add_parser("coil", help="single-layer coil helper: inductance from turns, or turns for an inductance",
                           description="Single-layer solenoid: inductance from turns, or turns for a wanted inductance.")
-    coil.add_argument("--diameter", required=True, metavar="LEN", help='form diameter, e.g. "50 mm"')
-    coil.add_argument("--wire", required=True, metavar="GAUGE", help='wire gauge, e.g. "26 AWG" or "24 SWG"')
+    coil.add_argument("--diameter", required=True, metavar="LEN",
+                      help='the former\'s outside diameter, e.g. "50 mm" (the turns are taken at the wire centres, '
+                           'one wire diameter more)')
+    coil.add_argument("--wire", required=True, metavar="WIRE",
+                      help='wire gauge, e.g. "26 AWG" or "24 SWG", or its diameter, e.g. "0.4 mm"')
     g = coil.add_mutually_exclusive_group(required=True)
     g.add_argument("--turns", type=float, help="number of turns (gives the inductance)")
     g.add_argument("--inductance", metavar="L", help='wanted inductance, e.g. "240 uH" (gives the turns)')
     coil.add_argument("--pitch", metavar="LEN", help="turn-to-turn pitch (default: close-wound, one wire diameter)")
-    coil.add_argument("--strands", type=int, default=1, help="strands of a stranded (litz) wire, each of --wire gauge")
+    coil.add_argument("--strands", type=int, default=1,
+                      help="strands of a stranded (litz) wire; --wire is then the whole bundle")
+    coil.add_argument("--strand-size", metavar="WIRE", help='each strand\'s gauge or diameter, e.g. "40 AWG" (with --strands)')
     coil.add_argument("--frequency", metavar="FREQ", default="1 MHz", help='frequency for the Q estimate (default "1 MHz")')
     coil.add_argument("--json", action="store_true", help="print machine-readable JSON")
     return p
@@ -171,7 +222,7 @@ def cmd_report(args) -> int:
     from aerial.api import run_report
 
     step = None
-    if args.step:
+    if args.step is not None:
         from aerial.core import units
 
         try:
@@ -213,11 +264,22 @@ def cmd_coil(args) -> int:
     from aerial.api import coil_helper
 
     result = coil_helper(diameter=args.diameter, wire=args.wire, turns=args.turns, inductance=args.inductance,
-                         pitch=args.pitch, strands=args.strands, frequency=args.frequency)
+                         pitch=args.pitch, strands=args.strands, frequency=args.frequency, strand_size=args.strand_size)
     return _render(args, result, "render_coil")
 
 
 COMMANDS = {"check": cmd_check, "report": cmd_report, "layout": cmd_layout, "coil": cmd_coil}
+
+
+def _check_empty_options(args) -> None:
+    """An option given an empty value ("") is a slip, never "leave it out"."""
+    for option in ("site", "picture", "pictures", "step", "pitch", "inductance", "diameter", "wire", "frequency",
+                   "strand_size"):
+        value = getattr(args, option, None)
+        if isinstance(value, str) and not value.strip():
+            if option == "site":
+                raise AerialError("the site file name is empty; expected the path of a site file (.toml)")
+            raise AerialError(f"--{option.replace('_', '-')} is empty; expected a value (see 'aerial {args.command} --help')")
 
 
 def main(argv=None) -> int:
@@ -226,8 +288,10 @@ def main(argv=None) -> int:
         parser = build_parser()
         args = parser.parse_args(argv)
         if args.command is None:
-            parser.print_help()
+            parser.print_usage(sys.stderr)
+            sys.stderr.write("aerial: a command is needed; 'aerial --help' lists them\n")
             return EXIT_USER
+        _check_empty_options(args)
         return COMMANDS[args.command](args)
     except SafetyRefusal as err:
         sys.stderr.write(f"aerial: refused: {one_line(err)}\n")
@@ -236,8 +300,7 @@ def main(argv=None) -> int:
         sys.stderr.write(f"aerial: {one_line(err)}\n")
         return EXIT_USER
     except KeyboardInterrupt:
-        sys.stderr.write("aerial: interrupted\n")
-        return EXIT_INTERRUPTED
+        return interrupted()
     except BrokenPipeError:
         # the reader went away (e.g. `| head`): not an error
         try:
@@ -248,7 +311,14 @@ def main(argv=None) -> int:
     except MemoryError:
         sys.stderr.write("aerial: out of memory; use a coarser segmentation or fewer supports\n")
         return EXIT_USER
+    except OSError as err:  # a full disk, a read-only folder, a name too long: the user's to fix
+        if err.filename is None:
+            _quiet_stdout()
+        sys.stderr.write(f"aerial: {os_error_line(err)}\n")
+        return EXIT_USER
     except Exception as err:  # a bug: still one line for the user
+        if _INTERRUPT["seen"]:  # Ctrl-C while a library loaded, reported by it as an error of its own
+            return interrupted()
         if os.environ.get("AERIAL_DEBUG"):
             raise
         sys.stderr.write(f"aerial: internal error ({type(err).__name__}: {one_line(err)}); "
@@ -256,9 +326,8 @@ def main(argv=None) -> int:
         return 1
 
 
-def console_main():  # pragma: no cover
-    sys.exit(main())
+if __name__ == "__main__":  # pragma: no cover - the console script is aerial.__main__.run
+    import signal
 
-
-if __name__ == "__main__":  # pragma: no cover
-    sys.exit(main())
+    signal.signal(signal.SIGINT, raise_interrupt)
+    sys.exit(flush_output(main()))

@@ -130,3 +130,62 @@ def test_interrupt_between_pictures_leaves_only_whole_files(capsys, monkeypatch,
     assert code == EXIT_INTERRUPTED
     assert err == "aerial: interrupted\n" and out == ""
     assert partial_files(pics) == []
+
+
+# Ctrl-C at start-up, made to arrive at a chosen moment: a hook in the import system sends SIGINT to
+# the process when a given module starts to load (so the test does not depend on timing).
+START_UP_DRIVER = """
+import os, signal, sys
+TARGET, MODE = sys.argv[1], sys.argv[2]
+class Hook:
+    def find_spec(self, name, path=None, target=None):
+        if name == TARGET:
+            sys.meta_path.remove(self)
+            if MODE == "convert":  # as numpy does: the interrupt comes back as an import error of its own
+                try:
+                    os.kill(os.getpid(), signal.SIGINT)
+                except KeyboardInterrupt:
+                    raise ImportError("initialization failed")
+            os.kill(os.getpid(), signal.SIGINT)
+        return None
+sys.meta_path.insert(0, Hook())
+if MODE == "at-exit":
+    import atexit
+    atexit.register(lambda: os.kill(os.getpid(), signal.SIGINT))
+sys.argv = ["aerial"] + sys.argv[3:]
+from aerial.__main__ import run
+run()
+"""
+
+
+@pytest.mark.skipif(os.name != "posix", reason="SIGINT delivery needs POSIX")
+@pytest.mark.parametrize("target, mode", [
+    ("aerial.cli", "plain"),  # while the command line itself loads
+    ("numpy", "plain"),  # during the lazy import of the numerical libraries
+    ("numpy", "convert"),  # a library that turns the interrupt into an ImportError
+    ("none", "at-exit"),  # while the interpreter shuts down after the output
+])
+def test_ctrl_c_at_any_moment_of_start_up(tmp_path, target, mode):
+    env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    env.pop("AERIAL_DEBUG", None)
+    pics = tmp_path / "pics"
+    proc = subprocess.run([sys.executable, "-c", START_UP_DRIVER, target, mode, "check", str(BACKYARD)],
+                          capture_output=True, env=env, cwd=tmp_path, timeout=120)
+    err = proc.stderr.decode()
+    assert proc.returncode == EXIT_INTERRUPTED, err
+    assert err.endswith("aerial: interrupted\n") and "Traceback" not in err and "Exception ignored" not in err
+    assert list(tmp_path.iterdir()) == [] and not pics.exists()
+
+
+def test_interrupt_while_writing_pictures_leaves_no_empty_folder(capsys, monkeypatch, tmp_path):
+    import aerial.outputs.pictures as pictures
+
+    def interrupted(*a, **k):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(pictures, "write_atomic", interrupted)
+    pics = tmp_path / "pics"
+    code = main(["report", str(BACKYARD), "--pictures", str(pics)])
+    _, err = capsys.readouterr()
+    assert code == EXIT_INTERRUPTED and err == "aerial: interrupted\n"
+    assert not pics.exists()

@@ -54,6 +54,30 @@ class ModelInputError(AerialError, ValueError):
     """An argument to a physics function that lies outside what the function accepts."""
 
 
+def os_error_words(err: OSError) -> str:
+    """Plain words for an operating-system fault on a path (a full disk, a read-only folder, a name too long).
+
+    >>> import errno
+    >>> os_error_words(OSError(errno.ENOSPC, "No space left on device"))
+    'no space left on the device'
+    """
+    import errno
+
+    return {
+        errno.ENOENT: "no such file or folder",
+        errno.ENAMETOOLONG: "the name is too long for the file system",
+        errno.EACCES: "permission denied",
+        errno.EPERM: "permission denied",
+        errno.EROFS: "the folder is on a read-only file system",
+        errno.ENOSPC: "no space left on the device",
+        errno.ENOTDIR: "a part of the path is a file, not a folder",
+        errno.EISDIR: "is a folder",
+        errno.ELOOP: "the path is a loop of symbolic links",
+        errno.EDQUOT: "the disk quota is used up",
+        errno.EFBIG: "the file would be too large for the file system",
+    }.get(err.errno, (err.strerror or str(err)).lower())
+
+
 def _show(value) -> str:
     if isinstance(value, str):
         text = value if len(value) <= 60 else value[:57] + "..."

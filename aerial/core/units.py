@@ -63,13 +63,12 @@ RESISTIVITY_UNITS: dict[str, float] = {
 }
 AREA_UNITS: dict[str, float] = {"mm2": 1e-6, "mm²": 1e-6, "mm^2": 1e-6, "m2": 1.0, "m²": 1.0, "m^2": 1.0}
 
-#: The SI prefixes whose case matters in the units aerial reads (SI Brochure, 9th edition, table 7).
-#: "u" stands for micro where "µ" cannot be typed. Rarer prefixes (femto, peta, ...) are no
-#: reading of any quantity a site holds, so "PF" is a picofarad and not a petafarad.
-SI_PREFIXES: dict[str, float] = {"p": 1e-12, "n": 1e-9, "u": 1e-6, "µ": 1e-6, "μ": 1e-6, "m": 1e-3, "c": 1e-2,
-                                 "k": 1e3, "M": 1e6, "G": 1e9}
-_PREFIX_NAMES = {"p": "pico", "n": "nano", "u": "micro", "µ": "micro", "μ": "micro", "m": "milli", "c": "centi",
-                 "k": "kilo", "M": "mega", "G": "giga"}
+#: The SI prefixes (SI Brochure, 9th edition, table 7), whose case matters: "m" is milli, "M" mega.
+#: "u" stands for micro where "µ" cannot be typed. So "PF" could be a petafarad and is refused as
+#: ambiguous, absurd as that reading is: a unit is never guessed.
+SI_PREFIXES: dict[str, float] = {"y": 1e-24, "z": 1e-21, "a": 1e-18, "f": 1e-15, "p": 1e-12, "n": 1e-9, "u": 1e-6,
+                                 "µ": 1e-6, "μ": 1e-6, "m": 1e-3, "c": 1e-2, "d": 1e-1, "h": 1e2, "k": 1e3,
+                                 "M": 1e6, "G": 1e9, "T": 1e12, "P": 1e15, "E": 1e18, "Z": 1e21, "Y": 1e24}
 #: Unit symbols a prefix attaches to (compared case-insensitively).
 _SI_SYMBOLS = {"m": "metre", "hz": "hertz", "f": "farad", "h": "henry", "w": "watt", "ohm": "ohm", "ω": "ohm",
                "v/m": "volt per metre", "s/m": "siemens per metre", "m2": "square metre", "m²": "square metre",

@@ -188,10 +188,38 @@ def _stations_day_and_night(site, f, r, x, rr, he, parts) -> tuple[list, list]:
     return stations, warnings
 
 
-def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, strands=1, frequency="1 MHz") -> dict:
-    """The ``aerial coil`` helper: inductance from turns, or turns and winding length for an inductance."""
-    from aerial.models import coil as coil_mod
+#: Above these a single-layer coil is not something anyone winds: the helper says so.
+PRACTICAL_TURNS = 2000
+PRACTICAL_WINDING_LENGTH_M = 1.0
 
+
+def wire_option(text, option: str) -> float:
+    """A wire given as a gauge ("26 AWG", "24 SWG") or as a diameter ("0.4 mm"). [m]"""
+    import re
+
+    from aerial.site.reader import MIN_WIRE_DIAMETER_M
+
+    m = re.fullmatch(r"\s*(\S+)\s*(awg|swg)\s*", str(text), re.IGNORECASE)
+    if m:
+        try:
+            g = units.parse_gauge(m.group(1))
+            if m.group(2).lower() == "awg" and not -3 <= g <= 40:
+                raise KeyError(g)
+            return units.awg_diameter(g) if m.group(2).lower() == "awg" else units.swg_diameter(g)
+        except (units.UnitError, KeyError):
+            raise AerialError(f"{option} {text}: not a gauge in that system (AWG 4/0 to 40, SWG 7/0 to 50)") from None
+    try:
+        d = units.parse_length(text)
+    except units.UnitError:
+        raise AerialError(f'{option} {text}: expected a gauge such as "26 AWG" or "24 SWG", or a diameter such as '
+                          '"0.4 mm"') from None
+    if not MIN_WIRE_DIAMETER_M <= d <= 0.05:
+        raise AerialError(f"{option} {text}: expected a wire diameter from {MIN_WIRE_DIAMETER_M * 1e3:g} mm to 50 mm")
+    return d
+
+
+def _coil_inputs(diameter, wire, pitch, frequency, strands, strand_size):
+    """The ``aerial coil`` options in SI units: (form diameter, wire diameter, pitch, frequency, strand diameter)."""
     def length(text, what):
         try:
             return units.parse_length(text)
@@ -199,27 +227,52 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
             raise AerialError(f"{what} {text}: {err.expected}") from None
 
     d = length(diameter, "--diameter")
-    m = __import__("re").fullmatch(r"\s*(\S+)\s*(awg|swg)\s*", str(wire), __import__("re").IGNORECASE)
-    if not m:
-        raise AerialError(f'--wire {wire}: expected a gauge with its system, such as "26 AWG" or "24 SWG"')
-    try:
-        g = units.parse_gauge(m.group(1))
-        if m.group(2).lower() == "awg" and not -3 <= g <= 40:
-            raise KeyError(g)
-        wd = units.awg_diameter(g) if m.group(2).lower() == "awg" else units.swg_diameter(g)
-    except (units.UnitError, KeyError):
-        raise AerialError(f"--wire {wire}: not a gauge in that system (AWG 4/0 to 40, SWG 7/0 to 50)") from None
+    if not 1e-3 <= d <= 10.0:
+        raise AerialError(f"--diameter {diameter}: expected a former diameter from 1 mm to 10 m")
+    wd = wire_option(wire, "--wire")
     p = length(pitch, "--pitch") if pitch else None
     try:
         f = units.parse_quantity(frequency, units.FREQUENCY_UNITS, "a frequency", "Hz")
     except units.UnitError as err:
         raise AerialError(f"--frequency {frequency}: {err.expected}") from None
-    if d <= 0 or (p is not None and p < wd):
-        raise AerialError("--diameter must be positive and --pitch at least the wire's diameter")
-    out: dict = {"form_diameter_m": d, "wire_diameter_m": wd, "frequency_hz": f}
+    if not 10e3 <= f <= 30e6:
+        raise AerialError(f"--frequency {frequency}: expected a frequency from 10 kHz to 30 MHz")
+    if p is not None and p < wd:
+        raise AerialError(f"--pitch {pitch}: less than the wire's diameter ({wd * 1e3:.3g} mm): the turns would overlap")
+    if not 1 <= strands <= 2000:
+        raise AerialError(f"--strands {strands}: expected a whole number of strands from 1 to 2000")
+    sd = None
+    if strands > 1:
+        if strand_size is None:
+            raise AerialError(f'--strands {strands}: stranded wire needs --strand-size, each strand\'s gauge or diameter '
+                              '(e.g. "40 AWG"); --wire is then the whole bundle')
+        sd = wire_option(strand_size, "--strand-size")
+        if sd * math.sqrt(strands) > wd * 1.001:
+            raise AerialError(f"--strand-size {strand_size}: {strands} strands of {sd * 1e3:.3g} mm do not fit in a "
+                              f"bundle of {wd * 1e3:.3g} mm (--wire)")
+    elif strand_size is not None:
+        raise AerialError("--strand-size is for stranded wire: give --strands as well (2 or more)")
+    return d, wd, p, f, sd
+
+
+def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, strands=1, frequency="1 MHz",
+                strand_size=None) -> dict:
+    """The ``aerial coil`` helper: inductance from turns, or turns and winding length for an inductance.
+
+    ``diameter`` is the former's outside diameter; the turns' own diameter, to the wire centres, is the
+    former's plus one wire diameter (reported as ``winding_diameter_m``).
+    """
+    from aerial.models import coil as coil_mod
+
+    d, wd, p, f, sd = _coil_inputs(diameter, wire, pitch, frequency, strands, strand_size)
+    out: dict = {"form_diameter_m": d, "wire_diameter_m": wd, "winding_diameter_m": d + wd, "frequency_hz": f,
+                 "diameter_convention": "--diameter is the former's outside diameter; the inductance is computed for "
+                                        "the turns at the wire centres (former + one wire diameter)"}
+    if strands > 1:
+        out.update({"strands": strands, "strand_diameter_m": sd})
     if turns is not None:
-        if not (math.isfinite(turns) and 0 < turns <= 10000):
-            raise AerialError(f"--turns {turns}: expected a number of turns from 1 to 10000")
+        if not (math.isfinite(turns) and 1 <= turns <= 10000):
+            raise AerialError(f"--turns {turns:g}: expected a number of turns from 1 to 10000")
         L = float(np.asarray(coil_mod.solenoid_inductance(d, wd, turns, pitch=p)))
         out.update({"turns": turns, "inductance_h": L, "winding_length_m": turns * (p or wd)})
     else:
@@ -227,25 +280,24 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
             want = units.parse_quantity(inductance, units.INDUCTANCE_UNITS, "an inductance", "H")
         except units.UnitError as err:
             raise AerialError(f"--inductance {inductance}: {err.expected}") from None
-        if want <= 0:
-            raise AerialError(f"--inductance {inductance}: expected an inductance greater than zero")
+        if not 10e-9 <= want <= 1.0:
+            raise AerialError(f"--inductance {inductance}: expected an inductance from 10 nH to 1 H")
+        one = float(np.asarray(coil_mod.solenoid_inductance(d, wd, 1.0, pitch=p)))
+        if one > want:
+            raise AerialError(f"--inductance {inductance}: one turn on a {d * 1e3:g} mm former already has "
+                              f"{one * 1e6:.3g} uH; use a smaller former (--diameter)")
         design = coil_mod.winding_for_inductance(want, d, wd, pitch=p)
         out.update({k: (float(v) if isinstance(v, (int, float, np.floating, np.integer)) else v)
                     for k, v in design._asdict().items()})
         out["inductance_h"] = float(out.get("inductance_h", want))
         turns = out.get("turns")
-    try:
-        loss = coil_mod.coil_loss(f, out["inductance_h"], d, wd, turns, pitch=p, strands=strands)
-        for k, v in loss._asdict().items():
-            if isinstance(v, (int, float, np.floating, np.ndarray)):
-                out[k] = float(np.asarray(v))
-            elif isinstance(v, (list, tuple)):
-                out.setdefault("warnings", []).extend(v)
-    except TypeError:
-        loss = coil_mod.coil_loss(f, out["inductance_h"], d, wd, turns, pitch=p)
-        for k, v in loss._asdict().items():
-            if isinstance(v, (int, float, np.floating, np.ndarray)):
-                out[k] = float(np.asarray(v))
+    out["warnings"] = _absurd_coil(turns, turns * (p or wd), d)
+    loss = coil_mod.coil_loss(f, out["inductance_h"], d, wd, turns, pitch=p, strands=strands, strand_diameter=sd)
+    for k, v in loss._asdict().items():
+        if isinstance(v, (int, float, np.floating, np.ndarray)):
+            out[k] = float(np.asarray(v))
+        elif isinstance(v, (list, tuple)):
+            out["warnings"].extend(v)
     from aerial.estimate.plain import finalise
 
     renames = {"turns_whole": "whole_turns", "winding_length": "winding_length_m", "inductance_whole": "inductance_whole_turns_h",
@@ -255,3 +307,15 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
     if "converged" in out:
         out["converged"] = bool(out["converged"])
     return finalise(out)
+
+
+def _absurd_coil(turns, winding_length_m, form_diameter_m) -> list[str]:
+    """Warnings for a single-layer coil nobody would wind (e.g. 156,500 turns for 1 H)."""
+    out = []
+    if turns > PRACTICAL_TURNS or winding_length_m > PRACTICAL_WINDING_LENGTH_M:
+        out.append(f"{turns:,.0f} turns in a winding {winding_length_m:.3g} m long is not a practical single-layer "
+                   "coil: use a larger former, or a multilayer or ferrite-cored coil (outside this helper's model)")
+    elif winding_length_m > 10 * form_diameter_m:
+        out.append(f"the winding is {winding_length_m / form_diameter_m:.0f} times as long as the former is wide: "
+                   "a larger former gives the inductance with fewer turns and less wire")
+    return out

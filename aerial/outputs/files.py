@@ -6,11 +6,12 @@ failure or an interruption leaves no partial file behind.
 
 from __future__ import annotations
 
+import errno
 import os
 import tempfile
 from pathlib import Path
 
-from aerial.core.errors import AerialError
+from aerial.core.errors import AerialError, os_error_words
 
 
 def check_writable(path, force: bool = False, protected=()) -> Path:
@@ -27,8 +28,14 @@ def check_writable(path, force: bool = False, protected=()) -> Path:
     if p.exists() and not force:
         raise AerialError(f"{path}: already exists; choose another name or add --force to replace it")
     parent = p.parent if str(p.parent) else Path(".")
-    if not parent.exists():
-        raise AerialError(f"{path}: the folder {parent} does not exist")
+    try:
+        os.stat(parent)
+    except OSError as err:
+        if err.errno == errno.ENOENT:
+            raise AerialError(f"{path}: the folder {parent} does not exist") from None
+        raise AerialError(f"{path}: {os_error_words(err)}") from None
+    if not parent.is_dir():
+        raise AerialError(f"{path}: {parent} is a file, not a folder")
     return p
 
 
@@ -43,7 +50,15 @@ def write_atomic(path, data: bytes | str, force: bool = False, protected=()) -> 
     p = check_writable(path, force, protected)
     if isinstance(data, str):
         data = data.encode("utf-8")
-    fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".part", dir=p.parent if str(p.parent) else ".")
+    try:
+        return _write_through_temporary(p, data, force)
+    except OSError as err:  # a read-only folder, a full disk, a name too long: nothing is left behind
+        raise AerialError(f"{path}: cannot write ({os_error_words(err)})") from None
+
+
+def _write_through_temporary(p: Path, data: bytes, force: bool) -> Path:
+    path = p
+    fd, tmp = tempfile.mkstemp(prefix=f".{p.name[:32]}.", suffix=".part", dir=p.parent if str(p.parent) else ".")
     try:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)

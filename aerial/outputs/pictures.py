@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from aerial.core.errors import AerialError
+from aerial.core.errors import AerialError, os_error_words
 from aerial.outputs.files import check_writable, write_atomic
 
 PICTURE_NAMES = ("aerial-impedance.svg", "aerial-capacitance.svg", "tuning-range.svg", "station-power.svg")
@@ -39,7 +39,28 @@ def draw_report_pictures(result: dict, folder, force: bool = False, protected=()
     from aerial.outputs import charts
 
     d = Path(folder)
-    d.mkdir(parents=False, exist_ok=True)
     makers = (charts.impedance_chart, charts.capacitance_chart, charts.tuning_chart, charts.station_chart)
     drawn = [(name, make(result)) for name, make in zip(PICTURE_NAMES, makers)]  # all drawn before any is written
-    return [str(write_atomic(d / name, text, force, protected)) for name, text in drawn if text]
+    return _write_pictures(d, [(name, text) for name, text in drawn if text], force, protected)
+
+
+def _write_pictures(d: Path, drawn, force: bool, protected) -> list[str]:
+    """Write the drawn pictures into ``d``, making the folder only now; a folder made here and left
+    empty by a failure or an interrupt is removed again."""
+    made = False
+    try:
+        d.mkdir(parents=False, exist_ok=False)
+        made = True
+    except FileExistsError:
+        pass
+    except OSError as err:
+        raise AerialError(f"--pictures {d}: cannot make the folder ({os_error_words(err)})") from None
+    try:
+        return [str(write_atomic(d / name, text, force, protected)) for name, text in drawn]
+    except BaseException:
+        if made:
+            try:
+                d.rmdir()  # only when empty
+            except OSError:
+                pass
+        raise

@@ -195,8 +195,35 @@ def svg_text(scene) -> str:
     return "\n".join(out) + "\n"
 
 
+def matplotlib_config_dir() -> None:
+    """Give matplotlib a temporary configuration folder when the home folder cannot be written.
+
+    Otherwise it prints cache warnings on stderr. A folder the user chose (MPLCONFIGDIR) is kept.
+    """
+    import atexit
+    import os
+    import shutil
+    import tempfile
+    from pathlib import Path
+
+    if os.environ.get("MPLCONFIGDIR"):
+        return
+    base = os.environ.get("XDG_CONFIG_HOME") or os.path.join(os.path.expanduser("~"), ".config")
+    try:  # what matplotlib itself would make; os.access cannot tell (root passes it everywhere)
+        config = Path(base) / "matplotlib"
+        config.mkdir(parents=True, exist_ok=True)
+        with tempfile.TemporaryFile(dir=config):
+            return
+    except OSError:
+        pass
+    folder = tempfile.mkdtemp(prefix="aerial-matplotlib-")
+    atexit.register(shutil.rmtree, folder, True)
+    os.environ["MPLCONFIGDIR"] = folder
+
+
 def png_bytes(scene) -> bytes:
     """The plan drawing as PNG bytes (matplotlib, Agg backend, no global pyplot state)."""
+    matplotlib_config_dir()
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
     from matplotlib.patches import PathPatch, Polygon as MplPolygon

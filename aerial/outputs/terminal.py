@@ -338,7 +338,8 @@ def render_layout(result: dict, console) -> None:
 COIL_ROWS = (
     ("turns", "turns", ""), ("whole turns", "whole_turns", ""), ("inductance", "inductance_h", "H"),
     ("inductance with whole turns", "inductance_whole_turns_h", "H"), ("winding length", "winding_length_m", "m"),
-    ("form diameter", "form_diameter_m", "m"), ("wire diameter", "wire_diameter_m", "m"),
+    ("form diameter", "form_diameter_m", "m"), ("winding diameter (to wire centres)", "winding_diameter_m", "m"),
+    ("wire diameter", "wire_diameter_m", "m"), ("strands", "strands", ""), ("strand diameter", "strand_diameter_m", "m"),
     ("wire needed", "wire_length_m", "m"), ("DC resistance", "dc_resistance_ohm", "Ω"),
     ("AC resistance", "ac_resistance_ohm", "Ω"), ("AC/DC resistance", "ac_to_dc_resistance_ratio", ""),
     ("unloaded Q", "unloaded_q", ""), ("at frequency", "frequency_hz", "Hz"),

@@ -488,10 +488,11 @@ def load_site(path) -> Site:
     """
     if path is None:
         return builtin_example()
-    p = Path(path)
     shown = str(path)
-    if not p.exists():
-        raise SiteError(shown, "", "", "no such file")
+    if not shown.strip():
+        raise SiteError('""', "", "", "the site file name is empty; expected the path of a site file (.toml)")
+    p = Path(path)
+    _check_path(p, shown)
     if p.is_dir():
         raise SiteError(shown, "", "", "is a folder; expected a site file (.toml)")
     if not p.is_file():  # a named pipe or a device would block or never end
@@ -512,6 +513,28 @@ def load_site(path) -> Site:
     except UnicodeDecodeError as err:
         raise SiteError(shown, "", "", f"is not UTF-8 text (byte {err.start}); save it as UTF-8") from None
     return load_site_text(text, shown)
+
+
+def _check_path(p: Path, shown: str) -> None:
+    """Refuse a path that cannot be opened, saying why (a loop of links is not a missing file)."""
+    import errno
+    import os
+
+    try:
+        os.stat(p)
+    except OSError as err:
+        why = {
+            errno.ENOENT: "no such file",
+            errno.ELOOP: "the path is a loop of symbolic links",
+            errno.ENAMETOOLONG: "the name is too long for the file system",
+            errno.ENOTDIR: "a part of the path is a file, not a folder",
+            errno.EACCES: "cannot be read (permission denied)",
+        }.get(err.errno, f"cannot be read ({err.strerror or err})")
+        if err.errno == errno.ENOENT and p.is_symlink():
+            why = "a symbolic link to a file that does not exist"
+        raise SiteError(shown, "", "", why) from None
+    except ValueError:  # a NUL character in the name
+        raise SiteError(shown, "", "", "not a usable file name") from None
 
 
 def _long_number_line(text: str):
@@ -849,6 +872,8 @@ def _spans(r: TableReader, raw, supports, default_size) -> list:
 
 
 def _polyline(r: TableReader, value, key, min_points=2):
+    if value is None:
+        r.fail(key, "", f"missing: expected a list of at least {min_points} points [[x, y, height], ...]")
     if not isinstance(value, list) or len(value) < min_points:
         r.fail(key, value, f"expected a list of at least {min_points} points [[x, y, height], ...]")
     pts = np.array([r.point3(p, f"{key}[{j}]") for j, p in enumerate(value)], dtype=float)
