@@ -208,9 +208,9 @@ def test_coil_helper_gives_turns_and_length(capsys):
 
 @pytest.mark.parametrize("argv, words", [
     (["--wire", "99 AWG", "--turns", "3"], "not a gauge"),
-    (["--wire", "26", "--turns", "3"], "with its system"),
+    (["--wire", "26", "--turns", "3"], "such as \"26 AWG\""),
     (["--wire", "26 AWG", "--turns", "0"], "--turns"),
-    (["--wire", "26 AWG", "--inductance", "-5 uH"], "greater than zero"),
+    (["--wire", "26 AWG", "--inductance", "-5 uH"], "from 10 nH to 1 H"),
 ])
 def test_coil_helper_rejects_bad_input(capsys, argv, words):
     code, _, err = run(capsys, "coil", "--diameter", "50 mm", *argv)

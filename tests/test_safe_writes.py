@@ -145,7 +145,7 @@ def test_failed_rename_keeps_the_old_file_and_leaves_no_temporary(tmp_path, monk
         raise OSError(28, "No space left on device")
 
     monkeypatch.setattr(os, "replace", broken)
-    with pytest.raises(OSError):
+    with pytest.raises(AerialError, match="no space left on the device"):  # one line for the user, exit 2
         files.write_atomic(target, "new", force=True)
     assert target.read_text(encoding="utf-8") == "old"
     no_temporaries(tmp_path)
