@@ -69,7 +69,7 @@ UNIT_BOUNDS = {  # suffix: (low, high) for the magnitude of a plausible value in
     "_q": (0.0, 1e4), "_ratio": (0.0, 10.0), "_deg": (0.0, 360.0),
 }
 PLAIN_NUMBERS = {"efficiency", "relative_permittivity", "turns", "whole_turns", "solver_iterations", "count",
-                 "points", "iterations", "score", "rank"}
+                 "points", "iterations", "score", "rank", "loaded_q_weak_signal"}
 
 
 def _numbers(obj, key=""):
@@ -130,7 +130,9 @@ def check_figures_plausible(data):
         assert st["field_v_per_m"] >= ground * (1 - 1e-9)  # a sky wave can only add
         assert st["signal_to_noise_db"] == pytest.approx(
             20 * np.log10(st["field_v_per_m"] / st["noise_field_v_per_m"]), abs=0.01)
-        assert st["verdict"] in ("clearly heard", "marginal", "not heard")
+        from aerial.estimate.reception import VERDICTS
+
+        assert st["verdict"] in VERDICTS and st["night"]["verdict"] in VERDICTS
 
 
 def test_report_without_site_uses_builtin_example(capsys):
