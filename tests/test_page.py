@@ -231,3 +231,43 @@ def test_new_result_keys_appear_without_new_code(built_in):
     assert 'id="more-interference"' in page
     assert "Example One" in page and "-12.5 dB" in page and "999 kHz" in page
     assert "a note from a new part" in page
+
+
+#: Every candidate support inside the fall zone of a power line (invented for this test).
+ALL_REFUSED = MINIMAL.replace('points = [[0, 0, 0.5], [0, 0, 10]]', 'points = [[0, 0, 0.5], [0, 0, 3]]') + """
+[plan]
+lot = [[-5, -5], [40, -5], [40, 10], [-5, 10]]
+
+[plan.entry]
+at = [0, 0]
+height = "2 m"
+
+[[plan.supports]]
+name = "pole a"
+at = [10, 5]
+height = "9 m"
+
+[[plan.supports]]
+name = "pole b"
+at = [30, 5]
+height = "9 m"
+
+[[plan.overhead_lines]]
+name = "line <x>"
+path = [[-20, 8], [60, 8]]
+height = "8 m"
+kind = "power"
+"""
+
+
+def test_layout_page_when_every_candidate_is_refused(capsys, write_site, tmp_path):
+    target = tmp_path / "plan.html"
+    code, out, err = run(capsys, "layout", write_site(ALL_REFUSED), "--json", "--page", target)
+    assert code == 0, err
+    data = json.loads(out)
+    assert data["layouts"] == [] and data["candidates_refused_safety"] == data["candidates_considered"]
+    page = target.read_text(encoding="utf-8")
+    assert "No safe layout was found" in page
+    assert 'id="plan-view"' in page and 'id="side-elevation"' not in page
+    assert "line &lt;x&gt;" in page and "<x>" not in page
+    assert f">{data['candidates_refused_safety']}<" in page

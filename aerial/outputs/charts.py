@@ -105,6 +105,32 @@ def _shade_range(ax, result, key, band, scale, label):
     return True
 
 
+#: Most bands drawn side by side, one panel each; more share one panel on a logarithmic frequency axis.
+MAX_BAND_PANELS = 2
+
+
+def band_panels(result) -> list[tuple[str, list, bool]]:
+    """Panels of the frequency charts: (title, [(band, mask), ...], logarithmic frequency axis)."""
+    bands = list(bands_in(result))
+    if len(bands) <= MAX_BAND_PANELS:
+        return [(plain_label(b["name"]), [(b, m)], False) for b, m in bands]
+    lo, hi = min(b["from_hz"] for b, _ in bands), max(b["to_hz"] for b, _ in bands)
+    return [(f"{len(bands)} bands", bands, hi / lo > 3)]
+
+
+def _frequency_panel(ax, f, y, parts, log, style, result, range_key, scale, legend):
+    for k, (band, m) in enumerate(parts):
+        ax.plot(f[m] / 1e3, y[m] * scale, label="estimate" if k == 0 else None, **style)
+        if range_key:
+            _shade_range(ax, result, range_key, band, scale, "range from the stated tolerances" if k == 0 else None)
+    if log:
+        ax.set_xscale("log")
+    ax.set_xlabel("frequency [kHz]")
+    if legend:
+        ax.legend(loc="best", fontsize=7)
+    _axes_style(ax)
+
+
 def impedance_figure(result):
     """Series resistance and reactance at the receiver terminals across each band, tolerance range shaded.
 
@@ -112,23 +138,19 @@ def impedance_figure(result):
     """
     f = np.asarray(result["frequencies_hz"], float)
     z = np.asarray(result["aerial"]["impedance_ohm"], float).reshape(len(f), 2)
-    bands = list(bands_in(result))
-    fig = new_figure(min(7.0, 3.5 * max(1, len(bands)) + 0.6), 4.4)
-    axes = fig.subplots(2, max(1, len(bands)), squeeze=False)
-    for j, (band, m) in enumerate(bands):
-        ax = axes[0, j]
-        ax.plot(f[m] / 1e3, z[m, 0], color=PALETTE["blue"], linewidth=1.8, label="estimate")
-        _shade_range(ax, result, "series_resistance_ohm", band, 1.0, "range from the stated tolerances")
-        ax.set_ylabel("series resistance [Ω]")
-        ax.set_xlabel("frequency [kHz]")
-        ax.set_title(plain_label(band["name"]))
-        ax.legend(loc="best", fontsize=7)
-        _axes_style(ax)
-        ax = axes[1, j]
-        ax.plot(f[m] / 1e3, z[m, 1], color=PALETTE["vermillion"], linewidth=1.8, linestyle="--")
-        ax.set_ylabel("reactance [Ω]")
-        ax.set_xlabel("frequency [kHz]")
-        _axes_style(ax)
+    panels = band_panels(result)
+    if not panels:
+        return None
+    fig = new_figure(3.5 * len(panels) + 0.6 if len(panels) > 1 or not panels[0][2] else 7.0, 4.4)
+    axes = fig.subplots(2, len(panels), squeeze=False)
+    for j, (title, parts, log) in enumerate(panels):
+        _frequency_panel(axes[0, j], f, z[:, 0], parts, log, {"color": PALETTE["blue"], "linewidth": 1.8},
+                         result, "series_resistance_ohm", 1.0, True)
+        axes[0, j].set_ylabel("series resistance [Ω]")
+        axes[0, j].set_title(title)
+        _frequency_panel(axes[1, j], f, z[:, 1], parts, log, {"color": PALETTE["vermillion"], "linewidth": 1.8,
+                                                               "linestyle": "--"}, result, None, 1.0, False)
+        axes[1, j].set_ylabel("reactance [Ω]")
     fig.suptitle(f"Impedance at the receiver terminals ({plain_label(result['aerial']['model'].split(':')[0])})",
                  fontsize=10)
     fig.aerial_svg = ("impedance", "Impedance at the receiver terminals against frequency")
@@ -142,18 +164,16 @@ def capacitance_figure(result):
     """
     f = np.asarray(result["frequencies_hz"], float)
     c = np.asarray(result["aerial"]["capacitance_f"], float)
-    bands = list(bands_in(result))
-    fig = new_figure(min(7.0, 3.5 * max(1, len(bands)) + 0.6), 2.6)
-    axes = fig.subplots(1, max(1, len(bands)), squeeze=False)
-    for j, (band, m) in enumerate(bands):
-        ax = axes[0, j]
-        ax.plot(f[m] / 1e3, c[m] * 1e12, color=PALETTE["blue"], linewidth=1.8, label="estimate")
-        _shade_range(ax, result, "capacitance_f", band, 1e12, "range from the stated tolerances")
-        ax.set_xlabel("frequency [kHz]")
-        ax.set_ylabel("capacitance presented [pF]")
-        ax.set_title(plain_label(band["name"]))
-        ax.legend(loc="best", fontsize=7)
-        _axes_style(ax)
+    panels = band_panels(result)
+    if not panels:
+        return None
+    fig = new_figure(3.5 * len(panels) + 0.6 if len(panels) > 1 or not panels[0][2] else 7.0, 2.6)
+    axes = fig.subplots(1, len(panels), squeeze=False)
+    for j, (title, parts, log) in enumerate(panels):
+        _frequency_panel(axes[0, j], f, c, parts, log, {"color": PALETTE["blue"], "linewidth": 1.8}, result,
+                         "capacitance_f", 1e12, True)
+        axes[0, j].set_ylabel("capacitance presented [pF]")
+        axes[0, j].set_title(title)
     fig.suptitle("Capacitance the aerial presents to the tuning circuit", fontsize=10)
     fig.aerial_svg = ("capacitance", "Capacitance the aerial presents against frequency")
     return fig

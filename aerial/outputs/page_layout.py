@@ -53,6 +53,8 @@ def _layouts_table(result) -> str:
                      eng(lay.get("effective_height_m"), "m"), eng(lay.get("capacitance_f"), "F"),
                      "no power line listed" if margin is None else eng(margin, "m"),
                      f"{lay.get('score', 0):.1f}", _flags(lay)])
+    if not rows:
+        return "<p><strong>No safe layout was found</strong> among the candidate supports: see the causes below.</p>"
     reasons = [f"#{lay['rank']}: {lay['reason']}" for lay in result.get("layouts", []) if lay.get("reason")]
     return (table(["rank", "layout", "wire", "top", "lead-in", "effective height", "capacitance",
                    "margin outside the fall zone", f"score [{unit}]" if unit else "score", "flags"], rows,
@@ -77,13 +79,15 @@ def _summary(result, scene) -> str:
     facts = "".join(f'<div class="figure-card{" wide-card" if i == 0 else ""}"><dt>{esc(w)}</dt><dd>'
                     f'<span class="value">{esc(v)}</span></dd></div>' for i, (w, v, _) in enumerate(cards))
     drawings = ""
-    if scene and layouts:
+    if scene:
         sc = site_drawings.layout_scene(scene, layouts)
         drawings = section("drawings", "Where the wire would go",
                            figure(site_drawings.plan_chart(sc), "Plan view: the chosen layout (#1, bold) and the "
-                                  "runners-up, the overhead lines and their fall zones", "plan-view")
-                           + figure(site_drawings.elevation_chart(sc), "Side elevation of the chosen layout with the "
-                                    "heights of its fixing points", "side-elevation"))
+                                  "runners-up, the overhead lines and their fall zones" if layouts else
+                                  "Plan view: the candidate supports, the overhead lines and their fall zones "
+                                  "(no safe layout was found)", "plan-view")
+                           + (figure(site_drawings.elevation_chart(sc), "Side elevation of the chosen layout with "
+                                     "the heights of its fixing points", "side-elevation") if layouts else ""))
     return (f'<header id="summary" class="sheet"><h1>{esc(site["name"])} — layout plan</h1>'
             f'<p class="sentence">{esc(sentence)}</p>'
             f'<p class="meta">Site file {esc(site_file_name(site))} · ranked by {esc(result.get("objective", ""))}</p>'

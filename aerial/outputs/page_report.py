@@ -94,9 +94,12 @@ def site_sentence(result) -> str:
     soil = soil.get("category") if isinstance(soil, dict) else soil
     parts.append(f"{soil} soil, {site.get('noise_category', '')} man-made noise, region {site.get('region', '')}")
     bands = result.get("bands") or []
-    if bands:
+    if 0 < len(bands) <= 3:
         parts.append("listening on " + ", ".join(f"{b['name']} ({eng(b['from_hz'], 'Hz')} – {eng(b['to_hz'], 'Hz')})"
                                                  for b in bands))
+    elif bands:
+        lo, hi = min(b["from_hz"] for b in bands), max(b["to_hz"] for b in bands)
+        parts.append(f"listening on {len(bands)} bands between {eng(lo, 'Hz')} and {eng(hi, 'Hz')}")
     n = len(result.get("stations") or [])
     parts.append(f"{n} station{'s' if n != 1 else ''} listed")
     return "; ".join(parts) + "."

@@ -127,6 +127,9 @@ def plan_figure(scene: dict):
     a = np.asarray(pts, float)
     x0, y0 = a.min(axis=0) - 3
     x1, y1 = a.max(axis=0) + 3
+    if (x1 - x0) < 0.5 * (y1 - y0):  # a tall thin site: widen the eastern extent so the drawing stays readable
+        mid, half = (x0 + x1) / 2, 0.25 * (y1 - y0)
+        x0, x1 = mid - half, mid + half
     aspect = (y1 - y0) / max(x1 - x0, 1e-6)
     plot_w = min(4.4, 4.0 / aspect)  # the plot area fits a 4.4 in x 4.0 in box, north up, metres square
     plot_h = plot_w * aspect
