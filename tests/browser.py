@@ -82,6 +82,8 @@ class Browser:
         self._session = self.send("Target.attachToTarget", targetId=page["targetId"], flatten=True)["sessionId"]
         for domain in ("Page", "Runtime", "Log"):
             self.send(f"{domain}.enable", session=True)
+        self.send("Emulation.setDeviceMetricsOverride", session=True, width=self.size[0], height=self.size[1],
+                  deviceScaleFactor=1, mobile=False)
         return self
 
     def __exit__(self, *exc):

@@ -77,7 +77,8 @@ def _summary(result, scene) -> str:
                  ("capacitance", eng(win.get("capacitance_f"), "F"), ""),
                  (f"score [{result.get('score_unit', '')}]", f"{win.get('score', 0):.1f}", "")]
     facts = "".join(f'<div class="figure-card{" wide-card" if i == 0 else ""}"><dt>{esc(w)}</dt><dd>'
-                    f'<span class="value">{esc(v)}</span></dd></div>' for i, (w, v, _) in enumerate(cards))
+                    f'<span class="value{" long" if len(v) > 24 else ""}">{esc(v)}</span></dd></div>'
+                    for i, (w, v, _) in enumerate(cards))
     drawings = ""
     if scene:
         sc = site_drawings.layout_scene(scene, layouts)

@@ -107,7 +107,8 @@ def site_sentence(result) -> str:
 
 def _summary(result, surroundings) -> str:
     site = result["site"]
-    facts = "".join(f'<div class="figure-card"><dt>{esc(what)}</dt><dd><span class="value">{esc(value)}</span>'
+    facts = "".join(f'<div class="figure-card"><dt>{esc(what)}</dt><dd>'
+                    f'<span class="value{" long" if len(value) > 24 else ""}">{esc(value)}</span>'
                     + (f'<span class="range">{esc(rng)}</span>' if rng else "") + "</dd></div>"
                     for what, value, rng in headline(result))
     scene = site_drawings.report_scene(result, surroundings)

@@ -101,6 +101,8 @@ def _draw_surroundings(ax, scene) -> None:
         ax.text(c[0], c[1], f"{plain_label(b['name'])}\n{b['height_m']:.1f} m", ha="center", va="center", fontsize=6.5)
     for o in scene.get("obstacles", []):
         ax.add_patch(MplPolygon(o["outline"], closed=True, facecolor="#dddddd", edgecolor="#555555", hatch=".."))
+        c = np.mean(np.asarray(o["outline"], float), axis=0)
+        ax.text(c[0], c[1], textwrap.fill(plain_label(o["name"]), 14), ha="center", va="center", fontsize=6.5)
     for ln in scene.get("lines", []):
         p = np.asarray(ln["path"], float)
         power = ln["kind"] == "power"
@@ -206,8 +208,8 @@ def elevation_figure(scene: dict):
     def along(p):
         return (np.asarray(p, float)[:, :2] - origin) @ u
 
-    fig = new_figure(7.0, 2.7)
-    ax = fig.subplots()
+    fig = new_figure(7.0, 2.7, layout=None)
+    ax = fig.add_axes((0.75 / 7.0, 0.55 / 2.7, (7.0 - 0.75 - 1.45) / 7.0, (2.7 - 0.55 - 0.35) / 2.7))
     _draw_wires(ax, scene, plan=False, along=along)
     shown = set()
     for w in scene["wires"]:
