@@ -205,11 +205,13 @@ def _tuning_table(tuning) -> str:
     rows = tuning.get("rows") or []
     if not rows:
         return ""
+    spacings = [int(round(v / 1e3)) for v in tuning.get("channel_spacings_hz", [9e3, 10e3])]
+    columns = [c for c in TUNING_COLUMNS if not c[1].startswith("rejection_") or int(c[1].split("_")[1][:-3]) in spacings]
     out = []
     for k in np.unique(np.linspace(0, len(rows) - 1, min(len(rows), 7)).round().astype(int)):
         r = rows[int(k)]
         cells = []
-        for _, key, unit in TUNING_COLUMNS:
+        for _, key, unit in columns:
             v = r.get(key)
             if v is None:
                 cells.append("—")
@@ -225,7 +227,7 @@ def _tuning_table(tuning) -> str:
                     text += " (out of range)"
                 cells.append(text)
         out.append(cells)
-    return table([c[0] for c in TUNING_COLUMNS], out, "Tuning across the band (selected frequencies)", "wide")
+    return table([c[0] for c in columns], out, "Tuning across the band (selected frequencies)", "wide")
 
 
 def _tuning_section(result) -> str:
@@ -239,6 +241,8 @@ def _tuning_section(result) -> str:
         intro += f" ({coil['turns']:.0f} turns)"
     if tuning.get("source") == "measured":
         intro += "; aerial from the bench measurement"
+    if tuning.get("channel_spacings_hz"):
+        intro += "; channels " + " or ".join(eng(v, "Hz") for v in tuning["channel_spacings_hz"]) + " apart"
     cov = tuning.get("coverage") or {}
     verdict = ""
     if cov.get("verdict"):
@@ -246,7 +250,7 @@ def _tuning_section(result) -> str:
         mark = "✔" if cov.get("covered") else "⚠"
         verdict = f'<p class="verdict {klass}"><strong>Band coverage:</strong> {mark} {esc(cov["verdict"])}</p>'
     known = {"arrangement", "coil", "detector", "earphone_ohm", "rows", "coverage", "advice", "notes", "warnings",
-             "band", "source", "range_curve"}
+             "band", "source", "range_curve", "channel_spacings_hz"}
     extra = "".join(f"<h3>{esc(key_label(k).capitalize())}</h3>{generic_block(k, v)}"
                     for k, v in tuning.items() if k not in known and v not in (None, [], {}, ""))
     body = (f"<p>{esc(intro)}; detector: {esc(tuning.get('detector', ''))}, earphone "
@@ -267,9 +271,12 @@ def _verdict_cell(verdict) -> tuple[str, str]:
 def _station_reasons(s) -> list[str]:
     name = s.get("name", "")
     text = s.get("reason", "")
-    for key in ("spills_over", "heard_behind"):
+    for key, words in (("spills_over", "heard under"), ("heard_behind", "other stations heard behind it")):
         if s.get(key):
-            text += ("; " if text else "") + key_label(key) + ": " + ", ".join(str(x) for x in s[key])
+            text += ("; " if text else "") + words + ": " + ", ".join(
+                f"{x['name']} ({x['level_relative_db']:+.1f} dB against it)"
+                if isinstance(x, dict) and "name" in x and isinstance(x.get("level_relative_db"), (int, float))
+                else format_value(key, x) for x in s[key])
     text += "".join(f"; {w}" for w in s.get("warnings", []))
     out = [f"{name}{' by day' if s.get('night') else ''}: {text}"] if text else []
     night = s.get("night") or {}
