@@ -32,7 +32,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.constants import epsilon_0
+from aerial.core.constants import EPSILON_0 as epsilon_0
 
 from aerial.core.threads import blas_threads
 from aerial.core.errors import ModelInputError

@@ -23,7 +23,7 @@ Outside it the figures are returned with warnings, never NaN.
 from __future__ import annotations
 
 import numpy as np
-from scipy.constants import c as SPEED_OF_LIGHT
+from aerial.core.constants import SPEED_OF_LIGHT
 
 from aerial.core.errors import ModelInputError
 from aerial.models import short_aerial as sa

@@ -28,7 +28,7 @@ from typing import NamedTuple
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.constants import mu_0
+from aerial.core.constants import MU_0 as mu_0
 from scipy.special import ellipe, ellipk, ive
 
 from aerial.core.errors import ModelInputError

@@ -28,7 +28,7 @@ References
 from __future__ import annotations
 
 import numpy as np
-from scipy.constants import mu_0
+from aerial.core.constants import MU_0 as mu_0
 from scipy.special import ive, kve
 
 from aerial.core.errors import ModelInputError

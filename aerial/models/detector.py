@@ -24,7 +24,8 @@ from dataclasses import dataclass
 from typing import NamedTuple
 
 import numpy as np
-from scipy.constants import Boltzmann, elementary_charge
+from aerial.core.constants import BOLTZMANN as Boltzmann
+from aerial.core.constants import ELEMENTARY_CHARGE as elementary_charge
 from scipy.special import ive
 
 from aerial.core.errors import ModelInputError

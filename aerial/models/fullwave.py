@@ -55,7 +55,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.constants import c as C0
+from aerial.core.constants import SPEED_OF_LIGHT as C0
 
 from aerial.core.errors import ModelInputError
 from aerial.models.fullwave_fields import FarField, complex_permittivity, fresnel_reflection

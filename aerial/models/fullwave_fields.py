@@ -16,8 +16,9 @@ import math
 
 import numpy as np
 import scipy.sparse as sp
-from scipy.constants import c as C0
-from scipy.constants import epsilon_0, mu_0
+from aerial.core.constants import SPEED_OF_LIGHT as C0
+from aerial.core.constants import EPSILON_0 as epsilon_0
+from aerial.core.constants import MU_0 as mu_0
 
 ETA0 = mu_0 * C0  # free-space wave impedance [ohm]
 

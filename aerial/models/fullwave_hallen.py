@@ -18,8 +18,8 @@ References
 from __future__ import annotations
 
 import numpy as np
-from scipy.constants import c as C0
-from scipy.constants import mu_0
+from aerial.core.constants import SPEED_OF_LIGHT as C0
+from aerial.core.constants import MU_0 as mu_0
 
 from aerial.core.threads import blas_threads
 from aerial.core.errors import ModelInputError

@@ -37,8 +37,8 @@ import math
 import numpy as np
 import scipy.linalg as sla
 import scipy.sparse as sp
-from scipy.constants import c as C0
-from scipy.constants import mu_0
+from aerial.core.constants import SPEED_OF_LIGHT as C0
+from aerial.core.constants import MU_0 as mu_0
 
 from aerial.core.threads import blas_threads
 from aerial.models.fullwave_fields import ETA0, complex_permittivity, fresnel_reflection

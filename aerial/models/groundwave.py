@@ -17,7 +17,8 @@ from __future__ import annotations
 from typing import NamedTuple
 
 import numpy as np
-from scipy.constants import c, epsilon_0
+from aerial.core.constants import EPSILON_0 as epsilon_0
+from aerial.core.constants import SPEED_OF_LIGHT as c
 from scipy.special import wofz
 
 from aerial.core.errors import ModelInputError

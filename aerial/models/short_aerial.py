@@ -39,8 +39,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.constants import c as SPEED_OF_LIGHT
-from scipy.constants import mu_0
+from aerial.core.constants import SPEED_OF_LIGHT
+from aerial.core.constants import MU_0 as mu_0
 
 from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _positive
@@ -81,11 +81,11 @@ def wavenumber(frequency):
 
     Notes
     -----
-    c from ``scipy.constants``.
+    c from :mod:`aerial.core.constants`.
 
     References
     ----------
-    CODATA value of c (exact), via scipy.constants.
+    CODATA value of c (exact), in :mod:`aerial.core.constants`.
     """
     return 2 * np.pi * _positive("frequency", frequency) / SPEED_OF_LIGHT
 
@@ -118,7 +118,7 @@ def radiation_resistance(effective_height, frequency):
     -----
     Rr = (4 pi / 3) eta0 (h_e / lambda)^2, which is the published
     160 pi^2 (h_e / lambda)^2 when eta0 is rounded to 120 pi; with the CODATA
-    eta0 from ``scipy.constants`` the result is 0.06 % lower. Valid while the
+    eta0 (:mod:`aerial.core.constants`) the result is 0.06 % lower. Valid while the
     current is nearly in phase along the wire (short aerial).
 
     References
