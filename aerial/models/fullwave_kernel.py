@@ -239,8 +239,12 @@ class Filler:
                         S[e, f, p[sel] - r0, q[sel]] += corr[sel, e, f]
         return S
 
-    def _assemble(self, S, r0, r1, image, coefs, out):
-        """Add the basis-level contribution of piece rows r0:r1 to ``out`` (N, N)."""
+    def _assemble(self, S, r0, r1, image, coefs, out, block_rows=None):
+        """Add the basis-level contribution of piece rows r0:r1 to ``out``.
+
+        ``out`` is (N, N), or (len(block_rows), N) holding only the basis rows
+        ``block_rows`` (sorted; every row pieces r0:r1 touch, :meth:`block_rows`).
+        """
         te_T, ch_T = self.te_T, self.charge_T
         if image:
             t = self.t
@@ -254,15 +258,18 @@ class Filler:
         if not isinstance(tt, int):
             for e in range(2):
                 m = (te_T[0] @ (tt * S[e, 0]).T + te_T[1] @ (tt * S[e, 1]).T).T  # (Pc, N)
-                rows, left = self._rows(("t", e, r0, r1), te_T[e])
+                rows, left = self._rows(("t", e, r0, r1), te_T[e], block_rows)
                 out[rows] += left @ m
         if pname in coefs:
             g = S.sum(axis=(0, 1)) * coefs[pname]
-            rows, left = self._rows(("c", r0, r1), ch_T)
+            rows, left = self._rows(("c", r0, r1), ch_T, block_rows)
             out[rows] += left @ (ch_T @ g.T).T
 
-    def _rows(self, key, mat_T):
-        """Basis rows touched by pieces r0:r1 of a (N, P) incidence matrix, and that block (cached)."""
+    def _rows(self, key, mat_T, block_rows=None):
+        """Basis rows touched by pieces r0:r1 of a (N, P) incidence matrix, and that block (cached).
+
+        With ``block_rows`` the rows are returned as positions in it.
+        """
         hit = self._row_cache.get(key)
         if hit is None:
             r0, r1 = key[-2], key[-1]
@@ -270,7 +277,14 @@ class Filler:
             rows = np.unique(block.nonzero()[0])
             hit = (rows, block[rows])
             self._row_cache[key] = hit
-        return hit
+        if block_rows is None:
+            return hit
+        return np.searchsorted(block_rows, hit[0]), hit[1]
+
+    def block_rows(self, r0, r1):
+        """Sorted basis rows that pieces r0:r1 contribute to (either end of a triangle, or its charge)."""
+        keys = ((("t", 0, r0, r1), self.te_T[0]), (("t", 1, r0, r1), self.te_T[1]), (("c", r0, r1), self.charge_T))
+        return np.unique(np.concatenate([self._rows(key, mat)[0] for key, mat in keys]))
 
     def fill(self, k: float, outputs, progress=None):
         """Basis-level matrices at wavenumber k.
@@ -334,10 +348,12 @@ class Filler:
         y = np.zeros((order + 3, N, N), dtype=complex)
         a_coefs = [{"A_direct": 1.0}, {"A_image_h": -1.0, "A_image_v": 1.0}]
         p_coefs = [{"Phi_direct": 1.0}, {"Phi_image": -1.0}]
-        tmp_a = np.zeros((N, N), dtype=complex)
-        tmp_p = np.zeros((N, N), dtype=complex)
         for r0 in range(0, P, self.rows):
             r1 = min(P, r0 + self.rows)
+            # only the basis rows these pieces touch change: work on those rows alone
+            rows = self.block_rows(r0, r1)
+            tmp_a = np.zeros((len(rows), N), dtype=complex)
+            tmp_p = np.zeros((len(rows), N), dtype=complex)
             for image in ((False, True) if self.image else (False,)):
                 r = self._distances(r0, r1, image)
                 g = np.exp(-1j * k0 * r) / (_FOUR_PI * r)
@@ -352,9 +368,9 @@ class Filler:
                         S *= scale
                     tmp_a[:] = 0.0
                     tmp_p[:] = 0.0
-                    self._assemble(S, r0, r1, image, a_coefs[image], tmp_a)
-                    self._assemble(S, r0, r1, image, p_coefs[image], tmp_p)
-                    y[n] += k0 * k0 * tmp_a - tmp_p
-                    y[n + 1] += (2 * k0 * half_width) * tmp_a
-                    y[n + 2] += (half_width * half_width) * tmp_a
+                    self._assemble(S, r0, r1, image, a_coefs[image], tmp_a, rows)
+                    self._assemble(S, r0, r1, image, p_coefs[image], tmp_p, rows)
+                    y[n, rows] += k0 * k0 * tmp_a - tmp_p
+                    y[n + 1, rows] += (2 * k0 * half_width) * tmp_a
+                    y[n + 2, rows] += (half_width * half_width) * tmp_a
         return y
