@@ -60,6 +60,25 @@ def _gauss01(n):
     return 0.5 * (x + 1.0), 0.5 * w
 
 
+def _gauss_sum(g, w):
+    """h[a, i, b] = sum_j g[a, i, b, j] w[b, j], summed in order of j.
+
+    The same numbers as ``np.einsum("aibj,bj->aib", g, w)`` (bit for bit: the
+    same products added in the same order) at half its time for complex g.
+    """
+    h = g[..., 0] * w[:, 0]
+    for j in range(1, g.shape[-1]):
+        h += g[..., j] * w[:, j]
+    return h
+
+
+def _row_sum(w, h, out):
+    """out[a, b] = sum_i w[a, i] h[a, i, b], summed in order of i (``np.einsum("ai,aib->ab")``, bit for bit)."""
+    np.multiply(w[:, 0, None], h[:, 0], out=out)
+    for i in range(1, w.shape[1]):
+        out += w[:, i, None] * h[:, i]
+
+
 def graded_rule(levels: int = 12, ratio: float = 0.25, panels: int = 6, order: int = 6):
     """Composite Gauss rule on [0, 1], graded geometrically toward both ends.
 
@@ -224,12 +243,12 @@ class Filler:
         """Piece-level integrals S_ef (2, 2, Pc, P) of kernel values g at the Gauss points."""
         Pc, P = r1 - r0, self.pts.shape[0]
         S = np.empty((2, 2, Pc, P), dtype=complex)
-        h1 = np.einsum("aibj,bj->aib", g, self.wphi[1])
-        h0 = np.einsum("aibj,bj->aib", g, self.wphi[0])
+        h1 = _gauss_sum(g, self.wphi[1])
+        h0 = _gauss_sum(g, self.wphi[0])
         for e in range(2):
             we = self.wphi[e][r0:r1]
-            S[e, 0] = np.einsum("ai,aib->ab", we, h0)
-            S[e, 1] = np.einsum("ai,aib->ab", we, h1)
+            _row_sum(we, h0, S[e, 0])
+            _row_sum(we, h1, S[e, 1])
         if static_correction:
             p, q, corr = self._near[image]
             sel = (p >= r0) & (p < r1)
