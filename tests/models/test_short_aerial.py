@@ -269,3 +269,27 @@ def test_no_nan_or_inf_for_extreme_valid_inputs(h, t, a, f, form):
         for v in (r.effective_height_m, r.reactance_ohm, r.radiation_resistance_ohm, r.loading_angle_rad):
             assert np.all(np.isfinite(v))
         assert np.all(r.radiation_resistance_ohm >= 0)
+
+
+@pytest.mark.parametrize("func, args", [
+    ("inverted_l", lambda g, f: (g[0], g[1], g[2], f)),
+    ("t_aerial", lambda g, f: (g[0], g[1], g[2], f)),
+    ("vertical_monopole", lambda g, f: (g[0], g[2], f)),
+    ("sloping_wire", lambda g, f: (g[0] + g[1], g[0], g[2], f)),
+])
+def test_large_calls_in_pieces_give_the_same_numbers(monkeypatch, func, args):
+    # consistency check: a call split into pieces (as every call above CHUNK_ELEMENTS is) returns
+    # exactly what one whole call returns, flags included, for geometries as columns x frequencies as a row
+    import aerial.models.short_aerial as sa
+
+    rng = np.random.default_rng(5)
+    geo = (rng.uniform(3, 25, (37, 1)), rng.uniform(5, 60, (37, 1)), rng.uniform(0.3e-3, 2e-3, (37, 1)))
+    f = np.linspace(0.15e6, 3e6, 23)[None, :]
+    whole = getattr(sa, func)(*args(geo, f))
+    monkeypatch.setattr(sa, "CHUNK_ELEMENTS", 50)
+    pieces = getattr(sa, func)(*args(geo, f))
+    for name in ("effective_height_m", "reactance_ohm", "radiation_resistance_ohm", "loading_angle_rad",
+                 "too_long", "past_resonance"):
+        a, b = getattr(whole, name), getattr(pieces, name)
+        assert a.shape == b.shape == (37, 23)
+        assert np.array_equal(a, b), name
