@@ -26,7 +26,7 @@ from .fuzzlib import load
 fz = load()
 
 #: Seeded cases run in CI (the full run is benchmarks/fuzz_sites.py --count 10000 --seed 1).
-CI_CASES = 100
+CI_CASES = 60
 CI_SEED = 7
 
 

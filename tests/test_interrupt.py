@@ -32,8 +32,12 @@ SWEEP_START_TIMEOUT_S = 90.0
 
 #: The child: the command line, with the sweep's progress callback leaving a marker file.
 CHILD = """
+import signal
 import sys
 from pathlib import Path
+
+# the default Ctrl-C disposition a terminal gives, even when this test runs where SIGINT is ignored
+signal.signal(signal.SIGINT, signal.default_int_handler)
 
 import aerial.api
 from aerial.cli import main
