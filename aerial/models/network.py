@@ -45,6 +45,7 @@ from typing import Callable, NamedTuple
 import numpy as np
 
 from aerial.core.errors import ModelInputError
+from aerial.core.threads import blas_threads
 
 ARRANGEMENTS = ("direct", "series capacitor", "coil tap", "separate primary")
 
@@ -283,7 +284,8 @@ def solve_network(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
             a[..., n_nodes + s, row] -= 1j * w * m_total * share[s]
         if parts.primary_capacitance is not None:
             a[..., k, k] += 1j * w * parts.primary_capacitance
-    x = np.linalg.solve(a, rhs)
+    with blas_threads(a.shape[-1]):
+        x = np.linalg.solve(a, rhs)
     return NetworkSolution(x[..., top, 0], x[..., det, 0], x[..., top, 1], x[..., det, 2], x[..., aer, 0])
 
 

@@ -62,8 +62,8 @@ from collections import OrderedDict
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.constants import c as C0
-from scipy.constants import epsilon_0
+from aerial.core.constants import EPSILON_0 as epsilon_0
+from aerial.core.constants import SPEED_OF_LIGHT as C0
 from scipy.special import j0, j1
 
 from aerial.core.errors import ModelInputError
