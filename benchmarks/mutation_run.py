@@ -70,8 +70,10 @@ MUTANTS = (
       ("tests/models/test_detector.py",), "detector input resistance: RF fundamental factor 2 dropped"),
     M("audio-half", "aerial/models/detector.py", "va = 0.5 * (high.detected_voltage", "va = 1.0 * (high.detected_voltage",
       ("tests/models/test_detector.py",), "audio peak from the envelope swing ×2"),
-    M("available-power", "aerial/estimate/reception.py", "p_av = v_oc**2 / (4.0 * r_a)", "p_av = v_oc**2 / (2.0 * r_a)",
-      RECEPTION, "available power V²/4R → V²/2R"),
+    M("available-power", "aerial/estimate/assemble.py", 'out["available_power_w"] = voc**2 / (4.0 * r_total)',
+      'out["available_power_w"] = voc**2 / (2.0 * r_total)', BUDGET, "aerial's available power V²/4R → V²/2R"),
+    M("station-power", "aerial/estimate/reception.py", '"p_av": v_oc**2 / (4.0 * r_a)', '"p_av": v_oc**2 / (2.0 * r_a)',
+      ("tests/test_cli.py::test_report_json_holds_the_contract",), "a station's available power V²/4R → V²/2R"),
     # ---- ground wave and noise
     M("e0-10pc", "aerial/models/groundwave.py", "return 0.3 * np.sqrt(p / 1e3)", "return 0.33 * np.sqrt(p / 1e3)",
       ("tests/models/test_groundwave.py",), "reference field E0 +10 %"),
@@ -213,7 +215,7 @@ def main(argv=None) -> int:
         print("|---|---|---|---|---|")
         for m, s, _, _ in rows:
             tag = " (listed)" if m.listed else ""
-            tests = ", ".join(f"`{t.removeprefix('tests/')}`" for t in m.tests)
+            tests = ", ".join(f"`{t}`" for t in m.tests)
             print(f"| {m.ident}{tag} | `{m.path.removeprefix('aerial/')}` | {m.what} | {tests} | {s} |")
         print()
     print(f"killed {killed} of {len(rows)} ({100 * killed / max(len(rows), 1):.0f} %); "

@@ -133,6 +133,11 @@ def check_figures_plausible(data):
         from aerial.estimate.reception import VERDICTS
 
         assert st["verdict"] in VERDICTS and st["night"]["verdict"] in VERDICTS
+        # V = E·h_e and P = V²/(4R) with the aerial's series resistance at the station's frequency (linear
+        # interpolation on the grid, hence 2 %)
+        assert st["open_circuit_voltage_v"] == pytest.approx(st["field_v_per_m"] * st["effective_height_m"], rel=1e-6)
+        r_at = np.interp(st["frequency_hz"], f, a["series_resistance_ohm"])
+        assert st["available_power_w"] == pytest.approx(st["open_circuit_voltage_v"] ** 2 / (4 * r_at), rel=0.02)
 
 
 def test_report_without_site_uses_builtin_example(capsys):

@@ -38,3 +38,39 @@ def test_docs_named_in_the_readme_exist():
     text = (ROOT / "README.md").read_text(encoding="utf-8")
     for link in re.findall(r"\]\((docs/[^)]+)\)", text):
         assert (ROOT / link).exists(), link
+
+
+def _tests_defined(path: Path) -> set[str]:
+    """Test names in a test file: 'test_x' and 'TestClass::test_y'."""
+    import ast
+
+    tree = ast.parse(path.read_text(encoding="utf-8"))
+    names = set()
+    for node in tree.body:
+        if isinstance(node, (ast.FunctionDef, ast.AsyncFunctionDef)) and node.name.startswith("test"):
+            names.add(node.name)
+        elif isinstance(node, ast.ClassDef):
+            names.update(f"{node.name}::{m.name}" for m in node.body
+                         if isinstance(m, (ast.FunctionDef, ast.AsyncFunctionDef)) and m.name.startswith("test"))
+    return names
+
+
+def test_every_validation_row_names_a_test_that_exists():
+    # docs/validation.md: every table row names at least one test, as `tests/<file>.py::<name>` (or a test file
+    # for the mutation table), and each named test exists
+    import re
+
+    rows = [line for line in (ROOT / "docs" / "validation.md").read_text(encoding="utf-8").splitlines()
+            if line.startswith("|") and not re.match(r"^\|[\s|:-]+\|$", line)]
+    body = [r for r in rows if not r.startswith("| check |") and not r.startswith("| mutant |")]
+    assert len(body) > 50
+    cache: dict[Path, set[str]] = {}
+    for row in body:
+        refs = re.findall(r"`(tests/[\w/]+\.py)(?:::([\w:]+))?`", row)
+        assert refs, f"a validation row names no test: {row[:80]}"
+        for file, name in refs:
+            path = ROOT / file
+            assert path.is_file(), f"{file} does not exist (row: {row[:60]})"
+            if name:
+                defined = cache.setdefault(path, _tests_defined(path))
+                assert name in defined, f"{file}::{name} does not exist (row: {row[:60]})"

@@ -197,3 +197,20 @@ def test_electrodes_outside_their_formulas_are_refused(table, expected):
     # regression (found by the fuzzing harness): a 1e-300 m water pipe gave a negative resistance
     text = MINIMAL.replace('[[earth.rods]]\nlength = "2.4 m"', table)
     rejects(text, expected)
+
+
+def test_soil_categories_name_their_itu_source():
+    # ITU-R P.527 lists sea 70/5, fresh water 80/3e-3, wet 30/1e-2, medium dry 15/1e-3, very dry 3/1e-4;
+    # 22/3e-3 ("land") and 7/3e-4 ("dry ground") are ITU-R P.368 curve parameters (both from memory)
+    from aerial.core.materials import SOILS
+
+    p527 = {"sea": (70.0, 5.0), "fresh-water": (80.0, 3e-3), "wet": (30.0, 1e-2), "medium-dry": (15.0, 1e-3),
+            "very-dry": (3.0, 1e-4)}
+    p368 = {"intermediate": (22.0, 3e-3, "land"), "dry": (7.0, 3e-4, "dry ground")}
+    for name, (er, sigma) in p527.items():
+        s = SOILS[name]
+        assert (s.relative_permittivity, s.conductivity_s_m, s.source) == (er, sigma, "ITU-R P.527 category")
+    for name, (er, sigma, curve) in p368.items():
+        s = SOILS[name]
+        assert (s.relative_permittivity, s.conductivity_s_m) == (er, sigma)
+        assert s.source == f"ITU-R P.368 curve '{curve}'"

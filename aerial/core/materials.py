@@ -3,8 +3,11 @@
 Conductors: resistivity at 20 °C [ohm m], relative permeability used for skin
 effect, and for copper-clad steel the cladding fraction of the area.
 
-Soils: the ground categories of ITU-R P.527 (relative permittivity, conductivity
-[S/m]) with a plausible range for each, used for the uncertainty bounds.
+Soils: ground constants (relative permittivity, conductivity [S/m]) with a
+plausible range for each, used for the uncertainty bounds. Sea, fresh water,
+wet, medium dry and very dry are ITU-R P.527 categories; "intermediate"
+(εr 22, σ 3 mS/m) and "dry" (εr 7, σ 0.3 mS/m) are not P.527 categories but
+the parameters of the ITU-R P.368 ground-wave curves "land" and "dry ground".
 
 References
 ----------
@@ -12,6 +15,8 @@ IEC 60028, International standard of resistance for copper (annealed copper,
 1.72414e-8 ohm m at 20 °C, 100 % IACS).
 ITU-R P.527, Electrical characteristics of the surface of the Earth (ground
 categories at LF/MF).
+ITU-R P.368, Ground-wave propagation curves for frequencies between 10 kHz and
+30 MHz (the curve parameters "land" and "dry ground").
 IEEE Std 142 (Green Book) / IEEE Std 80, typical soil resistivities.
 """
 
@@ -65,17 +70,20 @@ class Soil:
     conductivity_low_s_m: float
     conductivity_high_s_m: float
     description: str
+    source: str = "ITU-R P.527 category"
 
 
-# ITU-R P.527 categories at LF/MF (centre values); the low/high bounds span the
+# ITU-R P.527 categories and two ITU-R P.368 curve parameters at LF/MF (centre values); the low/high bounds span the
 # neighbouring categories and are used for the uncertainty range.
 SOILS: dict[str, Soil] = {
     "sea": Soil("sea", 70.0, 5.0, 3.0, 6.0, "sea water, average salinity"),
     "fresh-water": Soil("fresh-water", 80.0, 3e-3, 1e-3, 1e-2, "fresh water (lake, river)"),
     "wet": Soil("wet", 30.0, 1e-2, 3e-3, 3e-2, "wet ground, marsh, rich farmland"),
-    "intermediate": Soil("intermediate", 22.0, 3e-3, 1e-3, 1e-2, "land between wet and medium dry"),
+    "intermediate": Soil("intermediate", 22.0, 3e-3, 1e-3, 1e-2, "land between wet and medium dry",
+                         "ITU-R P.368 curve 'land'"),
     "medium-dry": Soil("medium-dry", 15.0, 1e-3, 3e-4, 3e-3, "medium dry ground, typical suburban lot"),
-    "dry": Soil("dry", 7.0, 3e-4, 1e-4, 1e-3, "dry ground, sandy or stony"),
+    "dry": Soil("dry", 7.0, 3e-4, 1e-4, 1e-3, "dry ground, sandy or stony",
+                "ITU-R P.368 curve 'dry ground'"),
     "very-dry": Soil("very-dry", 3.0, 1e-4, 3e-5, 3e-4, "very dry ground, desert, rock"),
 }
 

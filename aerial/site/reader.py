@@ -741,7 +741,7 @@ def _soil(r: TableReader, value, key, notes: list) -> SoilSpec:
         )
     return SoilSpec(
         base.name, eps if eps is not None else base.relative_permittivity, base.conductivity_s_m,
-        base.conductivity_low_s_m, base.conductivity_high_s_m, f"ITU-R P.527 category: {base.description}",
+        base.conductivity_low_s_m, base.conductivity_high_s_m, f"{base.source}: {base.description}",
     )
 
 
@@ -1301,7 +1301,7 @@ def _stations(r: TableReader, raw, soil: SoilSpec, notes: list, site_position=No
         if "soil" in t:
             b = soil_base(r, t["soil"], f"{key}.soil", notes)
             st_soil = SoilSpec(b.name, b.relative_permittivity, b.conductivity_s_m, b.conductivity_low_s_m,
-                               b.conductivity_high_s_m, f"ITU-R P.527 category: {b.description}")
+                               b.conductivity_high_s_m, f"{b.source}: {b.description}")
         out.append(Station(name, f, p, d, st_soil, key, where[0] if where else None, where[1] if where else None,
                            None if bearing is None else bearing % 360.0))
     return out

@@ -65,6 +65,22 @@ def test_two_rods():
     assert any("spacing" in w for w in near.warnings)
 
 
+def test_two_rods_mutual_term_is_the_point_source_potential():
+    # Outside: far apart, each rod sees the other as a point current source at the surface of a half-space,
+    # potential ρI/(2πs) (any electromagnetics text); two rods sharing I in parallel give R = R1/2 + ρ/(4πs).
+    # At s = 50 L the mutual term is checked within 1 %; at s = 2 L against Dwight's series written here,
+    # ρ/(4πL)[ln(4L/a) − 1] + ρ/(4πs)[1 − L²/(3s²) + 2L⁴/(5s⁴)] (Dwight 1936, from memory).
+    L, a, rho = 3.0, 8e-3, 100.0
+    one = float(el.dwight_rod(L, a, rho).resistance_ohm)
+    s = 150.0
+    mutual = float(el.dwight_two_rods(L, a, s, rho).resistance_ohm) - one / 2
+    assert mutual == pytest.approx(rho / (4 * np.pi * s), rel=0.01)
+    s = 6.0
+    dwight = rho / (4 * np.pi * L) * (np.log(4 * L / a) - 1) + rho / (4 * np.pi * s) * (
+        1 - L**2 / (3 * s**2) + 2 * L**4 / (5 * s**4))
+    assert float(el.dwight_two_rods(L, a, s, rho).resistance_ohm) == pytest.approx(dwight, rel=1e-9)
+
+
 def test_multiple_rod_factors():
     # IEEE Std 142 multiple-rod table (from memory): F = 1.16, 1.29, 1.36, 1.68, 1.80, 1.92, 2.00, 2.16
     # for n = 2, 3, 4, 8, 12, 16, 20, 24 (rods at one rod length; R_n = R_1 F / n). Every row is checked.

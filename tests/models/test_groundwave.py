@@ -41,7 +41,10 @@ def test_field_10kw_50km(soil, mv_per_m):
 
 # ITU-R P.368 ground-wave curves (field strength for a cymomotive force of 300 V, i.e. 1 kW from a short
 # vertical monopole, in dB(µV/m) against distance on a logarithmic scale). Values recalled from the figures
-# (from memory; the recommendation was not re-read), each with its reading uncertainty: on the inverse-distance
+# (from memory; the recommendation was not re-read). Where the memory of a curve is vague (sea at 10 MHz, land
+# at 200 kHz / 100 km and at 10 MHz) the recalled value was checked by hand against Terman's ground-wave
+# approximation (Radio Engineers' Handbook, from memory), not against this package. Each value carries its
+# reading uncertainty: on the inverse-distance
 # line (sea at MF) ±1 dB; elsewhere the 10 dB grid is read to ±2 dB, and ±3–4 dB where the curve falls
 # steeply (land at 1 MHz beyond 10 km, land at 10 MHz). The curves include the Earth's curvature; every point
 # here lies inside the flat-earth range 80/f_MHz^(1/3) km, where curvature changes the field by well under the
