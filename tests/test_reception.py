@@ -191,7 +191,7 @@ def test_trade_heard_range_of_a_regional_broadcaster():
     # over the two ordinary land grounds, with the two usual detectors: the geometric mean of the four ranges
     # must fall in 60–80 km, and each range within 40–120 km (the spread of grounds and diodes). The
     # audibility threshold is pinned separately (above); a tenfold change of it moves the mean range by about
-    # a third (square law: audio ∝ E⁴), to about 56 or 95 km, out of the window.
+    # a third (square law: audio ∝ E⁴), to about 56 or 93 km, out of the window.
     ranges = [heard_range_km(well_built(det), 10e3, soil) for det in ("germanium", "schottky")
               for soil in (MEDIUM_DRY, LAND)]
     mean = float(np.exp(np.mean(np.log(ranges))))
