@@ -119,37 +119,71 @@ def aerial_response(site, geometry, frequency, earth_ohm: float, method: str = "
     return out
 
 
-def _perturbed_wires(site, delta_sign: float = 0.0, raise_m: float = 0.0, extend_m: float = 0.0):
-    """Aerial wires with support heights moved by their tolerance (sign -1/+1) or by ``raise_m``.
+#: Height tolerance taken for the points of a wire given as an explicit polyline (measured points). [m]
+POLYLINE_TOLERANCE_M = 0.3
 
-    The receiver end of the lead-in and the earth side stay where they are.
+
+def _point_tolerances(site) -> list:
+    """Height tolerance of every point of every aerial wire [m]; points that meet share one value.
+
+    A point at a support takes the support's tolerance, and so does any point
+    of another wire that meets it there (a lead-in leaving a support moves
+    with the span), so moving the supports never pulls the wires apart.
+    Other points are interpolated along their wire; wires with no support
+    at all take ``POLYLINE_TOLERANCE_M``.
     """
     supports = site.supports
-    feed = site.feed_m
+    anchors = []
+    for w in site.wires:
+        if w.role in EARTH_ROLES:
+            continue
+        for xyz, mark in zip(np.asarray(w.points_m, float), list(w.support_at_point) or []):
+            if mark in supports:
+                anchors.append((xyz, supports[mark].height_tolerance_m))
     out = []
     for w in site.wires:
         if w.role in EARTH_ROLES:
-            out.append(w)
+            out.append(None)
             continue
-        p = np.array(w.points_m, dtype=float)
-        marks = list(w.support_at_point) or [None] * len(p)
-        tol = np.array([supports[m].height_tolerance_m if m in supports else np.nan for m in marks], dtype=float)
-        if np.all(np.isnan(tol)):
-            tol[:] = 0.3  # an explicit polyline: measured, take +/-0.3 m
+        p = np.asarray(w.points_m, float)
+        tol = np.full(len(p), np.nan)
+        for n, xyz in enumerate(p):
+            for a_xyz, a_tol in anchors:
+                if np.linalg.norm(xyz - a_xyz) < JOIN_TOLERANCE_M:
+                    tol[n] = a_tol
+                    break
+        good = ~np.isnan(tol)
+        if not np.any(good):
+            tol[:] = POLYLINE_TOLERANCE_M
         else:
             idx = np.arange(len(p))
-            good = ~np.isnan(tol)
             tol = np.interp(idx, idx[good], tol[good])
-        at_feed = np.linalg.norm(p - feed, axis=1) < JOIN_TOLERANCE_M  # the loader joins points this close
-        dz = delta_sign * tol + raise_m
-        dz = np.where(at_feed, 0.0, dz)
-        p[:, 2] = np.maximum(p[:, 2] + dz, 0.3 * p[:, 2] + 0.05 * (~at_feed))
-        if not _keeps_length(p, w.size.radius_m):
-            p = np.array(w.points_m, dtype=float)  # moving would fold a piece onto itself: keep it as described
-        if w.role == "lead-in":
-            # the lead-in's top follows the aerial; its receiver end stays put
-            pass
-        out.append(replace(w, points_m=p))
+        out.append(tol)
+    return out
+
+
+def _perturbed_wires(site, delta_sign: float = 0.0, raise_m: float = 0.0, extend_m: float = 0.0):
+    """Aerial wires with support heights moved by their tolerance (sign -1/+1) or by ``raise_m``.
+
+    The receiver end of the lead-in and the earth side stay where they are;
+    points where wires meet move together. Should the full move fold a
+    piece onto itself, the move is halved until it does not.
+    """
+    feed = site.feed_m
+    tolerances = _point_tolerances(site)
+    for scale in (1.0, 0.5, 0.25, 0.0):
+        out = []
+        for w, tol in zip(site.wires, tolerances):
+            if tol is None:
+                out.append(w)
+                continue
+            p = np.array(w.points_m, dtype=float)
+            at_feed = np.linalg.norm(p - feed, axis=1) < JOIN_TOLERANCE_M  # the loader joins points this close
+            dz = np.where(at_feed, 0.0, scale * (delta_sign * tol + raise_m))
+            p[:, 2] = np.maximum(p[:, 2] + dz, 0.3 * p[:, 2] + 0.05 * (~at_feed))
+            out.append(replace(w, points_m=p))
+        if all(_keeps_length(w.points_m, w.size.radius_m) for w, t in zip(out, tolerances) if t is not None):
+            break
     if extend_m > 0:
         out = _extend_far_end(out, feed, extend_m)
     return out
@@ -200,36 +234,117 @@ def _extend_far_end(wires, feed, extend_m):
     return wires
 
 
-def _headline(site, wires, frequency, earth_ohm):
-    from aerial.models.closed_form import closed_form_response
+#: The headline figures that carry a range.
+HEADLINE_KEYS = ("capacitance_f", "effective_height_m", "loss_resistance_ohm", "series_resistance_ohm",
+                 "open_circuit_voltage_v", "available_power_w", "ground_loss_ohm")
 
-    geo = resolve(site, wires=wires)
-    r = closed_form_response(geo.segments, np.atleast_1d(frequency))
-    rr = np.asarray(r["radiation_resistance_ohm"])
-    rt = rr + np.asarray(r["conductor_loss_ohm"]) + earth_ohm
-    voc = site.field_strength_v_per_m * np.asarray(r["effective_height_m"])
+
+def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-form", ground="perfect", progress=None):
+    """Headline figures of ``wires`` at ``frequency`` by one model. Returns arrays over frequency.
+
+    ``like``: the nominal wires' :class:`~aerial.models.shapes.AerialShape`;
+    the closed forms then model the moved wires as that shape
+    (:func:`aerial.models.shapes.measure_like`), so that a tolerance run uses
+    the nominal figure's model.
+    """
+    f = np.atleast_1d(np.asarray(frequency, float))
+    geo = resolve(site, electrode_ohm=earth_ohm, wires=wires)
+    if method == "full-wave":
+        from aerial.estimate.fullwave_sweep import full_wave_response
+
+        r = full_wave_response(site, geo, f, earth_ohm, ground=ground, allow_large=True, progress=progress)
+        rg = np.asarray(r["ground_loss_ohm"], float)
+    else:
+        from aerial.models.closed_form import closed_form_response
+        from aerial.models.shapes import measure_like
+
+        shape = None
+        if like is not None and len(like.segment_section) == len(geo.segments):
+            shape = measure_like(geo.segments, like)
+        r = closed_form_response(geo.segments, f, shape=shape)
+        rg = np.full(len(f), float(earth_ohm))
+    rr = np.asarray(r["radiation_resistance_ohm"], float)
+    rt = rr + np.asarray(r["conductor_loss_ohm"], float) + rg
+    voc = site.field_strength_v_per_m * np.asarray(r["effective_height_m"], float)
     return {
-        "capacitance_f": np.asarray(r["capacitance_f"]),
-        "effective_height_m": np.asarray(r["effective_height_m"]),
+        "capacitance_f": np.asarray(r["capacitance_f"], float),
+        "effective_height_m": np.asarray(r["effective_height_m"], float),
         "loss_resistance_ohm": rt - rr,
         "series_resistance_ohm": rt,
         "open_circuit_voltage_v": voc,
         "available_power_w": voc**2 / (4 * rt),
+        "ground_loss_ohm": rg,
     }
 
 
-def uncertainty(site, frequency, earth: dict) -> dict:
+def _nominal_shape(site):
+    """The closed forms' classification of the site's own wires (None when it cannot be had)."""
+    from aerial.models.shapes import classify
+
+    try:
+        return classify(resolve(site).segments)
+    except ModelInputError:
+        return None
+
+
+def _full_wave_ranges_fit(site, frequency, main_frequency, allow_large: bool) -> bool:
+    """Whether two more full-wave runs at the range frequencies stay, with the sweep, within the time budget."""
+    from aerial.estimate.fullwave_sweep import TIME_BUDGET_S, estimate_full_wave
+
+    if allow_large:
+        return True
+    seg = resolve(site).segments
+    main = estimate_full_wave(seg, main_frequency)["seconds"]
+    extra = 2 * estimate_full_wave(seg, frequency)["seconds"]
+    return main + extra <= TIME_BUDGET_S
+
+
+def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", nominal: dict | None = None,
+                ground: str = "perfect", full_wave_ranges: bool = True, progress=None) -> dict:
     """Low and high values of the headline figures from the inputs' tolerances.
 
-    Heights move by each support's tolerance; the soil by its category's bounds.
+    Heights move by each support's tolerance (points where wires meet move
+    together); the soil goes to its category's bounds. The moved wires are
+    computed by the same model as the value: under the closed forms, as the
+    nominal wires' shape; under ``method="full-wave"``, by the solver (or,
+    with ``full_wave_ranges=False``, the closed forms' relative spread put
+    around the full-wave value, and ``method`` in the result says so).
+    ``nominal`` (key -> values at ``frequency``) makes every range the
+    envelope of the value and the two tolerance runs.
+
+    Returns
+    -------
+    dict
+        key -> (F, 2) arrays of [low, high]; ``method`` (str): the model of the ranges.
     """
-    lo = _headline(site, _perturbed_wires(site, -1.0), frequency, earth["resistance_high_ohm"])
-    hi = _headline(site, _perturbed_wires(site, +1.0), frequency, earth["resistance_low_ohm"])
+    f = np.atleast_1d(np.asarray(frequency, float))
+    like = _nominal_shape(site)
+    lo_ohm, hi_ohm = earth["resistance_high_ohm"], earth["resistance_low_ohm"]
+    if method == "full-wave" and full_wave_ranges:
+        run = dict(method="full-wave", ground=ground, progress=progress)
+        lo = _headline(site, _perturbed_wires(site, -1.0), f, lo_ohm, **run)
+        hi = _headline(site, _perturbed_wires(site, +1.0), f, hi_ohm, **run)
+        label = "full wave"
+    else:
+        lo = _headline(site, _perturbed_wires(site, -1.0), f, lo_ohm, like=like)
+        hi = _headline(site, _perturbed_wires(site, +1.0), f, hi_ohm, like=like)
+        label = "closed form"
+        if method == "full-wave":
+            base = _headline(site, site.wires, f, earth["resistance_ohm"], like=like)
+            for key in lo:
+                scale = np.asarray(nominal[key], float) / np.where(base[key] != 0, base[key], 1.0)
+                lo[key], hi[key] = lo[key] * scale, hi[key] * scale
+            label = "closed form, relative spread around the full-wave value (two more full-wave runs would pass " \
+                    "the time budget)"
     out = {}
     for key in lo:
-        a, b = np.asarray(lo[key]), np.asarray(hi[key])
-        out[key] = np.stack([np.minimum(a, b), np.maximum(a, b)], axis=1)
-    out["ground_loss_ohm"] = np.tile([earth["resistance_low_ohm"], earth["resistance_high_ohm"]], (len(np.atleast_1d(frequency)), 1))
+        a, b = np.asarray(lo[key], float), np.asarray(hi[key], float)
+        low, high = np.minimum(a, b), np.maximum(a, b)
+        if nominal is not None and key in nominal:
+            v = np.asarray(nominal[key], float)
+            low, high = np.minimum(low, v), np.maximum(high, v)
+        out[key] = np.stack([low, high], axis=1)
+    out["method"] = label
     return out
 
 
@@ -258,6 +373,34 @@ def what_if(site, frequency: float, earth: dict) -> list[dict]:
             "power_change_db": 10.0 * math.log10(p / p0) if p > 0 and p0 > 0 else 0.0,
         })
     return out
+
+
+def ranges_at_band_points(site, freqs, resp, earth, pts, *, method, ground, allow_large, progress) -> dict:
+    """Ranges of the headline figures at the band points, on the sweep's own frequencies (beside their values)."""
+    pick = np.array([int(np.argmin(np.abs(freqs - f))) for _, f in pts])
+    pf = freqs[pick]
+    loss = np.asarray(resp["conductor_loss_ohm"], float) + np.asarray(resp["ground_loss_ohm"], float)
+    nominal = {"capacitance_f": resp["capacitance_f"], "effective_height_m": resp["effective_height_m"],
+               "loss_resistance_ohm": loss, "series_resistance_ohm": resp["series_resistance_ohm"],
+               "open_circuit_voltage_v": resp["open_circuit_voltage_v"], "available_power_w": resp["available_power_w"],
+               "ground_loss_ohm": resp["ground_loss_ohm"]}
+    nominal = {k: np.asarray(v, float)[pick] for k, v in nominal.items()}
+    fits = method != "full-wave" or _full_wave_ranges_fit(site, pf, freqs, allow_large)
+    unc = uncertainty(site, pf, earth, method=method, nominal=nominal, ground=ground, full_wave_ranges=fits,
+                      progress=progress)
+    range_method = unc.pop("method")
+    return {
+        "frequencies_hz": pf,
+        "labels": [label for label, _ in pts],
+        "method": range_method,
+        **unc,
+        "notes": [
+            "Ranges move every support by its height tolerance and the soil between its category's bounds, by the "
+            f"same model as the value ({range_method}); each range holds the value and both tolerance runs.",
+            "Nearby buildings, trees and wiring are not modelled; measured aerial capacitance can differ from any "
+            "formula by a large factor. A bench measurement ([receiver.measured]) replaces the estimate.",
+        ],
+    }
 
 
 # --------------------------------------------------------------------------- main entry
@@ -358,20 +501,9 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
         if key in resp:
             result["aerial"][key] = resp[key]
 
-    # honest precision: ranges at the band points
     pts = band_points(site)
-    pf = np.array([f for _, f in pts])
-    unc = uncertainty(site, pf, earth)
-    result["ranges"] = {
-        "frequencies_hz": pf,
-        "labels": [label for label, _ in pts],
-        **{f"{k}": v for k, v in unc.items()},
-        "notes": [
-            "Ranges move every support by its height tolerance and the soil between its category's bounds.",
-            "Nearby buildings, trees and wiring are not modelled; measured aerial capacitance can differ from any "
-            "formula by a large factor. A bench measurement ([receiver.measured]) replaces the estimate.",
-        ],
-    }
+    result["ranges"] = ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground, allow_large=allow_large,
+                               progress=progress)
     if what_ifs:
         centre = pts[len(pts) // 2][1] if len(site.bands) == 1 else pts[1][1]
         result["what_if"] = what_if(site, centre, earth)

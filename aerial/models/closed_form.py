@@ -126,7 +126,7 @@ class _LineModel:
         return {SECTION_DOWN_LEAD: _sin2_integral(th) / (k * _safe(np.sin(th)) ** 2)}
 
 
-def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEFAULT_Z0_FORM) -> dict:
+def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEFAULT_Z0_FORM, shape=None) -> dict:
     """Per-frequency capacitance, effective height, radiation resistance, reactance and conductor loss.
 
     Parameters
@@ -137,6 +137,11 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
         Frequencies. [Hz]
     z0_form : {"uniform-charge", "schelkunoff"}
         Average characteristic impedance of the vertical in the line model.
+    shape : AerialShape, optional
+        The shape to model the wires as (default: :func:`classify` them).
+        Tolerance runs pass the nominal wires' shape measured on the moved
+        wires (:func:`aerial.models.shapes.measure_like`) so that a range
+        comes from the same model as its value.
 
     Returns
     -------
@@ -203,7 +208,10 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
     [187, 206]
     """
     f = _checked_frequencies(frequency, z0_form)
-    shape = classify(segments)
+    if shape is None:
+        shape = classify(segments)
+    elif len(shape.segment_section) != len(segments):
+        raise ModelInputError(f"the shape given describes {len(shape.segment_section)} segments, not {len(segments)}")
     es = electrostatic_solution(segments)
     c_s = es.capacitance_f
     he_s = es.effective_height_m

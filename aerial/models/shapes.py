@@ -371,6 +371,72 @@ def classify(segments: Segments) -> AerialShape:
     return _shape(kind, graph, section, notes, graph.node_xyz[junction, 2], feed_z, d_len, rise, d_rad, tops)
 
 
+def measure_like(segments: Segments, like: AerialShape) -> AerialShape:
+    """Measure a wire set with the sections (down-lead, top arms) of an earlier classification.
+
+    For a wire set that is a slightly moved copy of the one ``like`` was made
+    from (the same segments in the same order, e.g. the supports moved by
+    their height tolerance), this keeps the kind and the section of every
+    segment and measures the lengths, heights and radii anew, so that a
+    range of figures comes from the same model as the nominal figure even
+    where a threshold of :func:`classify` lies between the two.
+
+    Parameters
+    ----------
+    segments : Segments
+        The moved wire set. Frame: m, x east, y north, z up.
+    like : AerialShape
+        The classification of the unmoved wire set.
+
+    Returns
+    -------
+    AerialShape
+        ``like``'s kind and sections with the moved dimensions.
+
+    Raises
+    ------
+    ModelInputError
+        When the segment count differs from ``like``'s.
+
+    Examples
+    --------
+    >>> from aerial.models.segments import polyline_segments
+    >>> s = polyline_segments([[0, 0, 0.02], [0, 0, 10], [20, 0, 10]], 1e-3)
+    >>> moved = polyline_segments([[0, 0, 0.02], [0, 0, 11], [20, 0, 11]], 1e-3)
+    >>> m = measure_like(moved, classify(s))
+    >>> m.kind, round(m.vertical_height_m, 2), m.top_heights_m
+    ('inverted-L', 11.0, (11.0,))
+    """
+    section = np.asarray(like.segment_section, dtype=int)
+    if section.size != len(segments):
+        raise ModelInputError(f"{len(segments)} segments cannot be measured like a shape of {section.size}")
+    lengths = segments.length
+    aer = np.asarray(segments.aerial, bool)
+    grounded = np.asarray(segments.grounded, bool)
+    feed_z = float(segments.feed[2])
+    total_len = float(np.sum(lengths[aer]))
+    earth_len = float(np.sum(lengths[grounded]))
+    notes = tuple(like.notes) + ("shape and sections kept from the unmoved wires",)
+    z_hi = np.maximum(segments.start[:, 2], segments.end[:, 2])
+    if like.kind == "irregular":
+        return AerialShape("irregular", float(np.max(z_hi[aer])), feed_z, 0.0, 0.0,
+                           float(np.average(segments.radius[aer], weights=lengths[aer])), (), (), (),
+                           total_len, earth_len, like.segment_section, notes)
+    down = (section == SECTION_DOWN_LEAD) & aer
+    d_len = float(np.sum(lengths[down]))
+    top_z = float(np.max(z_hi[down])) if np.any(down) else feed_z
+    d_rad = float(np.average(segments.radius[down], weights=lengths[down])) if np.any(down) else like.downlead_radius_m
+    top_l, top_h, top_r = [], [], []
+    for i in range(len(like.top_lengths_m)):
+        idx = (section == i + 1) & aer
+        w = lengths[idx]
+        top_l.append(float(np.sum(w)))
+        top_h.append(float(np.average(0.5 * (segments.start[idx, 2] + segments.end[idx, 2]), weights=w)))
+        top_r.append(float(np.average(segments.radius[idx], weights=w)))
+    return AerialShape(like.kind, top_z, feed_z, d_len, top_z - feed_z, d_rad, tuple(top_l), tuple(top_h),
+                       tuple(top_r), total_len, earth_len, like.segment_section, notes)
+
+
 def _walk_nodes(ks, start, node_a, node_b):
     """Yield (segment, node it is entered from) along a chain starting at ``start``."""
     node = start
