@@ -23,6 +23,8 @@ EXIT_USER = 2
 EXIT_REFUSED = 3
 EXIT_INTERRUPTED = 130
 
+#: Most lines of reasons under a refusal.
+MAX_REASON_LINES = 4
 #: Most layouts ``aerial layout --best`` shows (the planner's own limit).
 MAX_BEST = 100
 
@@ -83,6 +85,38 @@ class _Parser(argparse.ArgumentParser):
         raise AerialError(f"{self.prog}: {message} (see '{self.prog} --help')")
 
 
+#: Width of the report when stdout is not a terminal and no --width is given: prose wraps here,
+#: tables widen to their content (never cut).
+PIPE_WIDTH = 100
+#: Seconds a run must have taken before progress lines appear on a stderr that is not a terminal.
+PROGRESS_LINES_AFTER_S = 2.0
+UNIT_SYSTEMS = ("si", "us")
+
+
+def _width(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"invalid width {text!r}: expected a whole number of characters") from None
+    if not 40 <= value <= 1000:
+        raise argparse.ArgumentTypeError(f"invalid width {value}: expected 40 to 1000 characters")
+    return value
+
+
+def _output_options(progress: bool) -> argparse.ArgumentParser:
+    o = argparse.ArgumentParser(add_help=False)
+    o.add_argument("--width", type=_width, metavar="N",
+                   help="report width in characters (default: the terminal's; when the output is not a terminal, "
+                        "wide enough for every table); tables that do not fit are listed row by row, never cut")
+    o.add_argument("--units", choices=UNIT_SYSTEMS, default="si",
+                   help="lengths in the report: si (metres) or us (feet and inches, station distances in miles); "
+                        "--json stays SI")
+    if progress:
+        o.add_argument("--quiet", action="store_true",
+                       help="no progress on stderr (by default a bar on a terminal, else a line per stage)")
+    return o
+
+
 def build_parser() -> argparse.ArgumentParser:
     p = _Parser(
         prog="aerial",
@@ -92,12 +126,13 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--version", action="version", version=f"aerial {__version__}")
     sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
 
-    c = sub.add_parser("check", help="validate a site file and summarise the wires as aerial understood them",
+    plain, long_run = [_output_options(False)], [_output_options(True)]
+    c = sub.add_parser("check", parents=plain, help="validate a site file and summarise the wires as aerial understood them",
                        description="Validate a site file and summarise the resolved wires.")
     c.add_argument("site", metavar="SITE", help="site file (TOML)")
     c.add_argument("--json", action="store_true", help="print machine-readable JSON instead of the report")
 
-    r = sub.add_parser("report", help="run the whole chain: aerial figures, earth, tuning, stations, cautions",
+    r = sub.add_parser("report", parents=long_run, help="run the whole chain: aerial figures, earth, tuning, stations, cautions",
                        description="Run the whole chain for a site (the built-in example when SITE is left out).")
     r.add_argument("site", metavar="SITE", nargs="?", help="site file (TOML); omit for the built-in example")
     r.add_argument("--json", action="store_true", help="print machine-readable JSON instead of the report")
@@ -116,7 +151,7 @@ def build_parser() -> argparse.ArgumentParser:
     r.add_argument("--allow-large", action="store_true",
                    help="full wave: run a sweep beyond the stated memory and time budget")
 
-    lay = sub.add_parser("layout", help="search the site's supports for the best safe wire layouts",
+    lay = sub.add_parser("layout", parents=long_run, help="search the site's supports for the best safe wire layouts",
                          description="Rank wire layouts among the site's candidate supports, keeping clear of power lines.")
     lay.add_argument("site", metavar="SITE", help="site file (TOML) with a [plan] table")
     lay.add_argument("--json", action="store_true", help="print machine-readable JSON instead of the report")
@@ -128,7 +163,7 @@ def build_parser() -> argparse.ArgumentParser:
     lay.add_argument("--force", action="store_true", help="replace the picture or page file if it exists")
     lay.add_argument("--allow-large", action="store_true", help="run a search beyond the stated time and memory budget")
 
-    coil = sub.add_parser("coil", help="single-layer coil helper: inductance from turns, or turns for an inductance",
+    coil = sub.add_parser("coil", parents=plain, help="single-layer coil helper: inductance from turns, or turns for an inductance",
                           description="Single-layer solenoid: inductance from turns, or turns for a wanted inductance.")
     coil.add_argument("--diameter", required=True, metavar="LEN",
                       help='the former\'s outside diameter, e.g. "50 mm" (the turns are taken at the wire centres, '
@@ -147,7 +182,8 @@ def build_parser() -> argparse.ArgumentParser:
     return p
 
 
-def _console(stderr=False):
+def _console(stderr=False, width=None):
+    """A rich console; on a stdout that is not a terminal (and no ``width``), tables widen to their content."""
     from rich.console import Console
 
     class _Console(Console):
@@ -157,7 +193,10 @@ def _console(stderr=False):
             os.dup2(devnull, sys.stdout.fileno())
             raise BrokenPipeError
 
-    return _Console(stderr=stderr, highlight=False, soft_wrap=False)
+    fit = not stderr and width is None and not sys.stdout.isatty()
+    console = _Console(stderr=stderr, highlight=False, soft_wrap=False, width=PIPE_WIDTH if fit else width)
+    console.fit_to_content = fit
+    return console
 
 
 def _print_json(data) -> None:
@@ -165,31 +204,72 @@ def _print_json(data) -> None:
     sys.stdout.write("\n")
 
 
+class _ProgressLines:
+    """Progress for a stderr that is not a terminal: a line per stage and per tenth of a long step.
+
+    Silent for the first ``PROGRESS_LINES_AFTER_S`` seconds, so a quick run prints nothing.
+    """
+
+    def __init__(self, stream):
+        self.stream = stream
+        self.t0 = time.monotonic()
+        self.label = "working"
+        self.tenth = -1
+
+    def _say(self, text: str) -> None:
+        if time.monotonic() - self.t0 < PROGRESS_LINES_AFTER_S:
+            return
+        self.stream.write(f"aerial: {text} ({time.monotonic() - self.t0:.0f} s)\n")
+        self.stream.flush()
+
+    def stage(self, text: str) -> None:
+        self.label, self.tenth = text, -1
+        self._say(text)
+
+    def __call__(self, done, total) -> None:
+        if not total:
+            return
+        tenth = int(10 * done // total)
+        if tenth > self.tenth:
+            self.tenth = tenth
+            self._say(f"{self.label}: {10 * tenth} % ({done}/{total})")
+
+
 @contextlib.contextmanager
 def _progress(enabled: bool):
-    """Yield a ``progress(done, total)`` callback; its rich bar appears only after half a second.
+    """Yield a ``progress(done, total)`` callback with a ``stage(text)`` method, or None when disabled.
 
-    Yields None when disabled (JSON output, or stderr is not a terminal).
+    On a terminal a rich bar appears after half a second; otherwise lines go to stderr
+    (:class:`_ProgressLines`).
     """
     if not enabled:
         yield None
         return
+    if not sys.stderr.isatty():
+        yield _ProgressLines(sys.stderr)
+        return
     from rich.progress import BarColumn, Progress, TextColumn, TimeRemainingColumn
 
-    prog = Progress(TextColumn("working"), BarColumn(), TextColumn("{task.completed}/{task.total}"),
+    prog = Progress(TextColumn("{task.description}"), BarColumn(), TextColumn("{task.completed}/{task.total}"),
                     TimeRemainingColumn(), console=_console(stderr=True), transient=True)
-    state = {"task": None}
+    state = {"task": None, "label": "working"}
     t0 = time.monotonic()
 
-    def update(done, total):
-        if state["task"] is None and time.monotonic() - t0 > 0.5:
-            prog.start()
-            state["task"] = prog.add_task("sweep", total=total)
-        if state["task"] is not None:
-            prog.update(state["task"], completed=done, total=total)
+    class _Bar:
+        def stage(self, text):
+            state["label"] = text
+            if state["task"] is not None:
+                prog.update(state["task"], description=text)
+
+        def __call__(self, done, total):
+            if state["task"] is None and time.monotonic() - t0 > 0.5:
+                prog.start()
+                state["task"] = prog.add_task(state["label"], total=total)
+            if state["task"] is not None:
+                prog.update(state["task"], completed=done, total=total, description=state["label"])
 
     try:
-        yield update
+        yield _Bar()
     finally:
         if state["task"] is not None:
             prog.stop()
@@ -202,7 +282,7 @@ def _render(args, result, renderer_name: str) -> int:
     else:
         from aerial.outputs import terminal as report
 
-        getattr(report, renderer_name)(result, _console())
+        getattr(report, renderer_name)(result, _console(width=args.width), units=args.units)
     return EXIT_OK
 
 
@@ -231,7 +311,7 @@ def cmd_report(args) -> int:
             raise AerialError(f"--step {args.step}: {err.expected}") from None
         if not 100 <= step <= 1e6:
             raise AerialError(f"--step {args.step}: expected a step from 100 Hz to 1 MHz")
-    with _progress(sys.stderr.isatty() and not args.json) as update:
+    with _progress(not args.quiet) as update:
         result = run_report(args.site, full_wave=args.full_wave, step_hz=step, progress=update,
                             pictures=args.pictures, force=args.force,
                             ground=_ground_option(args), allow_large=args.allow_large,
@@ -253,7 +333,7 @@ def cmd_layout(args) -> int:
 
     if not 1 <= args.best <= MAX_BEST:
         raise AerialError(f"--best {args.best}: expected a whole number from 1 to {MAX_BEST}")
-    with _progress(sys.stderr.isatty() and not args.json) as update:
+    with _progress(not args.quiet) as update:
         result = run_layout(args.site, best=args.best, full_wave=args.full_wave, picture=args.picture,
                             force=args.force, allow_large=args.allow_large, progress=update, page=args.page)
     _note_page(result)
@@ -294,7 +374,13 @@ def main(argv=None) -> int:
         _check_empty_options(args)
         return COMMANDS[args.command](args)
     except SafetyRefusal as err:
-        sys.stderr.write(f"aerial: refused: {one_line(err)}\n")
+        # one short line, then a few lines of reasons (the message's own line breaks)
+        first, *reasons = [line for line in str(err).split("\n") if line.strip()] or [""]
+        sys.stderr.write(f"aerial: refused: {one_line(first)}\n")
+        for line in reasons[:MAX_REASON_LINES]:
+            sys.stderr.write(f"  {one_line(line.strip())}\n")
+        if len(reasons) > MAX_REASON_LINES:
+            sys.stderr.write(f"  … and {len(reasons) - MAX_REASON_LINES} more\n")
         return EXIT_REFUSED
     except AerialError as err:
         sys.stderr.write(f"aerial: {one_line(err)}\n")

@@ -447,6 +447,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     if ground != "perfect" and method != "full-wave":
         warnings.append("lossy ground applies to the full-wave solver only; the closed forms assume a perfect "
                         "ground plane with the earth system's resistance in series")
+    stage(progress, f"{'full-wave' if method == 'full-wave' else 'closed-form'} sweep of {len(freqs)} frequencies")
     resp = aerial_response(site, geometry, freqs, earth["resistance_ohm"], method=method, progress=progress, ground=ground,
                            allow_large=allow_large)
     warnings += resp.get("warnings", [])
@@ -502,14 +503,16 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
             result["aerial"][key] = resp[key]
 
     pts = band_points(site)
-    result["ranges"] = ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground, allow_large=allow_large,
-                               progress=progress)
+    stage(progress, "ranges from the tolerances")
+    result["ranges"] = ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground,
+                                             allow_large=allow_large, progress=progress)
     if what_ifs:
         centre = pts[len(pts) // 2][1] if len(site.bands) == 1 else pts[1][1]
         result["what_if"] = what_if(site, centre, earth)
 
     from aerial.estimate import receiver as receiver_bridge
 
+    stage(progress, "tuning and stations")
     tuning, stations, rx_warnings = receiver_bridge.receiver_results(site, freqs, resp)
     result["tuning"] = tuning
     result["stations"] = stations
@@ -518,6 +521,13 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     result["cautions"] = cautions_for(site)
     result["warnings"] = _unique(warnings)
     return finalise(result)
+
+
+def stage(progress, text: str) -> None:
+    """Tell a ``progress`` callback that has a ``stage`` method what the run is doing now."""
+    say = getattr(progress, "stage", None)
+    if callable(say):
+        say(text)
 
 
 def _unique(items):

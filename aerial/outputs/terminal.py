@@ -1,8 +1,16 @@
-"""Rich rendering of the result dicts. No computation here: everything comes from the API's dicts."""
+"""Rich rendering of the result dicts. No computation here: everything comes from the API's dicts.
+
+Every renderer takes ``units``: ``"si"`` or ``"us"`` (lengths in feet and
+inches, station distances in miles; the dicts themselves stay SI). Tables go
+through :func:`show`, which never cuts a number: on a console marked
+``fit_to_content`` (stdout not a terminal) a table widens to its content;
+on a fixed width a table that cannot fit is listed row by row.
+"""
 
 from __future__ import annotations
 
 import math
+import re
 
 import numpy as np
 from rich.panel import Panel
@@ -51,6 +59,146 @@ def span(pair, unit: str) -> str:
     return f"[dim]{text}[/dim]"
 
 
+#: Exact by definition (NIST SP 811): 1 ft = 0.3048 m, 1 in = 0.0254 m, 1 mi = 1609.344 m.
+FOOT_M = 0.3048
+INCH_M = 0.0254
+MILE_M = 1609.344
+
+
+class Lengths:
+    """Lengths for people in one unit system: ``"si"`` (metres) or ``"us"`` (feet, inches, miles).
+
+    Examples
+    --------
+    >>> Lengths("us")(6.72), Lengths("us")(0.0016), Lengths("us").distance(95e3)
+    ('22 ft', '0.063 in', '59 mi')
+    >>> Lengths("us").text("raise the wire 3 m; add 10 m; 2 mm2 wire at 1 m·pF and 5 mV/m")
+    'raise the wire 9.84 ft; add 32.8 ft; 2 mm2 wire at 1 m·pF and 5 mV/m'
+    >>> Lengths("si")(6.72), Lengths("si").distance(95e3)
+    ('6.72 m', '95 km')
+    """
+
+    #: A number followed by a metric length unit in free text (not m·pF, mV/m, mm2 ...).
+    PATTERN = re.compile(r"(?<![\w.])(\d+(?:\.\d+)?)\s?(km|cm|mm|m)(?![\w·/²^])")
+
+    def __init__(self, system: str = "si"):
+        if system not in ("si", "us"):
+            raise ValueError(f"'{system}' is not a valid unit system, must be one of 'si', 'us'")
+        self.us = system == "us"
+
+    def __call__(self, metres, digits: int = 3) -> str:
+        """A length: '6.72 m' or '22 ft' (below a foot: inches)."""
+        if metres is None or not math.isfinite(float(metres)):
+            return "—"
+        v = float(metres)
+        if not self.us:
+            if v != 0 and (abs(v) < 0.1 or abs(v) >= 1000):
+                return eng(v, "m", digits)
+            return f"{_trim(_sig(v, digits))} m"
+        if v != 0 and abs(v) < FOOT_M:
+            return f"{_trim(_sig(v / INCH_M, digits))} in"
+        return f"{_trim(_sig(v / FOOT_M, digits))} ft"
+
+    def fixed(self, metres, decimals: int = 2) -> str:
+        """A length with fixed decimals for a table column: '60.36 m', or in feet one decimal fewer."""
+        if not self.us:
+            return f"{float(metres):.{decimals}f} m"
+        return f"{float(metres) / FOOT_M:.{max(decimals - 1, 0)}f} ft"
+
+    def distance(self, metres) -> str:
+        """A station distance: km or miles."""
+        if metres is None:
+            return "—"
+        return f"{_trim(_sig(float(metres) / MILE_M, 3))} mi" if self.us else eng(metres, "m")
+
+    def plain(self, metres, decimals: int = 1) -> str:
+        """A bare number in the system's main unit (m or ft), for coordinates."""
+        return f"{float(metres) / (FOOT_M if self.us else 1.0):.{decimals}f}"
+
+    @property
+    def unit(self) -> str:
+        return "ft" if self.us else "m"
+
+    def span(self, pair) -> str:
+        """A dim range '(5.7–7.7 m)' under a value."""
+        if not self.us:
+            return span(pair, "m")
+        if pair is None or pair[0] is None or pair[1] is None:
+            return ""
+        lo, hi = self(pair[0]), self(pair[1])
+        same = lo.rsplit(" ", 1)[1] == hi.rsplit(" ", 1)[1]
+        return f"[dim]({lo.rsplit(' ', 1)[0] if same else lo}–{hi})[/dim]"
+
+    def text(self, words) -> str:
+        """Free text with every metric length in it converted (unchanged under "si")."""
+        words = str(words)
+        if not self.us:
+            return words
+        scale = {"km": 1e3, "m": 1.0, "cm": 1e-2, "mm": 1e-3}
+
+        def convert(match):
+            metres = float(match.group(1)) * scale[match.group(2)]
+            return self.distance(metres) if match.group(2) == "km" else self(metres)
+
+        return self.PATTERN.sub(convert, words)
+
+
+def _sig(x: float, digits: int) -> str:
+    """``x`` to ``digits`` significant figures, never in exponent form: 22.05 -> '22.1', 1234.5 -> '1235'."""
+    if x == 0:
+        return "0"
+    decimals = max(0, digits - 1 - int(math.floor(math.log10(abs(x)))))
+    return f"{x:.{decimals}f}"
+
+
+def _trim(number: str) -> str:
+    """'0.800' -> '0.8', '22.0' -> '22'."""
+    return number.rstrip("0").rstrip(".") if "." in number else number
+
+
+def show(console, table: Table) -> None:
+    """Print a table without cutting anything.
+
+    On a console marked ``fit_to_content`` the console widens to the table's
+    natural width for this one table; otherwise, when even the table's
+    narrowest layout (every cell wrapped at its longest word) is wider than
+    the console, the rows are listed one field per line instead.
+    """
+    from rich.measure import Measurement
+
+    for column in table.columns:
+        column.overflow = "fold"  # a last resort: a squeezed cell folds, never ends in "…"
+    # measured without the console's width, which would clamp both figures
+    wide = Measurement.get(console, console.options.update_width(100_000), table)
+    if getattr(console, "fit_to_content", False):
+        natural = wide.maximum
+        if natural > console.width:
+            old = console.width
+            console.width = natural
+            try:
+                console.print(table)
+            finally:
+                console.width = old
+            return
+        console.print(table)
+        return
+    if wide.minimum <= console.width:
+        console.print(table)
+        return
+    if table.title:
+        console.print(Text(str(table.title), style="italic"))
+    headers = [console.render_str(c.header) if isinstance(c.header, str) else Text(str(c.header)) for c in table.columns]
+    cells = [list(c.cells) for c in table.columns]
+    for row in range(table.row_count):
+        for col, header in enumerate(headers):
+            cell = cells[col][row]
+            value = console.render_str(cell) if isinstance(cell, str) else cell
+            if not isinstance(value, Text):
+                value = Text(str(value))
+            line = Text("• " if col == 0 else "    ") + header + Text(": ") + Text(" ").join(value.split("\n"))
+            console.print(line)
+
+
 def db(x) -> str:
     return "—" if x is None else f"{x:+.1f} dB"
 
@@ -63,29 +211,31 @@ def _nearest(freqs, f):
 # --------------------------------------------------------------------------- pieces
 
 
-def _geometry_table(geo: dict) -> Table:
+def _geometry_table(geo: dict, L: Lengths) -> Table:
     t = Table(title="Wires as aerial understood them", title_justify="left")
-    for col in ("wire", "role", "length", "size", "lowest", "highest", "points (x, y, height) m"):
+    for col in ("wire", "role", "length", "size", "lowest", "highest", f"points (x, y, height) {L.unit}"):
         t.add_column(col, overflow="fold")
     for w in geo["wires"]:
         pts = w["points_m"]
         zs = [p[2] for p in pts]
-        shown = pts if len(pts) <= 3 else [pts[0], "…", pts[-1]]
-        text = " → ".join("…" if p == "…" else "(" + ", ".join(f"{v:.2f}" for v in p) + ")" for p in shown)
-        t.add_row(w["name"], w["role"], f"{w['length_m']:.2f} m", w["size"], f"{min(zs):.2f} m", f"{max(zs):.2f} m", text)
+        # a long polyline shows its ends and how many points lie between (the JSON has them all)
+        shown = pts if len(pts) <= 3 else [pts[0], f"{len(pts) - 2} points", pts[-1]]
+        text = " → ".join(p if isinstance(p, str) else "(" + ", ".join(L.plain(v, 2) for v in p) + ")" for p in shown)
+        t.add_row(escape(w["name"]), w["role"], L.fixed(w["length_m"]), escape(L.text(w["size"])), L.fixed(min(zs)),
+                  L.fixed(max(zs)), text)
     return t
 
 
-def _summary_line(geo: dict) -> str:
-    feed = ", ".join(f"{v:.2f}" for v in geo["feed_m"])
+def _summary_line(geo: dict, L: Lengths) -> str:
+    feed = ", ".join(L.plain(v, 2) for v in geo["feed_m"])
     parts = [
-        f"aerial + lead-in {geo['total_length_m']:.1f} m",
-        f"highest {geo['max_height_m']:.1f} m",
-        f"mean height {geo['mean_height_m']:.1f} m",
-        f"receiver terminals at ({feed}) m",
+        f"aerial + lead-in {L(geo['total_length_m'])}",
+        f"highest {L(geo['max_height_m'])}",
+        f"mean height {L(geo['mean_height_m'])}",
+        f"receiver terminals at ({feed}) {L.unit}",
     ]
     if geo.get("earth_lead_length_m"):
-        parts.append(f"earth lead {geo['earth_lead_length_m']:.1f} m")
+        parts.append(f"earth lead {L(geo['earth_lead_length_m'])}")
     shape = geo.get("shape")
     if isinstance(shape, dict):
         shape = shape.get("kind")
@@ -94,10 +244,10 @@ def _summary_line(geo: dict) -> str:
     return " · ".join(parts)
 
 
-def _lines(console, title, lines, style):
+def _lines(console, title, lines, style, L: Lengths | None = None):
     if not lines:
         return
-    lines = [str(x) for x in lines]
+    lines = [L.text(x) if L is not None else str(x) for x in lines]
     body = Text()
     for i, line in enumerate(lines):
         if i:
@@ -109,26 +259,28 @@ def _lines(console, title, lines, style):
 # --------------------------------------------------------------------------- commands
 
 
-def render_check(summary: dict, console) -> None:
+def render_check(summary: dict, console, units: str = "si") -> None:
+    L = Lengths(units)
     site = summary["site"]
     console.print(f"[bold]{escape(site['name'])}[/bold]  ({escape(site['file'])})")
-    console.print(_geometry_table(summary["geometry"]))
-    console.print(escape(_summary_line(summary["geometry"])))
+    show(console, _geometry_table(summary["geometry"], L))
+    console.print(escape(_summary_line(summary["geometry"], L)))
     bands = ", ".join(f"{b['name']} {eng(b['from_hz'], 'Hz')}–{eng(b['to_hz'], 'Hz')}" for b in summary["bands"])
     console.print(f"bands: {bands} ({summary['frequency_count']} frequencies) · earth: {', '.join(summary['earth']) or 'none'} · "
                   f"stations: {summary['stations']}")
-    _lines(console, "Warnings", summary.get("warnings", []), "yellow")
+    _lines(console, "Warnings", summary.get("warnings", []), "yellow", L)
     console.print("[green]The site file is valid.[/green]")
 
 
-def render_report(result: dict, console) -> None:
+def render_report(result: dict, console, units: str = "si") -> None:
+    L = Lengths(units)
     site = result["site"]
     geo = result["geometry"]
     a = result["aerial"]
     console.print(f"[bold]{escape(site['name'])}[/bold]  ({escape(site['file'])})")
-    console.print(escape(_summary_line(geo)))
+    console.print(escape(_summary_line(geo, L)))
     console.print(f"model: {escape(a['model'])}")
-    console.print(_geometry_table(geo))
+    show(console, _geometry_table(geo, L))
 
     freqs = result["frequencies_hz"]
     ranges = result.get("ranges", {})
@@ -146,7 +298,7 @@ def render_report(result: dict, console) -> None:
         t.add_row(
             f"{eng(freqs[i], 'Hz')}\n[dim]{escape(label.split(' ', 1)[0])} {escape(label.rsplit(' ', 2)[-2] if 'edge' in label else 'centre')}[/dim]",
             f"{eng(a['capacitance_f'][i], 'F')}\n{span(ranges['capacitance_f'][j], 'F')}",
-            f"{eng(a['effective_height_m'][i], 'm')}\n{span(ranges['effective_height_m'][j], 'm')}",
+            f"{L(a['effective_height_m'][i])}\n{L.span(ranges['effective_height_m'][j])}",
             eng(a["radiation_resistance_ohm"][i], "Ω"),
             f"{eng(loss, 'Ω')}\n{span(ranges['loss_resistance_ohm'][j], 'Ω')}",
             eng(a["reactance_ohm"][i], "Ω"),
@@ -154,7 +306,7 @@ def render_report(result: dict, console) -> None:
             f"{eng(a['open_circuit_voltage_v'][i], 'V')}\n{span(ranges['open_circuit_voltage_v'][j], 'V')}",
             f"{eng(a['available_power_w'][i], 'W')}\n{span(ranges['available_power_w'][j], 'W')}",
         )
-    console.print(t)
+    show(console, t)
     conv = a.get("convergence")
     if conv:
         state = "converged" if conv.get("converged") else "NOT converged"
@@ -171,7 +323,7 @@ def render_report(result: dict, console) -> None:
             f"{eng(budget['soil_under_aerial_ohm'][i], 'Ω')} ({escape(budget['soil_treatment'])}); earth electrode "
             f"{eng(budget['electrode_ohm'][i], 'Ω')} ({escape(budget['electrode_treatment'])})")
     for note in ranges.get("notes", []):
-        console.print(f"[dim]{escape(note)}[/dim]")
+        console.print(f"[dim]{escape(L.text(note))}[/dim]")
 
     earth = result.get("earth", {})
     if earth:
@@ -179,12 +331,12 @@ def render_report(result: dict, console) -> None:
         for col in ("part", "resistance", "method"):
             et.add_column(col)
         for part in earth.get("parts", []):
-            et.add_row(part.get("description", ""), rng([part.get("resistance_low_ohm"), part.get("resistance_high_ohm")], "Ω")
+            et.add_row(escape(L.text(part.get("description", ""))), rng([part.get("resistance_low_ohm"), part.get("resistance_high_ohm")], "Ω")
                        if part.get("resistance_low_ohm") is not None else eng(part.get("resistance_ohm"), "Ω"),
-                       part.get("method", ""))
+                       escape(part.get("method", "")))
         et.add_row("[bold]whole earth system[/bold]",
                    f"[bold]{eng(earth.get('resistance_ohm'), 'Ω')}[/bold] ({rng([earth.get('resistance_low_ohm'), earth.get('resistance_high_ohm')], 'Ω')})", "")
-        console.print(et)
+        show(console, et)
 
     wi = result.get("what_if")
     if wi:
@@ -192,19 +344,19 @@ def render_report(result: dict, console) -> None:
         for col in ("change", "effective height", "capacitance", "loss resistance", "available power", "change"):
             wt.add_column(col, justify="left" if col == "change" else "right")
         for row in wi:
-            wt.add_row(row["change"], eng(row["effective_height_m"], "m"), eng(row["capacitance_f"], "F"),
+            wt.add_row(escape(L.text(row["change"])), L(row["effective_height_m"]), eng(row["capacitance_f"], "F"),
                        eng(row["loss_resistance_ohm"], "Ω"), eng(row["available_power_w"], "W"), db(row["power_change_db"]))
-        console.print(wt)
+        show(console, wt)
 
-    _render_tuning(result.get("tuning"), console)
-    _render_stations(result.get("stations"), console)
+    _render_tuning(result.get("tuning"), console, L)
+    _render_stations(result.get("stations"), console, L)
     if result.get("pictures"):
-        console.print("pictures: " + ", ".join(result["pictures"]))
-    _lines(console, "Warnings", result.get("warnings", []), "yellow")
-    _lines(console, "Safety", result.get("cautions", []), "red")
+        console.print("pictures: " + escape(", ".join(result["pictures"])))
+    _lines(console, "Warnings", result.get("warnings", []), "yellow", L)
+    _lines(console, "Safety", result.get("cautions", []), "red", L)
 
 
-def _render_tuning(tuning, console) -> None:
+def _render_tuning(tuning, console, L: Lengths) -> None:
     if not tuning:
         return
     rows = tuning.get("rows") or []
@@ -214,7 +366,7 @@ def _render_tuning(tuning, console) -> None:
     if coil.get("turns"):
         title += f" ({coil['turns']:.0f} turns"
         if coil.get("winding_length_m"):
-            title += f" over {eng(coil['winding_length_m'], 'm')}"
+            title += f" over {L(coil['winding_length_m'])}"
         title += ")"
     if tuning.get("source") == "measured":
         title += " — aerial from the bench measurement"
@@ -251,22 +403,22 @@ def _render_tuning(tuning, console) -> None:
                         text += " (out of range)"
                     cells.append(text)
             t.add_row(*cells)
-        console.print(t)
+        show(console, t)
     cov = tuning.get("coverage", {})
     if cov.get("verdict"):
         style = "green" if cov.get("covered") else "yellow"
-        console.print(f"[{style}]Band coverage: {escape(cov['verdict'])}[/{style}]")
+        console.print(f"[{style}]Band coverage: {escape(L.text(cov['verdict']))}[/{style}]")
     for line in tuning.get("advice", []):
-        console.print(f"  → {escape(line)}")
+        console.print(f"  → {escape(L.text(line))}")
     for line in tuning.get("notes", []):
-        console.print(f"[dim]{escape(line)}[/dim]")
+        console.print(f"[dim]{escape(L.text(line))}[/dim]")
 
 
 VERDICT_STYLES = {"clearly heard": "green", "marginal": "yellow", "heard with interference": "yellow",
                   "swamped": "red", "out of the tuning range": "red", "below the noise": "red", "not heard": "red"}
 
 
-def _render_stations(stations, console) -> None:
+def _render_stations(stations, console, L: Lengths) -> None:
     if not stations:
         return
     t = Table(title="Stations (by day: ground wave; by night: ground and sky wave)", title_justify="left")
@@ -284,27 +436,28 @@ def _render_stations(stations, console) -> None:
         verdict = s.get("verdict_text", verdict)
         nstyle = VERDICT_STYLES.get(nv, "")
         nv = night.get("verdict_text", nv)
-        t.add_row(s.get("name", ""), eng(s.get("frequency_hz"), "Hz"), eng(s.get("distance_m"), "m"),
+        t.add_row(escape(s.get("name", "")), eng(s.get("frequency_hz"), "Hz"), L.distance(s.get("distance_m")),
                   eng(s.get("field_v_per_m"), "V/m"), eng(s.get("detector_power_w"), "W"),
                   "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
                   Text(verdict, style=style), nfield, Text(nv or "—", style=nstyle))
-    console.print(t)
+    show(console, t)
     for s in stations:
         why = s.get("reason", "")
         if s.get("spills_over"):
             why += ("; " if why else "") + "heard under: " + ", ".join(s["spills_over"])
         if why:
-            console.print(f"  {escape(s.get('name', ''))}: {escape(why)}")
+            console.print(f"  {escape(s.get('name', ''))}: {escape(L.text(why))}")
         night = s.get("night") or {}
         if night.get("reason") and night.get("verdict") != s.get("verdict"):
             sky = night.get("sky_wave_field_v_per_m")
-            console.print(f"  {escape(s.get('name', ''))} by night: {escape(night['reason'])}"
+            console.print(f"  {escape(s.get('name', ''))} by night: {escape(L.text(night['reason']))}"
                           + (f" (sky wave {eng(sky, 'V/m')})" if sky else ""))
 
 
-def render_layout(result: dict, console) -> None:
+def render_layout(result: dict, console, units: str = "si") -> None:
+    L = Lengths(units)
     console.print(f"[bold]{escape(result['site']['name'])}[/bold]  ({escape(result['site']['file'])})")
-    console.print(f"objective: {escape(result.get('objective', ''))}")
+    console.print(f"objective: {escape(L.text(result.get('objective', '')))}")
     console.print(f"candidates: {result.get('candidates_considered', 0)} considered, "
                   f"{result.get('candidates_refused', 0)} refused for safety or geometry")
     excluded = {k: v for k, v in (result.get("excluded") or {}).items() if v}
@@ -313,26 +466,26 @@ def render_layout(result: dict, console) -> None:
     unit = result.get("score_unit", "")
     t = Table(title="Best safe layouts", title_justify="left")
     for col in ("#", "layout", "wire", "eff. height", "capacitance", f"score [{unit}]" if unit else "score"):
-        t.add_column(col, justify="left" if col == "layout" else "right")
+        t.add_column(escape(col), justify="left" if col == "layout" else "right")
     layouts = result.get("layouts", [])
     for i, c in enumerate(layouts, 1):
-        t.add_row(str(i), escape(c.get("description", "")), eng(c.get("wire_length_m"), "m"),
-                  eng(c.get("effective_height_m"), "m"), eng(c.get("capacitance_f"), "F"), f"{c.get('score', 0):.1f}")
-    console.print(t)
+        t.add_row(str(i), escape(c.get("description", "")), L(c.get("wire_length_m")),
+                  L(c.get("effective_height_m")), eng(c.get("capacitance_f"), "F"), f"{c.get('score', 0):.1f}")
+    show(console, t)
     for i, c in enumerate(layouts, 1):
         if c.get("reason"):
-            console.print(f"  {i}. {escape(c['reason'])}")
+            console.print(f"  {i}. {escape(L.text(c['reason']))}")
     fw = result.get("full_wave")
     if isinstance(fw, dict) and fw.get("note"):
-        console.print(f"full-wave check of the winner: {escape(fw['note'])}")
+        console.print(f"full-wave check of the winner: {escape(L.text(fw['note']))}")
     for section, title in (("apartment", "Apartment"), ("code_checklist", "Code checklist (typical requirements, not a compliance check)")):
         lines = result.get(section)
         if lines:
-            _lines(console, title, lines, "blue")
+            _lines(console, title, lines, "blue", L)
     if result.get("picture"):
         console.print(f"plan drawing: {escape(str(result['picture']))}")
-    _lines(console, "Warnings", result.get("warnings", []), "yellow")
-    _lines(console, "Safety", result.get("cautions", []), "red")
+    _lines(console, "Warnings", result.get("warnings", []), "yellow", L)
+    _lines(console, "Safety", result.get("cautions", []), "red", L)
 
 
 COIL_ROWS = (
@@ -346,7 +499,8 @@ COIL_ROWS = (
 )
 
 
-def render_coil(result: dict, console) -> None:
+def render_coil(result: dict, console, units: str = "si") -> None:
+    L = Lengths(units)
     t = Table(title="Single-layer coil", title_justify="left")
     t.add_column("quantity")
     t.add_column("value", justify="right")
@@ -354,9 +508,10 @@ def render_coil(result: dict, console) -> None:
         value = result.get(key)
         if value is None:
             continue
-        t.add_row(label, eng(value, unit) if unit else f"{value:.4g}")
-    console.print(t)
+        text = L(value, 4) if unit == "m" else eng(value, unit) if unit else f"{value:.4g}"
+        t.add_row(label, text)
+    show(console, t)
     if result.get("converged") is False:
         console.print("[yellow]• the turns search did not converge; treat the figure as approximate[/yellow]")
     for w in result.get("warnings", []):
-        console.print(f"[yellow]• {escape(w)}[/yellow]")
+        console.print(f"[yellow]• {escape(L.text(w))}[/yellow]")

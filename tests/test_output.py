@@ -1,0 +1,142 @@
+"""Output a person can read: through a pipe or a narrow terminal no number is cut; US units; progress lines.
+
+Invented example sites only; these are input/output handling tests.
+"""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+
+from aerial import cli
+from aerial.cli import main
+from aerial.outputs.terminal import Lengths, eng
+
+EXAMPLES = "site_examples/"
+
+
+def run(capsys, *argv):
+    code = main(list(argv))
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+def report_json(capsys, *argv):
+    code, out, _ = run(capsys, "report", *argv, "--json")
+    assert code == 0
+    return json.loads(out)
+
+
+def band_point_figures(result, lengths=Lengths("si")):
+    """The figures the report's main table shows, as the report formats them."""
+    a, freqs = result["aerial"], result["frequencies_hz"]
+    out = []
+    for f in result["ranges"]["frequencies_hz"]:
+        i = freqs.index(f)
+        out += [eng(f, "Hz"), eng(a["capacitance_f"][i], "F"), lengths(a["effective_height_m"][i]),
+                eng(a["available_power_w"][i], "W")]
+    return out
+
+
+@pytest.mark.parametrize("argv", [["report"], ["report", EXAMPLES + "rural_long_wire.toml"]])
+def test_a_piped_report_at_columns_60_keeps_every_digit(capsys, monkeypatch, argv):
+    # the README's first command piped to a file, and the rural example: stdout is not a terminal here
+    monkeypatch.setenv("COLUMNS", "60")
+    code, out, _ = run(capsys, *argv)
+    assert code == 0
+    assert "…" not in out
+    for text in band_point_figures(report_json(capsys, *argv[1:])):
+        assert text in out, text
+    assert "frequency" in out and "C presented" in out and "P available" in out
+
+
+def test_a_narrow_width_lists_rows_instead_of_cutting(capsys, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "60")
+    code, out, _ = run(capsys, "report", EXAMPLES + "rural_long_wire.toml", "--width", "60")
+    assert code == 0 and "…" not in out
+    assert max(len(line) for line in out.splitlines()) <= 60
+    assert "C presented: " in out  # the wide table listed row by row
+    for text in band_point_figures(report_json(capsys, EXAMPLES + "rural_long_wire.toml")):
+        assert text in out, text
+
+
+@pytest.mark.parametrize("command", [["check", EXAMPLES + "balcony_water_pipe.toml"],
+                                     ["layout", EXAMPLES + "suburban_lot_service_line.toml"],
+                                     ["coil", "--diameter", "50 mm", "--wire", "26 AWG", "--turns", "60"]])
+def test_every_command_fits_a_narrow_width_without_cutting(capsys, command):
+    code, out, _ = run(capsys, *command, "--width", "60")
+    assert code == 0 and "…" not in out
+    assert max(len(line) for line in out.splitlines()) <= 60
+
+
+@pytest.mark.parametrize("width, words", [("10", "40 to 1000"), ("wide", "whole number")])
+def test_width_must_be_a_sensible_number(capsys, width, words):
+    code, out, err = run(capsys, "report", "--width", width)
+    assert code == 2 and out == "" and words in err and len(err.strip().splitlines()) == 1
+
+
+def test_us_units_convert_every_length_in_the_report(capsys):
+    code, out, _ = run(capsys, "report", EXAMPLES + "rural_long_wire.toml", "--units", "us")
+    assert code == 0
+    result = report_json(capsys, EXAMPLES + "rural_long_wire.toml")
+    us = Lengths("us")
+    for text in band_point_figures(result, us):
+        assert text in out, text
+    assert us(result["geometry"]["total_length_m"]) in out  # 67.6 m -> 222 ft
+    assert "59 mi" in out  # 95 km to the farm station (1 mi = 1609.344 m exactly, NIST SP 811)
+    assert "points (x, y, height) ft" in out
+    lengths_in_metres = Lengths.PATTERN.findall(out)
+    assert not lengths_in_metres, lengths_in_metres
+
+
+def test_us_units_leave_the_json_in_si(capsys):
+    assert report_json(capsys, "--units", "us") == report_json(capsys)
+
+
+def test_us_units_in_check_layout_and_coil(capsys):
+    code, out, _ = run(capsys, "check", EXAMPLES + "backyard_inverted_l.toml", "--units", "us")
+    assert code == 0 and " ft" in out and not Lengths.PATTERN.findall(out)
+    code, out, _ = run(capsys, "layout", EXAMPLES + "suburban_lot_service_line.toml", "--units", "us")
+    assert code == 0 and " ft" in out and not Lengths.PATTERN.findall(out)
+    code, out, _ = run(capsys, "coil", "--diameter", "50 mm", "--wire", "26 AWG", "--turns", "60", "--units", "us")
+    assert code == 0 and "form diameter" in out and "1.969 in" in out  # 50 mm = 1.9685 in
+
+
+def test_lengths_in_us_units():
+    us = Lengths("us")
+    assert us(0.3048) == "1 ft" and us(3.048) == "10 ft" and us(0.0254) == "1 in"  # exact definitions, NIST SP 811
+    assert us.distance(1609.344) == "1 mi"
+    assert us.text("a 2.5 mm2 wire at 1 m·pF, 5 mV/m and 100 Ω·m soil") == \
+        "a 2.5 mm2 wire at 1 m·pF, 5 mV/m and 100 Ω·m soil"  # none of these is a length
+
+
+def test_progress_lines_on_a_stderr_that_is_not_a_terminal(capsys, monkeypatch):
+    monkeypatch.setattr(cli, "PROGRESS_LINES_AFTER_S", 0.0)
+    code, _, err = run(capsys, "report", "--json")
+    assert code == 0
+    lines = err.strip().splitlines()
+    assert any("closed-form sweep of" in line for line in lines)
+    assert any("tuning and stations" in line for line in lines)
+    assert all(line.startswith("aerial: ") for line in lines)
+
+
+def test_full_wave_progress_counts_in_tenths(capsys, monkeypatch):
+    monkeypatch.setattr(cli, "PROGRESS_LINES_AFTER_S", 0.0)
+    code, _, err = run(capsys, "report", "--full-wave", "--step", "100 kHz")
+    assert code == 0
+    assert "full-wave sweep of 13 frequencies: 100 %" in err
+    assert "ranges from the tolerances" in err
+
+
+def test_quiet_prints_no_progress(capsys, monkeypatch):
+    monkeypatch.setattr(cli, "PROGRESS_LINES_AFTER_S", 0.0)
+    code, _, err = run(capsys, "report", "--quiet")
+    assert code == 0 and err == ""
+    code, _, err = run(capsys, "layout", EXAMPLES + "suburban_lot_service_line.toml", "--quiet")
+    assert code == 0 and err == ""
+
+
+def test_a_quick_run_prints_no_progress(capsys):
+    code, _, err = run(capsys, "check", EXAMPLES + "backyard_inverted_l.toml")
+    assert code == 0 and err == ""
