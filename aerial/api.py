@@ -50,7 +50,8 @@ def refusal_check(site) -> list[str]:
     try:
         report = enforce_site_clearance(site)
     except SafetyRefusal as err:  # name the file, as every other message does
-        raise SafetyRefusal(f"{err} (site file {site.path})") from None
+        first, _, rest = str(err).partition("\n")
+        raise SafetyRefusal(f"{site.path}: {first}" + (f"\n{rest}" if rest else "")) from None
     return list(getattr(report, "warnings", []) or [])
 
 

@@ -128,16 +128,18 @@ def test_wire_inside_the_zone_is_refused_with_distances():
     with pytest.raises(SafetyRefusal) as err:
         enforce_site_clearance(site)
     msg = str(err.value)
-    assert 'the wire "span eave to oak" is 10.0 m (in plan) from the power line "street line"' in msg
-    assert "at least 18.0 m is needed: 1.5 × 12.0 m" in msg
+    assert 'power line "street line": 18.0 m needed (1.5 × 12.0 m); inside: the wire "span eave to oak" (10.0 m)' in msg
     assert 'support "oak"' in msg
-    assert "Move it at least 8.0 m further from the line" in msg
-    assert "never less than the line's height (7.5 m)" in msg
+    assert "move them at least 8.0 m further away" in msg
+    assert "never less than the line's height" in msg
+    # one short line with the rule, then a line per breach; no rule repeated
+    lines = msg.splitlines()
+    assert len(lines[0]) < 250 and all(len(line) < 250 for line in lines) and msg.count("1.5 ×") <= len(lines)
 
 
 def test_span_crossing_the_line_in_plan_is_refused():
     site = make(eave_y=30.0, oak_x=5.0, oak_y=-30.0, rx=(0.0, 31.0))
-    with pytest.raises(SafetyRefusal, match=r'the wire "span eave to oak" crosses the power line "street line" in plan'):
+    with pytest.raises(SafetyRefusal, match=r'inside: the wire "span eave to oak" \(crosses it\)'):
         enforce_site_clearance(site)
 
 
@@ -147,7 +149,7 @@ def test_lead_in_crossing_the_line_is_refused():
     with pytest.raises(SafetyRefusal) as err:
         enforce_site_clearance(site)
     msg = str(err.value)
-    assert 'the lead-in "lead-in" crosses the power line "street line" in plan' in msg
+    assert 'the lead-in "lead-in" (crosses it)' in msg
     assert 'the wire "span eave to oak"' not in msg
 
 
@@ -156,8 +158,9 @@ def test_support_whose_fall_zone_reaches_the_line_is_refused():
     site = make(eave_y=30.0, oak_x=20.0, oak_y=16.0)
     with pytest.raises(SafetyRefusal) as err:
         enforce_site_clearance(site)
-    assert 'the support "oak" is 16.0 m (in plan) from the power line "street line"' in str(err.value)
-    assert "Move it at least 2.0 m further" in str(err.value)
+    assert 'power line "street line": 18.0 m needed (1.5 × 12.0 m); inside: ' in str(err.value)
+    assert 'the support "oak" (16.0 m)' in str(err.value)
+    assert "at least 2.0 m further" in str(err.value)
 
 
 def test_unknown_line_kind_is_a_power_line():
@@ -217,8 +220,11 @@ def test_check_refuses_an_unsafe_site_with_exit_3(tmp_path, capsys):
     p.write_text(text, encoding="utf-8")
     assert main(["check", str(p)]) == EXIT_REFUSED
     err = capsys.readouterr().err
-    assert err.startswith("aerial: refused: this layout puts part of the aerial inside a power line's fall zone")
+    assert err.startswith(f"aerial: refused: {p}: this layout puts part of the aerial inside a power line's fall zone")
     assert "Traceback" not in err
+    lines = err.strip().splitlines()  # one short line plus a line per reason, not a paragraph repeating the rule
+    assert len(lines) == 2 and len(err) < 700, err
+    assert lines[1].startswith('  power line "street line": 18.0 m needed')
 
 
 def test_check_reports_an_invalid_plan_with_exit_2(tmp_path, capsys):
@@ -237,7 +243,7 @@ def test_report_refuses_an_unsafe_site_with_exit_3(tmp_path, capsys):
     assert main(["report", str(p), "--json"]) == EXIT_REFUSED
     captured = capsys.readouterr()
     assert captured.out == ""
-    assert 'the support "oak" is 16.0 m (in plan) from the power line "street line"' in captured.err
+    assert 'the support "oak" (16.0 m)' in captured.err and 'power line "street line"' in captured.err
 
 
 def test_example_site_passes_its_own_clearance():

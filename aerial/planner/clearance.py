@@ -124,18 +124,17 @@ class Finding:
     tallest_what: str
 
     def sentence(self) -> str:
+        """One short line: which part, how far from which line, what is needed and what to do."""
         what = {"wire": "the wire", "lead-in": "the lead-in", "support": "the support"}[self.part_kind]
-        rule = (f"at least {self.required_m:.1f} m is needed: 1.5 × {self.tallest_m:.1f} m ({self.tallest_what}, the "
-                f"tallest point of the aerial and its supports), and never less than the line's height "
-                f"({self.line_height_m:.1f} m)")
+        why = ("the line's height" if self.line_height_m >= 1.5 * self.tallest_m
+               else f"1.5 × {self.tallest_m:.1f} m")
         if self.crosses:
-            return (f'{what} "{self.part}" crosses the {self.line_kind} line "{self.line}" in plan (passing over or '
-                    f"under it); a wire must never cross a power line, and {rule}. Re-route it so every part stays "
-                    f"at least {self.required_m:.1f} m away.")
+            return (f'{what} "{self.part}" crosses the {self.line_kind} line "{self.line}" in plan: re-route it so '
+                    f"every part stays at least {self.required_m:.1f} m ({why}) away")
         more = max(self.required_m - self.distance_m, 0.0)
         return (f'{what} "{self.part}" is {self.distance_m:.1f} m (in plan) from the {self.line_kind} line '
-                f'"{self.line}"; {rule}. Move it at least {more:.1f} m further from the line, or use lower supports '
-                f"(for a tallest point of h the distance needed is 1.5 h).")
+                f'"{self.line}"; {self.required_m:.1f} m needed ({why}): move it at least {more:.1f} m further '
+                "from the line, or use lower supports")
 
 
 @dataclass
@@ -151,10 +150,31 @@ class ClearanceReport:
         return bool(self.findings)
 
     def message(self) -> str:
-        parts = [f.sentence() for f in self.findings]
-        return ("this layout puts part of the aerial inside a power line's fall zone, where a falling wire or "
-                "support could reach the line: " + " ".join(parts) +
-                " aerial will not analyse it. See docs/site-planner.md (safety rule).")
+        """One short line with the rule, then one line per power line with the parts inside its zone."""
+        first = self.findings[0]
+        head = (f"this layout puts part of the aerial inside a power line's fall zone (1.5 × its tallest point, "
+                f"{first.tallest_m:.1f} m at {first.tallest_what}, and never less than the line's height): aerial "
+                "will not analyse it (docs/site-planner.md, safety rule)")
+        return "\n".join([head] + self.by_line())
+
+    def by_line(self) -> list:
+        """One line per power line: the distance needed, the parts inside, and the move that clears them."""
+        out = []
+        for name in dict.fromkeys(f.line for f in self.findings):
+            found = [f for f in self.findings if f.line == name]
+            f0 = found[0]
+            why = "the line's height" if f0.line_height_m >= 1.5 * f0.tallest_m else f"1.5 × {f0.tallest_m:.1f} m"
+            what = {"wire": "the wire", "lead-in": "the lead-in", "support": "the support"}
+            parts = ", ".join(f'{what[f.part_kind]} "{f.part}" ' + ("(crosses it)" if f.crosses else
+                                                                     f"({f.distance_m:.1f} m)") for f in found)
+            more = max(f.required_m - f.distance_m for f in found)
+            out.append(f'{f0.line_kind} line "{name}": {f0.required_m:.1f} m needed ({why}); inside: {parts}; move '
+                       f"them at least {more:.1f} m further away (never across the line), or use lower supports")
+        return out
+
+    def summary(self) -> str:
+        """The breaches in one line, for a warning."""
+        return "; ".join(self.by_line())
 
 
 def _plan_geometry(points_m: np.ndarray):
@@ -292,7 +312,7 @@ def enforce_site_clearance(site) -> ClearanceReport:
 # --------------------------------------------------------------------------- many layouts at once
 
 
-def refuse_many(paths, tallest_m, lines):
+def refuse_many(paths, tallest_m, lines, details: bool = False):
     """Apply the rule to many candidate layouts at once.
 
     Parameters
@@ -311,25 +331,32 @@ def refuse_many(paths, tallest_m, lines):
     margin_m : ndarray
         Smallest (distance - required) over the power lines; +inf without
         power lines. [m]
+    per_line : list of (OverheadLine, refused, distance_m, required_m)
+        Only with ``details=True``: for each power line, the candidates it
+        refuses, their plan distance to it and the distance needed. [m]
     """
     paths = np.asarray(paths, dtype=object)
     tallest = np.asarray(tallest_m, dtype=float)
     refused = np.zeros(len(paths), dtype=bool)
     margin = np.full(len(paths), np.inf)
     power = [ln for ln in lines if ln.is_power]
+    per_line = []
     if not power or len(paths) == 0:
-        return refused, margin
+        return (refused, margin, per_line) if details else (refused, margin)
     heights, group = np.unique(tallest, return_inverse=True)
     for line in power:
         need = fall_zone_distance(tallest, line.height_m)
         dist = shapely.distance(paths, line.path)
         margin = np.minimum(margin, dist - need)
+        by_line = np.zeros(len(paths), dtype=bool)
         for g, h in enumerate(heights):
             sel = np.flatnonzero(group == g)
             zone = fall_zone(line.path, float(fall_zone_distance(h, line.height_m)))
             shapely.prepare(zone)
-            refused[sel] |= shapely.intersects(zone, paths[sel])
-    return refused, margin
+            by_line[sel] = shapely.intersects(zone, paths[sel])
+        refused |= by_line
+        per_line.append((line, by_line, dist, np.asarray(need, float)))
+    return (refused, margin, per_line) if details else (refused, margin)
 
 
 def crosses_many(paths, lines) -> np.ndarray:
