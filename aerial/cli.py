@@ -230,7 +230,7 @@ class _ProgressLines:
         if not total:
             return
         tenth = int(10 * done // total)
-        if tenth > self.tenth:
+        if tenth > self.tenth and (tenth > 0 or done >= total):
             self.tenth = tenth
             self._say(f"{self.label}: {10 * tenth} % ({done}/{total})")
 

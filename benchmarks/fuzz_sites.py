@@ -608,6 +608,11 @@ def classify(command: str, code, out: str, err: str, escaped: str, shown_path: s
             lines = lines[:-1]
         if out.strip():
             return "bad-stderr", f"exit {code} with output on stdout: {out[:200]!r}"
+        if code == 3:  # a refusal: one short line, then at most a few indented lines of reasons
+            reasons = lines[1:]
+            if len(reasons) > 5 or not all(r.startswith("  ") for r in reasons):
+                return "bad-stderr", f"refusal with {len(reasons)} lines of reasons: {err[:400]!r}"
+            lines = lines[:1]
         if len(lines) != 1:
             return "bad-stderr", f"{len(lines)} stderr lines: {err[:400]!r}"
         line = lines[0]

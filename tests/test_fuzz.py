@@ -291,8 +291,9 @@ def test_refusal_names_the_site_file(capsys, tmp_path):
     p.write_text(text, encoding="utf-8")
     code, _, err = run(capsys, "check", str(p))
     assert code == 3
-    line = one_line(err)
-    assert line.startswith("aerial: refused: ") and line.endswith(f"(site file {p})")
+    first, *reasons = err.rstrip("\n").split("\n")  # one short line, then a few lines of reasons
+    assert first.startswith(f"aerial: refused: {p}: ") and "Traceback" not in err
+    assert 1 <= len(reasons) <= 4 and all(r.startswith("  power line ") for r in reasons)
 
 
 # --------------------------------------------------------------------------- real processes

@@ -74,6 +74,34 @@ def build_scene(site, plan, layouts, zones) -> dict:
     }
 
 
+def line_label(ln: dict, zones: list) -> str:
+    """What a line's label on the plan says: its name, kind, height and (power) fall-zone distance."""
+    kind = "power line" if ln["kind"] == "power" else ln["kind"]
+    text = f"{ln['name']} ({kind}, {ln['height_m']:.1f} m high"
+    text += ")" if ln["kind"] != "power" else ""
+    zone = next((z for z in zones if z["name"] == ln["name"]), None)
+    if zone is not None:
+        text += f"): keep {zone['distance_m']:.1f} m clear"
+    elif ln["kind"] == "power":
+        text += ")"
+    return text
+
+
+def label_point(path, view) -> tuple[float, float]:
+    """Where on a line to put its label: the point of the line nearest the middle of the view, inside it. [m]
+
+    >>> label_point([[-100, 0], [100, 0]], (0, -10, 40, 10))
+    (20.0, 0.0)
+    """
+    from shapely.geometry import LineString, Point
+
+    x0, y0, x1, y1 = view
+    line = LineString(path)
+    p = line.interpolate(line.project(Point(0.5 * (x0 + x1), 0.5 * (y0 + y1))))
+    pad_x, pad_y = 0.05 * (x1 - x0), 0.05 * (y1 - y0)
+    return (float(min(max(p.x, x0 + pad_x), x1 - pad_x)), float(min(max(p.y, y0 + pad_y), y1 - pad_y)))
+
+
 def _view(scene) -> tuple[float, float, float, float]:
     pts = []
     if scene["lot"]:
@@ -155,6 +183,14 @@ def svg_text(scene) -> str:
         out.append(f'<polyline class="overhead-line {"power" if ln["kind"] == "power" else "telecom"}" '
                    f'points="{pts(ln["path"])}" fill="none" stroke="{col}" stroke-width="3">'
                    f"<title>{escape(ln['name'])} ({escape(ln['kind'])}, {ln['height_m']:.1f} m)</title></polyline>")
+    for ln in scene["lines"]:
+        lx, ly = label_point(ln["path"], (x0, y0, x1, y1))
+        col = COLOURS["power"] if ln["kind"] == "power" else COLOURS["telecom"]
+        below = ln["kind"] == "power"  # power labels under their line, others over it: two lines side by side stay legible
+        out.append(f'<text class="line-label" x="{X(lx):.1f}" y="{Y(ly) + (16 if below else -6):.1f}" '
+                   f'text-anchor="middle" fill="{col}" '
+                   f'font-weight="bold" stroke="white" stroke-width="3" paint-order="stroke">'
+                   f"{escape(line_label(ln, scene['zones']))}</text>")
     for lay in reversed(scene["layouts"]):
         first = lay["rank"] == 1
         col = COLOURS["wire"] if first else COLOURS["other"]
@@ -248,7 +284,11 @@ def png_bytes(scene) -> bytes:
         ax.add_patch(MplPolygon(o["outline"], closed=True, facecolor=COLOURS["obstacle"], edgecolor="#a33"))
     for ln in scene["lines"]:
         p = np.array(ln["path"])
-        ax.plot(p[:, 0], p[:, 1], color=COLOURS["power"] if ln["kind"] == "power" else COLOURS["telecom"], lw=2.5)
+        col = COLOURS["power"] if ln["kind"] == "power" else COLOURS["telecom"]
+        ax.plot(p[:, 0], p[:, 1], color=col, lw=2.5)
+        lx, ly = label_point(ln["path"], (x0, y0, x1, y1))
+        ax.text(lx, ly, line_label(ln, scene["zones"]), color=col, fontsize=8, fontweight="bold", ha="center",
+                va="top" if ln["kind"] == "power" else "bottom", bbox={"facecolor": "white", "edgecolor": "none", "alpha": 0.8, "pad": 1})
     for lay in reversed(scene["layouts"]):
         first = lay["rank"] == 1
         t, ld = np.array(lay["top"]), np.array(lay["lead"])

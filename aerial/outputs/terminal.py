@@ -458,20 +458,27 @@ def render_layout(result: dict, console, units: str = "si") -> None:
     L = Lengths(units)
     console.print(f"[bold]{escape(result['site']['name'])}[/bold]  ({escape(result['site']['file'])})")
     console.print(f"objective: {escape(L.text(result.get('objective', '')))}")
-    console.print(f"candidates: {result.get('candidates_considered', 0)} considered, "
-                  f"{result.get('candidates_refused', 0)} refused for safety or geometry")
-    excluded = {k: v for k, v in (result.get("excluded") or {}).items() if v}
-    if excluded:
-        console.print("[dim]excluded: " + escape(", ".join(f"{k} ({v})" for k, v in excluded.items())) + "[/dim]")
+    _render_refusals(result, console, L)
     unit = result.get("score_unit", "")
+    label = result.get("score_label", "score")
+    at = f" at {eng(result['layouts'][0]['figures_at_hz'], 'Hz')}" if result.get("layouts") and \
+        result["layouts"][0].get("figures_at_hz") else ""
     t = Table(title="Best safe layouts", title_justify="left")
-    for col in ("#", "layout", "wire", "eff. height", "capacitance", f"score [{unit}]" if unit else "score"):
+    for col in ("#", "layout", "wire", f"eff. height{at}", f"capacitance{at}", f"{label} [{unit}]" if unit else label,
+                "vs #1"):
         t.add_column(escape(col), justify="left" if col == "layout" else "right")
     layouts = result.get("layouts", [])
     for i, c in enumerate(layouts, 1):
         t.add_row(str(i), escape(c.get("description", "")), L(c.get("wire_length_m")),
-                  L(c.get("effective_height_m")), eng(c.get("capacitance_f"), "F"), f"{c.get('score', 0):.1f}")
+                  L(c.get("effective_height_m")), eng(c.get("capacitance_f"), "F"), f"{c.get('score', 0):.1f}",
+                  db(c["score"] - layouts[0]["score"]) if i > 1 else "—")
     show(console, t)
+    if result.get("score_meaning"):
+        console.print(f"[dim]{escape(L.text(result['score_meaning']))}[/dim]")
+    if result.get("figures_model") and layouts:
+        diff = result.get("screening_difference_db")
+        extra = f" (on these layouts the two differ by up to {diff:.1f} dB)" if diff is not None else ""
+        console.print(f"[dim]figures: {escape(result['figures_model'])}{extra}[/dim]")
     for i, c in enumerate(layouts, 1):
         if c.get("reason"):
             console.print(f"  {i}. {escape(L.text(c['reason']))}")
@@ -486,6 +493,33 @@ def render_layout(result: dict, console, units: str = "si") -> None:
         console.print(f"plan drawing: {escape(str(result['picture']))}")
     _lines(console, "Warnings", result.get("warnings", []), "yellow", L)
     _lines(console, "Safety", result.get("cautions", []), "red", L)
+
+
+def _render_refusals(result: dict, console, L: Lengths) -> None:
+    """How many candidates were refused, grouped by cause, with the nearest miss."""
+    ref = result.get("refusals")
+    considered = result.get("candidates_considered", 0)
+    if not ref:
+        console.print(f"candidates: {considered} considered, {result.get('candidates_refused', 0)} refused")
+        return
+    ranked = considered - ref["total"]
+    console.print(f"candidates: {considered:,} considered, {ref['total']:,} refused ({ref['safety']:,} for safety, "
+                  f"{ref['geometry']:,} for geometry), {ranked:,} ranked")
+    if ref["causes"]:
+        console.print("why refused (a layout with several causes counts under each):")
+        t = Table(show_header=False, box=None, padding=(0, 1))
+        t.add_column("count", justify="right")
+        t.add_column("cause")
+        for c in ref["causes"]:
+            t.add_row(f"{c['count']:,}", escape(("safety: " if c["kind"] == "safety" else "") + c["cause"]))
+        show(console, t)
+    if ref.get("nearest_miss"):
+        console.print(f"  nearest miss: {escape(L.text(ref['nearest_miss']['sentence']))}")
+    for block in ref.get("blocking", []):
+        console.print(f"  [yellow]blocking:[/yellow] {escape(L.text(block['sentence']))}")
+    kept = {k: v for k, v in ref.get("kept_with_penalty", {}).items() if v}
+    if kept:
+        console.print("  kept with a 3 dB penalty: " + escape(", ".join(f"{v:,} {k}" for k, v in kept.items())))
 
 
 COIL_ROWS = (

@@ -30,7 +30,6 @@ Frame: metres, x east, y north, z up (heights above the ground).
 from __future__ import annotations
 
 import math
-from dataclasses import replace
 
 import numpy as np
 import shapely
@@ -404,8 +403,8 @@ def _geometry(ctx: _Context, fam, i, j, k):
     }
 
 
-def _evaluate(ctx: _Context, fam, i, j, k, *, details=False):
-    """Check and score one batch; returns the survivors' scores and the counts."""
+def _evaluate(ctx: _Context, fam, i, j, k, *, details=False, tally=None):
+    """Check and score one batch; returns the survivors' scores and the counts (also into ``tally``)."""
     from aerial.planner.clearance import crosses_many, refuse_many
 
     g = _geometry(ctx, fam, i, j, k)
@@ -413,7 +412,7 @@ def _evaluate(ctx: _Context, fam, i, j, k, *, details=False):
     top = shapely.linestrings(g["top_xy"])
     lead = shapely.linestrings(g["lead_xy"])
     n = len(fam)
-    refused, margin = refuse_many(full, g["tallest"], ctx.plan.lines)
+    refused, margin, per_line = refuse_many(full, g["tallest"], ctx.plan.lines, details=True)
     reasons = np.full(n, -1)
 
     def mark(mask, code):
@@ -457,6 +456,10 @@ def _evaluate(ctx: _Context, fam, i, j, k, *, details=False):
     counts = {"refused_safety": int(refused.sum())}
     for code, name in enumerate(EXCLUSION_REASONS):
         counts[name] = int((reasons == code).sum())
+    if tally is not None:
+        tally.add_safety(per_line, fam, i, j, k, margin)
+        tally.add_geometry(np.where(refused, -1, reasons))
+        tally.add_penalised(np.count_nonzero(over_roof & keep), np.count_nonzero(outside))
     sel = np.flatnonzero(keep)
     figs = layout_figures(g["kind"][sel], g["junction_height_model"][sel], g["arm1"][sel], g["arm2"][sel],
                           g["t1"][sel], g["t2"][sel], g["lead_len"][sel], ctx.ehm, ctx.radius,
@@ -494,13 +497,17 @@ def _objective(site, warnings: list) -> dict:
                     f"R_total = radiation + conductor loss + the site's earth resistance ({earth_ohm:.3g} Ω), averaged "
                     "over the stations in dB above 1 W; E from the ground-wave model at each station's frequency")
         return {"kind": "stations", "frequency_hz": f, "field_v_per_m": e, "earth_ohm": earth_ohm or 0.0,
-                "text": text, "unit": "dBW"}
+                "text": text, "unit": "dBW", "label": "signal",
+                "meaning": "signal: the mean over the listed stations of the power the aerial can deliver to the "
+                           "receiver, in dB above 1 W (dBW); higher is better, +3 dB is twice the power"}
     f = np.array([math.sqrt(lo * hi) for _, lo, hi in site.bands])
     text = ("no stations listed: effective height times capacitance at the centre of each band, "
             "20·log10(h_e·C / 1 m·pF) averaged over the bands (a short aerial drives a current ωC·E·h_e into a "
             "loosely coupled tuned circuit)")
     return {"kind": "height-capacitance", "frequency_hz": f, "field_v_per_m": None, "earth_ohm": 0.0,
-            "text": text, "unit": "dB(m·pF)"}
+            "text": text, "unit": "dB(m·pF)", "label": "h_e·C",
+            "meaning": "h_e·C: effective height times capacitance, in dB above 1 m·pF, averaged over the bands; "
+                       "higher is better, +6 dB is twice the signal voltage in a loosely coupled tuned circuit"}
 
 
 def _earth_resistance(site):
@@ -514,6 +521,10 @@ def _earth_resistance(site):
     if not math.isfinite(value) or value < 0:
         return None, "the earth resistance is not a finite number; ranked with conductor loss only"
     return value, None
+
+
+#: Layouts re-computed with the report's model before the final order is fixed (at least ``best``).
+REPORT_MODEL_POOL = 10
 
 
 def plan_layouts(site, best=5, full_wave=False, draw=None, allow_large=False, progress=None) -> dict:
@@ -535,15 +546,18 @@ def plan_layouts(site, best=5, full_wave=False, draw=None, allow_large=False, pr
     allow_large : bool
         Search beyond ``MAX_CANDIDATES``.
     progress : callable, optional
-        ``progress(done, total)`` after each batch of candidates.
+        ``progress(done, total)`` after each batch of candidates (and
+        ``progress.stage(text)``, when it has one, at each stage).
 
     Returns
     -------
     dict
-        JSON-ready: site, objective, candidates_considered, candidates_refused
-        (safety and geometry), candidates_refused_safety, excluded (by reason),
-        layouts (best first), apartment, code_checklist, picture, full_wave,
-        warnings, cautions.
+        JSON-ready: site, objective, score_unit, score_label, score_meaning,
+        candidates_considered, candidates_refused (safety and geometry),
+        candidates_refused_safety, excluded (by reason), refusals (by cause,
+        nearest miss, blocking parts), layouts (best first, with the
+        report's figures), figures_model, apartment, code_checklist,
+        picture, full_wave, warnings, cautions.
 
     Raises
     ------
@@ -552,9 +566,28 @@ def plan_layouts(site, best=5, full_wave=False, draw=None, allow_large=False, pr
     AerialError
         When there is nothing to search (no candidate support) or ``best`` is out of range.
     """
-    from aerial.planner.clearance import check_site_clearance, fall_zone, fall_zone_distance
+    from aerial.estimate.assemble import stage
+
+    plan, total, warnings = _prepare(site, best, allow_large)
+    objective = _objective(site, warnings)
+    ctx = _Context(site, plan, objective)
+    stage(progress, f"screening {total:,} candidate layouts")
+    top_rec, tally = _search(ctx, total, max(best, REPORT_MODEL_POOL), progress)
+    stage(progress, "the listed layouts with the report's model")
+    layouts, screening_error_db = _listed_layouts(ctx, top_rec, best, warnings)
+    result = _result(site, plan, ctx, objective, total, tally, layouts, warnings)
+    result["screening_difference_db"] = screening_error_db
+    if layouts:
+        _winner_extras(result, site, plan, ctx, objective, full_wave, warnings, progress)
+    if draw is not None:
+        result["picture"] = _draw(draw, site, plan, ctx, layouts)
+    return result
+
+
+def _prepare(site, best, allow_large):
+    """Check the request and the site's own wire; returns the plan, the candidate count and the first warnings."""
+    from aerial.planner.clearance import check_site_clearance
     from aerial.site.plan import parse_plan
-    from aerial.estimate.cautions import cautions_for
 
     if isinstance(best, bool) or not isinstance(best, int) or not 1 <= best <= MAX_BEST:
         raise AerialError(f"best = {best!r}: expected a whole number from 1 to {MAX_BEST}")
@@ -578,53 +611,115 @@ def plan_layouts(site, best=5, full_wave=False, draw=None, allow_large=False, pr
     own = check_site_clearance(site, plan)
     if own.refused:
         warnings.append("Your present wire breaks the power-line rule (aerial report and aerial check will refuse it): "
-                        + own.message())
+                        + own.summary())
     warnings += own.warnings
-    objective = _objective(site, warnings)
-    ctx = _Context(site, plan, objective)
+    return plan, total, warnings
 
-    counts = {"refused_safety": 0, **{r: 0 for r in EXCLUSION_REASONS}}
+
+def _search(ctx: _Context, total: int, keep: int, progress):
+    """Screen every candidate in batches; returns the ``keep`` best records (best first) and the refusal tally."""
+    from aerial.planner.refusals import RefusalTally
+
+    n = len(ctx.names)
+    tally = RefusalTally(ctx.names, np.stack([ctx.x, ctx.y], axis=1), (ctx.ex, ctx.ey), ctx.plan.power_lines,
+                         EXCLUSION_REASONS)
     top_score = np.empty(0)
     top_rec = np.empty((0, 4), dtype=np.int64)
     done = 0
     for fam, i, j, k in _chunks(n, CHUNK_CANDIDATES):
-        ev = _evaluate(ctx, fam, i, j, k)
-        for key, v in ev["counts"].items():
-            counts[key] += v
+        ev = _evaluate(ctx, fam, i, j, k, tally=tally)
         sel = ev["index"]
-        rec = np.stack([fam[sel], i[sel], j[sel], k[sel]], axis=1)
         top_score = np.concatenate([top_score, ev["score"]])
-        top_rec = np.concatenate([top_rec, rec])
-        if len(top_score) > best:
-            part = np.argpartition(-top_score, best - 1)[:best]
+        top_rec = np.concatenate([top_rec, np.stack([fam[sel], i[sel], j[sel], k[sel]], axis=1)])
+        if len(top_score) > keep:
+            part = np.argpartition(-top_score, keep - 1)[:keep]
             top_score, top_rec = top_score[part], top_rec[part]
         done += len(fam)
         if progress is not None:
             progress(done, total)
-    order = np.argsort(-top_score, kind="stable")
-    top_rec = top_rec[order]
-    refused_total = counts["refused_safety"] + sum(counts[r] for r in EXCLUSION_REASONS)
+    return top_rec[np.argsort(-top_score, kind="stable")], tally
 
-    layouts = []
-    if len(top_rec):
-        ev = _evaluate(ctx, top_rec[:, 0], top_rec[:, 1], top_rec[:, 2], top_rec[:, 3], details=True)
-        layouts = _describe(ctx, top_rec, ev)
-    else:
+
+def _listed_layouts(ctx: _Context, top_rec, best: int, warnings: list):
+    """Describe the screened pool, compute each with the report's model, re-order, keep ``best``.
+
+    Returns the layouts and the largest difference between a listed
+    layout's screening score and its score by the report's model [dB].
+    """
+    if not len(top_rec):
         warnings.append("No safe layout was found among the candidate supports: every candidate was refused or "
-                        "excluded (see the counts). Add supports further from the power lines or lower ones.")
+                        "excluded (see the causes). Add supports further from the power lines or lower ones.")
+        return [], None
+    ev = _evaluate(ctx, top_rec[:, 0], top_rec[:, 1], top_rec[:, 2], top_rec[:, 3], details=True)
+    pool = _describe(ctx, top_rec, ev)
+    differences = [_apply_report_model(ctx, lay) for lay in pool]
+    pool.sort(key=lambda lay: -lay["score"])
+    layouts = pool[:best]
+    for rank, lay in enumerate(layouts, 1):
+        lay["rank"] = rank
+    _explain(ctx, layouts)
     if any(lay.get("outside_model_range") for lay in layouts):
         warnings.append("Some layouts are long compared with the wavelength at a ranking frequency (past 1/8 wave or "
                         "the first resonance): their closed-form figures are rough there; they are flagged.")
+    known = [d for d in differences if d is not None]
+    return layouts, (max(known) if known else None)
 
-    result = {
+
+def _apply_report_model(ctx: _Context, lay: dict):
+    """Replace a layout's screening figures and score by the report's model; returns |difference| [dB] or None."""
+    from aerial.planner.figures import REPORT_MODEL, safe_report_figures
+
+    obj = ctx.objective
+    figs, why = safe_report_figures(ctx.site, lay, ctx.size, (ctx.ex, ctx.ey, ctx.eh), obj["frequency_hz"],
+                                    floor_m=ctx.floor)
+    lay["screening"] = {"effective_height_m": lay["effective_height_m"], "capacitance_f": lay["capacitance_f"],
+                        "score": lay["score"]}
+    if figs is None:
+        lay["figures_model"] = f"screening estimate (the report's model could not take this layout: {why})"
+        return None
+    he = figs["effective_height_m"]
+    if obj["kind"] == "stations":
+        raw = station_score_db(he[None, :], figs["radiation_resistance_ohm"][None, :],
+                               figs["conductor_loss_ohm"][None, :], obj["field_v_per_m"], obj["earth_ohm"])[0]
+    else:
+        raw = height_capacitance_score_db(he[None, :], figs["static_capacitance_f"][:1])[0]
+    penalty = PENALTY_OVER_ROOF_DB * lay["over_roof"] + PENALTY_OUTSIDE_LOT_DB * lay["outside_lot"]
+    score = float(raw - penalty)
+    difference = abs(score - lay["score"])
+    lay.update({
+        "score": score,
+        "figures_model": REPORT_MODEL + (" (heights from the balcony slab)" if ctx.floor > 0 else ""),
+        "figures_at_hz": float(obj["frequency_hz"][0]),
+        "effective_height_m": float(he[0]),
+        "effective_height_by_frequency_m": [float(v) for v in he],
+        "capacitance_f": float(figs["capacitance_f"][0]),
+        "static_capacitance_f": float(figs["static_capacitance_f"][0]),
+        "radiation_resistance_ohm": float(figs["radiation_resistance_ohm"][0]),
+        "conductor_loss_ohm": float(figs["conductor_loss_ohm"][0]),
+        "shape": figs["shape"],
+        "outside_model_range": bool(lay["outside_model_range"] or not figs["reliable"]),
+    })
+    return difference
+
+
+def _result(site, plan, ctx, objective, total, tally, layouts, warnings) -> dict:
+    """The JSON-ready result, before the winner's extras."""
+    from aerial.estimate.cautions import cautions_for
+    from aerial.planner.figures import REPORT_MODEL
+
+    refusals = tally.summary(lambda fam, i, j, k: _layout_words(ctx, fam, i, j, k)[1])
+    return {
         "site": {"name": site.name, "file": site.path},
         "objective": objective["text"],
         "score_unit": objective["unit"],
+        "score_label": objective["label"],
+        "score_meaning": objective["meaning"],
         "ranking_frequencies_hz": [float(v) for v in objective["frequency_hz"]],
         "candidates_considered": int(total),
-        "candidates_refused": int(refused_total),
-        "candidates_refused_safety": int(counts["refused_safety"]),
-        "excluded": {r: int(counts[r]) for r in EXCLUSION_REASONS},
+        "candidates_refused": int(tally.total),
+        "candidates_refused_safety": int(tally.safety),
+        "excluded": dict(tally.geometry),
+        "refusals": refusals,
         "rules": {
             "fall_zone": "every wire, support and the lead-in at least max(1.5 × tallest point of the aerial or its "
                          "supports, the line's height) from any power line in plan, and no wire crossing one "
@@ -634,6 +729,8 @@ def plan_layouts(site, best=5, full_wave=False, draw=None, allow_large=False, pr
             "obstacles": "any wire crossing an obstacle or a telephone/cable line in plan: excluded",
             "lot": f"any wire outside the lot: kept, flagged, -{PENALTY_OUTSIDE_LOT_DB:g} dB",
         },
+        "figures_model": (f"the figures and scores of the listed layouts are the {REPORT_MODEL}; all "
+                          f"{total:,} candidates were first screened with a faster model"),
         "layouts": layouts,
         "apartment": apartment_notes(site, plan, objective["frequency_hz"]) if plan.building == "apartment" else [],
         "code_checklist": [],
@@ -645,124 +742,147 @@ def plan_layouts(site, best=5, full_wave=False, draw=None, allow_large=False, pr
             "anything, and ask the electricity supplier when a line's kind or height is in doubt.",
         ],
     }
-    if layouts:
-        from aerial.planner.codes import LayoutFacts, code_checklist
 
-        win = layouts[0]
-        lead_geo = [shapely.LineString(np.array(win["lead_in_points_m"])[:, :2])] if win["lead_in_length_m"] > 0 else []
-        facts = LayoutFacts(win["open_spans_m"], 2 * ctx.radius, ctx.size.material, ctx.size.described_as,
-                            lead_geo, [ctx.kinds[ctx.names.index(s)] for s in win["supports"]],
-                            f"the top-ranked layout ({win['description']})")
-        result["code_checklist"] = code_checklist(site, plan, facts)
-        if full_wave:
-            result["full_wave"] = _refine(site, ctx, win, objective)
-            warnings.append("Full-wave check: " + result["full_wave"]["note"])
-    if draw is not None:
-        zones = []
-        tallest = layouts[0]["tallest_m"] if layouts else float(np.max(ctx.h))
-        for line in plan.power_lines:
-            d = float(fall_zone_distance(tallest, line.height_m))
-            zones.append((line.name, fall_zone(line.path, d), d))
-        result["picture"] = draw(site, plan, layouts[:3], zones)
-    return result
+
+def _winner_extras(result, site, plan, ctx, objective, full_wave, warnings, progress) -> None:
+    """The code checklist for the top-ranked layout, and its full-wave check when asked."""
+    from aerial.estimate.assemble import stage
+    from aerial.planner.codes import LayoutFacts, code_checklist
+
+    win = result["layouts"][0]
+    lead_geo = [shapely.LineString(np.array(win["lead_in_points_m"])[:, :2])] if win["lead_in_length_m"] > 0 else []
+    facts = LayoutFacts(win["open_spans_m"], 2 * ctx.radius, ctx.size.material, ctx.size.described_as,
+                        lead_geo, [ctx.kinds[ctx.names.index(s)] for s in win["supports"]],
+                        f"the top-ranked layout ({win['description']})")
+    result["code_checklist"] = code_checklist(site, plan, facts)
+    if full_wave:
+        stage(progress, "full-wave check of the winner")
+        result["full_wave"] = _refine(site, ctx, win, objective)
+        warnings.append("Full-wave check: " + result["full_wave"]["note"])
+
+
+def _draw(draw, site, plan, ctx, layouts):
+    from aerial.planner.clearance import fall_zone, fall_zone_distance
+
+    zones = []
+    tallest = layouts[0]["tallest_m"] if layouts else float(np.max(ctx.h))
+    for line in plan.power_lines:
+        d = float(fall_zone_distance(tallest, line.height_m))
+        zones.append((line.name, fall_zone(line.path, d), d))
+    return draw(site, plan, layouts[:3], zones)
 
 
 def _fmt_names(names):
     return " – ".join(f'"{s}"' for s in names)
 
 
+def _layout_words(ctx: _Context, fam, i, j, k):
+    """The supports of a layout (in wire order) and its description in words."""
+    names = ctx.names
+    fam, i, j, k = int(fam), int(i), int(j), int(k)
+    near, far = (i, j) if ctx.dentry[i] <= ctx.dentry[j] else (j, i)
+    if fam == SPAN:
+        sup = [names[far], names[near]]
+        return sup, f"inverted-L: span {_fmt_names(sup)}, lead-in down from \"{names[near]}\""
+    if fam == TEE:
+        sup = [names[i], names[j]]
+        return sup, f"T: span {_fmt_names(sup)}, lead-in from mid-span"
+    if fam == DOGLEG:
+        sup = [names[far], names[k], names[near]]
+        return sup, f"dog-leg: {_fmt_names(sup)}, lead-in down from \"{names[near]}\""
+    if fam == VEE:
+        sup = [names[i], names[k], names[j]]
+        return sup, f"T with unequal arms: {_fmt_names(sup)}, lead-in from \"{names[k]}\""
+    return [names[i]], f"sloping wire from \"{names[i]}\" down to the entry"
+
+
+def _top_points(ctx: _Context, fam, i, j, k, near, far, hj):
+    """Points of the top wire (or the sloping wire) and its open spans. [m]"""
+    xyz = lambda a: [ctx.x[a], ctx.y[a], ctx.h[a]]  # noqa: E731
+    if fam == SPAN:
+        pts = [xyz(far), xyz(near)]
+    elif fam == TEE:
+        pts = [xyz(i), [0.5 * (ctx.x[i] + ctx.x[j]), 0.5 * (ctx.y[i] + ctx.y[j]), hj], xyz(j)]
+        return pts, [float(np.linalg.norm(np.subtract(pts[2], pts[0])))], pts[1]
+    elif fam == DOGLEG:
+        pts = [xyz(far), xyz(k), xyz(near)]
+    elif fam == VEE:
+        pts = [xyz(i), xyz(k), xyz(j)]
+        spans = [float(np.linalg.norm(np.subtract(pts[1], pts[0]))), float(np.linalg.norm(np.subtract(pts[2], pts[1])))]
+        return pts, spans, pts[1]
+    else:
+        pts = [xyz(i), [ctx.ex, ctx.ey, ctx.eh]]
+    spans = [float(np.linalg.norm(np.subtract(b, a))) for a, b in zip(pts[:-1], pts[1:])]
+    return pts, spans, pts[-1]
+
+
 def _describe(ctx: _Context, rec, ev) -> list[dict]:
     g = ev["geometry"]
     figs = ev["figures"]
     out = []
-    names = ctx.names
-    lines = {ln.name: ln for ln in ctx.plan.power_lines}
     for row, idx in enumerate(ev["index"]):
         fam, i, j, k = (int(v) for v in rec[idx])
         near, far = int(g["near"][idx]), int(g["far"][idx])
         hj = float(g["junction_height"][idx])
-        if fam == SPAN:
-            sup = [names[far], names[near]]
-            desc = f"inverted-L: span {_fmt_names(sup)}, lead-in down from \"{names[near]}\""
-            spans = [float(g["arm1"][idx])]
-            top_pts = [[ctx.x[far], ctx.y[far], ctx.h[far]], [ctx.x[near], ctx.y[near], ctx.h[near]]]
-            jxyz = top_pts[-1]
-        elif fam == TEE:
-            sup = [names[i], names[j]]
-            desc = f"T: span {_fmt_names(sup)}, lead-in from mid-span"
-            spans = [float(2 * g["arm1"][idx])]
-            jxyz = [0.5 * (ctx.x[i] + ctx.x[j]), 0.5 * (ctx.y[i] + ctx.y[j]), hj]
-            top_pts = [[ctx.x[i], ctx.y[i], ctx.h[i]], jxyz, [ctx.x[j], ctx.y[j], ctx.h[j]]]
-        elif fam == DOGLEG:
-            sup = [names[far], names[k], names[near]]
-            desc = f"dog-leg: {_fmt_names(sup)}, lead-in down from \"{names[near]}\""
-            top_pts = [[ctx.x[a], ctx.y[a], ctx.h[a]] for a in (far, k, near)]
-            spans = [float(np.linalg.norm(np.subtract(top_pts[1], top_pts[0]))),
-                     float(np.linalg.norm(np.subtract(top_pts[2], top_pts[1])))]
-            jxyz = top_pts[-1]
-        elif fam == VEE:
-            sup = [names[i], names[k], names[j]]
-            desc = f"T with unequal arms: {_fmt_names(sup)}, lead-in from \"{names[k]}\""
-            top_pts = [[ctx.x[a], ctx.y[a], ctx.h[a]] for a in (i, k, j)]
-            spans = [float(g["arm1"][idx]), float(g["arm2"][idx])]
-            jxyz = top_pts[1]
-        else:
-            sup = [names[i]]
-            desc = f"sloping wire from \"{names[i]}\" down to the entry"
-            top_pts = [[ctx.x[i], ctx.y[i], ctx.h[i]], [ctx.ex, ctx.ey, ctx.eh]]
-            spans = [float(g["arm1"][idx])]
-            jxyz = top_pts[-1]
-        lead_pts = [list(map(float, jxyz)), [ctx.ex, ctx.ey, ctx.eh]]
-        lead_len = float(g["lead_len"][idx])
-        top_len = float(g["arm1"][idx] + g["arm2"][idx])
-        he = figs["effective_height_m"][row]
-        c = float(figs["capacitance_f"][row])
+        sup, desc = _layout_words(ctx, fam, i, j, k)
+        top_pts, spans, jxyz = _top_points(ctx, fam, i, j, k, near, far, hj)
         margin = float(ev["margin"][row])
-        reason = [f"h_e {he[0]:.1f} m (junction {hj:.1f} m high)" if fam != SLOPER else
-                  f"h_e {he[0]:.1f} m (top end {float(ctx.h[i]):.1f} m high)",
-                  f"{top_len:.0f} m {'top' if fam != SLOPER else 'sloping wire'}"]
-        if math.isfinite(margin):
-            closest = min(lines.values(), key=lambda ln: float(ev["full"][row].distance(ln.path))
-                          - float(max(1.5 * g["tallest"][idx], ln.height_m)))
-            reason.append(f"{margin:.1f} m outside the fall zone of \"{closest.name}\"")
-        if ev["over_roof"][row]:
-            reason.append(f"passes over the roof of {', '.join(repr(s) for s in ev['roof_names'][row])} "
-                          f"(-{PENALTY_OVER_ROOF_DB:g} dB)")
-        if ev["outside"][row]:
-            reason.append(f"part of it is outside the lot (-{PENALTY_OUTSIDE_LOT_DB:g} dB; ask the neighbour)")
-        if figs["out_of_range"][row]:
-            reason.append("long for the wavelength: figures rough")
-        item = {
+        he = figs["effective_height_m"][row]
+        out.append({
             "rank": len(out) + 1,
             "family": FAMILIES[fam],
             "description": desc,
             "supports": sup,
-            "wire_length_m": top_len + lead_len,
-            "top_length_m": top_len,
-            "lead_in_length_m": lead_len,
+            "wire_length_m": float(g["arm1"][idx] + g["arm2"][idx] + g["lead_len"][idx]),
+            "top_length_m": float(g["arm1"][idx] + g["arm2"][idx]),
+            "lead_in_length_m": float(g["lead_len"][idx]),
             "open_spans_m": spans,
             "junction_height_m": hj,
             "tallest_m": float(g["tallest"][idx]),
             "effective_height_m": float(he[0]),
             "effective_height_by_frequency_m": [float(v) for v in he],
-            "capacitance_f": c,
+            "capacitance_f": float(figs["capacitance_f"][row]),
             "radiation_resistance_ohm": float(figs["radiation_resistance_ohm"][row][0]),
             "conductor_loss_ohm": float(figs["loss_resistance_ohm"][row][0]),
             "score": float(ev["score"][row]),
             "clearance_margin_m": margin if math.isfinite(margin) else None,
+            "closest_line": _closest_line(ctx, ev["full"][row], float(g["tallest"][idx])) if math.isfinite(margin) else None,
             "over_roof": bool(ev["over_roof"][row]),
+            "roofs": list(ev["roof_names"][row]),
             "outside_lot": bool(ev["outside"][row]),
             "outside_model_range": bool(figs["out_of_range"][row]),
-            "reason": "; ".join(reason),
             "top_points_m": [[float(v) for v in p] for p in top_pts],
-            "lead_in_points_m": lead_pts,
-        }
-        out.append(item)
-    # why the winner wins
-    if len(out) > 1:
-        d = out[0]["score"] - out[1]["score"]
-        out[0]["reason"] += f"; {d:.1f} dB ahead of #2"
+            "lead_in_points_m": [list(map(float, jxyz)), [ctx.ex, ctx.ey, ctx.eh]],
+        })
     return out
+
+
+def _closest_line(ctx: _Context, geometry, tallest: float) -> str:
+    """The power line whose fall zone the layout comes closest to."""
+    return min(ctx.plan.power_lines,
+               key=lambda ln: float(geometry.distance(ln.path)) - float(max(1.5 * tallest, ln.height_m))).name
+
+
+def _explain(ctx: _Context, layouts: list) -> None:
+    """Each listed layout's ``reason``: its figures, clearance, penalties and lead over the next."""
+    for n, lay in enumerate(layouts):
+        sloper = lay["family"] == FAMILIES[SLOPER]
+        where = (f"top end {lay['top_points_m'][0][2]:.1f} m high" if sloper
+                 else f"junction {lay['junction_height_m']:.1f} m high")
+        reason = [f"h_e {lay['effective_height_m']:.1f} m ({where})",
+                  f"{lay['top_length_m']:.0f} m {'sloping wire' if sloper else 'top'}"]
+        if lay["clearance_margin_m"] is not None:
+            reason.append(f"{lay['clearance_margin_m']:.1f} m outside the fall zone of \"{lay['closest_line']}\"")
+        if lay["over_roof"]:
+            reason.append(f"passes over the roof of {', '.join(repr(s) for s in lay['roofs'])} "
+                          f"(-{PENALTY_OVER_ROOF_DB:g} dB)")
+        if lay["outside_lot"]:
+            reason.append(f"part of it is outside the lot (-{PENALTY_OUTSIDE_LOT_DB:g} dB; ask the neighbour)")
+        if lay["outside_model_range"]:
+            reason.append("long for the wavelength: figures rough")
+        if n + 1 < len(layouts):
+            reason.append(f"{lay['score'] - layouts[n + 1]['score']:.1f} dB ahead of #{n + 2}")
+        lay["reason"] = "; ".join(reason)
 
 
 def _refine(site, ctx: _Context, win: dict, objective: dict) -> dict:
@@ -774,20 +894,12 @@ def _refine(site, ctx: _Context, win: dict, objective: dict) -> dict:
                 "note": "full-wave refinement is unavailable in this build (no full-wave solver installed); the "
                         "ranking uses the closed forms only"}
     from aerial.geometry.resolve import resolve
-    from aerial.site.reader import WireRun
+    from aerial.planner.figures import planned_site, planned_wires
 
-    size = ctx.size
-    top = WireRun("planned top", "aerial", np.array(win["top_points_m"]), size, "plan", (None,) * len(win["top_points_m"]))
-    wires = [top]
-    if win["lead_in_length_m"] > 0:
-        wires.append(WireRun("planned lead-in", "lead-in", np.array(win["lead_in_points_m"]), size, "plan", (None, None)))
-    if ctx.eh > 0.05:
-        wires.append(WireRun("earth lead", "earth lead", np.array([[ctx.ex, ctx.ey, ctx.eh], [ctx.ex, ctx.ey, 0.0]]),
-                             size, "plan", (None, None)))
-    wires += [w for w in site.wires if w.role == "counterpoise"]
-    planned = replace(site, wires=wires, receiver=replace(site.receiver, x_m=ctx.ex, y_m=ctx.ey, height_m=ctx.eh))
+    entry = (ctx.ex, ctx.ey, ctx.eh)
+    wires = planned_wires(site, win, ctx.size, entry)
     earth = float(objective["earth_ohm"])
-    geo = resolve(planned, electrode_ohm=earth, wires=wires)
+    geo = resolve(planned_site(site, wires, entry), electrode_ohm=earth, wires=wires)
     freqs = np.asarray(objective["frequency_hz"], dtype=float)
     res = solve_full_wave(geo.segments, freqs)
     he = np.abs(np.asarray(res.effective_height))
