@@ -262,7 +262,8 @@ def test_a_closed_pipe_is_not_an_error():
     import subprocess
     import sys
 
-    proc = subprocess.Popen([sys.executable, "-m", "aerial.cli", "report"], stdout=subprocess.PIPE,
+    # --quiet: a slow machine would otherwise add progress lines to stderr (stderr is not a terminal here)
+    proc = subprocess.Popen([sys.executable, "-m", "aerial.cli", "report", "--quiet"], stdout=subprocess.PIPE,
                             stderr=subprocess.PIPE)
     proc.stdout.readline()
     proc.stdout.close()

@@ -137,6 +137,7 @@ def test_quiet_prints_no_progress(capsys, monkeypatch):
     assert code == 0 and err == ""
 
 
-def test_a_quick_run_prints_no_progress(capsys):
-    code, _, err = run(capsys, "check", EXAMPLES + "backyard_inverted_l.toml")
+def test_a_run_quicker_than_the_threshold_prints_no_progress(capsys, monkeypatch):
+    monkeypatch.setattr(cli, "PROGRESS_LINES_AFTER_S", 1e6)
+    code, _, err = run(capsys, "report")
     assert code == 0 and err == ""

@@ -14,7 +14,8 @@ from aerial.outputs.terminal import eng
 #: Keys the layout page shows in its own sections; any other key is shown generically.
 KNOWN_KEYS = {"site", "objective", "score_unit", "ranking_frequencies_hz", "candidates_considered",
               "candidates_refused", "candidates_refused_safety", "excluded", "rules", "layouts", "apartment",
-              "code_checklist", "picture", "full_wave", "warnings", "cautions", "page"}
+              "code_checklist", "picture", "full_wave", "warnings", "cautions", "page", "refusals", "score_label",
+              "score_meaning", "figures_model", "screening_difference_db"}
 
 #: Which of the planner's rules each exclusion cause applies.
 CAUSE_RULE = {"crosses an obstacle": "obstacles", "crosses a telephone/cable line": "obstacles",
@@ -29,12 +30,28 @@ def refusal_rows(result) -> list[list]:
     """(cause, candidates, rule applied) for every cause with at least one candidate, the safety refusals first."""
     rules = result.get("rules") or {}
     rows = []
+    causes = (result.get("refusals") or {}).get("causes")
+    if causes is not None:  # by power line and by geometric cause
+        for c in causes:
+            safety = c["kind"] == "safety"
+            rows.append([(c["cause"] + " (refused for safety)", "bad") if safety else c["cause"], c["count"],
+                         rules.get("fall_zone" if safety else CAUSE_RULE.get(c["cause"], ""), "")])
+        return rows
     if result.get("candidates_refused_safety"):
         rows.append([(SAFETY_CAUSE, "bad"), result["candidates_refused_safety"], rules.get("fall_zone", "")])
     for cause, n in (result.get("excluded") or {}).items():
         if n:
             rows.append([cause, n, rules.get(CAUSE_RULE.get(cause, ""), "")])
     return rows
+
+
+def _why_lines(refusals: dict) -> list[str]:
+    """The nearest miss and any fixed part that blocks most layouts, in words."""
+    lines = []
+    if refusals.get("nearest_miss"):
+        lines.append("Nearest miss: " + refusals["nearest_miss"]["sentence"])
+    lines += ["Blocking: " + b["sentence"] for b in refusals.get("blocking", [])]
+    return lines
 
 
 def _flags(lay) -> str:
@@ -112,6 +129,7 @@ def layout_page(result: dict, scene: dict | None = None) -> str:
     body += section("refusals", "Refused and excluded layouts, by cause",
                     (table(["cause", "candidates", "rule applied"], refusals) if refusals
                      else "<p>No candidate was refused or excluded.</p>")
+                    + bullets(_why_lines(result.get("refusals") or {}))
                     + generic_block("rules", result.get("rules") or {}))
     if isinstance(result.get("full_wave"), dict):
         body += section("full-wave", "Full-wave check of the winner", generic_block("full_wave", result["full_wave"]))

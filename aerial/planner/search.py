@@ -525,7 +525,7 @@ def _earth_resistance(site):
 
 #: Listed layouts computed with the report's model (about 0.1 s each on a 2-core machine); any further ones
 #: keep their screening figures, labelled as such.
-REPORT_MODEL_LIMIT = 10
+REPORT_MODEL_LIMIT = 20
 
 
 def plan_layouts(site, best=5, full_wave=False, draw=None, allow_large=False, progress=None) -> dict:
@@ -642,7 +642,7 @@ def _search(ctx: _Context, total: int, keep: int, progress):
 
 
 def _listed_layouts(ctx: _Context, top_rec, best: int, warnings: list):
-    """Describe the ``best`` screened layouts, compute the first ten with the report's model and re-order them.
+    """Describe the ``best`` screened layouts, compute the first twenty with the report's model, re-order them.
 
     Returns the layouts and the largest difference between a listed
     layout's screening score and its score by the report's model [dB].
