@@ -270,3 +270,13 @@ def test_a_closed_pipe_is_not_an_error():
     err = proc.stderr.read()
     assert proc.wait(timeout=120) == 0
     assert err == b""
+
+
+@pytest.mark.parametrize("soil, source", [("dry", "ITU-R P.368 curve 'dry ground'"),
+                                          ("medium-dry", "ITU-R P.527 category")])
+def test_json_names_the_itu_source_of_the_soil(capsys, write_site, soil, source):
+    # ITU-R P.368 curves "land" / "dry ground" are not ITU-R P.527 categories (from memory): the JSON says which
+    text = MINIMAL.replace('name = "test vertical"', f'name = "test vertical"\nsoil = "{soil}"')
+    code, out, err = run(capsys, "report", str(write_site(text)), "--json")
+    assert code == 0, err
+    assert json.loads(out)["site"]["soil"]["source"].startswith(source + ": ")
