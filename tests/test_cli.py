@@ -280,3 +280,52 @@ def test_json_names_the_itu_source_of_the_soil(capsys, write_site, soil, source)
     code, out, err = run(capsys, "report", str(write_site(text)), "--json")
     assert code == 0, err
     assert json.loads(out)["site"]["soil"]["source"].startswith(source + ": ")
+
+
+CROWDED = MINIMAL.replace('height = "0 m"', '''height = "0 m"
+coil = "230 uH"
+capacitor = ["15 pF", "365 pF"]
+detector_tap = 0.5
+interference_margin = "25 dB"''') + '''
+[[stations]]
+name = "Demo Local"
+frequency = "1000 kHz"
+power = "50 kW"
+distance = "6 km"
+
+[[stations]]
+name = "Demo Neighbour"
+frequency = "1020 kHz"
+power = "10 kW"
+distance = "25 km"
+
+[[stations]]
+name = "Demo Low"
+frequency = "198 kHz"
+power = "500 kW"
+distance = "120 km"
+'''
+
+
+def test_report_designs_the_tuning_for_the_listed_stations(write_site, capsys):
+    p = write_site(CROWDED)
+    assert main(["report", str(p), "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    design = data["tuning"]["station_design"]
+    assert design["margin_db"] == 25.0 and design["margin_source"] == "site"
+    assert design["wanted"] == ["Demo Local", "Demo Neighbour"]  # 198 kHz is outside the MF tank's band
+    assert design["current"]["detector_tap_ratio"] == 0.5
+    low = next(s for s in data["stations"] if s["name"] == "Demo Low")
+    assert low["verdict"] == "out of the tuning range" and "needs" in low["verdict_text"]
+    row = data["tuning"]["rows"][0]
+    assert row["weak_signal_loaded_q"] > row["loaded_q"] > 0  # a weak station loads the tank less
+    assert main(["report", str(p)]) == 0
+    out = capsys.readouterr().out
+    assert "Tuning for your stations" in out and "cannot reach 198 kHz (needs" in out.replace("\n", " ")
+
+
+def test_bad_interference_margin_is_one_line_naming_the_key(write_site, capsys):
+    p = write_site(CROWDED.replace('"25 dB"', '"loud"'))
+    assert main(["check", str(p)]) == 2
+    err = capsys.readouterr().err
+    assert "receiver.interference_margin" in err and "decibels" in err and len(err.strip().splitlines()) == 1

@@ -176,7 +176,8 @@ def test_report_page_and_pictures_through_the_command_line(capsys, tmp_path):
     assert target.read_bytes() == before
     # the loose SVG pictures are the page's charts: words kept as text
     names = sorted(p.name for p in pics.iterdir())
-    assert names == sorted(["aerial-impedance.svg", "aerial-capacitance.svg", "tuning-range.svg", "station-power.svg"])
+    assert names == sorted(["aerial-impedance.svg", "aerial-capacitance.svg", "tuning-range.svg", "station-power.svg",
+                            "station-tuning.svg"])
     for p in pics.iterdir():
         text = p.read_text(encoding="utf-8")
         ET.fromstring(text.split("?>", 1)[1] if text.startswith("<?xml") else text)

@@ -268,3 +268,57 @@ def test_property_outputs_finite_and_q_bounded(ca, ra, he, arrangement, detector
     assert all_finite(design) and all_finite(res)
     json.dumps(design, allow_nan=False)
     json.dumps(res, allow_nan=False)
+
+
+# ---------------------------------------------------------------- tuning designed for the stations
+
+def test_design_for_stations_never_does_worse_than_your_parts_and_tells_what_it_needs():
+    """Consistency: the design's search includes the site's own coupling, so its choice is at least as good."""
+    from aerial.estimate.reception import design_for_stations
+
+    parts = TuningParts("direct", coil_inductance_h=200e-6, capacitor_min_f=15e-12, capacitor_max_f=365e-12,
+                        earphone_ohm=10e3)
+    st_ = [Station("Demo Local", 1000e3, 50e3, 8e3, 15.0, 1e-3), Station("Demo Regional", 700e3, 10e3, 40e3, 15.0, 1e-3)]
+    d = design_for_stations(**OUTDOOR, parts=parts, stations=st_, band=(520e3, 1710e3), spacing_hz=9e3)
+    assert d["wanted"] == ["Demo Local", "Demo Regional"]
+    assert d["margin_db"] == 20.0 and d["margin_source"] == "default"
+    chosen, current = d["chosen"], d["current"]
+    if current["meets_margin"]:
+        assert chosen["meets_margin"]
+        assert chosen["weakest_detector_power_w"] >= current["weakest_detector_power_w"] * (1 - 1e-9)
+    assert sum(r["chosen"] for r in d["tradeoff"]) == 1
+    assert all_finite(d)
+    json.dumps(d, allow_nan=False)
+
+
+def test_an_unseparable_pair_gets_remedies_with_computed_effect():
+    """A 50 kW local 20 kHz from a weak distant station: no single tank keeps it 20 dB down (single-tuned
+    selectivity at a loaded Q of a few tens gives ~10–20 dB at 2 % off tune, Terman, from memory), so the
+    second tuned circuit and the traps are worked out with part values."""
+    from aerial.estimate.reception import design_for_stations
+
+    parts = TuningParts("series capacitor", coil_inductance_h=230e-6, capacitor_min_f=15e-12, capacitor_max_f=365e-12,
+                        series_capacitance_f=100e-12, earphone_ohm=10e3, interference_margin_db=20.0)
+    st_ = [Station("Demo Local", 1000e3, 50e3, 5e3, 15.0, 1e-3), Station("Demo Far", 1020e3, 10e3, 30e3, 15.0, 1e-3)]
+    d = design_for_stations(**OUTDOOR, parts=parts, stations=st_, band=(520e3, 1710e3))
+    assert not d["meets_margin"]
+    kinds = [r["kind"] for r in d["remedies"]]
+    assert kinds == ["second tuned circuit", "parallel trap", "series trap"]
+    dt = d["remedies"][0]
+    assert 0 < dt["coupling_coefficient_ratio"] < 0.2 and dt["primary_inductance_h"] > 0
+    for r in d["remedies"][1:]:
+        assert r["tuned_to_hz"] == 1000e3 and r["trap_capacitor_f"] > 0
+        assert r["separation_db"] > d["chosen"]["worst_separation_db"]  # the trap takes the local down
+    res = assess_stations(**OUTDOOR, parts=parts, stations=st_)
+    assert res[1]["verdict"] == "swamped" and res[1]["verdict_text"].startswith("swamped by Demo Local")
+
+
+def test_interference_margin_decides_between_heard_and_heard_with_interference():
+    base = dict(arrangement="coil tap", coil_inductance_h=200e-6, capacitor_min_f=15e-12, capacitor_max_f=365e-12,
+                tap_fraction=0.3, earphone_ohm=10e3)
+    st_ = [Station("Demo Local", 1000e3, 50e3, 15e3, 15.0, 1e-3), Station("Demo Regional", 1060e3, 20e3, 20e3, 15.0, 1e-3)]
+    strict = assess_stations(**OUTDOOR, parts=TuningParts(**base, interference_margin_db=60.0), stations=st_)
+    lax = assess_stations(**OUTDOOR, parts=TuningParts(**base, interference_margin_db=0.0), stations=st_)
+    heard = [r for r in strict if r["verdict"] == "heard with interference"]
+    assert heard and "underneath" in heard[0]["verdict_text"] and "dB down" in heard[0]["verdict_text"]
+    assert all(r["verdict"] != "heard with interference" for r in lax)

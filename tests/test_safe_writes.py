@@ -64,7 +64,8 @@ def test_report_pictures_write_once_then_refuse_then_replace_with_force(capsys, 
     code, _, err = run(capsys, "report", site, "--json", "--pictures", pics)
     assert code == 0, err
     first = digest(pics)
-    assert set(first) == {"aerial-impedance.svg", "aerial-capacitance.svg", "tuning-range.svg", "station-power.svg"}
+    assert set(first) == {"aerial-impedance.svg", "aerial-capacitance.svg", "tuning-range.svg", "station-power.svg",
+                         "station-tuning.svg"}
     no_temporaries(pics)
 
     # again without --force: refused before any computing, nothing touched

@@ -123,6 +123,16 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     if site.stations:
         stations, night_warnings = _stations_day_and_night(site, f, r, x, rr, he, parts)
         warnings += night_warnings
+        day = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
+                                 s.soil.conductivity_s_m) for s in site.stations]
+        try:
+            design = reception.design_for_stations(f, r, x, rr, he, parts, day, (lo, hi),
+                                                   min(tuning["channel_spacings_hz"]))
+        except AerialError as err:
+            design = None
+            warnings.append(f"tuning for the listed stations not worked out: {err}")
+        if design is not None:
+            tuning["station_design"] = design
     return tuning, stations, warnings
 
 

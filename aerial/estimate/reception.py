@@ -29,6 +29,7 @@ from aerial.models import detector as det_mod
 from aerial.models import groundwave as gw_mod
 from aerial.models import noise as noise_mod
 from aerial.models import tank as tank_mod
+from aerial.estimate import station_design as sd_mod
 from aerial.estimate import tuned_network as tn_mod
 
 #: Unloaded Q assumed for a coil given only by its inductance (assumption; common practice:
@@ -772,7 +773,7 @@ def _table_arrays(table_f, aerial, coil, parts) -> dict:
         "bandwidth_hz": strong.bandwidth,
         "power_transfer_ratio": strong.detector_per_volt**2 * g_strong * 4.0 * r_a,
         "power_transfer_if_matched_ratio": tank_mod.matched_power_ratio(np.minimum(strong.loaded_q, qu), qu),
-        "loaded_q_weak_signal": weak.loaded_q,
+        "weak_signal_loaded_q": weak.loaded_q,
         "bandwidth_weak_signal_hz": weak.bandwidth,
         "power_transfer_weak_signal_ratio": weak.detector_per_volt**2 * tn_mod.weak_signal_conductance(_diode(parts))
         * 4.0 * r_a,
@@ -786,7 +787,7 @@ def _table_arrays(table_f, aerial, coil, parts) -> dict:
 _ROW_KEYS = ("inductance_h", "total_capacitance_f", "capacitor_setting_f", "within_capacitor_range",
              "aerial_shunt_capacitance_f", "aerial_shunt_resistance_ohm", "aerial_share_ratio", "unloaded_q",
              "loaded_q", "bandwidth_hz", "power_transfer_ratio", "power_transfer_if_matched_ratio",
-             "loaded_q_weak_signal", "bandwidth_weak_signal_hz", "power_transfer_weak_signal_ratio")
+             "weak_signal_loaded_q", "bandwidth_weak_signal_hz", "power_transfer_weak_signal_ratio")
 
 
 def _table_rows(table_f, arr, warnings) -> list:
@@ -1262,3 +1263,192 @@ def _spill_over(results, stations, a):
         rel = float(noise_mod.db_from_voltage_ratio(v_spill[i, j] / own[i]))
         results[i]["heard_behind"].append({"name": stations[j].name, "level_relative_db": _num(rel, "level", [])})
         results[j]["spills_over"].append(stations[i].name)
+
+
+# ------------------------------------------------------------------------- design for the stations
+
+
+def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m,
+                        parts: TuningParts, stations, band, spacing_hz=9e3) -> dict | None:
+    """Coupling and taps that hear the weakest wanted station best while keeping the others down.
+
+    Parameters
+    ----------
+    frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m : array_like
+        The aerial on its grid (as :func:`assess_stations`).
+    parts : TuningParts
+        The site's parts: the coil (kept when given, else designed per coupling for the band),
+        the capacitor range, detector, earphone and the interference margin.
+    stations : sequence of Station
+        The listed stations; those inside ``band`` are the wanted ones.
+    band : (float, float)
+        The band the tank covers. [Hz]
+    spacing_hz : float
+        Channel spacing for the adjacent-channel rejection figure. [Hz]
+
+    Returns
+    -------
+    dict or None
+        None when no listed station lies in the band. Otherwise ``margin_db``, ``wanted``,
+        ``chosen`` and ``current`` (the site's own parts) with their figures, ``meets_margin``,
+        ``tradeoff`` (every candidate: arrangement, its part, detector tap, weakest detector
+        power, worst separation, adjacent-channel rejection), ``remedies`` when no single tank
+        meets the margin, ``notes``.
+
+    Notes
+    -----
+    See :mod:`aerial.estimate.station_design`; the detector's input resistance is looked up from
+    a table of the detector model, each station tuned at its weak-signal loading then solved.
+
+    Examples
+    --------
+    >>> f = [500e3, 1700e3]
+    >>> x = [-1 / (2 * 3.141592653589793 * fi * 150e-12) for fi in f]
+    >>> parts = TuningParts(coil_inductance_h=200e-6, capacitor_min_f=15e-12, capacitor_max_f=365e-12)
+    >>> st = [Station("Demo A", 700e3, 10e3, 20e3, 15.0, 1e-3), Station("Demo B", 720e3, 50e3, 10e3, 15.0, 1e-3)]
+    >>> d = design_for_stations(f, [25, 25], x, [0.3, 3.0], [8, 8], parts, st, (520e3, 1710e3))
+    >>> d["chosen"]["detector_tap_ratio"] <= 1.0
+    True
+    """
+    _check_parts(parts)
+    lo, hi = float(band[0]), float(band[1])
+    wanted = [s for s in stations if lo <= s.frequency_hz <= hi]
+    if not wanted or parts.capacitor_min_f is None:
+        return None
+    aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m)
+    diode = _diode(parts)
+    _apply_calibration(aerial, parts, diode, [])
+    fs = np.array([s.frequency_hz for s in wanted])
+    gw = gw_mod.groundwave_field(np.array([s.power_w for s in wanted]), np.array([s.distance_m for s in wanted]), fs,
+                                 np.array([s.soil_relative_permittivity for s in wanted]),
+                                 np.array([s.soil_conductivity_s_per_m for s in wanted]))
+    emf = np.hypot(gw.field, [s.sky_wave_field_v_per_m for s in wanted]) * aerial.effective_height(fs)
+    margin = DEFAULT_INTERFERENCE_MARGIN_DB if parts.interference_margin_db is None else parts.interference_margin_db
+    load = float(parts.earphone_ohm)
+    base = _station_coil(aerial, parts)
+    scene = sd_mod.Scene(_za(aerial), base.q, fs, emf, [s.name for s in wanted], diode, load,
+                         _threshold_voltage(1.0, diode, load), float(margin), float(spacing_hz),
+                         tn_mod.input_resistance_table(diode, load))
+    rows = _design_rows(scene, aerial, parts, base, (lo, hi))
+    if not rows:
+        return None
+    current = _design_row(scene, _current_coupling(parts), base.inductance, base.block, parts.detector_tap_fraction)
+    k = sd_mod.choose(rows)
+    chosen = rows[k]
+    out = {
+        "margin_db": float(margin),
+        "margin_source": "default" if parts.interference_margin_db is None else "site",
+        "wanted": scene.names,
+        "channel_spacing_hz": float(spacing_hz),
+        "chosen": _design_dict(chosen, scene),
+        "current": _design_dict(current, scene),
+        "meets_margin": bool(chosen["meets_margin"]),
+        "tradeoff": [{**_design_dict(r, scene, brief=True), "chosen": n == k} for n, r in enumerate(rows)],
+        "notes": [],
+    }
+    if not chosen["meets_margin"] and len(wanted) > 1:
+        out["remedies"] = _remedies(scene, chosen, parts)
+    return out
+
+
+def _current_coupling(parts: TuningParts) -> dict:
+    return {"arrangement": parts.arrangement, "tap_fraction": parts.tap_fraction,
+            "series_capacitance": parts.series_capacitance_f, "coupling_coefficient": parts.coupling_coefficient,
+            "primary_inductance": parts.primary_inductance_h}
+
+
+def _design_rows(scene, aerial, parts, base: _Coil, band) -> list:
+    """Every candidate coupling × detector tap whose coil and capacitor reach every wanted station."""
+    coil_given = parts.coil_inductance_h is not None or (parts.coil is not None and parts.coil.turns is not None)
+    rows = []
+    for cpl in sd_mod.candidates(parts.arrangement):
+        lp = None
+        if cpl["arrangement"] == "separate primary":
+            lp = sd_mod.PRIMARY_FRACTION * base.inductance
+            cpl = {**cpl, "primary_inductance": lp}
+        cfg = _config(parts, arrangement=cpl["arrangement"], tap_fraction=cpl.get("tap_fraction"),
+                      series_capacitance=cpl.get("series_capacitance"), primary_inductance=lp,
+                      coupling_coefficient=cpl.get("coupling_coefficient"))
+        L, block = base.inductance, base.block
+        if not coil_given:
+            sub = TuningParts(**{**parts.__dict__, "arrangement": cfg["arrangement"], "tap_fraction": cfg["tap_fraction"],
+                                 "series_capacitance_f": cfg["series_capacitance"],
+                                 "primary_inductance_h": cfg["primary_inductance"],
+                                 "coupling_coefficient": cfg["coupling_coefficient"]})
+            coil = _resolve_coil(sub, _design_inductance(band, aerial, sub, []))
+            L, block = coil.inductance, coil.block
+            if lp is not None:
+                cpl = {**cpl, "primary_inductance": sd_mod.PRIMARY_FRACTION * L}
+        c = _needed(scene.frequency, aerial, L, scene.q_fun, cfg)
+        if np.any(c < parts.capacitor_min_f) or np.any(c > parts.capacitor_max_f):
+            continue
+        for m in sd_mod.DETECTOR_TAPS:
+            rows.append(_design_row(scene, cpl, L, block, m))
+    return rows
+
+
+def _design_row(scene, cpl, L, block, m) -> dict:
+    ev = sd_mod.evaluate(scene, cpl, L, block, m)
+    return {**ev, "coupling": cpl, "coil_inductance_h": float(L), "block": block, "detector_tap_fraction": float(m),
+            "meets_margin": bool(ev["worst_separation_db"] >= scene.margin_db)}
+
+
+def _setting_text(cpl) -> str:
+    arr = cpl["arrangement"]
+    if arr == "coil tap":
+        return f"aerial tap at {cpl['tap_fraction']:.2f} of the turns"
+    if arr == "series capacitor":
+        return f"{_pf(cpl['series_capacitance'])} series capacitor"
+    if arr == "separate primary":
+        lp = f" {_uh(cpl['primary_inductance'])}" if cpl.get("primary_inductance") else ""
+        return f"separate primary{lp}, k = {cpl['coupling_coefficient']:.2f}"
+    return "aerial straight to the tank top"
+
+
+def _design_dict(row, scene, brief=False) -> dict:
+    cpl = row["coupling"]
+    out = {
+        "arrangement": cpl["arrangement"],
+        "setting": _setting_text(cpl),
+        "detector_tap_ratio": row["detector_tap_fraction"],
+        "coil_inductance_h": row["coil_inductance_h"],
+        "weakest_station": scene.names[row["weakest"]],
+        "weakest_detector_power_w": _num(row["weakest_power_w"], "weakest_detector_power_w", []),
+        "adjacent_rejection_db": _num(row["rejection_db"], "adjacent_rejection_db", []),
+        "meets_margin": bool(row["meets_margin"]),
+        "others_audible": bool(np.isfinite(row["worst_separation_db"])),
+    }
+    for key, src in (("aerial_tap_ratio", "tap_fraction"), ("series_capacitance_f", "series_capacitance"),
+                     ("coupling_coefficient_ratio", "coupling_coefficient"),
+                     ("primary_inductance_h", "primary_inductance")):
+        if cpl.get(src) is not None:
+            out[key] = float(cpl[src])
+    if np.isfinite(row["worst_separation_db"]):
+        i, j = row["pair"]
+        out["worst_separation_db"] = _num(row["worst_separation_db"], "worst_separation_db", [])
+        out["worst_pair"] = [scene.names[i], scene.names[j]]
+    if not brief:
+        out["stations"] = [{"name": n, "detector_power_w": _num(p, "detector_power_w", [])}
+                           for n, p in zip(scene.names, row["power_w"])]
+    return out
+
+
+def _remedies(scene, row, parts) -> list:
+    """The usual remedies for the pair one tank cannot separate, with their computed effect."""
+    i, j = row["pair"]
+    cpl = row["coupling"]
+    lp = cpl.get("primary_inductance")
+    net = tn_mod.network_parts(cpl["arrangement"], row["coil_inductance_h"], scene.q_fun, row["detector_tap_fraction"],
+                               cpl.get("tap_fraction"), cpl.get("series_capacitance"), lp,
+                               cpl.get("coupling_coefficient"), row["block"])
+    out = []
+    for r in (sd_mod.double_tuned(scene, row["coil_inductance_h"], row["block"], row["detector_tap_fraction"], i, j),
+              sd_mod.trap(scene, net, i, j, "parallel"), sd_mod.trap(scene, net, i, j, "series")):
+        r = {k: (_num(v, k, []) if isinstance(v, float) else v) for k, v in r.items()}
+        r["wanted"], r["interferer"] = scene.names[i], scene.names[j]
+        r["separation_before_db"] = _num(row["worst_separation_db"], "separation_before_db", [])
+        if "coupling_coefficient" in r:
+            r["coupling_coefficient_ratio"] = r.pop("coupling_coefficient")
+        r["meets_margin"] = bool(r["separation_db"] >= scene.margin_db)
+        out.append(r)
+    return out

@@ -62,7 +62,7 @@ class TunedFigures(NamedTuple):
 
 
 def tuned_figures(frequency, za: Callable, parts: net_mod.NetworkParts, detector_conductance,
-                  offsets=()) -> TunedFigures:
+                  offsets=(), bandwidth=True) -> TunedFigures:
     """Tune the network to each ``frequency`` and measure its response at the detector.
 
     Parameters
@@ -76,6 +76,8 @@ def tuned_figures(frequency, za: Callable, parts: net_mod.NetworkParts, detector
         The detector's RF input conductance at each frequency (its signal level). [S]
     offsets : sequence of float
         Frequency offsets for the rejection figures. [Hz]
+    bandwidth : bool
+        Find the −3 dB bandwidth (else loaded Q and bandwidth come back as zeros).
 
     Returns
     -------
@@ -97,12 +99,36 @@ def tuned_figures(frequency, za: Callable, parts: net_mod.NetworkParts, detector
         return np.abs(net_mod.solve_network(f, za(f), parts, c_pos, g).detector_voltage)
 
     tuned = response(f0)
-    edges = net_mod.detector_bandwidth(f0, response)
+    edges = net_mod.detector_bandwidth(f0, response) if bandwidth else _no_edges(f0)
     rej = {}
     for d in offsets:
         below = np.maximum(f0 - d, f0 * 1e-3)
         rej[d] = net_mod.rejection_db(tuned, (response(below), response(f0 + d)))
     return TunedFigures(c, tuned, edges.loaded_q, edges.bandwidth, edges.wider_than_searched, rej)
+
+
+def _no_edges(f0):
+    zero = np.zeros_like(f0)
+    return net_mod.TunedResponse(zero, zero, zero, zero, np.zeros(f0.shape, dtype=bool))
+
+
+def input_resistance_table(diode: det_mod.Diode, load, points=361):
+    """The detector's RF input resistance on a log grid of RMS voltage, 1 nV to 1 kV, for fast look-up.
+
+    Returns
+    -------
+    (ndarray, ndarray)
+        ln V [ln V] and ln R_in [ln ohm], for ``np.interp``.
+
+    Examples
+    --------
+    >>> lv, lr = input_resistance_table(det_mod.get_diode("germanium"), 10e3)
+    >>> round(float(np.exp(lr[-1])) / 5e3, 2)  # strong signal: R_L/2
+    1.0
+    """
+    v = np.geomspace(1e-9, 1e3, int(points))
+    r = det_mod.loaded_detector(np.sqrt(2.0) * v, diode.saturation_current_a, diode.ideality, float(load)).input_resistance
+    return np.log(v), np.log(r)
 
 
 def weak_signal_conductance(diode: det_mod.Diode) -> float:
@@ -117,7 +143,8 @@ def weak_signal_conductance(diode: det_mod.Diode) -> float:
     return float(1.0 / det_mod.loaded_detector(0.0, diode.saturation_current_a, diode.ideality, 1e4).input_resistance)
 
 
-def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL, max_iter=LEVEL_MAX_ITER):
+def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL, max_iter=LEVEL_MAX_ITER,
+                   table=None):
     """RMS detector voltage V with V·|1 + Z_s/R_in(√2 V)| = V_open (bisection in log V).
 
     Parameters
@@ -129,6 +156,9 @@ def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL,
     diode : Diode
     load : float
         Earphone resistance. [ohm]
+    table : (ndarray, ndarray), optional
+        From :func:`input_resistance_table`: look R_in up instead of solving the detector
+        (for design searches; interpolation error well under 1 %).
 
     Returns
     -------
@@ -146,17 +176,20 @@ def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL,
     z = np.asarray(source_impedance, dtype=complex)
     hi = np.maximum(v0, 1e-30)
     lo = hi * 1e-12
+    def r_of(v):
+        if table is not None:
+            return np.exp(np.interp(np.log(v), table[0], table[1]))
+        return det_mod.loaded_detector(np.sqrt(2.0) * v, diode.saturation_current_a, diode.ideality, load).input_resistance
+
     for _ in range(int(max_iter)):
         mid = np.sqrt(lo * hi)
-        r_in = det_mod.loaded_detector(np.sqrt(2.0) * mid, diode.saturation_current_a, diode.ideality, load).input_resistance
-        up = mid * np.abs(1.0 + z / r_in) - v0 > 0
+        up = mid * np.abs(1.0 + z / r_of(mid)) - v0 > 0
         hi = np.where(up, mid, hi)
         lo = np.where(up, lo, mid)
         if np.all(hi / lo - 1.0 <= rtol):
             break
     v = np.sqrt(lo * hi)
-    r_in = det_mod.loaded_detector(np.sqrt(2.0) * v, diode.saturation_current_a, diode.ideality, load).input_resistance
-    return v, r_in, bool(np.all(hi / lo - 1.0 <= rtol))
+    return v, r_of(v), bool(np.all(hi / lo - 1.0 <= rtol))
 
 
 class StationLevels(NamedTuple):
@@ -171,7 +204,7 @@ class StationLevels(NamedTuple):
 
 
 def station_levels(frequency, open_circuit_voltage, za: Callable, parts: net_mod.NetworkParts, diode,
-                   load) -> StationLevels:
+                   load, passes=2, bandwidth=True, table=None) -> StationLevels:
     """Tune to each station in turn: its detector level, selectivity, and every other station's level.
 
     Parameters
@@ -186,6 +219,12 @@ def station_levels(frequency, open_circuit_voltage, za: Callable, parts: net_mod
     diode : Diode
     load : float
         Earphone resistance. [ohm]
+    passes : int
+        Tune-and-solve passes (the second retunes at the solved detector level).
+    bandwidth : bool
+        Find each station's −3 dB bandwidth (else zeros).
+    table : optional
+        Detector look-up table (:func:`input_resistance_table`) for fast searches.
 
     Returns
     -------
@@ -213,10 +252,11 @@ def station_levels(frequency, open_circuit_voltage, za: Callable, parts: net_mod
     z_s = za(fs)
     g = np.full(fs.shape, weak_signal_conductance(diode))
     converged = True
-    for _ in range(2):
+    for _ in range(max(int(passes), 1)):
         c = np.maximum(net_mod.tuning_capacitance_for(fs, z_s, parts, g), 0.0)
         bare = net_mod.solve_network(fs, z_s, parts, c, 0.0)
-        v, r_in, ok = detector_level(v_oc * np.abs(bare.detector_voltage), bare.detector_impedance, diode, load)
+        v, r_in, ok = detector_level(v_oc * np.abs(bare.detector_voltage), bare.detector_impedance, diode, load,
+                                     table=table)
         g = 1.0 / r_in
         converged = ok
     c_raw = net_mod.tuning_capacitance_for(fs, z_s, parts, g)
@@ -225,7 +265,7 @@ def station_levels(frequency, open_circuit_voltage, za: Callable, parts: net_mod
     def response(f):
         return np.abs(net_mod.solve_network(f, za(f), parts, c, g).detector_voltage)
 
-    edges = net_mod.detector_bandwidth(fs, response)
+    edges = net_mod.detector_bandwidth(fs, response) if bandwidth else _no_edges(fs)
     cross = net_mod.solve_network(fs[np.newaxis, :], z_s[np.newaxis, :], parts, c[:, np.newaxis],
                                   g[:, np.newaxis]).detector_voltage
     others = v_oc[np.newaxis, :] * np.abs(cross)

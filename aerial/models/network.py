@@ -180,6 +180,22 @@ def _taps(parts: NetworkParts):
     return taps, {t: i for i, t in enumerate(taps)}
 
 
+_SECTION_CACHE: dict = {}
+
+
+def _sections(taps, block, inductance):
+    """Section inductances, remembered per (taps, winding) so that sweeps do not redo them."""
+    key = (taps, id(block) if block is not None else None, inductance)
+    hit = _SECTION_CACHE.get(key)
+    if hit is not None and hit[0] is block:
+        return hit[1]
+    if len(_SECTION_CACHE) > 512:
+        _SECTION_CACHE.clear()
+    m = section_inductances(list(taps), block or block_inductance_tight(inductance))
+    _SECTION_CACHE[key] = (block, m)
+    return m
+
+
 def solve_network(frequency, aerial_impedance, parts: NetworkParts, tuning_capacitance=0.0,
                   detector_conductance=0.0, emf=1.0) -> NetworkSolution:
     """Node voltages and driving-point impedances of the receiving network.
@@ -233,8 +249,7 @@ def solve_network(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
     w = 2.0 * np.pi * f
     za = np.broadcast_to(za, shape)
     taps, node = _taps(parts)
-    block = parts.block or block_inductance_tight(parts.coil_inductance)
-    msec = section_inductances(taps, block)
+    msec = _sections(tuple(taps), parts.block, float(parts.coil_inductance))
     k = len(taps)
     has_x = parts.arrangement in ("series capacitor", "separate primary")
     primary = parts.arrangement == "separate primary"

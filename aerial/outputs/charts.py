@@ -280,6 +280,50 @@ def station_figure(result):
     return fig
 
 
+def station_design_figure(result):
+    """Weakest wanted station's detector power against adjacent-channel rejection, one dot per coupling and taps.
+
+    The chosen design is ringed, the site's own parts marked with a cross; hollow dots miss the
+    interference margin. Returns None when the site lists no station in the band.
+    """
+    design = (result.get("tuning") or {}).get("station_design") or {}
+    rows = design.get("tradeoff") or []
+    if not rows:
+        return None
+    fig = new_figure(7.0, 4.0)
+    ax = fig.subplots()
+    colours = {"direct": PALETTE["blue"], "coil tap": PALETTE["purple"], "series capacitor": PALETTE["yellow"],
+               "separate primary": PALETTE["grey"]}
+    for arr, colour in colours.items():
+        for ok in (True, False):
+            pts = [r for r in rows if r["arrangement"] == arr and r["meets_margin"] == ok]
+            if pts:
+                ax.scatter([r["adjacent_rejection_db"] for r in pts], [r["weakest_detector_power_w"] for r in pts],
+                           s=18, facecolors=colour if ok else "none", edgecolors=colour,
+                           label=plain_label(arr) + ("" if ok else " (misses the margin)"))
+    for key, marker, label in (("current", "x", "your parts"), ("chosen", "o", "chosen")):
+        r = design.get(key) or {}
+        if r and marker == "o":
+            ax.scatter([r["adjacent_rejection_db"]], [r["weakest_detector_power_w"]], s=120, marker="o",
+                       facecolors="none", edgecolors=PALETTE["black"], linewidths=1.5, label=label, zorder=5)
+        elif r:
+            ax.scatter([r["adjacent_rejection_db"]], [r["weakest_detector_power_w"]], s=60, marker="x",
+                       color=PALETTE["black"], linewidths=1.5, label=label, zorder=5)
+    ax.set_yscale("log")
+    spacing = design.get("channel_spacing_hz", 9e3) / 1e3
+    ax.set_xlabel(f"rejection {spacing:.0f} kHz away at the wanted stations' centre [dB]")
+    ax.set_ylabel("weakest wanted station at the detector [W]")
+    ax.set_title("Tuning for the listed stations: signal against selectivity as the taps move")
+    ax.legend(loc="best", fontsize=7)
+    _axes_style(ax)
+    fig.aerial_svg = ("station-design", "Weakest wanted station's detector power against adjacent-channel rejection")
+    return fig
+
+
+def station_design_chart(result) -> str | None:
+    return chart_svg(station_design_figure(result))
+
+
 def chart_svg(fig) -> str | None:
     """The SVG text of a figure made by one of the ``*_figure`` functions (None for None)."""
     return None if fig is None else svg_of(fig, *fig.aerial_svg)

@@ -12,7 +12,8 @@ from pathlib import Path
 from aerial.core.errors import AerialError, os_error_words
 from aerial.outputs.files import check_writable, write_atomic
 
-PICTURE_NAMES = ("aerial-impedance.svg", "aerial-capacitance.svg", "tuning-range.svg", "station-power.svg")
+PICTURE_NAMES = ("aerial-impedance.svg", "aerial-capacitance.svg", "tuning-range.svg", "station-power.svg",
+                 "station-tuning.svg")
 
 
 def check_picture_folder(folder, force: bool, site=None) -> None:
@@ -39,7 +40,8 @@ def draw_report_pictures(result: dict, folder, force: bool = False, protected=()
     from aerial.outputs import charts
 
     d = Path(folder)
-    makers = (charts.impedance_chart, charts.capacitance_chart, charts.tuning_chart, charts.station_chart)
+    makers = (charts.impedance_chart, charts.capacitance_chart, charts.tuning_chart, charts.station_chart,
+              charts.station_design_chart)
     drawn = [(name, make(result)) for name, make in zip(PICTURE_NAMES, makers)]  # all drawn before any is written
     return _write_pictures(d, [(name, text) for name, text in drawn if text], force, protected)
 

@@ -350,6 +350,7 @@ def render_report(result: dict, console, units: str = "si") -> None:
 
     _render_tuning(result.get("tuning"), console, L)
     _render_stations(result.get("stations"), console, L)
+    _render_station_design(result.get("tuning"), console)
     if result.get("pictures"):
         console.print("pictures: " + escape(", ".join(result["pictures"])))
     _lines(console, "Warnings", result.get("warnings", []), "yellow", L)
@@ -416,6 +417,65 @@ def _render_tuning(tuning, console, L: Lengths) -> None:
 
 VERDICT_STYLES = {"clearly heard": "green", "marginal": "yellow", "heard with interference": "yellow",
                   "swamped": "red", "out of the tuning range": "red", "below the noise": "red", "not heard": "red"}
+
+
+def _render_station_design(tuning, console) -> None:
+    design = (tuning or {}).get("station_design")
+    if not design:
+        return
+    rows = design.get("tradeoff") or []
+    spacing = design.get("channel_spacing_hz", 9e3) / 1e3
+    t = Table(title=f"Tuning for your stations (others kept {design['margin_db']:g} dB down; "
+              "best of each coupling)", title_justify="left")
+    for col in ("", "coupling", "detector tap", "weakest station at the detector", "worst separation",
+                f"{spacing:.0f} kHz away"):
+        t.add_column(col, justify="left" if col in ("", "coupling") else "right")
+    best = {}
+    for r in rows:
+        key = r["arrangement"]
+        b = best.get(key)
+        if b is None or (r["meets_margin"], r["weakest_detector_power_w"]) > (b["meets_margin"], b["weakest_detector_power_w"]):
+            best[key] = r
+    shown = [("yours", design["current"]), ("chosen", design["chosen"])]
+    same = (design["chosen"]["setting"], design["chosen"]["detector_tap_ratio"])
+    shown += [("", r) for r in best.values() if (r["setting"], r["detector_tap_ratio"]) != same]
+    for label, r in shown:
+        sep = r.get("worst_separation_db")
+        sep_text = "no other audible" if sep is None else f"{sep:.0f} dB" + ("" if r["meets_margin"] else " (short)")
+        t.add_row(label, escape(r["setting"]), f"{r['detector_tap_ratio']:.2f}",
+                  f"{eng(r['weakest_detector_power_w'], 'W')} ({escape(r['weakest_station'])})", sep_text,
+                  f"{r['adjacent_rejection_db']:.1f} dB")
+    show(console, t)
+    c = design["chosen"]
+    gain = 10.0 * math.log10(max(c["weakest_detector_power_w"], 1e-30)
+                             / max(design["current"]["weakest_detector_power_w"], 1e-30))
+    change = f"{abs(gain):.1f} dB {'more' if gain >= 0 else 'less'} power than with your parts"
+    if design["meets_margin"]:
+        console.print(f"  → chosen: {escape(c['setting'])}, detector at {c['detector_tap_ratio']:.2f} of the turns, "
+                      f"coil {eng(c['coil_inductance_h'], 'H')}: the weakest wanted station gets {change}, every other "
+                      f"listed station at least {design['margin_db']:g} dB below")
+    else:
+        console.print(f"  → no single tuned circuit keeps every other listed station {design['margin_db']:g} dB down; "
+                      f"the best separated is {escape(c['setting'])}, detector at {c['detector_tap_ratio']:.2f} "
+                      f"({change}); the remedies below add a second circuit or a trap")
+    for r in design.get("remedies", []):
+        if r["kind"] == "second tuned circuit":
+            what = (f"a second tuned circuit for the aerial ({eng(r['primary_inductance_h'], 'H')} tuned by about "
+                    f"{eng(r['primary_capacitor_f'], 'F')}) coupled to the tank at k = {r['coupling_coefficient_ratio']:.3f} "
+                    "(critical coupling)")
+        else:
+            where = "in the aerial lead" if r["kind"].startswith("parallel") else "from the aerial terminal to earth"
+            what = (f"a {r['kind']} {where}: {eng(r['trap_inductance_h'], 'H')} with {eng(r['trap_capacitor_f'], 'F')}, "
+                    f"tuned to {eng(r['tuned_to_hz'], 'Hz')}")
+        def rel(db):
+            return f"{abs(db):.0f} dB {'below' if db >= 0 else 'above'}"
+
+        verdict = ("meets the margin" if r["meets_margin"] else
+                   "better, still short of the margin" if r["separation_db"] > r["separation_before_db"] else
+                   "no better than the single circuit")
+        console.print(f"  → {escape(what)}: {escape(r['interferer'])} {rel(r['separation_db'])} {escape(r['wanted'])} "
+                      f"(was {rel(r['separation_before_db'])}); {escape(r['wanted'])} then gets "
+                      f"{eng(r['wanted_power_w'], 'W')} at the detector — {verdict}")
 
 
 def _render_stations(stations, console, L: Lengths) -> None:

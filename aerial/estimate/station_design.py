@@ -1,0 +1,181 @@
+"""Tuning designed for the listed stations: coupling and taps that hear the weakest while keeping the others down.
+
+For every coupling (direct; a tap on the coil; a series capacitor; a separate primary) at a
+few settings, and every detector tap, the receiving network is tuned to each wanted station
+in turn and solved (:mod:`aerial.estimate.tuned_network`): the wanted station's detector
+power and every other listed station's level at the detector. The objective is the largest
+detector power for the weakest wanted station, subject to every other listed station staying
+at least the interference margin below the wanted one wherever it would be audible. When no
+single tank meets the margin, the two usual remedies are worked out with part values and their
+computed effect: a second tuned circuit at critical coupling, and a trap tuned to the
+interfering station.
+
+Arrays and plain dicts in and out; no wording beyond short labels.
+"""
+
+from __future__ import annotations
+
+from typing import Callable, NamedTuple
+
+import numpy as np
+
+from aerial.estimate import tuned_network as tn_mod
+from aerial.models import detector as det_mod
+from aerial.models import network as net_mod
+
+#: Aerial taps tried (fraction of the turns from the earthy end). [1]
+AERIAL_TAPS = (0.05, 0.1, 0.15, 0.2, 0.3, 0.45, 0.65)
+#: Series (coupling) capacitors tried. [F]
+SERIES_CAPACITORS_F = (5e-12, 10e-12, 22e-12, 47e-12, 100e-12, 220e-12)
+#: Separate-primary coupling coefficients tried; the primary is taken as a tenth of the tank coil's
+#: inductance (about a third of its turns on the same former, an assumption). [1]
+PRIMARY_COUPLINGS = (0.05, 0.1, 0.2, 0.35, 0.5)
+PRIMARY_FRACTION = 0.1
+#: Detector taps tried. [1]
+DETECTOR_TAPS = (0.1, 0.15, 0.2, 0.3, 0.45, 0.65, 1.0)
+#: Inductance of the trap coil proposed for a wave trap. [H]
+TRAP_INDUCTANCE_H = 200e-6
+
+
+class Scene(NamedTuple):
+    """What the design works with (all SI)."""
+
+    za: Callable  #: aerial impedance za(f) [ohm]
+    q_fun: Callable  #: coil unloaded Q, q(f) [1]
+    frequency: np.ndarray  #: wanted stations' frequencies [Hz]
+    emf: np.ndarray  #: their aerial EMF, RMS [V]
+    names: list
+    diode: det_mod.Diode
+    load: float  #: earphone [ohm]
+    threshold: float  #: just-audible RMS detector voltage [V]
+    margin_db: float  #: interference margin [dB]
+    spacing_hz: float  #: channel spacing for the adjacent-channel figure [Hz]
+    table: tuple  #: detector look-up table (tuned_network.input_resistance_table)
+
+
+def candidates(arrangement_given) -> list:
+    """Every coupling setting tried: dicts of arrangement and its part. The site's own comes first."""
+    out = [{"arrangement": "direct"}]
+    out += [{"arrangement": "coil tap", "tap_fraction": n} for n in AERIAL_TAPS]
+    out += [{"arrangement": "series capacitor", "series_capacitance": c} for c in SERIES_CAPACITORS_F]
+    out += [{"arrangement": "separate primary", "coupling_coefficient": k} for k in PRIMARY_COUPLINGS]
+    return out
+
+
+def evaluate(scene: Scene, coupling: dict, inductance, block, detector_tap) -> dict:
+    """One candidate: every wanted station's detector power and the worst separation from the others.
+
+    Returns
+    -------
+    dict
+        ``weakest_power_w`` and ``weakest`` (index), ``worst_separation_db`` (the smallest margin
+        by which an audible other station stays below a wanted one; +inf when none is audible)
+        with ``pair`` (wanted, other), ``power_w`` per station, ``rejection_db`` (adjacent
+        channel at the wanted stations' centre), ``loaded_q`` per station.
+    """
+    lp = None
+    if coupling["arrangement"] == "separate primary":
+        lp = coupling.get("primary_inductance") or PRIMARY_FRACTION * inductance
+    parts = tn_mod.network_parts(coupling["arrangement"], inductance, scene.q_fun, detector_tap,
+                                 coupling.get("tap_fraction"), coupling.get("series_capacitance"), lp,
+                                 coupling.get("coupling_coefficient"), block)
+    lv = tn_mod.station_levels(scene.frequency, scene.emf, scene.za, parts, scene.diode, scene.load, passes=1,
+                               bandwidth=False, table=scene.table)
+    return summarise(scene, lv, parts)
+
+
+def summarise(scene: Scene, lv, parts) -> dict:
+    """Figures of merit of a solved candidate (see :func:`evaluate`)."""
+    power = lv.detector_voltage**2 / lv.input_resistance
+    weakest = int(np.argmin(power))
+    others = lv.others
+    own = np.diag(others)
+    # a pair counts unless the other station stays inaudible while the wanted one is heard: a design
+    # cannot pass by making everything too faint to hear
+    counts = (others >= scene.threshold) | (own < scene.threshold)[:, None]
+    np.fill_diagonal(counts, False)
+    sep = np.where(counts, 20.0 * np.log10(np.maximum(own, 1e-300)[:, None] / np.maximum(others, 1e-300)), np.inf)
+    i, j = np.unravel_index(int(np.argmin(sep)), sep.shape)
+    centre = float(np.sqrt(scene.frequency.min() * scene.frequency.max()))
+    g = np.array([1.0 / float(np.exp(np.mean(np.log(lv.input_resistance))))])
+    fig = tn_mod.tuned_figures(np.array([centre]), scene.za, parts, g, [scene.spacing_hz], bandwidth=False)
+    return {
+        "weakest_power_w": float(power[weakest]), "weakest": weakest, "power_w": power,
+        "worst_separation_db": float(sep[i, j]), "pair": (int(i), int(j)),
+        "rejection_db": float(fig.rejection[scene.spacing_hz][0]), "capacitance_f": lv.capacitance,
+    }
+
+
+def choose(rows) -> int:
+    """Index of the best candidate: meets the margin with the most power for the weakest; else the best separated."""
+    ok = [k for k, r in enumerate(rows) if r["meets_margin"]]
+    if ok:
+        return max(ok, key=lambda k: rows[k]["weakest_power_w"])
+    return max(range(len(rows)), key=lambda k: (min(rows[k]["worst_separation_db"], 1e9), rows[k]["weakest_power_w"]))
+
+
+#: The aerial-side tuned circuit of a proposed double-tuned pair: its tuning capacitor at mid setting. [F]
+PRIMARY_TUNING_F = 100e-12
+
+
+def double_tuned(scene: Scene, inductance, block, detector_tap, wanted, other) -> dict:
+    """A second tuned circuit ahead of the tank, coupled at critical coupling: computed effect for one pair.
+
+    The aerial is tuned by its own circuit: a primary coil Lp that resonates with the aerial's
+    shunt capacitance plus :data:`PRIMARY_TUNING_F` at the wanted frequency, coupled to the
+    detector's tank (the present coil) at k_c = 1/√(Q1 Q2) [Terman, Radio Engineers' Handbook,
+    1943, from memory], Q1 and Q2 the two circuits' loaded Q each taken alone.
+    """
+    f = scene.frequency[[wanted, other]]
+    fw = f[:1]
+    w = 2.0 * np.pi * fw
+    y_a = 1.0 / scene.za(fw)
+    c_a = np.maximum(np.imag(y_a) / w, 0.0)
+    lp = float((1.0 / (w**2 * (c_a + PRIMARY_TUNING_F)))[0])
+    q = scene.q_fun(fw)
+    g1 = np.real(y_a) + 1.0 / (q * w * lp)
+    q1 = float((w * (c_a + PRIMARY_TUNING_F) / g1)[0])
+    g_det = 1.0 / (scene.load / 2.0)
+    q2 = float((1.0 / (1.0 / q + detector_tap**2 * g_det * w * inductance))[0])
+    k = min(float(net_mod.critical_coupling(q1, q2)), 0.9)
+    parts = tn_mod.network_parts("separate primary", inductance, scene.q_fun, detector_tap,
+                                 primary_inductance=lp, coupling_coefficient=k, block=block,
+                                 primary_capacitance=PRIMARY_TUNING_F)
+    lv = tn_mod.station_levels(f, scene.emf[[wanted, other]], scene.za, parts, scene.diode, scene.load, passes=1,
+                               bandwidth=False, table=scene.table)
+    own = lv.others[0, 0]
+    return {
+        "kind": "second tuned circuit",
+        "coupling_coefficient": k,
+        "primary_inductance_h": lp,
+        "primary_capacitor_f": PRIMARY_TUNING_F,
+        "primary_loaded_q": q1,
+        "tank_loaded_q": q2,
+        "separation_db": float(20.0 * np.log10(own / max(lv.others[0, 1], 1e-300))),
+        "wanted_power_w": float(lv.detector_voltage[0] ** 2 / lv.input_resistance[0]),
+    }
+
+
+def trap(scene: Scene, parts, wanted, other, kind) -> dict:
+    """A wave trap tuned to the interfering station ("parallel": in the aerial lead; "series": lead to earth)."""
+    f_t = float(scene.frequency[other])
+    L = TRAP_INDUCTANCE_H
+    c = 1.0 / ((2.0 * np.pi * f_t) ** 2 * L)
+    r = 2.0 * np.pi * f_t * L / float(np.atleast_1d(scene.q_fun(np.array([f_t])))[0])
+    idx = [wanted, other]
+    f = scene.frequency[idx]
+
+    def za(x):
+        return net_mod.trap_source(x, scene.za(x), kind, L, c, r)[1]
+
+    scale = np.abs(net_mod.trap_source(f, scene.za(f), kind, L, c, r)[0])
+    lv = tn_mod.station_levels(f, scene.emf[idx] * scale, za, parts, scene.diode, scene.load, passes=1,
+                               bandwidth=False, table=scene.table)
+    return {
+        "kind": f"{kind} trap",
+        "trap_inductance_h": L,
+        "trap_capacitor_f": float(c),
+        "tuned_to_hz": f_t,
+        "separation_db": float(20.0 * np.log10(lv.others[0, 0] / max(lv.others[0, 1], 1e-300))),
+        "wanted_power_w": float(lv.detector_voltage[0] ** 2 / lv.input_resistance[0]),
+    }
