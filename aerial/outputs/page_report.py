@@ -250,7 +250,8 @@ def _tuning_section(result) -> str:
         mark = "✔" if cov.get("covered") else "⚠"
         verdict = f'<p class="verdict {klass}"><strong>Band coverage:</strong> {mark} {esc(cov["verdict"])}</p>'
     known = {"arrangement", "coil", "detector", "earphone_ohm", "rows", "coverage", "advice", "notes", "warnings",
-             "band", "source", "range_curve", "channel_spacings_hz"}
+             "band", "source", "range_curve",
+             "station_design", "channel_spacings_hz"}  # the stations' tuning design: the report and its picture
     extra = "".join(f"<h3>{esc(key_label(k).capitalize())}</h3>{generic_block(k, v)}"
                     for k, v in tuning.items() if k not in known and v not in (None, [], {}, ""))
     body = (f"<p>{esc(intro)}; detector: {esc(tuning.get('detector', ''))}, earphone "
