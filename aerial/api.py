@@ -14,6 +14,10 @@ def check_site(path) -> dict:
     from aerial.site.reader import load_site
 
     site = load_site(path)
+    if site.plan:  # the [plan] table is read by `layout`; check it here too (a misspelt key, a bad corner)
+        from aerial.site.plan import parse_plan
+
+        parse_plan(site)
     clearance_warnings = refusal_check(site)
     geo = resolve(site)
     freqs = frequency_grid(site)

@@ -40,6 +40,7 @@ from __future__ import annotations
 import argparse
 import contextlib
 import copy
+import errno
 import io
 import json
 import math
@@ -108,7 +109,13 @@ def _toml_key(key) -> str:
     return key if re.fullmatch(r"[A-Za-z0-9_-]+", key) else _toml_string(key)
 
 
+class Digits(str):
+    """An integer literal written out digit by digit (Python refuses str() of an int past 4300 digits)."""
+
+
 def _toml_value(value) -> str:
+    if isinstance(value, Digits):
+        return str.__str__(value)
     if isinstance(value, bool):
         return "true" if value else "false"
     if isinstance(value, int):
@@ -168,7 +175,8 @@ class Case:
     base: str
     mutations: list = field(default_factory=list)
     data: bytes | None = None  # the site file's bytes (None: a special path)
-    special: str = ""  # "", "folder", "missing", "unreadable", "fifo", "odd-name", "huge"
+    special: str = ""  # "", "folder", "missing", "unreadable", "fifo", "odd-name", "huge", "os-fault"
+    fault: tuple = ()  # for "os-fault": (where, errno) - "mkstemp", "write" or "stdout"
     file_name: str = "site.toml"
     extra_args: dict = field(default_factory=dict)  # command -> extra argv
 
@@ -291,7 +299,8 @@ def mutate_document(rng: random.Random, doc: dict, notes: list) -> dict:
     paths = _paths(doc)
     op = rng.choice(["delete", "delete", "swap-type", "swap-type", "number", "number", "quantity", "quantity",
                      "string", "stack-points", "duplicate-table", "many-wires", "self-crossing", "unknown-key",
-                     "rename-key", "exchange", "drop-table", "deep", "long-list", "empty-container"])
+                     "rename-key", "exchange", "drop-table", "deep", "long-list", "empty-container",
+                     "huge-integer", "prefix-case", "prefix-case", "many-stations"])
     if not paths:
         doc["site"] = {"name": rng.choice(_ODD_STRINGS)}
         notes.append("empty document: add [site]")
@@ -386,10 +395,46 @@ def mutate_document(rng: random.Random, doc: dict, notes: list) -> dict:
     elif op == "long-list":
         container[key] = [rng.choice(_ODD_NUMBERS[:8]) for _ in range(rng.choice([4, 100, 20000]))]
         notes.append(f"long list at {where}")
+    elif op == "huge-integer":
+        nums = [(c, k, p) for c, k, p in paths if isinstance(c[k], (int, float)) and not isinstance(c[k], bool)]
+        c, k, p = rng.choice(nums) if nums else (container, key, path)
+        n = rng.choice([309, 400, 4300, 4301, 5000])
+        c[k] = Digits(rng.choice(["", "-"]) + "9" * n)
+        notes.append(f"integer of {n} digits at {_path_text(p)}")
+    elif op == "prefix-case":
+        qs = [(c, k, p) for c, k, p in paths if isinstance(c[k], str) and re.match(r"^\s*[-+\d.].*[^\W\d_]", c[k])]
+        c, k, p = rng.choice(qs) if qs else (container, key, path)
+        c[k] = _prefix_case(rng, c[k] if isinstance(c[k], str) else "5 mW")
+        notes.append(f"unit case {_path_text(p)} -> {c[k]!r:.60}")
+    elif op == "many-stations":
+        n = rng.choice([20, 150, 151, 1000, 5000])
+        stations = doc.get("stations") if isinstance(doc.get("stations"), list) else []
+        doc["stations"] = stations + [{"name": f"fuzz station {i}", "frequency": f"{rng.randrange(53, 171) * 10} kHz",
+                                       "power": f"{rng.choice([0.1, 1, 5, 50])} kW",
+                                       "distance": f"{rng.uniform(1, 900):.1f} km"} for i in range(n)]
+        notes.append(f"add {n} stations")
     else:  # empty-container
         container[key] = rng.choice([[], {}, [[]], [{}], [[], []]])
         notes.append(f"empty container at {where}")
     return doc
+
+
+def _prefix_case(rng, text: str) -> str:
+    """The same quantity with the letters of its unit in another case ("5 mW" -> "5 MW", "5 mw", "5 MW")."""
+    m = re.match(r"^(\s*[-+\d.eE/ ]*?\s*)(\D.*)$", text)
+    if not m:
+        return text
+    unit = m.group(2)
+    how = rng.choice(["upper", "lower", "swap", "random"])
+    if how == "upper":
+        unit = unit.upper()
+    elif how == "lower":
+        unit = unit.lower()
+    elif how == "swap":
+        unit = unit.swapcase()
+    else:
+        unit = "".join(ch.upper() if rng.random() < 0.5 else ch.lower() for ch in unit)
+    return m.group(1) + unit
 
 
 def mutate_text(rng: random.Random, data: bytes, notes: list) -> bytes:
@@ -462,6 +507,14 @@ def make_case(seed: int, index: int, bases=None) -> Case:
     name, text = rng.choice(bases)
     case = Case(index=index, seed=seed, base=name)
     roll = rng.random()
+    if roll >= 0.97:  # an operating-system fault while writing (monkeypatched: a full disk cannot be arranged)
+        case.special = "os-fault"
+        case.data = text.encode()
+        case.fault = (rng.choice(["mkstemp", "write", "stdout"]),
+                      rng.choice([errno.ENOSPC, errno.EROFS, errno.EACCES, errno.ENAMETOOLONG, errno.EDQUOT, errno.EIO]))
+        case.extra_args = {"report": ["--pictures", "{folder}/pics"], "layout": ["--picture", "{folder}/plan.svg"]}
+        case.mutations.append(f"os fault {case.fault[0]} errno {case.fault[1]}")
+        return case
     if roll < 0.02:
         case.special = rng.choice(["folder", "missing", "unreadable", "fifo", "huge", "empty", "odd-name", "odd-name"])
         case.data = text.encode()
@@ -543,11 +596,47 @@ def materialise(case: Case, folder: Path) -> Path:
     return path
 
 
-def run_cli(argv) -> tuple[int | None, str, str, str]:
+@contextlib.contextmanager
+def _os_fault(fault):
+    """Make the chosen write fail as the operating system would (a full disk, a read-only folder ...)."""
+    where, no = fault
+    import tempfile
+
+    def fail(*a, **k):
+        raise OSError(no, os.strerror(no))
+
+    if where == "mkstemp":
+        original = tempfile.mkstemp
+        tempfile.mkstemp = fail
+        try:
+            yield
+        finally:
+            tempfile.mkstemp = original
+    elif where == "write":
+        original_fsync = os.fsync
+        os.fsync = fail
+        try:
+            yield
+        finally:
+            os.fsync = original_fsync
+    else:
+        yield
+
+
+def failing_stdout(no: int):
+    """A stdout whose every write fails with ``no`` (a full disk, /dev/full)."""
+    class FailingStdout(io.StringIO):
+        def write(self, text):
+            raise OSError(no, os.strerror(no))
+
+    return FailingStdout
+
+
+def run_cli(argv, stdout=None) -> tuple[int | None, str, str, str]:
     """Run ``aerial.cli.main`` in-process; return (exit code, stdout, stderr, escaped exception)."""
     from aerial.cli import main
 
-    out, err = io.StringIO(), io.StringIO()
+    out, err = (stdout or io.StringIO)(), io.StringIO()
     escaped = ""
     code = None
     with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
@@ -584,8 +673,12 @@ def _reject_constant(name):
     raise ValueError(f"JSON holds {name}")
 
 
-def classify(command: str, code, out: str, err: str, escaped: str, shown_path: str, toml_ok: bool) -> tuple[str, str]:
-    """Sort one run into an outcome class; the second item says why (for failures)."""
+def classify(command: str, code, out: str, err: str, escaped: str, shown_path: str, toml_ok: bool,
+             also_named=()) -> tuple[str, str]:
+    """Sort one run into an outcome class; the second item says why (for failures).
+
+    ``also_named``: output paths a message may name instead of the site file (an OS fault while writing).
+    """
     if escaped:
         return "escaped-exception", escaped
     if code == 1:
@@ -622,6 +715,8 @@ def classify(command: str, code, out: str, err: str, escaped: str, shown_path: s
         body = line[len(prefix):]
         if _option_error(body):
             return ("user-error" if code == 2 else "refused"), ""
+        if also_named and (any(_one_line(p) in body for p in also_named) or body.startswith("cannot write the output")):
+            return "user-error", ""
         if _one_line(shown_path) not in body:
             return "bad-stderr", f"does not name the file: {line[:300]!r}"
         if toml_ok and command in ("check", "report") and code == 2:
@@ -659,7 +754,7 @@ def _toml_readable(case: Case) -> bool:
         return False
     try:
         tomllib.loads((case.data or b"").decode("utf-8"))
-    except (UnicodeDecodeError, tomllib.TOMLDecodeError, RecursionError):
+    except (UnicodeDecodeError, ValueError, RecursionError):  # ValueError: TOML errors and 4300+ digit integers
         return False
     return True
 
@@ -671,15 +766,19 @@ def run_case(case: Case, folder: Path, commands=COMMANDS) -> list[dict]:
     toml_ok = _toml_readable(case)
     results = []
     for template in commands:
-        argv = [a.format(site=shown) for a in template] + list(case.extra_args.get(template[0], []))
+        argv = [a.format(site=shown) for a in template] + [a.format(folder=folder) for a in
+                                                            case.extra_args.get(template[0], [])]
         t0 = time.perf_counter()
-        with (_unreadable(path) if case.special == "unreadable" else contextlib.nullcontext()):
+        fault = _os_fault(case.fault) if case.special == "os-fault" else contextlib.nullcontext()
+        with (_unreadable(path) if case.special == "unreadable" else fault):
             if case.special == "fifo":
                 code, out, err, escaped = _run_with_alarm(argv, 10.0)
             else:
-                code, out, err, escaped = run_cli(argv)
+                full = case.special == "os-fault" and case.fault[0] == "stdout"
+                code, out, err, escaped = run_cli(argv, stdout=failing_stdout(case.fault[1]) if full else None)
         seconds = time.perf_counter() - t0
-        cls, why = classify(template[0], code, out, err, escaped, shown, toml_ok)
+        cls, why = classify(template[0], code, out, err, escaped, shown, toml_ok,
+                            also_named=(str(folder),) if case.special == "os-fault" else ())
         results.append({"command": template[0], "argv": argv, "exit": code, "class": cls, "why": why,
                         "stderr": err[:2000], "seconds": round(seconds, 3)})
     return results

@@ -380,3 +380,12 @@ def test_coil_warns_on_absurd_results(capsys):
     code, out, err = run(capsys, "coil", "--diameter", "50 mm", "--wire", "26 AWG", "--inductance", "1 H")
     assert code == 0, err
     assert "not a practical single-layer coil" in " ".join(out.split())
+
+
+def test_check_reads_the_plan_table_too(capsys, tmp_path):
+    text = (EXAMPLES / "suburban_lot_service_line.toml").read_text(encoding="utf-8")
+    assert "\n[plan]\n" in text
+    p = tmp_path / "site.toml"
+    p.write_text(text.replace("\n[plan]\n", "\n[plan]\nentyr = 3\n", 1), encoding="utf-8")
+    code, _, err = run(capsys, "check", str(p))
+    assert code == EXIT_USER and 'plan.entyr = 3: unknown key; did you mean "entry"?' in one_line(err)

@@ -43,6 +43,9 @@ def plain_label(text) -> str:
 
 def new_figure(width_in: float, height_in: float, layout: str | None = "constrained"):
     """A matplotlib Figure that belongs to no global pyplot state (safe in a library)."""
+    from aerial.outputs.plan_drawing import matplotlib_config_dir
+
+    matplotlib_config_dir()  # before matplotlib loads: no cache warnings when the home folder is read-only
     from matplotlib.figure import Figure
 
     return Figure(figsize=(width_in, height_in), layout=layout)
