@@ -75,6 +75,33 @@ def earth_system(site) -> dict:
     return earth.earth_system(site.electrodes, site.soil, earth.as_counterpoise_site(site), path=site.path)
 
 
+def earth_at_frequency(site, frequency) -> dict:
+    """The earth system's impedance over ``frequency`` [Hz]: electrodes as lossy lines in the soil."""
+    from aerial.estimate import earth
+
+    return earth.electrode_impedance(site.electrodes, site.soil, frequency, earth.as_counterpoise_site(site))
+
+
+def _earth_json(earth: dict, rf: dict, centre_index: int) -> dict:
+    """The earth section of the result: DC figures, and each part's impedance and effective length at frequency."""
+    out = {k: v for k, v in earth.items() if k != "warnings"}
+    z = rf["impedance_ohm"]
+    out["impedance_ohm"] = np.stack([z.real, z.imag], axis=1)
+    out["impedance_method"] = rf["notes"][0]
+    parts = []
+    for part, line in zip(out.get("parts", []), rf["parts"]):
+        part = dict(part)
+        zp = line["impedance_ohm"][centre_index]
+        part["impedance_at_centre_ohm"] = [float(zp.real), float(zp.imag)]
+        l_eff = line["effective_length_m"]
+        part["effective_length_m"] = None if l_eff is None else float(l_eff[centre_index])
+        part["impedance_method"] = line["method"]
+        parts.append(part)
+    out["parts"] = parts
+    out["centre_frequency_hz"] = float(rf["frequency_hz"][centre_index])
+    return out
+
+
 # --------------------------------------------------------------------------- aerial
 
 
@@ -96,13 +123,13 @@ def aerial_response(site, geometry, frequency, earth_ohm: float, method: str = "
         from aerial.models.closed_form import closed_form_response
 
         out = dict(closed_form_response(geometry.segments, frequency))
-        out["ground_loss_ohm"] = np.full(len(frequency), float(earth_ohm))
+        out["ground_loss_ohm"] = np.broadcast_to(np.asarray(earth_ohm, float), (len(frequency),)).copy()
         out["warnings"] = list(out.get("warnings", []))
         out["loss_budget"] = {
             "soil_under_aerial_ohm": np.zeros(len(frequency)),
             "soil_treatment": "not modelled: closed forms over a perfect ground plane",
-            "electrode_ohm": np.full(len(frequency), float(earth_ohm)),
-            "electrode_treatment": "earth-system resistance in series at the feed",
+            "electrode_ohm": np.broadcast_to(np.asarray(earth_ohm, float), (len(frequency),)).copy(),
+            "electrode_treatment": "earth-system resistance in series at the feed (electrodes as lossy lines in the soil)",
         }
     rr = np.asarray(out["radiation_resistance_ohm"], float)
     rc = np.asarray(out["conductor_loss_ohm"], float)
@@ -352,11 +379,12 @@ def what_if(site, frequency: float, earth: dict) -> list[dict]:
     """What raising the wire, lengthening it, or improving the earth buys, at one frequency."""
     from aerial.estimate import earth as earth_mod
 
-    base = _headline(site, site.wires, frequency, earth["resistance_ohm"])
+    r_earth = float(earth_at_frequency(site, [frequency])["impedance_ohm"][0].real)
+    base = _headline(site, site.wires, frequency, r_earth)
     rows = [("as described", base)]
-    rows.append((f"raise the wire {WHAT_IF_RAISE_M:g} m", _headline(site, _perturbed_wires(site, raise_m=WHAT_IF_RAISE_M), frequency, earth["resistance_ohm"])))
-    rows.append((f"add {WHAT_IF_EXTEND_M:g} m to the far end", _headline(site, _perturbed_wires(site, extend_m=WHAT_IF_EXTEND_M), frequency, earth["resistance_ohm"])))
-    better = earth_mod.improved_earth(site.electrodes, site.soil)
+    rows.append((f"raise the wire {WHAT_IF_RAISE_M:g} m", _headline(site, _perturbed_wires(site, raise_m=WHAT_IF_RAISE_M), frequency, r_earth)))
+    rows.append((f"add {WHAT_IF_EXTEND_M:g} m to the far end", _headline(site, _perturbed_wires(site, extend_m=WHAT_IF_EXTEND_M), frequency, r_earth)))
+    better = earth_mod.improved_earth(site.electrodes, site.soil, frequency)
     rows.append((better["description"], _headline(site, site.wires, frequency, better["resistance_ohm"])))
     out = []
     p0 = float(base["available_power_w"][0])
@@ -441,14 +469,19 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     freqs = frequency_grid(site, step_hz)
     earth = earth_system(site)
     warnings += earth.get("warnings", [])
-    geometry = resolve(site, electrode_ohm=earth["resistance_ohm"])
+    earth_rf = earth_at_frequency(site, freqs)
+    earth_r = np.asarray(earth_rf["impedance_ohm"].real, float)
+    pts = band_points(site)
+    f_centre = pts[len(pts) // 2][1] if len(site.bands) == 1 else pts[1][1]  # the what-if table's frequency
+    centre_i = int(np.argmin(np.abs(freqs - f_centre)))
+    geometry = resolve(site, electrode_ohm=float(earth_r[centre_i]))
     if ground not in GROUNDS:
         raise ModelInputError(f"'{ground}' is not a valid ground, must be one of " + ", ".join(f"'{g}'" for g in GROUNDS))
     if ground != "perfect" and method != "full-wave":
         warnings.append("lossy ground applies to the full-wave solver only; the closed forms assume a perfect "
                         "ground plane with the earth system's resistance in series")
     stage(progress, f"{'full-wave' if method == 'full-wave' else 'closed-form'} sweep of {len(freqs)} frequencies")
-    resp = aerial_response(site, geometry, freqs, earth["resistance_ohm"], method=method, progress=progress, ground=ground,
+    resp = aerial_response(site, geometry, freqs, earth_r, method=method, progress=progress, ground=ground,
                            allow_large=allow_large)
     warnings += resp.get("warnings", [])
 
@@ -496,7 +529,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
             "open_circuit_voltage_v": resp["open_circuit_voltage_v"],
             "available_power_w": resp["available_power_w"],
         },
-        "earth": {k: v for k, v in earth.items() if k != "warnings"},
+        "earth": _earth_json(earth, earth_rf, centre_i),
     }
     for key in ("convergence", "ground_treatment", "segments", "loss_budget"):
         if key in resp:
@@ -507,8 +540,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     result["ranges"] = ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground,
                                              allow_large=allow_large, progress=progress)
     if what_ifs:
-        centre = pts[len(pts) // 2][1] if len(site.bands) == 1 else pts[1][1]
-        result["what_if"] = what_if(site, centre, earth)
+        result["what_if"] = what_if(site, f_centre, earth)
 
     from aerial.estimate import receiver as receiver_bridge
 

@@ -10,6 +10,7 @@ from dataclasses import replace
 
 import numpy as np
 
+from aerial.models import electrode_lines as lines
 from aerial.models import electrodes as el
 
 #: Stated typical range for a building's protective earth whose resistance the user does not know [ohm].
@@ -124,20 +125,99 @@ def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>") 
         rh = float(np.asarray(el.parallel_combination(high).resistance_ohm))
     else:
         r, rl, rh = nominal[0], low[0], high[0]
-    warnings.append("Earth resistance is the low-frequency value in uniform soil; at MF the soil's permittivity "
-                    "and skin depth change it somewhat.")
+    warnings.append("Earth resistance here is the low-frequency (DC) value in uniform soil; the loss budget uses "
+                    "each electrode's impedance at the working frequency (a lossy line in the soil, Sunde).")
     return {"resistance_ohm": r, "resistance_low_ohm": min(rl, r), "resistance_high_ohm": max(rh, r),
             "parts": parts, "warnings": warnings}
 
 
-def improved_earth(electrodes, soil) -> dict:
-    """The what-if earth: the site's electrodes plus eight 10 m buried radials."""
+def _line_of(e, soil, frequency, resistivity):
+    """The electrode as a lossy line at ``frequency`` (None for a counterpoise, which is not in the soil)."""
+    eps = soil.relative_permittivity
+    if e.kind == "rods":
+        return lines.rod_line(frequency, e.length_m, e.diameter_m / 2.0, resistivity, eps)
+    if e.kind in ("buried_wires", "water_pipe"):
+        depth = max(e.depth_m, 1e-3)
+        return lines.buried_wire_line(frequency, e.length_m, e.diameter_m / 2.0, depth, resistivity, eps)
+    return None
+
+
+def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=()) -> dict:
+    """The earth system's impedance at radio frequency: each electrode a lossy line in the soil.
+
+    Parameters
+    ----------
+    electrodes : list of aerial.site.reader.Electrode
+    soil : aerial.site.reader.SoilSpec
+    frequency : array_like
+        [Hz]
+    counterpoise_wires : list of WireRun
+        Used only when there is no electrode.
+
+    Returns
+    -------
+    dict
+        ``impedance_ohm`` (complex array over ``frequency``, the parts in
+        parallel), ``parts`` (one per electrode: ``description``,
+        ``impedance_ohm`` complex array, ``effective_length_m`` array or None,
+        ``method``) and ``notes``.
+
+    Notes
+    -----
+    Each electrode's line impedance (:mod:`aerial.models.electrode_lines`) is
+    scaled by the ratio of its DC formula (the one :func:`earth_system` uses:
+    Dwight's star, the multiple-rod factors, the water-pipe formula) to the
+    single line's DC value, so every electrode tends exactly to its DC formula
+    as the frequency falls; the scaling carries the crowding of several arms or
+    rods over from DC to radio frequency (an approximation: at MF the arms'
+    mutual coupling changes less than their own impedance). A counterpoise
+    above the soil and a building's protective earth keep their DC values.
+    """
+    f = np.atleast_1d(np.asarray(frequency, float))
+    dc = earth_system(electrodes, soil, counterpoise_wires)
+    rho = 1.0 / soil.conductivity_s_m
+    items = [e for e in electrodes]
+    parts = []
+    for e, part in zip(items, dc["parts"]):
+        line = _line_of(e, soil, f, rho)
+        if line is None:
+            parts.append({"description": part["description"], "impedance_ohm": np.full(f.size, part["resistance_ohm"] + 0j),
+                          "effective_length_m": None, "method": part["method"] + " (frequency-independent)"})
+            continue
+        scale = part["resistance_ohm"] / line.dc_resistance
+        parts.append({"description": part["description"], "impedance_ohm": line.impedance * scale,
+                      "effective_length_m": line.effective_length, "method": line.method + ", scaled to "
+                      + part["method"] + " at DC"})
+    if not parts:
+        z = np.full(f.size, dc["resistance_ohm"] + 0j)
+    else:
+        with np.errstate(divide="ignore"):
+            z = 1.0 / np.sum([1.0 / p["impedance_ohm"] for p in parts], axis=0)
+    return {"impedance_ohm": z, "parts": parts, "frequency_hz": f,
+            "notes": ["Earth electrodes at the working frequency: each a lossy line in the soil (Sunde), tending to "
+                      "its DC resistance formula as the frequency falls."]}
+
+
+def improved_earth(electrodes, soil, frequency=None) -> dict:
+    """The what-if earth: the site's electrodes plus eight 10 m buried radials.
+
+    With ``frequency`` [Hz] the resistance is the real part of the earth
+    system's impedance there (electrodes as lossy lines) and the description
+    names the radials' effective length at that frequency in this soil.
+    """
     from aerial.site.reader import Electrode
 
     n, length, depth = WHAT_IF_RADIALS
     extra = Electrode("buried_wires", "what-if", n, length, 1.628e-3, 0.0, depth, arrangement="radials")
     out = earth_system(list(electrodes) + [extra], soil)
     out["description"] = f"add {n} buried radials of {length:g} m"
+    if frequency is not None:
+        rf = electrode_impedance(list(electrodes) + [extra], soil, [float(frequency)])
+        out["resistance_ohm"] = float(rf["impedance_ohm"][0].real)
+        l_eff = float(rf["parts"][-1]["effective_length_m"][0])
+        out["effective_length_m"] = l_eff
+        out["description"] += (f" (radials longer than {l_eff:.0f} m add nothing at {float(frequency) / 1e6:.2g} MHz "
+                               "in this soil)")
     return out
 
 
@@ -146,4 +226,4 @@ def as_counterpoise_site(site):
     return [w for w in site.wires if w.role == "counterpoise"]
 
 
-__all__ = ["earth_system", "improved_earth", "BUILDING_EARTH_TYPICAL_OHM", "replace"]
+__all__ = ["earth_system", "improved_earth", "electrode_impedance", "BUILDING_EARTH_TYPICAL_OHM", "replace"]

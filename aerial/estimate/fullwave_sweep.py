@@ -107,12 +107,15 @@ def full_wave_response(site, geometry, frequency, earth_ohm: float, progress=Non
     """
     seg = geometry.segments
     check_full_wave_budget(seg, frequency, allow_large)
-    series = 0.0 if not geometry.base_fed else float(earth_ohm)
+    # the earth system's resistance at each frequency goes in series after the solve (base feed only)
+    earth_f = np.broadcast_to(np.asarray(earth_ohm, float), (len(np.atleast_1d(frequency)),))
+    series = 0.0
     kwargs = {}
     if ground != "perfect":
         kwargs = {"soil_permittivity": site.soil.relative_permittivity, "soil_conductivity": site.soil.conductivity_s_m}
     res = solve_full_wave(seg, np.asarray(frequency, float), ground=ground, series_ohm=series, progress=progress, **kwargs)
-    z = np.asarray(res.impedance, complex)
+    series_f = earth_f if geometry.base_fed else np.zeros_like(earth_f)
+    z = np.asarray(res.impedance, complex) + series_f
     x = z.imag
     warnings = list(res.warnings)
     static = electrostatic_solution(seg)
@@ -122,7 +125,7 @@ def full_wave_response(site, geometry, frequency, earth_ohm: float, progress=Non
         f_bad = np.asarray(frequency)[~np.asarray(res.capacitive)]
         warnings.append(f"the aerial is inductive (past its first resonance) from {f_bad.min() / 1e3:.0f} kHz: "
                         "'capacitance presented' there shows the static value; use the reactance instead")
-    rg = np.asarray(res.electrode_loss_resistance, float) + float(res.series_resistance) + np.asarray(res.ground_loss_resistance, float)
+    rg = np.asarray(res.electrode_loss_resistance, float) + series_f + np.asarray(res.ground_loss_resistance, float)
     treatment = {"perfect": "perfect ground by images",
                  "lossy": "the site's soil as an exact half-space (Sommerfeld integrals); soil loss under the aerial "
                           "from the solved currents",
@@ -148,9 +151,11 @@ def full_wave_response(site, geometry, frequency, earth_ohm: float, progress=Non
         "loss_budget": {
             "soil_under_aerial_ohm": np.asarray(res.ground_loss_resistance, float),
             "soil_treatment": ("not modelled: perfect ground plane" if ground == "perfect" else treatment.split(";")[0]),
-            "electrode_ohm": np.asarray(res.electrode_loss_resistance, float) + float(res.series_resistance),
-            "electrode_treatment": ("earth electrodes' resistance as a lumped load where the earth lead meets the soil"
-                                    if not geometry.base_fed else "earth-system resistance in series at the feed"),
+            "electrode_ohm": np.asarray(res.electrode_loss_resistance, float) + series_f,
+            "electrode_treatment": ("earth electrodes' resistance (lossy lines in the soil, at the sweep's centre "
+                                    "frequency) as a lumped load where the earth lead meets the soil"
+                                    if not geometry.base_fed else
+                                    "earth-system resistance (lossy lines in the soil) in series at the feed"),
         },
         "convergence": {
             "relative_change": float(res.convergence),

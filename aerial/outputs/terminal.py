@@ -328,14 +328,25 @@ def render_report(result: dict, console, units: str = "si") -> None:
     earth = result.get("earth", {})
     if earth:
         et = Table(title="Earth system", title_justify="left")
-        for col in ("part", "resistance", "method"):
+        fc = earth.get("centre_frequency_hz")
+        at = f"at {eng(fc, 'Hz')}" if fc else "at radio frequency"
+        for col in ("part", "resistance (DC)", f"impedance {at}", "effective length", "method"):
             et.add_column(col)
         for part in earth.get("parts", []):
+            z = part.get("impedance_at_centre_ohm")
+            zs = f"{eng(z[0], 'Ω')} {'+' if z[1] >= 0 else '−'} j{eng(abs(z[1]), 'Ω')}" if z else ""
+            le = part.get("effective_length_m")
             et.add_row(escape(L.text(part.get("description", ""))), rng([part.get("resistance_low_ohm"), part.get("resistance_high_ohm")], "Ω")
                        if part.get("resistance_low_ohm") is not None else eng(part.get("resistance_ohm"), "Ω"),
-                       escape(part.get("method", "")))
+                       zs, eng(le, "m") if le is not None else "—", escape(part.get("method", "")))
+        zt = earth.get("impedance_ohm")
+        zt_s = ""
+        if zt is not None and fc:
+            j = int(np.argmin(np.abs(np.asarray(result["frequencies_hz"]) - fc)))
+            zt_s = f"[bold]{eng(zt[j][0], 'Ω')} {'+' if zt[j][1] >= 0 else '−'} j{eng(abs(zt[j][1]), 'Ω')}[/bold]"
         et.add_row("[bold]whole earth system[/bold]",
-                   f"[bold]{eng(earth.get('resistance_ohm'), 'Ω')}[/bold] ({rng([earth.get('resistance_low_ohm'), earth.get('resistance_high_ohm')], 'Ω')})", "")
+                   f"[bold]{eng(earth.get('resistance_ohm'), 'Ω')}[/bold] ({rng([earth.get('resistance_low_ohm'), earth.get('resistance_high_ohm')], 'Ω')})",
+                   zt_s, "", "")
         show(console, et)
 
     wi = result.get("what_if")
