@@ -20,10 +20,15 @@ For a short line (or at low frequency) the length, not the skin depth,
 bounds the leakage field, and the logarithms become the DC ones of the same
 sources: ln(2 l / a_e) - 1 (Sunde's buried wire) and ln(4 l / a) - 1
 (Dwight's rod). This module joins the two regimes by replacing gamma in the
-logarithms with q = sqrt(gamma^2 + q0^2), q0 chosen so that at gamma = 0 the
+logarithms with q = sqrt(|gamma|^2 + q0^2), q0 chosen so that at gamma = 0 the
 logarithm is exactly the DC one (q0 = 1.12 e / (2 l) for the wire, 1.12 e / (4 l)
 for the rod): an interpolation of this project, stated as such, exact in both
-limits. The line, open at its far end, presents::
+limits. The logarithms take the magnitude of gamma (real L, G, C per metre, as
+in the circuit models of grounding electrodes): with the complex gamma the
+shunt conductance turns negative where the soil's displacement current passes
+its conduction current (dry soil at HF), outside Sunde's conductive-earth
+assumption; the magnitude keeps the line passive there, at the price of
+leaving out radiation into the soil. The line, open at its far end, presents::
 
     Z_in = Z0 coth(Gamma l),  Z0 = sqrt(Z'/Y'),  Gamma = sqrt(Z' Y'),
 
@@ -138,14 +143,15 @@ def _line(frequency, length, a_eff, factor, dc_log, resistivity, relative_permit
         y = factor * np.pi * y_soil / np.log(1.12 / (q * a_eff))
         return z, y
 
-    z, y = per_metre(np.sqrt(gamma**2 + q0**2))
+    mag = np.abs(gamma)
+    z, y = per_metre(np.sqrt(mag**2 + q0**2))
     big_g = np.sqrt(z * y)
     z0 = np.sqrt(z / y)
     x = big_g * length
     with np.errstate(over="ignore"):
         coth = np.where(np.abs(x) < 20, 1.0 / np.tanh(np.where(np.abs(x) < 20, x, 1.0)), 1.0)
     z_in = z0 * coth
-    zl, yl = per_metre(gamma)
+    zl, yl = per_metre(mag)
     g_long = np.sqrt(zl * yl)
     l_eff = np.log(2.0 / EFFECTIVE_LENGTH_CHANGE) / (2.0 * g_long.real)
     warn = list(warnings)

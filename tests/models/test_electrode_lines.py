@@ -63,3 +63,14 @@ def test_every_site_electrode_tends_to_its_dc_formula():
         rf = electrode_impedance([e], soil, [1.0, 1e6])["impedance_ohm"]
         assert rf[0].real == pytest.approx(dc, rel=1e-3), e.kind
         assert abs(rf[1] - dc) > 1e-3 * dc  # and it does change at MF
+
+
+def test_report_shows_impedance_and_effective_length(capsys):
+    import pathlib
+
+    from aerial.cli import main
+
+    site = pathlib.Path(__file__).resolve().parents[2] / "site_examples" / "balcony_water_pipe.toml"
+    assert main(["report", str(site)]) == 0
+    out = capsys.readouterr().out
+    assert "effective length" in out and "add nothing at" in out and "lossy lines in the soil" in out
