@@ -400,6 +400,9 @@ def what_if(site, frequency: float, earth: dict) -> list[dict]:
             "available_power_w": p,
             "power_change_db": 10.0 * math.log10(p / p0) if p > 0 and p0 > 0 else 0.0,
         })
+    if better.get("note"):
+        out[-1]["note"] = better["note"]
+        out[-1]["effective_length_m"] = better["effective_length_m"]
     return out
 
 

@@ -216,8 +216,8 @@ def improved_earth(electrodes, soil, frequency=None) -> dict:
         out["resistance_ohm"] = float(rf["impedance_ohm"][0].real)
         l_eff = float(rf["parts"][-1]["effective_length_m"][0])
         out["effective_length_m"] = l_eff
-        out["description"] += (f" (radials longer than {l_eff:.0f} m add nothing at {float(frequency) / 1e6:.2g} MHz "
-                               "in this soil)")
+        out["note"] = (f"radials longer than {l_eff:.0f} m add nothing at {float(frequency) / 1e6:.2g} MHz "
+                       "in this soil (their effective length)")
     return out
 
 

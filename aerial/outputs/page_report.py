@@ -172,6 +172,13 @@ def _aerial_section(result) -> str:
     for key, value in a.items():
         if isinstance(value, str) and key != "model":
             extra.append(f"{key_label(key)}: {value}")
+    budget = a.get("loss_budget")
+    freqs = result.get("frequencies_hz")
+    if budget and freqs is not None and len(freqs):
+        i = len(freqs) // 2
+        extra.append(f"loss budget at {eng(freqs[i], 'Hz')}: wire {eng(a['conductor_loss_ohm'][i], 'Ω')}; soil under "
+                     f"the aerial {eng(budget['soil_under_aerial_ohm'][i], 'Ω')} ({budget['soil_treatment']}); earth "
+                     f"electrode {eng(budget['electrode_ohm'][i], 'Ω')} ({budget['electrode_treatment']})")
     body = (_wires_table(result["geometry"]) + _aerial_table(result) + bullets(extra)
             + bullets((result.get("ranges") or {}).get("notes", []), "notes"))
     return section("aerial", "The aerial", body, "sheet")
@@ -181,15 +188,33 @@ def _earth_section(result) -> str:
     earth = result.get("earth") or {}
     if not earth:
         return ""
+    fc = earth.get("centre_frequency_hz")
+
+    def z_text(z):
+        return f"{eng(z[0], 'Ω')} {'+' if z[1] >= 0 else '−'} j{eng(abs(z[1]), 'Ω')}" if z else ""
+
     rows = [[p.get("description", p.get("kind", "")),
              eng(p.get("resistance_ohm"), "Ω"),
-             range_text([p.get("resistance_low_ohm"), p.get("resistance_high_ohm")], "Ω"), p.get("method", "")]
+             range_text([p.get("resistance_low_ohm"), p.get("resistance_high_ohm")], "Ω"),
+             z_text(p.get("impedance_at_centre_ohm")),
+             eng(p["effective_length_m"], "m") if p.get("effective_length_m") is not None else "—",
+             p.get("method", "")]
             for p in earth.get("parts", [])]
+    zt = earth.get("impedance_ohm")
+    total_z = ""
+    if zt is not None and fc and len(zt):
+        j = int(np.argmin(np.abs(np.asarray(result["frequencies_hz"]) - fc)))
+        total_z = z_text(zt[j])
     rows.append([("whole earth system", "total"), (eng(earth.get("resistance_ohm"), "Ω"), "total"),
-                 (range_text([earth.get("resistance_low_ohm"), earth.get("resistance_high_ohm")], "Ω"), "total"), ""])
-    body = table(["part", "resistance", "range", "method"], rows)
+                 (range_text([earth.get("resistance_low_ohm"), earth.get("resistance_high_ohm")], "Ω"), "total"),
+                 (total_z, "total"), "", ""])
+    at = f"impedance at {eng(fc, 'Hz')}" if fc else "impedance"
+    body = table(["part", "resistance (DC)", "range", at, "effective length", "method"], rows)
+    if earth.get("impedance_method"):
+        body += bullets([earth["impedance_method"]], "notes")
     others = {k: v for k, v in earth.items() if k not in ("parts", "resistance_ohm", "resistance_low_ohm",
-                                                          "resistance_high_ohm")}
+                                                          "resistance_high_ohm", "impedance_ohm", "impedance_method",
+                                                          "centre_frequency_hz")}
     return section("earth", "Earth system", body + (generic_block("earth", others) if others else ""))
 
 

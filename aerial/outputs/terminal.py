@@ -358,6 +358,9 @@ def render_report(result: dict, console, units: str = "si") -> None:
             wt.add_row(escape(L.text(row["change"])), L(row["effective_height_m"]), eng(row["capacitance_f"], "F"),
                        eng(row["loss_resistance_ohm"], "Ω"), eng(row["available_power_w"], "W"), db(row["power_change_db"]))
         show(console, wt)
+        for row in wi:
+            if row.get("note"):
+                console.print(f"[dim]{escape(L.text(row['change']))}: {escape(L.text(row['note']))}[/dim]")
 
     _render_tuning(result.get("tuning"), console, L)
     _render_stations(result.get("stations"), console, L)

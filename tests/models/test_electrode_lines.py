@@ -65,12 +65,13 @@ def test_every_site_electrode_tends_to_its_dc_formula():
         assert abs(rf[1] - dc) > 1e-3 * dc  # and it does change at MF
 
 
-def test_report_shows_impedance_and_effective_length(capsys):
+def test_report_shows_impedance_and_effective_length(capsys, monkeypatch):
     import pathlib
 
     from aerial.cli import main
 
     site = pathlib.Path(__file__).resolve().parents[2] / "site_examples" / "balcony_water_pipe.toml"
+    monkeypatch.setenv("COLUMNS", "200")
     assert main(["report", str(site)]) == 0
     out = capsys.readouterr().out
     assert "effective length" in out and "add nothing at" in out and "lossy lines in the soil" in out
