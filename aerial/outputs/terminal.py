@@ -338,7 +338,7 @@ def render_report(result: dict, console, units: str = "si") -> None:
             le = part.get("effective_length_m")
             et.add_row(escape(L.text(part.get("description", ""))), rng([part.get("resistance_low_ohm"), part.get("resistance_high_ohm")], "Ω")
                        if part.get("resistance_low_ohm") is not None else eng(part.get("resistance_ohm"), "Ω"),
-                       zs, eng(le, "m") if le is not None else "—", escape(part.get("method", "")))
+                       zs, L(le) if le is not None else "—", escape(part.get("method", "")))
         zt = earth.get("impedance_ohm")
         zt_s = ""
         if zt is not None and fc:
