@@ -329,3 +329,18 @@ def test_bad_interference_margin_is_one_line_naming_the_key(write_site, capsys):
     assert main(["check", str(p)]) == 2
     err = capsys.readouterr().err
     assert "receiver.interference_margin" in err and "decibels" in err and len(err.strip().splitlines()) == 1
+
+
+def test_a_measured_bandwidth_is_checked_against_the_solve(write_site, capsys):
+    head, stations = CROWDED.split("\n[[stations]]", 1)
+    measured = '\n[receiver.measured]\ncoil = "230 uH"\ncapacitor = "150 pF"\nfrequency = "700 kHz"\nbandwidth = "45 kHz"\n'
+    p = write_site(head + measured + "\n[[stations]]" + stations)
+    code = main(["report", str(p), "--json"])
+    out, err = capsys.readouterr()
+    assert code == 0, err
+    tuning = json.loads(out)["tuning"]
+    check = tuning["calibration"]["bench_check"]
+    assert check["measured_bandwidth_hz"] == 45e3
+    assert check["solved_bandwidth_hz"] == pytest.approx(45e3, rel=0.2)
+    assert main(["report", str(p)]) == 0
+    assert "bench check at 700 kHz" in capsys.readouterr().out.replace("\n", " ")

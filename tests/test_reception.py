@@ -322,3 +322,20 @@ def test_interference_margin_decides_between_heard_and_heard_with_interference()
     heard = [r for r in strict if r["verdict"] == "heard with interference"]
     assert heard and "underneath" in heard[0]["verdict_text"] and "dB down" in heard[0]["verdict_text"]
     assert all(r["verdict"] != "heard with interference" for r in lax)
+
+
+def test_bench_bandwidth_is_checked_against_the_network_solve():
+    """Consistency check: a bandwidth measured on the model's own aerial gives back the model's loss,
+    and the network solve with the calibrated loss reproduces the measured bandwidth."""
+    grid, r, x = capacitive_aerial(200e-12, r_ohm=30.0)
+    parts = TuningParts("direct", coil_inductance_h=240e-6, capacitor_min_f=15e-12, capacitor_max_f=365e-12,
+                        coil_unloaded_q=150.0, earphone_ohm=10e3, detector_tap_fraction=0.3)
+    truth = design_tuning(grid, r, x, parts, band=(550e3, 1500e3))
+    row = min(truth["rows"], key=lambda rw: abs(rw["frequency_hz"] - 600e3))
+    cal = Calibration(240e-6, row["capacitor_setting_f"], row["frequency_hz"], row["bandwidth_hz"])
+    out = design_tuning(grid, r, x, TuningParts(**{**parts.__dict__, "calibration": cal}), band=(550e3, 1500e3))
+    check = out["calibration"]["bench_check"]
+    assert check["solved_bandwidth_hz"] == pytest.approx(check["measured_bandwidth_hz"], rel=0.05)
+    assert check["model_aerial_resistance_ohm"] == pytest.approx(30.0)
+    assert abs(check["model_loss_error_ratio"]) < 0.15
+    assert any("bench check" in n for n in out["notes"])

@@ -508,6 +508,45 @@ def _apply_calibration(aerial: _Aerial, parts: TuningParts, diode, notes: list) 
     return out
 
 
+def _bench_check(aerial: _Aerial, parts: TuningParts, notes: list) -> dict:
+    """The measured bandwidth against the network solve: with the calibrated aerial, and with the model's loss.
+
+    The calibration inverts the closed-form tank; the network solve (tapped winding, detector at
+    its tap at strong-signal loading, as when measuring a local station) should give the measured
+    bandwidth back. The aerial model's own loss resistance gives the bandwidth it predicted; the
+    difference between the two loss resistances is what the model got wrong.
+    """
+    cal = parts.calibration
+    f = np.array([float(cal.frequency_hz)])
+    q = DEFAULT_COIL_Q if parts.coil_unloaded_q is None else float(parts.coil_unloaded_q)
+    q_fun = _constant_q(q)
+    if parts.coil is not None and parts.coil.turns is not None:
+        _, q_fun, _, _, _ = _coil_from_winding(parts.coil, cal.coil_inductance_h)
+    coil = _Coil(cal.coil_inductance_h, q_fun, {}, [])
+    net = _net_parts(coil, parts)
+    g = _strong_signal_conductance(parts)
+    solved = tn_mod.tuned_figures(f, _za(aerial), net, g)
+    r_model = float(np.interp(f[0], aerial.f, aerial.r))
+    r_meas = float(aerial.cal_resistance)
+    x_cal = float(aerial.impedance(f)[1][0])
+    model = tn_mod.tuned_figures(f, lambda x: r_model + 1j * x_cal * f[0] / np.asarray(x, dtype=float), net, g)
+    diff = (r_model - r_meas) / r_meas
+    out = {
+        "measured_bandwidth_hz": float(cal.bandwidth_hz),
+        "solved_bandwidth_hz": _num(solved.bandwidth[0], "solved_bandwidth_hz", notes),
+        "model_bandwidth_hz": _num(model.bandwidth[0], "model_bandwidth_hz", notes),
+        "measured_aerial_resistance_ohm": r_meas,
+        "model_aerial_resistance_ohm": r_model,
+        "model_loss_error_ratio": _num(diff, "model_loss_error_ratio", notes),
+    }
+    notes.append(
+        f"bench check at {_khz(f[0])}: your measured bandwidth of {cal.bandwidth_hz / 1e3:.1f} kHz means an aerial loss "
+        f"resistance of {r_meas:.0f} Ω (the network solve with it gives {solved.bandwidth[0] / 1e3:.1f} kHz); the "
+        f"aerial model estimated {r_model:.0f} Ω, a bandwidth of {model.bandwidth[0] / 1e3:.1f} kHz — the model "
+        f"{'over' if diff > 0 else 'under'}states the loss by {abs(diff) * 100:.0f} %")
+    return out
+
+
 def calibrate_aerial(calibration: Calibration, parts: TuningParts) -> dict:
     """The aerial's capacitance (and loss) from a measured resonance, as a JSON-ready dict.
 
@@ -682,6 +721,8 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
     notes: list = []
     diode = _diode(parts)
     calibration = _apply_calibration(aerial, parts, diode, notes)
+    if calibration is not None and aerial.cal_resistance is not None:
+        calibration["bench_check"] = _bench_check(aerial, parts, notes)
     f_lo, f_hi = (aerial.f[0], aerial.f[-1]) if band is None else (float(band[0]), float(band[1]))
     if not (0 < f_lo < f_hi):
         raise ModelInputError("band must be (f_lo, f_hi) with 0 < f_lo < f_hi")
@@ -1333,6 +1374,10 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
     if not rows:
         return None
     current = _design_row(scene, _current_coupling(parts), base.inductance, base.block, parts.detector_tap_fraction)
+    can_hear = sd_mod.hearable(rows + [current], scene.threshold)
+    if can_hear.any():
+        rows = [sd_mod.rescore(r, can_hear, scene.margin_db) for r in rows]
+        current = sd_mod.rescore(current, can_hear, scene.margin_db)
     k = sd_mod.choose(rows)
     chosen = rows[k]
     out = {
@@ -1346,6 +1391,11 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
         "tradeoff": [{**_design_dict(r, scene, brief=True), "chosen": n == k} for n, r in enumerate(rows)],
         "notes": [],
     }
+    never = [n for n, ok in zip(scene.names, can_hear) if not ok]
+    if never and can_hear.any():
+        out["not_designed_for"] = never
+        out["notes"].append("too weak to hear with any of these designs, so left out of the objective (still counted "
+                            "as interferers): " + ", ".join(never))
     if not chosen["meets_margin"] and len(wanted) > 1:
         out["remedies"] = _remedies(scene, chosen, parts)
     return out

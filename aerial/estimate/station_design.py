@@ -103,7 +103,27 @@ def summarise(scene: Scene, lv, parts) -> dict:
         "weakest_power_w": float(power[weakest]), "weakest": weakest, "power_w": power,
         "worst_separation_db": float(sep[i, j]), "pair": (int(i), int(j)),
         "rejection_db": float(fig.rejection[scene.spacing_hz][0]), "capacitance_f": lv.capacitance,
+        "own": own, "sep": sep,
     }
+
+
+def hearable(rows, threshold) -> np.ndarray:
+    """Stations some candidate makes audible at the detector: the ones worth designing for. [bool]"""
+    return np.any(np.array([r["own"] for r in rows]) >= threshold, axis=0)
+
+
+def rescore(row: dict, wanted, margin_db) -> dict:
+    """The figures of merit over the ``wanted`` stations only (the others still count as interferers)."""
+    idx = np.flatnonzero(wanted)
+    if idx.size == 0:
+        return row
+    weakest = int(idx[np.argmin(row["power_w"][idx])])
+    sep = row["sep"][idx]
+    k = int(np.argmin(sep))
+    i, j = int(idx[k // sep.shape[1]]), int(k % sep.shape[1])
+    worst = float(row["sep"][i, j])
+    return {**row, "weakest": weakest, "weakest_power_w": float(row["power_w"][weakest]),
+            "worst_separation_db": worst, "pair": (i, j), "meets_margin": bool(worst >= margin_db)}
 
 
 def choose(rows) -> int:

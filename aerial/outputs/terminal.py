@@ -472,6 +472,8 @@ def _render_station_design(tuning, console) -> None:
         console.print(f"  → no single tuned circuit keeps every other listed station {design['margin_db']:g} dB down; "
                       f"the best separated is {escape(c['setting'])}, detector at {c['detector_tap_ratio']:.2f} "
                       f"({change}); the remedies below add a second circuit or a trap")
+    for line in design.get("notes", []):
+        console.print(f"[dim]{escape(line)}[/dim]")
     for r in design.get("remedies", []):
         if r["kind"] == "second tuned circuit":
             what = (f"a second tuned circuit for the aerial ({eng(r['primary_inductance_h'], 'H')} tuned by about "
