@@ -24,15 +24,15 @@ from aerial.models import detector as det_mod
 from aerial.models import network as net_mod
 
 #: Aerial taps tried (fraction of the turns from the earthy end). [1]
-AERIAL_TAPS = (0.05, 0.1, 0.15, 0.2, 0.3, 0.45, 0.65)
+AERIAL_TAPS = (0.05, 0.1, 0.2, 0.3, 0.5)
 #: Series (coupling) capacitors tried. [F]
-SERIES_CAPACITORS_F = (5e-12, 10e-12, 22e-12, 47e-12, 100e-12, 220e-12)
+SERIES_CAPACITORS_F = (10e-12, 22e-12, 47e-12, 100e-12, 220e-12)
 #: Separate-primary coupling coefficients tried; the primary is taken as a tenth of the tank coil's
 #: inductance (about a third of its turns on the same former, an assumption). [1]
-PRIMARY_COUPLINGS = (0.05, 0.1, 0.2, 0.35, 0.5)
+PRIMARY_COUPLINGS = (0.05, 0.1, 0.2, 0.4)
 PRIMARY_FRACTION = 0.1
 #: Detector taps tried. [1]
-DETECTOR_TAPS = (0.1, 0.15, 0.2, 0.3, 0.45, 0.65, 1.0)
+DETECTOR_TAPS = (0.1, 0.2, 0.3, 0.5, 0.7, 1.0)
 #: Inductance of the trap coil proposed for a wave trap. [H]
 TRAP_INDUCTANCE_H = 200e-6
 

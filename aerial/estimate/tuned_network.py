@@ -98,12 +98,18 @@ def tuned_figures(frequency, za: Callable, parts: net_mod.NetworkParts, detector
     def response(f):
         return np.abs(net_mod.solve_network(f, za(f), parts, c_pos, g).detector_voltage)
 
-    tuned = response(f0)
+    n = f0.size
+    probes = [f0] + [p for d in offsets for p in (np.maximum(f0 - d, f0 * 1e-3), f0 + d)]
+    every = np.concatenate(probes)
+    # one solve for the tuned point and every offset
+    levels = np.abs(net_mod.solve_network(every, za(every), parts, np.tile(c_pos, len(probes)),
+                                          np.tile(g, len(probes))).detector_voltage)
+    tuned = levels[:n]
     edges = net_mod.detector_bandwidth(f0, response) if bandwidth else _no_edges(f0)
     rej = {}
-    for d in offsets:
-        below = np.maximum(f0 - d, f0 * 1e-3)
-        rej[d] = net_mod.rejection_db(tuned, (response(below), response(f0 + d)))
+    for k, d in enumerate(offsets):
+        below, above = levels[(1 + 2 * k) * n:(2 + 2 * k) * n], levels[(2 + 2 * k) * n:(3 + 2 * k) * n]
+        rej[d] = net_mod.rejection_db(tuned, (below, above))
     return TunedFigures(c, tuned, edges.loaded_q, edges.bandwidth, edges.wider_than_searched, rej)
 
 
@@ -259,8 +265,11 @@ def station_levels(frequency, open_circuit_voltage, za: Callable, parts: net_mod
                                      table=table)
         g = 1.0 / r_in
         converged = ok
-    c_raw = net_mod.tuning_capacitance_for(fs, z_s, parts, g)
-    top = v_oc * np.abs(net_mod.solve_network(fs, z_s, parts, c, g).top_voltage)
+    if bandwidth:
+        c_raw = net_mod.tuning_capacitance_for(fs, z_s, parts, g)
+        top = v_oc * np.abs(net_mod.solve_network(fs, z_s, parts, c, g).top_voltage)
+    else:  # a design search: the tuning of the last pass and no top voltage
+        c_raw, top = c, np.zeros_like(fs)
 
     def response(f):
         return np.abs(net_mod.solve_network(f, za(f), parts, c, g).detector_voltage)
