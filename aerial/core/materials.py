@@ -105,7 +105,7 @@ SOIL_WORDS: dict[str, tuple[str, str]] = {
 }
 #: Other spellings of the same words.
 SOIL_WORD_ALIASES: dict[str, str] = {
-    "marshy": "marsh", "marshland": "marsh", "bog": "marsh", "boggy": "marsh", "swamp": "marsh",
+    "marshy": "marsh", "marshland": "marsh", "bog": "marsh", "boggy": "marsh", "swamp": "marsh", "swampy": "marsh", "fen": "marsh",
     "clay soil": "clay", "clayey": "clay", "loamy": "loam", "garden soil": "loam", "topsoil": "loam",
     "chalky": "chalk", "peaty": "peat", "sandy": "sand", "sand and gravel": "sand",
     "gravel": "sand", "stony": "sand", "rocky": "rock", "granite": "rock",

@@ -225,6 +225,8 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
     try:
         unit = find_unit(written, units, match.group(1) if match else "1")
     except UnitError as err:
+        if err.expected.startswith("ambiguous"):  # the two readings say it all
+            raise
         raise UnitError(f"{err.expected}; {expected}") from None
     if match:
         number = float(match.group(1))

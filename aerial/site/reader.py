@@ -49,8 +49,8 @@ MAX_SUPPORTS = 200
 MAX_BAND_ENTRIES = 32
 
 #: Most sweep frequencies a report computes (all bands together). The worst named set, "lf", "mf" and
-#: "hf" at the finest step of 100 Hz, gives 51,616; the closed-form report on it takes about 6 s and
-#: writes 24 MB of JSON on the reference machine.
+#: "hf" at the finest step of 100 Hz, gives 51,616; the closed-form report on it takes about 4 s and
+#: writes 21 MB of JSON on the reference machine (benchmarks/bench_limits.py).
 MAX_FREQUENCIES = 60_000
 
 #: Points a band is swept at, at most (band edges included).
