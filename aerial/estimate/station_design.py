@@ -138,18 +138,36 @@ def choose(rows) -> int:
 PRIMARY_TUNING_F = 100e-12
 
 
+#: Series capacitors tried between the aerial and the aerial-side tuned circuit of a double-tuned pair. [F]
+PRIMARY_SERIES_F = (10e-12, 22e-12, 47e-12, 100e-12)
+
+
 def double_tuned(scene: Scene, inductance, block, detector_tap, wanted, other) -> dict:
     """A second tuned circuit ahead of the tank, coupled at critical coupling: computed effect for one pair.
 
-    The aerial is tuned by its own circuit: a primary coil Lp that resonates with the aerial's
-    shunt capacitance plus :data:`PRIMARY_TUNING_F` at the wanted frequency, coupled to the
-    detector's tank (the present coil) at k_c = 1/√(Q1 Q2) [Terman, Radio Engineers' Handbook,
-    1943, from memory], Q1 and Q2 the two circuits' loaded Q each taken alone.
+    The aerial reaches its own tuned circuit through a small series capacitor Cs (the best
+    separating of :data:`PRIMARY_SERIES_F`); that circuit's coil Lp resonates with the aerial's
+    shunt capacitance through Cs plus :data:`PRIMARY_TUNING_F` at the wanted frequency and is
+    coupled to the detector's tank (the present coil) at k_c = 1/√(Q1 Q2) [Terman, Radio Engineers'
+    Handbook, 1943, from memory], Q1 and Q2 the two circuits' loaded Q each taken alone.
     """
+    best = None
+    for cs in PRIMARY_SERIES_F:
+        r = _double_tuned_with(scene, inductance, block, detector_tap, wanted, other, cs)
+        if best is None or (r["separation_db"], r["wanted_power_w"]) > (best["separation_db"], best["wanted_power_w"]):
+            best = r
+    return best
+
+
+def _double_tuned_with(scene, inductance, block, detector_tap, wanted, other, cs) -> dict:
     f = scene.frequency[[wanted, other]]
     fw = f[:1]
     w = 2.0 * np.pi * fw
-    y_a = 1.0 / scene.za(fw)
+
+    def za(x):
+        return scene.za(x) + 1.0 / (2j * np.pi * np.asarray(x, dtype=float) * cs)
+
+    y_a = 1.0 / za(fw)
     c_a = np.maximum(np.imag(y_a) / w, 0.0)
     lp = float((1.0 / (w**2 * (c_a + PRIMARY_TUNING_F)))[0])
     q = scene.q_fun(fw)
@@ -161,12 +179,13 @@ def double_tuned(scene: Scene, inductance, block, detector_tap, wanted, other) -
     parts = tn_mod.network_parts("separate primary", inductance, scene.q_fun, detector_tap,
                                  primary_inductance=lp, coupling_coefficient=k, block=block,
                                  primary_capacitance=PRIMARY_TUNING_F)
-    lv = tn_mod.station_levels(f, scene.emf[[wanted, other]], scene.za, parts, scene.diode, scene.load, passes=1,
+    lv = tn_mod.station_levels(f, scene.emf[[wanted, other]], za, parts, scene.diode, scene.load, passes=1,
                                bandwidth=False, table=scene.table)
     own = lv.others[0, 0]
     return {
         "kind": "second tuned circuit",
         "coupling_coefficient": k,
+        "series_capacitor_f": float(cs),
         "primary_inductance_h": lp,
         "primary_capacitor_f": PRIMARY_TUNING_F,
         "primary_loaded_q": q1,

@@ -476,9 +476,9 @@ def _render_station_design(tuning, console) -> None:
         console.print(f"[dim]{escape(line)}[/dim]")
     for r in design.get("remedies", []):
         if r["kind"] == "second tuned circuit":
-            what = (f"a second tuned circuit for the aerial ({eng(r['primary_inductance_h'], 'H')} tuned by about "
-                    f"{eng(r['primary_capacitor_f'], 'F')}) coupled to the tank at k = {r['coupling_coefficient_ratio']:.3f} "
-                    "(critical coupling)")
+            what = (f"a second tuned circuit for the aerial (aerial through {eng(r['series_capacitor_f'], 'F')} to "
+                    f"{eng(r['primary_inductance_h'], 'H')} tuned by about {eng(r['primary_capacitor_f'], 'F')}) coupled "
+                    f"to the tank at k = {r['coupling_coefficient_ratio']:.3f} (critical coupling)")
         else:
             where = "in the aerial lead" if r["kind"].startswith("parallel") else "from the aerial terminal to earth"
             what = (f"a {r['kind']} {where}: {eng(r['trap_inductance_h'], 'H')} with {eng(r['trap_capacitor_f'], 'F')}, "
