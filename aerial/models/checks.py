@@ -22,10 +22,13 @@ def positive(name: str, value, allow_zero: bool = False) -> np.ndarray:
     aerial.core.errors.ModelInputError: radius must be finite and positive; got -1.0
     """
     arr = np.asarray(value, dtype=float)
-    bad = ~np.isfinite(arr) | ((arr < 0) if allow_zero else (arr <= 0))
-    if np.any(bad):
-        need = "zero or positive" if allow_zero else "positive"
-        raise ModelInputError(f"{name} must be finite and {need}; got {value!r}")
+    if arr.size:
+        # two reductions instead of a mask: NaN makes both comparisons false, -inf fails the first
+        lo, hi = arr.min(), arr.max()
+        ok = (lo >= 0.0 if allow_zero else lo > 0.0) and hi < np.inf
+        if not ok:
+            need = "zero or positive" if allow_zero else "positive"
+            raise ModelInputError(f"{name} must be finite and {need}; got {value!r}")
     return arr
 
 
