@@ -81,7 +81,7 @@ def test_sigint_during_a_full_wave_sweep(tmp_path):
     marker = tmp_path / "sweep-started"
     proc = subprocess.Popen(
         [sys.executable, "-c", CHILD, str(marker), "report", str(BACKYARD), "--full-wave", "--step", "100 Hz",
-         "--pictures", str(pics), "--json"],
+         "--pictures", str(pics), "--json", "--quiet"],
         stdout=subprocess.PIPE, stderr=subprocess.PIPE, env=env, cwd=tmp_path,
     )
     deadline = time.monotonic() + SWEEP_START_TIMEOUT_S
