@@ -69,6 +69,8 @@ def format_value(key: str, value) -> str:
 
     >>> format_value("bandwidth_hz", 8550.0), format_value("share_ratio", 0.25), format_value("x", None)
     ('8.55 kHz', '25 %', '—')
+    >>> format_value("field_range_v_per_m", [1e-4, 1e-3]), format_value("frequencies_hz", [7e5, 1.4e6])
+    ('100 µV/m – 1 mV/m', '700 kHz, 1.4 MHz')
     """
     if value is None:
         return "—"
@@ -79,8 +81,8 @@ def format_value(key: str, value) -> str:
     if isinstance(value, dict):
         return "; ".join(f"{key_label(k)}: {format_value(k, v)}" for k, v in value.items())
     if isinstance(value, (list, tuple)):
-        if len(value) == 2 and all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in value) \
-                and any(key.endswith(s) for s, _ in SUFFIX_UNITS):
+        if len(value) == 2 and "range" in key \
+                and all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in value):
             return f"{format_value(key, value[0])} – {format_value(key, value[1])}"
         return ", ".join(format_value(key, v) for v in value) or "—"
     unit = next((u for s, u in SUFFIX_UNITS if key.endswith(s)), None)

@@ -92,7 +92,10 @@ def site_sentence(result) -> str:
         parts.append("earthed through " + " and ".join(p.get("description", p.get("kind", "")) for p in earth["parts"]))
     soil = site.get("soil")
     soil = soil.get("category") if isinstance(soil, dict) else soil
-    parts.append(f"{soil} soil, {site.get('noise_category', '')} man-made noise, region {site.get('region', '')}")
+    setting = [f"{soil} soil" if soil else "", f"{site['noise_category']} man-made noise" if site.get("noise_category")
+               else "", f"region {site['region']}" if site.get("region") else ""]
+    if any(setting):
+        parts.append(", ".join(x for x in setting if x))
     bands = result.get("bands") or []
     if 0 < len(bands) <= 3:
         parts.append("listening on " + ", ".join(f"{b['name']} ({eng(b['from_hz'], 'Hz')} – {eng(b['to_hz'], 'Hz')})"
