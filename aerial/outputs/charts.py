@@ -25,6 +25,8 @@ PALETTE = {"blue": "#0072B2", "orange": "#E69F00", "sky": "#56B4E9", "green": "#
 
 #: Marker and colour per station verdict: the shape and the printed word carry the meaning, not the colour.
 VERDICT_STYLE = {"clearly heard": ("o", PALETTE["blue"]), "marginal": ("s", PALETTE["orange"]),
+                 "heard with interference": ("^", PALETTE["orange"]), "swamped": ("v", PALETTE["vermillion"]),
+                 "out of the tuning range": ("D", PALETTE["grey"]), "below the noise": ("P", PALETTE["vermillion"]),
                  "not heard": ("X", PALETTE["vermillion"])}
 
 _RC = {"svg.fonttype": "none", "font.family": "sans-serif", "font.size": 9.0, "axes.titlesize": 10.0,

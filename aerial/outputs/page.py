@@ -31,7 +31,10 @@ SUFFIX_UNITS = (("_v_per_m", "V/m"), ("_s_m", "S/m"), ("_ohm", "Ω"), ("_hz", "H
                 ("_v", "V"), ("_f", "F"), ("_h", "H"), ("_m", "m"), ("_ratio", "%"), ("_s", "s"), ("_a", "A"))
 
 #: Symbols beside each station verdict: the word and the shape carry the meaning, the colour only helps.
-VERDICT_MARK = {"clearly heard": "●", "marginal": "■", "not heard": "✕"}
+VERDICT_MARK = {"clearly heard": "●", "marginal": "■", "heard with interference": "▲", "swamped": "▼",
+                "out of the tuning range": "◆", "below the noise": "✚", "not heard": "✕"}
+#: CSS class of each verdict (the colour only helps; the word and the symbol carry the meaning).
+VERDICT_CLASS = {"clearly heard": "good", "marginal": "caution", "heard with interference": "caution"}
 
 
 def esc(value) -> str:

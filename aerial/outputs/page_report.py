@@ -9,8 +9,8 @@ from __future__ import annotations
 import numpy as np
 
 from aerial.outputs import charts, site_drawings
-from aerial.outputs.page import (VERDICT_MARK, bullets, dict_rows_table, document, esc, figure, format_value,
-                                 generic_block, key_label, range_text, section, site_file_name, table)
+from aerial.outputs.page import (VERDICT_CLASS, VERDICT_MARK, bullets, dict_rows_table, document, esc, figure,
+                                 format_value, generic_block, key_label, range_text, section, site_file_name, table)
 from aerial.outputs.terminal import eng
 
 #: Top-level keys of the result the report page shows in its own sections; any other key is shown generically.
@@ -292,9 +292,10 @@ def _tuning_section(result) -> str:
     return section("tuning", "Tuning", body, "sheet")
 
 
-def _verdict_cell(verdict) -> tuple[str, str]:
-    klass = {"clearly heard": "good", "marginal": "caution", "not heard": "bad"}.get(verdict or "", "")
-    return (f"{VERDICT_MARK.get(verdict, '')} {verdict or '—'}".strip(), f"verdict {klass}")
+def _verdict_cell(verdict, words=None) -> tuple[str, str]:
+    """(symbol and words, CSS class) of a verdict; ``words`` is the verdict in words when the result has them."""
+    klass = VERDICT_CLASS.get(verdict or "", "bad" if verdict else "")
+    return (f"{VERDICT_MARK.get(verdict, '')} {words or verdict or '—'}".strip(), f"verdict {klass}")
 
 
 def _station_reasons(s) -> list[str]:
@@ -327,16 +328,19 @@ def _stations_section(result) -> str:
                eng(s.get("field_v_per_m"), "V/m"), eng(s.get("detector_power_w"), "W"),
                format_value("audio_power_w", s.get("audio_power_w")),
                "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
-               _verdict_cell(s.get("verdict"))]
+               _verdict_cell(s.get("verdict"), s.get("verdict_text"))]
         if nights:
             night = s.get("night") or {}
             field = eng(night.get("field_v_per_m"), "V/m") if night else "—"
-            row += [field + (" fading" if night.get("fading") else ""), _verdict_cell(night.get("verdict"))]
+            row += [field + (" fading" if night.get("fading") else ""),
+                    _verdict_cell(night.get("verdict"), night.get("verdict_text"))]
         rows.append(row)
     headers = ["station", "frequency", "distance", "field", "at the detector", "audio", "signal-to-noise",
                "by day" if nights else "verdict"] + (["night field", "by night"] if nights else [])
     caption = ("Stations (by day: ground wave; by night: ground and sky wave) — " if nights else "Stations — ")
-    body = (table(headers, rows, caption + "● clearly heard, ■ marginal, ✕ not heard")
+    shown = {s.get("verdict") for s in stations} | {(s.get("night") or {}).get("verdict") for s in stations}
+    caption += ", ".join(f"{mark} {v}" for v, mark in VERDICT_MARK.items() if v in shown)
+    body = (table(headers, rows, caption)
             + bullets([line for s in stations for line in _station_reasons(s)], "reasons")
             + figure(charts.station_chart(result), "Power each station delivers to the detector, and the noise that "
                      "comes with it in the tuned bandwidth (the gap is the signal-to-noise ratio)"
