@@ -129,7 +129,11 @@ def _frequency_panel(ax, f, y, parts, log, style, result, range_key, scale, lege
         if range_key:
             _shade_range(ax, result, range_key, band, scale, "range from the stated tolerances" if k == 0 else None)
     if log:
+        from matplotlib.ticker import FuncFormatter, NullFormatter
+
         ax.set_xscale("log")
+        ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _: f"{v:g}"))  # plain text, no mathtext
+        ax.xaxis.set_minor_formatter(NullFormatter())
     ax.set_xlabel("frequency [kHz]")
     if legend:
         ax.legend(loc="best", fontsize=7)
@@ -271,7 +275,12 @@ def station_figure(result):
         mark(s["detector_power_w"], noise_power_at_detector(s), day_y, s.get("verdict", ""), False)
         if night.get("detector_power_w"):
             mark(night["detector_power_w"], noise_power_at_detector(night), yi - 0.17, night.get("verdict", ""), True)
+    from matplotlib.ticker import EngFormatter, LogLocator, NullLocator
+
     ax.set_xscale("log")
+    ax.xaxis.set_major_locator(LogLocator(base=10, numticks=8))
+    ax.xaxis.set_major_formatter(EngFormatter(unit="W", places=0))  # "10 pW": plain text, no mathtext
+    ax.xaxis.set_minor_locator(NullLocator())
     ax.set_yticks(y, [plain_label(s.get("name", "")) for s in stations])
     ax.set_ylim(-0.7, len(stations) - 0.3)
     lo, hi = ax.get_xlim()
