@@ -38,9 +38,10 @@ distance = "30 km"
 
 #: Sections every report page carries (ids), in page order.
 REPORT_SECTIONS = ("summary", "headline", "drawings", "aerial", "earth", "what-if", "frequency-pictures", "tuning",
-                   "stations", "safety", "warnings", "cautions")
+                   "station-design", "stations", "safety", "warnings", "cautions")
 #: Pictures every report page of a site with stations carries (figure ids).
-REPORT_PICTURES = ("plan-view", "side-elevation", "impedance", "capacitance", "tuning-range", "station-power")
+REPORT_PICTURES = ("plan-view", "side-elevation", "impedance", "capacitance", "tuning-range", "station-tuning",
+                   "station-power")
 
 
 def run(capsys, *argv):
@@ -123,14 +124,16 @@ def test_every_chart_axis_names_its_quantity_and_unit(built_in):
     result, _ = built_in
     scene = site_drawings.report_scene(result)
     figures = [charts.impedance_figure(result), charts.capacitance_figure(result), charts.tuning_figure(result),
-               charts.station_figure(result), site_drawings.plan_figure(scene), site_drawings.elevation_figure(scene)]
+               charts.station_figure(result), charts.station_design_figure(result), site_drawings.plan_figure(scene),
+               site_drawings.elevation_figure(scene)]
     for fig in figures:
         for ax in fig.axes:
             for label, ticks in ((ax.get_xlabel(), ax.get_xticklabels()), (ax.get_ylabel(), ax.get_yticklabels())):
                 categorical = any(t.get_text() and not re.fullmatch(r"[−\-\d.,e+$^{}\\mathdefault ]+", t.get_text())
                                   for t in ticks)
-                assert label, f"{fig.aerial_svg[0]}: an axis without a label"
-                assert categorical or re.search(r"\[[^\]]+\]", label), f"{fig.aerial_svg[0]}: '{label}' has no unit"
+                name = getattr(fig, "aerial_svg", ("chart",))[0]
+                assert label, f"{name}: an axis without a label"
+                assert categorical or re.search(r"\[[^\]]+\]", label), f"{name}: '{label}' has no unit"
 
 
 def test_charts_do_not_rest_on_red_against_green():

@@ -99,7 +99,7 @@ def test_report_page_prints_one_sheet_per_part(browser, pages, paper):
     folder, _, _ = pages
     browser.open(folder / "report.html")
     sheets = browser.evaluate("document.querySelectorAll('.sheet').length")
-    assert sheets == 6
+    assert sheets == 7  # summary, aerial, across the band, tuning, tuning for the stations, stations, safety
     assert pdf_page_count(browser.pdf(paper)) == sheets
 
 

@@ -258,6 +258,73 @@ def _tuning_table(tuning) -> str:
     return table([c[0] for c in columns], out, "Tuning across the band (selected frequencies)", "wide")
 
 
+def _design_rows(design) -> list[list]:
+    """Rows of the stations' tuning design: your parts, the chosen design, the best of every other coupling."""
+    best = {}
+    for r in design.get("tradeoff") or []:
+        b = best.get(r["arrangement"])
+        if b is None or (r["meets_margin"], r["weakest_detector_power_w"]) > (b["meets_margin"],
+                                                                              b["weakest_detector_power_w"]):
+            best[r["arrangement"]] = r
+    chosen = design["chosen"]
+    shown = [("yours", design["current"]), ("chosen", chosen)]
+    shown += [("", r) for r in best.values()
+              if (r["setting"], r["detector_tap_ratio"]) != (chosen["setting"], chosen["detector_tap_ratio"])]
+    rows = []
+    for label, r in shown:
+        sep = r.get("worst_separation_db")
+        rows.append([(label, "total") if label else "", r["setting"], f"{r['detector_tap_ratio']:.2f}",
+                     f"{eng(r['weakest_detector_power_w'], 'W')} ({r['weakest_station']})",
+                     "no other audible" if sep is None else f"{sep:.0f} dB" + ("" if r["meets_margin"] else " (short)"),
+                     f"{r['adjacent_rejection_db']:.1f} dB"])
+    return rows
+
+
+def _remedy_line(r) -> str:
+    def rel(db):
+        return f"{abs(db):.0f} dB {'below' if db >= 0 else 'above'}"
+
+    if r.get("kind") == "second tuned circuit":
+        what = (f"a second tuned circuit for the aerial ({eng(r['primary_inductance_h'], 'H')} tuned by about "
+                f"{eng(r['primary_capacitor_f'], 'F')}) coupled to the tank at k = {r['coupling_coefficient_ratio']:.3f}")
+    else:
+        where = "in the aerial lead" if str(r.get("kind", "")).startswith("parallel") else "from the aerial terminal to earth"
+        what = (f"a {r.get('kind')} {where}: {eng(r.get('trap_inductance_h'), 'H')} with "
+                f"{eng(r.get('trap_capacitor_f'), 'F')}, tuned to {eng(r.get('tuned_to_hz'), 'Hz')}")
+    verdict = ("meets the margin" if r["meets_margin"] else "better, still short of the margin"
+               if r["separation_db"] > r["separation_before_db"] else "no better than the single circuit")
+    return (f"{what}: {r['interferer']} {rel(r['separation_db'])} {r['wanted']} (was {rel(r['separation_before_db'])}); "
+            f"{r['wanted']} then gets {eng(r['wanted_power_w'], 'W')} at the detector — {verdict}")
+
+
+def _station_design_block(result) -> str:
+    """The tuning designed for the listed stations: trade-off table, remedies, notes and its picture."""
+    design = (result.get("tuning") or {}).get("station_design")
+    if not design or not design.get("chosen") or not design.get("current"):
+        return ""
+    spacing = design.get("channel_spacing_hz", 9e3)
+    head = ["", "coupling", "detector tap", "weakest station at the detector", "worst separation",
+            f"{eng(spacing, 'Hz')} away"]
+    c = design["chosen"]
+    summary = (f"chosen: {c['setting']}, detector at {c['detector_tap_ratio']:.2f} of the turns, coil "
+               f"{eng(c['coil_inductance_h'], 'H')}: every other listed station at least {design['margin_db']:g} dB below"
+               if design.get("meets_margin") else
+               f"no single tuned circuit keeps every other listed station {design['margin_db']:g} dB down; the best "
+               f"separated is {c['setting']}, detector at {c['detector_tap_ratio']:.2f}; the remedies below add a "
+               "second circuit or a trap")
+    try:
+        remedies = [_remedy_line(r) for r in design.get("remedies", [])]
+    except (KeyError, TypeError):  # a remedy of a kind this page does not know: shown as plain facts
+        remedies = [format_value("remedy", r) for r in design.get("remedies", [])]
+    body = (table(head, _design_rows(design), f"Others kept {design['margin_db']:g} dB down; best of each coupling",
+                  "wide")
+            + bullets([summary] + remedies, "advice") + bullets(design.get("notes", []), "notes")
+            + figure(charts.station_design_chart(result), "The weakest wanted station's power at the detector against "
+                     "the rejection of the next channel, one mark per coupling and detector tap; the chosen design "
+                     "ringed, your own parts crossed", "station-tuning"))
+    return section("station-design", "Tuning for your stations", body, "sheet")
+
+
 def _tuning_section(result) -> str:
     tuning = result.get("tuning") or {}
     if not tuning:
@@ -279,7 +346,7 @@ def _tuning_section(result) -> str:
         verdict = f'<p class="verdict {klass}"><strong>Band coverage:</strong> {mark} {esc(cov["verdict"])}</p>'
     known = {"arrangement", "coil", "detector", "earphone_ohm", "rows", "coverage", "advice", "notes", "warnings",
              "band", "source", "range_curve",
-             "station_design", "channel_spacings_hz"}  # the stations' tuning design: the report and its picture
+             "station_design", "channel_spacings_hz"}  # the stations' tuning design has its own block
     extra = "".join(f"<h3>{esc(key_label(k).capitalize())}</h3>{generic_block(k, v)}"
                     for k, v in tuning.items() if k not in known and v not in (None, [], {}, ""))
     body = (f"<p>{esc(intro)}; detector: {esc(tuning.get('detector', ''))}, earphone "
@@ -385,6 +452,7 @@ def report_page(result: dict, surroundings: dict | None = None) -> str:
         The site's plan surroundings (:func:`aerial.outputs.site_drawings.site_surroundings`) for the plan view.
     """
     body = _summary(result, surroundings) + _aerial_section(result) + _earth_section(result) + _what_if_section(result)
-    body += _pictures_section(result) + _tuning_section(result) + _stations_section(result) + _extras(result)
+    body += (_pictures_section(result) + _tuning_section(result) + _station_design_block(result)
+             + _stations_section(result) + _extras(result))
     body += _safety_section(result)
     return document(f"{result['site']['name']} — aerial report", body, result["site"].get("file"))
