@@ -74,12 +74,17 @@ class Lengths:
     ('22 ft', '0.063 in', '59 mi')
     >>> Lengths("us").text("raise the wire 3 m; add 10 m; 2 mm2 wire at 1 m·pF and 5 mV/m")
     'raise the wire 9.84 ft; add 32.8 ft; 2 mm2 wire at 1 m·pF and 5 mV/m'
+    >>> Lengths("us").text("paths of 50–12 000 km; a 2-4 m pole")
+    'paths of 31.1–7456 mi; a 6.56–13.1 ft pole'
     >>> Lengths("si")(6.72), Lengths("si").distance(95e3)
     ('6.72 m', '95 km')
     """
 
-    #: A number followed by a metric length unit in free text (not m·pF, mV/m, mm2 ...).
-    PATTERN = re.compile(r"(?<![\w.])(\d+(?:\.\d+)?)\s?(km|cm|mm|m)(?![\w·/²^])")
+    #: A number (thousands may be grouped by a space, "12 000") followed by a metric length unit in
+    #: free text (not m·pF, mV/m, mm2 ...); a range "50–12 000 km" is taken whole.
+    NUMBER = r"\d{1,3}(?:[ \u00a0\u2009\u202f]\d{3})+(?:\.\d+)?|\d+(?:\.\d+)?"
+    PATTERN = re.compile(rf"(?<![\w.])(?<!\d[ \u00a0\u2009\u202f])(?:({NUMBER})\s?[–-]\s?)?({NUMBER})\s?(km|cm|mm|m)"
+                         r"(?![\w·/²^])")
 
     def __init__(self, system: str = "si"):
         if system not in ("si", "us"):
@@ -136,9 +141,16 @@ class Lengths:
             return words
         scale = {"km": 1e3, "m": 1.0, "cm": 1e-2, "mm": 1e-3}
 
+        def number(group):
+            return float(re.sub(r"\s", "", group))
+
         def convert(match):
-            metres = float(match.group(1)) * scale[match.group(2)]
-            return self.distance(metres) if match.group(2) == "km" else self(metres)
+            low, value, unit = match.groups()
+            show = self.distance if unit == "km" else self
+            shown = show(number(value) * scale[unit])
+            if low is None:
+                return shown
+            return f"{show(number(low) * scale[unit]).rsplit(' ', 1)[0]}–{shown}"
 
         return self.PATTERN.sub(convert, words)
 
