@@ -112,6 +112,17 @@ def test_us_units_convert_grouped_numbers_and_ranges_whole(capsys):
     assert " 0 mi" not in out and not Lengths.PATTERN.findall(out)
 
 
+def test_a_station_that_spills_onto_another_says_so_in_plain_words(capsys, tmp_path):
+    # In the built-in example the strong local station is audible round much of the dial: its line must
+    # say where it comes through ("heard under: X" read as if it were under X).
+    code, out, _ = run(capsys, "report", "--width", "400", "--quiet", "--page", str(tmp_path / "p.html"))
+    assert code == 0
+    assert "Riverside Talk 880: " in out and "also comes through when tuned to: Hillcrest Classics" in out
+    assert "heard under" not in out
+    page = (tmp_path / "p.html").read_text(encoding="utf-8")
+    assert "also comes through when tuned to" in page and "heard under" not in page
+
+
 def test_lengths_in_us_units():
     us = Lengths("us")
     assert us(0.3048) == "1 ft" and us(3.048) == "10 ft" and us(0.0254) == "1 in"  # exact definitions, NIST SP 811

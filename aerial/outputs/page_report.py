@@ -368,7 +368,7 @@ def _verdict_cell(verdict, words=None) -> tuple[str, str]:
 def _station_reasons(s) -> list[str]:
     name = s.get("name", "")
     text = s.get("reason", "")
-    for key, words in (("spills_over", "heard under"), ("heard_behind", "other stations heard behind it")):
+    for key, words in (("spills_over", "also comes through when tuned to"), ("heard_behind", "other stations heard behind it")):
         if s.get(key):
             text += ("; " if text else "") + words + ": " + ", ".join(
                 f"{x['name']} ({x['level_relative_db']:+.1f} dB against it)"

@@ -532,7 +532,7 @@ def _render_stations(stations, console, L: Lengths) -> None:
     for s in stations:
         why = s.get("reason", "")
         if s.get("spills_over"):
-            why += ("; " if why else "") + "heard under: " + ", ".join(s["spills_over"])
+            why += ("; " if why else "") + "also comes through when tuned to: " + ", ".join(s["spills_over"])
         if why:
             console.print(f"  {escape(s.get('name', ''))}: {escape(L.text(why))}")
         night = s.get("night") or {}
