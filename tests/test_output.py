@@ -123,6 +123,22 @@ def test_a_station_that_spills_onto_another_says_so_in_plain_words(capsys, tmp_p
     assert "also comes through when tuned to" in page and "heard under" not in page
 
 
+def test_tuning_table_says_in_words_what_a_number_would_misstate(capsys):
+    # The shipped suburban example's aerial alone is more capacitance than the 240 uH tank needs above
+    # ~750 kHz and the tank has no peak there (loaded Q < 1): a negative capacitor setting, a share of
+    # more than 100 % or a Q of 0.4 must not be printed as ordinary figures.
+    import re
+
+    code, out, _ = run(capsys, "report", EXAMPLES + "suburban_lot_service_line.toml", "--width", "300", "--quiet")
+    assert code == 0
+    table = out[out.index("Tuning:"):out.index("Band coverage")]
+    assert "none: the aerial alone is" in table and "more than the total" in table
+    assert "below 1: no peak" in table and "over " in table
+    assert not re.search(r"-\d[\d.]* [pnf]F", table), table
+    assert not re.search(r"\((?:1\d\d|[2-9]\d\d) %\)", table), table
+    assert not re.search(r"│\s+0\.\d+ │", table), table  # no bare loaded Q below 1
+
+
 def test_lengths_in_us_units():
     us = Lengths("us")
     assert us(0.3048) == "1 ft" and us(3.048) == "10 ft" and us(0.0254) == "1 in"  # exact definitions, NIST SP 811

@@ -418,17 +418,8 @@ def _render_tuning(tuning, console, L: Lengths) -> None:
                     cells.append("—")
                 elif unit == "dB":
                     cells.append(f"{v:.1f} dB")
-                elif key == "aerial_share_ratio" and r.get("aerial_shunt_capacitance_f") is not None:
-                    cells.append(f"{eng(r['aerial_shunt_capacitance_f'], 'F')} ({100 * v:.0f} %)")
-                elif unit == "%":
-                    cells.append(f"{100 * v:.0f} %")
-                elif unit == "":
-                    cells.append(f"{v:.3g}")
                 else:
-                    text = eng(v, unit)
-                    if key == "capacitor_setting_f" and not r.get("within_capacitor_range", True):
-                        text += " (out of range)"
-                    cells.append(text)
+                    cells.append(_tuning_cell(r, key, unit, v))
             t.add_row(*cells)
         show(console, t)
     cov = tuning.get("coverage", {})
@@ -439,6 +430,34 @@ def _render_tuning(tuning, console, L: Lengths) -> None:
         console.print(f"  → {escape(L.text(line))}")
     for line in tuning.get("notes", []):
         console.print(f"[dim]{escape(L.text(line))}[/dim]")
+
+
+def _tuning_cell(r: dict, key: str, unit: str, v: float) -> str:
+    """One cell of the tuning table, in words where the number alone would mislead.
+
+    A negative capacitor setting (the aerial alone is more capacitance than the tank needs), a share of
+    more than the whole or below nothing, a loaded Q below 1 (no resonance worth the name) and a
+    bandwidth wider than the search window are said as such, not printed as ordinary figures.
+    """
+    if key == "capacitor_setting_f" and v < 0:
+        return f"none: the aerial alone is {eng(-v, 'F')} too much"
+    if key == "aerial_share_ratio" and r.get("aerial_shunt_capacitance_f") is not None:
+        c = r["aerial_shunt_capacitance_f"]
+        if c < 0:
+            return f"{eng(c, 'F')} (inductive)"
+        return f"{eng(c, 'F')} ({'more than the total' if v > 1 else f'{100 * v:.0f} %'})"
+    if key == "loaded_q" and v < 1:
+        return "below 1: no peak"
+    if key == "bandwidth_hz" and (r.get("bandwidth_note") or (r.get("loaded_q") or 1) < 1):
+        return f"over {eng(v, unit)}"
+    if unit == "%":
+        return f"{100 * v:.0f} %"
+    if unit == "":
+        return f"{v:.3g}"
+    text = eng(v, unit)
+    if key == "capacitor_setting_f" and not r.get("within_capacitor_range", True):
+        text += " (out of range)"
+    return text
 
 
 VERDICT_STYLES = {"clearly heard": "green", "marginal": "yellow", "heard with interference": "yellow",
