@@ -737,7 +737,7 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
     notes.extend(coil.notes)
     grid_in = aerial.f[(aerial.f > f_lo) & (aerial.f < f_hi)]
     table_f = np.unique(np.concatenate([[f_lo], grid_in, [f_hi]]))
-    rows = _table_rows(table_f, _table_arrays(table_f, aerial, coil, parts), warnings)
+    rows = _table_rows(table_f, _table_arrays(table_f, aerial, coil, parts), warnings, parts)
     coverage, advice = _coverage((f_lo, f_hi), aerial, coil, parts, warnings)
     if parts.arrangement in tank_mod.NO_DC_PATH_ARRANGEMENTS:
         notes.append(tank_mod.BLEED_NOTE)
@@ -831,7 +831,36 @@ _ROW_KEYS = ("inductance_h", "total_capacitance_f", "capacitor_setting_f", "with
              "weak_signal_loaded_q", "bandwidth_weak_signal_hz", "power_transfer_weak_signal_ratio")
 
 
-def _table_rows(table_f, arr, warnings) -> list:
+#: Said beside a loaded Q below 1: the tank no longer has a peak worth the name.
+NO_RESONANCE_NOTE = "below 1: no useful resonance (the tank barely selects at all)"
+
+
+def _row_tunability(c_need, c_total, c_aerial, parts) -> tuple:
+    """Whether a tuning-table row can be tuned, and why not. Returns (tunable, resonates, reason).
+
+    ``resonates`` is false when no positive capacitor setting resonates the coil with the aerial
+    (the aerial alone gives more than the total capacitance needed, or it is past its own first
+    resonance and looks inductive); ``tunable`` is false also when the setting is beyond the
+    capacitor's range.
+    """
+    if c_need <= 0:
+        if c_aerial < 0:
+            reason = ("cannot tune here: the aerial is above its own first resonance and looks like a coil, "
+                      "so no capacitor setting resonates it — use a series capacitor, a tap or a shorter aerial")
+        elif c_aerial >= c_total:
+            reason = (f"cannot tune here: the aerial alone gives {_pf(c_aerial)}, more than the {_pf(c_total)} "
+                      "needed — use a smaller coil, a series capacitor or a tap")
+        else:
+            reason = (f"cannot tune here: the aerial and the coupling already give more than the {_pf(c_total)} "
+                      "needed — use a smaller coil, a series capacitor or a tap")
+        return False, False, reason
+    cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
+    if cmin is not None and not cmin <= c_need <= cmax:
+        return False, True, f"out of the capacitor's range: {_tuning_need(parts, c_need)}"
+    return True, True, ""
+
+
+def _table_rows(table_f, arr, warnings, parts) -> list:
     rows = []
     for i, fi in enumerate(table_f):
         row = {"frequency_hz": _num(fi, "frequency_hz", warnings)}
@@ -842,8 +871,18 @@ def _table_rows(table_f, arr, warnings) -> list:
                 row[key] = _num(arr[key][i], key, warnings)
         for key, values in list(arr["rejection"].items()) + list(arr["rejection_weak"].items()):
             row[key] = _num(values[i], "rejection", warnings)
+        tunable, resonates, reason = _row_tunability(arr["capacitor_setting_f"][i], arr["total_capacitance_f"][i],
+                                                     arr["aerial_shunt_capacitance_f"][i], parts)
+        row["tunable"] = tunable
+        row["resonates_with_positive_capacitor"] = resonates
+        if reason:
+            row["reason"] = reason
+        row["bandwidth_is_lower_bound"] = bool(arr["wide"][i])
         if arr["wide"][i]:
             row["bandwidth_note"] = "wider than a third of the frequency either side: the bandwidth is a lower bound"
+        row["useful_resonance"] = bool(resonates and arr["loaded_q"][i] >= 1.0)
+        if arr["loaded_q"][i] < 1.0:
+            row["loaded_q_note"] = NO_RESONANCE_NOTE
         if arr["aerial_shunt_capacitance_f"][i] < 0:
             row["note"] = "the aerial looks inductive here (above its first resonance)"
         rows.append(row)

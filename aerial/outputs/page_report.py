@@ -11,7 +11,7 @@ import numpy as np
 from aerial.outputs import charts, site_drawings
 from aerial.outputs.page import (VERDICT_CLASS, VERDICT_MARK, bullets, dict_rows_table, document, esc, figure,
                                  format_value, generic_block, key_label, range_text, section, site_file_name, table)
-from aerial.outputs.terminal import eng
+from aerial.outputs.terminal import eng, tuning_cell_words
 
 #: Top-level keys of the result the report page shows in its own sections; any other key is shown generically.
 KNOWN_KEYS = {"aerial_version", "site", "geometry", "bands", "frequencies_hz", "aerial", "earth", "ranges", "what_if",
@@ -241,7 +241,10 @@ def _tuning_table(tuning) -> str:
         cells = []
         for _, key, unit in columns:
             v = r.get(key)
-            if v is None:
+            special = tuning_cell_words(r, key)
+            if special is not None:
+                cells.append(special)
+            elif v is None:
                 cells.append("—")
             elif unit == "dB":
                 cells.append(f"{v:.1f} dB")
@@ -255,7 +258,11 @@ def _tuning_table(tuning) -> str:
                     text += " (out of range)"
                 cells.append(text)
         out.append(cells)
-    return table([c[0] for c in columns], out, "Tuning across the band (selected frequencies)", "wide")
+    html = table([c[0] for c in columns], out, "Tuning across the band (selected frequencies)", "wide")
+    stuck = next((r for r in rows if r.get("resonates_with_positive_capacitor") is False), None)
+    if stuck is not None:
+        html += bullets([f"From {eng(stuck.get('frequency_hz'), 'Hz')} up: {stuck.get('reason', 'cannot tune here')}"])
+    return html
 
 
 def _design_rows(design) -> list[list]:

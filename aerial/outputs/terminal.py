@@ -383,6 +383,30 @@ def render_report(result: dict, console, units: str = "si") -> None:
     _lines(console, "Safety", result.get("cautions", []), "red", L)
 
 
+def tuning_cell_words(row, key):
+    """A tuning-table cell said in words when its figure would mislead, else None.
+
+    Where no positive capacitor setting resonates the tank, the setting, the aerial's share,
+    loaded Q, bandwidth, rejections and power transfer are shown as "—" (the reason is printed
+    under the table); a loaded Q below 1 is "< 1 (no useful resonance)"; a bandwidth wider than
+    the search window is a lower bound ("≥ …").
+    """
+    if row.get("resonates_with_positive_capacitor") is False:
+        if key == "capacitor_setting_f":
+            return "— (cannot tune)"
+        if key not in ("frequency_hz", "total_capacitance_f"):
+            return "—"
+        return None
+    c_aerial = row.get("aerial_shunt_capacitance_f")
+    if key == "aerial_share_ratio" and c_aerial is not None and c_aerial < 0:
+        return f"{eng(c_aerial, 'F')} (reflects inductance)"
+    if key == "loaded_q" and row.get("loaded_q") is not None and row["loaded_q"] < 1.0:
+        return "< 1 (no useful resonance)"
+    if key == "bandwidth_hz" and row.get("bandwidth_hz") is not None and row.get("bandwidth_is_lower_bound"):
+        return f"≥ {eng(row['bandwidth_hz'], 'Hz')}"
+    return None
+
+
 def _render_tuning(tuning, console, L: Lengths) -> None:
     if not tuning:
         return
@@ -414,7 +438,10 @@ def _render_tuning(tuning, console, L: Lengths) -> None:
             cells = []
             for _, key, unit in cols:
                 v = r.get(key)
-                if v is None:
+                special = tuning_cell_words(r, key)
+                if special is not None:
+                    cells.append(special)
+                elif v is None:
                     cells.append("—")
                 elif unit == "dB":
                     cells.append(f"{v:.1f} dB")
@@ -422,6 +449,10 @@ def _render_tuning(tuning, console, L: Lengths) -> None:
                     cells.append(_tuning_cell(r, key, unit, v))
             t.add_row(*cells)
         show(console, t)
+        stuck = next((r for r in rows if r.get("resonates_with_positive_capacitor") is False), None)
+        if stuck is not None:
+            console.print(f"[yellow]From {eng(stuck.get('frequency_hz'), 'Hz')} up: "
+                          f"{escape(L.text(stuck.get('reason', 'cannot tune here')))}[/yellow]")
     cov = tuning.get("coverage", {})
     if cov.get("verdict"):
         style = "green" if cov.get("covered") else "yellow"

@@ -1,0 +1,85 @@
+"""The tuning table says in words where its figures would mislead a builder.
+
+Run through the command line on the invented examples in site_examples/. All checks here are
+consistency checks of the project's own figures (no outside reference values).
+"""
+
+import json
+
+from aerial.cli import main
+
+from .conftest import EXAMPLES
+
+SUBURBAN = next(p for p in EXAMPLES if p.name == "suburban_lot_service_line.toml")
+RURAL = next(p for p in EXAMPLES if p.name == "rural_long_wire.toml")
+
+
+def _json(capsys, path):
+    code = main(["report", str(path), "--json"])
+    out, _ = capsys.readouterr()
+    assert code == 0
+    return json.loads(out)
+
+
+def _text(capsys, path, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "200")
+    code = main(["report", str(path)])
+    out, _ = capsys.readouterr()
+    assert code == 0
+    return out
+
+
+def test_tunable_false_exactly_when_setting_negative_or_out_of_range(capsys):
+    # consistency check: the flag agrees with the row's own capacitor setting and range
+    tuning = _json(capsys, SUBURBAN)["tuning"]
+    rows = tuning["rows"]
+    assert any(not r["resonates_with_positive_capacitor"] for r in rows)
+    for r in rows:
+        positive = r["capacitor_setting_f"] > 0
+        assert r["resonates_with_positive_capacitor"] == positive
+        assert r["tunable"] == (positive and r["within_capacitor_range"])
+        assert ("reason" in r) == (not r["tunable"])
+        if not positive:
+            assert r["reason"].startswith("cannot tune here")
+            assert r["useful_resonance"] is False
+
+
+def test_aerial_share_within_0_and_100_percent_when_a_positive_setting_exists(capsys):
+    # consistency check (direct coupling): the aerial's capacitance is part of the total, so
+    # its share lies in 0..1 wherever a positive capacitor makes up the rest
+    rows = _json(capsys, SUBURBAN)["tuning"]["rows"]
+    shares = [r["aerial_share_ratio"] for r in rows if r["resonates_with_positive_capacitor"]]
+    assert shares and all(0.0 <= s <= 1.0 for s in shares)
+
+
+def test_terminal_says_cannot_tune_instead_of_negative_settings(capsys, monkeypatch):
+    out = _text(capsys, SUBURBAN, monkeypatch)
+    table = " ".join(out[out.index("Tuning:"):out.index("Band coverage")].split())
+    assert "— (cannot tune)" in table
+    assert "up: cannot tune here: the aerial alone gives" in table
+    assert "use a smaller coil, a series capacitor or a tap" in table
+    assert " -" not in table.replace(" — ", " ")  # no negative figure in the table
+    for token in table.split():
+        if token.startswith("(") and token[1:].isdigit():
+            assert int(token[1:]) <= 100  # no share above 100 %
+
+
+def test_page_says_cannot_tune_too(tmp_path, capsys):
+    page = tmp_path / "sub.html"
+    assert main(["report", str(SUBURBAN), "--page", str(page)]) == 0
+    capsys.readouterr()
+    html = page.read_text(encoding="utf-8")
+    assert "— (cannot tune)" in html and "cannot tune here: the aerial alone gives" in html
+
+
+def test_loaded_q_below_one_and_lower_bound_bandwidth_in_words(capsys, monkeypatch):
+    rows = _json(capsys, RURAL)["tuning"]["rows"]
+    low_q = [r for r in rows if r["loaded_q"] < 1.0]
+    assert low_q and all(r["useful_resonance"] is False and "no useful resonance" in r["loaded_q_note"]
+                         for r in low_q)
+    assert all(r["bandwidth_is_lower_bound"] == ("bandwidth_note" in r) for r in rows)
+    out = _text(capsys, RURAL, monkeypatch)
+    table = " ".join(out[out.index("Tuning:"):out.index("Band coverage")].split())
+    assert "< 1 (no useful resonance)" in table
+    assert "≥ " in table
+    assert "(reflects inductance)" in table
