@@ -399,6 +399,7 @@ def what_if(site, frequency: float, earth: dict) -> list[dict]:
             "open_circuit_voltage_v": float(h["open_circuit_voltage_v"][0]),
             "available_power_w": p,
             "power_change_db": 10.0 * math.log10(p / p0) if p > 0 and p0 > 0 else 0.0,
+            "model": "closed form",
         })
     if better.get("note"):
         out[-1]["note"] = better["note"]

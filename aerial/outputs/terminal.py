@@ -363,7 +363,8 @@ def render_report(result: dict, console, units: str = "si") -> None:
 
     wi = result.get("what_if")
     if wi:
-        wt = Table(title=f"What would help (at {eng(wi[0]['frequency_hz'], 'Hz')})", title_justify="left")
+        model = "" if a["model"].startswith("closed form") else ", by the closed forms: compare the rows, not the main table"
+        wt = Table(title=f"What would help (at {eng(wi[0]['frequency_hz'], 'Hz')}{model})", title_justify="left")
         for col in ("change", "effective height", "capacitance", "loss resistance", "available power", "change"):
             wt.add_column(col, justify="left" if col == "change" else "right")
         for row in wi:
