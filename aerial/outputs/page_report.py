@@ -226,7 +226,7 @@ def _what_if_section(result) -> str:
     if not rows:
         return ""
     f = rows[0].get("frequency_hz")
-    return section("what-if", f"What would help (at {eng(f, 'Hz')})", dict_rows_table(rows, skip=("frequency_hz",)))
+    return section("what-if", f"What would help (at {eng(f, 'Hz')})", dict_rows_table(rows, skip=("frequency_hz", "model")))
 
 
 def _tuning_table(tuning) -> str:
