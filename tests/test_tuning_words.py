@@ -83,3 +83,42 @@ def test_loaded_q_below_one_and_lower_bound_bandwidth_in_words(capsys, monkeypat
     assert "< 1 (no useful resonance)" in table
     assert "≥ " in table
     assert "(reflects inductance)" in table
+
+
+BALCONY = next(p for p in EXAMPLES if p.name == "balcony_water_pipe.toml")
+
+
+def test_station_out_of_tuning_range_shows_power_only_if_tuned(capsys, monkeypatch):
+    stations = _json(capsys, BALCONY)["stations"]
+    out_of_range = [s for s in stations if s["verdict"] == "out of the tuning range"]
+    assert out_of_range
+    for s in stations:
+        # consistency check: the labelled figure is the old one, kept for compatibility
+        assert s["detector_power_if_tuned_w"] == s["detector_power_w"]
+        assert ("detector_power_note" in s) == (not s["tunable"])
+    out = _text(capsys, BALCONY, monkeypatch)
+    assert "if tuned)" in out
+    assert "— (" in out
+
+
+def test_remedy_verdict_follows_its_numbers(capsys, monkeypatch):
+    remedies = _json(capsys, RURAL)["tuning"]["station_design"]["remedies"]
+    assert remedies
+    for r in remedies:
+        # consistency check: a remedy that costs the wanted station power is never plainly "better"
+        loss = -r["wanted_power_change_db"]
+        if loss > 3.0:
+            assert r["verdict_text"] != "meets the margin" and not r["verdict_text"].startswith("better")
+            assert f"loses {loss:.1f} dB" in r["verdict_text"]
+        if r["separation_db"] <= r["separation_before_db"]:
+            assert r["verdict_text"].startswith("does not help")
+    out = " ".join(_text(capsys, RURAL, monkeypatch).split())
+    assert "at the detector (was " in out and "the wanted station loses" in out
+
+
+def test_spill_over_reads_the_right_way_round(capsys, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "200")
+    assert main(["report"]) == 0
+    out = " ".join(capsys.readouterr()[0].split())
+    assert "heard under" not in out
+    assert "also comes through when tuned to:" in out

@@ -1312,6 +1312,10 @@ def _station_row(s, a, i, judged, warn) -> dict:
         "tunable": judged["verdict"] != "out of the tuning range",
         "tank_voltage_v": _num(v_top[i], "tank_voltage_v", warn),
         "detector_power_w": _num(a["p_det"][i], "detector_power_w", warn),
+        "detector_power_if_tuned_w": _num(a["p_det"][i], "detector_power_if_tuned_w", warn),
+        **({} if judged["verdict"] != "out of the tuning range" else {
+            "detector_power_note": "the capacitor cannot tune this station: the power is what the detector "
+                                   "would get if it could"}),
         "detector_input_resistance_ohm": _num(det.input_resistance[i], "detector_input_resistance_ohm", warn),
         "detected_voltage_v": _num(det.detected_voltage[i], "detected_voltage_v", warn),
         "audio_voltage_v": _num(audio.audio_voltage[i], "audio_voltage_v", warn),
@@ -1539,5 +1543,35 @@ def _remedies(scene, row, parts) -> list:
         if "coupling_coefficient" in r:
             r["coupling_coefficient_ratio"] = r.pop("coupling_coefficient")
         r["meets_margin"] = bool(r["separation_db"] >= scene.margin_db)
+        r["wanted_power_before_w"] = _num(row["power_w"][i], "wanted_power_before_w", [])
+        r["wanted_power_change_db"] = _num(10.0 * np.log10(max(r["wanted_power_w"], 1e-300)
+                                                           / max(r["wanted_power_before_w"], 1e-300)),
+                                           "wanted_power_change_db", [])
+        r["verdict_text"] = remedy_verdict(r)
         out.append(r)
     return out
+
+
+#: A remedy costing the wanted station more than this at the detector is not called an improvement [dB].
+REMEDY_POWER_LOSS_DB = 3.0
+
+
+def remedy_verdict(r) -> str:
+    """A remedy's verdict in words that follow its numbers (separation and the wanted station's power).
+
+    >>> remedy_verdict({"meets_margin": False, "separation_db": -35.0, "separation_before_db": -47.0,
+    ...                 "wanted_power_change_db": -35.3})
+    'worse: the wanted station loses 35.3 dB at the detector, still short of the margin'
+    """
+    loss = -r["wanted_power_change_db"]
+    better = r["separation_db"] > r["separation_before_db"]
+    if r["meets_margin"]:
+        if loss > REMEDY_POWER_LOSS_DB:
+            return f"meets the margin, but the wanted station loses {loss:.1f} dB at the detector"
+        return "meets the margin"
+    if not better:
+        return "does not help: no better separated than the single circuit"
+    if loss > REMEDY_POWER_LOSS_DB:
+        return f"worse: the wanted station loses {loss:.1f} dB at the detector, still short of the margin"
+    return "better, still short of the margin"
+

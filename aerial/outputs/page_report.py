@@ -11,7 +11,7 @@ import numpy as np
 from aerial.outputs import charts, site_drawings
 from aerial.outputs.page import (VERDICT_CLASS, VERDICT_MARK, bullets, dict_rows_table, document, esc, figure,
                                  format_value, generic_block, key_label, range_text, section, site_file_name, table)
-from aerial.outputs.terminal import eng, tuning_cell_words
+from aerial.outputs.terminal import detector_power_words, eng, tuning_cell_words
 
 #: Top-level keys of the result the report page shows in its own sections; any other key is shown generically.
 KNOWN_KEYS = {"aerial_version", "site", "geometry", "bands", "frequencies_hz", "aerial", "earth", "ranges", "what_if",
@@ -298,10 +298,10 @@ def _remedy_line(r) -> str:
         where = "in the aerial lead" if str(r.get("kind", "")).startswith("parallel") else "from the aerial terminal to earth"
         what = (f"a {r.get('kind')} {where}: {eng(r.get('trap_inductance_h'), 'H')} with "
                 f"{eng(r.get('trap_capacitor_f'), 'F')}, tuned to {eng(r.get('tuned_to_hz'), 'Hz')}")
-    verdict = ("meets the margin" if r["meets_margin"] else "better, still short of the margin"
-               if r["separation_db"] > r["separation_before_db"] else "no better than the single circuit")
+    verdict = r.get("verdict_text") or ("meets the margin" if r["meets_margin"] else "still short of the margin")
+    before = f" (was {eng(r['wanted_power_before_w'], 'W')})" if r.get("wanted_power_before_w") is not None else ""
     return (f"{what}: {r['interferer']} {rel(r['separation_db'])} {r['wanted']} (was {rel(r['separation_before_db'])}); "
-            f"{r['wanted']} then gets {eng(r['wanted_power_w'], 'W')} at the detector — {verdict}")
+            f"{r['wanted']} then gets {eng(r['wanted_power_w'], 'W')} at the detector{before} — {verdict}")
 
 
 def _station_design_block(result) -> str:
@@ -399,7 +399,7 @@ def _stations_section(result) -> str:
     rows = []
     for s in stations:
         row = [s.get("name", ""), eng(s.get("frequency_hz"), "Hz"), eng(s.get("distance_m"), "m"),
-               eng(s.get("field_v_per_m"), "V/m"), eng(s.get("detector_power_w"), "W"),
+               eng(s.get("field_v_per_m"), "V/m"), detector_power_words(s),
                format_value("audio_power_w", s.get("audio_power_w")),
                "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
                _verdict_cell(s.get("verdict"), s.get("verdict_text"))]

@@ -549,12 +549,18 @@ def _render_station_design(tuning, console) -> None:
         def rel(db):
             return f"{abs(db):.0f} dB {'below' if db >= 0 else 'above'}"
 
-        verdict = ("meets the margin" if r["meets_margin"] else
-                   "better, still short of the margin" if r["separation_db"] > r["separation_before_db"] else
-                   "no better than the single circuit")
+        verdict = r.get("verdict_text") or ("meets the margin" if r["meets_margin"] else "still short of the margin")
+        before = (f" (was {eng(r['wanted_power_before_w'], 'W')})" if r.get("wanted_power_before_w") is not None
+                  else "")
         console.print(f"  → {escape(what)}: {escape(r['interferer'])} {rel(r['separation_db'])} {escape(r['wanted'])} "
                       f"(was {rel(r['separation_before_db'])}); {escape(r['wanted'])} then gets "
-                      f"{eng(r['wanted_power_w'], 'W')} at the detector — {verdict}")
+                      f"{eng(r['wanted_power_w'], 'W')} at the detector{before} — {escape(verdict)}")
+
+
+def detector_power_words(station) -> str:
+    """A station's power at the detector, or what it would be if the capacitor could tune it."""
+    p = eng(station.get("detector_power_w"), "W")
+    return p if station.get("tunable", True) else f"— ({p} if tuned)"
 
 
 def _render_stations(stations, console, L: Lengths) -> None:
@@ -576,7 +582,7 @@ def _render_stations(stations, console, L: Lengths) -> None:
         nstyle = VERDICT_STYLES.get(nv, "")
         nv = night.get("verdict_text", nv)
         t.add_row(escape(s.get("name", "")), eng(s.get("frequency_hz"), "Hz"), L.distance(s.get("distance_m")),
-                  eng(s.get("field_v_per_m"), "V/m"), eng(s.get("detector_power_w"), "W"),
+                  eng(s.get("field_v_per_m"), "V/m"), detector_power_words(s),
                   "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
                   Text(verdict, style=style), nfield, Text(nv or "—", style=nstyle))
     show(console, t)
