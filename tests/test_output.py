@@ -138,6 +138,22 @@ def test_tuning_table_says_in_words_what_a_number_would_misstate(capsys):
     assert not re.search(r"│\s+0\.\d+ │", table), table  # no bare loaded Q below 1
 
 
+def test_a_checked_water_pipe_is_not_warned_about_twice(capsys, tmp_path):
+    # The balcony example says continuous_metal = true: its report must not still warn that the pipe
+    # "counts only if it is metal all the way" (the safety caution keeps the reminder). With continuity
+    # unknown the site's own line asks the user to check, once.
+    example = EXAMPLES + "balcony_water_pipe.toml"
+    code, out, _ = run(capsys, "report", example, "--width", "400", "--quiet")
+    assert code == 0
+    assert "metal all the way" not in out and "Water-pipe earth" in out
+    unknown = tmp_path / "unknown.toml"
+    text = open(example, encoding="utf-8").read()
+    unknown.write_text(text.replace("continuous_metal = true\n", ""), encoding="utf-8")
+    code, out, _ = run(capsys, "report", str(unknown), "--width", "400", "--quiet")
+    assert code == 0
+    assert out.count("continuity is not stated") == 1 and "metal all the way" not in out
+
+
 def test_lengths_in_us_units():
     us = Lengths("us")
     assert us(0.3048) == "1 ft" and us(3.048) == "10 ft" and us(0.0254) == "1 in"  # exact definitions, NIST SP 811

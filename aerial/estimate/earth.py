@@ -47,6 +47,11 @@ def _one(e, resistivity: float, radius_default: float) -> tuple[float, str, list
             what = f"{e.count} buried wire{'s' if e.count > 1 else ''} {e.length_m:.1f} m at {e.depth_m:.2f} m"
     elif e.kind == "water_pipe":
         est = el.water_pipe(e.length_m, e.diameter_m / 2.0, e.depth_m, resistivity)
+        # Continuity is the site's business: unknown is warned by the site reader, checked (true) needs no
+        # warning, and the safety cautions always carry the reminder; the model's own line would repeat them.
+        if e.continuous_metal is not False:
+            est = el.ElectrodeEstimate(est.resistance_ohm, tuple(w for w in est.warnings if w != el.WATER_PIPE_CONTINUITY),
+                                       est.method)
         what = f"metal water pipe, {e.length_m:.1f} m buried"
     elif e.kind == "counterpoise":
         est = el.dwight_star(max(e.count, 2), e.length_m, radius_default, max(e.depth_m, 0.05), resistivity)

@@ -472,6 +472,11 @@ def dwight_star(n_arms, arm_length, radius, depth, resistivity):
     return ElectrodeEstimate(r, tuple(warnings), f"Dwight {n}-arm star")
 
 
+#: The water-pipe warning that holds until the user has checked the pipe is metal all the way.
+WATER_PIPE_CONTINUITY = ("a water pipe counts only if it is metal all the way: a plastic section or insulating joint "
+                         "isolates it")
+
+
 def water_pipe(buried_length, radius, depth, resistivity):
     """Resistance of a metal water pipe treated as a long buried conductor.
 
@@ -515,9 +520,7 @@ def water_pipe(buried_length, radius, depth, resistivity):
     """
     est = sunde_buried_wire(buried_length, radius, depth, resistivity)
     warnings = list(est.warnings)
-    warnings.append(
-        "a water pipe counts only if it is metal all the way: a plastic section or insulating joint isolates it"
-    )
+    warnings.append(WATER_PIPE_CONTINUITY)
     if np.any(np.asarray(buried_length, dtype=float) < WATER_PIPE_MIN_CONTACT_M):
         warnings.append("less than 3 m of pipe in contact with the earth: not accepted as an electrode by NFPA 70 Art. 250")
     return ElectrodeEstimate(est.resistance_ohm, tuple(warnings), "water pipe as a buried wire (Sunde)")
