@@ -479,9 +479,9 @@ def _tuning_cell(r: dict, key: str, unit: str, v: float) -> str:
             return f"{eng(c, 'F')} (inductive)"
         return f"{eng(c, 'F')} ({'more than the total' if v > 1 else f'{100 * v:.0f} %'})"
     if key == "loaded_q" and v < 1:
-        return "below 1: no peak"
+        return "< 1 (no useful resonance)"
     if key == "bandwidth_hz" and (r.get("bandwidth_note") or (r.get("loaded_q") or 1) < 1):
-        return f"over {eng(v, unit)}"
+        return f"≥ {eng(v, unit)}"
     if unit == "%":
         return f"{100 * v:.0f} %"
     if unit == "":
