@@ -194,3 +194,18 @@ def test_a_run_quicker_than_the_threshold_prints_no_progress(capsys, monkeypatch
     monkeypatch.setattr(cli, "PROGRESS_LINES_AFTER_S", 1e6)
     code, _, err = run(capsys, "report")
     assert code == 0 and err == ""
+
+
+def test_effective_length_is_a_length_for_wires_and_words_for_a_rod():
+    # input handling of the earth table's cell (invented parts): a rod's effective length is said in words
+    from aerial.outputs.terminal import effective_length_words
+
+    def metres(v):
+        return f"{v:.1f} m"
+
+    assert effective_length_words({"kind": "buried_wires", "effective_length_m": 23.0, "length_m": 10.0}, metres) == "23.0 m"
+    assert effective_length_words({"kind": "rods", "effective_length_m": 16.5, "length_m": 2.44}, metres) == \
+        "a longer rod helps up to about 16.5 m"
+    assert effective_length_words({"kind": "rods", "effective_length_m": 2.0, "length_m": 2.44}, metres) == \
+        "a longer rod would not help here"
+    assert effective_length_words({"kind": "building_earth", "effective_length_m": None}, metres) == "—"

@@ -33,7 +33,21 @@ RANGED = {
 }
 
 
+def assert_earth_ranges_hold_values(earth):
+    """The earth table's RF ranges (the whole system and each part) hold their values at the centre frequency."""
+    i = list(earth["frequencies_hz"]).index(earth["centre_frequency_hz"]) if "frequencies_hz" in earth else None
+    whole = earth["impedance_ohm"][i][0] if i is not None else None
+    pairs = [(earth["resistance_range_at_centre_ohm"], whole)]
+    pairs += [(p["resistance_range_at_centre_ohm"], p["impedance_at_centre_ohm"][0]) for p in earth["parts"]]
+    for (low, high), value in pairs:
+        if value is not None:
+            assert 0 < low <= value * (1 + 1e-9) and value <= high * (1 + 1e-9), (low, value, high)
+
+
 def assert_ranges_hold_values(result):
+    if "earth" in result:
+        earth = dict(result["earth"], frequencies_hz=result["frequencies_hz"])
+        assert_earth_ranges_hold_values(earth)
     ranges, a, freqs = result["ranges"], result["aerial"], list(result["frequencies_hz"])
     for j, f in enumerate(ranges["frequencies_hz"]):
         i = freqs.index(f)  # ranges sit on the sweep's own frequencies
@@ -92,12 +106,19 @@ def test_every_range_holds_its_value_on_generated_sites(text):
     site = load_site_text(text, "generated.toml")
     freqs = assemble.frequency_grid(site)
     earth = assemble.earth_system(site)
-    geometry = resolve(site, electrode_ohm=earth["resistance_ohm"])
-    resp = assemble.aerial_response(site, geometry, freqs, earth["resistance_ohm"])
-    ranges = assemble.ranges_at_band_points(site, freqs, resp, earth, assemble.band_points(site), method="closed-form",
+    earth_rf = assemble.earth_at_frequency(site, freqs)  # the electrodes at RF, as the report uses them
+    earth_r = earth_rf["impedance_ohm"].real
+    pts = assemble.band_points(site)
+    centre_i = int(np.argmin(np.abs(freqs - assemble.what_if_frequency(site, pts))))
+    geometry = resolve(site, electrode_ohm=float(earth_r[centre_i]))
+    resp = assemble.aerial_response(site, geometry, freqs, earth_r)
+    ranges = assemble.ranges_at_band_points(site, freqs, resp, earth, pts, method="closed-form",
                               ground="perfect", allow_large=False, progress=None)
     assert ranges["method"] == "closed form"
-    assert_ranges_hold_values({"ranges": ranges, "aerial": resp, "frequencies_hz": list(freqs)})
+    earth_json = assemble._earth_json(earth, earth_rf, centre_i, assemble.earth_bounds(site, [freqs[centre_i]]))
+    assert_ranges_hold_values({"ranges": ranges, "aerial": resp, "frequencies_hz": list(freqs),
+                               "earth": {k: np.asarray(v).tolist() if k == "impedance_ohm" else v
+                                         for k, v in earth_json.items()}})
     # the moved wires are modelled as the nominal shape
     nominal = classify(geometry.segments)
     for sign in (-1.0, 1.0):
@@ -146,3 +167,46 @@ def test_full_wave_ranges_over_budget_say_they_are_closed_form(monkeypatch):
     result = aerial.analyse(site, method="full-wave", step_hz=200e3, what_ifs=False)
     assert result["ranges"]["method"].startswith("closed form, relative spread")
     assert_ranges_hold_values(result)
+
+
+def _loss_at(result, f):
+    a, i = result["aerial"], list(result["frequencies_hz"]).index(f)
+    return a["conductor_loss_ohm"][i] + a["ground_loss_ohm"][i]
+
+
+def test_consistency_check_loss_range_brackets_the_report_at_the_soil_bounds(capsys, tmp_path):
+    # consistency check (aerial's own figures, no outside source): the loss resistance's range at each band point
+    # holds what the same report gives with the soil set to either end of its category's conductivity bounds
+    # (the built-in example, "intermediate" soil: 0.001-0.01 S/m, its permittivity kept)
+    from importlib import resources
+
+    text = resources.files("aerial").joinpath("data", "backyard_inverted_l.toml").read_text(encoding="utf-8")
+    assert 'soil = "intermediate"' in text
+    assert main(["report", "--json"]) == 0
+    nominal = json.loads(capsys.readouterr().out)
+    low_s, high_s = nominal["site"]["soil"]["conductivity_range_s_m"]
+    at_bounds = []
+    for sigma in (low_s, high_s):
+        path = tmp_path / f"soil_{sigma:g}.toml"
+        path.write_text(text.replace('soil = "intermediate"',
+                                     f'soil = {{ category = "intermediate", conductivity = {sigma} }}'), encoding="utf-8")
+        assert main(["report", str(path), "--json"]) == 0
+        at_bounds.append(json.loads(capsys.readouterr().out))
+    ranges = nominal["ranges"]
+    for j, f in enumerate(ranges["frequencies_hz"]):
+        low, high = ranges["loss_resistance_ohm"][j]
+        for other in at_bounds:
+            value = _loss_at(other, f)
+            # 1 %: the conductor loss of the moved wires differs slightly from that of the nominal wires
+            assert low * 0.99 <= value <= high * 1.01, (f, low, value, high)
+    # the old DC-formula range put the top near 400 ohm at 1.71 MHz; the line model gives under 100 ohm
+    top = ranges["loss_resistance_ohm"][ranges["frequencies_hz"].index(1.71e6)][1]
+    assert top < 1.2 * max(_loss_at(o, 1.71e6) for o in at_bounds + [nominal])
+
+
+def test_earth_table_speaks_of_a_rod_in_words_and_shows_the_rf_range(capsys):
+    assert main(["report"]) == 0
+    out = capsys.readouterr().out
+    assert "a longer rod helps up to about" in out
+    assert "(R " in out  # the RF resistance range under the impedance
+    assert "lossy lines in the soil at each" in out

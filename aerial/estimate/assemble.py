@@ -82,17 +82,40 @@ def earth_at_frequency(site, frequency) -> dict:
     return earth.electrode_impedance(site.electrodes, site.soil, frequency, earth.as_counterpoise_site(site))
 
 
-def _earth_json(earth: dict, rf: dict, centre_index: int) -> dict:
-    """The earth section of the result: DC figures, and each part's impedance and effective length at frequency."""
+def earth_bounds(site, frequency) -> dict:
+    """The earth system's RF resistance with the soil at its bounds, over ``frequency`` [Hz]. [ohm]"""
+    from aerial.estimate import earth
+
+    return earth.resistance_bounds(site.electrodes, site.soil, frequency, earth.as_counterpoise_site(site))
+
+
+def what_if_frequency(site, pts) -> float:
+    """The frequency of the what-if table and of the earth table's impedance column. [Hz]"""
+    return pts[len(pts) // 2][1] if len(site.bands) == 1 else pts[1][1]
+
+
+def _span(low: float, value: float, high: float) -> list:
+    """[low, high] widened to hold ``value``."""
+    return [float(min(low, value)), float(max(high, value))]
+
+
+def _earth_json(earth: dict, rf: dict, centre_index: int, bounds: dict) -> dict:
+    """The earth section of the result: DC figures, and each part's impedance and effective length at frequency.
+
+    ``bounds``: :func:`earth_bounds` at the centre frequency alone (the RF ranges of the table).
+    """
     out = {k: v for k, v in earth.items() if k != "warnings"}
     z = rf["impedance_ohm"]
     out["impedance_ohm"] = np.stack([z.real, z.imag], axis=1)
     out["impedance_method"] = rf["notes"][0]
+    out["resistance_range_at_centre_ohm"] = _span(bounds["low_ohm"][0], z[centre_index].real, bounds["high_ohm"][0])
     parts = []
-    for part, line in zip(out.get("parts", []), rf["parts"]):
+    for n, (part, line) in enumerate(zip(out.get("parts", []), rf["parts"])):
         part = dict(part)
         zp = line["impedance_ohm"][centre_index]
         part["impedance_at_centre_ohm"] = [float(zp.real), float(zp.imag)]
+        part["resistance_range_at_centre_ohm"] = _span(bounds["parts_low_ohm"][n][0], zp.real,
+                                                       bounds["parts_high_ohm"][n][0])
         l_eff = line["effective_length_m"]
         part["effective_length_m"] = None if l_eff is None else float(l_eff[centre_index])
         part["impedance_method"] = line["method"]
@@ -266,8 +289,14 @@ HEADLINE_KEYS = ("capacitance_f", "effective_height_m", "loss_resistance_ohm", "
                  "open_circuit_voltage_v", "available_power_w", "ground_loss_ohm")
 
 
-def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-form", ground="perfect", progress=None):
+def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-form", ground="perfect", progress=None,
+              lumped_ohm=None):
     """Headline figures of ``wires`` at ``frequency`` by one model. Returns arrays over frequency.
+
+    ``earth_ohm``: the earth system's resistance, one value or one per
+    frequency [ohm]; ``lumped_ohm``: the full-wave solver's electrode load
+    where an earth lead meets the ground (default: ``earth_ohm`` when it is
+    one value, else its mean).
 
     ``like``: the nominal wires' :class:`~aerial.models.shapes.AerialShape`;
     the closed forms then model the moved wires as that shape
@@ -275,11 +304,13 @@ def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-fo
     the nominal figure's model.
     """
     f = np.atleast_1d(np.asarray(frequency, float))
-    geo = resolve(site, electrode_ohm=earth_ohm, wires=wires)
+    earth_f = np.broadcast_to(np.asarray(earth_ohm, float), f.shape).copy()
+    lumped = float(np.mean(earth_f)) if lumped_ohm is None else float(lumped_ohm)
+    geo = resolve(site, electrode_ohm=lumped, wires=wires)
     if method == "full-wave":
         from aerial.estimate.fullwave_sweep import full_wave_response
 
-        r = full_wave_response(site, geo, f, earth_ohm, ground=ground, allow_large=True, progress=progress)
+        r = full_wave_response(site, geo, f, earth_f, ground=ground, allow_large=True, progress=progress)
         rg = np.asarray(r["ground_loss_ohm"], float)
     else:
         from aerial.models.closed_form import closed_form_response
@@ -289,7 +320,7 @@ def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-fo
         if like is not None and len(like.segment_section) == len(geo.segments):
             shape = measure_like(geo.segments, like)
         r = closed_form_response(geo.segments, f, shape=shape)
-        rg = np.full(len(f), float(earth_ohm))
+        rg = earth_f
     rr = np.asarray(r["radiation_resistance_ohm"], float)
     rt = rr + np.asarray(r["conductor_loss_ohm"], float) + rg
     voc = site.field_strength_v_per_m * np.asarray(r["effective_height_m"], float)
@@ -327,7 +358,8 @@ def _full_wave_ranges_fit(site, frequency, main_frequency, allow_large: bool) ->
 
 
 def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", nominal: dict | None = None,
-                ground: str = "perfect", full_wave_ranges: bool = True, progress=None) -> dict:
+                ground: str = "perfect", full_wave_ranges: bool = True, progress=None,
+                centre_hz: float | None = None) -> dict:
     """Low and high values of the headline figures from the inputs' tolerances.
 
     Heights move by each support's tolerance (points where wires meet move
@@ -337,7 +369,13 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
     with ``full_wave_ranges=False``, the closed forms' relative spread put
     around the full-wave value, and ``method`` in the result says so).
     ``nominal`` (key -> values at ``frequency``) makes every range the
-    envelope of the value and the two tolerance runs.
+    envelope of the value and the two tolerance runs. The earth system's
+    resistance in each run is the value's own RF model (electrodes as lossy
+    lines, :func:`earth_bounds`) at each frequency, the soil taken across
+    its conductivity bounds: the lowered wires take the highest resistance,
+    the raised wires the lowest. ``centre_hz`` is where the full-wave value's lumped electrode
+    load was taken (default: the middle of ``frequency``). ``earth`` (the DC
+    figures) is kept for compatibility and not used.
 
     Returns
     -------
@@ -346,18 +384,20 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
     """
     f = np.atleast_1d(np.asarray(frequency, float))
     like = _nominal_shape(site)
-    lo_ohm, hi_ohm = earth["resistance_high_ohm"], earth["resistance_low_ohm"]
+    f_c = float(f[len(f) // 2]) if centre_hz is None else float(centre_hz)
+    b = earth_bounds(site, np.append(f, f_c))
+    lo_ohm, hi_ohm = b["high_ohm"][:-1], b["low_ohm"][:-1]
     if method == "full-wave" and full_wave_ranges:
         run = dict(method="full-wave", ground=ground, progress=progress)
-        lo = _headline(site, _perturbed_wires(site, -1.0), f, lo_ohm, **run)
-        hi = _headline(site, _perturbed_wires(site, +1.0), f, hi_ohm, **run)
+        lo = _headline(site, _perturbed_wires(site, -1.0), f, lo_ohm, lumped_ohm=b["high_ohm"][-1], **run)
+        hi = _headline(site, _perturbed_wires(site, +1.0), f, hi_ohm, lumped_ohm=b["low_ohm"][-1], **run)
         label = "full wave"
     else:
         lo = _headline(site, _perturbed_wires(site, -1.0), f, lo_ohm, like=like)
         hi = _headline(site, _perturbed_wires(site, +1.0), f, hi_ohm, like=like)
         label = "closed form"
         if method == "full-wave":
-            base = _headline(site, site.wires, f, earth["resistance_ohm"], like=like)
+            base = _headline(site, site.wires, f, earth_at_frequency(site, f)["impedance_ohm"].real, like=like)
             for key in lo:
                 scale = np.asarray(nominal[key], float) / np.where(base[key] != 0, base[key], 1.0)
                 lo[key], hi[key] = lo[key] * scale, hi[key] * scale
@@ -419,7 +459,8 @@ def ranges_at_band_points(site, freqs, resp, earth, pts, *, method, ground, allo
     nominal = {k: np.asarray(v, float)[pick] for k, v in nominal.items()}
     fits = method != "full-wave" or _full_wave_ranges_fit(site, pf, freqs, allow_large)
     unc = uncertainty(site, pf, earth, method=method, nominal=nominal, ground=ground, full_wave_ranges=fits,
-                      progress=progress)
+                      progress=progress,
+                      centre_hz=float(freqs[np.argmin(np.abs(freqs - what_if_frequency(site, pts)))]))
     range_method = unc.pop("method")
     return {
         "frequencies_hz": pf,
@@ -428,7 +469,8 @@ def ranges_at_band_points(site, freqs, resp, earth, pts, *, method, ground, allo
         **unc,
         "notes": [
             "Ranges move every support by its height tolerance and the soil between its category's bounds, by the "
-            f"same model as the value ({range_method}); each range holds the value and both tolerance runs.",
+            f"same model as the value ({range_method}; the earth electrodes as lossy lines in the soil at each "
+            "frequency); each range holds the value and both tolerance runs.",
             "Nearby buildings, trees and wiring are not modelled; measured aerial capacitance can differ from any "
             "formula by a large factor. A bench measurement ([receiver.measured]) replaces the estimate.",
         ],
@@ -476,7 +518,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     earth_rf = earth_at_frequency(site, freqs)
     earth_r = np.asarray(earth_rf["impedance_ohm"].real, float)
     pts = band_points(site)
-    f_centre = pts[len(pts) // 2][1] if len(site.bands) == 1 else pts[1][1]  # the what-if table's frequency
+    f_centre = what_if_frequency(site, pts)
     centre_i = int(np.argmin(np.abs(freqs - f_centre)))
     geometry = resolve(site, electrode_ohm=float(earth_r[centre_i]))
     if ground not in GROUNDS:
@@ -533,7 +575,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
             "open_circuit_voltage_v": resp["open_circuit_voltage_v"],
             "available_power_w": resp["available_power_w"],
         },
-        "earth": _earth_json(earth, earth_rf, centre_i),
+        "earth": _earth_json(earth, earth_rf, centre_i, earth_bounds(site, [freqs[centre_i]])),
     }
     for key in ("convergence", "ground_treatment", "segments", "loss_budget"):
         if key in resp:

@@ -17,6 +17,9 @@ from aerial.models import electrodes as el
 #: An assumption: a TN-C-S (PME) supply earth is often under 1 ohm, a TT installation's rod up to ~200 ohm.
 BUILDING_EARTH_TYPICAL_OHM = (1.0, 10.0, 100.0)  # low, nominal, high
 
+#: Conductivities tried between the soil's bounds (besides the bounds) for the RF resistance range.
+INTERIOR_SOIL_POINTS = 3
+
 #: The "better earth" of the what-if table: eight buried radials of this length at this depth.
 WHAT_IF_RADIALS = (8, 10.0, 0.15)
 
@@ -116,8 +119,8 @@ def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>") 
             raise SiteError(path, e.key, what, "outside the range of the electrode formula (its resistance "
                             "comes out non-positive): check the length, diameter and depth")
         warnings += w
-        parts.append({"kind": e.kind, "description": what, "resistance_ohm": rn, "resistance_low_ohm": rl,
-                      "resistance_high_ohm": rh, "method": method})
+        parts.append({"kind": e.kind, "description": what, "length_m": float(e.length_m), "resistance_ohm": rn,
+                      "resistance_low_ohm": rl, "resistance_high_ohm": rh, "method": method})
         nominal.append(rn); low.append(rl); high.append(rh)
     if not parts:
         return {"resistance_ohm": 0.0, "resistance_low_ohm": 0.0, "resistance_high_ohm": 0.0, "parts": [],
@@ -147,7 +150,7 @@ def _line_of(e, soil, frequency, resistivity):
     return None
 
 
-def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=()) -> dict:
+def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=(), fixed: str = "nominal") -> dict:
     """The earth system's impedance at radio frequency: each electrode a lossy line in the soil.
 
     Parameters
@@ -158,6 +161,9 @@ def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=()) -> d
         [Hz]
     counterpoise_wires : list of WireRun
         Used only when there is no electrode.
+    fixed : {"nominal", "low", "high"}
+        Which figure of a part that does not depend on the soil (a building
+        earth of unknown resistance) to use: its value or either end of its range.
 
     Returns
     -------
@@ -179,6 +185,7 @@ def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=()) -> d
     above the soil and a building's protective earth keep their DC values.
     """
     f = np.atleast_1d(np.asarray(frequency, float))
+    fixed_key = {"nominal": "resistance_ohm", "low": "resistance_low_ohm", "high": "resistance_high_ohm"}[fixed]
     dc = earth_system(electrodes, soil, counterpoise_wires)
     rho = 1.0 / soil.conductivity_s_m
     items = [e for e in electrodes]
@@ -186,7 +193,7 @@ def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=()) -> d
     for e, part in zip(items, dc["parts"]):
         line = _line_of(e, soil, f, rho)
         if line is None:
-            parts.append({"description": part["description"], "impedance_ohm": np.full(f.size, part["resistance_ohm"] + 0j),
+            parts.append({"description": part["description"], "impedance_ohm": np.full(f.size, part[fixed_key] + 0j),
                           "effective_length_m": None, "method": part["method"] + " (frequency-independent)"})
             continue
         scale = part["resistance_ohm"] / line.dc_resistance
@@ -201,6 +208,40 @@ def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=()) -> d
     return {"impedance_ohm": z, "parts": parts, "frequency_hz": f,
             "notes": ["Earth electrodes at the working frequency: each a lossy line in the soil (Sunde), tending to "
                       "its DC resistance formula as the frequency falls."]}
+
+
+def resistance_bounds(electrodes, soil, frequency, counterpoise_wires=()) -> dict:
+    """Low and high earth resistance at radio frequency, the soil at its conductivity bounds. [ohm]
+
+    The same model as the value (:func:`electrode_impedance`, each electrode
+    a lossy line in the soil) run with the soil's conductivity at each end of
+    its category's bounds (a measured soil: a factor of two either way) and
+    at ``INTERIOR_SOIL_POINTS`` log-spaced values between them, the category's
+    permittivity kept; the real part of the impedance is the loss resistance.
+    The interior points are there because the line's resistance need not
+    fall steadily as the conductivity rises: where the soil's displacement
+    current rivals its conduction current (dry soil, upper MF and HF) the
+    largest resistance can lie inside the bounds. A building earth of unknown
+    resistance takes the low end of its range with the best soil and the
+    high end with the worst.
+
+    Returns
+    -------
+    dict
+        ``low_ohm``, ``high_ohm``: arrays over ``frequency`` [ohm], the whole
+        system; ``parts_low_ohm``, ``parts_high_ohm``: one array per electrode.
+        Each low/high is the smaller/larger of the two bound runs at every
+        frequency (the line model need not be monotonic in the soil), so it
+        also holds the value wherever the value lies between the runs.
+    """
+    sigmas = np.geomspace(soil.conductivity_high_s_m, soil.conductivity_low_s_m, INTERIOR_SOIL_POINTS + 2)
+    fixed = ["low"] + ["nominal"] * INTERIOR_SOIL_POINTS + ["high"]
+    runs = [electrode_impedance(electrodes, replace(soil, conductivity_s_m=float(sg)), frequency, counterpoise_wires,
+                                fixed=fx) for sg, fx in zip(sigmas, fixed)]
+    whole = np.stack([r["impedance_ohm"].real for r in runs])
+    parts = [np.stack([r["parts"][n]["impedance_ohm"].real for r in runs]) for n in range(len(runs[0]["parts"]))]
+    return {"low_ohm": whole.min(axis=0), "high_ohm": whole.max(axis=0),
+            "parts_low_ohm": [p.min(axis=0) for p in parts], "parts_high_ohm": [p.max(axis=0) for p in parts]}
 
 
 def improved_earth(electrodes, soil, frequency=None) -> dict:
@@ -231,4 +272,4 @@ def as_counterpoise_site(site):
     return [w for w in site.wires if w.role == "counterpoise"]
 
 
-__all__ = ["earth_system", "improved_earth", "electrode_impedance", "BUILDING_EARTH_TYPICAL_OHM", "replace"]
+__all__ = ["earth_system", "improved_earth", "electrode_impedance", "resistance_bounds", "BUILDING_EARTH_TYPICAL_OHM", "replace"]

@@ -11,7 +11,7 @@ import numpy as np
 from aerial.outputs import charts, site_drawings
 from aerial.outputs.page import (VERDICT_CLASS, VERDICT_MARK, bullets, dict_rows_table, document, esc, figure,
                                  format_value, generic_block, key_label, range_text, section, site_file_name, table)
-from aerial.outputs.terminal import detector_power_words, eng, tuning_cell_words
+from aerial.outputs.terminal import detector_power_words, effective_length_words, eng, tuning_cell_words
 
 #: Top-level keys of the result the report page shows in its own sections; any other key is shown generically.
 KNOWN_KEYS = {"aerial_version", "site", "geometry", "bands", "frequencies_hz", "aerial", "earth", "ranges", "what_if",
@@ -59,8 +59,13 @@ def headline(result) -> list[tuple[str, str, str]]:
                  range_text(ranges["available_power_w"][j], "W"))]
     earth = result.get("earth") or {}
     if earth.get("resistance_ohm") is not None:
-        out.append(("earth system resistance", eng(earth["resistance_ohm"], "Ω"),
+        out.append(("earth system resistance (DC)", eng(earth["resistance_ohm"], "Ω"),
                     range_text([earth.get("resistance_low_ohm"), earth.get("resistance_high_ohm")], "Ω")))
+    zt, fc = earth.get("impedance_ohm"), earth.get("centre_frequency_hz")
+    if zt is not None and fc and len(zt) and earth.get("resistance_range_at_centre_ohm"):
+        j = _nearest(result["frequencies_hz"], fc)
+        out.append((f"earth system resistance at {eng(fc, 'Hz')}", eng(zt[j][0], "Ω"),
+                    range_text(earth["resistance_range_at_centre_ohm"], "Ω")))
     cov = ((result.get("tuning") or {}).get("coverage") or {})
     if cov.get("verdict"):
         out.append(("band coverage", cov["verdict"], ""))
@@ -193,14 +198,17 @@ def _earth_section(result) -> str:
         return ""
     fc = earth.get("centre_frequency_hz")
 
+    def r_range(p):
+        return range_text(p["resistance_range_at_centre_ohm"], "Ω") if p.get("resistance_range_at_centre_ohm") else ""
+
     def z_text(z):
         return f"{eng(z[0], 'Ω')} {'+' if z[1] >= 0 else '−'} j{eng(abs(z[1]), 'Ω')}" if z else ""
 
     rows = [[p.get("description", p.get("kind", "")),
              eng(p.get("resistance_ohm"), "Ω"),
              range_text([p.get("resistance_low_ohm"), p.get("resistance_high_ohm")], "Ω"),
-             z_text(p.get("impedance_at_centre_ohm")),
-             eng(p["effective_length_m"], "m") if p.get("effective_length_m") is not None else "—",
+             z_text(p.get("impedance_at_centre_ohm")), r_range(p),
+             effective_length_words(p, lambda v: eng(v, "m")),
              p.get("method", "")]
             for p in earth.get("parts", [])]
     zt = earth.get("impedance_ohm")
@@ -210,14 +218,14 @@ def _earth_section(result) -> str:
         total_z = z_text(zt[j])
     rows.append([("whole earth system", "total"), (eng(earth.get("resistance_ohm"), "Ω"), "total"),
                  (range_text([earth.get("resistance_low_ohm"), earth.get("resistance_high_ohm")], "Ω"), "total"),
-                 (total_z, "total"), "", ""])
+                 (total_z, "total"), (r_range(earth), "total"), "", ""])
     at = f"impedance at {eng(fc, 'Hz')}" if fc else "impedance"
-    body = table(["part", "resistance (DC)", "range", at, "effective length", "method"], rows)
+    body = table(["part", "resistance (DC)", "range (DC)", at, "R range there", "effective length", "method"], rows)
     if earth.get("impedance_method"):
         body += bullets([earth["impedance_method"]], "notes")
     others = {k: v for k, v in earth.items() if k not in ("parts", "resistance_ohm", "resistance_low_ohm",
                                                           "resistance_high_ohm", "impedance_ohm", "impedance_method",
-                                                          "centre_frequency_hz")}
+                                                          "centre_frequency_hz", "resistance_range_at_centre_ohm")}
     return section("earth", "Earth system", body + (generic_block("earth", others) if others else ""))
 
 

@@ -215,6 +215,26 @@ def db(x) -> str:
     return "—" if x is None else f"{x:+.1f} dB"
 
 
+def effective_length_words(part: dict, L) -> str:
+    """The earth table's effective-length cell: a length for wires, radials and pipes; words for a driven rod.
+
+    ``L`` formats a length in metres as text.
+
+    A rod's effective length is usually far beyond any rod one can drive, so a
+    bare "16.5 m" beside a 2.4 m rod misleads; it is said as how far a longer
+    rod would keep helping.
+    """
+    le = part.get("effective_length_m")
+    if le is None:
+        return "—"
+    if part.get("kind") != "rods":
+        return L(le)
+    own = part.get("length_m")
+    if own is not None and le <= own:
+        return "a longer rod would not help here"
+    return f"a longer rod helps up to about {L(le)}"
+
+
 def _nearest(freqs, f):
     freqs = np.asarray(freqs, float)
     return int(np.argmin(np.abs(freqs - f)))
@@ -347,19 +367,25 @@ def render_report(result: dict, console, units: str = "si") -> None:
         for part in earth.get("parts", []):
             z = part.get("impedance_at_centre_ohm")
             zs = f"{eng(z[0], 'Ω')} {'+' if z[1] >= 0 else '−'} j{eng(abs(z[1]), 'Ω')}" if z else ""
-            le = part.get("effective_length_m")
+            if z and part.get("resistance_range_at_centre_ohm"):
+                zs += f"\n[dim](R {rng(part['resistance_range_at_centre_ohm'], 'Ω')})[/dim]"
             et.add_row(escape(L.text(part.get("description", ""))), rng([part.get("resistance_low_ohm"), part.get("resistance_high_ohm")], "Ω")
                        if part.get("resistance_low_ohm") is not None else eng(part.get("resistance_ohm"), "Ω"),
-                       zs, L(le) if le is not None else "—", escape(part.get("method", "")))
+                       zs, effective_length_words(part, L), escape(part.get("method", "")))
         zt = earth.get("impedance_ohm")
         zt_s = ""
         if zt is not None and fc:
             j = int(np.argmin(np.abs(np.asarray(result["frequencies_hz"]) - fc)))
             zt_s = f"[bold]{eng(zt[j][0], 'Ω')} {'+' if zt[j][1] >= 0 else '−'} j{eng(abs(zt[j][1]), 'Ω')}[/bold]"
+            if earth.get("resistance_range_at_centre_ohm"):
+                zt_s += f"\n(R {rng(earth['resistance_range_at_centre_ohm'], 'Ω')})"
         et.add_row("[bold]whole earth system[/bold]",
                    f"[bold]{eng(earth.get('resistance_ohm'), 'Ω')}[/bold] ({rng([earth.get('resistance_low_ohm'), earth.get('resistance_high_ohm')], 'Ω')})",
                    zt_s, "", "")
         show(console, et)
+        if earth.get("resistance_range_at_centre_ohm"):
+            console.print("[dim](R …) under an impedance: its resistance with the soil anywhere between its "
+                          "category's bounds, by the same lossy-line model.[/dim]")
 
     wi = result.get("what_if")
     if wi:
