@@ -384,7 +384,7 @@ def render_report(result: dict, console, units: str = "si") -> None:
                    zt_s, "", "")
         show(console, et)
         if earth.get("resistance_range_at_centre_ohm"):
-            console.print("[dim](R …) under an impedance: its resistance with the soil anywhere between its "
+            console.print("[dim]R low–high under an impedance: its resistance with the soil anywhere between its "
                           "category's bounds, by the same lossy-line model.[/dim]")
 
     wi = result.get("what_if")
