@@ -209,4 +209,4 @@ def test_earth_table_speaks_of_a_rod_in_words_and_shows_the_rf_range(capsys):
     out = capsys.readouterr().out
     assert "a longer rod helps up to about" in out
     assert "(R " in out  # the RF resistance range under the impedance
-    assert "lossy lines in the soil at each" in out
+    assert "earth electrodes as lossy lines" in out

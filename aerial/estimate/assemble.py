@@ -469,8 +469,8 @@ def ranges_at_band_points(site, freqs, resp, earth, pts, *, method, ground, allo
         **unc,
         "notes": [
             "Ranges move every support by its height tolerance and the soil between its category's bounds, by the "
-            f"same model as the value ({range_method}; the earth electrodes as lossy lines in the soil at each "
-            "frequency); each range holds the value and both tolerance runs.",
+            f"same model as the value ({range_method}, earth electrodes as lossy lines); each range holds the value "
+            "and both tolerance runs.",
             "Nearby buildings, trees and wiring are not modelled; measured aerial capacitance can differ from any "
             "formula by a large factor. A bench measurement ([receiver.measured]) replaces the estimate.",
         ],

@@ -58,14 +58,15 @@ def headline(result) -> list[tuple[str, str, str]]:
                 (f"power available in {field} {where}", eng(a["available_power_w"][i], "W"),
                  range_text(ranges["available_power_w"][j], "W"))]
     earth = result.get("earth") or {}
-    if earth.get("resistance_ohm") is not None:
-        out.append(("earth system resistance (DC)", eng(earth["resistance_ohm"], "Ω"),
-                    range_text([earth.get("resistance_low_ohm"), earth.get("resistance_high_ohm")], "Ω")))
     zt, fc = earth.get("impedance_ohm"), earth.get("centre_frequency_hz")
     if zt is not None and fc and len(zt) and earth.get("resistance_range_at_centre_ohm"):
+        # the figure the loss budget uses (electrodes as lossy lines), with its range by the same model
         j = _nearest(result["frequencies_hz"], fc)
-        out.append((f"earth system resistance at {eng(fc, 'Hz')}", eng(zt[j][0], "Ω"),
+        out.append((f"earth resistance, {eng(fc, 'Hz')}", eng(zt[j][0], "Ω"),
                     range_text(earth["resistance_range_at_centre_ohm"], "Ω")))
+    elif earth.get("resistance_ohm") is not None:
+        out.append(("earth system resistance (DC)", eng(earth["resistance_ohm"], "Ω"),
+                    range_text([earth.get("resistance_low_ohm"), earth.get("resistance_high_ohm")], "Ω")))
     cov = ((result.get("tuning") or {}).get("coverage") or {})
     if cov.get("verdict"):
         out.append(("band coverage", cov["verdict"], ""))
@@ -204,9 +205,10 @@ def _earth_section(result) -> str:
     def z_text(z):
         return f"{eng(z[0], 'Ω')} {'+' if z[1] >= 0 else '−'} j{eng(abs(z[1]), 'Ω')}" if z else ""
 
-    rows = [[p.get("description", p.get("kind", "")),
-             eng(p.get("resistance_ohm"), "Ω"),
-             range_text([p.get("resistance_low_ohm"), p.get("resistance_high_ohm")], "Ω"),
+    def dc_text(p):  # the value alone: its DC range is in the JSON; the RF range is the one that matters here
+        return eng(p.get("resistance_ohm"), "Ω")
+
+    rows = [[p.get("description", p.get("kind", "")), dc_text(p),
              z_text(p.get("impedance_at_centre_ohm")), r_range(p),
              effective_length_words(p, lambda v: eng(v, "m")),
              p.get("method", "")]
@@ -216,11 +218,10 @@ def _earth_section(result) -> str:
     if zt is not None and fc and len(zt):
         j = int(np.argmin(np.abs(np.asarray(result["frequencies_hz"]) - fc)))
         total_z = z_text(zt[j])
-    rows.append([("whole earth system", "total"), (eng(earth.get("resistance_ohm"), "Ω"), "total"),
-                 (range_text([earth.get("resistance_low_ohm"), earth.get("resistance_high_ohm")], "Ω"), "total"),
+    rows.append([("whole earth system", "total"), (dc_text(earth), "total"),
                  (total_z, "total"), (r_range(earth), "total"), "", ""])
     at = f"impedance at {eng(fc, 'Hz')}" if fc else "impedance"
-    body = table(["part", "resistance (DC)", "range (DC)", at, "R range there", "effective length", "method"], rows)
+    body = table(["part", "R (DC)", at, "R range", "effective length", "method"], rows)
     if earth.get("impedance_method"):
         body += bullets([earth["impedance_method"]], "notes")
     others = {k: v for k, v in earth.items() if k not in ("parts", "resistance_ohm", "resistance_low_ohm",
