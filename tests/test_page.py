@@ -78,9 +78,11 @@ def test_report_page_shows_the_headline_figures_of_the_json(built_in):
     """Consistency check: the page's figures are the JSON's, formatted as the terminal formats them."""
     result, page = built_in
     earth = result["earth"]
-    for value, unit in ((earth["resistance_ohm"], "Ω"), (earth["resistance_low_ohm"], "Ω"),
-                        (earth["resistance_high_ohm"], "Ω")):
+    # the DC value, and the RF resistance's range at the centre frequency (the page shows the RF range, not the DC one)
+    low, high = earth["resistance_range_at_centre_ohm"]
+    for value, unit in ((earth["resistance_ohm"], "Ω"), (low, "Ω"), (high, "Ω")):
         assert eng(value, unit) in page
+    assert f"{eng(low, 'Ω')} – {eng(high, 'Ω')}" in page
     ranges = result["ranges"]
     j = ranges["labels"].index(next(lb for lb in ranges["labels"] if lb.endswith("centre")))
     for key, unit in (("capacitance_f", "F"), ("effective_height_m", "m"), ("available_power_w", "W")):
