@@ -86,7 +86,8 @@ def test_report_page_in_the_browser(browser, pages):
     text = browser.evaluate("document.body.innerText")
     earth = result["earth"]
     assert eng(earth["resistance_ohm"], "Ω") in text
-    assert f"{eng(earth['resistance_low_ohm'], 'Ω')} – {eng(earth['resistance_high_ohm'], 'Ω')}" in text
+    low, high = earth["resistance_range_at_centre_ohm"]  # the page shows the RF range of the earth's resistance
+    assert f"{eng(low, 'Ω')} – {eng(high, 'Ω')}" in text
     assert result["tuning"]["coverage"]["verdict"] in text
     for s in result["stations"]:
         assert s["name"] in text and eng(s["detector_power_w"], "W") in text
