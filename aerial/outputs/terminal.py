@@ -385,7 +385,7 @@ def render_report(result: dict, console, units: str = "si") -> None:
         show(console, et)
         if earth.get("resistance_range_at_centre_ohm"):
             console.print("[dim]R low–high under an impedance: its resistance with the soil anywhere between its "
-                          "category's bounds, by the same lossy-line model.[/dim]")
+                          "category's bounds, by the same model as the impedance above it.[/dim]")
 
     wi = result.get("what_if")
     if wi:
