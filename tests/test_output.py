@@ -156,6 +156,17 @@ def test_a_checked_water_pipe_is_not_warned_about_twice(capsys, tmp_path):
     assert out.count("continuity is not stated") == 1 and "metal all the way" not in out
 
 
+def test_a_rod_given_in_feet_and_inches_reads_back_in_them(capsys, tmp_path):
+    # An "8 ft" x "5/8 in" rod (exact: 2.4384 m x 15.875 mm, NIST SP 811) once read "8.01 ft x 0.63 in"
+    # under --units us because its description was rounded in metres first.
+    site = tmp_path / "rod.toml"
+    text = open(EXAMPLES + "backyard_inverted_l.toml", encoding="utf-8").read()
+    site.write_text(text.replace('diameter = "16 mm"', 'diameter = "5/8 in"'), encoding="utf-8")
+    code, out, _ = run(capsys, "report", str(site), "--units", "us", "--width", "300", "--quiet")
+    assert code == 0
+    assert "1 rod 8 ft × 0.625 in" in out
+
+
 def test_lengths_in_us_units():
     us = Lengths("us")
     assert us(0.3048) == "1 ft" and us(3.048) == "10 ft" and us(0.0254) == "1 in"  # exact definitions, NIST SP 811

@@ -34,7 +34,8 @@ def _one(e, resistivity: float, radius_default: float) -> tuple[float, str, list
             est = el.dwight_two_rods(e.length_m, a, e.spacing_m, resistivity)
         else:
             est = el.multiple_rods(e.count, e.length_m, a, e.spacing_m, resistivity)
-        what = f"{e.count} rod{'s' if e.count > 1 else ''} {e.length_m:.2f} m × {e.diameter_m * 1e3:.0f} mm"
+        # enough digits that a rod given in feet and inches reads back exactly under --units us (8 ft, 5/8 in)
+        what = f"{e.count} rod{'s' if e.count > 1 else ''} {e.length_m:.4g} m × {e.diameter_m * 1e3:.4g} mm"
     elif e.kind == "buried_wires":
         a = e.diameter_m / 2.0
         if e.arrangement == "radials" and e.count >= 2:
