@@ -36,6 +36,9 @@ APARTMENT_NOTE = (
 #: Height change and added length in the what-if table.
 WHAT_IF_RAISE_M = 3.0
 WHAT_IF_EXTEND_M = 10.0
+#: How far the balcony what-if holds the wire out from the facade, and how far below the aerial a counterpoise runs. [m]
+WHAT_IF_STAND_OFF_M = 2.0
+WHAT_IF_COUNTERPOISE_DROP_M = 1.0
 
 
 def frequency_grid(site, step_hz: float | None = None) -> np.ndarray:
@@ -145,7 +148,7 @@ def aerial_response(site, geometry, frequency, earth_ohm: float, method: str = "
     else:
         from aerial.models.closed_form import closed_form_response
 
-        out = dict(closed_form_response(geometry.segments, frequency))
+        out = dict(closed_form_response(geometry.segments, frequency, building=geometry.building))
         out["ground_loss_ohm"] = np.broadcast_to(np.asarray(earth_ohm, float), (len(frequency),)).copy()
         out["warnings"] = list(out.get("warnings", []))
         out["loss_budget"] = {
@@ -290,7 +293,7 @@ HEADLINE_KEYS = ("capacitance_f", "effective_height_m", "loss_resistance_ohm", "
 
 
 def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-form", ground="perfect", progress=None,
-              lumped_ohm=None):
+              lumped_ohm=None, shielding_case: int = 1):
     """Headline figures of ``wires`` at ``frequency`` by one model. Returns arrays over frequency.
 
     ``earth_ohm``: the earth system's resistance, one value or one per
@@ -319,7 +322,8 @@ def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-fo
         shape = None
         if like is not None and len(like.segment_section) == len(geo.segments):
             shape = measure_like(geo.segments, like)
-        r = closed_form_response(geo.segments, f, shape=shape)
+        r = closed_form_response(geo.segments, f, shape=shape, building=geo.building,
+                                 shielding_case=shielding_case)
         rg = earth_f
     rr = np.asarray(r["radiation_resistance_ohm"], float)
     rt = rr + np.asarray(r["conductor_loss_ohm"], float) + rg
@@ -355,6 +359,17 @@ def _full_wave_ranges_fit(site, frequency, main_frequency, allow_large: bool) ->
     main = estimate_full_wave(seg, main_frequency)["seconds"]
     extra = 2 * estimate_full_wave(seg, frequency)["seconds"]
     return main + extra <= TIME_BUDGET_S
+
+
+def headline_figures(site, frequency, earth_ohm: float) -> dict:
+    """The report's headline figures of the site's own wire at some frequencies, radiation resistance included."""
+    from aerial.models.closed_form import closed_form_response
+
+    geo = resolve(site)
+    r = closed_form_response(geo.segments, np.atleast_1d(frequency), building=geo.building)
+    out = _headline(site, site.wires, frequency, earth_ohm)
+    out["radiation_resistance_ohm"] = np.asarray(r["radiation_resistance_ohm"])
+    return out
 
 
 def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", nominal: dict | None = None,
@@ -393,8 +408,8 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
         hi = _headline(site, _perturbed_wires(site, +1.0), f, hi_ohm, lumped_ohm=b["low_ohm"][-1], **run)
         label = "full wave"
     else:
-        lo = _headline(site, _perturbed_wires(site, -1.0), f, lo_ohm, like=like)
-        hi = _headline(site, _perturbed_wires(site, +1.0), f, hi_ohm, like=like)
+        lo = _headline(site, _perturbed_wires(site, -1.0), f, lo_ohm, like=like, shielding_case=2)
+        hi = _headline(site, _perturbed_wires(site, +1.0), f, hi_ohm, like=like, shielding_case=0)
         label = "closed form"
         if method == "full-wave":
             base = _headline(site, site.wires, f, earth_at_frequency(site, f)["impedance_ohm"].real, like=like)
@@ -426,6 +441,7 @@ def what_if(site, frequency: float, earth: dict) -> list[dict]:
     rows.append((f"add {WHAT_IF_EXTEND_M:g} m to the far end", _headline(site, _perturbed_wires(site, extend_m=WHAT_IF_EXTEND_M), frequency, r_earth)))
     better = earth_mod.improved_earth(site.electrodes, site.soil, frequency)
     rows.append((better["description"], _headline(site, site.wires, frequency, better["resistance_ohm"])))
+    rows += _building_moves(site, frequency, earth)
     out = []
     p0 = float(base["available_power_w"][0])
     for label, h in rows:
@@ -467,14 +483,79 @@ def ranges_at_band_points(site, freqs, resp, earth, pts, *, method, ground, allo
         "labels": [label for label, _ in pts],
         "method": range_method,
         **unc,
-        "notes": [
-            "Ranges move every support by its height tolerance and the soil between its category's bounds, by the "
-            f"same model as the value ({range_method}, earth electrodes as lossy lines); each range holds the value "
-            "and both tolerance runs.",
-            "Nearby buildings, trees and wiring are not modelled; measured aerial capacitance can differ from any "
-            "formula by a large factor. A bench measurement ([receiver.measured]) replaces the estimate.",
-        ],
+        "notes": _range_notes(site, range_method),
     }
+
+
+def _building_moves(site, frequency, earth) -> list:
+    """What-if rows for a wire on a building: held out from the facade, a counterpoise instead of the riser."""
+    from aerial.geometry.resolve import building_of
+    from aerial.models.building import nearest_facade, plan_distance
+
+    body, described = building_of(site)
+    apartment = isinstance(site.plan, dict) and str(site.plan.get("building", "")).lower() == "apartment"
+    if body is None or not (apartment or described.balcony_floor_m is not None):
+        return []  # the balcony moves are for a wire on a balcony
+    aerial = [w for w in site.wires if w.role == "aerial"]
+    pts = np.vstack([w.points_m for w in aerial])
+    outside = pts[plan_distance(pts[:, :2], body.footprint) > 0]
+    if len(outside) == 0:
+        return []
+    _, normal = nearest_facade(body.footprint, outside[:, :2])
+    rows = []
+    moved = []
+    for w in site.wires:
+        if w.role == "aerial":
+            p = np.array(w.points_m, float)
+            p[:, :2] += WHAT_IF_STAND_OFF_M * normal[:2]
+            w = replace(w, points_m=p)
+        elif w.role == "lead-in":
+            p = np.array(w.points_m, float)
+            p[0, :2] += WHAT_IF_STAND_OFF_M * normal[:2]  # its top follows the aerial
+            w = replace(w, points_m=p)
+        moved.append(w)
+    try:
+        rows.append((f"hold the wire {WHAT_IF_STAND_OFF_M:g} m further out from the facade (poles clamped to the rail)",
+                     _headline(site, moved, frequency, earth["resistance_ohm"])))
+    except ModelInputError:
+        pass
+    counterpoise = _rail_counterpoise(site)
+    if counterpoise is not None:
+        from aerial.estimate import earth as earth_mod
+
+        wires = [w for w in site.wires if w.role not in EARTH_ROLES] + [counterpoise]
+        cp_ohm = earth_mod.earth_system([], site.soil, [counterpoise], path=site.path)["resistance_ohm"]
+        try:
+            rows.append(("a counterpoise wire along the balcony floor instead of the riser earth",
+                         _headline(site, wires, frequency, cp_ohm)))
+        except ModelInputError:
+            pass
+    return rows
+
+
+def _rail_counterpoise(site):
+    """A counterpoise from the receiver along the aerial's course, 1 m lower (the balcony floor), or None."""
+    if not any(w.role == "earth lead" for w in site.wires):
+        return None
+    lead = [w for w in site.wires if w.role == "lead-in"]
+    aerial = [w for w in site.wires if w.role == "aerial"]
+    if not aerial:
+        return None
+    path = [site.feed_m]
+    if lead:
+        lp = np.array(lead[0].points_m, float)
+        path += list(lp[::-1] if np.linalg.norm(lp[0] - site.feed_m) < np.linalg.norm(lp[-1] - site.feed_m) else lp)[1:]
+    ap = np.array(aerial[0].points_m, float)
+    ap = ap if np.linalg.norm(ap[0] - path[-1]) <= np.linalg.norm(ap[-1] - path[-1]) else ap[::-1]
+    path += list(ap[1:] if np.linalg.norm(ap[0] - path[-1]) < JOIN_TOLERANCE_M else ap)
+    p = np.array(path, float)
+    p[1:, 2] = np.maximum(p[1:, 2] - WHAT_IF_COUNTERPOISE_DROP_M, 0.3)
+    keep = np.r_[True, np.linalg.norm(np.diff(p, axis=0), axis=1) > 0.05]
+    p = p[keep]
+    if len(p) < 2:
+        return None
+    return replace(aerial[0], name="counterpoise along the rail", role="counterpoise", points_m=p, key="what-if",
+                   support_at_point=())
 
 
 # --------------------------------------------------------------------------- main entry
@@ -510,8 +591,6 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     if method not in METHODS:
         raise ModelInputError(f"'{method}' is not a valid method, must be one of " + ", ".join(f"'{m}'" for m in METHODS))
     warnings: list[str] = list(site.notes)
-    if isinstance(site.plan, dict) and str(site.plan.get("building", "")).lower() == "apartment":
-        warnings.append(APARTMENT_NOTE)
     freqs = frequency_grid(site, step_hz)
     earth = earth_system(site)
     warnings += earth.get("warnings", [])
@@ -521,6 +600,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     f_centre = what_if_frequency(site, pts)
     centre_i = int(np.argmin(np.abs(freqs - f_centre)))
     geometry = resolve(site, electrode_ohm=float(earth_r[centre_i]))
+    warnings += _open_ground_warnings(site, geometry)
     if ground not in GROUNDS:
         raise ModelInputError(f"'{ground}' is not a valid ground, must be one of " + ", ".join(f"'{g}'" for g in GROUNDS))
     if ground != "perfect" and method != "full-wave":
@@ -577,9 +657,12 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
         },
         "earth": _earth_json(earth, earth_rf, centre_i, earth_bounds(site, [freqs[centre_i]])),
     }
-    for key in ("convergence", "ground_treatment", "segments", "loss_budget"):
+    for key in ("convergence", "ground_treatment", "segments", "loss_budget", "building_full_wave"):
         if key in resp:
             result["aerial"][key] = resp[key]
+    if geometry.building is not None:
+        result["building"] = building_section(geometry, resp)
+        warnings[:0] = [result["building"]["assumption"]] + _building_warnings(geometry.building_site)
 
     pts = band_points(site)
     stage(progress, "ranges from the tolerances")
@@ -606,6 +689,83 @@ def stage(progress, text: str) -> None:
     say = getattr(progress, "stage", None)
     if callable(say):
         say(text)
+
+
+def _open_ground_warnings(site, geometry) -> list:
+    """Said when a wire on a building is modelled with no building: it is in open ground."""
+    if geometry.building is not None:
+        return []
+    if isinstance(site.plan, dict) and str(site.plan.get("building", "")).lower() == "apartment":
+        return [APARTMENT_NOTE]
+    from aerial.site.building import open_ground_notes
+
+    return open_ground_notes(site)
+
+
+def _range_notes(site, range_method) -> list:
+    from aerial.geometry.resolve import building_of
+
+    if building_of(site)[0] is None:
+        return [
+            "Ranges move every support by its height tolerance and the soil between its category's bounds, by the "
+            f"same model as the value ({range_method}, earth electrodes as lossy lines); each range holds the value "
+            "and both tolerance runs.",
+            "Nearby buildings, trees and wiring are not modelled; measured aerial capacitance can differ from any "
+            "formula by a large factor. A bench measurement ([receiver.measured]) replaces the estimate.",
+        ]
+    return [
+        "Ranges move every support by its height tolerance, the soil between its bounds and the building's screening "
+        f"between its construction's bounds, by the same model as the value ({range_method}).",
+        "Other buildings, trees and wiring are not modelled; measured aerial capacitance can differ from any "
+        "formula by a large factor. A bench measurement ([receiver.measured]) replaces the estimate.",
+    ]
+
+
+#: What each construction does, in words a flat-dweller understands.
+CONSTRUCTION_IN_WORDS = {
+    "reinforced concrete": "the steel bars in its concrete, joined to the earth through the foundations, screen the "
+                           "wire on the side facing it",
+    "steel frame": "its steel frame screens the wire on the side facing it almost completely",
+    "masonry": "its walls, with the wiring, pipes and steel lintels in them, screen the wire partly",
+    "timber frame": "a timber building hardly screens the wire",
+    "unknown": "its construction is not known, so anything from no screening to a metal screen is allowed for",
+}
+
+
+def building_section(geometry, resp) -> dict:
+    """The building as the report states it: what was taken, the figures with and without it, the assumption."""
+    body, described = geometry.building, geometry.building_site
+    fig = dict(resp.get("building") or {})
+    text = f"The building is taken as a grounded conductor: {CONSTRUCTION_IN_WORDS[body.construction]}."
+    if fig:
+        most, nominal, least = fig["static_effective_height_range_m"]
+        text += (f" Beside it the wire's effective height is about {nominal:.1f} m ({least:.1f}-{most:.1f} m as the "
+                 f"structure conducts better or worse; {fig['open_ground_static_effective_height_m']:.1f} m in open "
+                 "ground).")
+        if fig.get("screened_wire_m", 0.0) > 0.05 and body.shielding[1] >= 0.5:
+            text += " The lead-in and riser inside it are screened and bonded to it: earth, not aerial."
+    else:
+        text += " The full-wave solver includes it as a grounded wire grid."
+    out = {
+        "construction": body.construction,
+        "height_m": float(body.height_m),
+        "footprint_m": [[float(v) for v in p] for p in body.footprint],
+        "source": described.source if described else "building",
+        "assumed": list(described.assumed) if described else [],
+        "balcony_floor_m": described.balcony_floor_m if described else None,
+        "rail_bonded": described.rail_bonded if described else None,
+        "assumption": text,
+    }
+    out.update(fig)
+    return {k: v for k, v in out.items() if v is not None}
+
+
+def _building_warnings(described) -> list:
+    out = list(described.assumed) if described else []
+    if described is not None and described.rail_bonded:
+        out.append("The balcony rail is bonded to the structure: fix the wire on insulators standing clear of the "
+                   "rail; a wire touching the rail is shorted to the building.")
+    return out
 
 
 def _unique(items):

@@ -36,6 +36,14 @@ def cautions_for(site) -> list[str]:
             "brings mains noise with it. Connect to it only at the building's earthing terminal or bonding point, "
             "through a licensed electrician, never through an outlet."
         )
+    described = site.raw.get("building") if isinstance(site.raw, dict) else None
+    if (isinstance(described, dict) and "balcony_floor" in described) or \
+            str((site.plan or {}).get("building", "")) == "apartment":
+        out.append(
+            "Building: its steel, its pipes and its mains earth are bonded to the building's earthing. The aerial's "
+            "earth joins them only at the main earthing terminal or a bonding point, and only through a licensed "
+            "electrician; keep the wire clear of other flats' balconies and of any cable on the facade."
+        )
     if any(w.role == "counterpoise" for w in site.wires):
         out.append(
             "Counterpoise: it is not an earth for lightning or static; keep a separate earth connection for "

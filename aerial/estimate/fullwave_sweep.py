@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import numpy as np
 
 from aerial.core.errors import ResourceLimit
@@ -106,6 +108,9 @@ def full_wave_response(site, geometry, frequency, earth_ohm: float, progress=Non
     lead meets the ground; a base-fed aerial gets the earth resistance in series.
     """
     seg = geometry.segments
+    if geometry.building is not None:
+        return building_full_wave_response(site, geometry, frequency, earth_ohm, progress=progress, ground=ground,
+                                           allow_large=allow_large)
     check_full_wave_budget(seg, frequency, allow_large)
     # the earth system's resistance at each frequency goes in series after the solve (base feed only)
     earth_f = np.broadcast_to(np.asarray(earth_ohm, float), (len(np.atleast_1d(frequency)),))
@@ -168,3 +173,100 @@ def full_wave_response(site, geometry, frequency, earth_ohm: float, progress=Non
         },
         "segments": {"unknowns": int(res.n_unknowns), "pieces": int(res.n_pieces), "band_method": res.band_method},
     }
+
+
+#: Default grid spacing of a building in the full-wave solver (about a storey), at most a tenth of a wavelength. [m]
+BUILDING_GRID_MESH_M = 3.0
+
+
+def with_building_grid(segments, body, mesh_m):
+    """The wire set with the building's wire grid added: grounded with the earth side, perfectly conducting.
+
+    With no earth lead (a base-fed aerial) the grid is a separate grounded
+    structure standing on the ground plane.
+    """
+    from aerial.models.building import building_grid
+    from aerial.models.segments import Segments
+
+    s, e, a = building_grid(body, mesh_m)
+    n = len(s)
+    lead = bool(np.any(segments.grounded))
+    return Segments(
+        np.vstack([segments.start, s]), np.vstack([segments.end, e]), np.r_[segments.radius, np.full(n, a)],
+        np.r_[segments.grounded, np.full(n, lead)], segments.feed,
+        np.r_[segments.wire_index, np.full(n, int(segments.wire_index.max()) + 1)],
+        np.r_[segments.resistivity, np.zeros(n)], np.r_[segments.relative_permeability, np.ones(n)],
+        segments.electrode_ohm,
+    )
+
+
+def building_mesh(frequency) -> float:
+    """Grid spacing for a sweep: a storey, or a tenth of the shortest wavelength when that is less. [m]"""
+    from aerial.models.building import GRID_MESH_WAVELENGTHS
+
+    lam = SPEED_OF_LIGHT / float(np.max(frequency))
+    return float(min(BUILDING_GRID_MESH_M, GRID_MESH_WAVELENGTHS * lam))
+
+
+def building_full_wave_response(site, geometry, frequency, earth_ohm, progress=None, ground="perfect",
+                                allow_large=False, mesh_m=None) -> dict:
+    """Full-wave figures of a wire beside a building: the wire alone and with the building as a wire grid.
+
+    The grid is a perfect conductor; the construction's shielding fraction s
+    blends the two solutions as the closed form does (h = (1 - s) h_open +
+    s h_grid, likewise Rr and X). The received voltage comes by reciprocity
+    for a ground wave from every bearing: the site's station bearings when
+    given, else the worst and best bearing, reported as a range.
+    """
+    from aerial.models.fullwave_reception import arrival_effective_height, bearing_range
+
+    body = geometry.building
+    f = np.asarray(frequency, float)
+    mesh = float(mesh_m) if mesh_m is not None else building_mesh(f)
+    gridded = with_building_grid(geometry.segments, body, mesh)
+    check_full_wave_budget(gridded, f, allow_large)
+    bare = replace(geometry, building=None, building_site=None)
+    out = full_wave_response(site, bare, f, earth_ohm, progress=None, ground=ground, allow_large=allow_large)
+    series = 0.0 if not geometry.base_fed else float(earth_ohm)
+    kwargs = {}
+    if ground == "lossy":
+        kwargs = {"soil_permittivity": site.soil.relative_permittivity, "soil_conductivity": site.soil.conductivity_s_m}
+    res = solve_full_wave(gridded, f, ground=ground, series_ohm=series, progress=progress, **kwargs)
+    s_lo, s_nom, s_hi = body.shielding
+    span_ = bearing_range(res)
+    bearings = [st.bearing_deg for st in site.stations if getattr(st, "bearing_deg", None) is not None]
+    h_open = np.asarray(out["effective_height_m"], float)
+    mean_grid = np.sqrt(span_["worst_m"] * span_["best_m"])
+    h = (1 - s_nom) * h_open + s_nom * mean_grid
+    rr_grid = np.asarray(res.radiation_resistance, float)
+    out["effective_height_m"] = h
+    out["radiation_resistance_ohm"] = (1 - s_nom) * np.asarray(out["radiation_resistance_ohm"]) + s_nom * rr_grid
+    out["reactance_ohm"] = (1 - s_nom) * np.asarray(out["reactance_ohm"]) + s_nom * np.asarray(res.impedance).imag
+    info = {
+        "grid_mesh_m": mesh,
+        "grid_wires": int(len(gridded) - len(geometry.segments)),
+        "unknowns": int(res.n_unknowns),
+        "shielding_ratio": [s_lo, s_nom, s_hi],
+        "open_ground_effective_height_m": h_open,
+        "grid_worst_effective_height_m": span_["worst_m"],
+        "grid_best_effective_height_m": span_["best_m"],
+        "worst_bearing_deg": span_["worst_bearing_deg"],
+        "best_bearing_deg": span_["best_bearing_deg"],
+        "effective_height_range_m": np.stack([(1 - s_hi) * h_open + s_hi * span_["worst_m"],
+                                              (1 - s_lo) * h_open + s_lo * span_["best_m"]], axis=1),
+    }
+    if bearings:
+        hb = np.abs(arrival_effective_height(res, bearings))
+        info["station_bearings_deg"] = [float(b) for b in bearings]
+        info["station_effective_height_m"] = (1 - s_nom) * h_open[:, None] + s_nom * hb
+    out["building_full_wave"] = info
+    out["model"] = (res.model + f"; the building as a grounded wire grid ({mesh:.2g} m mesh, {info['grid_wires']} "
+                    "wires), blended with the open-ground solution by its construction's shielding")
+    out["warnings"] = list(out["warnings"]) + [
+        w for w in res.warnings if "meets the ground at" not in w and "touches the ground" not in w] + [
+        "full wave with the building: the effective height shown is the middle (geometric mean) of the worst and "
+        "best bearing of arrival; the range over bearings and the construction is in 'building_full_wave'; "
+        "the conductor and earth losses are the wire's own (the building's induced currents are not counted as loss)"]
+    out["convergence"]["unknowns_with_building"] = int(res.n_unknowns)
+    return out
+

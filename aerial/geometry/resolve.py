@@ -13,7 +13,9 @@ import shapely
 from shapely.geometry import LineString, MultiLineString
 
 from aerial.core.materials import CONDUCTORS
+from aerial.models.building import BuildingBody
 from aerial.models.segments import FEED_GAP_M, Segments
+from aerial.site.building import SiteBuilding, parse_building
 
 #: Roles on the earth side of the receiver.
 EARTH_ROLES = ("earth lead", "counterpoise")
@@ -34,12 +36,18 @@ class Geometry:
     base_fed : bool
         True when the receiver is at ground level (no earth-lead wire): the
         aerial's lowest point is then raised to the feed gap above ground.
+    building : BuildingBody or None
+        The building the wire hangs on, when the site describes one.
+    building_site : SiteBuilding or None
+        The same as the site file gave it (balcony floor, rail bonding, what was assumed).
     """
 
     wires: list
     segments: Segments
     feed_m: np.ndarray
     base_fed: bool
+    building: BuildingBody | None = None
+    building_site: SiteBuilding | None = None
 
     @property
     def aerial_wires(self):
@@ -83,7 +91,15 @@ class Geometry:
         return float(np.hypot(x1 - x0, y1 - y0))
 
 
-def resolve(site, electrode_ohm: float = 0.0, wires=None) -> Geometry:
+def building_of(site) -> tuple:
+    """The site's building as (BuildingBody, SiteBuilding), or (None, None) when none is described."""
+    described = parse_building(site)
+    if described is None:
+        return None, None
+    return BuildingBody(np.array(described.footprint, float), described.height_m, described.construction), described
+
+
+def resolve(site, electrode_ohm: float = 0.0, wires=None, building: bool = True) -> Geometry:
     """Cut the site's wires into straight segments for the electrical models.
 
     Parameters
@@ -94,6 +110,8 @@ def resolve(site, electrode_ohm: float = 0.0, wires=None) -> Geometry:
         Earth-electrode resistance where the earth lead meets the ground. [ohm]
     wires : list of WireRun, optional
         Wires to use instead of ``site.wires`` (what-if and uncertainty runs).
+    building : bool
+        Include the site's building (False: the wire in open ground, for comparisons).
     """
     wires = list(site.wires if wires is None else wires)
     feed = site.feed_m.astype(float).copy()
@@ -122,7 +140,8 @@ def resolve(site, electrode_ohm: float = 0.0, wires=None) -> Geometry:
         wire_index=np.concatenate(index), resistivity=np.concatenate(rho),
         relative_permeability=np.concatenate(mur), electrode_ohm=float(electrode_ohm),
     )
-    return Geometry(wires, seg, feed, base_fed)
+    body, described = building_of(site) if building else (None, None)
+    return Geometry(wires, seg, feed, base_fed, body, described)
 
 
 def wires_json(geometry: Geometry) -> list[dict]:

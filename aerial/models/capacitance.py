@@ -59,6 +59,8 @@ DEFAULT_RELATIVE_TOLERANCE = 0.01
 #: An earth-side segment reaching this close to the ground plane connects to it;
 #: an earth side that never does is a counterpoise and floats. [m]
 GROUND_CONTACT_M = 1e-3
+#: An earth-side segment reaching this close to a grounded wall plane is bonded to it. [m]
+WALL_CONTACT_M = 0.05
 
 
 
@@ -393,7 +395,28 @@ def _subdivide(seg: Segments, counts):
     return seg.start[idx] + t0 * d, seg.start[idx] + t1 * d, idx
 
 
-def _solve(start, end, radius, grounded, image, floating=False):
+def _reflections(image, wall):
+    """The image sources as (sign, matrix, shift): r' = r @ matrix + shift, charge times sign.
+
+    ``image`` adds the ground plane z = 0; ``wall`` (a point and a horizontal
+    unit normal) adds a vertical grounded plane, and with both the image of
+    the image (sign +1): exact for two perpendicular planes.
+    """
+    out = []
+    ground = (np.diag([1.0, 1.0, -1.0]), np.zeros(3))
+    if image:
+        out.append((-1.0,) + ground)
+    if wall is not None:
+        p0, n = (np.asarray(v, dtype=float) for v in wall)
+        m = np.eye(3) - 2.0 * np.outer(n, n)
+        shift = 2.0 * float(np.dot(p0, n)) * n
+        out.append((-1.0, m, shift))
+        if image:
+            out.append((1.0, m @ ground[0], shift @ ground[0]))
+    return out
+
+
+def _solve(start, end, radius, grounded, image, floating=False, wall=None):
     """Charges for 1 V on the aerial. Returns (charge [C], midpoints, counterpoise potential [V]).
 
     With ``floating`` the earth side (``grounded``) is a counterpoise insulated
@@ -404,9 +427,8 @@ def _solve(start, end, radius, grounded, image, floating=False):
     p = mid[:, None, :]
     a = radius[None, :]
     pot = segment_potential_integral(p, start[None, :, :], end[None, :, :], a)
-    if image:
-        flip = np.array([1.0, 1.0, -1.0])
-        pot = pot - segment_potential_integral(p, (start * flip)[None, :, :], (end * flip)[None, :, :], a)
+    for sign, m, shift in _reflections(image, wall):
+        pot = pot + sign * segment_potential_integral(p, (start @ m + shift)[None, :, :], (end @ m + shift)[None, :, :], a)
     lengths = np.linalg.norm(end - start, axis=1)
     # unknowns: line charge density lambda_j; potential = lambda_j * I_ij / (4 pi eps0)
     rhs = np.where(grounded, 0.0, 1.0)
@@ -424,6 +446,49 @@ def _solve(start, end, radius, grounded, image, floating=False):
     return sol[:n] * _FOUR_PI_EPS0 * lengths, mid, float(sol[n])
 
 
+def _subdivision_counts(segments, target, min_subsegments, max_subsegment_fraction, min_length_to_radius):
+    """Sub-segments per segment for about ``target`` unknowns within the length limits."""
+    lengths = segments.length
+    n = np.ceil(lengths / (float(np.sum(lengths)) / target)).astype(int)
+    n = np.maximum(n, int(min_subsegments))
+    n = np.maximum(n, int(np.ceil(1.0 / max_subsegment_fraction - 1e-9)))
+    n_max = np.maximum(np.floor(lengths / (min_length_to_radius * segments.radius)).astype(int), 1)
+    return np.minimum(n, n_max)
+
+
+def _check_options(segments, target_unknowns, min_subsegments, max_subsegment_fraction, min_length_to_radius,
+                   tolerance, ground_plane):
+    """Raise ModelInputError for an empty set or an option out of its range."""
+    if len(segments) == 0:
+        raise ModelInputError("no segments to solve")
+    if not np.any(segments.aerial):
+        raise ModelInputError("the segment set has no aerial (ungrounded) segment")
+    for name, v in (("target_unknowns", target_unknowns), ("min_subsegments", min_subsegments)):
+        if int(v) < 1:
+            raise ModelInputError(f"{name} must be at least 1; got {v!r}")
+    if not (0 < max_subsegment_fraction <= 1):
+        raise ModelInputError(f"max_subsegment_fraction must lie in (0, 1]; got {max_subsegment_fraction!r}")
+    if not (min_length_to_radius > 0):
+        raise ModelInputError(f"min_length_to_radius must be positive; got {min_length_to_radius!r}")
+    if not (0 < tolerance < 1):
+        raise ModelInputError(f"tolerance must lie in (0, 1); got {tolerance!r}")
+    if np.any(segments.length <= 0):
+        raise ModelInputError("every segment must have a positive length")
+    if ground_plane and np.any(np.minimum(segments.start[:, 2], segments.end[:, 2]) < 0):
+        raise ModelInputError("segments must lie on or above the ground plane z = 0")
+
+
+def _earth_touches(segments, wall) -> bool:
+    """True when an earth-side segment reaches the ground plane (or the grounded wall, when there is one)."""
+    low = np.minimum(segments.start[:, 2], segments.end[:, 2])
+    touch = low <= GROUND_CONTACT_M
+    if wall is not None:
+        p0, n = (np.asarray(v, dtype=float) for v in wall)
+        near = np.minimum((segments.start - p0) @ n, (segments.end - p0) @ n)
+        touch = touch | (near <= WALL_CONTACT_M)
+    return bool(np.any(segments.grounded & touch))
+
+
 def electrostatic_solution(
     segments: Segments,
     *,
@@ -434,6 +499,7 @@ def electrostatic_solution(
     max_unknowns: int = DEFAULT_MAX_UNKNOWNS,
     tolerance: float = DEFAULT_RELATIVE_TOLERANCE,
     ground_plane: bool = True,
+    wall=None,
 ) -> ElectrostaticSolution:
     """Capacitance and static effective height of any thin-wire set by the moment method.
 
@@ -459,6 +525,12 @@ def electrostatic_solution(
         Include the images in the perfect ground plane z = 0 (default). Without
         it the wire set is isolated in free space (used for checks against
         isolated-wire formulas).
+    wall : tuple of (array_like, array_like), optional
+        A grounded vertical plane (a building's facade taken as a perfect
+        conductor): a point on it [m] and its horizontal unit normal pointing
+        to the side the wires are on [1]. Its images (and, with the ground
+        plane, the images of those) join the fill; every segment must lie in
+        front of it.
 
     Returns
     -------
@@ -521,33 +593,15 @@ def electrostatic_solution(
     >>> round(sol.capacitance_f * 1e12, 0), round(sol.effective_height_m, 1)
     (68.0, 4.9)
     """
-    if len(segments) == 0:
-        raise ModelInputError("no segments to solve")
-    if not np.any(segments.aerial):
-        raise ModelInputError("the segment set has no aerial (ungrounded) segment")
-    for name, v in (("target_unknowns", target_unknowns), ("min_subsegments", min_subsegments)):
-        if int(v) < 1:
-            raise ModelInputError(f"{name} must be at least 1; got {v!r}")
-    if not (0 < max_subsegment_fraction <= 1):
-        raise ModelInputError(f"max_subsegment_fraction must lie in (0, 1]; got {max_subsegment_fraction!r}")
-    if not (min_length_to_radius > 0):
-        raise ModelInputError(f"min_length_to_radius must be positive; got {min_length_to_radius!r}")
-    if not (0 < tolerance < 1):
-        raise ModelInputError(f"tolerance must lie in (0, 1); got {tolerance!r}")
-    lengths = segments.length
-    if np.any(lengths <= 0):
-        raise ModelInputError("every segment must have a positive length")
-    if ground_plane and np.any(np.minimum(segments.start[:, 2], segments.end[:, 2]) < 0):
-        raise ModelInputError("segments must lie on or above the ground plane z = 0")
-
-    def counts_for(target):
-        n = np.ceil(lengths / (float(np.sum(lengths)) / target)).astype(int)
-        n = np.maximum(n, int(min_subsegments))
-        n = np.maximum(n, int(np.ceil(1.0 / max_subsegment_fraction - 1e-9)))
-        n_max = np.maximum(np.floor(lengths / (min_length_to_radius * segments.radius)).astype(int), 1)
-        return np.minimum(n, n_max)
-
-    counts = counts_for(int(target_unknowns))
+    _check_options(segments, target_unknowns, min_subsegments, max_subsegment_fraction, min_length_to_radius,
+                   tolerance, ground_plane)
+    if wall is not None:
+        p0, n = (np.asarray(v, dtype=float) for v in wall)
+        ends = np.concatenate([segments.start, segments.end]) - p0
+        if np.any(ends @ n < -1e-6):
+            raise ModelInputError("every segment must lie in front of the wall plane (on the side its normal points to)")
+    counts = _subdivision_counts(segments, int(target_unknowns), min_subsegments, max_subsegment_fraction,
+                                 min_length_to_radius)
     if int(np.sum(counts)) > max_unknowns:
         raise ModelInputError(
             f"the subdivision needs {int(np.sum(counts))} unknowns, above max_unknowns = {max_unknowns}; "
@@ -557,9 +611,8 @@ def electrostatic_solution(
     rad = segments.radius[parent]
     gnd = segments.grounded[parent]
     # an earth side that never reaches the ground plane is a counterpoise: it floats
-    floating = bool(np.any(segments.grounded)) and not bool(
-        np.any(segments.grounded & (np.minimum(segments.start[:, 2], segments.end[:, 2]) <= GROUND_CONTACT_M)))
-    q, mid, v_cp = _solve(start, end, rad, gnd, ground_plane, floating)
+    floating = bool(np.any(segments.grounded)) and not _earth_touches(segments, wall)
+    q, mid, v_cp = _solve(start, end, rad, gnd, ground_plane, floating, wall)
     aerial_q = float(np.sum(q[~gnd]))
     h_e = float(np.sum(q * mid[:, 2]) / aerial_q)
     capacitance = aerial_q / (1.0 - v_cp)
@@ -570,7 +623,7 @@ def electrostatic_solution(
         rel = 0.0
     else:
         s2, e2, p2 = _subdivide(segments, coarse)
-        q2, _, v2 = _solve(s2, e2, segments.radius[p2], segments.grounded[p2], ground_plane, floating)
+        q2, _, v2 = _solve(s2, e2, segments.radius[p2], segments.grounded[p2], ground_plane, floating, wall)
         c2 = float(np.sum(q2[~segments.grounded[p2]])) / (1.0 - v2)
         rel = abs(capacitance - c2) / abs(capacitance)
     return ElectrostaticSolution(

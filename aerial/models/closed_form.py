@@ -27,6 +27,7 @@ from aerial.core.constants import SPEED_OF_LIGHT
 
 from aerial.core.errors import ModelInputError
 from aerial.models import short_aerial as sa
+from aerial.models.building import MAX_HEIGHT_WAVELENGTHS, facade_static_figures
 from aerial.models.capacitance import electrostatic_solution
 from aerial.models.conductor import resistance_per_m
 from aerial.models.segments import Segments
@@ -126,7 +127,8 @@ class _LineModel:
         return {SECTION_DOWN_LEAD: _sin2_integral(th) / (k * _safe(np.sin(th)) ** 2)}
 
 
-def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEFAULT_Z0_FORM, shape=None) -> dict:
+def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEFAULT_Z0_FORM, shape=None,
+                         building=None, shielding_case: int = 1) -> dict:
     """Per-frequency capacitance, effective height, radiation resistance, reactance and conductor loss.
 
     Parameters
@@ -142,6 +144,14 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
         Tolerance runs pass the nominal wires' shape measured on the moved
         wires (:func:`aerial.models.shapes.measure_like`) so that a range
         comes from the same model as its value.
+    building : BuildingBody, optional
+        The building beside the wire (:mod:`aerial.models.building`): the
+        static capacitance and effective height then come from the wire, its
+        images in the ground and the facade, and the field shielded by the
+        building, blended by its construction's shielding fraction.
+    shielding_case : {0, 1, 2}
+        Which shielding fraction of the construction: 0 the least, 1 the
+        nominal, 2 the most.
 
     Returns
     -------
@@ -153,7 +163,10 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
         ``reactance_ohm`` [ohm]; ``conductor_loss_ohm`` [ohm] (skin-effect
         loss of the aerial and earth-lead wires referred to the feed
         current); ``reliable`` (bool per frequency); ``static_effective_height_m``
-        [m]; ``model`` (str); ``shape`` (dict); ``warnings`` (list of str).
+        [m]; ``model`` (str); ``shape`` (dict); ``warnings`` (list of str);
+        with a building also ``building`` (dict: shielding fractions, the
+        static figures in open ground, beside a perfect facade and over the
+        construction's range, the facade distance, the screened lead length).
         All per-frequency entries are numpy arrays of the input's length.
 
     Notes
@@ -223,6 +236,10 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
         )
     if c_s <= 0 or not np.isfinite(c_s):
         raise ModelInputError("the electrostatic solution gave no positive capacitance; check the wire set")
+    beside = None
+    if building is not None:
+        beside = _beside_building(segments, building, es, int(shielding_case), f, warnings)
+        c_s, he_s = beside["static_capacitance_range_f"][shielding_case], beside["static_effective_height_range_m"][shielding_case]
 
     kind = shape.kind
     total = shape.total_length_m
@@ -240,7 +257,8 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
     loss = loss + _earth_lead_loss(segments, shape, f, warnings)
     warnings.extend(_validity_warnings(shape, f, too_long, past))
     n = f.size
-    return {
+    extra = {} if beside is None else {"building": beside}
+    return extra | {
         "frequency_hz": f,
         "capacitance_f": np.asarray(cap, float),
         "static_capacitance_f": np.full(n, c_s),
@@ -264,6 +282,34 @@ _METHOD_OF_KIND = {
     "T": "top-loading angle",
     "irregular": "uniform-line equivalent",
 }
+
+
+def _beside_building(segments, building, es, case, f, warnings) -> dict:
+    """The static figures beside the building, as a JSON-ready dict; appends its caveats to ``warnings``."""
+    if case not in (0, 1, 2):
+        raise ModelInputError(f"shielding_case must be 0, 1 or 2; got {case!r}")
+    fig = facade_static_figures(segments, building, es.capacitance_f, es.effective_height_m)
+    warnings.extend(fig["notes"])
+    h_limit = MAX_HEIGHT_WAVELENGTHS * SPEED_OF_LIGHT / float(np.max(f))
+    if building.height_m > h_limit:
+        warnings.append(
+            f"the building ({building.height_m:.0f} m) is not small against the wavelength above "
+            f"{MAX_HEIGHT_WAVELENGTHS * SPEED_OF_LIGHT / building.height_m / 1e6:.3g} MHz: the quasi-static "
+            "shielding there is approximate"
+        )
+    return {
+        "construction": building.construction,
+        "shielding_ratio": list(fig["shielding"]),
+        "open_ground_static_capacitance_f": float(es.capacitance_f),
+        "open_ground_static_effective_height_m": float(es.effective_height_m),
+        "facade_static_capacitance_f": fig["facade_capacitance_f"],
+        "facade_static_effective_height_m": fig["facade_effective_height_m"],
+        "static_capacitance_range_f": list(fig["capacitance_f"]),
+        "static_effective_height_range_m": list(fig["effective_height_m"]),
+        "facade_distance_m": fig["facade_distance_m"],
+        "screened_wire_m": fig["shielded_lead_m"],
+        "height_m": float(building.height_m),
+    }
 
 
 def _checked_frequencies(frequency, z0_form):

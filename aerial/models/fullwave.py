@@ -133,6 +133,8 @@ class FullWaveResult:
         Current at each piece midpoint for 1 V at the feed. [A]
     current_ends : ndarray of complex, shape (F, P, 2)
         Current at each piece's start and end for 1 V at the feed. [A]
+    current_length : ndarray, shape (P,)
+        Length of each piece. [m]
     effective_height : ndarray of complex, shape (F,)
         Vertical current moment divided by the feed current,
         (1/I0) int I(s) s_z ds over the real wires. [m]
@@ -223,6 +225,7 @@ class FullWaveResult:
     ground: str
     model: str
     warnings: tuple = field(default=())
+    current_length: np.ndarray = field(default=None)
 
 
 
@@ -608,7 +611,7 @@ class _Sweep:
             f"{a * C0 / 2 / np.pi / 1e6:.6g}-{b * C0 / 2 / np.pi / 1e6:.6g} MHz order {o}"
             for a, b, o in self.used_tables)
         return FullWaveResult(
-            frequency=f, impedance=z_in, feed_current=self.i_feed, current_position=topo.midpoint,
+            frequency=f, impedance=z_in, feed_current=self.i_feed, current_position=topo.midpoint, current_length=topo.length,
             current_direction=topo.tangent, current=cur_mid, current_ends=self.cur_ends,
             effective_height=self.h_eff, open_circuit_voltage_per_field=self.h_eff.copy(),
             radiation_resistance=self.r_rad, conductor_loss_resistance=self.r_cond,

@@ -15,7 +15,8 @@ from aerial.outputs.terminal import detector_power_words, effective_length_words
 
 #: Top-level keys of the result the report page shows in its own sections; any other key is shown generically.
 KNOWN_KEYS = {"aerial_version", "site", "geometry", "bands", "frequencies_hz", "aerial", "earth", "ranges", "what_if",
-              "tuning", "stations", "cautions", "warnings", "pictures", "page"}
+              "tuning", "stations", "cautions", "warnings", "pictures", "page",
+              "building"}  # the building: its assumption, in words, heads the warnings
 
 #: Tuning table columns: heading, row key, unit ("" plain number, "%" a ratio, "dB").
 TUNING_COLUMNS = (("frequency", "frequency_hz", "Hz"), ("total C at resonance", "total_capacitance_f", "F"),

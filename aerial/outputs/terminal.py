@@ -312,6 +312,10 @@ def render_report(result: dict, console, units: str = "si") -> None:
     console.print(f"[bold]{escape(site['name'])}[/bold]  ({escape(site['file'])})")
     console.print(escape(_summary_line(geo, L)))
     console.print(f"model: {escape(a['model'])}")
+    building = result.get("building")
+    if building:
+        console.print(f"building: {escape(building['construction'])}, {building['height_m']:.1f} m high "
+                      f"(from the {escape('[' + building['source'] + ']')} table)")
     show(console, _geometry_table(geo, L))
 
     freqs = result["frequencies_hz"]
@@ -653,6 +657,11 @@ def render_layout(result: dict, console, units: str = "si") -> None:
     for i, c in enumerate(layouts, 1):
         if c.get("reason"):
             console.print(f"  {i}. {escape(L.text(c['reason']))}")
+    present = result.get("present_wire")
+    if present:
+        console.print(f"your present wire (as 'aerial report' figures it, the building included): h_e "
+                      f"{eng(present['effective_height_m'], 'm')}, {eng(present['capacitance_f'], 'F')}, score "
+                      f"{present['score']:.1f}")
     fw = result.get("full_wave")
     if isinstance(fw, dict) and fw.get("note"):
         console.print(f"full-wave check of the winner: {escape(L.text(fw['note']))}")

@@ -89,7 +89,7 @@ def report_figures(site, layout: dict, size, entry_xyz, frequency, floor_m: floa
 
     wires = planned_wires(site, layout, size, entry_xyz, floor_m)
     geo = resolve(planned_site(site, wires, entry_xyz, floor_m), wires=wires)
-    r = closed_form_response(geo.segments, np.atleast_1d(np.asarray(frequency, float)))
+    r = closed_form_response(geo.segments, np.atleast_1d(np.asarray(frequency, float)), building=geo.building)
     return {
         "effective_height_m": np.asarray(r["effective_height_m"], float),
         "capacitance_f": np.asarray(r["capacitance_f"], float),

@@ -39,6 +39,8 @@ from aerial.core.materials import CONDUCTORS
 from aerial.models import capacitance as cap
 from aerial.models import conductor
 from aerial.models import short_aerial as sa
+from aerial.geometry.resolve import building_of
+from aerial.models.building import facade_field_height, plan_distance
 
 #: Largest number of candidate layouts searched without ``allow_large``.
 MAX_CANDIDATES = 2_000_000
@@ -298,10 +300,14 @@ class _Context:
         e = plan.entry
         self.ex, self.ey, self.eh = float(e.x_m), float(e.y_m), float(e.height_m)
         self.floor = 0.0
-        if plan.building == "apartment" and plan.balcony is not None and plan.balcony.conductive:
+        self.body, _ = building_of(site)
+        if self.body is None and plan.building == "apartment" and plan.balcony is not None and plan.balcony.conductive:
             self.floor = plan.balcony.floor_height_m
         self.hm = np.maximum(self.h - self.floor, MIN_MODEL_HEIGHT_M)  # model heights
         self.ehm = max(self.eh - self.floor, 0.0)
+        if self.body is not None:  # the building's screened field: the same model as the report's
+            self.hm = np.maximum(screened_height(self.body, self.x, self.y, self.h), MIN_MODEL_HEIGHT_M)
+            self.ehm = float(screened_height(self.body, [self.ex], [self.ey], [self.eh])[0])
         self.dentry = np.hypot(self.x - self.ex, self.y - self.ey)
         self.objective = objective
         size = _aerial_size(site)
@@ -327,6 +333,39 @@ class _Context:
 
             self.lot = shapely.buffer(plan.lot, LOT_TOLERANCE_M, quad_segs=QUAD_SEGS)
             shapely.prepare(self.lot)
+
+
+def screened_height(body, x, y, h):
+    """Open-ground height equivalent to the screened field at plan points (x, y) and heights h. [m]
+
+    The nominal shielding of the building's construction blends the open
+    ground (h) with the field beside a perfectly conducting building
+    (:func:`aerial.models.building.facade_field_height`), as the report does.
+    """
+    x, y, h = (np.asarray(v, dtype=float) for v in (x, y, h))
+    d = plan_distance(np.stack([x, y], axis=1), body.footprint)
+    s = body.shielding[1]
+    return (1.0 - s) * h + s * facade_field_height(d, h, body.height_m)
+
+
+def present_wire(site, objective) -> dict | None:
+    """The site's own wire in the report's model (closed form with the building), or None without a building."""
+    from aerial.estimate.assemble import headline_figures
+
+    if building_of(site)[0] is None:
+        return None
+    f = np.asarray(objective["frequency_hz"], float)
+    fig = headline_figures(site, f, objective["earth_ohm"])
+    he = fig["effective_height_m"]
+    if objective["kind"] == "stations":
+        score = station_score_db(he[None, :], fig["radiation_resistance_ohm"][None, :],
+                                 fig["loss_resistance_ohm"][None, :] - objective["earth_ohm"],
+                                 objective["field_v_per_m"], objective["earth_ohm"])
+    else:
+        score = height_capacitance_score_db(he[None, :], fig["capacitance_f"][:1])
+    return {"effective_height_m": float(he[0]), "effective_height_by_frequency_m": [float(v) for v in he],
+            "capacitance_f": float(fig["capacitance_f"][0]), "score": float(score[0]),
+            "note": "your present wire, in the report's model (the building included), for comparison"}
 
 
 def _aerial_size(site):
@@ -737,6 +776,7 @@ def _result(site, plan, ctx, objective, total, tally, layouts, warnings) -> dict
         "figures_model": (f"the figures and scores of the listed layouts are the {REPORT_MODEL}; all "
                           f"{total:,} candidates were first screened with a faster model"),
         "layouts": layouts,
+        "present_wire": present_wire(site, objective),
         "apartment": apartment_notes(site, plan, objective["frequency_hz"]) if plan.building == "apartment" else [],
         "code_checklist": [],
         "picture": None,
@@ -935,7 +975,15 @@ def apartment_notes(site, plan, frequency) -> list[str]:
 
     out = []
     b = plan.balcony
-    if b is None:
+    body = building_of(site)[0]
+    if body is not None:
+        lo, nom, hi = body.shielding
+        out.append(f"Structure {body.construction} (from the site's building): taken as a grounded conductor beside "
+                   f"the wire, screening {100 * nom:.0f} % of the way from open ground to a perfect metal wall "
+                   f"({100 * lo:.0f}-{100 * hi:.0f} %). Every layout here is reckoned in the field the building leaves "
+                   "at its supports, the same model as 'aerial report'; a wire held further out from the facade "
+                   "picks up more.")
+    elif b is None:
         out.append("Structure: not described ([plan.balcony] is missing), so heights are taken above the street. "
                    "In a reinforced-concrete or steel-framed building that is optimistic: the figure may be far lower.")
     elif b.conductive:

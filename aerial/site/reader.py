@@ -571,7 +571,7 @@ def load_site_text(text: str, path: str = "<text>") -> Site:
 
 
 TOP_KEYS = {
-    "site", "soil", "wire", "supports", "spans", "runs", "lead_in", "receiver", "earth", "stations", "plan",
+    "site", "soil", "wire", "supports", "spans", "runs", "lead_in", "receiver", "earth", "stations", "plan", "building",
 }
 
 

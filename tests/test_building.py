@@ -1,0 +1,133 @@
+"""The building in the site file, through the command line: report, layout, what-if, bad input.
+
+Sites are the invented examples in site_examples/ and small invented inputs (input handling and
+consistency checks between aerial's own commands, named so).
+"""
+
+import json
+import math
+
+from aerial.cli import main
+
+from .conftest import ROOT
+
+HIGH = ROOT / "site_examples" / "high_floor_flat.toml"
+BALCONY = ROOT / "site_examples" / "balcony_water_pipe.toml"
+BACKYARD = ROOT / "site_examples" / "backyard_inverted_l.toml"
+
+
+def run(capsys, *argv):
+    code = main(list(argv))
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+def test_report_states_the_building_assumption_in_plain_words(capsys):
+    code, out, err = run(capsys, "report", str(HIGH))
+    assert code == 0, err
+    flat = " ".join(out.split())
+    assert "The building is taken as a grounded conductor" in flat
+    assert "earth, not aerial" in flat
+    assert "licensed electrician" in flat
+    code, out, err = run(capsys, "report", "--json", str(HIGH))
+    changes = {row["change"]: row["power_change_db"] for row in json.loads(out)["what_if"]}
+    held_out = [v for k, v in changes.items() if k.startswith("hold the wire 2 m further out from the facade")]
+    assert held_out and held_out[0] > 3.0  # consistency check: away from the screen the wire picks up more
+    assert any(k.startswith("a counterpoise wire along the balcony floor") for k in changes)
+
+
+def test_report_json_carries_the_building_and_its_range(capsys):
+    code, out, err = run(capsys, "report", "--json", str(HIGH))
+    assert code == 0, err
+    r = json.loads(out)
+    b = r["building"]
+    lo_shield, nominal, hi_shield = b["static_effective_height_range_m"]
+    assert hi_shield <= nominal <= lo_shield
+    # consistency check: the steel-framed block takes 15-30 dB off the open-ground figure
+    loss_db = 20 * math.log10(b["open_ground_static_effective_height_m"] / nominal)
+    assert 15.0 < loss_db < 30.0
+    lo, hi = r["ranges"]["effective_height_m"][1]
+    assert lo <= r["aerial"]["effective_height_m"][0] * 1.5 and hi >= hi_shield * 0.9
+
+
+def test_layout_and_report_agree_on_the_present_wire(capsys):
+    # consistency check between aerial's own commands: the same model, within 0.5 dB
+    code, out, err = run(capsys, "report", "--json", str(BALCONY))
+    assert code == 0, err
+    report = json.loads(out)
+    code, out, err = run(capsys, "layout", "--json", str(BALCONY))
+    assert code == 0, err
+    layout = json.loads(out)
+    f = layout["ranking_frequencies_hz"][0]
+    freqs = report["frequencies_hz"]
+    i = min(range(len(freqs)), key=lambda k: abs(freqs[k] - f))
+    he_report = report["aerial"]["effective_height_m"][i]
+    he_layout = layout["present_wire"]["effective_height_m"]
+    assert abs(20 * math.log10(he_layout / he_report)) < 0.5
+    code, out, err = run(capsys, "layout", str(BALCONY))
+    assert "your present wire" in " ".join(out.split())
+
+
+def test_timber_house_moves_the_backyard_figures_only_within_its_range(capsys):
+    code, out, err = run(capsys, "report", "--json", str(BACKYARD))
+    assert code == 0, err
+    b = json.loads(out)["building"]
+    open_he = b["open_ground_static_effective_height_m"]
+    least, nominal, most = b["static_effective_height_range_m"]
+    assert least == open_he and most <= nominal <= least
+    assert abs(20 * math.log10(nominal / open_he)) < 0.5
+
+
+def test_a_rail_wire_without_a_building_says_it_is_open_ground(capsys, tmp_path):
+    text = BACKYARD.read_text(encoding="utf-8")
+    start = text.index("[building]")
+    end = text.index("[[earth.rods]]")
+    p = tmp_path / "no_building.toml"
+    p.write_text(text[:start] + text[end:], encoding="utf-8")
+    code, out, err = run(capsys, "report", str(p))
+    assert code == 0, err
+    assert "modelled as a wire over open ground" in " ".join(out.split())
+
+
+def test_bad_construction_is_one_clear_line(capsys, tmp_path):
+    p = tmp_path / "bad.toml"
+    p.write_text(HIGH.read_text(encoding="utf-8").replace('construction = "steel frame"', 'construction = "straw"'),
+                 encoding="utf-8")
+    code, out, err = run(capsys, "report", str(p))
+    assert code == 2
+    assert "building.construction" in err and "straw" in err and "Traceback" not in err
+    assert len(err.strip().splitlines()) == 1
+
+
+def test_building_around_the_whole_wire_is_refused(capsys, tmp_path):
+    p = tmp_path / "inside.toml"
+    text = HIGH.read_text(encoding="utf-8").replace(
+        "footprint = [[-6.0, -12.0], [18.0, -12.0], [18.0, 0.0], [-6.0, 0.0]]",
+        "footprint = [[-6.0, -12.0], [18.0, -12.0], [18.0, 5.0], [-6.0, 5.0]]")
+    p.write_text(text, encoding="utf-8")
+    code, out, err = run(capsys, "report", str(p))
+    assert code == 2
+    assert "building.footprint" in err and "Traceback" not in err
+
+
+def test_full_wave_with_the_building_agrees_with_the_closed_form(capsys, tmp_path):
+    # Consistency check (closed form against the method-of-moments wire grid, within 3 dB). Slow-ish (a few
+    # seconds): it is the only test that solves the building grid, on two frequencies.
+    p = tmp_path / "balcony_mf.toml"
+    text = BALCONY.read_text(encoding="utf-8").replace('bands = ["mf", "lf"]', 'bands = ["mf"]')
+    text = text.replace("footprint = [[-10.0, -12.0], [20.0, -12.0], [20.0, 0.0], [-10.0, 0.0]]",
+                        "footprint = [[-3.0, -8.0], [9.0, -8.0], [9.0, 0.0], [-3.0, 0.0]]")  # a smaller block: quicker
+    p.write_text(text.replace('height = "15 m"', 'height = "12 m"'), encoding="utf-8")
+    code, out, err = run(capsys, "report", "--json", "--step", "1 MHz", str(p))
+    assert code == 0, err
+    closed = json.loads(out)
+    code, out, err = run(capsys, "report", "--json", "--full-wave", "--step", "1 MHz", str(p))
+    assert code == 0, err
+    full = json.loads(out)
+    for a, b in zip(closed["aerial"]["effective_height_m"], full["aerial"]["effective_height_m"]):
+        assert abs(20 * math.log10(b / a)) < 3.0
+    grid = full["aerial"]["building_full_wave"]
+    assert grid["grid_wires"] > 100 and grid["unknowns"] > grid["grid_wires"]
+    worst, best = grid["grid_worst_effective_height_m"][0], grid["grid_best_effective_height_m"][0]
+    assert 0 < worst <= best
+    assert "grounded conductor" in " ".join(full["warnings"])
