@@ -108,7 +108,8 @@ def test_closed_form_with_the_building_far_away_is_the_open_ground_figure():
     open_ = closed_form_response(s, f)
     # the riser and lead-in are not inside this far building, so the wire set is the same
     beside = closed_form_response(s, f, building=BuildingBody(far, 18.0, "steel frame"))
-    assert np.allclose(beside["effective_height_m"], open_["effective_height_m"], rtol=2e-3)
+    # 0.5 %: the facade solution uses half the open-ground solution's unknowns (FACADE_TARGET_UNKNOWNS)
+    assert np.allclose(beside["effective_height_m"], open_["effective_height_m"], rtol=5e-3)
     assert "building" in beside and "building" not in open_
 
 
