@@ -441,7 +441,8 @@ def what_if(site, frequency: float, earth: dict) -> list[dict]:
     rows.append((f"add {WHAT_IF_EXTEND_M:g} m to the far end", _headline(site, _perturbed_wires(site, extend_m=WHAT_IF_EXTEND_M), frequency, r_earth)))
     better = earth_mod.improved_earth(site.electrodes, site.soil, frequency)
     rows.append((better["description"], _headline(site, site.wires, frequency, better["resistance_ohm"])))
-    rows += _building_moves(site, frequency, earth)
+    radials_row = len(rows) - 1
+    rows += _building_moves(site, frequency, r_earth)
     out = []
     p0 = float(base["available_power_w"][0])
     for label, h in rows:
@@ -458,8 +459,8 @@ def what_if(site, frequency: float, earth: dict) -> list[dict]:
             "model": "closed form",
         })
     if better.get("note"):
-        out[-1]["note"] = better["note"]
-        out[-1]["effective_length_m"] = better["effective_length_m"]
+        out[radials_row]["note"] = better["note"]
+        out[radials_row]["effective_length_m"] = better["effective_length_m"]
     return out
 
 
@@ -487,7 +488,7 @@ def ranges_at_band_points(site, freqs, resp, earth, pts, *, method, ground, allo
     }
 
 
-def _building_moves(site, frequency, earth) -> list:
+def _building_moves(site, frequency, earth_ohm: float) -> list:
     """What-if rows for a wire on a building: held out from the facade, a counterpoise instead of the riser."""
     from aerial.geometry.resolve import building_of
     from aerial.models.building import nearest_facade, plan_distance
@@ -515,8 +516,8 @@ def _building_moves(site, frequency, earth) -> list:
             w = replace(w, points_m=p)
         moved.append(w)
     try:
-        rows.append((f"hold the wire {WHAT_IF_STAND_OFF_M:g} m further out from the facade (poles clamped to the rail)",
-                     _headline(site, moved, frequency, earth["resistance_ohm"])))
+        rows.append((f"hold the wire {WHAT_IF_STAND_OFF_M:g} m further out (poles on the rail)",
+                     _headline(site, moved, frequency, earth_ohm)))
     except ModelInputError:
         pass
     counterpoise = _rail_counterpoise(site)
@@ -526,7 +527,7 @@ def _building_moves(site, frequency, earth) -> list:
         wires = [w for w in site.wires if w.role not in EARTH_ROLES] + [counterpoise]
         cp_ohm = earth_mod.earth_system([], site.soil, [counterpoise], path=site.path)["resistance_ohm"]
         try:
-            rows.append(("a counterpoise wire along the balcony floor instead of the riser earth",
+            rows.append(("a counterpoise along the balcony, not the riser",
                          _headline(site, wires, frequency, cp_ohm)))
         except ModelInputError:
             pass
