@@ -314,7 +314,7 @@ def render_report(result: dict, console, units: str = "si") -> None:
     console.print(f"model: {escape(a['model'])}")
     building = result.get("building")
     if building:
-        console.print(f"building: {escape(building['construction'])}, {building['height_m']:.1f} m high "
+        console.print(f"building: {escape(building['construction'])}, {L.plain(building['height_m'])} {L.unit} high "
                       f"(from the {escape('[' + building['source'] + ']')} table)")
     show(console, _geometry_table(geo, L))
 
@@ -659,9 +659,9 @@ def render_layout(result: dict, console, units: str = "si") -> None:
             console.print(f"  {i}. {escape(L.text(c['reason']))}")
     present = result.get("present_wire")
     if present:
-        console.print(f"your present wire (as 'aerial report' figures it, the building included): h_e "
-                      f"{eng(present['effective_height_m'], 'm')}, {eng(present['capacitance_f'], 'F')}, score "
-                      f"{present['score']:.1f}")
+        console.print(escape(L.text(f"your present wire (as 'aerial report' figures it, the building included): h_e "
+                                    f"{present['effective_height_m']:.2f} m, {eng(present['capacitance_f'], 'F')}, "
+                                    f"score {present['score']:.1f}")))
     fw = result.get("full_wave")
     if isinstance(fw, dict) and fw.get("note"):
         console.print(f"full-wave check of the winner: {escape(L.text(fw['note']))}")
