@@ -304,6 +304,13 @@ def render_check(summary: dict, console, units: str = "si") -> None:
     console.print("[green]The site file is valid.[/green]")
 
 
+def _building_line(building, console, L) -> None:
+    """One line naming the building the wire hangs on, when the site describes one."""
+    if building:
+        console.print(f"building: {escape(building['construction'])}, {L.plain(building['height_m'])} {L.unit} high "
+                      f"(from the {escape('[' + building['source'] + ']')} table)")
+
+
 def render_report(result: dict, console, units: str = "si") -> None:
     L = Lengths(units)
     site = result["site"]
@@ -312,10 +319,7 @@ def render_report(result: dict, console, units: str = "si") -> None:
     console.print(f"[bold]{escape(site['name'])}[/bold]  ({escape(site['file'])})")
     console.print(escape(_summary_line(geo, L)))
     console.print(f"model: {escape(a['model'])}")
-    building = result.get("building")
-    if building:
-        console.print(f"building: {escape(building['construction'])}, {L.plain(building['height_m'])} {L.unit} high "
-                      f"(from the {escape('[' + building['source'] + ']')} table)")
+    _building_line(result.get("building"), console, L)
     show(console, _geometry_table(geo, L))
 
     freqs = result["frequencies_hz"]
