@@ -716,7 +716,8 @@ def _range_notes(site, range_method) -> list:
         ]
     return [
         "Ranges move every support by its height tolerance, the soil between its bounds and the building's screening "
-        f"between its construction's bounds, by the same model as the value ({range_method}).",
+        f"between its construction's bounds, by the same model as the value ({range_method}, earth electrodes as "
+        "lossy lines).",
         "Other buildings, trees and wiring are not modelled; measured aerial capacitance can differ from any "
         "formula by a large factor. A bench measurement ([receiver.measured]) replaces the estimate.",
     ]
