@@ -706,21 +706,17 @@ def _open_ground_warnings(site, geometry) -> list:
 def _range_notes(site, range_method) -> list:
     from aerial.geometry.resolve import building_of
 
-    if building_of(site)[0] is None:
-        return [
-            "Ranges move every support by its height tolerance and the soil between its category's bounds, by the "
-            f"same model as the value ({range_method}, earth electrodes as lossy lines); each range holds the value "
-            "and both tolerance runs.",
-            "Nearby buildings, trees and wiring are not modelled; measured aerial capacitance can differ from any "
-            "formula by a large factor. A bench measurement ([receiver.measured]) replaces the estimate.",
-        ]
-    return [
-        "Ranges move every support by its height tolerance, the soil between its bounds and the building's screening "
-        f"between its construction's bounds, by the same model as the value ({range_method}, earth electrodes as "
-        "lossy lines).",
-        "Other buildings, trees and wiring are not modelled; measured aerial capacitance can differ from any "
+    notes = [
+        "Ranges move every support by its height tolerance and the soil between its category's bounds, by the "
+        f"same model as the value ({range_method}, earth electrodes as lossy lines); each range holds the value "
+        "and both tolerance runs.",
+        "Nearby buildings, trees and wiring are not modelled; measured aerial capacitance can differ from any "
         "formula by a large factor. A bench measurement ([receiver.measured]) replaces the estimate.",
     ]
+    if building_of(site)[0] is not None:
+        notes[1] = notes[1].replace("Nearby buildings", "Other buildings")
+        notes.insert(1, "The building's screening moves between its construction's bounds as well.")
+    return notes
 
 
 #: What each construction does, in words a flat-dweller understands.
