@@ -11,7 +11,7 @@ import numpy as np
 from aerial.outputs import charts, site_drawings
 from aerial.outputs.page import (VERDICT_CLASS, VERDICT_MARK, bullets, dict_rows_table, document, esc, figure,
                                  format_value, generic_block, key_label, range_text, section, site_file_name, table)
-from aerial.outputs.terminal import detector_power_words, effective_length_words, eng, tuning_cell_words
+from aerial.outputs.terminal import detector_power_words, effective_length_words, eng, tuning_cell_text
 
 #: Top-level keys of the result the report page shows in its own sections; any other key is shown generically.
 KNOWN_KEYS = {"aerial_version", "site", "geometry", "bands", "frequencies_hz", "aerial", "earth", "ranges", "what_if",
@@ -248,25 +248,7 @@ def _tuning_table(tuning) -> str:
     out = []
     for k in np.unique(np.linspace(0, len(rows) - 1, min(len(rows), 7)).round().astype(int)):
         r = rows[int(k)]
-        cells = []
-        for _, key, unit in columns:
-            v = r.get(key)
-            special = tuning_cell_words(r, key)
-            if special is not None:
-                cells.append(special)
-            elif v is None:
-                cells.append("—")
-            elif unit == "dB":
-                cells.append(f"{v:.1f} dB")
-            elif unit == "%":
-                cells.append(f"{100 * v:.0f} %")
-            elif unit == "":
-                cells.append(f"{v:.3g}")
-            else:
-                text = eng(v, unit)
-                if key == "capacitor_setting_f" and not r.get("within_capacitor_range", True):
-                    text += " (out of range)"
-                cells.append(text)
+        cells = [tuning_cell_text(r, key, unit) for _, key, unit in columns]
         out.append(cells)
     html = table([c[0] for c in columns], out, "Tuning across the band (selected frequencies)", "wide")
     stuck = next((r for r in rows if r.get("resonates_with_positive_capacitor") is False), None)

@@ -471,18 +471,7 @@ def _render_tuning(tuning, console, L: Lengths) -> None:
         for k in idx:
             r = rows[int(k)]
             cells = []
-            for _, key, unit in cols:
-                v = r.get(key)
-                special = tuning_cell_words(r, key)
-                if special is not None:
-                    cells.append(special)
-                elif v is None:
-                    cells.append("—")
-                elif unit == "dB":
-                    cells.append(f"{v:.1f} dB")
-                else:
-                    cells.append(_tuning_cell(r, key, unit, v))
-            t.add_row(*cells)
+            t.add_row(*[tuning_cell_text(r, key, unit) for _, key, unit in cols])
         show(console, t)
         stuck = next((r for r in rows if r.get("resonates_with_positive_capacitor") is False), None)
         if stuck is not None:
@@ -496,6 +485,23 @@ def _render_tuning(tuning, console, L: Lengths) -> None:
         console.print(f"  → {escape(L.text(line))}")
     for line in tuning.get("notes", []):
         console.print(f"[dim]{escape(L.text(line))}[/dim]")
+
+
+def tuning_cell_text(row: dict, key: str, unit: str) -> str:
+    """The text of one tuning-table cell, the same in the terminal report and on the shared page.
+
+    Words where a figure would mislead (:func:`tuning_cell_words`), "—" for a missing figure,
+    rejections in dB, the rest through :func:`_tuning_cell`.
+    """
+    special = tuning_cell_words(row, key)
+    if special is not None:
+        return special
+    v = row.get(key)
+    if v is None:
+        return "—"
+    if unit == "dB":
+        return f"{v:.1f} dB"
+    return _tuning_cell(row, key, unit, v)
 
 
 def _tuning_cell(r: dict, key: str, unit: str, v: float) -> str:
