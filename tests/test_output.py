@@ -220,3 +220,11 @@ def test_effective_length_is_a_length_for_wires_and_words_for_a_rod():
     assert effective_length_words({"kind": "rods", "effective_length_m": 2.0, "length_m": 2.44}, metres) == \
         "a longer rod would not help here"
     assert effective_length_words({"kind": "building_earth", "effective_length_m": None}, metres) == "—"
+
+
+def test_summary_names_counterpoise_wires_as_counterpoise_not_earth_lead(capsys):
+    # two 8 m counterpoise wires and no earth lead: the summary must not call them "earth lead 16 m"
+    code, out, _ = run(capsys, "report", EXAMPLES + "portable_vertical_counterpoise.toml", "--quiet")
+    assert code == 0
+    head = " ".join(out.splitlines()[:3])
+    assert "counterpoise 2 ×" in head and "earth lead" not in head

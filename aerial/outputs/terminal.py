@@ -266,7 +266,16 @@ def _summary_line(geo: dict, L: Lengths) -> str:
         f"mean height {L(geo['mean_height_m'])}",
         f"receiver terminals at ({feed}) {L.unit}",
     ]
-    if geo.get("earth_lead_length_m"):
+    wires = geo.get("wires") or []
+    if wires:
+        lead = sum(w.get("length_m", 0.0) for w in wires if w.get("role") == "earth lead")
+        counterpoise = [w.get("length_m", 0.0) for w in wires if w.get("role") == "counterpoise"]
+        if lead:
+            parts.append(f"earth lead {L(lead)}")
+        if counterpoise:
+            parts.append(f"counterpoise {len(counterpoise)} × {L(max(counterpoise))}" if len(counterpoise) > 1
+                         else f"counterpoise {L(counterpoise[0])}")
+    elif geo.get("earth_lead_length_m"):
         parts.append(f"earth lead {L(geo['earth_lead_length_m'])}")
     shape = geo.get("shape")
     if isinstance(shape, dict):
