@@ -37,3 +37,19 @@ def write_site(tmp_path):
         return p
 
     return _write
+
+
+def run(capsys, *argv):
+    """Run the command line in-process; return (exit code, stdout, stderr). Arguments may be paths."""
+    from aerial.cli import main
+
+    code = main([str(a) for a in argv])
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+def one_line(err: str) -> str:
+    """Assert that stderr is exactly one line and no traceback; return that line without its newline."""
+    assert err.endswith("\n") and err.count("\n") == 1, repr(err)
+    assert "Traceback" not in err
+    return err.rstrip("\n")

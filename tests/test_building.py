@@ -7,19 +7,12 @@ consistency checks between aerial's own commands, named so).
 import json
 import math
 
-from aerial.cli import main
 
-from .conftest import ROOT
+from .conftest import ROOT, run
 
 HIGH = ROOT / "site_examples" / "high_floor_flat.toml"
 BALCONY = ROOT / "site_examples" / "balcony_water_pipe.toml"
 BACKYARD = ROOT / "site_examples" / "backyard_inverted_l.toml"
-
-
-def run(capsys, *argv):
-    code = main(list(argv))
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def test_report_states_the_building_assumption_in_plain_words(capsys):

@@ -12,18 +12,12 @@ import pytest
 from aerial.cli import main
 from aerial.estimate.reception import VERDICTS
 
-from .conftest import EXAMPLES, MINIMAL
+from .conftest import EXAMPLES, MINIMAL, run
 
 REQUIRED_AERIAL_KEYS = (
     "capacitance_f", "effective_height_m", "radiation_resistance_ohm", "impedance_ohm",
     "conductor_loss_ohm", "ground_loss_ohm", "efficiency", "model",
 )
-
-
-def run(capsys, *argv):
-    code = main(list(argv))
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 @pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.name)

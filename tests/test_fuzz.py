@@ -18,9 +18,8 @@ import tomllib
 
 import pytest
 
-from aerial.cli import main
 
-from .conftest import EXAMPLES, MINIMAL, ROOT
+from .conftest import EXAMPLES, MINIMAL, ROOT, one_line, run
 from .fuzzlib import load
 
 fz = load()
@@ -28,18 +27,6 @@ fz = load()
 #: Seeded cases run in CI (the full run is benchmarks/fuzz_sites.py --count 10000 --seed 1).
 CI_CASES = 60
 CI_SEED = 7
-
-
-def run(capsys, *argv):
-    code = main(list(argv))
-    out, err = capsys.readouterr()
-    return code, out, err
-
-
-def one_line(err: str) -> str:
-    assert err.endswith("\n") and err.count("\n") == 1, repr(err)
-    assert "Traceback" not in err
-    return err.rstrip("\n")
 
 
 # --------------------------------------------------------------------------- the harness itself

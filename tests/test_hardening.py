@@ -16,21 +16,9 @@ import pytest
 import aerial.outputs.files
 from aerial.cli import EXIT_USER, main
 
-from .conftest import MINIMAL, ROOT
+from .conftest import MINIMAL, ROOT, one_line, run
 
 EXAMPLES = ROOT / "site_examples"
-
-
-def run(capsys, *argv):
-    code = main(list(argv))
-    out, err = capsys.readouterr()
-    return code, out, err
-
-
-def one_line(err: str) -> str:
-    assert err.endswith("\n") and err.count("\n") == 1, repr(err)
-    assert "Traceback" not in err
-    return err
 
 
 # --------------------------------------------------------------------------- units and numbers
@@ -295,7 +283,7 @@ def test_full_standard_output(monkeypatch, capsys):
     code = main(["report", "--json"])
     err = capsys.readouterr().err
     assert code == EXIT_USER
-    assert one_line(err) == "aerial: cannot write the output (no space left on the device)\n"
+    assert one_line(err) == "aerial: cannot write the output (no space left on the device)"
 
 
 # --------------------------------------------------------------------------- small ones

@@ -10,16 +10,11 @@ import json
 import pytest
 
 from aerial import cli
-from aerial.cli import main
 from aerial.outputs.terminal import Lengths, eng
 
+from .conftest import run
+
 EXAMPLES = "site_examples/"
-
-
-def run(capsys, *argv):
-    code = main(list(argv))
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def report_json(capsys, *argv):

@@ -14,10 +14,9 @@ import xml.etree.ElementTree as ET
 
 import pytest
 
-from aerial.cli import main
 from aerial.outputs.terminal import eng
 
-from .conftest import EXAMPLES, MINIMAL
+from .conftest import EXAMPLES, MINIMAL, run
 
 SUBURBAN = next(p for p in EXAMPLES if p.name == "suburban_lot_service_line.toml")
 
@@ -42,12 +41,6 @@ REPORT_SECTIONS = ("summary", "headline", "drawings", "aerial", "earth", "what-i
 #: Pictures every report page of a site with stations carries (figure ids).
 REPORT_PICTURES = ("plan-view", "side-elevation", "impedance", "capacitance", "tuning-range", "station-tuning",
                    "station-power")
-
-
-def run(capsys, *argv):
-    code = main([str(a) for a in argv])
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 @pytest.fixture(scope="module")

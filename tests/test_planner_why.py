@@ -12,19 +12,12 @@ import xml.etree.ElementTree as ET
 
 import pytest
 
-from aerial.cli import main
 from aerial.planner.search import plan_layouts
 from aerial.site.reader import load_site, load_site_text
 
-from .conftest import ROOT
+from .conftest import ROOT, run
 
 EXAMPLE = ROOT / "site_examples" / "suburban_lot_service_line.toml"
-
-
-def run(capsys, *argv):
-    code = main([str(a) for a in argv])
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 @pytest.fixture(scope="module")

@@ -14,10 +14,9 @@ from pathlib import Path
 import pytest
 
 from aerial.outputs import files
-from aerial.cli import main
 from aerial.core.errors import AerialError
 
-from .conftest import EXAMPLES, ROOT
+from .conftest import EXAMPLES, ROOT, run
 
 LOT = ROOT / "site_examples" / "suburban_lot_service_line.toml"
 BACKYARD = ROOT / "site_examples" / "backyard_inverted_l.toml"
@@ -40,12 +39,6 @@ def examples_untouched():
     yield
     after = {p.name: hashlib.sha256(p.read_bytes()).hexdigest() for p in EXAMPLES}
     assert after == before
-
-
-def run(capsys, *argv):
-    code = main([str(a) for a in argv])
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def no_temporaries(folder: Path):
