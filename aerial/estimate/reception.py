@@ -18,11 +18,13 @@ Assumptions (stated, not published figures) are module constants below.
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 
 import numpy as np
 
 from aerial.core.errors import ModelInputError
+from aerial.models import atmospheric_noise as atm_mod
 from aerial.models import coil as coil_mod
 from aerial.models.coil import CoilWinding
 from aerial.models import detector as det_mod
@@ -1030,15 +1032,12 @@ def _threshold_voltage(tap, diode, load, power=AUDIBLE_POWER_W, refine=40):
     Depends only on the detector, its tap and load, so it is worked out once per set of those
     (the day and the night assessments share it).
     """
-    key = (float(tap), diode, float(load), float(power), int(refine))
-    if key not in _THRESHOLD_CACHE:
-        if len(_THRESHOLD_CACHE) > 256:
-            _THRESHOLD_CACHE.clear()
-        _THRESHOLD_CACHE[key] = _threshold_voltage_uncached(tap, diode, load, power, refine)
-    return _THRESHOLD_CACHE[key]
+    return _threshold_voltage_cached(float(tap), diode, float(load), float(power), int(refine))
 
 
-_THRESHOLD_CACHE: dict = {}
+@functools.lru_cache(maxsize=256)
+def _threshold_voltage_cached(tap, diode, load, power, refine):
+    return _threshold_voltage_uncached(tap, diode, load, power, refine)
 
 
 def _threshold_voltage_uncached(tap, diode, load, power, refine):
@@ -1180,7 +1179,7 @@ def _station_arrays(aerial, coil, parts, diode, stations, noise_category, modula
     audio = det_mod.audio_output(np.sqrt(2.0) * v_det, diode, load, modulation_depth)
     fam = noise_mod.man_made_noise_figure(fs, noise_category)
     atm = np.array([-np.inf if s.atmospheric_noise_db is None else float(s.atmospheric_noise_db) for s in stations])
-    fam_total = 10.0 * np.log10(10.0 ** (fam.noise_figure_db / 10.0) + 10.0 ** (atm / 10.0))
+    fam_total, _ = atm_mod.combine_noise_figures(fam.noise_figure_db, atm)
     en = noise_mod.v_per_m_from_dbuv_per_m(noise_mod.noise_field_dbuv_per_m(fam_total, fs, lv.bandwidth))
     return {
         "fs": fs, "gw": gw, "he": he, "r_a": r_a, "rr": aerial.radiation_resistance(fs), "v_oc": v_oc,
