@@ -338,3 +338,18 @@ def test_a_measured_bandwidth_is_checked_against_the_solve(write_site, capsys):
     assert check["solved_bandwidth_hz"] == pytest.approx(45e3, rel=0.2)
     assert main(["report", str(p)]) == 0
     assert "bench check at 700 kHz" in capsys.readouterr().out.replace("\n", " ")
+
+
+def test_coil_helper_and_report_give_the_coils_self_capacitance(write_site, capsys):
+    code, out, err = run(capsys, "coil", "--diameter", "100 mm", "--wire", "20 AWG", "--turns", "123")
+    assert code == 0, err
+    # 123 close-wound turns of 20 AWG (0.812 mm) make l ≈ 100 mm on a 100.8 mm winding: l/D ≈ 0.99, where
+    # Medhurst's table (Wireless Engineer 1947, from memory) gives H = 0.46 pF/cm: about 4.6 pF
+    assert "self-capacitance (Medhurst)" in out and "4.6" in out
+    p = write_site(CROWDED.replace('coil = "230 uH"', 'coil = { diameter = "60 mm", turns = 70, gauge = "24 AWG", length = "45 mm" }'))
+    code, out, err = run(capsys, "report", str(p), "--json")
+    assert code == 0, err
+    coil = json.loads(out)["tuning"]["coil"]
+    assert 2.5e-12 < coil["self_capacitance_f"] < 3.2e-12 and coil["self_resonance_hz"] > 4e6
+    code, out, err = run(capsys, "report", str(p))
+    assert "self-capacitance" in out and "Medhurst" in out

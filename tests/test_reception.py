@@ -339,3 +339,25 @@ def test_bench_bandwidth_is_checked_against_the_network_solve():
     assert check["model_aerial_resistance_ohm"] == pytest.approx(30.0)
     assert abs(check["model_loss_error_ratio"]) < 0.15
     assert any("bench check" in n for n in out["notes"])
+
+
+# ---------------------------------------------------------------- the coil's self-capacitance
+
+def test_consistency_check_the_coils_self_capacitance_takes_its_share_of_the_tuning():
+    """Consistency check: with a wound coil the capacitor needs exactly the coil's Medhurst self-capacitance
+    less than with the same inductance given bare (the two sit in parallel across the tank)."""
+    w = CoilWinding(form_diameter_m=0.06, wire_diameter_m=0.5e-3, turns=70, winding_length_m=0.045)
+    wound = design_tuning(*capacitive_aerial(150e-12), TuningParts("direct", coil=w, coil_unloaded_q=150.0),
+                          band=(530e3, 1700e3))
+    c_self = wound["coil"]["self_capacitance_f"]
+    # Medhurst 1947 (from memory): l/D = 45/60.5 = 0.74 lies between 0.70 (H = 0.47) and 0.80 (0.46) pF/cm
+    assert c_self * 1e12 == pytest.approx(6.05 * 0.47, rel=0.02)
+    bare = design_tuning(*capacitive_aerial(150e-12),
+                         TuningParts("direct", coil_inductance_h=wound["coil"]["inductance_h"], coil_unloaded_q=150.0),
+                         band=(530e3, 1700e3))
+    assert "self_capacitance_f" not in bare["coil"]
+    for a, b in zip(wound["rows"], bare["rows"]):
+        if a["tunable"] and b["tunable"]:
+            assert b["capacitor_setting_f"] - a["capacitor_setting_f"] == pytest.approx(c_self, rel=2e-3)
+    assert wound["coil"]["self_resonance_hz"] == pytest.approx(
+        1 / (TWO_PI * np.sqrt(wound["coil"]["inductance_h"] * c_self)), rel=1e-9)

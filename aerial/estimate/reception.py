@@ -266,12 +266,13 @@ class _Aerial:
 
 
 class _Coil:
-    def __init__(self, inductance, q_fun, info, notes, block=None):
+    def __init__(self, inductance, q_fun, info, notes, block=None, self_capacitance=0.0):
         self.inductance = float(inductance)
         self.q = q_fun
         self.info = info
         self.notes = notes
         self.block = block  # F(x): inductance of a block of a fraction x of the turns [H]; None: tight
+        self.self_capacitance = float(self_capacitance)  # across the winding (Medhurst) [F]; 0 when not known
 
     def resistance(self, f):
         return 2.0 * np.pi * np.asarray(f, dtype=float) * self.inductance / self.q(f)
@@ -304,6 +305,10 @@ def _coil_from_winding(w: CoilWinding, inductance=None, design_freq=1e6):
 
     d_sheet = w.form_diameter_m + w.wire_diameter_m
     wheeler = coil_mod.wheeler_inductance(d_sheet, turns * pitch, turns)
+    c_self = coil_mod.medhurst_self_capacitance(d_sheet, turns * pitch)
+    if not bool(c_self.within_table):
+        notes.append(f"winding length {turns * pitch / d_sheet:.2f} of its diameter lies outside Medhurst's table "
+                     "(0.1-50): the self-capacitance takes the table's end value")
     info = {
         "turns": float(turns),
         "winding_length_m": float(turns * pitch),
@@ -314,6 +319,9 @@ def _coil_from_winding(w: CoilWinding, inductance=None, design_freq=1e6):
         "strands": int(w.strands),
         "inductance_wheeler_h": float(wheeler.inductance),
         "wheeler_within_stated_accuracy": bool(wheeler.within_stated_accuracy),
+        "self_capacitance_f": float(c_self.capacitance),
+        "self_capacitance_source": "Medhurst 1947, from the winding",
+        "self_resonance_hz": float(tank_mod.resonant_frequency(L, float(c_self.capacitance))),
     }
     if w.strands > 1:
         rng = coil_mod.stranded_advantage_range(w.form_diameter_m, w.wire_diameter_m, turns, w.strands,
@@ -324,7 +332,7 @@ def _coil_from_winding(w: CoilWinding, inductance=None, design_freq=1e6):
                 f"stranded wire: loses less than solid wire of the same size only up to about "
                 f"{rng.better_up_to / 1e3:.0f} kHz; above that the strands' proximity loss outweighs the gain"
             )
-    return L, q_fun, info, notes, _winding_block(w, turns, pitch, L)
+    return L, q_fun, info, notes, _winding_block(w, turns, pitch, L), float(c_self.capacitance)
 
 
 def _winding_block(w: CoilWinding, turns, pitch, L):
@@ -349,7 +357,7 @@ def _resolve_coil(parts: TuningParts, inductance=None) -> _Coil:
         raise ModelInputError("the coil needs an inductance, a winding with turns, or a capacitor range to design it")
     if w is not None and (L_given is not None or w.turns is not None or inductance is not None):
         target = L_given if L_given is not None else inductance
-        L, q_fun, info, more, block = _coil_from_winding(w, target)
+        L, q_fun, info, more, block, c_self = _coil_from_winding(w, target)
         source = "given" if L_given is not None else ("from winding" if w.turns is not None else "designed")
         notes.extend(more)
     else:
@@ -357,6 +365,7 @@ def _resolve_coil(parts: TuningParts, inductance=None) -> _Coil:
         source = "given" if L_given is not None else "designed"
         info = {}
         block = None
+        c_self = 0.0
         if parts.coil_unloaded_q is not None:
             q_fun = _constant_q(parts.coil_unloaded_q)
         else:
@@ -367,7 +376,7 @@ def _resolve_coil(parts: TuningParts, inductance=None) -> _Coil:
     if not (np.isfinite(L) and L > 0):
         raise ModelInputError("coil inductance must be positive")
     info = {"inductance_h": float(L), "source": source, **info}
-    return _Coil(L, q_fun, info, notes, block)
+    return _Coil(L, q_fun, info, notes, block, c_self)
 
 
 def _diode(parts: TuningParts) -> det_mod.Diode:
@@ -397,9 +406,14 @@ def _config(parts: TuningParts, **override) -> dict:
     cfg = dict(arrangement=parts.arrangement, series_capacitance=parts.series_capacitance_f,
                detector_tap=parts.detector_tap_fraction,
                tap_fraction=parts.tap_fraction, primary_inductance=parts.primary_inductance_h,
-               coupling_coefficient=parts.coupling_coefficient)
+               coupling_coefficient=parts.coupling_coefficient, self_capacitance=0.0)
     cfg.update(override)
     return cfg
+
+
+def _coil_config(parts: TuningParts, coil: _Coil, **override) -> dict:
+    """:func:`_config` with the coil's own self-capacitance across the tank."""
+    return _config(parts, **{"self_capacitance": coil.self_capacitance, **override})
 
 
 def _coupling(f, aerial: _Aerial, L, q_fun, cfg):
@@ -416,7 +430,7 @@ def _coupling(f, aerial: _Aerial, L, q_fun, cfg):
 
 def _needed(f, aerial, L, q_fun, cfg):
     t = _coupling(f, aerial, L, q_fun, cfg)
-    return tank_mod.capacitance_needed(f, t.coil_admittance, t.aerial_admittance)
+    return tank_mod.capacitance_needed(f, t.coil_admittance, t.aerial_admittance) - cfg.get("self_capacitance", 0.0)
 
 
 def _covers(f_lo, f_hi, aerial, L, q_fun, cfg, cmin, cmax):
@@ -465,12 +479,15 @@ def _apply_calibration(aerial: _Aerial, parts: TuningParts, diode, notes: list) 
         return None
     f = float(cal.frequency_hz)
     q_coil = DEFAULT_COIL_Q if parts.coil_unloaded_q is None else float(parts.coil_unloaded_q)
-    if parts.coil is not None and parts.coil.turns is not None and cal.bandwidth_hz is not None:
-        L_w, q_fun, _, _, _ = _coil_from_winding(parts.coil, cal.coil_inductance_h)
-        q_coil = float(q_fun(f))
+    c_self = 0.0
+    if parts.coil is not None and parts.coil.turns is not None:
+        _, q_fun, _, _, _, c_self = _coil_from_winding(parts.coil, cal.coil_inductance_h)
+        if cal.bandwidth_hz is not None and parts.coil_unloaded_q is None:
+            q_coil = float(q_fun(f))
     g_det = parts.detector_tap_fraction**2 / (parts.earphone_ohm / 2.0)
-    res = tank_mod.calibrate_from_resonance(f, cal.coil_inductance_h, cal.capacitor_setting_f, cal.bandwidth_hz,
-                                            q_coil if cal.bandwidth_hz is not None else None, g_det)
+    # the coil's own self-capacitance sits beside the capacitor setting: not the aerial's
+    res = tank_mod.calibrate_from_resonance(f, cal.coil_inductance_h, cal.capacitor_setting_f + c_self,
+                                            cal.bandwidth_hz, q_coil if cal.bandwidth_hz is not None else None, g_det)
     notes.extend(res.warnings)
     y = res.aerial_admittance
     out = {
@@ -522,9 +539,12 @@ def _bench_check(aerial: _Aerial, parts: TuningParts, notes: list) -> dict:
     f = np.array([float(cal.frequency_hz)])
     q = DEFAULT_COIL_Q if parts.coil_unloaded_q is None else float(parts.coil_unloaded_q)
     q_fun = _constant_q(q)
+    c_self = 0.0
     if parts.coil is not None and parts.coil.turns is not None:
-        _, q_fun, _, _, _ = _coil_from_winding(parts.coil, cal.coil_inductance_h)
-    coil = _Coil(cal.coil_inductance_h, q_fun, {}, [])
+        _, q_fun, _, _, _, c_self = _coil_from_winding(parts.coil, cal.coil_inductance_h)
+        if parts.coil_unloaded_q is not None:
+            q_fun = _constant_q(q)
+    coil = _Coil(cal.coil_inductance_h, q_fun, {}, [], None, c_self)
     net = _net_parts(coil, parts)
     g = _strong_signal_conductance(parts)
     solved = tn_mod.tuned_figures(f, _za(aerial), net, g)
@@ -591,7 +611,7 @@ def _advice(band, aerial, coil: _Coil, parts: TuningParts, c_edges) -> list:
     f_lo, f_hi = band
     cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
     L, q = coil.inductance, coil.q
-    cfg = _config(parts)
+    cfg = _coil_config(parts, coil)
     adv = []
     low_ok = c_edges[0] <= cmax
     high_ok = c_edges[1] >= cmin
@@ -645,11 +665,22 @@ def _advice(band, aerial, coil: _Coil, parts: TuningParts, c_edges) -> list:
     return adv
 
 
-def _design_inductance(band, aerial, parts, notes) -> float:
+def _designed_coil(band, aerial, parts, notes) -> _Coil:
+    """A coil designed to cover ``band``: first without self-capacitance, then again with the one
+    its winding (if known) gives, so that the coil's own capacitance is allowed for."""
+    said: list = []
+    first = _resolve_coil(parts, _design_inductance(band, aerial, parts, said))
+    if first.self_capacitance <= 0:
+        notes.extend(said)
+        return first
+    return _resolve_coil(parts, _design_inductance(band, aerial, parts, notes, first.self_capacitance))
+
+
+def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0) -> float:
     f_lo, f_hi = band
     cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
     q = _constant_q(DEFAULT_COIL_Q if parts.coil_unloaded_q is None else parts.coil_unloaded_q)
-    cfg = _config(parts)
+    cfg = _config(parts, self_capacitance=float(self_capacitance))
     rng = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax)[0], 1e-6, 1e-2)
     if rng:
         L = float(np.sqrt(rng[0] * rng[1]))
@@ -730,12 +761,12 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
         raise ModelInputError("band must be (f_lo, f_hi) with 0 < f_lo < f_hi")
     if aerial.outside([f_lo, f_hi]).any():
         warnings.append("the band reaches beyond the aerial's frequency grid: edge values of the aerial were used")
-    designed_L = None
     if parts.coil_inductance_h is None and (parts.coil is None or parts.coil.turns is None):
         if parts.capacitor_min_f is None:
             raise ModelInputError("give the coil (inductance or winding) or the capacitor range to design one")
-        designed_L = _design_inductance((f_lo, f_hi), aerial, parts, notes)
-    coil = _resolve_coil(parts, designed_L)
+        coil = _designed_coil((f_lo, f_hi), aerial, parts, notes)
+    else:
+        coil = _resolve_coil(parts)
     notes.extend(coil.notes)
     grid_in = aerial.f[(aerial.f > f_lo) & (aerial.f < f_hi)]
     table_f = np.unique(np.concatenate([[f_lo], grid_in, [f_hi]]))
@@ -764,10 +795,10 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
 
 
 def _net_parts(coil: _Coil, parts: TuningParts, **override):
-    cfg = _config(parts, **override)
+    cfg = _coil_config(parts, coil, **override)
     return tn_mod.network_parts(cfg["arrangement"], coil.inductance, coil.q, cfg["detector_tap"], cfg["tap_fraction"],
                                 cfg["series_capacitance"], cfg["primary_inductance"], cfg["coupling_coefficient"],
-                                coil.block)
+                                coil.block, self_capacitance=cfg["self_capacitance"])
 
 
 def _za(aerial: _Aerial):
@@ -786,7 +817,7 @@ def _table_arrays(table_f, aerial, coil, parts) -> dict:
     input resistance (R_L/2) and again at its weak-signal one; the aerial's shunt equivalent
     and share of the tuning capacitance from the closed-form coupling.
     """
-    t = _coupling(table_f, aerial, coil.inductance, coil.q, _config(parts))
+    t = _coupling(table_f, aerial, coil.inductance, coil.q, _coil_config(parts, coil))
     w = 2.0 * np.pi * table_f
     shunt = tank_mod.shunt_from_admittance(table_f, t.aerial_admittance)
     b_coil = -np.imag(t.coil_admittance)
@@ -894,7 +925,7 @@ def _table_rows(table_f, arr, warnings, parts) -> list:
 def _coverage(band, aerial, coil, parts, warnings) -> tuple:
     """Band coverage by the capacitor range, with advice when it falls short. Returns (coverage, advice)."""
     f_lo, f_hi = band
-    c_edges = _needed(np.array([f_lo, f_hi]), aerial, coil.inductance, coil.q, _config(parts))
+    c_edges = _needed(np.array([f_lo, f_hi]), aerial, coil.inductance, coil.q, _coil_config(parts, coil))
     coverage = {
         "band_low_hz": f_lo,
         "band_high_hz": f_hi,
@@ -967,7 +998,7 @@ def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningPa
     coil = _coil if _coil is not None else _resolve_coil(
         parts if coil_inductance_h is None else TuningParts(**{**parts.__dict__, "coil_inductance_h": coil_inductance_h}))
     fine = np.geomspace(aerial.f[0], aerial.f[-1], 600) if aerial.f.size > 1 else aerial.f.copy()
-    c_need = _needed(fine, aerial, coil.inductance, coil.q, _config(parts))
+    c_need = _needed(fine, aerial, coil.inductance, coil.q, _coil_config(parts, coil))
     settings = np.linspace(parts.capacitor_min_f, parts.capacitor_max_f, int(points))
     def crossing(cs):
         diff = c_need - cs
@@ -1157,7 +1188,7 @@ def _station_coil(aerial, parts) -> _Coil:
         if parts.capacitor_min_f is None:
             raise ModelInputError("give the coil (inductance or winding) or the capacitor range to design one")
         band = (aerial.f[0], aerial.f[-1])
-        return _resolve_coil(parts, _design_inductance(band, aerial, parts, []))
+        return _designed_coil(band, aerial, parts, [])
     return _resolve_coil(parts)
 
 
@@ -1415,7 +1446,7 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
     rows = _design_rows(scene, aerial, parts, base, (lo, hi))
     if not rows:
         return None
-    current = _design_row(scene, _current_coupling(parts), base.inductance, base.block, parts.detector_tap_fraction)
+    current = _design_row(scene, _current_coupling(parts), base, parts.detector_tap_fraction)
     can_hear = sd_mod.hearable(rows + [current], scene.threshold)
     if can_hear.any():
         rows = [sd_mod.rescore(r, can_hear, scene.margin_db) for r in rows]
@@ -1461,27 +1492,27 @@ def _design_rows(scene, aerial, parts, base: _Coil, band) -> list:
         cfg = _config(parts, arrangement=cpl["arrangement"], tap_fraction=cpl.get("tap_fraction"),
                       series_capacitance=cpl.get("series_capacitance"), primary_inductance=lp,
                       coupling_coefficient=cpl.get("coupling_coefficient"))
-        L, block = base.inductance, base.block
+        coil = base
         if not coil_given:
             sub = TuningParts(**{**parts.__dict__, "arrangement": cfg["arrangement"], "tap_fraction": cfg["tap_fraction"],
                                  "series_capacitance_f": cfg["series_capacitance"],
                                  "primary_inductance_h": cfg["primary_inductance"],
                                  "coupling_coefficient": cfg["coupling_coefficient"]})
-            coil = _resolve_coil(sub, _design_inductance(band, aerial, sub, []))
-            L, block = coil.inductance, coil.block
+            coil = _designed_coil(band, aerial, sub, [])
             if lp is not None:
-                cpl = {**cpl, "primary_inductance": sd_mod.PRIMARY_FRACTION * L}
-        c = _needed(scene.frequency, aerial, L, scene.q_fun, cfg)
+                cpl = {**cpl, "primary_inductance": sd_mod.PRIMARY_FRACTION * coil.inductance}
+        c = _needed(scene.frequency, aerial, coil.inductance, scene.q_fun, {**cfg, "self_capacitance": coil.self_capacitance})
         if np.any(c < parts.capacitor_min_f) or np.any(c > parts.capacitor_max_f):
             continue
         for m in sd_mod.DETECTOR_TAPS:
-            rows.append(_design_row(scene, cpl, L, block, m))
+            rows.append(_design_row(scene, cpl, coil, m))
     return rows
 
 
-def _design_row(scene, cpl, L, block, m) -> dict:
-    ev = sd_mod.evaluate(scene, cpl, L, block, m)
-    return {**ev, "coupling": cpl, "coil_inductance_h": float(L), "block": block, "detector_tap_fraction": float(m),
+def _design_row(scene, cpl, coil: _Coil, m) -> dict:
+    ev = sd_mod.evaluate(scene, cpl, coil.inductance, coil.block, m, coil.self_capacitance)
+    return {**ev, "coupling": cpl, "coil_inductance_h": coil.inductance, "block": coil.block,
+            "self_capacitance_f": coil.self_capacitance, "detector_tap_fraction": float(m),
             "meets_margin": bool(ev["worst_separation_db"] >= scene.margin_db)}
 
 
@@ -1532,9 +1563,10 @@ def _remedies(scene, row, parts) -> list:
     lp = cpl.get("primary_inductance")
     net = tn_mod.network_parts(cpl["arrangement"], row["coil_inductance_h"], scene.q_fun, row["detector_tap_fraction"],
                                cpl.get("tap_fraction"), cpl.get("series_capacitance"), lp,
-                               cpl.get("coupling_coefficient"), row["block"])
+                               cpl.get("coupling_coefficient"), row["block"], self_capacitance=row["self_capacitance_f"])
     out = []
-    for r in (sd_mod.double_tuned(scene, row["coil_inductance_h"], row["block"], row["detector_tap_fraction"], i, j),
+    for r in (sd_mod.double_tuned(scene, row["coil_inductance_h"], row["block"], row["detector_tap_fraction"], i, j,
+                                  row["self_capacitance_f"]),
               sd_mod.trap(scene, net, i, j, "parallel"), sd_mod.trap(scene, net, i, j, "series")):
         r = {k: (_num(v, k, []) if isinstance(v, float) else v) for k, v in r.items()}
         r["wanted"], r["interferer"] = scene.names[i], scene.names[j]

@@ -62,7 +62,7 @@ def candidates(arrangement_given) -> list:
     return out
 
 
-def evaluate(scene: Scene, coupling: dict, inductance, block, detector_tap) -> dict:
+def evaluate(scene: Scene, coupling: dict, inductance, block, detector_tap, self_capacitance=0.0) -> dict:
     """One candidate: every wanted station's detector power and the worst separation from the others.
 
     Returns
@@ -78,7 +78,7 @@ def evaluate(scene: Scene, coupling: dict, inductance, block, detector_tap) -> d
         lp = coupling.get("primary_inductance") or PRIMARY_FRACTION * inductance
     parts = tn_mod.network_parts(coupling["arrangement"], inductance, scene.q_fun, detector_tap,
                                  coupling.get("tap_fraction"), coupling.get("series_capacitance"), lp,
-                                 coupling.get("coupling_coefficient"), block)
+                                 coupling.get("coupling_coefficient"), block, self_capacitance=self_capacitance)
     lv = tn_mod.station_levels(scene.frequency, scene.emf, scene.za, parts, scene.diode, scene.load, passes=1,
                                bandwidth=False, table=scene.table)
     return summarise(scene, lv, parts)
@@ -142,7 +142,7 @@ PRIMARY_TUNING_F = 100e-12
 PRIMARY_SERIES_F = (10e-12, 22e-12, 47e-12, 100e-12)
 
 
-def double_tuned(scene: Scene, inductance, block, detector_tap, wanted, other) -> dict:
+def double_tuned(scene: Scene, inductance, block, detector_tap, wanted, other, self_capacitance=0.0) -> dict:
     """A second tuned circuit ahead of the tank, coupled at critical coupling: computed effect for one pair.
 
     The aerial reaches its own tuned circuit through a small series capacitor Cs (the best
@@ -153,13 +153,13 @@ def double_tuned(scene: Scene, inductance, block, detector_tap, wanted, other) -
     """
     best = None
     for cs in PRIMARY_SERIES_F:
-        r = _double_tuned_with(scene, inductance, block, detector_tap, wanted, other, cs)
+        r = _double_tuned_with(scene, inductance, block, detector_tap, wanted, other, cs, self_capacitance)
         if best is None or (r["separation_db"], r["wanted_power_w"]) > (best["separation_db"], best["wanted_power_w"]):
             best = r
     return best
 
 
-def _double_tuned_with(scene, inductance, block, detector_tap, wanted, other, cs) -> dict:
+def _double_tuned_with(scene, inductance, block, detector_tap, wanted, other, cs, self_capacitance=0.0) -> dict:
     f = scene.frequency[[wanted, other]]
     fw = f[:1]
     w = 2.0 * np.pi * fw
@@ -178,7 +178,7 @@ def _double_tuned_with(scene, inductance, block, detector_tap, wanted, other, cs
     k = min(float(net_mod.critical_coupling(q1, q2)), 0.9)
     parts = tn_mod.network_parts("separate primary", inductance, scene.q_fun, detector_tap,
                                  primary_inductance=lp, coupling_coefficient=k, block=block,
-                                 primary_capacitance=PRIMARY_TUNING_F)
+                                 primary_capacitance=PRIMARY_TUNING_F, self_capacitance=self_capacitance)
     lv = tn_mod.station_levels(f, scene.emf[[wanted, other]], za, parts, scene.diode, scene.load, passes=1,
                                bandwidth=False, table=scene.table)
     own = lv.others[0, 0]

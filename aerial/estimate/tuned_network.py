@@ -25,10 +25,11 @@ LEVEL_MAX_ITER = 200
 
 def network_parts(arrangement, inductance, q_fun, detector_tap=1.0, tap_fraction=None, series_capacitance=None,
                   primary_inductance=None, coupling_coefficient=None, block=None,
-                  primary_capacitance=None) -> net_mod.NetworkParts:
+                  primary_capacitance=None, self_capacitance=0.0) -> net_mod.NetworkParts:
     """The network's parts for a coil of ``inductance`` [H] whose unloaded Q is ``q_fun(f)``.
 
     A separate primary is taken as wound like the tank coil (same Q, an assumption).
+    ``self_capacitance`` [F] is the coil's own (Medhurst) capacitance across the whole winding.
 
     Examples
     --------
@@ -49,7 +50,8 @@ def network_parts(arrangement, inductance, q_fun, detector_tap=1.0, tap_fraction
             return 2.0 * np.pi * np.asarray(f, dtype=float) * lp / q_fun(f)
 
     return net_mod.NetworkParts(arrangement, L, coil_r, float(detector_tap), tap_fraction, series_capacitance,
-                                primary_inductance, coupling_coefficient, rp, primary_capacitance, 0.0, block)
+                                primary_inductance, coupling_coefficient, rp, primary_capacitance,
+                                float(self_capacitance), block)
 
 
 class TunedFigures(NamedTuple):

@@ -19,6 +19,8 @@ References
    Proc. IEE, vol. 113, no. 8, pp. 1387-1394, 1966 (from memory).
 .. [4] S. Ramo, J. R. Whinnery, T. Van Duzer, Fields and Waves in Communication
    Electronics, Wiley, internal impedance of a round wire (from memory).
+.. [5] R. G. Medhurst, "H.F. resistance and self-capacitance of single-layer
+   solenoids", Wireless Engineer, vol. 24, pp. 35-43 and 80-92, 1947 (from memory).
 """
 
 from __future__ import annotations
@@ -534,6 +536,67 @@ def coil_loss(frequency, inductance, form_diameter, wire_diameter, turns, pitch=
             "loss method; the loss is taken as at least that of a straight isolated wire"
         )
     return CoilLoss(r_ac, np.full_like(np.asarray(r_ac), r_dc), factor, q, warnings)
+
+
+#: Medhurst's table (1947) of the self-capacitance coefficient H = C/D [pF per cm of coil diameter]
+#: of a single-layer solenoid against its winding length / diameter (values from memory of the
+#: table as usually reproduced). [1], [pF/cm]
+MEDHURST_LENGTH_TO_DIAMETER = (0.10, 0.15, 0.20, 0.25, 0.30, 0.35, 0.40, 0.45, 0.50, 0.60, 0.70, 0.80, 0.90,
+                               1.0, 1.5, 2.0, 2.5, 3.0, 3.5, 4.0, 4.5, 5.0, 6.0, 7.0, 8.0, 9.0, 10.0, 15.0,
+                               20.0, 25.0, 30.0, 40.0, 50.0)
+MEDHURST_H_PF_PER_CM = (0.96, 0.79, 0.70, 0.64, 0.60, 0.57, 0.54, 0.52, 0.50, 0.48, 0.47, 0.46, 0.46,
+                        0.46, 0.47, 0.50, 0.56, 0.61, 0.67, 0.72, 0.77, 0.81, 0.92, 1.01, 1.12, 1.22, 1.32, 1.86,
+                        2.36, 2.90, 3.40, 4.60, 5.80)
+
+
+class SelfCapacitance(NamedTuple):
+    capacitance: np.ndarray  #: self-capacitance across the winding [F]
+    within_table: np.ndarray  #: False where l/D lies outside Medhurst's table (0.1-50): edge value used [bool]
+
+
+def medhurst_self_capacitance(diameter, length):
+    """Self-capacitance of a single-layer solenoid from its winding (Medhurst's table).
+
+    Parameters
+    ----------
+    diameter : array_like
+        Diameter of the winding (to the wire centres). [m]
+    length : array_like
+        Winding length. [m]
+
+    Returns
+    -------
+    SelfCapacitance
+        ``capacitance`` [F] and ``within_table`` (False outside l/D = 0.1-50, where the
+        table's end value is used).
+
+    Notes
+    -----
+    Medhurst measured the self-capacitance of many single-layer coils and tabulated
+    C = H·D, C in pF and D in cm, with H a function of l/D alone (the wire size and the pitch
+    matter little) [5]_. H is interpolated in the table linearly in log(l/D). It is lowest,
+    about 0.46 pF/cm, near l/D = 1, and grows for long thin coils (where it approaches the
+    empirical fit H ≈ 0.1126·l/D + 0.08 + 0.27/√(l/D), also Medhurst's) and for short flat
+    ones. The coils were measured with one end earthed, as a tank coil is used. The figure is
+    the capacitance seen across the coil's ends; it adds to the tuning capacitor and sets the
+    coil's self-resonance 1/(2π√(L·C)).
+
+    References
+    ----------
+    .. [5] R. G. Medhurst, Wireless Engineer 24, 1947 (from memory).
+
+    Examples
+    --------
+    >>> r = medhurst_self_capacitance(0.10, 0.10)  # l/D = 1: H = 0.46 pF/cm
+    >>> round(float(r.capacitance) * 1e12, 2), bool(r.within_table)
+    (4.6, True)
+    """
+    d = _positive("diameter", diameter)
+    x = _positive("length", length) / d
+    lx = np.log(np.asarray(MEDHURST_LENGTH_TO_DIAMETER))
+    h = np.interp(np.log(x), lx, np.asarray(MEDHURST_H_PF_PER_CM))
+    within = (x >= MEDHURST_LENGTH_TO_DIAMETER[0] * (1 - 1e-9)) & (x <= MEDHURST_LENGTH_TO_DIAMETER[-1] * (1 + 1e-9))
+    return SelfCapacitance(h * (d * 100.0) * 1e-12, np.asarray(within))
 
 
 class StrandedRange(NamedTuple):

@@ -333,6 +333,9 @@ def _tuning_section(result) -> str:
              f"{eng(coil.get('inductance_h'), 'H')}")
     if coil.get("turns"):
         intro += f" ({coil['turns']:.0f} turns)"
+    if coil.get("self_capacitance_f"):
+        intro += (f", self-capacitance {eng(coil['self_capacitance_f'], 'F')} (Medhurst; part of the total C), "
+                  f"self-resonance {eng(coil.get('self_resonance_hz'), 'Hz')}")
     if tuning.get("source") == "measured":
         intro += "; aerial from the bench measurement"
     if tuning.get("channel_spacings_hz"):

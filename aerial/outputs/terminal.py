@@ -463,6 +463,9 @@ def _render_tuning(tuning, console, L: Lengths) -> None:
         if coil.get("winding_length_m"):
             title += f" over {L(coil['winding_length_m'])}"
         title += ")"
+    if coil.get("self_capacitance_f"):
+        title += (f", self-capacitance {eng(coil['self_capacitance_f'], 'F')} (Medhurst; in the total C), "
+                  f"self-resonance {eng(coil.get('self_resonance_hz'), 'Hz')}")
     if tuning.get("source") == "measured":
         title += " — aerial from the bench measurement"
     if rows:
@@ -729,6 +732,7 @@ COIL_ROWS = (
     ("wire needed", "wire_length_m", "m"), ("DC resistance", "dc_resistance_ohm", "Ω"),
     ("AC resistance", "ac_resistance_ohm", "Ω"), ("AC/DC resistance", "ac_to_dc_resistance_ratio", ""),
     ("unloaded Q", "unloaded_q", ""), ("at frequency", "frequency_hz", "Hz"),
+    ("self-capacitance (Medhurst)", "self_capacitance_f", "F"), ("self-resonance", "self_resonance_hz", "Hz"),
 )
 
 
