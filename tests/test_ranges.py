@@ -176,8 +176,8 @@ def _loss_at(result, f):
 
 def test_consistency_check_loss_range_brackets_the_report_at_the_soil_bounds(capsys, tmp_path):
     # consistency check (aerial's own figures, no outside source): the loss resistance's range at each band point
-    # holds what the same report gives with the soil set to either end of its category's conductivity bounds
-    # (the built-in example, "intermediate" soil: 0.001-0.01 S/m, its permittivity kept)
+    # holds what the same report gives with the soil set to the corners of its category's conductivity and
+    # permittivity bounds (the built-in example, "intermediate" soil: 0.001-0.01 S/m, eps_r 15-30)
     from importlib import resources
 
     text = resources.files("aerial").joinpath("data", "backyard_inverted_l.toml").read_text(encoding="utf-8")
@@ -185,11 +185,12 @@ def test_consistency_check_loss_range_brackets_the_report_at_the_soil_bounds(cap
     assert main(["report", "--json"]) == 0
     nominal = json.loads(capsys.readouterr().out)
     low_s, high_s = nominal["site"]["soil"]["conductivity_range_s_m"]
+    low_e, high_e = nominal["site"]["soil"]["relative_permittivity_range"]
     at_bounds = []
-    for sigma in (low_s, high_s):
-        path = tmp_path / f"soil_{sigma:g}.toml"
-        path.write_text(text.replace('soil = "intermediate"',
-                                     f'soil = {{ category = "intermediate", conductivity = {sigma} }}'), encoding="utf-8")
+    for sigma, eps in ((low_s, low_e), (high_s, high_e), (low_s, high_e), (high_s, low_e)):
+        path = tmp_path / f"soil_{sigma:g}_{eps:g}.toml"
+        path.write_text(text.replace('soil = "intermediate"', f'soil = {{ category = "intermediate", conductivity = '
+                                     f'{sigma}, relative_permittivity = {eps} }}'), encoding="utf-8")
         assert main(["report", str(path), "--json"]) == 0
         at_bounds.append(json.loads(capsys.readouterr().out))
     ranges = nominal["ranges"]
@@ -199,7 +200,7 @@ def test_consistency_check_loss_range_brackets_the_report_at_the_soil_bounds(cap
             value = _loss_at(other, f)
             # 1 %: the conductor loss of the moved wires differs slightly from that of the nominal wires
             assert low * 0.99 <= value <= high * 1.01, (f, low, value, high)
-    # the old DC-formula range put the top near 400 ohm at 1.71 MHz; the line model gives under 100 ohm
+    # the old DC-formula range put the top near 400 ohm at 1.71 MHz; the line model stays near its corners
     top = ranges["loss_resistance_ohm"][ranges["frequencies_hz"].index(1.71e6)][1]
     assert top < 1.2 * max(_loss_at(o, 1.71e6) for o in at_bounds + [nominal])
 
@@ -210,3 +211,33 @@ def test_earth_table_speaks_of_a_rod_in_words_and_shows_the_rf_range(capsys):
     assert "a longer rod helps up to about" in out
     assert "(R " in out  # the RF resistance range under the impedance
     assert "earth electrodes as lossy lines" in out
+
+
+def test_full_wave_ranges_over_real_soil_move_the_soil_under_the_aerial(monkeypatch):
+    # input handling: the two full-wave tolerance runs over real soil solve over the soil's low and high ends
+    from aerial.estimate import fullwave_sweep
+
+    seen = []
+    real = fullwave_sweep.full_wave_response
+
+    def spy(site, geometry, frequency, earth_ohm, **kw):
+        seen.append((site.soil.conductivity_s_m, site.soil.relative_permittivity, kw.get("ground")))
+        return real(site, geometry, frequency, earth_ohm, **kw)
+
+    monkeypatch.setattr(fullwave_sweep, "full_wave_response", spy)
+    site = aerial.load_site(None)
+    f = np.array([1.0e6])
+    nominal = assemble._headline(site, site.wires, f, 50.0, method="full-wave", ground="reflection-coefficient")
+    out = assemble.uncertainty(site, f, {}, method="full-wave", ground="reflection-coefficient", nominal=nominal)
+    s = site.soil
+    lo_eps, hi_eps = s.permittivity_bounds
+    assert (s.conductivity_low_s_m, lo_eps, "reflection-coefficient") in seen
+    assert (s.conductivity_high_s_m, hi_eps, "reflection-coefficient") in seen
+    assert out["method"] == "full wave, the soil under the aerial at its bounds too"
+
+
+def test_quick_ground_beside_a_building_runs_through_the_cli(capsys):
+    # regression: the built-in site has a building; its wire-grid solve under --quick-ground lacked the soil
+    assert main(["report", "--full-wave", "--lossy-ground", "--quick-ground", "--step", "400 kHz", "--json"]) == 0
+    result = json.loads(capsys.readouterr().out)
+    assert "reflection-coefficient" in result["aerial"]["ground_treatment"]

@@ -214,3 +214,28 @@ def test_soil_categories_name_their_itu_source():
         s = SOILS[name]
         assert (s.relative_permittivity, s.conductivity_s_m) == (er, sigma)
         assert s.source == f"ITU-R P.368 curve '{curve}'"
+
+
+def test_soil_permittivity_ranges_span_the_neighbouring_itu_categories():
+    # ITU-R P.527 / P.368 permittivities (from memory, as above): very dry 3, dry 7, medium dry 15, land 22, wet 30;
+    # each land category's range runs from its drier neighbour's permittivity to its wetter neighbour's, the same
+    # neighbours that bound its conductivity. Sea: 70 (average salinity) to 80 (low salinity), P.527 (from memory);
+    # fresh water 78-88: water's permittivity between 25 and 0 degC (CRC Handbook, from memory).
+    from aerial.core.materials import SOILS
+
+    expected = {"very-dry": (3.0, 7.0), "dry": (3.0, 15.0), "medium-dry": (7.0, 22.0), "intermediate": (15.0, 30.0),
+                "wet": (22.0, 30.0), "sea": (70.0, 80.0), "fresh-water": (78.0, 88.0)}
+    for name, bounds in expected.items():
+        s = SOILS[name]
+        assert (s.relative_permittivity_low, s.relative_permittivity_high) == bounds, name
+        assert bounds[0] <= s.relative_permittivity <= bounds[1]
+
+
+def test_a_given_permittivity_is_kept_and_a_category_brings_its_range():
+    # input handling, invented sites
+    by_category = load_site_text('[soil]\ncategory = "medium-dry"\n' + MINIMAL, "s.toml").soil
+    assert by_category.permittivity_bounds == (7.0, 22.0)
+    measured = load_site_text('[soil]\ncategory = "medium-dry"\nrelative_permittivity = 12\n' + MINIMAL, "s.toml").soil
+    assert measured.permittivity_bounds == (12.0, 12.0)
+    only_sigma = load_site_text('[soil]\nconductivity = "2 mS/m"\n' + MINIMAL, "s.toml").soil
+    assert (only_sigma.relative_permittivity, only_sigma.permittivity_bounds) == (15.0, (7.0, 22.0))

@@ -71,20 +71,31 @@ class Soil:
     conductivity_high_s_m: float
     description: str
     source: str = "ITU-R P.527 category"
+    relative_permittivity_low: float | None = None
+    relative_permittivity_high: float | None = None
 
 
 # ITU-R P.527 categories and two ITU-R P.368 curve parameters at LF/MF (centre values); the low/high bounds span the
-# neighbouring categories and are used for the uncertainty range.
+# neighbouring categories and are used for the uncertainty range. The permittivity bounds of the land categories are
+# the permittivities of the same neighbours (the drier neighbour's for the low bound, the wetter's for the high; wet
+# ground, the wettest land category, keeps its own 30 as the high bound, very dry ground its own 3 as the low).
+# Sea: average salinity (eps_r 70) to low salinity (P.527 "sea water, low salinity": eps_r 80, from memory). Fresh
+# water: 78-88, the permittivity of water between 25 and 0 degC (CRC Handbook of Chemistry and Physics, from memory).
 SOILS: dict[str, Soil] = {
-    "sea": Soil("sea", 70.0, 5.0, 3.0, 6.0, "sea water, average salinity"),
-    "fresh-water": Soil("fresh-water", 80.0, 3e-3, 1e-3, 1e-2, "fresh water (lake, river)"),
-    "wet": Soil("wet", 30.0, 1e-2, 3e-3, 3e-2, "wet ground, marsh, rich farmland"),
+    "sea": Soil("sea", 70.0, 5.0, 3.0, 6.0, "sea water, average salinity",
+                relative_permittivity_low=70.0, relative_permittivity_high=80.0),
+    "fresh-water": Soil("fresh-water", 80.0, 3e-3, 1e-3, 1e-2, "fresh water (lake, river)",
+                        relative_permittivity_low=78.0, relative_permittivity_high=88.0),
+    "wet": Soil("wet", 30.0, 1e-2, 3e-3, 3e-2, "wet ground, marsh, rich farmland",
+                relative_permittivity_low=22.0, relative_permittivity_high=30.0),
     "intermediate": Soil("intermediate", 22.0, 3e-3, 1e-3, 1e-2, "land between wet and medium dry",
-                         "ITU-R P.368 curve 'land'"),
-    "medium-dry": Soil("medium-dry", 15.0, 1e-3, 3e-4, 3e-3, "medium dry ground, typical suburban lot"),
+                         "ITU-R P.368 curve 'land'", relative_permittivity_low=15.0, relative_permittivity_high=30.0),
+    "medium-dry": Soil("medium-dry", 15.0, 1e-3, 3e-4, 3e-3, "medium dry ground, typical suburban lot",
+                       relative_permittivity_low=7.0, relative_permittivity_high=22.0),
     "dry": Soil("dry", 7.0, 3e-4, 1e-4, 1e-3, "dry ground, sandy or stony",
-                "ITU-R P.368 curve 'dry ground'"),
-    "very-dry": Soil("very-dry", 3.0, 1e-4, 3e-5, 3e-4, "very dry ground, desert, rock"),
+                "ITU-R P.368 curve 'dry ground'", relative_permittivity_low=3.0, relative_permittivity_high=15.0),
+    "very-dry": Soil("very-dry", 3.0, 1e-4, 3e-5, 3e-4, "very dry ground, desert, rock",
+                     relative_permittivity_low=3.0, relative_permittivity_high=7.0),
 }
 
 

@@ -387,8 +387,11 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
     envelope of the value and the two tolerance runs. The earth system's
     resistance in each run is the value's own RF model (electrodes as lossy
     lines, :func:`earth_bounds`) at each frequency, the soil taken across
-    its conductivity bounds: the lowered wires take the highest resistance,
-    the raised wires the lowest. ``centre_hz`` is where the full-wave value's lumped electrode
+    its conductivity and permittivity bounds: the lowered wires take the
+    highest resistance, the raised wires the lowest. Under the full wave over
+    real soil (``ground`` not "perfect") the soil under the aerial moves too:
+    the lowered wires over the soil at the low end of its range (least
+    conductive, lowest permittivity), the raised wires at the high end. ``centre_hz`` is where the full-wave value's lumped electrode
     load was taken (default: the middle of ``frequency``). ``earth`` (the DC
     figures) is kept for compatibility and not used.
 
@@ -403,10 +406,16 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
     b = earth_bounds(site, np.append(f, f_c))
     lo_ohm, hi_ohm = b["high_ohm"][:-1], b["low_ohm"][:-1]
     if method == "full-wave" and full_wave_ranges:
+        from aerial.estimate.earth import soil_bound
+
         run = dict(method="full-wave", ground=ground, progress=progress)
-        lo = _headline(site, _perturbed_wires(site, -1.0), f, lo_ohm, lumped_ohm=b["high_ohm"][-1], **run)
-        hi = _headline(site, _perturbed_wires(site, +1.0), f, hi_ohm, lumped_ohm=b["low_ohm"][-1], **run)
-        label = "full wave"
+        # over real soil the soil under the aerial moves with the electrodes' soil: the worse end with the lowered wires
+        site_lo, site_hi = site, site
+        if ground != "perfect":
+            site_lo, site_hi = replace(site, soil=soil_bound(site.soil, "low")), replace(site, soil=soil_bound(site.soil, "high"))
+        lo = _headline(site_lo, _perturbed_wires(site, -1.0), f, lo_ohm, lumped_ohm=b["high_ohm"][-1], **run)
+        hi = _headline(site_hi, _perturbed_wires(site, +1.0), f, hi_ohm, lumped_ohm=b["low_ohm"][-1], **run)
+        label = "full wave" if ground == "perfect" else "full wave, the soil under the aerial at its bounds too"
     else:
         lo = _headline(site, _perturbed_wires(site, -1.0), f, lo_ohm, like=like, shielding_case=2)
         hi = _headline(site, _perturbed_wires(site, +1.0), f, hi_ohm, like=like, shielding_case=0)
@@ -624,6 +633,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
                 "relative_permittivity": site.soil.relative_permittivity,
                 "conductivity_s_m": site.soil.conductivity_s_m,
                 "conductivity_range_s_m": [site.soil.conductivity_low_s_m, site.soil.conductivity_high_s_m],
+                "relative_permittivity_range": list(site.soil.permittivity_bounds),
                 "source": site.soil.source,
             },
             "field_strength_v_per_m": site.field_strength_v_per_m,

@@ -211,14 +211,38 @@ def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=(), fixe
                       "its DC resistance formula as the frequency falls."]}
 
 
+def soil_permittivities(soil) -> tuple:
+    """The relative permittivities a soil's range is run with: its value and the ends of its range. [1]
+
+    >>> from aerial.site.reader import SoilSpec
+    >>> soil_permittivities(SoilSpec("medium-dry", 15.0, 1e-3, 3e-4, 3e-3, "ITU-R P.527", 7.0, 22.0))
+    (15.0, 7.0, 22.0)
+    >>> soil_permittivities(SoilSpec("measured", 12.0, 1e-3, 5e-4, 2e-3, "given"))
+    (12.0,)
+    """
+    low, high = soil.permittivity_bounds
+    return tuple(dict.fromkeys([float(soil.relative_permittivity), float(low), float(high)]))
+
+
+def soil_bound(soil, end: str):
+    """The soil at one end of its range: ``end`` "low" (least conductive, lowest permittivity) or "high"."""
+    low, high = soil.permittivity_bounds
+    if end == "low":
+        return replace(soil, conductivity_s_m=soil.conductivity_low_s_m, relative_permittivity=low)
+    return replace(soil, conductivity_s_m=soil.conductivity_high_s_m, relative_permittivity=high)
+
+
 def resistance_bounds(electrodes, soil, frequency, counterpoise_wires=()) -> dict:
     """Low and high earth resistance at radio frequency, the soil at its conductivity bounds. [ohm]
 
     The same model as the value (:func:`electrode_impedance`, each electrode
     a lossy line in the soil) run with the soil's conductivity at each end of
     its category's bounds (a measured soil: a factor of two either way) and
-    at ``INTERIOR_SOIL_POINTS`` log-spaced values between them, the category's
-    permittivity kept; the real part of the impedance is the loss resistance.
+    at ``INTERIOR_SOIL_POINTS`` log-spaced values between them, each with the
+    permittivity at the low and high ends of the category's range and at its
+    value (:func:`soil_permittivities`; ITU-R P.527 categories; a permittivity
+    given in the site file is kept); the real part of the impedance is the
+    loss resistance.
     The interior points are there because the line's resistance need not
     fall steadily as the conductivity rises: where the soil's displacement
     current rivals its conduction current (dry soil, upper MF and HF) the
@@ -237,8 +261,9 @@ def resistance_bounds(electrodes, soil, frequency, counterpoise_wires=()) -> dic
     """
     sigmas = np.geomspace(soil.conductivity_high_s_m, soil.conductivity_low_s_m, INTERIOR_SOIL_POINTS + 2)
     fixed = ["low"] + ["nominal"] * INTERIOR_SOIL_POINTS + ["high"]
-    runs = [electrode_impedance(electrodes, replace(soil, conductivity_s_m=float(sg)), frequency, counterpoise_wires,
-                                fixed=fx) for sg, fx in zip(sigmas, fixed)]
+    runs = [electrode_impedance(electrodes, replace(soil, conductivity_s_m=float(sg), relative_permittivity=float(ep)),
+                                frequency, counterpoise_wires, fixed=fx)
+            for sg, fx in zip(sigmas, fixed) for ep in soil_permittivities(soil)]
     whole = np.stack([r["impedance_ohm"].real for r in runs])
     parts = [np.stack([r["parts"][n]["impedance_ohm"].real for r in runs]) for n in range(len(runs[0]["parts"]))]
     return {"low_ohm": whole.min(axis=0), "high_ohm": whole.max(axis=0),
@@ -273,4 +298,5 @@ def as_counterpoise_site(site):
     return [w for w in site.wires if w.role == "counterpoise"]
 
 
-__all__ = ["earth_system", "improved_earth", "electrode_impedance", "resistance_bounds", "BUILDING_EARTH_TYPICAL_OHM", "replace"]
+__all__ = ["earth_system", "improved_earth", "electrode_impedance", "resistance_bounds", "BUILDING_EARTH_TYPICAL_OHM", "replace",
+           "soil_permittivities", "soil_bound"]

@@ -229,7 +229,7 @@ def building_full_wave_response(site, geometry, frequency, earth_ohm, progress=N
     out = full_wave_response(site, bare, f, earth_ohm, progress=None, ground=ground, allow_large=allow_large)
     series = 0.0 if not geometry.base_fed else float(earth_ohm)
     kwargs = {}
-    if ground == "lossy":
+    if ground != "perfect":
         kwargs = {"soil_permittivity": site.soil.relative_permittivity, "soil_conductivity": site.soil.conductivity_s_m}
     res = solve_full_wave(gridded, f, ground=ground, series_ohm=series, progress=progress, **kwargs)
     s_lo, s_nom, s_hi = body.shielding

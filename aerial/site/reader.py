@@ -207,6 +207,15 @@ class SoilSpec:
     conductivity_low_s_m: float
     conductivity_high_s_m: float
     source: str
+    relative_permittivity_low: float | None = None
+    relative_permittivity_high: float | None = None
+
+    @property
+    def permittivity_bounds(self) -> tuple[float, float]:
+        """Low and high relative permittivity of the soil's range (the value itself when it was given). [1]"""
+        low = self.relative_permittivity if self.relative_permittivity_low is None else self.relative_permittivity_low
+        high = self.relative_permittivity if self.relative_permittivity_high is None else self.relative_permittivity_high
+        return min(low, self.relative_permittivity), max(high, self.relative_permittivity)
 
 
 @dataclass(frozen=True)
@@ -732,16 +741,20 @@ def _soil(r: TableReader, value, key, notes: list) -> SoilSpec:
     eps = r.number(value, key, "relative_permittivity", low=1.0, high=100.0, what="a relative permittivity")
     if base is None and sigma is None:
         r.fail(key, value, "expected a category or a conductivity/resistivity")
+    # a permittivity given in the file is a measurement and is kept; otherwise the category's range (ITU-R P.527)
+    eps_range = (None, None) if eps is not None else (
+        (base.relative_permittivity_low, base.relative_permittivity_high) if base else
+        (SOILS["medium-dry"].relative_permittivity_low, SOILS["medium-dry"].relative_permittivity_high))
     if sigma is not None:
-        eps = eps if eps is not None else (base.relative_permittivity if base else 15.0)
+        eps = eps if eps is not None else (base.relative_permittivity if base else SOILS["medium-dry"].relative_permittivity)
         # a measured value: assume it is known within a factor of 2 either way
         return SoilSpec(
             "measured" if base is None else base.name, eps, sigma, sigma / 2.0, sigma * 2.0,
-            "user-given conductivity (taken as known within a factor of 2)",
+            "user-given conductivity (taken as known within a factor of 2)", *eps_range,
         )
     return SoilSpec(
         base.name, eps if eps is not None else base.relative_permittivity, base.conductivity_s_m,
-        base.conductivity_low_s_m, base.conductivity_high_s_m, f"{base.source}: {base.description}",
+        base.conductivity_low_s_m, base.conductivity_high_s_m, f"{base.source}: {base.description}", *eps_range,
     )
 
 
@@ -1301,7 +1314,8 @@ def _stations(r: TableReader, raw, soil: SoilSpec, notes: list, site_position=No
         if "soil" in t:
             b = soil_base(r, t["soil"], f"{key}.soil", notes)
             st_soil = SoilSpec(b.name, b.relative_permittivity, b.conductivity_s_m, b.conductivity_low_s_m,
-                               b.conductivity_high_s_m, f"{b.source}: {b.description}")
+                               b.conductivity_high_s_m, f"{b.source}: {b.description}",
+                               b.relative_permittivity_low, b.relative_permittivity_high)
         out.append(Station(name, f, p, d, st_soil, key, where[0] if where else None, where[1] if where else None,
                            None if bearing is None else bearing % 360.0))
     return out
