@@ -63,7 +63,7 @@ UNIT_BOUNDS = {  # suffix: (low, high) for the magnitude of a plausible value in
     "_w": (0.0, 1e7), "_v": (0.0, 1e3), "_v_per_m": (0.0, 10.0), "_s_m": (0.0, 10.0), "_db": (0.0, 400.0),
     "_q": (0.0, 1e4), "_ratio": (0.0, 10.0), "_deg": (0.0, 360.0),
 }
-PLAIN_NUMBERS = {"efficiency", "relative_permittivity", "turns", "whole_turns", "solver_iterations", "count",
+PLAIN_NUMBERS = {"efficiency", "relative_permittivity", "relative_permittivity_range", "turns", "whole_turns", "solver_iterations", "count",
                  "points", "iterations", "score", "rank", "loaded_q_weak_signal"}
 
 
