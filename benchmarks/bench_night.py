@@ -61,22 +61,52 @@ def _day_only(site, f, r, x, rr, he, parts):
     return reception.assess_stations(f, r, x, rr, he, parts, st, noise_category=site.noise.replace("-", " ")), []
 
 
+def _station_step_inputs(site):
+    """The arguments the report passes to the station step, captured from one report."""
+    seen = {}
+    real = receiver._stations_day_and_night
+
+    def spy(*args):
+        seen["args"] = args
+        return real(*args)
+
+    with mock.patch.object(receiver, "_stations_day_and_night", spy):
+        assemble.analyse(site)
+    return seen["args"]
+
+
+def _median_time(fn, args, repeats):
+    out = []
+    for _ in range(repeats):
+        t = time.perf_counter()
+        fn(*args)
+        out.append(time.perf_counter() - t)
+    return statistics.median(out)
+
+
 def main(repeats: int = 7) -> None:
     site = load_site_text(SITE)
     with_night, without = [], []
-    for _ in range(repeats):
-        t = time.perf_counter()
-        assemble.analyse(site)
-        with_night.append(time.perf_counter() - t)
-        with mock.patch.object(receiver, "_stations_day_and_night", _day_only):
+    for k in range(repeats):  # paired, alternating which goes first
+        for night_first in ((True, False) if k % 2 == 0 else (False, True)):
             t = time.perf_counter()
-            assemble.analyse(site)
-            without.append(time.perf_counter() - t)
+            if night_first:
+                assemble.analyse(site)
+                with_night.append(time.perf_counter() - t)
+            else:
+                with mock.patch.object(receiver, "_stations_day_and_night", _day_only):
+                    assemble.analyse(site)
+                without.append(time.perf_counter() - t)
     a, b = statistics.median(with_night), statistics.median(without)
+    args = _station_step_inputs(site)
+    step_both = _median_time(receiver._stations_day_and_night, args, 5 * repeats)
+    step_day = _median_time(_day_only, args, 5 * repeats)
     print(f"cores: {os.cpu_count()}; load average {os.getloadavg()[0]:.1f}; {repeats} paired runs, medians")
     print("| report, 10 stations | day only | day and night | night share |")
     print("|---|---|---|---|")
-    print(f"| closed form, MF | {b * 1e3:.0f} ms | {a * 1e3:.0f} ms | {100 * (a - b) / a:.0f} % |")
+    print(f"| closed form, MF (whole report) | {b * 1e3:.0f} ms | {a * 1e3:.0f} ms | {100 * (a - b) / a:.0f} % |")
+    print(f"| the station step alone | {step_day * 1e3:.1f} ms | {step_both * 1e3:.1f} ms | "
+          f"{100 * (step_both - step_day) / a:.1f} % of the report |")
 
 
 if __name__ == "__main__":

@@ -135,3 +135,26 @@ def test_report_gives_each_station_a_day_and_a_night_verdict(write_site, capsys)
     assert main(["report", str(p)]) == 0
     out = capsys.readouterr().out
     assert "by night" in out and "by day" in out
+
+
+def test_consistency_check_day_and_night_in_one_pass_match_two_separate_assessments():
+    # consistency check: judging both conditions in one vectorised pass gives the figures of two passes
+    f = [500e3, 1000e3, 1700e3]
+    x = [-1 / (2 * math.pi * fi * 100e-12) for fi in f]
+    parts = reception.TuningParts(coil_inductance_h=200e-6, capacitor_min_f=15e-12, capacitor_max_f=365e-12)
+    aerial = dict(frequency_hz=f, aerial_r_ohm=[25, 25, 25], aerial_x_ohm=x, aerial_rr_ohm=[0.3, 1.2, 3.0],
+                  effective_height_m=[8, 8, 8])
+    day = [reception.Station("Demo Near", 700e3, 5e3, 30e3, 15.0, 1e-3),
+           reception.Station("Demo Far", 1.2e6, 50e3, 700e3, 15.0, 1e-3)]
+    night = [reception.Station("Demo Near", 700e3, 5e3, 30e3, 15.0, 1e-3, sky_wave_field_v_per_m=2e-4,
+                               atmospheric_noise_db=55.0),
+             reception.Station("Demo Far", 1.2e6, 50e3, 700e3, 15.0, 1e-3, sky_wave_field_v_per_m=1e-3,
+                               atmospheric_noise_db=55.0)]
+    joint = reception.assess_stations_by_condition(**aerial, parts=parts, conditions=[day, night])
+    for together, alone in zip(joint, (reception.assess_stations(**aerial, parts=parts, stations=day),
+                                       reception.assess_stations(**aerial, parts=parts, stations=night))):
+        for a, b in zip(together, alone):
+            assert a["verdict_text"] == b["verdict_text"]
+            assert a["field_v_per_m"] == pytest.approx(b["field_v_per_m"], rel=1e-12)
+            assert a["detector_power_w"] == pytest.approx(b["detector_power_w"], rel=1e-3)
+            assert [h["name"] for h in a["heard_behind"]] == [h["name"] for h in b["heard_behind"]]

@@ -145,16 +145,16 @@ def _stations_day_and_night(site, f, r, x, rr, he, parts) -> tuple[list, list]:
     skies = [night.sky_wave(site, s) for s in site.stations]
     category = site.noise.replace("-", " ")
 
-    def assess(time_of_day):
-        st = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
-                                s.soil.conductivity_s_m,
-                                sky_wave_field_v_per_m=sky["field_v_per_m"] if time_of_day == "night" else 0.0,
-                                atmospheric_noise_db=float(floor[time_of_day]["atmospheric_db"][i]))
-              for i, (s, sky) in enumerate(zip(site.stations, skies))]
-        return reception.assess_stations(f, r, x, rr, he, parts, st, noise_category=category)
+    def condition(time_of_day):
+        return [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
+                                  s.soil.conductivity_s_m,
+                                  sky_wave_field_v_per_m=sky["field_v_per_m"] if time_of_day == "night" else 0.0,
+                                  atmospheric_noise_db=float(floor[time_of_day]["atmospheric_db"][i]))
+                for i, (s, sky) in enumerate(zip(site.stations, skies))]
 
-    stations = assess("day")
-    by_night = assess("night")
+    stations, by_night = reception.assess_stations_by_condition(f, r, x, rr, he, parts,
+                                                                [condition("day"), condition("night")],
+                                                                noise_category=category)
     for i, (s, n, sky, src) in enumerate(zip(stations, by_night, skies, site.stations)):
         s.setdefault("power_w", src.power_w)
         s.setdefault("distance_m", src.distance_m)

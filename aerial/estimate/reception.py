@@ -1145,20 +1145,82 @@ def assess_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, eff
     >>> assess_stations(f, [25, 25], x, [0.3, 3.0], [8, 8], parts, [s])[0]["verdict"]
     'clearly heard'
     """
+    return assess_stations_by_condition(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m,
+                                        parts, [list(stations)], noise_category, modulation_depth)[0]
+
+
+def assess_stations_by_condition(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m,
+                                 parts: TuningParts, conditions, noise_category="residential",
+                                 modulation_depth=det_mod.DEFAULT_MODULATION_DEPTH) -> list:
+    """The same stations judged under several conditions (by day, by night) in one vectorised pass.
+
+    Parameters
+    ----------
+    frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m, parts, noise_category, modulation_depth
+        As :func:`assess_stations`.
+    conditions : sequence of sequences of Station
+        One list of stations per condition, each the same stations (names and frequencies) with
+        that condition's sky-wave field and atmospheric noise.
+
+    Returns
+    -------
+    list of lists of dict
+        For each condition, what :func:`assess_stations` returns for its stations.
+
+    Notes
+    -----
+    Every station of every condition goes through the tank and detector solution together (the
+    cost of that pass hardly grows with the number of stations); interference and spill-over are
+    then judged within each condition only.
+
+    Examples
+    --------
+    >>> f = [500e3, 1700e3]
+    >>> x = [-1 / (2 * 3.141592653589793 * fi * 100e-12) for fi in f]
+    >>> parts = TuningParts(coil_inductance_h=200e-6, capacitor_min_f=15e-12, capacitor_max_f=365e-12)
+    >>> day = Station("Demo Far", 1e6, 10e3, 400e3, 15.0, 1e-3)
+    >>> night = Station("Demo Far", 1e6, 10e3, 400e3, 15.0, 1e-3, sky_wave_field_v_per_m=1e-3)  # 1 mV/m by sky wave
+    >>> [r[0]["verdict"] for r in assess_stations_by_condition(f, [25, 25], x, [0.3, 3.0], [8, 8], parts,
+    ...                                                         [[day], [night]])]
+    ['not heard', 'marginal']
+    """
     _check_parts(parts)
     noise_mod.check_noise_category(noise_category)
     if not (0 < modulation_depth <= 1):
         raise ModelInputError(f"modulation_depth must lie in (0, 1], got {modulation_depth!r}")
-    stations = list(stations)
-    if not stations:
-        return []
-    _check_stations(stations)
+    conditions = [list(c) for c in conditions]
+    n = len(conditions[0]) if conditions else 0
+    if any(len(c) != n for c in conditions):
+        raise ModelInputError("every condition must list the same stations")
+    if n == 0:
+        return [[] for _ in conditions]
+    every = [s for c in conditions for s in c]
+    _check_stations(every)
     aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m)
     common: list = []
     diode = _diode(parts)
     _apply_calibration(aerial, parts, diode, common)
     coil = _station_coil(aerial, parts)
-    a = _station_arrays(aerial, coil, parts, diode, stations, noise_category, modulation_depth)
+    together = _station_arrays(aerial, coil, parts, diode, every, noise_category, modulation_depth)
+    return [_judged_rows(aerial, parts, stations, _condition_arrays(together, k * n, (k + 1) * n), common)
+            for k, stations in enumerate(conditions)]
+
+
+def _condition_arrays(a: dict, lo: int, hi: int) -> dict:
+    """The stations lo..hi of a joint pass: their figures, and the n × n block of who spills onto whom."""
+    total = len(a["fs"])
+
+    def cut(v):
+        if isinstance(v, tuple) and hasattr(v, "_fields"):
+            return type(v)(*(cut(x) for x in v))
+        if isinstance(v, np.ndarray) and v.ndim >= 1 and v.shape[0] == total:
+            return v[lo:hi, lo:hi] if v.ndim == 2 and v.shape[1] == total else v[lo:hi]
+        return v
+
+    return {k: cut(v) for k, v in a.items()}
+
+
+def _judged_rows(aerial, parts, stations, a, common) -> list:
     judged = judge_stations(a, parts, [s.name for s in stations])
     results = []
     for i, s in enumerate(stations):
