@@ -58,6 +58,14 @@ def test_positions_give_the_station_distance_and_bearing():
     ('', 'latitude = 40\nlongitude = 3', "stations[0].latitude", "site's own"),
     ('latitude = 50\nlongitude = 1', 'latitude = 40\nlongitude = 3\ndistance = "9 km"', "stations[0].distance",
      "not both"),
+    ('listening_time = "dusk"', 'distance = "10 km"', "site.listening_time", "before dawn"),
+    ('listening_time = "25:10"', 'distance = "10 km"', "site.listening_time", "21:30"),
+    ('date = "15/01/2026"', 'distance = "10 km"', "site.date", "year-month-day"),
+    ('utc_offset = "+15"', 'distance = "10 km"', "site.utc_offset", "-12 to +14"),
+    ('latitude = 50\nlongitude = 1\nseason = "winter"\ndate = 2026-07-01', 'distance = "10 km"', "site.season",
+     "falls in summer"),
+    ('distance_to_sea = "-3 km"', 'distance = "10 km"', "site.distance_to_sea", "at least 0"),
+    ('', 'distance = "10 km"\ndistance_to_sea = "near"', "stations[0].distance_to_sea", "length"),
 ])
 def test_bad_night_inputs_name_the_key(site_extra, station_extra, key, words):
     from aerial.core.errors import SiteError
@@ -158,3 +166,60 @@ def test_consistency_check_day_and_night_in_one_pass_match_two_separate_assessme
             assert a["field_v_per_m"] == pytest.approx(b["field_v_per_m"], rel=1e-12)
             assert a["detector_power_w"] == pytest.approx(b["detector_power_w"], rel=1e-3)
             assert [h["name"] for h in a["heard_behind"]] == [h["name"] for h in b["heard_behind"]]
+
+
+def test_the_listening_hour_date_offset_and_sea_are_read():
+    s = _site('latitude = -33.9\nlongitude = 151.2\nlistening_time = "21:30"\ndate = 2026-01-15\n'
+              'utc_offset = "+11"\ndistance_to_sea = "2 km"', 'distance = "800 km"\ndistance_to_sea = 0')
+    assert (s.listening_time, s.listening_hour, s.day_of_year, s.utc_offset_h) == ("clock", 21.5, 15, 11.0)
+    assert s.season == "summer"  # from the date, southern hemisphere (astronomical seasons)
+    assert s.distance_to_sea_m == 2e3 and s.stations[0].distance_to_sea_m == 0.0
+
+
+def test_evening_sky_wave_is_below_the_reference_hour_and_daylight_has_none():
+    # ITU-R P.1147-4 §3 (from memory): two hours after sunset the field is still a few dB below the
+    # reference hour's; in full daylight at the path's midpoint the method gives no sky wave
+    where = 'latitude = 52.0\nlongitude = -1.0\ndate = 2026-01-15\nutc_offset = 0\n'
+    station = 'distance = "900 km"\nbearing = 120'
+    ref = night.sky_wave(*_one(where, station))
+    eve = night.sky_wave(*_one(where + 'listening_time = "evening"', station))
+    noon = night.sky_wave(*_one(where + 'listening_time = "12:30"', station))
+    assert ref["hourly_loss_db"] == 0.0 and ref["listening_time"].startswith("six hours after sunset")
+    assert 0.5 < eve["hourly_loss_db"] < 6.0 and eve["field_v_per_m"] < ref["field_v_per_m"]
+    assert 1.0 < eve["hours_after_sunset_at_midpoint"] < 3.0
+    assert noon["daylight_at_midpoint"] and noon["field_v_per_m"] == 0.0
+
+
+def test_a_coastal_site_gets_the_sea_gain():
+    # ITU-R P.1147-4 §4 (from memory): a terminal on the coast raises the sky wave by a few dB
+    inland = night.sky_wave(*_one('latitude = 52.0\nlongitude = -1.0', 'distance = "900 km"\nbearing = 120'))
+    coast = night.sky_wave(*_one('latitude = 52.0\nlongitude = -1.0\ndistance_to_sea = 0',
+                                 'distance = "900 km"\nbearing = 120'))
+    assert inland["sea_gain_db"] == 0.0 and 3.0 < coast["sea_gain_db"] < 5.0
+    assert 20 * math.log10(coast["field_v_per_m"] / inland["field_v_per_m"]) == pytest.approx(coast["sea_gain_db"])
+
+
+def test_the_night_noise_follows_the_block_of_the_listening_hour():
+    s = _site('noise = "quiet-rural"\nlatitude = 45\nlongitude = 10\nseason = "summer"\nlistening_time = "02:00"')
+    floor = night.noise_floor(s, [1e6])
+    assert floor["night"]["time_block"] == "00–04 h" and floor["day"]["time_block"] == "08–12 h and 12–16 h"
+    # quiet rural in a dark summer block: atmospheric noise sets the floor (ITU-R P.372 maps, from memory)
+    assert floor["night"]["dominant"] == ["atmospheric"]
+    assert floor["night"]["atmospheric_db"][0] > floor["day"]["atmospheric_db"][0] + 10
+
+
+def test_report_names_the_listening_hour(write_site, capsys):
+    import json
+
+    p = write_site(BASE.format(site_extra='latitude = 52.0\nlongitude = -1.0\ndate = 2026-01-15\n'
+                                          'listening_time = "evening"\ndistance_to_sea = "1 km"',
+                               station_extra='distance = "600 km"\nbearing = 135'))
+    assert main(["report", str(p), "--json"]) == 0
+    n = json.loads(capsys.readouterr().out)["stations"][0]["night"]
+    assert n["listening_time"].startswith("evening, two hours after sunset")
+    assert n["hourly_loss_db"] > 0 and n["sea_gain_db"] > 0 and n["noise_time_block"] == "16–20 h"
+    assert main(["report", str(p)]) == 0
+    assert "by night: evening, two hours after sunset" in capsys.readouterr().out
+    q = write_site(BASE.format(site_extra='listening_time = "teatime"', station_extra='distance = "600 km"'))
+    assert main(["check", str(q)]) == 2
+    assert "site.listening_time" in capsys.readouterr().err

@@ -141,8 +141,9 @@ def _stations_day_and_night(site, f, r, x, rr, he, parts) -> tuple[list, list]:
     from aerial.estimate import night
 
     freqs = [s.frequency_hz for s in site.stations]
-    floor = night.noise_floor(site, freqs)
-    skies = [night.sky_wave(site, s) for s in site.stations]
+    moment = night.listening_moment(site)
+    floor = night.noise_floor(site, freqs, moment)
+    skies = night.sky_waves(site, moment=moment)
     category = site.noise.replace("-", " ")
 
     def condition(time_of_day):
@@ -185,8 +186,16 @@ def _stations_day_and_night(site, f, r, x, rr, he, parts) -> tuple[list, list]:
             "geomagnetic_latitude_deg": sky["geomagnetic_latitude_deg"],
             "geomagnetic_latitude_from": sky["geomagnetic_latitude_from"],
             "sky_wave_outside_method": sky["outside_method"],
+            "listening_time": sky["listening_time"],
+            "hourly_loss_db": sky["hourly_loss_db"],
+            "hours_after_sunset_at_midpoint": sky["hours_after_sunset_at_midpoint"],
+            "sky_wave_in_daylight": sky["daylight_at_midpoint"],
+            "sea_gain_db": sky["sea_gain_db"],
+            "noise_time_block": floor["night"]["time_block"],
+            "atmospheric_noise_db": float(floor["night"]["atmospheric_db"][i]),
         }
-    warnings = list(floor["notes"])
+        s["noise_time_block"] = floor["day"]["time_block"]
+    warnings = list(moment["notes"]) + list(floor["notes"])
     outside = [s.name for s, sky in zip(site.stations, skies) if sky["outside_method"]]
     if outside:
         warnings.append("Sky wave: the ITU-R P.1147 method holds for 150–1700 kHz and paths of 50–12 000 km; "

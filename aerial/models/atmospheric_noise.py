@@ -7,12 +7,22 @@ plus curves that carry the 1 MHz value to other frequencies. Those maps are
 not a closed form and are not shipped with aerial. This module offers:
 
 * the combination of noise sources (powers add) and which one dominates;
-* the frequency conversion from Fam at 1 MHz, as a straight-line reading of
-  the P.372 frequency-variation curves at LF/MF (from memory, about ±5 dB);
+* the frequency conversion from Fam at 1 MHz, a reading of the P.372
+  frequency-variation curves at LF/MF whose slope depends on the 1 MHz level
+  (the curves fan out: the quieter the place at 1 MHz, the steeper the rise
+  towards LF), from memory, about ±5 dB at the band edges;
+* the P.372 time blocks (00–04, 04–08, … 20–24 h local time): each block's
+  Fam(1 MHz) is the power mean of the night and day levels over the hours of
+  the block that are dark and light at the site's latitude and date (an
+  interpolation of ours between the maps' night-time and daytime levels);
+* the upper and lower deciles D_u and D_l of the hourly values about the
+  block's median, by block (from memory of the P.372 tables, about ±3 dB);
 * indicative Fam(1 MHz) by latitude band, season and day or night, read
   **from memory** of the P.372 maps (the median of a band; a given place can
   differ by 10 dB or more), used only when the site does not give its own
   value read from the maps. The range carried with them is ±10 dB.
+
+The parts of the range are independent and combine as a root sum of squares.
 
 References
 ----------
@@ -53,13 +63,89 @@ INDICATIVE_FAM_1MHZ_DB: dict[tuple[float, str], dict[str, float]] = {
 #: Spread carried with an indicative value (a place within a latitude band). [dB]
 INDICATIVE_SPREAD_DB = 10.0
 
-#: Slope of Fam with log10(frequency) at LF/MF, read from memory of the P.372
-#: frequency-variation curves (night: falls with frequency; day: roughly flat
-#: over MF). [dB per decade]
-FREQUENCY_SLOPE_DB_PER_DECADE = {"night": -15.0, "day": 0.0}
+#: Local-time blocks of the P.372 maps: (start, end) hours. [h]
+TIME_BLOCKS = ((0.0, 4.0), (4.0, 8.0), (8.0, 12.0), (12.0, 16.0), (16.0, 20.0), (20.0, 24.0))
+
+#: Upper and lower deciles of the hourly Fam about the block's median at 1 MHz, (D_u, D_l) by
+#: block, read from memory of the P.372 tables (larger in the blocks with sunrise or sunset and
+#: by day, when nearby storms dominate). [dB]
+DECILE_DEVIATIONS_DB = ((7.0, 6.0), (9.0, 7.0), (11.0, 8.0), (11.0, 8.0), (10.0, 7.0), (8.0, 6.0))
+
+#: Frequency curves of P.372 at LF/MF as slopes of Fam with log10(f): below 1 MHz the slope is
+#: ``a + b·Fam(1 MHz)`` within [lo, hi], above 1 MHz a fixed slope; read from memory of the
+#: curves (night: the noise rises towards LF, less where it is already loud at 1 MHz; day: MF
+#: is absorbed, so LF stands much higher). [dB per decade]
+FREQUENCY_CURVES = {
+    "night": {"a": -38.0, "b": 0.28, "lo": -35.0, "hi": -8.0, "above": -10.0},
+    "day": {"a": -50.0, "b": 0.35, "lo": -45.0, "hi": -15.0, "above": 5.0},
+}
+
+#: Uncertainty of the frequency conversion at the band edges. [dB]
+CONVERSION_SPREAD_DB = 5.0
 
 #: Frequencies over which the conversion is used. [Hz]
 CONVERSION_RANGE_HZ = (100e3, 2e6)
+
+
+def time_block(local_hour: float) -> int:
+    """Index in ``TIME_BLOCKS`` of the block holding a local clock hour.
+
+    Examples
+    --------
+    >>> time_block(21.5), time_block(0.0), time_block(24.0)
+    (5, 0, 0)
+    """
+    h = float(local_hour) % 24.0
+    return int(h // 4.0)
+
+
+def block_name(index: int) -> str:
+    """The block as P.372 names it: "20–24 h".
+
+    Examples
+    --------
+    >>> block_name(5)
+    '20–24 h'
+    """
+    a, b = TIME_BLOCKS[index]
+    return f"{a:02.0f}–{b:02.0f} h"
+
+
+def block_fam_1mhz(night_db: float, day_db: float, dark_fraction: float) -> float:
+    """Fam at 1 MHz for a block part dark and part light: the power mean over its hours.
+
+    Parameters
+    ----------
+    night_db, day_db : float
+        Fam at 1 MHz in darkness and in daylight. [dB above kT0b]
+    dark_fraction : float
+        Share of the block's hours with the sun down (:func:`aerial.models.sun.dark_fraction`). [1]
+
+    Returns
+    -------
+    float
+        10·log10(x·10^(N/10) + (1 − x)·10^(D/10)). [dB above kT0b]
+
+    Examples
+    --------
+    >>> block_fam_1mhz(60.0, 30.0, 1.0), round(block_fam_1mhz(60.0, 30.0, 0.5), 1)
+    (60.0, 57.0)
+    """
+    x = min(max(float(dark_fraction), 0.0), 1.0)
+    return float(10.0 * np.log10(x * 10 ** (night_db / 10) + (1 - x) * 10 ** (day_db / 10)))
+
+
+def frequency_slope(fam_1mhz_db, time_of_day: str = "night", above_1mhz=False):
+    """Slope of Fam with log10(frequency) from the P.372 curves (from memory). [dB per decade]
+
+    Examples
+    --------
+    >>> float(frequency_slope(60.0)), float(frequency_slope(20.0)), float(frequency_slope(60.0, "day"))
+    (-21.2, -32.4, -29.0)
+    """
+    c = FREQUENCY_CURVES[_choice(time_of_day, TIMES_OF_DAY, "time of day")]
+    below = np.clip(c["a"] + c["b"] * np.asarray(fam_1mhz_db, dtype=float), c["lo"], c["hi"])
+    return np.where(above_1mhz, c["above"], below)
 
 
 class AtmosphericNoise(NamedTuple):
@@ -113,8 +199,9 @@ def indicative_fam_1mhz(latitude_deg: float, time_of_day: str, season: str) -> f
 
 
 def atmospheric_noise_figure(frequency_hz, fam_1mhz_db: float, time_of_day: str = "night",
-                             spread_db: float = 0.0, indicative: bool = False) -> AtmosphericNoise:
-    """Atmospheric noise figure at LF/MF from its value at 1 MHz.
+                             spread_db: float = 0.0, indicative: bool = False, block: int | None = None
+                             ) -> AtmosphericNoise:
+    """Atmospheric noise figure at LF/MF from its value at 1 MHz, with its range.
 
     Parameters
     ----------
@@ -124,11 +211,14 @@ def atmospheric_noise_figure(frequency_hz, fam_1mhz_db: float, time_of_day: str 
         Median Fam at 1 MHz for the place, season and time block (ITU-R P.372
         maps, or :func:`indicative_fam_1mhz`). [dB above kT0b]
     time_of_day : {"day", "night"}
+        Which of the frequency curves to follow.
     spread_db : float
-        Half-width of the range to carry (10 dB for an indicative value; the
-        frequency conversion adds 5 dB). [dB]
+        Uncertainty of the 1 MHz value itself (10 dB for an indicative value). [dB]
     indicative : bool
         Whether the 1 MHz value is the built-in indicative one.
+    block : int, optional
+        Time block (``TIME_BLOCKS``) for the deciles D_u, D_l; without it the
+        range leaves out the hour-to-hour variation.
 
     Returns
     -------
@@ -136,15 +226,19 @@ def atmospheric_noise_figure(frequency_hz, fam_1mhz_db: float, time_of_day: str 
 
     Notes
     -----
-    Fam(f) = Fam(1 MHz) + s·log10(f / 1 MHz), s from
-    ``FREQUENCY_SLOPE_DB_PER_DECADE`` (a straight-line reading, from memory,
-    of the P.372 curves over 0.1–2 MHz).
+    Fam(f) = Fam(1 MHz) + s·log10(f / 1 MHz), s from :func:`frequency_slope`.
+    The range is median − √(D_l² + u² + c²) to median + √(D_u² + u² + c²), u the
+    1 MHz value's uncertainty and c the conversion's, growing from 0 at 1 MHz to
+    ``CONVERSION_SPREAD_DB`` a decade away.
 
     Examples
     --------
     >>> n = atmospheric_noise_figure([0.5e6, 1e6], 70.0)
     >>> [round(float(v), 1) for v in n.noise_figure_db]
-    [74.5, 70.0]
+    [75.5, 70.0]
+    >>> n = atmospheric_noise_figure(1e6, 60.0, block=5)
+    >>> float(n.low_db), float(n.high_db)
+    (54.0, 68.0)
     """
     _choice(time_of_day, TIMES_OF_DAY, "time of day")
     f = np.asarray(frequency_hz, dtype=float)
@@ -152,10 +246,14 @@ def atmospheric_noise_figure(frequency_hz, fam_1mhz_db: float, time_of_day: str 
         raise ModelInputError(f"frequency must be a positive finite number, got {frequency_hz!r}")
     if not np.isfinite(fam_1mhz_db):
         raise ModelInputError(f"Fam at 1 MHz must be a finite number of dB, got {fam_1mhz_db!r}")
-    fam = fam_1mhz_db + FREQUENCY_SLOPE_DB_PER_DECADE[time_of_day] * np.log10(f / 1e6)
-    half = float(spread_db) + 5.0
+    decades = np.log10(f / 1e6)
+    fam = fam_1mhz_db + frequency_slope(fam_1mhz_db, time_of_day, decades > 0) * decades
+    du, dl = DECILE_DEVIATIONS_DB[block] if block is not None else (0.0, 0.0)
+    conv = CONVERSION_SPREAD_DB * np.minimum(np.abs(decades), 1.0)
+    up = np.sqrt(du**2 + float(spread_db) ** 2 + conv**2)
+    down = np.sqrt(dl**2 + float(spread_db) ** 2 + conv**2)
     outside = (f < CONVERSION_RANGE_HZ[0]) | (f > CONVERSION_RANGE_HZ[1])
-    return AtmosphericNoise(fam, fam - half, fam + half, bool(indicative), outside)
+    return AtmosphericNoise(fam, fam - down, fam + up, bool(indicative), outside)
 
 
 def combine_noise_figures(*figures_db):

@@ -6,7 +6,10 @@ Recommendation P.1147 ("Prediction of sky-wave field strength at frequencies
 between about 150 and 1 700 kHz") gives the annual median field strength for
 a night-time hour from a few closed expressions: a slant distance over a
 reflection height of 100 km, a basic loss factor that grows with frequency and
-geomagnetic latitude, a solar-activity term, and the within-night spread.
+geomagnetic latitude, a solar-activity term, and the within-night spread; a
+sea gain for terminals near the sea, and an hourly loss factor for hours other
+than the reference hour six hours after sunset (read at the path's midpoint,
+with the sun's times from :mod:`aerial.models.sun`).
 
 All the expressions here are the method's as recalled **from memory** of
 ITU-R P.1147-4 (not re-read against the Recommendation); the numbers they give
@@ -276,12 +279,57 @@ def within_night_deviation(geomagnetic_latitude_deg):
     return np.clip(0.2 * phi - 2.0, 6.0, 10.0)
 
 
-def control_latitude(lat_tx_deg, lon_tx_deg, lat_rx_deg, lon_rx_deg):
-    """Geomagnetic latitude Φ that sets the basic loss factor of a path.
+class PathPoints(NamedTuple):
+    """The points of a sky-wave path that the method reads, for many paths at once."""
 
-    The path's midpoint for paths up to 3 000 km; for longer paths the
-    points 1 000 km from each end, taking the one with the larger |Φ| (the
-    larger loss) [1]_ (from memory).
+    distance_m: np.ndarray  #: great-circle distance [m]
+    control_geomagnetic_latitude_deg: np.ndarray  #: Φ that sets the loss factor [deg]
+    midpoint_latitude_deg: np.ndarray  #: [deg]
+    midpoint_longitude_deg: np.ndarray  #: [deg]
+
+
+def path_points(lat_tx_deg, lon_tx_deg, lat_rx_deg, lon_rx_deg) -> PathPoints:
+    """Distance, control-point geomagnetic latitude and midpoint of sky-wave paths (vectorised).
+
+    Φ is taken at the path's midpoint for paths up to 3 000 km; for longer paths at
+    the points 1 000 km from each end, the one with the larger |Φ| (the larger
+    loss) [1]_ (from memory). The midpoint is where the hour relative to sunset
+    and sunrise is read (§3 of [1]_).
+
+    Parameters
+    ----------
+    lat_tx_deg, lon_tx_deg, lat_rx_deg, lon_rx_deg : array_like
+        Transmitter and receiver positions. [deg]
+
+    Returns
+    -------
+    PathPoints
+
+    References
+    ----------
+    .. [1] ITU-R P.1147-4, §2 and §3. From memory.
+
+    Examples
+    --------
+    >>> p = path_points([50.0, 50.0], [0.0, 0.0], [52.0, 10.0], [0.0, 0.0])
+    >>> [round(float(v)) for v in p.distance_m / 1e3]
+    [222, 4448]
+    >>> [round(float(v), 1) for v in p.midpoint_latitude_deg]
+    [51.0, 30.0]
+    """
+    d, brg = great_circle(lat_tx_deg, lon_tx_deg, lat_rx_deg, lon_rx_deg)
+    mid_lat, mid_lon = point_along(lat_tx_deg, lon_tx_deg, brg, d / 2)
+    lat1, lon1 = point_along(lat_tx_deg, lon_tx_deg, brg, np.minimum(1_000e3, d))
+    lat2, lon2 = point_along(lat_tx_deg, lon_tx_deg, brg, np.maximum(d - 1_000e3, 0.0))
+    phi_mid = geomagnetic_latitude(mid_lat, mid_lon)
+    phi1, phi2 = geomagnetic_latitude(lat1, lon1), geomagnetic_latitude(lat2, lon2)
+    phi_long = np.where(np.abs(phi1) >= np.abs(phi2), phi1, phi2)
+    phi = np.where(d <= 3_000e3, phi_mid, phi_long)
+    return PathPoints(d, phi, mid_lat, mid_lon)
+
+
+def control_latitude(lat_tx_deg, lon_tx_deg, lat_rx_deg, lon_rx_deg):
+    """Geomagnetic latitude Φ that sets the basic loss factor of one path (:func:`path_points`).
 
     Parameters
     ----------
@@ -298,20 +346,173 @@ def control_latitude(lat_tx_deg, lon_tx_deg, lat_rx_deg, lon_rx_deg):
     >>> round(control_latitude(78.5, -69.0, 78.5, -69.0), 1)
     90.0
     """
-    d, brg = great_circle(lat_tx_deg, lon_tx_deg, lat_rx_deg, lon_rx_deg)
-    d = float(d)
-    if d <= 3_000e3:
-        lat, lon = point_along(lat_tx_deg, lon_tx_deg, brg, d / 2)
-        return float(geomagnetic_latitude(lat, lon))
-    lat1, lon1 = point_along(lat_tx_deg, lon_tx_deg, brg, 1_000e3)
-    lat2, lon2 = point_along(lat_tx_deg, lon_tx_deg, brg, d - 1_000e3)
-    phis = [float(geomagnetic_latitude(lat1, lon1)), float(geomagnetic_latitude(lat2, lon2))]
-    return max(phis, key=abs)
+    return float(path_points(lat_tx_deg, lon_tx_deg, lat_rx_deg, lon_rx_deg).control_geomagnetic_latitude_deg)
+
+
+#: Hourly loss factor L_t of ITU-R P.1147 (its figure for MF), as (hours after sunset, dB) and
+#: (hours after sunrise, dB) at the path midpoint, read from memory of the figure; the values are
+#: uncertain by a few dB (``HOURLY_LOSS_SPREAD_DB``). Zero is the reference hour, six hours after
+#: sunset; the curve is not given in full daylight, where the sky wave is taken as absent.
+HOURLY_LOSS_AFTER_SUNSET = ((-1.0, 20.0), (-0.5, 15.0), (0.0, 10.5), (0.5, 7.0), (1.0, 4.5), (2.0, 2.0),
+                            (3.0, 1.0), (4.0, 0.5), (5.0, 0.2), (6.0, 0.0))
+HOURLY_LOSS_AFTER_SUNRISE = ((-4.0, 0.0), (-3.0, 0.3), (-2.0, 1.0), (-1.0, 2.5), (0.0, 5.5), (0.5, 9.0),
+                             (1.0, 14.0))
+
+#: Half-width carried with a value read from the hourly-loss curve. [dB]
+HOURLY_LOSS_SPREAD_DB = 3.0
+
+
+class HourlyLoss(NamedTuple):
+    loss_db: np.ndarray  #: L_t relative to the reference hour [dB]
+    daylight: np.ndarray  #: True where the midpoint is in full daylight (beyond the curve): no sky wave
+
+
+def hourly_loss_factor(hours_after_sunset, hours_after_sunrise, night_length_h=12.0) -> HourlyLoss:
+    """The P.1147 hourly loss factor L_t at the path midpoint.
+
+    Parameters
+    ----------
+    hours_after_sunset : array_like
+        Time since sunset at the midpoint (negative before it), folded into (−12, 12]. [h]
+    hours_after_sunrise : array_like
+        Time since sunrise at the midpoint, folded into (−12, 12]. [h]
+    night_length_h : array_like
+        Hours from sunset to sunrise at the midpoint (24 in polar night, 0 in midnight sun). [h]
+
+    Returns
+    -------
+    HourlyLoss
+
+    Notes
+    -----
+    L_t is the larger of the two curves ``HOURLY_LOSS_AFTER_SUNSET`` and
+    ``HOURLY_LOSS_AFTER_SUNRISE`` (each zero through the middle of the night) [1]_;
+    daylight is an hour or more after sunrise and before the hour before sunset.
+    In polar night L_t = 0 at every hour; in midnight sun it is daylight throughout.
+
+    References
+    ----------
+    .. [1] ITU-R P.1147-4, §3 and its figure of L_t. Read from memory.
+
+    Examples
+    --------
+    Two hours after sunset, the reference hour, two hours before sunrise, at sunset,
+    and at noon (twelve-hour night):
+
+    >>> h = hourly_loss_factor([2.0, 6.0, 10.0, 0.0, -6.0], [-10.0, -6.0, -2.0, 12.0, 6.0])
+    >>> [round(float(v), 1) for v in h.loss_db], h.daylight.tolist()
+    ([2.0, 0.0, 1.0, 10.5, 20.0], [False, False, False, False, True])
+    """
+    ss = np.asarray(hours_after_sunset, dtype=float)
+    sr = np.asarray(hours_after_sunrise, dtype=float)
+    nl = np.broadcast_to(np.asarray(night_length_h, dtype=float), np.broadcast(ss, sr).shape)
+    xs, ys = np.array(HOURLY_LOSS_AFTER_SUNSET).T
+    xr, yr = np.array(HOURLY_LOSS_AFTER_SUNRISE).T
+    evening = np.where((ss >= xs[0]) & (ss <= nl), np.interp(ss, xs, ys), 0.0)
+    morning = np.where((sr <= xr[-1]) & (sr >= -nl), np.interp(sr, xr, yr), 0.0)
+    dark = (ss >= 0) & (ss <= nl)
+    daylight = ~dark & (ss < xs[0]) & (sr > xr[-1])
+    loss = np.where(daylight, max(ys[0], yr[-1]), np.maximum(evening, morning))
+    daylight = np.where(nl >= 24.0, False, np.where(nl <= 0.0, True, daylight))
+    loss = np.where(nl >= 24.0, 0.0, loss)
+    return HourlyLoss(loss, daylight)
+
+
+#: Sea gain for one terminal on the coast, by path length: (km, dB). Read from memory of
+#: ITU-R P.1147 (the gain grows with path length as the rays arrive lower, to about 5 dB a
+#: terminal, 10 dB with both on the coast); uncertain by half its value.
+SEA_GAIN_ONE_TERMINAL = ((50.0, 0.0), (100.0, 1.5), (200.0, 2.2), (500.0, 3.3), (1000.0, 4.3), (2000.0, 5.0))
+
+
+def arrival_elevation(distance_m):
+    """Elevation angle of a one-hop ray reflected at ``REFLECTION_HEIGHT_M`` over a spherical earth.
+
+    Parameters
+    ----------
+    distance_m : array_like
+        Ground distance of the hop. [m]
+
+    Returns
+    -------
+    numpy.ndarray
+        Elevation above the horizontal at each terminal, 0 when the hop is beyond the horizon. [deg]
+
+    Notes
+    -----
+    With θ = d/(2a) the half-hop angle at the earth's centre and h the reflection
+    height, tan Δ = (cos θ − a/(a + h)) / sin θ (plane geometry of the triangle
+    earth centre, terminal, reflection point).
+
+    Examples
+    --------
+    >>> round(float(arrival_elevation(200e3)), 1)  # 100 km up, 100 km away: 45° less the curvature
+    44.3
+    """
+    d = np.maximum(_as_array(distance_m, "distance"), 1.0)
+    a, h = EARTH_RADIUS_M, REFLECTION_HEIGHT_M
+    th = d / (2 * a)
+    return np.degrees(np.maximum(np.arctan2(np.cos(th) - a / (a + h), np.sin(th)), 0.0))
+
+
+def sea_gain(distance_m, frequency_hz, tx_sea_m=None, rx_sea_m=None):
+    """Sea gain G_S for a path with one or both terminals near the sea.
+
+    Parameters
+    ----------
+    distance_m : array_like
+        Path length. [m]
+    frequency_hz : array_like
+        [Hz]
+    tx_sea_m, rx_sea_m : array_like or None
+        Distance of each terminal from the sea, with the sea lying along the path
+        (None: inland, no gain). [m]
+
+    Returns
+    -------
+    numpy.ndarray
+        G_S ≥ 0. [dB]
+
+    Notes
+    -----
+    G_S = Σ G_1(d)·s(x) over the terminals: G_1 from ``SEA_GAIN_ONE_TERMINAL``
+    (ITU-R P.1147, from memory), and s(x) = max(0, 1 − x/x_F) the share kept by a
+    terminal x from the coast, with x_F = λ/(2 sin²Δ) the far edge of the first
+    Fresnel zone of the ground reflection in front of it for rays at elevation Δ
+    (:func:`arrival_elevation`). The share is this project's reading of the
+    method's correction for distance from the sea, not a value from it.
+
+    References
+    ----------
+    .. [1] ITU-R P.1147-4, §4 (sea gain). From memory.
+
+    Examples
+    --------
+    >>> round(float(sea_gain(1000e3, 1e6, 0.0, 0.0)), 1)
+    8.6
+    >>> float(sea_gain(1000e3, 1e6, None, 500e3))
+    0.0
+    """
+    d = _as_array(distance_m, "distance")
+    f = _as_array(frequency_hz, "frequency")
+    xs, ys = np.array(SEA_GAIN_ONE_TERMINAL).T
+    g1 = np.interp(d / 1e3, xs, ys, left=0.0, right=ys[-1])
+    lam = 299_792_458.0 / f
+    sin_el = np.maximum(np.sin(np.radians(arrival_elevation(d))), np.sin(np.radians(1.0)))
+    x_f = lam / (2 * sin_el**2)
+    total = np.zeros(np.broadcast(d, f).shape)
+    for x in (tx_sea_m, rx_sea_m):
+        if x is None:
+            continue
+        x = np.asarray(x, dtype=float)
+        share = np.where(np.isfinite(x), np.clip(1.0 - np.nan_to_num(x, nan=np.inf) / x_f, 0.0, 1.0), 0.0)
+        total = total + g1 * share
+    return total
 
 
 def night_sky_wave_field(frequency_hz, distance_m, power_w, geomagnetic_latitude_deg, *,
                          solar_factor: float = 0.0, sunspot_number: float = 0.0,
-                         sea_gain_db=0.0, polarization_loss_db=0.0, hourly_loss_db=0.0) -> SkyWaveField:
+                         sea_gain_db=0.0, polarization_loss_db=0.0, hourly_loss_db=0.0,
+                         spread_db=0.0) -> SkyWaveField:
     """Annual median night-time sky-wave field strength by the ITU-R P.1147 method.
 
     Parameters
@@ -335,7 +536,9 @@ def night_sky_wave_field(frequency_hz, distance_m, power_w, geomagnetic_latitude
         Excess polarization coupling loss L_p (:func:`polarization_coupling_loss`). [dB]
     hourly_loss_db : array_like
         Hourly loss factor L_t relative to the reference hour (six hours after
-        sunset); 0 gives the reference night-time median. [dB]
+        sunset; :func:`hourly_loss_factor`); 0 gives the reference night-time median. [dB]
+    spread_db : array_like
+        Further uncertainty of the terms given (sea gain, hourly loss) to widen the range by. [dB]
 
     Returns
     -------
@@ -380,8 +583,8 @@ def night_sky_wave_field(frequency_hz, distance_m, power_w, geomagnetic_latitude
     median = field(sunspot_number)
     spread = within_night_deviation(phi)
     worst, best = field(SUNSPOT_RANGE[1]), field(SUNSPOT_RANGE[0])
-    low = np.minimum(worst, median) - spread
-    high = np.maximum(best, median) + spread
+    low = np.minimum(worst, median) - spread - spread_db
+    high = np.maximum(best, median) + spread + spread_db
     outside = ((f < SKY_WAVE_FREQUENCY_RANGE_HZ[0]) | (f > SKY_WAVE_FREQUENCY_RANGE_HZ[1])
                | (d < SKY_WAVE_DISTANCE_RANGE_M[0]) | (d > SKY_WAVE_DISTANCE_RANGE_M[1]))
     return SkyWaveField(median, low, high, p_km * 1e3, k + 0.01 * solar_factor * sunspot_number, phi + 0 * median,

@@ -638,6 +638,9 @@ def _render_stations(stations, console, L: Lengths) -> None:
                   "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
                   Text(verdict, style=style), nfield, Text(nv or "—", style=nstyle))
     show(console, t)
+    when = next((s["night"]["listening_time"] for s in stations if (s.get("night") or {}).get("listening_time")), "")
+    if when:
+        console.print(f"  by night: {escape(when)}")
     for s in stations:
         why = s.get("reason", "")
         if s.get("spills_over"):
@@ -648,7 +651,9 @@ def _render_stations(stations, console, L: Lengths) -> None:
         if night.get("reason") and night.get("verdict") != s.get("verdict"):
             sky = night.get("sky_wave_field_v_per_m")
             console.print(f"  {escape(s.get('name', ''))} by night: {escape(L.text(night['reason']))}"
-                          + (f" (sky wave {eng(sky, 'V/m')})" if sky else ""))
+                          + (f" (sky wave {eng(sky, 'V/m')})" if sky else "")
+                          + (" (the sky wave has not yet come in: daylight at the path's midpoint)"
+                             if night.get("sky_wave_in_daylight") else ""))
 
 
 def render_layout(result: dict, console, units: str = "si") -> None:

@@ -247,6 +247,7 @@ class Station:
     latitude_deg: float | None = None
     longitude_deg: float | None = None
     bearing_deg: float | None = None
+    distance_to_sea_m: float | None = None
 
 
 @dataclass(frozen=True)
@@ -297,6 +298,12 @@ class Site:
     season: str | None = None
     atmospheric_noise_db: float | None = None
     sunspot_number: float | None = None
+    listening_time: str | None = None
+    listening_hour: float | None = None
+    date_iso: str | None = None
+    day_of_year: int | None = None
+    utc_offset_h: float | None = None
+    distance_to_sea_m: float | None = None
 
     @property
     def feed_m(self) -> np.ndarray:
@@ -588,7 +595,8 @@ def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
     r.check_keys(raw, "", TOP_KEYS)
     site_t = r.table(raw, "", "site")
     r.check_keys(site_t, "site", {"name", "notes", "region", "noise", "bands", "frequency_step", "field_strength", "soil",
-                                  "latitude", "longitude", "season", "atmospheric_noise", "sunspots"})
+                                  "latitude", "longitude", "season", "atmospheric_noise", "sunspots",
+                                  "listening_time", "date", "utc_offset", "distance_to_sea"})
     name = r.string(site_t, "site", "name", default=Path(path).stem if not path.startswith("<") else "example site")
     region = r.string(site_t, "site", "region")
     noise = r.string(site_t, "site", "noise", default="residential", choices=NOISE_CATEGORIES)
@@ -629,7 +637,7 @@ def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
     _check_counterpoise(r, wires, receiver)
     position = _position(r, site_t, "site")
     stations = _stations(r, raw, soil, soil_notes, position)
-    night = _night_inputs(r, site_t)
+    night = _night_inputs(r, site_t, position)
     plan = r.table(raw, "", "plan")
     _check_wires(r, wires)
     _check_piece_count(r, wires)
@@ -1275,7 +1283,7 @@ def _stations(r: TableReader, raw, soil: SoilSpec, notes: list, site_position=No
     for i, t in enumerate(tables):
         key = f"stations[{i}]"
         r.check_keys(t, key, {"name", "frequency", "power", "distance", "soil", "notes", "latitude", "longitude",
-                              "bearing"})
+                              "bearing", "distance_to_sea"})
         name = r.string(t, key, "name", default=f"station {i + 1}")
         f = r.quantity(t, key, "frequency", units.FREQUENCY_UNITS, "a frequency", "Hz")
         if f is None:
@@ -1316,8 +1324,10 @@ def _stations(r: TableReader, raw, soil: SoilSpec, notes: list, site_position=No
             st_soil = SoilSpec(b.name, b.relative_permittivity, b.conductivity_s_m, b.conductivity_low_s_m,
                                b.conductivity_high_s_m, f"{b.source}: {b.description}",
                                b.relative_permittivity_low, b.relative_permittivity_high)
+        sea = r.length(t, key, "distance_to_sea", minimum=0.0, maximum=MAX_SEA_DISTANCE_M,
+                       units_table=units.DISTANCE_UNITS)
         out.append(Station(name, f, p, d, st_soil, key, where[0] if where else None, where[1] if where else None,
-                           None if bearing is None else bearing % 360.0))
+                           None if bearing is None else bearing % 360.0, sea))
     return out
 
 
@@ -1374,8 +1384,8 @@ def _position(r: TableReader, data, key):
     return None if lat is None else (lat, lon)
 
 
-def _night_inputs(r: TableReader, site_t) -> dict:
-    """The [site] keys that set night-time reception: season, atmospheric noise, sunspots."""
+def _night_inputs(r: TableReader, site_t, position=None) -> dict:
+    """The [site] keys that set night-time reception: season, atmospheric noise, sunspots, the hour and the sea."""
     season = r.string(site_t, "site", "season", choices=SEASONS)
     fam = None
     if "atmospheric_noise" in site_t:
@@ -1391,7 +1401,97 @@ def _night_inputs(r: TableReader, site_t) -> dict:
                    'the ITU-R P.372 maps, 0–140 dB above kT0b, such as "62 dB"')
     spots = r.number(site_t, "site", "sunspots", low=SUNSPOT_RANGE[0], high=SUNSPOT_RANGE[1],
                      what="a smoothed sunspot number")
-    return {"season": season, "atmospheric_noise_db": fam, "sunspot_number": spots}
+    when, hour = _listening_time(r, site_t)
+    date_iso, day = _date(r, site_t)
+    offset = _utc_offset(r, site_t)
+    if date_iso is not None and season is not None and position is not None:
+        from_date = season_of(day, position[0])
+        if from_date != season:
+            r.fail("site.season", season, f"the date {date_iso} falls in {from_date} at this latitude; give one of "
+                   "them, or both agreeing")
+    if season is None and day is not None and position is not None:
+        season = season_of(day, position[0])
+    sea = r.length(site_t, "site", "distance_to_sea", minimum=0.0, maximum=MAX_SEA_DISTANCE_M,
+                   units_table=units.DISTANCE_UNITS)
+    return {"season": season, "atmospheric_noise_db": fam, "sunspot_number": spots, "listening_time": when,
+            "listening_hour": hour, "date_iso": date_iso, "day_of_year": day, "utc_offset_h": offset,
+            "distance_to_sea_m": sea}
+
+
+#: Named listening times: "evening" is two hours after sunset, "before dawn" an hour before sunrise.
+LISTENING_TIMES = ("evening", "midnight", "before dawn")
+
+#: Beyond this a terminal is inland: the sea gain has long gone (a distance is accepted up to it). [m]
+MAX_SEA_DISTANCE_M = 20_000e3
+
+
+def _listening_time(r: TableReader, site_t):
+    """("evening" | "midnight" | "before dawn" | "clock", local clock hour or None)."""
+    if "listening_time" not in site_t:
+        return None, None
+    v = site_t["listening_time"]
+    text = v.strip().lower() if isinstance(v, str) else ""
+    if text in LISTENING_TIMES:
+        return text, {"midnight": 0.0}.get(text)
+    m = re.fullmatch(r"(\d{1,2})[:.h](\d{2})", text)
+    if m and int(m.group(1)) <= 24 and int(m.group(2)) < 60:
+        return "clock", (int(m.group(1)) + int(m.group(2)) / 60.0) % 24.0
+    r.fail("site.listening_time", v, 'expected "evening" (two hours after sunset), "midnight", "before dawn" '
+           '(an hour before sunrise) or a local clock time such as "21:30"')
+
+
+def _date(r: TableReader, site_t):
+    """(ISO date text, day of the year) of the listening night, or (None, None)."""
+    import datetime as dt
+
+    if "date" not in site_t:
+        return None, None
+    v = site_t["date"]
+    day = None
+    if isinstance(v, dt.date) and not isinstance(v, dt.datetime):
+        day = v
+    elif isinstance(v, str):
+        try:
+            day = dt.date.fromisoformat(v.strip())
+        except ValueError:
+            day = None
+    if day is None:
+        r.fail("site.date", v, "expected a date such as 2025-01-15 (year-month-day)")
+    return day.isoformat(), day.timetuple().tm_yday
+
+
+def _utc_offset(r: TableReader, site_t):
+    """The local clock's offset from UTC in hours ("+1", "-5:00", "UTC+5:30", 2), or None."""
+    if "utc_offset" not in site_t:
+        return None
+    v = site_t["utc_offset"]
+    hours = None
+    if isinstance(v, (int, float)) and not isinstance(v, bool):
+        hours = float(v)
+    elif isinstance(v, str):
+        m = re.fullmatch(r"(?:utc|gmt)?\s*([+-]?)(\d{1,2})(?::?(\d{2}))?(?:\s*h)?", v.strip().lower())
+        if m:
+            hours = (-1 if m.group(1) == "-" else 1) * (int(m.group(2)) + int(m.group(3) or 0) / 60.0)
+    if hours is None or not (math.isfinite(hours) and -12.0 <= hours <= 14.0):
+        r.fail("site.utc_offset", v, 'expected the local clock\'s offset from UTC in hours, -12 to +14, such as '
+               '"+1", "-5" or "+5:30"')
+    return hours
+
+
+def season_of(day_of_year: int, latitude_deg: float) -> str:
+    """The astronomical season of a day at a latitude (the southern hemisphere's is the opposite).
+
+    Examples
+    --------
+    >>> season_of(15, 52.0), season_of(15, -33.9), season_of(200, 40.0)
+    ('winter', 'summer', 'summer')
+    """
+    # equinoxes and solstices about 20 March, 21 June, 22 September, 21 December (days 80, 172, 265, 355)
+    north = ("winter", "spring", "summer", "autumn", "winter")[
+        sum(day_of_year >= edge for edge in (80, 172, 265, 355))]
+    if latitude_deg >= 0:
+        return north
+    return {"winter": "summer", "summer": "winter", "spring": "autumn", "autumn": "spring"}[north]
 
 
 def _check_wires(r: TableReader, wires):
