@@ -1446,7 +1446,7 @@ def _spill_over(results, stations, a):
 
 def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m,
                         parts: TuningParts, stations, band, spacing_hz=9e3) -> dict | None:
-    """Coupling and taps that hear the weakest wanted station best while keeping the others down.
+    """Coupling, taps and capacitor that hear the weakest wanted station best while keeping the others down.
 
     Parameters
     ----------
@@ -1454,7 +1454,8 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
         The aerial on its grid (as :func:`assess_stations`).
     parts : TuningParts
         The site's parts: the coil (kept when given, else designed per coupling for the band),
-        the capacitor range, detector, earphone and the interference margin.
+        the capacitor range (optional when the coil is given), detector, earphone and the
+        interference margin.
     stations : sequence of Station
         The listed stations; those inside ``band`` are the wanted ones.
     band : (float, float)
@@ -1466,15 +1467,18 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
     -------
     dict or None
         None when no listed station lies in the band. Otherwise ``margin_db``, ``wanted``,
-        ``chosen`` and ``current`` (the site's own parts) with their figures, ``meets_margin``,
-        ``tradeoff`` (every candidate: arrangement, its part, detector tap, weakest detector
-        power, worst separation, adjacent-channel rejection), ``remedies`` when no single tank
-        meets the margin, ``notes``.
+        ``current`` (the parts as wired), ``chosen`` (the best coupling and taps with the site's coil
+        and capacitor), ``suggested`` (the same with a standard variable capacitor chosen to reach
+        the wanted stations), each with their figures and its comparison with ``current``;
+        ``meets_margin``, ``summary`` (the recommendation in words), ``tradeoff`` (every candidate),
+        ``remedies`` when no single tank meets the margin, ``notes``.
 
     Notes
     -----
     See :mod:`aerial.estimate.station_design`; the detector's input resistance is looked up from
     a table of the detector model, each station tuned at its weak-signal loading then solved.
+    A design is never recommended that gives the weakest wanted station less than the parts as
+    wired do (by more than ``station_design.NO_WORSE_DB``) unless it meets the margin.
 
     Examples
     --------
@@ -1489,9 +1493,50 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
     _check_parts(parts)
     lo, hi = float(band[0]), float(band[1])
     wanted = [s for s in stations if lo <= s.frequency_hz <= hi]
-    if not wanted or parts.capacitor_min_f is None:
+    coil_given = parts.coil_inductance_h is not None or (parts.coil is not None and parts.coil.turns is not None)
+    if not wanted or (parts.capacitor_min_f is None and not coil_given):
         return None
     aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m)
+    scene, base = _design_scene(aerial, parts, wanted, spacing_hz)
+    rows = _design_rows(scene, aerial, parts, base, (lo, hi))
+    current = _design_row(scene, _current_coupling(parts), base, parts.detector_tap_fraction, parts)
+    if parts.capacitor_min_f is not None:
+        reach = (current["capacitance_f"] >= parts.capacitor_min_f) & (current["capacitance_f"] <= parts.capacitor_max_f)
+        current = sd_mod.out_of_reach(current, reach)
+    usable = [r for r in rows if r["fits_yours"] or r["capacitor"] is not None]
+    if not usable:
+        return None
+    can_hear = sd_mod.hearable(usable + [current], scene.threshold)
+    rows = [sd_mod.rescore(r, can_hear, scene.margin_db, scene.threshold) for r in rows]
+    current = sd_mod.rescore(current, can_hear, scene.margin_db, scene.threshold)
+    chosen, suggested = _pick(rows, current, parts)
+    out = {
+        "margin_db": scene.margin_db,
+        "margin_source": "default" if parts.interference_margin_db is None else "site",
+        "capacitor_given": parts.capacitor_min_f is not None,
+        "wanted": scene.names,
+        "channel_spacing_hz": float(spacing_hz),
+        "chosen": {**_design_dict(chosen, scene), **_versus(chosen, current, scene)},
+        "suggested": {**_design_dict(suggested, scene), **_versus(suggested, current, scene)},
+        "current": _design_dict(current, scene),
+        "meets_margin": bool(chosen["meets_margin"]),
+        "tradeoff": [{**_design_dict(r, scene, brief=True), "chosen": r is chosen, "suggested": r is suggested}
+                     for r in rows if r["fits_yours"] or r["capacitor"] is not None],
+        "notes": [],
+    }
+    out["summary"] = _design_summary(out, parts.capacitor_min_f is not None)
+    never = [n for n, ok in zip(scene.names, can_hear) if not ok]
+    if never and can_hear.any():
+        out["not_designed_for"] = never
+        out["notes"].append("too weak to hear with any of these designs, so left out of the objective (still counted "
+                            "as interferers): " + ", ".join(never))
+    if not chosen["meets_margin"] and len(wanted) > 1 and np.isfinite(chosen["worst_separation_db"]):
+        out["remedies"] = _remedies(scene, chosen, parts)
+    return out
+
+
+def _design_scene(aerial, parts, wanted, spacing_hz):
+    """The design's :class:`station_design.Scene` (aerial EMF of each wanted station) and the site's coil."""
     diode = _diode(parts)
     _apply_calibration(aerial, parts, diode, [])
     fs = np.array([s.frequency_hz for s in wanted])
@@ -1505,35 +1550,19 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
     scene = sd_mod.Scene(_za(aerial), base.q, fs, emf, [s.name for s in wanted], diode, load,
                          _threshold_voltage(1.0, diode, load), float(margin), float(spacing_hz),
                          tn_mod.input_resistance_table(diode, load))
-    rows = _design_rows(scene, aerial, parts, base, (lo, hi))
-    if not rows:
-        return None
-    current = _design_row(scene, _current_coupling(parts), base, parts.detector_tap_fraction)
-    can_hear = sd_mod.hearable(rows + [current], scene.threshold)
-    if can_hear.any():
-        rows = [sd_mod.rescore(r, can_hear, scene.margin_db) for r in rows]
-        current = sd_mod.rescore(current, can_hear, scene.margin_db)
-    k = sd_mod.choose(rows)
-    chosen = rows[k]
-    out = {
-        "margin_db": float(margin),
-        "margin_source": "default" if parts.interference_margin_db is None else "site",
-        "wanted": scene.names,
-        "channel_spacing_hz": float(spacing_hz),
-        "chosen": _design_dict(chosen, scene),
-        "current": _design_dict(current, scene),
-        "meets_margin": bool(chosen["meets_margin"]),
-        "tradeoff": [{**_design_dict(r, scene, brief=True), "chosen": n == k} for n, r in enumerate(rows)],
-        "notes": [],
-    }
-    never = [n for n, ok in zip(scene.names, can_hear) if not ok]
-    if never and can_hear.any():
-        out["not_designed_for"] = never
-        out["notes"].append("too weak to hear with any of these designs, so left out of the objective (still counted "
-                            "as interferers): " + ", ".join(never))
-    if not chosen["meets_margin"] and len(wanted) > 1:
-        out["remedies"] = _remedies(scene, chosen, parts)
-    return out
+    return scene, base
+
+
+def _pick(rows, current, parts) -> tuple:
+    """(chosen, suggested): the best with the site's capacitor, and the best with a standard one."""
+    yours = [r for r in rows if r["fits_yours"]] if parts.capacitor_min_f is not None else []
+    std = [r for r in rows if r["capacitor"] is not None]
+    k = sd_mod.choose(std, current)
+    suggested = current if k < 0 else std[k]
+    if parts.capacitor_min_f is None:
+        return suggested, suggested
+    k = sd_mod.choose(yours, current)
+    return (current if k < 0 else yours[k]), suggested
 
 
 def _current_coupling(parts: TuningParts) -> dict:
@@ -1543,7 +1572,8 @@ def _current_coupling(parts: TuningParts) -> dict:
 
 
 def _design_rows(scene, aerial, parts, base: _Coil, band) -> list:
-    """Every candidate coupling × detector tap whose coil and capacitor reach every wanted station."""
+    """Every candidate coupling × detector tap, with whether the site's capacitor reaches every wanted
+    station (``fits_yours``) and the standard capacitor that would (``capacitor``, or None)."""
     coil_given = parts.coil_inductance_h is not None or (parts.coil is not None and parts.coil.turns is not None)
     rows = []
     for cpl in sd_mod.candidates(parts.arrangement):
@@ -1564,17 +1594,23 @@ def _design_rows(scene, aerial, parts, base: _Coil, band) -> list:
             if lp is not None:
                 cpl = {**cpl, "primary_inductance": sd_mod.PRIMARY_FRACTION * coil.inductance}
         c = _needed(scene.frequency, aerial, coil.inductance, scene.q_fun, {**cfg, "self_capacitance": coil.self_capacitance})
-        if np.any(c < parts.capacitor_min_f) or np.any(c > parts.capacitor_max_f):
-            continue
+        yours = parts.capacitor_min_f is not None and sd_mod.fits(c, parts.capacitor_min_f, parts.capacitor_max_f)
+        if not yours and sd_mod.standard_capacitor(c) is None:
+            continue  # no capacitor reaches every wanted station with this coil and coupling (closed form)
         for m in sd_mod.DETECTOR_TAPS:
-            rows.append(_design_row(scene, cpl, coil, m))
+            rows.append(_design_row(scene, cpl, coil, m, parts))
     return rows
 
 
-def _design_row(scene, cpl, coil: _Coil, m) -> dict:
+def _design_row(scene, cpl, coil: _Coil, m, parts) -> dict:
+    """One candidate solved; whether the site's capacitor and which standard one reach its settings."""
     ev = sd_mod.evaluate(scene, cpl, coil.inductance, coil.block, m, coil.self_capacitance)
+    c = ev["capacitance_f"]
+    fits_yours = parts.capacitor_min_f is not None and sd_mod.fits(c, parts.capacitor_min_f, parts.capacitor_max_f)
     return {**ev, "coupling": cpl, "coil_inductance_h": coil.inductance, "block": coil.block,
             "self_capacitance_f": coil.self_capacitance, "detector_tap_fraction": float(m),
+            "fits_yours": bool(fits_yours), "capacitor": sd_mod.standard_capacitor(c),
+            "your_capacitor": (parts.capacitor_max_f, parts.capacitor_min_f) if parts.capacitor_min_f is not None else None,
             "meets_margin": bool(ev["worst_separation_db"] >= scene.margin_db)}
 
 
@@ -1592,6 +1628,7 @@ def _setting_text(cpl) -> str:
 
 def _design_dict(row, scene, brief=False) -> dict:
     cpl = row["coupling"]
+    unreachable = [n for n, u in zip(scene.names, row.get("unreachable", [])) if u]
     out = {
         "arrangement": cpl["arrangement"],
         "setting": _setting_text(cpl),
@@ -1601,8 +1638,15 @@ def _design_dict(row, scene, brief=False) -> dict:
         "weakest_detector_power_w": _num(row["weakest_power_w"], "weakest_detector_power_w", []),
         "adjacent_rejection_db": _num(row["rejection_db"], "adjacent_rejection_db", []),
         "meets_margin": bool(row["meets_margin"]),
+        "separated": bool(row.get("separated", row["meets_margin"])),
+        "inaudible": [scene.names[i] for i in row.get("inaudible", [])],
         "others_audible": bool(np.isfinite(row["worst_separation_db"])),
+        "fits_your_capacitor": bool(row.get("fits_yours", True)),
     }
+    if unreachable:
+        out["out_of_reach"] = unreachable
+    if row.get("capacitor") is not None:
+        out["standard_capacitor_max_f"], out["standard_capacitor_min_f"] = (float(v) for v in row["capacitor"])
     for key, src in (("aerial_tap_ratio", "tap_fraction"), ("series_capacitance_f", "series_capacitance"),
                      ("coupling_coefficient_ratio", "coupling_coefficient"),
                      ("primary_inductance_h", "primary_inductance")):
@@ -1616,6 +1660,102 @@ def _design_dict(row, scene, brief=False) -> dict:
         out["stations"] = [{"name": n, "detector_power_w": _num(p, "detector_power_w", [])}
                            for n, p in zip(scene.names, row["power_w"])]
     return out
+
+
+def _versus(row, current, scene) -> dict:
+    """A design against the parts as wired: the weakest wanted station's detector power with each."""
+    w = row["weakest"]
+    out = {"as_wired": row is current,
+           "weakest_station_as_wired_w": _num(current["power_w"][w], "weakest_station_as_wired_w", [])}
+    if current["weakest_power_w"] > 0 and row["weakest_power_w"] > 0:
+        out["weakest_change_db"] = _num(10.0 * np.log10(row["weakest_power_w"] / current["weakest_power_w"]),
+                                        "weakest_change_db", [])
+    return out
+
+
+def _design_line(r, cur, margin, capacitor_words) -> str:
+    """One recommendation in words, its numbers beside it."""
+    what = "keep the coupling and taps as wired" if r["as_wired"] else \
+        f"{r['setting']}, detector at {r['detector_tap_ratio']:.2f} of the turns"
+    if capacitor_words:
+        what = f"{capacitor_words} with {what}"
+    name = r["weakest_station"]
+    if r["weakest_detector_power_w"] > 0:
+        text = f"{what}: the weakest wanted station, {name}, gets {eng_w(r['weakest_detector_power_w'])} at the detector"
+    else:
+        text = f"{what}: {name} stays out of the capacitor's reach"
+    if r["as_wired"]:
+        pass
+    else:
+        before = r["weakest_station_as_wired_w"]
+        text += f" ({eng_w(before)} as wired" if before > 0 else " (out of the capacitor's reach as wired"
+        if before > 0:
+            ch = 10.0 * np.log10(max(r["weakest_detector_power_w"], 1e-300) / before)
+            text += f": {abs(ch):.1f} dB {'more' if ch >= 0 else 'less'}"
+        text += ")"
+    if cur.get("out_of_reach") and not r["as_wired"]:
+        text += f"; as wired, the capacitor cannot reach {', '.join(cur['out_of_reach'])}"
+    if r["meets_margin"]:
+        text += f"; every other listed station stays at least {margin:g} dB below"
+        before = r.get("weakest_station_as_wired_w", 0.0)
+        if before > 0 and r["weakest_detector_power_w"] < before * 10.0 ** (-NO_WORSE_DB_WORDS / 10.0):
+            loss = 10.0 * np.log10(before / max(r["weakest_detector_power_w"], 1e-300))
+            text += (f" — {loss:.1f} dB less for {name} than as wired, accepted because it buys the {margin:g} dB "
+                     "margin the parts as wired miss")
+    elif r["separated"] and r["inaudible"]:
+        text += (f"; the others stay {margin:g} dB down but {', '.join(r['inaudible'])} stays below the earphone's "
+                 "audibility threshold — not a success")
+    else:
+        faint = [n for n in r["inaudible"] if n not in r.get("out_of_reach", [])]
+        if faint:
+            text += (f"; {', '.join(faint)} {'stays' if len(faint) == 1 else 'stay'} below the earphone's audibility "
+                     "threshold")
+        sep = r.get("worst_separation_db")
+        if sep is not None:
+            text += (f"; no single tuned circuit keeps every other listed station {margin:g} dB down (worst: "
+                     f"{r['worst_pair'][1]} {abs(sep):.0f} dB {'below' if sep >= 0 else 'above'} {r['worst_pair'][0]})")
+        if r["as_wired"] and not cur["meets_margin"]:
+            text += (f"; every design that separates better leaves its weakest wanted station more than "
+                     f"{NO_WORSE_DB_WORDS:g} dB worse off than these parts do, without reaching the margin, so none "
+                     "is recommended over them")
+    return text
+
+
+def eng_w(p) -> str:
+    """A detector power in words, e.g. '2.73 nW'."""
+    if not p or p <= 0:
+        return "nothing (out of the capacitor's reach)"
+    exp = int(np.floor(np.log10(p) / 3.0)) * 3
+    prefix = {-18: "a", -15: "f", -12: "p", -9: "n", -6: "µ", -3: "m", 0: ""}.get(exp)
+    if prefix is None:
+        return f"{p:.3g} W"
+    return f"{p / 10.0**exp:.3g} {prefix}W"
+
+
+#: Said with the design's words (the design never costs the weakest station more than this unless it
+#: buys the margin: :data:`station_design.NO_WORSE_DB`). [dB]
+NO_WORSE_DB_WORDS = sd_mod.NO_WORSE_DB
+
+
+def _design_summary(d, capacitor_given) -> list:
+    """The recommendations in words: with the site's coil and capacitor, and with a standard capacitor."""
+    m, cur = d["margin_db"], d["current"]
+    lines = []
+    if capacitor_given:
+        lines.append("with your coil and capacitor: " + _design_line(d["chosen"], cur, m, ""))
+    s, c = d["suggested"], d["chosen"]
+    same = capacitor_given and (s["setting"], s["detector_tap_ratio"]) == (c["setting"], c["detector_tap_ratio"])
+    if "standard_capacitor_max_f" in s and not (s["as_wired"] and capacitor_given):
+        words = (f"a {s['standard_capacitor_min_f'] * 1e12:.0f}–{s['standard_capacitor_max_f'] * 1e12:.0f} pF "
+                 "variable capacitor (a common size)")
+        if same:
+            lines.append(f"suggested: the same; your capacitor reaches every wanted station ({words} would too)")
+        else:
+            lines.append("suggested: " + _design_line(s, cur, m, words))
+    elif capacitor_given and s["as_wired"]:
+        lines.append("suggested: keep your parts as wired (no standard capacitor with another coupling does better "
+                     "for the weakest wanted station)")
+    return lines
 
 
 def _remedies(scene, row, parts) -> list:
@@ -1632,10 +1772,11 @@ def _remedies(scene, row, parts) -> list:
               sd_mod.trap(scene, net, i, j, "parallel"), sd_mod.trap(scene, net, i, j, "series")):
         r = {k: (_num(v, k, []) if isinstance(v, float) else v) for k, v in r.items()}
         r["wanted"], r["interferer"] = scene.names[i], scene.names[j]
+        r["margin_db"] = scene.margin_db
         r["separation_before_db"] = _num(row["worst_separation_db"], "separation_before_db", [])
         if "coupling_coefficient" in r:
             r["coupling_coefficient_ratio"] = r.pop("coupling_coefficient")
-        r["meets_margin"] = bool(r["separation_db"] >= scene.margin_db)
+        r["meets_margin"] = bool(r["separation_db"] >= scene.margin_db and r["wanted_audible"])
         r["wanted_power_before_w"] = _num(row["power_w"][i], "wanted_power_before_w", [])
         r["wanted_power_change_db"] = _num(10.0 * np.log10(max(r["wanted_power_w"], 1e-300)
                                                            / max(r["wanted_power_before_w"], 1e-300)),
@@ -1658,6 +1799,11 @@ def remedy_verdict(r) -> str:
     """
     loss = -r["wanted_power_change_db"]
     better = r["separation_db"] > r["separation_before_db"]
+    if not r.get("wanted_audible", True) and r["separation_db"] >= r.get("margin_db", -np.inf):
+        lost = f" (the wanted station loses {loss:.1f} dB at the detector)" if loss > 0 else ""
+        return (f"keeps {r.get('interferer', 'the other station')} {r['separation_db']:.0f} dB down but leaves "
+                f"{r.get('wanted', 'the wanted station')} below the earphone's audibility threshold{lost} — "
+                "not a success")
     if r["meets_margin"]:
         if loss > REMEDY_POWER_LOSS_DB:
             return f"meets the margin, but the wanted station loses {loss:.1f} dB at the detector"

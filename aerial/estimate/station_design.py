@@ -107,31 +107,129 @@ def summarise(scene: Scene, lv, parts) -> dict:
     }
 
 
+#: Variable capacitors the design picks from: (maximum, minimum) [F]. Common practice: air-spaced
+#: broadcast tuning capacitors are sold with about 140, 250, 365 and 500 pF maximum, two 365 or 500 pF
+#: sections in parallel give 730 or 1000 pF; with the plates out one keeps about 3-5 % of its maximum
+#: (the minimums here are typical figures, an assumption).
+STANDARD_CAPACITORS_F = ((140e-12, 6e-12), (250e-12, 10e-12), (365e-12, 12e-12), (500e-12, 17e-12),
+                         (730e-12, 25e-12), (1000e-12, 35e-12))
+#: Room kept at each end of a suggested capacitor's range for strays and the dial's ends (assumption):
+#: the settings needed must lie within [min·(1 + ROOM), max·(1 − ROOM)]. [1]
+CAPACITOR_ROOM = 0.05
+#: A design this much weaker for the weakest wanted station than the site's own parts counts as no
+#: worse (common practice: about 1 dB is the smallest change in loudness a listener notices). [dB]
+NO_WORSE_DB = 1.0
+
+
+def fits(capacitance, cmin, cmax, room=0.0) -> bool:
+    """Whether every tuning setting in ``capacitance`` [F] lies in [cmin·(1+room), cmax·(1−room)].
+
+    >>> fits([20e-12, 300e-12], 12e-12, 365e-12, 0.05)
+    True
+    """
+    c = np.asarray(capacitance, dtype=float)
+    return bool(np.all(c >= cmin * (1.0 + room)) and np.all(c <= cmax * (1.0 - room)))
+
+
+def standard_capacitor(capacitance):
+    """The smallest standard variable capacitor (:data:`STANDARD_CAPACITORS_F`) whose range, with
+    :data:`CAPACITOR_ROOM` at each end, holds every setting in ``capacitance`` [F]; None when none does.
+
+    >>> [round(c * 1e12) for c in standard_capacitor([30e-12, 200e-12])]  # [max, min] pF
+    [250, 10]
+    >>> standard_capacitor([3e-12, 100e-12]) is None
+    True
+    """
+    for cmax, cmin in STANDARD_CAPACITORS_F:
+        if fits(capacitance, cmin, cmax, CAPACITOR_ROOM):
+            return cmax, cmin
+    return None
+
+
+def out_of_reach(row: dict, reachable) -> dict:
+    """The figures of a candidate whose capacitor cannot tune the stations where ``reachable`` is False:
+    those get no power at the detector and no separation figure of their own (they still interfere)."""
+    ok = np.asarray(reachable, dtype=bool)
+    if ok.all():
+        return {**row, "unreachable": np.zeros_like(ok)}
+    power = np.where(ok, row["power_w"], 0.0)
+    own = np.where(ok, row["own"], 0.0)
+    sep = np.where(ok[:, None], row["sep"], np.inf)
+    return {**row, "power_w": power, "own": own, "sep": sep, "unreachable": ~ok}
+
+
 def hearable(rows, threshold) -> np.ndarray:
     """Stations some candidate makes audible at the detector: the ones worth designing for. [bool]"""
     return np.any(np.array([r["own"] for r in rows]) >= threshold, axis=0)
 
 
-def rescore(row: dict, wanted, margin_db) -> dict:
-    """The figures of merit over the ``wanted`` stations only (the others still count as interferers)."""
+def rescore(row: dict, wanted, margin_db, threshold) -> dict:
+    """The figures of merit over the ``wanted`` stations only (the others still count as interferers).
+
+    ``meets_margin`` needs both: every other listed station at least ``margin_db`` below each wanted
+    one wherever it would be audible, and every wanted station itself audible (its detector voltage
+    at least ``threshold`` [V]): keeping interferers down while the wanted station is too faint to
+    hear is no success. ``inaudible`` lists the wanted stations left below the threshold.
+    """
     idx = np.flatnonzero(wanted)
     if idx.size == 0:
-        return row
+        idx = np.arange(len(row["power_w"]))
     weakest = int(idx[np.argmin(row["power_w"][idx])])
     sep = row["sep"][idx]
     k = int(np.argmin(sep))
     i, j = int(idx[k // sep.shape[1]]), int(k % sep.shape[1])
     worst = float(row["sep"][i, j])
-    return {**row, "weakest": weakest, "weakest_power_w": float(row["power_w"][weakest]),
-            "worst_separation_db": worst, "pair": (i, j), "meets_margin": bool(worst >= margin_db)}
+    inaudible = [int(n) for n in idx if row["own"][n] < threshold]
+    designed = np.zeros(len(row["power_w"]), dtype=bool)
+    designed[idx] = True
+    return {**row, "weakest": weakest, "weakest_power_w": float(row["power_w"][weakest]), "designed": designed,
+            "worst_separation_db": worst, "pair": (i, j), "separated": bool(worst >= margin_db),
+            "inaudible": inaudible, "meets_margin": bool(worst >= margin_db and not inaudible)}
 
 
-def choose(rows) -> int:
-    """Index of the best candidate: meets the margin with the most power for the weakest; else the best separated."""
+def no_worse(row: dict, current: dict) -> bool:
+    """Whether a candidate leaves the weakest wanted station no worse off than the site's own parts.
+
+    Two conditions, each within :data:`NO_WORSE_DB`: the station the candidate leaves weakest gets no
+    less than the site's parts give that same station; and among the wanted stations the site's parts
+    can tune, the weakest gets no less than their weakest does (so making an unreachable station
+    reachable cannot be bought by losing one the parts already hear).
+    """
+    tol = 10.0 ** (-NO_WORSE_DB / 10.0)
+    if row["weakest_power_w"] < tol * current["power_w"][row["weakest"]]:
+        return False
+    tuned = current["designed"] & (current["power_w"] > 0)
+    if not tuned.any():
+        return True
+    return bool(row["power_w"][tuned].min() >= tol * current["power_w"][tuned].min())
+
+
+def choose(rows, current: dict) -> int:
+    """Index of the recommended candidate in ``rows``, or −1 to keep the site's own parts (``current``).
+
+    Among candidates that meet the margin (separated and audible), the most power for the weakest wanted
+    station. When none does, never one that is worse for the weakest wanted station than the site's
+    own parts (:func:`no_worse`). Of those no worse, the best separated, then the strongest; the site's
+    own parts when nothing no worse separates better. The site's own parts are kept too when they meet
+    the margin and give the weakest station more than every candidate that does.
+    """
     ok = [k for k, r in enumerate(rows) if r["meets_margin"]]
     if ok:
-        return max(ok, key=lambda k: rows[k]["weakest_power_w"])
-    return max(range(len(rows)), key=lambda k: (min(rows[k]["worst_separation_db"], 1e9), rows[k]["weakest_power_w"]))
+        best = max(ok, key=lambda k: rows[k]["weakest_power_w"])
+        if current["meets_margin"] and current["weakest_power_w"] > rows[best]["weakest_power_w"]:
+            return -1
+        return best
+    if current["meets_margin"]:
+        return -1
+    pool = [k for k, r in enumerate(rows) if no_worse(r, current)]
+
+    def key(r):
+        return (min(r["worst_separation_db"], 1e9), r["weakest_power_w"])
+
+    best = max(pool, key=lambda k: key(rows[k]), default=-1)
+    if best < 0 or key(rows[best]) <= key(current):
+        return -1
+    return best
 
 
 #: The aerial-side tuned circuit of a proposed double-tuned pair: its tuning capacitor at mid setting. [F]
@@ -192,6 +290,7 @@ def _double_tuned_with(scene, inductance, block, detector_tap, wanted, other, cs
         "tank_loaded_q": q2,
         "separation_db": float(20.0 * np.log10(own / max(lv.others[0, 1], 1e-300))),
         "wanted_power_w": float(lv.detector_voltage[0] ** 2 / lv.input_resistance[0]),
+        "wanted_audible": bool(own >= scene.threshold),
     }
 
 
@@ -217,4 +316,5 @@ def trap(scene: Scene, parts, wanted, other, kind) -> dict:
         "tuned_to_hz": f_t,
         "separation_db": float(20.0 * np.log10(lv.others[0, 0] / max(lv.others[0, 1], 1e-300))),
         "wanted_power_w": float(lv.detector_voltage[0] ** 2 / lv.input_resistance[0]),
+        "wanted_audible": bool(lv.others[0, 0] >= scene.threshold),
     }

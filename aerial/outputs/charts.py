@@ -297,7 +297,8 @@ def station_figure(result):
 def station_design_figure(result):
     """Weakest wanted station's detector power against adjacent-channel rejection, one dot per coupling and taps.
 
-    The chosen design is ringed, the site's own parts marked with a cross; hollow dots miss the
+    The best design with the site's coil and capacitor is ringed, the suggestion with a standard
+    capacitor marked with a diamond, the site's own parts as wired with a cross; hollow dots miss the
     interference margin. Returns None when the site lists no station in the band.
     """
     design = (result.get("tuning") or {}).get("station_design") or {}
@@ -315,14 +316,20 @@ def station_design_figure(result):
                 ax.scatter([r["adjacent_rejection_db"] for r in pts], [r["weakest_detector_power_w"] for r in pts],
                            s=18, facecolors=colour if ok else "none", edgecolors=colour,
                            label=plain_label(arr) + ("" if ok else " (misses the margin)"))
-    for key, marker, label in (("current", "x", "your parts"), ("chosen", "o", "chosen")):
+    for key, marker, label in (("current", "x", "your parts as wired"), ("chosen", "o", "best with your parts"),
+                               ("suggested", "D", "suggested (standard capacitor)")):
         r = design.get(key) or {}
-        if r and marker == "o":
-            ax.scatter([r["adjacent_rejection_db"]], [r["weakest_detector_power_w"]], s=120, marker="o",
-                       facecolors="none", edgecolors=PALETTE["black"], linewidths=1.5, label=label, zorder=5)
-        elif r:
+        if key == "chosen" and not design.get("capacitor_given", True):
+            continue  # no capacitor of the site's own: the suggestion is the design
+        if not r or r["weakest_detector_power_w"] <= 0 or (key != "current" and r.get("as_wired")):
+            continue  # nothing to mark (out of the capacitor's reach), or the same point as "as wired"
+        if marker == "x":
             ax.scatter([r["adjacent_rejection_db"]], [r["weakest_detector_power_w"]], s=60, marker="x",
                        color=PALETTE["black"], linewidths=1.5, label=label, zorder=5)
+        else:
+            ax.scatter([r["adjacent_rejection_db"]], [r["weakest_detector_power_w"]], s=120 if marker == "o" else 70,
+                       marker=marker, facecolors="none", edgecolors=PALETTE["black"], linewidths=1.5, label=label,
+                       zorder=5)
     ax.set_yscale("log")
     spacing = design.get("channel_spacing_hz", 9e3) / 1e3
     ax.set_xlabel(f"rejection {spacing:.0f} kHz away at the wanted stations' centre [dB]")

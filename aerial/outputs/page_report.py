@@ -11,7 +11,8 @@ import numpy as np
 from aerial.outputs import charts, site_drawings
 from aerial.outputs.page import (VERDICT_CLASS, VERDICT_MARK, bullets, dict_rows_table, document, esc, figure,
                                  format_value, generic_block, key_label, range_text, section, site_file_name, table)
-from aerial.outputs.terminal import detector_power_words, effective_length_words, eng, tuning_cell_text
+from aerial.outputs.terminal import (design_power_words, design_separation_words, design_shown_rows,
+                                     detector_power_words, effective_length_words, eng, tuning_cell_text)
 
 #: Top-level keys of the result the report page shows in its own sections; any other key is shown generically.
 KNOWN_KEYS = {"aerial_version", "site", "geometry", "bands", "frequencies_hz", "aerial", "earth", "ranges", "what_if",
@@ -258,24 +259,11 @@ def _tuning_table(tuning) -> str:
 
 
 def _design_rows(design) -> list[list]:
-    """Rows of the stations' tuning design: your parts, the chosen design, the best of every other coupling."""
-    best = {}
-    for r in design.get("tradeoff") or []:
-        b = best.get(r["arrangement"])
-        if b is None or (r["meets_margin"], r["weakest_detector_power_w"]) > (b["meets_margin"],
-                                                                              b["weakest_detector_power_w"]):
-            best[r["arrangement"]] = r
-    chosen = design["chosen"]
-    shown = [("yours", design["current"]), ("chosen", chosen)]
-    shown += [("", r) for r in best.values()
-              if (r["setting"], r["detector_tap_ratio"]) != (chosen["setting"], chosen["detector_tap_ratio"])]
+    """Rows of the stations' tuning design: as wired, with your parts, suggested, the best of every other coupling."""
     rows = []
-    for label, r in shown:
-        sep = r.get("worst_separation_db")
-        rows.append([(label, "total") if label else "", r["setting"], f"{r['detector_tap_ratio']:.2f}",
-                     f"{eng(r['weakest_detector_power_w'], 'W')} ({r['weakest_station']})",
-                     "no other audible" if sep is None else f"{sep:.0f} dB" + ("" if r["meets_margin"] else " (short)"),
-                     f"{r['adjacent_rejection_db']:.1f} dB"])
+    for label, r, cap in design_shown_rows(design):
+        rows.append([(label, "total") if label else "", r["setting"], f"{r['detector_tap_ratio']:.2f}", cap,
+                     design_power_words(r), design_separation_words(r), f"{r['adjacent_rejection_db']:.1f} dB"])
     return rows
 
 
@@ -302,25 +290,19 @@ def _station_design_block(result) -> str:
     if not design or not design.get("chosen") or not design.get("current"):
         return ""
     spacing = design.get("channel_spacing_hz", 9e3)
-    head = ["", "coupling", "detector tap", "weakest station at the detector", "worst separation",
+    head = ["", "coupling", "detector tap", "capacitor", "weakest station at the detector", "worst separation",
             f"{eng(spacing, 'Hz')} away"]
-    c = design["chosen"]
-    summary = (f"chosen: {c['setting']}, detector at {c['detector_tap_ratio']:.2f} of the turns, coil "
-               f"{eng(c['coil_inductance_h'], 'H')}: every other listed station at least {design['margin_db']:g} dB below"
-               if design.get("meets_margin") else
-               f"no single tuned circuit keeps every other listed station {design['margin_db']:g} dB down; the best "
-               f"separated is {c['setting']}, detector at {c['detector_tap_ratio']:.2f}; the remedies below add a "
-               "second circuit or a trap")
+    summary = list(design.get("summary", []))
     try:
         remedies = [_remedy_line(r) for r in design.get("remedies", [])]
     except (KeyError, TypeError):  # a remedy of a kind this page does not know: shown as plain facts
         remedies = [format_value("remedy", r) for r in design.get("remedies", [])]
     body = (table(head, _design_rows(design), f"Others kept {design['margin_db']:g} dB down; best of each coupling",
                   "wide")
-            + bullets([summary] + remedies, "advice") + bullets(design.get("notes", []), "notes")
+            + bullets(summary + remedies, "advice") + bullets(design.get("notes", []), "notes")
             + figure(charts.station_design_chart(result), "The weakest wanted station's power at the detector against "
-                     "the rejection of the next channel, one mark per coupling and detector tap; the chosen design "
-                     "ringed, your own parts crossed", "station-tuning"))
+                     "the rejection of the next channel, one mark per coupling and detector tap; the best with your "
+                     "parts ringed, the suggestion with a standard capacitor a diamond, your parts as wired crossed", "station-tuning"))
     return section("station-design", "Tuning for your stations", body, "sheet")
 
 

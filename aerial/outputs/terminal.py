@@ -548,45 +548,68 @@ VERDICT_STYLES = {"clearly heard": "green", "marginal": "yellow", "heard with in
                   "swamped": "red", "out of the tuning range": "red", "below the noise": "red", "not heard": "red"}
 
 
+def design_capacitor_words(r, design) -> str:
+    """The variable capacitor a design row uses, in words: the site's own, or the standard size suggested."""
+    if r.get("standard_capacitor_max_f") is not None and not r.get("fits_your_capacitor"):
+        return f"{eng(r['standard_capacitor_min_f'], 'F')}–{eng(r['standard_capacitor_max_f'], 'F')}"
+    if r.get("fits_your_capacitor") or r is design.get("current") or r.get("as_wired"):
+        return "yours"
+    return "—"
+
+
+def design_shown_rows(design) -> list:
+    """(label, row, capacitor words) of the stations' tuning table: the parts as wired, the best with your
+    coil and capacitor, the suggestion with a standard capacitor, then the best of each other coupling."""
+    best = {}
+    for r in design.get("tradeoff") or []:
+        b = best.get(r["arrangement"])
+        if b is None or (r["meets_margin"], r["weakest_detector_power_w"]) > (b["meets_margin"], b["weakest_detector_power_w"]):
+            best[r["arrangement"]] = r
+    shown = [("as wired", design["current"], "yours" if design.get("capacitor_given", True) else "not given")]
+    chosen, suggested = design["chosen"], design.get("suggested") or design["chosen"]
+    if not chosen.get("as_wired") and chosen.get("fits_your_capacitor"):
+        shown.append(("your parts", chosen, "yours"))
+    if not suggested.get("as_wired"):
+        shown.append(("suggested", suggested, design_capacitor_words({**suggested, "fits_your_capacitor": False},
+                                                                    design)))
+    seen = {(r["setting"], r["detector_tap_ratio"]) for _, r, _ in shown}
+    shown += [("", r, design_capacitor_words(r, design)) for r in best.values()
+              if (r["setting"], r["detector_tap_ratio"]) not in seen]
+    return shown
+
+
+def design_power_words(r) -> str:
+    p = r["weakest_detector_power_w"]
+    name = r["weakest_station"]
+    return f"out of reach ({name})" if p <= 0 else f"{eng(p, 'W')} ({name})"
+
+
+def design_separation_words(r) -> str:
+    sep = r.get("worst_separation_db")
+    if sep is None:
+        return "no other audible"
+    text = f"{sep:.0f} dB"
+    if r.get("separated") and r.get("inaudible"):
+        return text + " (too faint)"
+    return text + ("" if r["meets_margin"] else " (short)")
+
+
 def _render_station_design(tuning, console) -> None:
     design = (tuning or {}).get("station_design")
     if not design:
         return
-    rows = design.get("tradeoff") or []
     spacing = design.get("channel_spacing_hz", 9e3) / 1e3
     t = Table(title=f"Tuning for your stations (others kept {design['margin_db']:g} dB down; "
               "best of each coupling)", title_justify="left")
-    for col in ("", "coupling", "detector tap", "weakest station at the detector", "worst separation",
+    for col in ("", "coupling", "detector tap", "capacitor", "weakest station at the detector", "worst separation",
                 f"{spacing:.0f} kHz away"):
-        t.add_column(col, justify="left" if col in ("", "coupling") else "right")
-    best = {}
-    for r in rows:
-        key = r["arrangement"]
-        b = best.get(key)
-        if b is None or (r["meets_margin"], r["weakest_detector_power_w"]) > (b["meets_margin"], b["weakest_detector_power_w"]):
-            best[key] = r
-    shown = [("yours", design["current"]), ("chosen", design["chosen"])]
-    same = (design["chosen"]["setting"], design["chosen"]["detector_tap_ratio"])
-    shown += [("", r) for r in best.values() if (r["setting"], r["detector_tap_ratio"]) != same]
-    for label, r in shown:
-        sep = r.get("worst_separation_db")
-        sep_text = "no other audible" if sep is None else f"{sep:.0f} dB" + ("" if r["meets_margin"] else " (short)")
-        t.add_row(label, escape(r["setting"]), f"{r['detector_tap_ratio']:.2f}",
-                  f"{eng(r['weakest_detector_power_w'], 'W')} ({escape(r['weakest_station'])})", sep_text,
-                  f"{r['adjacent_rejection_db']:.1f} dB")
+        t.add_column(col, justify="left" if col in ("", "coupling", "capacitor") else "right")
+    for label, r, cap in design_shown_rows(design):
+        t.add_row(label, escape(r["setting"]), f"{r['detector_tap_ratio']:.2f}", cap,
+                  escape(design_power_words(r)), design_separation_words(r), f"{r['adjacent_rejection_db']:.1f} dB")
     show(console, t)
-    c = design["chosen"]
-    gain = 10.0 * math.log10(max(c["weakest_detector_power_w"], 1e-30)
-                             / max(design["current"]["weakest_detector_power_w"], 1e-30))
-    change = f"{abs(gain):.1f} dB {'more' if gain >= 0 else 'less'} power than with your parts"
-    if design["meets_margin"]:
-        console.print(f"  → chosen: {escape(c['setting'])}, detector at {c['detector_tap_ratio']:.2f} of the turns, "
-                      f"coil {eng(c['coil_inductance_h'], 'H')}: the weakest wanted station gets {change}, every other "
-                      f"listed station at least {design['margin_db']:g} dB below")
-    else:
-        console.print(f"  → no single tuned circuit keeps every other listed station {design['margin_db']:g} dB down; "
-                      f"the best separated is {escape(c['setting'])}, detector at {c['detector_tap_ratio']:.2f} "
-                      f"({change}); the remedies below add a second circuit or a trap")
+    for line in design.get("summary", []):
+        console.print(f"  → {escape(line)}")
     for line in design.get("notes", []):
         console.print(f"[dim]{escape(line)}[/dim]")
     for r in design.get("remedies", []):
