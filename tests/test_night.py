@@ -65,6 +65,7 @@ def test_positions_give_the_station_distance_and_bearing():
     ('latitude = 50\nlongitude = 1\nseason = "winter"\ndate = 2026-07-01', 'distance = "10 km"', "site.season",
      "falls in summer"),
     ('distance_to_sea = "-3 km"', 'distance = "10 km"', "site.distance_to_sea", "at least 0"),
+    ('sea_bearing = 90', 'distance = "10 km"', "site.sea_bearing", "distance_to_sea"),
     ('', 'distance = "10 km"\ndistance_to_sea = "near"', "stations[0].distance_to_sea", "length"),
 ])
 def test_bad_night_inputs_name_the_key(site_extra, station_extra, key, words):
@@ -197,6 +198,13 @@ def test_a_coastal_site_gets_the_sea_gain():
                                  'distance = "900 km"\nbearing = 120'))
     assert inland["sea_gain_db"] == 0.0 and 3.0 < coast["sea_gain_db"] < 5.0
     assert 20 * math.log10(coast["field_v_per_m"] / inland["field_v_per_m"]) == pytest.approx(coast["sea_gain_db"])
+    # derivation (straight coast): a path leaving at 60° from the sea's direction meets the sea 2x away;
+    # a station behind the site gets no gain from the site's sea
+    def gain(sea_bearing, dist="2 km"):
+        return night.sky_wave(*_one(f'latitude = 52.0\nlongitude = -1.0\ndistance_to_sea = "{dist}"\n'
+                                    f'sea_bearing = {sea_bearing}', 'distance = "900 km"\nbearing = 120'))["sea_gain_db"]
+    assert gain(300) == 0.0 and gain(120) > gain(60) > 0.0
+    assert gain(60, "1 km") == pytest.approx(gain(120, "2 km"))
 
 
 def test_the_night_noise_follows_the_block_of_the_listening_hour():
@@ -220,6 +228,10 @@ def test_report_names_the_listening_hour(write_site, capsys):
     assert n["hourly_loss_db"] > 0 and n["sea_gain_db"] > 0 and n["noise_time_block"] == "16–20 h"
     assert main(["report", str(p)]) == 0
     assert "by night: evening, two hours after sunset" in capsys.readouterr().out
+    page = p.parent / "night.html"
+    assert main(["report", str(p), "--page", str(page)]) == 0
+    capsys.readouterr()
+    assert "by night, evening, two hours after sunset" in page.read_text(encoding="utf-8")
     q = write_site(BASE.format(site_extra='listening_time = "teatime"', station_extra='distance = "600 km"'))
     assert main(["check", str(q)]) == 2
     assert "site.listening_time" in capsys.readouterr().err

@@ -191,6 +191,25 @@ def _hours(site, moment, mid) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     return h.loss_db, h.daylight, ss
 
 
+def _site_sea_distance(site, bearing_deg) -> np.ndarray:
+    """The site's distance from the sea along each station's path (NaN: no sea that way). [m]
+
+    With ``sea_bearing`` the coast is taken as a straight line with the sea that way: along a
+    path at Δ from it the sea is x / cos Δ away, and behind the site (|Δ| ≥ 90°) not at all.
+    Without it, or for a station whose bearing is not known, the sea is taken to lie along the path.
+    """
+    n = len(bearing_deg)
+    if site.distance_to_sea_m is None:
+        return np.full(n, np.nan)
+    x = np.full(n, float(site.distance_to_sea_m))
+    if site.sea_bearing_deg is None:
+        return x
+    delta = np.radians(bearing_deg - site.sea_bearing_deg)
+    cos = np.cos(delta)
+    along = np.where(cos > 1e-6, x / np.maximum(cos, 1e-6), np.nan)
+    return np.where(np.isfinite(bearing_deg), along, x)
+
+
 def sky_waves(site, stations=None, moment=None) -> list[dict]:
     """Night-time sky-wave field of each station at the site, JSON-ready (fields in V/m), in one pass.
 
@@ -215,7 +234,7 @@ def sky_waves(site, stations=None, moment=None) -> list[dict]:
         known = np.isfinite(bearing)
         lp[known] = sw.polarization_coupling_loss(dip, bearing[known])
     tx_sea = np.array([np.nan if st.distance_to_sea_m is None else st.distance_to_sea_m for st in stations])
-    rx_sea = np.full(len(stations), np.nan if site.distance_to_sea_m is None else site.distance_to_sea_m)
+    rx_sea = _site_sea_distance(site, bearing)
     gs = sw.sea_gain(d, f, tx_sea, rx_sea)
     lt, daylight, after_sunset = _hours(site, moment, paths["mid"])
     hour_read = moment["utc_h"] is not None or moment["assumed"] is not None

@@ -364,7 +364,8 @@ def _station_reasons(s) -> list[str]:
     if night.get("reason"):
         sky = night.get("sky_wave_field_v_per_m")
         out.append(f"{name} by night: {night['reason']}" + (f" (sky wave {eng(sky, 'V/m')}" if sky else "")
-                   + (", fading" if sky and night.get("fading") else "") + (")" if sky else ""))
+                   + (", fading" if sky and night.get("fading") else "") + (")" if sky else "")
+                   + (" (no sky wave yet: daylight at the path's midpoint)" if night.get("sky_wave_in_daylight") else ""))
     return out
 
 
@@ -388,7 +389,9 @@ def _stations_section(result) -> str:
         rows.append(row)
     headers = ["station", "frequency", "distance", "field", "at the detector", "audio", "signal-to-noise",
                "by day" if nights else "verdict"] + (["night field", "by night"] if nights else [])
-    caption = ("Stations (by day: ground wave; by night: ground and sky wave) — " if nights else "Stations — ")
+    when = next((s["night"]["listening_time"] for s in stations if (s.get("night") or {}).get("listening_time")), "")
+    caption = (f"Stations (by day: ground wave; by night{', ' + when if when else ''}: ground and sky wave) — "
+               if nights else "Stations — ")
     shown = {s.get("verdict") for s in stations} | {(s.get("night") or {}).get("verdict") for s in stations}
     caption += ", ".join(f"{mark} {v}" for v, mark in VERDICT_MARK.items() if v in shown)
     body = (table(headers, rows, caption)

@@ -304,6 +304,7 @@ class Site:
     day_of_year: int | None = None
     utc_offset_h: float | None = None
     distance_to_sea_m: float | None = None
+    sea_bearing_deg: float | None = None
 
     @property
     def feed_m(self) -> np.ndarray:
@@ -596,7 +597,7 @@ def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
     site_t = r.table(raw, "", "site")
     r.check_keys(site_t, "site", {"name", "notes", "region", "noise", "bands", "frequency_step", "field_strength", "soil",
                                   "latitude", "longitude", "season", "atmospheric_noise", "sunspots",
-                                  "listening_time", "date", "utc_offset", "distance_to_sea"})
+                                  "listening_time", "date", "utc_offset", "distance_to_sea", "sea_bearing"})
     name = r.string(site_t, "site", "name", default=Path(path).stem if not path.startswith("<") else "example site")
     region = r.string(site_t, "site", "region")
     noise = r.string(site_t, "site", "noise", default="residential", choices=NOISE_CATEGORIES)
@@ -1353,7 +1354,7 @@ def _degrees(r: TableReader, data, key, name, low, high):
         text = value.lower().replace("°", " deg ").replace("degrees", "deg").strip()
         sign = 1.0
         if text and text[-1] in hemi:
-            if (text[-1] in "ns") != (name == "latitude") or name == "bearing":
+            if (text[-1] in "ns") != (name == "latitude") or name.endswith("bearing"):
                 r.fail(full, value, f"expected {'N or S' if name == 'latitude' else 'E or W'} after a {name}")
             sign = hemi[text[-1]]
             text = text[:-1].strip()
@@ -1413,9 +1414,15 @@ def _night_inputs(r: TableReader, site_t, position=None) -> dict:
         season = season_of(day, position[0])
     sea = r.length(site_t, "site", "distance_to_sea", minimum=0.0, maximum=MAX_SEA_DISTANCE_M,
                    units_table=units.DISTANCE_UNITS)
+    sea_bearing = None
+    if "sea_bearing" in site_t:
+        if sea is None:
+            r.fail("site.sea_bearing", site_t["sea_bearing"], "the direction of the sea needs [site] distance_to_sea "
+                   "as well")
+        sea_bearing = _degrees(r, site_t, "site", "sea_bearing", -360.0, 360.0) % 360.0
     return {"season": season, "atmospheric_noise_db": fam, "sunspot_number": spots, "listening_time": when,
             "listening_hour": hour, "date_iso": date_iso, "day_of_year": day, "utc_offset_h": offset,
-            "distance_to_sea_m": sea}
+            "distance_to_sea_m": sea, "sea_bearing_deg": sea_bearing}
 
 
 #: Named listening times: "evening" is two hours after sunset, "before dawn" an hour before sunrise.
@@ -1479,16 +1486,20 @@ def _utc_offset(r: TableReader, site_t):
 
 
 def season_of(day_of_year: int, latitude_deg: float) -> str:
-    """The astronomical season of a day at a latitude (the southern hemisphere's is the opposite).
+    """The season of a day at a latitude as the ITU-R P.372 noise maps group the months.
+
+    December–February is winter in the northern hemisphere, March–May spring, June–August
+    summer and September–November autumn; the southern hemisphere's are the opposite (ITU-R
+    P.372, from memory). Leap years are ignored (a day's shift at a month's edge).
 
     Examples
     --------
-    >>> season_of(15, 52.0), season_of(15, -33.9), season_of(200, 40.0)
-    ('winter', 'summer', 'summer')
+    >>> season_of(15, 52.0), season_of(15, -33.9), season_of(171, -33.9), season_of(335, 40.0)
+    ('winter', 'summer', 'winter', 'winter')
     """
-    # equinoxes and solstices about 20 March, 21 June, 22 September, 21 December (days 80, 172, 265, 355)
+    # first days of March, June, September and December in a common year: 60, 152, 244, 335
     north = ("winter", "spring", "summer", "autumn", "winter")[
-        sum(day_of_year >= edge for edge in (80, 172, 265, 355))]
+        sum(day_of_year >= edge for edge in (60, 152, 244, 335))]
     if latitude_deg >= 0:
         return north
     return {"winter": "summer", "summer": "winter", "spring": "autumn", "autumn": "spring"}[north]
