@@ -74,7 +74,7 @@ VERDICTS = ("clearly heard", "marginal", "heard with interference", "swamped", "
 #: co-channel protection, from memory, a crystal-set listener settles for less). [dB]
 DEFAULT_INTERFERENCE_MARGIN_DB = 20.0
 #: An interferer less than this far below the wanted station (or above it) swamps it. [dB]
-SWAMP_DB = 6.0
+SWAMP_DB = sd_mod.SWAMP_DB
 
 LOW_IMPEDANCE_NOTE = (
     "low-impedance headphones (about 32 Ω) hear almost nothing from an unpowered receiver: as the detector's "
@@ -1557,8 +1557,13 @@ def _pick(rows, current, parts) -> tuple:
     """(chosen, suggested): the best with the site's capacitor, and the best with a standard one."""
     yours = [r for r in rows if r["fits_yours"]] if parts.capacitor_min_f is not None else []
     std = [r for r in rows if r["capacitor"] is not None]
-    k = sd_mod.choose(std, current)
-    suggested = current if k < 0 else std[k]
+    baseline = current
+    if parts.capacitor_min_f is None and current["capacitor"] is None and std:
+        # no capacitor of the site's own, and no common one tunes the coupling as wired: the strongest
+        # design for the weakest station is the one the others must not fall behind
+        baseline = max(std, key=lambda r: r["weakest_power_w"])
+    k = sd_mod.choose(std, baseline)
+    suggested = baseline if k < 0 else std[k]
     if parts.capacitor_min_f is None:
         return suggested, suggested
     k = sd_mod.choose(yours, current)
@@ -1678,7 +1683,8 @@ def _design_line(r, cur, margin, capacitor_words) -> str:
     what = "keep the coupling and taps as wired" if r["as_wired"] else \
         f"{r['setting']}, detector at {r['detector_tap_ratio']:.2f} of the turns"
     if capacitor_words:
-        what = f"{capacitor_words} with {what}"
+        what = f"{capacitor_words}, keeping the coupling and taps as wired" if r["as_wired"] else \
+            f"{capacitor_words} with {what}"
     name = r["weakest_station"]
     if r["weakest_detector_power_w"] > 0:
         text = f"{what}: the weakest wanted station, {name}, gets {eng_w(r['weakest_detector_power_w'])} at the detector"
@@ -1693,8 +1699,9 @@ def _design_line(r, cur, margin, capacitor_words) -> str:
             ch = 10.0 * np.log10(max(r["weakest_detector_power_w"], 1e-300) / before)
             text += f": {abs(ch):.1f} dB {'more' if ch >= 0 else 'less'}"
         text += ")"
-    if cur.get("out_of_reach") and not r["as_wired"]:
-        text += f"; as wired, the capacitor cannot reach {', '.join(cur['out_of_reach'])}"
+    missed = [n for n in cur.get("out_of_reach", []) if r["as_wired"] is False and n != name]
+    if missed:
+        text += f"; as wired, the capacitor cannot reach {', '.join(missed)}"
     if r["meets_margin"]:
         text += f"; every other listed station stays at least {margin:g} dB below"
         before = r.get("weakest_station_as_wired_w", 0.0)
@@ -1715,9 +1722,9 @@ def _design_line(r, cur, margin, capacitor_words) -> str:
             text += (f"; no single tuned circuit keeps every other listed station {margin:g} dB down (worst: "
                      f"{r['worst_pair'][1]} {abs(sep):.0f} dB {'below' if sep >= 0 else 'above'} {r['worst_pair'][0]})")
         if r["as_wired"] and not cur["meets_margin"]:
-            text += (f"; every design that separates better leaves its weakest wanted station more than "
-                     f"{NO_WORSE_DB_WORDS:g} dB worse off than these parts do, without reaching the margin, so none "
-                     "is recommended over them")
+            text += (f"; every design that separates better leaves a wanted station worse off than these parts do "
+                     f"(more than {NO_WORSE_DB_WORDS:g} dB for the weakest, or below the audibility threshold) without "
+                     "reaching the margin, so none is recommended over them")
     return text
 
 
@@ -1753,8 +1760,14 @@ def _design_summary(d, capacitor_given) -> list:
         else:
             lines.append("suggested: " + _design_line(s, cur, m, words))
     elif capacitor_given and s["as_wired"]:
-        lines.append("suggested: keep your parts as wired (no standard capacitor with another coupling does better "
-                     "for the weakest wanted station)")
+        why = ("no common capacitor with another coupling or tap does better for the weakest wanted station")
+        if cur.get("out_of_reach"):
+            why = (f"no common capacitor with another coupling or tap reaches {', '.join(cur['out_of_reach'])} "
+                   "without leaving a station these parts hear worse off")
+        lines.append(f"suggested: keep your parts as wired ({why})")
+    elif not lines:
+        lines.append("no common variable capacitor reaches every wanted station with this coil: a different coil "
+                     "is needed")
     return lines
 
 

@@ -187,21 +187,35 @@ def rescore(row: dict, wanted, margin_db, threshold) -> dict:
             "inaudible": inaudible, "meets_margin": bool(worst >= margin_db and not inaudible)}
 
 
+#: An interferer less than this far below the wanted station (or above it) swamps it; the station
+#: verdicts use the same figure (ASSUMPTION: at 6 dB down a second programme is as loud as speech
+#: in a noisy room; below that the listener follows the louder one). [dB]
+SWAMP_DB = 6.0
+
+
+def separation_class(sep_db, margin_db) -> int:
+    """2: every other station ``margin_db`` down; 1: heard with another underneath (at least
+    :data:`SWAMP_DB` down); 0: swamped.
+
+    >>> [separation_class(x, 20.0) for x in (25.0, 10.0, -3.0)]
+    [2, 1, 0]
+    """
+    return 2 if sep_db >= margin_db else (1 if sep_db >= SWAMP_DB else 0)
+
+
 def no_worse(row: dict, current: dict) -> bool:
     """Whether a candidate leaves the weakest wanted station no worse off than the site's own parts.
 
-    Two conditions, each within :data:`NO_WORSE_DB`: the station the candidate leaves weakest gets no
-    less than the site's parts give that same station; and among the wanted stations the site's parts
-    can tune, the weakest gets no less than their weakest does (so making an unreachable station
-    reachable cannot be bought by losing one the parts already hear).
+    The station the candidate leaves weakest must get no less than the site's parts give that same
+    station (within :data:`NO_WORSE_DB`; a station the parts cannot tune gets nothing from them), and
+    no wanted station the site's parts make audible may drop below the audibility threshold. So a
+    candidate may reach a station the parts cannot tune at some cost to the others, but never by
+    making one that is heard inaudible or by leaving a station weaker than the parts left it.
     """
-    tol = 10.0 ** (-NO_WORSE_DB / 10.0)
-    if row["weakest_power_w"] < tol * current["power_w"][row["weakest"]]:
+    if set(row.get("inaudible", ())) - set(current.get("inaudible", ())):
         return False
-    tuned = current["designed"] & (current["power_w"] > 0)
-    if not tuned.any():
-        return True
-    return bool(row["power_w"][tuned].min() >= tol * current["power_w"][tuned].min())
+    tol = 10.0 ** (-NO_WORSE_DB / 10.0)
+    return bool(row["weakest_power_w"] >= tol * current["power_w"][row["weakest"]])
 
 
 def choose(rows, current: dict) -> int:
@@ -209,9 +223,12 @@ def choose(rows, current: dict) -> int:
 
     Among candidates that meet the margin (separated and audible), the most power for the weakest wanted
     station. When none does, never one that is worse for the weakest wanted station than the site's
-    own parts (:func:`no_worse`). Of those no worse, the best separated, then the strongest; the site's
-    own parts when nothing no worse separates better. The site's own parts are kept too when they meet
-    the margin and give the weakest station more than every candidate that does.
+    own parts (:func:`no_worse`). Of those no worse, the ones that leave the fewest wanted stations
+    inaudible, then the best separation class (heard with another underneath beats swamped,
+    :func:`separation_class`); of those, the ones within :data:`NO_WORSE_DB` of the most power for the
+    weakest wanted station (as loud, to the ear), and of those the best separated; the site's own
+    parts when nothing no worse does better. The site's own parts are kept too when they meet the
+    margin and give the weakest station more than every candidate that does.
     """
     ok = [k for k, r in enumerate(rows) if r["meets_margin"]]
     if ok:
@@ -222,12 +239,24 @@ def choose(rows, current: dict) -> int:
     if current["meets_margin"]:
         return -1
     pool = [k for k, r in enumerate(rows) if no_worse(r, current)]
+    if not pool:
+        return -1
 
-    def key(r):
-        return (min(r["worst_separation_db"], 1e9), r["weakest_power_w"])
+    def grade(r):
+        return (-len(r.get("inaudible", ())), separation_class(r["worst_separation_db"], np.inf))
 
-    best = max(pool, key=lambda k: key(rows[k]), default=-1)
-    if best < 0 or key(rows[best]) <= key(current):
+    def sep(r):
+        return min(r["worst_separation_db"], 1e9)
+
+    top = max(grade(rows[k]) for k in pool)
+    pool = [k for k in pool if grade(rows[k]) == top]
+    tol = 10.0 ** (-NO_WORSE_DB / 10.0)
+    strongest = max(rows[k]["weakest_power_w"] for k in pool)
+    near = [k for k in pool if rows[k]["weakest_power_w"] >= tol * strongest]  # as loud, to the ear
+    best = max(near, key=lambda k: (sep(rows[k]), rows[k]["weakest_power_w"]))
+    if grade(current) > top:
+        return -1
+    if grade(current) == top and current["weakest_power_w"] >= tol * strongest and sep(current) >= sep(rows[best]):
         return -1
     return best
 
