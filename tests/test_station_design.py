@@ -190,3 +190,29 @@ def test_report_with_a_coil_but_no_capacitor_suggests_one(write_site, capsys):
     assert d["capacitor_given"] is False
     assert d["summary"][0].startswith("suggested: a ") and "variable capacitor (a common size)" in d["summary"][0]
     assert (d["suggested"]["standard_capacitor_max_f"], d["suggested"]["standard_capacitor_min_f"]) in sd.STANDARD_CAPACITORS_F
+
+
+def test_a_design_that_costs_the_weakest_station_says_it_buys_the_margin():
+    """A 50 kW local 90 kHz from a 10 kW wanted station (invented): the parts as wired leave the local 14 dB
+    under; a loosely coupled primary with the detector tapped down meets 20 dB at a cost to the wanted station,
+    and the words say that the cost buys the margin."""
+    st_ = [Station("Demo Local", 810e3, 50e3, 10e3, 22.0, 3e-3), Station("Demo Want", 900e3, 10e3, 20e3, 22.0, 3e-3)]
+    parts = TuningParts("series capacitor", series_capacitance_f=100e-12, coil_inductance_h=240e-6,
+                        capacitor_min_f=12e-12, capacitor_max_f=365e-12, coil_unloaded_q=150.0)
+    d = design_for_stations(**OUTDOOR, parts=parts, stations=st_, band=(520e3, 1710e3), spacing_hz=9e3)
+    assert not d["current"]["meets_margin"] and d["chosen"]["meets_margin"]
+    assert d["chosen"]["weakest_change_db"] < -sd.NO_WORSE_DB
+    assert "accepted because it buys the 20 dB margin the parts as wired miss" in d["summary"][0]
+
+
+def test_rural_example_remedies_that_leave_the_station_inaudible_are_no_success(capsys):
+    from .conftest import EXAMPLES
+
+    rural = next(p for p in EXAMPLES if p.name == "rural_long_wire.toml")
+    code, out, err = run(capsys, "report", str(rural), "--json")
+    assert code == 0, err
+    design = json.loads(out)["tuning"]["station_design"]
+    faint = [r for r in design["remedies"] if r["separation_db"] >= design["margin_db"] and not r["wanted_audible"]]
+    assert faint  # the example's parallel trap keeps the interferer down but the far station too faint
+    for r in faint:
+        assert not r["meets_margin"] and "audibility threshold" in r["verdict_text"]

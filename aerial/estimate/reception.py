@@ -1756,7 +1756,9 @@ def _design_summary(d, capacitor_given) -> list:
         words = (f"a {s['standard_capacitor_min_f'] * 1e12:.0f}–{s['standard_capacitor_max_f'] * 1e12:.0f} pF "
                  "variable capacitor (a common size)")
         if same:
-            lines.append(f"suggested: the same; your capacitor reaches every wanted station ({words} would too)")
+            lines.append(f"suggested: the same; your capacitor reaches every wanted station (a common "
+                         f"{s['standard_capacitor_min_f'] * 1e12:.0f}–{s['standard_capacitor_max_f'] * 1e12:.0f} pF "
+                         "one would too)")
         else:
             lines.append("suggested: " + _design_line(s, cur, m, words))
     elif capacitor_given and s["as_wired"]:
