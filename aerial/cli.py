@@ -107,7 +107,8 @@ def _output_options(progress: bool) -> argparse.ArgumentParser:
     o = argparse.ArgumentParser(add_help=False)
     o.add_argument("--width", type=_width, metavar="N",
                    help="report width in characters (default: the terminal's; when the output is not a terminal, "
-                        "wide enough for every table); tables that do not fit are listed row by row, never cut")
+                        "COLUMNS if set, else wide enough for every table); tables that do not fit are listed row "
+                        "by row, never cut")
     o.add_argument("--units", choices=UNIT_SYSTEMS, default="si",
                    help="lengths in the report: si (metres) or us (feet and inches, station distances in miles); "
                         "--json stays SI")
@@ -183,20 +184,39 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def _console(stderr=False, width=None):
-    """A rich console; on a stdout that is not a terminal (and no ``width``), tables widen to their content."""
-    from rich.console import Console
+    """A rich console for the report (or, with ``stderr``, for the progress bar).
 
-    class _Console(Console):
+    Its width: ``width`` (--width) when given; else on a stdout that is not a terminal the
+    COLUMNS variable when it holds a width, and when neither is set tables widen to their
+    content (prose wraps at :data:`PIPE_WIDTH`); on a terminal, the terminal's.
+    """
+    if stderr:
+        from rich.console import Console as base
+    else:
+        from aerial.outputs.terminal import ReportConsole as base
+
+    class _Console(base):
         def on_broken_pipe(self) -> None:
             # rich exits with status 1 here; a reader that went away (`| head`) is not an error
             devnull = os.open(os.devnull, os.O_WRONLY)
             os.dup2(devnull, sys.stdout.fileno())
             raise BrokenPipeError
 
-    fit = not stderr and width is None and not sys.stdout.isatty()
+    piped = not stderr and width is None and not sys.stdout.isatty()
+    if piped:
+        width = _columns()
+    fit = piped and width is None
     console = _Console(stderr=stderr, highlight=False, soft_wrap=False, width=PIPE_WIDTH if fit else width)
     console.fit_to_content = fit
     return console
+
+
+def _columns() -> int | None:
+    """The width the COLUMNS variable asks for (kept within --width's limits), or None when it holds none."""
+    text = os.environ.get("COLUMNS", "").strip()
+    if not text.isdigit() or int(text) == 0:
+        return None
+    return min(max(int(text), 40), 1000)
 
 
 def _print_json(data) -> None:

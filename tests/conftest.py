@@ -27,6 +27,12 @@ length = "2.4 m"
 """
 
 
+@pytest.fixture(autouse=True)
+def _no_columns_from_outside(monkeypatch):
+    """A piped report honours COLUMNS: a value exported in the shell that runs the tests must not change them."""
+    monkeypatch.delenv("COLUMNS", raising=False)
+
+
 @pytest.fixture
 def write_site(tmp_path):
     """Write TOML text (dedented) to a file and return its path."""

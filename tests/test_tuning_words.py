@@ -22,7 +22,7 @@ def _json(capsys, path):
 
 
 def _text(capsys, path, monkeypatch):
-    monkeypatch.setenv("COLUMNS", "200")
+    monkeypatch.delenv("COLUMNS", raising=False)  # piped: every table at its full width
     code = main(["report", str(path)])
     out, _ = capsys.readouterr()
     assert code == 0
@@ -117,7 +117,7 @@ def test_remedy_verdict_follows_its_numbers(capsys, monkeypatch):
 
 
 def test_spill_over_reads_the_right_way_round(capsys, monkeypatch):
-    monkeypatch.setenv("COLUMNS", "200")
+    monkeypatch.delenv("COLUMNS", raising=False)  # piped: every table at its full width
     assert main(["report"]) == 0
     out = " ".join(capsys.readouterr()[0].split())
     assert "heard under" not in out

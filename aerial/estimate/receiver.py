@@ -293,7 +293,8 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
         if not (math.isfinite(turns) and 1 <= turns <= 10000):
             raise AerialError(f"--turns {turns:g}: expected a number of turns from 1 to 10000")
         L = float(np.asarray(coil_mod.solenoid_inductance(d, wd, turns, pitch=p)))
-        out.update({"turns": turns, "inductance_h": L, "winding_length_m": turns * (p or wd)})
+        out.update({"turns": turns, "inductance_h": L, "winding_length_m": turns * (p or wd),
+                    "wire_length_m": turns * math.pi * (d + wd)})  # as winding_for_inductance counts it
     else:
         try:
             want = units.parse_quantity(inductance, units.INDUCTANCE_UNITS, "an inductance", "H")

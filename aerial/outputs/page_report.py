@@ -262,7 +262,7 @@ def _design_rows(design) -> list[list]:
     """Rows of the stations' tuning design: as wired, with your parts, suggested, the best of every other coupling."""
     rows = []
     for label, r, cap in design_shown_rows(design):
-        rows.append([(label, "total") if label else "", r["setting"], f"{r['detector_tap_ratio']:.2f}", cap,
+        rows.append([(label, "total") if label not in ("", "other") else label, r["setting"], f"{r['detector_tap_ratio']:.2f}", cap,
                      design_power_words(r), design_separation_words(r), f"{r['adjacent_rejection_db']:.1f} dB"])
     return rows
 

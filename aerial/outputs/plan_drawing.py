@@ -132,11 +132,55 @@ def nice_length(span_m: float) -> float:
     return float(10 * p)
 
 
+def rank_spot(points, rank: int) -> tuple[float, float]:
+    """Where a layout's rank number sits on its top wire: part-way along it, a different part for each rank. [m]
+
+    The top-ranked wire has its number at the middle, the next two at a third and two thirds,
+    so that layouts sharing a support do not stack their numbers.
+
+    >>> rank_spot([[0, 0], [30, 0]], 1), rank_spot([[0, 0], [30, 0]], 2)
+    ((15.0, 0.0), (10.5, 0.0))
+    """
+    from shapely.geometry import LineString
+
+    fraction = {1: 0.5, 2: 0.35, 3: 0.65}.get(int(rank), 0.5)
+    pts = [tuple(map(float, p[:2])) for p in points]
+    if len(pts) < 2 or LineString(pts).length == 0:
+        return pts[0]
+    p = LineString(pts).interpolate(fraction, normalized=True)
+    return float(p.x), float(p.y)
+
+
+def legend_entries(scene) -> list:
+    """The plan's legend, in the order drawn: each ranked layout by its number, then the symbols. (kind, label)
+
+    >>> legend_entries({"layouts": [{"rank": 1, "description": "inverted-L"}], "lines": [], "zones": []})[:2]
+    [('rank 1', '1  inverted-L (best)'), ('lead', 'lead-in (dashed)')]
+    """
+    out = []
+    for lay in scene["layouts"]:
+        best = " (best)" if lay["rank"] == 1 else ""
+        out.append((f"rank {lay['rank']}", f"{lay['rank']}  {lay['description']}{best}"))
+    if scene["layouts"]:
+        out.append(("lead", "lead-in (dashed)"))
+    kinds = {ln["kind"] for ln in scene["lines"]}
+    if "power" in kinds:
+        out.append(("power", "power line"))
+    if scene["zones"]:
+        out.append(("zone", "fall zone of the power line (for layout 1)"))
+    if kinds - {"power"}:
+        out.append(("telecom", "telephone/cable"))
+    out += [("support", "support (height)"), ("entry", "lead-in entry")]
+    return out
+
+
 def svg_text(scene) -> str:
     """The plan drawing as an SVG document (text)."""
     x0, y0, x1, y1 = _view(scene)
     s = (WIDTH_PX - 2 * MARGIN_PX) / (x1 - x0)
-    height_px = int(round((y1 - y0) * s + 2 * MARGIN_PX + 40))
+    entries = legend_entries(scene)
+    map_bottom = MARGIN_PX + 30 + (y1 - y0) * s
+    height_px = int(round(map_bottom + 60 + 18 * len(entries)))
 
     def X(x):
         return MARGIN_PX + (x - x0) * s
@@ -200,6 +244,12 @@ def svg_text(scene) -> str:
                    f"<title>#{lay['rank']}: {escape(lay['description'])}</title></polyline>")
         out.append(f'<polyline id="lead-in-{lay["rank"]}" class="lead-in" points="{pts(lay["lead"])}" fill="none" '
                    f'stroke="{col}" stroke-width="{width * 0.6:.1f}" stroke-dasharray="5 3"/>')
+    for lay in reversed(scene["layouts"]):
+        rx, ry = rank_spot(lay["top"], lay["rank"])
+        col = COLOURS["wire"] if lay["rank"] == 1 else COLOURS["other"]
+        out.append(f'<g class="rank-number"><circle cx="{X(rx):.1f}" cy="{Y(ry):.1f}" r="8" fill="white" stroke="{col}"/>'
+                   f'<text x="{X(rx):.1f}" y="{Y(ry) + 4:.1f}" text-anchor="middle" font-size="11" font-weight="bold">'
+                   f'{lay["rank"]}</text></g>')
     out.append("</g>")
     for sp in scene["supports"]:
         out.append(f'<circle class="support" cx="{X(sp["x"]):.1f}" cy="{Y(sp["y"]):.1f}" r="5" fill="{COLOURS["support"]}">'
@@ -211,24 +261,39 @@ def svg_text(scene) -> str:
     out.append(f'<text x="{X(e["x"]) + 7:.1f}" y="{Y(e["y"]) + 16:.1f}">entry</text>')
     # scale bar
     bar = nice_length(x1 - x0)
-    bx, by = MARGIN_PX, height_px - 18
-    out.append(f'<g class="scale-bar"><line x1="{bx}" y1="{by}" x2="{bx + bar * s:.1f}" y2="{by}" stroke="black" '
-               f'stroke-width="3"/><text x="{bx + bar * s + 6:.1f}" y="{by + 4}">{bar:g} m</text></g>')
+    bx, by = MARGIN_PX, map_bottom + 24
+    out.append(f'<g class="scale-bar"><line x1="{bx}" y1="{by:.1f}" x2="{bx + bar * s:.1f}" y2="{by:.1f}" stroke="black" '
+               f'stroke-width="3"/><text x="{bx + bar * s + 6:.1f}" y="{by + 4:.1f}">{bar:g} m</text></g>')
     # north arrow
     nx, ny = WIDTH_PX - MARGIN_PX, MARGIN_PX + 70
     out.append(f'<g class="north-arrow"><line x1="{nx}" y1="{ny}" x2="{nx}" y2="{ny - 36}" stroke="black" '
                f'stroke-width="2" marker-end="url(#arrow)"/><text x="{nx - 4}" y="{ny + 16}" font-weight="bold">N</text></g>')
-    # legend
-    legend = [("top-ranked wire", COLOURS["wire"]), ("lead-in (dashed)", COLOURS["lead"]),
-              ("power line", COLOURS["power"]), ("fall zone", COLOURS["zone"]), ("telephone/cable", COLOURS["telecom"]),
-              ("support", COLOURS["support"])]
-    lx = WIDTH_PX - MARGIN_PX - 150
-    for n, (label, col) in enumerate(legend):
-        ly = height_px - 18 - 16 * (len(legend) - 1 - n)
-        out.append(f'<rect x="{lx}" y="{ly - 9}" width="12" height="10" fill="{col}"/>'
-                   f'<text x="{lx + 18}" y="{ly}">{escape(label)}</text>')
+    out.append(f'<g class="legend">{"".join(_svg_legend(entries, MARGIN_PX, by + 30))}</g>')
     out.append("</svg>")
     return "\n".join(out) + "\n"
+
+
+def _svg_legend(entries, x, y) -> list:
+    """SVG pieces for :func:`legend_entries`, one row of 18 px each from ``y`` down."""
+    out = []
+    for n, (kind, label) in enumerate(entries):
+        ly = y + 18 * n
+        if kind.startswith("rank ") or kind in ("lead", "power", "telecom"):
+            first = kind in ("rank 1", "lead")
+            col = {"power": COLOURS["power"], "telecom": COLOURS["telecom"]}.get(
+                kind, COLOURS["wire"] if first else COLOURS["other"])
+            dash = ' stroke-dasharray="5 3"' if kind == "lead" else ""
+            out.append(f'<line x1="{x}" y1="{ly - 4}" x2="{x + 24}" y2="{ly - 4}" stroke="{col}" '
+                       f'stroke-width="{3 if kind in ("rank 1", "power", "telecom") else 1.5}"{dash}/>')
+        elif kind == "zone":
+            out.append(f'<rect x="{x}" y="{ly - 10}" width="24" height="12" fill="{COLOURS["zone"]}" fill-opacity="0.15" '
+                       f'stroke="{COLOURS["zone"]}" stroke-dasharray="6 4"/>')
+        elif kind == "support":
+            out.append(f'<circle cx="{x + 12}" cy="{ly - 4}" r="5" fill="{COLOURS["support"]}"/>')
+        else:
+            out.append(f'<rect x="{x + 7}" y="{ly - 9}" width="10" height="10" fill="{COLOURS["entry"]}"/>')
+        out.append(f'<text x="{x + 32}" y="{ly}">{escape(label)}</text>')
+    return out
 
 
 def matplotlib_config_dir() -> None:
@@ -266,7 +331,8 @@ def png_bytes(scene) -> bytes:
     from matplotlib.path import Path as MplPath
 
     x0, y0, x1, y1 = _view(scene)
-    fig = Figure(figsize=(9, 9 * (y1 - y0) / (x1 - x0) + 0.6), dpi=100)
+    entries = legend_entries(scene)
+    fig = Figure(figsize=(9, 9 * (y1 - y0) / (x1 - x0) + 0.6 + 0.2 * len(entries)), dpi=100, layout="constrained")
     FigureCanvasAgg(fig)
     ax = fig.add_subplot(111)
     for z in scene["zones"]:
@@ -295,6 +361,8 @@ def png_bytes(scene) -> bytes:
         col = COLOURS["wire"] if first else COLOURS["other"]
         ax.plot(t[:, 0], t[:, 1], color=col, lw=3 if first else 1.2)
         ax.plot(ld[:, 0], ld[:, 1], color=col, lw=1.8 if first else 0.8, linestyle="--")
+        ax.text(*rank_spot(lay["top"], lay["rank"]), str(lay["rank"]), ha="center", va="center", fontsize=8,
+                fontweight="bold", zorder=5, bbox={"boxstyle": "circle,pad=0.25", "facecolor": "white", "edgecolor": col})
     for sp in scene["supports"]:
         ax.plot(sp["x"], sp["y"], "o", color=COLOURS["support"])
         ax.annotate(f"{sp['name']} {sp['height_m']:.1f} m", (sp["x"], sp["y"]), xytext=(4, 4),
@@ -312,9 +380,38 @@ def png_bytes(scene) -> bytes:
     ax.set_xlabel("east [m]")
     ax.set_ylabel("north [m]")
     ax.set_title(f"{scene['title']} — plan")
+    fig.legend(handles=_png_legend(entries), loc="outside lower left", fontsize=8, frameon=False,
+               title="layouts by rank (the number on each wire)" if scene["layouts"] else None,
+               title_fontsize=8, alignment="left")
     buf = io.BytesIO()
     fig.savefig(buf, format="png")
     return buf.getvalue()
+
+
+def _png_legend(entries) -> list:
+    """matplotlib legend handles for :func:`legend_entries`."""
+    from matplotlib.lines import Line2D
+    from matplotlib.patches import Patch
+
+    def line(col, **kw):
+        return Line2D([], [], color=col, **kw)
+
+    styles = {"lead": lambda: line(COLOURS["lead"], lw=1.8, linestyle="--"),
+              "power": lambda: line(COLOURS["power"], lw=2.5),
+              "zone": lambda: Patch(facecolor=COLOURS["zone"], alpha=0.15, edgecolor=COLOURS["zone"], linestyle="--"),
+              "telecom": lambda: line(COLOURS["telecom"], lw=2.5),
+              "support": lambda: line(COLOURS["support"], marker="o", linestyle="none"),
+              "entry": lambda: line(COLOURS["entry"], marker="s", linestyle="none")}
+    handles = []
+    for kind, label in entries:
+        if kind.startswith("rank "):
+            first = kind == "rank 1"
+            handle = line(COLOURS["wire"] if first else COLOURS["other"], lw=3 if first else 1.2)
+        else:
+            handle = styles[kind]()
+        handle.set_label(label)
+        handles.append(handle)
+    return handles
 
 
 def write_plan_picture(path, scene, force: bool = False, protected=()) -> Path:

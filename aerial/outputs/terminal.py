@@ -13,10 +13,76 @@ import math
 import re
 
 import numpy as np
+from rich.cells import cell_len
+from rich.console import Console, Group
+from rich.measure import Measurement
 from rich.panel import Panel
 from rich.table import Table
 from rich.markup import escape
 from rich.text import Text
+
+
+# --------------------------------------------------------------------------- keeping numbers with their units
+
+#: The space rich must not break a line at: between a number and its unit, inside a coordinate triple,
+#: between the groups of "12 000". It is printed as an ordinary space.
+GLUE = "\u00a0"
+#: Stands in for :data:`GLUE` while rich wraps (rich takes a no-break space for an ordinary one): one
+#: cell wide, not a space, never printed.
+_HOLD = "\ue000"
+_UNIT = r"(?:[GMkmµunpf]?(?:Hz|F|H|Ω|W|V/m|V|m|s)|cm|dB|%|ft|in|mi|AWG|SWG|turns)"
+_GLUE_AT = re.compile(rf"(?<=\d) (?={_UNIT}(?![\w/]))|(?<=\d), (?=[-−]?\d)|(?<=\d) (?=\d{{3}}(?![\d.]))")
+
+
+class Glued(Text):
+    """Text that rich wraps only at spaces other than :data:`GLUE`, printed with ordinary spaces."""
+
+    def __rich_measure__(self, console, options) -> Measurement:
+        plain = self.plain
+        widest = max((cell_len(line) for line in plain.splitlines()), default=0)
+        words = [w for w in re.split(rf"[^\S{GLUE}]+", plain) if w]
+        return Measurement(max((cell_len(w) for w in words), default=widest), widest)
+
+    def wrap(self, console, width, **options):
+        held = self.copy()
+        held.plain = self.plain.replace(GLUE, _HOLD)
+        lines = Text.wrap(held, console, width, **options)
+        for line in lines:
+            line.plain = line.plain.replace(_HOLD, " ")
+        return lines
+
+
+def glue(text) -> Glued:
+    """``text`` (a plain string or a rich Text) with each number kept on one line with its unit.
+
+    Examples
+    --------
+    >>> glue("at least 20 dB below, at (0.50, -0.50, 1.00) m; 12 000 km").plain.count(GLUE)
+    5
+    """
+    if not isinstance(text, Text):
+        text = Text(str(text))
+    kept = Glued(_GLUE_AT.sub(lambda m: m.group(0).replace(" ", GLUE), text.plain), style=text.style,
+                 justify=text.justify, overflow=text.overflow, no_wrap=text.no_wrap, end=text.end,
+                 tab_size=text.tab_size)
+    kept.spans = list(text.spans)
+    return kept
+
+
+class ReportConsole(Console):
+    """A rich console whose printed strings and table cells keep every number with its unit."""
+
+    def render_str(self, text, **options) -> Text:
+        return glue(super().render_str(text, **options))
+
+    def print(self, *objects, sep: str = " ", end: str = "\n", **options) -> None:
+        """As rich prints, with lines of text kept whole (rich joins them into plain Text otherwise)."""
+        if objects and all(isinstance(o, (str, Text)) for o in objects):
+            words = {k: options[k] for k in ("emoji", "markup", "highlight") if k in options}
+            line = glue(Text(sep).join(self.render_str(o, **words) if isinstance(o, str) else o for o in objects))
+            line.end = end
+            objects = (Group(line),)
+        super().print(*objects, sep=sep, end=end, **options)
 
 
 # --------------------------------------------------------------------------- number formats
@@ -172,12 +238,11 @@ def show(console, table: Table) -> None:
     """Print a table without cutting anything.
 
     On a console marked ``fit_to_content`` the console widens to the table's
-    natural width for this one table; otherwise, when even the table's
-    narrowest layout (every cell wrapped at its longest word) is wider than
-    the console, the rows are listed one field per line instead.
+    natural width for this one table. Otherwise a table wider than the console
+    gives each column at least its longest word (a number with its unit is one
+    word) and shares the rest by what each column would still use; when even
+    that is wider than the console, the rows are listed one field per line.
     """
-    from rich.measure import Measurement
-
     for column in table.columns:
         column.overflow = "fold"  # a last resort: a squeezed cell folds, never ends in "…"
     # measured without the console's width, which would clamp both figures
@@ -194,9 +259,38 @@ def show(console, table: Table) -> None:
             return
         console.print(table)
         return
-    if wide.minimum <= console.width:
-        console.print(table)
+    if wide.maximum > console.width and not _share_width(console, table, wide.maximum):
+        _list_rows(console, table)
         return
+    console.print(table)
+
+
+def _share_width(console, table: Table, natural: int) -> bool:
+    """Set each column's width so that the table fills the console; False when its words cannot fit.
+
+    Each column gets its longest word (rich's own squeeze can fold a header or a figure below it)
+    and the room left is shared in proportion to what each column would still use.
+    """
+    options = console.options.update_width(100_000)
+    ranges = []
+    for column in table.columns:
+        parts = [column.header, *column.cells]
+        sizes = [Measurement.get(console, options, part) for part in parts if part is not None and part != ""]
+        ranges.append((max((m.minimum for m in sizes), default=1), max((m.maximum for m in sizes), default=1)))
+    overhead = natural - sum(hi for _, hi in ranges)
+    room = console.width - overhead - sum(lo for lo, _ in ranges)
+    if room < 0:
+        return False
+    want = [hi - lo for lo, hi in ranges]
+    total = sum(want) or 1
+    widths = [lo + int(room * w / total) for (lo, _), w in zip(ranges, want)]
+    for column, width in zip(table.columns, widths):
+        column.width = max(width, 1)
+    return True
+
+
+def _list_rows(console, table: Table) -> None:
+    """A table too wide for the console, one field per line; a long field goes on indented under itself."""
     if table.title:
         console.print(Text(str(table.title), style="italic"))
     headers = [console.render_str(c.header) if isinstance(c.header, str) else Text(str(c.header)) for c in table.columns]
@@ -207,8 +301,10 @@ def show(console, table: Table) -> None:
             value = console.render_str(cell) if isinstance(cell, str) else cell
             if not isinstance(value, Text):
                 value = Text(str(value))
-            line = Text("• " if col == 0 else "    ") + header + Text(": ") + Text(" ").join(value.split("\n"))
-            console.print(line)
+            label = header + Text(": ") if header.plain.strip() else Text("")
+            body = glue(label + Text(" ").join(value.split("\n")))
+            for i, line in enumerate(body.wrap(console, max(console.width - 6, 20))):
+                console.print(Text("• " if col == 0 and i == 0 else "      " if i else "    ") + line)
 
 
 def db(x) -> str:
@@ -294,7 +390,10 @@ def _lines(console, title, lines, style, L: Lengths | None = None):
         if i:
             body.append("\n")
         body.append("• " + line)
-    console.print(Panel(body, title=title, title_align="left", border_style=style))
+    if len(title) + 6 > console.width:  # rich would cut a title too long for the border
+        console.print(Text(title, style="bold"))
+        title = None
+    console.print(Panel(glue(body), title=title, title_align="left", border_style=style))
 
 
 # --------------------------------------------------------------------------- commands
@@ -306,8 +405,10 @@ def render_check(summary: dict, console, units: str = "si") -> None:
     console.print(f"[bold]{escape(site['name'])}[/bold]  ({escape(site['file'])})")
     show(console, _geometry_table(summary["geometry"], L))
     console.print(escape(_summary_line(summary["geometry"], L)))
-    bands = ", ".join(f"{b['name']} {eng(b['from_hz'], 'Hz')}–{eng(b['to_hz'], 'Hz')}" for b in summary["bands"])
-    console.print(f"bands: {bands} ({summary['frequency_count']} frequencies) · earth: {', '.join(summary['earth']) or 'none'} · "
+    # four figures: the LF broadcast band's edges are 148.5 and 283.5 kHz
+    bands = ", ".join(f"{b['name']} {eng(b['from_hz'], 'Hz', 4)}–{eng(b['to_hz'], 'Hz', 4)}" for b in summary["bands"])
+    earth = ", ".join(kind.replace("_", " ") for kind in summary["earth"]) or "none"
+    console.print(f"bands: {bands} ({summary['frequency_count']} frequencies) · earth: {escape(earth)} · "
                   f"stations: {summary['stations']}")
     _lines(console, "Warnings", summary.get("warnings", []), "yellow", L)
     console.print("[green]The site file is valid.[/green]")
@@ -517,23 +618,18 @@ def tuning_cell_text(row: dict, key: str, unit: str) -> str:
 
 
 def _tuning_cell(r: dict, key: str, unit: str, v: float) -> str:
-    """One cell of the tuning table, in words where the number alone would mislead.
+    """One ordinary cell of the tuning table (the cells said in words are :func:`tuning_cell_words`').
 
-    A negative capacitor setting (the aerial alone is more capacitance than the tank needs), a share of
-    more than the whole or below nothing, a loaded Q below 1 (no resonance worth the name) and a
-    bandwidth wider than the search window are said as such, not printed as ordinary figures.
+    A negative capacitor setting (the aerial alone is more capacitance than the tank needs) and a share
+    of more than the whole are said as such; a setting outside the capacitor's range is marked. A loaded
+    Q below 1 never reaches here, and its bandwidth is a true figure (searched out to three times the
+    frequency), marked "≥" only when an edge lay beyond the search.
     """
     if key == "capacitor_setting_f" and v < 0:
         return f"none: the aerial alone is {eng(-v, 'F')} too much"
     if key == "aerial_share_ratio" and r.get("aerial_shunt_capacitance_f") is not None:
         c = r["aerial_shunt_capacitance_f"]
-        if c < 0:
-            return f"{eng(c, 'F')} (inductive)"
         return f"{eng(c, 'F')} ({'more than the total' if v > 1 else f'{100 * v:.0f} %'})"
-    if key == "loaded_q" and v < 1:
-        return "< 1 (no useful resonance)"
-    if key == "bandwidth_hz" and (r.get("bandwidth_note") or (r.get("loaded_q") or 1) < 1):
-        return f"≥ {eng(v, unit)}"
     if unit == "%":
         return f"{100 * v:.0f} %"
     if unit == "":
@@ -573,7 +669,7 @@ def design_shown_rows(design) -> list:
         shown.append(("suggested", suggested, design_capacitor_words({**suggested, "fits_your_capacitor": False},
                                                                     design)))
     seen = {(r["setting"], r["detector_tap_ratio"]) for _, r, _ in shown}
-    shown += [("", r, design_capacitor_words(r, design)) for r in best.values()
+    shown += [("other", r, design_capacitor_words(r, design)) for r in best.values()
               if (r["setting"], r["detector_tap_ratio"]) not in seen]
     return shown
 
@@ -659,7 +755,7 @@ def _render_stations(stations, console, L: Lengths) -> None:
         t.add_row(escape(s.get("name", "")), eng(s.get("frequency_hz"), "Hz"), L.distance(s.get("distance_m")),
                   eng(s.get("field_v_per_m"), "V/m"), detector_power_words(s),
                   "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
-                  Text(verdict, style=style), nfield, Text(nv or "—", style=nstyle))
+                  glue(Text(verdict, style=style)), nfield, glue(Text(nv or "—", style=nstyle)))
     show(console, t)
     when = next((s["night"]["listening_time"] for s in stations if (s.get("night") or {}).get("listening_time")), "")
     if when:

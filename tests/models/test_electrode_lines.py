@@ -71,7 +71,7 @@ def test_report_shows_impedance_and_effective_length(capsys, monkeypatch):
     from aerial.cli import main
 
     site = pathlib.Path(__file__).resolve().parents[2] / "site_examples" / "balcony_water_pipe.toml"
-    monkeypatch.setenv("COLUMNS", "200")
+    monkeypatch.delenv("COLUMNS", raising=False)  # piped: every table at its full width
     assert main(["report", str(site)]) == 0
     out = capsys.readouterr().out
     assert "effective length" in out and "add nothing at" in out and "lossy lines in the soil" in out

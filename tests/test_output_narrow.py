@@ -1,0 +1,159 @@
+"""Output in a narrow window and through a pipe: COLUMNS is honoured, nothing is cut, a number never
+parts from its unit; the plan picture names its ranked layouts.
+
+Invented example sites only; these are input/output handling tests (no physics truth here).
+"""
+
+from __future__ import annotations
+
+import json
+import re
+from xml.sax.saxutils import escape
+
+import pytest
+
+from aerial.outputs.terminal import eng, glue
+
+from .conftest import run
+
+EXAMPLES = "site_examples/"
+#: A line (or a table cell) that starts with a unit, as the report writes units.
+UNIT_FIRST = re.compile(r"^(?:[GMkmµunpf]?(?:Hz|F|H|Ω|W|V/m|V|m)|dB|%|ft|in|mi)(?![\w/])")
+
+
+def parted(out: str) -> list:
+    """Pairs of lines where a number ends one line (or table cell) and its unit starts the next."""
+    bad = []
+    lines = out.splitlines()
+    for a, b in zip(lines, lines[1:]):
+        cells_a, cells_b = a.split("│"), b.split("│")
+        if len(cells_a) != len(cells_b):
+            cells_a, cells_b = [a], [b]
+        for x, y in zip(cells_a, cells_b):
+            if re.search(r"\d$", x.rstrip()) and UNIT_FIRST.match(y.strip()):
+                bad.append((a, b))
+    return bad
+
+
+def test_the_checker_finds_a_parted_unit():
+    assert parted("at least 20\ndB below") and parted("│ 12.3 │ x │\n│ dB   │   │")
+    assert not parted("at least\n20 dB below") and not parted("│ 12.3 dB │\n│ (low)   │")
+
+
+def test_glue_keeps_numbers_with_units_and_prints_plain_spaces():
+    from aerial.outputs.terminal import ReportConsole
+
+    console = ReportConsole(width=20, record=True, file=open("/dev/null", "w"))
+    console.print(glue("aaaaaaaaaaaaaa at 12.3 dB (5.5–7.7 m)"))
+    text = console.export_text()
+    assert "12.3 dB" in text and "\u00a0" not in text
+
+
+@pytest.mark.parametrize("argv", [
+    ["report", EXAMPLES + "backyard_inverted_l.toml"],
+    ["report", EXAMPLES + "balcony_water_pipe.toml", "--units", "us"],
+    ["layout", EXAMPLES + "suburban_lot_service_line.toml"],
+    ["check", EXAMPLES + "rural_long_wire.toml"],
+    ["coil", "--diameter", "2 in", "--wire", "26 AWG", "--inductance", "240 uH"],
+])
+def test_piped_at_columns_60_nothing_is_cut_and_no_unit_wraps_away(capsys, monkeypatch, argv):
+    monkeypatch.setenv("COLUMNS", "60")
+    code, out, _ = run(capsys, *argv, *(["--quiet"] if argv[0] in ("report", "layout") else []))
+    assert code == 0
+    assert "…" not in out
+    assert max(len(line) for line in out.splitlines()) <= 60  # the piped output honours COLUMNS
+    assert not parted(out), parted(out)[:3]
+
+
+def test_a_wide_table_at_60_columns_keeps_its_words_whole(capsys, monkeypatch):
+    # rich's own squeeze folded "resistance" into "resistanc|e" although the table could fit
+    monkeypatch.setenv("COLUMNS", "60")
+    code, out, _ = run(capsys, "report", EXAMPLES + "backyard_inverted_l.toml", "--quiet")
+    assert code == 0
+    earth = out[out.index("Earth system"):out.index("R low–high")]
+    assert "resistance" in earth and "resistanc " not in earth
+    # a panel title too long for the border is printed whole above it
+    code, out, _ = run(capsys, "layout", EXAMPLES + "suburban_lot_service_line.toml", "--quiet")
+    assert "Code checklist (typical requirements, not a compliance check)" in " ".join(out.split())
+
+
+def test_width_option_beats_columns_and_no_columns_widens_tables(capsys, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "60")
+    code, out, _ = run(capsys, "report", "--width", "80", "--quiet")
+    assert code == 0 and 60 < max(len(line) for line in out.splitlines()) <= 80
+    monkeypatch.delenv("COLUMNS")
+    code, out, _ = run(capsys, "report", "--quiet")
+    assert code == 0 and max(len(line) for line in out.splitlines()) > 100  # tables at their full width
+    assert "…" not in out
+
+
+def test_listed_rows_label_every_design(capsys, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "60")
+    code, out, _ = run(capsys, "report", EXAMPLES + "backyard_inverted_l.toml", "--quiet")
+    assert code == 0
+    design = out[out.index("Tuning for your stations"):]
+    assert "• as wired" in design and "• other" in design
+    assert not re.search(r"^• *$", design, flags=re.M)
+
+
+def test_a_flat_tank_shows_its_true_bandwidth_and_marks_only_a_floor(capsys):
+    # rural example: loaded Q below 1 at 520 kHz with both -3 dB edges found (the search runs from a
+    # third to three times the frequency), and at 1.71 MHz an edge beyond it
+    code, out, _ = run(capsys, "report", EXAMPLES + "rural_long_wire.toml", "--json")
+    rows = json.loads(out)["tuning"]["rows"]
+    first, last = rows[0], rows[-1]
+    assert first["loaded_q"] < 1 and not first["bandwidth_is_lower_bound"]
+    assert last["bandwidth_is_lower_bound"]
+    code, out, _ = run(capsys, "report", EXAMPLES + "rural_long_wire.toml", "--width", "300", "--quiet")
+    table = out[out.index("Tuning:"):out.index("Band coverage")]
+    row520 = next(line for line in table.splitlines() if line.startswith("│") and "520 kHz" in line)
+    assert "< 1 (no useful resonance)" in row520
+    assert f" {eng(first['bandwidth_hz'], 'Hz')} " in row520 and "≥" not in row520
+    assert f"≥ {eng(last['bandwidth_hz'], 'Hz')}" in table
+
+
+def test_check_names_band_edges_to_the_half_kilohertz(capsys):
+    # LF broadcast band edges 148.5 and 283.5 kHz (ITU Radio Regulations, Region 1 allocation; from memory)
+    code, out, _ = run(capsys, "check", EXAMPLES + "balcony_water_pipe.toml", "--width", "200")
+    assert code == 0
+    assert "148.5 kHz–283.5 kHz" in out and "earth: water pipe" in out
+
+
+def test_coil_from_turns_says_how_much_wire(capsys):
+    code, out, _ = run(capsys, "coil", "--diameter", "50 mm", "--wire", "26 AWG", "--turns", "69", "--json")
+    by_turns = json.loads(out)
+    code, out, _ = run(capsys, "coil", "--diameter", "50 mm", "--wire", "26 AWG", "--inductance",
+                       f"{by_turns['inductance_h'] * 1e6:.6f} uH", "--json")
+    by_inductance = json.loads(out)
+    # consistency check: the same 69 turns need the same wire whichever way the coil is asked for
+    assert by_inductance["whole_turns"] == 69
+    assert by_turns["wire_length_m"] == pytest.approx(by_inductance["wire_length_m"], rel=1e-9)
+    code, out, _ = run(capsys, "coil", "--diameter", "50 mm", "--wire", "26 AWG", "--turns", "69")
+    assert code == 0 and "wire needed" in out
+
+
+def test_plan_pictures_name_each_ranked_layout(capsys, tmp_path, monkeypatch):
+    site = EXAMPLES + "suburban_lot_service_line.toml"
+    svg = tmp_path / "plan.svg"
+    code, out, _ = run(capsys, "layout", site, "--picture", svg, "--quiet", "--json")
+    assert code == 0
+    layouts = json.loads(out)["layouts"][:3]
+    text = svg.read_text(encoding="utf-8")
+    assert text.count('class="rank-number"') == len(layouts) == 3
+    for lay in layouts:
+        assert f"{lay['rank']}  {escape(lay['description'])}" in text
+    labels = []
+    from matplotlib.figure import Figure
+
+    original = Figure.legend
+
+    def spy(self, *args, **kwargs):
+        labels.extend(h.get_label() for h in kwargs.get("handles", []))
+        return original(self, *args, **kwargs)
+
+    monkeypatch.setattr(Figure, "legend", spy)
+    png = tmp_path / "plan.png"
+    code, _, _ = run(capsys, "layout", site, "--picture", png, "--quiet")
+    assert code == 0 and png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    assert [label.split("  ")[0] for label in labels[:3]] == ["1", "2", "3"]
+    assert labels[0].startswith(f"1  {layouts[0]['description']}") and "power line" in labels
