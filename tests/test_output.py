@@ -29,7 +29,7 @@ def band_point_figures(result, lengths=Lengths("si")):
     out = []
     for f in result["ranges"]["frequencies_hz"]:
         i = freqs.index(f)
-        out += [eng(f, "Hz"), eng(a["capacitance_f"][i], "F"), lengths(a["effective_height_m"][i]),
+        out += [eng(f, "Hz", 4), eng(a["capacitance_f"][i], "F"), lengths(a["effective_height_m"][i]),
                 eng(a["available_power_w"][i], "W")]
     return out
 

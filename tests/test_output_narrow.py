@@ -157,3 +157,34 @@ def test_plan_pictures_name_each_ranked_layout(capsys, tmp_path, monkeypatch):
     assert code == 0 and png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
     assert [label.split("  ")[0] for label in labels[:3]] == ["1", "2", "3"]
     assert labels[0].startswith(f"1  {layouts[0]['description']}") and "power line" in labels
+
+
+def test_consistency_one_centre_frequency_for_earth_what_if_and_loss_budget(capsys):
+    # balcony example (two bands): the earth table, the what-if table and the loss budget are all at the
+    # MF centre, and the what-if "as described" row repeats the main table's figures there
+    site = EXAMPLES + "balcony_water_pipe.toml"
+    code, out, _ = run(capsys, "report", site, "--json")
+    result = json.loads(out)
+    fc = result["earth"]["centre_frequency_hz"]
+    row = result["what_if"][0]
+    assert row["frequency_hz"] == fc
+    i = result["frequencies_hz"].index(fc)
+    a = result["aerial"]
+    assert row["available_power_w"] == pytest.approx(a["available_power_w"][i], rel=1e-9)
+    assert row["capacitance_f"] == pytest.approx(a["capacitance_f"][i], rel=1e-9)
+    code, out, _ = run(capsys, "report", site, "--width", "300", "--quiet")
+    at = eng(fc, "Hz", 4)
+    assert f"impedance at {at}" in out and f"What would help (at {at})" in out and f"loss budget at {at}:" in out
+    electrode = result["aerial"]["loss_budget"]["electrode_ohm"][i]
+    assert f"earth electrode {eng(electrode, 'Ω')}" in out
+
+
+def test_small_shares_and_powers_are_said_in_plain_figures(capsys):
+    site = EXAMPLES + "balcony_water_pipe.toml"
+    code, out, _ = run(capsys, "report", site, "--width", "300", "--quiet")
+    assert code == 0
+    table = out[out.index("Tuning:"):out.index("Band coverage")]
+    assert " 0 % " not in table  # the coil tap passes a small share, never "nothing"
+    assert "e-0" not in out and "e-1" not in out  # powers with a prefix, not in exponent form
+    assert re.search(r"audio \d+(?:\.\d)? [fpnµm]?W, \d+ dB above the noise", out)
+    assert "148.5 kHz" in out and "283.5 kHz" in out  # the LF band's edges, not 148 and 284 kHz

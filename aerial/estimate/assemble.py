@@ -680,7 +680,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     result["ranges"] = ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground,
                                              allow_large=allow_large, progress=progress)
     if what_ifs:
-        result["what_if"] = what_if(site, f_centre, earth)
+        result["what_if"] = what_if(site, float(freqs[centre_i]), earth)  # the frequency of the earth table and the ranges
 
     from aerial.estimate import receiver as receiver_bridge
 

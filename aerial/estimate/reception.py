@@ -461,6 +461,22 @@ def _ok_range(ok, lo, hi, points=48, refine=40):
     return float(a), float(b)
 
 
+def watts_words(p: float) -> str:
+    """A power with an SI prefix, two figures, as people read it: 2.3e-08 -> '23 nW'.
+
+    >>> watts_words(2.3e-08), watts_words(1e-10), watts_words(1.4e-13), watts_words(0.0)
+    ('23 nW', '100 pW', '140 fW', '0 W')
+    """
+    p = float(p)
+    if not p > 0:
+        return "0 W"
+    for scale, prefix in ((1.0, ""), (1e-3, "m"), (1e-6, "µ"), (1e-9, "n"), (1e-12, "p"), (1e-15, "f")):
+        if p >= scale * 0.9995 or prefix == "f":
+            x = p / scale
+            return f"{x:.2g} {prefix}W" if x < 99.5 else f"{x:.0f} {prefix}W"
+    return f"{p:.2g} W"
+
+
 def _pf(c):
     return f"{c * 1e12:.0f} pF"
 
@@ -1353,13 +1369,14 @@ def judge_stations(a: dict, parts: TuningParts, names) -> list:
         j = int(np.argmax(rel[i])) if len(names) > 1 else 0
         worst = float(rel[i, j]) if len(names) > 1 else -np.inf
         v = {"interference": {"name": names[j], "level_relative_db": worst}} if np.isfinite(worst) else {}
-        level = f"audio {pa:.1e} W, {sn:.0f} dB above the noise"
+        level = f"audio {watts_words(pa)}, {sn:.0f} dB above the noise"
         if need:
             v = {"verdict": "out of the tuning range", "verdict_text": f"out of the tuning range ({need})",
                  "reason": f"the tuning capacitor cannot reach {_khz(a['fs'][i])} ({need})"}
         elif pa < AUDIBLE_POWER_W:
             v.update(verdict="not heard", verdict_text="not heard: too little audio",
-                     reason=f"too little audio ({pa:.1e} W; about {AUDIBLE_POWER_W:.0e} W is assumed to be just audible)")
+                     reason=f"too little audio ({watts_words(pa)}; about {watts_words(AUDIBLE_POWER_W)} is "
+                            "assumed to be just audible)")
         elif sn < MARGINAL_SNR_DB:
             v.update(verdict="below the noise", verdict_text=f"below the noise ({sn:.0f} dB signal-to-noise)",
                      reason=f"buried in the noise ({sn:.0f} dB signal-to-noise)")

@@ -11,7 +11,7 @@ import numpy as np
 from aerial.outputs import charts, site_drawings
 from aerial.outputs.page import (VERDICT_CLASS, VERDICT_MARK, bullets, dict_rows_table, document, esc, figure,
                                  format_value, generic_block, key_label, range_text, section, site_file_name, table)
-from aerial.outputs.terminal import (design_power_words, design_separation_words, design_shown_rows,
+from aerial.outputs.terminal import (centre_index, design_power_words, design_separation_words, design_shown_rows,
                                      detector_power_words, effective_length_words, eng, tuning_cell_text)
 
 #: Top-level keys of the result the report page shows in its own sections; any other key is shown generically.
@@ -186,8 +186,8 @@ def _aerial_section(result) -> str:
     budget = a.get("loss_budget")
     freqs = result.get("frequencies_hz")
     if budget and freqs is not None and len(freqs):
-        i = len(freqs) // 2
-        extra.append(f"loss budget at {eng(freqs[i], 'Hz')}: wire {eng(a['conductor_loss_ohm'][i], 'Ω')}; soil under "
+        i = centre_index(result)
+        extra.append(f"loss budget at {eng(freqs[i], 'Hz', 4)}: wire {eng(a['conductor_loss_ohm'][i], 'Ω')}; soil under "
                      f"the aerial {eng(budget['soil_under_aerial_ohm'][i], 'Ω')} ({budget['soil_treatment']}); earth "
                      f"electrode {eng(budget['electrode_ohm'][i], 'Ω')} ({budget['electrode_treatment']})")
     body = (_wires_table(result["geometry"]) + _aerial_table(result) + bullets(extra)
@@ -237,7 +237,7 @@ def _what_if_section(result) -> str:
     if not rows:
         return ""
     f = rows[0].get("frequency_hz")
-    return section("what-if", f"What would help (at {eng(f, 'Hz')})", dict_rows_table(rows, skip=("frequency_hz", "model")))
+    return section("what-if", f"What would help (at {eng(f, 'Hz', 4)})", dict_rows_table(rows, skip=("frequency_hz", "model")))
 
 
 def _tuning_table(tuning) -> str:

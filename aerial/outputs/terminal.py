@@ -307,6 +307,16 @@ def _list_rows(console, table: Table) -> None:
                 console.print(Text("• " if col == 0 and i == 0 else "      " if i else "    ") + line)
 
 
+def percent(ratio) -> str:
+    """A ratio as a percentage, two figures below 10 % (a small share is not "0 %").
+
+    >>> percent(0.0042), percent(0.016), percent(0.43), percent(1.0)
+    ('0.42 %', '1.6 %', '43 %', '100 %')
+    """
+    p = 100.0 * float(ratio)
+    return f"{p:.0f} %" if abs(p) >= 9.95 or p == 0 else f"{float(f'{p:.2g}'):g} %"
+
+
 def db(x) -> str:
     return "—" if x is None else f"{x:+.1f} dB"
 
@@ -329,6 +339,17 @@ def effective_length_words(part: dict, L) -> str:
     if own is not None and le <= own:
         return "a longer rod would not help here"
     return f"a longer rod helps up to about {L(le)}"
+
+
+def centre_index(result: dict) -> int:
+    """Index in ``frequencies_hz`` of the frequency the earth table, the what-if table and the loss budget share."""
+    freqs = result["frequencies_hz"]
+    fc = (result.get("earth") or {}).get("centre_frequency_hz")
+    if fc is None:
+        fc = (result.get("what_if") or [{}])[0].get("frequency_hz")
+    if fc is None:
+        return len(freqs) // 2
+    return _nearest(freqs, fc)
 
 
 def _nearest(freqs, f):
@@ -446,7 +467,7 @@ def render_report(result: dict, console, units: str = "si") -> None:
         i = _nearest(freqs, f)
         loss = a["conductor_loss_ohm"][i] + a["ground_loss_ohm"][i]
         t.add_row(
-            f"{eng(freqs[i], 'Hz')}\n[dim]{escape(label.split(' ', 1)[0])} {escape(label.rsplit(' ', 2)[-2] if 'edge' in label else 'centre')}[/dim]",
+            f"{eng(freqs[i], 'Hz', 4)}\n[dim]{escape(label.split(' ', 1)[0])} {escape(label.rsplit(' ', 2)[-2] if 'edge' in label else 'centre')}[/dim]",
             f"{eng(a['capacitance_f'][i], 'F')}\n{span(ranges['capacitance_f'][j], 'F')}",
             f"{L(a['effective_height_m'][i])}\n{L.span(ranges['effective_height_m'][j])}",
             eng(a["radiation_resistance_ohm"][i], "Ω"),
@@ -467,9 +488,9 @@ def render_report(result: dict, console, units: str = "si") -> None:
         console.print(f"ground treatment: {escape(a['ground_treatment'])}")
     budget = a.get("loss_budget")
     if budget and labels:
-        i = _nearest(freqs, ranges["frequencies_hz"][len(labels) // 2])
+        i = centre_index(result)
         console.print(
-            f"loss budget at {eng(freqs[i], 'Hz')}: wire {eng(a['conductor_loss_ohm'][i], 'Ω')}; soil under the aerial "
+            f"loss budget at {eng(freqs[i], 'Hz', 4)}: wire {eng(a['conductor_loss_ohm'][i], 'Ω')}; soil under the aerial "
             f"{eng(budget['soil_under_aerial_ohm'][i], 'Ω')} ({escape(budget['soil_treatment'])}); earth electrode "
             f"{eng(budget['electrode_ohm'][i], 'Ω')} ({escape(budget['electrode_treatment'])})")
     for note in ranges.get("notes", []):
@@ -479,7 +500,7 @@ def render_report(result: dict, console, units: str = "si") -> None:
     if earth:
         et = Table(title="Earth system", title_justify="left")
         fc = earth.get("centre_frequency_hz")
-        at = f"at {eng(fc, 'Hz')}" if fc else "at radio frequency"
+        at = f"at {eng(fc, 'Hz', 4)}" if fc else "at radio frequency"
         for col in ("part", "resistance (DC)", f"impedance {at}", "effective length", "method"):
             et.add_column(col)
         for part in earth.get("parts", []):
@@ -508,7 +529,7 @@ def render_report(result: dict, console, units: str = "si") -> None:
     wi = result.get("what_if")
     if wi:
         model = "" if a["model"].startswith("closed form") else ", by the closed forms: compare the rows, not the main table"
-        wt = Table(title=f"What would help (at {eng(wi[0]['frequency_hz'], 'Hz')}{model})", title_justify="left")
+        wt = Table(title=f"What would help (at {eng(wi[0]['frequency_hz'], 'Hz', 4)}{model})", title_justify="left")
         for col in ("change", "effective height", "capacitance", "loss resistance", "available power", "change"):
             wt.add_column(col, justify="left" if col == "change" else "right")
         for row in wi:
@@ -629,9 +650,9 @@ def _tuning_cell(r: dict, key: str, unit: str, v: float) -> str:
         return f"none: the aerial alone is {eng(-v, 'F')} too much"
     if key == "aerial_share_ratio" and r.get("aerial_shunt_capacitance_f") is not None:
         c = r["aerial_shunt_capacitance_f"]
-        return f"{eng(c, 'F')} ({'more than the total' if v > 1 else f'{100 * v:.0f} %'})"
+        return f"{eng(c, 'F')} ({'more than the total' if v > 1 else percent(v)})"
     if unit == "%":
-        return f"{100 * v:.0f} %"
+        return percent(v)
     if unit == "":
         return f"{v:.3g}"
     text = eng(v, unit)
