@@ -188,3 +188,21 @@ def test_small_shares_and_powers_are_said_in_plain_figures(capsys):
     assert "e-0" not in out and "e-1" not in out  # powers with a prefix, not in exponent form
     assert re.search(r"audio \d+(?:\.\d)? [fpnµm]?W, \d+ dB above the noise", out)
     assert "148.5 kHz" in out and "283.5 kHz" in out  # the LF band's edges, not 148 and 284 kHz
+
+
+def test_band_points_name_their_band(capsys):
+    # the portable example listens on MF and the HF broadcast bands: each HF point says which band
+    code, out, _ = run(capsys, "report", EXAMPLES + "portable_vertical_counterpoise.toml", "--width", "300", "--quiet")
+    assert code == 0
+    table = out[out.index("The aerial at the band edges"):out.index("loss budget")]
+    assert "MF low" in table and "HF 120 m low" in table and "HF 11 m high" in table
+
+
+def test_a_misspelt_unit_gets_a_suggestion(capsys, write_site):
+    from .conftest import MINIMAL, one_line
+
+    site = write_site(MINIMAL.replace('length = "2.4 m"', 'length = "8 fet"'))
+    code, out, err = run(capsys, "check", site)
+    line = one_line(err)
+    assert code == 2 and out == ""
+    assert 'earth.rods[0].length = "8 fet"' in line and 'did you mean "feet"?' in line

@@ -124,7 +124,10 @@ def find_unit(written: str, units: dict[str, float], number: str = "1") -> str:
     key = written.casefold()
     matches = [u for u in units if u.casefold() == key]
     if not matches:
-        raise UnitError(f"unknown unit \"{written}\"")
+        import difflib
+
+        near = difflib.get_close_matches(written, list(units), n=1, cutoff=0.6)
+        raise UnitError(f"unknown unit \"{written}\"" + (f" (did you mean \"{near[0]}\"?)" if near else ""))
     readings: dict[str, float] = {u: units[u] for u in matches}
     # the same letters with the prefix in the other case: an SI unit of its own ("Mm" is a megametre)
     first, rest = written[0], written[1:]

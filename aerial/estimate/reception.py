@@ -464,12 +464,12 @@ def _ok_range(ok, lo, hi, points=48, refine=40):
 def watts_words(p: float) -> str:
     """A power with an SI prefix, two figures, as people read it: 2.3e-08 -> '23 nW'.
 
-    >>> watts_words(2.3e-08), watts_words(1e-10), watts_words(1.4e-13), watts_words(0.0)
-    ('23 nW', '100 pW', '140 fW', '0 W')
+    >>> watts_words(2.3e-08), watts_words(1e-10), watts_words(1.4e-13), watts_words(2.4e-21)
+    ('23 nW', '100 pW', '140 fW', 'less than 0.01 fW')
     """
     p = float(p)
-    if not p > 0:
-        return "0 W"
+    if not p >= 1e-17:
+        return "less than 0.01 fW"
     for scale, prefix in ((1.0, ""), (1e-3, "m"), (1e-6, "µ"), (1e-9, "n"), (1e-12, "p"), (1e-15, "f")):
         if p >= scale * 0.9995 or prefix == "f":
             x = p / scale

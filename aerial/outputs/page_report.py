@@ -161,7 +161,7 @@ def _aerial_table(result) -> str:
             rng = range_text(ranges.get(key, [None] * (j + 1))[j], unit)
             return f"{eng(value, unit)}" + (f" ({rng})" if rng else "")
 
-        rows.append([f"{eng(freqs[i], 'Hz')} ({label})", cell(a["capacitance_f"][i], "capacitance_f", "F"),
+        rows.append([f"{eng(freqs[i], 'Hz', 4)} ({label})", cell(a["capacitance_f"][i], "capacitance_f", "F"),
                      cell(a["effective_height_m"][i], "effective_height_m", "m"),
                      eng(a["radiation_resistance_ohm"][i], "Ω"), cell(loss, "loss_resistance_ohm", "Ω"),
                      eng(a["reactance_ohm"][i], "Ω"), f"{100 * a['efficiency'][i]:.2g} %",

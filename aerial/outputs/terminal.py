@@ -341,6 +341,19 @@ def effective_length_words(part: dict, L) -> str:
     return f"a longer rod helps up to about {L(le)}"
 
 
+def band_point_words(label: str) -> str:
+    """A band point's short name under its frequency: the band (without "broadcast") and where in it.
+
+    >>> band_point_words("MF broadcast low edge"), band_point_words("HF 120 m centre")
+    ('MF low', 'HF 120 m centre')
+    """
+    for ending, where in ((" low edge", "low"), (" high edge", "high"), (" centre", "centre")):
+        if label.endswith(ending):
+            band = label[: -len(ending)]
+            return f"{band.removesuffix(' broadcast')} {where}"
+    return label
+
+
 def centre_index(result: dict) -> int:
     """Index in ``frequencies_hz`` of the frequency the earth table, the what-if table and the loss budget share."""
     freqs = result["frequencies_hz"]
@@ -467,7 +480,7 @@ def render_report(result: dict, console, units: str = "si") -> None:
         i = _nearest(freqs, f)
         loss = a["conductor_loss_ohm"][i] + a["ground_loss_ohm"][i]
         t.add_row(
-            f"{eng(freqs[i], 'Hz', 4)}\n[dim]{escape(label.split(' ', 1)[0])} {escape(label.rsplit(' ', 2)[-2] if 'edge' in label else 'centre')}[/dim]",
+            f"{eng(freqs[i], 'Hz', 4)}\n[dim]{escape(band_point_words(label))}[/dim]",
             f"{eng(a['capacitance_f'][i], 'F')}\n{span(ranges['capacitance_f'][j], 'F')}",
             f"{L(a['effective_height_m'][i])}\n{L.span(ranges['effective_height_m'][j])}",
             eng(a["radiation_resistance_ohm"][i], "Ω"),
