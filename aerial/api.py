@@ -126,7 +126,9 @@ def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allo
         raise AerialError("the layout planner is not available in this build") from None
     if picture:
         from aerial.outputs.files import check_writable
+        from aerial.outputs.plan_drawing import picture_type
 
+        picture_type(picture)  # before the search, not after it
         check_writable(picture, force, protected=(site.path,))
     if page:
         check_page_file(page, force, site)

@@ -206,3 +206,27 @@ def test_a_misspelt_unit_gets_a_suggestion(capsys, write_site):
     line = one_line(err)
     assert code == 2 and out == ""
     assert 'earth.rods[0].length = "8 fet"' in line and 'did you mean "feet"?' in line
+
+
+def test_a_wrong_picture_type_is_refused_before_the_search(capsys, monkeypatch, tmp_path):
+    from aerial import cli
+
+    from .conftest import one_line
+
+    monkeypatch.setattr(cli, "PROGRESS_LINES_AFTER_S", 0.0)
+    code, out, err = run(capsys, "layout", EXAMPLES + "suburban_lot_service_line.toml", "--picture", tmp_path / "p.jpg")
+    assert code == 2 and out == ""
+    assert "'.jpg' is not a valid picture type" in one_line(err)  # no progress lines: nothing was searched
+
+
+def test_page_tables_keep_numbers_with_units(capsys, tmp_path):
+    page = tmp_path / "p.html"
+    code, _, _ = run(capsys, "report", EXAMPLES + "balcony_water_pipe.toml", "--quiet", "--page", page)
+    assert code == 0
+    html = page.read_text(encoding="utf-8")
+    assert ".q { white-space: nowrap; }" in html
+    cells = re.findall(r"<td[^>]*>(.*?)</td>", html)
+    assert any('<span class="q">' in c for c in cells)
+    loose = [c for c in cells if re.search(r"\d [fpnµmkM]?(?:F|Ω|W|V|Hz|m)(?![\w/])",
+                                           re.sub(r'<span class="q">.*?</span>', "", c))]
+    assert not loose, loose[:3]

@@ -21,7 +21,7 @@ from importlib import resources
 from pathlib import Path
 
 from aerial.core.version import __version__
-from aerial.outputs.terminal import eng
+from aerial.outputs.terminal import eng, quantities_kept_html
 
 #: Content-Security-Policy of the page: nothing may be fetched and no script may run.
 CSP = "default-src 'none'; style-src 'unsafe-inline'; img-src data:; base-uri 'none'; form-action 'none'"
@@ -119,7 +119,8 @@ def table(headers, rows, caption=None, cls="") -> str:
         cells = []
         for cell in row:
             text, klass = cell if isinstance(cell, tuple) else (cell, "")
-            cells.append(f'<td class="{esc(klass)}">{esc(text)}</td>' if klass else f"<td>{esc(text)}</td>")
+            shown = quantities_kept_html(esc(text))
+            cells.append(f'<td class="{esc(klass)}">{shown}</td>' if klass else f"<td>{shown}</td>")
         out.append("<tr>" + "".join(cells) + "</tr>")
     out.append("</tbody></table>")
     return "".join(out)

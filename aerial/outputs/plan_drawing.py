@@ -414,12 +414,18 @@ def _png_legend(entries) -> list:
     return handles
 
 
-def write_plan_picture(path, scene, force: bool = False, protected=()) -> Path:
-    """Write the drawing to ``path`` (SVG or PNG by its extension) through a temporary file and a rename."""
+def picture_type(path) -> str:
+    """The picture type a file name asks for (".svg" or ".png"), or an error naming the choices."""
     suffix = Path(path).suffix.lower()
     if suffix not in PICTURE_SUFFIXES:
         raise AerialError(f"{path}: '{suffix or '(none)'}' is not a valid picture type, must be one of "
                           + ", ".join(f"'{s}'" for s in PICTURE_SUFFIXES))
+    return suffix
+
+
+def write_plan_picture(path, scene, force: bool = False, protected=()) -> Path:
+    """Write the drawing to ``path`` (SVG or PNG by its extension) through a temporary file and a rename."""
+    suffix = picture_type(path)
     from aerial.outputs.files import check_writable
 
     check_writable(path, force, protected)

@@ -34,6 +34,18 @@ _UNIT = r"(?:[GMkmµunpf]?(?:Hz|F|H|Ω|W|V/m|V|m|s)|cm|dB|%|ft|in|mi|AWG|SWG|tur
 _GLUE_AT = re.compile(rf"(?<=\d) (?={_UNIT}(?![\w/]))|(?<=\d), (?=[-−]?\d)|(?<=\d) (?=\d{{3}}(?![\d.]))")
 
 
+_QUANTITY = re.compile(rf"(?<![\d.])[-−+]?\d+(?:\.\d+)?(?: \d{{3}})*(?:[–-]\d+(?:\.\d+)?)? {_UNIT}(?![\w/])")
+
+
+def quantities_kept_html(escaped: str) -> str:
+    """HTML text with each number and its unit wrapped in ``<span class="q">`` (kept on one line by the page's CSS).
+
+    >>> quantities_kept_html("36 Ω (17.3 Ω – 45.9 Ω), j28 Ω")
+    '<span class="q">36 Ω</span> (<span class="q">17.3 Ω</span> – <span class="q">45.9 Ω</span>), j<span class="q">28 Ω</span>'
+    """
+    return _QUANTITY.sub(lambda m: f'<span class="q">{m.group(0)}</span>', escaped)
+
+
 class Glued(Text):
     """Text that rich wraps only at spaces other than :data:`GLUE`, printed with ordinary spaces."""
 
