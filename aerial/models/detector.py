@@ -240,10 +240,16 @@ def loaded_detector(peak_voltage, saturation_current, ideality, load_resistance,
     Notes
     -----
     Solves Vdc/R_L = Is[e^(−Vdc/nVT) I0(x) − 1], x = Vp/nVT, written as
-    ln(Vdc/R_L + Is) − ln Is + Vdc/nVT − ln I0(x) = 0 (increasing in Vdc; the
-    root lies between 0 and the open-circuit value). Then
-    R_in = Vp / (2 Is e^(−Vdc/nVT) I1(x)), which tends to nVT/Is (the diode's
-    zero-bias "video" resistance) for weak signals and to R_L/2 for strong ones.
+    h(Vdc) = ln(Vdc/R_L + Is) − ln Is + Vdc/nVT − ln I0(x) = 0. h increases and
+    is concave in Vdc and the root lies between 0 and the open-circuit value,
+    so Newton's method started at Vdc = 0 climbs to the root from below without
+    overshooting (quadratic convergence; a step that leaves the bracket kept by
+    the signs of h is replaced by halving, as a guard against round-off). It
+    stops after the first step smaller than ``rtol`` × Vdc; as the error after a
+    Newton step is of the order of the step squared, the root is then exact to
+    rounding. Then R_in = Vp / (2 Is e^(−Vdc/nVT) I1(x)), which tends to nVT/Is
+    (the diode's zero-bias "video" resistance) for weak signals and to R_L/2 for
+    strong ones.
 
     References
     ----------
@@ -264,24 +270,38 @@ def loaded_detector(peak_voltage, saturation_current, ideality, load_resistance,
     vp, rl = np.broadcast_arrays(vp, rl)
     x = vp / vt
     li0 = _log_i0(x)
-    lo = np.zeros_like(vp)
-    hi = vt * np.maximum(li0, 0.0)  # ln I0(x) >= 0; round-off can make it a hair negative
-    it = 0
-    for it in range(1, int(max_iter) + 1):
-        mid = 0.5 * (lo + hi)
-        h = np.log(mid / rl + i_s) - np.log(i_s) + mid / vt - li0
-        up = h > 0
-        hi = np.where(up, mid, hi)
-        lo = np.where(up, lo, mid)
-        if np.all(hi - lo <= rtol * hi + 1e-300):
-            break
-    vdc = 0.5 * (lo + hi)
-    converged = np.asarray(hi - lo <= rtol * hi + 1e-300)
+    vdc, converged, it = _detector_root(li0, rl, i_s, vt, rtol, max_iter)
     small = x < 1e-6
     xs = np.where(small, 1e-6, x)
     r_in = vp / (2.0 * i_s) * np.exp(vdc / vt - _log_i1(xs))
     r_in = np.where(small, vt / i_s, r_in)
     return Detection(vdc, r_in, converged, it)
+
+
+def _detector_root(li0, rl, i_s, vt, rtol, max_iter):
+    """Root of ln(V/R_L + Is) − ln Is + V/nVT − ln I0 = 0 in V (Newton from V = 0 inside a bracket)."""
+    lo = np.zeros(np.shape(li0))
+    hi = np.asarray(vt * np.maximum(li0, 0.0))  # ln I0(x) >= 0; round-off can make it a hair negative
+    a = rl * i_s  # the load's share of the diode current's scale: h'(V) = 1/(V + R_L·Is) + 1/nVT
+    inv_vt = 1.0 / vt
+    v = lo.copy()
+    done = hi <= 0.0
+    it = 0
+    for it in range(1, int(max_iter) + 1):
+        h = np.log1p(v / a) + v * inv_vt - li0  # ln(1 + V/(R_L·Is)) = ln(V/R_L + Is) − ln Is, without the cancellation
+        below = h <= 0.0
+        np.copyto(lo, v, where=below)
+        np.copyto(hi, v, where=~below)
+        step = h / (1.0 / (v + a) + inv_vt)
+        nxt = v - step
+        outside = ~((nxt >= lo) & (nxt <= hi))
+        if outside.any():
+            nxt = np.where(outside, 0.5 * (lo + hi), nxt)
+        done = done | (np.abs(nxt - v) <= rtol * nxt) | (hi - lo <= rtol * hi + 1e-300)
+        v = nxt
+        if done.all():
+            break
+    return v, np.asarray(done), it
 
 
 class AudioOutput(NamedTuple):

@@ -351,7 +351,8 @@ def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER)
     centre : array_like
         Tuned frequencies f0. [Hz]
     response : callable
-        response(f) -> |V_det(f)| with the tuning fixed for each f0 (same shape as ``centre``). [V]
+        response(f) -> |V_det(f)| with the tuning fixed for each f0; ``f`` has the shape of
+        ``centre`` or, for both edges at once, that shape with a leading axis of 2 (broadcast). [V]
     rtol : float
         Relative tolerance on each edge. [1]
     max_iter : int
@@ -375,24 +376,36 @@ def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER)
     if not (0 < rtol < 0.1):
         raise ModelInputError(f"rtol must lie between 0 and 0.1, got {rtol!r}")
     f0 = np.asarray(centre, dtype=float)
+    n = f0.size
     ref = np.abs(response(f0)) / np.sqrt(2.0)
-    edges = []
-    floor = np.zeros(f0.shape, dtype=bool)
-    for far in (f0 / 3.0, f0 * 3.0):
-        near = f0.copy()
-        far = far.copy()
-        beyond = np.abs(response(far)) >= ref
-        floor |= beyond
-        for _ in range(int(max_iter)):
-            mid = np.sqrt(near * far)
-            inside = np.abs(response(mid)) >= ref
-            near = np.where(inside, mid, near)
-            far = np.where(inside, far, mid)
-            if np.all(np.abs(far / near - 1.0) <= rtol):
-                break
-        edges.append(np.sqrt(near * far))
+    # both edges searched together, one response call per halving; each edge stops halving once all
+    # its own searches have converged, so every edge is exactly what a search of its own would give
+    near = np.concatenate([f0.ravel(), f0.ravel()])
+    far = np.concatenate([(f0 / 3.0).ravel(), (f0 * 3.0).ravel()])
+    ref2 = np.concatenate([ref.ravel(), ref.ravel()])
+    beyond = np.abs(_respond(response, far, f0.shape)) >= ref2
+    floor = (beyond[:n] | beyond[n:]).reshape(f0.shape)
+    active = [True, True]
+    for _ in range(int(max_iter)):
+        mid = np.sqrt(near * far)
+        inside = np.abs(_respond(response, mid, f0.shape)) >= ref2
+        for e in range(2):
+            if active[e]:
+                part = slice(e * n, (e + 1) * n)
+                near[part] = np.where(inside[part], mid[part], near[part])
+                far[part] = np.where(inside[part], far[part], mid[part])
+                active[e] = not np.all(np.abs(far[part] / near[part] - 1.0) <= rtol)
+        if not any(active):
+            break
+    both = np.sqrt(near * far)
+    edges = [both[:n].reshape(f0.shape), both[n:].reshape(f0.shape)]
     bw = np.maximum(edges[1] - edges[0], 1e-9 * f0)
     return TunedResponse(bw, edges[0], edges[1], f0 / bw, floor)
+
+
+def _respond(response, f, shape):
+    """``response`` at the two halves of ``f`` (each of ``shape``) in one call, flattened."""
+    return np.ravel(response(f.reshape((2,) + tuple(shape))))
 
 
 def rejection_db(tuned, offset_response) -> np.ndarray:
