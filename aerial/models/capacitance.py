@@ -342,6 +342,50 @@ def segment_potential_integral(point, seg_start, seg_end, radius):
     return np.log(num / den)
 
 
+def _potential_matrix(points, seg_start, seg_end, radius):
+    """:func:`segment_potential_integral` of every segment at every point, shape (points, segments).
+
+    The same operations in the same order on whole (points × segments) coordinate planes, in
+    place, instead of on the (points, segments, 3) arrays that broadcasting builds: the same
+    numbers bit for bit, in a fraction of the memory traffic.
+    """
+    p = np.asarray(points, dtype=float)
+    a0 = np.asarray(seg_start, dtype=float)
+    d = np.asarray(seg_end, dtype=float) - a0
+    L = np.sqrt(_dot3(d, d))
+    u = d / L[:, None]
+    w = [p[:, None, k] - a0[None, :, k] for k in range(3)]
+    z = w[0] * u[:, 0]
+    t = w[1] * u[:, 1]
+    z += t
+    np.multiply(w[2], u[:, 2], out=t)
+    z += t
+    rho2 = w[0] * w[0]
+    np.multiply(w[1], w[1], out=t)
+    rho2 += t
+    np.multiply(w[2], w[2], out=t)
+    rho2 += t
+    np.multiply(z, z, out=t)
+    rho2 -= t
+    np.maximum(rho2, 0.0, out=rho2)
+    rho2 += np.asarray(radius, dtype=float) ** 2
+    np.subtract(L, z, out=z, where=z > 0.5 * L)
+    r1 = np.multiply(z, z, out=w[0])
+    r1 += rho2
+    np.sqrt(r1, out=r1)
+    lz = np.subtract(L, z, out=w[1])
+    num = np.multiply(lz, lz, out=w[2])
+    num += rho2
+    np.sqrt(num, out=num)
+    num += lz
+    den = np.abs(z, out=t)
+    den += r1
+    np.divide(rho2, den, out=den)
+    np.subtract(r1, z, out=den, where=z <= 0)
+    num /= den
+    return np.log(num, out=num)
+
+
 @dataclass(frozen=True)
 class ElectrostaticSolution:
     """Result of :func:`electrostatic_solution`.
@@ -416,19 +460,40 @@ def _reflections(image, wall):
     return out
 
 
+#: Solutions kept for reuse (a report solves some wire sets more than once: the headline, the
+#: building's figures and the what-if base share them); each entry holds some tens of kB.
+_SOLVE_CACHE_SIZE = 64
+_solve_cache: dict = {}
+
+
 def _solve(start, end, radius, grounded, image, floating=False, wall=None):
     """Charges for 1 V on the aerial. Returns (charge [C], midpoints, counterpoise potential [V]).
 
     With ``floating`` the earth side (``grounded``) is a counterpoise insulated
     from the ground: its potential is an unknown and the aerial and counterpoise
     together carry no net charge (the source only moves charge between them).
+    The same wire set solved again (the same numbers bit for bit) is taken from
+    a small cache.
     """
+    arrays = [np.ascontiguousarray(v, dtype=float) for v in (start, end, radius)]
+    arrays.append(np.ascontiguousarray(grounded, dtype=bool))
+    wall_key = None if wall is None else tuple(np.asarray(v, dtype=float).tobytes() for v in wall)
+    key = (tuple((v.shape, v.tobytes()) for v in arrays), bool(image), bool(floating), wall_key)
+    hit = _solve_cache.pop(key, None)
+    if hit is None:
+        hit = _solve_uncached(*arrays, image, floating, wall)
+        if len(_solve_cache) >= _SOLVE_CACHE_SIZE:
+            _solve_cache.pop(next(iter(_solve_cache)))  # the least recently used
+    _solve_cache[key] = hit
+    q, mid, v_cp = hit
+    return q.copy(), mid.copy(), v_cp
+
+
+def _solve_uncached(start, end, radius, grounded, image, floating=False, wall=None):
     mid = 0.5 * (start + end)
-    p = mid[:, None, :]
-    a = radius[None, :]
-    pot = segment_potential_integral(p, start[None, :, :], end[None, :, :], a)
+    pot = _potential_matrix(mid, start, end, radius)
     for sign, m, shift in _reflections(image, wall):
-        pot = pot + sign * segment_potential_integral(p, (start @ m + shift)[None, :, :], (end @ m + shift)[None, :, :], a)
+        pot = pot + sign * _potential_matrix(mid, start @ m + shift, end @ m + shift, radius)
     lengths = np.linalg.norm(end - start, axis=1)
     # unknowns: line charge density lambda_j; potential = lambda_j * I_ij / (4 pi eps0)
     rhs = np.where(grounded, 0.0, 1.0)

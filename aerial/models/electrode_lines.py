@@ -51,7 +51,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.constants import epsilon_0, mu_0
+from aerial.core.constants import EPSILON_0 as epsilon_0
+from aerial.core.constants import MU_0 as mu_0
 
 from aerial.core.errors import ModelInputError
 

@@ -15,7 +15,7 @@ north, the direction the wave comes from.
 from __future__ import annotations
 
 import numpy as np
-from scipy.constants import c as SPEED_OF_LIGHT
+from aerial.core.constants import SPEED_OF_LIGHT
 
 from aerial.core.errors import ModelInputError
 

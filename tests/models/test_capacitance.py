@@ -189,3 +189,30 @@ def test_vertical_capacitance_grows_with_height_to_radius_ratio(height, radius, 
     # the moment solution; a fatter wire (smaller h/a) of the same height has more too.
     assert cp.vertical_wire_capacitance(height * grow, radius) > cp.vertical_wire_capacitance(height, radius)
     assert cp.vertical_wire_capacitance(height, radius * grow) > cp.vertical_wire_capacitance(height, radius)
+
+
+def test_potential_matrix_is_the_segment_integral_bit_for_bit():
+    # consistency check: the (points × segments) plane form gives exactly the numbers of the
+    # broadcast segment_potential_integral, on-segment midpoints included
+    rng = np.random.default_rng(5)
+    start = rng.uniform(0, 20, (40, 3))
+    end = start + rng.normal(0, 3, (40, 3))
+    radius = rng.uniform(1e-4, 3e-3, 40)
+    points = np.concatenate([0.5 * (start + end), rng.uniform(-5, 25, (25, 3))])
+    ref = cp.segment_potential_integral(points[:, None, :], start[None], end[None], radius[None, :])
+    got = cp._potential_matrix(points, start, end, radius)
+    assert np.array_equal(ref, got)
+
+
+def test_a_wire_set_solved_again_gives_the_same_solution():
+    # consistency check: the second solution of the same wire set (from the cache) is the first,
+    # and changing what it returned does not change the next one
+    def wires():
+        return Segments([[0, 0, 0.3], [0, 0, 8.0]], [[0, 0, 8.0], [15, 0, 8.0]], 1e-3, False, [0, 0, 0.3])
+
+    a = cp.electrostatic_solution(wires())
+    a.charge_c[:] = 0.0
+    b = cp.electrostatic_solution(wires())
+    c = cp.electrostatic_solution(wires())
+    assert b.capacitance_f == c.capacitance_f and np.all(b.charge_c != 0.0)
+    assert np.array_equal(b.charge_c, c.charge_c)

@@ -154,3 +154,29 @@ def test_property_detector_finite_and_bounded(vp, name, load):
     assert np.isfinite(r.detected_voltage) and np.isfinite(r.input_resistance)
     assert 0 <= float(r.detected_voltage) <= float(oc) + 1e-12
     assert float(r.input_resistance) > 0
+
+
+@pytest.mark.parametrize("name", ["germanium", "schottky", "silicon"])
+@pytest.mark.parametrize("load", [32.0, 10e3, 1e6])
+def test_operating_point_solves_its_equation_to_rounding(name, load):
+    # consistency check: the detected voltage satisfies Vdc/R_L = Is[e^(−Vdc/nVT) I0(x) − 1] (Shockley,
+    # averaged over a cycle) to rounding, from nanovolts to hundreds of volts, and in a few Newton steps
+    d = det.get_diode(name)
+    vp = np.geomspace(1e-6, 300.0, 60)
+    r = det.loaded_detector(vp, d.saturation_current_a, d.ideality, load)
+    vt = d.ideality * float(det.thermal_voltage())
+    vdc = r.detected_voltage
+    # written as ln(1 + Vdc/(R_L Is)) + Vdc/nVT = ln I0(x), each side checked against the other
+    lhs = np.log1p(vdc / (load * d.saturation_current_a)) + vdc / vt
+    rhs = np.log(ive_ref(0, vp / vt)) + vp / vt
+    np.testing.assert_allclose(lhs, rhs, rtol=1e-12, atol=1e-15)
+    assert r.converged.all() and r.iterations <= 20
+    # and each element alone gives the same figure as in the batch
+    one = det.loaded_detector(vp[17], d.saturation_current_a, d.ideality, load)
+    assert float(one.detected_voltage) == pytest.approx(float(vdc[17]), rel=1e-13)
+
+
+def ive_ref(order, x):
+    from scipy.special import ive  # the exponentially scaled modified Bessel function (a reference library)
+
+    return ive(order, x)
