@@ -192,7 +192,7 @@ def test_interrupt_while_writing_pictures_leaves_no_empty_folder(capsys, monkeyp
 
     monkeypatch.setattr(pictures, "write_atomic", interrupted)
     pics = tmp_path / "pics"
-    code = main(["report", str(BACKYARD), "--pictures", str(pics)])
+    code = main(["report", str(BACKYARD), "--pictures", str(pics), "--quiet"])  # no progress lines on a slow machine
     _, err = capsys.readouterr()
     assert code == EXIT_INTERRUPTED and err == "aerial: interrupted\n"
     assert not pics.exists()
