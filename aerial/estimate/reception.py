@@ -434,14 +434,24 @@ def _needed(f, aerial, L, q_fun, cfg):
 
 
 def _covers(f_lo, f_hi, aerial, L, q_fun, cfg, cmin, cmax):
+    """Whether the capacitor reaches both band edges, and the settings needed there.
+
+    Any one of ``L`` or the coupling's part in ``cfg`` may be a column of values, shape (m, 1):
+    then the answer is a boolean array of m and the settings are (m, 2).
+    """
     c = _needed(np.array([f_lo, f_hi]), aerial, L, q_fun, cfg)
-    return bool(c[0] <= cmax and c[1] >= cmin), c
+    ok = (c[..., 0] <= cmax) & (c[..., 1] >= cmin)
+    return (bool(ok) if np.ndim(ok) == 0 else ok), c
 
 
 def _ok_range(ok, lo, hi, points=48, refine=40):
-    """Range [a, b] (log grid, refined at the ends) where ``ok(x)`` holds; None if nowhere on the grid."""
+    """Range [a, b] (log grid, refined at the ends) where ``ok(x)`` holds; None if nowhere on the grid.
+
+    ``ok`` takes a number, or the whole grid as a column (shape (points, 1)) and answers for
+    each value at once.
+    """
     xs = np.geomspace(lo, hi, points)
-    flags = np.array([ok(x) for x in xs])
+    flags = np.asarray(ok(xs[:, np.newaxis]), dtype=bool).reshape(xs.shape)
     if not flags.any():
         return None
     idx = np.flatnonzero(flags)
@@ -703,7 +713,7 @@ def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0) -> floa
         notes.append(f"any coil from {_uh(rng[0])} to {_uh(rng[1])} covers the band; chose {_uh(L)} "
                      "for equal margin at both ends")
         return L
-    top = _ok_range(lambda Lx: _needed(np.array([f_hi]), aerial, Lx, q, cfg)[0] >= cmin, 1e-6, 1e-2)
+    top = _ok_range(lambda Lx: _needed(np.array([f_hi]), aerial, Lx, q, cfg)[..., 0] >= cmin, 1e-6, 1e-2)
     L = top[1] * DESIGN_MARGIN if top else 1e-6
     notes.append(f"no single coil covers the band with this capacitor and coupling; chose {_uh(L)}, "
                  f"{(1 - DESIGN_MARGIN) * 100:.0f} % below the largest that still reaches {_khz(f_hi)}")
