@@ -14,7 +14,9 @@ reported. On a shared machine expect ±30 % on absolute times; the ratios
 1. Start-up: wall time of ``aerial report EXAMPLE --json`` and ``aerial
    check EXAMPLE --json`` against ``python -c "import numpy, scipy, shapely,
    rich"`` (goal: report <= 1.5 x). Byte-code caches are allowed (the
-   variable PYTHONDONTWRITEBYTECODE is removed) and warmed first.
+   variable PYTHONDONTWRITEBYTECODE is removed) and warmed first. The
+   processor time of each run (user + system) is shown beside it: on a
+   busy machine the wall time of a short process is mostly waiting.
 2. Full-wave band sweep: time per frequency of a 100-point sweep
    (531-1602 kHz; an invented 10 m + 30 m inverted-L, 1 mm wire; set-up
    included) against one complex ``scipy.linalg.lu_factor`` of the same N,
@@ -37,6 +39,7 @@ from __future__ import annotations
 import argparse
 import json
 import os
+import resource
 import statistics
 import subprocess
 import sys
@@ -59,17 +62,20 @@ pieces = int(sys.argv[1])
 rng = np.random.default_rng(1)
 def lu(n, reps=9):
     a = rng.random((n, n)) + 1j * rng.random((n, n))
-    ts = []
+    ts, cs = [], []
     for _ in range(reps):
         b = a.copy()
-        t = time.perf_counter(); sla.lu_factor(b, overwrite_a=True, check_finite=False); ts.append(time.perf_counter() - t)
-    return float(np.median(ts))
-l1 = lu(pieces + 2)
-t = time.perf_counter()
+        c = time.process_time(); t = time.perf_counter()
+        sla.lu_factor(b, overwrite_a=True, check_finite=False)
+        ts.append(time.perf_counter() - t); cs.append(time.process_time() - c)
+    return float(np.median(ts)), float(np.median(cs))
+l1, c1 = lu(pieces + 2)
+c = time.process_time(); t = time.perf_counter()
 r = solve_full_wave(seg, band, min_pieces_per_wire=pieces, convergence_check=False)
-sweep = time.perf_counter() - t
-l2 = lu(r.n_unknowns)
-print(json.dumps({"n": int(r.n_unknowns), "sweep_s": sweep, "lu_s": 0.5 * (l1 + l2), "how": r.band_method}))
+sweep, sweep_cpu = time.perf_counter() - t, time.process_time() - c
+l2, c2 = lu(r.n_unknowns)
+print(json.dumps({"n": int(r.n_unknowns), "sweep_s": sweep, "lu_s": 0.5 * (l1 + l2), "sweep_cpu_s": sweep_cpu,
+                  "lu_cpu_s": 0.5 * (c1 + c2), "how": r.band_method}))
 """
 
 MEMORY_CHILD = r"""
@@ -102,10 +108,13 @@ for n_geo in (100, 1000, 10000, 100000):
             continue
         if hasattr(sa, "CHUNK_ELEMENTS"):
             sa.CHUNK_ELEMENTS = chunk
-        best = float("inf")
+        best, best_cpu = float("inf"), float("inf")
         for _ in range(3 if n_geo < 100000 else 2):
-            t = time.perf_counter(); sa.inverted_l(h, top, a, f); best = min(best, time.perf_counter() - t)
+            c = time.process_time(); t = time.perf_counter()
+            sa.inverted_l(h, top, a, f)
+            best, best_cpu = min(best, time.perf_counter() - t), min(best_cpu, time.process_time() - c)
         row[label] = n_geo * 100 / best
+        row[label + "_cpu"] = n_geo * 100 / max(best_cpu, 1e-9)
     out[n_geo * 100] = row
 print(json.dumps(out))
 """
@@ -123,12 +132,21 @@ def child_env(tree: Path, threads: int | None) -> dict:
     return env
 
 
-def wall(argv, env, cwd) -> float:
+def _children_cpu() -> float:
+    ru = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return ru.ru_utime + ru.ru_stime
+
+
+def wall(argv, env, cwd, cpu: list | None = None) -> float:
+    """Wall time of one run [s]; its processor time (user + system) is appended to ``cpu``."""
+    c = _children_cpu()
     t = time.perf_counter()
     proc = subprocess.run(argv, env=env, cwd=cwd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
     el = time.perf_counter() - t
     if proc.returncode != 0:
         raise SystemExit(f"{argv} failed ({proc.returncode}): {proc.stderr[-500:]}")
+    if cpu is not None:
+        cpu.append(_children_cpu() - c)
     return el
 
 
@@ -144,22 +162,29 @@ def cli(tree: Path, *args) -> list[str]:
 
 
 def startup(trees, rounds):
-    """Paired rounds: bare imports, report, check, for every tree; medians of times and of per-round ratios."""
-    res = {name: {"bare": [], "report": [], "check": []} for name in trees}
+    """Paired rounds: bare imports, report, check, for every tree; medians of times and of per-round ratios.
+
+    Wall time and processor time (user + system of the child) are both kept: on a machine shared
+    with other work the wall time of a short process is mostly waiting for a core, the
+    processor time much less so.
+    """
+    res = {name: {k: [] for k in ("bare", "report", "check", "bare_cpu", "report_cpu", "check_cpu")} for name in trees}
     for name, tree in trees.items():  # warm the byte-code caches
         wall(cli(tree, "report", EXAMPLE, "--json"), child_env(tree, None), tree)
         wall(cli(tree, "check", EXAMPLE, "--json"), child_env(tree, None), tree)
     for _ in range(rounds):
         for name, tree in trees.items():
             env = child_env(tree, None)
-            res[name]["bare"].append(wall([sys.executable, "-c", BARE], env, tree))
-            res[name]["report"].append(wall(cli(tree, "report", EXAMPLE, "--json"), env, tree))
-            res[name]["check"].append(wall(cli(tree, "check", EXAMPLE, "--json"), env, tree))
+            res[name]["bare"].append(wall([sys.executable, "-c", BARE], env, tree, res[name]["bare_cpu"]))
+            res[name]["report"].append(wall(cli(tree, "report", EXAMPLE, "--json"), env, tree, res[name]["report_cpu"]))
+            res[name]["check"].append(wall(cli(tree, "check", EXAMPLE, "--json"), env, tree, res[name]["check_cpu"]))
     out = {}
     for name, r in res.items():
         out[name] = {k: statistics.median(v) for k, v in r.items()}
         out[name]["report_ratio"] = statistics.median(a / b for a, b in zip(r["report"], r["bare"]))
         out[name]["check_ratio"] = statistics.median(a / b for a, b in zip(r["check"], r["bare"]))
+        out[name]["report_cpu_ratio"] = statistics.median(a / b for a, b in zip(r["report_cpu"], r["bare_cpu"]))
+        out[name]["check_cpu_ratio"] = statistics.median(a / b for a, b in zip(r["check_cpu"], r["bare_cpu"]))
     return out
 
 
@@ -177,6 +202,7 @@ def sweeps(trees, sizes, repeats, threads):
                 "sweep_s": statistics.median(x["sweep_s"] for x in runs),
                 "lu_s": statistics.median(x["lu_s"] for x in runs),
                 "ratio": statistics.median(x["sweep_s"] / 100 / x["lu_s"] for x in runs),
+                "cpu_ratio": statistics.median(x["sweep_cpu_s"] / 100 / x["lu_cpu_s"] for x in runs),
                 "how": runs[-1]["how"],
             }
     return out
@@ -218,14 +244,19 @@ def main(argv=None) -> int:
                ["report --json [s]", *(f"{s[n]['report']:.2f}" for n in names)],
                ["check --json [s]", *(f"{s[n]['check']:.2f}" for n in names)],
                ["report / bare imports (goal <= 1.5)", *(f"{s[n]['report_ratio']:.2f}" for n in names)],
-               ["check / bare imports", *(f"{s[n]['check_ratio']:.2f}" for n in names)]])
+               ["check / bare imports", *(f"{s[n]['check_ratio']:.2f}" for n in names)],
+               ["processor time: bare imports [s]", *(f"{s[n]['bare_cpu']:.2f}" for n in names)],
+               ["processor time: report --json [s]", *(f"{s[n]['report_cpu']:.2f}" for n in names)],
+               ["processor time: report / bare imports", *(f"{s[n]['report_cpu_ratio']:.2f}" for n in names)],
+               ["processor time: check / bare imports", *(f"{s[n]['check_cpu_ratio']:.2f}" for n in names)]])
     if "sweep" not in args.skip:
         w = sweeps(trees, args.sizes, args.repeats, args.threads)
         print(f"Full-wave band sweep, 100 frequencies, set-up included ({args.repeats} repeats, medians):")
         rows = []
         for n in args.sizes:
             rows.append([f"N = {n}", f"{w[names[0]][n]['lu_s'] * 1e3:.1f}",
-                         *(f"{w[m][n]['sweep_s']:.2f} s = {w[m][n]['ratio']:.1f} x LU" for m in names)])
+                         *(f"{w[m][n]['sweep_s']:.2f} s = {w[m][n]['ratio']:.1f} x LU "
+                           f"(processor time: {w[m][n]['cpu_ratio']:.1f} x)" for m in names)])
         table(["size", "one LU [ms]", *(f"sweep, {m}" for m in names)], rows)
     if "closed" not in args.skip:
         c = {m: child_json(CLOSED_CHILD, [], child_env(trees[m], args.threads), trees[m]) for m in names}
@@ -235,9 +266,13 @@ def main(argv=None) -> int:
             cells = []
             for m in names:
                 r = c[m][size]
-                cells.append(" / ".join(f"{r[k]:.2e}" for k in ("pieces", "whole") if k in r))
+                cells.append(" / ".join(f"{r[k]:.2e}" for k in ("pieces", "whole") if k in r)
+                             + " (processor time: " + " / ".join(f"{r[k + '_cpu']:.2e}" for k in ("pieces", "whole")
+                                                                 if k + "_cpu" in r) + ")")
             rows.append([f"{int(size):,}", *cells])
-        table(["elements", *(f"{m}: in pieces / whole" if m == "after" else f"{m}: whole" for m in names)], rows)
+        first = next(iter(c[names[-1]]))
+        table(["elements", *(f"{m}: in pieces / whole" if "pieces" in c[m][first] else f"{m}: whole" for m in names)],
+              rows)
     if "memory" not in args.skip:
         rows = []
         for m in names:
