@@ -61,7 +61,7 @@ def test_report_json_holds_the_contract(capsys, path):
 UNIT_BOUNDS = {  # suffix: (low, high) for the magnitude of a plausible value in that unit
     "_hz": (0.0, 30e6), "_m": (0.0, 1e7), "_f": (0.0, 1e-6), "_h": (1e-8, 1.0), "_ohm": (0.0, 1e9),
     "_w": (0.0, 1e7), "_v": (0.0, 1e3), "_v_per_m": (0.0, 10.0), "_s_m": (0.0, 10.0), "_db": (0.0, 400.0),
-    "_q": (0.0, 1e4), "_ratio": (0.0, 10.0), "_deg": (0.0, 360.0),
+    "_q": (0.0, 1e4), "_ratio": (0.0, 10.0), "_deg": (0.0, 360.0), "_s": (0.0, 86_400.0),
 }
 PLAIN_NUMBERS = {"efficiency", "relative_permittivity", "relative_permittivity_range", "turns", "whole_turns", "solver_iterations", "count",
                  "points", "iterations", "score", "rank", "loaded_q_weak_signal"}

@@ -187,7 +187,7 @@ def test_evening_sky_wave_is_below_the_reference_hour_and_daylight_has_none():
     noon = night.sky_wave(*_one(where + 'listening_time = "12:30"', station))
     assert ref["hourly_loss_db"] == 0.0 and ref["listening_time"].startswith("six hours after sunset")
     assert 0.5 < eve["hourly_loss_db"] < 6.0 and eve["field_v_per_m"] < ref["field_v_per_m"]
-    assert 1.0 < eve["hours_after_sunset_at_midpoint"] < 3.0
+    assert 1.0 < eve["time_after_sunset_at_midpoint_s"] / 3600 < 3.0
     assert noon["daylight_at_midpoint"] and noon["field_v_per_m"] == 0.0
 
 

@@ -257,7 +257,8 @@ def sky_waves(site, stations=None, moment=None) -> list[dict]:
             "polarization_loss_db": float(lp[i]),
             "sea_gain_db": float(gs[i]),
             "hourly_loss_db": float(lt[i]),
-            "hours_after_sunset_at_midpoint": None if not np.isfinite(after_sunset[i]) else float(after_sunset[i]),
+            "time_after_sunset_at_midpoint_s": (None if not np.isfinite(after_sunset[i])
+                                                else float(after_sunset[i]) * 3600.0),
             "daylight_at_midpoint": lit,
             "solar_region": region,
             "sunspot_number": spots,

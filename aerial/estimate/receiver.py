@@ -188,7 +188,8 @@ def _stations_day_and_night(site, f, r, x, rr, he, parts) -> tuple[list, list]:
             "sky_wave_outside_method": sky["outside_method"],
             "listening_time": sky["listening_time"],
             "hourly_loss_db": sky["hourly_loss_db"],
-            "hours_after_sunset_at_midpoint": sky["hours_after_sunset_at_midpoint"],
+            **({} if sky["time_after_sunset_at_midpoint_s"] is None else
+               {"time_after_sunset_at_midpoint_s": sky["time_after_sunset_at_midpoint_s"]}),
             "sky_wave_in_daylight": sky["daylight_at_midpoint"],
             "sea_gain_db": sky["sea_gain_db"],
             "noise_time_block": floor["night"]["time_block"],
