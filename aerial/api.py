@@ -111,11 +111,12 @@ def check_page_file(page, force, site) -> None:
 
 
 def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allow_large=False, progress=None,
-               page=None) -> dict:
+               page=None, units="si") -> dict:
     """Search the site's supports for the best safe layouts; optionally draw the plan and write the page.
 
     ``page`` names an HTML file for the shareable page
     (:func:`aerial.outputs.page_layout.layout_page`); its path comes back as ``result["page"]``.
+    ``units`` ("si" or "us") sets the lengths on the plan drawing; the result itself stays SI.
     """
     from aerial.site.reader import load_site
 
@@ -136,7 +137,7 @@ def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allo
     if picture:
         from aerial.outputs.plan_drawing import plan_picture_writer
 
-        writer = plan_picture_writer(picture, force=force)
+        writer = plan_picture_writer(picture, force=force, units=units)
     seen = {}
 
     def draw(site_, plan, layouts, zones):

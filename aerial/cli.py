@@ -110,8 +110,8 @@ def _output_options(progress: bool) -> argparse.ArgumentParser:
                         "COLUMNS if set, else wide enough for every table); tables that do not fit are listed row "
                         "by row, never cut")
     o.add_argument("--units", choices=UNIT_SYSTEMS, default="si",
-                   help="lengths in the report: si (metres) or us (feet and inches, station distances in miles); "
-                        "--json stays SI")
+                   help="lengths in the report and the plan drawing: si (metres) or us (feet and inches, station "
+                        "distances in miles); --json stays SI")
     if progress:
         o.add_argument("--quiet", action="store_true",
                        help="no progress on stderr (by default a bar on a terminal, else a line per stage)")
@@ -355,7 +355,8 @@ def cmd_layout(args) -> int:
         raise AerialError(f"--best {args.best}: expected a whole number from 1 to {MAX_BEST}")
     with _progress(not args.quiet) as update:
         result = run_layout(args.site, best=args.best, full_wave=args.full_wave, picture=args.picture,
-                            force=args.force, allow_large=args.allow_large, progress=update, page=args.page)
+                            force=args.force, allow_large=args.allow_large, progress=update, page=args.page,
+                            units=args.units)
     _note_page(result)
     return _render(args, result, "render_layout")
 

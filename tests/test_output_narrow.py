@@ -230,3 +230,14 @@ def test_page_tables_keep_numbers_with_units(capsys, tmp_path):
     loose = [c for c in cells if re.search(r"\d [fpnµmkM]?(?:F|Ω|W|V|Hz|m)(?![\w/])",
                                            re.sub(r'<span class="q">.*?</span>', "", c))]
     assert not loose, loose[:3]
+
+
+def test_plan_picture_in_feet_with_us_units(capsys, tmp_path):
+    svg = tmp_path / "plan.svg"
+    code, _, _ = run(capsys, "layout", EXAMPLES + "suburban_lot_service_line.toml", "--units", "us", "--quiet",
+                     "--picture", svg)
+    assert code == 0
+    text = svg.read_text(encoding="utf-8")
+    # the oak is 12.0 m high: 39.4 ft; the 18.0 m fall zone: 59.1 ft (1 ft = 0.3048 m exactly, NIST SP 811)
+    assert "oak 39.4 ft" in text and "keep 59.1 ft clear" in text
+    assert not re.search(r"\d m\b", text)

@@ -27,6 +27,9 @@ WIDTH_PX = 900
 MARGIN_PX = 50
 #: Metres of surroundings drawn around the lot, buildings and supports.
 VIEW_MARGIN_M = 8.0
+#: Exact by definition (NIST SP 811). [m]
+FOOT_M = 0.3048
+UNIT_SYSTEMS = ("si", "us")
 
 #: Okabe–Ito colours (distinct under the common colour-vision deficiencies); shapes and labels carry the meaning too.
 COLOURS = {
@@ -74,14 +77,48 @@ def build_scene(site, plan, layouts, zones) -> dict:
     }
 
 
-def line_label(ln: dict, zones: list) -> str:
+def in_units(scene: dict, units: str = "si") -> dict:
+    """The scene to draw in ``units``: as it is for "si" (metres); for "us" every coordinate, height and
+    distance in feet, under the same keys, with ``scene["unit"]`` saying which.
+
+    >>> feet = in_units({"lot": [[0, 0], [3.048, 0]], "buildings": [], "obstacles": [], "supports": [],
+    ...                  "entry": {"x": 0, "y": 0, "height_m": 3.048}, "lines": [], "zones": [], "layouts": []}, "us")
+    >>> feet["unit"], round(feet["lot"][1][0], 9), round(feet["entry"]["height_m"], 9)
+    ('ft', 10.0, 10.0)
+    """
+    if units not in UNIT_SYSTEMS:
+        raise AerialError(f"'{units}' is not a valid unit system, must be one of 'si', 'us'")
+    if units == "si":
+        return {**scene, "unit": "m"}
+    k = 1.0 / FOOT_M
+
+    def pts(points):
+        return [[float(x) * k, float(y) * k] for x, y in points]
+
+    def scaled(item, *keys):
+        return {**item, **{key: float(item[key]) * k for key in keys}}
+
+    return {
+        **scene, "unit": "ft",
+        "lot": pts(scene["lot"]) if scene.get("lot") else scene.get("lot"),
+        "buildings": [{**scaled(b, "height_m"), "outline": pts(b["outline"])} for b in scene["buildings"]],
+        "obstacles": [{**o, "outline": pts(o["outline"])} for o in scene["obstacles"]],
+        "supports": [scaled(sp, "x", "y", "height_m") for sp in scene["supports"]],
+        "entry": scaled(scene["entry"], "x", "y", "height_m"),
+        "lines": [{**scaled(ln, "height_m"), "path": pts(ln["path"])} for ln in scene["lines"]],
+        "zones": [{**scaled(z, "distance_m"), "rings": [pts(r) for r in z["rings"]]} for z in scene["zones"]],
+        "layouts": [{**lay, "top": pts(lay["top"]), "lead": pts(lay["lead"])} for lay in scene["layouts"]],
+    }
+
+
+def line_label(ln: dict, zones: list, unit: str = "m") -> str:
     """What a line's label on the plan says: its name, kind, height and (power) fall-zone distance."""
     kind = "power line" if ln["kind"] == "power" else ln["kind"]
-    text = f"{ln['name']} ({kind}, {ln['height_m']:.1f} m high"
+    text = f"{ln['name']} ({kind}, {ln['height_m']:.1f} {unit} high"
     text += ")" if ln["kind"] != "power" else ""
     zone = next((z for z in zones if z["name"] == ln["name"]), None)
     if zone is not None:
-        text += f"): keep {zone['distance_m']:.1f} m clear"
+        text += f"): keep {zone['distance_m']:.1f} {unit} clear"
     elif ln["kind"] == "power":
         text += ")"
     return text
@@ -113,8 +150,9 @@ def _view(scene) -> tuple[float, float, float, float]:
     for lay in scene["layouts"]:
         pts += lay["top"] + lay["lead"]
     a = np.array(pts, float)
-    x0, y0 = a.min(axis=0) - VIEW_MARGIN_M
-    x1, y1 = a.max(axis=0) + VIEW_MARGIN_M
+    margin = VIEW_MARGIN_M / (FOOT_M if scene.get("unit") == "ft" else 1.0)
+    x0, y0 = a.min(axis=0) - margin
+    x1, y1 = a.max(axis=0) + margin
     return float(x0), float(y0), float(x1), float(y1)
 
 
@@ -174,8 +212,10 @@ def legend_entries(scene) -> list:
     return out
 
 
-def svg_text(scene) -> str:
-    """The plan drawing as an SVG document (text)."""
+def svg_text(scene, units: str = "si") -> str:
+    """The plan drawing as an SVG document (text), lengths in metres ("si") or feet ("us")."""
+    scene = in_units(scene, units)
+    u = scene["unit"]
     x0, y0, x1, y1 = _view(scene)
     s = (WIDTH_PX - 2 * MARGIN_PX) / (x1 - x0)
     entries = legend_entries(scene)
@@ -212,13 +252,13 @@ def svg_text(scene) -> str:
     for z in scene["zones"]:
         out.append(f'<path class="fall-zone" d="{ring_path(z["rings"])}" fill="{COLOURS["zone"]}" fill-opacity="0.15" '
                    f'stroke="{COLOURS["zone"]}" stroke-dasharray="6 4" fill-rule="evenodd">'
-                   f"<title>fall zone of {escape(z['name'])}: {z['distance_m']:.1f} m</title></path>")
+                   f"<title>fall zone of {escape(z['name'])}: {z['distance_m']:.1f} {u}</title></path>")
     if scene["lot"]:
         out.append(f'<polygon class="lot" points="{pts(scene["lot"])}" fill="none" stroke="{COLOURS["lot"]}" '
                    'stroke-width="2" stroke-dasharray="10 5"><title>lot boundary</title></polygon>')
     for b in scene["buildings"]:
         out.append(f'<polygon class="building" points="{pts(b["outline"])}" fill="{COLOURS["building"]}" stroke="#555">'
-                   f"<title>{escape(b['name'])}, {b['height_m']:.1f} m</title></polygon>")
+                   f"<title>{escape(b['name'])}, {b['height_m']:.1f} {u}</title></polygon>")
     for o in scene["obstacles"]:
         out.append(f'<polygon class="obstacle" points="{pts(o["outline"])}" fill="{COLOURS["obstacle"]}" '
                    f'stroke="#a33" stroke-dasharray="3 3"><title>{escape(o["name"])} (do not cross)</title></polygon>')
@@ -226,7 +266,7 @@ def svg_text(scene) -> str:
         col = COLOURS["power"] if ln["kind"] == "power" else COLOURS["telecom"]
         out.append(f'<polyline class="overhead-line {"power" if ln["kind"] == "power" else "telecom"}" '
                    f'points="{pts(ln["path"])}" fill="none" stroke="{col}" stroke-width="3">'
-                   f"<title>{escape(ln['name'])} ({escape(ln['kind'])}, {ln['height_m']:.1f} m)</title></polyline>")
+                   f"<title>{escape(ln['name'])} ({escape(ln['kind'])}, {ln['height_m']:.1f} {u})</title></polyline>")
     for ln in scene["lines"]:
         lx, ly = label_point(ln["path"], (x0, y0, x1, y1))
         col = COLOURS["power"] if ln["kind"] == "power" else COLOURS["telecom"]
@@ -234,7 +274,7 @@ def svg_text(scene) -> str:
         out.append(f'<text class="line-label" x="{X(lx):.1f}" y="{Y(ly) + (16 if below else -6):.1f}" '
                    f'text-anchor="middle" fill="{col}" '
                    f'font-weight="bold" stroke="white" stroke-width="3" paint-order="stroke">'
-                   f"{escape(line_label(ln, scene['zones']))}</text>")
+                   f"{escape(line_label(ln, scene['zones'], u))}</text>")
     for lay in reversed(scene["layouts"]):
         first = lay["rank"] == 1
         col = COLOURS["wire"] if first else COLOURS["other"]
@@ -253,17 +293,17 @@ def svg_text(scene) -> str:
     out.append("</g>")
     for sp in scene["supports"]:
         out.append(f'<circle class="support" cx="{X(sp["x"]):.1f}" cy="{Y(sp["y"]):.1f}" r="5" fill="{COLOURS["support"]}">'
-                   f"<title>{escape(sp['name'])} ({escape(sp['kind'])}, {sp['height_m']:.1f} m)</title></circle>")
-        out.append(f'<text x="{X(sp["x"]) + 7:.1f}" y="{Y(sp["y"]) - 6:.1f}">{escape(sp["name"])} {sp["height_m"]:.1f} m</text>')
+                   f"<title>{escape(sp['name'])} ({escape(sp['kind'])}, {sp['height_m']:.1f} {u})</title></circle>")
+        out.append(f'<text x="{X(sp["x"]) + 7:.1f}" y="{Y(sp["y"]) - 6:.1f}">{escape(sp["name"])} {sp["height_m"]:.1f} {u}</text>')
     e = scene["entry"]
     out.append(f'<rect class="entry" x="{X(e["x"]) - 5:.1f}" y="{Y(e["y"]) - 5:.1f}" width="10" height="10" '
-               f'fill="{COLOURS["entry"]}"><title>lead-in entry, {e["height_m"]:.1f} m</title></rect>')
+               f'fill="{COLOURS["entry"]}"><title>lead-in entry, {e["height_m"]:.1f} {u}</title></rect>')
     out.append(f'<text x="{X(e["x"]) + 7:.1f}" y="{Y(e["y"]) + 16:.1f}">entry</text>')
     # scale bar
     bar = nice_length(x1 - x0)
     bx, by = MARGIN_PX, map_bottom + 24
     out.append(f'<g class="scale-bar"><line x1="{bx}" y1="{by:.1f}" x2="{bx + bar * s:.1f}" y2="{by:.1f}" stroke="black" '
-               f'stroke-width="3"/><text x="{bx + bar * s + 6:.1f}" y="{by + 4:.1f}">{bar:g} m</text></g>')
+               f'stroke-width="3"/><text x="{bx + bar * s + 6:.1f}" y="{by + 4:.1f}">{bar:g} {u}</text></g>')
     # north arrow
     nx, ny = WIDTH_PX - MARGIN_PX, MARGIN_PX + 70
     out.append(f'<g class="north-arrow"><line x1="{nx}" y1="{ny}" x2="{nx}" y2="{ny - 36}" stroke="black" '
@@ -322,8 +362,10 @@ def matplotlib_config_dir() -> None:
     os.environ["MPLCONFIGDIR"] = folder
 
 
-def png_bytes(scene) -> bytes:
-    """The plan drawing as PNG bytes (matplotlib, Agg backend, no global pyplot state)."""
+def png_bytes(scene, units: str = "si") -> bytes:
+    """The plan drawing as PNG bytes (matplotlib, Agg backend, no global pyplot state), in metres or feet."""
+    scene = in_units(scene, units)
+    u = scene["unit"]
     matplotlib_config_dir()
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
@@ -353,7 +395,7 @@ def png_bytes(scene) -> bytes:
         col = COLOURS["power"] if ln["kind"] == "power" else COLOURS["telecom"]
         ax.plot(p[:, 0], p[:, 1], color=col, lw=2.5)
         lx, ly = label_point(ln["path"], (x0, y0, x1, y1))
-        ax.text(lx, ly, line_label(ln, scene["zones"]), color=col, fontsize=8, fontweight="bold", ha="center",
+        ax.text(lx, ly, line_label(ln, scene["zones"], u), color=col, fontsize=8, fontweight="bold", ha="center",
                 va="top" if ln["kind"] == "power" else "bottom", bbox={"facecolor": "white", "edgecolor": "none", "alpha": 0.8, "pad": 1})
     for lay in reversed(scene["layouts"]):
         first = lay["rank"] == 1
@@ -365,20 +407,21 @@ def png_bytes(scene) -> bytes:
                 fontweight="bold", zorder=5, bbox={"boxstyle": "circle,pad=0.25", "facecolor": "white", "edgecolor": col})
     for sp in scene["supports"]:
         ax.plot(sp["x"], sp["y"], "o", color=COLOURS["support"])
-        ax.annotate(f"{sp['name']} {sp['height_m']:.1f} m", (sp["x"], sp["y"]), xytext=(4, 4),
+        ax.annotate(f"{sp['name']} {sp['height_m']:.1f} {u}", (sp["x"], sp["y"]), xytext=(4, 4),
                     textcoords="offset points", fontsize=8)
     e = scene["entry"]
     ax.plot(e["x"], e["y"], "s", color=COLOURS["entry"])
     bar = nice_length(x1 - x0)
     ax.plot([x0 + 1, x0 + 1 + bar], [y0 + 1, y0 + 1], color="black", lw=3)
-    ax.text(x0 + 1 + bar, y0 + 1, f" {bar:g} m", va="center")
-    ax.annotate("N", xy=(x1 - 2, y1 - 2), xytext=(x1 - 2, y1 - 8), ha="center",
+    ax.text(x0 + 1 + bar, y0 + 1, f" {bar:g} {u}", va="center")
+    k = 1.0 / FOOT_M if u == "ft" else 1.0  # the arrow's offsets are set in metres
+    ax.annotate("N", xy=(x1 - 2 * k, y1 - 2 * k), xytext=(x1 - 2 * k, y1 - 8 * k), ha="center",
                 arrowprops={"arrowstyle": "->"}, fontweight="bold")
     ax.set_xlim(x0, x1)
     ax.set_ylim(y0, y1)
     ax.set_aspect("equal")
-    ax.set_xlabel("east [m]")
-    ax.set_ylabel("north [m]")
+    ax.set_xlabel(f"east [{u}]")
+    ax.set_ylabel(f"north [{u}]")
     ax.set_title(f"{scene['title']} — plan")
     fig.legend(handles=_png_legend(entries), loc="outside lower left", fontsize=8, frameon=False,
                title="layouts by rank (the number on each wire)" if scene["layouts"] else None,
@@ -423,17 +466,17 @@ def picture_type(path) -> str:
     return suffix
 
 
-def write_plan_picture(path, scene, force: bool = False, protected=()) -> Path:
+def write_plan_picture(path, scene, force: bool = False, protected=(), units: str = "si") -> Path:
     """Write the drawing to ``path`` (SVG or PNG by its extension) through a temporary file and a rename."""
     suffix = picture_type(path)
     from aerial.outputs.files import check_writable
 
     check_writable(path, force, protected)
-    data = svg_text(scene) if suffix == ".svg" else png_bytes(scene)
+    data = svg_text(scene, units) if suffix == ".svg" else png_bytes(scene, units)
     return write_atomic(path, data, force=force, protected=protected)
 
 
-def plan_picture_writer(path, force: bool = False, protected=()):
+def plan_picture_writer(path, force: bool = False, protected=(), units: str = "si"):
     """A ``draw`` callable for :func:`aerial.planner.search.plan_layouts` that writes the plan to ``path``.
 
     The returned function builds the scene and writes it with :func:`write_plan_picture`,
@@ -441,6 +484,7 @@ def plan_picture_writer(path, force: bool = False, protected=()):
     """
     def draw(site, plan, layouts, zones) -> str:
         keep = tuple(protected) + ((site.path,) if getattr(site, "path", None) else ())
-        return str(write_plan_picture(path, build_scene(site, plan, layouts, zones), force=force, protected=keep))
+        return str(write_plan_picture(path, build_scene(site, plan, layouts, zones), force=force, protected=keep,
+                                      units=units))
 
     return draw
