@@ -8,7 +8,7 @@ import json
 import math
 
 
-from .conftest import ROOT, run
+from .conftest import ROOT, one_line, run
 
 HIGH = ROOT / "site_examples" / "high_floor_flat.toml"
 BALCONY = ROOT / "site_examples" / "balcony_water_pipe.toml"
@@ -103,24 +103,46 @@ def test_building_around_the_whole_wire_is_refused(capsys, tmp_path):
     assert "building.footprint" in err and "Traceback" not in err
 
 
-def test_full_wave_with_the_building_agrees_with_the_closed_form(capsys, tmp_path):
-    # Consistency check (closed form against the method-of-moments wire grid, within 3 dB). Slow-ish (a few
-    # seconds): it is the only test that solves the building grid, on two frequencies.
+def test_full_wave_with_the_building_agrees_with_the_closed_form(tmp_path):
+    # Consistency check (closed form against the method-of-moments wire grid, within 3 dB), on a small block at
+    # one frequency, straight through the estimate stage: the command line's full-wave path with a building is
+    # run by tests/test_determinism.py (the backyard example's house) and tests/test_ranges.py.
+    from aerial import load_site
+    from aerial.estimate.assemble import aerial_response, earth_at_frequency
+    from aerial.estimate.fullwave_sweep import building_full_wave_response
+    from aerial.geometry.resolve import resolve
+
     p = tmp_path / "balcony_mf.toml"
     text = BALCONY.read_text(encoding="utf-8").replace('bands = ["mf", "lf"]', 'bands = ["mf"]')
     text = text.replace("footprint = [[-10.0, -12.0], [20.0, -12.0], [20.0, 0.0], [-10.0, 0.0]]",
                         "footprint = [[-3.0, -8.0], [9.0, -8.0], [9.0, 0.0], [-3.0, 0.0]]")  # a smaller block: quicker
     p.write_text(text.replace('height = "15 m"', 'height = "12 m"'), encoding="utf-8")
-    code, out, err = run(capsys, "report", "--json", "--step", "1 MHz", str(p))
-    assert code == 0, err
-    closed = json.loads(out)
-    code, out, err = run(capsys, "report", "--json", "--full-wave", "--step", "1 MHz", str(p))
-    assert code == 0, err
-    full = json.loads(out)
-    for a, b in zip(closed["aerial"]["effective_height_m"], full["aerial"]["effective_height_m"]):
+    site = load_site(p)
+    f = [1.0e6]
+    earth = earth_at_frequency(site, f)["impedance_ohm"].real
+    geo = resolve(site, electrode_ohm=float(earth[0]))
+    closed = aerial_response(site, geo, f, earth)
+    full = building_full_wave_response(site, geo, f, earth, convergence_check=False)
+    for a, b in zip(closed["effective_height_m"], full["effective_height_m"]):
         assert abs(20 * math.log10(b / a)) < 3.0
-    grid = full["aerial"]["building_full_wave"]
+    grid = full["building_full_wave"]
     assert grid["grid_wires"] > 100 and grid["unknowns"] > grid["grid_wires"]
     worst, best = grid["grid_worst_effective_height_m"][0], grid["grid_best_effective_height_m"][0]
     assert 0 < worst <= best
-    assert "grounded conductor" in " ".join(full["warnings"])
+    assert "grounded wire grid" in full["model"]
+    assert "full wave with the building" in " ".join(full["warnings"])
+
+
+def test_full_wave_refusal_counts_the_building_grid(capsys, tmp_path):
+    # Input handling: a block far too large for a wire grid is refused before any solve, with the estimate,
+    # and the message says the grid is what costs.
+    p = tmp_path / "huge.toml"
+    text = HIGH.read_text(encoding="utf-8").replace(
+        "footprint = [[-6.0, -12.0], [18.0, -12.0], [18.0, 0.0], [-6.0, 0.0]]",
+        "footprint = [[-100.0, -200.0], [100.0, -200.0], [100.0, 0.0], [-100.0, 0.0]]")
+    p.write_text(text.replace('height = "21 m"', 'height = "100 m"'), encoding="utf-8")
+    code, out, err = run(capsys, "report", "--full-wave", str(p))
+    assert code == 2, err
+    line = one_line(err)
+    assert "the building as a wire grid" in line and "unknowns" in line and "GB of memory" in line
+    assert "--allow-large" in line

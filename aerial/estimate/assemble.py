@@ -313,7 +313,8 @@ def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-fo
     if method == "full-wave":
         from aerial.estimate.fullwave_sweep import full_wave_response
 
-        r = full_wave_response(site, geo, f, earth_f, ground=ground, allow_large=True, progress=progress)
+        r = full_wave_response(site, geo, f, earth_f, ground=ground, allow_large=True, progress=progress,
+                               convergence_check=False)
         rg = np.asarray(r["ground_loss_ohm"], float)
     else:
         from aerial.models.closed_form import closed_form_response
@@ -351,13 +352,13 @@ def _nominal_shape(site):
 
 def _full_wave_ranges_fit(site, frequency, main_frequency, allow_large: bool) -> bool:
     """Whether two more full-wave runs at the range frequencies stay, with the sweep, within the time budget."""
-    from aerial.estimate.fullwave_sweep import TIME_BUDGET_S, estimate_full_wave
+    from aerial.estimate.fullwave_sweep import TIME_BUDGET_S, estimate_site_full_wave
 
     if allow_large:
         return True
-    seg = resolve(site).segments
-    main = estimate_full_wave(seg, main_frequency)["seconds"]
-    extra = 2 * estimate_full_wave(seg, frequency)["seconds"]
+    geo = resolve(site)
+    main = estimate_site_full_wave(geo, main_frequency)["seconds"]
+    extra = 2 * estimate_site_full_wave(geo, frequency)["seconds"]
     return main + extra <= TIME_BUDGET_S
 
 

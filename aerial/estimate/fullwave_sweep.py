@@ -68,13 +68,15 @@ def estimate_full_wave(segments, frequency) -> dict:
     return {"unknowns": n, "frequencies": int(f.size), "memory_bytes": float(memory), "seconds": float(seconds)}
 
 
-def check_full_wave_budget(segments, frequency, allow_large: bool = False) -> dict:
+def check_full_wave_budget(segments, frequency, allow_large: bool = False, estimate: dict | None = None,
+                           what: str = "the full-wave sweep") -> dict:
     """Raise :class:`ResourceLimit` when a sweep would pass the memory or time budget.
 
-    Returns the estimate (see :func:`estimate_full_wave`) when it fits, or
-    when ``allow_large`` is set.
+    Returns the estimate (see :func:`estimate_full_wave`, or ``estimate``
+    when given) when it fits, or when ``allow_large`` is set. ``what`` names
+    the run in the message.
     """
-    est = estimate_full_wave(segments, frequency)
+    est = estimate_full_wave(segments, frequency) if estimate is None else estimate
     if allow_large:
         return est
     over = []
@@ -84,12 +86,43 @@ def check_full_wave_budget(segments, frequency, allow_large: bool = False) -> di
         over.append(f"about {_duration(est['seconds'])} (budget {_duration(TIME_BUDGET_S)})")
     if over:
         raise ResourceLimit(
-            f"the full-wave sweep needs {est['unknowns']} unknowns at {est['frequencies']} frequencies: "
+            f"{what} needs {est['unknowns']} unknowns at {est['frequencies']} frequencies: "
             + " and ".join(over)
             + '; use fewer frequencies (--step "25 kHz" or fewer bands), fewer or shorter wires, '
             "the closed-form report (without --full-wave), or add --allow-large to run it anyway"
         )
     return est
+
+
+def estimate_site_full_wave(geometry, frequency) -> dict:
+    """What the report's full-wave sweep of ``geometry`` costs, the building's wire grid included.
+
+    With a building the sweep solves the wire alone and the wire with the
+    grid (:func:`building_full_wave_response`): the time is the sum, the
+    memory the larger of the two. The estimate then also carries
+    ``grid_wires`` [1] and ``grid_mesh_m`` [m].
+    """
+    if geometry.building is None:
+        return estimate_full_wave(geometry.segments, frequency)
+    mesh = building_mesh(frequency)
+    gridded = with_building_grid(geometry.segments, geometry.building, mesh)
+    est = estimate_full_wave(gridded, frequency)
+    bare = estimate_full_wave(geometry.segments, frequency)
+    est["seconds"] += bare["seconds"]
+    est["memory_bytes"] = max(est["memory_bytes"], bare["memory_bytes"])
+    est["grid_wires"] = int(len(gridded) - len(geometry.segments))
+    est["grid_mesh_m"] = float(mesh)
+    return est
+
+
+def check_site_full_wave_budget(geometry, frequency, allow_large: bool = False) -> dict:
+    """:func:`check_full_wave_budget` for the report's sweep of ``geometry``, the building's grid included."""
+    est = estimate_site_full_wave(geometry, frequency)
+    what = "the full-wave sweep"
+    if "grid_wires" in est:
+        what += (f" with the building as a wire grid ({est['grid_wires']} wires at a {est['grid_mesh_m']:.2g} m "
+                 "mesh)")
+    return check_full_wave_budget(geometry.segments, frequency, allow_large, estimate=est, what=what)
 
 
 def _duration(seconds: float) -> str:
@@ -101,16 +134,19 @@ def _duration(seconds: float) -> str:
 
 
 def full_wave_response(site, geometry, frequency, earth_ohm: float, progress=None, ground: str = "perfect",
-                       allow_large: bool = False) -> dict:
+                       allow_large: bool = False, convergence_check: bool = True) -> dict:
     """Per-frequency figures from the full-wave solver (arrays aligned with ``frequency``).
 
     With an earth lead the electrode's resistance is a lumped load where the
     lead meets the ground; a base-fed aerial gets the earth resistance in series.
+    ``convergence_check=False`` skips the solver's second solve at twice the
+    pieces (the tolerance runs of the ranges do: their figures are the same,
+    the value's own run reports the convergence).
     """
     seg = geometry.segments
     if geometry.building is not None:
         return building_full_wave_response(site, geometry, frequency, earth_ohm, progress=progress, ground=ground,
-                                           allow_large=allow_large)
+                                           allow_large=allow_large, convergence_check=convergence_check)
     check_full_wave_budget(seg, frequency, allow_large)
     # the earth system's resistance at each frequency goes in series after the solve (base feed only)
     earth_f = np.broadcast_to(np.asarray(earth_ohm, float), (len(np.atleast_1d(frequency)),))
@@ -118,7 +154,8 @@ def full_wave_response(site, geometry, frequency, earth_ohm: float, progress=Non
     kwargs = {}
     if ground != "perfect":
         kwargs = {"soil_permittivity": site.soil.relative_permittivity, "soil_conductivity": site.soil.conductivity_s_m}
-    res = solve_full_wave(seg, np.asarray(frequency, float), ground=ground, series_ohm=series, progress=progress, **kwargs)
+    res = solve_full_wave(seg, np.asarray(frequency, float), ground=ground, series_ohm=series, progress=progress,
+                          convergence_check=convergence_check, **kwargs)
     series_f = earth_f if geometry.base_fed else np.zeros_like(earth_f)
     z = np.asarray(res.impedance, complex) + series_f
     x = z.imag
@@ -209,7 +246,7 @@ def building_mesh(frequency) -> float:
 
 
 def building_full_wave_response(site, geometry, frequency, earth_ohm, progress=None, ground="perfect",
-                                allow_large=False, mesh_m=None) -> dict:
+                                allow_large=False, mesh_m=None, convergence_check=True) -> dict:
     """Full-wave figures of a wire beside a building: the wire alone and with the building as a wire grid.
 
     The grid is a perfect conductor; the construction's shielding fraction s
@@ -224,14 +261,19 @@ def building_full_wave_response(site, geometry, frequency, earth_ohm, progress=N
     f = np.asarray(frequency, float)
     mesh = float(mesh_m) if mesh_m is not None else building_mesh(f)
     gridded = with_building_grid(geometry.segments, body, mesh)
-    check_full_wave_budget(gridded, f, allow_large)
+    if mesh_m is None:
+        check_site_full_wave_budget(geometry, f, allow_large)
+    else:
+        check_full_wave_budget(gridded, f, allow_large, what="the full-wave sweep with the building as a wire grid")
     bare = replace(geometry, building=None, building_site=None)
-    out = full_wave_response(site, bare, f, earth_ohm, progress=None, ground=ground, allow_large=allow_large)
+    out = full_wave_response(site, bare, f, earth_ohm, progress=None, ground=ground, allow_large=allow_large,
+                             convergence_check=convergence_check)
     series = 0.0 if not geometry.base_fed else float(earth_ohm)
     kwargs = {}
     if ground != "perfect":
         kwargs = {"soil_permittivity": site.soil.relative_permittivity, "soil_conductivity": site.soil.conductivity_s_m}
-    res = solve_full_wave(gridded, f, ground=ground, series_ohm=series, progress=progress, **kwargs)
+    res = solve_full_wave(gridded, f, ground=ground, series_ohm=series, progress=progress,
+                          convergence_check=convergence_check, **kwargs)
     s_lo, s_nom, s_hi = body.shielding
     span_ = bearing_range(res)
     bearings = [st.bearing_deg for st in site.stations if getattr(st, "bearing_deg", None) is not None]
@@ -268,5 +310,7 @@ def building_full_wave_response(site, geometry, frequency, earth_ohm, progress=N
         "best bearing of arrival; the range over bearings and the construction is in 'building_full_wave'; "
         "the conductor and earth losses are the wire's own (the building's induced currents are not counted as loss)"]
     out["convergence"]["unknowns_with_building"] = int(res.n_unknowns)
+    if convergence_check:
+        out["convergence"]["relative_change_with_building"] = float(res.convergence)
     return out
 
