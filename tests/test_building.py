@@ -146,3 +146,91 @@ def test_full_wave_refusal_counts_the_building_grid(capsys, tmp_path):
     line = one_line(err)
     assert "the building as a wire grid" in line and "unknowns" in line and "GB of memory" in line
     assert "--allow-large" in line
+
+
+def test_balcony_what_ifs_are_moves_a_flat_can_make(capsys, tmp_path):
+    # Input handling and wording: a flat whose earth is the building's (a water pipe) is offered balcony moves,
+    # each with its dB, and not a higher wire, 10 m more wire or buried radials it has no ground for.
+    code, out, err = run(capsys, "report", "--json", str(BALCONY))
+    assert code == 0, err
+    rows = {row["change"]: row for row in json.loads(out)["what_if"]}
+    names = " | ".join(rows)
+    assert "raise the wire" not in names and "buried radials" not in names and "to the far end" not in names
+    for start in ("hold the wire 2 m further out", "the far end of the rail", "a counterpoise along the balcony"):
+        row = [r for k, r in rows.items() if k.startswith(start)]
+        assert row and math.isfinite(row[0]["power_change_db"]), start
+    # consistency check: the far edge of the rail is no worse than the run back to the wall
+    far = [r for k, r in rows.items() if k.startswith("the far end of the rail")][0]
+    assert far["effective_height_m"] >= rows["as described"]["effective_height_m"]
+    code, out, err = run(capsys, "report", str(BALCONY))
+    flat = " ".join(out.replace("│", " ").split())
+    assert "the far end of the rail" in flat and "raise the wire" not in flat
+
+
+def test_balcony_with_ground_access_keeps_the_ground_moves(capsys, tmp_path):
+    # Input handling: a rod in the soil means the user reaches the ground: the ground moves come back.
+    p = tmp_path / "rod.toml"
+    p.write_text(BALCONY.read_text(encoding="utf-8") + '\n[[earth.rods]]\nlength = "2.4 m"\nat = [0.3, 6.0]\n',
+                 encoding="utf-8")
+    code, out, err = run(capsys, "report", "--json", str(p))
+    assert code == 0, err
+    names = " | ".join(row["change"] for row in json.loads(out)["what_if"])
+    assert "raise the wire" in names and "buried radials" in names and "hold the wire 2 m further out" in names
+
+
+def _without_building(path, tmp_path):
+    import re
+
+    text = re.sub(r"\n\[building\]\n(.*\n)*?\n", "\n\n", path.read_text(encoding="utf-8"))
+    assert "[building]" not in text
+    p = tmp_path / f"{path.stem}_no_building.toml"
+    p.write_text(text, encoding="utf-8")
+    return p
+
+
+def test_a_balcony_rail_without_a_building_infers_one_and_says_so(capsys, tmp_path):
+    # Input handling: the flat's block is not described, but the wire is on balcony-rail supports: a building
+    # of unknown construction is assumed behind the rail, said in words, and the headline is not open ground.
+    p = _without_building(HIGH, tmp_path)
+    code, out, err = run(capsys, "report", "--json", str(p))
+    assert code == 0, err
+    r = json.loads(out)
+    b = r["building"]
+    assert b["source"] == "supports" and b["construction"] == "unknown"
+    least, nominal, most = b["static_effective_height_range_m"]
+    assert most < nominal < least == b["open_ground_static_effective_height_m"]  # the range spans timber..steel
+    # the facade is put a balcony's depth (1.5 m, the stated assumption) behind the front rail at y = 1.6 m
+    assert max(y for _, y in b["footprint_m"]) == 0.1
+    assert any("is assumed from the balcony rail supports" in w for w in r["warnings"])
+    assert not any("modelled as a wire over open ground" in w for w in r["warnings"])
+    code, out, err = run(capsys, "report", str(p))
+    flat = " ".join(out.replace("│", " ").split())
+    assert "is assumed from the balcony rail supports" in flat and "construction unknown" in flat
+    assert "licensed electrician" in flat  # the building's earth is for a licensed electrician, as with [building]
+    # consistency check: layout reckons the same wire in the same model (0.5 dB)
+    code, out, err = run(capsys, "layout", "--json", str(p))
+    assert code == 0, err
+    lay = json.loads(out)["present_wire"]["effective_height_m"]
+    f = json.loads(out)["ranking_frequencies_hz"][0]
+    i = min(range(len(r["frequencies_hz"])), key=lambda k: abs(r["frequencies_hz"][k] - f))
+    assert abs(20 * math.log10(lay / r["aerial"]["effective_height_m"][i])) < 0.5
+
+
+def test_sites_without_a_building_support_keep_their_open_ground_figures(capsys):
+    # Consistency check (open-ground limit): examples with no building and no rail, window or roof support get
+    # no building, and their effective height is the closed form's over open ground.
+    from aerial import load_site
+    from aerial.geometry.resolve import resolve
+    from aerial.models.closed_form import closed_form_response
+
+    for name in ("rural_long_wire.toml", "portable_vertical_counterpoise.toml", "suburban_lot_service_line.toml"):
+        path = ROOT / "site_examples" / name
+        code, out, err = run(capsys, "report", "--json", str(path))
+        assert code == 0, err
+        r = json.loads(out)
+        assert "building" not in r, name
+        geo = resolve(load_site(path))
+        assert geo.building is None
+        f = r["frequencies_hz"][:3]
+        he = closed_form_response(geo.segments, f)["effective_height_m"]
+        assert all(abs(a - b) <= 1e-9 * abs(b) for a, b in zip(r["aerial"]["effective_height_m"][:3], he)), name

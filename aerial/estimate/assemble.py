@@ -39,6 +39,8 @@ WHAT_IF_EXTEND_M = 10.0
 #: How far the balcony what-if holds the wire out from the facade, and how far below the aerial a counterpoise runs. [m]
 WHAT_IF_STAND_OFF_M = 2.0
 WHAT_IF_COUNTERPOISE_DROP_M = 1.0
+#: The far-edge move is offered when it takes part of the wire at least this much further from the facade. [m]
+WHAT_IF_FAR_EDGE_MIN_GAIN_M = 0.3
 
 
 def frequency_grid(site, step_hz: float | None = None) -> np.ndarray:
@@ -441,17 +443,28 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
 
 
 def what_if(site, frequency: float, earth: dict) -> list[dict]:
-    """What raising the wire, lengthening it, or improving the earth buys, at one frequency."""
+    """What raising the wire, lengthening it, or improving the earth buys, at one frequency.
+
+    A wire on the balcony of a flat whose earth is the building's (a water
+    pipe, the protective earth: nothing in the soil the user can reach) gets
+    the moves that can be made from a balcony instead: the wire held out from
+    the facade, the wire on the rail's far, outer edge only, and a
+    counterpoise along the rail instead of the long riser earth.
+    """
     from aerial.estimate import earth as earth_mod
 
     r_earth = float(earth_at_frequency(site, [frequency])["impedance_ohm"][0].real)
     base = _headline(site, site.wires, frequency, r_earth)
     rows = [("as described", base)]
-    rows.append((f"raise the wire {WHAT_IF_RAISE_M:g} m", _headline(site, _perturbed_wires(site, raise_m=WHAT_IF_RAISE_M), frequency, r_earth)))
-    rows.append((f"add {WHAT_IF_EXTEND_M:g} m to the far end", _headline(site, _perturbed_wires(site, extend_m=WHAT_IF_EXTEND_M), frequency, r_earth)))
-    better = earth_mod.improved_earth(site.electrodes, site.soil, frequency)
-    rows.append((better["description"], _headline(site, site.wires, frequency, better["resistance_ohm"])))
-    radials_row = len(rows) - 1
+    radials_row = better = None
+    if not balcony_without_ground_access(site):
+        rows.append((f"raise the wire {WHAT_IF_RAISE_M:g} m",
+                     _headline(site, _perturbed_wires(site, raise_m=WHAT_IF_RAISE_M), frequency, r_earth)))
+        rows.append((f"add {WHAT_IF_EXTEND_M:g} m to the far end",
+                     _headline(site, _perturbed_wires(site, extend_m=WHAT_IF_EXTEND_M), frequency, r_earth)))
+        better = earth_mod.improved_earth(site.electrodes, site.soil, frequency)
+        rows.append((better["description"], _headline(site, site.wires, frequency, better["resistance_ohm"])))
+        radials_row = len(rows) - 1
     rows += _building_moves(site, frequency, r_earth)
     out = []
     p0 = float(base["available_power_w"][0])
@@ -468,7 +481,7 @@ def what_if(site, frequency: float, earth: dict) -> list[dict]:
             "power_change_db": 10.0 * math.log10(p / p0) if p > 0 and p0 > 0 else 0.0,
             "model": "closed form",
         })
-    if better.get("note"):
+    if better is not None and better.get("note"):
         out[radials_row]["note"] = better["note"]
         out[radials_row]["effective_length_m"] = better["effective_length_m"]
     return out
@@ -498,15 +511,32 @@ def ranges_at_band_points(site, freqs, resp, earth, pts, *, method, ground, allo
     }
 
 
-def _building_moves(site, frequency, earth_ohm: float) -> list:
-    """What-if rows for a wire on a building: held out from the facade, a counterpoise instead of the riser."""
+#: Earth electrodes in the soil: a site with one has ground it can reach (a garden, a yard).
+GROUND_ELECTRODES = ("rods", "buried_wires")
+
+
+def on_a_balcony(site) -> bool:
+    """Whether the site's wire hangs on a balcony of the building the site describes (or infers)."""
     from aerial.geometry.resolve import building_of
-    from aerial.models.building import nearest_facade, plan_distance
 
     body, described = building_of(site)
     apartment = isinstance(site.plan, dict) and str(site.plan.get("building", "")).lower() == "apartment"
-    if body is None or not (apartment or described.balcony_floor_m is not None):
+    return body is not None and (apartment or described.balcony_floor_m is not None)
+
+
+def balcony_without_ground_access(site) -> bool:
+    """A balcony wire whose earth is the building's (no rod or buried wire in the soil): the user has no ground."""
+    return on_a_balcony(site) and not any(e.kind in GROUND_ELECTRODES for e in site.electrodes)
+
+
+def _building_moves(site, frequency, earth_ohm: float) -> list:
+    """What-if rows for a wire on a balcony: held out from the facade, on the rail's far edge, a counterpoise."""
+    from aerial.geometry.resolve import building_of
+    from aerial.models.building import nearest_facade, plan_distance
+
+    if not on_a_balcony(site):
         return []  # the balcony moves are for a wire on a balcony
+    body, _ = building_of(site)
     aerial = [w for w in site.wires if w.role == "aerial"]
     pts = np.vstack([w.points_m for w in aerial])
     outside = pts[plan_distance(pts[:, :2], body.footprint) > 0]
@@ -530,6 +560,13 @@ def _building_moves(site, frequency, earth_ohm: float) -> list:
                      _headline(site, moved, frequency, earth_ohm)))
     except ModelInputError:
         pass
+    far = _far_edge_wires(site, body)
+    if far is not None:
+        try:
+            rows.append(("the far end of the rail only (not back to the wall)",
+                         _headline(site, far, frequency, earth_ohm)))
+        except ModelInputError:
+            pass
     counterpoise = _rail_counterpoise(site)
     if counterpoise is not None:
         from aerial.estimate import earth as earth_mod
@@ -542,6 +579,58 @@ def _building_moves(site, frequency, earth_ohm: float) -> list:
         except ModelInputError:
             pass
     return rows
+
+
+def _far_edge_wires(site, body):
+    """The aerial moved onto the outer edge of the rail (its points farthest from the facade), or None.
+
+    Every aerial point nearer the facade than the farthest one is moved out
+    to that distance along the facade's normal; pieces that fold to nothing
+    (a run along a side rail back to the wall) are dropped, and the lead-in's
+    top follows the point it meets. None when the wire is already all on the
+    outer edge, or when nothing of it would be left.
+    """
+    from aerial.models.building import nearest_facade, plan_distance
+
+    aerial = [w for w in site.wires if w.role == "aerial"]
+    pts = np.vstack([w.points_m for w in aerial])
+    outside = pts[plan_distance(pts[:, :2], body.footprint) > 0]
+    if len(outside) == 0:
+        return None
+    p0, normal = nearest_facade(body.footprint, outside[:, :2])
+    dist = (pts - p0) @ normal
+    reach = float(dist.max())
+    if reach - float(dist.min()) < WHAT_IF_FAR_EDGE_MIN_GAIN_M:
+        return None
+    moved_points = {}
+    out = []
+    for w in site.wires:
+        if w.role != "aerial":
+            out.append(w)
+            continue
+        p = np.array(w.points_m, float)
+        d = (p - p0) @ normal
+        q = p + np.maximum(reach - d, 0.0)[:, None] * normal
+        for a, b in zip(p, q):
+            moved_points[tuple(np.round(a, 6))] = b
+        keep = np.r_[True, np.linalg.norm(np.diff(q, axis=0), axis=1) > JOIN_TOLERANCE_M]
+        q = q[keep]
+        if len(q) < 2:
+            continue
+        out.append(replace(w, points_m=q))
+    if not any(w.role == "aerial" for w in out):
+        return None
+    final = []
+    for w in out:
+        if w.role == "lead-in":
+            p = np.array(w.points_m, float)
+            for i in (0, -1):
+                key = tuple(np.round(p[i], 6))
+                if key in moved_points:
+                    p[i] = moved_points[key]
+            w = replace(w, points_m=p)
+        final.append(w)
+    return final
 
 
 def _rail_counterpoise(site):

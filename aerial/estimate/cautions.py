@@ -38,7 +38,7 @@ def cautions_for(site) -> list[str]:
         )
     described = site.raw.get("building") if isinstance(site.raw, dict) else None
     if (isinstance(described, dict) and "balcony_floor" in described) or \
-            str((site.plan or {}).get("building", "")) == "apartment":
+            str((site.plan or {}).get("building", "")) == "apartment" or _inferred_balcony(site):
         out.append(
             "Building: its steel, its pipes and its mains earth are bonded to the building's earthing. The aerial's "
             "earth joins them only at the main earthing terminal or a bonding point, and only through a licensed "
@@ -55,3 +55,15 @@ def cautions_for(site) -> list[str]:
             "bleed resistor (about 1 MΩ) or an RF choke from the aerial terminal to earth."
         )
     return out
+
+
+def _inferred_balcony(site) -> bool:
+    """A balcony wire whose building is inferred from its rail supports (no [building] described)."""
+    from aerial.core.errors import AerialError
+    from aerial.site.building import parse_building
+
+    try:
+        building = parse_building(site)
+    except AerialError:  # the report names a bad building table itself; the cautions never fail on it
+        return False
+    return building is not None and building.source == "supports" and building.balcony_floor_m is not None

@@ -27,7 +27,21 @@ CONSTRUCTION_WORDS = {s: s for s in STRUCTURES} | {"timber": "timber frame", "st
                                                     "concrete": "reinforced concrete", "brick": "masonry"}
 BUILDING_KEYS = {"footprint", "height", "construction", "balcony_floor", "rail_bonded", "notes"}
 #: Support kinds that sit on a building.
-ON_BUILDING_KINDS = ("balcony rail", "eave", "chimney", "gable")
+ON_BUILDING_KINDS = ("balcony rail", "window", "roof", "eave", "chimney", "gable")
+#: Support kinds from which a building is inferred when none is described (a flat's balcony, window or roof;
+#: a house's eave, gable or chimney keeps the open-ground figures with a note: most houses hardly screen).
+INFER_FROM_KINDS = ("balcony rail", "window", "roof")
+#: Assumptions of an inferred building: the balcony's depth in front of the facade, the building's height
+#: above a rail or window (one more storey at least), its depth behind the facade and how far it runs past
+#: the wire on either side. [m]
+INFERRED_BALCONY_DEPTH_M = 1.5
+INFERRED_STOREY_ABOVE_M = 3.0
+INFERRED_DEPTH_M = 12.0
+INFERRED_SIDE_M = 10.0
+#: Height of a balcony rail above the balcony's floor, for an inferred balcony floor. [m]
+INFERRED_RAIL_HEIGHT_M = 1.0
+#: Pieces of aerial wire this close to the inferred facade are taken as lying against it. [m]
+INFERRED_WALL_CLEARANCE_M = 0.2
 
 
 @dataclass(frozen=True)
@@ -47,7 +61,8 @@ class SiteBuilding:
     rail_bonded : bool or None
         Whether the balcony rail is bonded to the structure (None: not said).
     source : str
-        The table it came from ("building" or "plan").
+        Where it came from: "building" (the table), "plan" (``[plan]``) or
+        "supports" (inferred from balcony-rail, window or roof supports).
     assumed : tuple of str
         What was inferred, in words.
     """
@@ -77,7 +92,7 @@ def parse_building(site: Site) -> SiteBuilding | None:
     raw = site.raw.get("building") if isinstance(site.raw, dict) else None
     if raw is not None:
         return _from_table(r, r.table(site.raw, "", "building"), site)
-    return _from_plan(r, site)
+    return _from_plan(r, site) or _from_supports(r, site)
 
 
 def _from_table(r: TableReader, t: dict, site: Site) -> SiteBuilding:
@@ -131,6 +146,101 @@ def _from_plan(r: TableReader, site: Site) -> SiteBuilding | None:
     return None
 
 
+def _building_supports(r: TableReader, site: Site) -> list:
+    """(kind, x, y, height) of the supports on a flat's building: [supports] and [[plan.supports]]."""
+    found = [(s.kind, s.x_m, s.y_m, s.height_m) for s in site.supports.values() if s.kind in INFER_FROM_KINDS]
+    plan = site.plan if isinstance(site.plan, dict) else {}
+    for i, t in enumerate(plan.get("supports", []) or []):
+        if isinstance(t, dict) and str(t.get("kind", "")) in INFER_FROM_KINDS and "at" in t and "height" in t:
+            key = f"plan.supports[{i}]"
+            x, y = r.plan_point(t["at"], f"{key}.at")
+            found.append((str(t["kind"]), x, y, r.length(t, key, "height", required=True, positive=True)))
+    return found
+
+
+def _facade_normal(sup, receiver, aerial):
+    """Outward plan normal of the facade, pointing from the receiver (indoors) towards the supports.
+
+    The facade runs along the longest level piece of aerial wire between two
+    of the supports (the front rail of a balcony, the rail of an L-shaped
+    one); failing that, along the line the supports spread on; a single
+    support (or a tight cluster) takes the direction from the receiver to it.
+    None when the receiver stands where the supports are.
+    """
+    towards = np.mean(sup, axis=0) - receiver
+    best = 0.0
+    normal = None
+    for p in aerial:
+        for a, b in zip(p[:-1], p[1:]):
+            run = b[:2] - a[:2]
+            level = abs(b[2] - a[2]) < 0.2 * max(float(np.linalg.norm(run)), 1e-9)
+            held = min(np.linalg.norm(sup - a[:2], axis=1)) < 1.0 and min(np.linalg.norm(sup - b[:2], axis=1)) < 1.0
+            if level and held and np.linalg.norm(run) > max(best, 0.5):
+                best = float(np.linalg.norm(run))
+                normal = np.array([-run[1], run[0]]) / best
+    if normal is not None:
+        return normal if normal @ towards >= 0 else -normal
+    if len(sup) >= 2:
+        _, sv, vt = np.linalg.svd(sup - np.mean(sup, axis=0))
+        if sv[0] > 0.5:
+            normal = np.array([-vt[0, 1], vt[0, 0]])
+            return normal if normal @ towards >= 0 else -normal
+    if np.linalg.norm(towards) < 0.3:
+        return None
+    return towards / np.linalg.norm(towards)
+
+
+def _from_supports(r: TableReader, site: Site) -> SiteBuilding | None:
+    """A building inferred behind the balcony-rail, window or roof supports, or None when it cannot be placed.
+
+    The facade faces from the receiver (indoors) towards those supports; it
+    stands a balcony's depth behind a rail (no further forward than the wire
+    allows), in the plane of a window or roof support. The height, depth and
+    width are stated assumptions and the construction is unknown, so the
+    range runs from no screening (timber) to a perfect screen (steel).
+    """
+    found = _building_supports(r, site)
+    aerial = [np.asarray(w.points_m, float) for w in site.wires if w.role == "aerial"]
+    if not found or not aerial:
+        return None
+    pts = np.vstack(aerial)
+    sup = np.array([[x, y] for _, x, y, _ in found])
+    normal = _facade_normal(sup, np.array([site.receiver.x_m, site.receiver.y_m]), aerial)
+    if normal is None:
+        return None
+    reach = pts[:, :2] @ normal
+    rails = np.array([k == "balcony rail" for k, *_ in found])
+    on_wall = sup @ normal
+    face = float(np.min(reach)) - INFERRED_WALL_CLEARANCE_M
+    if np.any(rails):
+        face = min(face, float(np.max(on_wall[rails])) - INFERRED_BALCONY_DEPTH_M)  # behind the front rail
+    if not np.all(rails):
+        face = min(face, float(np.min(on_wall[~rails])))
+    roof_only = all(k == "roof" for k, *_ in found)
+    height = max(h + (0.0 if k == "roof" else INFERRED_STOREY_ABOVE_M) for k, _, _, h in found)
+    along = np.array([-normal[1], normal[0]])
+    span = pts[:, :2] @ along
+    lo, hi = float(span.min()) - INFERRED_SIDE_M, float(span.max()) + INFERRED_SIDE_M
+    corners = [face * normal + lo * along, face * normal + hi * along,
+               (face - INFERRED_DEPTH_M) * normal + hi * along, (face - INFERRED_DEPTH_M) * normal + lo * along]
+    outline = Polygon([tuple(map(float, np.round(c, 3))) for c in corners])  # to the millimetre
+    outline = shapely.orient_polygons(outline) if hasattr(shapely, "orient_polygons") else outline
+    if all(outline.contains(Point(p[0], p[1])) and p[2] <= height for p in pts):
+        return None
+    kinds = sorted({k for k, *_ in found})
+    floor = None
+    if np.any(rails):
+        floor = max(0.0, min(h for k, _, _, h in found if k == "balcony rail") - INFERRED_RAIL_HEIGHT_M)
+    tall = "its roof at the support" if roof_only else "one storey above the highest support"
+    said = (f"No [building] is described, so one is assumed from the {' and '.join(kinds)} support"
+            f"{'s' if len(found) > 1 else ''}: a facade {float(np.min(reach)) - face:.1f} m behind the nearest "
+            f"wire, {height:.0f} m tall ({tall}), {hi - lo:.0f} m wide and {INFERRED_DEPTH_M:.0f} m deep, its "
+            "construction unknown (anything from timber, which hardly screens, to a steel frame, which screens "
+            "almost completely). Describe it in [building] for a firmer figure.")
+    return SiteBuilding(tuple(map(tuple, np.asarray(outline.exterior.coords)[:-1])), float(height), "unknown", floor,
+                        None, "supports", (said,))
+
+
 def _plan_floor(site: Site):
     plan = site.plan if isinstance(site.plan, dict) else {}
     balcony = plan.get("balcony")
@@ -163,7 +273,7 @@ def _check_wire_outside(r: TableReader, site: Site, outline: Polygon, height: fl
 
 
 def open_ground_notes(site: Site) -> list[str]:
-    """Notes for a site with no building described whose wire is fixed to a building."""
+    """Notes for a site with no building described (nor inferred) whose wire is fixed to a building."""
     kinds = {s.kind for s in site.supports.values()}
     plan = site.plan if isinstance(site.plan, dict) else {}
     for t in plan.get("supports", []) or []:
@@ -177,4 +287,5 @@ def open_ground_notes(site: Site) -> list[str]:
             "Add [building] (footprint, height, construction) to include it."]
 
 
-__all__ = ["SiteBuilding", "parse_building", "open_ground_notes", "CONSTRUCTION_WORDS", "ON_BUILDING_KINDS"]
+__all__ = ["SiteBuilding", "parse_building", "open_ground_notes", "CONSTRUCTION_WORDS", "ON_BUILDING_KINDS",
+           "INFER_FROM_KINDS"]

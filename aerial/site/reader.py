@@ -116,6 +116,8 @@ HEIGHT_TOLERANCE_M = {
     "mast": 0.2,
     "pole": 0.3,
     "balcony rail": 0.2,
+    "window": 0.2,
+    "roof": 0.5,
     "fence": 0.1,
     "other": 0.5,
 }
