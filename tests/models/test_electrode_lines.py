@@ -70,7 +70,8 @@ def test_report_shows_impedance_and_effective_length(capsys, monkeypatch):
 
     from aerial.cli import main
 
-    site = pathlib.Path(__file__).resolve().parents[2] / "site_examples" / "balcony_water_pipe.toml"
+    # a site with ground of its own: the radials row (and its effective-length note) is offered there
+    site = pathlib.Path(__file__).resolve().parents[2] / "site_examples" / "suburban_lot_service_line.toml"
     monkeypatch.delenv("COLUMNS", raising=False)  # piped: every table at its full width
     assert main(["report", str(site)]) == 0
     out = capsys.readouterr().out
