@@ -7,6 +7,9 @@ consistency checks between aerial's own commands, named so).
 import json
 import math
 
+import numpy as np
+import pytest
+
 
 from .conftest import ROOT, one_line, run
 
@@ -234,3 +237,44 @@ def test_sites_without_a_building_support_keep_their_open_ground_figures(capsys)
         f = r["frequencies_hz"][:3]
         he = closed_form_response(geo.segments, f)["effective_height_m"]
         assert all(abs(a - b) <= 1e-9 * abs(b) for a, b in zip(r["aerial"]["effective_height_m"][:3], he)), name
+
+
+def test_full_wave_station_verdicts_use_each_stations_own_bearing(capsys, tmp_path):
+    # Consistency check: with the building solved as a wire grid, a station with a bearing is reckoned with the
+    # effective height for a wave from that bearing; the one behind the block (south: the facade faces north)
+    # gets less than the one in front, and neither is the middle figure of all bearings. Three frequencies
+    # across the band, straight through the estimate stage (the command line's full-wave path with a building
+    # is run by tests/test_determinism.py and tests/test_ranges.py); the closed form through the command line.
+    from aerial import load_site
+    from aerial.estimate.assemble import aerial_response, earth_at_frequency
+    from aerial.estimate.receiver import receiver_results
+    from aerial.geometry.resolve import resolve
+
+    text = HIGH.read_text(encoding="utf-8").replace(
+        "footprint = [[-6.0, -12.0], [18.0, -12.0], [18.0, 0.0], [-6.0, 0.0]]",
+        "footprint = [[-3.0, -8.0], [10.0, -8.0], [10.0, 0.0], [-3.0, 0.0]]")  # a smaller block: quicker
+    text = text.replace('height = "21 m"', 'height = "15 m"')
+    text = text.replace('distance = "14 km"\n', 'distance = "14 km"\nbearing = 0\n')
+    text = text.replace('distance = "40 km"\n', 'distance = "40 km"\nbearing = 180\n')
+    p = tmp_path / "bearings.toml"
+    p.write_text(text, encoding="utf-8")
+    site = load_site(p)
+    f = np.array([0.52e6, 1.0e6, 1.71e6])
+    earth = earth_at_frequency(site, f)["impedance_ohm"].real
+    resp = aerial_response(site, resolve(site, electrode_ohm=float(earth[1])), f, earth, method="full-wave",
+                           convergence_check=False)
+    _, stations, _ = receiver_results(site, f, resp)
+    front, behind = stations
+    assert front["effective_height_by_bearing"] and behind["effective_height_by_bearing"]
+    assert behind["effective_height_m"] < front["effective_height_m"]
+    info = resp["building_full_wave"]
+    assert info["station_bearings_deg"] == [0.0, 180.0]
+    for st, j in ((front, 0), (behind, 1)):
+        expected = float(np.interp(st["frequency_hz"], f, np.asarray(info["station_effective_height_m"])[:, j]))
+        assert st["effective_height_m"] == pytest.approx(expected, rel=1e-9)
+        middle = float(np.interp(st["frequency_hz"], f, resp["effective_height_m"]))
+        assert abs(st["effective_height_m"] - middle) > 1e-3 * middle
+    # the closed form has no bearing: the stations keep the aerial's figure there
+    code, out, err = run(capsys, "report", "--json", "--step", "1 MHz", str(p))
+    assert code == 0, err
+    assert not any(st["effective_height_by_bearing"] for st in json.loads(out)["stations"])

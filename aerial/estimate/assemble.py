@@ -138,15 +138,19 @@ GROUNDS = ("perfect", "lossy", "reflection-coefficient")
 
 
 def aerial_response(site, geometry, frequency, earth_ohm: float, method: str = "closed-form", progress=None,
-                    ground: str = "perfect", allow_large: bool = False) -> dict:
-    """Per-frequency electrical figures of the aerial with its earth. Returns numpy arrays."""
+                    ground: str = "perfect", allow_large: bool = False, convergence_check: bool = True) -> dict:
+    """Per-frequency electrical figures of the aerial with its earth. Returns numpy arrays.
+
+    ``convergence_check`` (full wave only): False skips the solver's second
+    solve at twice the pieces (the figures are the same).
+    """
     if method not in METHODS:
         raise ModelInputError(f"'{method}' is not a valid method, must be one of " + ", ".join(f"'{m}'" for m in METHODS))
     if method == "full-wave":
         from aerial.estimate.fullwave_sweep import full_wave_response
 
         out = full_wave_response(site, geometry, frequency, earth_ohm, progress=progress, ground=ground,
-                                 allow_large=allow_large)
+                                 allow_large=allow_large, convergence_check=convergence_check)
     else:
         from aerial.models.closed_form import closed_form_response
 

@@ -121,10 +121,11 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     warnings += list(tuning.get("warnings", []))
     stations = []
     if site.stations:
-        stations, night_warnings = _stations_day_and_night(site, f, r, x, rr, he, parts)
+        own = station_effective_heights(site, f, resp)
+        stations, night_warnings = _stations_day_and_night(site, f, r, x, rr, he, parts, own)
         warnings += night_warnings
         day = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
-                                 s.soil.conductivity_s_m) for s in site.stations]
+                                 s.soil.conductivity_s_m, effective_height_m=h) for s, h in zip(site.stations, own)]
         try:
             design = reception.design_for_stations(f, r, x, rr, he, parts, day, (lo, hi),
                                                    min(tuning["channel_spacings_hz"]))
@@ -136,11 +137,36 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     return tuning, stations, warnings
 
 
-def _stations_day_and_night(site, f, r, x, rr, he, parts) -> tuple[list, list]:
+def station_effective_heights(site, freqs, resp) -> list:
+    """Each station's own effective height where the full-wave building solution gives one for its bearing. [m]
+
+    ``resp["building_full_wave"]["station_effective_height_m"]`` holds, per
+    frequency, one column for each station with a bearing, in the site's
+    order; each is taken at the station's frequency. None for a station
+    without a bearing (or without a full-wave building solution): it keeps
+    the aerial's middle figure, with the range over bearings beside it.
+    """
+    info = resp.get("building_full_wave") or {}
+    cols = info.get("station_effective_height_m")
+    if cols is None:
+        return [None] * len(site.stations)
+    cols = np.asarray(cols, float).reshape(len(freqs), -1)
+    out, j = [], 0
+    for st in site.stations:
+        if st.bearing_deg is None:
+            out.append(None)
+            continue
+        out.append(float(np.interp(st.frequency_hz, freqs, cols[:, j])))
+        j += 1
+    return out
+
+
+def _stations_day_and_night(site, f, r, x, rr, he, parts, own=None) -> tuple[list, list]:
     """Station verdicts by day (ground wave) and by night (ground plus sky wave), each against its noise floor."""
     from aerial.estimate import night
 
     freqs = [s.frequency_hz for s in site.stations]
+    own = [None] * len(site.stations) if own is None else own
     moment = night.listening_moment(site)
     floor = night.noise_floor(site, freqs, moment)
     skies = night.sky_waves(site, moment=moment)
@@ -150,7 +176,8 @@ def _stations_day_and_night(site, f, r, x, rr, he, parts) -> tuple[list, list]:
         return [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
                                   s.soil.conductivity_s_m,
                                   sky_wave_field_v_per_m=sky["field_v_per_m"] if time_of_day == "night" else 0.0,
-                                  atmospheric_noise_db=float(floor[time_of_day]["atmospheric_db"][i]))
+                                  atmospheric_noise_db=float(floor[time_of_day]["atmospheric_db"][i]),
+                                  effective_height_m=own[i])
                 for i, (s, sky) in enumerate(zip(site.stations, skies))]
 
     stations, by_night = reception.assess_stations_by_condition(f, r, x, rr, he, parts,
@@ -163,6 +190,7 @@ def _stations_day_and_night(site, f, r, x, rr, he, parts) -> tuple[list, list]:
         s.setdefault("name", src.name)
         if src.bearing_deg is not None:
             s["bearing_deg"] = src.bearing_deg
+        s["effective_height_by_bearing"] = own[i] is not None
         s["noise_dominant"] = floor["day"]["dominant"][i]
         _, fading = night.combined_night_field(n["ground_wave_field_v_per_m"], sky["field_v_per_m"])
         s["night"] = {

@@ -190,6 +190,10 @@ class Station:
     atmospheric_noise_db : float or None
         Atmospheric noise figure Fam at the station's frequency, added in power
         to the man-made noise; None leaves man-made noise alone. [dB]
+    effective_height_m : float or None
+        The aerial's effective height for a wave from this station's own
+        bearing (a full-wave solution with the building beside the wire);
+        None takes the aerial's effective height at the station's frequency. [m]
     """
 
     name: str
@@ -200,6 +204,7 @@ class Station:
     soil_conductivity_s_per_m: float
     sky_wave_field_v_per_m: float = 0.0
     atmospheric_noise_db: float | None = None
+    effective_height_m: float | None = None
 
 
 # ----------------------------------------------------------------------------------------- helpers
@@ -1280,6 +1285,12 @@ def _station_coil(aerial, parts) -> _Coil:
     return _resolve_coil(parts)
 
 
+def _station_heights(aerial, stations, fs):
+    """Effective height toward each station: its own (by bearing) where given, else the aerial's at its frequency. [m]"""
+    own = np.array([np.nan if s.effective_height_m is None else float(s.effective_height_m) for s in stations])
+    return np.where(np.isfinite(own), own, aerial.effective_height(fs))
+
+
 def _station_arrays(aerial, coil, parts, diode, stations, noise_category, modulation_depth) -> dict:
     """Every per-station figure as arrays over the stations (one vectorised pass through the network)."""
     load = float(parts.earphone_ohm)
@@ -1287,7 +1298,7 @@ def _station_arrays(aerial, coil, parts, diode, stations, noise_category, modula
     gw = gw_mod.groundwave_field(np.array([s.power_w for s in stations]), np.array([s.distance_m for s in stations]),
                                  fs, np.array([s.soil_relative_permittivity for s in stations]),
                                  np.array([s.soil_conductivity_s_per_m for s in stations]))
-    he = aerial.effective_height(fs)
+    he = _station_heights(aerial, stations, fs)
     r_a, _ = aerial.impedance(fs)
     sky = np.array([float(s.sky_wave_field_v_per_m) for s in stations])
     field = np.hypot(gw.field, sky)
@@ -1570,7 +1581,7 @@ def _design_scene(aerial, parts, wanted, spacing_hz):
     gw = gw_mod.groundwave_field(np.array([s.power_w for s in wanted]), np.array([s.distance_m for s in wanted]), fs,
                                  np.array([s.soil_relative_permittivity for s in wanted]),
                                  np.array([s.soil_conductivity_s_per_m for s in wanted]))
-    emf = np.hypot(gw.field, [s.sky_wave_field_v_per_m for s in wanted]) * aerial.effective_height(fs)
+    emf = np.hypot(gw.field, [s.sky_wave_field_v_per_m for s in wanted]) * _station_heights(aerial, wanted, fs)
     margin = DEFAULT_INTERFERENCE_MARGIN_DB if parts.interference_margin_db is None else parts.interference_margin_db
     load = float(parts.earphone_ohm)
     base = _station_coil(aerial, parts)

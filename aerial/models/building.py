@@ -68,8 +68,10 @@ SHIELDING_BY_CONSTRUCTION = {
 FACADE_TARGET_UNKNOWNS = 120
 #: Pieces of wire this far or less in front of the facade plane are cut off as lying in it. [m]
 WALL_CLEARANCE_M = 0.02
-#: The quasi-static field solution holds while the building is below this fraction of a wavelength. [1]
-MAX_HEIGHT_WAVELENGTHS = 1.0 / (2.0 * np.pi)
+#: The quasi-static field solution holds while the building is below this fraction of a wavelength (k H < 1/2):
+#: past it the full-wave grid gives 2-5 dB more than the static screening on the examples (a 21 m steel block at
+#: 1.25-1.71 MHz; docs/models-building.md), the building's own currents nearing their first resonance. [1]
+MAX_HEIGHT_WAVELENGTHS = 1.0 / (4.0 * np.pi)
 
 
 @dataclass(frozen=True)

@@ -294,8 +294,9 @@ def _beside_building(segments, building, es, case, f, warnings) -> dict:
     if building.height_m > h_limit:
         warnings.append(
             f"the building ({building.height_m:.0f} m) is not small against the wavelength above "
-            f"{MAX_HEIGHT_WAVELENGTHS * SPEED_OF_LIGHT / building.height_m / 1e6:.3g} MHz: the quasi-static "
-            "shielding there is approximate"
+            f"{MAX_HEIGHT_WAVELENGTHS * SPEED_OF_LIGHT / building.height_m / 1e6:.3g} MHz: the closed form's "
+            "screening is the static one and leaves out the building's own currents, which can give a few dB more "
+            "signal there (--full-wave models them)"
         )
     return {
         "construction": building.construction,
