@@ -194,7 +194,14 @@ def _without_building(path, tmp_path):
 def test_a_balcony_rail_without_a_building_infers_one_and_says_so(capsys, tmp_path):
     # Input handling: the flat's block is not described, but the wire is on balcony-rail supports: a building
     # of unknown construction is assumed behind the rail, said in words, and the headline is not open ground.
-    p = _without_building(HIGH, tmp_path)
+    described = _without_building(HIGH, tmp_path)
+    code, out, err = run(capsys, "report", "--json", str(described))
+    assert code == 0, err
+    b = json.loads(out)["building"]  # [plan.balcony] names the structure: the assumed block is of it
+    assert b["source"] == "supports" and b["construction"] == "steel frame"
+    assert any("steel frame (from [plan.balcony])" in w for w in json.loads(out)["warnings"])
+    p = tmp_path / "unknown_structure.toml"
+    p.write_text(described.read_text(encoding="utf-8").replace('structure = "steel frame"\n', ""), encoding="utf-8")
     code, out, err = run(capsys, "report", "--json", str(p))
     assert code == 0, err
     r = json.loads(out)

@@ -204,11 +204,14 @@ def test_apartment_case_states_the_assumption_and_options():
     site = load_site_text(text, "flat.toml")
     result = plan_layouts(site, best=2)
     notes = " ".join(result["apartment"])
-    assert "assumption" in notes.lower() and "floor slab (9.0 m above the street)" in notes
+    # no outline of the block is given: one is assumed behind the rail (the report does the same), of the
+    # structure [plan.balcony] names, and the notes say so
+    assert "assumed" in notes and "reinforced concrete (from [plan.balcony])" in notes
     assert "Never gas piping" in notes and "licensed electrician" in notes and "plastic section" in notes
     assert "ITU-R P.372" in notes
-    # heights reckoned from the slab: a rail 1 m above it gives an effective height near 1 m, not near 10 m
-    assert result["layouts"][0]["effective_height_m"] < 2.0
+    # the rail wire is reckoned in the field the block leaves: a few metres of effective height, not near 10 m
+    # (common practice: 10-30 dB below open ground beside a concrete facade)
+    assert result["layouts"][0]["effective_height_m"] < 3.0
 
 
 def test_code_table_minimum_sizes():

@@ -975,14 +975,16 @@ def apartment_notes(site, plan, frequency) -> list[str]:
 
     out = []
     b = plan.balcony
-    body = building_of(site)[0]
+    body, described = building_of(site)
     if body is not None:
         lo, nom, hi = body.shielding
-        out.append(f"Structure {body.construction} (from the site's building): taken as a grounded conductor beside "
+        source = "assumed, as the report says" if described.source == "supports" else "from the site's building"
+        out.append(f"Structure {body.construction} ({source}): taken as a grounded conductor beside "
                    f"the wire, screening {100 * nom:.0f} % of the way from open ground to a perfect metal wall "
                    f"({100 * lo:.0f}-{100 * hi:.0f} %). Every layout here is reckoned in the field the building leaves "
                    "at its supports, the same model as 'aerial report'; a wire held further out from the facade "
                    "picks up more.")
+        out += list(described.assumed if described.source == "supports" else [])
     elif b is None:
         out.append("Structure: not described ([plan.balcony] is missing), so heights are taken above the street. "
                    "In a reinforced-concrete or steel-framed building that is optimistic: the figure may be far lower.")

@@ -228,17 +228,21 @@ def _from_supports(r: TableReader, site: Site) -> SiteBuilding | None:
     if all(outline.contains(Point(p[0], p[1])) and p[2] <= height for p in pts):
         return None
     kinds = sorted({k for k, *_ in found})
-    floor = None
-    if np.any(rails):
+    floor = _plan_floor(site)
+    if floor is None and np.any(rails):
         floor = max(0.0, min(h for k, _, _, h in found if k == "balcony rail") - INFERRED_RAIL_HEIGHT_M)
+    balcony = (site.plan or {}).get("balcony") if isinstance(site.plan, dict) else None
+    structure = balcony.get("structure", "unknown") if isinstance(balcony, dict) else "unknown"
+    structure = structure if structure in STRUCTURES else "unknown"
     tall = "its roof at the support" if roof_only else "one storey above the highest support"
+    made = ("its construction unknown (anything from timber, which hardly screens, to a steel frame, which screens "
+            "almost completely)" if structure == "unknown" else f"its construction {structure} (from [plan.balcony])")
     said = (f"No [building] is described, so one is assumed from the {' and '.join(kinds)} support"
             f"{'s' if len(found) > 1 else ''}: a facade {float(np.min(reach)) - face:.1f} m behind the nearest "
-            f"wire, {height:.0f} m tall ({tall}), {hi - lo:.0f} m wide and {INFERRED_DEPTH_M:.0f} m deep, its "
-            "construction unknown (anything from timber, which hardly screens, to a steel frame, which screens "
-            "almost completely). Describe it in [building] for a firmer figure.")
-    return SiteBuilding(tuple(map(tuple, np.asarray(outline.exterior.coords)[:-1])), float(height), "unknown", floor,
-                        None, "supports", (said,))
+            f"wire, {height:.0f} m tall ({tall}), {hi - lo:.0f} m wide and {INFERRED_DEPTH_M:.0f} m deep, {made}. "
+            "Describe it in [building] for a firmer figure.")
+    return SiteBuilding(tuple(map(tuple, np.asarray(outline.exterior.coords)[:-1])), float(height), structure,
+                        floor, None, "supports", (said,))
 
 
 def _plan_floor(site: Site):
