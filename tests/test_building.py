@@ -6,6 +6,7 @@ consistency checks between aerial's own commands, named so).
 
 import json
 import math
+import re
 
 import numpy as np
 import pytest
@@ -182,8 +183,6 @@ def test_balcony_with_ground_access_keeps_the_ground_moves(capsys, tmp_path):
 
 
 def _without_building(path, tmp_path):
-    import re
-
     text = re.sub(r"\n\[building\]\n(.*\n)*?\n", "\n\n", path.read_text(encoding="utf-8"))
     assert "[building]" not in text
     p = tmp_path / f"{path.stem}_no_building.toml"
@@ -261,8 +260,8 @@ def test_full_wave_station_verdicts_use_each_stations_own_bearing(capsys, tmp_pa
         "footprint = [[-6.0, -12.0], [18.0, -12.0], [18.0, 0.0], [-6.0, 0.0]]",
         "footprint = [[-3.0, -8.0], [10.0, -8.0], [10.0, 0.0], [-3.0, 0.0]]")  # a smaller block: quicker
     text = text.replace('height = "21 m"', 'height = "15 m"')
-    text = text.replace('distance = "14 km"\n', 'distance = "14 km"\nbearing = 0\n')
-    text = text.replace('distance = "40 km"\n', 'distance = "40 km"\nbearing = 180\n')
+    text = re.sub(r"\nbearing = 20 .*\n", "\nbearing = 0\n", text)  # straight in front of the facade
+    text = re.sub(r"\nbearing = 200 .*\n", "\nbearing = 180\n", text)  # straight behind the block
     p = tmp_path / "bearings.toml"
     p.write_text(text, encoding="utf-8")
     site = load_site(p)
