@@ -235,3 +235,17 @@ def test_report_names_the_listening_hour(write_site, capsys):
     q = write_site(BASE.format(site_extra='listening_time = "teatime"', station_extra='distance = "600 km"'))
     assert main(["check", str(q)]) == 2
     assert "site.listening_time" in capsys.readouterr().err
+
+
+def test_polar_night_and_midnight_sun_keep_the_listening_hour_sensible():
+    # common practice: at 70° N there is no sunset at midwinter and no darkness at midsummer
+    dark = _site('latitude = 70\nlongitude = 20\nutc_offset = 1\ndate = "2026-12-21"\nlistening_time = "evening"',
+                 'distance = "800 km"\nbearing = 90')
+    moment = night.listening_moment(dark)
+    assert moment["label"].startswith("evening, polar night at the site (20:00 local time")
+    sky = night.sky_wave(dark, dark.stations[0])
+    assert sky["hourly_loss_db"] == 0.0 and sky["field_v_per_m"] > 0
+    light = _site('latitude = 70\nlongitude = 20\nutc_offset = 1\ndate = "2026-06-21"\nlistening_time = "midnight"',
+                  'distance = "800 km"\nbearing = 90')
+    sky = night.sky_wave(light, light.stations[0])
+    assert sky["daylight_at_midpoint"] and sky["field_v_per_m"] == 0.0

@@ -65,6 +65,10 @@ SEASON_DAY_NORTH = {"winter": 15, "spring": 105, "summer": 196, "autumn": 288}
 ASSUMED_NAMED_HOURS = {"evening": (2.0, -10.0, 20.0), "midnight": (6.0, -6.0, 0.0), "before dawn": (11.0, -1.0, 5.0)}
 
 
+#: Local clock hours for "evening" and "before dawn" where the sun neither sets nor rises. [h]
+POLAR_CLOCK_HOURS = {"evening": 20.0, "before dawn": 5.0}
+
+
 def _day_of_year(site) -> tuple[int, str]:
     """(day of the year, how it was found) for the sun's times."""
     if site.day_of_year is not None:
@@ -74,7 +78,7 @@ def _day_of_year(site) -> tuple[int, str]:
         if (site.latitude_deg or 0.0) < 0:
             day = (day + 182) % 365 or 365
         return day, f"mid-{site.season}"
-    return 80, "the March equinox (no date or season given)"
+    return 80, "the March equinox: no date or season given"
 
 
 def _utc_offset(site) -> tuple[float, str]:
@@ -113,21 +117,25 @@ def listening_moment(site) -> dict:
     day, from_what = _day_of_year(site)
     offset, offset_note = _utc_offset(site)
     t = sun.sun_times(day, site.latitude_deg, site.longitude_deg)
-    if when == "evening":
+    polar = str(t.polar)
+    words = {"evening": "evening, two hours after sunset", "before dawn": "before dawn, an hour before sunrise",
+             "midnight": "midnight"}.get(when)
+    if polar and when in POLAR_CLOCK_HOURS:  # no sunset or sunrise to count from: a clock hour instead
+        utc = POLAR_CLOCK_HOURS[when] - offset
+        words = f"{when}, {polar} at the site"
+    elif when == "evening":
         utc = float(t.sunset_utc_h) + 2.0
     elif when == "before dawn":
         utc = float(t.sunrise_utc_h) - 1.0
     else:
         utc = (site.listening_hour or 0.0) - offset
     local = (utc + offset) % 24.0
-    words = {"evening": "evening, two hours after sunset", "before dawn": "before dawn, an hour before sunrise",
-             "midnight": "midnight"}.get(when)
-    label = f"{words} ({_clock(local)} local time, {from_what})" if words else f"{_clock(local)} local time ({from_what})"
+    label = f"{words} ({_clock(local)} local time, {from_what})" if words else f"{_clock(local)} local time, {from_what}"
     out.update(utc_h=utc % 24.0, local_h=local, day_of_year=day, label=label)
     if offset_note:
         out["notes"].append("Listening hour: " + offset_note + ".")
-    if str(t.polar) != "":
-        out["notes"].append(f"At the site's latitude on {from_what} there is {t.polar}.")
+    if polar:
+        out["notes"].append(f"At the site's latitude on {from_what} there is {polar}.")
     return out
 
 

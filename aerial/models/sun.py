@@ -168,7 +168,7 @@ def sun_times(day_of_year, latitude_deg, longitude_deg) -> SunTimes:
     rise = (720.0 - 4.0 * (lon + h) - eot) / 60.0
     sett = (720.0 - 4.0 * (lon - h) - eot) / 60.0
     polar = np.where(cos_h > 1.0, "polar night", np.where(cos_h < -1.0, "midnight sun", ""))
-    night = 24.0 - (sett - rise)
+    night = np.where(cos_h > 1.0, 24.0, np.where(cos_h < -1.0, 0.0, 24.0 - (sett - rise)))
     return SunTimes(rise, sett, night, polar)
 
 

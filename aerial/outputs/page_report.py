@@ -365,7 +365,7 @@ def _station_reasons(s) -> list[str]:
         sky = night.get("sky_wave_field_v_per_m")
         out.append(f"{name} by night: {night['reason']}" + (f" (sky wave {eng(sky, 'V/m')}" if sky else "")
                    + (", fading" if sky and night.get("fading") else "") + (")" if sky else "")
-                   + (" (no sky wave yet: daylight at the path's midpoint)" if night.get("sky_wave_in_daylight") else ""))
+                   + (" (no sky wave: daylight at the path's midpoint)" if night.get("sky_wave_in_daylight") else ""))
     return out
 
 

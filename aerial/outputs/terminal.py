@@ -817,7 +817,7 @@ def _render_stations(stations, console, L: Lengths) -> None:
             sky = night.get("sky_wave_field_v_per_m")
             console.print(f"  {escape(s.get('name', ''))} by night: {escape(L.text(night['reason']))}"
                           + (f" (sky wave {eng(sky, 'V/m')})" if sky else "")
-                          + (" (the sky wave has not yet come in: daylight at the path's midpoint)"
+                          + (" (no sky wave: daylight at the path's midpoint)"
                              if night.get("sky_wave_in_daylight") else ""))
 
 
