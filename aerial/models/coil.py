@@ -31,7 +31,6 @@ from dataclasses import dataclass
 
 import numpy as np
 from aerial.core.constants import MU_0 as mu_0
-from scipy.special import ellipe, ellipk, ive
 
 from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _positive
@@ -94,6 +93,8 @@ def nagaoka_coefficient(length_to_diameter):
     >>> round(float(nagaoka_coefficient(1.0)), 4)
     0.6884
     """
+    from scipy.special import ellipe, ellipk  # imported here: `aerial check` then never loads scipy.special
+
     x = _positive("length_to_diameter", length_to_diameter)
     m = 1.0 / (1.0 + x**2)  # k²
     k = np.sqrt(m)
@@ -380,6 +381,8 @@ def isolated_wire_ac_factor(wire_diameter, frequency, resistivity=COPPER_RESISTI
     >>> round(float(isolated_wire_ac_factor(1.628e-3, 1e6)), 1)
     6.4
     """
+    from scipy.special import ive  # imported here, as in nagaoka_coefficient
+
     a = _positive("wire_diameter", wire_diameter) / 2.0
     delta = skin_depth(frequency, resistivity)
     ga = (1.0 + 1.0j) * a / delta

@@ -1,0 +1,48 @@
+"""What a command loads: the quick commands stay clear of the slow-to-import libraries.
+
+Import costs themselves are measured in benchmarks/bench_speed.py (docs/performance.md), not
+here; these tests only check which modules a fresh process has loaded after the command.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import subprocess
+import sys
+
+from .conftest import ROOT
+
+PROBE = """
+import contextlib, io, json, sys
+from aerial.cli import main
+with contextlib.redirect_stdout(io.StringIO()):
+    code = main(sys.argv[1:])
+print(json.dumps({"code": code, "loaded": sorted(m for m in sys.modules if m.startswith("scipy."))}))
+"""
+
+
+def _loaded(*argv):
+    env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    proc = subprocess.run([sys.executable, "-c", PROBE, *argv], capture_output=True, text=True, env=env, cwd=ROOT,
+                          timeout=120)
+    assert proc.returncode == 0, proc.stderr
+    return json.loads(proc.stdout.strip().splitlines()[-1])
+
+
+def test_check_loads_no_scipy_special_constants_or_optimize():
+    # consistency check: validating a site needs none of these (scipy.special alone costs about as much
+    # as importing numpy, scipy, shapely and rich together)
+    out = _loaded("check", str(ROOT / "site_examples" / "backyard_inverted_l.toml"), "--json")
+    assert out["code"] == 0
+    for heavy in ("scipy.special", "scipy.constants", "scipy.optimize", "scipy.linalg", "scipy.sparse"):
+        assert heavy not in out["loaded"], heavy
+
+
+def test_closed_form_report_loads_no_scipy_constants_optimize_or_linalg():
+    # consistency check: a closed-form report needs scipy.special only
+    out = _loaded("report", str(ROOT / "site_examples" / "backyard_inverted_l.toml"), "--json")
+    assert out["code"] == 0
+    assert "scipy.special" in out["loaded"]
+    for heavy in ("scipy.constants", "scipy.optimize", "scipy.sparse"):
+        assert heavy not in out["loaded"], heavy
