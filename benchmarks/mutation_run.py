@@ -134,6 +134,12 @@ MUTANTS = (
       ("tests/test_clearance.py",), "power-line fall zone 1.5 h → 1.25 h"),
     M("span-150ft", "aerial/planner/codes.py", "SPAN_LIMITS_M = (10.668, 45.72)", "SPAN_LIMITS_M = (10.668, 60.96)",
       ("tests/test_planner.py",), "NFPA 70 810.16(A) span boundary 150 ft → 200 ft"),
+    M("arrival-phase", "aerial/models/fullwave_reception.py", "phase = np.exp(1j * k[:, None, None]",
+      "phase = np.exp(-1j * k[:, None, None]", ("tests/test_building_grid.py",),
+      "received wave's phase reversed (a station in front of the facade taken as behind it)"),
+    M("grid-radius", "aerial/models/building.py", "return np.asarray(mesh, dtype=float) / (4.0 * np.pi)",
+      "return np.asarray(mesh, dtype=float) / (40.0 * np.pi)", ("tests/test_building_grid.py",),
+      "building grid wires ten times thinner than the equal-area rule"),
     M("lead-in-600mm", "aerial/planner/codes.py", "LEAD_IN_CLEARANCE_M = (0.6, 3.0)", "LEAD_IN_CLEARANCE_M = (0.5, 3.0)",
       ("tests/test_planner.py",), "NFPA 70 810.18(A) lead-in clearance 600 → 500 mm"),
 )
