@@ -284,3 +284,20 @@ def test_full_wave_station_verdicts_use_each_stations_own_bearing(capsys, tmp_pa
     code, out, err = run(capsys, "report", "--json", "--step", "1 MHz", str(p))
     assert code == 0, err
     assert not any(st["effective_height_by_bearing"] for st in json.loads(out)["stations"])
+
+
+def test_layout_full_wave_check_solves_the_building_too(capsys, tmp_path):
+    # Consistency check through the command line: `aerial layout --full-wave` solves the winner beside the block
+    # as `aerial report --full-wave` does (the building as a wire grid), so its effective height is within 3 dB
+    # of the layout's closed form, not the open-ground figure several times larger.
+    text = HIGH.read_text(encoding="utf-8").replace(
+        "footprint = [[-6.0, -12.0], [18.0, -12.0], [18.0, 0.0], [-6.0, 0.0]]",
+        "footprint = [[-3.0, -8.0], [10.0, -8.0], [10.0, 0.0], [-3.0, 0.0]]")  # a smaller block: quicker
+    p = tmp_path / "small_block.toml"
+    p.write_text(text.replace('height = "21 m"', 'height = "15 m"'), encoding="utf-8")
+    code, out, err = run(capsys, "layout", "--json", "--full-wave", "--best", "1", str(p))
+    assert code == 0, err
+    fw = json.loads(out)["full_wave"]
+    assert "wire grid" in fw["note"]
+    for a, b in zip(fw["effective_height_m"], fw["closed_form_effective_height_m"]):
+        assert abs(20 * math.log10(a / b)) < 3.0

@@ -618,7 +618,7 @@ def plan_layouts(site, best=5, full_wave=False, draw=None, allow_large=False, pr
     result = _result(site, plan, ctx, objective, total, tally, layouts, warnings)
     result["screening_difference_db"] = screening_error_db
     if layouts:
-        _winner_extras(result, site, plan, ctx, objective, full_wave, warnings, progress)
+        _winner_extras(result, site, plan, ctx, objective, full_wave, warnings, progress, allow_large=allow_large)
     if draw is not None:
         result["picture"] = _draw(draw, site, plan, ctx, layouts)
     return result
@@ -789,7 +789,7 @@ def _result(site, plan, ctx, objective, total, tally, layouts, warnings) -> dict
     }
 
 
-def _winner_extras(result, site, plan, ctx, objective, full_wave, warnings, progress) -> None:
+def _winner_extras(result, site, plan, ctx, objective, full_wave, warnings, progress, allow_large=False) -> None:
     """The code checklist for the top-ranked layout, and its full-wave check when asked."""
     from aerial.estimate.assemble import stage
     from aerial.planner.codes import LayoutFacts, code_checklist
@@ -802,7 +802,7 @@ def _winner_extras(result, site, plan, ctx, objective, full_wave, warnings, prog
     result["code_checklist"] = code_checklist(site, plan, facts)
     if full_wave:
         stage(progress, "full-wave check of the winner")
-        result["full_wave"] = _refine(site, ctx, win, objective)
+        result["full_wave"] = _refine(site, ctx, win, objective, allow_large=allow_large)
         warnings.append("Full-wave check: " + result["full_wave"]["note"])
 
 
@@ -930,8 +930,13 @@ def _explain(ctx: _Context, layouts: list) -> None:
         lay["reason"] = "; ".join(reason)
 
 
-def _refine(site, ctx: _Context, win: dict, objective: dict) -> dict:
-    """Solve the winner with the full-wave wire solver when it is present; otherwise say so."""
+def _refine(site, ctx: _Context, win: dict, objective: dict, allow_large: bool = False) -> dict:
+    """Solve the winner with the full-wave wire solver when it is present; otherwise say so.
+
+    Beside a building the grid is solved as ``aerial report --full-wave``
+    does, refused (ResourceLimit) past the time and memory budget unless
+    ``allow_large``.
+    """
     try:
         from aerial.models.fullwave import solve_full_wave
     except ImportError:
@@ -944,11 +949,14 @@ def _refine(site, ctx: _Context, win: dict, objective: dict) -> dict:
     entry = (ctx.ex, ctx.ey, ctx.eh)
     wires = planned_wires(site, win, ctx.size, entry)
     earth = float(objective["earth_ohm"])
-    geo = resolve(planned_site(site, wires, entry), electrode_ohm=earth, wires=wires)
+    planned = planned_site(site, wires, entry)
+    geo = resolve(planned, electrode_ohm=earth, wires=wires)
     freqs = np.asarray(objective["frequency_hz"], dtype=float)
+    closed = np.asarray(win["effective_height_by_frequency_m"])
+    if geo.building is not None:
+        return _refine_beside_the_building(planned, geo, freqs, earth, closed, allow_large)
     res = solve_full_wave(geo.segments, freqs)
     he = np.abs(np.asarray(res.effective_height))
-    closed = np.asarray(win["effective_height_by_frequency_m"])
     return {
         "available": True,
         "frequencies_hz": [float(v) for v in freqs],
@@ -963,6 +971,34 @@ def _refine(site, ctx: _Context, win: dict, objective: dict) -> dict:
         "note": (f"the top-ranked layout solved with the full-wave wire solver ({res.model}); effective height "
                  + ", ".join(f"{a:.2f} m (closed form {b:.2f} m)" for a, b in zip(he, closed))
                  + ("" if res.converged else "; NOT converged within the solver's tolerance")),
+    }
+
+
+def _refine_beside_the_building(planned, geo, freqs, earth, closed, allow_large: bool) -> dict:
+    """The winner solved with the building as a grounded wire grid, as ``aerial report --full-wave`` does."""
+    from aerial.estimate.fullwave_sweep import building_full_wave_response
+
+    out = building_full_wave_response(planned, geo, freqs, earth, allow_large=allow_large)
+    he = np.asarray(out["effective_height_m"], float)
+    rr = np.asarray(out["radiation_resistance_ohm"], float)
+    conv = out["convergence"]
+    converged = bool(conv["converged"]) and conv.get("relative_change_with_building", 0.0) <= conv["tolerance"]
+    return {
+        "available": True,
+        "frequencies_hz": [float(v) for v in freqs],
+        "effective_height_m": [float(v) for v in he],
+        "closed_form_effective_height_m": [float(v) for v in closed],
+        "radiation_resistance_ohm": [float(v) for v in rr],
+        "resistance_ohm": [float(v) for v in rr + np.asarray(out["conductor_loss_ohm"], float)
+                           + np.asarray(out["ground_loss_ohm"], float)],
+        "reactance_ohm": [float(v) for v in np.asarray(out["reactance_ohm"], float)],
+        "converged": converged,
+        "convergence": float(max(conv["relative_change"], conv.get("relative_change_with_building", 0.0))),
+        "solver_warnings": [str(w) for w in out["warnings"]],
+        "note": (f"the top-ranked layout solved with the full-wave wire solver and the building as a grounded wire "
+                 f"grid ({out['model']}); effective height (the middle of the worst and best bearing) "
+                 + ", ".join(f"{a:.2f} m (closed form {b:.2f} m)" for a, b in zip(he, closed))
+                 + ("" if converged else "; NOT converged within the solver's tolerance")),
     }
 
 
