@@ -354,11 +354,13 @@ def _potential_matrix(points, seg_start, seg_end, radius):
     d = np.asarray(seg_end, dtype=float) - a0
     L = np.sqrt(_dot3(d, d))
     u = d / L[:, None]
-    w = [p[:, None, k] - a0[None, :, k] for k in range(3)]
-    z = w[0] * u[:, 0]
-    t = w[1] * u[:, 1]
+    pc, ac = np.ascontiguousarray(p.T), np.ascontiguousarray(a0.T)  # one coordinate per row: unit-stride planes
+    w = [pc[k][:, None] - ac[k][None, :] for k in range(3)]
+    uc = np.ascontiguousarray(u.T)
+    z = w[0] * uc[0]
+    t = w[1] * uc[1]
     z += t
-    np.multiply(w[2], u[:, 2], out=t)
+    np.multiply(w[2], uc[2], out=t)
     z += t
     rho2 = w[0] * w[0]
     np.multiply(w[1], w[1], out=t)
