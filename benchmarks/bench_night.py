@@ -53,11 +53,13 @@ bearing = {36 * i}
 """ for i in range(10))
 
 
-def _day_only(site, f, r, x, rr, he, parts):
+def _day_only(site, f, r, x, rr, he, parts, own=None):
+    """The station step as it would be by day alone: one assessment, ground wave, man-made noise."""
     from aerial.estimate import reception
 
+    own = [None] * len(site.stations) if own is None else own
     st = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
-                            s.soil.conductivity_s_m) for s in site.stations]
+                            s.soil.conductivity_s_m, effective_height_m=h) for s, h in zip(site.stations, own)]
     return reception.assess_stations(f, r, x, rr, he, parts, st, noise_category=site.noise.replace("-", " ")), []
 
 
