@@ -111,7 +111,7 @@ def _output_options(progress: bool) -> argparse.ArgumentParser:
                         "by row, never cut")
     o.add_argument("--units", choices=UNIT_SYSTEMS, default="si",
                    help="lengths in the report and the plan drawing: si (metres) or us (feet and inches, station "
-                        "distances in miles); --json stays SI")
+                        "distances in miles; the report's what-if steps in round feet); --json stays SI")
     if progress:
         o.add_argument("--quiet", action="store_true",
                        help="no progress on stderr (by default a bar on a terminal, else a line per stage)")
@@ -335,7 +335,7 @@ def cmd_report(args) -> int:
         result = run_report(args.site, full_wave=args.full_wave, step_hz=step, progress=update,
                             pictures=args.pictures, force=args.force,
                             ground=_ground_option(args), allow_large=args.allow_large,
-                            page=args.page)
+                            page=args.page, units="si" if args.json else args.units)  # JSON: the SI steps always
     _note_page(result)
     return _render(args, result, "render_report")
 

@@ -11,8 +11,7 @@ import re
 import numpy as np
 import pytest
 
-
-from .conftest import ROOT, one_line, run
+from .conftest import EXAMPLES, ROOT, one_line, run
 
 HIGH = ROOT / "site_examples" / "high_floor_flat.toml"
 BALCONY = ROOT / "site_examples" / "balcony_water_pipe.toml"
@@ -47,22 +46,52 @@ def test_report_json_carries_the_building_and_its_range(capsys):
     assert lo <= r["aerial"]["effective_height_m"][0] * 1.5 and hi >= hi_shield * 0.9
 
 
-def test_layout_and_report_agree_on_the_present_wire(capsys):
-    # consistency check between aerial's own commands: the same model, within 0.5 dB
-    code, out, err = run(capsys, "report", "--json", str(BALCONY))
+PLANNED = [p for p in EXAMPLES if "\n[plan]" in p.read_text(encoding="utf-8")]
+
+
+def _three_figures(x: float) -> str:
+    return f"{x:.3g}"
+
+
+@pytest.mark.parametrize("example", PLANNED, ids=[p.stem for p in PLANNED])
+def test_layout_and_report_agree_on_the_present_wire(capsys, example):
+    # consistency check between aerial's own commands: the present wire by one model, one earth treatment,
+    # one building screening and one frequency, so the same figures to three significant figures
+    code, out, err = run(capsys, "report", "--json", example)
     assert code == 0, err
     report = json.loads(out)
-    code, out, err = run(capsys, "layout", "--json", str(BALCONY))
+    code, out, err = run(capsys, "layout", "--json", example)
     assert code == 0, err
-    layout = json.loads(out)
-    f = layout["ranking_frequencies_hz"][0]
-    freqs = report["frequencies_hz"]
-    i = min(range(len(freqs)), key=lambda k: abs(freqs[k] - f))
-    he_report = report["aerial"]["effective_height_m"][i]
-    he_layout = layout["present_wire"]["effective_height_m"]
-    assert abs(20 * math.log10(he_layout / he_report)) < 0.5
-    code, out, err = run(capsys, "layout", str(BALCONY))
-    assert "your present wire" in " ".join(out.replace("│", " ").split())
+    present = json.loads(out)["present_wire"]
+    f = present["figures_at_hz"]
+    assert f == report["earth"]["centre_frequency_hz"]  # the report's what-if, earth and loss-budget frequency
+    i = report["frequencies_hz"].index(f)
+    a = report["aerial"]
+    pairs = {"effective_height_m": a["effective_height_m"][i], "capacitance_f": a["capacitance_f"][i],
+             "radiation_resistance_ohm": a["radiation_resistance_ohm"][i],
+             "conductor_loss_ohm": a["conductor_loss_ohm"][i], "earth_resistance_ohm": a["ground_loss_ohm"][i],
+             "available_power_w": a["available_power_w"][i]}
+    for key, in_report in pairs.items():
+        assert _three_figures(present[key]) == _three_figures(in_report), key
+    row = report["what_if"][0]  # "as described"
+    assert _three_figures(present["effective_height_m"]) == _three_figures(row["effective_height_m"])
+    assert _three_figures(present["loss_resistance_ohm"]) == _three_figures(row["loss_resistance_ohm"])
+    assert abs(20 * math.log10(present["effective_height_m"] / a["effective_height_m"][i])) < 0.5
+
+
+def test_a_layout_on_the_present_supports_is_the_present_wire(capsys):
+    # consistency check: the backyard's own inverted-L is one of its candidate layouts, and shows the same figures
+    code, out, err = run(capsys, "layout", "--json", BACKYARD)
+    assert code == 0, err
+    result = json.loads(out)
+    same = next(x for x in result["layouts"] if x["family"] == "span" and set(x["supports"]) == {"eave", "walnut"})
+    present = result["present_wire"]
+    for key in ("effective_height_m", "capacitance_f", "earth_resistance_ohm", "available_power_w", "score"):
+        assert same[key] == pytest.approx(present[key], rel=1e-9), key
+    code, out, err = run(capsys, "layout", BACKYARD)
+    flat = " ".join(out.replace("│", " ").split())
+    assert f"your present wire, as 'aerial report' figures it at 940 kHz: h_e {present['effective_height_m']:.3g} m" \
+        in flat
 
 
 def test_timber_house_moves_the_backyard_figures_only_within_its_range(capsys):

@@ -186,14 +186,17 @@ def test_a_layout_and_the_report_of_the_same_wire_agree(capsys, tmp_path):
     assert code == 0
     result = json.loads(out)
     lay = next(x for x in result["layouts"] if x["family"] == "span")  # inverted-L: tree to house, lead-in at house
-    assert lay["supports"] == ["tree", "house"] and lay["figures_at_hz"] == 1e6
+    assert lay["supports"] == ["tree", "house"]
     code, out, _ = run(capsys, "report", site, "--json")
     assert code == 0
     rep = json.loads(out)
-    i = rep["frequencies_hz"].index(1e6)
-    # consistency check: the same wire, the same model -> the same figures (0.5 dB on h_e, 3 % on C)
-    assert lay["effective_height_m"] == pytest.approx(rep["aerial"]["effective_height_m"][i], rel=0.06)
-    assert lay["capacitance_f"] == pytest.approx(rep["aerial"]["capacitance_f"][i], rel=0.03)
+    assert lay["figures_at_hz"] == rep["earth"]["centre_frequency_hz"]  # the report's what-if and earth frequency
+    i = rep["frequencies_hz"].index(lay["figures_at_hz"])
+    # consistency check: the same wire, the same model, the same earth -> the same figures
+    assert lay["effective_height_m"] == pytest.approx(rep["aerial"]["effective_height_m"][i], rel=1e-9)
+    assert lay["capacitance_f"] == pytest.approx(rep["aerial"]["capacitance_f"][i], rel=1e-9)
+    assert lay["earth_resistance_ohm"] == pytest.approx(rep["aerial"]["ground_loss_ohm"][i], rel=1e-9)
+    assert lay["score"] == pytest.approx(result["present_wire"]["score"], abs=1e-9)
     assert "closed forms of 'aerial report'" in lay["figures_model"]
     # the screening figures stay visible beside them
     assert set(lay["screening"]) == {"effective_height_m", "capacitance_f", "score"}

@@ -41,6 +41,14 @@ WHAT_IF_STAND_OFF_M = 2.0
 WHAT_IF_COUNTERPOISE_DROP_M = 1.0
 #: The far-edge move is offered when it takes part of the wire at least this much further from the facade. [m]
 WHAT_IF_FAR_EDGE_MIN_GAIN_M = 0.3
+#: Exact by definition (NIST SP 811). [m]
+FOOT_M = 0.3048
+#: The what-if steps in round figures of each unit system (raise, extend, stand-off, radial length), in metres:
+#: under "us" 10 ft, 30 ft, 6 ft and 30 ft, so the table offers what a tape in feet measures. [m]
+WHAT_IF_STEPS_M = {
+    "si": {"raise": WHAT_IF_RAISE_M, "extend": WHAT_IF_EXTEND_M, "stand_off": WHAT_IF_STAND_OFF_M, "radial": 10.0},
+    "us": {"raise": 10 * FOOT_M, "extend": 30 * FOOT_M, "stand_off": 6 * FOOT_M, "radial": 30 * FOOT_M},
+}
 
 
 def frequency_grid(site, step_hz: float | None = None) -> np.ndarray:
@@ -299,7 +307,7 @@ HEADLINE_KEYS = ("capacitance_f", "effective_height_m", "loss_resistance_ohm", "
 
 
 def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-form", ground="perfect", progress=None,
-              lumped_ohm=None, shielding_case: int = 1):
+              lumped_ohm=None, shielding_case: int = 1, raw: bool = False):
     """Headline figures of ``wires`` at ``frequency`` by one model. Returns arrays over frequency.
 
     ``earth_ohm``: the earth system's resistance, one value or one per
@@ -310,7 +318,8 @@ def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-fo
     ``like``: the nominal wires' :class:`~aerial.models.shapes.AerialShape`;
     the closed forms then model the moved wires as that shape
     (:func:`aerial.models.shapes.measure_like`), so that a tolerance run uses
-    the nominal figure's model.
+    the nominal figure's model. ``raw``: the model's own result under
+    ``response`` too.
     """
     f = np.atleast_1d(np.asarray(frequency, float))
     earth_f = np.broadcast_to(np.asarray(earth_ohm, float), f.shape).copy()
@@ -335,7 +344,8 @@ def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-fo
     rr = np.asarray(r["radiation_resistance_ohm"], float)
     rt = rr + np.asarray(r["conductor_loss_ohm"], float) + rg
     voc = site.field_strength_v_per_m * np.asarray(r["effective_height_m"], float)
-    return {
+    out = {"response": r} if raw else {}
+    return out | {
         "capacitance_f": np.asarray(r["capacitance_f"], float),
         "effective_height_m": np.asarray(r["effective_height_m"], float),
         "loss_resistance_ohm": rt - rr,
@@ -368,15 +378,46 @@ def _full_wave_ranges_fit(site, frequency, main_frequency, allow_large: bool) ->
     return main + extra <= TIME_BUDGET_S
 
 
-def headline_figures(site, frequency, earth_ohm: float) -> dict:
-    """The report's headline figures of the site's own wire at some frequencies, radiation resistance included."""
-    from aerial.models.closed_form import closed_form_response
+def headline_figures(site, frequency, earth_ohm=None, wires=None) -> dict:
+    """The report's headline figures of some wires at some frequencies, by the report's own model.
 
-    geo = resolve(site)
-    r = closed_form_response(geo.segments, np.atleast_1d(frequency), building=geo.building)
-    out = _headline(site, site.wires, frequency, earth_ohm)
-    out["radiation_resistance_ohm"] = np.asarray(r["radiation_resistance_ohm"])
+    Parameters
+    ----------
+    site : Site
+        The site (its building, receiver and soil are used).
+    frequency : array_like
+        [Hz]
+    earth_ohm : float or array_like, optional
+        The earth system's resistance at each frequency [ohm]; default: the
+        report's, the electrodes as lossy lines in the soil
+        (:func:`earth_at_frequency`).
+    wires : list of WireRun, optional
+        Default: the site's own wires.
+
+    Returns
+    -------
+    dict
+        Arrays over ``frequency``: the keys of the report's headline figures
+        plus ``radiation_resistance_ohm``, ``conductor_loss_ohm`` [ohm] and
+        ``static_capacitance_f`` [F]; ``shape`` (str) and ``reliable`` (bool).
+    """
+    f = np.atleast_1d(np.asarray(frequency, float))
+    if earth_ohm is None:
+        earth_ohm = earth_at_frequency(site, f)["impedance_ohm"].real
+    out = _headline(site, site.wires if wires is None else wires, f, earth_ohm, raw=True)
+    r = out.pop("response")
+    out["radiation_resistance_ohm"] = np.asarray(r["radiation_resistance_ohm"], float)
+    out["conductor_loss_ohm"] = np.asarray(r["conductor_loss_ohm"], float)
+    out["static_capacitance_f"] = np.broadcast_to(np.asarray(r["static_capacitance_f"], float), f.shape).copy()
+    out["shape"] = r["shape"]["kind"]
+    out["reliable"] = bool(np.all(r["reliable"]))
     return out
+
+
+def report_centre_frequency(site, freqs=None) -> float:
+    """The sweep frequency of the report's what-if table, earth table and loss budget. [Hz]"""
+    freqs = frequency_grid(site) if freqs is None else np.asarray(freqs, float)
+    return float(freqs[int(np.argmin(np.abs(freqs - what_if_frequency(site, band_points(site)))))])
 
 
 def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", nominal: dict | None = None,
@@ -446,8 +487,12 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
     return out
 
 
-def what_if(site, frequency: float, earth: dict) -> list[dict]:
+def what_if(site, frequency: float, earth: dict, units: str = "si") -> list[dict]:
     """What raising the wire, lengthening it, or improving the earth buys, at one frequency.
+
+    ``units``: "si" or "us"; the steps are round figures of that system
+    (:data:`WHAT_IF_STEPS_M`: 3 m or 10 ft raised, ...), each computed at
+    that value and labelled in metres (the report converts the words).
 
     A wire on the balcony of a flat whose earth is the building's (a water
     pipe, the protective earth: nothing in the soil the user can reach) gets
@@ -457,19 +502,22 @@ def what_if(site, frequency: float, earth: dict) -> list[dict]:
     """
     from aerial.estimate import earth as earth_mod
 
+    if units not in WHAT_IF_STEPS_M:
+        raise ModelInputError(f"'{units}' is not a valid unit system, must be one of 'si', 'us'")
+    step = WHAT_IF_STEPS_M[units]
     r_earth = float(earth_at_frequency(site, [frequency])["impedance_ohm"][0].real)
     base = _headline(site, site.wires, frequency, r_earth)
     rows = [("as described", base)]
     radials_row = better = None
     if not balcony_without_ground_access(site):
-        rows.append((f"raise the wire {WHAT_IF_RAISE_M:g} m",
-                     _headline(site, _perturbed_wires(site, raise_m=WHAT_IF_RAISE_M), frequency, r_earth)))
-        rows.append((f"add {WHAT_IF_EXTEND_M:g} m to the far end",
-                     _headline(site, _perturbed_wires(site, extend_m=WHAT_IF_EXTEND_M), frequency, r_earth)))
-        better = earth_mod.improved_earth(site.electrodes, site.soil, frequency)
+        rows.append((f"raise the wire {step['raise']:g} m",
+                     _headline(site, _perturbed_wires(site, raise_m=step["raise"]), frequency, r_earth)))
+        rows.append((f"add {step['extend']:g} m to the far end",
+                     _headline(site, _perturbed_wires(site, extend_m=step["extend"]), frequency, r_earth)))
+        better = earth_mod.improved_earth(site.electrodes, site.soil, frequency, radial_length_m=step["radial"])
         rows.append((better["description"], _headline(site, site.wires, frequency, better["resistance_ohm"])))
         radials_row = len(rows) - 1
-    rows += _building_moves(site, frequency, r_earth)
+    rows += _building_moves(site, frequency, r_earth, step["stand_off"])
     out = []
     p0 = float(base["available_power_w"][0])
     for label, h in rows:
@@ -533,7 +581,7 @@ def balcony_without_ground_access(site) -> bool:
     return on_a_balcony(site) and not any(e.kind in GROUND_ELECTRODES for e in site.electrodes)
 
 
-def _building_moves(site, frequency, earth_ohm: float) -> list:
+def _building_moves(site, frequency, earth_ohm: float, stand_off_m: float = WHAT_IF_STAND_OFF_M) -> list:
     """What-if rows for a wire on a balcony: held out from the facade, on the rail's far edge, a counterpoise."""
     from aerial.geometry.resolve import building_of
     from aerial.models.building import nearest_facade, plan_distance
@@ -552,15 +600,15 @@ def _building_moves(site, frequency, earth_ohm: float) -> list:
     for w in site.wires:
         if w.role == "aerial":
             p = np.array(w.points_m, float)
-            p[:, :2] += WHAT_IF_STAND_OFF_M * normal[:2]
+            p[:, :2] += stand_off_m * normal[:2]
             w = replace(w, points_m=p)
         elif w.role == "lead-in":
             p = np.array(w.points_m, float)
-            p[0, :2] += WHAT_IF_STAND_OFF_M * normal[:2]  # its top follows the aerial
+            p[0, :2] += stand_off_m * normal[:2]  # its top follows the aerial
             w = replace(w, points_m=p)
         moved.append(w)
     try:
-        rows.append((f"hold the wire {WHAT_IF_STAND_OFF_M:g} m further out (poles on the rail)",
+        rows.append((f"hold the wire {stand_off_m:g} m further out (poles on the rail)",
                      _headline(site, moved, frequency, earth_ohm)))
     except ModelInputError:
         pass
@@ -666,7 +714,7 @@ def _rail_counterpoise(site):
 
 
 def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, progress=None, what_ifs: bool = True,
-            ground: str = "perfect", allow_large: bool = False) -> dict:
+            ground: str = "perfect", allow_large: bool = False, units: str = "si") -> dict:
     """Run the whole chain for a site.
 
     Parameters
@@ -686,6 +734,9 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     allow_large : bool
         Full wave only: run even when the estimated memory or time passes the
         budget (:func:`aerial.estimate.fullwave_sweep.check_full_wave_budget`).
+    units : {"si", "us"}
+        The unit system the what-if steps are round figures of (3 m or
+        10 ft raised, ...); every figure stays SI.
 
     Returns
     -------
@@ -700,9 +751,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     warnings += earth.get("warnings", [])
     earth_rf = earth_at_frequency(site, freqs)
     earth_r = np.asarray(earth_rf["impedance_ohm"].real, float)
-    pts = band_points(site)
-    f_centre = what_if_frequency(site, pts)
-    centre_i = int(np.argmin(np.abs(freqs - f_centre)))
+    centre_i = int(np.argmin(np.abs(freqs - report_centre_frequency(site, freqs))))
     geometry = resolve(site, electrode_ohm=float(earth_r[centre_i]))
     warnings += _open_ground_warnings(site, geometry)
     if ground not in GROUNDS:
@@ -774,7 +823,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     result["ranges"] = ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground,
                                              allow_large=allow_large, progress=progress)
     if what_ifs:
-        result["what_if"] = what_if(site, float(freqs[centre_i]), earth)  # the frequency of the earth table and the ranges
+        result["what_if"] = what_if(site, float(freqs[centre_i]), earth, units)  # the frequency of the earth table and the ranges
 
     from aerial.estimate import receiver as receiver_bridge
 

@@ -7,6 +7,8 @@ electrician decide what is required where the aerial is put up.
 
 from __future__ import annotations
 
+from aerial.models.tank import BLEED_REMEDY
+
 GENERAL_CAUTIONS: tuple[str, ...] = (
     "Lightning: an outdoor wire collects static charge and can be struck. Disconnect the lead-in and connect it "
     "to earth when the receiver is not in use and whenever a storm is near; fit an antenna discharge unit "
@@ -51,8 +53,8 @@ def cautions_for(site) -> list[str]:
         )
     if site.receiver.coupling == "series capacitor":
         out.append(
-            "Series coupling capacitor: the aerial has no DC path to earth and will build up static charge; add a "
-            "bleed resistor (about 1 MΩ) or an RF choke from the aerial terminal to earth."
+            "Series coupling capacitor: the aerial has no DC path to earth and will build up static charge; add "
+            f"{BLEED_REMEDY}."
         )
     return out
 

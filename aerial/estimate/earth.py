@@ -270,8 +270,8 @@ def resistance_bounds(electrodes, soil, frequency, counterpoise_wires=()) -> dic
             "parts_low_ohm": [p.min(axis=0) for p in parts], "parts_high_ohm": [p.max(axis=0) for p in parts]}
 
 
-def improved_earth(electrodes, soil, frequency=None) -> dict:
-    """The what-if earth: the site's electrodes plus eight 10 m buried radials.
+def improved_earth(electrodes, soil, frequency=None, radial_length_m: float | None = None) -> dict:
+    """The what-if earth: the site's electrodes plus eight 10 m buried radials (``radial_length_m`` [m] another length).
 
     With ``frequency`` [Hz] the resistance is the real part of the earth
     system's impedance there (electrodes as lossy lines) and the description
@@ -280,6 +280,7 @@ def improved_earth(electrodes, soil, frequency=None) -> dict:
     from aerial.site.reader import Electrode
 
     n, length, depth = WHAT_IF_RADIALS
+    length = length if radial_length_m is None else float(radial_length_m)
     extra = Electrode("buried_wires", "what-if", n, length, 1.628e-3, 0.0, depth, arrangement="radials")
     out = earth_system(list(electrodes) + [extra], soil)
     out["description"] = f"add {n} buried radials of {length:g} m"

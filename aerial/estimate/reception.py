@@ -34,6 +34,11 @@ from aerial.models import tank as tank_mod
 from aerial.estimate import station_design as sd_mod
 from aerial.estimate import tuned_network as tn_mod
 
+#: Said of a tuning row whose -3 dB edges were not both found: the search of
+#: :func:`aerial.models.network.detector_bandwidth` runs from f/3 to 3f.
+BANDWIDTH_LOWER_BOUND_NOTE = ("a -3 dB edge lies beyond the searched range (from a third of the frequency to three "
+                              "times it): the bandwidth is a lower bound")
+
 #: Unloaded Q assumed for a coil given only by its inductance (assumption; common practice:
 #: a good air-cored MF coil reaches Q of 100-300).
 DEFAULT_COIL_Q = 150.0
@@ -943,7 +948,7 @@ def _table_rows(table_f, arr, warnings, parts) -> list:
             row["reason"] = reason
         row["bandwidth_is_lower_bound"] = bool(arr["wide"][i])
         if arr["wide"][i]:
-            row["bandwidth_note"] = "wider than a third of the frequency either side: the bandwidth is a lower bound"
+            row["bandwidth_note"] = BANDWIDTH_LOWER_BOUND_NOTE
         row["useful_resonance"] = bool(resonates and arr["loaded_q"][i] >= 1.0)
         if arr["loaded_q"][i] < 1.0:
             row["loaded_q_note"] = NO_RESONANCE_NOTE

@@ -42,9 +42,13 @@ ARRANGEMENTS = ("direct", "series capacitor", "coil tap", "separate primary")
 #: Arrangements that leave the aerial with no DC path to earth (static charge builds up).
 NO_DC_PATH_ARRANGEMENTS = ("series capacitor",)
 
+#: The remedy for an aerial with no DC path to earth, in the words every note and caution uses
+#: (100 kΩ to 1 MΩ: common practice, from memory; far above the aerial's reactance at MF, so it does not load the tank).
+BLEED_REMEDY = "a bleed resistor (about 100 kΩ to 1 MΩ) or an RF choke from the aerial terminal to earth"
+
 BLEED_NOTE = (
     "the series capacitor leaves the aerial with no DC path to earth: static charge will build up on it; "
-    "add a bleed resistor (about 100 kΩ to 1 MΩ) or an RF choke from the aerial terminal to earth"
+    f"add {BLEED_REMEDY}"
 )
 
 #: Channel spacings at which adjacent-channel rejection is reported (ITU Regions 1/3 and 2). [Hz]

@@ -305,7 +305,7 @@ def station_design_figure(result):
     rows = design.get("tradeoff") or []
     if not rows:
         return None
-    fig = new_figure(7.0, 4.0)
+    fig = new_figure(7.0, 4.8)
     ax = fig.subplots()
     colours = {"direct": PALETTE["blue"], "coil tap": PALETTE["purple"], "series capacitor": PALETTE["yellow"],
                "separate primary": PALETTE["grey"]}
@@ -335,7 +335,7 @@ def station_design_figure(result):
     ax.set_xlabel(f"rejection {spacing:.0f} kHz away at the wanted stations' centre [dB]")
     ax.set_ylabel("weakest wanted station at the detector [W]")
     ax.set_title("Tuning for the listed stations: signal against selectivity as the taps move")
-    ax.legend(loc="best", fontsize=7)
+    fig.legend(loc="outside lower center", ncols=3, fontsize=7, frameon=False)  # outside the axes: it covers no point
     _axes_style(ax)
     fig.aerial_svg = ("station-design", "Weakest wanted station's detector power against adjacent-channel rejection")
     return fig

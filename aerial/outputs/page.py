@@ -103,7 +103,8 @@ def range_text(pair, unit: str) -> str:
     """ "low – high unit" of a (low, high) pair, or an empty string."""
     if not pair or pair[0] is None or pair[1] is None:
         return ""
-    return f"{eng(pair[0], unit)} – {eng(pair[1], unit)}"
+    lo, hi = eng(pair[0], unit), eng(pair[1], unit)
+    return "no spread" if lo == hi else f"{lo} – {hi}"
 
 
 # --------------------------------------------------------------------------- building blocks

@@ -15,7 +15,8 @@ from aerial.outputs.terminal import eng
 KNOWN_KEYS = {"site", "objective", "score_unit", "ranking_frequencies_hz", "candidates_considered",
               "candidates_refused", "candidates_refused_safety", "excluded", "rules", "layouts", "apartment",
               "code_checklist", "picture", "full_wave", "warnings", "cautions", "page", "refusals", "score_label",
-              "score_meaning", "figures_model", "screening_difference_db"}
+              "score_meaning", "figures_model", "screening_difference_db", "present_wire",
+              "ranking_earth_resistance_ohm"}
 
 #: Which of the planner's rules each exclusion cause applies.
 CAUSE_RULE = {"crosses an obstacle": "obstacles", "crosses a telephone/cable line": "obstacles",
@@ -73,6 +74,12 @@ def _layouts_table(result) -> str:
     if not rows:
         return "<p><strong>No safe layout was found</strong> among the candidate supports: see the causes below.</p>"
     reasons = [f"#{lay['rank']}: {lay['reason']}" for lay in result.get("layouts", []) if lay.get("reason")]
+    present = result.get("present_wire")
+    if present:
+        where = f" at {eng(present['figures_at_hz'], 'Hz')}" if present.get("figures_at_hz") else ""
+        reasons.append(f"your present wire, as 'aerial report' figures it{where}: effective height "
+                       f"{eng(present.get('effective_height_m'), 'm')}, {eng(present.get('capacitance_f'), 'F')}, "
+                       f"score {present.get('score', 0):.1f}" + (f" {unit}" if unit else ""))
     return (table(["rank", "layout", "wire", "top", "lead-in", "effective height", "capacitance",
                    "margin outside the fall zone", f"score [{unit}]" if unit else "score", "flags"], rows,
                   "Best safe layouts, best first", "wide") + bullets(reasons, "reasons"))

@@ -80,7 +80,62 @@ def layout_scene(scene: dict, layouts: list) -> dict:
     return out
 
 
-def _draw_surroundings(ax, scene) -> None:
+def _path_middle(xs, ys):
+    """The point halfway along a polyline (by length)."""
+    xs, ys = np.asarray(xs, float), np.asarray(ys, float)
+    seg = np.hypot(np.diff(xs), np.diff(ys))
+    total = float(seg.sum())
+    if total <= 0:
+        return float(xs[0]), float(ys[0])
+    run = np.concatenate([[0.0], np.cumsum(seg)])
+    return float(np.interp(total / 2, run, xs)), float(np.interp(total / 2, run, ys))
+
+
+def _occupy(ax, xy, text: str, fontsize: float, placed: list | None) -> None:
+    """Add the box of a label centred on data point ``xy`` to ``placed`` (when labels are being kept apart)."""
+    if placed is None:
+        return
+    px, py = ax.transData.transform(xy) * 72.0 / ax.figure.dpi
+    lines = text.split("\n")
+    w, h = 0.6 * fontsize * max(len(t) for t in lines), 1.2 * fontsize * len(lines)
+    placed.append((px - w / 2, py - h / 2, px + w / 2, py + h / 2))
+
+
+def _free_offset(ax, xy, text: str, offset, step: float, placed: list, fontsize: float, ha: str,
+                 both_ways: bool = False) -> tuple:
+    """An offset [pt] for a label at data point ``xy`` that overlaps no label in ``placed``, and its vertical anchor.
+
+    Tried in turn: ``offset``, then moved by ``step`` [pt] at a time (with ``both_ways``, alternately below
+    and above the point, nearest first). Boxes are estimated in points from the text (0.6 em a character,
+    1.2 em a line), so the check holds at any resolution; the axes' limits must be set first. The chosen
+    box is added to ``placed``. Returns ((dx, dy), va).
+    """
+    px, py = ax.transData.transform(xy) * 72.0 / ax.figure.dpi
+    lines = text.split("\n")
+    w = 0.6 * fontsize * max(len(t) for t in lines)
+    h = 1.2 * fontsize * len(lines)
+    dx, dy = offset
+    x0 = px + dx - {"center": w / 2, "right": w}.get(ha, 0.0)
+    tries = []
+    for n in range(12):
+        tries.append((dy + n * step, "top" if step < 0 else "bottom"))
+        if both_ways:
+            tries.append((-dy - n * step, "bottom" if step < 0 else "top"))
+    for ddy, va in tries:
+        y0 = py + ddy - (h if va == "top" else 0.0)
+        box = (x0, y0, x0 + w, y0 + h)
+        if not any(box[0] < b[2] and b[0] < box[2] and box[1] < b[3] and b[1] < box[3] for b in placed):
+            break
+    else:
+        ddy, va = tries[0]
+        y0 = py + ddy - (h if va == "top" else 0.0)
+        box = (x0, y0, x0 + w, y0 + h)
+    placed.append(box)
+    return (dx, ddy), va
+
+
+def _draw_surroundings(ax, scene, placed: list | None = None) -> None:
+    """Zones, lot, buildings, obstacles, lines and supports; ``placed``: label boxes to keep clear of (plan)."""
     from matplotlib.patches import PathPatch, Polygon as MplPolygon
     from matplotlib.path import Path as MplPath
 
@@ -98,11 +153,15 @@ def _draw_surroundings(ax, scene) -> None:
     for b in scene.get("buildings", []):
         ax.add_patch(MplPolygon(b["outline"], closed=True, facecolor="#e8dcc8", edgecolor="#555555"))
         c = np.mean(np.asarray(b["outline"], float), axis=0)
-        ax.text(c[0], c[1], f"{plain_label(b['name'])}\n{b['height_m']:.1f} m", ha="center", va="center", fontsize=6.5)
+        text = f"{plain_label(b['name'])}\n{b['height_m']:.1f} m"
+        ax.text(c[0], c[1], text, ha="center", va="center", fontsize=6.5)
+        _occupy(ax, c, text, 6.5, placed)
     for o in scene.get("obstacles", []):
         ax.add_patch(MplPolygon(o["outline"], closed=True, facecolor="#dddddd", edgecolor="#555555", hatch=".."))
         c = np.mean(np.asarray(o["outline"], float), axis=0)
-        ax.text(c[0], c[1], textwrap.fill(plain_label(o["name"]), 14), ha="center", va="center", fontsize=6.5)
+        text = textwrap.fill(plain_label(o["name"]), 14)
+        ax.text(c[0], c[1], text, ha="center", va="center", fontsize=6.5)
+        _occupy(ax, c, text, 6.5, placed)
     for ln in scene.get("lines", []):
         p = np.asarray(ln["path"], float)
         power = ln["kind"] == "power"
@@ -114,8 +173,14 @@ def _draw_surroundings(ax, scene) -> None:
                     color=PALETTE["black"], fontweight="bold" if power else "normal")
     for sp in scene.get("supports", []):
         ax.plot(sp["x"], sp["y"], marker="^", color=PALETTE["black"], markersize=6, linestyle="none")
-        ax.annotate(f"{plain_label(sp['name'])} {sp['height_m']:.1f} m", (sp["x"], sp["y"]), xytext=(4, -9),
-                    textcoords="offset points", fontsize=6.5)
+        text = f"{plain_label(sp['name'])} {sp['height_m']:.1f} m"
+        # supports at one place, or close: their labels one under another; near the east edge, written leftwards
+        x_lo, x_hi = ax.get_xlim()
+        ha = "right" if placed is not None and sp["x"] > x_lo + 0.7 * (x_hi - x_lo) else "left"
+        start = (-4 if ha == "right" else 4, -3)
+        off, va = ((4, -9), "baseline") if placed is None else \
+            _free_offset(ax, (sp["x"], sp["y"]), text, start, -8, placed, 6.5, ha, both_ways=True)
+        ax.annotate(text, (sp["x"], sp["y"]), xytext=off, textcoords="offset points", fontsize=6.5, ha=ha, va=va)
 
 
 def plan_figure(scene: dict):
@@ -142,11 +207,13 @@ def plan_figure(scene: dict):
     fig = new_figure(left + plot_w + right, bottom + plot_h + top, layout=None)
     W, H = fig.get_size_inches()
     ax = fig.add_axes((left / W, bottom / H, plot_w / W, plot_h / H))
-    _draw_surroundings(ax, scene)
-    _draw_wires(ax, scene, plan=True)
-    ax.set_xlim(x0, x1)
+    ax.set_xlim(x0, x1)  # limits first: the labels are placed clear of one another in points
     ax.set_ylim(y0, y1)
     ax.set_aspect("equal", adjustable="box")
+    ax.apply_aspect()
+    placed: list = []
+    _draw_surroundings(ax, scene, placed)
+    _draw_wires(ax, scene, plan=True, placed=placed)
     ax.set_xlabel("east [m]")
     ax.set_ylabel("north [m] (north is up)")
     ax.set_title("Plan view")
@@ -158,7 +225,7 @@ def plan_figure(scene: dict):
     return fig
 
 
-def _draw_wires(ax, scene, plan: bool, along=None) -> None:
+def _draw_wires(ax, scene, plan: bool, along=None, placed: list | None = None) -> None:
     labelled = set()
     for w in scene["wires"]:
         if not plan and w["kind"] == "other":
@@ -171,9 +238,11 @@ def _draw_wires(ax, scene, plan: bool, along=None) -> None:
         ax.plot(xs, ys, label=None if legend in labelled else legend, **style)
         labelled.add(legend)
         if w["kind"] in ("aerial", "other"):
-            k = len(p) // 2
-            ax.annotate(plain_label(w["label"]), xy=(xs[k], ys[k]), xytext=(0, 6 if plan else 8),
-                        textcoords="offset points", ha="center", fontsize=7,
+            mid = _path_middle(xs, ys)
+            text = plain_label(w["label"])
+            # wires over one another: their labels stacked above, clear of every label drawn before
+            off, va = ((0, 8), "baseline") if placed is None else _free_offset(ax, mid, text, (0, 4), 9, placed, 7, "center")
+            ax.annotate(text, xy=mid, xytext=off, textcoords="offset points", ha="center", va=va, fontsize=7,
                         fontweight="bold" if w["kind"] == "aerial" else "normal", color=PALETTE["black"])
     rx = scene.get("receiver")
     entry = scene.get("entry")

@@ -120,10 +120,16 @@ def eng(value, unit: str, digits: int = 3) -> str:
     return f"{text} {p}{unit}"
 
 
+#: Said under a value whose low and high ends round to the same figure.
+NO_SPREAD = "no spread"
+
+
 def rng(pair, unit: str) -> str:
+    """ "low – high" of a pair; one figure when both ends round to it."""
     if pair is None:
         return "—"
-    return f"{eng(pair[0], unit, 2)} – {eng(pair[1], unit, 2)}"
+    lo, hi = eng(pair[0], unit, 2), eng(pair[1], unit, 2)
+    return lo if lo == hi else f"{lo} – {hi}"
 
 
 def span(pair, unit: str) -> str:
@@ -131,6 +137,8 @@ def span(pair, unit: str) -> str:
     if pair is None or pair[0] is None or pair[1] is None:
         return ""
     lo, hi = eng(pair[0], unit, 3), eng(pair[1], unit, 3)
+    if lo == hi:
+        return f"[dim]({NO_SPREAD})[/dim]"
     lo_num, lo_unit = lo.rsplit(" ", 1)
     hi_num, hi_unit = hi.rsplit(" ", 1)
     text = f"({lo_num}–{hi_num} {hi_unit})" if lo_unit == hi_unit else f"({lo}–{hi})"
@@ -209,6 +217,8 @@ class Lengths:
         if pair is None or pair[0] is None or pair[1] is None:
             return ""
         lo, hi = self(pair[0]), self(pair[1])
+        if lo == hi:
+            return f"[dim]({NO_SPREAD})[/dim]"
         same = lo.rsplit(" ", 1)[1] == hi.rsplit(" ", 1)[1]
         return f"[dim]({lo.rsplit(' ', 1)[0] if same else lo}–{hi})[/dim]"
 
@@ -330,7 +340,9 @@ def percent(ratio) -> str:
 
 
 def db(x) -> str:
-    return "—" if x is None else f"{x:+.1f} dB"
+    if x is None:
+        return "—"
+    return f"{(round(float(x), 1) or 0.0):+.1f} dB"  # never "-0.0 dB"
 
 
 def effective_length_words(part: dict, L) -> str:
@@ -851,9 +863,10 @@ def render_layout(result: dict, console, units: str = "si") -> None:
             console.print(f"  {i}. {escape(L.text(c['reason']))}")
     present = result.get("present_wire")
     if present:
-        console.print(escape(L.text(f"your present wire (as 'aerial report' figures it, the building included): h_e "
-                                    f"{present['effective_height_m']:.2f} m, {eng(present['capacitance_f'], 'F')}, "
-                                    f"score {present['score']:.1f}")))
+        where = f" at {eng(present['figures_at_hz'], 'Hz')}" if present.get("figures_at_hz") else ""
+        console.print(escape(L.text(f"your present wire, as 'aerial report' figures it{where}: h_e "
+                                    f"{present['effective_height_m']:.3g} m, {eng(present['capacitance_f'], 'F')}, "
+                                    f"{label} {present['score']:.1f}" + (f" {unit}" if unit else ""))))
     fw = result.get("full_wave")
     if isinstance(fw, dict) and fw.get("note"):
         console.print(f"full-wave check of the winner: {escape(L.text(fw['note']))}")

@@ -2,10 +2,11 @@
 
 The search ranks every candidate with a fast vectorised screening model
 (:func:`aerial.planner.search.layout_figures`); the layouts it lists are then
-built as wires (top, lead-in to the entry, an earth lead straight down from
-the entry, the site's counterpoises) and computed by
-:func:`aerial.models.closed_form.closed_form_response`, the report's own
-closed forms, so that a layout and a report of the same wire agree.
+built as wires (top, lead-in to the entry, the earth lead from the entry to
+the site's earth point, the site's counterpoises) and computed by
+:func:`aerial.estimate.assemble.headline_figures`, the report's own model
+(closed forms, building screening, electrodes as lossy lines at each
+frequency), so that a layout and a report of the same wire agree.
 Frame: metres, x east, y north, z up.
 """
 
@@ -21,13 +22,63 @@ from aerial.core.errors import ModelInputError
 REPORT_MODEL = "closed forms of 'aerial report' for this wire"
 
 
+#: Points closer than this are the same point (a planned span on a site span's supports, the entry on the receiver). [m]
+SAME_POINT_M = 0.05
+
+
+def _same(a, b) -> bool:
+    return float(np.linalg.norm(np.subtract(a, b, dtype=float))) < SAME_POINT_M
+
+
+def _site_span(site, a, b):
+    """The points of the site's own aerial wire from ``a`` to ``b`` (its sag kept), or None. [m]"""
+    for w in site.wires:
+        if w.role != "aerial" or len(w.points_m) < 2:
+            continue
+        p = np.asarray(w.points_m, float)
+        if _same(p[0], a) and _same(p[-1], b):
+            return p
+        if _same(p[0], b) and _same(p[-1], a):
+            return p[::-1]
+    return None
+
+
+def _top_wire(site, top) -> np.ndarray:
+    """A planned top wire through ``top``; each piece on two supports the site already joins keeps that span's sag."""
+    pts = [top[0]]
+    for a, b in zip(top[:-1], top[1:]):
+        span = _site_span(site, a, b)
+        pts.extend(span[1:] if span is not None else [b])
+    return np.array(pts, dtype=float)
+
+
+def _earth_lead(site, entry) -> tuple:
+    """The earth lead from the entry: the site's own when the entry is the receiver, else to the site's earth point.
+
+    Returns (points [m], wire size) or (None, None) when the site's earth lead ends where it starts.
+    """
+    own = next((w for w in site.wires if w.role == "earth lead"), None)
+    if own is None:
+        return np.array([entry, [entry[0], entry[1], 0.0]], dtype=float), None
+    p = np.asarray(own.points_m, float)
+    if _same(p[0], entry):
+        return p, own.size
+    return np.array([entry, p[-1]], dtype=float), own.size
+
+
 def planned_wires(site, layout: dict, size, entry_xyz, floor_m: float = 0.0) -> list:
     """The wires of a listed layout as :class:`aerial.site.reader.WireRun` objects.
+
+    The earth lead runs from the entry to where the site's own earth lead
+    meets the ground (the site's own lead, bends and size, when the entry is
+    the receiver; straight down when the site has none); a span between two
+    supports the site already joins keeps that span's sag. A layout that is
+    the site's present wire is therefore the same wires the report computes.
 
     Parameters
     ----------
     site : Site
-        The site (its counterpoises are kept).
+        The site (its counterpoises and earth lead are kept).
     layout : dict
         A layout with ``top_points_m``, ``lead_in_points_m`` and ``lead_in_length_m``. [m]
     size : WireSize
@@ -42,19 +93,22 @@ def planned_wires(site, layout: dict, size, entry_xyz, floor_m: float = 0.0) -> 
 
     def lowered(points):
         p = np.array(points, dtype=float)
-        p[:, 2] = np.maximum(p[:, 2] - floor_m, 0.05)
+        if floor_m > 0:
+            p[:, 2] = np.maximum(p[:, 2] - floor_m, 0.05)
         return p
 
-    ex, ey, eh = entry_xyz
-    top = lowered(layout["top_points_m"])
+    entry = np.asarray(entry_xyz, dtype=float)
+    top = lowered(_top_wire(site, np.asarray(layout["top_points_m"], float)))
     wires = [WireRun("planned top", "aerial", top, size, "plan", (None,) * len(top))]
     if layout["lead_in_length_m"] > 0:
         wires.append(WireRun("planned lead-in", "lead-in", lowered(layout["lead_in_points_m"]), size, "plan",
                              (None, None)))
-    feed_z = max(eh - floor_m, 0.0)
-    if feed_z > 0.05:
-        wires.append(WireRun("earth lead", "earth lead", np.array([[ex, ey, feed_z], [ex, ey, 0.0]]), size, "plan",
-                             (None, None)))
+    lead, lead_size = _earth_lead(site, entry)
+    if floor_m > 0:
+        lead = lead.copy()
+        lead[:, 2] = np.maximum(lead[:, 2] - floor_m, 0.0)
+    if lead[0, 2] > 0.05 and float(np.linalg.norm(lead[-1] - lead[0])) > SAME_POINT_M:
+        wires.append(WireRun("earth lead", "earth lead", lead, lead_size or size, "plan", (None,) * len(lead)))
     return wires + [w for w in site.wires if w.role == "counterpoise"]
 
 
@@ -64,41 +118,38 @@ def planned_site(site, wires, entry_xyz, floor_m: float = 0.0):
     return replace(site, wires=wires, receiver=replace(site.receiver, x_m=ex, y_m=ey, height_m=max(eh - floor_m, 0.0)))
 
 
-def report_figures(site, layout: dict, size, entry_xyz, frequency, floor_m: float = 0.0) -> dict:
-    """Effective height, capacitance, radiation and conductor-loss resistance of a layout, as the report has them.
+def report_figures(site, layout: dict, size, entry_xyz, frequency, earth_ohm=None, floor_m: float = 0.0) -> dict:
+    """A layout's figures as the report has them: :func:`aerial.estimate.assemble.headline_figures` of its wires.
+
+    The same closed forms, building screening and earth treatment (the
+    electrodes as lossy lines in the soil, at each frequency) as
+    ``aerial report``.
 
     Parameters
     ----------
     frequency : array_like
-        The ranking frequencies. [Hz]
+        [Hz]
+    earth_ohm : array_like, optional
+        The earth system's resistance at each frequency (default: the report's). [ohm]
 
     Returns
     -------
     dict
-        ``effective_height_m``, ``capacitance_f`` (presented), ``static_capacitance_f``,
-        ``radiation_resistance_ohm``, ``conductor_loss_ohm``: arrays over
-        ``frequency`` [m, F, F, ohm, ohm]; ``shape`` (str).
+        :func:`~aerial.estimate.assemble.headline_figures`: arrays over
+        ``frequency`` (``effective_height_m``, ``capacitance_f``,
+        ``static_capacitance_f``, ``radiation_resistance_ohm``,
+        ``conductor_loss_ohm``, ``loss_resistance_ohm`` [m, F, ohm]),
+        ``shape`` (str), ``reliable`` (bool).
 
     Raises
     ------
     ModelInputError
         When the closed forms cannot take the wires.
     """
-    from aerial.geometry.resolve import resolve
-    from aerial.models.closed_form import closed_form_response
+    from aerial.estimate.assemble import headline_figures
 
     wires = planned_wires(site, layout, size, entry_xyz, floor_m)
-    geo = resolve(planned_site(site, wires, entry_xyz, floor_m), wires=wires)
-    r = closed_form_response(geo.segments, np.atleast_1d(np.asarray(frequency, float)), building=geo.building)
-    return {
-        "effective_height_m": np.asarray(r["effective_height_m"], float),
-        "capacitance_f": np.asarray(r["capacitance_f"], float),
-        "static_capacitance_f": np.asarray(r["static_capacitance_f"], float),
-        "radiation_resistance_ohm": np.asarray(r["radiation_resistance_ohm"], float),
-        "conductor_loss_ohm": np.asarray(r["conductor_loss_ohm"], float),
-        "shape": r["shape"]["kind"],
-        "reliable": bool(np.all(r["reliable"])),
-    }
+    return headline_figures(planned_site(site, wires, entry_xyz, floor_m), frequency, earth_ohm, wires=wires)
 
 
 def safe_report_figures(*args, **kwargs):

@@ -238,8 +238,9 @@ def station_score_db(effective_height, radiation_resistance, loss_resistance, fi
         [ohm]
     field : ndarray (S,)
         RMS field strength of each station at the site. [V/m]
-    earth_ohm : float
-        Earth-system resistance in series. [ohm]
+    earth_ohm : float or ndarray (S,)
+        Earth-system resistance in series, one value or one at each
+        station's frequency. [ohm]
 
     Returns
     -------
@@ -251,7 +252,7 @@ def station_score_db(effective_height, radiation_resistance, loss_resistance, fi
     Power available to a matched load (Balanis, *Antenna Theory*, 2005,
     sec. 2.15, from memory); the detector sees at most this.
     """
-    tot = np.asarray(radiation_resistance) + np.asarray(loss_resistance) + float(earth_ohm)
+    tot = np.asarray(radiation_resistance) + np.asarray(loss_resistance) + np.asarray(earth_ohm, float)
     p = (np.asarray(field)[None, :] * np.asarray(effective_height)) ** 2 / (4.0 * tot)
     return np.mean(10.0 * np.log10(np.maximum(p, 1e-300)), axis=1)
 
@@ -349,23 +350,52 @@ def screened_height(body, x, y, h):
 
 
 def present_wire(site, objective) -> dict | None:
-    """The site's own wire in the report's model (closed form with the building), or None without a building."""
+    """The site's own wires by the report's model, at the ranking frequencies and the report's centre frequency.
+
+    The same function computes the listed layouts (:func:`aerial.planner.figures.report_figures`), so the present
+    wire and a layout on the same supports show the same figures, and both the report's. None when the closed
+    forms cannot take the site's wires.
+    """
     from aerial.estimate.assemble import headline_figures
 
-    if building_of(site)[0] is None:
+    f = np.append(np.asarray(objective["frequency_hz"], float), objective["centre_hz"])
+    earth = np.append(np.asarray(objective["earth_ohm"], float), objective["centre_earth_ohm"])
+    try:
+        fig = headline_figures(site, f, earth)
+    except AerialError:
         return None
-    f = np.asarray(objective["frequency_hz"], float)
-    fig = headline_figures(site, f, objective["earth_ohm"])
-    he = fig["effective_height_m"]
+    out = {"note": "your present wire, by the report's model (its building screening and RF earth included), "
+                   "for comparison"}
+    out.update(_figures_json(fig))
+    out["figures_at_hz"] = float(objective["centre_hz"])
+    out["score"] = _report_score(objective, fig)
+    return out
+
+
+def _figures_json(fig: dict) -> dict:
+    """The JSON figures of a wire computed at the ranking frequencies then the report's centre frequency."""
+    return {
+        "effective_height_m": float(fig["effective_height_m"][-1]),
+        "effective_height_by_frequency_m": [float(v) for v in fig["effective_height_m"][:-1]],
+        "capacitance_f": float(fig["capacitance_f"][-1]),
+        "static_capacitance_f": float(fig["static_capacitance_f"][-1]),
+        "radiation_resistance_ohm": float(fig["radiation_resistance_ohm"][-1]),
+        "conductor_loss_ohm": float(fig["conductor_loss_ohm"][-1]),
+        "earth_resistance_ohm": float(fig["ground_loss_ohm"][-1]),
+        "loss_resistance_ohm": float(fig["loss_resistance_ohm"][-1]),
+        "available_power_w": float(fig["available_power_w"][-1]),
+        "shape": fig["shape"],
+    }
+
+
+def _report_score(objective, fig) -> float:
+    """The ranking score of figures computed at the ranking frequencies (the last column, the centre, left out)."""
+    he = fig["effective_height_m"][None, :-1]
     if objective["kind"] == "stations":
-        score = station_score_db(he[None, :], fig["radiation_resistance_ohm"][None, :],
-                                 fig["loss_resistance_ohm"][None, :] - objective["earth_ohm"],
-                                 objective["field_v_per_m"], objective["earth_ohm"])
-    else:
-        score = height_capacitance_score_db(he[None, :], fig["capacitance_f"][:1])
-    return {"effective_height_m": float(he[0]), "effective_height_by_frequency_m": [float(v) for v in he],
-            "capacitance_f": float(fig["capacitance_f"][0]), "score": float(score[0]),
-            "note": "your present wire, in the report's model (the building included), for comparison"}
+        return float(station_score_db(he, fig["radiation_resistance_ohm"][None, :-1],
+                                      fig["conductor_loss_ohm"][None, :-1], objective["field_v_per_m"],
+                                      objective["earth_ohm"])[0])
+    return float(height_capacitance_score_db(he, fig["static_capacitance_f"][:1])[0])
 
 
 def _aerial_size(site):
@@ -517,54 +547,70 @@ def _evaluate(ctx: _Context, fam, i, j, k, *, details=False, tally=None):
 
 
 def _objective(site, warnings: list) -> dict:
-    """The quantity ranked, its frequencies and fields, in words and numbers."""
-    earth_ohm, earth_note = _earth_resistance(site)
+    """The quantity ranked, its frequencies, fields and earth resistance, in words and numbers."""
+    from aerial.estimate.assemble import report_centre_frequency
+
+    f_c = report_centre_frequency(site)
     if site.stations:
         from aerial.models.groundwave import groundwave_field
 
         f = np.array([s.frequency_hz for s in site.stations])
         e = np.array([float(groundwave_field(s.power_w, s.distance_m, s.frequency_hz, s.soil.relative_permittivity,
                                              s.soil.conductivity_s_m).field) for s in site.stations])
-        if earth_ohm is None:
-            text = ("signal for the listed stations: the power available at the receiver, (E·h_e)²/(4(Rr + R_loss)), "
-                    "with conductor loss only (no earth-resistance model is available in this build), averaged over "
-                    "the stations in dB above 1 W; E from the ground-wave model at each station's frequency")
-            if earth_note:
-                warnings.append(earth_note)
-        else:
-            text = (f"signal for the listed stations: the power available at the receiver, (E·h_e)²/(4·R_total), "
-                    f"R_total = radiation + conductor loss + the site's earth resistance ({earth_ohm:.3g} Ω), averaged "
-                    "over the stations in dB above 1 W; E from the ground-wave model at each station's frequency")
-        return {"kind": "stations", "frequency_hz": f, "field_v_per_m": e, "earth_ohm": earth_ohm or 0.0,
-                "text": text, "unit": "dBW", "label": "signal",
-                "meaning": "signal: the mean over the listed stations of the power the aerial can deliver to the "
-                           "receiver, in dB above 1 W (dBW); higher is better, +3 dB is twice the power"}
-    f = np.array([math.sqrt(lo * hi) for _, lo, hi in site.bands])
-    text = ("no stations listed: effective height times capacitance at the centre of each band, "
-            "20·log10(h_e·C / 1 m·pF) averaged over the bands (a short aerial drives a current ωC·E·h_e into a "
-            "loosely coupled tuned circuit)")
-    return {"kind": "height-capacitance", "frequency_hz": f, "field_v_per_m": None, "earth_ohm": 0.0,
-            "text": text, "unit": "dB(m·pF)", "label": "h_e·C",
+    else:
+        f = np.array([math.sqrt(lo * hi) for _, lo, hi in site.bands])
+        e = None
+    earth_ohm, earth_note = _earth_resistance(site, np.append(f, f_c))
+    out = {"frequency_hz": f, "field_v_per_m": e, "earth_ohm": earth_ohm[:-1], "centre_hz": f_c,
+           "centre_earth_ohm": float(earth_ohm[-1])}
+    if e is None:
+        return out | {
+            "kind": "height-capacitance", "unit": "dB(m·pF)", "label": "h_e·C",
+            "text": ("no stations listed: effective height times capacitance at the centre of each band, "
+                     "20·log10(h_e·C / 1 m·pF) averaged over the bands (a short aerial drives a current ωC·E·h_e "
+                     "into a loosely coupled tuned circuit)"),
             "meaning": "h_e·C: effective height times capacitance, in dB above 1 m·pF, averaged over the bands; "
                        "higher is better, +6 dB is twice the signal voltage in a loosely coupled tuned circuit"}
+    if earth_note:
+        warnings.append(earth_note)
+        earth_words = "with conductor loss only (the earth resistance could not be computed)"
+    else:
+        at = ", ".join(f"{r:.3g} Ω at {fr / 1e3:.0f} kHz" for r, fr in zip(earth_ohm[:-1], f))
+        earth_words = (f"R_total = radiation + conductor loss + the earth system's resistance at each station's "
+                       f"frequency, the electrodes as lossy lines in the soil as 'aerial report' has them ({at})")
+    return out | {
+        "kind": "stations", "unit": "dBW", "label": "signal",
+        "text": (f"signal for the listed stations: the power available at the receiver, (E·h_e)²/(4·R_total), "
+                 f"{earth_words}, averaged over the stations in dB above 1 W; E from the ground-wave model at each "
+                 "station's frequency"),
+        "meaning": "signal: the mean over the listed stations of the power the aerial can deliver to the "
+                   "receiver, in dB above 1 W (dBW); higher is better, +3 dB is twice the power"}
 
 
-def _earth_resistance(site):
-    """The site's earth resistance, or None with a note when it cannot be had. [ohm]"""
-    from aerial.estimate.assemble import earth_system
+def _earth_resistance(site, frequency):
+    """The earth system's resistance at ``frequency`` as the report has it [ohm], and a note when it cannot be had.
 
+    The electrodes as lossy lines in the soil (:func:`aerial.estimate.assemble.earth_at_frequency`);
+    zeros and a note when that fails or gives no finite figure.
+    """
+    from aerial.estimate.assemble import earth_at_frequency
+
+    f = np.asarray(frequency, float)
     try:
-        value = float(earth_system(site)["resistance_ohm"])
-    except (AttributeError, KeyError, TypeError, ValueError) as err:
-        return None, f"the earth resistance could not be read ({type(err).__name__}); ranked with conductor loss only"
-    if not math.isfinite(value) or value < 0:
-        return None, "the earth resistance is not a finite number; ranked with conductor loss only"
+        value = np.asarray(earth_at_frequency(site, f)["impedance_ohm"].real, float)
+    except (AerialError, AttributeError, KeyError, TypeError, ValueError) as err:
+        return np.zeros(len(f)), (f"the earth resistance could not be computed ({type(err).__name__}); ranked with "
+                                  "conductor loss only")
+    if value.shape != f.shape or not np.all(np.isfinite(value)) or np.any(value < 0):
+        return np.zeros(len(f)), "the earth resistance is not a finite number; ranked with conductor loss only"
     return value, None
 
 
 #: Listed layouts computed with the report's model (about 0.1 s each on a 2-core machine); any further ones
 #: keep their screening figures, labelled as such.
 REPORT_MODEL_LIMIT = 20
+#: Layouts the screening hands to the report's model even when fewer are asked for.
+SHORTLIST = 10
 
 
 def plan_layouts(site, best=5, full_wave=False, draw=None, allow_large=False, progress=None) -> dict:
@@ -612,7 +658,7 @@ def plan_layouts(site, best=5, full_wave=False, draw=None, allow_large=False, pr
     objective = _objective(site, warnings)
     ctx = _Context(site, plan, objective)
     stage(progress, f"screening {total:,} candidate layouts")
-    top_rec, tally = _search(ctx, total, best, progress)
+    top_rec, tally = _search(ctx, total, max(best, SHORTLIST), progress)
     stage(progress, "the listed layouts with the report's model")
     layouts, screening_error_db = _listed_layouts(ctx, top_rec, best, warnings)
     result = _result(site, plan, ctx, objective, total, tally, layouts, warnings)
@@ -681,7 +727,10 @@ def _search(ctx: _Context, total: int, keep: int, progress):
 
 
 def _listed_layouts(ctx: _Context, top_rec, best: int, warnings: list):
-    """Describe the ``best`` screened layouts, compute the first twenty with the report's model, re-order them.
+    """Describe the screened shortlist, compute its first twenty with the report's model, re-order, keep ``best``.
+
+    The shortlist is the ``max(best, SHORTLIST)`` best by the screening model, so that a layout the screening
+    placed just below the ``best`` is still re-ranked by the report's model.
 
     Returns the layouts and the largest difference between a listed
     layout's screening score and its score by the report's model [dB].
@@ -691,15 +740,15 @@ def _listed_layouts(ctx: _Context, top_rec, best: int, warnings: list):
                         "excluded (see the causes). Add supports further from the power lines or lower ones.")
         return [], None
     ev = _evaluate(ctx, top_rec[:, 0], top_rec[:, 1], top_rec[:, 2], top_rec[:, 3], details=True)
-    layouts = _describe(ctx, top_rec, ev)[:best]
-    head, tail = layouts[:REPORT_MODEL_LIMIT], layouts[REPORT_MODEL_LIMIT:]
+    layouts = _describe(ctx, top_rec, ev)[:max(best, SHORTLIST)]
+    head, tail = layouts[:max(REPORT_MODEL_LIMIT, SHORTLIST)], layouts[max(REPORT_MODEL_LIMIT, SHORTLIST):best]
     differences = [_apply_report_model(ctx, lay) for lay in head]
     known = [d for d in differences if d is not None]
     for lay in tail:
         lay["screening"] = {k: lay[k] for k in ("effective_height_m", "capacitance_f", "score")}
         lay["figures_model"] = ("screening estimate (not computed with the report's model past the first "
                                 f"{REPORT_MODEL_LIMIT}; on those the two differ by up to {max(known, default=0):.1f} dB)")
-    layouts = sorted(head, key=lambda lay: -lay["score"]) + tail
+    layouts = (sorted(head, key=lambda lay: -lay["score"]) + tail)[:best]
     for rank, lay in enumerate(layouts, 1):
         lay["rank"] = rank
     _explain(ctx, layouts)
@@ -714,32 +763,22 @@ def _apply_report_model(ctx: _Context, lay: dict):
     from aerial.planner.figures import REPORT_MODEL, safe_report_figures
 
     obj = ctx.objective
-    figs, why = safe_report_figures(ctx.site, lay, ctx.size, (ctx.ex, ctx.ey, ctx.eh), obj["frequency_hz"],
-                                    floor_m=ctx.floor)
+    f = np.append(np.asarray(obj["frequency_hz"], float), obj["centre_hz"])
+    earth = np.append(np.asarray(obj["earth_ohm"], float), obj["centre_earth_ohm"])
+    figs, why = safe_report_figures(ctx.site, lay, ctx.size, (ctx.ex, ctx.ey, ctx.eh), f, earth, floor_m=ctx.floor)
     lay["screening"] = {"effective_height_m": lay["effective_height_m"], "capacitance_f": lay["capacitance_f"],
                         "score": lay["score"]}
     if figs is None:
         lay["figures_model"] = f"screening estimate (the report's model could not take this layout: {why})"
         return None
-    he = figs["effective_height_m"]
-    if obj["kind"] == "stations":
-        raw = station_score_db(he[None, :], figs["radiation_resistance_ohm"][None, :],
-                               figs["conductor_loss_ohm"][None, :], obj["field_v_per_m"], obj["earth_ohm"])[0]
-    else:
-        raw = height_capacitance_score_db(he[None, :], figs["static_capacitance_f"][:1])[0]
     penalty = PENALTY_OVER_ROOF_DB * lay["over_roof"] + PENALTY_OUTSIDE_LOT_DB * lay["outside_lot"]
-    score = float(raw - penalty)
+    score = float(_report_score(obj, figs) - penalty)
     difference = abs(score - lay["score"])
+    lay.update(_figures_json(figs))
     lay.update({
         "score": score,
         "figures_model": REPORT_MODEL + (" (heights from the balcony slab)" if ctx.floor > 0 else ""),
-        "figures_at_hz": float(obj["frequency_hz"][0]),
-        "effective_height_m": float(he[0]),
-        "effective_height_by_frequency_m": [float(v) for v in he],
-        "capacitance_f": float(figs["capacitance_f"][0]),
-        "static_capacitance_f": float(figs["static_capacitance_f"][0]),
-        "radiation_resistance_ohm": float(figs["radiation_resistance_ohm"][0]),
-        "conductor_loss_ohm": float(figs["conductor_loss_ohm"][0]),
+        "figures_at_hz": float(obj["centre_hz"]),
         "shape": figs["shape"],
         "outside_model_range": bool(lay["outside_model_range"] or not figs["reliable"]),
     })
@@ -759,6 +798,7 @@ def _result(site, plan, ctx, objective, total, tally, layouts, warnings) -> dict
         "score_label": objective["label"],
         "score_meaning": objective["meaning"],
         "ranking_frequencies_hz": [float(v) for v in objective["frequency_hz"]],
+        "ranking_earth_resistance_ohm": [float(v) for v in objective["earth_ohm"]],
         "candidates_considered": int(total),
         "candidates_refused": int(tally.total),
         "candidates_refused_safety": int(tally.safety),
@@ -948,7 +988,7 @@ def _refine(site, ctx: _Context, win: dict, objective: dict, allow_large: bool =
 
     entry = (ctx.ex, ctx.ey, ctx.eh)
     wires = planned_wires(site, win, ctx.size, entry)
-    earth = float(objective["earth_ohm"])
+    earth = float(objective["centre_earth_ohm"])
     planned = planned_site(site, wires, entry)
     geo = resolve(planned, electrode_ohm=earth, wires=wires)
     freqs = np.asarray(objective["frequency_hz"], dtype=float)

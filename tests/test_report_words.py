@@ -1,0 +1,118 @@
+"""Words and figures a user reads in the report: ranges that do not move, one bleed-resistor wording,
+what-if steps in round feet, the bandwidth search range, and labels that stay apart in the pictures.
+
+Sites are the invented examples in site_examples/ (input handling and consistency checks, named so).
+"""
+
+import json
+import re
+
+import numpy as np
+
+from aerial.models.network import detector_bandwidth
+from aerial.models.tank import BLEED_REMEDY
+
+from .conftest import ROOT, run
+
+HIGH = ROOT / "site_examples" / "high_floor_flat.toml"
+BALCONY = ROOT / "site_examples" / "balcony_water_pipe.toml"
+BACKYARD = ROOT / "site_examples" / "backyard_inverted_l.toml"
+
+#: A range whose two ends print the same figure: "(51.1–51.1 pF)" or "51.1 pF – 51.1 pF".
+SAME_ENDS = re.compile(r"\((\d+(?:\.\d+)?)–\1 |(\d+(?:\.\d+)? \S+) – \2(?!\d)")
+
+
+def flat(text: str) -> str:
+    return " ".join(text.replace("│", " ").split())
+
+
+def test_a_range_that_does_not_move_says_no_spread(capsys):
+    code, out, err = run(capsys, "report", HIGH)
+    assert code == 0, err
+    assert not SAME_ENDS.search(out), SAME_ENDS.search(out)
+    assert "(no spread)" in out  # the steel frame pins the capacitance at the band edges
+
+
+def test_the_bleed_resistor_is_worded_once(capsys):
+    code, out, err = run(capsys, "report", BACKYARD)  # series-capacitor coupling
+    assert code == 0, err
+    text = flat(out)
+    assert text.count(BLEED_REMEDY) >= 2  # the tuning note and the safety panel say the same
+    assert "about 1 MΩ)" not in text
+
+
+def test_what_if_steps_are_round_feet_under_us_units(capsys):
+    code, out, err = run(capsys, "report", BACKYARD, "--units", "us")
+    assert code == 0, err
+    text = flat(out)
+    assert "raise the wire 10 ft" in text and "add 30 ft to the far end" in text
+    assert "9.84 ft" not in text and "32.8 ft" not in text
+    from aerial import load_site
+    from aerial.estimate.assemble import report_centre_frequency, what_if
+
+    site = load_site(BACKYARD)
+    f = report_centre_frequency(site)
+    rows = {r["change"]: r for r in what_if(site, f, {}, units="us")}
+    # figures stay SI: the step is 10 ft = 3.048 m exactly (NIST SP 811: 1 ft = 0.3048 m, exact by definition)
+    assert "raise the wire 3.048 m" in rows and "add 9.144 m to the far end" in rows
+    si = {r["change"]: r for r in what_if(site, f, {})}
+    assert "raise the wire 3 m" in si
+    # consistency check: raised 3.048 m rather than 3 m, the wire's effective height is a little higher
+    assert rows["raise the wire 3.048 m"]["effective_height_m"] > si["raise the wire 3 m"]["effective_height_m"]
+
+
+def test_the_bandwidth_note_names_the_range_the_search_covers():
+    from aerial.estimate import reception
+
+    # a tank of Q 0.2: at f/3 and 3f it is still above 1/√2 of its peak (0.2 × 8/3 = 0.53 < 1), so its -3 dB
+    # edges lie beyond the search and the bandwidth found is a lower bound (universal resonance curve)
+    r = detector_bandwidth(np.array([1e6]), lambda f: 1 / np.abs(1 + 1j * 0.2 * (f / 1e6 - 1e6 / f)))
+    assert bool(r.wider_than_searched[0])
+    assert "from a third of the frequency to three times it" in reception.BANDWIDTH_LOWER_BOUND_NOTE
+    # just inside the search the edges are found: Q 0.6 puts them at f/1.9 and 1.9f (within f/3 to 3f)
+    r = detector_bandwidth(np.array([1e6]), lambda f: 1 / np.abs(1 + 1j * 0.6 * (f / 1e6 - 1e6 / f)))
+    assert not bool(r.wider_than_searched[0])
+
+
+def _renderer(fig):
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+    canvas = FigureCanvasAgg(fig)
+    canvas.draw()
+    return canvas.get_renderer()
+
+
+def _text_boxes(fig, ax):
+    renderer = _renderer(fig)
+    return [(t.get_text(), t.get_window_extent(renderer)) for t in ax.texts if t.get_text().strip()]
+
+
+def test_plan_view_labels_do_not_overlap(capsys):
+    from aerial import load_site
+    from aerial.outputs.site_drawings import layout_scene, plan_figure, site_surroundings
+
+    for example in (BALCONY, BACKYARD, ROOT / "site_examples" / "suburban_lot_service_line.toml"):
+        code, out, err = run(capsys, "layout", example, "--json")
+        assert code == 0, err
+        layouts = json.loads(out)["layouts"]
+        fig = plan_figure(layout_scene(site_surroundings(load_site(example)), layouts[:3]))
+        boxes = _text_boxes(fig, fig.axes[0])
+        words = [t for t, _ in boxes]
+        assert "#1 (chosen)" in words and "#2" in words
+        for i, (ta, a) in enumerate(boxes):
+            for tb, b in boxes[i + 1:]:
+                if ta.startswith(("power line", "telephone/cable")) or tb.startswith(("power line", "telephone/cable")):
+                    continue  # the line names run along their lines
+                assert not a.overlaps(b), (example.name, ta, tb)
+
+
+def test_station_tuning_legend_covers_no_point(capsys):
+    from aerial.outputs.charts import station_design_figure
+
+    code, out, err = run(capsys, "report", BALCONY, "--json")
+    assert code == 0, err
+    fig = station_design_figure(json.loads(out))
+    renderer = _renderer(fig)
+    ax = fig.axes[0]
+    legend = fig.legends[0] if fig.legends else ax.get_legend()
+    assert not legend.get_window_extent(renderer).overlaps(ax.get_window_extent(renderer))
