@@ -130,3 +130,60 @@ def test_response_adds_the_earth_by_value(tmp_path):
     own = triangular_rr_ohm(HEIGHT, f) + wire_loss_ohm(f)
     np.testing.assert_allclose(out["series_resistance_ohm"] - earth, own, atol=0.02)
     np.testing.assert_allclose(out["efficiency"], out["radiation_resistance_ohm"] / (own + earth), rtol=0.01)
+
+
+RADIALS_SITE = """
+[site]
+name = "invented plot with radials"
+
+[[runs]]
+points = [[0, 0, 0.3], [0, 0, 10], [30, 0, 10]]
+
+[receiver]
+at = [0, 0]
+height = "0 m"
+
+[soil]
+category = "intermediate"
+
+[[earth.buried_wires]]
+arrangement = "radials"
+count = 16
+length = "10 m"
+depth = "0.1 m"
+"""
+
+
+def test_radials_under_the_aerial_are_a_wait_screen_through_the_cli(tmp_path, capsys, monkeypatch):
+    # input handling (invented site): with buried radials the closed-form ground loss is the aerial's loss over
+    # Wait's radial screen, named as such in the loss budget, and no electrode resistance is added beside it
+    import json
+
+    from aerial.cli import main
+
+    path = tmp_path / "radials.toml"
+    path.write_text(RADIALS_SITE, encoding="utf-8")
+    assert main(["report", str(path), "--json"]) == 0
+    result = json.loads(capsys.readouterr().out)
+    budget = result["aerial"]["loss_budget"]
+    assert "Wait's radial screen (16 radials of 10 m)" in budget["soil_treatment"]
+    assert max(budget["electrode_ohm"]) == 0.0
+    assert np.allclose(budget["soil_under_aerial_ohm"], result["aerial"]["ground_loss_ohm"])
+    assert all(0 < g < 20 for g in result["aerial"]["ground_loss_ohm"])
+    part = result["earth"]["parts"][0]
+    assert part["impedance_method"].startswith("Wait's radial screen")
+    monkeypatch.setenv("COLUMNS", "200")
+    assert main(["report", str(path)]) == 0
+    out = capsys.readouterr().out
+    assert "soil under the aerial" in out and "Wait's radial screen" in out
+
+
+def test_consistency_a_radial_screen_what_if_beats_the_rod_and_names_its_model():
+    # consistency check: the built-in example's "add radials" row is computed over Wait's screen under its aerial
+    site = aerial.load_site(None)
+    from aerial.estimate.assemble import what_if, what_if_frequency, band_points
+
+    rows = what_if(site, what_if_frequency(site, band_points(site)), {})
+    radials = next(r for r in rows if r["change"].startswith("add 8 buried radials"))
+    assert "Wait's radial screen" in radials["note"]
+    assert radials["loss_resistance_ohm"] < rows[0]["loss_resistance_ohm"]

@@ -88,18 +88,34 @@ def earth_system(site) -> dict:
     return earth.earth_system(site.electrodes, site.soil, earth.as_counterpoise_site(site), path=site.path)
 
 
-def earth_at_frequency(site, frequency) -> dict:
-    """The earth system's impedance over ``frequency`` [Hz]: electrodes as lossy lines in the soil."""
+def _screen_aerial(site, frequency, screen: bool):
+    """The site's vertical for Wait's radial screen (None without radials, or when ``screen`` is false)."""
     from aerial.estimate import earth
 
-    return earth.electrode_impedance(site.electrodes, site.soil, frequency, earth.as_counterpoise_site(site))
+    if not screen or earth.radial_system(site.electrodes) is None:
+        return None
+    return earth.screen_aerial(resolve(site).segments)
 
 
-def earth_bounds(site, frequency) -> dict:
+def earth_at_frequency(site, frequency, screen: bool = True) -> dict:
+    """The earth system's impedance over ``frequency`` [Hz]: electrodes as lossy lines in the soil.
+
+    With buried radials under an aerial with a vertical down-lead (and ``screen``, the closed forms' case) the
+    radials are Wait's radial screen and the figure is the aerial's ground loss over it
+    (:func:`aerial.estimate.earth.electrode_impedance`).
+    """
+    from aerial.estimate import earth
+
+    return earth.electrode_impedance(site.electrodes, site.soil, frequency, earth.as_counterpoise_site(site),
+                                     aerial=_screen_aerial(site, frequency, screen))
+
+
+def earth_bounds(site, frequency, screen: bool = True) -> dict:
     """The earth system's RF resistance with the soil at its bounds, over ``frequency`` [Hz]. [ohm]"""
     from aerial.estimate import earth
 
-    return earth.resistance_bounds(site.electrodes, site.soil, frequency, earth.as_counterpoise_site(site))
+    return earth.resistance_bounds(site.electrodes, site.soil, frequency, earth.as_counterpoise_site(site),
+                                   aerial=_screen_aerial(site, frequency, screen))
 
 
 def what_if_frequency(site, pts) -> float:
@@ -146,11 +162,15 @@ GROUNDS = ("perfect", "lossy", "reflection-coefficient")
 
 
 def aerial_response(site, geometry, frequency, earth_ohm: float, method: str = "closed-form", progress=None,
-                    ground: str = "perfect", allow_large: bool = False, convergence_check: bool = True) -> dict:
+                    ground: str = "perfect", allow_large: bool = False, convergence_check: bool = True,
+                    screen_method: str | None = None) -> dict:
     """Per-frequency electrical figures of the aerial with its earth. Returns numpy arrays.
 
     ``convergence_check`` (full wave only): False skips the solver's second
     solve at twice the pieces (the figures are the same).
+    ``screen_method``: set when ``earth_ohm`` is the aerial's ground loss over a radial screen (Wait's model,
+    :func:`earth_at_frequency`) rather than an electrode resistance; the loss budget then names it as the
+    soil's loss under the aerial.
     """
     if method not in METHODS:
         raise ModelInputError(f"'{method}' is not a valid method, must be one of " + ", ".join(f"'{m}'" for m in METHODS))
@@ -165,12 +185,20 @@ def aerial_response(site, geometry, frequency, earth_ohm: float, method: str = "
         out = dict(closed_form_response(geometry.segments, frequency, building=geometry.building))
         out["ground_loss_ohm"] = np.broadcast_to(np.asarray(earth_ohm, float), (len(frequency),)).copy()
         out["warnings"] = list(out.get("warnings", []))
+        earth_f = np.broadcast_to(np.asarray(earth_ohm, float), (len(frequency),)).copy()
         out["loss_budget"] = {
             "soil_under_aerial_ohm": np.zeros(len(frequency)),
             "soil_treatment": "not modelled: closed forms over a perfect ground plane",
-            "electrode_ohm": np.broadcast_to(np.asarray(earth_ohm, float), (len(frequency),)).copy(),
+            "electrode_ohm": earth_f,
             "electrode_treatment": "earth-system resistance in series at the feed (electrodes as lossy lines in the soil)",
         }
+        if screen_method:
+            out["loss_budget"] = {
+                "soil_under_aerial_ohm": earth_f,
+                "soil_treatment": screen_method + ", in series at the feed",
+                "electrode_ohm": np.zeros(len(frequency)),
+                "electrode_treatment": "none apart: the radials carry the return current to the feed",
+            }
     rr = np.asarray(out["radiation_resistance_ohm"], float)
     rc = np.asarray(out["conductor_loss_ohm"], float)
     rg = np.asarray(out["ground_loss_ohm"], float)
@@ -451,7 +479,7 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
     f = np.atleast_1d(np.asarray(frequency, float))
     like = _nominal_shape(site)
     f_c = float(f[len(f) // 2]) if centre_hz is None else float(centre_hz)
-    b = earth_bounds(site, np.append(f, f_c))
+    b = earth_bounds(site, np.append(f, f_c), screen=method != "full-wave")
     lo_ohm, hi_ohm = b["high_ohm"][:-1], b["low_ohm"][:-1]
     if method == "full-wave" and full_wave_ranges:
         from aerial.estimate.earth import soil_bound
@@ -469,7 +497,8 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
         hi = _headline(site, _perturbed_wires(site, +1.0), f, hi_ohm, like=like, shielding_case=0)
         label = "closed form"
         if method == "full-wave":
-            base = _headline(site, site.wires, f, earth_at_frequency(site, f)["impedance_ohm"].real, like=like)
+            base = _headline(site, site.wires, f, earth_at_frequency(site, f, screen=False)["impedance_ohm"].real,
+                             like=like)
             for key in lo:
                 scale = np.asarray(nominal[key], float) / np.where(base[key] != 0, base[key], 1.0)
                 lo[key], hi[key] = lo[key] * scale, hi[key] * scale
@@ -514,7 +543,8 @@ def what_if(site, frequency: float, earth: dict, units: str = "si") -> list[dict
                      _headline(site, _perturbed_wires(site, raise_m=step["raise"]), frequency, r_earth)))
         rows.append((f"add {step['extend']:g} m to the far end",
                      _headline(site, _perturbed_wires(site, extend_m=step["extend"]), frequency, r_earth)))
-        better = earth_mod.improved_earth(site.electrodes, site.soil, frequency, radial_length_m=step["radial"])
+        better = earth_mod.improved_earth(site.electrodes, site.soil, frequency, radial_length_m=step["radial"],
+                                          aerial=earth_mod.screen_aerial(resolve(site).segments))
         rows.append((better["description"], _headline(site, site.wires, frequency, better["resistance_ohm"])))
         radials_row = len(rows) - 1
     rows += _building_moves(site, frequency, r_earth, step["stand_off"])
@@ -749,7 +779,7 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     freqs = frequency_grid(site, step_hz)
     earth = earth_system(site)
     warnings += earth.get("warnings", [])
-    earth_rf = earth_at_frequency(site, freqs)
+    earth_rf = earth_at_frequency(site, freqs, screen=method != "full-wave")
     earth_r = np.asarray(earth_rf["impedance_ohm"].real, float)
     centre_i = int(np.argmin(np.abs(freqs - report_centre_frequency(site, freqs))))
     geometry = resolve(site, electrode_ohm=float(earth_r[centre_i]))
@@ -760,8 +790,11 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
         warnings.append("lossy ground applies to the full-wave solver only; the closed forms assume a perfect "
                         "ground plane with the earth system's resistance in series")
     stage(progress, f"{'full-wave' if method == 'full-wave' else 'closed-form'} sweep of {len(freqs)} frequencies")
+    screen = earth_rf.get("screen")
     resp = aerial_response(site, geometry, freqs, earth_r, method=method, progress=progress, ground=ground,
-                           allow_large=allow_large)
+                           allow_large=allow_large, screen_method=screen["method"] if screen else None)
+    if screen:
+        warnings += screen["warnings"]
     warnings += resp.get("warnings", [])
 
     result: dict = {
@@ -809,7 +842,8 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
             "open_circuit_voltage_v": resp["open_circuit_voltage_v"],
             "available_power_w": resp["available_power_w"],
         },
-        "earth": _earth_json(earth, earth_rf, centre_i, earth_bounds(site, [freqs[centre_i]])),
+        "earth": _earth_json(earth, earth_rf, centre_i, earth_bounds(site, [freqs[centre_i]],
+                                                                   screen=method != "full-wave")),
     }
     for key in ("convergence", "ground_treatment", "segments", "loss_budget", "building_full_wave"):
         if key in resp:

@@ -12,6 +12,7 @@ import numpy as np
 
 from aerial.models import electrode_lines as lines
 from aerial.models import electrodes as el
+from aerial.models import radial_screen as rs
 
 #: Stated typical range for a building's protective earth whose resistance the user does not know [ohm].
 #: An assumption: a TN-C-S (PME) supply earth is often under 1 ohm, a TT installation's rod up to ~200 ohm.
@@ -22,6 +23,78 @@ INTERIOR_SOIL_POINTS = 3
 
 #: The "better earth" of the what-if table: eight buried radials of this length at this depth.
 WHAT_IF_RADIALS = (8, 10.0, 0.15)
+
+#: Points per e-fold of distance of the ground-field profile under the aerial. [1]
+SCREEN_POINTS_PER_E_FOLD = 40
+
+#: How far the ground-field profile reaches, in units of the aerial's largest distance from the hub. [1]
+SCREEN_REACH = 100.0
+
+
+def screen_aerial(segments, frequency=None):
+    """The ground field the radial-screen model needs: the aerial's return current round the hub.
+
+    The hub is where the earth lead meets the ground (the lowest earth-lead
+    point), else the foot of the aerial's lowest point. The aerial's charges
+    come from the electrostatic solution (aerial at 1 V, earth lead at 0 V;
+    :func:`aerial.models.capacitance.electrostatic_solution`), and the field
+    is :func:`aerial.models.radial_screen.static_ground_field` on a log grid
+    from 1 mm to ``SCREEN_REACH`` times the aerial's reach. ``frequency`` is
+    not used (the quasi-static field serves every frequency where the closed
+    forms hold) and kept for the callers' symmetry.
+
+    Returns
+    -------
+    dict
+        ``distance_m`` (R,), ``field_per_m`` (R,) [1/m]: H_phi per ampere at the feed.
+    """
+    from aerial.models.capacitance import electrostatic_solution
+
+    sol = electrostatic_solution(segments)
+    mid = 0.5 * (sol.start + sol.end)
+    ends = np.concatenate([segments.start, segments.end])
+    grounded = np.concatenate([segments.grounded, segments.grounded])
+    pool = ends[grounded] if np.any(grounded) else ends
+    hub = pool[int(np.argmin(pool[:, 2]))]
+    aer = ~sol.grounded
+    q = sol.charge_c[aer]
+    s = np.hypot(mid[aer, 0] - hub[0], mid[aer, 1] - hub[1])
+    z = mid[aer, 2]
+    reach = max(float(np.max(np.hypot(s, z))), 1.0)
+    r_far = SCREEN_REACH * reach
+    r = np.geomspace(1e-3, r_far, 1 + int(SCREEN_POINTS_PER_E_FOLD * np.log(r_far / 1e-3)))
+    return {"distance_m": r, "field_per_m": rs.static_ground_field(np.c_[s, z], q, r)}
+
+
+def radial_system(electrodes):
+    """The site's buried radials (arrangement "radials", two or more; the set with the most wire), or None."""
+    found = [e for e in electrodes if e.kind == "buried_wires" and e.arrangement == "radials" and e.count >= 2]
+    return max(found, key=lambda e: e.count * e.length_m) if found else None
+
+
+def screen_loss(radials, soil, frequency, aerial) -> dict:
+    """Wait's radial-screen ground loss of the aerial over ``radials`` in ``soil``, over ``frequency`` [Hz].
+
+    Returns
+    -------
+    dict
+        ``impedance_ohm`` (complex Delta Z, its real part clipped at zero),
+        ``within_radials_ohm``, ``method``, ``warnings``.
+    """
+    f = np.atleast_1d(np.asarray(frequency, float))
+    dz, inner = rs.screen_loss_of_field(f, aerial["distance_m"], aerial["field_per_m"], radials.count,
+                                        radials.length_m, radials.diameter_m / 2.0, soil.conductivity_s_m,
+                                        soil.relative_permittivity)
+    warnings = []
+    skin = 1.0 / float(lines.soil_gamma(float(np.sqrt(f.min() * f.max())), 1.0 / soil.conductivity_s_m,
+                                        soil.relative_permittivity)[0].real)
+    if skin > radials.length_m:
+        warnings.append(f"Wait's radial screen treats the soil as a surface impedance: rough where the soil's skin "
+                        f"depth ({skin:.0f} m here) is not short against the radials ({radials.length_m:.0f} m)")
+    method = (f"Wait's radial screen ({radials.count} radials of {radials.length_m:.3g} m) and the soil beyond, "
+              "compensation theorem")
+    return {"impedance_ohm": np.maximum(dz.real, 0.0) + 1j * dz.imag, "within_radials_ohm": np.maximum(inner, 0.0),
+            "method": method, "warnings": warnings}
 
 
 def _one(e, resistivity: float, radius_default: float) -> tuple[float, str, list]:
@@ -135,7 +208,8 @@ def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>") 
     else:
         r, rl, rh = nominal[0], low[0], high[0]
     warnings.append("Earth resistance here is the low-frequency (DC) value in uniform soil; the loss budget uses "
-                    "each electrode's impedance at the working frequency (a lossy line in the soil, Sunde).")
+                    "each electrode's impedance at the working frequency (a lossy line in the soil, Sunde; buried "
+                    "radials under the aerial as Wait's radial screen).")
     return {"resistance_ohm": r, "resistance_low_ohm": min(rl, r), "resistance_high_ohm": max(rh, r),
             "parts": parts, "warnings": warnings}
 
@@ -151,7 +225,8 @@ def _line_of(e, soil, frequency, resistivity):
     return None
 
 
-def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=(), fixed: str = "nominal") -> dict:
+def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=(), fixed: str = "nominal",
+                        aerial=None) -> dict:
     """The earth system's impedance at radio frequency: each electrode a lossy line in the soil.
 
     Parameters
@@ -165,6 +240,13 @@ def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=(), fixe
     fixed : {"nominal", "low", "high"}
         Which figure of a part that does not depend on the soil (a building
         earth of unknown resistance) to use: its value or either end of its range.
+    aerial : dict, optional
+        :func:`screen_aerial` of the wires. With buried radials and an aerial
+        with a vertical down-lead, the radials are Wait's radial screen under
+        the aerial (:func:`screen_loss`): their part is the aerial's ground
+        loss over the screen and the soil, and the system's impedance is that
+        alone (other electrodes bonded at the hub carry none of the aerial's
+        return current in this model, which leaves them out: pessimistic).
 
     Returns
     -------
@@ -201,14 +283,23 @@ def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=(), fixe
         parts.append({"description": part["description"], "impedance_ohm": line.impedance * scale,
                       "effective_length_m": line.effective_length, "method": line.method + ", scaled to "
                       + part["method"] + " at DC"})
+    notes = ["Earth electrodes at the working frequency: each a lossy line in the soil (Sunde), tending to "
+             "its DC resistance formula as the frequency falls."]
+    radials = radial_system(items) if aerial is not None else None
+    if radials is not None:
+        screen = screen_loss(radials, soil, f, aerial)
+        n = items.index(radials)
+        parts[n] = dict(parts[n], impedance_ohm=screen["impedance_ohm"], method=screen["method"])
+        z = screen["impedance_ohm"]
+        notes = [f"Buried radials as Wait's radial screen under the aerial: the ground loss over the screen and the "
+                 f"soil (compensation theorem); other electrodes bonded at the hub are left out of the total."]
+        return {"impedance_ohm": z, "parts": parts, "frequency_hz": f, "notes": notes, "screen": screen}
     if not parts:
         z = np.full(f.size, dc["resistance_ohm"] + 0j)
     else:
         with np.errstate(divide="ignore"):
             z = 1.0 / np.sum([1.0 / p["impedance_ohm"] for p in parts], axis=0)
-    return {"impedance_ohm": z, "parts": parts, "frequency_hz": f,
-            "notes": ["Earth electrodes at the working frequency: each a lossy line in the soil (Sunde), tending to "
-                      "its DC resistance formula as the frequency falls."]}
+    return {"impedance_ohm": z, "parts": parts, "frequency_hz": f, "notes": notes}
 
 
 def soil_permittivities(soil) -> tuple:
@@ -232,7 +323,7 @@ def soil_bound(soil, end: str):
     return replace(soil, conductivity_s_m=soil.conductivity_high_s_m, relative_permittivity=high)
 
 
-def resistance_bounds(electrodes, soil, frequency, counterpoise_wires=()) -> dict:
+def resistance_bounds(electrodes, soil, frequency, counterpoise_wires=(), aerial=None) -> dict:
     """Low and high earth resistance at radio frequency, the soil at its conductivity bounds. [ohm]
 
     The same model as the value (:func:`electrode_impedance`, each electrode
@@ -262,7 +353,7 @@ def resistance_bounds(electrodes, soil, frequency, counterpoise_wires=()) -> dic
     sigmas = np.geomspace(soil.conductivity_high_s_m, soil.conductivity_low_s_m, INTERIOR_SOIL_POINTS + 2)
     fixed = ["low"] + ["nominal"] * INTERIOR_SOIL_POINTS + ["high"]
     runs = [electrode_impedance(electrodes, replace(soil, conductivity_s_m=float(sg), relative_permittivity=float(ep)),
-                                frequency, counterpoise_wires, fixed=fx)
+                                frequency, counterpoise_wires, fixed=fx, aerial=aerial)
             for sg, fx in zip(sigmas, fixed) for ep in soil_permittivities(soil)]
     whole = np.stack([r["impedance_ohm"].real for r in runs])
     parts = [np.stack([r["parts"][n]["impedance_ohm"].real for r in runs]) for n in range(len(runs[0]["parts"]))]
@@ -270,7 +361,7 @@ def resistance_bounds(electrodes, soil, frequency, counterpoise_wires=()) -> dic
             "parts_low_ohm": [p.min(axis=0) for p in parts], "parts_high_ohm": [p.max(axis=0) for p in parts]}
 
 
-def improved_earth(electrodes, soil, frequency=None, radial_length_m: float | None = None) -> dict:
+def improved_earth(electrodes, soil, frequency=None, radial_length_m: float | None = None, aerial=None) -> dict:
     """The what-if earth: the site's electrodes plus eight 10 m buried radials (``radial_length_m`` [m] another length).
 
     With ``frequency`` [Hz] the resistance is the real part of the earth
@@ -285,13 +376,35 @@ def improved_earth(electrodes, soil, frequency=None, radial_length_m: float | No
     out = earth_system(list(electrodes) + [extra], soil)
     out["description"] = f"add {n} buried radials of {length:g} m"
     if frequency is not None:
-        rf = electrode_impedance(list(electrodes) + [extra], soil, [float(frequency)])
+        rf = electrode_impedance(list(electrodes) + [extra], soil, [float(frequency)], aerial=aerial)
         out["resistance_ohm"] = float(rf["impedance_ohm"][0].real)
         l_eff = float(rf["parts"][-1]["effective_length_m"][0])
+        how = "their effective length"
+        if "screen" in rf and radial_system(list(electrodes) + [extra]) is extra:
+            l_eff = screen_effective_length(extra, soil, float(frequency), aerial)
+            how = "Wait's radial screen under this aerial"
         out["effective_length_m"] = l_eff
         out["note"] = (f"radials longer than {l_eff:.0f} m add nothing at {float(frequency) / 1e6:.2g} MHz "
-                       "in this soil (their effective length)")
+                       f"in this soil ({how})")
     return out
+
+
+def screen_effective_length(radials, soil, frequency: float, aerial) -> float:
+    """Radial length beyond which Wait's screen lowers the aerial's ground loss by less than 10 %. [m]
+
+    The loss is integrated for ``radials.count`` radials of lengths from 1 m to a quarter wavelength (log
+    spaced, 16 per decade); the effective length is the shortest whose loss is within
+    ``EFFECTIVE_LENGTH_CHANGE`` of the quarter-wave one.
+    """
+    from aerial.core.constants import SPEED_OF_LIGHT
+
+    top = max(0.25 * SPEED_OF_LIGHT / frequency, 2.0)
+    lengths = np.geomspace(1.0, top, 1 + int(np.ceil(16 * np.log10(top))))
+    loss = np.array([rs.screen_loss_of_field([frequency], aerial["distance_m"], aerial["field_per_m"], radials.count,
+                                             float(n), radials.diameter_m / 2.0, soil.conductivity_s_m,
+                                             soil.relative_permittivity)[0][0].real for n in lengths])
+    ok = loss <= loss[-1] * (1.0 + lines.EFFECTIVE_LENGTH_CHANGE) + 1e-12
+    return float(lengths[int(np.argmax(ok))])
 
 
 def as_counterpoise_site(site):
@@ -300,4 +413,5 @@ def as_counterpoise_site(site):
 
 
 __all__ = ["earth_system", "improved_earth", "electrode_impedance", "resistance_bounds", "BUILDING_EARTH_TYPICAL_OHM", "replace",
-           "soil_permittivities", "soil_bound"]
+           "soil_permittivities", "soil_bound", "screen_aerial", "radial_system", "screen_loss",
+           "screen_effective_length"]
