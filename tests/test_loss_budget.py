@@ -185,5 +185,5 @@ def test_consistency_a_radial_screen_what_if_beats_the_rod_and_names_its_model()
 
     rows = what_if(site, what_if_frequency(site, band_points(site)), {})
     radials = next(r for r in rows if r["change"].startswith("add 8 buried radials"))
-    assert "Wait's radial screen" in radials["note"]
+    assert "Wait's screen" in radials["note"]
     assert radials["loss_resistance_ohm"] < rows[0]["loss_resistance_ohm"]

@@ -208,8 +208,7 @@ def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>") 
     else:
         r, rl, rh = nominal[0], low[0], high[0]
     warnings.append("Earth resistance here is the low-frequency (DC) value in uniform soil; the loss budget uses "
-                    "each electrode's impedance at the working frequency (a lossy line in the soil, Sunde; buried "
-                    "radials under the aerial as Wait's radial screen).")
+                    "each electrode's impedance at the working frequency (a lossy line in the soil, Sunde).")
     return {"resistance_ohm": r, "resistance_low_ohm": min(rl, r), "resistance_high_ohm": max(rh, r),
             "parts": parts, "warnings": warnings}
 
@@ -382,7 +381,7 @@ def improved_earth(electrodes, soil, frequency=None, radial_length_m: float | No
         how = "their effective length"
         if "screen" in rf and radial_system(list(electrodes) + [extra]) is extra:
             l_eff = screen_effective_length(extra, soil, float(frequency), aerial)
-            how = "Wait's radial screen under this aerial"
+            how = "Wait's screen"
         out["effective_length_m"] = l_eff
         out["note"] = (f"radials longer than {l_eff:.0f} m add nothing at {float(frequency) / 1e6:.2g} MHz "
                        f"in this soil ({how})")
