@@ -38,12 +38,104 @@ References
 
 from __future__ import annotations
 
+import weakref
+
 import numpy as np
 
 from aerial.models.fullwave_kernel import Filler
 from aerial.models.sommerfeld import SommerfeldTable, closed_form_parts
 
 __all__ = ["remainder_matrices"]
+
+
+#: Pair geometry per filler (dropped with it). [1]
+_GEOMETRY: "weakref.WeakKeyDictionary" = weakref.WeakKeyDictionary()
+
+#: Point pairs up to which the pair geometry (distances, table cells) is kept between frequencies. [1]
+GEOMETRY_CACHE_PAIRS = 2_000_000
+
+
+def _blocks(n_pieces, rows):
+    """Blocks (r0, r1, c0, c1) of piece rows and columns on and above the block diagonal."""
+    edges = list(range(0, n_pieces, rows)) + [n_pieces]
+    spans = list(zip(edges[:-1], edges[1:]))
+    return [(r0, r1, c0, c1) for i, (r0, r1) in enumerate(spans) for (c0, c1) in spans[i:]]
+
+
+def _pair_geometry(filler, table, block):
+    """Horizontal offsets, distance, height sum and table cells of every point pair of a block (obs rows, src cols)."""
+    r0, r1, c0, c1 = block
+    x, y = filler.pts[r0:r1], filler.pts[c0:c1]
+    dx = x[:, :, None, None, 0] - y[None, None, :, :, 0]
+    dy = x[:, :, None, None, 1] - y[None, None, :, :, 1]
+    rho = np.hypot(dx, dy)
+    h = x[:, :, None, None, 2] + y[None, None, :, :, 2]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        inv = np.where(rho > 0, 1.0 / np.where(rho > 0, rho, 1.0), 0.0)
+    return {"dx": dx * inv, "dy": dy * inv, "rho": rho, "h": h, "cells": table.cells(rho, h)}
+
+
+def _geometry(filler, table, blocks):
+    """Pair geometry of every block, kept on the filler between frequencies when it is small enough."""
+    key = (table.log_r[0], table.log_r[-1], table.log_r.size, table.angle.size, tuple(blocks))
+    cache = _GEOMETRY.setdefault(filler, {})
+    if key in cache:
+        return cache[key]
+    pairs = (filler.topo.n_pieces * filler.q) ** 2
+    if pairs > GEOMETRY_CACHE_PAIRS:
+        return None
+    cache.clear()
+    cache[key] = [_pair_geometry(filler, table, b) for b in blocks]
+    return cache[key]
+
+
+def _reduce(x, kern, y):
+    """out[a, b] = sum_ij x[a, i] kern[a, i, b, j] y[b, j]."""
+    return np.einsum("ai,aibj,bj->ab", x, kern, y, optimize=False)
+
+
+def _block(filler, table, block, geo, m_a, m_c, m_phi):
+    """Fill one block of piece pairs (and, off the diagonal, its mirror: the kernels are symmetric).
+
+    ``m_a[e][f]``, ``m_c[f]``, ``m_phi``: piece-by-piece matrices (observation piece, source piece) of the
+    vector potential between basis ends e and f, of the charge-to-vertical-current term and of the scalar potential.
+    """
+    r0, r1, c0, c1 = block
+    A, B = slice(r0, r1), slice(c0, c1)
+    t = filler.t
+    w0, w1 = filler.wphi
+    wa, wb = (w0[A], w1[A]), (w0[B], w1[B])
+    full_a, full_b = wa[0] + wa[1], wb[0] + wb[1]
+    ux, uy, rho, h = geo["dx"], geo["dy"], geo["rho"], geo["h"]
+    vals = table.evaluate_cells(geo["cells"], rho.shape)
+    t1c, t0c = closed_form_parts(table.k0, table.eps_c, rho, h)
+    t1 = vals[3] + t1c
+    t0 = table.k0 ** 2 * (vals[4] + t0c)
+    tt_h = (t[A, :2] @ t[B, :2].T)[:, None, :, None]
+    tt_v = np.outer(t[A, 2], t[B, 2])[:, None, :, None]
+    base = tt_h * vals[0] + tt_v * vals[1]
+    # source in B, observation in A: -t_A,z (t_B,h . rho^) T1, rho^ the unit vector from the source point
+    fwd = base - (t[A, 2][:, None, None, None] * (t[None, None, B, None, 0] * ux + t[None, None, B, None, 1] * uy)) * t1
+    for e in range(2):
+        for f in range(2):
+            m_a[e][f][A, B] = _reduce(wa[e], fwd, wb[f])
+    for f in range(2):
+        m_c[f][A, B] = _reduce(full_a, t0, wb[f]) * t[None, B, 2]
+    m_phi[A, B] = _reduce(full_a, vals[2], full_b)
+    if r0 == c0:
+        return
+    # the mirror block: source in A, observation in B (rho^ reversed, the source tangent now A's)
+    back = base + (t[None, None, B, 2, None] * (t[A, None, None, None, 0] * ux + t[A, None, None, None, 1] * uy)) * t1
+    for e in range(2):
+        for f in range(2):
+            m_a[e][f][B, A] = _reduce(wa[f], back, wb[e]).T
+    for f in range(2):
+        m_c[f][B, A] = _reduce(wa[f], t0, full_b).T * t[None, A, 2]
+    m_phi[B, A] = m_phi[A, B].T
+
+
+#: Point pairs per block of the remainder fill (memory of one block's kernels, about 16 bytes x 12 each). [1]
+BLOCK_PAIRS = 40_000
 
 
 def remainder_matrices(filler: Filler, table: SommerfeldTable):
@@ -60,48 +152,31 @@ def remainder_matrices(filler: Filler, table: SommerfeldTable):
     -------
     a_extra, phi_extra : ndarray of complex, shape (N, N)
         To be added to A [m] and Phi [1/m] (see the module docstring).
+
+    Notes
+    -----
+    The remainder kernels depend on a pair of points only through the
+    horizontal distance and the height sum, so they are evaluated once for
+    each block of piece pairs on and above the block diagonal and serve the
+    mirror block too (only the horizontal-to-vertical term, which takes the
+    source's tangent, is formed for each side). The pair geometry and the
+    table cells it falls in are kept on the filler between the frequencies of
+    a sweep (up to ``GEOMETRY_CACHE_PAIRS`` point pairs). The piece-by-piece
+    matrices go to the basis functions once, at the end.
     """
     topo = filler.topo
-    N, P = topo.n_unknowns, topo.n_pieces
-    a_out = np.zeros((N, N), complex)
-    phi_out = np.zeros((N, N), complex)
-    w0, w1 = filler.wphi
-    w_full = w0 + w1
-    t = filler.t
-    te = filler.te_T
-    ch = filler.charge_T
-    y = filler.pts  # (P, Q, 3)
-    k0, eps_c = table.k0, table.eps_c
-    rows = max(1, filler.rows // 2)
-    for r0 in range(0, P, rows):
-        r1 = min(P, r0 + rows)
-        x = y[r0:r1]
-        dx = x[:, :, None, None, 0] - y[None, None, :, :, 0]
-        dy = x[:, :, None, None, 1] - y[None, None, :, :, 1]
-        rho = np.hypot(dx, dy)
-        h = x[:, :, None, None, 2] + y[None, None, :, :, 2]
-        vals = table.evaluate(rho, h)
-        t1c, t0c = closed_form_parts(k0, eps_c, rho, h)
-        t1 = vals[3] + t1c
-        t0 = k0 * k0 * (vals[4] + t0c)
-        with np.errstate(invalid="ignore", divide="ignore"):
-            proj = np.where(rho > 0, (t[None, None, :, None, 0] * dx + t[None, None, :, None, 1] * dy)
-                            / np.where(rho > 0, rho, 1.0), 0.0)
-        g_zx = -proj * t1
-        te_rows = (te[0][:, r0:r1], te[1][:, r0:r1])
-        tt_h = t[r0:r1, :2] @ t[:, :2].T
-        tt_v = np.outer(t[r0:r1, 2], t[:, 2])
-        tz_test = t[r0:r1, 2][:, None]
-        for e, we in enumerate((w0[r0:r1], w1[r0:r1])):
-            for f, wf in enumerate((w0, w1)):
-                s_te = np.einsum("ai,aibj,bj->ab", we, vals[0], wf)
-                s_tm = np.einsum("ai,aibj,bj->ab", we, vals[1], wf)
-                s_zx = np.einsum("ai,aibj,bj->ab", we, g_zx, wf)
-                m = tt_h * s_te + tt_v * s_tm + tz_test * s_zx
-                a_out += te_rows[e] @ (te[f] @ m.T).T
-        for f, wf in enumerate((w0, w1)):
-            s_c = np.einsum("ai,aibj,bj->ab", w_full[r0:r1], t0, wf) * t[None, :, 2]
-            a_out += ch[:, r0:r1] @ (te[f] @ s_c.T).T
-        s_phi = np.einsum("ai,aibj,bj->ab", w_full[r0:r1], vals[2], w_full)
-        phi_out += ch[:, r0:r1] @ (ch @ s_phi.T).T
-    return a_out, phi_out
+    P = topo.n_pieces
+    te, ch = filler.te_T, filler.charge_T
+    m_a = [[np.zeros((P, P), complex) for _ in range(2)] for _ in range(2)]
+    m_c = [np.zeros((P, P), complex) for _ in range(2)]
+    m_phi = np.zeros((P, P), complex)
+    rows = max(4, int(np.sqrt(BLOCK_PAIRS) // filler.q))
+    blocks = _blocks(P, rows)
+    geos = _geometry(filler, table, blocks)
+    for n, block in enumerate(blocks):
+        geo = geos[n] if geos is not None else _pair_geometry(filler, table, block)
+        _block(filler, table, block, geo, m_a, m_c, m_phi)
+    a_out = sum(te[e] @ (te[f] @ m_a[e][f].T).T for e in range(2) for f in range(2))
+    a_out = a_out + sum(ch @ (te[f] @ m_c[f].T).T for f in range(2))
+    phi_out = ch @ (ch @ m_phi.T).T
+    return np.asarray(a_out, complex), np.asarray(phi_out, complex)

@@ -368,6 +368,36 @@ class SommerfeldTable:
         """Largest tabulated R'. [m]"""
         return float(math.exp(self.log_r[-1]))
 
+    def cells(self, rho, h):
+        """Where points (rho, h) [m] fall in the table: R' [m], flat cell index and the four bilinear weights.
+
+        Depends on the geometry and the table's grid only, so a sweep keeps it between frequencies.
+        """
+        rho = np.asarray(rho, float).ravel()
+        h = np.asarray(h, float).ravel()
+        rp = np.maximum(np.hypot(rho, h), MIN_TABLE_DISTANCE)
+        if np.any(rp > self.max_distance * 1.0001):
+            raise ModelInputError(f"Sommerfeld table reaches {self.max_distance:.4g} m; asked for {rp.max():.4g} m")
+        x = (np.log(rp) - self.log_r[0]) / (self.log_r[1] - self.log_r[0])
+        y = np.arctan2(rho, h) / (self.angle[1] - self.angle[0])
+        i = np.clip(np.floor(x).astype(np.intp), 0, len(self.log_r) - 2)
+        j = np.clip(np.floor(y).astype(np.intp), 0, len(self.angle) - 2)
+        fx, fy = np.clip(x - i, 0.0, 1.0), np.clip(y - j, 0.0, 1.0)
+        weights = ((1 - fx) * (1 - fy), fx * (1 - fy), (1 - fx) * fy, fx * fy)
+        return rp, i * len(self.angle) + j, weights
+
+    def evaluate_cells(self, cells, shape):
+        """Bilinear interpolation of the five remainders at points given by :meth:`cells`, shape (5,) + shape. [1/m]"""
+        rp, idx, (w00, w10, w01, w11) = cells
+        n_a = len(self.angle)
+        flat = self.values.reshape(5, -1)
+        out = w00 * flat[:, idx]
+        out += w10 * flat[:, idx + n_a]
+        out += w01 * flat[:, idx + 1]
+        out += w11 * flat[:, idx + n_a + 1]
+        out *= np.exp(-1j * self.k0 * rp) / rp
+        return out.reshape((5,) + tuple(shape))
+
     def evaluate(self, rho, h):
         """Bilinear interpolation of the five remainders at (rho, h), shape (5,) + rho.shape. [1/m]"""
         rho = np.asarray(rho, float)
