@@ -170,6 +170,7 @@ def test_radials_under_the_aerial_are_a_wait_screen_through_the_cli(tmp_path, ca
     assert max(budget["electrode_ohm"]) == 0.0
     assert np.allclose(budget["soil_under_aerial_ohm"], result["aerial"]["ground_loss_ohm"])
     assert all(0 < g < 20 for g in result["aerial"]["ground_loss_ohm"])
+    assert "buried radials as Wait's radial screen" in result["ranges"]["notes"][0]
     part = result["earth"]["parts"][0]
     assert part["impedance_method"].startswith("Wait's radial screen")
     monkeypatch.setenv("COLUMNS", "200")

@@ -891,11 +891,15 @@ def _open_ground_warnings(site, geometry) -> list:
 
 
 def _range_notes(site, range_method) -> list:
+    from aerial.estimate.earth import radial_system
     from aerial.geometry.resolve import building_of
 
+    earth_model = "earth electrodes as lossy lines"
+    if range_method == "closed form" and radial_system(site.electrodes) is not None:
+        earth_model = "buried radials as Wait's radial screen"
     notes = [
         "Ranges move every support by its height tolerance and the soil between its category's bounds, by the "
-        f"same model as the value ({range_method}, earth electrodes as lossy lines); each range holds the value "
+        f"same model as the value ({range_method}, {earth_model}); each range holds the value "
         "and both tolerance runs.",
         "Nearby buildings, trees and wiring are not modelled; measured aerial capacitance can differ from any "
         "formula by a large factor. A bench measurement ([receiver.measured]) replaces the estimate.",
