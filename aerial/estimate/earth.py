@@ -66,9 +66,14 @@ def screen_aerial(segments, frequency=None):
     return {"distance_m": r, "field_per_m": rs.static_ground_field(np.c_[s, z], q, r)}
 
 
+def radial_sets(electrodes) -> list:
+    """The site's sets of buried radials (arrangement "radials", two or more each), all taken from one hub."""
+    return [e for e in electrodes if e.kind == "buried_wires" and e.arrangement == "radials" and e.count >= 2]
+
+
 def radial_system(electrodes):
-    """The site's buried radials (arrangement "radials", two or more; the set with the most wire), or None."""
-    found = [e for e in electrodes if e.kind == "buried_wires" and e.arrangement == "radials" and e.count >= 2]
+    """The set of buried radials with the most wire (the part that stands for the screen), or None."""
+    found = radial_sets(electrodes)
     return max(found, key=lambda e: e.count * e.length_m) if found else None
 
 
@@ -82,17 +87,19 @@ def screen_loss(radials, soil, frequency, aerial) -> dict:
         ``within_radials_ohm``, ``method``, ``warnings``.
     """
     f = np.atleast_1d(np.asarray(frequency, float))
-    dz, inner = rs.screen_loss_of_field(f, aerial["distance_m"], aerial["field_per_m"], radials.count,
-                                        radials.length_m, radials.diameter_m / 2.0, soil.conductivity_s_m,
-                                        soil.relative_permittivity)
+    sets = radials if isinstance(radials, (list, tuple)) else [radials]
+    counts, lengths = [e.count for e in sets], [e.length_m for e in sets]
+    radius = float(np.average([e.diameter_m / 2.0 for e in sets], weights=[n * x for n, x in zip(counts, lengths)]))
+    dz, inner = rs.screen_loss_of_field(f, aerial["distance_m"], aerial["field_per_m"], counts, lengths, radius,
+                                        soil.conductivity_s_m, soil.relative_permittivity)
     warnings = []
     skin = 1.0 / float(lines.soil_gamma(float(np.sqrt(f.min() * f.max())), 1.0 / soil.conductivity_s_m,
                                         soil.relative_permittivity)[0].real)
-    if skin > radials.length_m:
+    if skin > max(lengths):
         warnings.append(f"Wait's radial screen treats the soil as a surface impedance: rough where the soil's skin "
-                        f"depth ({skin:.0f} m here) is not short against the radials ({radials.length_m:.0f} m)")
-    method = (f"Wait's radial screen ({radials.count} radials of {radials.length_m:.3g} m) and the soil beyond, "
-              "compensation theorem")
+                        f"depth ({skin:.0f} m here) is not short against the radials ({max(lengths):.0f} m)")
+    what = " and ".join(f"{n} radials of {x:.3g} m" for n, x in zip(counts, lengths))
+    method = f"Wait's radial screen ({what}) and the soil beyond, compensation theorem"
     return {"impedance_ohm": np.maximum(dz.real, 0.0) + 1j * dz.imag, "within_radials_ohm": np.maximum(inner, 0.0),
             "method": method, "warnings": warnings}
 
@@ -286,12 +293,12 @@ def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=(), fixe
              "its DC resistance formula as the frequency falls."]
     radials = radial_system(items) if aerial is not None else None
     if radials is not None:
-        screen = screen_loss(radials, soil, f, aerial)
+        screen = screen_loss(radial_sets(items), soil, f, aerial)
         n = items.index(radials)
         parts[n] = dict(parts[n], impedance_ohm=screen["impedance_ohm"], method=screen["method"])
         z = screen["impedance_ohm"]
-        notes = [f"Buried radials as Wait's radial screen under the aerial: the ground loss over the screen and the "
-                 f"soil (compensation theorem); other electrodes bonded at the hub are left out of the total."]
+        notes = ["Buried radials as Wait's radial screen under the aerial: the ground loss over the screen and the "
+                 "soil (compensation theorem); other electrodes bonded at the hub are left out of the total."]
         return {"impedance_ohm": z, "parts": parts, "frequency_hz": f, "notes": notes, "screen": screen}
     if not parts:
         z = np.full(f.size, dc["resistance_ohm"] + 0j)
@@ -379,8 +386,8 @@ def improved_earth(electrodes, soil, frequency=None, radial_length_m: float | No
         out["resistance_ohm"] = float(rf["impedance_ohm"][0].real)
         l_eff = float(rf["parts"][-1]["effective_length_m"][0])
         how = "their effective length"
-        if "screen" in rf and radial_system(list(electrodes) + [extra]) is extra:
-            l_eff = screen_effective_length(extra, soil, float(frequency), aerial)
+        if "screen" in rf:
+            l_eff = screen_effective_length(radial_sets(electrodes), extra, soil, float(frequency), aerial)
             how = "Wait's screen"
         out["effective_length_m"] = l_eff
         out["note"] = (f"radials longer than {l_eff:.0f} m add nothing at {float(frequency) / 1e6:.2g} MHz "
@@ -388,20 +395,19 @@ def improved_earth(electrodes, soil, frequency=None, radial_length_m: float | No
     return out
 
 
-def screen_effective_length(radials, soil, frequency: float, aerial) -> float:
-    """Radial length beyond which Wait's screen lowers the aerial's ground loss by less than 10 %. [m]
+def screen_effective_length(fixed, radials, soil, frequency: float, aerial) -> float:
+    """Length of ``radials`` beyond which Wait's screen lowers the aerial's ground loss by less than 10 %. [m]
 
-    The loss is integrated for ``radials.count`` radials of lengths from 1 m to a quarter wavelength (log
-    spaced, 16 per decade); the effective length is the shortest whose loss is within
-    ``EFFECTIVE_LENGTH_CHANGE`` of the quarter-wave one.
+    ``fixed``: other sets of radials at the same hub, kept as they are. The loss is integrated with
+    ``radials.count`` radials of lengths from 1 m to a quarter wavelength (log spaced, 16 per decade); the
+    effective length is the shortest whose loss is within ``EFFECTIVE_LENGTH_CHANGE`` of the quarter-wave one.
     """
     from aerial.core.constants import SPEED_OF_LIGHT
 
     top = max(0.25 * SPEED_OF_LIGHT / frequency, 2.0)
     lengths = np.geomspace(1.0, top, 1 + int(np.ceil(16 * np.log10(top))))
-    loss = np.array([rs.screen_loss_of_field([frequency], aerial["distance_m"], aerial["field_per_m"], radials.count,
-                                             float(n), radials.diameter_m / 2.0, soil.conductivity_s_m,
-                                             soil.relative_permittivity)[0][0].real for n in lengths])
+    loss = np.array([screen_loss(list(fixed) + [replace(radials, length_m=float(n))], soil, [frequency],
+                                 aerial)["impedance_ohm"][0].real for n in lengths])
     ok = loss <= loss[-1] * (1.0 + lines.EFFECTIVE_LENGTH_CHANGE) + 1e-12
     return float(lengths[int(np.argmax(ok))])
 
@@ -412,5 +418,5 @@ def as_counterpoise_site(site):
 
 
 __all__ = ["earth_system", "improved_earth", "electrode_impedance", "resistance_bounds", "BUILDING_EARTH_TYPICAL_OHM", "replace",
-           "soil_permittivities", "soil_bound", "screen_aerial", "radial_system", "screen_loss",
+           "soil_permittivities", "soil_bound", "screen_aerial", "radial_system", "radial_sets", "screen_loss",
            "screen_effective_length"]

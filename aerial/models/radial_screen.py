@@ -164,10 +164,12 @@ def radial_screen_impedance(frequency, distance, count, radial_length, wire_radi
     ----------
     frequency, distance : array_like (broadcast)
         [Hz], [m]
-    count : int
-        Number of radials (0: the soil alone). [1]
-    radial_length : float
-        [m]
+    count : int or sequence of int
+        Number of radials (0: the soil alone); several sets of radials of
+        different lengths from the same hub as sequences, the screen at each
+        distance made of the radials reaching it. [1]
+    radial_length : float or sequence of float
+        Length of the radials of each set. [m]
     wire_radius : float
         [m]
     conductivity, relative_permittivity : float
@@ -187,12 +189,16 @@ def radial_screen_impedance(frequency, distance, count, radial_length, wire_radi
     f = np.asarray(frequency, float)
     r = np.asarray(distance, float)
     z_soil = soil_surface_impedance(f, conductivity, relative_permittivity) * np.ones_like(r)
-    if count <= 0 or radial_length <= 0:
+    counts = np.atleast_1d(np.asarray(count, float))
+    lengths = np.broadcast_to(np.asarray(radial_length, float), counts.shape)
+    # radials reaching each distance (sets of different lengths from one hub)
+    reaching = np.sum(counts[:, None] * (r.ravel()[None, :] < lengths[:, None]), axis=0).reshape(r.shape)
+    if not np.any(reaching > 0):
         return z_soil
-    z_w = wait_screen_impedance(f, r, count, wire_radius)
+    z_w = wait_screen_impedance(f, r, np.maximum(reaching, 1.0), wire_radius)
     with np.errstate(invalid="ignore", divide="ignore"):
         both = np.where(np.abs(z_w) > 0, z_soil * z_w / (z_soil + z_w), 0.0)
-    return np.where(r < radial_length, both, z_soil)
+    return np.where(reaching > 0, both, z_soil)
 
 
 @functools.lru_cache(maxsize=4)
@@ -458,5 +464,5 @@ def screen_loss_of_field(frequency, distance, field, count, radial_length, wire_
                                 relative_permittivity)
     g = z * np.asarray(field) ** 2 * 2 * np.pi * r
     seg = 0.5 * (g[:, 1:] + g[:, :-1]) * np.diff(r)
-    inside = (r[1:] <= radial_length * (1 + 1e-12))[None, :]
+    inside = (r[1:] <= np.max(radial_length) * (1 + 1e-12))[None, :]
     return seg.sum(axis=1), np.where(inside, seg.real, 0.0).sum(axis=1)

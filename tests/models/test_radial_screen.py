@@ -127,3 +127,14 @@ def test_consistency_more_radials_and_longer_radials_never_add_loss():
     assert all(a > b for a, b in zip(by_count, by_count[1:]))
     assert all(a > b for a, b in zip(by_length, by_length[1:]))
     assert loss(0, 0.0) > by_count[0]
+
+
+def test_consistency_sets_of_radials_share_one_screen():
+    # consistency check: two sets from one hub make a screen of the radials reaching each distance
+    from aerial.models.radial_screen import radial_screen_impedance
+
+    r = np.array([5.0, 15.0, 25.0])
+    both = radial_screen_impedance(1e6, r, [16, 8], [10.0, 20.0], 1e-3, 3e-3, 22.0)
+    assert both[0] == pytest.approx(radial_screen_impedance(1e6, 5.0, 24, 30.0, 1e-3, 3e-3, 22.0), rel=1e-12)
+    assert both[1] == pytest.approx(radial_screen_impedance(1e6, 15.0, 8, 30.0, 1e-3, 3e-3, 22.0), rel=1e-12)
+    assert both[2] == pytest.approx(radial_screen_impedance(1e6, 25.0, 0, 0.0, 1e-3, 3e-3, 22.0), rel=1e-12)
