@@ -99,9 +99,11 @@ def test_extreme_sites_give_finite_figures_and_flag_long_wires(tmp_path, site):
     total = result["geometry"]["total_length_m"]
     eighth = SPEED_OF_LIGHT / f_top / 8.0
     flagged = any("1/8 wavelength" in w for w in result["warnings"])
-    if total > 1.001 * eighth:
+    # within 1 % of the limit either answer is right: the band's top point and the wire's length are
+    # both rounded on the way in
+    if total > 1.01 * eighth:
         assert flagged, (total, eighth, result["warnings"])
-    elif total < 0.999 * eighth:
+    elif total < 0.99 * eighth:
         assert not flagged, (total, eighth, result["warnings"])
 
 
