@@ -116,3 +116,13 @@ def test_station_tuning_legend_covers_no_point(capsys):
     ax = fig.axes[0]
     legend = fig.legends[0] if fig.legends else ax.get_legend()
     assert not legend.get_window_extent(renderer).overlaps(ax.get_window_extent(renderer))
+
+
+def test_layout_page_names_the_frequency_and_the_present_wire(capsys, tmp_path):
+    page = tmp_path / "plan.html"
+    code, out, err = run(capsys, "layout", BACKYARD, "--page", page, "--quiet")
+    assert code == 0, err
+    html = page.read_text(encoding="utf-8")
+    assert "effective height at 940 kHz" in html  # the report's what-if and earth-table frequency
+    assert "your present wire, as &#x27;aerial report&#x27; figures it at 940 kHz" in html or \
+        "your present wire, as 'aerial report' figures it at 940 kHz" in html

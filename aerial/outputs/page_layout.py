@@ -80,7 +80,9 @@ def _layouts_table(result) -> str:
         reasons.append(f"your present wire, as 'aerial report' figures it{where}: effective height "
                        f"{eng(present.get('effective_height_m'), 'm')}, {eng(present.get('capacitance_f'), 'F')}, "
                        f"score {present.get('score', 0):.1f}" + (f" {unit}" if unit else ""))
-    return (table(["rank", "layout", "wire", "top", "lead-in", "effective height", "capacitance",
+    lays = result.get("layouts", [])
+    at = f" at {eng(lays[0]['figures_at_hz'], 'Hz')}" if lays and lays[0].get("figures_at_hz") else ""
+    return (table(["rank", "layout", "wire", "top", "lead-in", f"effective height{at}", f"capacitance{at}",
                    "margin outside the fall zone", f"score [{unit}]" if unit else "score", "flags"], rows,
                   "Best safe layouts, best first", "wide") + bullets(reasons, "reasons"))
 
@@ -96,7 +98,8 @@ def _summary(result, scene) -> str:
     if layouts:
         win = layouts[0]
         cards = [("top-ranked layout", win.get("description", ""), ""),
-                 ("effective height", eng(win.get("effective_height_m"), "m"), ""),
+                 ("effective height" + (f" at {eng(win['figures_at_hz'], 'Hz')}" if win.get("figures_at_hz") else ""),
+                  eng(win.get("effective_height_m"), "m"), ""),
                  ("wire (top and lead-in)", eng(win.get("wire_length_m"), "m"), ""),
                  ("capacitance", eng(win.get("capacitance_f"), "F"), ""),
                  (f"score [{result.get('score_unit', '')}]", f"{win.get('score', 0):.1f}", "")]
