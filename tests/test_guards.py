@@ -110,7 +110,8 @@ def test_extreme_sites_give_finite_figures_and_flag_long_wires(tmp_path, site):
 @settings(max_examples=40, deadline=None)
 @given(st.floats(1.0, 2000.0), st.floats(1e5, 30e6), st.integers(2, 3000))
 def test_full_wave_estimate_grows_with_length_and_frequencies(length, f_top, n_freq):
-    # consistency check: more wire or more frequencies never needs less memory or time. (With a single
+    # consistency check: more wire or more frequencies never needs less memory or time, but for one piece of
+    # rounding (below). (With a single
     # frequency it can: the solver skips its convergence check at twice the pieces once that would pass
     # its memory limit, and the estimate follows the solver.)
     import numpy as np
@@ -122,7 +123,12 @@ def test_full_wave_estimate_grows_with_length_and_frequencies(length, f_top, n_f
     b = estimate_full_wave(polyline_segments(np.array([[0, 0, 0.5], [0, 0, 8], [2 * length, 0, 8]]), 1e-3), f)
     c = estimate_full_wave(polyline_segments(np.array([[0, 0, 0.5], [0, 0, 8], [length, 0, 8]]), 1e-3),
                            np.linspace(f_top / 2, f_top, n_freq + 10))
-    assert b["unknowns"] >= a["unknowns"] and b["seconds"] >= a["seconds"] and b["memory_bytes"] >= a["memory_bytes"]
+    # A wire's fewest pieces are shared between its straight segments in proportion to length, each rounded up:
+    # lengthening one segment can move that rounding, so the count may drop by at most (segments - 1) = 1 here
+    # (the sum of the round-ups lies between the minimum and the minimum + segments - 1).
+    assert b["unknowns"] >= a["unknowns"] - 1
+    if b["unknowns"] >= a["unknowns"]:
+        assert b["seconds"] >= a["seconds"] and b["memory_bytes"] >= a["memory_bytes"]
     assert c["seconds"] > a["seconds"]
     assert all(math.isfinite(v) and v > 0 for v in (a["seconds"], a["memory_bytes"]))
 
