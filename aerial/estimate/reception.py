@@ -29,6 +29,7 @@ from aerial.models import coil as coil_mod
 from aerial.models.coil import CoilWinding
 from aerial.models import detector as det_mod
 from aerial.models import groundwave as gw_mod
+from aerial.models import network as net_mod
 from aerial.models import noise as noise_mod
 from aerial.models import tank as tank_mod
 from aerial.estimate import station_design as sd_mod
@@ -416,7 +417,8 @@ def _config(parts: TuningParts, **override) -> dict:
     cfg = dict(arrangement=parts.arrangement, series_capacitance=parts.series_capacitance_f,
                detector_tap=parts.detector_tap_fraction,
                tap_fraction=parts.tap_fraction, primary_inductance=parts.primary_inductance_h,
-               coupling_coefficient=parts.coupling_coefficient, self_capacitance=0.0)
+               coupling_coefficient=parts.coupling_coefficient, self_capacitance=0.0,
+               detector_conductance=tn_mod.weak_signal_conductance(_diode(parts)))
     cfg.update(override)
     return cfg
 
@@ -438,20 +440,101 @@ def _coupling(f, aerial: _Aerial, L, q_fun, cfg):
                                   cfg["tap_fraction"], cfg["primary_inductance"], cfg["coupling_coefficient"], rp)
 
 
-def _needed(f, aerial, L, q_fun, cfg):
-    t = _coupling(f, aerial, L, q_fun, cfg)
-    return tank_mod.capacitance_needed(f, t.coil_admittance, t.aerial_admittance) - cfg.get("self_capacitance", 0.0)
+def _needed(f, aerial, L, q_fun, cfg, block=None, wound_like=None):
+    """The tuning capacitor setting for resonance at ``f`` [F], from the network solve.
+
+    The same model as the station verdicts (:func:`tuned_network.station_levels`): the tapped
+    winding with its real coupling between sections (``block``, F(x) of the winding; None: tight;
+    or, with ``wound_like`` a coil, that coil's winding scaled to ``L``), the coil's
+    self-capacitance and the detector at ``cfg["detector_conductance"]`` (by default its
+    weak-signal conductance, the loading a station is first tuned at). Negative when the rest of
+    the network already tunes above ``f``.
+
+    ``L`` or one of the coupling's parts in ``cfg`` (series capacitance, tap, coupling coefficient)
+    may be a column of values, shape (m, 1): the settings then come back as (m, len(f)).
+    """
+    f = np.atleast_1d(np.asarray(f, dtype=float))
+    varied = {k: np.ravel(cfg[k]) for k in ("series_capacitance", "tap_fraction", "coupling_coefficient")
+              if cfg.get(k) is not None and np.ndim(cfg[k]) > 0}
+    if np.ndim(L) > 0 or varied:
+        m = max([np.size(L)] + [v.size for v in varied.values()])
+        Ls = np.broadcast_to(np.ravel(L), (m,))
+        return np.array([_needed(f, aerial, float(Ls[i]), q_fun, {**cfg, **{k: float(v[i]) for k, v in varied.items()}},
+                                 block, wound_like) for i in range(m)])
+    if wound_like is not None:
+        block = _scaled_block(wound_like, L)
+    net = tn_mod.network_parts(cfg["arrangement"], L, q_fun, cfg["detector_tap"], cfg["tap_fraction"],
+                               cfg["series_capacitance"], cfg["primary_inductance"], cfg["coupling_coefficient"],
+                               block, self_capacitance=cfg.get("self_capacitance", 0.0))
+    return net_mod.tuning_capacitance_for(f, _za(aerial)(f), net, cfg["detector_conductance"])
 
 
-def _covers(f_lo, f_hi, aerial, L, q_fun, cfg, cmin, cmax):
-    """Whether the capacitor reaches both band edges, and the settings needed there.
+def _scaled_block(coil, inductance):
+    """F(x) of a coil wound like ``coil`` but of ``inductance`` [H] (the same coupling between its
+    sections); None (tight) when the coil's winding is not known."""
+    if coil is None or coil.block is None:
+        return None
+    ratio = float(inductance) / coil.inductance
+    base = coil.block
+    return lambda x: base(x) * ratio
+
+
+#: Frequencies (log-spaced, band edges included) at which a band's coverage is checked. A tapped
+#: winding or a series capacitor can give the network a second resonance inside the band, where the
+#: setting needed jumps through infinity: the edges alone do not tell whether the band is covered.
+COVER_CHECK_POINTS = 25
+
+
+def _covers(f_lo, f_hi, aerial, L, q_fun, cfg, cmin, cmax, block=None, wound_like=None):
+    """Whether a setting within [cmin, cmax] tunes every frequency of the band; and the settings
+    needed at its two edges [F].
 
     Any one of ``L`` or the coupling's part in ``cfg`` may be a column of values, shape (m, 1):
     then the answer is a boolean array of m and the settings are (m, 2).
     """
-    c = _needed(np.array([f_lo, f_hi]), aerial, L, q_fun, cfg)
-    ok = (c[..., 0] <= cmax) & (c[..., 1] >= cmin)
-    return (bool(ok) if np.ndim(ok) == 0 else ok), c
+    f = np.geomspace(f_lo, f_hi, COVER_CHECK_POINTS)
+    c = _needed(f, aerial, L, q_fun, cfg, block, wound_like)
+    ok = np.all((c >= cmin) & (c <= cmax), axis=-1)
+    return (bool(ok) if np.ndim(ok) == 0 else ok), c[..., [0, -1]]
+
+
+def _reachable_ranges(f_lo, f_hi, setting, cmin, cmax, points=600, refine=30) -> list:
+    """The pieces of [f_lo, f_hi] [Hz] where ``setting(f)`` [F] lies within [cmin, cmax].
+
+    Found on a log grid of ``points``; every edge then refined by bisection in frequency, all
+    edges at once (``refine`` halvings of the grid step). Returns [(low, high), ...] in order [Hz].
+
+    >>> _reachable_ranges(500e3, 1700e3, lambda f: 1 / ((2 * np.pi * f) ** 2 * 240e-6), 15e-12, 365e-12)[0][0] > 500e3
+    True
+    """
+    fine = np.geomspace(f_lo, f_hi, int(points))
+
+    def ok(f):
+        c = setting(f)
+        return (c >= cmin) & (c <= cmax)
+
+    good = ok(fine)
+    if not good.any():
+        return []
+    step = np.diff(good.astype(int))
+    starts = np.flatnonzero(step == 1) + 1
+    ends = np.flatnonzero(step == -1)
+    if good[0]:
+        starts = np.concatenate([[0], starts])
+    if good[-1]:
+        ends = np.concatenate([ends, [fine.size - 1]])
+    lo, hi = fine[starts].copy(), fine[ends].copy()
+    # edges inside the grid: bisect between the last bad and the first good point
+    inner_lo, inner_hi = starts > 0, ends < fine.size - 1
+    g = np.concatenate([lo[inner_lo], hi[inner_hi]])
+    b = np.concatenate([fine[starts[inner_lo] - 1], fine[ends[inner_hi] + 1]])
+    for _ in range(int(refine) if g.size else 0):
+        mid = np.sqrt(g * b)
+        m = ok(mid)
+        g, b = np.where(m, mid, g), np.where(m, b, mid)
+    n_lo = int(inner_lo.sum())
+    lo[inner_lo], hi[inner_hi] = g[:n_lo], g[n_lo:]
+    return [(float(a), float(z)) for a, z in zip(lo, hi)]
 
 
 def _ok_range(ok, lo, hi, points=48, refine=40):
@@ -661,34 +744,38 @@ def _advice(band, aerial, coil: _Coil, parts: TuningParts, c_edges) -> list:
             adv.append(f"the capacitor's minimum of {_pf(cmin)} is too large to reach {_khz(f_hi)} "
                        f"(needs {_pf(c_edges[1])} or less)")
     # a different coil, same everything else
-    rng = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax)[0], 1e-6, 1e-2)
+    rng = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax, wound_like=coil)[0],
+                    1e-6, 1e-2)
     if rng:
         adv.append(f"a coil between {_uh(rng[0])} and {_uh(rng[1])} covers the whole band with this capacitor")
     # coupling changes that lighten the aerial's load on the tank
     arr = parts.arrangement
     if arr in ("direct", "series capacitor"):
-        r = _ok_range(lambda c: _covers(f_lo, f_hi, aerial, L, q, _config(parts, arrangement="series capacitor",
-                                                                          series_capacitance=c), cmin, cmax)[0],
+        r = _ok_range(lambda c: _covers(f_lo, f_hi, aerial, L, q, _coil_config(parts, coil, arrangement="series capacitor",
+                                                                          series_capacitance=c), cmin, cmax,
+                                          coil.block)[0],
                       1e-12, 1e-8)
         if r:
             adv.append(f"use a series capacitor of {_pf(r[0])} to {_pf(r[1])} between aerial and tank "
                        f"(the largest passes the most signal)")
     if arr in ("direct", "coil tap"):
-        r = _ok_range(lambda n: _covers(f_lo, f_hi, aerial, L, q, _config(parts, arrangement="coil tap",
-                                                                          tap_fraction=n), cmin, cmax)[0],
+        r = _ok_range(lambda n: _covers(f_lo, f_hi, aerial, L, q, _coil_config(parts, coil, arrangement="coil tap",
+                                                                          tap_fraction=n), cmin, cmax,
+                                          coil.block)[0],
                       0.02, 1.0)
         if r:
             adv.append(f"use a tap at {r[0]:.2f} to {r[1]:.2f} of the turns from the earthy end")
     if arr == "separate primary" and parts.primary_inductance_h is not None:
-        r = _ok_range(lambda k: _covers(f_lo, f_hi, aerial, L, q, _config(parts, coupling_coefficient=k),
-                                        cmin, cmax)[0], 0.01, 0.95)
+        r = _ok_range(lambda k: _covers(f_lo, f_hi, aerial, L, q, _coil_config(parts, coil, coupling_coefficient=k),
+                                        cmin, cmax, coil.block)[0], 0.01, 0.95)
         if r:
             adv.append(f"set the primary's coupling to k = {r[0]:.2f} ... {r[1]:.2f}")
     if len(adv) == (not low_ok) + (not high_ok) and arr in ("direct", "series capacitor"):
         # no single change works: look for a series capacitor together with a new coil
         for cc in np.geomspace(1e-9, 5e-12, 24):
-            cfg_cc = _config(parts, arrangement="series capacitor", series_capacitance=cc)
-            rng_l = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg_cc, cmin, cmax)[0], 1e-6, 1e-2,
+            cfg_cc = _coil_config(parts, coil, arrangement="series capacitor", series_capacitance=cc)
+            rng_l = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg_cc, cmin, cmax,
+                                                 wound_like=coil)[0], 1e-6, 1e-2,
                               points=32, refine=20)
             if rng_l:
                 adv.append(f"use a series capacitor of about {_pf(cc)} together with a coil of "
@@ -866,7 +953,9 @@ def _table_arrays(table_f, aerial, coil, parts) -> dict:
     strong = tn_mod.tuned_figures(table_f, _za(aerial), net, g_strong, offsets)
     weak = tn_mod.tuned_figures(table_f, _za(aerial), net, tn_mod.weak_signal_conductance(_diode(parts)), offsets)
     r_a, _ = aerial.impedance(table_f)
-    c_needed = strong.capacitance
+    # the setting as the coverage and the station verdicts find it: the network tuned with the detector
+    # at its weak-signal loading (a strong station's setting differs by a small fraction of a pF)
+    c_needed = weak.capacitance
     within = np.ones_like(table_f, dtype=bool)
     if parts.capacitor_min_f is not None:
         within = (c_needed >= parts.capacitor_min_f) & (c_needed <= parts.capacitor_max_f)
@@ -959,30 +1048,39 @@ def _table_rows(table_f, arr, warnings, parts) -> list:
 
 
 def _coverage(band, aerial, coil, parts, warnings) -> tuple:
-    """Band coverage by the capacitor range, with advice when it falls short. Returns (coverage, advice)."""
+    """Band coverage by the capacitor range, with advice when it falls short. Returns (coverage, advice).
+
+    The settings come from the network solve (:func:`_needed`), the model the station verdicts and
+    the tuning table use, so a station is out of the tuning range exactly when it lies outside the
+    reachable ranges stated here.
+    """
     f_lo, f_hi = band
-    c_edges = _needed(np.array([f_lo, f_hi]), aerial, coil.inductance, coil.q, _coil_config(parts, coil))
+    cfg = _coil_config(parts, coil)
+    c_edges = _needed(np.array([f_lo, f_hi]), aerial, coil.inductance, coil.q, cfg, coil.block)
     coverage = {
         "band_low_hz": f_lo,
         "band_high_hz": f_hi,
         "capacitor_needed_at_low_edge_f": _num(c_edges[0], "capacitor_needed_at_low_edge_f", warnings),
         "capacitor_needed_at_high_edge_f": _num(c_edges[1], "capacitor_needed_at_high_edge_f", warnings),
+        "model": "network solve (tapped winding, coil self-capacitance, detector at its weak-signal loading)",
     }
     if parts.capacitor_min_f is None:
         coverage["verdict"] = "no capacitor range given: the settings needed are listed"
         return coverage, []
-    covered = bool(c_edges[0] <= parts.capacitor_max_f and c_edges[1] >= parts.capacitor_min_f)
+    # over the aerial's grid (and the band): what the capacitor reaches, inside the band or beyond it
+    span = (min(float(aerial.f[0]), f_lo), max(float(aerial.f[-1]), f_hi))
+    pieces = _reachable_ranges(*span, lambda f: _needed(f, aerial, coil.inductance, coil.q, cfg, coil.block),
+                               parts.capacitor_min_f, parts.capacitor_max_f)
+    covered = any(a <= f_lo * (1 + 1e-9) and b >= f_hi * (1 - 1e-9) for a, b in pieces)
     coverage["covered"] = covered
-    curve = tuning_range_curve(aerial.f, aerial.r, aerial.x, parts, coil_inductance_h=coil.inductance,
-                               _aerial=aerial, _coil=coil)
-    reach = "reachable_low_hz" in curve
-    if reach:
-        coverage["reachable_low_hz"] = curve["reachable_low_hz"]
-        coverage["reachable_high_hz"] = curve["reachable_high_hz"]
+    coverage["reachable_ranges_hz"] = [[a, b] for a, b in pieces]
+    if pieces:
+        coverage["reachable_low_hz"] = pieces[0][0]
+        coverage["reachable_high_hz"] = pieces[-1][1]
+    words = " and ".join(f"{_khz(a)} to {_khz(b)}" for a, b in pieces)
     coverage["verdict"] = ("covers the band" if covered else
-                           "does not cover the band" + (f": reaches {_khz(curve['reachable_low_hz'])} to "
-                                                        f"{_khz(curve['reachable_high_hz'])}" if reach
-                                                        else ": nothing in the aerial's grid"))
+                           "does not cover the band" + (f": reaches {words}" if pieces
+                                                        else ": no setting of the capacitor tunes inside the band"))
     advice = [] if covered else _advice((f_lo, f_hi), aerial, coil, parts, c_edges)
     return coverage, advice
 
@@ -1034,11 +1132,14 @@ def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningPa
     coil = _coil if _coil is not None else _resolve_coil(
         parts if coil_inductance_h is None else TuningParts(**{**parts.__dict__, "coil_inductance_h": coil_inductance_h}))
     fine = np.geomspace(aerial.f[0], aerial.f[-1], 600) if aerial.f.size > 1 else aerial.f.copy()
-    c_need = _needed(fine, aerial, coil.inductance, coil.q, _coil_config(parts, coil))
+    cfg = _coil_config(parts, coil)
+    c_need = _needed(fine, aerial, coil.inductance, coil.q, cfg, coil.block)
     settings = np.linspace(parts.capacitor_min_f, parts.capacitor_max_f, int(points))
     def crossing(cs):
         diff = c_need - cs
-        idx = np.flatnonzero(np.sign(diff[:-1]) != np.sign(diff[1:]))
+        # only where the setting falls through cs (the resonance moving up the dial): a jump from
+        # below to above it is a second resonance's pole, not a crossing
+        idx = np.flatnonzero((diff[:-1] >= 0) & (diff[1:] < 0))
         if idx.size == 0:
             return None
         i = idx[0]
@@ -1051,16 +1152,23 @@ def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningPa
         if fr is not None:
             out_c.append(float(cs))
             out_f.append(fr)
-    inside = fine[(c_need >= parts.capacitor_min_f) & (c_need <= parts.capacitor_max_f)]
+    pieces = []
+    if aerial.f.size > 1:
+        pieces = _reachable_ranges(fine[0], fine[-1], lambda f: _needed(f, aerial, coil.inductance, coil.q, cfg,
+                                                                        coil.block),
+                                   parts.capacitor_min_f, parts.capacitor_max_f, points=fine.size)
+    elif parts.capacitor_min_f <= c_need[0] <= parts.capacitor_max_f:
+        pieces = [(float(fine[0]), float(fine[0]))]
     warnings = []
-    if inside.size and (inside[0] <= fine[0] or inside[-1] >= fine[-1]):
+    if pieces and (pieces[0][0] <= fine[0] or pieces[-1][1] >= fine[-1]):
         warnings.append("the tuning range reaches the edge of the aerial's frequency grid and may extend beyond it")
     if len(out_c) < len(settings):
         warnings.append(f"{len(settings) - len(out_c)} capacitor settings tune outside the aerial's frequency grid")
     result = {"capacitor_setting_f": out_c, "frequency_hz": out_f, "warnings": warnings + notes}
-    if inside.size:
-        result["reachable_low_hz"] = crossing(parts.capacitor_max_f) or float(inside[0])
-        result["reachable_high_hz"] = crossing(parts.capacitor_min_f) or float(inside[-1])
+    if pieces:
+        result["reachable_low_hz"] = pieces[0][0]
+        result["reachable_high_hz"] = pieces[-1][1]
+        result["reachable_ranges_hz"] = [[a, b] for a, b in pieces]
     else:
         result["warnings"].append("no capacitor setting tunes inside the aerial's frequency grid")
     return result
@@ -1641,7 +1749,8 @@ def _design_rows(scene, aerial, parts, base: _Coil, band) -> list:
             coil = _designed_coil(band, aerial, sub, [])
             if lp is not None:
                 cpl = {**cpl, "primary_inductance": sd_mod.PRIMARY_FRACTION * coil.inductance}
-        c = _needed(scene.frequency, aerial, coil.inductance, scene.q_fun, {**cfg, "self_capacitance": coil.self_capacitance})
+        c = _needed(scene.frequency, aerial, coil.inductance, scene.q_fun, {**cfg, "self_capacitance": coil.self_capacitance},
+                    coil.block)
         yours = parts.capacitor_min_f is not None and sd_mod.fits(c, parts.capacitor_min_f, parts.capacitor_max_f)
         if not yours and sd_mod.standard_capacitor(c) is None:
             continue  # no capacitor reaches every wanted station with this coil and coupling (closed form)
