@@ -216,3 +216,31 @@ def test_rural_example_remedies_that_leave_the_station_inaudible_are_no_success(
     assert faint  # the example's parallel trap keeps the interferer down but the far station too faint
     for r in faint:
         assert not r["meets_margin"] and "audibility threshold" in r["verdict_text"]
+
+
+def test_remedies_are_worked_out_for_the_suggested_design_too():
+    """A 60–500 pF capacitor (invented parts) picks one design with the site's parts and the suggestion picks
+    another (with a common capacitor): the remedies are worked out for each, each says which design it belongs
+    to, and its 'before' figures are that design's own (consistency check)."""
+    parts = TuningParts("direct", coil_inductance_h=240e-6, capacitor_min_f=60e-12, capacitor_max_f=500e-12,
+                        coil_unloaded_q=150.0)
+    d = design_for_stations(**OUTDOOR, parts=parts, stations=BUILDER_STATIONS, band=(520e3, 1710e3), spacing_hz=9e3)
+    assert (d["chosen"]["setting"], d["chosen"]["detector_tap_ratio"]) != \
+        (d["suggested"]["setting"], d["suggested"]["detector_tap_ratio"])
+    groups = {r["applies_to"] for r in d["remedies"]}
+    assert groups == {"yours", "suggested"}
+    for which, design in (("yours", d["chosen"]), ("suggested", d["suggested"])):
+        mine = [r for r in d["remedies"] if r["applies_to"] == which]
+        assert {r["kind"] for r in mine} == {"second tuned circuit", "parallel trap", "series trap"}
+        for r in mine:
+            assert r["separation_before_db"] == pytest.approx(design["worst_separation_db"])
+            assert design["setting"] in r["applies_to_text"]
+    assert all("pF capacitor" in r["applies_to_text"] for r in d["remedies"] if r["applies_to"] == "suggested")
+
+
+def test_report_says_which_design_the_remedies_belong_to(write_site, capsys):
+    p = write_site(BUILDER_SITE)
+    code, out, err = run(capsys, "report", str(p))
+    assert code == 0, err
+    flat = " ".join(out.split())
+    assert "remedies for " in flat and "a parallel trap in the aerial lead" in flat

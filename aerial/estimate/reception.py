@@ -1681,9 +1681,41 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
         out["not_designed_for"] = never
         out["notes"].append("too weak to hear with any of these designs, so left out of the objective (still counted "
                             "as interferers): " + ", ".join(never))
-    if not chosen["meets_margin"] and len(wanted) > 1 and np.isfinite(chosen["worst_separation_db"]):
-        out["remedies"] = _remedies(scene, chosen, parts)
+    remedies = _remedies_for_designs(scene, parts, chosen, suggested, current, len(wanted))
+    if remedies:
+        out["remedies"] = remedies
     return out
+
+
+def _remedies_for_designs(scene, parts, chosen, suggested, current, n_wanted) -> list:
+    """The remedies for each design shown that misses the margin: the best with the site's parts, and the
+    suggestion when it is another design. Each remedy says which design it applies to."""
+    if n_wanted < 2:
+        return []
+    designs = [(chosen, "yours")]
+    if suggested is not chosen:
+        designs.append((suggested, "suggested"))
+    out = []
+    for row, which in designs:
+        if row["meets_margin"] or not np.isfinite(row["worst_separation_db"]):
+            continue
+        words = _remedy_design_words(row, which, row is current, parts.capacitor_min_f is not None,
+                                     suggested is chosen)
+        for r in _remedies(scene, row, parts):
+            out.append({**r, "applies_to": which, "applies_to_text": words})
+    return out
+
+
+def _remedy_design_words(row, which, as_wired, capacitor_given, same) -> str:
+    """Which design a set of remedies is worked out for, in words ("for your parts as wired", ...)."""
+    how = "the coupling and taps as wired" if as_wired else (
+        f"{_setting_text(row['coupling'])}, detector at {row['detector_tap_fraction']:.2f} of the turns")
+    if which == "yours" and capacitor_given:
+        who = "your parts as wired" if as_wired else f"your coil and capacitor with {how}"
+        return f"for {who}" + (" (the suggestion too)" if same else "")
+    cap = row.get("capacitor")
+    cap_words = f", a {cap[1] * 1e12:.0f}–{cap[0] * 1e12:.0f} pF capacitor" if cap is not None else ""
+    return f"for the suggested design ({how}{cap_words})"
 
 
 def _design_scene(aerial, parts, wanted, spacing_hz):

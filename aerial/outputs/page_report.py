@@ -280,7 +280,9 @@ def _remedy_line(r) -> str:
                 f"{eng(r.get('trap_capacitor_f'), 'F')}, tuned to {eng(r.get('tuned_to_hz'), 'Hz')}")
     verdict = r.get("verdict_text") or ("meets the margin" if r["meets_margin"] else "still short of the margin")
     before = f" (was {eng(r['wanted_power_before_w'], 'W')})" if r.get("wanted_power_before_w") is not None else ""
-    return (f"{what}: {r['interferer']} {rel(r['separation_db'])} {r['wanted']} (was {rel(r['separation_before_db'])}); "
+    lead = f"{r['applies_to_text'][0].upper()}{r['applies_to_text'][1:]}: " if r.get("applies_to_text") else ""
+    return (f"{lead}{what}: {r['interferer']} {rel(r['separation_db'])} {r['wanted']} "
+            f"(was {rel(r['separation_before_db'])}); "
             f"{r['wanted']} then gets {eng(r['wanted_power_w'], 'W')} at the detector{before} — {verdict}")
 
 

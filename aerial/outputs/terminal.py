@@ -766,7 +766,11 @@ def _render_station_design(tuning, console) -> None:
         console.print(f"  → {escape(line)}")
     for line in design.get("notes", []):
         console.print(f"[dim]{escape(line)}[/dim]")
+    heading = None
     for r in design.get("remedies", []):
+        if r.get("applies_to_text") and r["applies_to_text"] != heading:
+            heading = r["applies_to_text"]
+            console.print(f"  remedies {escape(heading)}:")
         if r["kind"] == "second tuned circuit":
             what = (f"a second tuned circuit for the aerial (aerial through {eng(r['series_capacitor_f'], 'F')} to "
                     f"{eng(r['primary_inductance_h'], 'H')} tuned by about {eng(r['primary_capacitor_f'], 'F')}) coupled "
