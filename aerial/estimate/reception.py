@@ -350,6 +350,7 @@ def _winding_block(w: CoilWinding, turns, pitch, L):
     """F(x) of a single-layer winding (Nagaoka), scaled so that F(1) is the coil's inductance."""
     whole = float(coil_mod.solenoid_inductance(w.form_diameter_m, w.wire_diameter_m, turns, pitch))
 
+    @functools.lru_cache(maxsize=256)  # the same few tap positions come back in every search
     def block(x):
         x = float(x)
         if x <= 0:
@@ -485,6 +486,29 @@ def _scaled_block(coil, inductance):
 COVER_CHECK_POINTS = 25
 
 
+@functools.lru_cache(maxsize=64)
+def _cover_grid(f_lo, f_hi):
+    f = np.geomspace(f_lo, f_hi, COVER_CHECK_POINTS)
+    f.setflags(write=False)
+    return f
+
+
+def _remembered_q(q_fun):
+    """``q_fun`` remembering its values per frequency grid (the searches ask for the same grid again and again)."""
+    seen: dict = {}
+
+    def q(f):
+        f = np.asarray(f, dtype=float)
+        key = (f.shape, f.tobytes())
+        if key not in seen:
+            if len(seen) > 64:
+                seen.clear()
+            seen[key] = q_fun(f)
+        return seen[key]
+
+    return q
+
+
 def _covers(f_lo, f_hi, aerial, L, q_fun, cfg, cmin, cmax, block=None, wound_like=None):
     """Whether a setting within [cmin, cmax] tunes every frequency of the band; and the settings
     needed at its two edges [F].
@@ -492,7 +516,7 @@ def _covers(f_lo, f_hi, aerial, L, q_fun, cfg, cmin, cmax, block=None, wound_lik
     Any one of ``L`` or the coupling's part in ``cfg`` may be a column of values, shape (m, 1):
     then the answer is a boolean array of m and the settings are (m, 2).
     """
-    f = np.geomspace(f_lo, f_hi, COVER_CHECK_POINTS)
+    f = _cover_grid(float(f_lo), float(f_hi))
     c = _needed(f, aerial, L, q_fun, cfg, block, wound_like)
     ok = np.all((c >= cmin) & (c <= cmax), axis=-1)
     return (bool(ok) if np.ndim(ok) == 0 else ok), c[..., [0, -1]]
@@ -537,7 +561,7 @@ def _reachable_ranges(f_lo, f_hi, setting, cmin, cmax, points=600, refine=30) ->
     return [(float(a), float(z)) for a, z in zip(lo, hi)]
 
 
-def _ok_range(ok, lo, hi, points=48, refine=40):
+def _ok_range(ok, lo, hi, points=48, refine=20):
     """Range [a, b] (log grid, refined at the ends) where ``ok(x)`` holds; None if nowhere on the grid.
 
     ``ok`` takes a number, or the whole grid as a column (shape (points, 1)) and answers for
@@ -729,7 +753,7 @@ def calibrate_aerial(calibration: Calibration, parts: TuningParts) -> dict:
 def _advice(band, aerial, coil: _Coil, parts: TuningParts, c_edges) -> list:
     f_lo, f_hi = band
     cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
-    L, q = coil.inductance, coil.q
+    L, q = coil.inductance, _remembered_q(coil.q)
     cfg = _coil_config(parts, coil)
     adv = []
     low_ok = c_edges[0] <= cmax

@@ -277,7 +277,9 @@ def station_levels(frequency, open_circuit_voltage, za: Callable, parts: net_mod
         return np.abs(net_mod.solve_network(f, za(f), parts, c, g).detector_voltage)
 
     edges = net_mod.detector_bandwidth(fs, response) if bandwidth else _no_edges(fs)
-    cross = net_mod.solve_network(fs[np.newaxis, :], z_s[np.newaxis, :], parts, c[:, np.newaxis],
-                                  g[:, np.newaxis]).detector_voltage
+    # every station j through the network tuned to station i: one bare solve per station, each tuning
+    # added as a change of rank two (network.retuned_detector_voltage)
+    cross = net_mod.retuned_detector_voltage(net_mod.solve_network(fs, z_s, parts, 0.0, 0.0), fs[np.newaxis, :],
+                                             c[:, np.newaxis], g[:, np.newaxis])
     others = v_oc[np.newaxis, :] * np.abs(cross)
     return StationLevels(c_raw, v, r_in, top, converged, edges.loaded_q, edges.bandwidth, others)

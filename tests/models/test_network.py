@@ -167,3 +167,26 @@ def test_a_parallel_trap_in_the_lead_blocks_its_frequency_only():
     _, z_off = net.trap_source(1.3e6, za, "parallel", L, c, 2.0)
     assert abs(z_at) > 100 * abs(za)  # (ωL)²/R at resonance
     assert abs(z_off) < 3 * abs(za)
+
+
+@pytest.mark.parametrize("parts", [
+    net.NetworkParts("direct", 240e-6, 6.0),
+    net.NetworkParts("coil tap", 240e-6, 6.0, detector_tap=0.3, aerial_tap=0.5,
+                     block=lambda x: 240e-6 * float(x) ** 1.6),  # a winding less than tightly coupled
+    net.NetworkParts("series capacitor", 240e-6, 6.0, detector_tap=0.5, series_capacitance=47e-12,
+                     self_capacitance=3e-12),
+    net.NetworkParts("separate primary", 240e-6, 6.0, detector_tap=0.7, primary_inductance=24e-6,
+                     coupling_coefficient=0.3, primary_resistance=1.0),
+], ids=lambda p: p.arrangement)
+def test_consistency_check_retuned_detector_voltage_matches_a_full_solve(parts):
+    """Every tuning of an n × n table added to one bare solve as a change of rank two (the Sherman–Morrison–
+    Woodbury identity, Golub & Van Loan, Matrix Computations, 1996, section 2.1.3) gives what solving each
+    tuned network afresh gives (consistency check on invented parts)."""
+    f = np.linspace(550e3, 1650e3, 7)
+    za = 40.0 - 1j / (2 * np.pi * f * 150e-12)
+    c = np.linspace(20e-12, 300e-12, 7)
+    g = np.geomspace(1e-6, 4e-4, 7)
+    full = net.solve_network(f[np.newaxis, :], za[np.newaxis, :], parts, c[:, np.newaxis], g[:, np.newaxis])
+    quick = net.retuned_detector_voltage(net.solve_network(f, za, parts), f[np.newaxis, :], c[:, np.newaxis],
+                                         g[:, np.newaxis])
+    assert np.allclose(quick, full.detector_voltage, rtol=1e-9, atol=0)
