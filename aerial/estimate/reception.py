@@ -455,18 +455,37 @@ def _needed(f, aerial, L, q_fun, cfg, block=None, wound_like=None):
     may be a column of values, shape (m, 1): the settings then come back as (m, len(f)).
     """
     f = np.atleast_1d(np.asarray(f, dtype=float))
-    varied = {k: np.ravel(cfg[k]) for k in ("series_capacitance", "tap_fraction", "coupling_coefficient")
-              if cfg.get(k) is not None and np.ndim(cfg[k]) > 0}
-    if np.ndim(L) > 0 or varied:
-        m = max([np.size(L)] + [v.size for v in varied.values()])
-        Ls = np.broadcast_to(np.ravel(L), (m,))
-        return np.array([_needed(f, aerial, float(Ls[i]), q_fun, {**cfg, **{k: float(v[i]) for k, v in varied.items()}},
-                                 block, wound_like) for i in range(m)])
+    if cfg.get("tap_fraction") is not None and np.ndim(cfg["tap_fraction"]) > 0:  # taps change the winding's cut
+        taps = np.ravel(cfg["tap_fraction"])
+        return np.array([_needed(f, aerial, L, q_fun, {**cfg, "tap_fraction": float(t)}, block, wound_like)
+                         for t in taps])
+    if np.ndim(L) > 0:  # coils wound alike, of several inductances: one solve (network.solve_network)
+        return _needed_for_coils(f, aerial, np.asarray(L, dtype=float).reshape(-1, 1), q_fun, cfg,
+                                 wound_like.block if wound_like is not None else block)
     if wound_like is not None:
         block = _scaled_block(wound_like, L)
     net = tn_mod.network_parts(cfg["arrangement"], L, q_fun, cfg["detector_tap"], cfg["tap_fraction"],
                                cfg["series_capacitance"], cfg["primary_inductance"], cfg["coupling_coefficient"],
                                block, self_capacitance=cfg.get("self_capacitance", 0.0))
+    return net_mod.tuning_capacitance_for(f, _za(aerial)(f), net, cfg["detector_conductance"])
+
+
+def _needed_for_coils(f, aerial, L, q_fun, cfg, block):
+    """:func:`_needed` for a column of inductances L (m, 1) [H], wound like ``block`` (None: tight). [F], (m, len(f))"""
+    def coil_r(x):
+        return 2.0 * np.pi * np.asarray(x, dtype=float) * L / q_fun(np.asarray(x, dtype=float))
+
+    lp = cfg["primary_inductance"]
+    rp = 0.0
+    if lp is not None:
+        def rp(x):
+            return 2.0 * np.pi * np.asarray(x, dtype=float) * float(lp) / q_fun(np.asarray(x, dtype=float))
+
+    sc, k = cfg["series_capacitance"], cfg["coupling_coefficient"]
+    net = net_mod.NetworkParts(cfg["arrangement"], L, coil_r, float(cfg["detector_tap"]), cfg["tap_fraction"],
+                               None if sc is None else np.asarray(sc, dtype=float), lp,
+                               None if k is None else np.asarray(k, dtype=float), rp, None,
+                               float(cfg.get("self_capacitance", 0.0)), block)
     return net_mod.tuning_capacitance_for(f, _za(aerial)(f), net, cfg["detector_conductance"])
 
 

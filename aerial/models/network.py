@@ -157,7 +157,7 @@ def check_parts(parts: NetworkParts) -> NetworkParts:
     if parts.arrangement not in ARRANGEMENTS:
         valid = ", ".join(f"'{a}'" for a in ARRANGEMENTS)
         raise ModelInputError(f"'{parts.arrangement}' is not a valid coupling arrangement, must be one of {valid}")
-    if not (parts.coil_inductance > 0 and np.isfinite(parts.coil_inductance)):
+    if not (np.all(np.asarray(parts.coil_inductance) > 0) and np.all(np.isfinite(parts.coil_inductance))):
         raise ModelInputError("coil_inductance must be positive")
     if not (0 < parts.detector_tap <= 1):
         raise ModelInputError(f"detector_tap must lie in (0, 1], got {parts.detector_tap!r}")
@@ -165,11 +165,11 @@ def check_parts(parts: NetworkParts) -> NetworkParts:
             "separate primary": ("primary_inductance", "coupling_coefficient")}.get(parts.arrangement, ())
     for name in need:
         v = getattr(parts, name)
-        if v is None or not (v > 0 and np.isfinite(v)):
+        if v is None or not (np.all(np.asarray(v) > 0) and np.all(np.isfinite(v))):
             raise ModelInputError(f"the '{parts.arrangement}' arrangement needs a positive {name}")
     if parts.arrangement == "coil tap" and parts.aerial_tap > 1:
         raise ModelInputError(f"aerial_tap must not exceed 1, got {parts.aerial_tap!r}")
-    if parts.arrangement == "separate primary" and parts.coupling_coefficient >= 1:
+    if parts.arrangement == "separate primary" and np.any(np.asarray(parts.coupling_coefficient) >= 1):
         raise ModelInputError(f"coupling_coefficient must be below 1, got {parts.coupling_coefficient!r}")
     return parts
 
@@ -245,13 +245,23 @@ def solve_network(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
     if np.any(~np.isfinite(f)) or np.any(f <= 0):
         raise ModelInputError("frequency must be positive and finite")
     za = np.asarray(aerial_impedance, dtype=complex)
+    # the coil's inductance, a series capacitance or a coupling coefficient may be arrays too (a search
+    # over part values in one solve)
+    varied = [np.shape(v) for v in (parts.coil_inductance, parts.series_capacitance, parts.coupling_coefficient)
+              if v is not None]
     shape = np.broadcast_shapes(f.shape, za.shape, np.shape(tuning_capacitance), np.shape(detector_conductance),
-                                np.shape(emf))
+                                np.shape(emf), *varied)
     f = np.broadcast_to(f, shape)
     w = 2.0 * np.pi * f
     za = np.broadcast_to(za, shape)
     taps, node = _taps(parts)
-    msec = _sections(tuple(taps), parts.block, float(parts.coil_inductance))
+    if np.ndim(parts.coil_inductance) == 0:
+        msec = _sections(tuple(taps), parts.block, float(parts.coil_inductance))
+    else:  # coils of several inductances wound alike: the winding's sections scaled to each
+        unit = _sections(tuple(taps), parts.block, 1.0)
+        if parts.block is not None:
+            unit = unit / float(parts.block(1.0))
+        msec = unit * np.asarray(parts.coil_inductance, dtype=float)[..., np.newaxis, np.newaxis]
     k = len(taps)
     has_x = parts.arrangement in ("series capacitor", "separate primary")
     primary = parts.arrangement == "separate primary"
@@ -287,18 +297,18 @@ def solve_network(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
             a[..., row, s - 1] -= 1.0
         a[..., row, row] -= r_coil * (edges[s + 1] - edges[s])
         for j in range(k):
-            a[..., row, n_nodes + j] -= 1j * w * msec[s, j]
+            a[..., row, n_nodes + j] -= 1j * w * msec[..., s, j]
     if primary:
         lp = float(parts.primary_inductance)
         row = n_nodes + k
         m_total = parts.coupling_coefficient * np.sqrt(lp * parts.coil_inductance)
-        share = msec.sum(axis=1) / msec.sum()
+        share = msec.sum(axis=1) / msec.sum() if msec.ndim == 2 else msec.sum(axis=-1) / msec.sum(axis=(-2, -1))[..., None]
         a[..., k, row] += 1.0
         a[..., row, k] += 1.0
         a[..., row, row] -= np.broadcast_to(_value(parts.primary_resistance, f), shape) + 1j * w * lp
         for s in range(k):
-            a[..., row, n_nodes + s] -= 1j * w * m_total * share[s]
-            a[..., n_nodes + s, row] -= 1j * w * m_total * share[s]
+            a[..., row, n_nodes + s] -= 1j * w * m_total * share[..., s]
+            a[..., n_nodes + s, row] -= 1j * w * m_total * share[..., s]
         if parts.primary_capacitance is not None:
             a[..., k, k] += 1j * w * parts.primary_capacitance
     with blas_threads(a.shape[-1]):
