@@ -980,8 +980,10 @@ def _table_arrays(table_f, aerial, coil, parts) -> dict:
 
     The capacitor setting, loaded Q, bandwidth, rejections and power to the detector come from
     the network solve (:mod:`aerial.models.network`), with the detector at its strong-signal
-    input resistance (R_L/2) and again at its weak-signal one; the aerial's shunt equivalent
-    and share of the tuning capacitance from the closed-form coupling.
+    input resistance (R_L/2) and again at its weak-signal one. The aerial's share of the tuning
+    capacitance is what the network needs less than the coil alone: the total C at resonance less
+    the setting and the coil's self-capacitance, so that the three add up whatever the coupling;
+    the aerial's shunt resistance, and whether it looks inductive, from the closed-form coupling.
     """
     t = _coupling(table_f, aerial, coil.inductance, coil.q, _coil_config(parts, coil))
     w = 2.0 * np.pi * table_f
@@ -999,6 +1001,7 @@ def _table_arrays(table_f, aerial, coil, parts) -> dict:
     # the setting as the coverage and the station verdicts find it: the network tuned with the detector
     # at its weak-signal loading (a strong station's setting differs by a small fraction of a pF)
     c_needed = weak.capacitance
+    c_aerial = c_total - c_needed - coil.self_capacitance
     within = np.ones_like(table_f, dtype=bool)
     if parts.capacitor_min_f is not None:
         within = (c_needed >= parts.capacitor_min_f) & (c_needed <= parts.capacitor_max_f)
@@ -1007,9 +1010,10 @@ def _table_arrays(table_f, aerial, coil, parts) -> dict:
         "total_capacitance_f": c_total,
         "capacitor_setting_f": c_needed,
         "within": within,
-        "aerial_shunt_capacitance_f": shunt.capacitance,
+        "aerial_shunt_capacitance_f": c_aerial,
+        "aerial_inductive": shunt.capacitance < 0,
         "aerial_shunt_resistance_ohm": shunt.resistance,
-        "aerial_share_ratio": shunt.capacitance / np.where(c_total != 0, c_total, 1e-30),
+        "aerial_share_ratio": c_aerial / np.where(c_total != 0, c_total, 1e-30),
         "unloaded_q": qu,
         "loaded_q": strong.loaded_q,
         "bandwidth_hz": strong.bandwidth,
@@ -1036,7 +1040,7 @@ _ROW_KEYS = ("inductance_h", "total_capacitance_f", "capacitor_setting_f", "with
 NO_RESONANCE_NOTE = "below 1: no useful resonance (the tank barely selects at all)"
 
 
-def _row_tunability(c_need, c_total, c_aerial, parts) -> tuple:
+def _row_tunability(c_need, c_total, c_aerial, parts, inductive=False) -> tuple:
     """Whether a tuning-table row can be tuned, and why not. Returns (tunable, resonates, reason).
 
     ``resonates`` is false when no positive capacitor setting resonates the coil with the aerial
@@ -1045,7 +1049,7 @@ def _row_tunability(c_need, c_total, c_aerial, parts) -> tuple:
     capacitor's range.
     """
     if c_need <= 0:
-        if c_aerial < 0:
+        if inductive:
             reason = ("cannot tune here: the aerial is above its own first resonance and looks like a coil, "
                       "so no capacitor setting resonates it — use a series capacitor, a tap or a shorter aerial")
         elif c_aerial >= c_total:
@@ -1073,7 +1077,8 @@ def _table_rows(table_f, arr, warnings, parts) -> list:
         for key, values in list(arr["rejection"].items()) + list(arr["rejection_weak"].items()):
             row[key] = _num(values[i], "rejection", warnings)
         tunable, resonates, reason = _row_tunability(arr["capacitor_setting_f"][i], arr["total_capacitance_f"][i],
-                                                     arr["aerial_shunt_capacitance_f"][i], parts)
+                                                     arr["aerial_shunt_capacitance_f"][i], parts,
+                                                     bool(arr["aerial_inductive"][i]))
         row["tunable"] = tunable
         row["resonates_with_positive_capacitor"] = resonates
         if reason:
@@ -1084,7 +1089,7 @@ def _table_rows(table_f, arr, warnings, parts) -> list:
         row["useful_resonance"] = bool(resonates and arr["loaded_q"][i] >= 1.0)
         if arr["loaded_q"][i] < 1.0:
             row["loaded_q_note"] = NO_RESONANCE_NOTE
-        if arr["aerial_shunt_capacitance_f"][i] < 0:
+        if arr["aerial_inductive"][i]:
             row["note"] = "the aerial looks inductive here (above its first resonance)"
         rows.append(row)
     return rows
