@@ -592,19 +592,19 @@ def _ok_range(ok, lo, hi, points=48, refine=20):
         return None
     idx = np.flatnonzero(flags)
     i0, i1 = idx[0], idx[-1]
-
-    def edge(good, bad):
+    # both ends bisected together, one call of ``ok`` per halving
+    inner = [(k, xs[i], xs[j]) for k, i, j in ((0, i0, i0 - 1), (1, i1, i1 + 1)) if 0 <= j < xs.size]
+    ends = [xs[i0], xs[i1]]
+    if inner:
+        good = np.array([g for _, g, _ in inner])
+        bad = np.array([b for _, _, b in inner])
         for _ in range(refine):
             mid = np.sqrt(good * bad)
-            if ok(mid):
-                good = mid
-            else:
-                bad = mid
-        return good
-
-    a = xs[i0] if i0 == 0 else edge(xs[i0], xs[i0 - 1])
-    b = xs[i1] if i1 == xs.size - 1 else edge(xs[i1], xs[i1 + 1])
-    return float(a), float(b)
+            m = np.asarray(ok(mid[:, np.newaxis]), dtype=bool).reshape(mid.shape)
+            good, bad = np.where(m, mid, good), np.where(m, bad, mid)
+        for (k, _, _), g in zip(inner, good):
+            ends[k] = g
+    return float(ends[0]), float(ends[1])
 
 
 def watts_words(p: float) -> str:
