@@ -82,7 +82,9 @@ def one_line(text) -> str:
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message):  # one line, exit 2, no usage dump
-        raise AerialError(f"{self.prog}: {message} (see '{self.prog} --help')")
+        # main() puts "aerial: " before the line, so only a subcommand's own name goes here
+        command = self.prog.partition(" ")[2]
+        raise AerialError(f"{command + ': ' if command else ''}{message} (see '{self.prog} --help')")
 
 
 #: Width of the report when stdout is not a terminal and no --width is given: prose wraps here,

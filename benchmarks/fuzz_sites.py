@@ -743,7 +743,7 @@ def _one_line(text: str) -> str:
 
 def _option_error(body: str) -> bool:
     """A message about a command-line option (names the option, not the file)."""
-    return body.startswith("--") or bool(re.match(r"^aerial \w+: (argument|unrecognized)", body))
+    return body.startswith("--") or bool(re.match(r"^(\w+: )?(argument|unrecognized)", body))
 
 
 def _file_level(rest: str) -> bool:

@@ -275,7 +275,13 @@ def _perturbed_wires(site, delta_sign: float = 0.0, raise_m: float = 0.0, extend
             p = np.array(w.points_m, dtype=float)
             at_feed = np.linalg.norm(p - feed, axis=1) < JOIN_TOLERANCE_M  # the loader joins points this close
             dz = np.where(at_feed, 0.0, scale * (delta_sign * tol + raise_m))
-            p[:, 2] = np.maximum(p[:, 2] + dz, 0.3 * p[:, 2] + 0.05 * (~at_feed))
+            z = np.maximum(p[:, 2] + dz, 0.3 * p[:, 2] + 0.05 * (~at_feed))
+            # a point next to the feed does not cross the feed's height: the lead-in would fold back
+            # along the earth lead that leaves the feed (two wires on one line have no static solution)
+            beside = np.convolve(at_feed.astype(int), [1, 1, 1], mode="same").astype(bool) & ~at_feed
+            above = p[:, 2] >= feed[2]
+            z = np.where(beside & above, np.maximum(z, feed[2]), np.where(beside, np.minimum(z, feed[2]), z))
+            p[:, 2] = z
             out.append(replace(w, points_m=p))
         if all(_keeps_length(w.points_m, w.size.radius_m) for w, t in zip(out, tolerances) if t is not None):
             break

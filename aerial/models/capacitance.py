@@ -491,6 +491,29 @@ def _solve(start, end, radius, grounded, image, floating=False, wall=None):
     return q.copy(), mid.copy(), v_cp
 
 
+def _singular_words(mid) -> str:
+    """Why the potential matrix has no inverse, in the wire's own words: two pieces on one spot."""
+    d = np.linalg.norm(mid[:, None, :] - mid[None, :, :], axis=2)
+    np.fill_diagonal(d, np.inf)
+    i, _ = np.unravel_index(int(np.argmin(d)), d.shape)
+    x, y, z = mid[i]
+    return (f"two wire pieces lie on top of each other near ({x:.2f}, {y:.2f}, {z:.2f}) m (a wire doubling back "
+            "along itself, or along another wire or its image in the ground or a facade); wires touching along "
+            "their length are one conductor: draw them as one")
+
+
+def _linear_solve(matrix, rhs, mid):
+    """``numpy.linalg.solve`` that turns a singular or non-finite system into a ModelInputError."""
+    with blas_threads(len(rhs)):
+        try:
+            sol = np.linalg.solve(matrix, rhs)
+        except np.linalg.LinAlgError:
+            sol = None
+    if sol is None or not np.all(np.isfinite(sol)):
+        raise ModelInputError(_singular_words(mid))
+    return sol
+
+
 def _solve_uncached(start, end, radius, grounded, image, floating=False, wall=None):
     mid = 0.5 * (start + end)
     pot = _potential_matrix(mid, start, end, radius)
@@ -500,16 +523,14 @@ def _solve_uncached(start, end, radius, grounded, image, floating=False, wall=No
     # unknowns: line charge density lambda_j; potential = lambda_j * I_ij / (4 pi eps0)
     rhs = np.where(grounded, 0.0, 1.0)
     if not floating:
-        with blas_threads(len(rhs)):
-            lam = np.linalg.solve(pot, rhs) * _FOUR_PI_EPS0
+        lam = _linear_solve(pot, rhs, mid) * _FOUR_PI_EPS0
         return lam * lengths, mid, 0.0
     n = len(rhs)
     system = np.zeros((n + 1, n + 1))
     system[:n, :n] = pot
     system[:n, n] = -grounded.astype(float)  # counterpoise rows: potential - V_c = 0
     system[n, :n] = lengths  # no net charge on aerial + counterpoise
-    with blas_threads(n + 1):
-        sol = np.linalg.solve(system, np.append(rhs, 0.0))
+    sol = _linear_solve(system, np.append(rhs, 0.0), mid)
     return sol[:n] * _FOUR_PI_EPS0 * lengths, mid, float(sol[n])
 
 

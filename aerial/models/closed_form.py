@@ -235,7 +235,9 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
             "(above its tolerance): capacitance and effective height are approximate"
         )
     if c_s <= 0 or not np.isfinite(c_s):
-        raise ModelInputError("the electrostatic solution gave no positive capacitance; check the wire set")
+        raise ModelInputError("the electrostatic solution gave no positive capacitance; check that the wires, "
+                              "lead-in and earth lead stay above the ground and outside the building, and that "
+                              "no wire doubles back along another")
     beside = None
     if building is not None:
         beside = _beside_building(segments, building, es, int(shielding_case), f, warnings)

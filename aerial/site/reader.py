@@ -1340,6 +1340,20 @@ SEASONS = ("winter", "spring", "summer", "autumn")
 SUNSPOT_RANGE = (0.0, 400.0)
 
 
+def _plain_float(value):
+    """A TOML number as a float, or None for a boolean, a non-number or an integer no float can hold.
+
+    TOML integers have no size limit in the reader; the loader's guard for huge integers
+    (``TableReader.number``) refuses any beyond 2**63, so an angle, a level or an offset of
+    hundreds of digits gets the key's own one-line error instead of an overflow.
+    """
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return None
+    if isinstance(value, int) and abs(value) > 2**63:
+        return None
+    return float(value)
+
+
 def _degrees(r: TableReader, data, key, name, low, high):
     """An angle in degrees: a number, or text such as "51.5 deg", "51.5°", "51.5 N", "0.12 W"."""
     full = f"{key}.{name}"
@@ -1351,7 +1365,8 @@ def _degrees(r: TableReader, data, key, name, low, high):
     if isinstance(value, bool):
         ok = False
     elif isinstance(value, (int, float)):
-        v = float(value)
+        v = _plain_float(value)
+        ok = v is not None
     elif isinstance(value, str):
         text = value.lower().replace("°", " deg ").replace("degrees", "deg").strip()
         sign = 1.0
@@ -1395,8 +1410,7 @@ def _night_inputs(r: TableReader, site_t, position=None) -> dict:
         v = site_t["atmospheric_noise"]
         text = v.strip().lower() if isinstance(v, str) else None
         try:
-            fam = float(text.removesuffix("db").strip()) if text is not None else (
-                float(v) if isinstance(v, (int, float)) and not isinstance(v, bool) else None)
+            fam = float(text.removesuffix("db").strip()) if text is not None else _plain_float(v)
         except ValueError:
             fam = None
         if fam is None or not (math.isfinite(fam) and 0.0 <= fam <= 140.0):
@@ -1476,7 +1490,7 @@ def _utc_offset(r: TableReader, site_t):
     v = site_t["utc_offset"]
     hours = None
     if isinstance(v, (int, float)) and not isinstance(v, bool):
-        hours = float(v)
+        hours = _plain_float(v)
     elif isinstance(v, str):
         m = re.fullmatch(r"(?:utc|gmt)?\s*([+-]?)(\d{1,2})(?::?(\d{2}))?(?:\s*h)?", v.strip().lower())
         if m:
