@@ -278,7 +278,10 @@ def _perturbed_wires(site, delta_sign: float = 0.0, raise_m: float = 0.0, extend
             z = np.maximum(p[:, 2] + dz, 0.3 * p[:, 2] + 0.05 * (~at_feed))
             # a point next to the feed does not cross the feed's height: the lead-in would fold back
             # along the earth lead that leaves the feed (two wires on one line have no static solution)
-            beside = np.convolve(at_feed.astype(int), [1, 1, 1], mode="same").astype(bool) & ~at_feed
+            beside = np.zeros_like(at_feed)
+            beside[1:] |= at_feed[:-1]
+            beside[:-1] |= at_feed[1:]
+            beside &= ~at_feed
             above = p[:, 2] >= feed[2]
             z = np.where(beside & above, np.maximum(z, feed[2]), np.where(beside, np.minimum(z, feed[2]), z))
             p[:, 2] = z
