@@ -276,12 +276,13 @@ def _perturbed_wires(site, delta_sign: float = 0.0, raise_m: float = 0.0, extend
             at_feed = np.linalg.norm(p - feed, axis=1) < JOIN_TOLERANCE_M  # the loader joins points this close
             dz = np.where(at_feed, 0.0, scale * (delta_sign * tol + raise_m))
             z = np.maximum(p[:, 2] + dz, 0.3 * p[:, 2] + 0.05 * (~at_feed))
-            # a point next to the feed does not cross the feed's height: the lead-in would fold back
-            # along the earth lead that leaves the feed (two wires on one line have no static solution)
+            # a point next to the feed and straight above or below it does not cross the feed's height:
+            # the lead-in would fold back along the earth lead that leaves the feed there (two wires on
+            # one line have no static solution)
             beside = np.zeros_like(at_feed)
             beside[1:] |= at_feed[:-1]
             beside[:-1] |= at_feed[1:]
-            beside &= ~at_feed
+            beside &= ~at_feed & (np.linalg.norm(p[:, :2] - feed[:2], axis=1) < JOIN_TOLERANCE_M)
             above = p[:, 2] >= feed[2]
             z = np.where(beside & above, np.maximum(z, feed[2]), np.where(beside, np.minimum(z, feed[2]), z))
             p[:, 2] = z
