@@ -109,8 +109,8 @@ def _output_options(progress: bool) -> argparse.ArgumentParser:
     o = argparse.ArgumentParser(add_help=False)
     o.add_argument("--width", type=_width, metavar="N",
                    help="report width in characters (default: the terminal's; when the output is not a terminal, "
-                        "COLUMNS if set, else wide enough for every table); tables that do not fit are listed row "
-                        "by row, never cut")
+                        "COLUMNS if set, else wide enough for every table up to 160 characters, long texts wrapping); "
+                        "tables that do not fit are listed row by row, never cut")
     o.add_argument("--units", choices=UNIT_SYSTEMS, default="si",
                    help="lengths in the report and the plan drawing: si (metres) or us (feet and inches, station "
                         "distances in miles; the report's what-if steps in round feet); --json stays SI")
@@ -190,7 +190,8 @@ def _console(stderr=False, width=None):
 
     Its width: ``width`` (--width) when given; else on a stdout that is not a terminal the
     COLUMNS variable when it holds a width, and when neither is set tables widen to their
-    content (prose wraps at :data:`PIPE_WIDTH`); on a terminal, the terminal's.
+    content up to :data:`aerial.outputs.terminal.FIT_LIMIT` (prose wraps at :data:`PIPE_WIDTH`);
+    on a terminal, the terminal's.
     """
     if stderr:
         from rich.console import Console as base

@@ -87,6 +87,53 @@ def test_width_option_beats_columns_and_no_columns_widens_tables(capsys, monkeyp
     assert "…" not in out
 
 
+def test_piped_without_columns_long_verdicts_wrap_at_the_fit_limit(capsys, monkeypatch, write_site):
+    # a station out of the tuning range gets a long verdict; piped with no width asked for, its
+    # table is shared out over FIT_LIMIT characters instead of one line hundreds of characters long
+    from aerial.outputs.terminal import FIT_LIMIT
+
+    monkeypatch.delenv("COLUMNS", raising=False)
+    site = write_site("""
+        [site]
+        name = "Corner lot, garage to maple"
+        bands = ["mf"]
+        soil = "intermediate"
+        [wire]
+        gauge = "16 AWG"
+        [supports.garage]
+        at = [0, 0]
+        height = "12 ft 6 in"
+        kind = "eave"
+        [supports.maple]
+        at = ["85 ft", "10 ft"]
+        height = "32 ft"
+        kind = "tree"
+        [[spans]]
+        from = "garage"
+        to = "maple"
+        [lead_in]
+        from = "garage"
+        [receiver]
+        at = ["2 ft", "-1 ft"]
+        height = "3 ft"
+        coil = "230 uH"
+        capacitor = ["12 pF", "365 pF"]
+        [[earth.rods]]
+        count = 1
+        length = "8 ft"
+        at = ["3 ft", "-2 ft"]
+        [[stations]]
+        name = "Valley News"
+        frequency = "1010 kHz"
+        power = "5 kW"
+        distance = "30 mi"
+    """)
+    code, out, _ = run(capsys, "report", site, "--quiet")
+    assert code == 0 and "out of the tuning range" in out
+    assert max(len(line) for line in out.splitlines()) <= FIT_LIMIT
+    assert "…" not in out and not parted(out)
+
+
 def test_listed_rows_label_every_design(capsys, monkeypatch):
     monkeypatch.setenv("COLUMNS", "60")
     code, out, _ = run(capsys, "report", EXAMPLES + "backyard_inverted_l.toml", "--quiet")

@@ -256,11 +256,17 @@ def _trim(number: str) -> str:
     return number.rstrip("0").rstrip(".") if "." in number else number
 
 
+FIT_LIMIT = 160
+"""Widest line [characters] a table takes when the output is piped with no width asked for."""
+
+
 def show(console, table: Table) -> None:
     """Print a table without cutting anything.
 
     On a console marked ``fit_to_content`` the console widens to the table's
-    natural width for this one table. Otherwise a table wider than the console
+    natural width for this one table, up to :data:`FIT_LIMIT` characters; a wider
+    table has its columns shared out over that width (long texts wrap), and only a
+    table whose words alone are wider keeps its natural width. Otherwise a table wider than the console
     gives each column at least its longest word (a number with its unit is one
     word) and shares the rest by what each column would still use; when even
     that is wider than the console, the rows are listed one field per line.
@@ -271,15 +277,19 @@ def show(console, table: Table) -> None:
     wide = Measurement.get(console, console.options.update_width(100_000), table)
     if getattr(console, "fit_to_content", False):
         natural = wide.maximum
-        if natural > console.width:
-            old = console.width
-            console.width = natural
-            try:
-                console.print(table)
-            finally:
-                console.width = old
+        if natural <= console.width:
+            console.print(table)
             return
-        console.print(table)
+        old = console.width
+        # up to FIT_LIMIT the table keeps its natural width; past it (long verdict texts) its
+        # columns are shared out over FIT_LIMIT and long texts wrap, unless even its words cannot fit
+        console.width = FIT_LIMIT
+        try:
+            if natural <= FIT_LIMIT or not _share_width(console, table, natural):
+                console.width = natural
+            console.print(table)
+        finally:
+            console.width = old
         return
     if wide.maximum > console.width and not _share_width(console, table, wide.maximum):
         _list_rows(console, table)
