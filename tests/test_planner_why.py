@@ -113,7 +113,7 @@ def test_an_entry_beside_the_service_drop_is_named_as_what_blocks(capsys, tmp_pa
 
 
 def test_layout_report_says_why_and_what_the_score_means(capsys):
-    code, out, _ = run(capsys, "layout", EXAMPLE)
+    code, out, _ = run(capsys, "layout", EXAMPLE, "--width", "300")  # wide enough that no header wraps
     assert code == 0
     flat = " ".join(out.split())
     assert "refused (71 for safety, 37 for geometry)" in flat
