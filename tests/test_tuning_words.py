@@ -22,8 +22,8 @@ def _json(capsys, path):
 
 
 def _text(capsys, path, monkeypatch):
-    monkeypatch.delenv("COLUMNS", raising=False)  # piped: every table at its full width
-    code = main(["report", str(path)])
+    monkeypatch.delenv("COLUMNS", raising=False)
+    code = main(["report", str(path), "--width", "400"])  # every table at its full width
     out, _ = capsys.readouterr()
     assert code == 0
     return out
