@@ -109,7 +109,7 @@ def _output_options(progress: bool) -> argparse.ArgumentParser:
     o = argparse.ArgumentParser(add_help=False)
     o.add_argument("--width", type=_width, metavar="N",
                    help="report width in characters (default: the terminal's; when the output is not a terminal, "
-                        "COLUMNS if set, else wide enough for every table up to 160 characters, long texts wrapping); "
+                        "COLUMNS if set, else wide enough for every table up to 200 characters, long texts wrapping); "
                         "tables that do not fit are listed row by row, never cut")
     o.add_argument("--units", choices=UNIT_SYSTEMS, default="si",
                    help="lengths in the report and the plan drawing: si (metres) or us (feet and inches, station "

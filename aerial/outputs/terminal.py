@@ -256,7 +256,7 @@ def _trim(number: str) -> str:
     return number.rstrip("0").rstrip(".") if "." in number else number
 
 
-FIT_LIMIT = 160
+FIT_LIMIT = 200
 """Widest line [characters] a table takes when the output is piped with no width asked for."""
 
 
