@@ -84,7 +84,21 @@ class _Parser(argparse.ArgumentParser):
     def error(self, message):  # one line, exit 2, no usage dump
         # main() puts "aerial: " before the line, so only a subcommand's own name goes here
         command = self.prog.partition(" ")[2]
-        raise AerialError(f"{command + ': ' if command else ''}{message} (see '{self.prog} --help')")
+        raise AerialError(f"{command + ': ' if command else ''}{message}{_closest_choice(message)} "
+                          f"(see '{self.prog} --help')")
+
+
+def _closest_choice(message: str) -> str:
+    """'; did you mean "report"?' for argparse's invalid-choice message when a choice is close, else ''."""
+    import difflib
+    import re
+
+    m = re.search(r"invalid choice: '([^']*)' \(choose from (.*)\)", message)
+    if not m:
+        return ""
+    choices = [c.strip().strip("'\"") for c in m.group(2).split(",")]
+    close = difflib.get_close_matches(m.group(1).lower(), choices, n=1, cutoff=0.6)
+    return f'; did you mean "{close[0]}"?' if close else ""
 
 
 #: Width of the report when stdout is not a terminal and no --width is given: prose wraps here,

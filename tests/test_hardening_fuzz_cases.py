@@ -110,3 +110,16 @@ def test_argument_errors_carry_one_prefix(capsys, argv, words):
     assert code == EXIT_USER and out == ""
     line = one_line(err)
     assert line.startswith(words) and "aerial: aerial" not in line and "aerial: aerial report" not in line
+
+
+@pytest.mark.parametrize("argv, suggestion", [
+    (["reprot"], 'did you mean "report"?'),
+    (["layuot"], 'did you mean "layout"?'),
+    (["report", "--units", "US"], 'did you mean "us"?'),
+    (["xyz"], None),
+])
+def test_a_mistyped_choice_gets_the_closest_one(capsys, argv, suggestion):
+    code, out, err = run(capsys, *argv)
+    line = one_line(err)
+    assert code == EXIT_USER and out == "" and "invalid choice" in line
+    assert (suggestion in line) if suggestion else ("did you mean" not in line)
