@@ -188,3 +188,26 @@ def test_consistency_a_radial_screen_what_if_beats_the_rod_and_names_its_model()
     radials = next(r for r in rows if r["change"].startswith("add 8 buried radials"))
     assert "Wait's screen" in radials["note"]
     assert radials["loss_resistance_ohm"] < rows[0]["loss_resistance_ohm"]
+
+
+def test_consistency_the_earth_table_gives_the_screens_effective_length(tmp_path, capsys):
+    # consistency check: where the radials are Wait's screen, the earth table's effective length for them is
+    # the screen's (the length past which longer radials stop lowering the aerial's loss), not the lossy
+    # line's, and it is a length the radials could have (1 m to a quarter wavelength)
+    import json
+
+    from aerial.cli import main
+    from aerial.estimate import earth
+    from aerial.geometry.resolve import resolve
+
+    path = tmp_path / "radials.toml"
+    path.write_text(RADIALS_SITE, encoding="utf-8")
+    assert main(["report", str(path), "--json"]) == 0
+    result = json.loads(capsys.readouterr().out)
+    part = result["earth"]["parts"][0]
+    f = result["earth"]["centre_frequency_hz"]
+    site = aerial.load_site(path)
+    radials = earth.radial_system(site.electrodes)
+    expected = earth.screen_effective_length([], radials, site.soil, f, earth.screen_aerial(resolve(site).segments))
+    assert part["effective_length_m"] == pytest.approx(expected, rel=1e-12)
+    assert 1.0 <= part["effective_length_m"] <= 0.25 * 299_792_458.0 / f

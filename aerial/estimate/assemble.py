@@ -128,6 +128,30 @@ def _span(low: float, value: float, high: float) -> list:
     return [float(min(low, value)), float(max(high, value))]
 
 
+def _with_screen_length(site, rf: dict, centre_index: int) -> dict:
+    """``rf`` with the radial screen's part given Wait's screen's effective length at the centre frequency.
+
+    Where the radials are a screen their loss comes from Wait's model, so their effective length (the
+    length beyond which longer radials stop lowering the loss) comes from it too, as in the what-if's note;
+    the lossy-line figure would contradict it. Other frequencies keep no figure (None), as the table
+    shows the centre alone.
+    """
+    if "screen" not in rf:
+        return rf
+    from aerial.estimate import earth
+
+    f = float(rf["frequency_hz"][centre_index])
+    radials = earth.radial_system(site.electrodes)
+    fixed = [e for e in earth.radial_sets(site.electrodes) if e is not radials]
+    l_eff = earth.screen_effective_length(fixed, radials, site.soil, f, _screen_aerial(site, f, True))
+    n = list(site.electrodes).index(radials)
+    lengths = np.full(len(rf["frequency_hz"]), np.nan)
+    lengths[centre_index] = l_eff
+    parts = list(rf["parts"])
+    parts[n] = dict(parts[n], effective_length_m=lengths)
+    return dict(rf, parts=parts)
+
+
 def _earth_json(earth: dict, rf: dict, centre_index: int, bounds: dict) -> dict:
     """The earth section of the result: DC figures, and each part's impedance and effective length at frequency.
 
@@ -852,8 +876,8 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
             "open_circuit_voltage_v": resp["open_circuit_voltage_v"],
             "available_power_w": resp["available_power_w"],
         },
-        "earth": _earth_json(earth, earth_rf, centre_i, earth_bounds(site, [freqs[centre_i]],
-                                                                   screen=method != "full-wave")),
+        "earth": _earth_json(earth, _with_screen_length(site, earth_rf, centre_i), centre_i,
+                             earth_bounds(site, [freqs[centre_i]], screen=method != "full-wave")),
     }
     for key in ("convergence", "ground_treatment", "segments", "loss_budget", "building_full_wave"):
         if key in resp:
