@@ -126,6 +126,10 @@ def block_fam_1mhz(night_db: float, day_db: float, dark_fraction: float) -> floa
     float
         10·log10(x·10^(N/10) + (1 − x)·10^(D/10)). [dB above kT0b]
 
+    References
+    ----------
+    ITU-R P.372, §5, the Fam maps by season and time block (module reference [1]; recalled from memory).
+
     Examples
     --------
     >>> block_fam_1mhz(60.0, 30.0, 1.0), round(block_fam_1mhz(60.0, 30.0, 0.5), 1)
@@ -137,6 +141,10 @@ def block_fam_1mhz(night_db: float, day_db: float, dark_fraction: float) -> floa
 
 def frequency_slope(fam_1mhz_db, time_of_day: str = "night", above_1mhz=False):
     """Slope of Fam with log10(frequency) from the P.372 curves (from memory). [dB per decade]
+
+    References
+    ----------
+    ITU-R P.372, §5, the curves of Fam against frequency (module reference [1]; recalled from memory).
 
     Examples
     --------
@@ -231,6 +239,10 @@ def atmospheric_noise_figure(frequency_hz, fam_1mhz_db: float, time_of_day: str 
     1 MHz value's uncertainty and c the conversion's, growing from 0 at 1 MHz to
     ``CONVERSION_SPREAD_DB`` a decade away.
 
+    References
+    ----------
+    ITU-R P.372, §5: Fam, D_u and D_l (module reference [1]; recalled from memory).
+
     Examples
     --------
     >>> n = atmospheric_noise_figure([0.5e6, 1e6], 70.0)
@@ -270,6 +282,10 @@ def combine_noise_figures(*figures_db):
         10·log10 Σ 10^(F_i/10). [dB]
     dominant : numpy.ndarray of int
         Index of the strongest source at each point.
+
+    References
+    ----------
+    ITU-R P.372, §8 (the total noise of several sources added as powers) (module reference [1]; recalled from memory).
 
     Examples
     --------

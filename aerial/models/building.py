@@ -260,6 +260,10 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     from :func:`facade_field_height`. The construction's shielding fraction
     s blends it with the open-ground figures (module notes).
 
+    References
+    ----------
+    Smythe, ch. 4, and Jackson, sec. 2.1-2.2 (images in two perpendicular grounded planes) (module references [1], [2]; from memory).
+
     Examples
     --------
     >>> from aerial.models.segments import polyline_segments

@@ -229,6 +229,10 @@ def solve_network(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
     winding section, V_hi − V_lo = Σ_j (R_k δ_kj + jωM_kj) I_j. Tight coupling (a singular
     inductance matrix) is allowed: the windings' currents are unknowns.
 
+    References
+    ----------
+    Ho, Ruehli and Brennan, the modified nodal approach, 1975 (module reference [2]; from memory).
+
     Examples
     --------
     200 µH of Q 100 at 1 MHz with 126.65 pF, fed from a 1 MΩ source: the impedance at the top
@@ -394,6 +398,10 @@ def tuning_capacitance_for(frequency, aerial_impedance, parts: NetworkParts, det
         C = −Im(1/Z_top)/ω with the capacitor left out (negative when the rest of the network
         already tunes above ``frequency``). [F]
 
+    References
+    ----------
+    Terman, Radio Engineers' Handbook, 1943, section 3 (resonance of a tuned circuit) (module reference [1]; from memory).
+
     Examples
     --------
     >>> w = 2e6 * np.pi
@@ -437,6 +445,10 @@ def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER)
     -----
     Each edge is where |V(f)| = |V(f0)|/√2, searched from f0 out to f0/3 and 3·f0; the loaded Q
     is f0/(f_high − f_low), the usual definition for a single resonance [1]_.
+
+    References
+    ----------
+    Terman, Radio Engineers' Handbook, 1943, section 3 (resonant circuits) (module reference [1]; from memory).
 
     Examples
     --------
@@ -494,6 +506,10 @@ def rejection_db(tuned, offset_response) -> np.ndarray:
     ndarray
         [dB], at least 0.
 
+    References
+    ----------
+    Terman, Radio Engineers' Handbook, 1943, section 3 (selectivity of resonant circuits) (module reference [1]; from memory).
+
     Examples
     --------
     >>> float(rejection_db(1.0, (0.1, 0.01)))
@@ -547,6 +563,10 @@ def trap_source(frequency, aerial_impedance, kind, inductance, capacitance, resi
     -------
     (ndarray, ndarray)
         EMF scale (the Thevenin EMF over the aerial's own) and the new source impedance. [1], [ohm]
+
+    References
+    ----------
+    Terman, Radio Engineers' Handbook, 1943, section 3 (series and parallel resonance) (module reference [1]; from memory).
 
     Examples
     --------

@@ -113,6 +113,10 @@ def soil_surface_impedance(frequency, conductivity, relative_permittivity):
     ndarray of complex
         Re >= 0, Im >= 0 (inductive). [ohm]
 
+    References
+    ----------
+    Wait, *Electromagnetic Waves in Stratified Media*, 1962, ch. 2 (module reference [1]; from memory).
+
     Examples
     --------
     >>> z = soil_surface_impedance(1e6, 5.0, 70.0)     # sea water: about sqrt(omega mu0 / 2 sigma) (1 + j)
@@ -143,6 +147,10 @@ def wait_screen_impedance(frequency, distance, count, wire_radius):
     ndarray of complex
         Purely inductive; 0 where the spacing d = 2 pi r / N is at most 2 pi c
         (the screen taken as solid). Broadcast of ``frequency`` and ``distance``. [ohm]
+
+    References
+    ----------
+    Wait, "The theory of an antenna over an inhomogeneous ground plane", 1963 (module reference [2]; from memory).
 
     Examples
     --------
@@ -179,6 +187,10 @@ def radial_screen_impedance(frequency, distance, count, radial_length, wire_radi
     -------
     ndarray of complex
         [ohm]
+
+    References
+    ----------
+    Wait, 1963, and Wait and Pope, 1955 (module references [2], [3]; from memory).
 
     Examples
     --------
@@ -230,6 +242,10 @@ def vertical_ground_field(distance, frequency, height, loading_angle=0.0):
     The current I(z)/I0 = sin(delta + k(h - z)) / sin(delta + kh); see the
     module docstring for the integral. Close to the foot H_phi -> 1/(2 pi r)
     (Ampere's law: the whole base current returns through the ground).
+
+    References
+    ----------
+    Wait and Pope, 1955, the sinusoidal current of a top-loaded vertical (module reference [3]; from memory).
 
     Examples
     --------
@@ -323,6 +339,10 @@ def radial_screen_loss(frequency, height, count, radial_length, wire_radius, con
     -------
     RadialScreenLoss
 
+    References
+    ----------
+    Monteath's compensation theorem over Wait's screen (module references [3], [4]; from memory).
+
     Examples
     --------
     >>> few = radial_screen_loss(1e6, 75.0, 4, 75.0, 1e-3, 5e-3, 15.0)
@@ -405,6 +425,10 @@ def static_ground_field(points, charges, distance):
     Gradshteyn and Ryzhik 2.575, from memory), then over r' by the trapezoid
     rule. For a charge over the hub, P_out = z / sqrt(r^2 + z^2) exactly.
 
+    References
+    ----------
+    Monteath, compensation theorem, with the ground field of the aerial's charges (module reference [4]; from memory).
+
     Examples
     --------
     >>> r = np.geomspace(1e-3, 1e3, 600)
@@ -449,6 +473,10 @@ def screen_loss_of_field(frequency, distance, field, count, radial_length, wire_
     -------
     total, within : ndarray, shape (F,)
         Delta Z (complex), and the real part of the share within the radials. [ohm]
+
+    References
+    ----------
+    Monteath's compensation theorem over Wait's screen (module references [2], [4]; from memory).
 
     Examples
     --------

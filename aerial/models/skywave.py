@@ -341,6 +341,10 @@ def control_latitude(lat_tx_deg, lon_tx_deg, lat_rx_deg, lon_rx_deg):
     float
         Φ. [deg]
 
+    References
+    ----------
+    ITU-R P.1147-4, §2 (control points of the path) (module reference [1]; recalled from memory).
+
     Examples
     --------
     >>> round(control_latitude(78.5, -69.0, 78.5, -69.0), 1)
@@ -442,6 +446,10 @@ def arrival_elevation(distance_m):
     With θ = d/(2a) the half-hop angle at the earth's centre and h the reflection
     height, tan Δ = (cos θ − a/(a + h)) / sin θ (plane geometry of the triangle
     earth centre, terminal, reflection point).
+
+    References
+    ----------
+    ITU-R P.1147-4, §2 (slant distance for a reflection height of 100 km) (module reference [1]; recalled from memory).
 
     Examples
     --------
