@@ -274,8 +274,8 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     True
     """
     aer_mid = 0.5 * (segments.start + segments.end)[segments.aerial]
-    outside = plan_distance(aer_mid[:, :2], body.footprint) > 0
-    if not np.any(outside):
+    dist = plan_distance(aer_mid[:, :2], body.footprint)
+    if not np.any(dist > 0):
         raise ModelInputError("every aerial wire is inside the building's footprint; a wire inside a building "
                               "is not modelled")
     ends = np.concatenate([segments.start, segments.end])[:, :2]
@@ -293,14 +293,12 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     q_aer = float(np.sum(es.charge_c[~es.grounded]))
     h_wall = float(np.sum(es.charge_c * phi) / q_aer)
     c_wall = float(es.capacitance_f)
-    behind = plan_distance(mid[:, :2], body.footprint) <= 0
-    if np.any(behind):
+    if np.any(d <= 0):
         notes.append("part of the wire is over the roof or round a corner of the building; the facade images "
                      "there are approximate")
     s = np.array(body.shielding)
     he = (1 - s) * open_effective_height_m + s * h_wall
     cap = (1 - s) * open_capacitance_f + s * c_wall
-    dist = plan_distance(aer_mid[:, :2], body.footprint)
     w = segments.length[segments.aerial]
     return {
         "capacitance_f": tuple(float(v) for v in cap),
