@@ -119,8 +119,7 @@ def _from_table(r: TableReader, t: dict, site: Site) -> SiteBuilding:
     if floor is None:
         floor = _plan_floor(site)
     _check_wire_outside(r, site, outline, height)
-    return SiteBuilding(tuple(map(tuple, np.asarray(outline.exterior.coords)[:-1])), height, construction, floor,
-                        bonded, "building", tuple(assumed))
+    return SiteBuilding(_corners(outline), height, construction, floor, bonded, "building", tuple(assumed))
 
 
 def _from_plan(r: TableReader, site: Site) -> SiteBuilding | None:
@@ -136,13 +135,11 @@ def _from_plan(r: TableReader, site: Site) -> SiteBuilding | None:
         outline = _outline(r, b["outline"], f"plan.buildings[{i}].outline")
         if outline.buffer(1.0).covers(here):
             height = r.length(b, f"plan.buildings[{i}]", "height", required=True, positive=True)
-            balcony = plan.get("balcony") if isinstance(plan.get("balcony"), dict) else {}
-            structure = balcony.get("structure", "unknown")
-            structure = structure if structure in STRUCTURES else "unknown"
+            structure = _plan_structure(site)
             assumed = [f"the block of flats is plan.buildings[{i}] (it holds the entry); its construction is "
                        f"taken from [plan.balcony]: {structure}"]
-            return SiteBuilding(tuple(map(tuple, np.asarray(outline.exterior.coords)[:-1])), height, structure,
-                                _plan_floor(site), None, "plan", tuple(assumed))
+            return SiteBuilding(_corners(outline), height, structure, _plan_floor(site), None, "plan",
+                                tuple(assumed))
     return None
 
 
@@ -224,16 +221,14 @@ def _from_supports(r: TableReader, site: Site) -> SiteBuilding | None:
     corners = [face * normal + lo * along, face * normal + hi * along,
                (face - INFERRED_DEPTH_M) * normal + hi * along, (face - INFERRED_DEPTH_M) * normal + lo * along]
     outline = Polygon([tuple(map(float, np.round(c, 3))) for c in corners])  # to the millimetre
-    outline = shapely.orient_polygons(outline) if hasattr(shapely, "orient_polygons") else outline
+    outline = _oriented(outline)
     if all(outline.contains(Point(p[0], p[1])) and p[2] <= height for p in pts):
         return None
     kinds = sorted({k for k, *_ in found})
     floor = _plan_floor(site)
     if floor is None and np.any(rails):
         floor = max(0.0, min(h for k, _, _, h in found if k == "balcony rail") - INFERRED_RAIL_HEIGHT_M)
-    balcony = (site.plan or {}).get("balcony") if isinstance(site.plan, dict) else None
-    structure = balcony.get("structure", "unknown") if isinstance(balcony, dict) else "unknown"
-    structure = structure if structure in STRUCTURES else "unknown"
+    structure = _plan_structure(site)
     tall = "its roof at the support" if roof_only else "one storey above the highest support"
     made = ("its construction unknown (anything from timber, which hardly screens, to a steel frame, which screens "
             "almost completely)" if structure == "unknown" else f"its construction {structure} (from [plan.balcony])")
@@ -241,8 +236,7 @@ def _from_supports(r: TableReader, site: Site) -> SiteBuilding | None:
             f"{'s' if len(found) > 1 else ''}: a facade {float(np.min(reach)) - face:.1f} m behind the nearest "
             f"wire, {height:.0f} m tall ({tall}), {hi - lo:.0f} m wide and {INFERRED_DEPTH_M:.0f} m deep, {made}. "
             "Describe it in [building] for a firmer figure.")
-    return SiteBuilding(tuple(map(tuple, np.asarray(outline.exterior.coords)[:-1])), float(height), structure,
-                        floor, None, "supports", (said,))
+    return SiteBuilding(_corners(outline), float(height), structure, floor, None, "supports", (said,))
 
 
 def _plan_floor(site: Site):
@@ -261,7 +255,25 @@ def _outline(r: TableReader, value, key) -> Polygon:
     if not shapely.is_valid(poly) or poly.area <= 0:
         reason = shapely.is_valid_reason(poly) if not shapely.is_valid(poly) else "the corners enclose no area"
         r.fail(key, value, f"not a valid outline ({reason}); list the corners in order around the edge, without crossing")
+    return _oriented(poly)
+
+
+def _oriented(poly: Polygon) -> Polygon:
+    """The outline with its corners in the standard order (where shapely can orient it)."""
     return shapely.orient_polygons(poly) if hasattr(shapely, "orient_polygons") else poly
+
+
+def _corners(outline: Polygon) -> tuple:
+    """The outline's plan corners, in order, the closing corner not repeated."""
+    return tuple(map(tuple, np.asarray(outline.exterior.coords)[:-1]))
+
+
+def _plan_structure(site: Site) -> str:
+    """The balcony's structure from ``[plan.balcony]``, "unknown" when not given or not a known one."""
+    plan = site.plan if isinstance(site.plan, dict) else {}
+    balcony = plan.get("balcony")
+    structure = balcony.get("structure", "unknown") if isinstance(balcony, dict) else "unknown"
+    return structure if structure in STRUCTURES else "unknown"
 
 
 def _check_wire_outside(r: TableReader, site: Site, outline: Polygon, height: float):
