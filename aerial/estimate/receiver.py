@@ -311,6 +311,7 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
     former's plus one wire diameter (reported as ``winding_diameter_m``).
     """
     from aerial.models import coil as coil_mod
+    from aerial.models import tank as tank_mod
 
     d, wd, p, f, sd = _coil_inputs(diameter, wire, pitch, frequency, strands, strand_size)
     out: dict = {"form_diameter_m": d, "wire_diameter_m": wd, "winding_diameter_m": d + wd, "frequency_hz": f,
@@ -344,7 +345,7 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
     length = float(out.get("winding_length_m", out.get("winding_length")))
     c_self = coil_mod.medhurst_self_capacitance(d + wd, length)
     out["self_capacitance_f"] = float(c_self.capacitance)
-    out["self_resonance_hz"] = float(1.0 / (2.0 * math.pi * math.sqrt(out["inductance_h"] * out["self_capacitance_f"])))
+    out["self_resonance_hz"] = float(tank_mod.resonant_frequency(out["inductance_h"], out["self_capacitance_f"]))
     if not bool(c_self.within_table):
         out["warnings"].append(f"winding length {length / (d + wd):.2f} of its diameter lies outside Medhurst's "
                                "self-capacitance table (0.1-50): its end value is used")
