@@ -360,6 +360,11 @@ def _winding_block(w: CoilWinding, turns, pitch, L):
     return block
 
 
+def _coil_given(parts: TuningParts) -> bool:
+    """Whether the site gives its coil (an inductance, or a winding with its turns) rather than one to design."""
+    return parts.coil_inductance_h is not None or (parts.coil is not None and parts.coil.turns is not None)
+
+
 def _resolve_coil(parts: TuningParts, inductance=None) -> _Coil:
     """The tank coil: given, from its winding, or designed for ``inductance``."""
     notes = []
@@ -927,7 +932,7 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
         raise ModelInputError("band must be (f_lo, f_hi) with 0 < f_lo < f_hi")
     if aerial.outside([f_lo, f_hi]).any():
         warnings.append("the band reaches beyond the aerial's frequency grid: edge values of the aerial were used")
-    if parts.coil_inductance_h is None and (parts.coil is None or parts.coil.turns is None):
+    if not _coil_given(parts):
         if parts.capacitor_min_f is None:
             raise ModelInputError("give the coil (inductance or winding) or the capacitor range to design one")
         coil = _designed_coil((f_lo, f_hi), aerial, parts, notes)
@@ -1438,7 +1443,7 @@ def _check_stations(stations):
 
 def _station_coil(aerial, parts) -> _Coil:
     """The coil the stations are heard with: given, from its winding, or designed for the band."""
-    if parts.coil_inductance_h is None and (parts.coil is None or parts.coil.turns is None):
+    if not _coil_given(parts):
         if parts.capacitor_min_f is None:
             raise ModelInputError("give the coil (inductance or winding) or the capacitor range to design one")
         band = (aerial.f[0], aerial.f[-1])
@@ -1692,7 +1697,7 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
     _check_parts(parts)
     lo, hi = float(band[0]), float(band[1])
     wanted = [s for s in stations if lo <= s.frequency_hz <= hi]
-    coil_given = parts.coil_inductance_h is not None or (parts.coil is not None and parts.coil.turns is not None)
+    coil_given = _coil_given(parts)
     if not wanted or (parts.capacitor_min_f is None and not coil_given):
         return None
     aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m)
@@ -1810,7 +1815,7 @@ def _current_coupling(parts: TuningParts) -> dict:
 def _design_rows(scene, aerial, parts, base: _Coil, band) -> list:
     """Every candidate coupling × detector tap, with whether the site's capacitor reaches every wanted
     station (``fits_yours``) and the standard capacitor that would (``capacitor``, or None)."""
-    coil_given = parts.coil_inductance_h is not None or (parts.coil is not None and parts.coil.turns is not None)
+    coil_given = _coil_given(parts)
     rows = []
     for cpl in sd_mod.candidates(parts.arrangement):
         lp = None
