@@ -69,15 +69,18 @@ ASSUMED_NAMED_HOURS = {"evening": (2.0, -10.0, 20.0), "midnight": (6.0, -6.0, 0.
 POLAR_CLOCK_HOURS = {"evening": 20.0, "before dawn": 5.0}
 
 
+def _season_day(season: str, latitude_deg: float | None) -> int:
+    """Mid-season day of the year, half a year on in the southern hemisphere. [d]"""
+    day = SEASON_DAY_NORTH[season]
+    return (day + 182) % 365 or 365 if (latitude_deg or 0.0) < 0 else day
+
+
 def _day_of_year(site) -> tuple[int, str]:
     """(day of the year, how it was found) for the sun's times."""
     if site.day_of_year is not None:
         return site.day_of_year, f"the date {site.date_iso}"
     if site.season is not None:
-        day = SEASON_DAY_NORTH[site.season]
-        if (site.latitude_deg or 0.0) < 0:
-            day = (day + 182) % 365 or 365
-        return day, f"mid-{site.season}"
+        return _season_day(site.season, site.latitude_deg), f"mid-{site.season}"
     return 80, "the March equinox: no date or season given"
 
 
@@ -316,21 +319,23 @@ def _block_darkness(site, block: int, day: int) -> float:
 def _season_days(site) -> list[tuple[str, int]]:
     if site.day_of_year is not None:
         return [(site.season, site.day_of_year)]
-    south = (site.latitude_deg or 0.0) < 0
     seasons = [site.season] if site.season else ["winter", "summer"]
-    return [(s, (SEASON_DAY_NORTH[s] + (182 if south else 0)) % 365 or 365) for s in seasons]
+    return [(s, _season_day(s, site.latitude_deg)) for s in seasons]
 
 
-def _block_fam(site, blocks, given: bool) -> tuple[float, float]:
-    """(Fam at 1 MHz, its half-range from the seasons) for the given blocks of the site."""
+def _block_fam(site, darkness, given: bool) -> tuple[float, float]:
+    """(Fam at 1 MHz, its half-range from the seasons) for blocks of the site.
+
+    ``darkness``: (season, [share of each block with the sun down]) for each of :func:`_season_days`.
+    """
     if given:
         return float(site.atmospheric_noise_db), 0.0
     lat = site.latitude_deg if site.latitude_deg is not None else ASSUMED_LATITUDE_DEG
     values = []
-    for season, day in _season_days(site):
+    for season, darks in darkness:
         night_db = atm.indicative_fam_1mhz(lat, "night", season)
         day_db = atm.indicative_fam_1mhz(lat, "day", season)
-        values += [atm.block_fam_1mhz(night_db, day_db, _block_darkness(site, k, day)) for k in blocks]
+        values += [atm.block_fam_1mhz(night_db, day_db, x) for x in darks]
     return float(np.mean(values)), (max(values) - min(values)) / 2
 
 
@@ -349,9 +354,10 @@ def noise_floor(site, frequency_hz, moment=None) -> dict:
     out: dict = {"notes": []}
     for tod, blocks in (("day", DAY_BLOCKS), ("night", (night_block,))):
         given = site.atmospheric_noise_db is not None and tod == "night"
-        mid, seasons_half = _block_fam(site, blocks, given)
+        darkness = [(season, [_block_darkness(site, k, day) for k in blocks]) for season, day in _season_days(site)]
+        mid, seasons_half = _block_fam(site, darkness, given)
         spread = 0.0 if given else float(np.hypot(seasons_half, atm.INDICATIVE_SPREAD_DB))
-        dark = np.mean([_block_darkness(site, k, day) for _, day in _season_days(site) for k in blocks])
+        dark = np.mean([x for _, darks in darkness for x in darks])
         curve = "night" if dark >= 0.5 else "day"  # which P.372 frequency curves the block follows
         a = atm.atmospheric_noise_figure(f, mid, curve, spread_db=spread, indicative=not given, block=blocks[0])
         total, dominant = atm.combine_noise_figures(man, a.noise_figure_db)
