@@ -40,6 +40,7 @@ from typing import NamedTuple
 
 import numpy as np
 
+from aerial.core.constants import SPEED_OF_LIGHT
 from aerial.core.errors import ModelInputError
 
 #: Mean Earth radius used for great-circle distances. [m]
@@ -504,7 +505,7 @@ def sea_gain(distance_m, frequency_hz, tx_sea_m=None, rx_sea_m=None):
     f = _as_array(frequency_hz, "frequency")
     xs, ys = np.array(SEA_GAIN_ONE_TERMINAL).T
     g1 = np.interp(d / 1e3, xs, ys, left=0.0, right=ys[-1])
-    lam = 299_792_458.0 / f
+    lam = SPEED_OF_LIGHT / f
     sin_el = np.maximum(np.sin(np.radians(arrival_elevation(d))), np.sin(np.radians(1.0)))
     x_f = lam / (2 * sin_el**2)
     total = np.zeros(np.broadcast(d, f).shape)
