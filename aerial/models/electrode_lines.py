@@ -61,8 +61,6 @@ __all__ = ["LineElectrode", "buried_wire_line", "rod_line", "soil_gamma", "EFFEC
 #: |Z_in| changes by less than this fraction beyond the effective length. [1]
 EFFECTIVE_LENGTH_CHANGE = 0.10
 
-_E = np.e
-
 
 @dataclass(frozen=True)
 class LineElectrode:
