@@ -249,3 +249,43 @@ def test_polar_night_and_midnight_sun_keep_the_listening_hour_sensible():
                   'distance = "800 km"\nbearing = 90')
     sky = night.sky_wave(light, light.stations[0])
     assert sky["daylight_at_midpoint"] and sky["field_v_per_m"] == 0.0
+
+
+# --------------------------------------------------------------------------- the night keys through the command line
+
+
+@pytest.mark.parametrize("site_extra, key, value, words", [
+    ('sea_bearing = 270', "site.sea_bearing", "270", ['distance_to_sea = "3 km"', "leave sea_bearing out"]),
+    ('distance_to_sea = "3 km"\nsea_bearing = "westish"', "site.sea_bearing", '"westish"',
+     ["clockwise from true north", "such as 270", '"SW"']),
+    ('distance_to_sea = "3 km"\nsea_bearing = "270 W"', "site.sea_bearing", '"270 W"', ["compass point"]),
+    ('distance_to_sea = "3 km"\nsea_bearing = 400', "site.sea_bearing", "400", ["-360 to 360"]),
+    ('distance_to_sea = "far"', "site.distance_to_sea", '"far"', ["length", '"12 m"']),
+    ('distance_to_sea = "-3 km"', "site.distance_to_sea", '"-3 km"', ["at least 0"]),
+    ('listening_time = 21', "site.listening_time", "21", ['"midnight"', '"21:30"']),
+    ('date = 2026', "site.date", "2026", ["2025-01-15"]),
+    ('utc_offset = true', "site.utc_offset", "true", ['"+5:30"']),
+])
+def test_a_bad_night_key_is_one_line_with_file_line_key_value_and_what_is_expected(capsys, write_site, site_extra,
+                                                                                      key, value, words):
+    """Invented inputs: every [site] key of night reception, wrong, gives one line and exit code 2."""
+    from tests.conftest import one_line, run
+
+    p = write_site(BASE.format(site_extra=site_extra, station_extra='distance = "800 km"'))
+    code, out, err = run(capsys, "check", p)
+    line = one_line(err)
+    assert code == 2 and out == ""
+    row = 4 + next(n for n, text in enumerate(site_extra.split("\n")) if text.startswith(key.split(".")[1] + " "))
+    assert f"{p}:{row}: {key} = {value}: expected" in line, line
+    for w in words:
+        assert w in line, (w, line)
+
+
+def test_a_sea_bearing_may_be_a_compass_point(capsys, write_site):
+    """Invented inputs; the 16 points of the compass are 22.5° apart clockwise from north (common practice)."""
+    for text, degrees in (("SW", 225.0), ("west", 270.0), ("NNE", 22.5), ("n", 0.0)):
+        assert _site(f'distance_to_sea = "3 km"\nsea_bearing = "{text}"').sea_bearing_deg == degrees
+    p = write_site(BASE.format(site_extra='distance_to_sea = "3 km"\nsea_bearing = "SW"',
+                               station_extra='distance = "800 km"'))
+    code, (out, err) = main(["check", str(p)]), capsys.readouterr()
+    assert code == 0 and err == ""

@@ -79,6 +79,8 @@ def os_error_words(err: OSError) -> str:
 
 
 def _show(value) -> str:
+    if isinstance(value, bool):  # as the site file spells it
+        return "true" if value else "false"
     if isinstance(value, str):
         text = value if len(value) <= 60 else value[:57] + "..."
         text = "".join(ch if ch.isprintable() else repr(ch)[1:-1] for ch in text)

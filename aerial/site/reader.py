@@ -1354,8 +1354,30 @@ def _plain_float(value):
     return float(value)
 
 
+#: The 16 points of the compass, clockwise from north (22.5° apart), for a bearing given as "W" or "SW".
+COMPASS_POINTS = ("n", "nne", "ne", "ene", "e", "ese", "se", "sse", "s", "ssw", "sw", "wsw", "w", "wnw", "nw", "nnw")
+
+#: The four cardinal directions in words.
+COMPASS_WORDS = {"north": "n", "east": "e", "south": "s", "west": "w"}
+
+
+def _compass_bearing(text: str):
+    """Degrees clockwise from north of a compass point ("W", "SW", "north", "NNE"), or None."""
+    point = COMPASS_WORDS.get(text, text)
+    return 22.5 * COMPASS_POINTS.index(point) if point in COMPASS_POINTS else None
+
+
+def _expected_angle(name, low, high) -> str:
+    """What an angle key accepts, in words."""
+    if name.endswith("bearing"):
+        return (f"expected a {name} in degrees clockwise from true north (from {low:g} to {high:g}), such as 270 or "
+                "\"270 deg\", or a compass point such as \"W\" or \"SW\"")
+    return (f"expected a {name} in degrees from {low:g} to {high:g}, such as 51.5 or \"51.5 deg\""
+            + (' or "51.5 N"' if name == "latitude" else ' or "0.12 W"' if name == "longitude" else ""))
+
+
 def _degrees(r: TableReader, data, key, name, low, high):
-    """An angle in degrees: a number, or text such as "51.5 deg", "51.5°", "51.5 N", "0.12 W"."""
+    """An angle in degrees: a number, or text such as "51.5 deg", "51.5°", "51.5 N", "0.12 W"; a bearing also "SW"."""
     full = f"{key}.{name}"
     value = data.get(name)
     if value is None:
@@ -1364,6 +1386,8 @@ def _degrees(r: TableReader, data, key, name, low, high):
     ok = True
     if isinstance(value, bool):
         ok = False
+    elif isinstance(value, str) and name.endswith("bearing") and _compass_bearing(value.strip().lower()) is not None:
+        v = _compass_bearing(value.strip().lower())
     elif isinstance(value, (int, float)):
         v = _plain_float(value)
         ok = v is not None
@@ -1371,7 +1395,9 @@ def _degrees(r: TableReader, data, key, name, low, high):
         text = value.lower().replace("°", " deg ").replace("degrees", "deg").strip()
         sign = 1.0
         if text and text[-1] in hemi:
-            if (text[-1] in "ns") != (name == "latitude") or name.endswith("bearing"):
+            if name.endswith("bearing"):
+                r.fail(full, value, _expected_angle(name, low, high))
+            if (text[-1] in "ns") != (name == "latitude"):
                 r.fail(full, value, f"expected {'N or S' if name == 'latitude' else 'E or W'} after a {name}")
             sign = hemi[text[-1]]
             text = text[:-1].strip()
@@ -1387,8 +1413,7 @@ def _degrees(r: TableReader, data, key, name, low, high):
     if ok and not (math.isfinite(v) and low <= v <= high):
         ok = False
     if not ok:
-        r.fail(full, value, f"expected a {name} in degrees from {low:g} to {high:g}, such as 51.5 or \"51.5 deg\""
-               + (' or "51.5 N"' if name == "latitude" else ' or "0.12 W"' if name == "longitude" else ""))
+        r.fail(full, value, _expected_angle(name, low, high))
     return v
 
 
@@ -1432,10 +1457,11 @@ def _night_inputs(r: TableReader, site_t, position=None) -> dict:
                    units_table=units.DISTANCE_UNITS)
     sea_bearing = None
     if "sea_bearing" in site_t:
-        if sea is None:
-            r.fail("site.sea_bearing", site_t["sea_bearing"], "the direction of the sea needs [site] distance_to_sea "
-                   "as well")
         sea_bearing = _degrees(r, site_t, "site", "sea_bearing", -360.0, 360.0) % 360.0
+        if sea is None:
+            r.fail("site.sea_bearing", site_t["sea_bearing"], "expected [site] distance_to_sea beside it (which way "
+                   'the sea lies means nothing without how far): add a length such as distance_to_sea = "3 km", '
+                   "or leave sea_bearing out")
     return {"season": season, "atmospheric_noise_db": fam, "sunspot_number": spots, "listening_time": when,
             "listening_hour": hour, "date_iso": date_iso, "day_of_year": day, "utc_offset_h": offset,
             "distance_to_sea_m": sea, "sea_bearing_deg": sea_bearing}
