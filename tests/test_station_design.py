@@ -244,3 +244,29 @@ def test_report_says_which_design_the_remedies_belong_to(write_site, capsys):
     assert code == 0, err
     flat = " ".join(out.split())
     assert "remedies for " in flat and "a parallel trap in the aerial lead" in flat
+
+
+def test_consistency_check_candidates_solved_together_match_each_solved_alone():
+    """Every coupling and detector tap of the design search solved in one stacked pass gives the figures
+    :func:`station_design.evaluate` gives for each candidate alone (consistency check on invented stations)."""
+    from aerial.estimate import reception as rc
+
+    f = np.array([500e3, 1700e3])
+    x = -1.0 / (2 * np.pi * f * 150e-12)
+    parts = TuningParts(coil_inductance_h=200e-6, capacitor_min_f=15e-12, capacitor_max_f=365e-12)
+    wanted = [Station("Demo A", 700e3, 10e3, 20e3, 15.0, 1e-3), Station("Demo B", 720e3, 50e3, 10e3, 15.0, 1e-3),
+              Station("Demo C", 1400e3, 5e3, 60e3, 15.0, 1e-3)]
+    aerial = rc._Aerial(f, [25, 25], x, [0.3, 3.0], [8, 8])
+    scene, coil = rc._design_scene(aerial, parts, wanted, 9e3)
+    picks = [({"arrangement": "direct"}, 1.0), ({"arrangement": "coil tap", "tap_fraction": 0.2}, 0.5),
+             ({"arrangement": "series capacitor", "series_capacitance": 47e-12}, 0.3),
+             ({"arrangement": "separate primary", "coupling_coefficient": 0.2}, 0.7)]
+    nets = [sd.candidate_parts(scene, cpl, coil.inductance, coil.block, m) for cpl, m in picks]
+    together = sd.evaluate_many(scene, nets)
+    for (cpl, m), got in zip(picks, together):
+        alone = sd.evaluate(scene, cpl, coil.inductance, coil.block, m)
+        for key in ("weakest_power_w", "worst_separation_db", "rejection_db"):
+            assert got[key] == pytest.approx(alone[key], rel=1e-12, abs=0)
+        for key in ("power_w", "capacitance_f", "own"):
+            assert np.allclose(got[key], alone[key], rtol=1e-12, atol=0)
+        assert (got["weakest"], got["pair"]) == (alone["weakest"], alone["pair"])

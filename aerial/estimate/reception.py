@@ -1702,8 +1702,7 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
         return None
     aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m)
     scene, base = _design_scene(aerial, parts, wanted, spacing_hz)
-    rows = _design_rows(scene, aerial, parts, base, (lo, hi))
-    current = _design_row(scene, _current_coupling(parts), base, parts.detector_tap_fraction, parts)
+    rows, current = _design_rows(scene, aerial, parts, base, (lo, hi))
     if parts.capacitor_min_f is not None:
         reach = (current["capacitance_f"] >= parts.capacitor_min_f) & (current["capacitance_f"] <= parts.capacitor_max_f)
         current = sd_mod.out_of_reach(current, reach)
@@ -1812,11 +1811,14 @@ def _current_coupling(parts: TuningParts) -> dict:
             "primary_inductance": parts.primary_inductance_h}
 
 
-def _design_rows(scene, aerial, parts, base: _Coil, band) -> list:
+def _design_rows(scene, aerial, parts, base: _Coil, band) -> tuple:
     """Every candidate coupling × detector tap, with whether the site's capacitor reaches every wanted
-    station (``fits_yours``) and the standard capacitor that would (``capacitor``, or None)."""
+    station (``fits_yours``) and the standard capacitor that would (``capacitor``, or None); and the
+    parts as wired, solved the same way. Returns (rows, current).
+
+    Every candidate is solved in one stacked pass (:func:`station_design.evaluate_many`)."""
     coil_given = _coil_given(parts)
-    rows = []
+    couplings = []
     for cpl in sd_mod.candidates(parts.arrangement):
         lp = None
         if cpl["arrangement"] == "separate primary":
@@ -1834,19 +1836,39 @@ def _design_rows(scene, aerial, parts, base: _Coil, band) -> list:
             coil = _designed_coil(band, aerial, sub, [])
             if lp is not None:
                 cpl = {**cpl, "primary_inductance": sd_mod.PRIMARY_FRACTION * coil.inductance}
-        c = _needed(scene.frequency, aerial, coil.inductance, scene.q_fun, {**cfg, "self_capacitance": coil.self_capacitance},
-                    coil.block)
+        couplings.append((cpl, {**cfg, "self_capacitance": coil.self_capacitance}, coil))
+    settings = _needed_stack(scene.frequency, aerial, scene.q_fun, [(cfg, coil) for _, cfg, coil in couplings])
+    todo = []
+    for (cpl, _, coil), c in zip(couplings, settings):
         yours = parts.capacitor_min_f is not None and sd_mod.fits(c, parts.capacitor_min_f, parts.capacitor_max_f)
         if not yours and sd_mod.standard_capacitor(c) is None:
             continue  # no capacitor reaches every wanted station with this coil and coupling (closed form)
-        for m in sd_mod.DETECTOR_TAPS:
-            rows.append(_design_row(scene, cpl, coil, m, parts))
-    return rows
+        todo += [(cpl, coil, m) for m in sd_mod.DETECTOR_TAPS]
+    todo.append((_current_coupling(parts), base, parts.detector_tap_fraction))
+    nets = [sd_mod.candidate_parts(scene, cpl, coil.inductance, coil.block, m, coil.self_capacitance)
+            for cpl, coil, m in todo]
+    rows = [_design_row(scene, ev, cpl, coil, m, parts)
+            for ev, (cpl, coil, m) in zip(sd_mod.evaluate_many(scene, nets), todo)]
+    return rows[:-1], rows[-1]
 
 
-def _design_row(scene, cpl, coil: _Coil, m, parts) -> dict:
-    """One candidate solved; whether the site's capacitor and which standard one reach its settings."""
-    ev = sd_mod.evaluate(scene, cpl, coil.inductance, coil.block, m, coil.self_capacitance)
+def _needed_stack(f, aerial, q_fun, configs) -> np.ndarray:
+    """:func:`_needed` at ``f`` for many (cfg, coil) pairs in one stacked solve: one row of settings each. [F]"""
+    if not configs:
+        return np.zeros((0, np.size(f)))
+    f = np.atleast_1d(np.asarray(f, dtype=float))
+    nets = [tn_mod.network_parts(cfg["arrangement"], coil.inductance, q_fun, cfg["detector_tap"], cfg["tap_fraction"],
+                                 cfg["series_capacitance"], cfg["primary_inductance"], cfg["coupling_coefficient"],
+                                 coil.block, self_capacitance=cfg.get("self_capacitance", 0.0))
+            for cfg, coil in configs]
+    g = np.array([[cfg["detector_conductance"]] for cfg, _ in configs])
+    s = net_mod.solve_network_stack(f, _za(aerial)(f), nets, 0.0, g)
+    return -np.imag(1.0 / s.top_impedance) / (2.0 * np.pi * f)
+
+
+def _design_row(scene, ev, cpl, coil: _Coil, m, parts) -> dict:
+    """One solved candidate (:func:`station_design.evaluate`); whether the site's capacitor and which standard
+    one reach its settings."""
     c = ev["capacitance_f"]
     fits_yours = parts.capacitor_min_f is not None and sd_mod.fits(c, parts.capacitor_min_f, parts.capacitor_max_f)
     return {**ev, "coupling": cpl, "coil_inductance_h": coil.inductance, "block": coil.block,

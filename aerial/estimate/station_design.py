@@ -62,6 +62,20 @@ def candidates(arrangement_given) -> list:
     return out
 
 
+def candidate_parts(scene: Scene, coupling: dict, inductance, block, detector_tap,
+                    self_capacitance=0.0) -> net_mod.NetworkParts:
+    """The receiving network of one candidate: its coupling, the coil and the detector tap.
+
+    A separate primary without its own inductance is :data:`PRIMARY_FRACTION` of the coil's.
+    """
+    lp = None
+    if coupling["arrangement"] == "separate primary":
+        lp = coupling.get("primary_inductance") or PRIMARY_FRACTION * inductance
+    return tn_mod.network_parts(coupling["arrangement"], inductance, scene.q_fun, detector_tap,
+                                coupling.get("tap_fraction"), coupling.get("series_capacitance"), lp,
+                                coupling.get("coupling_coefficient"), block, self_capacitance=self_capacitance)
+
+
 def evaluate(scene: Scene, coupling: dict, inductance, block, detector_tap, self_capacitance=0.0) -> dict:
     """One candidate: every wanted station's detector power and the worst separation from the others.
 
@@ -73,22 +87,43 @@ def evaluate(scene: Scene, coupling: dict, inductance, block, detector_tap, self
         with ``pair`` (wanted, other), ``power_w`` per station, ``rejection_db`` (adjacent
         channel at the wanted stations' centre), ``loaded_q`` per station.
     """
-    lp = None
-    if coupling["arrangement"] == "separate primary":
-        lp = coupling.get("primary_inductance") or PRIMARY_FRACTION * inductance
-    parts = tn_mod.network_parts(coupling["arrangement"], inductance, scene.q_fun, detector_tap,
-                                 coupling.get("tap_fraction"), coupling.get("series_capacitance"), lp,
-                                 coupling.get("coupling_coefficient"), block, self_capacitance=self_capacitance)
+    parts = candidate_parts(scene, coupling, inductance, block, detector_tap, self_capacitance)
     lv = tn_mod.station_levels(scene.frequency, scene.emf, scene.za, parts, scene.diode, scene.load, passes=1,
                                bandwidth=False, table=scene.table)
     return summarise(scene, lv, parts)
 
 
+def evaluate_many(scene: Scene, candidates_parts) -> list:
+    """:func:`evaluate` for many candidates at once, given as their networks (:func:`candidate_parts`).
+
+    Every step is taken for all candidates together (:func:`tuned_network.station_levels_stack`,
+    :func:`tuned_network.rejection_stack`); the figures are those :func:`evaluate` gives one by one.
+    """
+    parts = list(candidates_parts)
+    if not parts:
+        return []
+    lv = tn_mod.station_levels_stack(scene.frequency, scene.emf, scene.za, parts, scene.diode, scene.load,
+                                     table=scene.table)
+    centre = float(np.sqrt(scene.frequency.min() * scene.frequency.max()))
+    g = np.array([[1.0 / float(np.exp(np.mean(np.log(r))))] for r in lv.input_resistance])
+    rej = tn_mod.rejection_stack(np.array([centre]), scene.za, parts, g, [scene.spacing_hz])[scene.spacing_hz]
+    return [merit(scene, lv.detector_voltage[p], lv.input_resistance[p], lv.others[p], lv.capacitance[p],
+                  float(rej[p, 0])) for p in range(len(parts))]
+
+
 def summarise(scene: Scene, lv, parts) -> dict:
     """Figures of merit of a solved candidate (see :func:`evaluate`)."""
-    power = lv.detector_voltage**2 / lv.input_resistance
+    centre = float(np.sqrt(scene.frequency.min() * scene.frequency.max()))
+    g = np.array([1.0 / float(np.exp(np.mean(np.log(lv.input_resistance))))])
+    fig = tn_mod.tuned_figures(np.array([centre]), scene.za, parts, g, [scene.spacing_hz], bandwidth=False)
+    return merit(scene, lv.detector_voltage, lv.input_resistance, lv.others, lv.capacitance,
+                 float(fig.rejection[scene.spacing_hz][0]))
+
+
+def merit(scene: Scene, detector_voltage, input_resistance, others, capacitance, rejection_db) -> dict:
+    """The figures of merit from a candidate's solved levels and its adjacent-channel rejection [dB]."""
+    power = detector_voltage**2 / input_resistance
     weakest = int(np.argmin(power))
-    others = lv.others
     own = np.diag(others)
     # a pair counts unless the other station stays inaudible while the wanted one is heard: a design
     # cannot pass by making everything too faint to hear
@@ -96,13 +131,10 @@ def summarise(scene: Scene, lv, parts) -> dict:
     np.fill_diagonal(counts, False)
     sep = np.where(counts, 20.0 * np.log10(np.maximum(own, 1e-300)[:, None] / np.maximum(others, 1e-300)), np.inf)
     i, j = np.unravel_index(int(np.argmin(sep)), sep.shape)
-    centre = float(np.sqrt(scene.frequency.min() * scene.frequency.max()))
-    g = np.array([1.0 / float(np.exp(np.mean(np.log(lv.input_resistance))))])
-    fig = tn_mod.tuned_figures(np.array([centre]), scene.za, parts, g, [scene.spacing_hz], bandwidth=False)
     return {
         "weakest_power_w": float(power[weakest]), "weakest": weakest, "power_w": power,
         "worst_separation_db": float(sep[i, j]), "pair": (int(i), int(j)),
-        "rejection_db": float(fig.rejection[scene.spacing_hz][0]), "capacitance_f": lv.capacitance,
+        "rejection_db": rejection_db, "capacitance_f": capacitance,
         "own": own, "sep": sep,
     }
 

@@ -11,6 +11,7 @@ Voltages are RMS unless said otherwise; the detector model takes the RF peak (âˆ
 
 from __future__ import annotations
 
+import functools
 from typing import Callable, NamedTuple
 
 import numpy as np
@@ -142,13 +143,20 @@ def input_resistance_table(diode: det_mod.Diode, load, points=361):
 def weak_signal_conductance(diode: det_mod.Diode) -> float:
     """The detector's RF input conductance for a vanishing signal, Is/(nVT). [S]
 
+    Worked out once per diode (the searches ask for it for every candidate).
+
     Examples
     --------
     >>> d = det_mod.get_diode("germanium")
     >>> weak_signal_conductance(d) > 0
     True
     """
-    return float(1.0 / det_mod.loaded_detector(0.0, diode.saturation_current_a, diode.ideality, 1e4).input_resistance)
+    return _weak_signal_conductance(float(diode.saturation_current_a), float(diode.ideality))
+
+
+@functools.lru_cache(maxsize=64)
+def _weak_signal_conductance(saturation_current, ideality) -> float:
+    return float(1.0 / det_mod.loaded_detector(0.0, saturation_current, ideality, 1e4).input_resistance)
 
 
 def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL, max_iter=LEVEL_MAX_ITER,
@@ -283,3 +291,102 @@ def station_levels(frequency, open_circuit_voltage, za: Callable, parts: net_mod
                                              c[:, np.newaxis], g[:, np.newaxis])
     others = v_oc[np.newaxis, :] * np.abs(cross)
     return StationLevels(c_raw, v, r_in, top, converged, edges.loaded_q, edges.bandwidth, others)
+
+
+def station_levels_stack(frequency, open_circuit_voltage, za: Callable, parts_stack, diode, load,
+                         table=None) -> StationLevels:
+    """:func:`station_levels` of a design search (one pass, no bandwidth) for many networks at once.
+
+    Parameters
+    ----------
+    frequency, open_circuit_voltage, za, diode, load, table
+        As :func:`station_levels`; the same stations for every network.
+    parts_stack : sequence of NetworkParts
+        P networks (couplings, taps, coils).
+
+    Returns
+    -------
+    StationLevels
+        Row p of every array (``others``: (P, n, n)) is what :func:`station_levels` with
+        ``passes=1, bandwidth=False`` gives for ``parts_stack[p]``; ``converged`` covers them all.
+
+    Notes
+    -----
+    The same steps as :func:`station_levels`, each taken for every network together
+    (:func:`aerial.models.network.solve_network_stack`): the weak-signal tuning and the bare
+    network in one stacked solve, the tuned network in a second, the detector's operating point
+    of every network and station in one bisection.
+
+    Examples
+    --------
+    >>> d = det_mod.get_diode("germanium")
+    >>> ps = [network_parts("direct", 240e-6, lambda f: 150.0, m) for m in (0.5, 1.0)]
+    >>> za = lambda f: 25 - 1j / (2 * np.pi * f * 150e-12)
+    >>> s = station_levels_stack(np.array([6e5, 1e6]), np.array([0.05, 0.01]), za, ps, d, 10e3)
+    >>> s.others.shape
+    (2, 2, 2)
+    """
+    fs = np.asarray(frequency, dtype=float)
+    v_oc = np.asarray(open_circuit_voltage, dtype=float)
+    n_p = len(parts_stack)
+    z_s = za(fs)
+    g = np.full((n_p,) + fs.shape, weak_signal_conductance(diode))
+    # the weak-signal tuning and the bare network (no capacitor, no detector) in one stacked solve
+    first = net_mod.solve_network_stack(fs, z_s, list(parts_stack) * 2, 0.0, np.concatenate([g, np.zeros_like(g)]))
+    w = 2.0 * np.pi * fs
+    c = np.maximum(-np.imag(1.0 / first.top_impedance[:n_p]) / w, 0.0)
+    bare = net_mod.solve_network_stack(fs, z_s, parts_stack, c, 0.0)
+    v, r_in, ok = detector_level(v_oc * np.abs(bare.detector_voltage), bare.detector_impedance, diode, load,
+                                 table=table)
+    g = 1.0 / r_in
+    open_net = net_mod.NetworkSolution(*(x[n_p:, np.newaxis, :] for x in first))
+    cross = net_mod.retuned_detector_voltage(open_net, fs[np.newaxis, np.newaxis, :], c[:, :, np.newaxis],
+                                             g[:, :, np.newaxis])
+    others = v_oc[np.newaxis, np.newaxis, :] * np.abs(cross)
+    zero = np.zeros_like(c)
+    return StationLevels(c, v, r_in, zero, ok, zero, zero, others)
+
+
+def rejection_stack(frequency, za: Callable, parts_stack, detector_conductance, offsets) -> dict:
+    """:func:`tuned_figures` without the bandwidth for many networks at once: the rejections only.
+
+    Parameters
+    ----------
+    frequency : ndarray, shape (m,)
+        Tuned frequencies, the same for every network. [Hz]
+    za : callable
+        Aerial impedance za(f). [ohm]
+    parts_stack : sequence of NetworkParts
+        P networks.
+    detector_conductance : ndarray, shape (P, m)
+        [S]
+    offsets : sequence of float
+        [Hz]
+
+    Returns
+    -------
+    dict
+        offset [Hz] -> rejection of the weaker side [dB], shape (P, m): row p as
+        :func:`tuned_figures` gives it for ``parts_stack[p]``.
+
+    Examples
+    --------
+    >>> ps = [network_parts("direct", 240e-6, lambda f: 150.0, m) for m in (0.3, 1.0)]
+    >>> za = lambda f: 25 - 1j / (2 * np.pi * f * 150e-12)
+    >>> r = rejection_stack(np.array([8e5]), za, ps, np.full((2, 1), 1e-4), [9e3])
+    >>> r[9e3].shape
+    (2, 1)
+    """
+    f0 = np.asarray(frequency, dtype=float)
+    g = np.asarray(detector_conductance, dtype=float)
+    s = net_mod.solve_network_stack(f0, za(f0), parts_stack, 0.0, g)
+    c_pos = np.maximum(-np.imag(1.0 / s.top_impedance) / (2.0 * np.pi * f0), 0.0)
+    n = f0.size
+    probes = [f0] + [p for d in offsets for p in (np.maximum(f0 - d, f0 * 1e-3), f0 + d)]
+    every = np.concatenate(probes)
+    levels = np.abs(net_mod.solve_network_stack(every, za(every), parts_stack, np.tile(c_pos, (1, len(probes))),
+                                                np.tile(g, (1, len(probes)))).detector_voltage)
+    tuned = levels[:, :n]
+    return {d: net_mod.rejection_db(tuned, (levels[:, (1 + 2 * k) * n:(2 + 2 * k) * n],
+                                            levels[:, (2 + 2 * k) * n:(3 + 2 * k) * n]))
+            for k, d in enumerate(offsets)}

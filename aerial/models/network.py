@@ -40,6 +40,7 @@ References
 
 from __future__ import annotations
 
+import math
 from typing import Callable, NamedTuple
 
 import numpy as np
@@ -146,6 +147,15 @@ def _value(v, f):
     return v(f) if callable(v) else np.asarray(v, dtype=float)
 
 
+def _positive(value) -> bool:
+    """Whether every value is positive and finite (a plain number, or an array of them)."""
+    if np.ndim(value) == 0:
+        v = float(value)
+        return v > 0 and math.isfinite(v)
+    a = np.asarray(value, dtype=float)
+    return bool(np.all(a > 0) and np.all(np.isfinite(a)))
+
+
 def check_parts(parts: NetworkParts) -> NetworkParts:
     """Raise when the parts do not make a network; return them otherwise.
 
@@ -157,21 +167,25 @@ def check_parts(parts: NetworkParts) -> NetworkParts:
     if parts.arrangement not in ARRANGEMENTS:
         valid = ", ".join(f"'{a}'" for a in ARRANGEMENTS)
         raise ModelInputError(f"'{parts.arrangement}' is not a valid coupling arrangement, must be one of {valid}")
-    if not (np.all(np.asarray(parts.coil_inductance) > 0) and np.all(np.isfinite(parts.coil_inductance))):
+    if not _positive(parts.coil_inductance):
         raise ModelInputError("coil_inductance must be positive")
     if not (0 < parts.detector_tap <= 1):
         raise ModelInputError(f"detector_tap must lie in (0, 1], got {parts.detector_tap!r}")
-    need = {"series capacitor": ("series_capacitance",), "coil tap": ("aerial_tap",),
-            "separate primary": ("primary_inductance", "coupling_coefficient")}.get(parts.arrangement, ())
+    need = _NEEDS.get(parts.arrangement, ())
     for name in need:
         v = getattr(parts, name)
-        if v is None or not (np.all(np.asarray(v) > 0) and np.all(np.isfinite(v))):
+        if v is None or not _positive(v):
             raise ModelInputError(f"the '{parts.arrangement}' arrangement needs a positive {name}")
     if parts.arrangement == "coil tap" and parts.aerial_tap > 1:
         raise ModelInputError(f"aerial_tap must not exceed 1, got {parts.aerial_tap!r}")
     if parts.arrangement == "separate primary" and np.any(np.asarray(parts.coupling_coefficient) >= 1):
         raise ModelInputError(f"coupling_coefficient must be below 1, got {parts.coupling_coefficient!r}")
     return parts
+
+
+#: The part each arrangement cannot do without.
+_NEEDS = {"series capacitor": ("series_capacitance",), "coil tap": ("aerial_tap",),
+          "separate primary": ("primary_inductance", "coupling_coefficient")}
 
 
 def _taps(parts: NetworkParts):
@@ -319,6 +333,156 @@ def solve_network(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
         x = np.linalg.solve(a, rhs)
     return NetworkSolution(x[..., top, 0], x[..., det, 0], x[..., top, 1], x[..., det, 2], x[..., aer, 0],
                            x[..., det, 1], x[..., top, 2])
+
+
+def _stack_groups(parts_stack) -> dict:
+    """Indices of ``parts_stack`` by the shape of their system (arrangement, sections, tuned primary)."""
+    groups: dict = {}
+    for i, p in enumerate(parts_stack):
+        check_parts(p)
+        taps, _ = _taps(p)
+        groups.setdefault((p.arrangement, len(taps), p.primary_capacitance is not None), []).append(i)
+    return groups
+
+
+def solve_network_stack(frequency, aerial_impedance, parts_stack, tuning_capacitance=0.0, detector_conductance=0.0,
+                        emf=1.0) -> NetworkSolution:
+    """:func:`solve_network` for many networks at once: row p of every input and output belongs to ``parts_stack[p]``.
+
+    Parameters
+    ----------
+    frequency : array_like, shape (m,) or (P, m)
+        [Hz]
+    aerial_impedance : array_like of complex
+        Broadcast to (P, m). [ohm]
+    parts_stack : sequence of NetworkParts
+        P networks, each with a single coil inductance, series capacitance and coupling coefficient;
+        arrangements and taps may differ.
+    tuning_capacitance, detector_conductance, emf : array_like
+        Broadcast to (P, m). [F], [S], [V]
+
+    Returns
+    -------
+    NetworkSolution
+        Arrays of shape (P, m): row p is what :func:`solve_network` gives for ``parts_stack[p]``
+        at row p of the inputs.
+
+    Notes
+    -----
+    Networks whose systems have the same shape (arrangement, number of winding sections) are
+    assembled together, entry by entry in the order :func:`solve_network` uses, and solved in one
+    call of the LAPACK solver over the stack: a search over couplings and taps costs a few solver
+    calls instead of one per candidate.
+
+    Examples
+    --------
+    >>> ps = [NetworkParts("coil tap", 240e-6, 8.0, detector_tap=0.5, aerial_tap=t) for t in (0.1, 0.2, 0.7)]
+    >>> f, za = np.array([8e5, 1e6]), np.array([30 - 900j, 30 - 700j])
+    >>> s = solve_network_stack(f, za, ps, 90e-12, 2e-4)
+    >>> one = solve_network(f, za, ps[2], 90e-12, 2e-4)
+    >>> bool(np.allclose(s.detector_voltage[2], one.detector_voltage, rtol=1e-12))
+    True
+    """
+    n_p = len(parts_stack)
+    f = np.asarray(frequency, dtype=float)
+    if np.any(~np.isfinite(f)) or np.any(f <= 0):
+        raise ModelInputError("frequency must be positive and finite")
+    shape = np.broadcast_shapes((n_p, 1), f.shape, np.shape(aerial_impedance), np.shape(tuning_capacitance),
+                                np.shape(detector_conductance), np.shape(emf))
+    if len(shape) != 2:
+        raise ModelInputError("a stack of networks takes frequencies of shape (m,) or (P, m)")
+    inputs = [np.broadcast_to(f, shape), np.broadcast_to(np.asarray(aerial_impedance, dtype=complex), shape),
+              np.broadcast_to(np.asarray(tuning_capacitance, dtype=float), shape),
+              np.broadcast_to(np.asarray(detector_conductance, dtype=float), shape),
+              np.broadcast_to(np.asarray(emf, dtype=complex), shape)]
+    out = [np.empty(shape, dtype=complex) for _ in range(7)]
+    for idx in _stack_groups(parts_stack).values():
+        group = [parts_stack[i] for i in idx]
+        for o, v in zip(out, _solve_group(group, *(x[idx] for x in inputs))):
+            o[idx] = v
+    return NetworkSolution(*out)
+
+
+def _group_plan(group):
+    """Per-network values of a group of one shape: detector and aerial nodes, section fractions and inductances."""
+    det, aer, frac, msec = [], [], [], []
+    for p in group:
+        taps, node = _taps(p)
+        det.append(node[float(p.detector_tap)])
+        aer.append(node.get(float(p.aerial_tap or 1.0)))
+        frac.append(np.diff(np.concatenate([[0.0], taps])))
+        msec.append(_sections(tuple(taps), p.block, float(p.coil_inductance)))
+    return np.array(det)[:, None], np.array(aer)[:, None], np.array(frac), np.array(msec)
+
+
+def _solve_group(group, f, za, tuning_capacitance, detector_conductance, emf):
+    """Assemble and solve networks of one shape, (G, m) inputs; the order of operations of :func:`solve_network`."""
+    p0 = group[0]
+    n_g, m = f.shape
+    gi, mi = np.arange(n_g)[:, None], np.arange(m)[None, :]
+    w = 2.0 * np.pi * f
+    det, aer_tap, frac, msec = _group_plan(group)
+    k = frac.shape[1]
+    top = k - 1
+    has_x = p0.arrangement in ("series capacitor", "separate primary")
+    primary = p0.arrangement == "separate primary"
+    n_nodes, n_l = k + int(has_x), k + int(primary)
+    n = n_nodes + n_l
+    aer = {"direct": top, "coil tap": aer_tap, "series capacitor": k, "separate primary": k}[p0.arrangement]
+    a = np.zeros((n_g, m, n, n), dtype=complex)
+    rhs = np.zeros((n_g, m, n, 3), dtype=complex)
+    a[gi, mi, aer, aer] += 1.0 / za
+    rhs[gi, mi, aer, 0] = emf / za
+    rhs[..., top, 1] = 1.0
+    rhs[gi, mi, det, 2] = 1.0
+
+    def column(values):
+        return np.array(values, dtype=float)[:, None]
+
+    a[..., top, top] += 1j * w * (tuning_capacitance + column([p.self_capacitance for p in group]))
+    a[gi, mi, det, det] += detector_conductance
+    if p0.arrangement == "series capacitor":
+        y = 1j * w * column([p.series_capacitance for p in group])
+        a[..., k, k] += y
+        a[..., top, top] += y
+        a[..., k, top] -= y
+        a[..., top, k] -= y
+    r_coil = np.array([np.broadcast_to(_value(p.coil_resistance, f[i]), (m,)) for i, p in enumerate(group)])
+    for s in range(k):
+        row = n_nodes + s
+        a[..., s, row] += 1.0
+        if s > 0:
+            a[..., s - 1, row] -= 1.0
+        a[..., row, s] += 1.0
+        if s > 0:
+            a[..., row, s - 1] -= 1.0
+        a[..., row, row] -= r_coil * frac[:, s:s + 1]
+        for j in range(k):
+            a[..., row, n_nodes + j] -= 1j * w * msec[:, s, j:j + 1]
+    if primary:
+        _primary_entries(a, group, f, w, msec, k, n_nodes, column)
+    with blas_threads(n):
+        x = np.linalg.solve(a, rhs)
+    return (x[..., top, 0], x[gi, mi, det, 0], x[..., top, 1], x[gi, mi, det, 2], x[gi, mi, aer, 0],
+            x[gi, mi, det, 1], x[..., top, 2])
+
+
+def _primary_entries(a, group, f, w, msec, k, n_nodes, column):
+    """The separate primary's rows of a group's systems (see :func:`solve_network`)."""
+    row = n_nodes + k
+    lp = column([float(p.primary_inductance) for p in group])
+    m_total = column([p.coupling_coefficient * np.sqrt(float(p.primary_inductance) * p.coil_inductance)
+                      for p in group])
+    share = np.array([ms.sum(axis=1) / ms.sum() for ms in msec])
+    rp = np.array([np.broadcast_to(_value(p.primary_resistance, f[i]), f.shape[1:]) for i, p in enumerate(group)])
+    a[..., k, row] += 1.0
+    a[..., row, k] += 1.0
+    a[..., row, row] -= rp + 1j * w * lp
+    for s in range(k):
+        a[..., row, n_nodes + s] -= 1j * w * m_total * share[:, s:s + 1]
+        a[..., n_nodes + s, row] -= 1j * w * m_total * share[:, s:s + 1]
+    if group[0].primary_capacitance is not None:
+        a[..., k, k] += 1j * w * column([p.primary_capacitance for p in group])
 
 
 def retuned_detector_voltage(bare: NetworkSolution, frequency, tuning_capacitance, detector_conductance):

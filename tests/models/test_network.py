@@ -190,3 +190,29 @@ def test_consistency_check_retuned_detector_voltage_matches_a_full_solve(parts):
     quick = net.retuned_detector_voltage(net.solve_network(f, za, parts), f[np.newaxis, :], c[:, np.newaxis],
                                          g[:, np.newaxis])
     assert np.allclose(quick, full.detector_voltage, rtol=1e-9, atol=0)
+
+
+def test_consistency_check_a_stack_of_networks_solves_as_each_one_alone():
+    """Networks of every arrangement and tap solved as one stack give what solving each alone gives, to the
+    last bit (consistency check on invented parts: the same assembly, systems of one shape solved together)."""
+    q = 150.0
+    stack = []
+    for m in (0.1, 0.3, 1.0):
+        stack.append(net.NetworkParts("direct", 240e-6, lambda f: TWO_PI * f * 240e-6 / q, detector_tap=m))
+        for t in (0.05, 0.3, 0.5):
+            stack.append(net.NetworkParts("coil tap", 240e-6, 6.0, detector_tap=m, aerial_tap=t,
+                                          block=lambda x: 240e-6 * float(x) ** 1.6))
+        stack.append(net.NetworkParts("series capacitor", 240e-6, 6.0, detector_tap=m, series_capacitance=47e-12,
+                                      self_capacitance=3e-12))
+        stack.append(net.NetworkParts("separate primary", 240e-6, 6.0, detector_tap=m, primary_inductance=24e-6,
+                                      coupling_coefficient=0.3, primary_resistance=1.0))
+        stack.append(net.NetworkParts("separate primary", 240e-6, 6.0, detector_tap=m, primary_inductance=24e-6,
+                                      coupling_coefficient=0.05, primary_capacitance=100e-12))
+    f = np.linspace(550e3, 1650e3, 4)
+    za = 40.0 - 1j / (2 * np.pi * f * 150e-12)
+    c = np.geomspace(20e-12, 300e-12, len(stack))[:, np.newaxis] * np.ones(f.size)
+    together = net.solve_network_stack(f, za, stack, c, 2e-4)
+    for p, parts in enumerate(stack):
+        alone = net.solve_network(f, za, parts, c[p], 2e-4)
+        for got, want in zip(together, alone):
+            assert np.allclose(got[p], want, rtol=1e-12, atol=0)
