@@ -444,11 +444,12 @@ class _Sweep:
         self._table, self._table_band = None, None
         zi_all = system.piece_impedance(f)  # (P, F) wire impedance per metre
         loss_all = system.loss_entries(zi_all)
+        cur = np.zeros((f.size, system.topo.n_unknowns), dtype=complex)
         for done, i in enumerate(order, start=1):
-            cur = self._currents(i, plan, zi_all[:, i], loss_all[:, i])
-            self._figures(i, cur, zi_all[:, i])
+            cur[i] = self._currents(i, plan, zi_all[:, i], loss_all[:, i])
             if progress is not None:
                 progress(done, f.size)
+        self._figures(cur, zi_all)
 
     def _matrix(self, k, plan, loss_entries):
         """Impedance matrix with losses at k, from the band table where one covers k."""
@@ -492,38 +493,42 @@ class _Sweep:
             self.hand_qs.append(fi)
         return cur
 
-    def _figures(self, i, cur, zi):
-        """Feed current, effective height, loss and radiation resistances and the input impedance at frequency i."""
-        system, fi, k = self.system, self.f[i], self.k_all[i]
+    def _figures(self, cur, zi):
+        """Feed current, effective height, loss and radiation resistances and the input impedance at every frequency.
+
+        ``cur`` (F, N): basis currents for 1 V at the feed; ``zi`` (P, F): wire impedance per metre.
+        """
+        system, f, k = self.system, self.f, self.k_all
         topo = system.topo
-        ground, eps_s, sig_s = system.ground, system.eps_soil, system.sigma_soil
         t0, t1 = topo.t_end
-        ie = np.stack([t0 @ cur, t1 @ cur], axis=-1)
-        i0 = self.v @ cur
-        self.cur_ends[i] = ie
-        self.i_feed[i] = i0
-        zvi = 1.0 / i0
+        ie = np.stack([(t0 @ cur.T).T, (t1 @ cur.T).T], axis=-1)  # (F, P, 2)
+        i0 = cur @ self.v
+        self.cur_ends[:] = ie
+        self.i_feed[:] = i0
         # effective height: vertical current moment over the real wires
-        mz = np.sum(topo.tangent[:, 2] * topo.length * 0.5 * (ie[:, 0] + ie[:, 1]))
-        self.h_eff[i] = mz / i0
+        self.h_eff[:] = np.sum(topo.tangent[:, 2] * topo.length * 0.5 * (ie[..., 0] + ie[..., 1]), axis=1) / i0
         # losses
-        pc = 0.5 * np.sum(zi.real * topo.length * (np.abs(ie[:, 0]) ** 2 + np.abs(ie[:, 1]) ** 2
-                                                   + (ie[:, 0] * np.conj(ie[:, 1])).real) / 3.0)
-        pe = 0.5 * np.sum(topo.electrode * np.abs(cur) ** 2)
-        i0sq = abs(i0) ** 2
-        self.r_cond[i], self.r_elec[i] = 2 * pc / i0sq, 2 * pe / i0sq
+        pc = 0.5 * np.sum(zi.real.T * topo.length * (np.abs(ie[..., 0]) ** 2 + np.abs(ie[..., 1]) ** 2
+                                                     + (ie[..., 0] * np.conj(ie[..., 1])).real) / 3.0, axis=1)
+        pe = 0.5 * np.sum(topo.electrode * np.abs(cur) ** 2, axis=1)
+        i0sq = np.abs(i0) ** 2
+        self.r_cond[:], self.r_elec[:] = 2 * pc / i0sq, 2 * pe / i0sq
+        qs = np.array([m == "quasi-static" for m in self.method], dtype=bool)
         lam = 2 * np.pi / k
-        if self.method[i] == "quasi-static":
-            self.r_rad[i] = 160 * np.pi**2 * abs(self.h_eff[i] / lam) ** 2
-        else:
-            refl = complex_permittivity(fi, eps_s, sig_s) if ground != "perfect" else None
-            self.r_rad[i] = 2 * self.far.power(k, ie, refl) / i0sq
-        r_pb = self.r_rad[i] + self.r_cond[i] + self.r_elec[i]
-        if self.method[i] == "quasi-static":
-            zvi = complex(r_pb, zvi.imag)
-        else:
-            zvi = self._resolved_resistance(i, zvi, r_pb)
-        self.z_in[i] = zvi + self.series_ohm
+        self.r_rad[qs] = 160 * np.pi**2 * np.abs(self.h_eff[qs] / lam[qs]) ** 2
+        if np.any(~qs):
+            refl = None
+            if system.ground != "perfect":
+                refl = np.asarray(complex_permittivity(f[~qs], system.eps_soil, system.sigma_soil), dtype=complex)
+            self.r_rad[~qs] = 2 * self.far.power_many(k[~qs], ie[~qs], refl) / i0sq[~qs]
+        for i in range(f.size):
+            r_pb = self.r_rad[i] + self.r_cond[i] + self.r_elec[i]
+            zvi = 1.0 / i0[i]
+            if qs[i]:
+                zvi = complex(r_pb, zvi.imag)
+            else:
+                zvi = self._resolved_resistance(i, zvi, r_pb)
+            self.z_in[i] = zvi + self.series_ohm
 
     def _resolved_resistance(self, i, zvi, r_pb):
         """V/I, or its resistance from the power balance where the solution does not resolve it."""

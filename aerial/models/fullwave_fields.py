@@ -207,25 +207,61 @@ class FarField:
             theta component and -r_h for the phi component); None for a
             perfect ground.
         """
-        ia, ib = current_ends[:, 0], current_ends[:, 1]
+        eps = None if eps_c is None else np.array([eps_c], dtype=complex)
+        return float(self.power_many(np.array([k], dtype=float), np.asarray(current_ends)[None], eps)[0])
+
+    #: Direction-run-frequency values worked on at once in :meth:`power_many`. [1]
+    CHUNK_VALUES = 2**18
+
+    def power_many(self, k, current_ends, eps_c=None):
+        """Radiated power into the upper half-space at several wavenumbers at once. [W]
+
+        Parameters
+        ----------
+        k : ndarray, shape (F,)
+            Wavenumbers. [rad/m]
+        current_ends : ndarray of complex, shape (F, P, 2)
+            Current at each piece's start and end along its tangent, per wavenumber. [A]
+        eps_c : ndarray of complex, shape (F,), optional
+            Soil permittivity per wavenumber (lossy ground); None for a perfect ground.
+
+        Returns
+        -------
+        ndarray, shape (F,)
+            The radiated power of :meth:`power` at each wavenumber. [W]
+        """
+        k = np.asarray(k, dtype=float)
+        out = np.empty(k.size)
+        step = max(1, self.CHUNK_VALUES // max(self.rt.size, 1))
+        for i0 in range(0, k.size, step):
+            sl = slice(i0, i0 + step)
+            out[sl] = self._power_chunk(k[sl], current_ends[sl], None if eps_c is None else eps_c[sl])
+        return out
+
+    def _power_chunk(self, k, current_ends, eps_c):
+        """:meth:`power_many` for one chunk of wavenumbers."""
+        F, P = current_ends.shape[:2]
+        ia, ib = current_ends[..., 0], current_ends[..., 1]
         beta = (ib - ia) / self.length
         alpha = ia - beta * self.s_a
         nt = self.n_terms
-        moments = self.runs @ (alpha[:, None] * self.pow_int[:, : nt + 1] + beta[:, None] * self.pow_int[:, 1 : nt + 2])
-        moments = np.vstack([moments, moments]) / self.fact  # (2R, nt+1): M_n / n!, runs then images
-        u = 1j * k * self.rt  # (D, 2R)
-        acc = np.broadcast_to(moments[:, nt], u.shape).copy()
+        per_piece = alpha[:, :, None] * self.pow_int[:, : nt + 1] + beta[:, :, None] * self.pow_int[:, 1 : nt + 2]
+        moments = self.runs @ per_piece.transpose(1, 0, 2).reshape(P, -1)  # (R, F (nt+1))
+        moments = moments.reshape(self.n_run, F, nt + 1).transpose(1, 0, 2)
+        moments = np.concatenate([moments, moments], axis=1) / self.fact  # (F, 2R, nt+1): runs then images
+        u = 1j * k[:, None, None] * self.rt  # (F, D, 2R)
+        acc = np.broadcast_to(moments[:, None, :, nt], u.shape).copy()
         for n in range(nt - 1, -1, -1):
             acc *= u
-            acc += moments[:, n]
-        acc *= np.exp(1j * k * self.rc)
+            acc += moments[:, None, :, n]
+        acc *= np.exp(1j * k[:, None, None] * self.rc)
         r = self.n_run
         a_t, a_p = acc * self.t_theta, acc * self.t_phi
-        nt_d, nt_i = a_t[:, :r].sum(axis=1), a_t[:, r:].sum(axis=1)
-        np_d, np_i = a_p[:, :r].sum(axis=1), a_p[:, r:].sum(axis=1)
+        nt_d, nt_i = a_t[..., :r].sum(axis=-1), a_t[..., r:].sum(axis=-1)
+        np_d, np_i = a_p[..., :r].sum(axis=-1), a_p[..., r:].sum(axis=-1)
         if eps_c is not None:
-            r_h, r_v = fresnel_reflection(np.repeat(self.mu, self.n_p), eps_c)
+            r_h, r_v = fresnel_reflection(np.repeat(self.mu, self.n_p)[None, :], np.asarray(eps_c)[:, None])
             nt_i, np_i = nt_i * r_v, np_i * (-r_h)
         dens = np.abs(nt_d + nt_i) ** 2 + np.abs(np_d + np_i) ** 2
-        integral = np.sum(dens.reshape(self.n_t, self.n_p) * self.w_mu[:, None]) * (2 * np.pi / self.n_p)
+        integral = np.sum(dens.reshape(F, self.n_t, self.n_p) * self.w_mu[:, None], axis=(1, 2)) * (2 * np.pi / self.n_p)
         return k**2 * ETA0 / (32 * np.pi**2) * integral

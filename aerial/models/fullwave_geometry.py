@@ -361,18 +361,92 @@ def _merge_nodes(p_start, p_end, tol):
     _, node_of, = np.unique(key, axis=0, return_inverse=True)[:2]
     node_of = node_of.ravel()
     # a second pass catches points that straddle a rounding boundary
-    from scipy.spatial import cKDTree
-
-    pairs = cKDTree(ends).query_pairs(tol, output_type="ndarray")
-    if len(pairs):
-        graph = sp.coo_matrix((np.ones(len(pairs)), (node_of[pairs[:, 0]], node_of[pairs[:, 1]])), shape=(ends.shape[0],) * 2)
-        _, comp = sp.csgraph.connected_components(graph, directed=False)
-        node_of = comp[node_of]
+    pairs = close_pairs(ends, tol)
+    a, b = node_of[pairs[:, 0]], node_of[pairs[:, 1]]
+    straddle = a != b
+    if np.any(straddle):
+        node_of = _smallest_linked(node_of.max() + 1, a[straddle], b[straddle])[node_of]
     _, node_of = np.unique(node_of, return_inverse=True)
     n_nodes = node_of.max() + 1
     node_pos = np.zeros((n_nodes, 3))
     node_pos[node_of] = ends
     return node_of, node_pos
+
+
+def _smallest_linked(n, a, b):
+    """For each of n items, the smallest item linked to it through the pairs (a[i], b[i]) (its group's label)."""
+    label = np.arange(n)
+    while True:
+        low = np.minimum(label[a], label[b])
+        new = label.copy()
+        np.minimum.at(new, a, low)
+        np.minimum.at(new, b, low)
+        new = new[new]  # follow the labels' own labels: groups merge in few rounds
+        if np.array_equal(new, label):
+            return label
+        label = new
+
+
+def close_pairs(points, tol):
+    """Every pair of points no farther apart than ``tol``, by a grid of cells of side ``tol``.
+
+    Parameters
+    ----------
+    points : ndarray, shape (M, 3)
+        Positions. [m]
+    tol : float
+        Largest distance of a pair, positive. [m]
+
+    Returns
+    -------
+    ndarray of int, shape (K, 2)
+        Index pairs (i, j), i < j, with |p_i - p_j| <= tol, sorted.
+
+    Notes
+    -----
+    Two points within ``tol`` of each other lie in the same cell
+    floor(p / tol) or in neighbouring ones (each index differs by at most
+    one), so only the 27 cells around each point are searched. Each axis's
+    cell indices are replaced by their ranks first, so the cell code fits an
+    integer whatever the coordinates.
+
+    Examples
+    --------
+    >>> close_pairs(np.array([[0.0, 0, 0], [0.5e-9, 0, 0], [1.0, 0, 0]]), 1e-9).tolist()
+    [[0, 1]]
+    """
+    points = np.asarray(points, dtype=float)
+    m = len(points)
+    cell = np.floor(points / tol).astype(np.int64)
+    axes = [np.unique(np.concatenate([c - 1, c, c + 1])) for c in cell.T]
+    span = np.int64(max(len(a) for a in axes))
+
+    def code(shift):
+        rank = [np.searchsorted(a, c + s) for a, c, s in zip(axes, cell.T, shift)]
+        return (rank[0] * span + rank[1]) * span + rank[2]
+
+    own = code((0, 0, 0))
+    order = np.argsort(own, kind="stable")
+    sorted_code = own[order]
+    found_i, found_j = [], []
+    for shift in np.ndindex(3, 3, 3):
+        target = code(np.asarray(shift) - 1)
+        lo = np.searchsorted(sorted_code, target, side="left")
+        n_hit = np.searchsorted(sorted_code, target, side="right") - lo
+        if not n_hit.any():
+            continue
+        i = np.repeat(np.arange(m), n_hit)
+        first = np.repeat(lo - np.concatenate([[0], np.cumsum(n_hit)[:-1]]), n_hit)
+        j = order[first + np.arange(i.size)]
+        keep = i < j
+        found_i.append(i[keep])
+        found_j.append(j[keep])
+    if not found_i:
+        return np.zeros((0, 2), dtype=np.int64)
+    i, j = np.concatenate(found_i), np.concatenate(found_j)
+    close = np.sqrt(np.sum((points[i] - points[j]) ** 2, axis=1)) <= tol
+    pairs = np.unique(np.stack([i[close], j[close]], axis=1), axis=0)
+    return pairs.reshape(-1, 2)
 
 
 class _BasisLayout:

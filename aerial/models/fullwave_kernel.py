@@ -60,23 +60,35 @@ def _gauss01(n):
     return 0.5 * (x + 1.0), 0.5 * w
 
 
-def _gauss_sum(g, w):
-    """h[a, i, b] = sum_j g[a, i, b, j] w[b, j], summed in order of j.
+def pair_weights(u, w):
+    """Weights turning kernel values at Gauss point pairs into the five integrals of one piece pair.
 
-    The same numbers as ``np.einsum("aibj,bj->aib", g, w)`` (bit for bit: the
-    same products added in the same order) at half its time for complex g.
+    Parameters
+    ----------
+    u, w : ndarray, shape (Q,)
+        Gauss nodes and weights on [0, 1].
+
+    Returns
+    -------
+    ndarray, shape (5, Q^2)
+        Row c applied to the kernel values g_ij of a piece pair (i the
+        observation point, j the source point, flattened as i Q + j) gives
+        sum_ij c_e(i) c_f(j) g_ij for (e, f) = (0, 0), (0, 1), (1, 0), (1, 1)
+        (c = 0 .. 3, c = 2 e + f) and their sum (c = 4), with c_0 = w (1 - u),
+        c_1 = w u (the two triangle halves). Multiplied by both pieces'
+        lengths they are the integrals S_ef of the basis-function ends over
+        the pair. [1]
+
+    Notes
+    -----
+    With the kernel values of a block laid out (Q^2, pairs) every piece pair
+    of the block is reduced in one real matrix product (BLAS; real and
+    imaginary parts side by side), instead of one pass over the kernel values
+    per weight.
     """
-    h = g[..., 0] * w[:, 0]
-    for j in range(1, g.shape[-1]):
-        h += g[..., j] * w[:, j]
-    return h
-
-
-def _row_sum(w, h, out):
-    """out[a, b] = sum_i w[a, i] h[a, i, b], summed in order of i (``np.einsum("ai,aib->ab")``, bit for bit)."""
-    np.multiply(w[:, 0, None], h[:, 0], out=out)
-    for i in range(1, w.shape[1]):
-        out += w[:, i, None] * h[:, i]
+    c = np.stack([w * (1.0 - u), w * u])  # (2, Q)
+    cc = np.einsum("ei,fj->efij", c, c).reshape(4, -1)
+    return np.concatenate([cc, cc.sum(axis=0, keepdims=True)])
 
 
 def graded_rule(levels: int = 12, ratio: float = 0.25, panels: int = 6, order: int = 6):
@@ -165,6 +177,10 @@ class Filler:
         self.rad2 = topo.radius**2
         self.t = topo.tangent
         self.rows = max(1, int(chunk_bytes // (16 * n_gauss * n_gauss * P)))
+        self.pts_T = np.ascontiguousarray(self.pts.transpose(2, 1, 0))  # (3, Q, P)
+        self._weights = pair_weights(u, w)
+        # the ends' signs in the charge (d/ds of the triangle halves): s_e s_f for ef = 00, 01, 10, 11
+        self._charge_sign = np.array([1.0, -1.0, -1.0, 1.0])
         self._near = {False: self._near_correction(False)}
         if image:
             self._near[True] = self._near_correction(True)
@@ -186,16 +202,31 @@ class Filler:
             gap = d - half[i0 : i0 + step, None] - half[None, :]
             lim = NEAR_GAP_FACTOR * np.maximum(topo.length[i0 : i0 + step, None], topo.length[None, :])
             p, q = np.nonzero(gap < lim)
-            out_p.append(p + i0)
-            out_q.append(q)
+            keep = q >= p + i0  # the relation is symmetric: each pair once
+            out_p.append(p[keep] + i0)
+            out_q.append(q[keep])
         return np.concatenate(out_p), np.concatenate(out_q)
 
     def _near_correction(self, image):
-        """Accurate minus Gauss static integrals for near pairs, shape (n, 2, 2)."""
+        """Accurate minus Gauss static integrals of the near pairs, per unit length of both pieces.
+
+        Returns
+        -------
+        p, q : ndarray of int
+            Observation and source pieces of each near pair.
+        corr : ndarray, shape (n, 5)
+            The corrections of S_ef / (L_p L_q) for (e, f) = 00, 01, 10, 11 and
+            their sum (the layout of :func:`pair_weights`). [1/m]
+        """
         topo = self.topo
-        p, q = self._near_pairs(image)
-        if len(p) == 0:
-            return p, q, np.zeros((0, 2, 2))
+        p0, q0 = self._near_pairs(image)  # q0 >= p0
+        if len(p0) == 0:
+            return p0, q0, np.zeros((0, 5))
+        # each pair once, with the graded outer rule on the shorter piece and the analytic inner integral on
+        # the longer one (the accurate way round when a short piece meets a long one); the other order follows
+        # by reciprocity with the ends e and f swapped
+        swap = topo.length[q0] < topo.length[p0]
+        p, q = np.where(swap, q0, p0), np.where(swap, p0, q0)
         flip = np.array([1.0, 1.0, -1.0]) if image else np.ones(3)
         a_q = topo.start[q] * flip
         t_q = topo.tangent[q] * flip
@@ -221,68 +252,126 @@ class Filler:
         for e in range(2):
             for f in range(2):
                 acc[:, e, f] -= np.einsum("ni,nij,nj->n", self.wphi[e][p], g, self.wphi[f][q])
-        return p, q, acc
+        corr = acc.reshape(-1, 4) / (topo.length[p] * L_q)[:, None]
+        corr = np.concatenate([corr, corr.sum(axis=1, keepdims=True)], axis=1)
+        corr[swap] = corr[swap][:, [0, 2, 1, 3, 4]]  # back to (p0, q0)
+        # the mirrored pairs (q0, p0)
+        off = p0 != q0
+        p, q = np.concatenate([p0, q0[off]]), np.concatenate([q0, p0[off]])
+        return p, q, np.concatenate([corr, corr[off][:, [0, 2, 1, 3, 4]]])
 
     # ---------------------------------------------------------------- fill
     def _distances(self, r0, r1, image):
-        """Reduced-kernel distances between the Gauss points of rows r0:r1 and all pieces, (Pc,Q,P,Q). [m]"""
-        Q = self.q
-        x = self.pts[r0:r1].reshape(-1, 3)
-        y = self.pts.reshape(-1, 3)
-        if image:
-            y = y * np.array([1.0, 1.0, -1.0])
-        d2 = (x[:, None, 0] - y[None, :, 0]) ** 2
-        d2 += (x[:, None, 1] - y[None, :, 1]) ** 2
-        d2 += (x[:, None, 2] - y[None, :, 2]) ** 2
-        Pc, P = r1 - r0, self.pts.shape[0]
-        d2 = d2.reshape(Pc, Q, P, Q)
-        d2 += 0.5 * (self.rad2[r0:r1, None, None, None] + self.rad2[None, None, :, None])
+        """Reduced-kernel distances from the Gauss points of pieces r0:r1 to those of pieces r0:P, (Q,Q,Pc,P-r0). [m]
+
+        Only pieces from r0 on are sources: the matrices are symmetric, so each block of pieces is paired with
+        itself and the pieces after it (:meth:`fill`). The pieces are the last axes so that every array
+        operation runs along rows of P - r0 numbers.
+        """
+        x = self.pts_T[:, :, None, r0:r1, None]  # (3, Q, 1, Pc, 1)
+        y = self.pts_T[:, None, :, None, r0:]  # (3, 1, Q, 1, P')
+        sign = (1.0, 1.0, -1.0) if image else (1.0, 1.0, 1.0)
+        d2 = np.square(x[0] - sign[0] * y[0])
+        d2 += np.square(x[1] - sign[1] * y[1])
+        d2 += np.square(x[2] - sign[2] * y[2])
+        d2 += 0.5 * (self.rad2[None, None, r0:r1, None] + self.rad2[None, None, None, r0:])
         return np.sqrt(d2, out=d2)
 
+    def _kernel(self, k, r):
+        """Kernel values exp(-jkR)/(4 pi R) at distances r (real at k = 0). [1/m]"""
+        if k == 0.0:
+            return (1.0 / _FOUR_PI) / r
+        g = np.exp(-1j * k * r)
+        g /= _FOUR_PI * r
+        return g
+
     def _reduce(self, g, r0, r1, image, static_correction):
-        """Piece-level integrals S_ef (2, 2, Pc, P) of kernel values g at the Gauss points."""
-        Pc, P = r1 - r0, self.pts.shape[0]
-        S = np.empty((2, 2, Pc, P), dtype=complex)
-        h1 = _gauss_sum(g, self.wphi[1])
-        h0 = _gauss_sum(g, self.wphi[0])
-        for e in range(2):
-            we = self.wphi[e][r0:r1]
-            _row_sum(we, h0, S[e, 0])
-            _row_sum(we, h1, S[e, 1])
+        """Piece-pair integrals of kernel values g (Q,Q,Pc,P'), per unit length of both pieces: (5, Pc, P').
+
+        Sources are pieces r0:P. The first axis holds S_ef / (L_a L_b) for (e, f) = 00, 01, 10, 11 and
+        their sum (:func:`pair_weights`); near pairs get their static correction when asked.
+        """
+        Pc, Pr = g.shape[2:]
+        q2 = g.shape[0] * g.shape[1]
+        if np.iscomplexobj(g):
+            S = (self._weights @ g.view(float).reshape(q2, -1)).view(complex).reshape(5, Pc, Pr)
+        else:  # k = 0: real kernel values
+            S = (self._weights @ g.reshape(q2, -1)).reshape(5, Pc, Pr).astype(complex)
         if static_correction:
             p, q, corr = self._near[image]
-            sel = (p >= r0) & (p < r1)
+            sel = (p >= r0) & (p < r1) & (q >= r0)
             if np.any(sel):
-                for e in range(2):
-                    for f in range(2):
-                        S[e, f, p[sel] - r0, q[sel]] += corr[sel, e, f]
+                S[:, p[sel] - r0, q[sel] - r0] += corr[sel].T
         return S
 
-    def _assemble(self, S, r0, r1, image, coefs, out, block_rows=None):
-        """Add the basis-level contribution of piece rows r0:r1 to ``out``.
-
-        ``out`` is (N, N), or (len(block_rows), N) holding only the basis rows
-        ``block_rows`` (sorted; every row pieces r0:r1 touch, :meth:`block_rows`).
-        """
-        te_T, ch_T = self.te_T, self.charge_T
+    def _tangent_products(self, r0, r1, image, coefs):
+        """Coefficient x tangent products x L_a L_b summed over the vector-potential parts in ``coefs``, (Pc, P-r0)."""
+        t, length = self.t, self.topo.length
         if image:
-            t = self.t
-            parts = {"A_image_h": t[r0:r1, :2] @ t[:, :2].T, "A_image_v": np.outer(t[r0:r1, 2], t[:, 2])}
-            pname = "Phi_image"
+            parts = {"A_image_h": lambda: t[r0:r1, :2] @ t[r0:, :2].T,
+                     "A_image_v": lambda: np.outer(t[r0:r1, 2], t[r0:, 2])}
         else:
-            parts = {"A_direct": self.t[r0:r1] @ self.t.T}
-            pname = "Phi_direct"
-        # vector-potential parts: sum over ends of T_e^T (TT * S_ef) T_f
-        tt = sum(coefs[n] * parts[n] for n in parts if n in coefs)
-        if not isinstance(tt, int):
-            for e in range(2):
-                m = (te_T[0] @ (tt * S[e, 0]).T + te_T[1] @ (tt * S[e, 1]).T).T  # (Pc, N)
-                rows, left = self._rows(("t", e, r0, r1), te_T[e], block_rows)
-                out[rows] += left @ m
+            parts = {"A_direct": lambda: t[r0:r1] @ t[r0:].T}
+        tt = 0.0
+        for name, make in parts.items():
+            if name in coefs:
+                tt = tt + coefs[name] * make()
+        if isinstance(tt, float):
+            return None
+        return tt * (length[r0:r1, None] * length[None, r0:])
+
+    def _piece_terms(self, S, r0, r1, image, coefs, out=None):
+        """Piece-level matrices X_ef (4, Pc, P-r0) of one output: the vector-potential parts and the scalar one.
+
+        X_ef = sum_parts c_part (t_a . t_b)_part L_a L_b S_ef + c_Phi s_e s_f S_sum, so that the basis
+        matrix is sum_ef T_e^T X_ef T_f (:meth:`_assemble`): the charge of a triangle end is s_e / L with
+        s_0 = -1, s_1 = +1. Added into ``out`` when given.
+        """
+        if out is None:
+            out = np.zeros((4,) + S.shape[1:], dtype=complex)
+        tt = self._tangent_products(r0, r1, image, coefs)
+        if tt is not None:
+            out += tt * S[:4]
+        pname = "Phi_image" if image else "Phi_direct"
         if pname in coefs:
-            g = S.sum(axis=(0, 1)) * coefs[pname]
-            rows, left = self._rows(("c", r0, r1), ch_T, block_rows)
-            out[rows] += left @ (ch_T @ g.T).T
+            phi = coefs[pname] * S[4]
+            for c in range(4):
+                out[c] += self._charge_sign[c] * phi
+        return out
+
+    def _assemble(self, X, r0, r1, out, block_rows=None):
+        """Add sum_ef T_e^T X_ef T_f of piece rows r0:r1 (sources r0:P) to ``out``, halving the diagonal block.
+
+        ``X`` is (4, Pc, P-r0) for one matrix, or (M, 4, Pc, P-r0) for M matrices at once; it is
+        overwritten. ``out`` is (N, N) (or (M, N, N)), or holds only the basis rows ``block_rows``
+        (sorted; every row pieces r0:r1 touch, :meth:`block_rows`) as (len(block_rows), N) (or
+        (len(block_rows), M, N)). Summed over all blocks this gives W with W + W^T the full matrix.
+        """
+        te_T = self.te_T
+        many = X.ndim == 4
+        M = X.shape[0] if many else 1
+        Pc, Pr = X.shape[-2], X.shape[-1]
+        N = te_T[0].shape[0]
+        X[..., :Pc] *= 0.5  # pairs within the block appear both ways: W + W^T counts them once
+        for e in range(2):
+            # (T_0^T X_e0^T + T_1^T X_e1^T) over the sources: (N, M Pc), then the rows' incidence
+            m = sum(self._cols(f, r0) @ np.ascontiguousarray(X[..., 2 * e + f, :, :].reshape(M * Pc, Pr).T)
+                    for f in range(2))
+            m = np.ascontiguousarray(m.reshape(N, M, Pc).transpose(2, 1, 0)).reshape(Pc, M * N)
+            rows, left = self._rows(("t", e, r0, r1), te_T[e], block_rows)
+            add = left @ m
+            if many and block_rows is None:
+                out[:, rows] += add.reshape(-1, M, N).transpose(1, 0, 2)
+            else:
+                out[rows] += add.reshape((len(rows),) + out.shape[1:])
+
+    def _cols(self, f, c0):
+        """Columns c0:P of the (N, P) incidence of triangle ends f (cached)."""
+        hit = self._row_cache.get(("cols", f, c0))
+        if hit is None:
+            hit = self.te_T[f][:, c0:].tocsr()
+            self._row_cache[("cols", f, c0)] = hit
+        return hit
 
     def _rows(self, key, mat_T, block_rows=None):
         """Basis rows touched by pieces r0:r1 of a (N, P) incidence matrix, and that block (cached).
@@ -301,8 +390,8 @@ class Filler:
         return np.searchsorted(block_rows, hit[0]), hit[1]
 
     def block_rows(self, r0, r1):
-        """Sorted basis rows that pieces r0:r1 contribute to (either end of a triangle, or its charge)."""
-        keys = ((("t", 0, r0, r1), self.te_T[0]), (("t", 1, r0, r1), self.te_T[1]), (("c", r0, r1), self.charge_T))
+        """Sorted basis rows that pieces r0:r1 contribute to (either end of a triangle)."""
+        keys = ((("t", 0, r0, r1), self.te_T[0]), (("t", 1, r0, r1), self.te_T[1]))
         return np.unique(np.concatenate([self._rows(key, mat)[0] for key, mat in keys]))
 
     def fill(self, k: float, outputs, progress=None):
@@ -319,25 +408,43 @@ class Filler:
         Returns
         -------
         list of ndarray, complex, shape (N, N)
+
+        Notes
+        -----
+        Every part is symmetric (Galerkin testing of a reciprocal kernel; the
+        distance to an image point is symmetric in the two pieces), so each
+        block of pieces is paired with itself and the pieces after it only:
+        the blocks give W, and the matrix is W + W^T.
         """
         N, P = self.topo.n_unknowns, self.topo.n_pieces
         out = [np.zeros((N, N), dtype=complex) for _ in outputs]
         need_image = self.image and any(n in o for o in outputs for n in PART_NAMES[2:])
-        for r0 in range(0, P, self.rows):
-            r1 = min(P, r0 + self.rows)
+        for r0, r1 in self._blocks():
+            xs = [None] * len(outputs)
             for image in (False, True) if need_image else (False,):
-                r = self._distances(r0, r1, image)
-                if k == 0.0:
-                    g = (1.0 / _FOUR_PI) / r
-                else:
-                    kr = k * r
-                    g = np.exp(-1j * kr) / (_FOUR_PI * r)
+                g = self._kernel(k, self._distances(r0, r1, image))
                 S = self._reduce(g, r0, r1, image, True)
-                for o, coefs in zip(out, outputs):
-                    self._assemble(S, r0, r1, image, coefs, o)
+                del g
+                for i, coefs in enumerate(outputs):
+                    xs[i] = self._piece_terms(S, r0, r1, image, coefs, xs[i])
+            for o, x in zip(out, xs):
+                self._assemble(x, r0, r1, o)
             if progress is not None:
                 progress(r1, P)
+        for o in out:
+            o += o.T.copy()
         return out
+
+    def _blocks(self, rows=None):
+        """Blocks (r0, r1) of piece rows, each paired with pieces r0:P, of about equal work."""
+        P = self.topo.n_pieces
+        pairs = max(1, (rows or self.rows) * P)  # point pairs of one block, as with whole rows
+        edges, r0 = [], 0
+        while r0 < P:
+            r1 = min(P, r0 + max(1, pairs // (P - r0)))
+            edges.append((r0, r1))
+            r0 = r1
+        return edges
 
     def series(self, k0: float, half_width: float, order: int):
         """Taylor coefficients in x = (k - k0)/half_width of Y(k) = k^2 A(k) - Phi(k) (perfect ground).
@@ -361,35 +468,51 @@ class Filler:
         -----
         exp(-jkR)/R = exp(-j k0 R)/R * sum_n (-j h R x)^n / n!, h = half_width,
         so each kernel value needs one exponential and ``order`` products; the
-        static correction of near pairs enters the n = 0 term only.
+        static correction of near pairs enters the n = 0 term only. With
+        k = k0 + h x, k^2 A = sum_n (k0^2 + 2 k0 h x + h^2 x^2) x^n A_n, so
+        Y_m = k0^2 A_m + 2 k0 h A_(m-1) + h^2 A_(m-2) - Phi_m; these sums are
+        formed piece by piece and every Y_m of a block of pieces is then
+        assembled onto the basis functions in one pass (each block with itself
+        and the pieces after it, as in :meth:`fill`).
         """
-        N, P = self.topo.n_unknowns, self.topo.n_pieces
-        y = np.zeros((order + 3, N, N), dtype=complex)
-        a_coefs = [{"A_direct": 1.0}, {"A_image_h": -1.0, "A_image_v": 1.0}]
-        p_coefs = [{"Phi_direct": 1.0}, {"Phi_image": -1.0}]
-        for r0 in range(0, P, self.rows):
-            r1 = min(P, r0 + self.rows)
-            # only the basis rows these pieces touch change: work on those rows alone
+        N = self.topo.n_unknowns
+        M = order + 3
+        y = np.zeros((M, N, N), dtype=complex)
+        coefs = ({"A_direct": 1.0, "Phi_direct": -1.0}, {"A_image_h": -1.0, "A_image_v": 1.0, "Phi_image": 1.0})
+        for r0, r1 in self._blocks(max(1, self.rows // 2)):  # every order's terms of a block are held at once
+            x = self._series_block(r0, r1, k0, half_width, order, coefs)
             rows = self.block_rows(r0, r1)
-            tmp_a = np.zeros((len(rows), N), dtype=complex)
-            tmp_p = np.zeros((len(rows), N), dtype=complex)
-            for image in ((False, True) if self.image else (False,)):
-                r = self._distances(r0, r1, image)
-                g = np.exp(-1j * k0 * r) / (_FOUR_PI * r)
-                r *= half_width
-                scale = 1.0 + 0j
-                for n in range(order + 1):
-                    if n:
-                        g *= r  # e^{-j k0 R} (h R)^n / (4 pi R)
-                        scale *= -1j / n
-                    S = self._reduce(g, r0, r1, image, n == 0)
-                    if n:
-                        S *= scale
-                    tmp_a[:] = 0.0
-                    tmp_p[:] = 0.0
-                    self._assemble(S, r0, r1, image, a_coefs[image], tmp_a, rows)
-                    self._assemble(S, r0, r1, image, p_coefs[image], tmp_p, rows)
-                    y[n, rows] += k0 * k0 * tmp_a - tmp_p
-                    y[n + 1, rows] += (2 * k0 * half_width) * tmp_a
-                    y[n + 2, rows] += (half_width * half_width) * tmp_a
+            tmp = np.zeros((len(rows), M, N), dtype=complex)
+            self._assemble(x, r0, r1, tmp, rows)
+            del x
+            y[:, rows] += tmp.transpose(1, 0, 2)
+        for m in range(M):
+            y[m] += y[m].T.copy()
         return y
+
+    def _series_block(self, r0, r1, k0, half_width, order, coefs):
+        """Piece-level terms (order + 3, 4, Pc, P-r0) of every Y_m for piece rows r0:r1 (:meth:`series`)."""
+        P = self.topo.n_pieces
+        a_n = np.zeros((order + 1, 4, r1 - r0, P - r0), dtype=complex)  # A_n, piece level
+        phi_n = np.zeros((order + 1, r1 - r0, P - r0), dtype=complex)  # -Phi_n, piece level (S_sum)
+        for image in ((False, True) if self.image else (False,)):
+            r = self._distances(r0, r1, image)
+            g = self._kernel(k0, r)
+            r *= half_width
+            tt = self._tangent_products(r0, r1, image, coefs[image])
+            sign = coefs[image]["Phi_image" if image else "Phi_direct"]
+            scale = 1.0 + 0j
+            for n in range(order + 1):
+                if n:
+                    g *= r  # e^{-j k0 R} (h R)^n / (4 pi R)
+                    scale *= -1j / n
+                S = self._reduce(g, r0, r1, image, n == 0)
+                a_n[n] += (scale * tt) * S[:4]
+                phi_n[n] += (scale * sign) * S[4]
+        x = np.zeros((order + 3,) + a_n.shape[1:], dtype=complex)
+        x[: order + 1] = (k0 * k0) * a_n
+        x[1 : order + 2] += (2 * k0 * half_width) * a_n
+        x[2:] += (half_width * half_width) * a_n
+        for c in range(4):
+            x[: order + 1, c] += self._charge_sign[c] * phi_n
+        return x

@@ -106,17 +106,23 @@ def lu_solve(z, rhs):
 
     The transpose of the C-ordered z is factored (a Fortran-ordered view, so
     no copy) and the transposed system solved; the condition number is the
-    LAPACK 1-norm estimate of z^T (the infinity-norm one of z).
+    LAPACK 1-norm estimate of z^T (the infinity-norm one of z). The LAPACK
+    routines (getrf, getrs, gecon) are called directly: the same computation
+    as ``scipy.linalg.lu_factor`` / ``lu_solve``, without their checks of the
+    arguments, which cost a third of a factorisation at N = 200.
     """
     n = z.shape[0]
     anorm = 0.0
     step = max(1, 2**21 // max(n, 1))
     for r0 in range(0, n, step):
         anorm = max(anorm, float(np.abs(z[r0 : r0 + step]).sum(axis=1).max()))
+    getrf, getrs, gecon = sla.get_lapack_funcs(("getrf", "getrs", "gecon"), (z,))
     with blas_threads(n, threaded=True):
-        lu, piv = sla.lu_factor(z.T, overwrite_a=True, check_finite=False)
-        x = sla.lu_solve((lu, piv), rhs, trans=1, check_finite=False)
-        rcond, _ = sla.lapack.zgecon(lu, anorm, norm="1")
+        lu, piv, info = getrf(z.T, overwrite_a=True)
+        if info < 0:  # pragma: no cover - an argument LAPACK rejects is a bug here
+            raise ValueError(f"illegal value in argument {-info} of the LU factorisation")
+        x, _ = getrs(lu, piv, np.asarray(rhs, dtype=lu.dtype), trans=1)
+        rcond, _ = gecon(lu, anorm, norm="1")
     cond = 1.0 / rcond if rcond > 0 else np.inf
     return x, cond
 
