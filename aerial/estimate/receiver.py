@@ -99,8 +99,10 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     name, lo, hi = _primary_band(site)
     m = (f >= lo - 1e-6) & (f <= hi + 1e-6)
     warnings: list[str] = []
-    tuning = reception.design_tuning(f[m], r[m], x[m], parts, band=(lo, hi))
+    tuning = reception.design_tuning(f[m], r[m], x[m], parts, band=(lo, hi), range_curve=True)
     tuning = dict(tuning)
+    curve = tuning.pop("range_curve", None)
+    curve_error = tuning.pop("range_curve_error", None)
     tuning["band"] = {"name": name, "from_hz": lo, "to_hz": hi}
     tuning["arrangement"] = parts.arrangement
     tuning["channel_spacings_hz"] = channel_spacings(site.region)
@@ -112,12 +114,10 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     if len(site.bands) > 1:
         tuning.setdefault("notes", []).append(
             f"The tuning parts are designed for the {name} band; other bands need their own coil.")
-    if parts.capacitor_min_f is not None and parts.capacitor_max_f is not None:
-        try:
-            tuning["range_curve"] = reception.tuning_range_curve(f[m], r[m], x[m], parts,
-                                                                 coil_inductance_h=tuning.get("coil", {}).get("inductance_h"))
-        except Exception as err:  # the curve is a picture aid; say why it is missing
-            warnings.append(f"tuning-range picture not drawn: {err}")
+    if curve is not None:
+        tuning["range_curve"] = curve
+    if curve_error is not None:
+        warnings.append(f"tuning-range picture not drawn: {curve_error}")
     warnings += list(tuning.get("warnings", []))
     stations = []
     if site.stations:

@@ -462,6 +462,15 @@ def _needed(f, aerial, L, q_fun, cfg, block=None, wound_like=None):
     f = np.atleast_1d(np.asarray(f, dtype=float))
     if cfg.get("tap_fraction") is not None and np.ndim(cfg["tap_fraction"]) > 0:  # taps change the winding's cut
         taps = np.ravel(cfg["tap_fraction"])
+        if np.ndim(L) == 0:  # one stacked solve over the taps
+            if wound_like is not None:
+                block = _scaled_block(wound_like, L)
+            nets = [tn_mod.network_parts(cfg["arrangement"], L, q_fun, cfg["detector_tap"], float(t),
+                                         cfg["series_capacitance"], cfg["primary_inductance"],
+                                         cfg["coupling_coefficient"], block,
+                                         self_capacitance=cfg.get("self_capacitance", 0.0)) for t in taps]
+            s = net_mod.solve_network_stack(f, _za(aerial)(f), nets, 0.0, cfg["detector_conductance"])
+            return -np.imag(1.0 / s.top_impedance) / (2.0 * np.pi * f)
         return np.array([_needed(f, aerial, L, q_fun, {**cfg, "tap_fraction": float(t)}, block, wound_like)
                          for t in taps])
     if np.ndim(L) > 0:  # coils wound alike, of several inductances: one solve (network.solve_network)
@@ -870,7 +879,8 @@ def _strong_signal_conductance(parts):
     return 1.0 / (parts.earphone_ohm / 2.0)
 
 
-def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, band=None) -> dict:
+def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, band=None,
+                  range_curve=False) -> dict:
     """Tuning design across a band: capacitor settings, coverage, loaded Q, selectivity, advice.
 
     Parameters
@@ -885,6 +895,9 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
         Coil, capacitor, coupling, detector, earphone (and optional calibration).
     band : (float, float), optional
         Band edges (f_lo, f_hi); default the grid's range. [Hz]
+    range_curve : bool
+        Add ``range_curve``, the dial picture of :func:`tuning_range_curve` for this coil, when the
+        capacitor range is given (``range_curve_error``, its reason, when it cannot be drawn).
 
     Returns
     -------
@@ -925,6 +938,7 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
     notes: list = []
     diode = _diode(parts)
     calibration = _apply_calibration(aerial, parts, diode, notes)
+    calibration_notes = list(notes)
     if calibration is not None and aerial.cal_resistance is not None:
         calibration["bench_check"] = _bench_check(aerial, parts, notes)
     f_lo, f_hi = (aerial.f[0], aerial.f[-1]) if band is None else (float(band[0]), float(band[1]))
@@ -942,7 +956,8 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
     grid_in = aerial.f[(aerial.f > f_lo) & (aerial.f < f_hi)]
     table_f = np.unique(np.concatenate([[f_lo], grid_in, [f_hi]]))
     rows = _table_rows(table_f, _table_arrays(table_f, aerial, coil, parts), warnings, parts)
-    coverage, advice = _coverage((f_lo, f_hi), aerial, coil, parts, warnings)
+    setting = _setting_of(aerial, coil, parts)
+    coverage, advice = _coverage((f_lo, f_hi), aerial, coil, parts, warnings, setting)
     if parts.arrangement in tank_mod.NO_DC_PATH_ARRANGEMENTS:
         notes.append(tank_mod.BLEED_NOTE)
     if parts.earphone_ohm < LOW_IMPEDANCE_EARPHONE_OHM:
@@ -962,6 +977,11 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
     }
     if calibration is not None:
         result["calibration"] = calibration
+    if range_curve and parts.capacitor_min_f is not None:
+        try:
+            result["range_curve"] = _range_curve(aerial, coil, parts, setting, calibration_notes)
+        except Exception as err:  # the curve is a picture aid: say why it is missing
+            result["range_curve_error"] = str(err)
     return result
 
 
@@ -1000,8 +1020,12 @@ def _table_arrays(table_f, aerial, coil, parts) -> dict:
     net = _net_parts(coil, parts)
     offsets = [o for spacing in tank_mod.CHANNEL_SPACINGS_HZ for o in (spacing, 2 * spacing)]
     g_strong = _strong_signal_conductance(parts)
-    strong = tn_mod.tuned_figures(table_f, _za(aerial), net, g_strong, offsets)
-    weak = tn_mod.tuned_figures(table_f, _za(aerial), net, tn_mod.weak_signal_conductance(_diode(parts)), offsets)
+    g_weak = tn_mod.weak_signal_conductance(_diode(parts))
+    # the strong- and the weak-signal loading in one pass (each row's figures are its own)
+    n = table_f.size
+    both = tn_mod.tuned_figures(np.concatenate([table_f, table_f]), _za(aerial), net,
+                                np.concatenate([np.full(n, g_strong), np.full(n, g_weak)]), offsets)
+    strong, weak = _split_figures(both, n)
     r_a, _ = aerial.impedance(table_f)
     # the setting as the coverage and the station verdicts find it: the network tuned with the detector
     # at its weak-signal loading (a strong station's setting differs by a small fraction of a pF)
@@ -1026,12 +1050,19 @@ def _table_arrays(table_f, aerial, coil, parts) -> dict:
         "power_transfer_if_matched_ratio": tank_mod.matched_power_ratio(np.minimum(strong.loaded_q, qu), qu),
         "weak_signal_loaded_q": weak.loaded_q,
         "bandwidth_weak_signal_hz": weak.bandwidth,
-        "power_transfer_weak_signal_ratio": weak.detector_per_volt**2 * tn_mod.weak_signal_conductance(_diode(parts))
-        * 4.0 * r_a,
+        "power_transfer_weak_signal_ratio": weak.detector_per_volt**2 * g_weak * 4.0 * r_a,
         "rejection": {f"rejection_{int(d / 1e3)}khz_db": v for d, v in strong.rejection.items()},
         "rejection_weak": {f"rejection_{int(d / 1e3)}khz_weak_signal_db": v for d, v in weak.rejection.items()},
         "wide": strong.wider_than_searched,
     }
+
+
+def _split_figures(fig: tn_mod.TunedFigures, n: int) -> tuple:
+    """The first ``n`` frequencies' tuned figures and the rest's."""
+    def part(sl):
+        return tn_mod.TunedFigures(*(v[sl] for v in fig[:5]), {d: v[sl] for d, v in fig.rejection.items()})
+
+    return part(slice(None, n)), part(slice(n, None))
 
 
 #: Keys of the tuning table's rows, in order, after ``frequency_hz``.
@@ -1100,12 +1131,13 @@ def _table_rows(table_f, arr, warnings, parts) -> list:
     return rows
 
 
-def _coverage(band, aerial, coil, parts, warnings) -> tuple:
+def _coverage(band, aerial, coil, parts, warnings, setting=None) -> tuple:
     """Band coverage by the capacitor range, with advice when it falls short. Returns (coverage, advice).
 
-    The settings come from the network solve (:func:`_needed`), the model the station verdicts and
-    the tuning table use, so a station is out of the tuning range exactly when it lies outside the
-    reachable ranges stated here.
+    The settings come from the network solve (:func:`_needed`; ``setting``, from :func:`_setting_of`,
+    when one is shared with the dial picture), the model the station verdicts and the tuning table
+    use, so a station is out of the tuning range exactly when it lies outside the reachable ranges
+    stated here.
     """
     f_lo, f_hi = band
     cfg = _coil_config(parts, coil)
@@ -1122,8 +1154,8 @@ def _coverage(band, aerial, coil, parts, warnings) -> tuple:
         return coverage, []
     # over the aerial's grid (and the band): what the capacitor reaches, inside the band or beyond it
     span = (min(float(aerial.f[0]), f_lo), max(float(aerial.f[-1]), f_hi))
-    pieces = _reachable_ranges(*span, lambda f: _needed(f, aerial, coil.inductance, coil.q, cfg, coil.block),
-                               parts.capacitor_min_f, parts.capacitor_max_f)
+    pieces = _reachable_ranges(*span, setting or _setting_of(aerial, coil, parts), parts.capacitor_min_f,
+                               parts.capacitor_max_f)
     covered = any(a <= f_lo * (1 + 1e-9) and b >= f_hi * (1 - 1e-9) for a, b in pieces)
     coverage["covered"] = covered
     coverage["reachable_ranges_hz"] = [[a, b] for a, b in pieces]
@@ -1139,7 +1171,7 @@ def _coverage(band, aerial, coil, parts, warnings) -> tuple:
 
 
 def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, points=60,
-                       coil_inductance_h=None, _aerial=None, _coil=None) -> dict:
+                       coil_inductance_h=None) -> dict:
     """Frequency against capacitor setting, for a picture of the dial.
 
     Parameters
@@ -1178,15 +1210,34 @@ def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningPa
     _check_parts(parts)
     if parts.capacitor_min_f is None:
         raise ModelInputError("a tuning curve needs the capacitor range (capacitor_min_f, capacitor_max_f)")
-    aerial = _aerial if _aerial is not None else _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm)
+    aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm)
     notes: list = []
-    if _aerial is None:
-        _apply_calibration(aerial, parts, _diode(parts), notes)
-    coil = _coil if _coil is not None else _resolve_coil(
+    _apply_calibration(aerial, parts, _diode(parts), notes)
+    coil = _resolve_coil(
         parts if coil_inductance_h is None else TuningParts(**{**parts.__dict__, "coil_inductance_h": coil_inductance_h}))
-    fine = np.geomspace(aerial.f[0], aerial.f[-1], 600) if aerial.f.size > 1 else aerial.f.copy()
+    return _range_curve(aerial, coil, parts, _setting_of(aerial, coil, parts), notes, points)
+
+
+def _setting_of(aerial, coil, parts):
+    """The capacitor setting needed, f -> [F] (:func:`_needed` with the coil's own configuration), remembering
+    the grids it was asked for: the coverage and the dial picture search the same grid the same way."""
     cfg = _coil_config(parts, coil)
-    c_need = _needed(fine, aerial, coil.inductance, coil.q, cfg, coil.block)
+    seen: dict = {}
+
+    def setting(f):
+        f = np.asarray(f, dtype=float)
+        key = (f.shape, f.tobytes())
+        if key not in seen:
+            seen[key] = _needed(f, aerial, coil.inductance, coil.q, cfg, coil.block)
+        return seen[key]
+
+    return setting
+
+
+def _range_curve(aerial, coil, parts, setting, notes, points=60) -> dict:
+    """:func:`tuning_range_curve` for a resolved aerial and coil; ``notes`` go into its warnings."""
+    fine = np.geomspace(aerial.f[0], aerial.f[-1], 600) if aerial.f.size > 1 else aerial.f.copy()
+    c_need = setting(fine)
     settings = np.linspace(parts.capacitor_min_f, parts.capacitor_max_f, int(points))
     def crossing(cs):
         diff = c_need - cs
@@ -1207,9 +1258,8 @@ def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningPa
             out_f.append(fr)
     pieces = []
     if aerial.f.size > 1:
-        pieces = _reachable_ranges(fine[0], fine[-1], lambda f: _needed(f, aerial, coil.inductance, coil.q, cfg,
-                                                                        coil.block),
-                                   parts.capacitor_min_f, parts.capacitor_max_f, points=fine.size)
+        pieces = _reachable_ranges(fine[0], fine[-1], setting, parts.capacitor_min_f, parts.capacitor_max_f,
+                                   points=fine.size)
     elif parts.capacitor_min_f <= c_need[0] <= parts.capacitor_max_f:
         pieces = [(float(fine[0]), float(fine[0]))]
     warnings = []
@@ -1217,7 +1267,7 @@ def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningPa
         warnings.append("the tuning range reaches the edge of the aerial's frequency grid and may extend beyond it")
     if len(out_c) < len(settings):
         warnings.append(f"{len(settings) - len(out_c)} capacitor settings tune outside the aerial's frequency grid")
-    result = {"capacitor_setting_f": out_c, "frequency_hz": out_f, "warnings": warnings + notes}
+    result = {"capacitor_setting_f": out_c, "frequency_hz": out_f, "warnings": warnings + list(notes)}
     if pieces:
         result["reachable_low_hz"] = pieces[0][0]
         result["reachable_high_hz"] = pieces[-1][1]

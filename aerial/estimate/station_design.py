@@ -102,11 +102,12 @@ def evaluate_many(scene: Scene, candidates_parts) -> list:
     parts = list(candidates_parts)
     if not parts:
         return []
-    lv = tn_mod.station_levels_stack(scene.frequency, scene.emf, scene.za, parts, scene.diode, scene.load,
+    plan = net_mod.plan_network_stack(parts)
+    lv = tn_mod.station_levels_stack(scene.frequency, scene.emf, scene.za, plan, scene.diode, scene.load,
                                      table=scene.table)
     centre = float(np.sqrt(scene.frequency.min() * scene.frequency.max()))
     g = np.array([[1.0 / float(np.exp(np.mean(np.log(r))))] for r in lv.input_resistance])
-    rej = tn_mod.rejection_stack(np.array([centre]), scene.za, parts, g, [scene.spacing_hz])[scene.spacing_hz]
+    rej = tn_mod.rejection_stack(np.array([centre]), scene.za, plan, g, [scene.spacing_hz])[scene.spacing_hz]
     return [merit(scene, lv.detector_voltage[p], lv.input_resistance[p], lv.others[p], lv.capacitance[p],
                   float(rej[p, 0])) for p in range(len(parts))]
 

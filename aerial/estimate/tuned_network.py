@@ -39,20 +39,21 @@ def network_parts(arrangement, inductance, q_fun, detector_tap=1.0, tap_fraction
     8.38
     """
     L = float(inductance)
-
-    def coil_r(f):
-        return 2.0 * np.pi * np.asarray(f, dtype=float) * L / q_fun(f)
-
-    rp = 0.0
-    if primary_inductance is not None:
-        lp = float(primary_inductance)
-
-        def rp(f):
-            return 2.0 * np.pi * np.asarray(f, dtype=float) * lp / q_fun(f)
-
+    coil_r = _loss_resistance(L, q_fun)
+    rp = 0.0 if primary_inductance is None else _loss_resistance(float(primary_inductance), q_fun)
     return net_mod.NetworkParts(arrangement, L, coil_r, float(detector_tap), tap_fraction, series_capacitance,
                                 primary_inductance, coupling_coefficient, rp, primary_capacitance,
                                 float(self_capacitance), block)
+
+
+@functools.lru_cache(maxsize=256)
+def _loss_resistance(inductance: float, q_fun: Callable) -> Callable:
+    """ωL/Q(f) of a winding, f -> [ohm]: one function per winding and Q, so that networks sharing a coil share it
+    (a stacked solve then works it out once)."""
+    def resistance(f):
+        return 2.0 * np.pi * np.asarray(f, dtype=float) * inductance / q_fun(f)
+
+    return resistance
 
 
 class TunedFigures(NamedTuple):
@@ -301,8 +302,8 @@ def station_levels_stack(frequency, open_circuit_voltage, za: Callable, parts_st
     ----------
     frequency, open_circuit_voltage, za, diode, load, table
         As :func:`station_levels`; the same stations for every network.
-    parts_stack : sequence of NetworkParts
-        P networks (couplings, taps, coils).
+    parts_stack : sequence of NetworkParts, or NetworkStack
+        P networks (couplings, taps, coils), or them prepared (:func:`aerial.models.network.plan_network_stack`).
 
     Returns
     -------
@@ -328,14 +329,15 @@ def station_levels_stack(frequency, open_circuit_voltage, za: Callable, parts_st
     """
     fs = np.asarray(frequency, dtype=float)
     v_oc = np.asarray(open_circuit_voltage, dtype=float)
-    n_p = len(parts_stack)
+    plan = parts_stack if isinstance(parts_stack, net_mod.NetworkStack) else net_mod.plan_network_stack(parts_stack)
+    n_p = plan.size
     z_s = za(fs)
     g = np.full((n_p,) + fs.shape, weak_signal_conductance(diode))
     # the weak-signal tuning and the bare network (no capacitor, no detector) in one stacked solve
-    first = net_mod.solve_network_stack(fs, z_s, list(parts_stack) * 2, 0.0, np.concatenate([g, np.zeros_like(g)]))
+    first = net_mod.solve_network_stack(fs, z_s, plan.repeated(2), 0.0, np.concatenate([g, np.zeros_like(g)]))
     w = 2.0 * np.pi * fs
     c = np.maximum(-np.imag(1.0 / first.top_impedance[:n_p]) / w, 0.0)
-    bare = net_mod.solve_network_stack(fs, z_s, parts_stack, c, 0.0)
+    bare = net_mod.solve_network_stack(fs, z_s, plan, c, 0.0)
     v, r_in, ok = detector_level(v_oc * np.abs(bare.detector_voltage), bare.detector_impedance, diode, load,
                                  table=table)
     g = 1.0 / r_in
@@ -356,7 +358,7 @@ def rejection_stack(frequency, za: Callable, parts_stack, detector_conductance, 
         Tuned frequencies, the same for every network. [Hz]
     za : callable
         Aerial impedance za(f). [ohm]
-    parts_stack : sequence of NetworkParts
+    parts_stack : sequence of NetworkParts, or NetworkStack
         P networks.
     detector_conductance : ndarray, shape (P, m)
         [S]
@@ -379,12 +381,13 @@ def rejection_stack(frequency, za: Callable, parts_stack, detector_conductance, 
     """
     f0 = np.asarray(frequency, dtype=float)
     g = np.asarray(detector_conductance, dtype=float)
-    s = net_mod.solve_network_stack(f0, za(f0), parts_stack, 0.0, g)
+    plan = parts_stack if isinstance(parts_stack, net_mod.NetworkStack) else net_mod.plan_network_stack(parts_stack)
+    s = net_mod.solve_network_stack(f0, za(f0), plan, 0.0, g)
     c_pos = np.maximum(-np.imag(1.0 / s.top_impedance) / (2.0 * np.pi * f0), 0.0)
     n = f0.size
     probes = [f0] + [p for d in offsets for p in (np.maximum(f0 - d, f0 * 1e-3), f0 + d)]
     every = np.concatenate(probes)
-    levels = np.abs(net_mod.solve_network_stack(every, za(every), parts_stack, np.tile(c_pos, (1, len(probes))),
+    levels = np.abs(net_mod.solve_network_stack(every, za(every), plan, np.tile(c_pos, (1, len(probes))),
                                                 np.tile(g, (1, len(probes)))).detector_voltage)
     tuned = levels[:, :n]
     return {d: net_mod.rejection_db(tuned, (levels[:, (1 + 2 * k) * n:(2 + 2 * k) * n],

@@ -40,6 +40,7 @@ References
 
 from __future__ import annotations
 
+import functools
 import math
 from typing import Callable, NamedTuple
 
@@ -303,19 +304,16 @@ def solve_network(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
         a[..., top, top] += y
         a[..., k, top] -= y
         a[..., top, k] -= y
-    edges = np.concatenate([[0.0], taps])
+    frac = np.diff(np.concatenate([[0.0], taps]))
     r_coil = np.broadcast_to(_value(parts.coil_resistance, f), shape)
+    # each section's current leaves its upper node and enters the lower one (entries of ±1 that nothing
+    # else touches); each section's voltage is its share of the loss plus jω times the inductance matrix
+    rows, cols, signs = _incidence(k, n_nodes)
+    a[..., rows, cols] = signs
+    block = 0.0 - np.asarray(1j * w)[..., np.newaxis, np.newaxis] * msec
     for s in range(k):
-        row = n_nodes + s
-        a[..., s, row] += 1.0  # the section's current leaves its upper node ...
-        if s > 0:
-            a[..., s - 1, row] -= 1.0  # ... and enters the lower one
-        a[..., row, s] += 1.0
-        if s > 0:
-            a[..., row, s - 1] -= 1.0
-        a[..., row, row] -= r_coil * (edges[s + 1] - edges[s])
-        for j in range(k):
-            a[..., row, n_nodes + j] -= 1j * w * msec[..., s, j]
+        block[..., s, s] -= r_coil * frac[s]
+    a[..., n_nodes:n_nodes + k, n_nodes:n_nodes + k] = block
     if primary:
         lp = float(parts.primary_inductance)
         row = n_nodes + k
@@ -335,14 +333,72 @@ def solve_network(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
                            x[..., det, 1], x[..., top, 2])
 
 
-def _stack_groups(parts_stack) -> dict:
-    """Indices of ``parts_stack`` by the shape of their system (arrangement, sections, tuned primary)."""
-    groups: dict = {}
+@functools.lru_cache(maxsize=32)
+def _incidence(k: int, n_nodes: int) -> tuple:
+    """Rows, columns and signs (±1) joining k winding sections to their nodes in the nodal matrix."""
+    rows, cols, signs = [], [], []
+    for s in range(k):
+        row = n_nodes + s
+        rows += [s, row]
+        cols += [row, s]
+        signs += [1.0, 1.0]
+        if s > 0:
+            rows += [s - 1, row]
+            cols += [row, s - 1]
+            signs += [-1.0, -1.0]
+    return np.array(rows), np.array(cols), np.array(signs)
+
+
+class StackGroup(NamedTuple):
+    """Networks of one system shape within a stack, with the values their assembly needs."""
+
+    index: np.ndarray  #: their rows in the stack
+    parts: tuple  #: their NetworkParts
+    detector_node: np.ndarray  #: (G, 1)
+    aerial_node: np.ndarray  #: (G, 1): the coil tap's node (unused by the other arrangements)
+    fractions: np.ndarray  #: (G, k): each winding section's share of the turns [1]
+    sections: np.ndarray  #: (G, k, k): the sections' self and mutual inductances [H]
+
+
+class NetworkStack(NamedTuple):
+    """P networks prepared for :func:`solve_network_stack`, grouped by the shape of their systems."""
+
+    size: int
+    groups: tuple
+
+    def repeated(self, times: int) -> "NetworkStack":
+        """The same networks ``times`` over, one run after the other (P·times rows)."""
+        return NetworkStack(self.size * times, tuple(
+            StackGroup(np.concatenate([g.index + t * self.size for t in range(times)]), g.parts * times,
+                       *(np.concatenate([v] * times) for v in (g.detector_node, g.aerial_node, g.fractions,
+                                                              g.sections)))
+            for g in self.groups))
+
+
+def plan_network_stack(parts_stack) -> NetworkStack:
+    """Check P networks and group them by the shape of their systems for :func:`solve_network_stack`
+    (worth keeping when the same networks are solved several times).
+
+    Examples
+    --------
+    >>> ps = [NetworkParts("coil tap", 240e-6, 8.0, detector_tap=m, aerial_tap=0.2) for m in (0.2, 0.5, 1.0)]
+    >>> [len(g.parts) for g in plan_network_stack(ps).groups]  # two sections, then three
+    [2, 1]
+    """
+    keyed: dict = {}
     for i, p in enumerate(parts_stack):
         check_parts(p)
-        taps, _ = _taps(p)
-        groups.setdefault((p.arrangement, len(taps), p.primary_capacitance is not None), []).append(i)
-    return groups
+        taps, node = _taps(p)
+        keyed.setdefault((p.arrangement, len(taps), p.primary_capacitance is not None), []).append(
+            (i, p, node[float(p.detector_tap)], node.get(float(p.aerial_tap or 1.0)),
+             np.diff(np.concatenate([[0.0], taps])), _sections(tuple(taps), p.block, float(p.coil_inductance))))
+    groups = []
+    for rows in keyed.values():
+        idx, parts, det, aer, frac, msec = zip(*rows)
+        groups.append(StackGroup(np.array(idx), tuple(parts), np.array(det)[:, None],
+                                 np.array([-1 if a is None else a for a in aer])[:, None], np.array(frac),
+                                 np.array(msec)))
+    return NetworkStack(len(parts_stack), tuple(groups))
 
 
 def solve_network_stack(frequency, aerial_impedance, parts_stack, tuning_capacitance=0.0, detector_conductance=0.0,
@@ -355,9 +411,9 @@ def solve_network_stack(frequency, aerial_impedance, parts_stack, tuning_capacit
         [Hz]
     aerial_impedance : array_like of complex
         Broadcast to (P, m). [ohm]
-    parts_stack : sequence of NetworkParts
+    parts_stack : sequence of NetworkParts, or NetworkStack
         P networks, each with a single coil inductance, series capacitance and coupling coefficient;
-        arrangements and taps may differ.
+        arrangements and taps may differ (:func:`plan_network_stack` prepares them once for many solves).
     tuning_capacitance, detector_conductance, emf : array_like
         Broadcast to (P, m). [F], [S], [V]
 
@@ -383,11 +439,11 @@ def solve_network_stack(frequency, aerial_impedance, parts_stack, tuning_capacit
     >>> bool(np.allclose(s.detector_voltage[2], one.detector_voltage, rtol=1e-12))
     True
     """
-    n_p = len(parts_stack)
+    plan = parts_stack if isinstance(parts_stack, NetworkStack) else plan_network_stack(parts_stack)
     f = np.asarray(frequency, dtype=float)
-    if np.any(~np.isfinite(f)) or np.any(f <= 0):
+    if not (np.isfinite(f).all() and (f > 0).all()):
         raise ModelInputError("frequency must be positive and finite")
-    shape = np.broadcast_shapes((n_p, 1), f.shape, np.shape(aerial_impedance), np.shape(tuning_capacitance),
+    shape = np.broadcast_shapes((plan.size, 1), f.shape, np.shape(aerial_impedance), np.shape(tuning_capacitance),
                                 np.shape(detector_conductance), np.shape(emf))
     if len(shape) != 2:
         raise ModelInputError("a stack of networks takes frequencies of shape (m,) or (P, m)")
@@ -396,39 +452,44 @@ def solve_network_stack(frequency, aerial_impedance, parts_stack, tuning_capacit
               np.broadcast_to(np.asarray(detector_conductance, dtype=float), shape),
               np.broadcast_to(np.asarray(emf, dtype=complex), shape)]
     out = [np.empty(shape, dtype=complex) for _ in range(7)]
-    for idx in _stack_groups(parts_stack).values():
-        group = [parts_stack[i] for i in idx]
-        for o, v in zip(out, _solve_group(group, *(x[idx] for x in inputs))):
-            o[idx] = v
+    shared = f if f.ndim == 1 else None  # one row of frequencies for every network: each loss callable met once
+    for group in plan.groups:
+        for o, v in zip(out, _solve_group(group, shared, *(x[group.index] for x in inputs))):
+            o[group.index] = v
     return NetworkSolution(*out)
 
 
-def _group_plan(group):
-    """Per-network values of a group of one shape: detector and aerial nodes, section fractions and inductances."""
-    det, aer, frac, msec = [], [], [], []
-    for p in group:
-        taps, node = _taps(p)
-        det.append(node[float(p.detector_tap)])
-        aer.append(node.get(float(p.aerial_tap or 1.0)))
-        frac.append(np.diff(np.concatenate([[0.0], taps])))
-        msec.append(_sections(tuple(taps), p.block, float(p.coil_inductance)))
-    return np.array(det)[:, None], np.array(aer)[:, None], np.array(frac), np.array(msec)
+def _per_network(values, f, shared) -> np.ndarray:
+    """A frequency-dependent part value (a number, or a callable of f) of every network of a group, (G, m).
+
+    With ``shared`` frequencies (every row of ``f`` the same), a callable met again is not called again."""
+    seen: dict = {}
+    rows = []
+    for i, v in enumerate(values):
+        if shared is not None and callable(v):
+            if id(v) not in seen:
+                seen[id(v)] = np.broadcast_to(v(shared), f.shape[1:])
+            rows.append(seen[id(v)])
+        else:
+            rows.append(np.broadcast_to(_value(v, f[i]), f.shape[1:]))
+    return np.array(rows)
 
 
-def _solve_group(group, f, za, tuning_capacitance, detector_conductance, emf):
+def _solve_group(group: StackGroup, shared, f, za, tuning_capacitance, detector_conductance, emf):
     """Assemble and solve networks of one shape, (G, m) inputs; the order of operations of :func:`solve_network`."""
-    p0 = group[0]
+    parts = group.parts
+    p0 = parts[0]
     n_g, m = f.shape
     gi, mi = np.arange(n_g)[:, None], np.arange(m)[None, :]
     w = 2.0 * np.pi * f
-    det, aer_tap, frac, msec = _group_plan(group)
+    det, frac, msec = group.detector_node, group.fractions, group.sections
     k = frac.shape[1]
     top = k - 1
     has_x = p0.arrangement in ("series capacitor", "separate primary")
     primary = p0.arrangement == "separate primary"
     n_nodes, n_l = k + int(has_x), k + int(primary)
     n = n_nodes + n_l
-    aer = {"direct": top, "coil tap": aer_tap, "series capacitor": k, "separate primary": k}[p0.arrangement]
+    aer = {"direct": top, "coil tap": group.aerial_node, "series capacitor": k, "separate primary": k}[p0.arrangement]
     a = np.zeros((n_g, m, n, n), dtype=complex)
     rhs = np.zeros((n_g, m, n, 3), dtype=complex)
     a[gi, mi, aer, aer] += 1.0 / za
@@ -439,15 +500,15 @@ def _solve_group(group, f, za, tuning_capacitance, detector_conductance, emf):
     def column(values):
         return np.array(values, dtype=float)[:, None]
 
-    a[..., top, top] += 1j * w * (tuning_capacitance + column([p.self_capacitance for p in group]))
+    a[..., top, top] += 1j * w * (tuning_capacitance + column([p.self_capacitance for p in parts]))
     a[gi, mi, det, det] += detector_conductance
     if p0.arrangement == "series capacitor":
-        y = 1j * w * column([p.series_capacitance for p in group])
+        y = 1j * w * column([p.series_capacitance for p in parts])
         a[..., k, k] += y
         a[..., top, top] += y
         a[..., k, top] -= y
         a[..., top, k] -= y
-    r_coil = np.array([np.broadcast_to(_value(p.coil_resistance, f[i]), (m,)) for i, p in enumerate(group)])
+    r_coil = _per_network([p.coil_resistance for p in parts], f, shared)
     for s in range(k):
         row = n_nodes + s
         a[..., s, row] += 1.0
@@ -460,29 +521,30 @@ def _solve_group(group, f, za, tuning_capacitance, detector_conductance, emf):
         for j in range(k):
             a[..., row, n_nodes + j] -= 1j * w * msec[:, s, j:j + 1]
     if primary:
-        _primary_entries(a, group, f, w, msec, k, n_nodes, column)
+        _primary_entries(a, group, shared, f, w, k, n_nodes, column)
     with blas_threads(n):
         x = np.linalg.solve(a, rhs)
     return (x[..., top, 0], x[gi, mi, det, 0], x[..., top, 1], x[gi, mi, det, 2], x[gi, mi, aer, 0],
             x[gi, mi, det, 1], x[..., top, 2])
 
 
-def _primary_entries(a, group, f, w, msec, k, n_nodes, column):
+def _primary_entries(a, group: StackGroup, shared, f, w, k, n_nodes, column):
     """The separate primary's rows of a group's systems (see :func:`solve_network`)."""
+    parts = group.parts
     row = n_nodes + k
-    lp = column([float(p.primary_inductance) for p in group])
+    lp = column([float(p.primary_inductance) for p in parts])
     m_total = column([p.coupling_coefficient * np.sqrt(float(p.primary_inductance) * p.coil_inductance)
-                      for p in group])
-    share = np.array([ms.sum(axis=1) / ms.sum() for ms in msec])
-    rp = np.array([np.broadcast_to(_value(p.primary_resistance, f[i]), f.shape[1:]) for i, p in enumerate(group)])
+                      for p in parts])
+    share = np.array([ms.sum(axis=1) / ms.sum() for ms in group.sections])
+    rp = _per_network([p.primary_resistance for p in parts], f, shared)
     a[..., k, row] += 1.0
     a[..., row, k] += 1.0
     a[..., row, row] -= rp + 1j * w * lp
     for s in range(k):
         a[..., row, n_nodes + s] -= 1j * w * m_total * share[:, s:s + 1]
         a[..., n_nodes + s, row] -= 1j * w * m_total * share[:, s:s + 1]
-    if group[0].primary_capacitance is not None:
-        a[..., k, k] += 1j * w * column([p.primary_capacitance for p in group])
+    if parts[0].primary_capacitance is not None:
+        a[..., k, k] += 1j * w * column([p.primary_capacitance for p in parts])
 
 
 def retuned_detector_voltage(bare: NetworkSolution, frequency, tuning_capacitance, detector_conductance):
