@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import argparse
 import contextlib
-import json
 import os
 import sys
 import time
@@ -237,7 +236,9 @@ def _columns() -> int | None:
 
 
 def _print_json(data) -> None:
-    sys.stdout.write(json.dumps(data, indent=2, sort_keys=False, allow_nan=False))
+    from aerial.estimate.plain import json_text
+
+    sys.stdout.write(json_text(data))
     sys.stdout.write("\n")
 
 

@@ -211,3 +211,27 @@ def test_consistency_the_earth_table_gives_the_screens_effective_length(tmp_path
     expected = earth.screen_effective_length([], radials, site.soil, f, earth.screen_aerial(resolve(site).segments))
     assert part["effective_length_m"] == pytest.approx(expected, rel=1e-12)
     assert 1.0 <= part["effective_length_m"] <= 0.25 * 299_792_458.0 / f
+
+
+def test_consistency_the_radials_what_if_shares_the_wires_response_and_its_earth_is_the_fresh_one():
+    # consistency check: the "add radials" row reuses the "as described" row's closed-form response (only the
+    # earth differs) and the ground field of the screen comes from a cache; both give, to 1e-12, what a fresh
+    # computation of the same row gives
+    from aerial.estimate import earth
+    from aerial.estimate.assemble import _headline, band_points, resolve, what_if, what_if_frequency
+
+    site = aerial.load_site(None)
+    f = what_if_frequency(site, band_points(site))
+    rows = what_if(site, f, {})
+    radials = next(r for r in rows if r["change"].startswith("add 8 buried radials"))
+    field = earth.screen_aerial(resolve(site).segments)
+    fresh_field = earth._screen_field(resolve(site).segments)
+    for key in ("distance_m", "field_per_m"):
+        assert np.array_equal(field[key], fresh_field[key])
+    field["field_per_m"][:] = 0.0  # the caller's copy: the cache keeps its own
+    assert np.array_equal(earth.screen_aerial(resolve(site).segments)["field_per_m"], fresh_field["field_per_m"])
+    better = earth.improved_earth(site.electrodes, site.soil, f, radial_length_m=10.0, aerial=fresh_field)
+    fresh = _headline(site, site.wires, f, better["resistance_ohm"])
+    for key in ("effective_height_m", "capacitance_f", "loss_resistance_ohm", "open_circuit_voltage_v",
+                "available_power_w"):
+        assert radials[key] == pytest.approx(float(fresh[key][0]), rel=1e-12, abs=0.0), key

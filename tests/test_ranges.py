@@ -9,6 +9,7 @@ from __future__ import annotations
 import json
 
 import numpy as np
+import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -18,6 +19,8 @@ from aerial.estimate import assemble
 from aerial.geometry.resolve import resolve
 from aerial.models.shapes import classify
 from aerial.site.reader import load_site_text
+
+from .conftest import ROOT
 
 EXAMPLES = "site_examples/"
 
@@ -241,3 +244,29 @@ def test_quick_ground_beside_a_building_runs_through_the_cli(capsys):
     assert main(["report", "--full-wave", "--lossy-ground", "--quick-ground", "--step", "400 kHz", "--json"]) == 0
     result = json.loads(capsys.readouterr().out)
     assert "reflection-coefficient" in result["aerial"]["ground_treatment"]
+
+
+def test_consistency_one_run_of_the_soil_bounds_serves_the_earth_table_and_the_ranges():
+    # consistency check: the report runs the soil's bounds once, at the band points and the centre frequency;
+    # the earth table's RF ranges at the centre and the ranges at the band points are, to 1e-12, those of
+    # separate runs at the centre alone and at the band points alone
+    site = aerial.load_site(ROOT / "site_examples" / "backyard_inverted_l.toml")
+    result = aerial.analyse(site)
+    f_c = result["earth"]["centre_frequency_hz"]
+    alone = assemble.earth_bounds(site, [f_c])
+    value = result["earth"]["impedance_ohm"][result["frequencies_hz"].index(f_c)][0]
+    low, high = min(float(alone["low_ohm"][0]), value), max(float(alone["high_ohm"][0]), value)
+    assert result["earth"]["resistance_range_at_centre_ohm"] == pytest.approx([low, high], rel=1e-12, abs=0.0)
+    for n, part in enumerate(result["earth"]["parts"]):
+        zp = part["impedance_at_centre_ohm"][0]
+        want = [min(float(alone["parts_low_ohm"][n][0]), zp), max(float(alone["parts_high_ohm"][n][0]), zp)]
+        assert part["resistance_range_at_centre_ohm"] == pytest.approx(want, rel=1e-12, abs=0.0)
+    freqs = np.asarray(result["frequencies_hz"])
+    pts = assemble.band_points(site)
+    resp = {k: np.asarray(v, float) for k, v in result["aerial"].items() if k in (
+        "capacitance_f", "effective_height_m", "conductor_loss_ohm", "ground_loss_ohm", "series_resistance_ohm",
+        "open_circuit_voltage_v", "available_power_w")}
+    separate = assemble.ranges_at_band_points(site, freqs, resp, {}, pts, method="closed-form", ground="perfect",
+                                              allow_large=False, progress=None)
+    for key in assemble.HEADLINE_KEYS:
+        assert np.allclose(np.asarray(result["ranges"][key]), separate[key], rtol=1e-12, atol=0.0), key

@@ -13,6 +13,7 @@ from dataclasses import replace
 
 import numpy as np
 
+from aerial.core.arrays import sorted_unique
 from aerial.core.version import __version__
 from aerial.estimate.plain import finalise
 from aerial.core.errors import AerialError, ModelInputError
@@ -67,7 +68,7 @@ def frequency_grid(site, step_hz: float | None = None) -> np.ndarray:
         n = max(2, int(math.ceil((hi - lo) / step)) + 1)
         n = min(n, MAX_POINTS_PER_BAND)
         out.append(np.linspace(lo, hi, n))
-    return np.unique(np.round(np.concatenate(out), 3))
+    return sorted_unique(np.round(np.concatenate(out), 3))
 
 
 def band_points(site) -> list[tuple[str, float]]:
@@ -369,7 +370,7 @@ HEADLINE_KEYS = ("capacitance_f", "effective_height_m", "loss_resistance_ohm", "
 
 
 def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-form", ground="perfect", progress=None,
-              lumped_ohm=None, shielding_case: int = 1, raw: bool = False):
+              lumped_ohm=None, shielding_case: int = 1, raw: bool = False, response: dict | None = None):
     """Headline figures of ``wires`` at ``frequency`` by one model. Returns arrays over frequency.
 
     ``earth_ohm``: the earth system's resistance, one value or one per
@@ -381,13 +382,18 @@ def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-fo
     the closed forms then model the moved wires as that shape
     (:func:`aerial.models.shapes.measure_like`), so that a tolerance run uses
     the nominal figure's model. ``raw``: the model's own result under
-    ``response`` too.
+    ``response`` too. ``response``: the closed forms' result for these
+    wires at ``frequency`` from an earlier call (``raw``), when only the
+    earth differs: the closed forms do not depend on the earth's resistance,
+    which is added in series here.
     """
     f = np.atleast_1d(np.asarray(frequency, float))
     earth_f = np.broadcast_to(np.asarray(earth_ohm, float), f.shape).copy()
     lumped = float(np.mean(earth_f)) if lumped_ohm is None else float(lumped_ohm)
-    geo = resolve(site, electrode_ohm=lumped, wires=wires)
-    if method == "full-wave":
+    if response is not None and method != "full-wave":
+        r, rg = response, earth_f
+    elif method == "full-wave":
+        geo = resolve(site, electrode_ohm=lumped, wires=wires)
         from aerial.estimate.fullwave_sweep import full_wave_response
 
         r = full_wave_response(site, geo, f, earth_f, ground=ground, allow_large=True, progress=progress,
@@ -397,6 +403,7 @@ def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-fo
         from aerial.models.closed_form import closed_form_response
         from aerial.models.shapes import measure_like
 
+        geo = resolve(site, electrode_ohm=lumped, wires=wires)
         shape = None
         if like is not None and len(like.segment_section) == len(geo.segments):
             shape = measure_like(geo.segments, like)
@@ -484,7 +491,7 @@ def report_centre_frequency(site, freqs=None) -> float:
 
 def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", nominal: dict | None = None,
                 ground: str = "perfect", full_wave_ranges: bool = True, progress=None,
-                centre_hz: float | None = None) -> dict:
+                centre_hz: float | None = None, bounds: dict | None = None) -> dict:
     """Low and high values of the headline figures from the inputs' tolerances.
 
     Heights move by each support's tolerance (points where wires meet move
@@ -502,7 +509,9 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
     real soil (``ground`` not "perfect") the soil under the aerial moves too:
     the lowered wires over the soil at the low end of its range (least
     conductive, lowest permittivity), the raised wires at the high end. ``centre_hz`` is where the full-wave value's lumped electrode
-    load was taken (default: the middle of ``frequency``). ``earth`` (the DC
+    load was taken (default: the middle of ``frequency``). ``bounds``: that
+    :func:`earth_bounds` over ``frequency`` and then ``centre_hz``, when the
+    caller has it already (the report's earth table takes its last entry). ``earth`` (the DC
     figures) is kept for compatibility and not used.
 
     Returns
@@ -513,7 +522,7 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
     f = np.atleast_1d(np.asarray(frequency, float))
     like = _nominal_shape(site)
     f_c = float(f[len(f) // 2]) if centre_hz is None else float(centre_hz)
-    b = earth_bounds(site, np.append(f, f_c), screen=method != "full-wave")
+    b = earth_bounds(site, np.append(f, f_c), screen=method != "full-wave") if bounds is None else bounds
     lo_ohm, hi_ohm = b["high_ohm"][:-1], b["low_ohm"][:-1]
     if method == "full-wave" and full_wave_ranges:
         from aerial.estimate.earth import soil_bound
@@ -569,7 +578,7 @@ def what_if(site, frequency: float, earth: dict, units: str = "si") -> list[dict
         raise ModelInputError(f"'{units}' is not a valid unit system, must be one of 'si', 'us'")
     step = WHAT_IF_STEPS_M[units]
     r_earth = float(earth_at_frequency(site, [frequency])["impedance_ohm"][0].real)
-    base = _headline(site, site.wires, frequency, r_earth)
+    base = _headline(site, site.wires, frequency, r_earth, raw=True)
     rows = [("as described", base)]
     radials_row = better = None
     if not balcony_without_ground_access(site):
@@ -579,7 +588,8 @@ def what_if(site, frequency: float, earth: dict, units: str = "si") -> list[dict
                      _headline(site, _perturbed_wires(site, extend_m=step["extend"]), frequency, r_earth)))
         better = earth_mod.improved_earth(site.electrodes, site.soil, frequency, radial_length_m=step["radial"],
                                           aerial=earth_mod.screen_aerial(resolve(site).segments))
-        rows.append((better["description"], _headline(site, site.wires, frequency, better["resistance_ohm"])))
+        rows.append((better["description"], _headline(site, site.wires, frequency, better["resistance_ohm"],
+                                                      response=base["response"])))
         radials_row = len(rows) - 1
     rows += _building_moves(site, frequency, r_earth, step["stand_off"])
     out = []
@@ -603,9 +613,19 @@ def what_if(site, frequency: float, earth: dict, units: str = "si") -> list[dict
     return out
 
 
-def ranges_at_band_points(site, freqs, resp, earth, pts, *, method, ground, allow_large, progress) -> dict:
-    """Ranges of the headline figures at the band points, on the sweep's own frequencies (beside their values)."""
-    pick = np.array([int(np.argmin(np.abs(freqs - f))) for _, f in pts])
+def band_point_indices(freqs, pts) -> np.ndarray:
+    """Index of the sweep frequency nearest each band point."""
+    return np.array([int(np.argmin(np.abs(freqs - f))) for _, f in pts])
+
+
+def ranges_at_band_points(site, freqs, resp, earth, pts, *, method, ground, allow_large, progress,
+                          bounds: dict | None = None) -> dict:
+    """Ranges of the headline figures at the band points, on the sweep's own frequencies (beside their values).
+
+    ``bounds``: :func:`earth_bounds` at the band points' sweep frequencies and then the centre frequency, when
+    the caller has it already (:func:`uncertainty`).
+    """
+    pick = band_point_indices(freqs, pts)
     pf = freqs[pick]
     loss = np.asarray(resp["conductor_loss_ohm"], float) + np.asarray(resp["ground_loss_ohm"], float)
     nominal = {"capacitance_f": resp["capacitance_f"], "effective_height_m": resp["effective_height_m"],
@@ -615,7 +635,7 @@ def ranges_at_band_points(site, freqs, resp, earth, pts, *, method, ground, allo
     nominal = {k: np.asarray(v, float)[pick] for k, v in nominal.items()}
     fits = method != "full-wave" or _full_wave_ranges_fit(site, pf, freqs, allow_large)
     unc = uncertainty(site, pf, earth, method=method, nominal=nominal, ground=ground, full_wave_ranges=fits,
-                      progress=progress,
+                      progress=progress, bounds=bounds,
                       centre_hz=float(freqs[np.argmin(np.abs(freqs - what_if_frequency(site, pts)))]))
     range_method = unc.pop("method")
     return {
@@ -876,9 +896,13 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
             "open_circuit_voltage_v": resp["open_circuit_voltage_v"],
             "available_power_w": resp["available_power_w"],
         },
-        "earth": _earth_json(earth, _with_screen_length(site, earth_rf, centre_i), centre_i,
-                             earth_bounds(site, [freqs[centre_i]], screen=method != "full-wave")),
     }
+    pts = band_points(site)
+    # one run of the soil's bounds serves the ranges (at the band points) and the earth table (at the centre)
+    bounds = earth_bounds(site, np.append(freqs[band_point_indices(freqs, pts)], freqs[centre_i]),
+                          screen=method != "full-wave")
+    result["earth"] = _earth_json(earth, _with_screen_length(site, earth_rf, centre_i), centre_i,
+                                  {k: [v[-1:] for v in b] if k.startswith("parts") else b[-1:] for k, b in bounds.items()})
     for key in ("convergence", "ground_treatment", "segments", "loss_budget", "building_full_wave"):
         if key in resp:
             result["aerial"][key] = resp[key]
@@ -886,10 +910,9 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
         result["building"] = building_section(geometry, resp)
         warnings[:0] = [result["building"]["assumption"]] + _building_warnings(geometry.building_site)
 
-    pts = band_points(site)
     stage(progress, "ranges from the tolerances")
     result["ranges"] = ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground,
-                                             allow_large=allow_large, progress=progress)
+                                             allow_large=allow_large, progress=progress, bounds=bounds)
     if what_ifs:
         result["what_if"] = what_if(site, float(freqs[centre_i]), earth, units)  # the frequency of the earth table and the ranges
 

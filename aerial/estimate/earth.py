@@ -30,6 +30,11 @@ SCREEN_POINTS_PER_E_FOLD = 40
 #: How far the ground-field profile reaches, in units of the aerial's largest distance from the hub. [1]
 SCREEN_REACH = 100.0
 
+#: Ground fields kept for reuse: a report asks for the same wires' field for the sweep, the earth table, the
+#: soil's bounds and the what-if radials. Each entry holds some kB.
+_SCREEN_CACHE_SIZE = 16
+_screen_cache: dict = {}
+
 
 def screen_aerial(segments, frequency=None):
     """The ground field the radial-screen model needs: the aerial's return current round the hub.
@@ -43,11 +48,26 @@ def screen_aerial(segments, frequency=None):
     not used (the quasi-static field serves every frequency where the closed
     forms hold) and kept for the callers' symmetry.
 
+    The same wires asked for again (the same numbers bit for bit) come from a small cache.
+
     Returns
     -------
     dict
         ``distance_m`` (R,), ``field_per_m`` (R,) [1/m]: H_phi per ampere at the feed.
     """
+    key = tuple(np.ascontiguousarray(v).tobytes() + str(np.shape(v)).encode()
+                for v in (segments.start, segments.end, segments.radius, segments.grounded))
+    hit = _screen_cache.pop(key, None)
+    if hit is None:
+        hit = _screen_field(segments)
+        if len(_screen_cache) >= _SCREEN_CACHE_SIZE:
+            _screen_cache.pop(next(iter(_screen_cache)))  # the least recently used
+    _screen_cache[key] = hit
+    return {k: v.copy() for k, v in hit.items()}
+
+
+def _screen_field(segments) -> dict:
+    """:func:`screen_aerial`, computed."""
     from aerial.models.capacitance import electrostatic_solution
 
     sol = electrostatic_solution(segments)

@@ -23,6 +23,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from aerial.core.arrays import sorted_unique
 from aerial.core.errors import ModelInputError
 from aerial.models import atmospheric_noise as atm_mod
 from aerial.models import coil as coil_mod
@@ -954,7 +955,7 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
         coil = _resolve_coil(parts)
     notes.extend(coil.notes)
     grid_in = aerial.f[(aerial.f > f_lo) & (aerial.f < f_hi)]
-    table_f = np.unique(np.concatenate([[f_lo], grid_in, [f_hi]]))
+    table_f = sorted_unique(np.concatenate([[f_lo], grid_in, [f_hi]]))
     rows = _table_rows(table_f, _table_arrays(table_f, aerial, coil, parts), warnings, parts)
     setting = _setting_of(aerial, coil, parts)
     coverage, advice = _coverage((f_lo, f_hi), aerial, coil, parts, warnings, setting)

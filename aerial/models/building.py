@@ -49,6 +49,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from aerial.core.arrays import sorted_unique
 from aerial.core.errors import ModelInputError
 from aerial.models.capacitance import electrostatic_solution
 from aerial.models.segments import Segments
@@ -461,6 +462,6 @@ def _ring_with(ring, extra):
         t = (extra - p) @ d / length2
         off = np.linalg.norm(p + t[:, None] * d - extra, axis=1)
         on = (t > 1e-6) & (t < 1 - 1e-6) & (off < 1e-6)
-        for tt in np.unique(np.round(t[on], 9)):
+        for tt in sorted_unique(np.round(t[on], 9)):
             out.append(p + tt * d)
     return np.array(out)

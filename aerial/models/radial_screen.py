@@ -444,14 +444,40 @@ def static_ground_field(points, charges, distance):
     # a fine grid from the hub for the inner integral; the first point on the axis
     rr = np.concatenate([[0.0], np.geomspace(min(1e-4, r[0] / 10), r[-1], 1 + int(60 * np.log(r[-1] / min(1e-4, r[0] / 10))))])
     s, z = pts[:, 0:1], np.maximum(pts[:, 1:2], 1e-6)
-    a = rr[None, :] ** 2 + s * s + z * z
-    b = 2 * rr[None, :] * s
-    m = np.where(a + b > 0, 2 * b / (a + b), 0.0)
-    ring = z * rr[None, :] / (2 * np.pi) * 4 * ellipe(m) / ((a - b) * np.sqrt(a + b))
-    inside = np.concatenate([np.zeros((len(q), 1)), np.cumsum(0.5 * (ring[:, 1:] + ring[:, :-1]) * np.diff(rr), axis=1)],
-                            axis=1)
+    inside = _ring_charge_inside(s, z, rr)
     p_in = np.interp(r, rr, q @ inside)
     return np.clip(1.0 - p_in, 0.0, 1.0) / (2 * np.pi * r)
+
+
+def _ring_charge_inside(s, z, rr):
+    """Share of each charge's ground image within each radius ``rr`` of the hub: (M, N) [1].
+
+    The ring integral of :func:`static_ground_field` (its Notes), then the trapezoid rule from the hub. The
+    (M, N) arrays are worked on in place, a handful of buffers in all, in the order the formula is written.
+    """
+    a = np.add((rr * rr)[None, :], s * s)
+    a += z * z                                         # r'^2 + s^2 + z^2
+    b = np.multiply((2 * rr)[None, :], s)              # 2 r' s
+    apb = np.add(a, b)
+    m = np.multiply(2, b)
+    np.divide(m, apb, out=m)
+    if not np.all(apb > 0):
+        m[~(apb > 0)] = 0.0
+    ring = np.multiply(z, rr[None, :])
+    ring /= 2 * np.pi
+    ring *= 4
+    ring *= ellipe(m)
+    np.sqrt(apb, out=apb)
+    a -= b
+    a *= apb
+    ring /= a                                          # z r' / (2 pi) * 4 E(m) / ((A - B) sqrt(A + B))
+    inside = np.empty_like(ring)
+    inside[:, 0] = 0.0
+    trap = np.add(ring[:, 1:], ring[:, :-1], out=a[:, 1:])
+    trap *= 0.5
+    trap *= np.diff(rr)
+    np.cumsum(trap, axis=1, out=inside[:, 1:])
+    return inside
 
 
 def screen_loss_of_field(frequency, distance, field, count, radial_length, wire_radius, conductivity,

@@ -138,3 +138,24 @@ def test_consistency_sets_of_radials_share_one_screen():
     assert both[0] == pytest.approx(radial_screen_impedance(1e6, 5.0, 24, 30.0, 1e-3, 3e-3, 22.0), rel=1e-12)
     assert both[1] == pytest.approx(radial_screen_impedance(1e6, 15.0, 8, 30.0, 1e-3, 3e-3, 22.0), rel=1e-12)
     assert both[2] == pytest.approx(radial_screen_impedance(1e6, 25.0, 0, 0.0, 1e-3, 3e-3, 22.0), rel=1e-12)
+
+
+def test_consistency_static_field_in_place_is_the_formula_as_written():
+    # consistency check: the field worked on in place buffers equals the ring integral written out as in the
+    # docstring's Notes (E from scipy.special.ellipe, the reference library), to 1e-12, for charges over the
+    # hub, beside it and far out
+    from scipy.special import ellipe
+
+    rng = np.random.default_rng(3)
+    pts = np.c_[rng.uniform(0.0, 20.0, 40), rng.uniform(0.2, 12.0, 40)]
+    pts[0] = [0.0, 5.0]
+    q = rng.uniform(0.1, 1.0, 40)
+    r = np.geomspace(1e-3, 3000.0, 500)
+    rr = np.concatenate([[0.0], np.geomspace(1e-4, r[-1], 1 + int(60 * np.log(r[-1] / 1e-4)))])
+    s, z = pts[:, :1], pts[:, 1:]
+    a, b = rr**2 + s * s + z * z, 2 * rr * s
+    ring = z * rr / (2 * np.pi) * 4 * ellipe(2 * b / (a + b)) / ((a - b) * np.sqrt(a + b))
+    inside = np.concatenate([np.zeros((len(q), 1)), np.cumsum(0.5 * (ring[:, 1:] + ring[:, :-1]) * np.diff(rr), axis=1)],
+                            axis=1)
+    expected = np.clip(1.0 - np.interp(r, rr, (q / q.sum()) @ inside), 0.0, 1.0) / (2 * np.pi * r)
+    assert np.allclose(static_ground_field(pts, q, r), expected, rtol=1e-12, atol=0.0)
