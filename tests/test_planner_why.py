@@ -108,7 +108,12 @@ def test_an_entry_beside_the_service_drop_is_named_as_what_blocks(capsys, tmp_pa
     assert entry and entry[0]["line"] == "service drop" and entry[0]["distance_m"] == pytest.approx(6.0)
     code, out, _ = run(capsys, "layout", p, "--width", "100")
     assert code == 0
-    assert "blocking: the entry point (0.0, 0.0), where every lead-in ends, is 6.0 m from power line" in " ".join(
+    assert "blocking: the entry point (0.0, 0.0) m, where every lead-in ends, is 6 m from power line" in " ".join(
+        out.split())
+    # in feet, the position and the distance alike (6 m = 19.7 ft; NIST SP 811: 1 ft = 0.3048 m exactly)
+    code, out, _ = run(capsys, "layout", p, "--width", "100", "--units", "us")
+    assert code == 0
+    assert "blocking: the entry point (0.0, 0.0) ft, where every lead-in ends, is 19.7 ft from power line" in " ".join(
         out.split())
 
 

@@ -340,3 +340,29 @@ def parse_gauge(text) -> int:
         if re.fullmatch(r"\d{1,2}", t):
             return int(t)
     raise UnitError("expected a gauge number such as 14 or \"2/0\"")
+
+
+def length_text(metres: float, digits: int = 3) -> str:
+    """A length in metres as people read it: ``digits`` significant figures; mm below 0.1 m, km from 1000 m.
+
+    The one rule for a length in a command's output: the tables and the
+    sentences of a result both use it (the terminal's feet and inches keep
+    the same number of significant figures).
+
+    Examples
+    --------
+    >>> length_text(6.7226), length_text(12.0), length_text(31.267), length_text(0.05), length_text(1234.0)
+    ('6.72 m', '12 m', '31.3 m', '50 mm', '1.23 km')
+    """
+    v = float(metres)
+    if not math.isfinite(v):
+        return "—"
+    unit, scale = ("mm", 1e-3) if v != 0 and abs(v) < 0.1 else ("km", 1e3) if abs(v) >= 1000 else ("m", 1.0)
+    x = v / scale
+    if x == 0:
+        return f"0 {unit}"
+    decimals = max(0, digits - 1 - int(math.floor(math.log10(abs(x)))))
+    text = f"{x:.{decimals}f}"
+    if "." in text:
+        text = text.rstrip("0").rstrip(".")
+    return f"{text} {unit}"

@@ -162,7 +162,8 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
         ``effective_height_m`` [m]; ``radiation_resistance_ohm`` [ohm];
         ``reactance_ohm`` [ohm]; ``conductor_loss_ohm`` [ohm] (skin-effect
         loss of the aerial and earth-lead wires referred to the feed
-        current); ``reliable`` (bool per frequency); ``static_effective_height_m``
+        current); ``reliable`` (bool per frequency); ``wavelength_validity``
+        (dict, :func:`wavelength_validity`); ``static_effective_height_m``
         [m]; ``model`` (str); ``shape`` (dict); ``warnings`` (list of str);
         with a building also ``building`` (dict: shielding fractions, the
         static figures in open ground, beside a perfect facade and over the
@@ -270,6 +271,7 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
         "reactance_ohm": x,
         "conductor_loss_ohm": np.asarray(loss, float),
         "reliable": ~(too_long | past),
+        "wavelength_validity": wavelength_validity(total, f, too_long, past),
         "model": f"closed form: {kind}, {_METHOD_OF_KIND[kind]} normalised to electrostatic moment solution",
         "shape": shape.as_dict(),
         "warnings": warnings,
@@ -378,22 +380,66 @@ def _earth_lead_loss(segments, shape, f, warnings):
     return r_earth * float(np.sum(segments.length[earth]))
 
 
-def _validity_warnings(shape, f, too_long, past) -> list:
-    """Plain-English warnings on where the closed form leaves its validity range."""
-    kind, total = shape.kind, shape.total_length_m
+def wavelength_validity(total_length_m: float, frequency, too_long, past) -> dict:
+    """Where a closed-form aerial is long for the wavelength: the one test ``aerial report`` and ``aerial layout`` share.
+
+    Parameters
+    ----------
+    total_length_m : float
+        The aerial's total wire length (top and down-lead). [m]
+    frequency : array_like
+        The frequencies the figures were computed at. [Hz]
+    too_long, past : array_like of bool
+        Per frequency: the wire longer than ``MAX_RELIABLE_LENGTH_WAVELENGTHS``
+        of a wavelength; at or past its first resonance.
+
+    Returns
+    -------
+    dict
+        ``long_from_hz`` (the frequency from which the wire passes 1/8 wave,
+        None when no frequency does) [Hz], ``resonance_from_hz`` (the lowest
+        frequency at or past the first resonance, or None) [Hz], ``rough_from_hz``
+        (the lower of the two, or None) [Hz] and ``warnings`` (the sentences,
+        empty when the figures hold at every frequency).
+
+    Notes
+    -----
+    The line models hold while the wire is short against the wavelength,
+    l < lambda/8, i.e. f < c / (8 l).
+
+    Examples
+    --------
+    >>> v = wavelength_validity(35.6, [0.52e6, 1.71e6], [False, True], [False, False])
+    >>> round(v["long_from_hz"] / 1e6, 2), v["resonance_from_hz"]
+    (1.05, None)
+    """
+    f = np.atleast_1d(np.asarray(frequency, float))
+    too_long = np.broadcast_to(np.asarray(too_long, bool), f.shape)
+    past = np.broadcast_to(np.asarray(past, bool), f.shape)
+    total = float(total_length_m)
+    long_from = float(sa.MAX_RELIABLE_LENGTH_WAVELENGTHS * SPEED_OF_LIGHT / total) if np.any(too_long) else None
+    resonance_from = float(f[past].min()) if np.any(past) else None
     warnings = []
-    if np.any(too_long):
-        f_limit = sa.MAX_RELIABLE_LENGTH_WAVELENGTHS * SPEED_OF_LIGHT / total
+    if long_from is not None:
         warnings.append(
-            f"total wire length {total:.1f} m is above 1/8 wavelength from {f_limit / 1e6:.3g} MHz up: "
+            f"total wire length {total:.1f} m is above 1/8 wavelength from {long_from / 1e6:.3g} MHz up: "
             "reactance, capacitance, effective height and radiation resistance are unreliable there"
         )
-    if np.any(past):
+    if resonance_from is not None:
         warnings.append(
             "at or past the first resonance at "
-            + f"{f[past].min() / 1e6:.3g} MHz and above: the line model does not describe the aerial there; "
+            + f"{resonance_from / 1e6:.3g} MHz and above: the line model does not describe the aerial there; "
             "the capacitance shown there is the static value"
         )
+    known = [v for v in (long_from, resonance_from) if v is not None]
+    return {"long_from_hz": long_from, "resonance_from_hz": resonance_from,
+            "rough_from_hz": min(known) if known else None, "warnings": warnings}
+
+
+def _validity_warnings(shape, f, too_long, past) -> list:
+    """Plain-English warnings on where the closed form leaves its validity range."""
+    kind = shape.kind
+    warnings = list(wavelength_validity(shape.total_length_m, f, too_long, past)["warnings"])
     if kind == "irregular":
         warnings.append(
             "irregular shape (" + "; ".join(shape.notes[-1:]) + "): the frequency dependence comes from a "

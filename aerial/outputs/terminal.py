@@ -21,6 +21,8 @@ from rich.table import Table
 from rich.markup import escape
 from rich.text import Text
 
+from aerial.core.units import length_text
+
 
 # --------------------------------------------------------------------------- keeping numbers with their units
 
@@ -183,9 +185,7 @@ class Lengths:
             return "—"
         v = float(metres)
         if not self.us:
-            if v != 0 and (abs(v) < 0.1 or abs(v) >= 1000):
-                return eng(v, "m", digits)
-            return f"{_trim(_sig(v, digits))} m"
+            return length_text(v, digits)
         if v != 0 and abs(v) < FOOT_M:
             return f"{_trim(_sig(v / INCH_M, digits))} in"
         return f"{_trim(_sig(v / FOOT_M, digits))} ft"
@@ -848,6 +848,8 @@ def _render_stations(stations, console, L: Lengths) -> None:
 
 
 def render_layout(result: dict, console, units: str = "si") -> None:
+    from aerial.planner.search import layout_reason
+
     L = Lengths(units)
     console.print(f"[bold]{escape(result['site']['name'])}[/bold]  ({escape(result['site']['file'])})")
     console.print(f"objective: {escape(L.text(result.get('objective', '')))}")
@@ -874,13 +876,10 @@ def render_layout(result: dict, console, units: str = "si") -> None:
         console.print(f"[dim]figures: {escape(result['figures_model'])}{extra}[/dim]")
     for i, c in enumerate(layouts, 1):
         if c.get("reason"):
-            console.print(f"  {i}. {escape(L.text(c['reason']))}")
+            console.print(f"  {i}. {escape(layout_reason(c, layouts[i] if i < len(layouts) else None, L))}")
     present = result.get("present_wire")
     if present:
-        where = f" at {eng(present['figures_at_hz'], 'Hz')}" if present.get("figures_at_hz") else ""
-        console.print(escape(L.text(f"your present wire, as 'aerial report' figures it{where}: h_e "
-                                    f"{present['effective_height_m']:.3g} m, {eng(present['capacitance_f'], 'F')}, "
-                                    f"{label} {present['score']:.1f}" + (f" {unit}" if unit else ""))))
+        console.print(escape(present_wire_words(present, label, unit, L)))
     fw = result.get("full_wave")
     if isinstance(fw, dict) and fw.get("note"):
         console.print(f"full-wave check of the winner: {escape(L.text(fw['note']))}")
@@ -894,8 +893,21 @@ def render_layout(result: dict, console, units: str = "si") -> None:
     _lines(console, "Safety", result.get("cautions", []), "red", L)
 
 
+def present_wire_words(present: dict, label: str, unit: str, L: Lengths) -> str:
+    """The layout's line on the site's present wire: the report's figures of it and its wavelength flag."""
+    from aerial.planner.search import wavelength_words
+
+    where = f" at {eng(present['figures_at_hz'], 'Hz')}" if present.get("figures_at_hz") else ""
+    flag = f"; {wavelength_words(present.get('rough_from_hz'))}" if present.get("outside_model_range") else ""
+    return (f"your present wire, as 'aerial report' figures it{where}: h_e {L(present['effective_height_m'])}, "
+            f"{eng(present['capacitance_f'], 'F')}, {label} {present['score']:.1f}" + (f" {unit}" if unit else "")
+            + flag)
+
+
 def _render_refusals(result: dict, console, L: Lengths) -> None:
     """How many candidates were refused, grouped by cause, with the nearest miss."""
+    from aerial.planner.refusals import blocking_sentence, nearest_miss_sentence
+
     ref = result.get("refusals")
     considered = result.get("candidates_considered", 0)
     if not ref:
@@ -913,9 +925,10 @@ def _render_refusals(result: dict, console, L: Lengths) -> None:
             t.add_row(f"{c['count']:,}", escape(("safety: " if c["kind"] == "safety" else "") + c["cause"]))
         show(console, t)
     if ref.get("nearest_miss"):
-        console.print(f"  nearest miss: {escape(L.text(ref['nearest_miss']['sentence']))}")
+        console.print(f"  nearest miss: {escape(nearest_miss_sentence(ref['nearest_miss'], L))}")
     for block in ref.get("blocking", []):
-        console.print(f"  [yellow]blocking:[/yellow] {escape(L.text(block['sentence']))}")
+        words = blocking_sentence(block, ref["safety"], L, lambda x, y: f"({L.plain(x)}, {L.plain(y)}) {L.unit}")
+        console.print(f"  [yellow]blocking:[/yellow] {escape(words)}")
     kept = {k: v for k, v in ref.get("kept_with_penalty", {}).items() if v}
     if kept:
         console.print("  kept with a 3 dB penalty: " + escape(", ".join(f"{v:,} {k}" for k, v in kept.items())))

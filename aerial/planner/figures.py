@@ -152,6 +152,51 @@ def report_figures(site, layout: dict, size, entry_xyz, frequency, earth_ohm=Non
     return headline_figures(planned_site(site, wires, entry_xyz, floor_m), frequency, earth_ohm, wires=wires)
 
 
+def wavelength_validity(site, wires=None) -> dict:
+    """Where some wires are long for the wavelength, by the report's own test over the report's own sweep.
+
+    :func:`aerial.models.closed_form.wavelength_validity` of the closed
+    form of ``wires`` (default: the site's own) at every frequency of the
+    site's bands (:func:`aerial.estimate.assemble.frequency_grid`), as
+    ``aerial report`` computes them: a layout is flagged exactly when the
+    report of the same wire warns.
+
+    Returns
+    -------
+    dict
+        ``long_from_hz``, ``resonance_from_hz``, ``rough_from_hz`` (each
+        None when the figures hold across the bands) [Hz] and ``warnings``
+        (the report's sentences).
+
+    Raises
+    ------
+    ModelInputError
+        When the closed forms cannot take the wires.
+    """
+    from aerial.estimate.assemble import frequency_grid
+    from aerial.geometry.resolve import resolve
+    from aerial.models.closed_form import closed_form_response
+
+    geo = resolve(site, wires=wires)
+    return closed_form_response(geo.segments, frequency_grid(site), building=geo.building)["wavelength_validity"]
+
+
+def layout_wavelength_validity(site, layout: dict, size, entry_xyz, floor_m: float = 0.0) -> dict | None:
+    """:func:`wavelength_validity` of a listed layout's wires, or None when the closed forms cannot take them."""
+    wires = planned_wires(site, layout, size, entry_xyz, floor_m)
+    try:
+        return wavelength_validity(planned_site(site, wires, entry_xyz, floor_m), wires)
+    except ModelInputError:
+        return None
+
+
+def wire_lengths(site, layout: dict, size, entry_xyz, floor_m: float = 0.0) -> tuple[float, float]:
+    """(top, top + lead-in) of a layout's wires as the report measures them, sag included. [m]"""
+    wires = planned_wires(site, layout, size, entry_xyz, floor_m)
+    top = sum(w.length_m for w in wires if w.role == "aerial")
+    return top, top + sum(w.length_m for w in wires if w.role == "lead-in")
+
+
 def safe_report_figures(*args, **kwargs):
     """:func:`report_figures`, or (None, reason) when the closed forms cannot take the wires."""
     try:

@@ -11,6 +11,8 @@ from __future__ import annotations
 import numpy as np
 import shapely
 
+from aerial.core.units import length_text
+
 #: A fixed part (the entry point, one support) inside a fall zone for at least this share of the
 #: layouts refused for safety is named as what blocks them. [1]
 BLOCKING_SHARE = 0.5
@@ -120,22 +122,16 @@ class RefusalTally:
         ex, ey = self.entry_xy
         for name, hits in self.entry_hits.items():
             if hits >= BLOCKING_SHARE * self.safety:
-                out.append({"part": "the entry point", "line": name, "count": hits,
-                            "distance_m": self.entry_dist[name],
-                            "sentence": f"the entry point ({ex:.1f}, {ey:.1f}), where every lead-in ends, is "
-                                        f'{self.entry_dist[name]:.1f} m from power line "{name}": inside its fall '
-                                        f"zone for {hits} of the {self.safety} layouts refused for safety. An entry "
-                                        "further from the line (or lower supports) would free them."})
+                out.append({"part": "the entry point", "line": name, "count": int(hits),
+                            "distance_m": float(self.entry_dist[name]), "at_m": [ex, ey]})
         for name, hits in self.support_hits.items():
             for s in np.argsort(-hits, kind="stable"):
                 if hits[s] < BLOCKING_SHARE * self.safety:
                     break
-                d = float(self.support_dist[name][s])
                 out.append({"part": f'support "{self.names[s]}"', "line": name, "count": int(hits[s]),
-                            "distance_m": d,
-                            "sentence": f'support "{self.names[s]}" is {d:.1f} m from power line "{name}": inside '
-                                        f"its fall zone in {int(hits[s])} of the {self.safety} layouts refused for "
-                                        "safety. Leave it out, or use it only with lower supports."})
+                            "distance_m": float(self.support_dist[name][s])})
+        for block in out:
+            block["sentence"] = blocking_sentence(block, self.safety)
         return sorted(out, key=lambda b: -b["count"])[:MAX_BLOCKING]
 
     def summary(self, describe) -> dict:
@@ -144,9 +140,8 @@ class RefusalTally:
         if self.nearest is not None:
             margin, fam, i, j, k, line, needed = self.nearest
             words = describe(fam, i, j, k)
-            nearest = {"layout": words, "line": line, "short_by_m": -margin, "needed_m": needed,
-                       "sentence": f'{words}: {-margin:.1f} m short of the {needed:.1f} m needed from power line '
-                                   f'"{line}"'}
+            nearest = {"layout": words, "line": line, "short_by_m": -margin, "needed_m": needed}
+            nearest["sentence"] = nearest_miss_sentence(nearest)
         return {
             "total": self.total,
             "safety": self.safety,
@@ -158,3 +153,41 @@ class RefusalTally:
             "note": "a layout refused for more than one cause counts under each; the safety rule is "
                     "docs/site-planner.md (fall zone: 1.5 × the tallest point, never less than the line's height)",
         }
+
+
+def nearest_miss_sentence(miss: dict, length=length_text) -> str:
+    """The refused layout that came closest to the power-line rule, in words; ``length`` writes a length [m].
+
+    Examples
+    --------
+    >>> nearest_miss_sentence({"layout": "T: span a – b", "line": "mains", "short_by_m": 5.0, "needed_m": 12.0})
+    'T: span a – b: 5 m short of the 12 m needed from power line "mains"'
+    """
+    return (f'{miss["layout"]}: {length(miss["short_by_m"])} short of the {length(miss["needed_m"])} needed from '
+            f'power line "{miss["line"]}"')
+
+
+def plan_point_text(x: float, y: float) -> str:
+    """A plan position in metres as the outputs write coordinates: '(3.0, -1.5) m'."""
+    return f"({x:.1f}, {y:.1f}) m"
+
+
+def blocking_sentence(block: dict, refused_for_safety: int, length=length_text, point=plan_point_text) -> str:
+    """A fixed part inside a fall zone for most of the layouts refused for safety, in words.
+
+    ``length`` writes a length given in metres [m]; ``point`` a plan position (x, y) in metres [m].
+
+    Examples
+    --------
+    >>> blocking_sentence({"part": "the entry point", "line": "mains", "count": 4, "distance_m": 6.0,
+    ...                    "at_m": [0.0, 0.0]}, 5)[:64]
+    'the entry point (0.0, 0.0) m, where every lead-in ends, is 6 m f'
+    """
+    if block["part"] == "the entry point":
+        return (f"the entry point {point(*block['at_m'])}, where every lead-in ends, is "
+                f'{length(block["distance_m"])} from power line "{block["line"]}": inside its fall zone for '
+                f"{block['count']} of the {refused_for_safety} layouts refused for safety. An entry further from the "
+                "line (or lower supports) would free them.")
+    return (f'{block["part"]} is {length(block["distance_m"])} from power line "{block["line"]}": inside its fall '
+            f"zone in {block['count']} of the {refused_for_safety} layouts refused for safety. Leave it out, or use "
+            "it only with lower supports.")

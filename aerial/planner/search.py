@@ -35,6 +35,7 @@ import numpy as np
 import shapely
 
 from aerial.core.errors import AerialError, ResourceLimit
+from aerial.core.units import length_text
 from aerial.core.materials import CONDUCTORS
 from aerial.models import capacitance as cap
 from aerial.models import conductor
@@ -357,6 +358,7 @@ def present_wire(site, objective) -> dict | None:
     forms cannot take the site's wires.
     """
     from aerial.estimate.assemble import headline_figures
+    from aerial.planner.figures import wavelength_validity
 
     f = np.append(np.asarray(objective["frequency_hz"], float), objective["centre_hz"])
     earth = np.append(np.asarray(objective["earth_ohm"], float), objective["centre_earth_ohm"])
@@ -369,6 +371,9 @@ def present_wire(site, objective) -> dict | None:
     out.update(_figures_json(fig))
     out["figures_at_hz"] = float(objective["centre_hz"])
     out["score"] = _report_score(objective, fig)
+    validity = wavelength_validity(site)
+    out["outside_model_range"] = validity["rough_from_hz"] is not None
+    out["rough_from_hz"] = validity["rough_from_hz"]
     return out
 
 
@@ -751,16 +756,33 @@ def _listed_layouts(ctx: _Context, top_rec, best: int, warnings: list):
     layouts = (sorted(head, key=lambda lay: -lay["score"]) + tail)[:best]
     for rank, lay in enumerate(layouts, 1):
         lay["rank"] = rank
+        _flag_wavelength(ctx, lay)
     _explain(ctx, layouts)
     if any(lay.get("outside_model_range") for lay in layouts):
-        warnings.append("Some layouts are long compared with the wavelength at a ranking frequency (past 1/8 wave or "
-                        "the first resonance): their closed-form figures are rough there; they are flagged.")
+        warnings.append("Some layouts are long for the wavelength in the site's bands (past 1/8 wave or the first "
+                        "resonance), as 'aerial report' warns for the same wire: their closed-form figures are rough "
+                        "from the frequency given with each; they are flagged.")
     return layouts, (max(known) if known else None)
+
+
+def _flag_wavelength(ctx: _Context, lay: dict) -> None:
+    """A listed layout's ``outside_model_range`` and ``rough_from_hz``: the report's own test over its own sweep.
+
+    Falls back on the screening model's flag (``rough_from_hz`` None) when the closed forms cannot take the wires.
+    """
+    from aerial.planner.figures import layout_wavelength_validity
+
+    validity = layout_wavelength_validity(ctx.site, lay, ctx.size, (ctx.ex, ctx.ey, ctx.eh), floor_m=ctx.floor)
+    if validity is None:
+        lay["rough_from_hz"] = None
+        return
+    lay["outside_model_range"] = validity["rough_from_hz"] is not None
+    lay["rough_from_hz"] = validity["rough_from_hz"]
 
 
 def _apply_report_model(ctx: _Context, lay: dict):
     """Replace a layout's screening figures and score by the report's model; returns |difference| [dB] or None."""
-    from aerial.planner.figures import REPORT_MODEL, safe_report_figures
+    from aerial.planner.figures import REPORT_MODEL, safe_report_figures, wire_lengths
 
     obj = ctx.objective
     f = np.append(np.asarray(obj["frequency_hz"], float), obj["centre_hz"])
@@ -775,12 +797,14 @@ def _apply_report_model(ctx: _Context, lay: dict):
     score = float(_report_score(obj, figs) - penalty)
     difference = abs(score - lay["score"])
     lay.update(_figures_json(figs))
+    top, wire = wire_lengths(ctx.site, lay, ctx.size, (ctx.ex, ctx.ey, ctx.eh), floor_m=ctx.floor)
     lay.update({
         "score": score,
         "figures_model": REPORT_MODEL + (" (heights from the balcony slab)" if ctx.floor > 0 else ""),
         "figures_at_hz": float(obj["centre_hz"]),
         "shape": figs["shape"],
-        "outside_model_range": bool(lay["outside_model_range"] or not figs["reliable"]),
+        "top_length_m": top,
+        "wire_length_m": wire,
     })
     return difference
 
@@ -951,23 +975,55 @@ def _closest_line(ctx: _Context, geometry, tallest: float) -> str:
 def _explain(ctx: _Context, layouts: list) -> None:
     """Each listed layout's ``reason``: its figures, clearance, penalties and lead over the next."""
     for n, lay in enumerate(layouts):
-        sloper = lay["family"] == FAMILIES[SLOPER]
-        where = (f"top end {lay['top_points_m'][0][2]:.1f} m high" if sloper
-                 else f"junction {lay['junction_height_m']:.1f} m high")
-        reason = [f"h_e {lay['effective_height_m']:.3g} m ({where})",
-                  f"{lay['top_length_m']:.0f} m {'sloping wire' if sloper else 'top'}"]
-        if lay["clearance_margin_m"] is not None:
-            reason.append(f"{lay['clearance_margin_m']:.1f} m outside the fall zone of \"{lay['closest_line']}\"")
-        if lay["over_roof"]:
-            reason.append(f"passes over the roof of {', '.join(repr(s) for s in lay['roofs'])} "
-                          f"(-{PENALTY_OVER_ROOF_DB:g} dB)")
-        if lay["outside_lot"]:
-            reason.append(f"part of it is outside the lot (-{PENALTY_OUTSIDE_LOT_DB:g} dB; ask the neighbour)")
-        if lay["outside_model_range"]:
-            reason.append("long for the wavelength: figures rough")
-        if n + 1 < len(layouts):
-            reason.append(f"{lay['score'] - layouts[n + 1]['score']:.1f} dB ahead of #{n + 2}")
-        lay["reason"] = "; ".join(reason)
+        lay["reason"] = layout_reason(lay, layouts[n + 1] if n + 1 < len(layouts) else None)
+
+
+def layout_reason(lay: dict, runner_up: dict | None = None, length=length_text) -> str:
+    """Why a listed layout ranks where it does, in one line: figures, clearance, penalties, lead over the next.
+
+    Parameters
+    ----------
+    lay : dict
+        A listed layout (``aerial layout --json``).
+    runner_up : dict, optional
+        The layout ranked next, for the lead in dB.
+    length : callable
+        Writes a length given in metres [m]; the terminal passes its own so
+        that a reason and a table of one output write a length alike.
+
+    Examples
+    --------
+    >>> layout_reason({"family": "span", "effective_height_m": 6.7226, "junction_height_m": 6.1,
+    ...                "top_length_m": 30.42, "clearance_margin_m": 12.0, "closest_line": "street",
+    ...                "over_roof": False, "outside_lot": False, "outside_model_range": True,
+    ...                "rough_from_hz": 1.05e6, "score": -65.4}, {"score": -65.5})
+    'h_e 6.72 m (junction 6.1 m high); 30.4 m top; 12 m outside the fall zone of "street"; long for the wavelength from 1.05 MHz up: figures rough there; 0.1 dB ahead of the next'
+    """
+    sloper = lay["family"] == FAMILIES[SLOPER]
+    where = (f"top end {length(lay['top_points_m'][0][2])} high" if sloper
+             else f"junction {length(lay['junction_height_m'])} high")
+    reason = [f"h_e {length(lay['effective_height_m'])} ({where})",
+              f"{length(lay['top_length_m'])} {'sloping wire' if sloper else 'top'}"]
+    if lay["clearance_margin_m"] is not None:
+        reason.append(f"{length(lay['clearance_margin_m'])} outside the fall zone of \"{lay['closest_line']}\"")
+    if lay["over_roof"]:
+        reason.append(f"passes over the roof of {', '.join(repr(s) for s in lay['roofs'])} "
+                      f"(-{PENALTY_OVER_ROOF_DB:g} dB)")
+    if lay["outside_lot"]:
+        reason.append(f"part of it is outside the lot (-{PENALTY_OUTSIDE_LOT_DB:g} dB; ask the neighbour)")
+    if lay["outside_model_range"]:
+        reason.append(wavelength_words(lay.get("rough_from_hz")))
+    if runner_up is not None:
+        ahead = f"#{runner_up['rank']}" if "rank" in runner_up else "the next"
+        reason.append(f"{lay['score'] - runner_up['score']:.1f} dB ahead of {ahead}")
+    return "; ".join(reason)
+
+
+def wavelength_words(rough_from_hz) -> str:
+    """The flag of a wire long for the wavelength, with the frequency from which its figures are rough when known."""
+    if rough_from_hz is None:
+        return "long for the wavelength: figures rough"
+    return f"long for the wavelength from {rough_from_hz / 1e6:.3g} MHz up: figures rough there"
 
 
 def _refine(site, ctx: _Context, win: dict, objective: dict, allow_large: bool = False) -> dict:

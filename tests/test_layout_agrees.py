@@ -1,0 +1,112 @@
+"""`aerial layout` and `aerial report` say the same of the same wire: its wavelength flag and its lengths.
+
+The sites here are invented test inputs. The checks are consistency checks
+between the two commands (both are the project's own figures), plus the
+1/8-wave limit f = c / (8 l) with the speed of light from scipy.constants.
+"""
+
+from __future__ import annotations
+
+import json
+import re
+
+import pytest
+from scipy.constants import c as SPEED_OF_LIGHT  # CODATA, exact by definition of the metre
+
+from .conftest import ROOT, run
+
+SITE = """
+[site]
+name = "wavelength test"
+region = "US"
+bands = ["mf"]
+
+[wire]
+gauge = "14 AWG"
+
+[supports.house]
+at = [0, 0]
+height = "6 m"
+kind = "eave"
+
+[supports.pole]
+at = [{span}, 0]
+height = "6 m"
+kind = "mast"
+
+[[spans]]
+from = "house"
+to = "pole"
+
+[lead_in]
+from = "house"
+
+[receiver]
+at = [0, 0]
+height = "1 m"
+
+[[earth.rods]]
+length = "2.4 m"
+at = [0.5, 0]
+
+[[stations]]
+name = "Valley 640"
+frequency = "640 kHz"
+power = "50 kW"
+distance = "60 km"
+
+[plan]
+building = "house"
+
+[plan.entry]
+at = [0, 0]
+height = "1 m"
+"""
+
+
+def _words(text: str) -> str:
+    """The output with its wrapping undone."""
+    return " ".join(text.replace("│", " ").split())
+
+
+def test_a_wire_long_for_the_top_of_the_band_is_flagged_by_both_commands_from_the_same_frequency(capsys, write_site):
+    # 24 m span + 5 m lead-in = 29 m: past 1/8 wave from c / (8 × 29 m) = 1.29 MHz, inside the MF band
+    # (to 1.71 MHz) but above the only station (640 kHz) the layouts are ranked at
+    p = write_site(SITE.format(span=24))
+    limit_mhz = SPEED_OF_LIGHT / (8 * 29.0) / 1e6  # scipy.constants.c
+    assert f"{limit_mhz:.3g}" == "1.29"
+    code, out, err = run(capsys, "report", p)
+    assert code == 0, err
+    assert "29.0 m is above 1/8 wavelength from 1.29 MHz up" in _words(out)
+    code, out, err = run(capsys, "layout", p)
+    assert code == 0, err
+    text = _words(out)
+    # the layout that is the present wire, and the present wire's own line (consistency checks)
+    assert re.search(r'1\. h_e [^;]+; [^;]+ top; long for the wavelength from 1\.29 MHz up: figures rough there', text)
+    assert re.search(r"your present wire, as 'aerial report' figures it at [^:]+: h_e [^;]+; long for the "
+                     r"wavelength from 1\.29 MHz up", text)
+    assert "long for the wavelength in the site's bands" in text
+    code, out, err = run(capsys, "layout", p, "--json")
+    lay = json.loads(out)["layouts"][0]
+    assert lay["outside_model_range"] and lay["rough_from_hz"] == pytest.approx(SPEED_OF_LIGHT / (8 * 29.0), rel=1e-6)
+
+
+def test_a_short_wire_is_flagged_by_neither_command(capsys, write_site):
+    p = write_site(SITE.format(span=10))  # 15 m: 1/8 wave only from 2.5 MHz, above the MF band
+    code, out, err = run(capsys, "report", p)
+    assert code == 0 and "1/8 wavelength" not in _words(out)
+    code, out, err = run(capsys, "layout", p)
+    assert code == 0 and "long for the wavelength" not in _words(out)
+
+
+def test_us_units_write_a_length_alike_in_the_table_and_the_sentences(capsys):
+    """The present wire's effective height, 6.7226 m = 22.06 ft, reads 22.1 ft in every line (not 22 ft)."""
+    code, out, err = run(capsys, "layout", ROOT / "site_examples" / "backyard_inverted_l.toml", "--units", "us")
+    assert code == 0, err
+    text = _words(out)
+    assert "your present wire, as 'aerial report' figures it at 940 kHz: h_e 22.1 ft," in text
+    rows = [line for line in out.splitlines() if line.startswith("│ 3 ")]
+    assert rows and "117 ft" in rows[0] and "22.1 ft" in rows[0]
+    assert re.search(r"3\. h_e 22\.1 ft \(junction 20 ft high\); 99\.8 ft top; 39\.4 ft outside", text)
+    code, out, err = run(capsys, "check", ROOT / "site_examples" / "backyard_inverted_l.toml", "--units", "us")
+    assert "aerial + lead-in 117 ft" in _words(out)  # 35.56 m of wire, as the layout's #3 (consistency check)
