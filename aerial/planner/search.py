@@ -373,7 +373,8 @@ def present_wire(site, objective) -> dict | None:
     out["score"] = _report_score(objective, fig)
     validity = wavelength_validity(site)
     out["outside_model_range"] = validity["rough_from_hz"] is not None
-    out["rough_from_hz"] = validity["rough_from_hz"]
+    if validity["rough_from_hz"] is not None:
+        out["rough_from_hz"] = validity["rough_from_hz"]
     return out
 
 
@@ -768,16 +769,17 @@ def _listed_layouts(ctx: _Context, top_rec, best: int, warnings: list):
 def _flag_wavelength(ctx: _Context, lay: dict) -> None:
     """A listed layout's ``outside_model_range`` and ``rough_from_hz``: the report's own test over its own sweep.
 
-    Falls back on the screening model's flag (``rough_from_hz`` None) when the closed forms cannot take the wires.
+    ``rough_from_hz`` only when flagged; the screening model's flag (no frequency) stays when the closed forms
+    cannot take the wires.
     """
     from aerial.planner.figures import layout_wavelength_validity
 
     validity = layout_wavelength_validity(ctx.site, lay, ctx.size, (ctx.ex, ctx.ey, ctx.eh), floor_m=ctx.floor)
     if validity is None:
-        lay["rough_from_hz"] = None
         return
     lay["outside_model_range"] = validity["rough_from_hz"] is not None
-    lay["rough_from_hz"] = validity["rough_from_hz"]
+    if validity["rough_from_hz"] is not None:
+        lay["rough_from_hz"] = validity["rough_from_hz"]
 
 
 def _apply_report_model(ctx: _Context, lay: dict):
