@@ -56,11 +56,8 @@ def _why_lines(refusals: dict) -> list[str]:
 
 
 def _flags(lay) -> str:
-    from aerial.planner.search import wavelength_words
-
     flags = [text for key, text in (("over_roof", "over a roof (-3 dB)"), ("outside_lot", "outside the lot"),
-                                    ("outside_model_range", wavelength_words(lay.get("rough_from_hz"))))
-             if lay.get(key)]
+                                    ("outside_model_range", "long for the wavelength: rough")) if lay.get(key)]
     return "; ".join(flags) or "—"
 
 
