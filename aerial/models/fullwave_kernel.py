@@ -49,7 +49,7 @@ DEFAULT_GAUSS_POINTS = 3
 NEAR_GAP_FACTOR = 2.0
 
 #: Bytes allowed for one block of kernel values during the fill. [byte]
-DEFAULT_CHUNK_BYTES = 4 * 2**20
+DEFAULT_CHUNK_BYTES = 2**20
 
 _FOUR_PI = 4.0 * np.pi
 PART_NAMES = ("A_direct", "Phi_direct", "A_image_h", "A_image_v", "Phi_image")
@@ -150,6 +150,43 @@ def line_potential(obs, a_pt, tangent, length, radius2):
     return i0 - j1, j1
 
 
+def _same_shapes(rel_end, rel_src, t_src, length_src, a2, shortest):
+    """Group piece pairs of one shape: (number of shapes, one pair of each, the shape of every pair).
+
+    A pair is described relative to its observation piece's start: that piece's end, the source
+    piece's start, direction and length, and the squared reduced radius; values equal to 1e-12 of
+    the shortest piece (directions to 1e-12) count as equal.
+    """
+    extent = max(float(np.abs(rel_src).max(initial=0.0)), float(length_src.max(initial=0.0)), shortest)
+    grid = max(1e-12 * shortest, 1e-15 * extent)
+    keys = np.column_stack([
+        np.round(np.column_stack([rel_end, rel_src, length_src]) / grid),
+        np.round(t_src / 1e-12),
+        np.round(a2 / (1e-12 * max(float(a2.max(initial=0.0)), 1e-300))),
+    ]).astype(np.int64)
+    _, first, again = np.unique(keys, axis=0, return_index=True, return_inverse=True)
+    return len(first), first, again.ravel()
+
+
+def _static_integrals(rel_end, length_obs, rel_src, t_src, length_src, a2):
+    """Static integrals S_ef of piece pairs: graded outer rule on the observation piece, analytic inner.
+
+    Coordinates relative to the observation piece's start. [m]; returns (n, 2, 2) [1]
+    """
+    uo, wo = graded_rule()
+    acc = np.zeros((len(length_obs), 2, 2))
+    step = max(1, int(2**18 // len(uo)))
+    for s in range(0, len(length_obs), step):
+        sl = slice(s, s + step)
+        obs = uo[None, :, None] * rel_end[sl, None, :]
+        j0, j1 = line_potential(obs, rel_src[sl, None, :], t_src[sl, None, :], length_src[sl, None], a2[sl, None])
+        wl = wo[None, :] * length_obs[sl, None] / _FOUR_PI
+        for e, phi in enumerate((1.0 - uo, uo)):
+            acc[sl, e, 0] = np.sum(wl * phi * j0, axis=1)
+            acc[sl, e, 1] = np.sum(wl * phi * j1, axis=1)
+    return acc
+
+
 class Filler:
     """Frequency-independent data for filling the impedance matrix of one topology.
 
@@ -232,18 +269,13 @@ class Filler:
         t_q = topo.tangent[q] * flip
         L_q = topo.length[q]
         a2 = 0.5 * (self.rad2[p] + self.rad2[q])
-        # accurate: graded outer rule on piece p, analytic inner on piece q
-        uo, wo = graded_rule()
-        acc = np.zeros((len(p), 2, 2))
-        step = max(1, int(2**18 // len(uo)))
-        for s in range(0, len(p), step):
-            sl = slice(s, s + step)
-            obs = topo.start[p[sl], None, :] + uo[None, :, None] * (topo.end[p[sl]] - topo.start[p[sl]])[:, None, :]
-            j0, j1 = line_potential(obs, a_q[sl, None, :], t_q[sl, None, :], L_q[sl, None], a2[sl, None])
-            wl = wo[None, :] * topo.length[p[sl], None] / _FOUR_PI
-            for e, phi in enumerate((1.0 - uo, uo)):
-                acc[sl, e, 0] = np.sum(wl * phi * j0, axis=1)
-                acc[sl, e, 1] = np.sum(wl * phi * j1, axis=1)
+        # accurate: graded outer rule on piece p, analytic inner on piece q; pairs of the same shape (the
+        # same lengths, directions and offset, to 1e-12 of the shortest piece) are worked out once
+        rel_end = topo.end[p] - topo.start[p]
+        rel_src = a_q - topo.start[p]
+        shape, first, again = _same_shapes(rel_end, rel_src, t_q, L_q, a2, topo.length.min())
+        acc = _static_integrals(rel_end[first], topo.length[p[first]], rel_src[first], t_q[first], L_q[first],
+                                a2[first])[again]
         # the plain Gauss static value the fill will have used
         xp = self.pts[p]  # (n,Q,3)
         xq = self.pts[q] * flip
@@ -475,9 +507,47 @@ class Filler:
         assembled onto the basis functions in one pass (each block with itself
         and the pieces after it, as in :meth:`fill`).
         """
+        y = self._series_halves(k0, half_width, order)
+        for w in y:
+            w += w.T.copy()
+        return np.stack(y)
+
+    def series_upper(self, k0: float, half_width: float, order: int, edges):
+        """The upper triangles of :meth:`series`' coefficients, by blocks of rows.
+
+        Parameters
+        ----------
+        k0, half_width, order
+            As for :meth:`series`.
+        edges : sequence of int
+            Row-block boundaries 0 = e_0 < e_1 < ... = N.
+
+        Returns
+        -------
+        list of ndarray, complex, shape (order + 3, (e_(b+1) - e_b) (N - e_b))
+            For each block b, Y_j[e_b:e_(b+1), e_b:] of every j, flattened. [1/m]
+
+        Notes
+        -----
+        Each matrix is symmetric, so its upper triangle holds it all; the
+        blocks take about half the memory of the full coefficients and half
+        the time to evaluate (:class:`aerial.models.fullwave_system.SeriesTable`).
+        """
+        y = self._series_halves(k0, half_width, order)
+        M, N = len(y), self.topo.n_unknowns
+        blocks = [np.empty((M, (b - a) * (N - a)), dtype=complex) for a, b in zip(edges[:-1], edges[1:])]
+        for m in range(M):
+            w = y[m]
+            for (a, b), out in zip(zip(edges[:-1], edges[1:]), blocks):
+                out[m] = (w[a:b, a:] + w[a:, a:b].T).ravel()
+            y[m] = w = None  # each coefficient's full matrix is dropped once packed
+        return blocks
+
+    def _series_halves(self, k0, half_width, order):
+        """The coefficients' halves W_j (list of (N, N)), with Y_j = W_j + W_j^T (:meth:`series`)."""
         N = self.topo.n_unknowns
         M = order + 3
-        y = np.zeros((M, N, N), dtype=complex)
+        y = [np.zeros((N, N), dtype=complex) for _ in range(M)]
         coefs = ({"A_direct": 1.0, "Phi_direct": -1.0}, {"A_image_h": -1.0, "A_image_v": 1.0, "Phi_image": 1.0})
         for r0, r1 in self._blocks(max(1, self.rows // 2)):  # every order's terms of a block are held at once
             x = self._series_block(r0, r1, k0, half_width, order, coefs)
@@ -485,9 +555,8 @@ class Filler:
             tmp = np.zeros((len(rows), M, N), dtype=complex)
             self._assemble(x, r0, r1, tmp, rows)
             del x
-            y[:, rows] += tmp.transpose(1, 0, 2)
-        for m in range(M):
-            y[m] += y[m].T.copy()
+            for m in range(M):
+                y[m][rows] += tmp[:, m]
         return y
 
     def _series_block(self, r0, r1, k0, half_width, order, coefs):

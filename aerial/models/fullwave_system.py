@@ -172,13 +172,18 @@ class System:
         t0, t1 = (m.tocoo() for m in self.topo.t_end)
         rows, cols, piece, weight = [], [], [], []
         for ta, tb, mass in ((t0, t0, 1 / 3), (t0, t1, 1 / 6), (t1, t0, 1 / 6), (t1, t1, 1 / 3)):
-            for pa, ma, va in zip(ta.row, ta.col, ta.data):
-                sel = tb.row == pa
-                for mb, vb in zip(tb.col[sel], tb.data[sel]):
-                    rows.append(ma)
-                    cols.append(mb)
-                    piece.append(pa)
-                    weight.append(mass * va * vb)
+            # every entry of ta with every entry of tb on the same piece
+            order = np.argsort(tb.row, kind="stable")
+            b_row = tb.row[order]
+            lo = np.searchsorted(b_row, ta.row, side="left")
+            hits = np.searchsorted(b_row, ta.row, side="right") - lo
+            a_idx = np.repeat(np.arange(ta.nnz), hits)
+            b_idx = order[np.repeat(lo - np.concatenate([[0], np.cumsum(hits)[:-1]]), hits) + np.arange(a_idx.size)]
+            rows.append(ta.col[a_idx])
+            cols.append(tb.col[b_idx])
+            piece.append(ta.row[a_idx])
+            weight.append(mass * ta.data[a_idx] * tb.data[b_idx])
+        rows, cols, piece, weight = (np.concatenate(v) for v in (rows, cols, piece, weight))
         n = self.topo.n_unknowns
         flat = np.asarray(rows, dtype=np.int64) * n + np.asarray(cols, dtype=np.int64)
         uniq, inv = np.unique(flat, return_inverse=True)
@@ -309,20 +314,38 @@ class SeriesTable:
         Taylor order of the kernel expansion. [1]
     """
 
+    #: Row blocks the upper triangle is stored in. [1]
+    ROW_BLOCKS = 8
+
     def __init__(self, system: System, k_lo, k_hi, order):
         self.k_lo, self.k_hi, self.order = k_lo, k_hi, order
         self.k0 = 0.5 * (k_lo + k_hi)
         self.h = max(0.5 * (k_hi - k_lo), 1e-300)
-        y = system.filler.series(self.k0, self.h, order)
-        self.n = y.shape[1]
-        self.y = y.reshape(y.shape[0], -1)
+        self.n = n = system.topo.n_unknowns
+        self.edges = upper_row_blocks(n, self.ROW_BLOCKS)
+        self.blocks = system.filler.series_upper(self.k0, self.h, order, self.edges)
 
     def matrix(self, k):
         """Impedance matrix without losses at k. [ohm]"""
         x = (k - self.k0) / self.h
-        # sum_j x^j Y_j as one matrix-vector product (|x| <= 1, terms falling off)
-        p = (1j * ETA0 / k) * x ** np.arange(self.y.shape[0])
-        return (p @ self.y).reshape(self.n, self.n)
+        # sum_j x^j Y_j on the upper triangle (|x| <= 1, terms falling off), then mirrored
+        p = (1j * ETA0 / k) * x ** np.arange(self.order + 3)
+        n, edges = self.n, self.edges
+        z = np.empty((n, n), dtype=complex)
+        for a, b, y in zip(edges[:-1], edges[1:], self.blocks):
+            z[a:b, a:] = (p @ y).reshape(b - a, n - a)
+        for a, b in zip(edges[:-1], edges[1:]):
+            z[b:, a:b] = z[a:b, b:].T
+        return z
+
+
+def upper_row_blocks(n, blocks):
+    """Row boundaries splitting the upper triangle of an n x n matrix into blocks of about equal size."""
+    rows = np.arange(n + 1)
+    held = rows * n - rows * (rows - 1) // 2  # elements on and above the diagonal in rows 0 .. i-1
+    want = np.linspace(0, held[-1], max(1, min(blocks, n)) + 1)
+    edges = np.unique(np.concatenate([[0], np.searchsorted(held, want[1:-1]), [n]]))
+    return [int(e) for e in edges]
 
 
 def series_order(half_width, r_max, tol):
