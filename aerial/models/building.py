@@ -21,6 +21,15 @@ By Green's reciprocity the open-circuit voltage per volt per metre of the
 undisturbed field is sum(q phi) / Q over the wire's charges, phi being the
 field height above (:func:`facade_static_figures`).
 
+The building's own currents: a grounded conducting building is a fat
+receiving monopole short-circuited at its base. Its induced charge, which
+sets the field at its surface and so what a wire beside it picks up, grows
+with frequency relative to the static charge by
+F(z) = [sin kz / kz] cos(delta) / cos(kH + delta) (:func:`induced_charge_factor`,
+the transmission-line model of the shorted monopole top-loaded by its roof,
+:func:`roof_loading_length`); the screened field is scaled by it near the
+building, not far from it (:func:`dynamic_field_height`).
+
 What the building is made of decides how much of that it does: a timber
 house hardly shields at all, a steel frame is close to a perfect plane. The
 ``SHIELDING_BY_CONSTRUCTION`` fraction s blends the two limits::
@@ -41,6 +50,16 @@ References
 .. [2] J. D. Jackson, *Classical Electrodynamics*, 3rd ed., Wiley, 1999,
    sec. 2.1-2.2 (method of images; two perpendicular grounded planes, three
    images) and problem 1.12 (Green's reciprocation theorem). (from memory)
+.. [3] S. A. Schelkunoff and H. T. Friis, *Antennas: Theory and Practice*,
+   Wiley, 1952 (the antenna as a transmission line; average characteristic
+   impedance 60 [ln(2h/a) - 1]). (from memory)
+.. [4] R. W. P. King, *The Theory of Linear Antennas*, Harvard University
+   Press, 1956 (the receiving antenna: induced current of a short-circuited
+   monopole in a uniform field). (from memory)
+.. [5] E. A. Laport, *Radio Antenna Engineering*, McGraw-Hill, 1952, ch. 1
+   (top-loading angle, tan delta = omega C_top Z0). (from memory)
+.. [6] H. A. Wheeler, "The radiansphere around a small antenna", Proc. IRE
+   47(8), 1325-1331, 1959 (the radian length lambda / 2 pi). (from memory)
 """
 
 from __future__ import annotations
@@ -50,8 +69,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from aerial.core.arrays import sorted_unique
+from aerial.core.constants import EPSILON_0, SPEED_OF_LIGHT
 from aerial.core.errors import ModelInputError
 from aerial.models.capacitance import electrostatic_solution
+from aerial.models.short_aerial import monopole_z0_schelkunoff
 from aerial.models.segments import Segments
 
 #: Shielding fraction s (low, nominal, high) by construction: 0 is open ground, 1 a perfect plane.
@@ -69,10 +90,11 @@ SHIELDING_BY_CONSTRUCTION = {
 FACADE_TARGET_UNKNOWNS = 120
 #: Pieces of wire this far or less in front of the facade plane are cut off as lying in it. [m]
 WALL_CLEARANCE_M = 0.02
-#: The quasi-static field solution holds while the building is below this fraction of a wavelength (k H < 1/2):
-#: past it the full-wave grid gives 2-5 dB more than the static screening on the examples (a 21 m steel block at
-#: 1.25-1.71 MHz; docs/models-building.md), the building's own currents nearing their first resonance. [1]
-MAX_HEIGHT_WAVELENGTHS = 1.0 / (4.0 * np.pi)
+#: The building's own currents are taken in (:func:`induced_charge_factor`) while its electrical height k h_e
+#: = k H + delta stays within one radian (h_e within the radiansphere, lambda / 2 pi); past it, nearing the first
+#: resonance (k h_e = pi/2), the line model's 1/cos(k h_e) outruns the full-wave grid (docs/models-building.md)
+#: and the figures are held at their value at the limit and flagged. [rad]
+MAX_ELECTRICAL_HEIGHT_RAD = 1.0
 
 
 @dataclass(frozen=True)
@@ -158,6 +180,246 @@ def facade_field_height(distance, height, wall_height):
     return np.imag(np.sqrt(w * w + h * h + 0j))
 
 
+def footprint_area(footprint):
+    """Plan area of a polygon (shoelace formula). [m^2]
+
+    Examples
+    --------
+    >>> float(footprint_area([[0, 0], [24, 0], [24, 12], [0, 12]]))
+    288.0
+    """
+    a = np.asarray(footprint, dtype=float)
+    b = np.roll(a, -1, axis=0)
+    return abs(0.5 * float(np.sum(a[:, 0] * b[:, 1] - b[:, 0] * a[:, 1])))
+
+
+def roof_equivalent_radius(footprint):
+    """Radius of the disc with the roof's area, sqrt(A / pi): the building's equivalent radius. [m]
+
+    Examples
+    --------
+    >>> round(roof_equivalent_radius([[0, 0], [24, 0], [24, 12], [0, 12]]), 3)
+    9.575
+    """
+    return float(np.sqrt(footprint_area(footprint) / np.pi))
+
+
+def roof_loading_length(height, radius):
+    """Static end correction of a building's roof: the length of wall line that holds the roof's charge. [m]
+
+    Parameters
+    ----------
+    height : float
+        Roof height H. [m]
+    radius : float
+        Equivalent radius of the building (:func:`roof_equivalent_radius`). [m]
+
+    Returns
+    -------
+    float
+        Delta h = c C_roof Z0, so that the top-loading angle is
+        delta = arctan(k Delta h). [m]
+
+    Notes
+    -----
+    The walls are a vertical line of average characteristic impedance
+    Z0 = 60 [ln(2H/a) - 1] (Schelkunoff's form [1]); the roof a flat disc
+    of radius a, C_roof = 8 eps0 a (the conducting disc, both faces [2]),
+    loading its top end: tan delta = omega C_roof Z0 = k c C_roof Z0 [3].
+    For a squat building (2H/a < e) the thin-line Z0 reaches zero and is
+    held there: the roof then adds nothing and the correction is the bare
+    line's, small at MF for such a building (k H < 0.4 up to 1.71 MHz for a
+    10 m block).
+
+    References
+    ----------
+    .. [1] Schelkunoff and Friis, 1952 (module reference [3]). (from memory)
+    .. [2] J. D. Jackson, *Classical Electrodynamics*, 3rd ed., 1999, sec. 3.13
+       (the charged conducting disc, C = 8 eps0 a). (from memory)
+    .. [3] Laport, 1952, ch. 1 (module reference [5]). (from memory)
+
+    Examples
+    --------
+    >>> round(roof_loading_length(21.0, 9.575), 3)
+    5.834
+    """
+    z0 = max(float(monopole_z0_schelkunoff(height, radius)), 0.0)
+    return SPEED_OF_LIGHT * 8.0 * EPSILON_0 * float(radius) * z0
+
+
+def induced_charge_factor(height, frequency, building_height, loading_length):
+    """Induced charge on a grounded building at a height, relative to its static value, per frequency.
+
+    Parameters
+    ----------
+    height : array_like
+        Height on the building (held to its roof). [m]
+    frequency : array_like
+        Frequencies (broadcast against ``height``). [Hz]
+    building_height : float
+        Roof height H. [m]
+    loading_length : float
+        The roof's static end correction Delta h (:func:`roof_loading_length`); 0 for a bare line. [m]
+
+    Returns
+    -------
+    ndarray
+        F = [sin kz / kz] cos(delta) / cos(kH + delta), delta = arctan(k Delta h). [1]
+
+    Notes
+    -----
+    The building as a transmission line (its walls against the ground) of
+    height H, short-circuited at its base and loaded at its top by its roof
+    (angle delta), in a uniform incident vertical field E0 [1], [2]: with V
+    the line voltage (charge per metre over C'), dV/dz = E0 - j omega L' I,
+    dI/dz = -j omega C' V, V(0) = 0 and I(H) = j omega C_roof V(H) give::
+
+        V(z) = E0 cos(delta) sin(kz) / [k cos(kH + delta)]
+
+    whose static limit is E0 z. The charge, and with it the field at the
+    building's surface, is F = V / (E0 z) times its static value: 1 as
+    k -> 0 (1 + O((kH)^2)), rising towards the first resonance
+    kH + delta = pi/2, where the lossless line has no bound: callers hold
+    the frequency below :func:`building_limit_frequency`. Inputs at or past
+    the resonance give a large finite number, never an infinity.
+
+    References
+    ----------
+    .. [1] King, 1956 (module reference [4]). (from memory)
+    .. [2] Schelkunoff and Friis, 1952 (module reference [3]). (from memory)
+
+    Examples
+    --------
+    >>> round(float(induced_charge_factor(12.6, 1e3, 21.0, 0.0)), 6)
+    1.0
+    >>> round(float(induced_charge_factor(21.0, 1.71e6, 21.0, 0.0)), 4)
+    1.2443
+    """
+    z = np.minimum(np.maximum(np.asarray(height, dtype=float), 0.0), float(building_height))
+    k = 2 * np.pi * np.asarray(frequency, dtype=float) / SPEED_OF_LIGHT
+    delta = np.arctan(k * float(loading_length))
+    kz = k * z
+    small = kz < 1e-6
+    sinc = np.where(small, 1.0 - kz * kz / 6.0, np.sin(kz) / np.where(small, 1.0, kz))
+    return sinc * np.cos(delta) / np.maximum(np.cos(k * float(building_height) + delta), 1e-6)
+
+
+def building_limit_frequency(height, loading_length):
+    """Frequency where the building's electrical height k H + delta reaches ``MAX_ELECTRICAL_HEIGHT_RAD``. [Hz]
+
+    Notes
+    -----
+    Solves u H + arctan(u Delta h) = 1 rad for u = k by Newton's method
+    (the left side rises and bends down, so from u = 1 / (H + Delta h) the
+    iterates climb to the root), f = u c / 2 pi.
+
+    Examples
+    --------
+    >>> round(building_limit_frequency(21.0, 5.834) / 1e6, 3)
+    1.784
+    """
+    h, dh = float(height), float(loading_length)
+    u = MAX_ELECTRICAL_HEIGHT_RAD / (h + dh)
+    for _ in range(40):
+        g = u * h + np.arctan(u * dh) - MAX_ELECTRICAL_HEIGHT_RAD
+        step = g / (h + dh / (1.0 + (u * dh) ** 2))
+        u -= step
+        if abs(step) < 1e-12 * u:
+            break
+    return float(u * SPEED_OF_LIGHT / (2 * np.pi))
+
+
+def building_charge_factor(height, frequency, body: BuildingBody, case: int = 1):
+    """:func:`induced_charge_factor` of a building, held below its limit frequency, for a shielding case. [1]
+
+    Case 1 (nominal) is the roof-loaded line; case 2 (the most shielding,
+    the least signal) the bare line (no roof loading); case 0 the loading's
+    effect doubled in dB, F_1^2 / F_2: the roof's share taken as the
+    uncertainty, either way. Above :func:`building_limit_frequency` every
+    case is held at its value there.
+
+    Examples
+    --------
+    >>> body = BuildingBody([[0, 0], [24, 0], [24, 12], [0, 12]], 21.0, "steel frame")
+    >>> [round(float(building_charge_factor(12.6, 1.71e6, body, c)), 3) for c in (0, 1, 2)]
+    [2.047, 1.646, 1.324]
+    """
+    if case not in (0, 1, 2):
+        raise ModelInputError(f"case must be 0, 1 or 2; got {case!r}")
+    dh = roof_loading_length(body.height_m, roof_equivalent_radius(body.footprint))
+    f = np.minimum(np.asarray(frequency, dtype=float), building_limit_frequency(body.height_m, dh))
+    loaded = induced_charge_factor(height, f, body.height_m, dh)
+    if case == 1:
+        return loaded
+    bare = induced_charge_factor(height, f, body.height_m, 0.0)
+    return bare if case == 2 else loaded * loaded / bare
+
+
+def dynamic_field_height(distance, height, wall_height, factor):
+    """The screened field of :func:`facade_field_height` with the building's induced charge scaled by ``factor``.
+
+    Parameters
+    ----------
+    distance : array_like
+        Horizontal distance in front of the wall. [m]
+    height : array_like
+        Height above the ground. [m]
+    wall_height : array_like
+        Height of the wall. [m]
+    factor : array_like
+        The building's induced charge relative to static at that height (:func:`induced_charge_factor`). [1]
+
+    Returns
+    -------
+    ndarray
+        phi_f = phi [1 + (F - 1)(1 - phi / z)], in metres of open-ground height. [m]
+
+    Notes
+    -----
+    Beside the wall the field is the building's surface charge over eps0
+    (Gauss), so the potential a short way out, d sigma / eps0, scales by F;
+    far away the building's charge no longer matters and phi -> z. The
+    screened share 1 - phi/z of the static map (1 on the wall, 0 in open
+    ground) carries the one into the other. An interpolation between the two
+    limits, each exact; checked against the full-wave grid in
+    docs/models-building.md.
+
+    Examples
+    --------
+    >>> round(float(dynamic_field_height(1.6, 12.6, 21.0, 1.0)), 4) == round(float(facade_field_height(1.6, 12.6, 21.0)), 4)
+    True
+    >>> round(float(dynamic_field_height(1e5, 12.6, 21.0, 1.5)), 3)
+    12.6
+    """
+    phi = facade_field_height(distance, height, wall_height)
+    z = np.maximum(np.asarray(height, dtype=float), 0.0)
+    screened = np.where(z > 0, 1.0 - phi / np.where(z > 0, z, 1.0), 0.0)
+    return phi * (1.0 + (np.asarray(factor, dtype=float) - 1.0) * np.clip(screened, 0.0, 1.0))
+
+
+def screened_field_height(body: BuildingBody, distance, height, frequency=None, case: int = 1):
+    """Open-ground height equivalent to the field a perfectly conducting ``body`` leaves, at a frequency. [m]
+
+    ``frequency`` None is the static field (:func:`facade_field_height`); else
+    the frequency axis is the last: heights (...,) and frequencies (F,) give
+    (..., F). The building's own currents enter by :func:`building_charge_factor`.
+
+    Examples
+    --------
+    >>> body = BuildingBody([[0, -12], [24, -12], [24, 0], [0, 0]], 21.0, "steel frame")
+    >>> round(float(screened_field_height(body, 1.6, 12.6)), 3)
+    1.192
+    >>> [round(float(v), 3) for v in screened_field_height(body, [1.6], [12.6], [1e3, 1.71e6])[0]]
+    [1.192, 1.889]
+    """
+    if frequency is None:
+        return facade_field_height(distance, height, body.height_m)
+    d = np.asarray(distance, dtype=float)[..., None]
+    z = np.asarray(height, dtype=float)[..., None]
+    factor = building_charge_factor(z, np.asarray(frequency, dtype=float), body, case)
+    return dynamic_field_height(d, z, body.height_m, factor)
+
+
 def plan_distance(points_xy, footprint):
     """Distance in plan from each point to a polygon's edge, 0 inside. [m]
 
@@ -226,7 +488,7 @@ def _in_front(segments: Segments, p0, n):
 
 
 def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitance_f: float,
-                          open_effective_height_m: float) -> dict:
+                          open_effective_height_m: float, frequency=None) -> dict:
     """Static capacitance and effective height of a wire set beside a building, with their range.
 
     Parameters
@@ -239,6 +501,8 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
         Capacitance of the same wires over open ground. [F]
     open_effective_height_m : float
         Static effective height over open ground. [m]
+    frequency : array_like, optional
+        Frequencies at which to take in the building's own currents. [Hz]
 
     Returns
     -------
@@ -249,7 +513,13 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
         ``shielding`` (low, nominal, high) [1]; ``facade_distance_m`` (mean
         plan distance of the aerial wire from the building) [m];
         ``shielded_lead_m`` (wire inside or against the building, left out of
-        the pick-up) [m]; ``notes`` (list of str).
+        the pick-up) [m]; ``notes`` (list of str). With ``frequency`` also
+        ``effective_height_by_frequency_m`` and
+        ``facade_effective_height_by_frequency_m``, shape (3, F), the same
+        with the building's induced charge at each frequency
+        (:func:`building_charge_factor`, its case 0, 1, 2 with the shielding's
+        low, nominal, high) [m], and ``limit_frequency_hz``
+        (:func:`building_limit_frequency`) [Hz].
 
     Notes
     -----
@@ -301,7 +571,18 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     he = (1 - s) * open_effective_height_m + s * h_wall
     cap = (1 - s) * open_capacitance_f + s * c_wall
     w = segments.length[segments.aerial]
-    return {
+    dynamic = {}
+    if frequency is not None:
+        f = np.atleast_1d(np.asarray(frequency, dtype=float))
+        wall_f = np.stack([np.sum(es.charge_c[:, None] * screened_field_height(body, d, mid[:, 2], f, case), axis=0)
+                           / q_aer for case in (0, 1, 2)])
+        dh = roof_loading_length(body.height_m, roof_equivalent_radius(body.footprint))
+        dynamic = {
+            "effective_height_by_frequency_m": (1 - s)[:, None] * open_effective_height_m + s[:, None] * wall_f,
+            "facade_effective_height_by_frequency_m": wall_f,
+            "limit_frequency_hz": building_limit_frequency(body.height_m, dh),
+        }
+    return dynamic | {
         "capacitance_f": tuple(float(v) for v in cap),
         "effective_height_m": tuple(float(v) for v in he),
         "facade_capacitance_f": c_wall,
@@ -315,7 +596,9 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
 
 __all__ = [
     "BuildingBody", "SHIELDING_BY_CONSTRUCTION", "facade_field_height", "facade_static_figures", "nearest_facade",
-    "plan_distance", "MAX_HEIGHT_WAVELENGTHS", "building_grid", "grid_wire_radius", "GRID_MESH_WAVELENGTHS",
+    "plan_distance", "MAX_ELECTRICAL_HEIGHT_RAD", "footprint_area", "roof_equivalent_radius",
+    "roof_loading_length", "induced_charge_factor", "building_limit_frequency", "building_charge_factor",
+    "dynamic_field_height", "screened_field_height", "building_grid", "grid_wire_radius", "GRID_MESH_WAVELENGTHS",
 ]
 
 

@@ -27,7 +27,7 @@ from aerial.core.constants import SPEED_OF_LIGHT
 
 from aerial.core.errors import ModelInputError
 from aerial.models import short_aerial as sa
-from aerial.models.building import MAX_HEIGHT_WAVELENGTHS, facade_static_figures
+from aerial.models.building import facade_static_figures
 from aerial.models.capacitance import electrostatic_solution
 from aerial.models.conductor import resistance_per_m
 from aerial.models.segments import Segments
@@ -148,7 +148,10 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
         The building beside the wire (:mod:`aerial.models.building`): the
         static capacitance and effective height then come from the wire, its
         images in the ground and the facade, and the field shielded by the
-        building, blended by its construction's shielding fraction.
+        building, blended by its construction's shielding fraction; the
+        effective height at each frequency takes in the building's own
+        induced currents (:func:`aerial.models.building.building_charge_factor`,
+        held above ``current_limit_hz`` with a warning).
     shielding_case : {0, 1, 2}
         Which shielding fraction of the construction: 0 the least, 1 the
         nominal, 2 the most.
@@ -167,7 +170,8 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
         [m]; ``model`` (str); ``shape`` (dict); ``warnings`` (list of str);
         with a building also ``building`` (dict: shielding fractions, the
         static figures in open ground, beside a perfect facade and over the
-        construction's range, the facade distance, the screened lead length).
+        construction's range, the facade distance, the screened lead length,
+        ``current_ratio`` per frequency and ``current_limit_hz``).
         All per-frequency entries are numpy arrays of the input's length.
 
     Notes
@@ -241,13 +245,13 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
                               "no wire doubles back along another")
     beside = None
     if building is not None:
-        beside = _beside_building(segments, building, es, int(shielding_case), f, warnings)
+        beside, he_f = _beside_building(segments, building, es, int(shielding_case), f, warnings)
         c_s, he_s = beside["static_capacitance_range_f"][shielding_case], beside["static_effective_height_range_m"][shielding_case]
 
     kind = shape.kind
     total = shape.total_length_m
     model = _LineModel(kind, shape, z0_form, total)
-    res, x, he = _normalised_line(model, f, c_s, he_s, total)
+    res, x, he = _normalised_line(model, f, c_s, he_s if beside is None else he_f, total)
     rr = sa.radiation_resistance(he, f)
 
     omega = 2 * np.pi * f
@@ -288,19 +292,19 @@ _METHOD_OF_KIND = {
 }
 
 
-def _beside_building(segments, building, es, case, f, warnings) -> dict:
-    """The static figures beside the building, as a JSON-ready dict; appends its caveats to ``warnings``."""
+def _beside_building(segments, building, es, case, f, warnings):
+    """The static figures beside the building, as a JSON-ready dict, and the case's static effective height
+    with the building's own currents at each frequency [m]; appends its caveats to ``warnings``."""
     if case not in (0, 1, 2):
         raise ModelInputError(f"shielding_case must be 0, 1 or 2; got {case!r}")
-    fig = facade_static_figures(segments, building, es.capacitance_f, es.effective_height_m)
+    fig = facade_static_figures(segments, building, es.capacitance_f, es.effective_height_m, frequency=f)
     warnings.extend(fig["notes"])
-    h_limit = MAX_HEIGHT_WAVELENGTHS * SPEED_OF_LIGHT / float(np.max(f))
-    if building.height_m > h_limit:
+    f_limit = fig["limit_frequency_hz"]
+    if float(np.max(f)) > f_limit:
         warnings.append(
-            f"the building ({building.height_m:.0f} m) is not small against the wavelength above "
-            f"{MAX_HEIGHT_WAVELENGTHS * SPEED_OF_LIGHT / building.height_m / 1e6:.3g} MHz: the closed form's "
-            "screening is the static one and leaves out the building's own currents, which can give a few dB more "
-            "signal there (--full-wave models them)"
+            f"above {f_limit / 1e6:.3g} MHz the building ({building.height_m:.0f} m) nears its own first resonance: "
+            "the closed form's allowance for the building's currents stops holding there and its figures are held "
+            "at their value at that frequency, which can be several dB off (--full-wave models the building)"
         )
     return {
         "construction": building.construction,
@@ -314,7 +318,9 @@ def _beside_building(segments, building, es, case, f, warnings) -> dict:
         "facade_distance_m": fig["facade_distance_m"],
         "screened_wire_m": fig["shielded_lead_m"],
         "height_m": float(building.height_m),
-    }
+        "current_ratio": fig["effective_height_by_frequency_m"][case] / fig["effective_height_m"][case],
+        "current_limit_hz": float(f_limit),
+    }, fig["effective_height_by_frequency_m"][case]
 
 
 def _checked_frequencies(frequency, z0_form):

@@ -41,7 +41,7 @@ from aerial.models import capacitance as cap
 from aerial.models import conductor
 from aerial.models import short_aerial as sa
 from aerial.geometry.resolve import building_of
-from aerial.models.building import facade_field_height, plan_distance
+from aerial.models.building import plan_distance, screened_field_height
 
 #: Largest number of candidate layouts searched without ``allow_large``.
 MAX_CANDIDATES = 2_000_000
@@ -308,8 +308,9 @@ class _Context:
         self.hm = np.maximum(self.h - self.floor, MIN_MODEL_HEIGHT_M)  # model heights
         self.ehm = max(self.eh - self.floor, 0.0)
         if self.body is not None:  # the building's screened field: the same model as the report's
-            self.hm = np.maximum(screened_height(self.body, self.x, self.y, self.h), MIN_MODEL_HEIGHT_M)
-            self.ehm = float(screened_height(self.body, [self.ex], [self.ey], [self.eh])[0])
+            f_c = objective["centre_hz"]
+            self.hm = np.maximum(screened_height(self.body, self.x, self.y, self.h, f_c), MIN_MODEL_HEIGHT_M)
+            self.ehm = float(screened_height(self.body, [self.ex], [self.ey], [self.eh], f_c)[0])
         self.dentry = np.hypot(self.x - self.ex, self.y - self.ey)
         self.objective = objective
         size = _aerial_size(site)
@@ -337,17 +338,20 @@ class _Context:
             shapely.prepare(self.lot)
 
 
-def screened_height(body, x, y, h):
+def screened_height(body, x, y, h, frequency=None):
     """Open-ground height equivalent to the screened field at plan points (x, y) and heights h. [m]
 
     The nominal shielding of the building's construction blends the open
-    ground (h) with the field beside a perfectly conducting building
-    (:func:`aerial.models.building.facade_field_height`), as the report does.
+    ground (h) with the field beside a perfectly conducting building at
+    ``frequency`` [Hz] (the building's own currents taken in; None: static),
+    :func:`aerial.models.building.screened_field_height`, as the report does.
     """
     x, y, h = (np.asarray(v, dtype=float) for v in (x, y, h))
     d = plan_distance(np.stack([x, y], axis=1), body.footprint)
     s = body.shielding[1]
-    return (1.0 - s) * h + s * facade_field_height(d, h, body.height_m)
+    if frequency is None:
+        return (1.0 - s) * h + s * screened_field_height(body, d, h)
+    return (1.0 - s) * h + s * screened_field_height(body, d, h, [float(frequency)], 1)[..., 0]
 
 
 def present_wire(site, objective) -> dict | None:
