@@ -252,7 +252,7 @@ def _line_of(e, soil, frequency, resistivity):
 
 
 def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=(), fixed: str = "nominal",
-                        aerial=None) -> dict:
+                        aerial=None, dc: dict | None = None) -> dict:
     """The earth system's impedance at radio frequency: each electrode a lossy line in the soil.
 
     Parameters
@@ -273,6 +273,9 @@ def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=(), fixe
         loss over the screen and the soil, and the system's impedance is that
         alone (other electrodes bonded at the hub carry none of the aerial's
         return current in this model, which leaves them out: pessimistic).
+    dc : dict, optional
+        :func:`earth_system` of the same electrodes and soil, when the caller
+        has it already (it depends on the soil's conductivity alone).
 
     Returns
     -------
@@ -295,7 +298,8 @@ def electrode_impedance(electrodes, soil, frequency, counterpoise_wires=(), fixe
     """
     f = np.atleast_1d(np.asarray(frequency, float))
     fixed_key = {"nominal": "resistance_ohm", "low": "resistance_low_ohm", "high": "resistance_high_ohm"}[fixed]
-    dc = earth_system(electrodes, soil, counterpoise_wires)
+    if dc is None:
+        dc = earth_system(electrodes, soil, counterpoise_wires)
     rho = 1.0 / soil.conductivity_s_m
     items = [e for e in electrodes]
     parts = []
@@ -378,9 +382,13 @@ def resistance_bounds(electrodes, soil, frequency, counterpoise_wires=(), aerial
     """
     sigmas = np.geomspace(soil.conductivity_high_s_m, soil.conductivity_low_s_m, INTERIOR_SOIL_POINTS + 2)
     fixed = ["low"] + ["nominal"] * INTERIOR_SOIL_POINTS + ["high"]
-    runs = [electrode_impedance(electrodes, replace(soil, conductivity_s_m=float(sg), relative_permittivity=float(ep)),
-                                frequency, counterpoise_wires, fixed=fx, aerial=aerial)
-            for sg, fx in zip(sigmas, fixed) for ep in soil_permittivities(soil)]
+    runs = []
+    for sg, fx in zip(sigmas, fixed):
+        # the DC sums depend on the conductivity alone: once per conductivity, shared by its permittivities
+        dc = earth_system(electrodes, replace(soil, conductivity_s_m=float(sg)), counterpoise_wires)
+        runs += [electrode_impedance(electrodes, replace(soil, conductivity_s_m=float(sg), relative_permittivity=float(ep)),
+                                     frequency, counterpoise_wires, fixed=fx, aerial=aerial, dc=dc)
+                 for ep in soil_permittivities(soil)]
     whole = np.stack([r["impedance_ohm"].real for r in runs])
     parts = [np.stack([r["parts"][n]["impedance_ohm"].real for r in runs]) for n in range(len(runs[0]["parts"]))]
     return {"low_ohm": whole.min(axis=0), "high_ohm": whole.max(axis=0),
@@ -402,7 +410,7 @@ def improved_earth(electrodes, soil, frequency=None, radial_length_m: float | No
     out = earth_system(list(electrodes) + [extra], soil)
     out["description"] = f"add {n} buried radials of {length:g} m"
     if frequency is not None:
-        rf = electrode_impedance(list(electrodes) + [extra], soil, [float(frequency)], aerial=aerial)
+        rf = electrode_impedance(list(electrodes) + [extra], soil, [float(frequency)], aerial=aerial, dc=out)
         out["resistance_ohm"] = float(rf["impedance_ohm"][0].real)
         l_eff = float(rf["parts"][-1]["effective_length_m"][0])
         how = "their effective length"
@@ -426,8 +434,15 @@ def screen_effective_length(fixed, radials, soil, frequency: float, aerial) -> f
 
     top = max(0.25 * SPEED_OF_LIGHT / frequency, 2.0)
     lengths = np.geomspace(1.0, top, 1 + int(np.ceil(16 * np.log10(top))))
-    loss = np.array([screen_loss(list(fixed) + [replace(radials, length_m=float(n))], soil, [frequency],
-                                 aerial)["impedance_ohm"][0].real for n in lengths])
+    # every length in one pass: the loss :func:`screen_loss` gives each (its real part, clipped at zero)
+    sets = list(fixed) + [radials]
+    counts = [e.count for e in sets]
+    rows = [[e.length_m for e in fixed] + [float(n)] for n in lengths]
+    radii = [float(np.average([e.diameter_m / 2.0 for e in sets], weights=[c * x for c, x in zip(counts, row)]))
+             for row in rows]
+    dz = rs.screen_loss_by_length(frequency, aerial["distance_m"], aerial["field_per_m"], counts, rows, radii,
+                                  soil.conductivity_s_m, soil.relative_permittivity)
+    loss = np.maximum(dz.real, 0.0)
     ok = loss <= loss[-1] * (1.0 + lines.EFFECTIVE_LENGTH_CHANGE) + 1e-12
     return float(lengths[int(np.argmax(ok))])
 

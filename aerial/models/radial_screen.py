@@ -86,7 +86,8 @@ from aerial.core.constants import SPEED_OF_LIGHT as C0
 from aerial.core.errors import ModelInputError
 
 __all__ = ["soil_surface_impedance", "wait_screen_impedance", "radial_screen_impedance", "vertical_ground_field",
-           "radial_screen_loss", "RadialScreenLoss", "FAR_WAVELENGTHS", "static_ground_field", "screen_loss_of_field"]
+           "radial_screen_loss", "RadialScreenLoss", "FAR_WAVELENGTHS", "static_ground_field", "screen_loss_of_field",
+           "screen_loss_by_length"]
 
 ETA0 = mu_0 * C0  #: Impedance of free space. [ohm]
 #: Distance beyond which the field is taken in its far form (the rest of the integral in closed form). [wavelengths]
@@ -520,3 +521,64 @@ def screen_loss_of_field(frequency, distance, field, count, radial_length, wire_
     seg = 0.5 * (g[:, 1:] + g[:, :-1]) * np.diff(r)
     inside = (r[1:] <= np.max(radial_length) * (1 + 1e-12))[None, :]
     return seg.sum(axis=1), np.where(inside, seg.real, 0.0).sum(axis=1)
+
+
+def screen_loss_by_length(frequency, distance, field, counts, lengths, wire_radius, conductivity,
+                          relative_permittivity):
+    """Delta Z of :func:`screen_loss_of_field` at one frequency for several radial systems at once. [ohm]
+
+    Parameters
+    ----------
+    frequency : float
+        [Hz]
+    distance : ndarray, shape (R,)
+        Increasing distances from the hub. [m]
+    field : ndarray, shape (R,)
+        H_phi per ampere at the feed. [1/m]
+    counts : sequence of int, length S
+        Number of radials in each set (the same sets in every system). [1]
+    lengths : array_like, shape (L, S)
+        Each system's radial lengths, one row per system. [m]
+    wire_radius : array_like, shape (L,)
+        Each system's wire radius. [m]
+    conductivity, relative_permittivity : float
+        [S/m], [1]
+
+    Returns
+    -------
+    ndarray of complex, shape (L,)
+        Delta Z of each system: row ``i`` is ``screen_loss_of_field([frequency], distance, field, counts,
+        lengths[i], wire_radius[i], ...)[0][0]`` (the same operations element by element, all rows in one
+        pass). [ohm]
+
+    Notes
+    -----
+    The screen at each distance is made of the radials reaching it (:func:`radial_screen_impedance`), in
+    parallel with the soil; the loss is Monteath's integral of :func:`screen_loss_of_field`.
+
+    References
+    ----------
+    Wait, 1963, and Monteath's compensation theorem (module references [2], [4]; from memory).
+
+    Examples
+    --------
+    >>> r = np.geomspace(0.01, 300.0, 400)
+    >>> h = static_ground_field(np.array([[0.0, 5.0]]), np.array([1.0]), r)
+    >>> dz = screen_loss_by_length(1e6, r, h, [60], [[10.0], [20.0]], [1e-3, 1e-3], 5e-3, 15.0)
+    >>> bool(dz[1].real < dz[0].real)            # longer radials: less loss
+    True
+    """
+    f = np.asarray([[float(frequency)]])
+    r = np.asarray(distance, float)
+    counts = np.asarray(counts, float)
+    lengths = np.asarray(lengths, float)
+    radius = np.asarray(wire_radius, float)[:, None]
+    z_soil = soil_surface_impedance(f, conductivity, relative_permittivity) * np.ones_like(r[None, :])
+    reaching = np.sum(counts[None, :, None] * (r[None, None, :] < lengths[:, :, None]), axis=1)
+    z_w = wait_screen_impedance(f, r[None, :], np.maximum(reaching, 1.0), radius)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        both = np.where(np.abs(z_w) > 0, z_soil * z_w / (z_soil + z_w), 0.0)
+    z = np.where(reaching > 0, both, z_soil)
+    g = z * np.asarray(field) ** 2 * 2 * np.pi * r
+    seg = 0.5 * (g[:, 1:] + g[:, :-1]) * np.diff(r)
+    return seg.sum(axis=1)

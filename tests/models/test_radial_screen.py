@@ -14,8 +14,9 @@ from scipy.constants import c, mu_0
 from numpy import euler_gamma
 from scipy.special import sici
 
-from aerial.models.radial_screen import (radial_screen_loss, screen_loss_of_field, soil_surface_impedance,
-                                         static_ground_field, vertical_ground_field, wait_screen_impedance)
+from aerial.models.radial_screen import (radial_screen_loss, screen_loss_by_length, screen_loss_of_field,
+                                         soil_surface_impedance, static_ground_field, vertical_ground_field,
+                                         wait_screen_impedance)
 
 #: Radiation resistance of a thin quarter-wave monopole over a perfect ground by the induced EMF method:
 #: half of the half-wave dipole's (eta0 / 4 pi)(gamma + ln 2 pi - Ci 2 pi) = 73.08 ohm (Balanis, Antenna Theory,
@@ -159,3 +160,17 @@ def test_consistency_static_field_in_place_is_the_formula_as_written():
                             axis=1)
     expected = np.clip(1.0 - np.interp(r, rr, (q / q.sum()) @ inside), 0.0, 1.0) / (2 * np.pi * r)
     assert np.allclose(static_ground_field(pts, q, r), expected, rtol=1e-12, atol=0.0)
+
+
+def test_consistency_radial_systems_in_one_pass_are_each_systems_own_integral():
+    # consistency check: several radial systems (two sets from one hub, the second set's length varied, each
+    # with its own wire radius, one with no radial reaching past the hub's first point) in one pass give, to
+    # 1e-12, each system's screen_loss_of_field
+    r = np.geomspace(1e-3, 2000.0, 500)
+    field = static_ground_field(np.array([[0.0, 5.0], [2.0, 10.0]]), np.array([1.0, 1.0]), r)
+    rows = [[8.0, length] for length in (1e-4, 1.0, 5.0, 12.0, 40.0, 150.0)]
+    radii = [1e-3, 8e-4, 1.2e-3, 1e-3, 6e-4, 2e-3]
+    batch = screen_loss_by_length(7e5, r, field, [16, 4], rows, radii, 2e-3, 13.0)
+    for row, radius, got in zip(rows, radii, batch):
+        one = screen_loss_of_field([7e5], r, field, [16, 4], row, radius, 2e-3, 13.0)[0][0]
+        assert got == pytest.approx(one, rel=1e-12, abs=0.0)
