@@ -34,6 +34,7 @@ from aerial.core.constants import MU_0 as mu_0
 
 from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _positive
+from aerial.models.special_functions import ellipe, ellipk, ive
 
 #: Resistivity of annealed copper at 20 °C (IEC 60028). [ohm m]
 COPPER_RESISTIVITY = 1.72414e-8
@@ -79,7 +80,7 @@ def nagaoka_coefficient(length_to_diameter):
         K = 4/(3π k') · [ (k'²/k²)(K(k) − E(k)) + E(k) − k ]
 
     where K(k), E(k) are the complete elliptic integrals of the first and
-    second kind (``scipy.special.ellipk``/``ellipe`` take m = k²). The
+    second kind (:func:`~aerial.models.special_functions.ellipk` and ``ellipe`` take m = k²). The
     inductance of the sheet is L = µ0 N² π r² K / l. Exact for a current sheet;
     a round-wire winding differs by Rosa's small spacing corrections, not applied.
 
@@ -93,8 +94,6 @@ def nagaoka_coefficient(length_to_diameter):
     >>> round(float(nagaoka_coefficient(1.0)), 4)
     0.6884
     """
-    from scipy.special import ellipe, ellipk  # imported here: `aerial check` then never loads scipy.special
-
     x = _positive("length_to_diameter", length_to_diameter)
     m = 1.0 / (1.0 + x**2)  # k²
     k = np.sqrt(m)
@@ -381,8 +380,6 @@ def isolated_wire_ac_factor(wire_diameter, frequency, resistivity=COPPER_RESISTI
     >>> round(float(isolated_wire_ac_factor(1.628e-3, 1e6)), 1)
     6.4
     """
-    from scipy.special import ive  # imported here, as in nagaoka_coefficient
-
     a = _positive("wire_diameter", wire_diameter) / 2.0
     delta = skin_depth(frequency, resistivity)
     ga = (1.0 + 1.0j) * a / delta

@@ -29,10 +29,10 @@ from __future__ import annotations
 
 import numpy as np
 from aerial.core.constants import MU_0 as mu_0
-from scipy.special import ive, kve
 
 from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _positive
+from aerial.models.special_functions import ive, kve
 
 #: Resistivity of annealed copper at 20 degC, IEC 60028. [ohm m]
 COPPER_RESISTIVITY = 1.72414e-8
@@ -145,7 +145,7 @@ def internal_impedance_per_m(radius, frequency, resistivity=COPPER_RESISTIVITY, 
         Z' = gamma / (2 pi a sigma) * I0(gamma a) / I1(gamma a)
 
     evaluated with the exponentially scaled Bessel functions
-    ``scipy.special.ive`` (the scaling cancels in the ratio), so there is no
+    :func:`aerial.models.special_functions.ive` (the scaling cancels in the ratio), so there is no
     overflow for a/delta in the thousands. For gamma a < 1e-3 the series
     Z' = R_dc (1 + (gamma a)^2 / 8) is used. Limits: R' -> R_dc at low
     frequency, R' -> R_dc (a / 2 delta + 1/4) for a/delta >~ 3.

@@ -26,10 +26,10 @@ from typing import NamedTuple
 import numpy as np
 from aerial.core.constants import BOLTZMANN as Boltzmann
 from aerial.core.constants import ELEMENTARY_CHARGE as elementary_charge
-from scipy.special import ive
 
 from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _check
+from aerial.models.special_functions import ive
 
 #: Default junction temperature. [K]
 DEFAULT_TEMPERATURE_K = 300.0

@@ -19,10 +19,10 @@ from typing import NamedTuple
 import numpy as np
 from aerial.core.constants import EPSILON_0 as epsilon_0
 from aerial.core.constants import SPEED_OF_LIGHT as c
-from scipy.special import wofz
 
 from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _positive
+from aerial.models.special_functions import wofz
 
 #: Flat-earth range coefficient: use the flat-earth formula within 80 / f_MHz^(1/3) km (from memory). [km]
 FLAT_EARTH_RANGE_KM_AT_1MHZ = 80.0

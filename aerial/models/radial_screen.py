@@ -42,7 +42,7 @@ from the field of a current element and its image::
 Beyond ``FAR_WAVELENGTHS`` wavelengths the field is taken in its far form
 H_phi = j k I0 h_e e^{-jkr} / (2 pi r) (h_e the vertical's effective height)
 and the rest of the integral is Z_soil (j k I0 h_e / 2 pi)^2 2 pi E1(2 j k r_far)
-(E1 the exponential integral, ``scipy.special.exp1``).
+(E1 the exponential integral, :func:`aerial.models.special_functions.exp1`).
 
 Validity: the field of the top's horizontal wires is left out (their currents'
 image field at the ground, largest under the top, is not part of the
@@ -78,12 +78,12 @@ import functools
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.special import ellipe, exp1
 
 from aerial.core.constants import EPSILON_0 as epsilon_0
 from aerial.core.constants import MU_0 as mu_0
 from aerial.core.constants import SPEED_OF_LIGHT as C0
 from aerial.core.errors import ModelInputError
+from aerial.models.special_functions import ellipe, exp1
 
 __all__ = ["soil_surface_impedance", "wait_screen_impedance", "radial_screen_impedance", "vertical_ground_field",
            "radial_screen_loss", "RadialScreenLoss", "FAR_WAVELENGTHS", "static_ground_field", "screen_loss_of_field",
@@ -422,7 +422,8 @@ def static_ground_field(points, charges, distance):
         int_0^{2 pi} dphi / (A - B cos phi)^{3/2} = 4 E(m) / ((A - B) sqrt(A + B)),
         A = r'^2 + s^2 + z^2,  B = 2 r' s,  m = 2B / (A + B)
 
-    (E the complete elliptic integral of the second kind, ``scipy.special.ellipe``;
+    (E the complete elliptic integral of the second kind,
+    :func:`aerial.models.special_functions.ellipe`;
     Gradshteyn and Ryzhik 2.575, from memory), then over r' by the trapezoid
     rule. For a charge over the hub, P_out = z / sqrt(r^2 + z^2) exactly.
 
