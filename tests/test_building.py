@@ -24,6 +24,7 @@ def test_report_states_the_building_assumption_in_plain_words(capsys):
     flat = " ".join(out.replace("│", " ").split())
     assert "The building is taken as a grounded conductor" in flat
     assert "earth, not aerial" in flat
+    assert "own induced currents raise that with frequency: by 4.0 dB at 1.71 MHz" in flat
     assert "licensed electrician" in flat
     code, out, err = run(capsys, "report", "--json", str(HIGH))
     changes = {row["change"]: row["power_change_db"] for row in json.loads(out)["what_if"]}

@@ -978,6 +978,17 @@ CONSTRUCTION_IN_WORDS = {
 }
 
 
+def _building_currents_words(resp, fig) -> str:
+    """A sentence on how much the building's own induced currents raise the pick-up at the top frequency, or ''."""
+    ratio = np.asarray(fig.get("current_ratio", []), float)
+    f = np.asarray(resp.get("frequency_hz", []), float)
+    if ratio.size == 0 or ratio.size != f.size or float(np.max(ratio)) < 10 ** (0.5 / 20):
+        return ""
+    i = int(np.argmax(f))
+    return (f" The building's own induced currents raise that with frequency: by {20 * np.log10(ratio[i]):.1f} dB "
+            f"at {f[i] / 1e6:.3g} MHz.")
+
+
 def building_section(geometry, resp) -> dict:
     """The building as the report states it: what was taken, the figures with and without it, the assumption."""
     body, described = geometry.building, geometry.building_site
@@ -988,6 +999,7 @@ def building_section(geometry, resp) -> dict:
         text += (f" Beside it the wire's effective height is about {nominal:.1f} m ({least:.1f}-{most:.1f} m as the "
                  f"structure conducts better or worse; {fig['open_ground_static_effective_height_m']:.1f} m in open "
                  "ground).")
+        text += _building_currents_words(resp, fig)
         if fig.get("screened_wire_m", 0.0) > 0.05 and body.shielding[1] >= 0.5:
             text += " The lead-in and riser inside it are screened and bonded to it: earth, not aerial."
     else:
