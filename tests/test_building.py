@@ -336,8 +336,8 @@ def test_layout_full_wave_check_solves_the_building_too(capsys, tmp_path):
 def test_a_tall_block_near_its_own_resonance_is_flagged_in_plain_words(capsys, tmp_path):
     # Input handling: a 45 m steel block reaches a radian of electrical height inside the MF band; the report says
     # where the closed form's allowance for the building's currents stops holding and points to --full-wave,
-    # never printing a NaN (the JSON keys: tests/models/test_building.py). (The example's own 21 m block stays inside its limit up to 1.71 MHz:
-    # tests/models/test_building.py, the consistency check at the top of the band.)
+    # never printing a NaN (the JSON keys: tests/models/test_building.py). (The example's own 21 m block stays
+    # inside its limit up to 1.71 MHz: tests/models/test_building.py, the consistency check at the top of the band.)
     p = tmp_path / "tower.toml"
     p.write_text(HIGH.read_text(encoding="utf-8").replace('height = "21 m"', 'height = "45 m"'), encoding="utf-8")
     code, out, err = run(capsys, "report", p)

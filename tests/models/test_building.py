@@ -145,14 +145,16 @@ def test_building_currents_leave_the_static_model_unchanged_below_a_tenth_of_a_r
     s = _balcony()
     r = closed_form_response(s, f, building=body)
     static = r["building"]["static_effective_height_range_m"][1]
-    line_only = closed_form_response(s, f)["effective_height_m"] / closed_form_response(s, f)["static_effective_height_m"]
+    bare = closed_form_response(s, f)
+    line_only = bare["effective_height_m"] / bare["static_effective_height_m"]
     assert np.all(np.abs(r["effective_height_m"] / (static * line_only) - 1.0) < 0.01)
     assert np.all(np.abs(np.asarray(r["building"]["current_ratio"]) - 1.0) < 0.01)
 
 
 def test_induced_charge_factor_against_a_numerical_solution_of_the_line_equations():
-    # Outside check (scipy.integrate.solve_bvp, a general reference library): the receiving line of King (The
-    # Theory of Linear Antennas, 1956) and Schelkunoff & Friis (Antennas: Theory and Practice, 1952), from memory:
+    # Outside check (scipy.integrate.solve_bvp, a general reference library; check values §13): the receiving
+    # line of King (The Theory of Linear Antennas, 1956) and Schelkunoff & Friis (Antennas: Theory and Practice,
+    # 1952), from memory:
     # dV/dz = E0 - j w L' I, dI/dz = -j w C' V, V(0) = 0 (shorted base), I(H) = j w C_roof V(H) (roof load),
     # solved numerically and compared with the closed form F = V / (E0 z) = sin(kz)/(kz) cos(d) / cos(kH + d).
     from scipy.constants import c
@@ -174,7 +176,7 @@ def test_induced_charge_factor_against_a_numerical_solution_of_the_line_equation
 
 
 def test_roof_loading_and_charge_factor_at_a_point_computed_by_hand():
-    # The published forms at one point, by hand from the equations (module docstrings; Schelkunoff & Friis 1952
+    # The published forms at one point, by hand from the equations (check values §13; Schelkunoff & Friis 1952
     # Z0 = 60 [ln(2H/a) - 1], Jackson sec. 3.13 disc C = 8 eps0 a, Laport 1952 tan(delta) = w C Z0, all from
     # memory), with scipy.constants: a 24 m x 12 m roof (a = sqrt(288/pi) = 9.5746 m) 21 m up.
     from scipy.constants import c, epsilon_0, mu_0
@@ -187,7 +189,8 @@ def test_roof_loading_and_charge_factor_at_a_point_computed_by_hand():
     assert dh == pytest.approx(5.834, abs=0.001)
     k = 2 * math.pi * 1.2e6 / c
     delta = math.atan(k * dh)
-    by_hand = math.sin(k * 12.6) / (k * 12.6) * math.cos(delta) / math.cos(k * 21.0 + delta)  # 0.98335 x 0.98941 / 0.78144 = 1.2451
+    # 0.98335 x 0.98941 / 0.78144 = 1.2451
+    by_hand = math.sin(k * 12.6) / (k * 12.6) * math.cos(delta) / math.cos(k * 21.0 + delta)
     assert float(induced_charge_factor(12.6, 1.2e6, 21.0, dh)) == pytest.approx(by_hand, rel=1e-9)
     assert by_hand == pytest.approx(1.2451, abs=1e-4)
     # the limit frequency puts k H + delta at one radian
@@ -210,7 +213,8 @@ def test_squat_building_gets_no_roof_loading_and_no_nan_anywhere():
     past = building_charge_factor(10.0, f, tall)
     assert past[-1] == past[-2] == past[-3]  # held above the limit
     assert np.all(np.isfinite(induced_charge_factor(10.0, 30e6, 45.0, 5.0)))
-    r = closed_form_response(_balcony(), np.linspace(0.15e6, 1.71e6, 12), building=BuildingBody(BLOCK, 45.0, "steel frame"))
+    r = closed_form_response(_balcony(), np.linspace(0.15e6, 1.71e6, 12),
+                             building=BuildingBody(BLOCK, 45.0, "steel frame"))
     assert 0.5e6 < r["building"]["current_limit_hz"] < 1.2e6
     assert np.all(np.isfinite(r["building"]["current_ratio"])) and np.all(r["building"]["current_ratio"] >= 1.0)
     assert np.all(np.isfinite(r["effective_height_m"]))
