@@ -408,7 +408,7 @@ def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-fo
         if like is not None and len(like.segment_section) == len(geo.segments):
             shape = measure_like(geo.segments, like)
         r = closed_form_response(geo.segments, f, shape=shape, building=geo.building,
-                                 shielding_case=shielding_case)
+                                 shielding_case=shielding_case, convergence_check=False)  # its warnings are not read
         rg = earth_f
     rr = np.asarray(r["radiation_resistance_ohm"], float)
     rt = rr + np.asarray(r["conductor_loss_ohm"], float) + rg

@@ -128,7 +128,7 @@ class _LineModel:
 
 
 def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEFAULT_Z0_FORM, shape=None,
-                         building=None, shielding_case: int = 1) -> dict:
+                         building=None, shielding_case: int = 1, convergence_check: bool = True) -> dict:
     """Per-frequency capacitance, effective height, radiation resistance, reactance and conductor loss.
 
     Parameters
@@ -155,6 +155,11 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
     shielding_case : {0, 1, 2}
         Which shielding fraction of the construction: 0 the least, 1 the
         nominal, 2 the most.
+    convergence_check : bool
+        Check the electrostatic solution against a half-density subdivision
+        and warn when it moved beyond its tolerance (default). False skips
+        that second solve, and the warning, for a caller that does not read
+        the warnings (the figures are the same).
 
     Returns
     -------
@@ -230,11 +235,11 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
         shape = classify(segments)
     elif len(shape.segment_section) != len(segments):
         raise ModelInputError(f"the shape given describes {len(shape.segment_section)} segments, not {len(segments)}")
-    es = electrostatic_solution(segments)
+    es = electrostatic_solution(segments, convergence_check=convergence_check)
     c_s = es.capacitance_f
     he_s = es.effective_height_m
     warnings: list[str] = []
-    if not es.converged:
+    if convergence_check and not es.converged:
         warnings.append(
             f"electrostatic solution changed by {es.relative_change:.1%} between subdivisions "
             "(above its tolerance): capacitance and effective height are approximate"

@@ -195,3 +195,24 @@ def test_counterpoise_floats_and_agrees_with_the_full_wave_solver():
         A, [False, True, True, True], [0, 0, 0.3],
     )
     assert electrostatic_solution(tied).capacitance_f > 1.05 * static.capacitance_f
+
+
+def test_consistency_skipping_the_convergence_solve_keeps_every_figure():
+    # consistency check: without the half-density solve (tolerance runs, what-ifs, the facade solution) the
+    # figures are those of the full run to the last bit, open ground and beside a building; only the report
+    # on convergence (and its warning) is left out
+    from aerial.models.building import BuildingBody
+
+    s = polyline_segments([[0, 0, 0.3], [0, 0, 9], [25, 0, 9]], 1e-3)
+    f = np.array([0.3e6, 0.9e6, 1.6e6])
+    body = BuildingBody(np.array([[-10.0, 4.0], [30.0, 4.0], [30.0, 14.0], [-10.0, 14.0]]), 12.0, "masonry")
+    for building in (None, body):
+        full = closed_form_response(s, f, building=building)
+        quick = closed_form_response(s, f, building=building, convergence_check=False)
+        for key in ("capacitance_f", "effective_height_m", "radiation_resistance_ohm", "reactance_ohm",
+                    "conductor_loss_ohm", "static_capacitance_f"):
+            assert np.array_equal(np.asarray(full[key]), np.asarray(quick[key])), key
+        assert not any("between subdivisions" in w for w in quick["warnings"])
+    es, quick = electrostatic_solution(s), electrostatic_solution(s, convergence_check=False)
+    assert es.capacitance_f == quick.capacitance_f and np.array_equal(es.charge_c, quick.charge_c)
+    assert np.isnan(quick.relative_change) and not quick.converged
