@@ -48,3 +48,4 @@ def test_closed_form_report_loads_no_scipy_special_constants_optimize_or_linalg(
     assert out["code"] == 0
     for heavy in ("scipy.special", "scipy.constants", "scipy.optimize", "scipy.linalg", "scipy.sparse"):
         assert heavy not in out["loaded"], heavy
+    assert "numpy.ma" not in out["loaded"]  # the sweep grid's distinct values without numpy.unique's masked test
