@@ -38,6 +38,8 @@ References
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from aerial.models.fullwave_geometry import Topology
@@ -562,26 +564,30 @@ class Filler:
     def _series_block(self, r0, r1, k0, half_width, order, coefs):
         """Piece-level terms (order + 3, 4, Pc, P-r0) of every Y_m for piece rows r0:r1 (:meth:`series`)."""
         P = self.topo.n_pieces
-        a_n = np.zeros((order + 1, 4, r1 - r0, P - r0), dtype=complex)  # A_n, piece level
-        phi_n = np.zeros((order + 1, r1 - r0, P - r0), dtype=complex)  # -Phi_n, piece level (S_sum)
+        a_n = np.zeros((order + 1, 4, r1 - r0, P - r0), dtype=complex)  # A_n n! / (-j)^n, piece level
+        phi_n = np.zeros((order + 1, r1 - r0, P - r0), dtype=complex)  # -Phi_n n! / (-j)^n, piece level
+        a_re = a_n.view(float)  # real and imaginary parts side by side: real factors act on both at once
         for image in ((False, True) if self.image else (False,)):
             r = self._distances(r0, r1, image)
             g = self._kernel(k0, r)
             r *= half_width
-            tt = self._tangent_products(r0, r1, image, coefs[image])
+            r_re = np.repeat(r, 2, axis=-1)
+            del r
+            g_re = g.view(float)
+            tt = np.repeat(self._tangent_products(r0, r1, image, coefs[image]), 2, axis=-1)
             sign = coefs[image]["Phi_image" if image else "Phi_direct"]
-            scale = 1.0 + 0j
             for n in range(order + 1):
                 if n:
-                    g *= r  # e^{-j k0 R} (h R)^n / (4 pi R)
-                    scale *= -1j / n
+                    g_re *= r_re  # e^{-j k0 R} (h R)^n / (4 pi R)
                 S = self._reduce(g, r0, r1, image, n == 0)
-                a_n[n] += (scale * tt) * S[:4]
-                phi_n[n] += (scale * sign) * S[4]
+                a_re[n] += tt * S[:4].view(float)
+                phi_n[n] += sign * S[4]
+        scale = np.array([(-1j) ** n / math.factorial(n) for n in range(order + 1)])[:, None, None, None]
         x = np.zeros((order + 3,) + a_n.shape[1:], dtype=complex)
-        x[: order + 1] = (k0 * k0) * a_n
-        x[1 : order + 2] += (2 * k0 * half_width) * a_n
-        x[2:] += (half_width * half_width) * a_n
+        x[: order + 1] = (k0 * k0 * scale) * a_n
+        x[1 : order + 2] += (2 * k0 * half_width * scale) * a_n
+        x[2:] += (half_width * half_width * scale) * a_n
+        phi_n *= scale[:, 0]
         for c in range(4):
             x[: order + 1, c] += self._charge_sign[c] * phi_n
         return x
