@@ -22,7 +22,7 @@ def inverted_l(pieces):
 
 
 @pytest.mark.parametrize("seed", range(6))
-def test_close_pairs_are_every_pair_within_tolerance(seed):
+def test_consistency_check_close_pairs_are_every_pair_within_tolerance(seed):
     # consistency check: the grid search against all pairs by brute force, with points on and near cell edges
     rng = np.random.default_rng(seed)
     tol = 10.0 ** rng.uniform(-9, -2)
@@ -34,13 +34,13 @@ def test_close_pairs_are_every_pair_within_tolerance(seed):
     assert close_pairs(pts, tol).tolist() == np.stack([i, j], axis=1).tolist()
 
 
-def test_close_pairs_handles_no_pairs_and_far_coordinates():
+def test_consistency_check_close_pairs_with_no_pairs_and_far_coordinates():
     assert close_pairs(np.array([[1e6, -1e6, 3.0]]), 1e-9).shape == (0, 2)
     pts = np.array([[1e6, 0, 0], [1e6 + 5e-10, 0, 0], [-1e6, 0, 0]])
     assert close_pairs(pts, 1e-9).tolist() == [[0, 1]]
 
 
-def test_fill_is_symmetric_and_matches_row_by_row_blocks():
+def test_consistency_check_fill_is_symmetric_and_independent_of_the_blocks():
     # consistency check: the symmetric half-fill against the same fill in blocks of one piece row
     seg, counts = inverted_l(30)
     topo = build_topology(seg, counts)
@@ -53,7 +53,7 @@ def test_fill_is_symmetric_and_matches_row_by_row_blocks():
     assert np.abs(whole - rows).max() <= 1e-13 * scale
 
 
-def test_band_table_upper_blocks_hold_the_series():
+def test_consistency_check_band_table_upper_blocks_hold_the_series():
     # consistency check: the packed upper triangle against the full Taylor coefficients
     seg, counts = inverted_l(20)
     system = System(seg, counts, "perfect", None, None, 3)
@@ -67,7 +67,7 @@ def test_band_table_upper_blocks_hold_the_series():
 
 
 @pytest.mark.parametrize("n, blocks", [(1, 8), (2, 8), (10, 3), (401, 8)])
-def test_upper_row_blocks_cover_every_row(n, blocks):
+def test_consistency_check_upper_row_blocks_cover_every_row(n, blocks):
     edges = upper_row_blocks(n, blocks)
     assert edges[0] == 0 and edges[-1] == n and all(a < b for a, b in zip(edges[:-1], edges[1:]))
     assert len(edges) - 1 <= blocks
