@@ -89,3 +89,16 @@ def test_cli_picture_exit_codes(tmp_path, capsys):
     assert main(["layout", str(EXAMPLE), "--picture", str(out)]) == EXIT_USER
     assert "already exists; choose another name or add --force" in capsys.readouterr().err
     assert main(["layout", str(EXAMPLE), "--picture", str(out), "--force", "--json"]) == EXIT_OK
+
+
+def test_cli_picture_writes_lengths_as_the_text_does(tmp_path, capsys):
+    """Heights and the fall-zone distance on the drawing follow the command's one length rule (three significant
+    figures), in feet under --units us: 12 m = 39.4 ft, 5.4864 m = 18 ft, 18 m = 59.1 ft (NIST SP 811:
+    1 ft = 0.3048 m exactly); the layout's reason line says the oak's 39.4 ft too (consistency check)."""
+    out = tmp_path / "lot.svg"
+    assert main(["layout", str(EXAMPLE), "--picture", str(out), "--units", "us"]) == EXIT_OK
+    text = " ".join(capsys.readouterr().out.split())
+    svg = out.read_text(encoding="utf-8")
+    assert "oak 39.4 ft<" in svg and "back_eave 18 ft<" in svg and "18.0 ft" not in svg
+    assert "keep 59.1 ft clear" in svg
+    assert "junction 39.4 ft high" in text

@@ -135,7 +135,7 @@ def test_power_lines_are_labelled_on_the_drawing(capsys, tmp_path):
     assert code == 0
     labels = [e.text for e in ET.parse(out_svg).getroot().iter() if e.get("class") == "line-label"]
     # 18 m = max(1.5 x 12 m oak, 7.5 m line height): the top-ranked layout's tallest support is the oak
-    assert "street service line (power line, 7.5 m high): keep 18.0 m clear" in labels
+    assert "street service line (power line, 7.5 m high): keep 18 m clear" in labels
     assert "street telephone/cable (telephone/cable, 5.5 m high)" in labels
 
 

@@ -111,14 +111,27 @@ def in_units(scene: dict, units: str = "si") -> dict:
     }
 
 
+def length_label(value: float, unit: str = "m") -> str:
+    """A length of the scene (in ``unit``, "m" or "ft") as the command's text and tables write it.
+
+    >>> length_label(12.0), length_label(18.0, "ft"), length_label(39.37, "ft")
+    ('12 m', '18 ft', '39.4 ft')
+    """
+    from aerial.outputs.terminal import Lengths
+
+    if unit == "ft":
+        return Lengths("us")(float(value) * FOOT_M)
+    return Lengths("si")(float(value))
+
+
 def line_label(ln: dict, zones: list, unit: str = "m") -> str:
     """What a line's label on the plan says: its name, kind, height and (power) fall-zone distance."""
     kind = "power line" if ln["kind"] == "power" else ln["kind"]
-    text = f"{ln['name']} ({kind}, {ln['height_m']:.1f} {unit} high"
+    text = f"{ln['name']} ({kind}, {length_label(ln['height_m'], unit)} high"
     text += ")" if ln["kind"] != "power" else ""
     zone = next((z for z in zones if z["name"] == ln["name"]), None)
     if zone is not None:
-        text += f"): keep {zone['distance_m']:.1f} {unit} clear"
+        text += f"): keep {length_label(zone['distance_m'], unit)} clear"
     elif ln["kind"] == "power":
         text += ")"
     return text
@@ -252,13 +265,13 @@ def svg_text(scene, units: str = "si") -> str:
     for z in scene["zones"]:
         out.append(f'<path class="fall-zone" d="{ring_path(z["rings"])}" fill="{COLOURS["zone"]}" fill-opacity="0.15" '
                    f'stroke="{COLOURS["zone"]}" stroke-dasharray="6 4" fill-rule="evenodd">'
-                   f"<title>fall zone of {escape(z['name'])}: {z['distance_m']:.1f} {u}</title></path>")
+                   f"<title>fall zone of {escape(z['name'])}: {length_label(z['distance_m'], u)}</title></path>")
     if scene["lot"]:
         out.append(f'<polygon class="lot" points="{pts(scene["lot"])}" fill="none" stroke="{COLOURS["lot"]}" '
                    'stroke-width="2" stroke-dasharray="10 5"><title>lot boundary</title></polygon>')
     for b in scene["buildings"]:
         out.append(f'<polygon class="building" points="{pts(b["outline"])}" fill="{COLOURS["building"]}" stroke="#555">'
-                   f"<title>{escape(b['name'])}, {b['height_m']:.1f} {u}</title></polygon>")
+                   f"<title>{escape(b['name'])}, {length_label(b['height_m'], u)}</title></polygon>")
     for o in scene["obstacles"]:
         out.append(f'<polygon class="obstacle" points="{pts(o["outline"])}" fill="{COLOURS["obstacle"]}" '
                    f'stroke="#a33" stroke-dasharray="3 3"><title>{escape(o["name"])} (do not cross)</title></polygon>')
@@ -266,7 +279,7 @@ def svg_text(scene, units: str = "si") -> str:
         col = COLOURS["power"] if ln["kind"] == "power" else COLOURS["telecom"]
         out.append(f'<polyline class="overhead-line {"power" if ln["kind"] == "power" else "telecom"}" '
                    f'points="{pts(ln["path"])}" fill="none" stroke="{col}" stroke-width="3">'
-                   f"<title>{escape(ln['name'])} ({escape(ln['kind'])}, {ln['height_m']:.1f} {u})</title></polyline>")
+                   f"<title>{escape(ln['name'])} ({escape(ln['kind'])}, {length_label(ln['height_m'], u)})</title></polyline>")
     for ln in scene["lines"]:
         lx, ly = label_point(ln["path"], (x0, y0, x1, y1))
         col = COLOURS["power"] if ln["kind"] == "power" else COLOURS["telecom"]
@@ -293,11 +306,11 @@ def svg_text(scene, units: str = "si") -> str:
     out.append("</g>")
     for sp in scene["supports"]:
         out.append(f'<circle class="support" cx="{X(sp["x"]):.1f}" cy="{Y(sp["y"]):.1f}" r="5" fill="{COLOURS["support"]}">'
-                   f"<title>{escape(sp['name'])} ({escape(sp['kind'])}, {sp['height_m']:.1f} {u})</title></circle>")
-        out.append(f'<text x="{X(sp["x"]) + 7:.1f}" y="{Y(sp["y"]) - 6:.1f}">{escape(sp["name"])} {sp["height_m"]:.1f} {u}</text>')
+                   f"<title>{escape(sp['name'])} ({escape(sp['kind'])}, {length_label(sp['height_m'], u)})</title></circle>")
+        out.append(f'<text x="{X(sp["x"]) + 7:.1f}" y="{Y(sp["y"]) - 6:.1f}">{escape(sp["name"])} {length_label(sp["height_m"], u)}</text>')
     e = scene["entry"]
     out.append(f'<rect class="entry" x="{X(e["x"]) - 5:.1f}" y="{Y(e["y"]) - 5:.1f}" width="10" height="10" '
-               f'fill="{COLOURS["entry"]}"><title>lead-in entry, {e["height_m"]:.1f} {u}</title></rect>')
+               f'fill="{COLOURS["entry"]}"><title>lead-in entry, {length_label(e["height_m"], u)}</title></rect>')
     out.append(f'<text x="{X(e["x"]) + 7:.1f}" y="{Y(e["y"]) + 16:.1f}">entry</text>')
     # scale bar
     bar = nice_length(x1 - x0)
@@ -407,7 +420,7 @@ def png_bytes(scene, units: str = "si") -> bytes:
                 fontweight="bold", zorder=5, bbox={"boxstyle": "circle,pad=0.25", "facecolor": "white", "edgecolor": col})
     for sp in scene["supports"]:
         ax.plot(sp["x"], sp["y"], "o", color=COLOURS["support"])
-        ax.annotate(f"{sp['name']} {sp['height_m']:.1f} {u}", (sp["x"], sp["y"]), xytext=(4, 4),
+        ax.annotate(f"{sp['name']} {length_label(sp['height_m'], u)}", (sp["x"], sp["y"]), xytext=(4, 4),
                     textcoords="offset points", fontsize=8)
     e = scene["entry"]
     ax.plot(e["x"], e["y"], "s", color=COLOURS["entry"])

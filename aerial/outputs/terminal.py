@@ -874,9 +874,14 @@ def render_layout(result: dict, console, units: str = "si") -> None:
         diff = result.get("screening_difference_db")
         extra = f" (on these layouts the two differ by up to {diff:.1f} dB)" if diff is not None else ""
         console.print(f"[dim]figures: {escape(result['figures_model'])}{extra}[/dim]")
+    reasons = Table(show_header=False, box=None, padding=(0, 0, 0, 2))
+    reasons.add_column("rank", justify="right")
+    reasons.add_column("reason")
     for i, c in enumerate(layouts, 1):
         if c.get("reason"):
-            console.print(f"  {i}. {escape(layout_reason(c, layouts[i] if i < len(layouts) else None, L))}")
+            reasons.add_row(f"{i}.", escape(layout_reason(c, layouts[i] if i < len(layouts) else None, L)))
+    if reasons.row_count:
+        console.print(reasons)  # at the console's width, each reason's wrapped lines under its first
     present = result.get("present_wire")
     if present:
         console.print(escape(present_wire_words(present, label, unit, L)))
