@@ -122,8 +122,8 @@ MUTANTS = (
       ("tests/models/test_capacitance.py",), "Howe isolated-wire capacitance: − 1 → − 0.9"),
     M("copper-rho", "aerial/models/conductor.py", "COPPER_RESISTIVITY = 1.72414e-8", "COPPER_RESISTIVITY = 1.78e-8",
       ("tests/models/test_conductor.py",), "copper resistivity +3 %"),
-    M("green-sign", "aerial/models/fullwave_kernel.py", "g = np.exp(-1j * kr) / (_FOUR_PI * r)",
-      "g = np.exp(+1j * kr) / (_FOUR_PI * r)", ("tests/models/test_fullwave.py",),
+    M("green-sign", "aerial/models/fullwave_kernel.py", "g = np.exp(-1j * k * r)",
+      "g = np.exp(+1j * k * r)", ("tests/models/test_fullwave.py",),
       "full-wave Green's function: outgoing → incoming wave"),
     # ---- units, planner, codes
     M("foot", "aerial/core/units.py", "\"ft\": 0.3048,", "\"ft\": 0.305,", ("tests/test_units.py",),
