@@ -152,6 +152,27 @@ def line_potential(obs, a_pt, tangent, length, radius2):
     return i0 - j1, j1
 
 
+def add_transpose(w, step=256):
+    """w <- w + w^T in place, by square blocks (no second N x N array).
+
+    Examples
+    --------
+    >>> w = np.arange(9.0).reshape(3, 3)
+    >>> add_transpose(w, step=2).tolist()
+    [[0.0, 4.0, 8.0], [4.0, 8.0, 12.0], [8.0, 12.0, 16.0]]
+    """
+    n = w.shape[0]
+    for a in range(0, n, step):
+        rows = slice(a, min(n, a + step))
+        w[rows, rows] += w[rows, rows].T.copy()
+        for b in range(a + step, n, step):
+            cols = slice(b, min(n, b + step))
+            both = w[rows, cols] + w[cols, rows].T
+            w[rows, cols] = both
+            w[cols, rows] = both.T
+    return w
+
+
 def _same_shapes(rel_end, rel_src, t_src, length_src, a2, shortest):
     """Group piece pairs of one shape: (number of shapes, one pair of each, the shape of every pair).
 
@@ -466,7 +487,7 @@ class Filler:
             if progress is not None:
                 progress(r1, P)
         for o in out:
-            o += o.T.copy()
+            add_transpose(o)
         return out
 
     def _blocks(self, rows=None):
@@ -511,7 +532,7 @@ class Filler:
         """
         y = self._series_halves(k0, half_width, order)
         for w in y:
-            w += w.T.copy()
+            add_transpose(w)
         return np.stack(y)
 
     def series_upper(self, k0: float, half_width: float, order: int, edges):
