@@ -49,3 +49,12 @@ def test_closed_form_report_loads_no_scipy_special_constants_optimize_or_linalg(
     for heavy in ("scipy.special", "scipy.constants", "scipy.optimize", "scipy.linalg", "scipy.sparse"):
         assert heavy not in out["loaded"], heavy
     assert "numpy.ma" not in out["loaded"]  # the sweep grid's distinct values without numpy.unique's masked test
+
+
+def test_coil_for_an_inductance_loads_no_scipy_optimize_or_special():
+    # consistency check: the turns for an inductance come from aerial.models.roots (Brent's method), the
+    # Nagaoka coefficient and the wire's skin effect from aerial.models.special_functions
+    out = _loaded("coil", "--diameter", "60 mm", "--wire", "0.5 mm", "--inductance", "240 uH", "--json")
+    assert out["code"] == 0
+    for heavy in ("scipy.special", "scipy.optimize", "scipy.constants", "scipy.linalg", "scipy.sparse"):
+        assert heavy not in out["loaded"], heavy

@@ -34,6 +34,7 @@ from aerial.core.constants import MU_0 as mu_0
 
 from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _positive
+from aerial.models.roots import bracketed_root
 from aerial.models.special_functions import ellipe, ellipk, ive
 
 #: Resistivity of annealed copper at 20 °C (IEC 60028). [ohm m]
@@ -271,12 +272,13 @@ def winding_for_inductance(inductance, form_diameter, wire_diameter, pitch=None,
 
     Notes
     -----
-    Solves µ0 N² π r² K(l/d)/l = L for N with l = N·pitch (Brent's method);
+    Solves µ0 N² π r² K(l/d)/l = L for N with l = N·pitch (Brent's method,
+    :func:`aerial.models.roots.bracketed_root`);
     L grows monotonically with N at fixed pitch.
 
     References
     ----------
-    Nagaoka 1909 (current-sheet inductance).
+    Nagaoka 1909 (current-sheet inductance); Brent 1973, ch. 4 (the root finder; from memory).
 
     Examples
     --------
@@ -304,9 +306,8 @@ def winding_for_inductance(inductance, form_diameter, wire_diameter, pitch=None,
         hi *= 2.0
         if hi > 1e7:
             raise ModelInputError("the wanted inductance needs more than ten million turns on this former")
-    from scipy.optimize import brentq  # imported here: scipy.optimize is slow to import
-
-    n, info = brentq(excess, lo, hi, rtol=rtol, maxiter=int(max_iter), full_output=True, disp=False)
+    found = bracketed_root(excess, lo, hi, rtol=rtol, max_iter=int(max_iter))
+    n = found.root
     whole = max(1, int(np.ceil(n - 1e-6)))
     return WindingDesign(
         turns=float(n),
@@ -314,8 +315,8 @@ def winding_for_inductance(inductance, form_diameter, wire_diameter, pitch=None,
         winding_length=whole * p,
         inductance_whole=float(current_sheet_inductance(d, whole * p, whole)),
         wire_length=whole * np.pi * d,
-        converged=bool(info.converged),
-        iterations=int(info.iterations),
+        converged=found.converged,
+        iterations=found.iterations,
     )
 
 
