@@ -41,6 +41,8 @@ References
 
 from __future__ import annotations
 
+import bisect
+
 import numpy as np
 
 from aerial.core.errors import ModelInputError
@@ -70,10 +72,14 @@ def _order(v):
 def _as_argument(z, name):
     """Array of z as float or complex, finite; raise otherwise."""
     arr = np.asarray(z)
-    if not (np.issubdtype(arr.dtype, np.number) and not np.issubdtype(arr.dtype, np.bool_)):
+    kind = arr.dtype.kind
+    if kind == "c":
+        arr = arr.astype(np.complex128, copy=False)
+    elif kind in "fiu":
+        arr = arr.astype(np.float64, copy=False)
+    else:
         raise ModelInputError(f"{name} must be numeric; got {z!r}")
-    arr = arr.astype(complex if np.iscomplexobj(arr) else float)
-    if not np.all(np.isfinite(arr)):
+    if not np.isfinite(arr).all():
         raise ModelInputError(f"{name} must be finite")
     return arr
 
@@ -95,14 +101,17 @@ _K0_COEFFICIENTS = _HARMONIC * _I_COEFFICIENTS[0]  # H_k / (k!)^2
 _K1_COEFFICIENTS = (_HARMONIC + _HARMONIC + 1.0 / np.arange(1.0, _SERIES_LENGTH + 1) - 2.0 * EULER_GAMMA) * _I_COEFFICIENTS[1]
 
 
+# The largest |z| at which k + 1 terms bring (|z|^2/4)^k / (k!)^2 below 1e-17 (increasing in k).
+_ASCENDING_RADII = [2.0 * float(np.exp((np.log(1e-17) / 2.0 + np.sum(np.log(np.arange(1.0, k + 1)))) / k))
+                    for k in range(1, _SERIES_LENGTH)]
+
+
 def _ascending_length(radius):
     """Terms of sum (r^2/4)^k / (k!)^2 needed to bring the last one below 1e-17 of the first (scalar)."""
-    q, term = 0.25 * radius * radius, 1.0
-    for k in range(1, _SERIES_LENGTH):
-        term *= q / (k * k)
-        if term <= 1e-17:
-            return k + 1
-    raise ValueError("ascending series used beyond its radius")
+    k = bisect.bisect_left(_ASCENDING_RADII, radius)
+    if k >= len(_ASCENDING_RADII):
+        raise ValueError("ascending series used beyond its radius")
+    return k + 2
 
 
 def _power_sum(x, coefficients, length):
@@ -117,14 +126,14 @@ def _bessel_i_series(v, z):
     The sum is at least its first term for real z and for |arg z| <= pi/4
     (there |I_0| >= 1 and |I_1| >= |z|/2), so the terms kept reach 1e-17 of it.
     """
-    length = _ascending_length(float(np.max(np.abs(z)))) if z.size else 1
+    length = _ascending_length(float(np.abs(z).max())) if z.size else 1
     total = _power_sum(0.25 * z * z, _I_COEFFICIENTS[v], length)
     return total if v == 0 else 0.5 * z * total
 
 
 def _bessel_k_series(z):
     """K_0(z) and K_1(z) by their ascending series (A&S 9.6.13 and 9.6.11); for 0 < |z| <= 2."""
-    length = _ascending_length(float(np.max(np.abs(z)))) if z.size else 1
+    length = _ascending_length(float(np.abs(z).max())) if z.size else 1
     q = 0.25 * z * z
     log_half = np.log(0.5 * z)
     powers = np.power(q[..., None], np.arange(length))
@@ -315,16 +324,22 @@ def ive(v, z):
     v = _order(v)
     z = _as_argument(z, "z")
     flip = z.real < 0
-    w = np.where(flip, -z, z) if flip.any() else z
+    turned = bool(flip.any())
+    w = np.where(flip, -z, z) if turned else z
     mag = np.abs(w)
-    near = mag <= _BESSEL_ASYMPTOTIC_RADIUS
-    series = (mag <= _BESSEL_SERIES_RADIUS) | (near & (np.abs(w.imag) <= w.real))
-    out = _by_region(w, [
-        (series, lambda x: _bessel_i_series(v, x) * np.exp(-x.real)),
-        (near & ~series, lambda x: _bessel_i_wronskian(v, x)),
-        (~near, lambda x: _bessel_i_asymptotic(v, x)),
-    ])
-    if v == 1 and flip.any():
+    top = float(mag.max()) if w.size else 0.0
+    complex_arg = w.dtype.kind == "c"
+    if top <= _BESSEL_ASYMPTOTIC_RADIUS and (not complex_arg or bool((np.abs(w.imag) <= w.real).all())):
+        out = _bessel_i_series(v, w) * np.exp(-w.real)  # all in the series' region (the detector's case)
+    else:
+        near = mag <= _BESSEL_ASYMPTOTIC_RADIUS
+        series = (mag <= _BESSEL_SERIES_RADIUS) | (near & (np.abs(w.imag) <= w.real))
+        out = _by_region(w, [
+            (series, lambda x: _bessel_i_series(v, x) * np.exp(-x.real)),
+            (near & ~series, lambda x: _bessel_i_wronskian(v, x)),
+            (~near, lambda x: _bessel_i_asymptotic(v, x)),
+        ])
+    if v == 1 and turned:
         out = np.where(flip, -out, out)
     return out
 
