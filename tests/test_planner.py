@@ -292,6 +292,23 @@ def test_cli_layout_invalid_plan_exit_2(tmp_path, capsys):
     assert 'plan.building = "castle": expected one of "house", "apartment"' in capsys.readouterr().err
 
 
+@pytest.mark.parametrize("key, typo, meant", [
+    ("building", "hous", "house"),
+    ("structure", "reinforced concret", "reinforced concrete"),
+])
+def test_cli_a_mistyped_plan_choice_gets_the_closest(tmp_path, capsys, key, typo, meant):
+    """Invented input: a value one letter off names the choice it was probably meant to be, on one line."""
+    extra = '[plan.balcony]\nfloor_height = "9 m"\nstructure = "concrete"\n' if key == "structure" else ""
+    text = site_with([support("a", 10, 0, 8)], plan_extra=extra).text
+    text = text.replace('building = "house"', f'building = "{typo}"') if key == "building" else \
+        text.replace('structure = "concrete"', f'structure = "{typo}"')
+    p = tmp_path / "typo.toml"
+    p.write_text(text, encoding="utf-8")
+    assert main(["layout", str(p)]) == EXIT_USER
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and f'= "{typo}": did you mean "{meant}"? expected one of' in err
+
+
 def test_support_standing_on_the_entry_is_not_a_layout(tmp_path):
     # regression (found by the fuzzing harness): a candidate support at the entry point made a
     # zero-length arm; it must be excluded as too short, not crash the models

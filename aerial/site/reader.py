@@ -368,7 +368,7 @@ class TableReader:
             for choice in choices:
                 if norm == choice.replace("-", " "):
                     return choice
-            self.fail(full, value, "expected one of " + ", ".join(f'"{c}"' for c in choices))
+            self.fail(full, value, choice_words(norm, choices))
         return value
 
     def length(self, data, key, name, default=None, minimum=None, positive=False, required=False,
@@ -477,6 +477,19 @@ class TableReader:
             ok = isinstance(notes, str) or (isinstance(notes, list) and all(isinstance(n, str) for n in notes))
             if not ok:
                 self.fail(f"{key}.notes" if key else "notes", notes, "expected free text in quotes (or a list of texts)")
+
+
+def choice_words(value, choices) -> str:
+    """ "did you mean ...? expected one of ..." for a value that is none of ``choices``.
+
+    >>> choice_words("hous", ("house", "apartment"))
+    'did you mean "house"? expected one of "house", "apartment"'
+    """
+    import difflib
+
+    near = difflib.get_close_matches(str(value).strip().lower(), list(choices), n=1, cutoff=0.6)
+    hint = f'did you mean "{near[0]}"? ' if near else ""
+    return hint + "expected one of " + ", ".join(f'"{c}"' for c in choices)
 
 
 def unknown_key_words(name, allowed) -> str:
