@@ -31,9 +31,10 @@ Measures, with one BLAS thread:
   (15 m x 15 m) and a long (45 m x 12 m) footprint, a 6 m wire on a rail
   1.6 m out from the facade near the top (rail 2 m below the roof) and on a
   middle floor, and for the two flat examples, from 150 kHz to 1.71 MHz:
-  the difference in dB without ("static") and with the building's own
-  currents (`building_charge_factor`); a star marks a frequency above the
-  limit where the closed form holds its figures and warns.
+  the difference in dB without ("static": the grounded box's screening,
+  `box_screen`) and with the building's own currents
+  (`building_charge_factor`); a star marks a frequency above the limit
+  where the closed form holds its figures and warns.
 
 Prints Markdown tables for docs/models-building.md and docs/performance.md.
 """

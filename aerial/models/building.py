@@ -4,15 +4,20 @@ A reinforced-concrete or steel-framed building is, at medium and long wave,
 a grounded conductor a few metres (often less) from a balcony or eave wire.
 Two published pieces describe it in closed form:
 
-* the **field**: the vertical field of a ground wave near a grounded wall of
-  height H standing on a grounded plane, in the quasi-static limit (the
-  building is small against the wavelength): the two-dimensional conformal
-  map w -> sqrt(w^2 + H^2) turns the ground with the wall into a flat ground,
-  so the potential of the incident field, in metres of open-ground height, is
-  ``Im sqrt((d + i z)^2 + H^2)`` at a distance d in front of the wall and a
-  height z (:func:`facade_field_height`). Far from the wall it is z; close
-  to a tall wall it is d z / H, the field in the corner between two
-  grounded planes (the image solution of ground plus wall);
+* the **field**: the vertical field of a ground wave near the building, in
+  the quasi-static limit (the building is small against the wavelength): the
+  building is a grounded box (footprint times height) on the grounded plane
+  in a uniform vertical field, solved by the method of moments for
+  electrostatics (:func:`box_screen`); the potential of the incident field,
+  in metres of open-ground height, is z plus that of the box's charges and
+  their images. Its check is the two-dimensional conformal map
+  w -> sqrt(w^2 + H^2) of an infinitely long wall of height H, which turns
+  the ground with the wall into a flat ground: ``Im sqrt((d + i z)^2 + H^2)``
+  at a distance d in front of the wall and a height z
+  (:func:`facade_field_height`), the box's value at the middle of a very long
+  thin block; far from the wall it is z, close to a tall wall d z / H (the
+  image solution of ground plus wall). A building of finite width lets the
+  field in round its sides as well, which the box has and the wall not;
 * the **capacitance**: the wire's charges with their images in the ground
   and in the facade plane (and the image of the image: exact for two
   perpendicular planes), by :func:`aerial.models.capacitance.electrostatic_solution`.
@@ -60,6 +65,9 @@ References
    (top-loading angle, tan delta = omega C_top Z0). (from memory)
 .. [6] H. A. Wheeler, "The radiansphere around a small antenna", Proc. IRE
    47(8), 1325-1331, 1959 (the radian length lambda / 2 pi). (from memory)
+.. [7] R. F. Harrington, *Field Computation by Moment Methods*, Macmillan,
+   1968, ch. 2 (electrostatic moment solutions of charged plates and boxes).
+   (from memory)
 """
 
 from __future__ import annotations
@@ -95,10 +103,6 @@ WALL_CLEARANCE_M = 0.02
 #: resonance (k h_e = pi/2), the line model's 1/cos(k h_e) outruns the full-wave grid (docs/models-building.md)
 #: and the figures are held at their value at the limit and flagged. [rad]
 MAX_ELECTRICAL_HEIGHT_RAD = 1.0
-#: Past this depth of the wire below the roof, as a fraction of the facade's width, the report says the closed form
-#: can read low (the field round a narrow building's sides): chosen from the full-wave comparison on blocks other
-#: than the examples (docs/models-building.md), between the 0.7 W (2.3 dB low) and 0.9 W (3.7 dB low) towers. [1]
-NARROW_DEPTH_TO_WIDTH = 0.8
 
 
 @dataclass(frozen=True)
@@ -163,7 +167,9 @@ def facade_field_height(distance, height, wall_height):
     Limits: x >> H gives z; H >> x, z gives x z / H, the potential between
     two perpendicular grounded planes (images). A building of finite width
     lets the field in round its sides too, so the 2-D value is the shielded
-    end; valid while H is well below lambda / (2 pi).
+    end; valid while H is well below lambda / (2 pi). The report takes the
+    grounded box of :func:`box_screen`; this map is its check (the middle of
+    a very long, thin block).
 
     References
     ----------
@@ -359,17 +365,15 @@ def building_charge_factor(height, frequency, body: BuildingBody, case: int = 1)
     return bare if case == 2 else loaded * loaded / bare
 
 
-def dynamic_field_height(distance, height, wall_height, factor):
-    """The screened field of :func:`facade_field_height` with the building's induced charge scaled by ``factor``.
+def scale_screened_field(static, height, factor):
+    """A static screened field height with the building's induced charge scaled by ``factor``.
 
     Parameters
     ----------
-    distance : array_like
-        Horizontal distance in front of the wall. [m]
+    static : array_like
+        phi / E0 of the static field beside the grounded building (:meth:`BoxScreen.field_height`). [m]
     height : array_like
         Height above the ground. [m]
-    wall_height : array_like
-        Height of the wall. [m]
     factor : array_like
         The building's induced charge relative to static at that height (:func:`induced_charge_factor`). [1]
 
@@ -383,10 +387,27 @@ def dynamic_field_height(distance, height, wall_height, factor):
     Beside the wall the field is the building's surface charge over eps0
     (Gauss), so the potential a short way out, d sigma / eps0, scales by F;
     far away the building's charge no longer matters and phi -> z. The
-    screened share 1 - phi/z of the static map (1 on the wall, 0 in open
+    screened share 1 - phi/z of the static field (1 on the wall, 0 in open
     ground) carries the one into the other. An interpolation between the two
     limits, each exact; checked against the full-wave grid in
     docs/models-building.md.
+
+    Examples
+    --------
+    >>> float(scale_screened_field(1.2, 12.6, 1.0))
+    1.2
+    >>> round(float(scale_screened_field(12.6, 12.6, 1.5)), 3)
+    12.6
+    """
+    phi = np.asarray(static, dtype=float)
+    z = np.maximum(np.asarray(height, dtype=float), 0.0)
+    screened = np.where(z > 0, 1.0 - phi / np.where(z > 0, z, 1.0), 0.0)
+    return phi * (1.0 + (np.asarray(factor, dtype=float) - 1.0) * np.clip(screened, 0.0, 1.0))
+
+
+def dynamic_field_height(distance, height, wall_height, factor):
+    """The two-dimensional wall's field (:func:`facade_field_height`) scaled by ``factor``
+    (:func:`scale_screened_field`): the check of the building's currents on an infinitely long wall. [m]
 
     Examples
     --------
@@ -396,33 +417,33 @@ def dynamic_field_height(distance, height, wall_height, factor):
     >>> round(float(dynamic_field_height(1e5, 12.6, 21.0, 1.5)), 3)
     12.6
     """
-    phi = facade_field_height(distance, height, wall_height)
-    z = np.maximum(np.asarray(height, dtype=float), 0.0)
-    screened = np.where(z > 0, 1.0 - phi / np.where(z > 0, z, 1.0), 0.0)
-    return phi * (1.0 + (np.asarray(factor, dtype=float) - 1.0) * np.clip(screened, 0.0, 1.0))
+    return scale_screened_field(facade_field_height(distance, height, wall_height), height, factor)
 
 
-def screened_field_height(body: BuildingBody, distance, height, frequency=None, case: int = 1):
+def screened_field_height(body: BuildingBody, points, frequency=None, case: int = 1):
     """Open-ground height equivalent to the field a perfectly conducting ``body`` leaves, at a frequency. [m]
 
-    ``frequency`` None is the static field (:func:`facade_field_height`); else
-    the frequency axis is the last: heights (...,) and frequencies (F,) give
-    (..., F). The building's own currents enter by :func:`building_charge_factor`.
+    ``points`` (..., 3) [m]; ``frequency`` None is the static field of the
+    grounded box (:func:`box_screen`, solved once per building); else the
+    frequency axis is the last: points (..., 3) and frequencies (F,) give
+    (..., F). The building's own currents enter by :func:`building_charge_factor`
+    and :func:`scale_screened_field`.
 
     Examples
     --------
     >>> body = BuildingBody([[0, -12], [24, -12], [24, 0], [0, 0]], 21.0, "steel frame")
-    >>> round(float(screened_field_height(body, 1.6, 12.6)), 3)
-    1.192
-    >>> [round(float(v), 3) for v in screened_field_height(body, [1.6], [12.6], [1e3, 1.71e6])[0]]
-    [1.192, 1.889]
+    >>> round(float(screened_field_height(body, [12.0, 1.6, 12.6])), 2)
+    1.33
+    >>> [round(float(v), 2) for v in screened_field_height(body, [[12.0, 1.6, 12.6]], [1e3, 1.71e6])[0]]
+    [1.33, 2.1]
     """
+    p = np.asarray(points, dtype=float)
+    static = box_screen(body).field_height(p)
     if frequency is None:
-        return facade_field_height(distance, height, body.height_m)
-    d = np.asarray(distance, dtype=float)[..., None]
-    z = np.asarray(height, dtype=float)[..., None]
+        return static
+    z = p[..., 2:3]
     factor = building_charge_factor(z, np.asarray(frequency, dtype=float), body, case)
-    return dynamic_field_height(d, z, body.height_m, factor)
+    return scale_screened_field(static[..., None], z, factor)
 
 
 def plan_distance(points_xy, footprint):
@@ -492,38 +513,6 @@ def _in_front(segments: Segments, p0, n):
                     segments.electrode_ohm)
 
 
-def narrow_facade_note(body: BuildingBody, normal, segments: Segments) -> str:
-    """A caveat when the building is narrow for the wire's depth below its roof, else ''.
-
-    The two-dimensional wall of :func:`facade_field_height` is infinitely
-    wide; a real facade of width W lets the field in round its sides, the
-    more so the deeper below the roof the wire is. On the full-wave
-    comparison (docs/models-building.md: square towers 15 m wide, wires on a
-    middle floor) the closed form read 2.3, 3.7 and 5.1 dB low at depths of
-    0.7, 0.9 and 1.4 W below the roof, within 2.2 dB at the other blocks
-    (depth under 0.5 W); past ``NARROW_DEPTH_TO_WIDTH`` the report says so.
-
-    Examples
-    --------
-    >>> from aerial.models.segments import polyline_segments
-    >>> tower = BuildingBody([[0, -15], [15, -15], [15, 0], [0, 0]], 40.0, "steel frame")
-    >>> "narrow" in narrow_facade_note(tower, [0, 1, 0], polyline_segments([[1, 1.6, 19], [7, 1.6, 19]], 1e-3))
-    True
-    """
-    nx, ny = float(normal[0]), float(normal[1])
-    along = body.footprint @ np.array([-ny, nx])
-    width = float(np.max(along) - np.min(along))
-    aer = segments.aerial
-    mid_z = 0.5 * (segments.start[aer, 2] + segments.end[aer, 2])
-    depth = body.height_m - float(np.average(mid_z, weights=segments.length[aer]))
-    if width <= 0 or depth <= NARROW_DEPTH_TO_WIDTH * width:
-        return ""
-    return (f"the building is narrow for the wire's depth below its roof ({width:.0f} m wide, the wire "
-            f"{depth:.0f} m below the roof): the field that comes round its sides, left out by the closed form, "
-            "can give a few dB more than shown (5 dB on the middle floor of a 40 m tower 15 m wide); "
-            "--full-wave models it")
-
-
 def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitance_f: float,
                           open_effective_height_m: float, frequency=None) -> dict:
     """Static capacitance and effective height of a wire set beside a building, with their range.
@@ -565,12 +554,14 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     through the wall -- is screened and bonded to it), solves the charges at
     1 V with images in the ground and the facade (``wall`` of
     :func:`electrostatic_solution`), and takes h_e = sum(q phi) / Q with phi
-    from :func:`facade_field_height`. The construction's shielding fraction
+    the static field height beside the grounded box (:func:`box_screen`,
+    solved once per building). The construction's shielding fraction
     s blends it with the open-ground figures (module notes).
 
     References
     ----------
-    Smythe, ch. 4, and Jackson, sec. 2.1-2.2 (images in two perpendicular grounded planes) (module references [1], [2]; from memory).
+    Harrington, ch. 2 (the box's charges), and Jackson, sec. 2.1-2.2 (images in two perpendicular grounded planes)
+    (module references [7], [2]; from memory).
 
     Examples
     --------
@@ -597,16 +588,13 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
                                 max_subsegment_fraction=1.0 / 8.0, convergence_check=False)  # its report is not read
     mid = 0.5 * (es.start + es.end)
     d = plan_distance(mid[:, :2], body.footprint)
-    phi = facade_field_height(d, mid[:, 2], body.height_m)
+    phi = screened_field_height(body, mid)
     q_aer = float(np.sum(es.charge_c[~es.grounded]))
     h_wall = float(np.sum(es.charge_c * phi) / q_aer)
     c_wall = float(es.capacitance_f)
     if np.any(d <= 0):
         notes.append("part of the wire is over the roof or round a corner of the building; the facade images "
                      "there are approximate")
-    narrow = narrow_facade_note(body, n, segments)
-    if narrow:
-        notes.append(narrow)
     s = np.array(body.shielding)
     he = (1 - s) * open_effective_height_m + s * h_wall
     cap = (1 - s) * open_capacitance_f + s * c_wall
@@ -614,7 +602,7 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     dynamic = {}
     if frequency is not None:
         f = np.atleast_1d(np.asarray(frequency, dtype=float))
-        wall_f = np.stack([np.sum(es.charge_c[:, None] * screened_field_height(body, d, mid[:, 2], f, case), axis=0)
+        wall_f = np.stack([np.sum(es.charge_c[:, None] * screened_field_height(body, mid, f, case), axis=0)
                            / q_aer for case in (0, 1, 2)])
         dh = roof_loading_length(body.height_m, roof_equivalent_radius(body.footprint))
         dynamic = {
@@ -634,12 +622,266 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     }
 
 
+# --------------------------------------------------------------------------- the building's own static screening
+
+#: Panels of the box's surface (walls and roof) in its static solution: the field height a wire 1.6 m from a
+#: facade sees moves by less than 1 % from 400 to 1600 panels on the towers of docs/models-building.md
+#: (consistency check, tests/models/test_building.py). [1]
+BOX_TARGET_PANELS = 400
+#: Pairs farther apart than this many half-diagonals of the source panel take its charge as a point charge;
+#: nearer pairs integrate the panel exactly. [1]
+BOX_NEAR_HALF_DIAGONALS = 5.0
+_BOX_SCREENS: dict = {}
+
+
+@dataclass(frozen=True)
+class BoxScreen:
+    """The charge a grounded box (a building on the grounded plane) takes in a uniform vertical field.
+
+    Attributes
+    ----------
+    centre : ndarray, shape (N, 3)
+        Panel centres. [m]
+    axis_u, axis_v : ndarray, shape (N, 3)
+        Unit vectors along the panel's two sides. [1]
+    half_u, half_v : ndarray, shape (N,)
+        Half the panel's side along each. [m]
+    charge : ndarray, shape (N,)
+        Surface charge density over 4 pi eps0 E0, uniform on each panel (its image in the ground the
+        opposite). [1]
+    height_m : float
+        Roof height of the box. [m]
+    footprint : ndarray, shape (K, 2)
+        Plan corners. [m]
+    """
+
+    centre: np.ndarray
+    axis_u: np.ndarray
+    axis_v: np.ndarray
+    half_u: np.ndarray
+    half_v: np.ndarray
+    charge: np.ndarray
+    height_m: float
+    footprint: np.ndarray
+
+    def field_height(self, points):
+        """phi / E0 at ``points`` (..., 3): z plus the potential of the box's charges and their images. [m]
+
+        Held to [0, z] (the grounded box's induced charge is all of one sign) and 0 inside the box.
+        """
+        p = np.asarray(points, dtype=float)
+        flat = p.reshape(-1, 3)
+        pot = _panels_potential(flat, self) @ self.charge
+        z = np.maximum(flat[:, 2], 0.0)
+        phi = np.clip(z + pot, 0.0, z)
+        inside = (flat[:, 2] < self.height_m) & (plan_distance(flat[:, :2], self.footprint) <= 0.0)
+        return np.where(inside, 0.0, phi).reshape(p.shape[:-1])
+
+
+def rectangle_potential_integral(u, v, w, half_u, half_v):
+    """Integral of 1/R over a rectangle, seen from a point in its own frame. [m]
+
+    Parameters
+    ----------
+    u, v : array_like
+        The point's coordinates along the rectangle's sides, from its centre. [m]
+    w : array_like
+        The point's distance from the rectangle's plane. [m]
+    half_u, half_v : array_like
+        Half the rectangle's sides. [m]
+
+    Returns
+    -------
+    ndarray
+        I = integral over the rectangle of dA / |r - r'|; a uniform surface
+        charge sigma on it has the potential sigma I / (4 pi eps0). [m]
+
+    Notes
+    -----
+    With X, Y the coordinates of a corner relative to the point and
+    r = sqrt(X^2 + Y^2 + w^2), the antiderivative is::
+
+        G(X, Y) = X ln(Y + r) + Y ln(X + r) - w arctan(X Y / (w r))
+
+    taken with the signs + - - + over the four corners [1]. At the centre of
+    the rectangle itself (w = 0) it gives the known self term
+    2a ln((b + d)/a) + 2b ln((a + d)/b), a and b the sides, d the diagonal
+    (for a square of side a: 4 a ln(1 + sqrt 2)) [2].
+
+    References
+    ----------
+    .. [1] J. L. Hess and A. M. O. Smith, "Calculation of potential flow about
+       arbitrary bodies", Progress in Aeronautical Sciences 8, 1-138, 1967
+       (the source panel's potential in closed form). (from memory)
+    .. [2] E. Durand, *Electrostatique*, vol. 1, Masson, 1964 (the uniformly
+       charged rectangle). (from memory)
+
+    Examples
+    --------
+    >>> round(float(rectangle_potential_integral(0.0, 0.0, 0.0, 0.5, 0.5)), 6)
+    3.525494
+    >>> round(float(rectangle_potential_integral(0.0, 0.0, 1e4, 0.5, 0.5) * 1e4), 6)
+    1.0
+    """
+    u, v, w, hu, hv = np.broadcast_arrays(*(np.asarray(t, dtype=float) for t in (u, v, w, half_u, half_v)))
+    w = np.abs(w)
+    total = np.zeros(u.shape)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        for sx, sy, sign in ((1, 1, 1.0), (-1, 1, -1.0), (1, -1, -1.0), (-1, -1, 1.0)):
+            x = sx * hu - u
+            y = sy * hv - v
+            r = np.sqrt(x * x + y * y + w * w)
+            total += sign * (_x_log(x, y, r, w) + _x_log(y, x, r, w)
+                             - np.where(w > 0, w * np.arctan(x * y / np.where(w > 0, w * r, 1.0)), 0.0))
+    return total
+
+
+def _x_log(x, y, r, w):
+    """x ln(y + r), stable for y < 0 (ln(y + r) = ln((x^2 + w^2) / (r - y))) and 0 where x = 0."""
+    rest = x * x + w * w
+    log = np.where(y >= 0, np.log(np.where(y >= 0, y + r, 1.0)),
+                   np.log(np.where(rest > 0, rest, 1.0) / np.where(y < 0, r - y, 1.0)))
+    return np.where(x == 0, 0.0, x * log)
+
+
+def _panels_potential(points, box):
+    """Matrix (M, N): potential at each point of each panel's unit charge density and its ground image. [m]"""
+    reach2 = (BOX_NEAR_HALF_DIAGONALS ** 2) * (box.half_u ** 2 + box.half_v ** 2)
+    area = 4.0 * box.half_u * box.half_v
+    nrm = np.cross(box.axis_u, box.axis_v)
+    out = np.zeros((len(points), len(box.centre)))
+    for sign, cz in ((1.0, box.centre[:, 2]), (-1.0, -box.centre[:, 2])):
+        dx = points[:, 0:1] - box.centre[None, :, 0]
+        dy = points[:, 1:2] - box.centre[None, :, 1]
+        dz = points[:, 2:3] - cz[None]
+        dist2 = dx * dx + dy * dy + dz * dz
+        near = dist2 <= reach2[None]
+        part = area[None] / np.sqrt(np.maximum(dist2, 1e-300))  # a point charge, far off
+        m, n = np.nonzero(near)
+        if len(m):
+            r = np.stack([dx[m, n], dy[m, n], dz[m, n]], axis=1)
+            part[m, n] = rectangle_potential_integral(
+                np.einsum("kj,kj->k", r, box.axis_u[n]), np.einsum("kj,kj->k", r, box.axis_v[n]),
+                np.einsum("kj,kj->k", r, nrm[n]), box.half_u[n], box.half_v[n])
+        out += sign * part
+    return out
+
+
+def _graded(n, top_only=False):
+    """n + 1 knots on [0, 1], closer together towards the ends (towards 1 only with ``top_only``): the
+    charge of a conducting box grows without bound at its outer edges."""
+    s = np.arange(n + 1) / n
+    bend = np.sin(0.5 * np.pi * s) if top_only else 0.5 * (1.0 - np.cos(np.pi * s))
+    return 0.5 * s + 0.5 * bend
+
+
+def _box_panels(body: BuildingBody, target: int):
+    """Panels of the walls and the roof: (centre, axis_u, axis_v, half_u, half_v)."""
+    a = body.footprint
+    b = np.roll(a, -1, axis=0)
+    edge = np.linalg.norm(b - a, axis=1)
+    roof = footprint_area(a)
+    h = np.sqrt((float(np.sum(edge)) * body.height_m + roof) / target)
+    zk = body.height_m * _graded(max(int(np.ceil(body.height_m / h)), 4), top_only=True)
+    parts = []
+    for p, q, length in zip(a, b, edge):
+        if length <= 0:
+            continue
+        t = _graded(max(int(np.ceil(length / h)), 2))
+        along = (q - p) / length
+        tm, zm = np.meshgrid(0.5 * (t[1:] + t[:-1]), 0.5 * (zk[1:] + zk[:-1]), indexing="ij")
+        hu, hv = np.meshgrid(0.5 * length * np.diff(t), 0.5 * np.diff(zk), indexing="ij")
+        xy = p + tm.reshape(-1, 1) * (q - p)
+        k = xy.shape[0]
+        parts.append((np.column_stack([xy, zm.reshape(-1)]), np.tile([along[0], along[1], 0.0], (k, 1)),
+                      np.tile([0.0, 0.0, 1.0], (k, 1)), hu.reshape(-1), hv.reshape(-1)))
+    # the roof: a grid aligned with the longest edge, the cells whose centre is over the footprint
+    k = int(np.argmax(edge))
+    e1 = (b[k] - a[k]) / edge[k]
+    e2 = np.array([-e1[1], e1[0]])
+    lu, lv = a @ e1, a @ e2
+    tu = lu.min() + (lu.max() - lu.min()) * _graded(max(int(np.ceil((lu.max() - lu.min()) / h)), 2))
+    tv = lv.min() + (lv.max() - lv.min()) * _graded(max(int(np.ceil((lv.max() - lv.min()) / h)), 2))
+    um, vm = np.meshgrid(0.5 * (tu[1:] + tu[:-1]), 0.5 * (tv[1:] + tv[:-1]), indexing="ij")
+    hu, hv = np.meshgrid(0.5 * np.diff(tu), 0.5 * np.diff(tv), indexing="ij")
+    xy = um.reshape(-1, 1) * e1 + vm.reshape(-1, 1) * e2
+    over = plan_distance(xy, a) <= 0.0
+    n = int(np.sum(over))
+    parts.append((np.column_stack([xy[over], np.full(n, body.height_m)]), np.tile([e1[0], e1[1], 0.0], (n, 1)),
+                  np.tile([e2[0], e2[1], 0.0], (n, 1)), hu.reshape(-1)[over], hv.reshape(-1)[over]))
+    return tuple(np.concatenate([part[i] for part in parts]) for i in range(5))
+
+
+def box_screen(body: BuildingBody, target_panels: int = BOX_TARGET_PANELS) -> BoxScreen:
+    """The static screening of the building as a grounded box on the grounded plane in a uniform vertical field.
+
+    Parameters
+    ----------
+    body : BuildingBody
+        The building (footprint polygon and roof height).
+    target_panels : int, optional
+        About how many panels to cover its walls and roof with. [1]
+
+    Returns
+    -------
+    BoxScreen
+        The panels' charges; ``field_height(points)`` gives phi / E0 anywhere. Solved once per building and
+        footprint and kept (the report, its what-ifs and the layout search share it).
+
+    Notes
+    -----
+    Method of moments for electrostatics [1]: the walls and roof are cut
+    into rectangles of uniform charge density sigma_j, each with its image
+    in the ground (-sigma_j at the mirror position), and the total potential
+    -- the incident E0 z plus the charges' -- is set to zero at every
+    panel's centre::
+
+        sum_j P_ij s_j = -z_i,   P_ij = I_j(r_i) - I_j'(r_i),   s_j = sigma_j / (4 pi eps0 E0)
+
+    with I the integral of 1/R over the panel
+    (:func:`rectangle_potential_integral`; a point charge past five
+    half-diagonals). Then phi(r) / E0 = z + sum_j P(r, j) s_j. The panels
+    are graded towards the roof edge and the corners, where the charge
+    crowds; the roof grid is aligned with the footprint's longest edge (exact
+    for a rectangle, the cells whose centre is over the roof otherwise). A
+    very long box gives the two-dimensional map of :func:`facade_field_height`
+    at its middle; far away phi -> z.
+
+    References
+    ----------
+    .. [1] R. F. Harrington, *Field Computation by Moment Methods*, Macmillan,
+       1968, ch. 2 (the charged conducting plate and box). (from memory)
+
+    Examples
+    --------
+    >>> tower = BuildingBody([[0, -15], [15, -15], [15, 0], [0, 0]], 20.0, "steel frame")
+    >>> screen = box_screen(tower)
+    >>> round(float(screen.field_height([7.5, 1e4, 10.0])), 3)
+    10.0
+    >>> float(screen.field_height([7.5, -7.5, 10.0]))
+    0.0
+    """
+    key = (body.footprint.tobytes(), float(body.height_m), int(target_panels))
+    found = _BOX_SCREENS.get(key)
+    if found is not None:
+        return found
+    centre, au, av, hu, hv = _box_panels(body, int(target_panels))
+    box = BoxScreen(centre, au, av, hu, hv, np.zeros(len(centre)), float(body.height_m), body.footprint.copy())
+    charge = np.linalg.solve(_panels_potential(centre, box), -centre[:, 2])
+    screen = BoxScreen(centre, au, av, hu, hv, charge, float(body.height_m), body.footprint.copy())
+    if len(_BOX_SCREENS) >= 16:
+        _BOX_SCREENS.pop(next(iter(_BOX_SCREENS)))
+    _BOX_SCREENS[key] = screen
+    return screen
+
+
 __all__ = [
     "BuildingBody", "SHIELDING_BY_CONSTRUCTION", "facade_field_height", "facade_static_figures", "nearest_facade",
-    "plan_distance", "MAX_ELECTRICAL_HEIGHT_RAD", "NARROW_DEPTH_TO_WIDTH", "narrow_facade_note", "footprint_area",
+    "plan_distance", "MAX_ELECTRICAL_HEIGHT_RAD", "footprint_area",
     "roof_equivalent_radius",
     "roof_loading_length", "induced_charge_factor", "building_limit_frequency", "building_charge_factor",
-    "dynamic_field_height", "screened_field_height", "building_grid", "grid_wire_radius", "GRID_MESH_WAVELENGTHS",
+    "dynamic_field_height", "scale_screened_field", "screened_field_height", "box_screen", "BoxScreen",
+    "rectangle_potential_integral", "BOX_TARGET_PANELS", "building_grid", "grid_wire_radius", "GRID_MESH_WAVELENGTHS",
 ]
 
 

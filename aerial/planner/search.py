@@ -41,7 +41,7 @@ from aerial.models import capacitance as cap
 from aerial.models import conductor
 from aerial.models import short_aerial as sa
 from aerial.geometry.resolve import building_of
-from aerial.models.building import plan_distance, screened_field_height
+from aerial.models.building import screened_field_height
 
 #: Largest number of candidate layouts searched without ``allow_large``.
 MAX_CANDIDATES = 2_000_000
@@ -347,11 +347,11 @@ def screened_height(body, x, y, h, frequency=None):
     :func:`aerial.models.building.screened_field_height`, as the report does.
     """
     x, y, h = (np.asarray(v, dtype=float) for v in (x, y, h))
-    d = plan_distance(np.stack([x, y], axis=1), body.footprint)
+    points = np.stack([x, y, h], axis=-1)
     s = body.shielding[1]
     if frequency is None:
-        return (1.0 - s) * h + s * screened_field_height(body, d, h)
-    return (1.0 - s) * h + s * screened_field_height(body, d, h, [float(frequency)], 1)[..., 0]
+        return (1.0 - s) * h + s * screened_field_height(body, points)
+    return (1.0 - s) * h + s * screened_field_height(body, points, [float(frequency)], 1)[..., 0]
 
 
 def present_wire(site, objective) -> dict | None:

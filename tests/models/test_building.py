@@ -15,9 +15,10 @@ from scipy.constants import epsilon_0
 
 from aerial.core.errors import ModelInputError
 from aerial.models.building import (
-    SHIELDING_BY_CONSTRUCTION, BuildingBody, building_charge_factor, building_limit_frequency, dynamic_field_height,
-    facade_field_height, facade_static_figures, induced_charge_factor, nearest_facade, plan_distance,
-    roof_equivalent_radius, roof_loading_length,
+    BOX_TARGET_PANELS, SHIELDING_BY_CONSTRUCTION, BuildingBody, box_screen, building_charge_factor,
+    building_limit_frequency, dynamic_field_height, facade_field_height, facade_static_figures,
+    induced_charge_factor, nearest_facade, plan_distance, rectangle_potential_integral, roof_equivalent_radius,
+    roof_loading_length, screened_field_height,
 )
 from aerial.models.capacitance import electrostatic_solution
 from aerial.models.closed_form import closed_form_response
@@ -228,7 +229,8 @@ def test_consistency_high_floor_closed_form_within_3_db_of_the_full_wave_grid_at
     # `aerial report --full-wave --json site_examples/high_floor_flat.toml` (3 m grid mesh, steel frame s = 1);
     # the full-wave grid itself is checked against the ground-plus-wall image solution in
     # tests/test_building_grid.py. Before the building's currents were taken in the closed form read 1.056 m
-    # (-4.9 dB); now 1.677 m (+0.84 dB).
+    # (-4.9 dB); with them, beside the two-dimensional wall, 1.677 m (+0.84 dB); beside the grounded box 1.906 m
+    # (-0.27 dB).
     from pathlib import Path
 
     from aerial import load_site
@@ -246,12 +248,65 @@ def test_consistency_high_floor_closed_form_within_3_db_of_the_full_wave_grid_at
     assert not any("first resonance" in w for w in closed["warnings"])
 
 
-def test_a_narrow_tower_with_the_wire_far_below_its_roof_is_flagged():
-    # Input handling: the two-dimensional wall leaves out the field round a narrow building's sides; a wire 21 m
-    # below the roof of a tower 15 m wide gets the caveat, the same wire 5.4 m below the roof of a 30 m wide block
-    # does not (the threshold, 0.8 of the width, from the full-wave table in docs/models-building.md).
+def test_rectangle_potential_integral_against_numerical_quadrature():
+    # scipy.integrate.dblquad of 1/R over the rectangle (general-purpose reference library), at points off, beside
+    # and in the plane of the rectangle; and the self term at the centre of a square of side a, 4 a ln(1 + sqrt 2)
+    # (the uniformly charged square: E. Durand, Electrostatique, 1964, from memory).
+    from scipy.integrate import dblquad
+
+    for u, v, w, a, b in [(0.3, 0.2, 0.5, 0.5, 1.0), (2.0, -1.0, 0.1, 0.5, 1.0), (-3.0, 0.2, 1.0, 2.0, 0.7),
+                          (0.1, 0.1, 0.0, 0.5, 0.5), (0.7, 0.0, 0.0, 0.5, 0.5)]:
+        ref = dblquad(lambda y, x: 1.0 / math.sqrt((x - u) ** 2 + (y - v) ** 2 + w * w), -a, a, -b, b,
+                      epsabs=1e-11)[0]
+        assert float(rectangle_potential_integral(u, v, w, a, b)) == pytest.approx(ref, rel=1e-7)
+    assert float(rectangle_potential_integral(0.0, 0.0, 0.0, 1.5, 1.5)) == pytest.approx(
+        4 * 3.0 * math.log(1 + math.sqrt(2)), rel=1e-12)
+
+
+def test_box_screen_of_a_very_long_thin_block_is_the_two_dimensional_conformal_map():
+    # Conformal map of a grounded wall on a grounded plane (W. R. Smythe, Static and Dynamic Electricity, 3rd ed.,
+    # 1968, ch. 4, from memory): phi = Im sqrt((d + iz)^2 + H^2). A block 200 m long, 0.2 m thick and 10 m tall,
+    # at its middle, 1.6-10 m out and 2-8 m up: within 3 % (the block's thickness and its mesh; 1.2 % found).
+    body = BuildingBody([[-100.0, -0.2], [100.0, -0.2], [100.0, 0.0], [-100.0, 0.0]], 10.0, "steel frame")
+    screen = box_screen(body, 600)
+    d, z = np.meshgrid([1.6, 3.0, 6.0, 10.0], [2.0, 5.0, 8.0])
+    phi = screen.field_height(np.stack([np.zeros(d.size), d.ravel(), z.ravel()], axis=1))
+    assert phi == pytest.approx(facade_field_height(d.ravel(), z.ravel(), 10.0), rel=0.03)
+
+
+def test_box_screen_is_open_ground_far_away_and_zero_on_and_in_the_box():
+    # Far-field limit (the induced charge and its image are a dipole, its potential falls as 1/r^2: Jackson
+    # sec. 4.1, from memory): phi -> z 3 km away; phi = 0 on the grounded box (the boundary condition; tested
+    # between the panels' centres, where it is not imposed, to 3 % of the height) and inside it.
+    tower = BuildingBody([[0.0, -15.0], [15.0, -15.0], [15.0, 0.0], [0.0, 0.0]], 30.0, "steel frame")
+    screen = box_screen(tower)
+    assert float(screen.field_height([7.5, 3000.0, 12.0])) == pytest.approx(12.0, rel=1e-3)
+    face = np.array([[x, 1e-6, z] for x in np.linspace(0.5, 14.5, 9) for z in np.linspace(1.0, 29.0, 9)])
+    roof = np.array([[x, y, 30.0 + 1e-6] for x in np.linspace(0.5, 14.5, 7) for y in np.linspace(-14.5, -0.5, 7)])
+    assert np.max(np.abs(screen.field_height(np.vstack([face, roof])))) < 0.03 * 30.0
+    assert float(screen.field_height([7.5, -7.5, 12.0])) == 0.0
+    assert np.all(np.isfinite(screen.field_height(screen.centre)))
+
+
+def test_consistency_box_screen_mesh_convergence():
+    # Consistency check (mesh convergence of our own solution, not an outside source): the field height 1.6 m in
+    # front of the middle of a 20 m tower's facade, at mid-height and 1 m below the roof, moves by less than 1.5 %
+    # from the tool's 400 panels to 1200.
+    tower = BuildingBody([[0.0, -15.0], [15.0, -15.0], [15.0, 0.0], [0.0, 0.0]], 20.0, "steel frame")
+    pts = np.array([[7.5, 1.6, 10.0], [7.5, 1.6, 19.0], [-3.0, 3.0, 10.0]])
+    coarse = box_screen(tower, BOX_TARGET_PANELS).field_height(pts)
+    fine = box_screen(tower, 1200).field_height(pts)
+    assert coarse == pytest.approx(fine, rel=0.015)
+
+
+def test_the_field_round_a_narrow_towers_sides_reaches_the_wire():
+    # Consistency check against the project's own full-wave grid (docs/models-building.md, the table "Closed form
+    # against full wave"): on the middle floor of a 40 m tower 15 m square the two-dimensional wall read 5.1 dB
+    # below the grid at 150 kHz; the grounded box lets in the field round the sides, within 1 dB of it. Here: the
+    # box's field height exceeds the wall's by 4-6 dB there, and the report carries no narrow-building caveat.
     tower = BuildingBody([[-4.0, -15.0], [11.0, -15.0], [11.0, 0.0], [-4.0, 0.0]], 40.0, "steel frame")
+    ratio = float(screened_field_height(tower, [3.5, 1.6, 19.0]) / facade_field_height(1.6, 19.0, 40.0))
+    assert 4.0 < 20 * math.log10(ratio) < 6.0
     r = closed_form_response(_balcony(rail_z=19.0), [0.5e6], building=tower)
-    assert any("narrow for the wire's depth below its roof" in w and "--full-wave" in w for w in r["warnings"])
-    r = closed_form_response(_balcony(), [0.5e6], building=BuildingBody(BLOCK, 18.0, "steel frame"))
     assert not any("narrow" in w for w in r["warnings"])
+    assert np.all(np.isfinite(r["effective_height_m"]))
