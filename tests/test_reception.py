@@ -361,3 +361,34 @@ def test_consistency_check_the_coils_self_capacitance_takes_its_share_of_the_tun
             assert b["capacitor_setting_f"] - a["capacitor_setting_f"] == pytest.approx(c_self, rel=2e-3)
     assert wound["coil"]["self_resonance_hz"] == pytest.approx(
         1 / (TWO_PI * np.sqrt(wound["coil"]["inductance_h"] * c_self)), rel=1e-9)
+
+
+def test_consistency_check_the_coverage_searches_in_one_solve_match_value_by_value():
+    """The coverage advice tries the band's edges first and every value of a column together, and the
+    series capacitor with a new coil as one grid of pairs: the same answers as trying each value over
+    the whole band alone (consistency check on an invented aerial too big for the capacitor)."""
+    from aerial.estimate import reception as rc
+
+    parts = TuningParts(coil_inductance_h=240e-6, capacitor_min_f=15e-12, capacitor_max_f=365e-12)
+    aerial = rc._Aerial(*capacitive_aerial(600e-12))
+    coil = rc._resolve_coil(parts)
+    band, q = (530e3, 1700e3), coil.q
+    grid = rc._cover_grid(*band)
+
+    def alone(L, cfg):
+        c = rc._needed(grid, aerial, L, q, cfg, coil.block)
+        return bool(np.all((c >= parts.capacitor_min_f) & (c <= parts.capacitor_max_f)))
+
+    ls = np.geomspace(1e-6, 1e-2, 32)
+    ccs = np.geomspace(1e-9, 5e-12, 24)
+    for cc in ccs[::5]:
+        cfg = rc._coil_config(parts, coil, arrangement="series capacitor", series_capacitance=float(cc))
+        together = rc._covers(*band, aerial, ls[:, None], q, cfg, 15e-12, 365e-12, coil.block)
+        assert list(together) == [alone(float(L), cfg) for L in ls]
+    first = next((k for k, cc in enumerate(ccs) if any(alone(float(L), rc._coil_config(
+        parts, coil, arrangement="series capacitor", series_capacitance=float(cc))) for L in ls)), None)
+    assert rc._first_series_with_a_coil(band, aerial, coil, parts, q, ccs, ls) == first
+    taps = np.linspace(0.05, 0.95, 10)
+    cfg = rc._coil_config(parts, coil, arrangement="coil tap", tap_fraction=taps[:, None])
+    together = rc._covers(*band, aerial, coil.inductance, q, cfg, 15e-12, 365e-12, coil.block)
+    assert list(together) == [alone(coil.inductance, {**cfg, "tap_fraction": float(t)}) for t in taps]

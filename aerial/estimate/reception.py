@@ -544,16 +544,39 @@ def _remembered_q(q_fun):
 
 
 def _covers(f_lo, f_hi, aerial, L, q_fun, cfg, cmin, cmax, block=None, wound_like=None):
-    """Whether a setting within [cmin, cmax] tunes every frequency of the band; and the settings
-    needed at its two edges [F].
+    """Whether a setting within [cmin, cmax] tunes every frequency of the band.
 
     Any one of ``L`` or the coupling's part in ``cfg`` may be a column of values, shape (m, 1):
-    then the answer is a boolean array of m and the settings are (m, 2).
+    then the answer is a boolean array of m. The band's two edges are tried first, and the rest
+    of the band only for the values that pass there (each value's settings are its own, so the
+    answer is the one trying the whole band for every value gives).
     """
     f = _cover_grid(float(f_lo), float(f_hi))
-    c = _needed(f, aerial, L, q_fun, cfg, block, wound_like)
-    ok = np.all((c >= cmin) & (c <= cmax), axis=-1)
-    return (bool(ok) if np.ndim(ok) == 0 else ok), c[..., [0, -1]]
+
+    def inside(freq, L_, cfg_):
+        c = _needed(freq, aerial, L_, q_fun, cfg_, block, wound_like)
+        return np.all((c >= cmin) & (c <= cmax), axis=-1)
+
+    ok = inside(f[[0, -1]], L, cfg)
+    if np.ndim(ok) == 0:
+        return bool(ok) and bool(inside(f[1:-1], L, cfg))
+    keep = np.flatnonzero(ok)
+    if keep.size:
+        ok[keep] = inside(f[1:-1], *_column_subset(L, cfg, keep))
+    return ok
+
+
+def _column_subset(L, cfg, keep) -> tuple:
+    """``L`` and ``cfg`` with their column of values (see :func:`_covers`) cut to the rows ``keep``."""
+    if np.ndim(L) > 0:
+        L = np.asarray(L)[keep]
+    cut = {}
+    for key in ("series_capacitance", "tap_fraction", "coupling_coefficient"):
+        v = cfg.get(key)
+        if v is not None and np.ndim(v) > 0:
+            cut[key] = np.ravel(v)[keep].reshape((-1,) + np.shape(v)[1:]) if key == "tap_fraction" else \
+                np.asarray(v)[keep]
+    return L, {**cfg, **cut}
 
 
 def _reachable_ranges(f_lo, f_hi, setting, cmin, cmax, points=600, refine=30) -> list:
@@ -802,7 +825,7 @@ def _advice(band, aerial, coil: _Coil, parts: TuningParts, c_edges) -> list:
             adv.append(f"the capacitor's minimum of {_pf(cmin)} is too large to reach {_khz(f_hi)} "
                        f"(needs {_pf(c_edges[1])} or less)")
     # a different coil, same everything else
-    rng = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax, wound_like=coil)[0],
+    rng = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax, wound_like=coil),
                     1e-6, 1e-2)
     if rng:
         adv.append(f"a coil between {_uh(rng[0])} and {_uh(rng[1])} covers the whole band with this capacitor")
@@ -811,7 +834,7 @@ def _advice(band, aerial, coil: _Coil, parts: TuningParts, c_edges) -> list:
     if arr in ("direct", "series capacitor"):
         r = _ok_range(lambda c: _covers(f_lo, f_hi, aerial, L, q, _coil_config(parts, coil, arrangement="series capacitor",
                                                                           series_capacitance=c), cmin, cmax,
-                                          coil.block)[0],
+                                          coil.block),
                       1e-12, 1e-8)
         if r:
             adv.append(f"use a series capacitor of {_pf(r[0])} to {_pf(r[1])} between aerial and tank "
@@ -819,31 +842,57 @@ def _advice(band, aerial, coil: _Coil, parts: TuningParts, c_edges) -> list:
     if arr in ("direct", "coil tap"):
         r = _ok_range(lambda n: _covers(f_lo, f_hi, aerial, L, q, _coil_config(parts, coil, arrangement="coil tap",
                                                                           tap_fraction=n), cmin, cmax,
-                                          coil.block)[0],
+                                          coil.block),
                       0.02, 1.0)
         if r:
             adv.append(f"use a tap at {r[0]:.2f} to {r[1]:.2f} of the turns from the earthy end")
     if arr == "separate primary" and parts.primary_inductance_h is not None:
         r = _ok_range(lambda k: _covers(f_lo, f_hi, aerial, L, q, _coil_config(parts, coil, coupling_coefficient=k),
-                                        cmin, cmax, coil.block)[0], 0.01, 0.95)
+                                        cmin, cmax, coil.block), 0.01, 0.95)
         if r:
             adv.append(f"set the primary's coupling to k = {r[0]:.2f} ... {r[1]:.2f}")
     if len(adv) == (not low_ok) + (not high_ok) and arr in ("direct", "series capacitor"):
-        # no single change works: look for a series capacitor together with a new coil
-        for cc in np.geomspace(1e-9, 5e-12, 24):
+        # no single change works: look for a series capacitor together with a new coil (the largest
+        # capacitor, of 24 from 1 nF down, for which one of 32 coils covers the band)
+        ccs = np.geomspace(1e-9, 5e-12, 24)
+        first = _first_series_with_a_coil((f_lo, f_hi), aerial, coil, parts, q, ccs, np.geomspace(1e-6, 1e-2, 32))
+        if first is not None:
+            cc = ccs[first]
             cfg_cc = _coil_config(parts, coil, arrangement="series capacitor", series_capacitance=cc)
             rng_l = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg_cc, cmin, cmax,
-                                                 wound_like=coil)[0], 1e-6, 1e-2,
+                                                 wound_like=coil), 1e-6, 1e-2,
                               points=32, refine=20)
-            if rng_l:
-                adv.append(f"use a series capacitor of about {_pf(cc)} together with a coil of "
-                           f"{_uh(np.sqrt(rng_l[0] * rng_l[1]))}")
-                break
+            adv.append(f"use a series capacitor of about {_pf(cc)} together with a coil of "
+                       f"{_uh(np.sqrt(rng_l[0] * rng_l[1]))}")
     ratio = (f_hi / f_lo) ** 2
     if cmin > 0 and cmax / cmin < ratio * 1.05:
         adv.append(f"the band needs a capacitance ratio of at least {ratio:.2f} plus strays; this capacitor "
                    f"gives {cmax / cmin:.2f}: use a capacitor with a wider range or split the band in two")
     return adv
+
+
+def _first_series_with_a_coil(band, aerial, coil, parts, q_fun, capacitances, inductances):
+    """Index of the first series capacitor [F] with which a coil of one of ``inductances`` [H], wound like
+    ``coil``, covers the band with the site's capacitor; None when none does.
+
+    Every pair is tried in one solve at the band's edges, and the pairs that pass there in one more
+    over the rest of the band (each pair's settings are its own: what :func:`_covers` says pair by pair).
+    """
+    cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
+    f = _cover_grid(float(band[0]), float(band[1]))
+    cfg = _coil_config(parts, coil, arrangement="series capacitor",
+                       series_capacitance=np.asarray(capacitances, dtype=float)[:, None, None])
+    c = _needed_for_coils(f[[0, -1]], aerial, np.asarray(inductances, dtype=float)[None, :, None], q_fun, cfg,
+                          coil.block)
+    ok = np.all((c >= cmin) & (c <= cmax), axis=-1)
+    i, j = np.nonzero(ok)
+    if i.size:
+        cfg_in = {**cfg, "series_capacitance": np.asarray(capacitances, dtype=float)[i][:, None]}
+        c = _needed_for_coils(f[1:-1], aerial, np.asarray(inductances, dtype=float)[j][:, None], q_fun, cfg_in,
+                              coil.block)
+        ok[i, j] = np.all((c >= cmin) & (c <= cmax), axis=-1)
+    rows = np.flatnonzero(ok.any(axis=1))
+    return int(rows[0]) if rows.size else None
 
 
 def _designed_coil(band, aerial, parts, notes) -> _Coil:
@@ -862,7 +911,7 @@ def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0) -> floa
     cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
     q = _constant_q(DEFAULT_COIL_Q if parts.coil_unloaded_q is None else parts.coil_unloaded_q)
     cfg = _config(parts, self_capacitance=float(self_capacitance))
-    rng = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax)[0], 1e-6, 1e-2)
+    rng = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax), 1e-6, 1e-2)
     if rng:
         L = float(np.sqrt(rng[0] * rng[1]))
         notes.append(f"any coil from {_uh(rng[0])} to {_uh(rng[1])} covers the band; chose {_uh(L)} "

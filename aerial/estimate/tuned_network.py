@@ -100,14 +100,14 @@ def tuned_figures(frequency, za: Callable, parts: net_mod.NetworkParts, detector
     c_pos = np.maximum(c, 0.0)
 
     def response(f):
-        return np.abs(net_mod.solve_network(f, za(f), parts, c_pos, g).detector_voltage)
+        return np.abs(net_mod.detector_response(f, za(f), parts, c_pos, g))
 
     n = f0.size
     probes = [f0] + [p for d in offsets for p in (np.maximum(f0 - d, f0 * 1e-3), f0 + d)]
     every = np.concatenate(probes)
     # one solve for the tuned point and every offset
-    levels = np.abs(net_mod.solve_network(every, za(every), parts, np.tile(c_pos, len(probes)),
-                                          np.tile(g, len(probes))).detector_voltage)
+    levels = np.abs(net_mod.detector_response(every, za(every), parts, np.tile(c_pos, len(probes)),
+                                              np.tile(g, len(probes))))
     tuned = levels[:n]
     edges = net_mod.detector_bandwidth(f0, response) if bandwidth else _no_edges(f0)
     rej = {}
@@ -283,7 +283,7 @@ def station_levels(frequency, open_circuit_voltage, za: Callable, parts: net_mod
         c_raw, top = c, np.zeros_like(fs)
 
     def response(f):
-        return np.abs(net_mod.solve_network(f, za(f), parts, c, g).detector_voltage)
+        return np.abs(net_mod.detector_response(f, za(f), parts, c, g))
 
     edges = net_mod.detector_bandwidth(fs, response) if bandwidth else _no_edges(fs)
     # every station j through the network tuned to station i: one bare solve per station, each tuning

@@ -216,3 +216,18 @@ def test_consistency_check_a_stack_of_networks_solves_as_each_one_alone():
         alone = net.solve_network(f, za, parts, c[p], 2e-4)
         for got, want in zip(together, alone):
             assert np.allclose(got[p], want, rtol=1e-12, atol=0)
+
+
+def test_consistency_check_the_detector_voltage_alone_is_the_full_solves():
+    """The detector voltage solved for the aerial's EMF alone, and the tuning capacitance from the top's
+    impedance alone, are the full solve's figures to the last bit (consistency check on invented parts)."""
+    f = np.linspace(550e3, 1650e3, 9)
+    za = 40.0 - 1j / (2 * np.pi * f * 150e-12)
+    for parts in (net.NetworkParts("coil tap", 240e-6, 6.0, detector_tap=0.3, aerial_tap=0.5),
+                  net.NetworkParts("separate primary", 240e-6, 6.0, detector_tap=0.7, primary_inductance=24e-6,
+                                   coupling_coefficient=0.3, primary_resistance=1.0)):
+        full = net.solve_network(f, za, parts, 120e-12, 3e-4)
+        assert np.array_equal(net.detector_response(f, za, parts, 120e-12, 3e-4), full.detector_voltage)
+        bare = net.solve_network(f, za, parts, 0.0, 3e-4)
+        assert np.array_equal(net.tuning_capacitance_for(f, za, parts, 3e-4),
+                              -np.imag(1.0 / bare.top_impedance) / (2 * np.pi * f))
