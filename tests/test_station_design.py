@@ -270,3 +270,29 @@ def test_consistency_check_candidates_solved_together_match_each_solved_alone():
         for key in ("power_w", "capacitance_f", "own"):
             assert np.allclose(got[key], alone[key], rtol=1e-12, atol=0)
         assert (got["weakest"], got["pair"]) == (alone["weakest"], alone["pair"])
+
+
+def test_consistency_check_remedies_solved_together_match_each_solved_alone():
+    """The second tuned circuit (every series capacitor tried) and both traps solved in one stacked pass give
+    the levels :func:`tuned_network.station_levels` gives for each alone (consistency check on invented
+    stations)."""
+    from aerial.estimate import reception as rc
+    from aerial.estimate import tuned_network as tn
+
+    f = np.array([500e3, 1700e3])
+    parts = TuningParts(coil_inductance_h=200e-6, capacitor_min_f=15e-12, capacitor_max_f=365e-12)
+    wanted = [Station("Demo A", 700e3, 10e3, 20e3, 15.0, 1e-3), Station("Demo B", 720e3, 50e3, 10e3, 15.0, 1e-3)]
+    aerial = rc._Aerial(f, [25, 25], -1.0 / (2 * np.pi * f * 150e-12), [0.3, 3.0], [8, 8])
+    scene, coil = rc._design_scene(aerial, parts, wanted, 9e3)
+    net = sd.candidate_parts(scene, {"arrangement": "direct"}, coil.inductance, coil.block, 1.0)
+    setups = [sd._double_tuned_setup(scene, coil.inductance, coil.block, 1.0, 0, 1, cs) for cs in sd.PRIMARY_SERIES_F]
+    setups += [sd._trap_setup(scene, net, 0, 1, kind) for kind in ("parallel", "series")]
+    together = sd._solve_remedies(scene, setups, 0, 1)
+    for (info, parts_k, z, emf), got in zip(setups, together):
+        lv = tn.station_levels(scene.frequency, emf, lambda x, z=z: z, parts_k, scene.diode, scene.load, passes=1,
+                               bandwidth=False, table=scene.table)
+        assert got["wanted_power_w"] == pytest.approx(float(lv.detector_voltage[0] ** 2 / lv.input_resistance[0]),
+                                                      rel=1e-12)
+        assert got["separation_db"] == pytest.approx(float(20 * np.log10(lv.others[0, 0] / lv.others[0, 1])),
+                                                     rel=1e-12)
+    assert sd.remedies(scene, net, coil.inductance, coil.block, 1.0, 0, 1)[1:] == together[-2:]

@@ -19,6 +19,7 @@ Assumptions (stated, not published figures) are module constants below.
 from __future__ import annotations
 
 import functools
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -219,8 +220,8 @@ class Station:
 
 def _num(value, name: str, warnings: list) -> float:
     v = float(value)
-    if not np.isfinite(v) or abs(v) > CLAMP:
-        clamped = 0.0 if np.isnan(v) else float(np.clip(v, -CLAMP, CLAMP))
+    if not math.isfinite(v) or abs(v) > CLAMP:
+        clamped = 0.0 if math.isnan(v) else float(np.clip(v, -CLAMP, CLAMP))
         warnings.append(f"{name} was not finite or out of range and was clamped to {clamped:g}")
         return clamped
     return v
@@ -2141,9 +2142,8 @@ def _remedies(scene, row, parts) -> list:
                                cpl.get("tap_fraction"), cpl.get("series_capacitance"), lp,
                                cpl.get("coupling_coefficient"), row["block"], self_capacitance=row["self_capacitance_f"])
     out = []
-    for r in (sd_mod.double_tuned(scene, row["coil_inductance_h"], row["block"], row["detector_tap_fraction"], i, j,
-                                  row["self_capacitance_f"]),
-              sd_mod.trap(scene, net, i, j, "parallel"), sd_mod.trap(scene, net, i, j, "series")):
+    for r in sd_mod.remedies(scene, net, row["coil_inductance_h"], row["block"], row["detector_tap_fraction"], i, j,
+                             row["self_capacitance_f"]):
         r = {k: (_num(v, k, []) if isinstance(v, float) else v) for k, v in r.items()}
         r["wanted"], r["interferer"] = scene.names[i], scene.names[j]
         r["margin_db"] = scene.margin_db

@@ -93,6 +93,11 @@ def evaluate(scene: Scene, coupling: dict, inductance, block, detector_tap, self
     return summarise(scene, lv, parts)
 
 
+#: Candidates × stations² solved together at most (the cross levels of a long station list are kept to
+#: a few megabytes at a time).
+STACK_ELEMENTS = 200_000
+
+
 def evaluate_many(scene: Scene, candidates_parts) -> list:
     """:func:`evaluate` for many candidates at once, given as their networks (:func:`candidate_parts`).
 
@@ -102,6 +107,10 @@ def evaluate_many(scene: Scene, candidates_parts) -> list:
     parts = list(candidates_parts)
     if not parts:
         return []
+    m = scene.frequency.size
+    chunk = max(1, STACK_ELEMENTS // (m * m))  # a long station list: the candidates a few at a time
+    if len(parts) > chunk:
+        return [r for k in range(0, len(parts), chunk) for r in evaluate_many(scene, parts[k:k + chunk])]
     plan = net_mod.plan_network_stack(parts)
     lv = tn_mod.station_levels_stack(scene.frequency, scene.emf, scene.za, plan, scene.diode, scene.load,
                                      table=scene.table)
@@ -160,8 +169,20 @@ def fits(capacitance, cmin, cmax, room=0.0) -> bool:
     >>> fits([20e-12, 300e-12], 12e-12, 365e-12, 0.05)
     True
     """
+    lo, hi = _extremes(capacitance)
+    return _within(lo, hi, cmin, cmax, room)
+
+
+def _extremes(capacitance) -> tuple:
+    """The smallest and the largest setting [F] (NaN when any is not a number: then nothing fits)."""
     c = np.asarray(capacitance, dtype=float)
-    return bool(np.all(c >= cmin * (1.0 + room)) and np.all(c <= cmax * (1.0 - room)))
+    if c.size == 0:
+        return np.inf, -np.inf
+    return float(c.min()), float(c.max())
+
+
+def _within(lo, hi, cmin, cmax, room) -> bool:
+    return bool(lo >= cmin * (1.0 + room) and hi <= cmax * (1.0 - room))
 
 
 def standard_capacitor(capacitance):
@@ -173,8 +194,9 @@ def standard_capacitor(capacitance):
     >>> standard_capacitor([3e-12, 100e-12]) is None
     True
     """
+    lo, hi = _extremes(capacitance)
     for cmax, cmin in STANDARD_CAPACITORS_F:
-        if fits(capacitance, cmin, cmax, CAPACITOR_ROOM):
+        if _within(lo, hi, cmin, cmax, CAPACITOR_ROOM):
             return cmax, cmin
     return None
 
@@ -311,15 +333,53 @@ def double_tuned(scene: Scene, inductance, block, detector_tap, wanted, other, s
     coupled to the detector's tank (the present coil) at k_c = 1/√(Q1 Q2) [Terman, Radio Engineers'
     Handbook, 1943, from memory], Q1 and Q2 the two circuits' loaded Q each taken alone.
     """
+    setups = [_double_tuned_setup(scene, inductance, block, detector_tap, wanted, other, cs, self_capacitance)
+              for cs in PRIMARY_SERIES_F]
+    return _best_double_tuned(_solve_remedies(scene, setups, wanted, other))
+
+
+def trap(scene: Scene, parts, wanted, other, kind) -> dict:
+    """A wave trap tuned to the interfering station ("parallel": in the aerial lead; "series": lead to earth)."""
+    return _solve_remedies(scene, [_trap_setup(scene, parts, wanted, other, kind)], wanted, other)[0]
+
+
+def remedies(scene: Scene, parts, inductance, block, detector_tap, wanted, other, self_capacitance=0.0) -> list:
+    """The usual remedies for one pair one tank cannot separate: [:func:`double_tuned`, the parallel and the
+    series :func:`trap`], every variant solved in one stacked pass (the figures each gives alone)."""
+    setups = [_double_tuned_setup(scene, inductance, block, detector_tap, wanted, other, cs, self_capacitance)
+              for cs in PRIMARY_SERIES_F]
+    setups += [_trap_setup(scene, parts, wanted, other, kind) for kind in ("parallel", "series")]
+    solved = _solve_remedies(scene, setups, wanted, other)
+    n = len(PRIMARY_SERIES_F)
+    return [_best_double_tuned(solved[:n])] + solved[n:]
+
+
+def _best_double_tuned(results) -> dict:
+    """The best separating second tuned circuit (then the most power for the wanted station)."""
     best = None
-    for cs in PRIMARY_SERIES_F:
-        r = _double_tuned_with(scene, inductance, block, detector_tap, wanted, other, cs, self_capacitance)
+    for r in results:
         if best is None or (r["separation_db"], r["wanted_power_w"]) > (best["separation_db"], best["wanted_power_w"]):
             best = r
     return best
 
 
-def _double_tuned_with(scene, inductance, block, detector_tap, wanted, other, cs, self_capacitance=0.0) -> dict:
+def _solve_remedies(scene: Scene, setups, wanted, other) -> list:
+    """Each remedy (its words, network, aerial impedance and EMF at the pair's frequencies) solved, all together."""
+    f = scene.frequency[[wanted, other]]
+    lv = tn_mod.station_levels_stack(f, np.array([s[3] for s in setups]), np.array([s[2] for s in setups]),
+                                     [s[1] for s in setups], scene.diode, scene.load, table=scene.table)
+    out = []
+    for p, (info, _, _, _) in enumerate(setups):
+        own = lv.others[p, 0, 0]
+        out.append({**info,
+                    "separation_db": float(20.0 * np.log10(own / max(lv.others[p, 0, 1], 1e-300))),
+                    "wanted_power_w": float(lv.detector_voltage[p, 0] ** 2 / lv.input_resistance[p, 0]),
+                    "wanted_audible": bool(own >= scene.threshold)})
+    return out
+
+
+def _double_tuned_setup(scene, inductance, block, detector_tap, wanted, other, cs, self_capacitance=0.0) -> tuple:
+    """The second tuned circuit with series capacitor ``cs`` [F]: (words, network, aerial impedance, EMF)."""
     f = scene.frequency[[wanted, other]]
     fw = f[:1]
     w = 2.0 * np.pi * fw
@@ -339,10 +399,7 @@ def _double_tuned_with(scene, inductance, block, detector_tap, wanted, other, cs
     parts = tn_mod.network_parts("separate primary", inductance, scene.q_fun, detector_tap,
                                  primary_inductance=lp, coupling_coefficient=k, block=block,
                                  primary_capacitance=PRIMARY_TUNING_F, self_capacitance=self_capacitance)
-    lv = tn_mod.station_levels(f, scene.emf[[wanted, other]], za, parts, scene.diode, scene.load, passes=1,
-                               bandwidth=False, table=scene.table)
-    own = lv.others[0, 0]
-    return {
+    info = {
         "kind": "second tuned circuit",
         "coupling_coefficient": k,
         "series_capacitor_f": float(cs),
@@ -350,33 +407,18 @@ def _double_tuned_with(scene, inductance, block, detector_tap, wanted, other, cs
         "primary_capacitor_f": PRIMARY_TUNING_F,
         "primary_loaded_q": q1,
         "tank_loaded_q": q2,
-        "separation_db": float(20.0 * np.log10(own / max(lv.others[0, 1], 1e-300))),
-        "wanted_power_w": float(lv.detector_voltage[0] ** 2 / lv.input_resistance[0]),
-        "wanted_audible": bool(own >= scene.threshold),
     }
+    return info, parts, za(f), scene.emf[[wanted, other]]
 
 
-def trap(scene: Scene, parts, wanted, other, kind) -> dict:
-    """A wave trap tuned to the interfering station ("parallel": in the aerial lead; "series": lead to earth)."""
+def _trap_setup(scene: Scene, parts, wanted, other, kind) -> tuple:
+    """A wave trap of ``kind`` tuned to the interfering station: (words, network, aerial impedance, EMF)."""
     f_t = float(scene.frequency[other])
     L = TRAP_INDUCTANCE_H
     c = 1.0 / ((2.0 * np.pi * f_t) ** 2 * L)
     r = 2.0 * np.pi * f_t * L / float(np.atleast_1d(scene.q_fun(np.array([f_t])))[0])
     idx = [wanted, other]
     f = scene.frequency[idx]
-
-    def za(x):
-        return net_mod.trap_source(x, scene.za(x), kind, L, c, r)[1]
-
-    scale = np.abs(net_mod.trap_source(f, scene.za(f), kind, L, c, r)[0])
-    lv = tn_mod.station_levels(f, scene.emf[idx] * scale, za, parts, scene.diode, scene.load, passes=1,
-                               bandwidth=False, table=scene.table)
-    return {
-        "kind": f"{kind} trap",
-        "trap_inductance_h": L,
-        "trap_capacitor_f": float(c),
-        "tuned_to_hz": f_t,
-        "separation_db": float(20.0 * np.log10(lv.others[0, 0] / max(lv.others[0, 1], 1e-300))),
-        "wanted_power_w": float(lv.detector_voltage[0] ** 2 / lv.input_resistance[0]),
-        "wanted_audible": bool(lv.others[0, 0] >= scene.threshold),
-    }
+    scale, z = net_mod.trap_source(f, scene.za(f), kind, L, c, r)
+    info = {"kind": f"{kind} trap", "trap_inductance_h": L, "trap_capacitor_f": float(c), "tuned_to_hz": f_t}
+    return info, parts, z, scene.emf[idx] * np.abs(scale)

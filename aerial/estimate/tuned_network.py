@@ -198,15 +198,43 @@ def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL,
             return np.exp(np.interp(np.log(v), table[0], table[1]))
         return det_mod.loaded_detector(np.sqrt(2.0) * v, diode.saturation_current_a, diode.ideality, load).input_resistance
 
-    for _ in range(int(max_iter)):
-        mid = np.sqrt(lo * hi)
-        up = mid * np.abs(1.0 + z / r_of(mid)) - v0 > 0
-        hi = np.where(up, mid, hi)
-        lo = np.where(up, lo, mid)
-        if np.all(hi / lo - 1.0 <= rtol):
-            break
+    taken = 0
+    while taken < int(max_iter) and not np.all(hi / lo - 1.0 <= rtol):
+        depth = min(LEVEL_LOOKAHEAD, int(max_iter) - taken)
+        mids = _reachable_midpoints(lo, hi, depth)
+        r_mid = r_of(mids)  # every midpoint the next halvings can reach, in one call of the detector model
+        node = np.zeros(np.shape(lo), dtype=int)
+        for _ in range(depth):
+            mid = np.take_along_axis(mids, node[np.newaxis], axis=0)[0]
+            up = mid * np.abs(1.0 + z / np.take_along_axis(r_mid, node[np.newaxis], axis=0)[0]) - v0 > 0
+            hi = np.where(up, mid, hi)
+            lo = np.where(up, lo, mid)
+            taken += 1
+            if np.all(hi / lo - 1.0 <= rtol):
+                break
+            node = 2 * node + np.where(up, 1, 2)
     v = np.sqrt(lo * hi)
     return v, r_of(v), bool(np.all(hi / lo - 1.0 <= rtol))
+
+
+#: Halvings of the detector-level bisection looked ahead per call of the detector model: every midpoint
+#: the next few halvings can reach is worked out at once (2**LEVEL_LOOKAHEAD − 1 of them), then the
+#: halvings are taken one by one as before; the same midpoints, so the same answer, in fewer calls.
+LEVEL_LOOKAHEAD = 4
+
+
+def _reachable_midpoints(lo, hi, depth) -> np.ndarray:
+    """Midpoints √(lo·hi) of every bracket the next ``depth`` halvings can reach, shape (2**depth − 1, ...):
+    node i's bracket halves to node 2i + 1 (the root below the midpoint) or 2i + 2 (above it)."""
+    brackets = [(lo, hi)]
+    mids = []
+    for i in range(2 ** depth - 1):
+        a, b = brackets[i]
+        m = np.sqrt(a * b)
+        mids.append(m)
+        if 2 * i + 2 < 2 ** depth - 1:
+            brackets += [(a, m), (m, b)]
+    return np.stack(mids)
 
 
 class StationLevels(NamedTuple):
@@ -300,8 +328,12 @@ def station_levels_stack(frequency, open_circuit_voltage, za: Callable, parts_st
 
     Parameters
     ----------
-    frequency, open_circuit_voltage, za, diode, load, table
+    frequency, diode, load, table
         As :func:`station_levels`; the same stations for every network.
+    open_circuit_voltage : ndarray, shape (n,) or (P, n)
+        Aerial EMF of each station, RMS, for every network or for each. [V]
+    za : callable, or ndarray of complex, shape (P, n)
+        Aerial impedance za(f), or each network's source impedance at the stations. [ohm]
     parts_stack : sequence of NetworkParts, or NetworkStack
         P networks (couplings, taps, coils), or them prepared (:func:`aerial.models.network.plan_network_stack`).
 
@@ -331,10 +363,11 @@ def station_levels_stack(frequency, open_circuit_voltage, za: Callable, parts_st
     v_oc = np.asarray(open_circuit_voltage, dtype=float)
     plan = parts_stack if isinstance(parts_stack, net_mod.NetworkStack) else net_mod.plan_network_stack(parts_stack)
     n_p = plan.size
-    z_s = za(fs)
+    z_s = za(fs) if callable(za) else np.asarray(za, dtype=complex)
     g = np.full((n_p,) + fs.shape, weak_signal_conductance(diode))
     # the weak-signal tuning and the bare network (no capacitor, no detector) in one stacked solve
-    first = net_mod.solve_network_stack(fs, z_s, plan.repeated(2), 0.0, np.concatenate([g, np.zeros_like(g)]))
+    first = net_mod.solve_network_stack(fs, np.concatenate([z_s, z_s]) if z_s.ndim == 2 else z_s, plan.repeated(2),
+                                        0.0, np.concatenate([g, np.zeros_like(g)]))
     w = 2.0 * np.pi * fs
     c = np.maximum(-np.imag(1.0 / first.top_impedance[:n_p]) / w, 0.0)
     bare = net_mod.solve_network_stack(fs, z_s, plan, c, 0.0)
@@ -344,7 +377,7 @@ def station_levels_stack(frequency, open_circuit_voltage, za: Callable, parts_st
     open_net = net_mod.NetworkSolution(*(x[n_p:, np.newaxis, :] for x in first))
     cross = net_mod.retuned_detector_voltage(open_net, fs[np.newaxis, np.newaxis, :], c[:, :, np.newaxis],
                                              g[:, :, np.newaxis])
-    others = v_oc[np.newaxis, np.newaxis, :] * np.abs(cross)
+    others = v_oc[..., np.newaxis, :] * np.abs(cross)
     zero = np.zeros_like(c)
     return StationLevels(c, v, r_in, zero, ok, zero, zero, others)
 
