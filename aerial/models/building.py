@@ -602,8 +602,9 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     dynamic = {}
     if frequency is not None:
         f = np.atleast_1d(np.asarray(frequency, dtype=float))
-        wall_f = np.stack([np.sum(es.charge_c[:, None] * screened_field_height(body, mid, f, case), axis=0)
-                           / q_aer for case in (0, 1, 2)])
+        z = mid[..., 2:3]  # the static field once, scaled for the building's currents in each case
+        wall_f = np.stack([np.sum(es.charge_c[:, None] * scale_screened_field(
+            phi[..., None], z, building_charge_factor(z, f, body, case)), axis=0) / q_aer for case in (0, 1, 2)])
         dh = roof_loading_length(body.height_m, roof_equivalent_radius(body.footprint))
         dynamic = {
             "effective_height_by_frequency_m": (1 - s)[:, None] * open_effective_height_m + s[:, None] * wall_f,
@@ -632,6 +633,8 @@ BOX_TARGET_PANELS = 400
 #: nearer pairs integrate the panel exactly. [1]
 BOX_NEAR_HALF_DIAGONALS = 5.0
 _BOX_SCREENS: dict = {}
+#: Field heights already worked out, by box and points (the last 32 asked for).
+_FIELD_HEIGHTS: dict = {}
 
 
 @dataclass(frozen=True)
@@ -670,12 +673,20 @@ class BoxScreen:
         Held to [0, z] (the grounded box's induced charge is all of one sign) and 0 inside the box.
         """
         p = np.asarray(points, dtype=float)
+        key = (self.footprint.tobytes(), self.height_m, len(self.charge), p.shape, p.tobytes())
+        found = _FIELD_HEIGHTS.get(key)
+        if found is not None:  # the report's tolerance runs ask again for the same wire's charges
+            return found.copy()
         flat = p.reshape(-1, 3)
         pot = _panels_potential(flat, self) @ self.charge
         z = np.maximum(flat[:, 2], 0.0)
         phi = np.clip(z + pot, 0.0, z)
         inside = (flat[:, 2] < self.height_m) & (plan_distance(flat[:, :2], self.footprint) <= 0.0)
-        return np.where(inside, 0.0, phi).reshape(p.shape[:-1])
+        out = np.where(inside, 0.0, phi).reshape(p.shape[:-1])
+        if len(_FIELD_HEIGHTS) >= 32:
+            _FIELD_HEIGHTS.pop(next(iter(_FIELD_HEIGHTS)))
+        _FIELD_HEIGHTS[key] = out.copy()
+        return out
 
 
 def rectangle_potential_integral(u, v, w, half_u, half_v):
