@@ -353,3 +353,17 @@ def test_coil_helper_and_report_give_the_coils_self_capacitance(write_site, caps
     assert 2.5e-12 < coil["self_capacitance_f"] < 3.2e-12 and coil["self_resonance_hz"] > 4e6
     code, out, err = run(capsys, "report", str(p))
     assert "self-capacitance" in out and "Medhurst" in out
+
+
+def test_a_winding_outside_medhursts_table_is_flagged_in_one_wording_by_coil_and_report(write_site, capsys):
+    # Medhurst's table (Wireless Engineer 1947, from memory) runs over l/D = 0.1-50; 1000 close-wound turns of
+    # 0.5 mm wire on a 5 mm former are 500 mm long on a 5.5 mm winding: l/D = 90.9, past its end
+    sentence = "of its diameter lies outside Medhurst's self-capacitance table (0.1-50): the table's end value is used"
+    code, out, err = run(capsys, "coil", "--diameter", "5 mm", "--wire", "0.5 mm", "--turns", "1000", "--json")
+    assert code == 0, err
+    assert "winding length 90.91 " + sentence in json.loads(out)["warnings"]
+    p = write_site(CROWDED.replace('coil = "230 uH"',
+                                   'coil = { diameter = "5 mm", turns = 1000, gauge = "24 AWG", length = "520 mm" }'))
+    code, out, err = run(capsys, "report", str(p), "--width", "400")
+    assert code == 0, err
+    assert "winding length 94.36" in out and sentence in out

@@ -346,9 +346,9 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
     c_self = coil_mod.medhurst_self_capacitance(d + wd, length)
     out["self_capacitance_f"] = float(c_self.capacitance)
     out["self_resonance_hz"] = float(tank_mod.resonant_frequency(out["inductance_h"], out["self_capacitance_f"]))
-    if not bool(c_self.within_table):
-        out["warnings"].append(f"winding length {length / (d + wd):.2f} of its diameter lies outside Medhurst's "
-                               "self-capacitance table (0.1-50): its end value is used")
+    note = coil_mod.self_capacitance_note(d + wd, length)
+    if note:
+        out["warnings"].append(note)
     loss = coil_mod.coil_loss(f, out["inductance_h"], d, wd, turns, pitch=p, strands=strands, strand_diameter=sd)
     for k, v in loss._asdict().items():
         if isinstance(v, (int, float, np.floating, np.ndarray)):

@@ -319,9 +319,9 @@ def _coil_from_winding(w: CoilWinding, inductance=None, design_freq=1e6):
     d_sheet = w.form_diameter_m + w.wire_diameter_m
     wheeler = coil_mod.wheeler_inductance(d_sheet, turns * pitch, turns)
     c_self = coil_mod.medhurst_self_capacitance(d_sheet, turns * pitch)
-    if not bool(c_self.within_table):
-        notes.append(f"winding length {turns * pitch / d_sheet:.2f} of its diameter lies outside Medhurst's table "
-                     "(0.1-50): the self-capacitance takes the table's end value")
+    note = coil_mod.self_capacitance_note(d_sheet, turns * pitch)
+    if note:
+        notes.append(note)
     info = {
         "turns": float(turns),
         "winding_length_m": float(turns * pitch),

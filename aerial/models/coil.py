@@ -600,6 +600,36 @@ def medhurst_self_capacitance(diameter, length):
     return SelfCapacitance(h * (d * 100.0) * 1e-12, np.asarray(within))
 
 
+def self_capacitance_note(diameter, length):
+    """The caution for a winding outside Medhurst's table, or None inside it.
+
+    Parameters
+    ----------
+    diameter : float
+        Diameter of the winding (to the wire centres). [m]
+    length : float
+        Winding length. [m]
+
+    Returns
+    -------
+    str or None
+        One sentence naming the winding's length-to-diameter ratio, for any
+        output that shows a self-capacitance from :func:`medhurst_self_capacitance`.
+
+    Examples
+    --------
+    >>> self_capacitance_note(0.05, 0.05) is None
+    True
+    >>> self_capacitance_note(0.05, 3.0)[:40]
+    'winding length 60.00 of its diameter lie'
+    """
+    if bool(np.all(medhurst_self_capacitance(diameter, length).within_table)):
+        return None
+    return (f"winding length {float(length) / float(diameter):.2f} of its diameter lies outside Medhurst's "
+            f"self-capacitance table ({MEDHURST_LENGTH_TO_DIAMETER[0]:g}-{MEDHURST_LENGTH_TO_DIAMETER[-1]:g}): "
+            "the table's end value is used")
+
+
 class StrandedRange(NamedTuple):
     better_from: float | None  #: lowest frequency where stranded wire loses less [Hz]
     better_up_to: float | None  #: highest frequency where stranded wire loses less [Hz]
