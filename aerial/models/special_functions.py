@@ -464,10 +464,7 @@ def ellipk(m):
     >>> round(float(ellipk(0.5)), 10)    # A&S Table 17.1, alpha = 45 deg
     1.8540746773
     """
-    m = _elliptic_parameter(m)
-    edge = m == 1.0
-    big_k, _ = _agm_elliptic(np.atleast_1d(np.where(edge, 0.0, m)))
-    return np.where(edge, np.inf, big_k.reshape(m.shape))
+    return _complete_elliptic(m, 0, np.inf)
 
 
 def ellipe(m):
@@ -498,10 +495,15 @@ def ellipe(m):
     >>> round(float(ellipe(0.5)), 10)    # A&S Table 17.1, alpha = 45 deg
     1.350643881
     """
+    return _complete_elliptic(m, 1, 1.0)
+
+
+def _complete_elliptic(m, which, at_one):
+    """K(m) (``which`` 0) or E(m) (1) by the arithmetic-geometric mean, ``at_one`` at m = 1."""
     m = _elliptic_parameter(m)
     edge = m == 1.0
-    _, big_e = _agm_elliptic(np.atleast_1d(np.where(edge, 0.0, m)))
-    return np.where(edge, 1.0, big_e.reshape(m.shape))
+    value = _agm_elliptic(np.atleast_1d(np.where(edge, 0.0, m)))[which]
+    return np.where(edge, at_one, value.reshape(m.shape))
 
 
 def _exp1_series(z):
