@@ -345,3 +345,13 @@ def test_a_tall_block_near_its_own_resonance_is_flagged_in_plain_words(capsys, t
     flat = " ".join(out.replace("│", " ").split())
     assert "nears its own first resonance" in flat and "--full-wave" in flat
     assert not re.search(r"\bnan\b", flat.lower())
+
+
+def test_a_misspelt_construction_names_the_closest_one(capsys, tmp_path):
+    p = tmp_path / "typo.toml"
+    p.write_text(HIGH.read_text(encoding="utf-8").replace('construction = "steel frame"',
+                                                          'construction = "reinforced concret"'), encoding="utf-8")
+    code, out, err = run(capsys, "report", str(p))
+    assert code == 2
+    assert 'did you mean "reinforced concrete"?' in err and "building.construction" in err
+    assert len(err.strip().splitlines()) == 1

@@ -20,7 +20,7 @@ import shapely
 from shapely.geometry import Point, Polygon
 
 from aerial.site.plan import STRUCTURES
-from aerial.site.reader import Site, TableReader
+from aerial.site.reader import Site, TableReader, choice_words
 
 #: Words accepted for ``construction``, each to its canonical structure.
 CONSTRUCTION_WORDS = {s: s for s in STRUCTURES} | {"timber": "timber frame", "steel": "steel frame",
@@ -110,7 +110,7 @@ def _from_table(r: TableReader, t: dict, site: Site) -> SiteBuilding:
     else:
         norm = str(word).strip().lower() if isinstance(word, str) else ""
         if norm not in CONSTRUCTION_WORDS:
-            r.fail(f"{key}.construction", word, "expected one of " + ", ".join(f'"{s}"' for s in STRUCTURES))
+            r.fail(f"{key}.construction", word, choice_words(norm, STRUCTURES))
         construction = CONSTRUCTION_WORDS[norm]
     floor = r.length(t, key, "balcony_floor", minimum=0.0)
     if floor is not None and floor >= height:
