@@ -193,6 +193,16 @@ def facade_field_height(distance, height, wall_height):
 def footprint_area(footprint):
     """Plan area of a polygon (shoelace formula). [m^2]
 
+    Parameters
+    ----------
+    footprint : array_like, shape (K, 2)
+        Plan corners in order around the edge. [m]
+
+    References
+    ----------
+    The shoelace (surveyor's) formula, A = |sum (x_i y_(i+1) - x_(i+1) y_i)| / 2; e.g. M. Abramowitz and
+    I. A. Stegun, *Handbook of Mathematical Functions*, 1964, 25.2 area of a polygon. (from memory)
+
     Examples
     --------
     >>> float(footprint_area([[0, 0], [24, 0], [24, 12], [0, 12]]))
@@ -205,6 +215,16 @@ def footprint_area(footprint):
 
 def roof_equivalent_radius(footprint):
     """Radius of the disc with the roof's area, sqrt(A / pi): the building's equivalent radius. [m]
+
+    Parameters
+    ----------
+    footprint : array_like, shape (K, 2)
+        Plan corners in order around the edge. [m]
+
+    References
+    ----------
+    The equal-area disc as the roof's stand-in for its capacitance 8 eps0 a (module references [2], Jackson
+    sec. 3.13) and the line's radius in Z0 = 60 [ln(2H/a) - 1] ([3], Schelkunoff & Friis). (from memory)
 
     Examples
     --------
@@ -323,6 +343,18 @@ def building_limit_frequency(height, loading_length):
     (the left side rises and bends down, so from u = 1 / (H + Delta h) the
     iterates climb to the root), f = u c / 2 pi.
 
+    Parameters
+    ----------
+    height : float
+        Roof height. [m]
+    loading_length : float
+        The roof's end correction Delta h (:func:`roof_loading_length`). [m]
+
+    References
+    ----------
+    The one-radian limit is Wheeler's radian length lambda / 2 pi (module reference [6]); the top-loaded
+    line's electrical height k H + delta with tan delta = k Delta h, Laport ([5]). (from memory)
+
     Examples
     --------
     >>> round(building_limit_frequency(21.0, 5.834) / 1e6, 3)
@@ -409,6 +441,20 @@ def dynamic_field_height(distance, height, wall_height, factor):
     """The two-dimensional wall's field (:func:`facade_field_height`) scaled by ``factor``
     (:func:`scale_screened_field`): the check of the building's currents on an infinitely long wall. [m]
 
+    Parameters
+    ----------
+    distance, height : array_like
+        In front of the wall and above the ground. [m]
+    wall_height : float
+        The wall's height. [m]
+    factor : array_like
+        The building's induced-charge factor F (:func:`induced_charge_factor`). [1]
+
+    References
+    ----------
+    Smythe's conformal map of the grounded plane with a perpendicular strip (module reference [1]_) and the
+    receiving line of King ([4]). (from memory)
+
     Examples
     --------
     >>> static = facade_field_height(1.6, 12.6, 21.0)
@@ -428,6 +474,11 @@ def screened_field_height(body: BuildingBody, points, frequency=None, case: int 
     frequency axis is the last: points (..., 3) and frequencies (F,) give
     (..., F). The building's own currents enter by :func:`building_charge_factor`
     and :func:`scale_screened_field`.
+
+    References
+    ----------
+    Harrington's electrostatic moment solution of the box (module reference [7]) and King's receiving line
+    ([4]). (from memory)
 
     Examples
     --------
