@@ -452,7 +452,7 @@ def dynamic_field_height(distance, height, wall_height, factor):
 
     References
     ----------
-    Smythe's conformal map of the grounded plane with a perpendicular strip (module reference [1]_) and the
+    Smythe's conformal map of the grounded plane with a perpendicular strip (module reference [1]) and the
     receiving line of King ([4]). (from memory)
 
     Examples
