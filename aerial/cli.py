@@ -16,6 +16,7 @@ import time
 
 from aerial.core.version import __version__
 from aerial.core.errors import AerialError, SafetyRefusal
+from aerial.core.units import closest_word
 
 EXIT_OK = 0
 EXIT_USER = 2
@@ -89,15 +90,14 @@ class _Parser(argparse.ArgumentParser):
 
 def _closest_choice(message: str) -> str:
     """'; did you mean "report"?' for argparse's invalid-choice message when a choice is close, else ''."""
-    import difflib
     import re
 
     m = re.search(r"invalid choice: '([^']*)' \(choose from (.*)\)", message)
     if not m:
         return ""
     choices = [c.strip().strip("'\"") for c in m.group(2).split(",")]
-    close = difflib.get_close_matches(m.group(1).lower(), choices, n=1, cutoff=0.6)
-    return f'; did you mean "{close[0]}"?' if close else ""
+    close = closest_word(m.group(1).lower(), choices)
+    return f'; did you mean "{close}"?' if close else ""
 
 
 #: Width of the report when stdout is not a terminal and no --width is given: prose wraps here,

@@ -21,6 +21,24 @@ import re
 from decimal import Decimal
 from fractions import Fraction
 
+#: The international foot, exact by definition (NIST SP 811). [m]
+FOOT_M = 0.3048
+
+
+def closest_word(word, choices):
+    """The one of ``choices`` closest to ``word`` when it is close enough to be a slip, else None.
+
+    >>> closest_word("reprot", ["report", "layout", "check"])
+    'report'
+    >>> closest_word("xyz", ["report"]) is None
+    True
+    """
+    import difflib
+
+    near = difflib.get_close_matches(word, list(choices), n=1, cutoff=0.6)
+    return near[0] if near else None
+
+
 # metres per unit (NIST SP 811: the foot, inch, yard and international mile are exact)
 LENGTH_UNITS: dict[str, float] = {
     "m": 1.0,
@@ -31,9 +49,9 @@ LENGTH_UNITS: dict[str, float] = {
     "cm": 0.01,
     "mm": 0.001,
     "km": 1000.0,
-    "ft": 0.3048,
-    "foot": 0.3048,
-    "feet": 0.3048,
+    "ft": FOOT_M,
+    "foot": FOOT_M,
+    "feet": FOOT_M,
     "in": 0.0254,
     "inch": 0.0254,
     "inches": 0.0254,
@@ -124,10 +142,8 @@ def find_unit(written: str, units: dict[str, float], number: str = "1") -> str:
     key = written.casefold()
     matches = [u for u in units if u.casefold() == key]
     if not matches:
-        import difflib
-
-        near = difflib.get_close_matches(written, list(units), n=1, cutoff=0.6)
-        raise UnitError(f"unknown unit \"{written}\"" + (f" (did you mean \"{near[0]}\"?)" if near else ""))
+        near = closest_word(written, units)
+        raise UnitError(f"unknown unit \"{written}\"" + (f" (did you mean \"{near}\"?)" if near else ""))
     readings: dict[str, float] = {u: units[u] for u in matches}
     # the same letters with the prefix in the other case: an SI unit of its own ("Mm" is a megametre)
     first, rest = written[0], written[1:]

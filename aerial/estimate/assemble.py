@@ -17,6 +17,7 @@ from aerial.core.arrays import sorted_unique
 from aerial.core.version import __version__
 from aerial.estimate.plain import finalise
 from aerial.core.errors import AerialError, ModelInputError
+from aerial.core.units import FOOT_M
 from aerial.geometry.resolve import EARTH_ROLES, resolve, wires_json
 from aerial.estimate.cautions import cautions_for
 from aerial.site.reader import JOIN_TOLERANCE_M, MAX_POINTS_PER_BAND, check_sweep_size
@@ -42,8 +43,6 @@ WHAT_IF_STAND_OFF_M = 2.0
 WHAT_IF_COUNTERPOISE_DROP_M = 1.0
 #: The far-edge move is offered when it takes part of the wire at least this much further from the facade. [m]
 WHAT_IF_FAR_EDGE_MIN_GAIN_M = 0.3
-#: Exact by definition (NIST SP 811). [m]
-FOOT_M = 0.3048
 #: The what-if steps in round figures of each unit system (raise, extend, stand-off, radial length), in metres:
 #: under "us" 10 ft, 30 ft, 6 ft and 30 ft, so the table offers what a tape in feet measures. [m]
 WHAT_IF_STEPS_M = {

@@ -21,7 +21,7 @@ from importlib import resources
 from pathlib import Path
 
 from aerial.core.version import __version__
-from aerial.outputs.terminal import eng, quantities_kept_html
+from aerial.outputs.terminal import NO_SPREAD, eng, quantities_kept_html
 
 #: Content-Security-Policy of the page: nothing may be fetched and no script may run.
 CSP = "default-src 'none'; style-src 'unsafe-inline'; img-src data:; base-uri 'none'; form-action 'none'"
@@ -104,7 +104,7 @@ def range_text(pair, unit: str) -> str:
     if not pair or pair[0] is None or pair[1] is None:
         return ""
     lo, hi = eng(pair[0], unit), eng(pair[1], unit)
-    return "no spread" if lo == hi else f"{lo} – {hi}"
+    return NO_SPREAD if lo == hi else f"{lo} – {hi}"
 
 
 # --------------------------------------------------------------------------- building blocks

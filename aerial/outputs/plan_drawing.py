@@ -19,6 +19,7 @@ from xml.sax.saxutils import escape
 import numpy as np
 
 from aerial.core.errors import AerialError
+from aerial.core.units import FOOT_M
 from aerial.outputs.files import write_atomic
 
 PICTURE_SUFFIXES = (".svg", ".png")
@@ -27,8 +28,6 @@ WIDTH_PX = 900
 MARGIN_PX = 50
 #: Metres of surroundings drawn around the lot, buildings and supports.
 VIEW_MARGIN_M = 8.0
-#: Exact by definition (NIST SP 811). [m]
-FOOT_M = 0.3048
 UNIT_SYSTEMS = ("si", "us")
 
 #: Okabe–Ito colours (distinct under the common colour-vision deficiencies); shapes and labels carry the meaning too.

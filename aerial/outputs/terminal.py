@@ -21,7 +21,7 @@ from rich.table import Table
 from rich.markup import escape
 from rich.text import Text
 
-from aerial.core.units import length_text
+from aerial.core.units import FOOT_M, length_text
 
 
 # --------------------------------------------------------------------------- keeping numbers with their units
@@ -148,7 +148,6 @@ def span(pair, unit: str) -> str:
 
 
 #: Exact by definition (NIST SP 811): 1 ft = 0.3048 m, 1 in = 0.0254 m, 1 mi = 1609.344 m.
-FOOT_M = 0.3048
 INCH_M = 0.0254
 MILE_M = 1609.344
 

@@ -485,20 +485,15 @@ def choice_words(value, choices) -> str:
     >>> choice_words("hous", ("house", "apartment"))
     'did you mean "house"? expected one of "house", "apartment"'
     """
-    import difflib
-
-    near = difflib.get_close_matches(str(value).strip().lower(), list(choices), n=1, cutoff=0.6)
-    hint = f'did you mean "{near[0]}"? ' if near else ""
+    near = units.closest_word(str(value).strip().lower(), choices)
+    hint = f'did you mean "{near}"? ' if near else ""
     return hint + "expected one of " + ", ".join(f'"{c}"' for c in choices)
 
 
 def unknown_key_words(name, allowed) -> str:
     """ "unknown key; did you mean ...? expected one of ..." for a key not in ``allowed``."""
-    import difflib
-
-    near = difflib.get_close_matches(str(name).strip().lower().replace("-", "_").replace(" ", "_"),
-                                     sorted(allowed), n=1, cutoff=0.6)
-    hint = f'did you mean "{near[0]}"? ' if near else ""
+    near = units.closest_word(str(name).strip().lower().replace("-", "_").replace(" ", "_"), sorted(allowed))
+    hint = f'did you mean "{near}"? ' if near else ""
     return f"unknown key; {hint}expected one of " + ", ".join(sorted(allowed))
 
 
