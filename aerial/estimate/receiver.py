@@ -100,7 +100,6 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     m = (f >= lo - 1e-6) & (f <= hi + 1e-6)
     warnings: list[str] = []
     tuning = reception.design_tuning(f[m], r[m], x[m], parts, band=(lo, hi), range_curve=True)
-    tuning = dict(tuning)
     curve = tuning.pop("range_curve", None)
     curve_error = tuning.pop("range_curve_error", None)
     tuning["band"] = {"name": name, "from_hz": lo, "to_hz": hi}
@@ -346,7 +345,7 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
     c_self = coil_mod.medhurst_self_capacitance(d + wd, length)
     out["self_capacitance_f"] = float(c_self.capacitance)
     out["self_resonance_hz"] = float(tank_mod.resonant_frequency(out["inductance_h"], out["self_capacitance_f"]))
-    note = coil_mod.self_capacitance_note(d + wd, length)
+    note = coil_mod.self_capacitance_note(c_self, d + wd, length)
     if note:
         out["warnings"].append(note)
     loss = coil_mod.coil_loss(f, out["inductance_h"], d, wd, turns, pitch=p, strands=strands, strand_diameter=sd)

@@ -319,7 +319,7 @@ def _coil_from_winding(w: CoilWinding, inductance=None, design_freq=1e6):
     d_sheet = w.form_diameter_m + w.wire_diameter_m
     wheeler = coil_mod.wheeler_inductance(d_sheet, turns * pitch, turns)
     c_self = coil_mod.medhurst_self_capacitance(d_sheet, turns * pitch)
-    note = coil_mod.self_capacitance_note(d_sheet, turns * pitch)
+    note = coil_mod.self_capacitance_note(c_self, d_sheet, turns * pitch)
     if note:
         notes.append(note)
     info = {

@@ -600,11 +600,13 @@ def medhurst_self_capacitance(diameter, length):
     return SelfCapacitance(h * (d * 100.0) * 1e-12, np.asarray(within))
 
 
-def self_capacitance_note(diameter, length):
+def self_capacitance_note(self_capacitance, diameter, length):
     """The caution for a winding outside Medhurst's table, or None inside it.
 
     Parameters
     ----------
+    self_capacitance : SelfCapacitance
+        What :func:`medhurst_self_capacitance` gave for this winding.
     diameter : float
         Diameter of the winding (to the wire centres). [m]
     length : float
@@ -618,12 +620,12 @@ def self_capacitance_note(diameter, length):
 
     Examples
     --------
-    >>> self_capacitance_note(0.05, 0.05) is None
+    >>> self_capacitance_note(medhurst_self_capacitance(0.05, 0.05), 0.05, 0.05) is None
     True
-    >>> self_capacitance_note(0.05, 3.0)[:40]
+    >>> self_capacitance_note(medhurst_self_capacitance(0.05, 3.0), 0.05, 3.0)[:40]
     'winding length 60.00 of its diameter lie'
     """
-    if bool(np.all(medhurst_self_capacitance(diameter, length).within_table)):
+    if bool(np.all(self_capacitance.within_table)):
         return None
     return (f"winding length {float(length) / float(diameter):.2f} of its diameter lies outside Medhurst's "
             f"self-capacitance table ({MEDHURST_LENGTH_TO_DIAMETER[0]:g}-{MEDHURST_LENGTH_TO_DIAMETER[-1]:g}): "
