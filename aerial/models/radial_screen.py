@@ -79,17 +79,17 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from aerial.core.constants import EPSILON_0 as epsilon_0
 from aerial.core.constants import MU_0 as mu_0
 from aerial.core.constants import SPEED_OF_LIGHT as C0
 from aerial.core.errors import ModelInputError
+from aerial.models.groundwave import complex_relative_permittivity
+from aerial.models.short_aerial import ETA0
 from aerial.models.special_functions import ellipe, exp1
 
 __all__ = ["soil_surface_impedance", "wait_screen_impedance", "radial_screen_impedance", "vertical_ground_field",
            "radial_screen_loss", "RadialScreenLoss", "FAR_WAVELENGTHS", "static_ground_field", "screen_loss_of_field",
            "screen_loss_by_length"]
 
-ETA0 = mu_0 * C0  #: Impedance of free space. [ohm]
 #: Distance beyond which the field is taken in its far form (the rest of the integral in closed form). [wavelengths]
 FAR_WAVELENGTHS = 3.0
 #: Integration points per e-fold of distance (trapezoid in ln r) and along the vertical (Gauss-Legendre). [1]
@@ -124,9 +124,7 @@ def soil_surface_impedance(frequency, conductivity, relative_permittivity):
     >>> round(float(z.real), 3), round(float(z.imag), 3)
     (0.889, 0.888)
     """
-    omega = 2 * np.pi * np.asarray(frequency, float)
-    eps_c = relative_permittivity - 1j * conductivity / (omega * epsilon_0)
-    return ETA0 / np.sqrt(eps_c)
+    return ETA0 / np.sqrt(complex_relative_permittivity(relative_permittivity, conductivity, frequency))
 
 
 def wait_screen_impedance(frequency, distance, count, wire_radius):
