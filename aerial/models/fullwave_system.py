@@ -38,7 +38,6 @@ import numpy as np
 import scipy.linalg as sla
 import scipy.sparse as sp
 from aerial.core.constants import SPEED_OF_LIGHT as C0
-from aerial.core.constants import MU_0 as mu_0
 
 from aerial.core.threads import blas_threads
 from aerial.models.fullwave_fields import ETA0, complex_permittivity, fresnel_reflection
@@ -47,25 +46,13 @@ from aerial.models.fullwave_halfspace import remainder_matrices
 from aerial.models.fullwave_kernel import Filler
 from aerial.models.sommerfeld import sommerfeld_table
 
-try:  # the shared conductor model
-    from aerial.models.conductor import internal_impedance_per_m as _internal_impedance
-except ImportError:  # pragma: no cover - private fallback
-    _internal_impedance = None
+from aerial.models.conductor import internal_impedance_per_m
 
 #: Highest Taylor order of a band table before the band is split. [1]
 MAX_SERIES_ORDER = 16
 #: Relative change of the input impedance between the band table and a direct
 #: fill above which the table's order is raised. [1]
 SERIES_CHECK_TOLERANCE = 1e-7
-
-
-def _internal_impedance_fallback(radius, frequency, resistivity, relative_permeability):
-    """Skin-effect internal impedance per metre (private fallback, Bessel form)."""
-    from scipy.special import ive
-
-    gamma = np.sqrt(1j * 2 * np.pi * frequency * mu_0 * relative_permeability / resistivity)
-    ga = gamma * radius
-    return gamma * resistivity / (2 * np.pi * radius) * ive(0, ga) / ive(1, ga)
 
 
 def wire_impedance_per_m(radius, frequency, resistivity, relative_permeability):
@@ -90,14 +77,13 @@ def wire_impedance_per_m(radius, frequency, resistivity, relative_permeability):
     Notes
     -----
     Uses :func:`aerial.models.conductor.internal_impedance_per_m` (the exact
-    Bessel form of Ramo, Whinnery and Van Duzer) when it is available.
+    Bessel form of Ramo, Whinnery and Van Duzer).
     """
     radius, frequency, resistivity, mur = np.broadcast_arrays(radius, frequency, resistivity, relative_permeability)
     out = np.zeros(radius.shape, dtype=complex)
     ok = resistivity > 0
     if np.any(ok):
-        fn = _internal_impedance if _internal_impedance is not None else _internal_impedance_fallback
-        out[ok] = np.asarray(fn(radius[ok], frequency[ok], resistivity[ok], mur[ok]), dtype=complex)
+        out[ok] = np.asarray(internal_impedance_per_m(radius[ok], frequency[ok], resistivity[ok], mur[ok]), dtype=complex)
     return out
 
 
