@@ -380,6 +380,28 @@ def building_charge_factor(height, frequency, body: BuildingBody, case: int = 1)
     uncertainty, either way. Above :func:`building_limit_frequency` every
     case is held at its value there.
 
+    Parameters
+    ----------
+    height : array_like
+        Height above the ground where the factor is wanted. [m]
+    frequency : array_like
+        [Hz]
+    body : BuildingBody
+        The building (its height and footprint give the line and its roof).
+    case : int
+        0, 1 or 2 as above. [1]
+
+    Returns
+    -------
+    ndarray
+        F for each height and frequency (broadcast). [1]
+
+    References
+    ----------
+    The line is King's receiving antenna with Laport's top loading (module references [4], [5]; from memory).
+    The spread of cases 0 and 2 around case 1 is this project's own bound on the roof's share, not a published
+    figure.
+
     Examples
     --------
     >>> body = BuildingBody([[0, 0], [24, 0], [24, 12], [0, 12]], 21.0, "steel frame")
@@ -423,6 +445,12 @@ def scale_screened_field(static, height, factor):
     ground) carries the one into the other. An interpolation between the two
     limits, each exact; checked against the full-wave grid in
     docs/models-building.md.
+
+    References
+    ----------
+    The limits: Gauss's law at a conductor's surface and the static field far from it (Jackson sec. 1.6, module
+    reference [2]; from memory). The interpolation between them is this project's own, a consistency check
+    against the project's full-wave grid (table in docs/models-building.md).
 
     Examples
     --------
