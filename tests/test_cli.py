@@ -12,7 +12,7 @@ import pytest
 from aerial.cli import main
 from aerial.estimate.reception import VERDICTS
 
-from .conftest import EXAMPLES, MINIMAL, run
+from .conftest import EXAMPLES, MINIMAL, ROOT, run
 
 REQUIRED_AERIAL_KEYS = (
     "capacitance_f", "effective_height_m", "radiation_resistance_ohm", "impedance_ohm",
@@ -367,3 +367,23 @@ def test_a_winding_outside_medhursts_table_is_flagged_in_one_wording_by_coil_and
     code, out, err = run(capsys, "report", str(p), "--width", "400")
     assert code == 0, err
     assert "winding length 94.36" in out and sentence in out
+
+
+def test_consistency_check_stations_are_heard_with_the_coil_the_tuning_designs(capsys, tmp_path):
+    # A two-band site (LF and MF) that gives no coil: the tuning designs one for its primary band; the station
+    # verdicts and the design for the stations must use that same coil, not one designed over the whole sweep.
+    text = (ROOT / "site_examples" / "rural_long_wire.toml").read_text(encoding="utf-8")
+    bare = tmp_path / "no_coil.toml"
+    bare.write_text("\n".join(l for l in text.splitlines() if not l.startswith("coil = ")), encoding="utf-8")
+    code, out, err = run(capsys, "report", str(bare), "--json")
+    assert code == 0, err
+    designed = json.loads(out)
+    inductance = designed["tuning"]["coil"]["inductance_h"]
+    assert designed["tuning"]["station_design"]["current"]["coil_inductance_h"] == inductance
+    given = tmp_path / "given_coil.toml"
+    given.write_text(text.replace('coil = "250 uH"', f'coil = "{inductance * 1e6!r} uH"'), encoding="utf-8")
+    code, out, err = run(capsys, "report", str(given), "--json")
+    assert code == 0, err
+    written = json.loads(out)
+    for a, b in zip(designed["stations"], written["stations"]):
+        assert a["detector_power_w"] == pytest.approx(b["detector_power_w"], rel=1e-9), a["name"]

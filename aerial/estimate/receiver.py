@@ -121,7 +121,7 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     stations = []
     if site.stations:
         own = station_effective_heights(site, f, resp)
-        stations, night_warnings = _stations_day_and_night(site, f, r, x, rr, he, parts, own)
+        stations, night_warnings = _stations_day_and_night(site, f, r, x, rr, he, parts, own, band=(lo, hi))
         warnings += night_warnings
         day = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
                                  s.soil.conductivity_s_m, effective_height_m=h) for s, h in zip(site.stations, own)]
@@ -160,7 +160,7 @@ def station_effective_heights(site, freqs, resp) -> list:
     return out
 
 
-def _stations_day_and_night(site, f, r, x, rr, he, parts, own=None) -> tuple[list, list]:
+def _stations_day_and_night(site, f, r, x, rr, he, parts, own=None, band=None) -> tuple[list, list]:
     """Station verdicts by day (ground wave) and by night (ground plus sky wave), each against its noise floor."""
     from aerial.estimate import night
 
@@ -181,7 +181,7 @@ def _stations_day_and_night(site, f, r, x, rr, he, parts, own=None) -> tuple[lis
 
     stations, by_night = reception.assess_stations_by_condition(f, r, x, rr, he, parts,
                                                                 [condition("day"), condition("night")],
-                                                                noise_category=category)
+                                                                noise_category=category, band=band)
     for i, (s, n, sky, src) in enumerate(zip(stations, by_night, skies, site.stations)):
         s.setdefault("power_w", src.power_w)
         s.setdefault("distance_m", src.distance_m)

@@ -1449,7 +1449,7 @@ def assess_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, eff
 
 def assess_stations_by_condition(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m,
                                  parts: TuningParts, conditions, noise_category="residential",
-                                 modulation_depth=det_mod.DEFAULT_MODULATION_DEPTH) -> list:
+                                 modulation_depth=det_mod.DEFAULT_MODULATION_DEPTH, band=None) -> list:
     """The same stations judged under several conditions (by day, by night) in one vectorised pass.
 
     Parameters
@@ -1459,6 +1459,10 @@ def assess_stations_by_condition(frequency_hz, aerial_r_ohm, aerial_x_ohm, aeria
     conditions : sequence of sequences of Station
         One list of stations per condition, each the same stations (names and frequencies) with
         that condition's sky-wave field and atmospheric noise.
+    band : (float, float), optional
+        The band a coil is designed for when the parts give none, as :func:`design_tuning` was
+        given it, so the stations are heard with the coil the tuning shows; default the whole
+        frequency sweep. [Hz]
 
     Returns
     -------
@@ -1498,7 +1502,7 @@ def assess_stations_by_condition(frequency_hz, aerial_r_ohm, aerial_x_ohm, aeria
     common: list = []
     diode = _diode(parts)
     _apply_calibration(aerial, parts, diode, common)
-    coil = _station_coil(aerial, parts)
+    coil = _station_coil(aerial, parts, band)
     together = _station_arrays(aerial, coil, parts, diode, every, noise_category, modulation_depth)
     return [_judged_rows(aerial, parts, stations, _condition_arrays(together, k * n, (k + 1) * n), common)
             for k, stations in enumerate(conditions)]
@@ -1542,12 +1546,12 @@ def _check_stations(stations):
                 raise ModelInputError(f"station '{s.name}': {name} must be positive, got {v!r}")
 
 
-def _station_coil(aerial, parts) -> _Coil:
-    """The coil the stations are heard with: given, from its winding, or designed for the band."""
+def _station_coil(aerial, parts, band=None) -> _Coil:
+    """The coil the stations are heard with: given, from its winding, or designed for the band (default the sweep)."""
     if not _coil_given(parts):
         if parts.capacitor_min_f is None:
             raise ModelInputError("give the coil (inductance or winding) or the capacitor range to design one")
-        band = (aerial.f[0], aerial.f[-1])
+        band = (aerial.f[0], aerial.f[-1]) if band is None else (float(band[0]), float(band[1]))
         return _designed_coil(band, aerial, parts, [])
     return _resolve_coil(parts)
 
@@ -1802,7 +1806,7 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
     if not wanted or (parts.capacitor_min_f is None and not coil_given):
         return None
     aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m)
-    scene, base = _design_scene(aerial, parts, wanted, spacing_hz)
+    scene, base = _design_scene(aerial, parts, wanted, spacing_hz, (lo, hi))
     rows, current = _design_rows(scene, aerial, parts, base, (lo, hi))
     if parts.capacitor_min_f is not None:
         reach = (current["capacitance_f"] >= parts.capacitor_min_f) & (current["capacitance_f"] <= parts.capacitor_max_f)
@@ -1871,7 +1875,7 @@ def _remedy_design_words(row, which, as_wired, capacitor_given, same) -> str:
     return f"for the suggested design ({how}{cap_words})"
 
 
-def _design_scene(aerial, parts, wanted, spacing_hz):
+def _design_scene(aerial, parts, wanted, spacing_hz, band=None):
     """The design's :class:`station_design.Scene` (aerial EMF of each wanted station) and the site's coil."""
     diode = _diode(parts)
     _apply_calibration(aerial, parts, diode, [])
@@ -1882,7 +1886,7 @@ def _design_scene(aerial, parts, wanted, spacing_hz):
     emf = np.hypot(gw.field, [s.sky_wave_field_v_per_m for s in wanted]) * _station_heights(aerial, wanted, fs)
     margin = DEFAULT_INTERFERENCE_MARGIN_DB if parts.interference_margin_db is None else parts.interference_margin_db
     load = float(parts.earphone_ohm)
-    base = _station_coil(aerial, parts)
+    base = _station_coil(aerial, parts, band)
     scene = sd_mod.Scene(_za(aerial), base.q, fs, emf, [s.name for s in wanted], diode, load,
                          _threshold_voltage(1.0, diode, load), float(margin), float(spacing_hz),
                          tn_mod.input_resistance_table(diode, load))
