@@ -646,11 +646,13 @@ def _ok_range(ok, lo, hi, points=48, refine=20):
     return float(ends[0]), float(ends[1])
 
 
-def watts_words(p: float) -> str:
-    """A power with an SI prefix, two figures, as people read it: 2.3e-08 -> '23 nW'.
+def watts_words(p: float, digits: int = 2) -> str:
+    """A power with an SI prefix, ``digits`` figures (two by default), as people read it: 2.3e-08 -> '23 nW'.
 
     >>> watts_words(2.3e-08), watts_words(1e-10), watts_words(1.4e-13), watts_words(2.4e-21)
     ('23 nW', '100 pW', '140 fW', 'less than 0.01 fW')
+    >>> watts_words(2.734e-9, 3), watts_words(999.7e-12, 3)
+    ('2.73 nW', '1 nW')
     """
     p = float(p)
     if not p >= 1e-17:
@@ -658,8 +660,8 @@ def watts_words(p: float) -> str:
     for scale, prefix in ((1.0, ""), (1e-3, "m"), (1e-6, "µ"), (1e-9, "n"), (1e-12, "p"), (1e-15, "f")):
         if p >= scale * 0.9995 or prefix == "f":
             x = p / scale
-            return f"{x:.2g} {prefix}W" if x < 99.5 else f"{x:.0f} {prefix}W"
-    return f"{p:.2g} W"
+            return f"{x:.{digits}g} {prefix}W" if x < 10 ** digits - 0.5 else f"{x:.0f} {prefix}W"
+    return f"{p:.{digits}g} W"
 
 
 def _pf(c):
@@ -2093,14 +2095,10 @@ def _design_line(r, cur, margin, capacitor_words) -> str:
 
 
 def eng_w(p) -> str:
-    """A detector power in words, e.g. '2.73 nW'."""
+    """A detector power in words, three figures, e.g. '2.73 nW' (:func:`watts_words`)."""
     if not p or p <= 0:
         return "nothing (out of the capacitor's reach)"
-    exp = int(np.floor(np.log10(p) / 3.0)) * 3
-    prefix = {-18: "a", -15: "f", -12: "p", -9: "n", -6: "µ", -3: "m", 0: ""}.get(exp)
-    if prefix is None:
-        return f"{p:.3g} W"
-    return f"{p / 10.0**exp:.3g} {prefix}W"
+    return watts_words(p, 3)
 
 
 #: Said with the design's words (the design never costs the weakest station more than this unless it
