@@ -39,7 +39,7 @@ CONDUCTION_CURRENT_A = 1e-3
 
 #: Default relative tolerance of the loaded-detector solver. [1]
 DETECTOR_RTOL = 1e-10
-#: Default iteration limit of the loaded-detector solver (bisection halvings).
+#: Default iteration limit of the loaded-detector solver (Newton steps, with halving as a guard). [1]
 DETECTOR_MAX_ITER = 200
 
 #: Default modulation depth of an AM broadcast for audio estimates (assumption: a typical average). [1]
