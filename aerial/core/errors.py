@@ -35,6 +35,10 @@ class SiteError(AerialError):
     @property
     def message(self) -> str:
         where = self.file if self.line is None else f"{self.file}:{self.line}"
+        if self.key and isinstance(self.value, dict):  # a whole table: named as the file writes it
+            return f"{where}: [{self.key}]: {self.expected}"
+        if self.key and isinstance(self.value, list) and self.value and all(isinstance(v, dict) for v in self.value):
+            return f"{where}: [[{self.key}]]: {self.expected}"
         if self.key:
             return f"{where}: {self.key} = {_show(self.value)}: {self.expected}"
         if self.value is None or self.value == "":

@@ -123,6 +123,15 @@ SOIL_WORD_ALIASES: dict[str, str] = {
 }
 
 
+#: How good the ground is, in the words people use for it ("average ground"), mapped to the category
+#: whose description fits: common practice, not a published table. The note names the category's
+#: conductivity so the reader sees what was assumed.
+GROUND_QUALITY_WORDS: dict[str, str] = {
+    "very good": "wet", "good": "wet", "average": "intermediate", "typical": "intermediate", "fair": "medium-dry",
+    "poor": "dry", "very poor": "very-dry",
+}
+
+
 def soil_category(written: str) -> tuple[str, str] | None:
     """The category for a soil name or a homeowner's word, with a note when a word was mapped.
 
@@ -132,10 +141,20 @@ def soil_category(written: str) -> tuple[str, str] | None:
     'wet'
     >>> soil_category("medium dry")
     ('medium-dry', '')
+    >>> soil_category("average ground")[0]
+    'intermediate'
+
     """
     norm = " ".join(str(written).strip().lower().replace("_", " ").replace("-", " ").split())
     if norm.replace(" ", "-") in SOILS:
         return norm.replace(" ", "-"), ""
+    quality = norm.removesuffix(" ground").removesuffix(" soil")
+    if quality in GROUND_QUALITY_WORDS:
+        category = GROUND_QUALITY_WORDS[quality]
+        soil = SOILS[category]
+        return category, (f'soil "{str(written).strip()}" is read as the category "{category}" ({soil.description}, '
+                          f'{soil.conductivity_s_m * 1e3:g} mS/m); give [soil] conductivity or resistivity if it '
+                          'has been measured')
     word = SOIL_WORD_ALIASES.get(norm, norm)
     if word not in SOIL_WORDS:
         return None

@@ -241,6 +241,8 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
     written = written.strip()
     if not written:
         raise UnitError(expected + "; a number given as text needs its unit written out")
+    if re.match(r",\d", written):
+        raise UnitError(_comma_words(value) + "; " + expected)
     try:
         unit = find_unit(written, units, match.group(1) if match else "1")
     except UnitError as err:
@@ -258,6 +260,28 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
     except UnitError as err:
         raise UnitError(f"{err.expected}; {expected}") from None
     return float(amount * Fraction(Decimal(repr(units[unit]))))
+
+
+def _comma_words(value: str) -> str:
+    """What to write instead of a number with a comma in it ("1,010 kHz", "2,5 m").
+
+    >>> _comma_words("1,010 kHz")
+    'a comma inside a number could mean thousands or decimals: write "1010 kHz" for thousands or "1.010 kHz" for decimals'
+    >>> _comma_words("2,5 m")
+    'write a point for decimals: "2.5 m"'
+    """
+    text = value.strip()
+    number = re.match(r"[\d,]+", text).group(0)
+    decimal = text.replace(",", ".", 1) if number.count(",") == 1 else None
+    if re.fullmatch(r"\d{1,3}(?:,\d{3})+", number):
+        plain = text.replace(",", "")
+        if not decimal:
+            return f'write the number without thousands separators: "{plain}"'
+        return (f'a comma inside a number could mean thousands or decimals: write "{plain}" for thousands or '
+                f'"{decimal}" for decimals')
+    if decimal:
+        return f'write a point for decimals: "{decimal}"'
+    return "write the number without commas"
 
 
 def _feet_and_inches(value: str) -> float | None:

@@ -130,6 +130,9 @@ HIGH_IMPEDANCE_EARPHONE_OHM = 10_000.0
 LOW_IMPEDANCE_EARPHONE_OHM = 32.0
 
 NOISE_CATEGORIES = ("city", "residential", "rural", "quiet-rural")
+#: Other words for the man-made noise categories: ITU-R P.372's own name for the noisiest
+#: ("business") and the everyday ones ("urban", "suburban").
+NOISE_WORDS = {"business": "city", "urban": "city", "suburban": "residential", "quiet": "quiet-rural"}
 
 #: Named bands [Hz]. MF covers every ITU region's broadcast allocation
 #: (Regions 1/3: 526.5-1606.5 kHz; Region 2: 525-1705 kHz; ITU Radio Regulations).
@@ -355,7 +358,9 @@ class TableReader:
             self.fail(full, value, f"expected one or more [[{full}]] tables")
         return value
 
-    def string(self, data, key, name, default=None, choices=None):
+    def string(self, data, key, name, default=None, choices=None, synonyms=None):
+        """A text value; with ``choices`` one of them (case, "-", "_" and spaces aside), or a word
+        that ``synonyms`` maps to one of them."""
         full = f"{key}.{name}" if key else name
         value = data.get(name, default)
         if value is None:
@@ -367,6 +372,9 @@ class TableReader:
             norm = value.lower().replace("_", " ").replace("-", " ")
             for choice in choices:
                 if norm == choice.replace("-", " "):
+                    return choice
+            for word, choice in (synonyms or {}).items():
+                if norm == word.replace("-", " "):
                     return choice
             self.fail(full, value, choice_words(norm, choices))
         return value
@@ -471,7 +479,11 @@ class TableReader:
         for name in data:
             if name not in allowed:
                 full = f"{key}.{shown_key(name)}" if key else shown_key(name)
-                self.fail(full, data[name], unknown_key_words(name, allowed))
+                words = unknown_key_words(name, allowed)
+                if isinstance(data[name], dict) or (isinstance(data[name], list) and data[name]
+                                                    and all(isinstance(v, dict) for v in data[name])):
+                    words = words.replace("unknown key", "unknown table", 1)
+                self.fail(full, data[name], words)
         if "notes" in data:
             notes = data["notes"]
             ok = isinstance(notes, str) or (isinstance(notes, list) and all(isinstance(n, str) for n in notes))
@@ -610,7 +622,7 @@ def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
                                   "listening_time", "date", "utc_offset", "distance_to_sea", "sea_bearing"})
     name = r.string(site_t, "site", "name", default=Path(path).stem if not path.startswith("<") else "example site")
     region = r.string(site_t, "site", "region")
-    noise = r.string(site_t, "site", "noise", default="residential", choices=NOISE_CATEGORIES)
+    noise = r.string(site_t, "site", "noise", default="residential", choices=NOISE_CATEGORIES, synonyms=NOISE_WORDS)
     bands = _bands(r, site_t)
     steps = _steps(r, site_t)
     if steps:
@@ -720,7 +732,7 @@ def check_sweep_size(bands, step_hz: float, where: str) -> None:
 
 
 SOIL_CHOICES = ("expected a soil category (" + ", ".join(f'"{c}"' for c in SOILS) + ") or a word for the ground ("
-                + ", ".join(f'"{w}"' for w in SOIL_WORDS) + ")")
+                + ", ".join(f'"{w}"' for w in SOIL_WORDS) + ") or how good it is (\"good\", \"average\", \"poor\")")
 
 
 def soil_base(r: TableReader, written, key, notes: list) -> Soil:
@@ -798,25 +810,25 @@ def wire_size(r: TableReader, t: dict, key: str, default: WireSize | None) -> Wi
         return WireSize(units.awg_diameter(14) / 2, material, "14 AWG (default)")
     what = given[0]
     value = t[what]
+    if what == "diameter" and isinstance(value, str) and re.fullmatch(r"\S+\s*(awg|swg)", value.strip(), re.IGNORECASE):
+        what = "gauge"  # "14 AWG" names a diameter too: read it as the gauge it is
     if what == "gauge":
-        import re
-
         text = str(value).strip() if isinstance(value, (str, int)) and not isinstance(value, bool) else None
         m = re.fullmatch(r"(\S+)\s*(awg|swg)", text, re.IGNORECASE) if text else None
         if not m:
-            r.fail(f"{key}.gauge", value, 'expected a gauge with its system, such as "14 AWG" or "16 SWG"')
+            r.fail(f"{key}.{given[0]}", value, 'expected a gauge with its system, such as "14 AWG" or "16 SWG"')
         try:
             n = units.parse_gauge(m.group(1))
         except units.UnitError as err:
-            r.fail(f"{key}.gauge", value, err.expected)
+            r.fail(f"{key}.{given[0]}", value, err.expected)
         system = m.group(2).upper()
         if system == "AWG":
             if not -3 <= n <= 40:
-                r.fail(f"{key}.gauge", value, "expected an AWG gauge from 4/0 to 40")
+                r.fail(f"{key}.{given[0]}", value, "expected an AWG gauge from 4/0 to 40")
             d = units.awg_diameter(n)
         else:
             if n not in units.SWG_INCHES:
-                r.fail(f"{key}.gauge", value, "expected an SWG gauge from 7/0 to 50")
+                r.fail(f"{key}.{given[0]}", value, "expected an SWG gauge from 7/0 to 50")
             d = units.swg_diameter(n)
         desc = f"{m.group(1)} {system}"
     elif what == "diameter":
