@@ -59,8 +59,8 @@ def test_a_misnamed_table_is_shown_as_a_table(write_site, capsys):
     code, out, err = run(capsys, "check", path)
     assert code == 2
     line = one_line(err)
-    assert '[earth.rod]: unknown table; did you mean "rods"?' in line
-    assert "{" not in line  # not a Python dict
+    assert 'earth.rod = {length = "2.4 m"}: unknown table; did you mean "rods"?' in line
+    assert "'" not in line  # written as the site file writes it, not as Python shows it
 
 
 @pytest.mark.parametrize("written, advice", [

@@ -35,10 +35,6 @@ class SiteError(AerialError):
     @property
     def message(self) -> str:
         where = self.file if self.line is None else f"{self.file}:{self.line}"
-        if self.key and isinstance(self.value, dict):  # a whole table: named as the file writes it
-            return f"{where}: [{self.key}]: {self.expected}"
-        if self.key and isinstance(self.value, list) and self.value and all(isinstance(v, dict) for v in self.value):
-            return f"{where}: [[{self.key}]]: {self.expected}"
         if self.key:
             return f"{where}: {self.key} = {_show(self.value)}: {self.expected}"
         if self.value is None or self.value == "":
@@ -89,5 +85,32 @@ def _show(value) -> str:
         text = value if len(value) <= 60 else value[:57] + "..."
         text = "".join(ch if ch.isprintable() else repr(ch)[1:-1] for ch in text)
         return f'"{text}"'
-    text = repr(value)
+    text = _toml_text(value)
     return text if len(text) <= 60 else text[:57] + "..."
+
+
+def _toml_text(value, depth: int = 0) -> str:
+    """A value as a site file would write it (TOML), not as Python shows it; deep nesting and
+    long tables are cut short (the message shows 60 characters at most).
+
+    >>> _toml_text({"length": "8 ft", "at": [0, -1.5], "bonded": True})
+    '{length = "8 ft", at = [0, -1.5], bonded = true}'
+    """
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, str):
+        return '"' + "".join(ch if ch.isprintable() else repr(ch)[1:-1] for ch in value[:80]) + '"'
+    if isinstance(value, (dict, list, tuple)):
+        if depth >= 4:
+            return "..."
+        pairs = value.items() if isinstance(value, dict) else ((None, v) for v in value)
+        parts, width = [], 0
+        for key, item in pairs:
+            if width > 60:
+                parts.append("...")
+                break
+            parts.append(_toml_text(item, depth + 1) if key is None else f"{key} = {_toml_text(item, depth + 1)}")
+            width += len(parts[-1]) + 2
+        inside = ", ".join(parts)
+        return "{" + inside + "}" if isinstance(value, dict) else "[" + inside + "]"
+    return repr(value)
