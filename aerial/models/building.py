@@ -815,45 +815,59 @@ def rectangle_potential_integral(u, v, w, half_u, half_v):
     """
     u, v, w, hu, hv = np.broadcast_arrays(*(np.asarray(t, dtype=float) for t in (u, v, w, half_u, half_v)))
     w = np.abs(w)
+    w2 = w * w
+    xs = [(x, x * x) for x in (hu - u, -hu - u)]  # the corners' two X and two Y, and their squares
+    ys = [(y, y * y) for y in (hv - v, -hv - v)]
+    off_plane = w > 0
+    w_off = np.where(off_plane, w, 1.0)
     total = np.zeros(u.shape)
     with np.errstate(divide="ignore", invalid="ignore"):
-        for sx, sy, sign in ((1, 1, 1.0), (-1, 1, -1.0), (1, -1, -1.0), (-1, -1, 1.0)):
-            x = sx * hu - u
-            y = sy * hv - v
-            r = np.sqrt(x * x + y * y + w * w)
-            total += sign * (_x_log(x, y, r, w) + _x_log(y, x, r, w)
-                             - np.where(w > 0, w * np.arctan(x * y / np.where(w > 0, w * r, 1.0)), 0.0))
+        for ix, iy, sign in ((0, 0, 1.0), (1, 0, -1.0), (0, 1, -1.0), (1, 1, 1.0)):
+            (x, x2), (y, y2) = xs[ix], ys[iy]
+            r = np.sqrt(x2 + y2 + w2)
+            corner = (_x_log(x, y, r, x2 + w2) + _x_log(y, x, r, y2 + w2)
+                      - np.where(off_plane, w * np.arctan(x * y / (w_off * r)), 0.0))
+            total += sign * corner
     return total
 
 
-def _x_log(x, y, r, w):
-    """x ln(y + r), stable for y < 0 (ln(y + r) = ln((x^2 + w^2) / (r - y))) and 0 where x = 0."""
-    rest = x * x + w * w
-    log = np.where(y >= 0, np.log(np.where(y >= 0, y + r, 1.0)),
-                   np.log(np.where(rest > 0, rest, 1.0) / np.where(y < 0, r - y, 1.0)))
-    return np.where(x == 0, 0.0, x * log)
+def _x_log(x, y, r, rest):
+    """x ln(y + r), one logarithm: stable for y < 0 (ln(y + r) = ln(rest / (r - y)), rest = x^2 + w^2 = r^2 - y^2)
+    and 0 where x = 0."""
+    arg = np.where(y >= 0, y + r, np.where(rest > 0, rest, 1.0) / (r - y))
+    return np.where(x == 0, 0.0, x * np.log(arg))
 
 
 def _panels_potential(points, box):
-    """Matrix (M, N): potential at each point of each panel's unit charge density and its ground image. [m]"""
+    """Matrix (M, N): potential at each point of each panel's unit charge density and its ground image. [m]
+
+    A panel farther than ``BOX_NEAR_HALF_DIAGONALS`` of its half-diagonals is a point charge (area over
+    distance); nearer ones are integrated exactly (:func:`rectangle_potential_integral`). The plan offsets are
+    shared by a panel and its image, and every dense array is worked in place.
+    """
     reach2 = (BOX_NEAR_HALF_DIAGONALS ** 2) * (box.half_u ** 2 + box.half_v ** 2)
     area = 4.0 * box.half_u * box.half_v
     nrm = np.cross(box.axis_u, box.axis_v)
-    out = np.zeros((len(points), len(box.centre)))
-    for sign, cz in ((1.0, box.centre[:, 2]), (-1.0, -box.centre[:, 2])):
-        dx = points[:, 0:1] - box.centre[None, :, 0]
-        dy = points[:, 1:2] - box.centre[None, :, 1]
-        dz = points[:, 2:3] - cz[None]
-        dist2 = dx * dx + dy * dy + dz * dz
-        near = dist2 <= reach2[None]
-        part = area[None] / np.sqrt(np.maximum(dist2, 1e-300))  # a point charge, far off
-        m, n = np.nonzero(near)
+    p = np.asarray(points, dtype=float)
+    dx = p[:, 0:1] - box.centre[:, 0]
+    dy = p[:, 1:2] - box.centre[:, 1]
+    plan2 = dx * dx
+    plan2 += dy * dy
+    out = None
+    for cz in (box.centre[:, 2], -box.centre[:, 2]):  # the panels, then their images in the ground
+        dz = p[:, 2:3] - cz
+        part = dz * dz
+        part += plan2  # squared distance
+        m, n = np.nonzero(part <= reach2)
+        np.maximum(part, 1e-300, out=part)
+        np.sqrt(part, out=part)
+        np.divide(area, part, out=part)  # a point charge, far off
         if len(m):
-            r = np.stack([dx[m, n], dy[m, n], dz[m, n]], axis=1)
+            r = (dx[m, n], dy[m, n], dz[m, n])
             part[m, n] = rectangle_potential_integral(
-                np.einsum("kj,kj->k", r, box.axis_u[n]), np.einsum("kj,kj->k", r, box.axis_v[n]),
-                np.einsum("kj,kj->k", r, nrm[n]), box.half_u[n], box.half_v[n])
-        out += sign * part
+                *(r[0] * axis[n, 0] + r[1] * axis[n, 1] + r[2] * axis[n, 2] for axis in (box.axis_u, box.axis_v, nrm)),
+                box.half_u[n], box.half_v[n])
+        out = part if out is None else np.subtract(out, part, out=out)
     return out
 
 
@@ -900,6 +914,62 @@ def _box_panels(body: BuildingBody, target: int):
     parts.append((np.column_stack([xy[over], np.full(n, body.height_m)]), np.tile([e1[0], e1[1], 0.0], (n, 1)),
                   np.tile([e2[0], e2[1], 0.0], (n, 1)), hu.reshape(-1)[over], hv.reshape(-1)[over]))
     return tuple(np.concatenate([part[i] for part in parts]) for i in range(5))
+
+
+def _panel_mirror(box, point, normal):
+    """Index of each panel's mirror image across the vertical plane through ``point`` (plan) with the unit
+    ``normal`` (plan), or None when the panels are not symmetric about that plane."""
+    c = box.centre.copy()
+    c[:, :2] -= 2.0 * ((c[:, :2] - point) @ normal)[:, None] * normal
+    axis = box.axis_u.copy()
+    axis[:, :2] -= 2.0 * (axis[:, :2] @ normal)[:, None] * normal
+    step = 1e-7 * max(float(np.ptp(box.centre)), 1.0)  # far below any panel, far above rounding
+    mine, theirs = np.round(box.centre / step).astype(np.int64), np.round(c / step).astype(np.int64)
+    order_mine, order_theirs = np.lexsort(mine.T[::-1]), np.lexsort(theirs.T[::-1])
+    if not np.array_equal(mine[order_mine], theirs[order_theirs]):
+        return None
+    image = np.empty(len(c), dtype=np.int64)
+    image[order_theirs] = order_mine
+    same = (np.allclose(box.half_u[image], box.half_u, rtol=1e-9, atol=0.0)
+            and np.allclose(box.half_v[image], box.half_v, rtol=1e-9, atol=0.0)
+            and np.all(np.abs(np.einsum("kj,kj->k", axis, box.axis_u[image])) > 1.0 - 1e-9))
+    return image if same else None
+
+
+def _mirror_classes(box):
+    """Each panel's class under the footprint's mirror planes (the perpendicular bisectors of its edges that
+    map the panels onto themselves): (representative panels, class of every panel)."""
+    a = box.footprint
+    b = np.roll(a, -1, axis=0)
+    images = []
+    for p, q in zip(a, b):
+        length = float(np.hypot(*(q - p)))
+        image = _panel_mirror(box, 0.5 * (p + q), (q - p) / length) if length > 0 else None
+        if image is not None:
+            images.append(image)
+    label = np.arange(len(box.centre))
+    while True:  # the smallest index reachable by the mirrors labels its class
+        new = label
+        for image in images:
+            new = np.minimum(new, new[image])
+        if np.array_equal(new, label):
+            break
+        label = new
+    return np.unique(label, return_inverse=True)
+
+
+def _box_charges(box):
+    """The panels' charges s solving sum_j P_ij s_j = -z_i, folded on the box's mirror symmetry. [1]
+
+    The right-hand side -z and the panels share the footprint's mirror planes, so the charges do too: one
+    equation per class of mirror-image panels, with the columns of a class added, gives the same solution
+    from a quarter of the matrix for a rectangular building (every panel its own class for an asymmetric one).
+    """
+    reps, cls = _mirror_classes(box)
+    rows = _panels_potential(box.centre[reps], box)
+    order = np.argsort(cls, kind="stable")
+    folded = np.add.reduceat(rows[:, order], np.searchsorted(cls[order], np.arange(len(reps))), axis=1)
+    return np.linalg.solve(folded, -box.centre[reps, 2])[cls]
 
 
 def box_screen(body: BuildingBody, target_panels: int = BOX_TARGET_PANELS) -> BoxScreen:
@@ -957,8 +1027,7 @@ def box_screen(body: BuildingBody, target_panels: int = BOX_TARGET_PANELS) -> Bo
         return found
     centre, au, av, hu, hv = _box_panels(body, int(target_panels))
     box = BoxScreen(centre, au, av, hu, hv, np.zeros(len(centre)), float(body.height_m), body.footprint.copy())
-    charge = np.linalg.solve(_panels_potential(centre, box), -centre[:, 2])
-    screen = BoxScreen(centre, au, av, hu, hv, charge, float(body.height_m), body.footprint.copy())
+    screen = BoxScreen(centre, au, av, hu, hv, _box_charges(box), float(body.height_m), body.footprint.copy())
     if len(_BOX_SCREENS) >= 16:
         _BOX_SCREENS.pop(next(iter(_BOX_SCREENS)))
     _BOX_SCREENS[key] = screen

@@ -310,3 +310,23 @@ def test_the_field_round_a_narrow_towers_sides_reaches_the_wire():
     r = closed_form_response(_balcony(rail_z=19.0), [0.5e6], building=tower)
     assert not any("narrow" in w for w in r["warnings"])
     assert np.all(np.isfinite(r["effective_height_m"]))
+
+
+def test_consistency_box_solution_folded_on_the_footprints_mirrors_is_the_full_solution():
+    # Consistency check (our own solution two ways, not an outside source): the box's charges solved with one
+    # equation per class of mirror-image panels equal the solution of the whole panel system to 1e-11, for a
+    # rectangle turned off the axes (two mirror planes: about a quarter of the equations); a footprint with no
+    # mirror plane keeps every panel its own class and the same charges.
+    from aerial.models.building import _mirror_classes, _panels_potential
+
+    turn = np.array([[math.cos(0.5), -math.sin(0.5)], [math.sin(0.5), math.cos(0.5)]])
+    rotated = BuildingBody(np.array([[0.0, 0.0], [24.0, 0.0], [24.0, 9.0], [0.0, 9.0]]) @ turn.T + 3.0, 17.0,
+                           "steel frame")
+    uneven = BuildingBody([[0.0, 0.0], [15.0, 0.0], [18.0, 9.0], [2.0, 12.0]], 10.0, "steel frame")
+    for body, folds in ((rotated, True), (uneven, False)):
+        screen = box_screen(body)
+        reps, _ = _mirror_classes(screen)
+        n = len(screen.charge)
+        assert (n / 4 <= len(reps) < n / 3) if folds else len(reps) == n
+        full = np.linalg.solve(_panels_potential(screen.centre, screen), -screen.centre[:, 2])
+        assert screen.charge == pytest.approx(full, rel=1e-11, abs=1e-11 * np.max(np.abs(full)))
