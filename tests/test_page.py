@@ -219,6 +219,23 @@ def test_layout_page_ranks_groups_refusals_and_lists_the_code(capsys, tmp_path):
     assert "<script" not in page.lower()
 
 
+def test_layout_page_says_the_present_wire_as_the_terminal_does(capsys, tmp_path):
+    """A present wire long for the wavelength: the page carries the terminal's sentence, flag and all.
+
+    The suburban example's present wire is flagged long for the wavelength (consistency check between
+    the two outputs of one run).
+    """
+    import html
+
+    target = tmp_path / "plan.html"
+    code, out, err = run(capsys, "layout", SUBURBAN, "--page", target, "--quiet", "--width", "1000")
+    assert code == 0, err
+    line = next(x for x in out.splitlines() if x.startswith("your present wire"))
+    assert "long for the wavelength from" in line
+    page = html.unescape(target.read_text(encoding="utf-8"))
+    assert f"<li>{line.strip()}</li>" in page
+
+
 def test_new_result_keys_appear_without_new_code(built_in):
     """Parts of the result this page does not know by name are still shown, as tables and lists."""
     from aerial.outputs.page_report import report_page

@@ -9,7 +9,7 @@ from __future__ import annotations
 from aerial.outputs import site_drawings
 from aerial.outputs.page import (bullets, document, esc, figure, generic_block, key_label, section, site_file_name,
                                  table)
-from aerial.outputs.terminal import eng
+from aerial.outputs.terminal import Lengths, eng, present_wire_words
 
 #: Keys the layout page shows in its own sections; any other key is shown generically.
 KNOWN_KEYS = {"site", "objective", "score_unit", "ranking_frequencies_hz", "candidates_considered",
@@ -75,11 +75,8 @@ def _layouts_table(result) -> str:
         return "<p><strong>No safe layout was found</strong> among the candidate supports: see the causes below.</p>"
     reasons = [f"#{lay['rank']}: {lay['reason']}" for lay in result.get("layouts", []) if lay.get("reason")]
     present = result.get("present_wire")
-    if present:
-        where = f" at {eng(present['figures_at_hz'], 'Hz')}" if present.get("figures_at_hz") else ""
-        reasons.append(f"your present wire, as 'aerial report' figures it{where}: effective height "
-                       f"{eng(present.get('effective_height_m'), 'm')}, {eng(present.get('capacitance_f'), 'F')}, "
-                       f"score {present.get('score', 0):.1f}" + (f" {unit}" if unit else ""))
+    if present:  # the terminal's own sentence, wavelength flag included
+        reasons.append(present_wire_words(present, result.get("score_label", "score"), unit, Lengths("si")))
     lays = result.get("layouts", [])
     at = f" at {eng(lays[0]['figures_at_hz'], 'Hz')}" if lays and lays[0].get("figures_at_hz") else ""
     return (table(["rank", "layout", "wire", "top", "lead-in", f"effective height{at}", f"capacitance{at}",
