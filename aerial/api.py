@@ -78,7 +78,8 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
                allow_large=False, page=None, units="si") -> dict:
     """Load a site (None: the built-in example), run the whole chain, optionally draw pictures and a page.
 
-    ``units`` ("si" or "us"): the what-if steps are round figures of that system; every figure stays SI.
+    ``units`` ("si" or "us"): the what-if steps are round figures of that system, and the page's drawings
+    are in it; every figure stays SI.
 
     ``allow_large`` lets a full-wave sweep run past the memory and time budget
     (:func:`aerial.estimate.fullwave_sweep.check_full_wave_budget`). ``page``
@@ -111,7 +112,7 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
         from aerial.outputs.page_report import report_page
         from aerial.outputs.site_drawings import site_surroundings
 
-        text = report_page(result, site_surroundings(site))
+        text = report_page(result, site_surroundings(site), units)
         result["page"] = str(write_atomic(page, text, force=force, protected=(site.path,)))
     return result
 
@@ -134,7 +135,8 @@ def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allo
 
     ``page`` names an HTML file for the shareable page
     (:func:`aerial.outputs.page_layout.layout_page`); its path comes back as ``result["page"]``.
-    ``units`` ("si" or "us") sets the lengths on the plan drawing; the result itself stays SI.
+    ``units`` ("si" or "us") sets the lengths on the plan drawing and the page's drawings; the result itself
+    stays SI.
     """
     from aerial.site.reader import load_site
 
@@ -171,7 +173,7 @@ def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allo
         from aerial.outputs.files import write_atomic
         from aerial.outputs.page_layout import layout_page
 
-        text = layout_page(result, seen.get("scene"))
+        text = layout_page(result, seen.get("scene"), units)
         result["page"] = str(write_atomic(page, text, force=force, protected=(site.path,)))
     return result
 

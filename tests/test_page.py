@@ -236,6 +236,28 @@ def test_layout_page_says_the_present_wire_as_the_terminal_does(capsys, tmp_path
     assert f"<li>{line.strip()}</li>" in page
 
 
+def _drawing_words(page: str) -> list[str]:
+    """The words of the page's plan view and side elevation (their SVG text)."""
+    start = page.index('id="drawings"')
+    return re.findall(r"<text[^>]*>([^<]*)</text>", page[start:page.index("</section>", start)])
+
+
+@pytest.mark.parametrize("command", ["report", "layout"])
+def test_page_drawings_write_lengths_in_feet_under_us_units(capsys, tmp_path, command):
+    """Under --units us every length on the drawings is in feet: labels and axes (input handling).
+
+    1 ft = 0.3048 m exactly (NIST SP 811): the oak support, 12 m high in the site file, reads 39.4 ft.
+    """
+    target = tmp_path / "page.html"
+    code, out, err = run(capsys, command, SUBURBAN, "--page", target, "--units", "us", "--quiet")
+    assert code == 0, err
+    words = _drawing_words(target.read_text(encoding="utf-8"))
+    assert "oak 39.4 ft" in words
+    assert "east [ft]" in words and "height above ground [ft]" in words
+    metric = [w for w in words if re.search(r"\d\s*(m|mm|km)\b|\[m\]", w)]
+    assert not metric, metric
+
+
 def test_new_result_keys_appear_without_new_code(built_in):
     """Parts of the result this page does not know by name are still shown, as tables and lists."""
     from aerial.outputs.page_report import report_page

@@ -84,7 +84,7 @@ def _layouts_table(result) -> str:
                   "Best safe layouts, best first", "wide") + bullets(reasons, "reasons"))
 
 
-def _summary(result, scene) -> str:
+def _summary(result, scene, units: str = "si") -> str:
     site = result["site"]
     layouts = result.get("layouts", [])
     sentence = (f"{result.get('candidates_considered', 0)} candidate layouts considered among the site's supports; "
@@ -107,11 +107,11 @@ def _summary(result, scene) -> str:
     if scene:
         sc = site_drawings.layout_scene(scene, layouts)
         drawings = section("drawings", "Where the wire would go",
-                           figure(site_drawings.plan_chart(sc), "Plan view: the chosen layout (#1, bold) and the "
+                           figure(site_drawings.plan_chart(sc, units), "Plan view: the chosen layout (#1, bold) and the "
                                   "runners-up, the overhead lines and their fall zones" if layouts else
                                   "Plan view: the candidate supports, the overhead lines and their fall zones "
                                   "(no safe layout was found)", "plan-view")
-                           + (figure(site_drawings.elevation_chart(sc), "Side elevation of the chosen layout with "
+                           + (figure(site_drawings.elevation_chart(sc, units), "Side elevation of the chosen layout with "
                                      "the heights of its fixing points", "side-elevation") if layouts else ""))
     return (f'<header id="summary" class="sheet"><h1>{esc(site["name"])} — layout plan</h1>'
             f'<p class="sentence">{esc(sentence)}</p>'
@@ -120,7 +120,7 @@ def _summary(result, scene) -> str:
                else "") + drawings + "</header>")
 
 
-def layout_page(result: dict, scene: dict | None = None) -> str:
+def layout_page(result: dict, scene: dict | None = None, units: str = "si") -> str:
     """The planner's result as one self-contained HTML document (text).
 
     Parameters
@@ -129,8 +129,10 @@ def layout_page(result: dict, scene: dict | None = None) -> str:
         As :func:`aerial.planner.search.plan_layouts` returns it (``aerial layout --json``).
     scene : dict, optional
         The plan scene (:func:`aerial.outputs.plan_drawing.build_scene`) for the drawings.
+    units : str
+        "si" (metres) or "us" (feet): the lengths of the plan view and the side elevation.
     """
-    body = _summary(result, scene)
+    body = _summary(result, scene, units)
     body += section("layouts", "Ranked layouts", _layouts_table(result), "sheet")
     refusals = refusal_rows(result)
     body += section("refusals", "Refused and excluded layouts, by cause",

@@ -116,7 +116,7 @@ def site_sentence(result) -> str:
     return "; ".join(parts) + "."
 
 
-def _summary(result, surroundings) -> str:
+def _summary(result, surroundings, units: str = "si") -> str:
     site = result["site"]
     facts = "".join(f'<div class="figure-card"><dt>{esc(what)}</dt><dd>'
                     f'<span class="value{" long" if len(value) > 24 else ""}">{esc(value)}</span>'
@@ -130,10 +130,10 @@ def _summary(result, surroundings) -> str:
             f'<section id="headline"><h2>Headline figures</h2><p class="hint">Value, then the range it may take given '
             f'the stated tolerances (support heights, soil).</p><dl class="cards">{facts}</dl></section>'
             + section("drawings", "Where the wire goes",
-                      figure(site_drawings.plan_chart(scene), "Plan view: the wires as aerial understood them"
+                      figure(site_drawings.plan_chart(scene, units), "Plan view: the wires as aerial understood them"
                              + (", with the overhead lines and their fall zones" if scene.get("zones") else ""),
                              "plan-view")
-                      + figure(site_drawings.elevation_chart(scene), "Side elevation with the heights of the fixing "
+                      + figure(site_drawings.elevation_chart(scene, units), "Side elevation with the heights of the fixing "
                                "points", "side-elevation"))
             + "</header>")
 
@@ -430,7 +430,7 @@ def _extras(result) -> str:
     return out
 
 
-def report_page(result: dict, surroundings: dict | None = None) -> str:
+def report_page(result: dict, surroundings: dict | None = None, units: str = "si") -> str:
     """The whole report as one self-contained HTML document (text).
 
     Parameters
@@ -439,8 +439,10 @@ def report_page(result: dict, surroundings: dict | None = None) -> str:
         The result of :func:`aerial.estimate.assemble.analyse` (as ``aerial report --json`` prints it).
     surroundings : dict, optional
         The site's plan surroundings (:func:`aerial.outputs.site_drawings.site_surroundings`) for the plan view.
+    units : str
+        "si" (metres) or "us" (feet): the lengths of the plan view and the side elevation.
     """
-    body = _summary(result, surroundings) + _aerial_section(result) + _earth_section(result) + _what_if_section(result)
+    body = _summary(result, surroundings, units) + _aerial_section(result) + _earth_section(result) + _what_if_section(result)
     body += (_pictures_section(result) + _tuning_section(result) + _station_design_block(result)
              + _stations_section(result) + _extras(result))
     body += _safety_section(result)

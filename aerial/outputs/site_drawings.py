@@ -7,7 +7,9 @@ list ``wires`` of ``{"label", "kind", "points"}`` with ``kind`` one of
 ``"aerial"`` (the chosen wire), ``"lead-in"``, ``"earth lead"``, ``"other"``
 (a runner-up layout). The report's scene comes from the result's resolved
 wires (:func:`report_scene`), the planner's from its ranked layouts
-(:func:`layout_scene`).
+(:func:`layout_scene`). The drawings are made in the unit system asked for
+(:func:`scene_in_units`): metres, or under "us" feet, every coordinate, axis
+and length label alike.
 """
 
 from __future__ import annotations
@@ -16,7 +18,12 @@ import textwrap
 
 import numpy as np
 
+from aerial.core.units import FOOT_M
 from aerial.outputs.charts import PALETTE, chart_svg, new_figure, plain_label
+from aerial.outputs.plan_drawing import length_label
+
+#: Room left around the drawn things on the plan view. [m]
+PLAN_MARGIN_M = 3.0
 
 WIRE_STYLE = {
     "aerial": {"color": PALETTE["blue"], "linewidth": 2.6, "linestyle": "-"},
@@ -80,6 +87,42 @@ def layout_scene(scene: dict, layouts: list) -> dict:
     return out
 
 
+def scene_in_units(scene: dict, units: str = "si") -> dict:
+    """The scene to draw in ``units``: as it is under "si" (metres); under "us" every coordinate, height and
+    distance in feet, under the same keys; ``scene["unit"]`` says which ("m" or "ft").
+
+    >>> feet = scene_in_units({"wires": [{"label": "a", "kind": "aerial", "points": [[0, 0, 3.048]]}],
+    ...                        "supports": [{"name": "pole", "x": 3.048, "y": 0, "height_m": 6.096}]}, "us")
+    >>> feet["unit"], round(feet["wires"][0]["points"][0][2], 9), round(feet["supports"][0]["height_m"], 9)
+    ('ft', 10.0, 20.0)
+    """
+    if units not in ("si", "us"):
+        raise ValueError(f"'{units}' is not a valid unit system, must be one of 'si', 'us'")
+    if units == "si":
+        return {**scene, "unit": "m"}
+    k = 1.0 / FOOT_M
+
+    def pts(points):
+        return [[float(v) * k for v in p] for p in points]
+
+    def scaled(item, *keys):
+        return {**item, **{key: float(item[key]) * k for key in keys}}
+
+    entry, receiver = scene.get("entry"), scene.get("receiver")
+    return {
+        **scene, "unit": "ft",
+        "lot": pts(scene["lot"]) if scene.get("lot") else scene.get("lot"),
+        "buildings": [{**scaled(b, "height_m"), "outline": pts(b["outline"])} for b in scene.get("buildings", [])],
+        "obstacles": [{**o, "outline": pts(o["outline"])} for o in scene.get("obstacles", [])],
+        "supports": [scaled(sp, "x", "y", "height_m") for sp in scene.get("supports", [])],
+        "entry": scaled(entry, "x", "y", "height_m") if entry else entry,
+        "lines": [{**scaled(ln, "height_m"), "path": pts(ln["path"])} for ln in scene.get("lines", [])],
+        "zones": [{**scaled(z, "distance_m"), "rings": [pts(r) for r in z["rings"]]} for z in scene.get("zones", [])],
+        "wires": [{**w, "points": pts(w["points"])} for w in scene.get("wires", [])],
+        "receiver": [float(v) * k for v in receiver] if receiver else receiver,
+    }
+
+
 def _path_middle(xs, ys):
     """The point halfway along a polyline (by length)."""
     xs, ys = np.asarray(xs, float), np.asarray(ys, float)
@@ -135,7 +178,11 @@ def _free_offset(ax, xy, text: str, offset, step: float, placed: list, fontsize:
 
 
 def _draw_surroundings(ax, scene, placed: list | None = None) -> None:
-    """Zones, lot, buildings, obstacles, lines and supports; ``placed``: label boxes to keep clear of (plan)."""
+    """Zones, lot, buildings, obstacles, lines and supports; ``placed``: label boxes to keep clear of (plan).
+
+    The scene is in its own unit (``scene["unit"]``, :func:`scene_in_units`); every length label says it.
+    """
+    unit = scene.get("unit", "m")
     from matplotlib.patches import PathPatch, Polygon as MplPolygon
     from matplotlib.path import Path as MplPath
 
@@ -146,14 +193,14 @@ def _draw_surroundings(ax, scene, placed: list | None = None) -> None:
             codes += [MplPath.MOVETO] + [MplPath.LINETO] * (len(r) - 1) + [MplPath.CLOSEPOLY]
         ax.add_patch(PathPatch(MplPath(verts, codes), facecolor="none", hatch="xx", edgecolor=PALETTE["vermillion"],
                                linewidth=0.8, linestyle="--", alpha=0.6,
-                               label=f"fall zone of {plain_label(z['name'])} ({z['distance_m']:.1f} m)"))
+                               label=f"fall zone of {plain_label(z['name'])} ({length_label(z['distance_m'], unit)})"))
     if scene.get("lot"):
         ax.add_patch(MplPolygon(scene["lot"], closed=True, fill=False, edgecolor=PALETTE["grey"], linestyle="--",
                                 label="lot boundary"))
     for b in scene.get("buildings", []):
         ax.add_patch(MplPolygon(b["outline"], closed=True, facecolor="#e8dcc8", edgecolor="#555555"))
         c = np.mean(np.asarray(b["outline"], float), axis=0)
-        text = f"{plain_label(b['name'])}\n{b['height_m']:.1f} m"
+        text = f"{plain_label(b['name'])}\n{length_label(b['height_m'], unit)}"
         ax.text(c[0], c[1], text, ha="center", va="center", fontsize=6.5)
         _occupy(ax, c, text, 6.5, placed)
     for o in scene.get("obstacles", []):
@@ -168,12 +215,13 @@ def _draw_surroundings(ax, scene, placed: list | None = None) -> None:
         ax.plot(p[:, 0], p[:, 1], color=PALETTE["vermillion"] if power else PALETTE["purple"],
                 linewidth=3 if power else 1.8, linestyle="-" if power else "-.")
         mid = p[len(p) // 2] if len(p) > 2 else p.mean(axis=0)
-        ax.annotate(f"{'power line' if power else 'telephone/cable'}: {plain_label(ln['name'])}, {ln['height_m']:.1f} m",
+        ax.annotate(f"{'power line' if power else 'telephone/cable'}: {plain_label(ln['name'])}, "
+                    f"{length_label(ln['height_m'], unit)}",
                     xy=mid, xytext=(0, 5 if power else -11), textcoords="offset points", ha="center", fontsize=7,
                     color=PALETTE["black"], fontweight="bold" if power else "normal")
     for sp in scene.get("supports", []):
         ax.plot(sp["x"], sp["y"], marker="^", color=PALETTE["black"], markersize=6, linestyle="none")
-        text = f"{plain_label(sp['name'])} {sp['height_m']:.1f} m"
+        text = f"{plain_label(sp['name'])} {length_label(sp['height_m'], unit)}"
         # supports at one place, or close: their labels one under another; near the east edge, written leftwards
         x_lo, x_hi = ax.get_xlim()
         ha = "right" if placed is not None and sp["x"] > x_lo + 0.7 * (x_hi - x_lo) else "left"
@@ -183,8 +231,14 @@ def _draw_surroundings(ax, scene, placed: list | None = None) -> None:
         ax.annotate(text, (sp["x"], sp["y"]), xytext=off, textcoords="offset points", fontsize=6.5, ha=ha, va=va)
 
 
-def plan_figure(scene: dict):
-    """Plan view (north up): surroundings, fall zones, and the wires with their labels (a Figure)."""
+def plan_figure(scene: dict, units: str = "si"):
+    """Plan view (north up): surroundings, fall zones, and the wires with their labels (a Figure).
+
+    ``units``: "si" (metres) or "us" (feet) for the axes and every length label.
+    """
+    scene = scene_in_units(scene, units)
+    unit = scene["unit"]
+    pad = PLAN_MARGIN_M / (FOOT_M if unit == "ft" else 1.0)
     pts = [p[:2] for w in scene["wires"] for p in w["points"]]
     for key in ("lot",):
         pts += scene.get(key) or []
@@ -192,8 +246,8 @@ def plan_figure(scene: dict):
         pts += b["outline"]
     pts += [[s["x"], s["y"]] for s in scene.get("supports", [])]
     a = np.asarray(pts, float)
-    x0, y0 = a.min(axis=0) - 3
-    x1, y1 = a.max(axis=0) + 3
+    x0, y0 = a.min(axis=0) - pad
+    x1, y1 = a.max(axis=0) + pad
     if (x1 - x0) < 0.5 * (y1 - y0):  # a tall thin site: widen the eastern extent so the drawing stays readable
         mid, half = (x0 + x1) / 2, 0.25 * (y1 - y0)
         x0, x1 = mid - half, mid + half
@@ -214,8 +268,8 @@ def plan_figure(scene: dict):
     placed: list = []
     _draw_surroundings(ax, scene, placed)
     _draw_wires(ax, scene, plan=True, placed=placed)
-    ax.set_xlabel("east [m]")
-    ax.set_ylabel("north [m] (north is up)")
+    ax.set_xlabel(f"east [{unit}]")
+    ax.set_ylabel(f"north [{unit}] (north is up)")
     ax.set_title("Plan view")
     handles, labels = ax.get_legend_handles_labels()
     ax.legend(handles, [textwrap.fill(t, 30) for t in labels], loc="upper left", bbox_to_anchor=(1.02, 1.0),
@@ -268,8 +322,13 @@ def _main_direction(points: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return centre + u * s.min(), u
 
 
-def elevation_figure(scene: dict):
-    """Side elevation along the wire's main direction, with the height of every fixing point (a Figure)."""
+def elevation_figure(scene: dict, units: str = "si"):
+    """Side elevation along the wire's main direction, with the height of every fixing point (a Figure).
+
+    ``units``: "si" (metres) or "us" (feet) for the axes and every length label.
+    """
+    scene = scene_in_units(scene, units)
+    unit = scene["unit"]
     main = [w for w in scene["wires"] if w["kind"] == "aerial"] or scene["wires"]
     allp = np.asarray([p for w in main for p in w["points"]], float)
     origin, u = _main_direction(allp)
@@ -291,11 +350,11 @@ def elevation_figure(scene: dict):
                 continue
             shown.add(key)
             ax.plot([key[0], key[0]], [0, q[2]], color=PALETTE["grey"], linewidth=0.6, linestyle=":")
-            ax.annotate(f"{q[2]:.1f} m", xy=(key[0], q[2]), xytext=(3, 3), textcoords="offset points", fontsize=7)
+            ax.annotate(length_label(q[2], unit), xy=(key[0], q[2]), xytext=(3, 3), textcoords="offset points", fontsize=7)
     ax.axhline(0, color=PALETTE["black"], linewidth=1.2)
     ax.set_ylim(bottom=min(-0.5, float(allp[:, 2].min()) - 0.5), top=float(allp[:, 2].max()) * 1.25 + 1)
-    ax.set_xlabel("horizontal distance along the wire's main direction [m]")
-    ax.set_ylabel("height above ground [m]")
+    ax.set_xlabel(f"horizontal distance along the wire's main direction [{unit}]")
+    ax.set_ylabel(f"height above ground [{unit}]")
     ax.set_title("Side elevation (heights of the fixing points marked)")
     ax.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize=7, frameon=False)
     ax.grid(True, alpha=0.25, linewidth=0.5)
@@ -303,11 +362,11 @@ def elevation_figure(scene: dict):
     return fig
 
 
-def plan_chart(scene: dict) -> str:
-    """The plan view as SVG text."""
-    return chart_svg(plan_figure(scene))
+def plan_chart(scene: dict, units: str = "si") -> str:
+    """The plan view as SVG text, lengths in metres ("si") or feet ("us")."""
+    return chart_svg(plan_figure(scene, units))
 
 
-def elevation_chart(scene: dict) -> str:
-    """The side elevation as SVG text."""
-    return chart_svg(elevation_figure(scene))
+def elevation_chart(scene: dict, units: str = "si") -> str:
+    """The side elevation as SVG text, lengths in metres ("si") or feet ("us")."""
+    return chart_svg(elevation_figure(scene, units))
