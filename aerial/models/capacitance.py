@@ -29,6 +29,7 @@ References
 
 from __future__ import annotations
 
+import threading
 from dataclasses import dataclass
 
 import numpy as np
@@ -342,48 +343,123 @@ def segment_potential_integral(point, seg_start, seg_end, radius):
     return np.log(num / den)
 
 
-def _potential_matrix(points, seg_start, seg_end, radius):
-    """:func:`segment_potential_integral` of every segment at every point, shape (points, segments).
+#: Largest (rows × segments) block the potential fill works on at once: its scratch planes (a few MB
+#: in all) are kept per thread and reused, since fresh arrays of this size cost more in first-touch
+#: page faults than the arithmetic done on them. [1]
+FILL_BLOCK_ELEMENTS = 1 << 16
+_FILL_PLANES = 8
+_fill_scratch = threading.local()
 
-    The same operations in the same order on whole (points × segments) coordinate planes, in
-    place, instead of on the (points, segments, 3) arrays that broadcasting builds: the same
-    numbers bit for bit, in a fraction of the memory traffic.
-    """
-    p = np.asarray(points, dtype=float)
+
+def _scratch_planes(rows: int, cols: int):
+    """Eight float planes and one bool plane of shape (rows, cols), views of a per-thread buffer."""
+    buf = getattr(_fill_scratch, "buffers", None)
+    if buf is None:
+        buf = (np.empty(_FILL_PLANES * FILL_BLOCK_ELEMENTS), np.empty(FILL_BLOCK_ELEMENTS, dtype=bool))
+        _fill_scratch.buffers = buf
+    n = rows * cols
+    planes = [buf[0][k * n:(k + 1) * n].reshape(rows, cols) for k in range(_FILL_PLANES)]
+    return planes, buf[1][:n].reshape(rows, cols)
+
+
+def _sources(seg_start, seg_end):
+    """Per-segment constants of the fill: start coordinates and unit direction as rows, and length."""
     a0 = np.asarray(seg_start, dtype=float)
     d = np.asarray(seg_end, dtype=float) - a0
-    L = np.sqrt(_dot3(d, d))
-    u = d / L[:, None]
-    pc, ac = np.ascontiguousarray(p.T), np.ascontiguousarray(a0.T)  # one coordinate per row: unit-stride planes
-    w = [pc[k][:, None] - ac[k][None, :] for k in range(3)]
-    uc = np.ascontiguousarray(u.T)
-    z = w[0] * uc[0]
-    t = w[1] * uc[1]
-    z += t
-    np.multiply(w[2], uc[2], out=t)
-    z += t
-    rho2 = w[0] * w[0]
-    np.multiply(w[1], w[1], out=t)
-    rho2 += t
-    np.multiply(w[2], w[2], out=t)
-    rho2 += t
+    length = np.sqrt(_dot3(d, d))
+    u = d / length[:, None]
+    return np.ascontiguousarray(a0.T), np.ascontiguousarray(u.T), length
+
+
+def _potential_fill(points, seg_start, seg_end, radius, image: bool = False, wall=None):
+    """Sum of :func:`segment_potential_integral` terms: every segment, and its images, at every point.
+
+    Returns the (points, segments) matrix D - G - W + WG: D of the segments themselves, G of their
+    images in the ground plane z = 0 (``image``), W of their images in a grounded vertical plane
+    (``wall``: a point on it and its horizontal unit normal) and WG of the images of those in the
+    ground (with both planes; exact for two perpendicular planes). The terms are added in that
+    order, and each is the same operations in the same order as :func:`segment_potential_integral`
+    on whole coordinate planes: the same numbers bit for bit. A ground image shares the horizontal
+    half of the work with the sources it mirrors (start and end at -z, the horizontal offsets
+    unchanged), and the rows are done in blocks of at most ``FILL_BLOCK_ELEMENTS`` elements in
+    reused scratch planes.
+    """
+    p = np.ascontiguousarray(np.asarray(points, dtype=float).T)
+    start = np.asarray(seg_start, dtype=float)
+    end = np.asarray(seg_end, dtype=float)
+    sets = [_sources(start, end)]
+    if wall is not None:
+        p0, n = (np.asarray(v, dtype=float) for v in wall)
+        m = np.eye(3) - 2.0 * np.outer(n, n)
+        shift = 2.0 * float(np.dot(p0, n)) * n
+        sets.append(_sources(start @ m + shift, end @ m + shift))
+    r2 = np.asarray(radius, dtype=float) ** 2
+    rows, cols = p.shape[1], len(start)
+    out = np.empty((rows, cols))
+    step = max(1, FILL_BLOCK_ELEMENTS // max(cols, 1))
+    for r0 in range(0, rows, step):
+        r1 = min(rows, r0 + step)
+        w, mask = _scratch_planes(r1 - r0, cols)
+        block = out[r0:r1]
+        for k, (ac, uc, length) in enumerate(sets):
+            np.subtract(p[0, r0:r1, None], ac[0], out=w[0])
+            np.subtract(p[1, r0:r1, None], ac[1], out=w[1])
+            z_xy = np.multiply(w[0], uc[0], out=w[2])      # w_x u_x + w_y u_y, as _dot3 adds it
+            np.multiply(w[1], uc[1], out=w[3])
+            z_xy += w[3]
+            rho_xy = np.multiply(w[0], w[0], out=w[0])     # w_x^2 + w_y^2
+            np.multiply(w[1], w[1], out=w[3])
+            rho_xy += w[3]
+            np.subtract(p[2, r0:r1, None], ac[2], out=w[1])
+            scratch = (w[1], w[3], w[4], w[5], w[6])
+            direct = _kernel_from_planes(z_xy, rho_xy, w[1], uc[2], length, r2, scratch, mask,
+                                         block if k == 0 else w[7])
+            if k > 0:
+                block -= direct                            # the wall's image: charge -1
+            if image:
+                # the ground image of these sources starts at -z, direction (u_x, u_y, -u_z)
+                np.add(p[2, r0:r1, None], ac[2], out=w[1])
+                mirrored = _kernel_from_planes(z_xy, rho_xy, w[1], -uc[2], length, r2, scratch, mask, w[7])
+                if k == 0:
+                    block -= mirrored
+                else:
+                    block += mirrored                      # the image of an image: charge +1
+    return out
+
+
+def _kernel_from_planes(z_xy, rho_xy, wz, uz, length, r2, w, mask, out):
+    """The reduced kernel of :func:`segment_potential_integral` from the horizontal sums and w_z, into ``out``.
+
+    ``z_xy`` = w_x u_x + w_y u_y and ``rho_xy`` = w_x^2 + w_y^2 (left unchanged); ``wz`` the vertical
+    offset plane, which must be ``w[0]`` (it is overwritten); ``w`` five scratch planes, ``mask`` a
+    bool plane. The fold z -> min(z, L - z) is the reference's ``z > L/2`` branch exactly (L - z is
+    exact near L/2, Sterbenz's lemma); the denominator is r1 - z = r1 + |z| for z <= 0 and
+    rho^2 / (r1 + |z|) above.
+    """
+    rho2, z, t, lz, r1 = w
+    np.multiply(wz, uz, out=z)
+    z += z_xy                                          # (w_x u_x + w_y u_y) + w_z u_z
+    np.multiply(wz, wz, out=rho2)
+    rho2 += rho_xy                                     # (w_x^2 + w_y^2) + w_z^2
     np.multiply(z, z, out=t)
     rho2 -= t
     np.maximum(rho2, 0.0, out=rho2)
-    rho2 += np.asarray(radius, dtype=float) ** 2
-    np.subtract(L, z, out=z, where=z > 0.5 * L)
-    r1 = np.multiply(z, z, out=w[0])
+    rho2 += r2
+    np.subtract(length, z, out=lz)
+    np.minimum(z, lz, out=z)                           # fold into z <= L/2
+    np.subtract(length, z, out=lz)
+    np.multiply(z, z, out=r1)
     r1 += rho2
     np.sqrt(r1, out=r1)
-    lz = np.subtract(L, z, out=w[1])
-    num = np.multiply(lz, lz, out=w[2])
+    num = np.multiply(lz, lz, out=out)
     num += rho2
     np.sqrt(num, out=num)
     num += lz
-    den = np.abs(z, out=t)
-    den += r1
-    np.divide(rho2, den, out=den)
-    np.subtract(r1, z, out=den, where=z <= 0)
+    s = np.abs(z, out=lz)
+    s += r1                                            # r1 + |z|
+    den = np.divide(rho2, s, out=rho2)
+    np.less_equal(z, 0.0, out=mask)
+    np.putmask(den, mask, s)
     num /= den
     return np.log(num, out=num)
 
@@ -441,27 +517,6 @@ def _subdivide(seg: Segments, counts):
     return seg.start[idx] + t0 * d, seg.start[idx] + t1 * d, idx
 
 
-def _reflections(image, wall):
-    """The image sources as (sign, matrix, shift): r' = r @ matrix + shift, charge times sign.
-
-    ``image`` adds the ground plane z = 0; ``wall`` (a point and a horizontal
-    unit normal) adds a vertical grounded plane, and with both the image of
-    the image (sign +1): exact for two perpendicular planes.
-    """
-    out = []
-    ground = (np.diag([1.0, 1.0, -1.0]), np.zeros(3))
-    if image:
-        out.append((-1.0,) + ground)
-    if wall is not None:
-        p0, n = (np.asarray(v, dtype=float) for v in wall)
-        m = np.eye(3) - 2.0 * np.outer(n, n)
-        shift = 2.0 * float(np.dot(p0, n)) * n
-        out.append((-1.0, m, shift))
-        if image:
-            out.append((1.0, m @ ground[0], shift @ ground[0]))
-    return out
-
-
 #: Solutions kept for reuse (a report solves some wire sets more than once: the headline, the
 #: building's figures and the what-if base share them); each entry holds some tens of kB.
 _SOLVE_CACHE_SIZE = 64
@@ -516,9 +571,7 @@ def _linear_solve(matrix, rhs, mid):
 
 def _solve_uncached(start, end, radius, grounded, image, floating=False, wall=None):
     mid = 0.5 * (start + end)
-    pot = _potential_matrix(mid, start, end, radius)
-    for sign, m, shift in _reflections(image, wall):
-        pot = pot + sign * _potential_matrix(mid, start @ m + shift, end @ m + shift, radius)
+    pot = _potential_fill(mid, start, end, radius, image, wall)
     lengths = np.linalg.norm(end - start, axis=1)
     # unknowns: line charge density lambda_j; potential = lambda_j * I_ij / (4 pi eps0)
     rhs = np.where(grounded, 0.0, 1.0)

@@ -200,7 +200,48 @@ def test_potential_matrix_is_the_segment_integral_bit_for_bit():
     radius = rng.uniform(1e-4, 3e-3, 40)
     points = np.concatenate([0.5 * (start + end), rng.uniform(-5, 25, (25, 3))])
     ref = cp.segment_potential_integral(points[:, None, :], start[None], end[None], radius[None, :])
-    got = cp._potential_matrix(points, start, end, radius)
+    got = cp._potential_fill(points, start, end, radius)
+    assert np.array_equal(ref, got)
+
+
+def _images_by_the_integral(points, start, end, radius, image, wall):
+    """The fill written out term by term: segment_potential_integral of each reflected segment set."""
+    def term(s, e):
+        return cp.segment_potential_integral(points[:, None, :], s[None], e[None], radius[None, :])
+
+    flip = np.diag([1.0, 1.0, -1.0])
+    total = term(start, end)
+    if image:
+        total = total - term(start @ flip, end @ flip)
+    if wall is not None:
+        p0, n = wall
+        m = np.eye(3) - 2.0 * np.outer(n, n)
+        shift = 2.0 * float(np.dot(p0, n)) * n
+        total = total - term(start @ m + shift, end @ m + shift)
+        if image:
+            total = total + term(start @ (m @ flip) + shift @ flip, end @ (m @ flip) + shift @ flip)
+    return total
+
+
+@pytest.mark.parametrize("image", [False, True])
+@pytest.mark.parametrize("with_wall", [False, True])
+def test_potential_fill_with_images_is_the_segment_integral_bit_for_bit(image, with_wall):
+    # consistency check: the blocked fill with ground and wall images (the ground image sharing the
+    # horizontal work of its sources) gives exactly the sum of the segment integrals of the reflected
+    # segment sets, over several row blocks
+    rng = np.random.default_rng(11)
+    n = 300
+    start = rng.uniform(0, 20, (n, 3)) + [0.0, 0.0, 0.5]
+    end = start + rng.normal(0, 3, (n, 3))
+    end[:, 2] = np.abs(end[:, 2]) + 0.3
+    end[:20, :2] = start[:20, :2]  # some verticals
+    radius = rng.uniform(1e-4, 3e-3, n)
+    points = 0.5 * (start + end)
+    normal = np.array([np.cos(0.4), np.sin(0.4), 0.0])
+    wall = (np.array([-30.0, -30.0, 0.0]), normal) if with_wall else None
+    ref = _images_by_the_integral(points, start, end, radius, image, wall)
+    got = cp._potential_fill(points, start, end, radius, image, wall)
+    assert n * n > cp.FILL_BLOCK_ELEMENTS  # more than one block of rows
     assert np.array_equal(ref, got)
 
 
