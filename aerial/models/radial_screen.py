@@ -175,10 +175,11 @@ def radial_screen_impedance(frequency, distance, count, radial_length, wire_radi
         Number of radials (0: the soil alone); several sets of radials of
         different lengths from the same hub as sequences, the screen at each
         distance made of the radials reaching it. [1]
-    radial_length : float or sequence of float
-        Length of the radials of each set. [m]
-    wire_radius : float
-        [m]
+    radial_length : float, sequence of float, or array_like of shape (..., S)
+        Length of the radials of each set; several systems of sets at once along the leading axes
+        (the result then gains those axes in front of the distance's). [m]
+    wire_radius : float or array_like
+        Broadcast against the distance (one per system: shape (..., 1)). [m]
     conductivity, relative_permittivity : float
         [S/m], [1]
 
@@ -201,15 +202,39 @@ def radial_screen_impedance(frequency, distance, count, radial_length, wire_radi
     r = np.asarray(distance, float)
     z_soil = soil_surface_impedance(f, conductivity, relative_permittivity) * np.ones_like(r)
     counts = np.atleast_1d(np.asarray(count, float))
-    lengths = np.broadcast_to(np.asarray(radial_length, float), counts.shape)
-    # radials reaching each distance (sets of different lengths from one hub)
-    reaching = np.sum(counts[:, None] * (r.ravel()[None, :] < lengths[:, None]), axis=0).reshape(r.shape)
+    lengths = np.asarray(radial_length, float)
+    lengths = np.broadcast_to(lengths, lengths.shape[:-1] + counts.shape if lengths.ndim else counts.shape)
+    # radials reaching each distance (sets of different lengths from one hub), per system of lengths
+    reaching = np.sum(counts * (r[..., None] < np.expand_dims(lengths, -2)), axis=-1)
     if not np.any(reaching > 0):
-        return z_soil
+        return np.broadcast_to(z_soil, np.broadcast_shapes(z_soil.shape, reaching.shape)).copy()
     z_w = wait_screen_impedance(f, r, np.maximum(reaching, 1.0), wire_radius)
     with np.errstate(invalid="ignore", divide="ignore"):
         both = np.where(np.abs(z_w) > 0, z_soil * z_w / (z_soil + z_w), 0.0)
     return np.where(reaching > 0, both, z_soil)
+
+
+def _trapezoid_pieces(g, x):
+    """The trapezoid rule's piece between each pair of neighbouring points, along the last axis.
+
+    Parameters
+    ----------
+    g : ndarray, shape (..., N)
+        The integrand at the points. [any]
+    x : ndarray, shape (N,)
+        Increasing points. [any]
+
+    Returns
+    -------
+    ndarray, shape (..., N - 1)
+        (g_i + g_{i+1}) / 2 (x_{i+1} - x_i). [g × x]
+
+    Examples
+    --------
+    >>> _trapezoid_pieces(np.array([0.0, 1.0, 4.0]), np.array([0.0, 1.0, 2.0]))
+    array([0.5, 2.5])
+    """
+    return 0.5 * (g[..., 1:] + g[..., :-1]) * np.diff(x)
 
 
 @functools.lru_cache(maxsize=4)
@@ -366,8 +391,7 @@ def radial_screen_loss(frequency, height, count, radial_length, wire_radius, con
             r = np.unique(np.concatenate([r, [radial_length * (1 - 1e-9), radial_length]]))
         h = vertical_ground_field(r, f[i:i + 1], height, delta[i:i + 1])[0]
         zs = radial_screen_impedance(f[i], r, count, radial_length, wire_radius, conductivity, relative_permittivity)
-        g = zs * h * h * 2 * np.pi * r
-        seg = 0.5 * (g[1:] + g[:-1]) * np.diff(r)
+        seg = _trapezoid_pieces(zs * h * h * 2 * np.pi * r, r)
         out[i] = np.sum(seg)
         inside = r[1:] <= radial_length * (1 + 1e-12)
         inner[i] = float(np.sum(seg[inside]).real)
@@ -443,41 +467,57 @@ def static_ground_field(points, charges, distance):
     r = np.asarray(distance, float)
     # a fine grid from the hub for the inner integral; the first point on the axis
     rr = np.concatenate([[0.0], np.geomspace(min(1e-4, r[0] / 10), r[-1], 1 + int(60 * np.log(r[-1] / min(1e-4, r[0] / 10))))])
-    s, z = pts[:, 0:1], np.maximum(pts[:, 1:2], 1e-6)
-    inside = _ring_charge_inside(s, z, rr)
-    p_in = np.interp(r, rr, q @ inside)
+    density = _ring_charge_density(pts[:, 0], np.maximum(pts[:, 1], 1e-6), q, rr)
+    p_in = np.interp(r, rr, np.concatenate([[0.0], np.cumsum(_trapezoid_pieces(density, rr))]))
     return np.clip(1.0 - p_in, 0.0, 1.0) / (2 * np.pi * r)
 
 
-def _ring_charge_inside(s, z, rr):
-    """Share of each charge's ground image within each radius ``rr`` of the hub: (M, N) [1].
+#: Ring-integral values worked out at a time: a block of radii × all the charges, small enough to
+#: stay in the processor's cache (and each block's elliptic integrals converge in their own steps). [1]
+RING_BLOCK_ELEMENTS = 1 << 13
 
-    The ring integral of :func:`static_ground_field` (its Notes), then the trapezoid rule from the hub. The
-    (M, N) arrays are worked on in place, a handful of buffers in all, in the order the formula is written.
+
+def _ring_charge_density(s, z, q, rr):
+    """The charges' ground images per unit radius at each radius ``rr`` from the hub, summed: (N,) [1/m].
+
+    Parameters
+    ----------
+    s, z : ndarray, shape (M,)
+        Each charge's horizontal distance from the hub and its height (z > 0). [m]
+    q : ndarray, shape (M,)
+        The charges' shares. [1]
+    rr : ndarray, shape (N,)
+        Radii from the hub. [m]
+
+    Notes
+    -----
+    The ring integral of :func:`static_ground_field` (its Notes) for every radius and charge, the
+    (N, M) values in blocks of radii, each block summed over the charges with their shares at once:
+    the trapezoid rule from the hub then runs once over the sum instead of once per charge. The
+    operations on a block are in the order the formula is written. A + B > 0 everywhere, as z > 0.
     """
-    a = np.add((rr * rr)[None, :], s * s)
-    a += z * z                                         # r'^2 + s^2 + z^2
-    b = np.multiply((2 * rr)[None, :], s)              # 2 r' s
-    apb = np.add(a, b)
-    m = np.multiply(2, b)
-    np.divide(m, apb, out=m)
-    if not np.all(apb > 0):
-        m[~(apb > 0)] = 0.0
-    ring = np.multiply(z, rr[None, :])
-    ring /= 2 * np.pi
-    ring *= 4
-    ring *= ellipe(m)
-    np.sqrt(apb, out=apb)
-    a -= b
-    a *= apb
-    ring /= a                                          # z r' / (2 pi) * 4 E(m) / ((A - B) sqrt(A + B))
-    inside = np.empty_like(ring)
-    inside[:, 0] = 0.0
-    trap = np.add(ring[:, 1:], ring[:, :-1], out=a[:, 1:])
-    trap *= 0.5
-    trap *= np.diff(rr)
-    np.cumsum(trap, axis=1, out=inside[:, 1:])
-    return inside
+    out = np.empty(rr.size)
+    step = max(1, RING_BLOCK_ELEMENTS // max(s.size, 1))
+    s2 = s * s
+    z2 = z * z
+    for i in range(0, rr.size, step):
+        r = rr[i:i + step, None]
+        a = np.add(r * r, s2)
+        a += z2                                        # r'^2 + s^2 + z^2
+        b = np.multiply(2 * r, s)                      # 2 r' s
+        apb = np.add(a, b)
+        m = np.multiply(2, b)
+        m /= apb
+        ring = np.multiply(z, r)
+        ring /= 2 * np.pi
+        ring *= 4
+        ring *= ellipe(m)
+        np.sqrt(apb, out=apb)
+        a -= b
+        a *= apb
+        ring /= a                                      # z r' / (2 pi) * 4 E(m) / ((A - B) sqrt(A + B))
+        np.dot(ring, q, out=out[i:i + step])
+    return out
 
 
 def screen_loss_of_field(frequency, distance, field, count, radial_length, wire_radius, conductivity,
@@ -516,8 +556,7 @@ def screen_loss_of_field(frequency, distance, field, count, radial_length, wire_
     r = np.asarray(distance, float)
     z = radial_screen_impedance(f[:, None], r[None, :], count, radial_length, wire_radius, conductivity,
                                 relative_permittivity)
-    g = z * np.asarray(field) ** 2 * 2 * np.pi * r
-    seg = 0.5 * (g[:, 1:] + g[:, :-1]) * np.diff(r)
+    seg = _trapezoid_pieces(z * np.asarray(field) ** 2 * 2 * np.pi * r, r)
     inside = (r[1:] <= np.max(radial_length) * (1 + 1e-12))[None, :]
     return seg.sum(axis=1), np.where(inside, seg.real, 0.0).sum(axis=1)
 
@@ -567,17 +606,7 @@ def screen_loss_by_length(frequency, distance, field, counts, lengths, wire_radi
     >>> bool(dz[1].real < dz[0].real)            # longer radials: less loss
     True
     """
-    f = np.asarray([[float(frequency)]])
     r = np.asarray(distance, float)
-    counts = np.asarray(counts, float)
-    lengths = np.asarray(lengths, float)
-    radius = np.asarray(wire_radius, float)[:, None]
-    z_soil = soil_surface_impedance(f, conductivity, relative_permittivity) * np.ones_like(r[None, :])
-    reaching = np.sum(counts[None, :, None] * (r[None, None, :] < lengths[:, :, None]), axis=1)
-    z_w = wait_screen_impedance(f, r[None, :], np.maximum(reaching, 1.0), radius)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        both = np.where(np.abs(z_w) > 0, z_soil * z_w / (z_soil + z_w), 0.0)
-    z = np.where(reaching > 0, both, z_soil)
-    g = z * np.asarray(field) ** 2 * 2 * np.pi * r
-    seg = 0.5 * (g[:, 1:] + g[:, :-1]) * np.diff(r)
-    return seg.sum(axis=1)
+    z = radial_screen_impedance(np.asarray([[float(frequency)]]), r[None, :], counts, lengths,
+                                np.asarray(wire_radius, float)[:, None], conductivity, relative_permittivity)
+    return _trapezoid_pieces(z * np.asarray(field) ** 2 * 2 * np.pi * r, r).sum(axis=1)

@@ -124,6 +124,22 @@ def test_ellipk_and_ellipe_match_scipy():
     assert _rel(sf.ellipe(PARAMETERS), ref.ellipe(PARAMETERS)) < 2e-14
 
 
+def test_elliptic_values_do_not_depend_on_the_values_beside_them():
+    # consistency check: the mean runs in groups that each stop when their own slowest value has
+    # converged; a value computed alone, or among values needing more steps, or in a group of its own
+    # kind, comes out the same to 1e-15 (and each against scipy.special, the reference library)
+    rng = np.random.default_rng(3)
+    mixed = rng.permutation(PARAMETERS)
+    together_k, together_e = sf.ellipk(mixed), sf.ellipe(mixed)
+    for i in range(0, mixed.size, 97):
+        assert sf.ellipk(mixed[i]) == pytest.approx(together_k[i], rel=1e-15, abs=0.0)
+        assert sf.ellipe(mixed[i]) == pytest.approx(together_e[i], rel=1e-15, abs=0.0)
+    order = np.argsort(mixed)
+    assert _rel(sf.ellipe(mixed[order]), together_e[order]) < 1e-15
+    assert _rel(sf.ellipk(mixed[order]), together_k[order]) < 1e-15
+    assert _rel(together_e, ref.ellipe(mixed)) < 2e-14
+
+
 def test_elliptic_table_values_and_edges():
     # A&S Table 17.1 (alpha = 45 deg, m = 1/2): K = 1.8540746773, E = 1.3506438810; K(0) = E(0) = pi/2,
     # E(1) = 1, K(1) infinite (A&S 17.3.11-17.3.12)
