@@ -64,7 +64,7 @@ from aerial.models.fullwave_kernel import DEFAULT_GAUSS_POINTS
 from aerial.models.fullwave_system import (
     System,
     loop_tree_currents,
-    lu_solve,
+    solve_matrix,
     build_table,
     plan_band,
     quasi_static_currents,
@@ -477,7 +477,7 @@ class _Sweep:
                 qs = True
                 self.non_finite.append(fi)
             else:
-                cur, cnd = lu_solve(z, self.v)
+                cur, cnd = solve_matrix(z, self.v, system.symmetric)
                 self.cond[i] = cnd
                 delta = 10 * _EPS * cnd
                 if not np.all(np.isfinite(cur)) or delta > QUASI_STATIC_HANDOFF:
@@ -652,7 +652,7 @@ def _convergence(system, segments, counts, f, i_feed, z_in, series_ohm, v, n_gau
         note = f"convergence checked with half the pieces (N/2 against N): 2N = {2 * N} unknowns exceeds the memory limit"
     z = other.matrix_direct(k)
     other.add_losses(z, other.piece_impedance(f[i]))
-    cur, _ = lu_solve(z, other.topo.feed_weight.astype(complex))
+    cur, _ = solve_matrix(z, other.topo.feed_weight.astype(complex), other.symmetric)
     z_other = 1.0 / (other.topo.feed_weight @ cur) + series_ohm
     z_this = 1.0 / i_feed[i] + series_ohm
     fine, coarse = (z_other, z_this) if fine_is_other else (z_this, z_other)

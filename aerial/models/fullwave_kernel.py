@@ -603,12 +603,45 @@ class Filler:
                 S = self._reduce(g, r0, r1, image, n == 0)
                 a_re[n] += tt * S[:4].view(float)
                 phi_n[n] += sign * S[4]
-        scale = np.array([(-1j) ** n / math.factorial(n) for n in range(order + 1)])[:, None, None, None]
-        x = np.zeros((order + 3,) + a_n.shape[1:], dtype=complex)
-        x[: order + 1] = (k0 * k0 * scale) * a_n
-        x[1 : order + 2] += (2 * k0 * half_width * scale) * a_n
-        x[2:] += (half_width * half_width * scale) * a_n
-        phi_n *= scale[:, 0]
+        x = (series_combination(k0, half_width, order) @ a_n.reshape(order + 1, -1)).reshape((order + 3,) + a_n.shape[1:])
+        phi_n *= np.array([(-1j) ** n / math.factorial(n) for n in range(order + 1)])[:, None, None]
         for c in range(4):
-            x[: order + 1, c] += self._charge_sign[c] * phi_n
+            if self._charge_sign[c] > 0:
+                x[: order + 1, c] += phi_n
+            else:
+                x[: order + 1, c] -= phi_n
         return x
+
+
+def series_combination(k0, half_width, order):
+    """Matrix C with Y_m = sum_n C_mn A'_n: the Taylor terms of k^2 A(k) from the kernel's power terms.
+
+    A'_n is the vector potential with the kernel exp(-j k0 R) (h R)^n / (4 pi R), so that
+    A_n = (-j)^n / n! A'_n is the n-th Taylor coefficient in x = (k - k0)/h; with
+    k^2 = k0^2 + 2 k0 h x + h^2 x^2 the coefficient of x^m in k^2 A(k) is
+    k0^2 A_m + 2 k0 h A_(m-1) + h^2 A_(m-2) ([1]_ of :mod:`aerial.models.fullwave_system`).
+
+    Parameters
+    ----------
+    k0, half_width : float
+        Expansion point and half-width h of the sub-band. [rad/m]
+    order : int
+        Highest power n of the kernel's expansion. [1]
+
+    Returns
+    -------
+    ndarray of complex, shape (order + 3, order + 1)
+        [m^-2]
+
+    Examples
+    --------
+    >>> series_combination(2.0, 1.0, 1).round(3).tolist()
+    [[(4+0j), 0j], [(4+0j), -4j], [(1+0j), -4j], [0j, -1j]]
+    """
+    s = np.array([(-1j) ** n / math.factorial(n) for n in range(order + 1)])
+    c = np.zeros((order + 3, order + 1), dtype=complex)
+    n = np.arange(order + 1)
+    c[n, n] += k0 * k0 * s
+    c[n + 1, n] += 2 * k0 * half_width * s
+    c[n + 2, n] += half_width * half_width * s
+    return c

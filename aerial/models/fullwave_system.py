@@ -87,30 +87,123 @@ def wire_impedance_per_m(radius, frequency, resistivity, relative_permeability):
     return out
 
 
-def lu_solve(z, rhs):
-    """Solve z x = rhs by LU, in place (z is overwritten); return x and a condition estimate.
+def solve_matrix(z, rhs, symmetric=True):
+    """Solve z x = rhs in place (z is overwritten); return x and a condition estimate.
 
-    The transpose of the C-ordered z is factored (a Fortran-ordered view, so
-    no copy) and the transposed system solved; the condition number is the
-    LAPACK 1-norm estimate of z^T (the infinity-norm one of z). The LAPACK
-    routines (getrf, getrs, gecon) are called directly: the same computation
-    as ``scipy.linalg.lu_factor`` / ``lu_solve``, without their checks of the
-    arguments, which cost a third of a factorisation at N = 200.
+    A complex symmetric z (z^T = z, not Hermitian: the Galerkin matrix of a
+    reciprocal kernel, over a perfect ground or with the reflection
+    coefficients) is factored as z = L D L^T with Bunch-Kaufman pivoting
+    (LAPACK sytrf, sytrs, sycon: [4]_), half the arithmetic of an LU
+    factorisation; the factorisation then reads z's upper triangle only, so
+    a z symmetric in exact arithmetic but not to the last bit (the loop-tree
+    matrix U^T Z U) is taken as its upper triangle mirrored. Any other z
+    (the half-space's Sommerfeld remainder is symmetric only to its table's
+    accuracy) is factored as P L U (getrf, getrs, gecon). The transpose of
+    the C-ordered z is passed (a Fortran-ordered view, no copy) and the
+    transposed system solved. The condition number is the LAPACK 1-norm
+    estimate of z^T (the infinity-norm one of z). The LAPACK routines are
+    called directly: the same computation as ``scipy.linalg.lu_factor`` /
+    ``lu_solve`` or ``ldl``, without their checks of the arguments, which
+    cost a third of a factorisation at N = 200.
+
+    Parameters
+    ----------
+    z : ndarray of complex, shape (N, N)
+        The matrix, C order; overwritten. [ohm]
+    rhs : ndarray, shape (N,)
+        Right-hand side. [V]
+    symmetric : bool
+        z is symmetric.
+
+    Returns
+    -------
+    x : ndarray of complex, shape (N,)
+        The solution. [A]
+    cond : float
+        Estimated condition number, inf where the factorisation met an
+        exactly singular pivot. [1]
+
+    References
+    ----------
+    .. [4] J. R. Bunch and L. Kaufman, "Some stable methods for calculating
+       inertia and solving symmetric linear systems", Math. Comp. 31(137),
+       163-179, 1977; E. Anderson et al., *LAPACK Users' Guide*, 3rd ed.,
+       SIAM, 1999 (xSYTRF, xSYTRS, xSYCON, xGETRF). (from memory)
+
+    Examples
+    --------
+    >>> z = np.array([[2.0 + 1j, 1.0], [1.0, 3.0]])
+    >>> x, cond = solve_matrix(z.copy(), np.array([1.0, 0.0]))
+    >>> bool(np.allclose(z @ x, [1.0, 0.0]))
+    True
     """
     n = z.shape[0]
     anorm = 0.0
     step = max(1, 2**21 // max(n, 1))
     for r0 in range(0, n, step):
         anorm = max(anorm, float(np.abs(z[r0 : r0 + step]).sum(axis=1).max()))
-    getrf, getrs, gecon = sla.get_lapack_funcs(("getrf", "getrs", "gecon"), (z,))
+    rhs = np.asarray(rhs, dtype=complex)
     with blas_threads(n, threaded=True):
-        lu, piv, info = getrf(z.T, overwrite_a=True)
-        if info < 0:  # pragma: no cover - an argument LAPACK rejects is a bug here
-            raise ValueError(f"illegal value in argument {-info} of the LU factorisation")
-        x, _ = getrs(lu, piv, np.asarray(rhs, dtype=lu.dtype), trans=1)
-        rcond, _ = gecon(lu, anorm, norm="1")
-    cond = 1.0 / rcond if rcond > 0 else np.inf
+        if symmetric:
+            sytrf, sytrs, sycon, lwork = sla.get_lapack_funcs(("sytrf", "sytrs", "sycon", "sytrf_lwork"), (z,))
+            work, _ = lwork(n, lower=1)
+            ldl, ipiv, info = sytrf(z.T, lower=1, lwork=max(1, int(work.real)), overwrite_a=True)
+            _check_info(info)
+            x, _ = sytrs(ldl, ipiv, rhs, lower=1)
+            rcond, _ = sycon(ldl, ipiv, anorm, lower=1)
+        else:
+            getrf, getrs, gecon = sla.get_lapack_funcs(("getrf", "getrs", "gecon"), (z,))
+            lu, piv, info = getrf(z.T, overwrite_a=True)
+            _check_info(info)
+            x, _ = getrs(lu, piv, rhs, trans=1)
+            rcond, _ = gecon(lu, anorm, norm="1")
+    cond = 1.0 / rcond if (info == 0 and rcond > 0) else np.inf
     return x, cond
+
+
+def _check_info(info):
+    if info < 0:  # pragma: no cover - an argument LAPACK rejects is a bug here
+        raise ValueError(f"illegal value in argument {-info} of the matrix factorisation")
+
+
+def longest_kernel_distance(start, end, radius):
+    """Longest reduced-kernel distance between two points of the wires or of a wire and an image. [m]
+
+    Parameters
+    ----------
+    start, end : ndarray, shape (S, 3)
+        Ends of the straight wires (z up, ground plane z = 0). [m]
+    radius : float
+        Largest wire radius. [m]
+
+    Returns
+    -------
+    float
+        R_max = sqrt(d_max^2 + a^2), d_max the largest distance between a
+        point of one wire and a point of another wire or of any wire's image
+        in z = 0. The distance between points of two straight wires is a
+        convex function of the positions along them, so its largest value
+        lies at wire ends: only the ends (and their images) are compared. [m]
+
+    Notes
+    -----
+    This is the length in the Taylor remainder of the band tables: the
+    kernel exp(-jkR)/R expanded about k0 has the remainder bound
+    (h R)^(n+1)/(n+1)! relative to |exp(-jk0R)/R| for |k - k0| <= h, and
+    the largest R over the source and image pairs is what the bound needs.
+
+    Examples
+    --------
+    >>> round(longest_kernel_distance(np.array([[0.0, 0, 10]]), np.array([[30.0, 0, 10]]), 0.0), 3)
+    36.056
+    """
+    pts = np.unique(np.vstack([start, end]), axis=0)
+    both = np.vstack([pts, pts * [1.0, 1.0, -1.0]])
+    d2 = 0.0
+    step = max(1, 2**16 // max(len(both), 1))  # point pairs per chunk
+    for a in range(0, len(pts), step):
+        d2 = max(d2, float((np.square(pts[a : a + step, None, :] - both[None, :, :]).sum(axis=2)).max()))
+    return math.sqrt(d2 + float(radius) ** 2)
 
 
 class System:
@@ -134,6 +227,8 @@ class System:
     def __init__(self, segments, counts, ground, eps_soil, sigma_soil, n_gauss):
         self.topo: Topology = build_topology(segments, counts)
         self.ground = ground
+        #: The impedance matrix is symmetric to the last bit (the half-space's remainder tables are not).
+        self.symmetric = ground != "lossy"
         self.eps_soil, self.sigma_soil = eps_soil, sigma_soil
         self.filler = Filler(self.topo, n_gauss=n_gauss)
         topo = self.topo
@@ -143,6 +238,7 @@ class System:
         self.centroid = (w @ (topo.midpoint * topo.length[:, None])) / wl[:, None]
         pts = np.vstack([topo.start, topo.end])
         self.size = float(np.ptp(np.vstack([pts, pts * [1.0, 1.0, -1.0]]), axis=0).max())
+        self.reach = longest_kernel_distance(segments.start, segments.end, topo.radius.max())
         self._static = None
         self._lt = None
         kinds = np.stack([topo.radius, topo.resistivity, topo.relative_permeability], axis=1)
@@ -283,7 +379,7 @@ class System:
     def feed_impedance(self, z):
         """Input impedance V/I0 of a full matrix (overwritten). [ohm]"""
         v = self.topo.feed_weight.astype(complex)
-        cur, _ = lu_solve(z, v)
+        cur, _ = solve_matrix(z, v, self.symmetric)
         return 1.0 / (v @ cur)
 
 
@@ -361,10 +457,10 @@ def plan_band(system: System, k_sorted, tol, memory_limit):
     N = system.topo.n_unknowns
     k_lo, k_hi = k_sorted[0], k_sorted[-1]
     n_sub = 1
-    order = series_order(0.5 * (k_hi - k_lo), system.size, tol)
+    order = series_order(0.5 * (k_hi - k_lo), system.reach, tol)
     while order is None:
         n_sub *= 2
-        order = series_order(0.5 * (k_hi - k_lo) / n_sub, system.size, tol)
+        order = series_order(0.5 * (k_hi - k_lo) / n_sub, system.reach, tol)
     if (MAX_SERIES_ORDER + 4) * N * N * 16 > memory_limit:
         notes.append("band tables skipped: they would exceed the memory limit; direct fill at every frequency")
         return [], notes
@@ -424,7 +520,7 @@ def loop_tree_currents(system: System, k, v, zloss):
     zp += (ETA0 / (1j * k)) * pp
     s = 1.0 / np.sqrt(np.maximum(np.abs(np.diag(zp)), 1e-300))
     m = s[:, None] * zp * s[None, :]
-    y, cond = lu_solve(m, s * (u.T @ v))
+    y, cond = solve_matrix(m, s * (u.T @ v), system.symmetric)
     return u @ (s * y), cond
 
 

@@ -71,3 +71,62 @@ def test_consistency_check_upper_row_blocks_cover_every_row(n, blocks):
     edges = upper_row_blocks(n, blocks)
     assert edges[0] == 0 and edges[-1] == n and all(a < b for a, b in zip(edges[:-1], edges[1:]))
     assert len(edges) - 1 <= blocks
+
+
+def test_longest_kernel_distance_of_an_inverted_l_is_its_far_end_to_the_image_of_its_top():
+    # Pythagoras (geometry, common practice): the longest distance is from the base (0, 0, 0.02) or the top
+    # corner (0, 0, 10.02) to the image of the far end (30, 0, -10.02): sqrt(30^2 + 20.04^2) from the corner,
+    # with the reduced radius a = 1 mm added in quadrature
+    from aerial.models.fullwave_system import longest_kernel_distance
+
+    seg, _ = inverted_l(10)
+    expected = np.sqrt(30.0**2 + 20.04**2 + 1e-3**2)
+    assert longest_kernel_distance(seg.start, seg.end, 1e-3) == pytest.approx(expected, rel=1e-14)
+
+
+def test_consistency_check_band_order_uses_the_longest_kernel_distance():
+    # consistency check: the planned order meets the Lagrange remainder bound (h R_max)^(n+1)/(n+1)! <= tol of
+    # exp(-j theta) with the source-to-image distance, and the order below it does not
+    from math import factorial
+
+    from aerial.models.fullwave_system import plan_band
+
+    seg, counts = inverted_l(20)
+    system = System(seg, counts, "perfect", None, None, 3)
+    k = 2 * np.pi * np.linspace(531e3, 1602e3, 10) / 299_792_458.0
+    (k_lo, k_hi, order), = plan_band(system, k, 1e-10, 2**30)[0]
+    x = 0.5 * (k_hi - k_lo) * system.reach
+    assert system.reach > system.size  # the diagonal to the image is longer than the largest single extent
+    assert x ** (order + 1) / factorial(order + 1) <= 1e-10 < x**order / factorial(order)
+
+
+@pytest.mark.parametrize("symmetric", [True, False])
+def test_solve_matrix_against_numpy_solve_and_condition_number(symmetric):
+    # reference library: numpy.linalg.solve and numpy.linalg.cond(z, inf) (the estimate is that of the 1-norm
+    # of z^T, the infinity norm of z; the same for a symmetric z); the LAPACK estimate of the condition number
+    # is a lower bound, normally within a factor 3 of the true value (LAPACK Users' Guide, from memory)
+    from aerial.models.fullwave_system import solve_matrix
+
+    rng = np.random.default_rng(7)
+    z = rng.normal(size=(40, 40)) + 1j * rng.normal(size=(40, 40))
+    if symmetric:
+        z = z + z.T
+    rhs = rng.normal(size=40) + 0j
+    x, cond = solve_matrix(z.copy(), rhs, symmetric)
+    assert np.allclose(x, np.linalg.solve(z, rhs), rtol=1e-10, atol=1e-12)
+    exact = np.linalg.cond(z, np.inf)
+    assert exact / 3 <= cond <= exact * (1 + 1e-12)
+
+
+def test_solve_matrix_reads_only_the_upper_triangle_of_a_symmetric_matrix():
+    # consistency check: the lower triangle of a symmetric matrix is not read by the factorisation
+    from aerial.models.fullwave_system import solve_matrix
+
+    rng = np.random.default_rng(8)
+    z = rng.normal(size=(12, 12)) + 1j * rng.normal(size=(12, 12))
+    z = z + z.T
+    rhs = rng.normal(size=12) + 0j
+    spoiled = z.copy()
+    spoiled[np.tril_indices(12, -1)] += 1e-3  # the norm still reads it; the solution must not
+    x, _ = solve_matrix(spoiled, rhs, True)
+    assert np.allclose(x, np.linalg.solve(z, rhs), rtol=1e-10, atol=1e-12)
