@@ -27,11 +27,7 @@ def check_site(path) -> dict:
     from aerial.estimate.cautions import cautions_for
     from aerial.site.reader import load_site
 
-    site = load_site(path)
-    if site.plan:  # the [plan] table is read by `layout`; check it here too (a misspelt key, a bad corner)
-        from aerial.site.plan import parse_plan
-
-        parse_plan(site)
+    site = load_site(path)  # reads [plan] and [building] too: a misspelt key or a bad corner is found here
     clearance_warnings = refusal_check(site)
     with naming_the_file(site):
         geo = resolve(site)

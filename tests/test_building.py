@@ -255,6 +255,22 @@ def test_a_balcony_rail_without_a_building_infers_one_and_says_so(capsys, tmp_pa
     assert abs(20 * math.log10(lay / r["aerial"]["effective_height_m"][i])) < 0.5
 
 
+def test_a_support_kind_written_another_way_still_infers_the_building(capsys, tmp_path):
+    # Input handling: "Balcony-rail" is read as the kind "balcony rail" everywhere (as [plan] reads it), so the
+    # block is still assumed behind the rail, and the report does not fall back to open ground.
+    described = _without_building(HIGH, tmp_path)
+    p = tmp_path / "written_kind.toml"
+    text = described.read_text(encoding="utf-8")
+    assert text.count('kind = "balcony rail"') == 2
+    p.write_text(text.replace('kind = "balcony rail"', 'kind = "Balcony-rail"'), encoding="utf-8")
+    code, out, err = run(capsys, "report", "--json", str(p))
+    assert code == 0, err
+    r = json.loads(out)
+    assert r["building"]["source"] == "supports"
+    assert any("is assumed from the balcony rail supports" in w for w in r["warnings"])
+    assert not any("treat it as a wire over open ground" in w for w in r["warnings"])
+
+
 def test_sites_without_a_building_support_keep_their_open_ground_figures(capsys):
     # Consistency check (open-ground limit): examples with no building and no rail, window or roof support get
     # no building, and their effective height is the closed form's over open ground.

@@ -298,10 +298,10 @@ def test_cli_layout_invalid_plan_exit_2(tmp_path, capsys):
 ])
 def test_cli_a_mistyped_plan_choice_gets_the_closest(tmp_path, capsys, key, typo, meant):
     """Invented input: a value one letter off names the choice it was probably meant to be, on one line."""
-    extra = '[plan.balcony]\nfloor_height = "9 m"\nstructure = "concrete"\n' if key == "structure" else ""
+    extra = '[plan.balcony]\nfloor_height = "9 m"\nstructure = "masonry"\n' if key == "structure" else ""
     text = site_with([support("a", 10, 0, 8)], plan_extra=extra).text
     text = text.replace('building = "house"', f'building = "{typo}"') if key == "building" else \
-        text.replace('structure = "concrete"', f'structure = "{typo}"')
+        text.replace('structure = "masonry"', f'structure = "{typo}"')
     p = tmp_path / "typo.toml"
     p.write_text(text, encoding="utf-8")
     assert main(["layout", str(p)]) == EXIT_USER

@@ -655,8 +655,7 @@ def on_a_balcony(site) -> bool:
     from aerial.geometry.resolve import building_of
 
     body, described = building_of(site)
-    apartment = isinstance(site.plan, dict) and str(site.plan.get("building", "")).lower() == "apartment"
-    return body is not None and (apartment or described.balcony_floor_m is not None)
+    return body is not None and (site.apartment or described.balcony_floor_m is not None)
 
 
 def balcony_without_ground_access(site) -> bool:
@@ -939,7 +938,7 @@ def _open_ground_warnings(site, geometry) -> list:
     """Said when a wire on a building is modelled with no building: it is in open ground."""
     if geometry.building is not None:
         return []
-    if isinstance(site.plan, dict) and str(site.plan.get("building", "")).lower() == "apartment":
+    if site.apartment:
         return [APARTMENT_NOTE]
     from aerial.site.building import open_ground_notes
 

@@ -38,9 +38,7 @@ def cautions_for(site) -> list[str]:
             "brings mains noise with it. Connect to it only at the building's earthing terminal or bonding point, "
             "through a licensed electrician, never through an outlet."
         )
-    described = site.raw.get("building") if isinstance(site.raw, dict) else None
-    if (isinstance(described, dict) and "balcony_floor" in described) or \
-            str((site.plan or {}).get("building", "")) == "apartment" or _inferred_balcony(site):
+    if _at_a_flat(site):
         out.append(
             "Building: its steel, its pipes and its mains earth are bonded to the building's earthing. The aerial's "
             "earth joins them only at the main earthing terminal or a bonding point, and only through a licensed "
@@ -59,13 +57,6 @@ def cautions_for(site) -> list[str]:
     return out
 
 
-def _inferred_balcony(site) -> bool:
-    """A balcony wire whose building is inferred from its rail supports (no [building] described)."""
-    from aerial.core.errors import AerialError
-    from aerial.site.building import parse_building
-
-    try:
-        building = parse_building(site)
-    except AerialError:  # the report names a bad building table itself; the cautions never fail on it
-        return False
-    return building is not None and building.source == "supports" and building.balcony_floor_m is not None
+def _at_a_flat(site) -> bool:
+    """Whether the wire is at a flat: the plan says so, or the building the site describes has a balcony floor."""
+    return site.apartment or (site.building is not None and site.building.balcony_floor_m is not None)

@@ -9,13 +9,11 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-import shapely
-from shapely.geometry import LineString, MultiLineString
 
 from aerial.core.materials import CONDUCTORS
 from aerial.models.building import BuildingBody
 from aerial.models.segments import FEED_GAP_M, Segments
-from aerial.site.building import SiteBuilding, parse_building
+from aerial.site.building import SiteBuilding
 
 #: Roles on the earth side of the receiver.
 EARTH_ROLES = ("earth lead", "counterpoise")
@@ -73,27 +71,33 @@ class Geometry:
         m = seg.aerial
         return float(np.sum(seg.midpoint[m, 2] * seg.length[m]) / np.sum(seg.length[m]))
 
-    def footprint(self) -> MultiLineString:
-        """Plan view of the aerial and lead-in (x, y in metres)."""
-        lines = []
-        for w in self.aerial_wires:
-            xy = w.points_m[:, :2]
-            if np.ptp(xy, axis=0).max() > 1e-9:
-                lines.append(LineString(xy))
+    def _plan_runs(self) -> list:
+        """The plan views (x, y) of the aerial and lead-in wires that are not vertical. [m]"""
+        return [xy for xy in (w.points_m[:, :2] for w in self.aerial_wires) if np.ptp(xy, axis=0).max() > 1e-9]
+
+    def footprint(self):
+        """Plan view of the aerial and lead-in (x, y in metres), a shapely MultiLineString."""
+        from shapely.geometry import LineString, MultiLineString
+
+        lines = [LineString(xy) for xy in self._plan_runs()]
         return MultiLineString(lines) if lines else MultiLineString()
 
     def plan_extent_m(self) -> float:
-        """Longest plan dimension of the aerial's footprint. [m]"""
-        fp = self.footprint()
-        if fp.is_empty:
+        """Longest plan dimension of the aerial's footprint: the diagonal of its bounding box. [m]"""
+        runs = self._plan_runs()
+        if not runs:
             return 0.0
-        x0, y0, x1, y1 = shapely.bounds(fp)
+        xy = np.vstack(runs)
+        (x0, y0), (x1, y1) = xy.min(axis=0), xy.max(axis=0)
         return float(np.hypot(x1 - x0, y1 - y0))
 
 
 def building_of(site) -> tuple:
-    """The site's building as (BuildingBody, SiteBuilding), or (None, None) when none is described."""
-    described = parse_building(site)
+    """The site's building as (BuildingBody, SiteBuilding), or (None, None) when none is described.
+
+    The building is read once, when the site is loaded (``site.building``).
+    """
+    described = site.building
     if described is None:
         return None, None
     return BuildingBody(np.array(described.footprint, float), described.height_m, described.construction), described

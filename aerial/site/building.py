@@ -16,11 +16,9 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-import shapely
-from shapely.geometry import Point, Polygon
 
-from aerial.site.plan import STRUCTURES
-from aerial.site.reader import Site, TableReader, choice_words
+from aerial.site.plan import ENTRY_FIXING_KEY, STRUCTURES, Plan, parse_plan
+from aerial.site.tables import TableReader, choice_words
 
 #: Words accepted for ``construction``, each to its canonical structure.
 CONSTRUCTION_WORDS = {s: s for s in STRUCTURES} | {"timber": "timber frame", "steel": "steel frame",
@@ -77,11 +75,22 @@ class SiteBuilding:
 
     @property
     def outline(self) -> Polygon:
+        from shapely.geometry import Polygon
+
         return Polygon(self.footprint)
 
 
-def parse_building(site: Site) -> SiteBuilding | None:
-    """The site's building from ``[building]``, else from ``[plan]``, else None.
+def parse_building(site, plan: Plan | None = None) -> SiteBuilding | None:
+    """The site's building from ``[building]``, else from ``[plan]``, else inferred from its supports, else None.
+
+    The site loader calls this once and keeps the answer as ``Site.building``.
+
+    Parameters
+    ----------
+    site : aerial.site.reader.Site
+        The site as read (its wires, receiver, supports and raw tables).
+    plan : Plan, optional
+        Its ``[plan]`` as :func:`aerial.site.plan.parse_plan` reads it (read here when not given).
 
     Raises
     ------
@@ -89,13 +98,14 @@ def parse_building(site: Site) -> SiteBuilding | None:
         With the file, key, line and what is expected.
     """
     r = TableReader(site.path, site.text)
+    plan = parse_plan(site) if plan is None else plan
     raw = site.raw.get("building") if isinstance(site.raw, dict) else None
     if raw is not None:
-        return _from_table(r, r.table(site.raw, "", "building"), site)
-    return _from_plan(r, site) or _from_supports(r, site)
+        return _from_table(r, r.table(site.raw, "", "building"), site, plan)
+    return _from_plan(site, plan) or _from_supports(site, plan)
 
 
-def _from_table(r: TableReader, t: dict, site: Site) -> SiteBuilding:
+def _from_table(r: TableReader, t: dict, site, plan: Plan) -> SiteBuilding:
     key = "building"
     r.check_keys(t, key, BUILDING_KEYS)
     if "footprint" not in t:
@@ -117,42 +127,32 @@ def _from_table(r: TableReader, t: dict, site: Site) -> SiteBuilding:
         r.fail(f"{key}.balcony_floor", t["balcony_floor"], f"expected a balcony floor below the roof ({height:g} m)")
     bonded = r.boolean(t, key, "rail_bonded")
     if floor is None:
-        floor = _plan_floor(site)
+        floor = _plan_floor(plan)
     _check_wire_outside(r, site, outline, height)
     return SiteBuilding(_corners(outline), height, construction, floor, bonded, "building", tuple(assumed))
 
 
-def _from_plan(r: TableReader, site: Site) -> SiteBuilding | None:
-    plan = site.plan if isinstance(site.plan, dict) else {}
-    if str(plan.get("building", "")).lower() != "apartment":
+def _from_plan(site, plan: Plan) -> SiteBuilding | None:
+    """The block of flats of an ``apartment`` plan: the ``[[plan.buildings]]`` outline that holds the entry."""
+    from shapely.geometry import Point
+
+    if plan.building != "apartment":
         return None
-    rc = site.receiver
-    entry = plan.get("entry", {}).get("at") if isinstance(plan.get("entry"), dict) else None
-    here = Point(entry if isinstance(entry, list) and len(entry) == 2 else (rc.x_m, rc.y_m))
-    for i, b in enumerate(plan.get("buildings", []) or []):
-        if not isinstance(b, dict) or "outline" not in b or "height" not in b:
-            continue
-        outline = _outline(r, b["outline"], f"plan.buildings[{i}].outline")
+    here = Point(plan.entry.x_m, plan.entry.y_m)  # the receiver when no entry is given
+    for b in plan.buildings:
+        outline = _oriented(b.outline)
         if outline.buffer(1.0).covers(here):
-            height = r.length(b, f"plan.buildings[{i}]", "height", required=True, positive=True)
-            structure = _plan_structure(site)
-            assumed = [f"the block of flats is plan.buildings[{i}] (it holds the entry); its construction is "
+            structure = _plan_structure(plan)
+            assumed = [f"the block of flats is {b.key} (it holds the entry); its construction is "
                        f"taken from [plan.balcony]: {structure}"]
-            return SiteBuilding(_corners(outline), height, structure, _plan_floor(site), None, "plan",
+            return SiteBuilding(_corners(outline), b.height_m, structure, _plan_floor(plan), None, "plan",
                                 tuple(assumed))
     return None
 
 
-def _building_supports(r: TableReader, site: Site) -> list:
-    """(kind, x, y, height) of the supports on a flat's building: [supports] and [[plan.supports]]."""
-    found = [(s.kind, s.x_m, s.y_m, s.height_m) for s in site.supports.values() if s.kind in INFER_FROM_KINDS]
-    plan = site.plan if isinstance(site.plan, dict) else {}
-    for i, t in enumerate(plan.get("supports", []) or []):
-        if isinstance(t, dict) and str(t.get("kind", "")) in INFER_FROM_KINDS and "at" in t and "height" in t:
-            key = f"plan.supports[{i}]"
-            x, y = r.plan_point(t["at"], f"{key}.at")
-            found.append((str(t["kind"]), x, y, r.length(t, key, "height", required=True, positive=True)))
-    return found
+def _building_supports(plan: Plan) -> list:
+    """(kind, x, y, height) of the supports on a flat's building: [supports] and [[plan.supports]], as read."""
+    return [(s.kind, s.x_m, s.y_m, s.height_m) for s in plan.supports if s.kind in INFER_FROM_KINDS]
 
 
 def _facade_normal(sup, receiver, aerial):
@@ -187,7 +187,7 @@ def _facade_normal(sup, receiver, aerial):
     return towards / np.linalg.norm(towards)
 
 
-def _from_supports(r: TableReader, site: Site) -> SiteBuilding | None:
+def _from_supports(site, plan: Plan) -> SiteBuilding | None:
     """A building inferred behind the balcony-rail, window or roof supports, or None when it cannot be placed.
 
     The facade faces from the receiver (indoors) towards those supports; it
@@ -196,7 +196,9 @@ def _from_supports(r: TableReader, site: Site) -> SiteBuilding | None:
     width are stated assumptions and the construction is unknown, so the
     range runs from no screening (timber) to a perfect screen (steel).
     """
-    found = _building_supports(r, site)
+    from shapely.geometry import Point, Polygon
+
+    found = _building_supports(plan)
     aerial = [np.asarray(w.points_m, float) for w in site.wires if w.role == "aerial"]
     if not found or not aerial:
         return None
@@ -225,10 +227,10 @@ def _from_supports(r: TableReader, site: Site) -> SiteBuilding | None:
     if all(outline.contains(Point(p[0], p[1])) and p[2] <= height for p in pts):
         return None
     kinds = sorted({k for k, *_ in found})
-    floor = _plan_floor(site)
+    floor = _plan_floor(plan)
     if floor is None and np.any(rails):
         floor = max(0.0, min(h for k, _, _, h in found if k == "balcony rail") - INFERRED_RAIL_HEIGHT_M)
-    structure = _plan_structure(site)
+    structure = _plan_structure(plan)
     tall = "its roof at the support" if roof_only else "one storey above the highest support"
     made = ("its construction unknown (anything from timber, which hardly screens, to a steel frame, which screens "
             "almost completely)" if structure == "unknown" else f"its construction {structure} (from [plan.balcony])")
@@ -239,16 +241,15 @@ def _from_supports(r: TableReader, site: Site) -> SiteBuilding | None:
     return SiteBuilding(_corners(outline), float(height), structure, floor, None, "supports", (said,))
 
 
-def _plan_floor(site: Site):
-    plan = site.plan if isinstance(site.plan, dict) else {}
-    balcony = plan.get("balcony")
-    if not isinstance(balcony, dict) or "floor_height" not in balcony:
-        return None
-    r = TableReader(site.path, site.text)
-    return r.length(balcony, "plan.balcony", "floor_height", minimum=0.0)
+def _plan_floor(plan: Plan):
+    """The balcony floor's height from ``[plan.balcony]``, None without one. [m]"""
+    return plan.balcony.floor_height_m if plan.balcony is not None else None
 
 
 def _outline(r: TableReader, value, key) -> Polygon:
+    import shapely
+    from shapely.geometry import Polygon
+
     if not isinstance(value, list) or len(value) < 3:
         r.fail(key, value, "expected at least three corners [[x, y], [x, y], [x, y], ...]")
     poly = Polygon([r.plan_point(p, f"{key}[{j}]") for j, p in enumerate(value)])
@@ -260,6 +261,8 @@ def _outline(r: TableReader, value, key) -> Polygon:
 
 def _oriented(poly: Polygon) -> Polygon:
     """The outline with its corners in the standard order (where shapely can orient it)."""
+    import shapely
+
     return shapely.orient_polygons(poly) if hasattr(shapely, "orient_polygons") else poly
 
 
@@ -268,16 +271,15 @@ def _corners(outline: Polygon) -> tuple:
     return tuple(map(tuple, np.asarray(outline.exterior.coords)[:-1]))
 
 
-def _plan_structure(site: Site) -> str:
-    """The balcony's structure from ``[plan.balcony]``, "unknown" when not given or not a known one."""
-    plan = site.plan if isinstance(site.plan, dict) else {}
-    balcony = plan.get("balcony")
-    structure = balcony.get("structure", "unknown") if isinstance(balcony, dict) else "unknown"
-    return structure if structure in STRUCTURES else "unknown"
+def _plan_structure(plan: Plan) -> str:
+    """The balcony's structure from ``[plan.balcony]``, "unknown" when not given."""
+    return plan.balcony.structure if plan.balcony is not None else "unknown"
 
 
-def _check_wire_outside(r: TableReader, site: Site, outline: Polygon, height: float):
+def _check_wire_outside(r: TableReader, site, outline: Polygon, height: float):
     """The aerial wire must run somewhere outside the building (or above its roof)."""
+    from shapely.geometry import Point
+
     for w in site.wires:
         if w.role != "aerial":
             continue
@@ -288,13 +290,12 @@ def _check_wire_outside(r: TableReader, site: Site, outline: Polygon, height: fl
            "building, with the wire outside it (on the balcony, along the garden)")
 
 
-def open_ground_notes(site: Site) -> list[str]:
-    """Notes for a site with no building described (nor inferred) whose wire is fixed to a building."""
-    kinds = {s.kind for s in site.supports.values()}
-    plan = site.plan if isinstance(site.plan, dict) else {}
-    for t in plan.get("supports", []) or []:
-        if isinstance(t, dict):
-            kinds.add(str(t.get("kind", "")))
+def open_ground_notes(site) -> list[str]:
+    """Notes for a site with no building described (nor inferred) whose wire is fixed to a building.
+
+    The supports counted are those the file lists ([supports] and [[plan.supports]], kinds as read).
+    """
+    kinds = {s.kind for s in parse_plan(site).supports if s.key != ENTRY_FIXING_KEY}
     on = sorted(k for k in kinds if k in ON_BUILDING_KINDS)
     if not on:
         return []

@@ -19,10 +19,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-import shapely
-from shapely.geometry import LineString, Point, Polygon
-
-from aerial.site.reader import SUPPORT_KINDS, Site, TableReader
+from aerial.site.tables import SUPPORT_KINDS, TableReader
 
 #: Words accepted for an overhead line's ``kind``; anything else (or nothing) is a power line.
 POWER_WORDS = ("power", "electric", "electricity", "mains", "service", "distribution")
@@ -35,6 +32,9 @@ BUILDING_TYPES = ("house", "apartment")
 STRUCTURES = ("reinforced concrete", "steel frame", "timber frame", "masonry", "unknown")
 #: Structures treated as a grounded conductor next to the wire (``unknown`` is taken the pessimistic way).
 CONDUCTIVE_STRUCTURES = ("reinforced concrete", "steel frame", "unknown")
+
+#: The key of the candidate support made from ``[plan.entry] fixing_height`` (the wall above the entry).
+ENTRY_FIXING_KEY = "plan.entry.fixing_height"
 
 PLAN_KEYS = {"lot", "building", "entry", "buildings", "supports", "obstacles", "overhead_lines", "balcony", "notes"}
 
@@ -134,7 +134,7 @@ class Plan:
 # --------------------------------------------------------------------------- reading
 
 
-def parse_plan(site: Site) -> Plan:
+def parse_plan(site) -> Plan:
     """Validate ``site.plan`` (the raw ``[plan]`` table) into a :class:`Plan`.
 
     A site without ``[plan]`` gives an empty plan (``given`` False) whose
@@ -198,6 +198,8 @@ def parse_plan(site: Site) -> Plan:
         notes.append('building = "apartment" without [plan.balcony]: the balcony floor height and the structure are '
                      "unknown, so heights are taken above the street (optimistic); add floor_height and structure")
     if lot is not None:
+        from shapely.geometry import Point
+
         for s in supports:
             if not lot.buffer(0.5, quad_segs=8).covers(Point(s.x_m, s.y_m)):
                 notes.append(f'support "{s.name}" is outside the lot: a wire fixed there needs the neighbour\'s consent')
@@ -223,6 +225,9 @@ def line_kind(given) -> tuple[str, str]:
 
 
 def _polygon(r: TableReader, value, key) -> Polygon:
+    import shapely
+    from shapely.geometry import Polygon
+
     if not isinstance(value, list) or len(value) < 3:
         r.fail(key, value, "expected at least three corners [[x, y], [x, y], [x, y], ...]")
     pts = [r.plan_point(p, f"{key}[{j}]") for j, p in enumerate(value)]
@@ -234,6 +239,8 @@ def _polygon(r: TableReader, value, key) -> Polygon:
 
 
 def _path(r: TableReader, value, key) -> LineString:
+    from shapely.geometry import LineString
+
     if not isinstance(value, list) or len(value) < 2:
         r.fail(key, value, "expected at least two points [[x, y], [x, y], ...]")
     pts = [r.plan_point(p, f"{key}[{j}]") for j, p in enumerate(value)]
@@ -243,7 +250,7 @@ def _path(r: TableReader, value, key) -> LineString:
     return line
 
 
-def _entry(r: TableReader, raw, site: Site) -> Entry:
+def _entry(r: TableReader, raw, site) -> Entry:
     if "entry" not in raw:
         rc = site.receiver
         return Entry(rc.x_m, rc.y_m, rc.height_m, None, "receiver", False)
@@ -260,7 +267,7 @@ def _entry(r: TableReader, raw, site: Site) -> Entry:
     return Entry(x, y, h, fix, key, True)
 
 
-def _supports(r: TableReader, raw, site: Site, entry: Entry) -> list:
+def _supports(r: TableReader, raw, site, entry: Entry) -> list:
     out = [PlanSupport(s.name, s.x_m, s.y_m, s.height_m, s.kind, f"supports.{s.name}", True) for s in site.supports.values()]
     names = {s.name for s in out}
     for i, t in enumerate(r.array_of_tables(raw, "plan", "supports")):
@@ -280,7 +287,7 @@ def _supports(r: TableReader, raw, site: Site, entry: Entry) -> list:
         name = "wall above the entry"
         while name in names:
             name += "'"
-        out.append(PlanSupport(name, entry.x_m, entry.y_m, entry.fixing_height_m, "eave", "plan.entry.fixing_height"))
+        out.append(PlanSupport(name, entry.x_m, entry.y_m, entry.fixing_height_m, "eave", ENTRY_FIXING_KEY))
     return out
 
 
