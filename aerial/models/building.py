@@ -371,7 +371,7 @@ def building_limit_frequency(height, loading_length):
     return float(u * SPEED_OF_LIGHT / (2 * np.pi))
 
 
-def building_charge_factor(height, frequency, body: BuildingBody, case: int = 1):
+def building_charge_factor(height, frequency, body: BuildingBody, case=1):
     """:func:`induced_charge_factor` of a building, held below its limit frequency, for a shielding case. [1]
 
     Case 1 (nominal) is the roof-loaded line; case 2 (the most shielding,
@@ -388,13 +388,15 @@ def building_charge_factor(height, frequency, body: BuildingBody, case: int = 1)
         [Hz]
     body : BuildingBody
         The building (its height and footprint give the line and its roof).
-    case : int
-        0, 1 or 2 as above. [1]
+    case : int or sequence of int
+        0, 1 or 2 as above; a sequence gives every case it names, the roof
+        loading and the limit frequency worked out once for them all. [1]
 
     Returns
     -------
     ndarray
-        F for each height and frequency (broadcast). [1]
+        F for each height and frequency (broadcast); for a sequence of
+        cases, stacked along a new first axis in their order. [1]
 
     References
     ----------
@@ -407,16 +409,37 @@ def building_charge_factor(height, frequency, body: BuildingBody, case: int = 1)
     >>> body = BuildingBody([[0, 0], [24, 0], [24, 12], [0, 12]], 21.0, "steel frame")
     >>> [round(float(building_charge_factor(12.6, 1.71e6, body, c)), 3) for c in (0, 1, 2)]
     [2.047, 1.646, 1.324]
+    >>> [round(float(v), 3) for v in building_charge_factor(12.6, 1.71e6, body, (0, 1, 2))]
+    [2.047, 1.646, 1.324]
     """
-    if case not in (0, 1, 2):
-        raise ModelInputError(f"case must be 0, 1 or 2; got {case!r}")
-    dh = roof_loading_length(body.height_m, roof_equivalent_radius(body.footprint))
-    f = np.minimum(np.asarray(frequency, dtype=float), building_limit_frequency(body.height_m, dh))
+    cases = [case] if np.ndim(case) == 0 else list(case)
+    for c in cases:
+        if c not in (0, 1, 2):
+            raise ModelInputError(f"case must be 0, 1 or 2; got {c!r}")
+    dh, f_limit = _line_constants(body)
+    f = np.minimum(np.asarray(frequency, dtype=float), f_limit)
     loaded = induced_charge_factor(height, f, body.height_m, dh)
-    if case == 1:
-        return loaded
-    bare = induced_charge_factor(height, f, body.height_m, 0.0)
-    return bare if case == 2 else loaded * loaded / bare
+    bare = induced_charge_factor(height, f, body.height_m, 0.0) if any(c != 1 for c in cases) else None
+    factors = [loaded if c == 1 else bare if c == 2 else loaded * loaded / bare for c in cases]
+    return factors[0] if np.ndim(case) == 0 else np.stack(factors)
+
+
+def _line_constants(body: BuildingBody):
+    """The building's roof loading length [m] (:func:`roof_loading_length`) and limit frequency [Hz]
+    (:func:`building_limit_frequency`), worked out once per building and kept."""
+    key = (body.footprint.tobytes(), float(body.height_m))
+    found = _LINE_CONSTANTS.get(key)
+    if found is None:
+        dh = roof_loading_length(body.height_m, roof_equivalent_radius(body.footprint))
+        found = (dh, building_limit_frequency(body.height_m, dh))
+        if len(_LINE_CONSTANTS) >= 16:
+            _LINE_CONSTANTS.pop(next(iter(_LINE_CONSTANTS)))
+        _LINE_CONSTANTS[key] = found
+    return found
+
+
+#: Roof loading and limit frequency already worked out, by building (the last 16).
+_LINE_CONSTANTS: dict = {}
 
 
 def scale_screened_field(static, height, factor):
@@ -536,17 +559,18 @@ def plan_distance(points_xy, footprint):
     """
     p = np.asarray(points_xy, dtype=float).reshape(-1, 2)
     a = np.asarray(footprint, dtype=float)
-    b = np.roll(a, -1, axis=0)
+    b = np.concatenate([a[1:], a[:1]])
     ab = b - a
-    t = np.clip(np.einsum("pkj,kj->pk", p[:, None, :] - a[None], ab) / np.einsum("kj,kj->k", ab, ab), 0.0, 1.0)
-    nearest = a[None] + t[..., None] * ab[None]
-    dist = np.min(np.linalg.norm(p[:, None, :] - nearest, axis=-1), axis=1)
+    ax, ay, abx, aby = a[:, 0:1], a[:, 1:2], ab[:, 0:1], ab[:, 1:2]  # edges down the rows, points across
+    px, py = p[:, 0], p[:, 1]
+    t = np.clip(((px - ax) * abx + (py - ay) * aby) / (abx * abx + aby * aby), 0.0, 1.0)
+    ex, ey = px - (ax + t * abx), py - (ay + t * aby)  # from the nearest point of each edge
+    dist = np.sqrt(np.min(ex * ex + ey * ey, axis=0))
     # inside: odd number of edge crossings of a ray towards +x
-    ya, yb = a[None, :, 1], b[None, :, 1]
-    py = p[:, 1:2]
+    ya, yb = ay, b[:, 1:2]
     straddle = (ya > py) != (yb > py)
-    x_cross = a[None, :, 0] + (py - ya) / np.where(yb - ya == 0, 1.0, yb - ya) * ab[None, :, 0]
-    inside = np.sum(straddle & (p[:, 0:1] < x_cross), axis=1) % 2 == 1
+    x_cross = ax + (py - ya) / np.where(yb - ya == 0, 1.0, yb - ya) * abx
+    inside = np.sum(straddle & (px < x_cross), axis=0) % 2 == 1
     return np.where(inside, 0.0, dist)
 
 
@@ -651,6 +675,48 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     >>> r["effective_height_m"][1] < 2.0
     True
     """
+    sol = _facade_solution(segments, body)
+    charge, phi, z, q_aer = sol["charge_c"], sol["field_height_m"], sol["height_m"][:, None], sol["aerial_charge_c"]
+    h_wall, c_wall = float(np.sum(charge * phi) / q_aer), sol["capacitance_f"]
+    s = np.array(body.shielding)
+    he = (1 - s) * open_effective_height_m + s * h_wall
+    cap = (1 - s) * open_capacitance_f + s * c_wall
+    dynamic = {}
+    if frequency is not None:
+        f = np.atleast_1d(np.asarray(frequency, dtype=float))
+        factors = building_charge_factor(z, f, body, (0, 1, 2))  # the static field scaled in each case
+        wall_f = np.stack([np.sum(charge[:, None] * scale_screened_field(phi[..., None], z, factor), axis=0)
+                           / q_aer for factor in factors])
+        dynamic = {
+            "effective_height_by_frequency_m": (1 - s)[:, None] * open_effective_height_m + s[:, None] * wall_f,
+            "facade_effective_height_by_frequency_m": wall_f,
+            "limit_frequency_hz": _line_constants(body)[1],
+        }
+    return dynamic | {
+        "capacitance_f": tuple(float(v) for v in cap),
+        "effective_height_m": tuple(float(v) for v in he),
+        "facade_capacitance_f": c_wall,
+        "facade_effective_height_m": h_wall,
+        "shielding": tuple(float(v) for v in s),
+        "facade_distance_m": sol["facade_distance_m"],
+        "shielded_lead_m": sol["shielded_lead_m"],
+        "notes": list(sol["notes"]),
+    }
+
+
+def _facade_solution(segments: Segments, body: BuildingBody) -> dict:
+    """The wires' charges at 1 V beside the building's nearest facade and the box's field height at them.
+
+    Kept per wire set and building (the report's what-ifs ask again for the nominal wires' figures): a dict of
+    ``charge_c`` [C], ``height_m`` and ``field_height_m`` at the charges [m], ``aerial_charge_c`` [C],
+    ``capacitance_f`` [F], ``facade_distance_m`` [m], ``shielded_lead_m`` [m] and ``notes`` (tuple of str).
+    """
+    key = (body.footprint.tobytes(), float(body.height_m), float(segments.electrode_ohm)) + tuple(
+        np.asarray(getattr(segments, name)).tobytes() for name in
+        ("start", "end", "radius", "grounded", "feed", "wire_index", "resistivity", "relative_permeability"))
+    found = _FACADE_SOLUTIONS.get(key)
+    if found is not None:
+        return found
     aer_mid = 0.5 * (segments.start + segments.end)[segments.aerial]
     dist = plan_distance(aer_mid[:, :2], body.footprint)
     if not np.any(dist > 0):
@@ -659,47 +725,29 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     ends = np.concatenate([segments.start, segments.end])[:, :2]
     p0, n = nearest_facade(body.footprint, ends[plan_distance(ends, body.footprint) > 0])
     front = _in_front(segments, p0, n)
-    notes = []
-    inside_len = float(np.sum(segments.length) - np.sum(front.length))
     if not np.any(front.aerial):
         raise ModelInputError("no aerial wire is in front of the building's nearest facade")
     es = electrostatic_solution(front, wall=(p0, n), target_unknowns=FACADE_TARGET_UNKNOWNS,
                                 max_subsegment_fraction=1.0 / 8.0, convergence_check=False)  # its report is not read
     mid = 0.5 * (es.start + es.end)
-    d = plan_distance(mid[:, :2], body.footprint)
-    phi = screened_field_height(body, mid)
-    q_aer = float(np.sum(es.charge_c[~es.grounded]))
-    h_wall = float(np.sum(es.charge_c * phi) / q_aer)
-    c_wall = float(es.capacitance_f)
-    if np.any(d <= 0):
-        notes.append("part of the wire is over the roof or round a corner of the building; the facade images "
-                     "there are approximate")
-    s = np.array(body.shielding)
-    he = (1 - s) * open_effective_height_m + s * h_wall
-    cap = (1 - s) * open_capacitance_f + s * c_wall
-    w = segments.length[segments.aerial]
-    dynamic = {}
-    if frequency is not None:
-        f = np.atleast_1d(np.asarray(frequency, dtype=float))
-        z = mid[..., 2:3]  # the static field once, scaled for the building's currents in each case
-        wall_f = np.stack([np.sum(es.charge_c[:, None] * scale_screened_field(
-            phi[..., None], z, building_charge_factor(z, f, body, case)), axis=0) / q_aer for case in (0, 1, 2)])
-        dh = roof_loading_length(body.height_m, roof_equivalent_radius(body.footprint))
-        dynamic = {
-            "effective_height_by_frequency_m": (1 - s)[:, None] * open_effective_height_m + s[:, None] * wall_f,
-            "facade_effective_height_by_frequency_m": wall_f,
-            "limit_frequency_hz": building_limit_frequency(body.height_m, dh),
-        }
-    return dynamic | {
-        "capacitance_f": tuple(float(v) for v in cap),
-        "effective_height_m": tuple(float(v) for v in he),
-        "facade_capacitance_f": c_wall,
-        "facade_effective_height_m": h_wall,
-        "shielding": tuple(float(v) for v in s),
-        "facade_distance_m": float(np.average(dist, weights=w)),
-        "shielded_lead_m": inside_len,
-        "notes": notes,
+    notes = ()
+    if np.any(plan_distance(mid[:, :2], body.footprint) <= 0):
+        notes = ("part of the wire is over the roof or round a corner of the building; the facade images there are "
+                 "approximate",)
+    found = {
+        "charge_c": es.charge_c, "height_m": mid[:, 2], "field_height_m": screened_field_height(body, mid),
+        "aerial_charge_c": float(np.sum(es.charge_c[~es.grounded])), "capacitance_f": float(es.capacitance_f),
+        "facade_distance_m": float(np.average(dist, weights=segments.length[segments.aerial])),
+        "shielded_lead_m": float(np.sum(segments.length) - np.sum(front.length)), "notes": notes,
     }
+    if len(_FACADE_SOLUTIONS) >= 16:
+        _FACADE_SOLUTIONS.pop(next(iter(_FACADE_SOLUTIONS)))
+    _FACADE_SOLUTIONS[key] = found
+    return found
+
+
+#: Facade solutions already worked out, by wire set and building (the last 16).
+_FACADE_SOLUTIONS: dict = {}
 
 
 # --------------------------------------------------------------------------- the building's own static screening
@@ -711,6 +759,9 @@ BOX_TARGET_PANELS = 400
 #: Pairs farther apart than this many half-diagonals of the source panel take its charge as a point charge;
 #: nearer pairs integrate the panel exactly. [1]
 BOX_NEAR_HALF_DIAGONALS = 5.0
+#: Floor of the logarithms' arguments in :func:`rectangle_potential_integral`, reached only where the factor
+#: that multiplies the logarithm is zero. [m]
+_LOG_FLOOR = 1e-300
 _BOX_SCREENS: dict = {}
 #: Field heights already worked out, by box and points (the last 32 asked for).
 _FIELD_HEIGHTS: dict = {}
@@ -793,7 +844,17 @@ def rectangle_potential_integral(u, v, w, half_u, half_v):
 
         G(X, Y) = X ln(Y + r) + Y ln(X + r) - w arctan(X Y / (w r))
 
-    taken with the signs + - - + over the four corners [1]. At the centre of
+    taken with the signs + - - + over the four corners [1]. It is evaluated
+    as::
+
+        X sgn(Y) [ln(|Y| + r) - ln rho_X] + Y sgn(X) [ln(|X| + r) - ln rho_Y]
+            - w arctan2(X Y, w r),          rho_X = sqrt(X^2 + w^2)
+
+    the same sum: X ln rho_X cancels between the two corners that share X,
+    and ln(Y + r) - ln rho_X = asinh(Y / rho_X) is odd in Y. No logarithm
+    of a difference is taken (stable on the far side of a corner, Y < 0),
+    and a point on a side's line or in the rectangle's plane needs no
+    special case. At the centre of
     the rectangle itself (w = 0) it gives the known self term
     2a ln((b + d)/a) + 2b ln((a + d)/b), a and b the sides, d the diagonal
     (for a square of side a: 4 a ln(1 + sqrt 2)) [2].
@@ -818,57 +879,50 @@ def rectangle_potential_integral(u, v, w, half_u, half_v):
     w2 = w * w
     xs = [(x, x * x) for x in (hu - u, -hu - u)]  # the corners' two X and two Y, and their squares
     ys = [(y, y * y) for y in (hv - v, -hv - v)]
-    off_plane = w > 0
-    w_off = np.where(off_plane, w, 1.0)
+    # ln rho: the point's distance from the line of each side, floored where it is 0 (its factor X or Y is 0 there)
+    log_x = [0.5 * np.log(np.maximum(x2 + w2, _LOG_FLOOR)) for _, x2 in xs]
+    log_y = [0.5 * np.log(np.maximum(y2 + w2, _LOG_FLOOR)) for _, y2 in ys]
     total = np.zeros(u.shape)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        for ix, iy, sign in ((0, 0, 1.0), (1, 0, -1.0), (0, 1, -1.0), (1, 1, 1.0)):
-            (x, x2), (y, y2) = xs[ix], ys[iy]
-            r = np.sqrt(x2 + y2 + w2)
-            corner = (_x_log(x, y, r, x2 + w2) + _x_log(y, x, r, y2 + w2)
-                      - np.where(off_plane, w * np.arctan(x * y / (w_off * r)), 0.0))
-            total += sign * corner
+    for ix, iy, sign in ((0, 0, 1.0), (1, 0, -1.0), (0, 1, -1.0), (1, 1, 1.0)):
+        (x, x2), (y, y2) = xs[ix], ys[iy]
+        r = np.sqrt(x2 + y2 + w2)
+        corner = (x * np.copysign(np.log(np.maximum(np.abs(y) + r, _LOG_FLOOR)) - log_x[ix], y)
+                  + y * np.copysign(np.log(np.maximum(np.abs(x) + r, _LOG_FLOOR)) - log_y[iy], x)
+                  - w * np.arctan2(x * y, w * r))
+        total += sign * corner
     return total
-
-
-def _x_log(x, y, r, rest):
-    """x ln(y + r), one logarithm: stable for y < 0 (ln(y + r) = ln(rest / (r - y)), rest = x^2 + w^2 = r^2 - y^2)
-    and 0 where x = 0."""
-    arg = np.where(y >= 0, y + r, np.where(rest > 0, rest, 1.0) / (r - y))
-    return np.where(x == 0, 0.0, x * np.log(arg))
 
 
 def _panels_potential(points, box):
     """Matrix (M, N): potential at each point of each panel's unit charge density and its ground image. [m]
 
     A panel farther than ``BOX_NEAR_HALF_DIAGONALS`` of its half-diagonals is a point charge (area over
-    distance); nearer ones are integrated exactly (:func:`rectangle_potential_integral`). The plan offsets are
-    shared by a panel and its image, and every dense array is worked in place.
+    distance); nearer ones are integrated exactly (:func:`rectangle_potential_integral`). The squared plan
+    distances are shared by a panel and its image, and the dense work is done in place in three arrays.
     """
     reach2 = (BOX_NEAR_HALF_DIAGONALS ** 2) * (box.half_u ** 2 + box.half_v ** 2)
     area = 4.0 * box.half_u * box.half_v
     nrm = np.cross(box.axis_u, box.axis_v)
     p = np.asarray(points, dtype=float)
-    dx = p[:, 0:1] - box.centre[:, 0]
-    dy = p[:, 1:2] - box.centre[:, 1]
-    plan2 = dx * dx
-    plan2 += dy * dy
-    out = None
-    for cz in (box.centre[:, 2], -box.centre[:, 2]):  # the panels, then their images in the ground
-        dz = p[:, 2:3] - cz
-        part = dz * dz
+    plan2 = np.subtract.outer(p[:, 0], box.centre[:, 0])
+    plan2 *= plan2
+    parts = [np.subtract.outer(p[:, 1], box.centre[:, 1]), np.empty_like(plan2)]
+    parts[0] *= parts[0]
+    plan2 += parts[0]  # squared plan distance
+    for part, cz in zip(parts, (box.centre[:, 2], -box.centre[:, 2])):  # the panels, then their ground images
+        np.subtract.outer(p[:, 2], cz, out=part)
+        part *= part
         part += plan2  # squared distance
         m, n = np.nonzero(part <= reach2)
         np.maximum(part, 1e-300, out=part)
         np.sqrt(part, out=part)
         np.divide(area, part, out=part)  # a point charge, far off
         if len(m):
-            r = (dx[m, n], dy[m, n], dz[m, n])
+            r = p[m] - np.column_stack([box.centre[n, 0], box.centre[n, 1], cz[n]])
             part[m, n] = rectangle_potential_integral(
-                *(r[0] * axis[n, 0] + r[1] * axis[n, 1] + r[2] * axis[n, 2] for axis in (box.axis_u, box.axis_v, nrm)),
-                box.half_u[n], box.half_v[n])
-        out = part if out is None else np.subtract(out, part, out=out)
-    return out
+                *(r[:, 0] * axis[n, 0] + r[:, 1] * axis[n, 1] + r[:, 2] * axis[n, 2]
+                  for axis in (box.axis_u, box.axis_v, nrm)), box.half_u[n], box.half_v[n])
+    return np.subtract(parts[0], parts[1], out=parts[0])
 
 
 def _graded(n, top_only=False):

@@ -129,6 +129,19 @@ def test_bad_inputs_raise_one_clear_error():
     inside = polyline_segments([[0, -5, 1], [0, -5, 5]], 1e-3)
     with pytest.raises(ModelInputError, match="inside"):
         facade_static_figures(inside, BuildingBody(BLOCK, 18.0, "masonry"), 1e-11, 2.0)
+    with pytest.raises(ModelInputError, match="case must be 0, 1 or 2; got 3"):
+        building_charge_factor(10.0, 1e6, BuildingBody(BLOCK, 18.0, "masonry"), (1, 3))
+
+
+def test_consistency_charge_factor_of_several_cases_at_once_is_each_case_alone():
+    # Consistency check (our own function two ways): the cases asked for together, the roof loading and the limit
+    # frequency worked out once, are the cases asked for one by one, to the last bit, above the limit too.
+    body = BuildingBody(BLOCK, 18.0, "steel frame")
+    z, f = np.linspace(0.5, 18.0, 5)[:, None], np.array([0.1e6, 1.0e6, 3.0e6])
+    together = building_charge_factor(z, f, body, (2, 0, 1))
+    assert together.shape == (3, 5, 3)
+    for got, case in zip(together, (2, 0, 1)):
+        assert np.array_equal(got, building_charge_factor(z, f, body, case))
 
 
 # --------------------------------------------------------------------------- the building's own currents
@@ -255,7 +268,8 @@ def test_rectangle_potential_integral_against_numerical_quadrature():
     from scipy.integrate import dblquad
 
     for u, v, w, a, b in [(0.3, 0.2, 0.5, 0.5, 1.0), (2.0, -1.0, 0.1, 0.5, 1.0), (-3.0, 0.2, 1.0, 2.0, 0.7),
-                          (0.1, 0.1, 0.0, 0.5, 0.5), (0.7, 0.0, 0.0, 0.5, 0.5)]:
+                          (0.1, 0.1, 0.0, 0.5, 0.5), (0.7, 0.0, 0.0, 0.5, 0.5), (0.5, 0.5, 0.0, 0.5, 0.5),
+                          (0.5, 0.2, 0.0, 0.5, 0.5), (-3.0, -2.0, 0.0, 2.0, 0.7), (-3.0, -2.0, 1e-3, 2.0, 0.7)]:
         ref = dblquad(lambda y, x: 1.0 / math.sqrt((x - u) ** 2 + (y - v) ** 2 + w * w), -a, a, -b, b,
                       epsabs=1e-11)[0]
         assert float(rectangle_potential_integral(u, v, w, a, b)) == pytest.approx(ref, rel=1e-7)
