@@ -558,12 +558,18 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
     return out
 
 
-def what_if(site, frequency: float, earth: dict, units: str = "si") -> list[dict]:
+def what_if(site, frequency: float, earth: dict, units: str = "si", *, nominal: dict | None = None) -> list[dict]:
     """What raising the wire, lengthening it, or improving the earth buys, at one frequency.
 
     ``units``: "si" or "us"; the steps are round figures of that system
     (:data:`WHAT_IF_STEPS_M`: 3 m or 10 ft raised, ...), each computed at
     that value and labelled in metres (the report converts the words).
+    ``nominal``: the closed forms' response of the site's own wires at
+    ``frequency`` with the earth in series (arrays of one value:
+    ``radiation_resistance_ohm``, ``conductor_loss_ohm``,
+    ``effective_height_m``, ``capacitance_f``, ``ground_loss_ohm``), when
+    the caller has it (the report's closed-form sweep): the first row and
+    the earth's resistance are then taken from it instead of computed again.
 
     A wire on the balcony of a flat whose earth is the building's (a water
     pipe, the protective earth: nothing in the soil the user can reach) gets
@@ -576,8 +582,12 @@ def what_if(site, frequency: float, earth: dict, units: str = "si") -> list[dict
     if units not in WHAT_IF_STEPS_M:
         raise ModelInputError(f"'{units}' is not a valid unit system, must be one of 'si', 'us'")
     step = WHAT_IF_STEPS_M[units]
-    r_earth = float(earth_at_frequency(site, [frequency])["impedance_ohm"][0].real)
-    base = _headline(site, site.wires, frequency, r_earth, raw=True)
+    if nominal is None:
+        r_earth = float(earth_at_frequency(site, [frequency])["impedance_ohm"][0].real)
+        base = _headline(site, site.wires, frequency, r_earth, raw=True)
+    else:
+        r_earth = float(nominal["ground_loss_ohm"][0])
+        base = _headline(site, site.wires, frequency, r_earth, raw=True, response=nominal)
     rows = [("as described", base)]
     radials_row = better = None
     if not balcony_without_ground_access(site):
@@ -912,7 +922,11 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     result["ranges"] = ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground,
                                              allow_large=allow_large, progress=progress, bounds=bounds)
     if what_ifs:
-        result["what_if"] = what_if(site, float(freqs[centre_i]), earth, units)  # the frequency of the earth table and the ranges
+        # at the frequency of the earth table and the ranges; the closed-form sweep has the first row already
+        here = None if method == "full-wave" else {
+            k: np.asarray(resp[k], float)[centre_i:centre_i + 1] for k in
+            ("radiation_resistance_ohm", "conductor_loss_ohm", "effective_height_m", "capacitance_f", "ground_loss_ohm")}
+        result["what_if"] = what_if(site, float(freqs[centre_i]), earth, units, nominal=here)
 
     from aerial.estimate import receiver as receiver_bridge
 

@@ -371,7 +371,7 @@ def _sources(seg_start, seg_end):
     return np.ascontiguousarray(a0.T), np.ascontiguousarray(u.T), length
 
 
-def _potential_fill(points, seg_start, seg_end, radius, image: bool = False, wall=None):
+def _potential_fill(points, seg_start, seg_end, radius, image: bool = False, wall=None, out=None):
     """Sum of :func:`segment_potential_integral` terms: every segment, and its images, at every point.
 
     Returns the (points, segments) matrix D - G - W + WG: D of the segments themselves, G of their
@@ -382,7 +382,7 @@ def _potential_fill(points, seg_start, seg_end, radius, image: bool = False, wal
     on whole coordinate planes: the same numbers bit for bit. A ground image shares the horizontal
     half of the work with the sources it mirrors (start and end at -z, the horizontal offsets
     unchanged), and the rows are done in blocks of at most ``FILL_BLOCK_ELEMENTS`` elements in
-    reused scratch planes.
+    reused scratch planes. ``out``: a (points, segments) array (or view) to fill instead of a new one.
     """
     p = np.ascontiguousarray(np.asarray(points, dtype=float).T)
     start = np.asarray(seg_start, dtype=float)
@@ -395,7 +395,7 @@ def _potential_fill(points, seg_start, seg_end, radius, image: bool = False, wal
         sets.append(_sources(start @ m + shift, end @ m + shift))
     r2 = np.asarray(radius, dtype=float) ** 2
     rows, cols = p.shape[1], len(start)
-    out = np.empty((rows, cols))
+    out = np.empty((rows, cols)) if out is None else out
     step = max(1, FILL_BLOCK_ELEMENTS // max(cols, 1))
     for r0 in range(0, rows, step):
         r1 = min(rows, r0 + step)
@@ -571,17 +571,17 @@ def _linear_solve(matrix, rhs, mid):
 
 def _solve_uncached(start, end, radius, grounded, image, floating=False, wall=None):
     mid = 0.5 * (start + end)
-    pot = _potential_fill(mid, start, end, radius, image, wall)
     lengths = np.linalg.norm(end - start, axis=1)
     # unknowns: line charge density lambda_j; potential = lambda_j * I_ij / (4 pi eps0)
     rhs = np.where(grounded, 0.0, 1.0)
     if not floating:
-        lam = _linear_solve(pot, rhs, mid) * _FOUR_PI_EPS0
+        lam = _linear_solve(_potential_fill(mid, start, end, radius, image, wall), rhs, mid) * _FOUR_PI_EPS0
         return lam * lengths, mid, 0.0
     n = len(rhs)
-    system = np.zeros((n + 1, n + 1))
-    system[:n, :n] = pot
+    system = np.empty((n + 1, n + 1))
+    _potential_fill(mid, start, end, radius, image, wall, out=system[:n, :n])
     system[:n, n] = -grounded.astype(float)  # counterpoise rows: potential - V_c = 0
+    system[n, n] = 0.0
     system[n, :n] = lengths  # no net charge on aerial + counterpoise
     sol = _linear_solve(system, np.append(rhs, 0.0), mid)
     return sol[:n] * _FOUR_PI_EPS0 * lengths, mid, float(sol[n])
