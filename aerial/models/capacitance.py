@@ -362,6 +362,25 @@ def _scratch_planes(rows: int, cols: int):
     return planes, buf[1][:n].reshape(rows, cols)
 
 
+#: Largest system (unknowns + 1, squared) whose matrix is filled in a per-thread buffer kept for the next
+#: solve instead of a new array: a report solves a dozen wire sets of a few hundred unknowns. [1]
+SYSTEM_BUFFER_ELEMENTS = 1 << 19
+
+
+def _system_matrix(rows: int, cols: int):
+    """An uninitialised (rows, cols) array for a system matrix: a view of a per-thread buffer when small.
+
+    The matrix is only read by the solve that follows (``numpy.linalg.solve`` works on a copy), so the
+    next solve may fill the same memory.
+    """
+    if rows * cols > SYSTEM_BUFFER_ELEMENTS:
+        return np.empty((rows, cols))
+    buf = getattr(_fill_scratch, "system", None)
+    if buf is None:
+        buf = _fill_scratch.system = np.empty(SYSTEM_BUFFER_ELEMENTS)
+    return buf[:rows * cols].reshape(rows, cols)
+
+
 def _sources(seg_start, seg_end):
     """Per-segment constants of the fill: start coordinates and unit direction as rows, and length."""
     a0 = np.asarray(seg_start, dtype=float)
@@ -574,11 +593,12 @@ def _solve_uncached(start, end, radius, grounded, image, floating=False, wall=No
     lengths = np.linalg.norm(end - start, axis=1)
     # unknowns: line charge density lambda_j; potential = lambda_j * I_ij / (4 pi eps0)
     rhs = np.where(grounded, 0.0, 1.0)
-    if not floating:
-        lam = _linear_solve(_potential_fill(mid, start, end, radius, image, wall), rhs, mid) * _FOUR_PI_EPS0
-        return lam * lengths, mid, 0.0
     n = len(rhs)
-    system = np.empty((n + 1, n + 1))
+    if not floating:
+        pot = _potential_fill(mid, start, end, radius, image, wall, out=_system_matrix(n, n))
+        lam = _linear_solve(pot, rhs, mid) * _FOUR_PI_EPS0
+        return lam * lengths, mid, 0.0
+    system = _system_matrix(n + 1, n + 1)
     _potential_fill(mid, start, end, radius, image, wall, out=system[:n, :n])
     system[:n, n] = -grounded.astype(float)  # counterpoise rows: potential - V_c = 0
     system[n, n] = 0.0

@@ -257,3 +257,18 @@ def test_a_wire_set_solved_again_gives_the_same_solution():
     c = cp.electrostatic_solution(wires())
     assert b.capacitance_f == c.capacitance_f and np.all(b.charge_c != 0.0)
     assert np.array_equal(b.charge_c, c.charge_c)
+
+
+def test_solutions_in_turn_share_no_numbers():
+    # consistency check: the system matrix's memory is reused from one solve to the next; a wire set
+    # (grounded, then a floating counterpoise, then grounded again) solved after others gives its own
+    # charges bit for bit
+    grounded = Segments([[0, 0, 0.3], [0, 0, 8.0]], [[0, 0, 8.0], [15, 0, 8.0]], 1e-3, False, [0, 0, 0.3])
+    floating = Segments([[0, 0, 1.0], [0, 0, 1.0]], [[0, 0, 9.0], [6, 0, 1.0]], 1e-3, [False, True], [0, 0, 1.0])
+    first = cp.electrostatic_solution(grounded)
+    cp._solve_cache.clear()
+    other = cp.electrostatic_solution(floating)
+    cp._solve_cache.clear()
+    again = cp.electrostatic_solution(grounded)
+    assert np.array_equal(first.charge_c, again.charge_c)
+    assert other.capacitance_f > 0
