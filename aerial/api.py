@@ -2,21 +2,7 @@
 
 from __future__ import annotations
 
-from contextlib import contextmanager
-
-from aerial.core.errors import AerialError, ModelInputError, SafetyRefusal
-
-
-@contextmanager
-def naming_the_file(site):
-    """Put the site file's name before a model's complaint about the site's wires (every message names it)."""
-    try:
-        yield
-    except ModelInputError as err:
-        text = str(err)
-        if text.startswith(f"{site.path}:"):
-            raise
-        raise ModelInputError(f"{site.path}: {text}") from None
+from aerial.core.errors import AerialError, SafetyRefusal, naming_the_file
 
 
 def check_site(path) -> dict:
@@ -94,9 +80,8 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
         check_picture_folder(pictures, force, site)
     if page:
         check_page_file(page, force, site)
-    with naming_the_file(site):
-        result = analyse(site, method="full-wave" if full_wave else "closed-form", step_hz=step_hz,
-                         progress=progress, ground=ground, allow_large=allow_large, units=units)
+    result = analyse(site, method="full-wave" if full_wave else "closed-form", step_hz=step_hz, progress=progress,
+                     ground=ground, allow_large=allow_large, units=units)
     if clearance_warnings:
         result["warnings"] = clearance_warnings + [w for w in result["warnings"] if w not in clearance_warnings]
     if pictures:
@@ -162,9 +147,8 @@ def run_layout(path, *, best=5, full_wave=False, picture=None, force=False, allo
         seen["scene"] = build_scene(site_, plan, layouts, zones)
         return writer(site_, plan, layouts, zones) if writer else None
 
-    with naming_the_file(site):
-        result = plan_layouts(site, best=best, full_wave=full_wave, draw=draw if (picture or page) else None,
-                              allow_large=allow_large, progress=progress)
+    result = plan_layouts(site, best=best, full_wave=full_wave, draw=draw if (picture or page) else None,
+                          allow_large=allow_large, progress=progress)
     if page:
         from aerial.outputs.files import write_atomic
         from aerial.outputs.page_layout import layout_page

@@ -91,7 +91,7 @@ def test_lead_in_inside_the_flat_has_its_lower_range_too(capsys, tmp_path):
 
 
 def test_a_model_complaint_names_the_site_file():
-    from aerial.api import naming_the_file
+    from aerial.core.errors import naming_the_file
 
     class _Site:
         path = "flat.toml"
@@ -123,3 +123,25 @@ def test_a_mistyped_choice_gets_the_closest_one(capsys, argv, suggestion):
     line = one_line(err)
     assert code == EXIT_USER and out == "" and "invalid choice" in line
     assert (suggestion in line) if suggestion else ("did you mean" not in line)
+
+
+def test_a_model_complaint_reads_the_same_from_the_library_and_the_command_line(capsys, monkeypatch, write_site):
+    """A notebook calling aerial.analyse gets the command line's message, the site file named (input handling).
+
+    The capacitance solver is made to complain as it does on two wire pieces on one spot (fuzz cases 2097, 2659).
+    """
+    import aerial
+    from aerial.models import closed_form
+
+    def complain(*args, **kwargs):
+        raise ModelInputError("two wire pieces lie on top of each other near (0.00, 0.00, 5.00) m")
+
+    monkeypatch.setattr(closed_form, "electrostatic_solution", complain)
+    p = write_site(MINIMAL)
+    code, out, err = run(capsys, "report", p)
+    assert code == EXIT_USER and out == ""
+    line = one_line(err)
+    with pytest.raises(ModelInputError) as caught:
+        aerial.analyse(aerial.load_site(p))
+    assert line == f"aerial: {caught.value}"
+    assert str(caught.value) == f"{p}: two wire pieces lie on top of each other near (0.00, 0.00, 5.00) m"

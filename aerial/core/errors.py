@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from contextlib import contextmanager
+
 
 class AerialError(Exception):
     """Base class for every error aerial reports to a user without a traceback."""
@@ -52,6 +54,38 @@ class ResourceLimit(AerialError):
 
 class ModelInputError(AerialError, ValueError):
     """An argument to a physics function that lies outside what the function accepts."""
+
+
+@contextmanager
+def naming_the_file(site):
+    """Put the site file's name before a model's complaint about the site's wires (every message names it).
+
+    Used where a site is computed (:func:`aerial.estimate.assemble.analyse`,
+    :func:`aerial.planner.search.plan_layouts`, the check's geometry), so that a
+    notebook and the command line read the same message.
+
+    Parameters
+    ----------
+    site : Site or str
+        The site (its ``path``), or the file's name as shown.
+
+    Examples
+    --------
+    >>> try:
+    ...     with naming_the_file("flat.toml"):
+    ...         raise ModelInputError("two wire pieces lie on top of each other")
+    ... except ModelInputError as err:
+    ...     print(err)
+    flat.toml: two wire pieces lie on top of each other
+    """
+    path = getattr(site, "path", site)
+    try:
+        yield
+    except ModelInputError as err:
+        text = str(err)
+        if text.startswith(f"{path}:"):
+            raise
+        raise ModelInputError(f"{path}: {text}") from None
 
 
 def os_error_words(err: OSError) -> str:

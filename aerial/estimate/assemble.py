@@ -16,7 +16,7 @@ import numpy as np
 from aerial.core.arrays import sorted_unique
 from aerial.core.version import __version__
 from aerial.estimate.plain import finalise
-from aerial.core.errors import AerialError, ModelInputError
+from aerial.core.errors import AerialError, ModelInputError, naming_the_file
 from aerial.core.units import FOOT_M
 from aerial.geometry.resolve import EARTH_ROLES, resolve, wires_json
 from aerial.estimate.cautions import cautions_for
@@ -837,6 +837,16 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     """
     if method not in METHODS:
         raise ModelInputError(f"'{method}' is not a valid method, must be one of " + ", ".join(f"'{m}'" for m in METHODS))
+    if ground not in GROUNDS:
+        raise ModelInputError(f"'{ground}' is not a valid ground, must be one of " + ", ".join(f"'{g}'" for g in GROUNDS))
+    if units not in WHAT_IF_STEPS_M:
+        raise ModelInputError(f"'{units}' is not a valid unit system, must be one of 'si', 'us'")
+    with naming_the_file(site):  # a model's complaint about the site's wires names the file, as a site error does
+        return _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large, units)
+
+
+def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large, units) -> dict:
+    """:func:`analyse` once its options are checked."""
     warnings: list[str] = list(site.notes)
     freqs = frequency_grid(site, step_hz)
     earth = earth_system(site)
@@ -846,8 +856,6 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     centre_i = int(np.argmin(np.abs(freqs - report_centre_frequency(site, freqs))))
     geometry = resolve(site, electrode_ohm=float(earth_r[centre_i]))
     warnings += _open_ground_warnings(site, geometry)
-    if ground not in GROUNDS:
-        raise ModelInputError(f"'{ground}' is not a valid ground, must be one of " + ", ".join(f"'{g}'" for g in GROUNDS))
     if ground != "perfect" and method != "full-wave":
         warnings.append("lossy ground applies to the full-wave solver only; the closed forms assume a perfect "
                         "ground plane with the earth system's resistance in series")

@@ -34,7 +34,7 @@ import math
 import numpy as np
 import shapely
 
-from aerial.core.errors import AerialError, ResourceLimit
+from aerial.core.errors import AerialError, ResourceLimit, naming_the_file
 from aerial.core.units import length_text
 from aerial.core.materials import CONDUCTORS
 from aerial.models import capacitance as cap
@@ -662,6 +662,12 @@ def plan_layouts(site, best=5, full_wave=False, draw=None, allow_large=False, pr
     AerialError
         When there is nothing to search (no candidate support) or ``best`` is out of range.
     """
+    with naming_the_file(site):  # a model's complaint about a wire names the file, as a site error does
+        return _plan(site, best, full_wave, draw, allow_large, progress)
+
+
+def _plan(site, best, full_wave, draw, allow_large, progress) -> dict:
+    """:func:`plan_layouts`, its messages named by the caller."""
     from aerial.estimate.assemble import stage
 
     plan, total, warnings = _prepare(site, best, allow_large)
