@@ -81,11 +81,56 @@ def one_line(text) -> str:
 
 
 class _Parser(argparse.ArgumentParser):
+    """A parser that takes an option only as spelt in full and says a mistake in one line."""
+
+    def __init__(self, *args, **kwargs):
+        kwargs.setdefault("allow_abbrev", False)  # "--unit us" is a slip to point out, not "--units us"
+        super().__init__(*args, **kwargs)
+        self.words: list[str] = []
+
+    def parse_known_args(self, args=None, namespace=None):
+        self.words = list(sys.argv[1:] if args is None else args)  # for the error line below
+        return super().parse_known_args(args, namespace)
+
     def error(self, message):  # one line, exit 2, no usage dump
         # main() puts "aerial: " before the line, so only a subcommand's own name goes here
         command = self.prog.partition(" ")[2]
+        unknown = _unknown_options(self, self.words)
+        if unknown and "required" in message:  # "--diam 50mm": the misspelling, not what it left missing
+            close = _closest_option(self, unknown)
+            raise AerialError(f"{command + ': ' if command else ''}unrecognized arguments: {' '.join(unknown)}"
+                              + (f'; did you mean "{close}"?' if close else "") + f" (see '{self.prog} --help')")
         raise AerialError(f"{command + ': ' if command else ''}{message}{_closest_choice(message)} "
                           f"(see '{self.prog} --help')")
+
+
+def _unrecognized(parser: argparse.ArgumentParser, command: str | None, extras: list[str]) -> AerialError:
+    """The one line for words no option takes: the command, the words, the closest option when one is near."""
+    own = parser.command_parsers.get(command, parser) if command else parser
+    close = _closest_option(own, extras)
+    return AerialError(f"{command + ': ' if command else ''}unrecognized arguments: {' '.join(extras)}"
+                       + (f'; did you mean "{close}"?' if close else "") + f" (see '{own.prog} --help')")
+
+
+def _looks_like_option(word: str) -> bool:
+    """'--unit' or '-x', not a negative number given as a value."""
+    return word.startswith("--") and len(word) > 2 or (len(word) > 1 and word[0] == "-" and word[1].isalpha())
+
+
+def _unknown_options(parser: argparse.ArgumentParser, words) -> list[str]:
+    """The words that look like options but are none of ``parser``'s, as written ("--unit", "--unitz=us")."""
+    known = {o for action in parser._actions for o in action.option_strings}
+    return [w for w in words if _looks_like_option(w) and w.partition("=")[0] not in known]
+
+
+def _closest_option(parser: argparse.ArgumentParser, words) -> str | None:
+    """The option of ``parser`` closest to the first of ``words`` that is a misspelt option, or None."""
+    options = {o.lstrip("-"): o for action in parser._actions for o in action.option_strings if o.startswith("--")}
+    for word in _unknown_options(parser, words):
+        close = closest_word(word.partition("=")[0].lstrip("-"), list(options))
+        if close:
+            return options[close]
+    return None
 
 
 def _closest_choice(message: str) -> str:
@@ -119,7 +164,7 @@ def _width(text: str) -> int:
 
 
 def _output_options(progress: bool) -> argparse.ArgumentParser:
-    o = argparse.ArgumentParser(add_help=False)
+    o = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
     o.add_argument("--width", type=_width, metavar="N",
                    help="report width in characters (default: the terminal's; when the output is not a terminal, "
                         "COLUMNS if set, else wide enough for every table up to 200 characters, long texts wrapping); "
@@ -195,6 +240,7 @@ def build_parser() -> argparse.ArgumentParser:
     coil.add_argument("--strand-size", metavar="WIRE", help='each strand\'s gauge or diameter, e.g. "40 AWG" (with --strands)')
     coil.add_argument("--frequency", metavar="FREQ", default="1 MHz", help='frequency for the Q estimate (default "1 MHz")')
     coil.add_argument("--json", action="store_true", help="print machine-readable JSON")
+    p.command_parsers = dict(sub.choices)  # for the line on an unrecognized option
     return p
 
 
@@ -405,7 +451,9 @@ def main(argv=None) -> int:
     """Entry point of the ``aerial`` console script; returns the exit code."""
     try:
         parser = build_parser()
-        args = parser.parse_args(argv)
+        args, extras = parser.parse_known_args(argv)
+        if extras:
+            raise _unrecognized(parser, args.command, extras)
         if args.command is None:
             parser.print_usage(sys.stderr)
             sys.stderr.write("aerial: a command is needed; 'aerial --help' lists them\n")

@@ -12,7 +12,7 @@ import pytest
 from aerial.cli import main
 from aerial.estimate.reception import VERDICTS
 
-from .conftest import EXAMPLES, MINIMAL, ROOT, run
+from .conftest import EXAMPLES, MINIMAL, ROOT, one_line, run
 
 REQUIRED_AERIAL_KEYS = (
     "capacitance_f", "effective_height_m", "radiation_resistance_ohm", "impedance_ohm",
@@ -387,3 +387,29 @@ def test_consistency_check_stations_are_heard_with_the_coil_the_tuning_designs(c
     written = json.loads(out)
     for a, b in zip(designed["stations"], written["stations"]):
         assert a["detector_power_w"] == pytest.approx(b["detector_power_w"], rel=1e-9), a["name"]
+
+
+@pytest.mark.parametrize("argv, meant", [
+    (["check", "{site}", "--unit", "us"], "--units"),
+    (["layout", "{site}", "--pictur", "{tmp}/plan.png"], "--picture"),
+    (["report", "{site}", "--page={tmp}/p.html", "--ful-wave"], "--full-wave"),
+    (["coil", "--diam", "50 mm", "--wire", "26 AWG", "--turns", "40"], "--diameter"),
+    (["--verison"], "--version"),
+])
+def test_a_shortened_or_misspelt_option_is_refused_with_the_option_meant(capsys, tmp_path, argv, meant):
+    """Options are taken only as spelt in full (input handling): a slip gets one line naming the option meant."""
+    site = ROOT / "site_examples" / "backyard_inverted_l.toml"
+    argv = [a.format(site=site, tmp=tmp_path) for a in argv]
+    code, out, err = run(capsys, *argv)
+    assert code == 2 and out == ""
+    line = one_line(err)
+    assert "unrecognized arguments" in line and f'did you mean "{meant}"?' in line, line
+    assert list(tmp_path.iterdir()) == []  # nothing was drawn or written
+
+
+def test_every_parser_takes_options_only_in_full():
+    from aerial.cli import build_parser
+
+    parser = build_parser()
+    assert not parser.allow_abbrev
+    assert all(not sub.allow_abbrev for sub in parser.command_parsers.values())
