@@ -309,6 +309,25 @@ def test_cli_a_mistyped_plan_choice_gets_the_closest(tmp_path, capsys, key, typo
     assert err.count("\n") == 1 and f'= "{typo}": did you mean "{meant}"? expected one of' in err
 
 
+@pytest.mark.parametrize("height, fixing, limit", [
+    ('"20 ft"', '"19 ft 6 in"', "higher than 20 ft"),  # 1 ft = 0.3048 m exactly (NIST SP 811)
+    ('"1 m"', '"2 ft"', "higher than 3.281 ft"),  # 1 m / 0.3048 m = 3.2808 ft
+    ('"1.5 m"', "1.2", "higher than 1.5 m"),  # a plain number is metres
+])
+def test_cli_a_fixing_below_the_entry_is_answered_in_the_unit_written(tmp_path, capsys, height, fixing, limit):
+    """Invented input: the fixing's value as written, the entry's height in the fixing's own unit."""
+    text = (ROOT / "site_examples" / "backyard_inverted_l.toml").read_text(encoding="utf-8")
+    old = '[plan.entry]\nat = [0.5, -0.5]\nheight = "1 m"'
+    assert old in text
+    p = tmp_path / "fixing.toml"
+    p.write_text(text.replace(old, f'[plan.entry]\nat = [0.5, -0.5]\nheight = {height}\nfixing_height = {fixing}'),
+                 encoding="utf-8")
+    assert main(["layout", str(p)]) == EXIT_USER
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1
+    assert f"plan.entry.fixing_height = {fixing}: expected a fixing above the entry ({limit})" in err
+
+
 def test_support_standing_on_the_entry_is_not_a_layout(tmp_path):
     # regression (found by the fuzzing harness): a candidate support at the entry point made a
     # zero-length arm; it must be excluded as too short, not crash the models

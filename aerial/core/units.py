@@ -23,6 +23,8 @@ from fractions import Fraction
 
 #: The international foot, exact by definition (NIST SP 811). [m]
 FOOT_M = 0.3048
+#: The inch, exact by definition (NIST SP 811). [m]
+INCH_M = 0.0254
 
 
 def closest_word(word, choices):
@@ -299,6 +301,25 @@ def _feet_and_inches(value: str) -> float | None:
     return None
 
 
+#: The length units of the US customary system (NIST SP 811): a length written in one of them is the user's
+#: sign that figures about it should come back in feet.
+US_LENGTH_UNITS = frozenset({"ft", "foot", "feet", "in", "inch", "inches", "yd", "yard", "yards", "'", '"'})
+
+
+def written_in_feet(value) -> bool:
+    """Whether a length is written in US customary units (feet, inches, yards; "6 ft 3 in", "6'3\"").
+
+    >>> written_in_feet("19 ft 6 in"), written_in_feet("20 FT"), written_in_feet("6 m"), written_in_feet(6)
+    (True, True, False, False)
+    """
+    if not isinstance(value, str):
+        return False
+    if _feet_and_inches(value) is not None:
+        return True
+    unit = re.search(r"([^\d\s./-]+)\s*$", value)
+    return bool(unit) and unit.group(1).casefold() in US_LENGTH_UNITS
+
+
 #: Longest length read anywhere (about the Earth's circumference); anything longer is a wrong number or unit. [m]
 MAX_LENGTH_M = 4.0e7
 
@@ -382,22 +403,27 @@ def parse_gauge(text) -> int:
     raise UnitError("expected a gauge number such as 14 or \"2/0\"")
 
 
-def length_text(metres: float, digits: int = 3) -> str:
-    """A length in metres as people read it: ``digits`` significant figures; mm below 0.1 m, km from 1000 m.
+def length_text(metres: float, digits: int = 3, system: str = "si") -> str:
+    """A length as people read it: ``digits`` significant figures; under "si" mm below 0.1 m and km from
+    1000 m, under "us" feet (inches below a foot).
 
     The one rule for a length in a command's output: the tables and the
-    sentences of a result both use it (the terminal's feet and inches keep
-    the same number of significant figures).
+    sentences of a result both use it, in metres or in feet alike.
 
     Examples
     --------
     >>> length_text(6.7226), length_text(12.0), length_text(31.267), length_text(0.05), length_text(1234.0)
     ('6.72 m', '12 m', '31.3 m', '50 mm', '1.23 km')
+    >>> length_text(6.7226, system="us"), length_text(6.096, 4, "us"), length_text(0.0016, system="us")
+    ('22.1 ft', '20 ft', '0.063 in')
     """
     v = float(metres)
     if not math.isfinite(v):
         return "—"
-    unit, scale = ("mm", 1e-3) if v != 0 and abs(v) < 0.1 else ("km", 1e3) if abs(v) >= 1000 else ("m", 1.0)
+    if system == "us":
+        unit, scale = ("in", INCH_M) if v != 0 and abs(v) < FOOT_M else ("ft", FOOT_M)
+    else:
+        unit, scale = ("mm", 1e-3) if v != 0 and abs(v) < 0.1 else ("km", 1e3) if abs(v) >= 1000 else ("m", 1.0)
     x = v / scale
     if x == 0:
         return f"0 {unit}"

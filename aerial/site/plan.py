@@ -19,6 +19,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+from aerial.core import units
 from aerial.site.tables import SUPPORT_KINDS, TableReader
 
 #: Words accepted for an overhead line's ``kind``; anything else (or nothing) is a power line.
@@ -262,8 +263,9 @@ def _entry(r: TableReader, raw, site) -> Entry:
     x, y = r.plan_point(t["at"], f"{key}.at")
     h = r.length(t, key, "height", default=0.0, minimum=0.0)
     fix = r.length(t, key, "fixing_height", positive=True)
-    if fix is not None and fix <= h:
-        r.fail(f"{key}.fixing_height", t["fixing_height"], f"expected a fixing above the entry (higher than {h:g} m)")
+    if fix is not None and fix <= h:  # the entry's height in the unit the fixing was written in
+        shown = units.length_text(h, 4, "us" if units.written_in_feet(t["fixing_height"]) else "si")
+        r.fail(f"{key}.fixing_height", t["fixing_height"], f"expected a fixing above the entry (higher than {shown})")
     return Entry(x, y, h, fix, key, True)
 
 
