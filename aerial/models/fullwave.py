@@ -64,6 +64,7 @@ from aerial.models.fullwave_kernel import DEFAULT_GAUSS_POINTS
 from aerial.models.fullwave_system import (
     System,
     loop_tree_currents,
+    matrix_norm1,
     solve_matrix,
     build_table,
     plan_band,
@@ -452,7 +453,11 @@ class _Sweep:
         self._figures(cur, zi_all)
 
     def _matrix(self, k, plan, loss_entries):
-        """Impedance matrix with losses at k, from the band table where one covers k."""
+        """Impedance matrix with losses at k, from the band table where one covers k.
+
+        Returns the matrix and the table's row-block edges when it comes from a table (only its upper row
+        blocks are then written: :meth:`SeriesTable.matrix`), else None.
+        """
         system = self.system
         band = next((p for p in plan if p[0] <= k <= p[1]), None)
         if band is not None and band is not self._table_band:
@@ -462,9 +467,12 @@ class _Sweep:
                 self.warnings.append(note)
             if self._table is not None:
                 self.used_tables.append((band[0], band[1], self._table.order))
-        z = self._table.matrix(k) if (band is not None and self._table is not None) else system.matrix_direct(k)
+        if band is not None and self._table is not None:
+            z, blocks = self._table.matrix(k), self._table.edges
+        else:
+            z, blocks = system.matrix_direct(k), None
         system.add_losses(z, entries=loss_entries)
-        return z
+        return z, blocks
 
     def _currents(self, i, plan, zi, loss_entries):
         """Basis-function currents at frequency i for 1 V at the feed, with the low-frequency hand-offs."""
@@ -472,12 +480,13 @@ class _Sweep:
         cur = None
         qs = k * system.size < QUASI_STATIC_KD
         if not qs:
-            z = self._matrix(k, plan, loss_entries)
-            if not np.all(np.isfinite(z)):
+            z, blocks = self._matrix(k, plan, loss_entries)
+            anorm = matrix_norm1(z, blocks)  # not finite when an entry is not
+            if not np.isfinite(anorm):
                 qs = True
                 self.non_finite.append(fi)
             else:
-                cur, cnd = solve_matrix(z, self.v, system.symmetric)
+                cur, cnd = solve_matrix(z, self.v, system.symmetric, anorm)
                 self.cond[i] = cnd
                 delta = 10 * _EPS * cnd
                 if not np.all(np.isfinite(cur)) or delta > QUASI_STATIC_HANDOFF:

@@ -41,6 +41,7 @@ from __future__ import annotations
 import math
 
 import numpy as np
+import scipy.sparse as sp
 
 from aerial.models.fullwave_geometry import Topology
 
@@ -394,60 +395,63 @@ class Filler:
                 out[c] += self._charge_sign[c] * phi
         return out
 
-    def _assemble(self, X, r0, r1, out, block_rows=None):
+    def _assemble(self, X, r0, r1, out):
         """Add sum_ef T_e^T X_ef T_f of piece rows r0:r1 (sources r0:P) to ``out``, halving the diagonal block.
 
         ``X`` is (4, Pc, P-r0) for one matrix, or (M, 4, Pc, P-r0) for M matrices at once; it is
-        overwritten. ``out`` is (N, N) (or (M, N, N)), or holds only the basis rows ``block_rows``
-        (sorted; every row pieces r0:r1 touch, :meth:`block_rows`) as (len(block_rows), N) (or
-        (len(block_rows), M, N)). Summed over all blocks this gives W with W + W^T the full matrix.
+        overwritten. ``out`` is one (N, N) matrix, or a list of M. Summed over all blocks this gives W
+        with W + W^T the full matrix. Only the basis columns from the first one that pieces r0:P touch
+        are formed and added (the others get nothing from these sources).
         """
-        te_T = self.te_T
         many = X.ndim == 4
         M = X.shape[0] if many else 1
         Pc, Pr = X.shape[-2], X.shape[-1]
-        N = te_T[0].shape[0]
         X[..., :Pc] *= 0.5  # pairs within the block appear both ways: W + W^T counts them once
+        c0, cols = self._cols(r0)
+        width = cols[0].shape[0]
         for e in range(2):
-            # (T_0^T X_e0^T + T_1^T X_e1^T) over the sources: (N, M Pc), then the rows' incidence
-            m = sum(self._cols(f, r0) @ np.ascontiguousarray(X[..., 2 * e + f, :, :].reshape(M * Pc, Pr).T)
-                    for f in range(2))
-            m = np.ascontiguousarray(m.reshape(N, M, Pc).transpose(2, 1, 0)).reshape(Pc, M * N)
-            rows, left = self._rows(("t", e, r0, r1), te_T[e], block_rows)
-            add = left @ m
-            if many and block_rows is None:
-                out[:, rows] += add.reshape(-1, M, N).transpose(1, 0, 2)
+            # (T_0^T X_e0^T + T_1^T X_e1^T) over the sources: (N - c0, M Pc), then the rows' incidence
+            m = sum(cols[f] @ np.ascontiguousarray(X[..., 2 * e + f, :, :].reshape(M * Pc, Pr).T) for f in range(2))
+            m = np.ascontiguousarray(m.reshape(width, M, Pc).transpose(2, 1, 0)).reshape(Pc, M * width)
+            rows, left = self._rows(("t", e, r0, r1))
+            add = (left @ m).reshape(len(rows), M, width)
+            if many:
+                for i, o in enumerate(out):
+                    o[rows, c0:] += add[:, i]
             else:
-                out[rows] += add.reshape((len(rows),) + out.shape[1:])
+                out[rows, c0:] += add[:, 0]
 
-    def _cols(self, f, c0):
-        """Columns c0:P of the (N, P) incidence of triangle ends f (cached)."""
-        hit = self._row_cache.get(("cols", f, c0))
+    def _cols(self, r0):
+        """The first basis function pieces r0:P touch (c0), and rows c0:N of the (N, P) incidences' columns r0:P.
+
+        Cached per r0; returns (c0, (incidence of starts, incidence of ends)).
+        """
+        hit = self._row_cache.get(("cols", r0))
         if hit is None:
-            hit = self.te_T[f][:, c0:].tocsr()
-            self._row_cache[("cols", f, c0)] = hit
+            full = [t[:, r0:].tocsr() for t in self.te_T]
+            touched = np.concatenate([m.indptr[1:] > m.indptr[:-1] for m in full]).reshape(2, -1).any(axis=0)
+            c0 = int(np.argmax(touched)) if touched.any() else full[0].shape[0]
+            hit = (c0, tuple(m[c0:] for m in full))
+            self._row_cache[("cols", r0)] = hit
         return hit
 
-    def _rows(self, key, mat_T, block_rows=None):
-        """Basis rows touched by pieces r0:r1 of a (N, P) incidence matrix, and that block (cached).
+    def _rows(self, key):
+        """Basis rows touched by ends e of pieces r0:r1 (key ("t", e, r0, r1)), and that (rows, Pc) block (cached).
 
-        With ``block_rows`` the rows are returned as positions in it.
+        Read straight from the (P, N) incidence's row pointers.
         """
         hit = self._row_cache.get(key)
         if hit is None:
-            r0, r1 = key[-2], key[-1]
-            block = mat_T[:, r0:r1].tocsr()
-            rows = np.unique(block.nonzero()[0])
-            hit = (rows, block[rows])
+            _, e, r0, r1 = key
+            t = self.topo.t_end[e]
+            lo, hi = t.indptr[r0], t.indptr[r1]
+            piece = np.repeat(np.arange(r1 - r0), np.diff(t.indptr[r0 : r1 + 1]))
+            rows, at = np.unique(t.indices[lo:hi], return_inverse=True)
+            order = np.argsort(at, kind="stable")  # entries by basis row, pieces in order within a row
+            ptr = np.concatenate([[0], np.cumsum(np.bincount(at.ravel(), minlength=len(rows)))])
+            hit = (rows, sp.csr_matrix((t.data[lo:hi][order], piece[order], ptr), shape=(len(rows), r1 - r0)))
             self._row_cache[key] = hit
-        if block_rows is None:
-            return hit
-        return np.searchsorted(block_rows, hit[0]), hit[1]
-
-    def block_rows(self, r0, r1):
-        """Sorted basis rows that pieces r0:r1 contribute to (either end of a triangle)."""
-        keys = ((("t", 0, r0, r1), self.te_T[0]), (("t", 1, r0, r1), self.te_T[1]))
-        return np.unique(np.concatenate([self._rows(key, mat)[0] for key, mat in keys]))
+        return hit
 
     def fill(self, k: float, outputs, progress=None):
         """Basis-level matrices at wavenumber k.
@@ -572,23 +576,19 @@ class Filler:
         M = order + 3
         y = [np.zeros((N, N), dtype=complex) for _ in range(M)]
         coefs = ({"A_direct": 1.0, "Phi_direct": -1.0}, {"A_image_h": -1.0, "A_image_v": 1.0, "Phi_image": 1.0})
-        for r0, r1 in self._blocks(max(1, self.rows // 2)):  # every order's terms of a block are held at once
+        for r0, r1 in self._blocks(max(1, self.rows // 4)):  # every order's terms of a block are held at once (in cache)
             x = self._series_block(r0, r1, k0, half_width, order, coefs)
-            rows = self.block_rows(r0, r1)
-            tmp = np.zeros((len(rows), M, N), dtype=complex)
-            self._assemble(x, r0, r1, tmp, rows)
+            self._assemble(x, r0, r1, y)
             del x
-            for m in range(M):
-                y[m][rows] += tmp[:, m]
         return y
 
     def _series_block(self, r0, r1, k0, half_width, order, coefs):
         """Piece-level terms (order + 3, 4, Pc, P-r0) of every Y_m for piece rows r0:r1 (:meth:`series`)."""
         P = self.topo.n_pieces
-        a_n = np.zeros((order + 1, 4, r1 - r0, P - r0), dtype=complex)  # A_n n! / (-j)^n, piece level
-        phi_n = np.zeros((order + 1, r1 - r0, P - r0), dtype=complex)  # -Phi_n n! / (-j)^n, piece level
+        a_n = np.empty((order + 1, 4, r1 - r0, P - r0), dtype=complex)  # A_n n! / (-j)^n, piece level
+        phi_n = np.empty((order + 1, r1 - r0, P - r0), dtype=complex)  # -Phi_n n! / (-j)^n, piece level
         a_re = a_n.view(float)  # real and imaginary parts side by side: real factors act on both at once
-        for image in ((False, True) if self.image else (False,)):
+        for first, image in zip((True, False), (False, True) if self.image else (False,)):
             r = self._distances(r0, r1, image)
             g = self._kernel(k0, r)
             r *= half_width
@@ -601,8 +601,15 @@ class Filler:
                 if n:
                     g_re *= r_re  # e^{-j k0 R} (h R)^n / (4 pi R)
                 S = self._reduce(g, r0, r1, image, n == 0)
-                a_re[n] += tt * S[:4].view(float)
-                phi_n[n] += sign * S[4]
+                s_re = S[:4].view(float)
+                s_re *= tt  # S is this order's scratch: scaled in place
+                S[4] *= sign
+                if first:
+                    a_re[n] = s_re
+                    phi_n[n] = S[4]
+                else:
+                    a_re[n] += s_re
+                    phi_n[n] += S[4]
         x = (series_combination(k0, half_width, order) @ a_n.reshape(order + 1, -1)).reshape((order + 3,) + a_n.shape[1:])
         phi_n *= np.array([(-1j) ** n / math.factorial(n) for n in range(order + 1)])[:, None, None]
         for c in range(4):
