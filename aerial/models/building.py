@@ -685,8 +685,7 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     if frequency is not None:
         f = np.atleast_1d(np.asarray(frequency, dtype=float))
         factors = building_charge_factor(z, f, body, (0, 1, 2))  # the static field scaled in each case
-        wall_f = np.stack([np.sum(charge[:, None] * scale_screened_field(phi[..., None], z, factor), axis=0)
-                           / q_aer for factor in factors])
+        wall_f = np.sum(charge[:, None] * scale_screened_field(phi[:, None], z, factors), axis=1) / q_aer
         dynamic = {
             "effective_height_by_frequency_m": (1 - s)[:, None] * open_effective_height_m + s[:, None] * wall_f,
             "facade_effective_height_by_frequency_m": wall_f,
@@ -811,7 +810,9 @@ class BoxScreen:
         pot = _panels_potential(flat, self) @ self.charge
         z = np.maximum(flat[:, 2], 0.0)
         phi = np.clip(z + pot, 0.0, z)
-        inside = (flat[:, 2] < self.height_m) & (plan_distance(flat[:, :2], self.footprint) <= 0.0)
+        inside = flat[:, 2] < self.height_m  # below the roof, and then over the footprint
+        if np.any(inside):
+            inside[inside] = plan_distance(flat[inside, :2], self.footprint) <= 0.0
         out = np.where(inside, 0.0, phi).reshape(p.shape[:-1])
         if len(_FIELD_HEIGHTS) >= 32:
             _FIELD_HEIGHTS.pop(next(iter(_FIELD_HEIGHTS)))
@@ -977,14 +978,16 @@ def _panel_mirror(box, point, normal):
     c[:, :2] -= 2.0 * ((c[:, :2] - point) @ normal)[:, None] * normal
     axis = box.axis_u.copy()
     axis[:, :2] -= 2.0 * (axis[:, :2] @ normal)[:, None] * normal
-    step = 1e-7 * max(float(np.ptp(box.centre)), 1.0)  # far below any panel, far above rounding
+    size = max(float(np.ptp(box.centre)), 1.0)
+    step = 1e-6 * size  # pair the panels on a grid far finer than any panel, then check them far closer
     mine, theirs = np.round(box.centre / step).astype(np.int64), np.round(c / step).astype(np.int64)
     order_mine, order_theirs = np.lexsort(mine.T[::-1]), np.lexsort(theirs.T[::-1])
     if not np.array_equal(mine[order_mine], theirs[order_theirs]):
         return None
     image = np.empty(len(c), dtype=np.int64)
     image[order_theirs] = order_mine
-    same = (np.allclose(box.half_u[image], box.half_u, rtol=1e-9, atol=0.0)
+    same = (np.max(np.abs(box.centre[image] - c)) <= 1e-10 * size
+            and np.allclose(box.half_u[image], box.half_u, rtol=1e-9, atol=0.0)
             and np.allclose(box.half_v[image], box.half_v, rtol=1e-9, atol=0.0)
             and np.all(np.abs(np.einsum("kj,kj->k", axis, box.axis_u[image])) > 1.0 - 1e-9))
     return image if same else None
