@@ -179,7 +179,7 @@ def radial_screen_impedance(frequency, distance, count, radial_length, wire_radi
         Length of the radials of each set; several systems of sets at once along the leading axes
         (the result then gains those axes in front of the distance's). [m]
     wire_radius : float or array_like
-        Broadcast against the distance (one per system: shape (..., 1)). [m]
+        Broadcast against the result (one per system: shape (..., 1) for a 1-D distance). [m]
     conductivity, relative_permittivity : float
         [S/m], [1]
 
@@ -205,7 +205,10 @@ def radial_screen_impedance(frequency, distance, count, radial_length, wire_radi
     lengths = np.asarray(radial_length, float)
     lengths = np.broadcast_to(lengths, lengths.shape[:-1] + counts.shape if lengths.ndim else counts.shape)
     # radials reaching each distance (sets of different lengths from one hub), per system of lengths
-    reaching = np.sum(counts * (r[..., None] < np.expand_dims(lengths, -2)), axis=-1)
+    reaching = np.zeros(r.shape)
+    for k, n in enumerate(counts):
+        edge = lengths[..., k]
+        reaching = reaching + n * (r < edge.reshape(edge.shape + (1,) * r.ndim))
     if not np.any(reaching > 0):
         return np.broadcast_to(z_soil, np.broadcast_shapes(z_soil.shape, reaching.shape)).copy()
     z_w = wait_screen_impedance(f, r, np.maximum(reaching, 1.0), wire_radius)
@@ -607,6 +610,6 @@ def screen_loss_by_length(frequency, distance, field, counts, lengths, wire_radi
     True
     """
     r = np.asarray(distance, float)
-    z = radial_screen_impedance(np.asarray([[float(frequency)]]), r[None, :], counts, lengths,
-                                np.asarray(wire_radius, float)[:, None], conductivity, relative_permittivity)
+    z = radial_screen_impedance(float(frequency), r, counts, lengths, np.asarray(wire_radius, float)[:, None],
+                                conductivity, relative_permittivity)
     return _trapezoid_pieces(z * np.asarray(field) ** 2 * 2 * np.pi * r, r).sum(axis=1)

@@ -225,7 +225,7 @@ def _images_by_the_integral(points, start, end, radius, image, wall):
 
 @pytest.mark.parametrize("image", [False, True])
 @pytest.mark.parametrize("with_wall", [False, True])
-def test_potential_fill_with_images_is_the_segment_integral_bit_for_bit(image, with_wall):
+def test_consistency_potential_fill_with_images_is_the_segment_integral_bit_for_bit(image, with_wall):
     # consistency check: the blocked fill with ground and wall images (the ground image sharing the
     # horizontal work of its sources) gives exactly the sum of the segment integrals of the reflected
     # segment sets, over several row blocks
@@ -259,7 +259,7 @@ def test_a_wire_set_solved_again_gives_the_same_solution():
     assert np.array_equal(b.charge_c, c.charge_c)
 
 
-def test_solutions_in_turn_share_no_numbers():
+def test_consistency_solutions_in_turn_share_no_numbers():
     # consistency check: the system matrix's memory is reused from one solve to the next; a wire set
     # (grounded, then a floating counterpoise, then grounded again) solved after others gives its own
     # charges bit for bit

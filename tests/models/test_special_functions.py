@@ -124,7 +124,7 @@ def test_ellipk_and_ellipe_match_scipy():
     assert _rel(sf.ellipe(PARAMETERS), ref.ellipe(PARAMETERS)) < 2e-14
 
 
-def test_elliptic_values_do_not_depend_on_the_values_beside_them():
+def test_consistency_elliptic_values_do_not_depend_on_the_values_beside_them():
     # consistency check: the mean runs in groups that each stop when their own slowest value has
     # converged; a value computed alone, or among values needing more steps, or in a group of its own
     # kind, comes out the same to 1e-15 (and each against scipy.special, the reference library)
