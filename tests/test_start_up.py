@@ -58,3 +58,39 @@ def test_coil_for_an_inductance_loads_no_scipy_optimize_or_special():
     assert out["code"] == 0
     for heavy in ("scipy.special", "scipy.optimize", "scipy.constants", "scipy.linalg", "scipy.sparse"):
         assert heavy not in out["loaded"], heavy
+
+
+TOP_LEVEL = """
+import contextlib, io, json, sys
+import aerial.cli
+if sys.argv[1:]:
+    with contextlib.redirect_stdout(io.StringIO()):
+        code = aerial.cli.main(sys.argv[1:])
+else:
+    code = 0
+print(json.dumps({"code": code, "loaded": sorted({m.split(".")[0] for m in sys.modules})}))
+"""
+
+
+def _packages(*argv):
+    env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    proc = subprocess.run([sys.executable, "-c", TOP_LEVEL, *argv], capture_output=True, text=True, env=env, cwd=ROOT,
+                          timeout=120)
+    assert proc.returncode == 0, proc.stderr
+    return json.loads(proc.stdout.strip().splitlines()[-1])
+
+
+def test_importing_the_command_line_loads_no_numpy_shapely_scipy_or_rich():
+    # consistency check: `import aerial.cli` (and with it `import aerial`) loads only the core; each
+    # command imports what it uses when it runs
+    out = _packages()
+    for heavy in ("numpy", "shapely", "scipy", "rich", "matplotlib"):
+        assert heavy not in out["loaded"], heavy
+
+
+def test_a_report_with_no_plan_or_building_loads_no_shapely():
+    # consistency check: plan geometry (outlines, overhead lines, fall zones) is only built for a site that
+    # has a [plan] or a building; a plain backyard wire's report needs none of it
+    out = _packages("report", str(ROOT / "site_examples" / "rural_long_wire.toml"), "--json")
+    assert out["code"] == 0
+    assert "shapely" not in out["loaded"] and "numpy" in out["loaded"]

@@ -27,6 +27,8 @@ from dataclasses import dataclass
 
 @dataclass(frozen=True)
 class Conductor:
+    """A wire metal: resistivity at 20 °C [ohm m], relative permeability [1] and, for copper-clad steel, its core."""
+
     name: str
     resistivity_ohm_m: float  # at 20 °C
     relative_permeability: float
@@ -64,6 +66,8 @@ CONDUCTOR_ALIASES = {
 
 @dataclass(frozen=True)
 class Soil:
+    """A ground category: relative permittivity [1] and conductivity [S/m], with the bounds of its range."""
+
     name: str
     relative_permittivity: float
     conductivity_s_m: float

@@ -215,20 +215,22 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
     >>> parse_quantity("5 mW", POWER_UNITS, "a power", "W")
     0.005
     """
-    accepted = ", ".join(sorted({k for k in units if len(k) <= 3}, key=lambda k: (k.casefold(), k)))
-    expected = f"expected {kind}: a number in {default_unit} or a string like \"12 {default_unit}\" (units: {accepted})"
+    def expected() -> str:  # what is accepted, worked out only for a value that is refused
+        accepted = ", ".join(sorted({k for k in units if len(k) <= 3}, key=lambda k: (k.casefold(), k)))
+        return f"expected {kind}: a number in {default_unit} or a string like \"12 {default_unit}\" (units: {accepted})"
+
     if isinstance(value, bool):
-        raise UnitError(expected)
+        raise UnitError(expected())
     if isinstance(value, (int, float)):
         try:
             number = float(value)
         except OverflowError:
-            raise UnitError(expected + "; got a number too large to be " + kind) from None
+            raise UnitError(expected() + "; got a number too large to be " + kind) from None
         if not math.isfinite(number):
-            raise UnitError(expected + "; got a value that is not finite")
+            raise UnitError(expected() + "; got a value that is not finite")
         return number
     if not isinstance(value, str):
-        raise UnitError(expected)
+        raise UnitError(expected())
     if "ft" in units and "in" in units:
         compound = _feet_and_inches(value)
         if compound is not None:
@@ -238,29 +240,29 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
         fraction = None  # a plain decimal: read below, in full (exponent included)
     match = None if fraction else _QUANTITY.match(value)
     if not match and not fraction:
-        raise UnitError(expected)
+        raise UnitError(expected())
     written = ((match or fraction).group(2) if match else fraction.group(7)) or ""
     written = written.strip()
     if not written:
-        raise UnitError(expected + "; a number given as text needs its unit written out")
+        raise UnitError(expected() + "; a number given as text needs its unit written out")
     if re.match(r",\d", written):
-        raise UnitError(_comma_words(value) + "; " + expected)
+        raise UnitError(_comma_words(value) + "; " + expected())
     try:
         unit = find_unit(written, units, match.group(1) if match else "1")
     except UnitError as err:
         if err.expected.startswith("ambiguous"):  # the two readings say it all
             raise
-        raise UnitError(f"{err.expected}; {expected}") from None
+        raise UnitError(f"{err.expected}; {expected()}") from None
     if match:
         number = float(match.group(1))
         if not math.isfinite(number):
-            raise UnitError(expected + "; got a value that is not finite")
+            raise UnitError(expected() + "; got a value that is not finite")
         # decimal arithmetic so that "12 in" is exactly 0.3048 m, as NIST SP 811 defines it
         return float(Decimal(match.group(1)) * Decimal(repr(units[unit])))
     try:
         amount = _amount(fraction.groups()[:6])
     except UnitError as err:
-        raise UnitError(f"{err.expected}; {expected}") from None
+        raise UnitError(f"{err.expected}; {expected()}") from None
     return float(amount * Fraction(Decimal(repr(units[unit]))))
 
 

@@ -26,8 +26,6 @@ import math
 from dataclasses import dataclass, field
 
 import numpy as np
-import shapely
-from shapely.geometry import LineString, Point
 
 from aerial.core.errors import ModelInputError, SafetyRefusal
 
@@ -100,6 +98,8 @@ def fall_zone(path: LineString, distance: float, quad_segs: int = QUAD_SEGS):
         The buffer, with its radius enlarged by 1/cos(pi/(4 quad_segs)) so
         that the polygonal arcs lie outside the true circle.
     """
+    import shapely  # here, not at the top: a site without [plan] never needs it
+
     if quad_segs < 1:
         raise ModelInputError(f"quad_segs must be 1 or more; got {quad_segs!r}")
     return shapely.buffer(path, distance / math.cos(math.pi / (4 * quad_segs)), quad_segs=quad_segs)
@@ -178,6 +178,8 @@ class ClearanceReport:
 
 
 def _plan_geometry(points_m: np.ndarray):
+    from shapely.geometry import LineString, Point
+
     xy = np.asarray(points_m, dtype=float)[:, :2]
     if np.ptp(xy, axis=0).max() <= 1e-9:
         return Point(xy[0])
@@ -196,6 +198,8 @@ def site_parts(site) -> tuple[list, float, str]:
     tallest_what : str
         What that tallest point is.
     """
+    from shapely.geometry import Point
+
     parts = []
     tallest, what = 0.0, "the aerial"
     used = set()
@@ -269,6 +273,8 @@ def check_site_clearance(site, plan=None) -> ClearanceReport:
                     f'{kind} "{name}" crosses the telephone/cable line "{line.name}" in plan: do not run an aerial '
                     "over or under it (such lines often share poles with power conductors); re-route it.")
     if plan.lot is not None:
+        import shapely
+
         lot = shapely.buffer(plan.lot, LOT_TOLERANCE_M, quad_segs=QUAD_SEGS)
         for name, kind, geom in parts:
             if not lot.covers(geom):
@@ -335,6 +341,8 @@ def refuse_many(paths, tallest_m, lines, details: bool = False):
         Only with ``details=True``: for each power line, the candidates it
         refuses, their plan distance to it and the distance needed. [m]
     """
+    import shapely
+
     paths = np.asarray(paths, dtype=object)
     tallest = np.asarray(tallest_m, dtype=float)
     refused = np.zeros(len(paths), dtype=bool)
@@ -361,6 +369,8 @@ def refuse_many(paths, tallest_m, lines, details: bool = False):
 
 def crosses_many(paths, lines) -> np.ndarray:
     """True where a candidate's plan geometry crosses any of ``lines`` (e.g. telephone/cable)."""
+    import shapely
+
     paths = np.asarray(paths, dtype=object)
     out = np.zeros(len(paths), dtype=bool)
     for line in lines:

@@ -134,10 +134,10 @@ def _from_table(r: TableReader, t: dict, site, plan: Plan) -> SiteBuilding:
 
 def _from_plan(site, plan: Plan) -> SiteBuilding | None:
     """The block of flats of an ``apartment`` plan: the ``[[plan.buildings]]`` outline that holds the entry."""
-    from shapely.geometry import Point
-
     if plan.building != "apartment":
         return None
+    from shapely.geometry import Point
+
     here = Point(plan.entry.x_m, plan.entry.y_m)  # the receiver when no entry is given
     for b in plan.buildings:
         outline = _oriented(b.outline)
@@ -196,12 +196,12 @@ def _from_supports(site, plan: Plan) -> SiteBuilding | None:
     width are stated assumptions and the construction is unknown, so the
     range runs from no screening (timber) to a perfect screen (steel).
     """
-    from shapely.geometry import Point, Polygon
-
     found = _building_supports(plan)
     aerial = [np.asarray(w.points_m, float) for w in site.wires if w.role == "aerial"]
     if not found or not aerial:
         return None
+    from shapely.geometry import Point, Polygon
+
     pts = np.vstack(aerial)
     sup = np.array([[x, y] for _, x, y, _ in found])
     normal = _facade_normal(sup, np.array([site.receiver.x_m, site.receiver.y_m]), aerial)

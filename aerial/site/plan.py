@@ -55,6 +55,8 @@ class PlanSupport:
 
 @dataclass(frozen=True)
 class Building:
+    """A building of ``[[plan.buildings]]``: its plan outline and roof height. [m]"""
+
     name: str
     outline: Polygon
     height_m: float
@@ -63,6 +65,8 @@ class Building:
 
 @dataclass(frozen=True)
 class Obstacle:
+    """Something in ``[[plan.obstacles]]`` a wire must not cross: its plan outline. [m]"""
+
     name: str
     outline: Polygon
     key: str
@@ -98,6 +102,8 @@ class Entry:
 
 @dataclass(frozen=True)
 class Balcony:
+    """The flat's balcony of ``[plan.balcony]``: its floor height [m], the building's structure and the storey."""
+
     floor_height_m: float
     structure: str
     floor: int | None

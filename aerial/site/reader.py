@@ -152,6 +152,8 @@ DETECTORS = ("germanium", "schottky", "silicon")
 
 @dataclass(frozen=True)
 class WireSize:
+    """A wire's radius [m], its metal and the size as the file gave it (for the report)."""
+
     radius_m: float
     material: str
     described_as: str
@@ -159,6 +161,8 @@ class WireSize:
 
 @dataclass(frozen=True)
 class Support:
+    """A support of ``[supports]``: plan position, height and its uncertainty (one-sided), kind. [m]"""
+
     name: str
     x_m: float
     y_m: float
@@ -191,6 +195,8 @@ class WireRun:
 
 @dataclass(frozen=True)
 class SoilSpec:
+    """The site's ground: relative permittivity [1] and conductivity [S/m] with the bounds of their range."""
+
     name: str
     relative_permittivity: float
     conductivity_s_m: float
@@ -228,6 +234,8 @@ class Electrode:
 
 @dataclass(frozen=True)
 class Station:
+    """A station of ``[[stations]]``: frequency [Hz], power [W], distance [m], the ground on the path, bearings."""
+
     name: str
     frequency_hz: float
     power_w: float
@@ -242,6 +250,8 @@ class Station:
 
 @dataclass(frozen=True)
 class Receiver:
+    """The receiver of ``[receiver]``: where it stands [m] and its tuning parts in SI units (H, F, ohm)."""
+
     x_m: float
     y_m: float
     height_m: float
