@@ -223,3 +223,30 @@ def test_summary_names_counterpoise_wires_as_counterpoise_not_earth_lead(capsys)
     assert code == 0
     head = " ".join(out.splitlines()[:3])
     assert "counterpoise 2 ×" in head and "earth lead" not in head
+
+
+@pytest.mark.parametrize("command", ["check", "report"])
+@pytest.mark.parametrize("units, expected", [
+    # high_floor_flat's lead-in: 1.6125 m from the rail to the door frame (1.6 m across, 0.2 m down) and
+    # 0.8 m in to the receiver, 2.4125 m; 1 ft = 0.3048 m exactly (NIST SP 811); three significant figures
+    ("us", {"lead-in": ("7.91 ft", "40.7 ft", "41.3 ft"), "front rail": ("19.7 ft", "41.3 ft", "41.3 ft")}),
+    ("si", {"lead-in": ("2.41 m", "12.4 m", "12.6 m"), "front rail": ("6 m", "12.6 m", "12.6 m")}),
+])
+def test_the_wires_table_writes_lengths_as_the_text_does(capsys, command, units, expected):
+    """Length, lowest and highest point of each wire in the one length format (input/output handling).
+
+    The metre figures come from the site file itself (the rail at 12.6 m, 6 m long; the door at 12.4 m).
+    """
+    site = EXAMPLES + "high_floor_flat.toml"
+    argv = [command, site, "--units", units, "--width", "200"] + (["--quiet"] if command == "report" else [])
+    code, out, err = run(capsys, *argv)
+    assert code == 0, err
+    rows = {}
+    for line in out.splitlines():
+        cells = [c.strip() for c in line.split("│")[1:-1]]
+        if len(cells) == 7 and cells[0] in expected:
+            rows.setdefault(cells[0], tuple(cells[2:3] + cells[4:6]))
+    assert rows == expected
+    code, out, err = run(capsys, "check", site, "--json")
+    lead = next(w for w in json.loads(out)["geometry"]["wires"] if w["name"] == "lead-in")
+    assert Lengths(units)(lead["length_m"]) == expected["lead-in"][0]  # the same as every sentence writes it

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from aerial.core.units import length_text
 from aerial.outputs import charts, site_drawings
 from aerial.outputs.page import (VERDICT_CLASS, VERDICT_MARK, bullets, dict_rows_table, document, esc, figure,
                                  format_value, generic_block, key_label, range_text, section, site_file_name, table)
@@ -142,8 +143,8 @@ def _wires_table(geo) -> str:
     rows = []
     for w in geo["wires"]:
         zs = [p[2] for p in w["points_m"]]
-        rows.append([w["name"], w["role"], eng(w["length_m"], "m"), w.get("size", ""), f"{min(zs):.2f} m",
-                     f"{max(zs):.2f} m", len(w["points_m"])])
+        rows.append([w["name"], w["role"], length_text(w["length_m"]), w.get("size", ""), length_text(min(zs)),
+                     length_text(max(zs)), len(w["points_m"])])
     return table(["wire", "role", "length", "size", "lowest", "highest", "points"], rows,
                  "Wires as aerial understood them")
 

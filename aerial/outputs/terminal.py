@@ -147,8 +147,7 @@ def span(pair, unit: str) -> str:
     return f"[dim]{text}[/dim]"
 
 
-#: Exact by definition (NIST SP 811): 1 ft = 0.3048 m, 1 in = 0.0254 m, 1 mi = 1609.344 m.
-INCH_M = 0.0254
+#: Exact by definition (NIST SP 811): 1 mi = 1609.344 m (the foot and the inch: aerial.core.units).
 MILE_M = 1609.344
 
 
@@ -182,18 +181,7 @@ class Lengths:
         """A length: '6.72 m' or '22 ft' (below a foot: inches)."""
         if metres is None or not math.isfinite(float(metres)):
             return "—"
-        v = float(metres)
-        if not self.us:
-            return length_text(v, digits)
-        if v != 0 and abs(v) < FOOT_M:
-            return f"{_trim(_sig(v / INCH_M, digits))} in"
-        return f"{_trim(_sig(v / FOOT_M, digits))} ft"
-
-    def fixed(self, metres, decimals: int = 2) -> str:
-        """A length with fixed decimals for a table column: '60.36 m', or in feet one decimal fewer."""
-        if not self.us:
-            return f"{float(metres):.{decimals}f} m"
-        return f"{float(metres) / FOOT_M:.{max(decimals - 1, 0)}f} ft"
+        return length_text(float(metres), digits, "us" if self.us else "si")
 
     def distance(self, metres) -> str:
         """A station distance: km or miles."""
@@ -416,8 +404,8 @@ def _geometry_table(geo: dict, L: Lengths) -> Table:
         # a long polyline shows its ends and how many points lie between (the JSON has them all)
         shown = pts if len(pts) <= 3 else [pts[0], f"{len(pts) - 2} points", pts[-1]]
         text = " → ".join(p if isinstance(p, str) else "(" + ", ".join(L.plain(v, 2) for v in p) + ")" for p in shown)
-        t.add_row(escape(w["name"]), w["role"], L.fixed(w["length_m"]), escape(L.text(w["size"])), L.fixed(min(zs)),
-                  L.fixed(max(zs)), text)
+        t.add_row(escape(w["name"]), w["role"], L(w["length_m"]), escape(L.text(w["size"])), L(min(zs)), L(max(zs)),
+                  text)
     return t
 
 
