@@ -340,3 +340,34 @@ def test_support_standing_on_the_entry_is_not_a_layout(tmp_path):
     from aerial.cli import main
 
     assert main(["layout", str(site_file), "--json"]) == 0
+
+
+def test_cli_layout_builds_and_resolves_each_listed_layout_once(capsys, monkeypatch):
+    """Each listed layout's wires are built once and resolved once for its figures, lengths and wavelength flag.
+
+    Invented example site; a count of the work done, not a timing.
+    """
+    from collections import Counter
+
+    from aerial.geometry import resolve as resolve_module
+    from aerial.planner import figures
+
+    built, resolved = Counter(), Counter()
+    build, resolve = figures.planned_wires, resolve_module.resolve
+
+    def counting_build(site, layout, *args, **kwargs):
+        built[layout["description"]] += 1
+        return build(site, layout, *args, **kwargs)
+
+    def counting_resolve(site, *args, **kwargs):
+        wires = kwargs.get("wires") or []
+        if wires and wires[0].name == "planned top":
+            resolved[str([np.round(w.points_m, 6).tolist() for w in wires])] += 1
+        return resolve(site, *args, **kwargs)
+
+    monkeypatch.setattr(figures, "planned_wires", counting_build)
+    monkeypatch.setattr(resolve_module, "resolve", counting_resolve)
+    assert main(["layout", str(EXAMPLE), "--json", "--quiet"]) == EXIT_OK
+    assert len(json.loads(capsys.readouterr().out)["layouts"]) == 5
+    assert built and set(built.values()) == {1}
+    assert resolved and set(resolved.values()) == {1}

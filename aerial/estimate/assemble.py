@@ -369,7 +369,8 @@ HEADLINE_KEYS = ("capacitance_f", "effective_height_m", "loss_resistance_ohm", "
 
 
 def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-form", ground="perfect", progress=None,
-              lumped_ohm=None, shielding_case: int = 1, raw: bool = False, response: dict | None = None):
+              lumped_ohm=None, shielding_case: int = 1, raw: bool = False, response: dict | None = None,
+              geometry=None):
     """Headline figures of ``wires`` at ``frequency`` by one model. Returns arrays over frequency.
 
     ``earth_ohm``: the earth system's resistance, one value or one per
@@ -384,7 +385,8 @@ def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-fo
     ``response`` too. ``response``: the closed forms' result for these
     wires at ``frequency`` from an earlier call (``raw``), when only the
     earth differs: the closed forms do not depend on the earth's resistance,
-    which is added in series here.
+    which is added in series here. ``geometry``: ``wires`` already resolved
+    (:func:`aerial.geometry.resolve.resolve`), for the closed forms.
     """
     f = np.atleast_1d(np.asarray(frequency, float))
     earth_f = np.broadcast_to(np.asarray(earth_ohm, float), f.shape).copy()
@@ -402,7 +404,7 @@ def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-fo
         from aerial.models.closed_form import closed_form_response
         from aerial.models.shapes import measure_like
 
-        geo = resolve(site, electrode_ohm=lumped, wires=wires)
+        geo = resolve(site, electrode_ohm=lumped, wires=wires) if geometry is None else geometry
         shape = None
         if like is not None and len(like.segment_section) == len(geo.segments):
             shape = measure_like(geo.segments, like)
@@ -446,7 +448,7 @@ def _full_wave_ranges_fit(site, frequency, main_frequency, allow_large: bool) ->
     return main + extra <= TIME_BUDGET_S
 
 
-def headline_figures(site, frequency, earth_ohm=None, wires=None) -> dict:
+def headline_figures(site, frequency, earth_ohm=None, wires=None, geometry=None) -> dict:
     """The report's headline figures of some wires at some frequencies, by the report's own model.
 
     Parameters
@@ -461,6 +463,9 @@ def headline_figures(site, frequency, earth_ohm=None, wires=None) -> dict:
         (:func:`earth_at_frequency`).
     wires : list of WireRun, optional
         Default: the site's own wires.
+    geometry : Geometry, optional
+        The wires already resolved (:func:`aerial.geometry.resolve.resolve`), so that a caller who needs
+        more of the same wires resolves them once.
 
     Returns
     -------
@@ -472,7 +477,7 @@ def headline_figures(site, frequency, earth_ohm=None, wires=None) -> dict:
     f = np.atleast_1d(np.asarray(frequency, float))
     if earth_ohm is None:
         earth_ohm = earth_at_frequency(site, f)["impedance_ohm"].real
-    out = _headline(site, site.wires if wires is None else wires, f, earth_ohm, raw=True)
+    out = _headline(site, site.wires if wires is None else wires, f, earth_ohm, raw=True, geometry=geometry)
     r = out.pop("response")
     out["radiation_resistance_ohm"] = np.asarray(r["radiation_resistance_ohm"], float)
     out["conductor_loss_ohm"] = np.asarray(r["conductor_loss_ohm"], float)

@@ -152,7 +152,7 @@ def report_figures(site, layout: dict, size, entry_xyz, frequency, earth_ohm=Non
     return headline_figures(planned_site(site, wires, entry_xyz, floor_m), frequency, earth_ohm, wires=wires)
 
 
-def wavelength_validity(site, wires=None) -> dict:
+def wavelength_validity(site, wires=None, geometry=None) -> dict:
     """Where some wires are long for the wavelength, by the report's own test over the report's own sweep.
 
     :func:`aerial.models.closed_form.wavelength_validity` of the closed
@@ -160,6 +160,8 @@ def wavelength_validity(site, wires=None) -> dict:
     site's bands (:func:`aerial.estimate.assemble.frequency_grid`), as
     ``aerial report`` computes them: a layout is flagged exactly when the
     report of the same wire warns.
+
+    ``geometry``: the wires already resolved, when the caller has them.
 
     Returns
     -------
@@ -177,7 +179,7 @@ def wavelength_validity(site, wires=None) -> dict:
     from aerial.geometry.resolve import resolve
     from aerial.models.closed_form import closed_form_response
 
-    geo = resolve(site, wires=wires)
+    geo = resolve(site, wires=wires) if geometry is None else geometry
     return closed_form_response(geo.segments, frequency_grid(site), building=geo.building)["wavelength_validity"]
 
 
@@ -190,16 +192,55 @@ def layout_wavelength_validity(site, layout: dict, size, entry_xyz, floor_m: flo
         return None
 
 
-def wire_lengths(site, layout: dict, size, entry_xyz, floor_m: float = 0.0) -> tuple[float, float]:
-    """(top, top + lead-in) of a layout's wires as the report measures them, sag included. [m]"""
-    wires = planned_wires(site, layout, size, entry_xyz, floor_m)
+def wire_lengths(site, layout: dict, size, entry_xyz, floor_m: float = 0.0, wires=None) -> tuple[float, float]:
+    """(top, top + lead-in) of a layout's wires as the report measures them, sag included. [m]
+
+    ``wires``: the layout's :func:`planned_wires` when the caller has built them.
+    """
+    wires = planned_wires(site, layout, size, entry_xyz, floor_m) if wires is None else wires
     top = sum(w.length_m for w in wires if w.role == "aerial")
     return top, top + sum(w.length_m for w in wires if w.role == "lead-in")
 
 
-def safe_report_figures(*args, **kwargs):
-    """:func:`report_figures`, or (None, reason) when the closed forms cannot take the wires."""
+def listed_layout_figures(site, layout: dict, size, entry_xyz, frequency, earth_ohm, floor_m: float = 0.0) -> dict:
+    """All the listing needs of a layout, from one build of its wires and one resolved geometry.
+
+    The same figures as :func:`report_figures`, :func:`layout_wavelength_validity` and :func:`wire_lengths`
+    each give, without building the wires three times and resolving them twice.
+
+    Parameters
+    ----------
+    frequency : array_like
+        [Hz]
+    earth_ohm : array_like
+        The earth system's resistance at each frequency. [ohm]
+
+    Returns
+    -------
+    dict
+        ``figures`` (:func:`report_figures`, or None when the closed forms cannot take the wires) and
+        ``why`` (the reason then, else None); ``validity`` (:func:`wavelength_validity`, or None);
+        ``top_length_m`` and ``wire_length_m`` (top + lead-in) [m].
+    """
+    from aerial.estimate.assemble import headline_figures
+    from aerial.geometry.resolve import resolve
+
+    wires = planned_wires(site, layout, size, entry_xyz, floor_m)
+    planned = planned_site(site, wires, entry_xyz, floor_m)
+    top, wire = wire_lengths(site, layout, size, entry_xyz, floor_m, wires=wires)
+    out = {"figures": None, "why": None, "validity": None, "top_length_m": top, "wire_length_m": wire}
+    f = np.atleast_1d(np.asarray(frequency, float))
+    lumped = float(np.mean(np.broadcast_to(np.asarray(earth_ohm, float), f.shape)))  # as the headline resolves
     try:
-        return report_figures(*args, **kwargs), None
+        geo = resolve(planned, electrode_ohm=lumped, wires=wires)
     except ModelInputError as err:
-        return None, str(err)
+        return out | {"why": str(err)}
+    try:
+        out["figures"] = headline_figures(planned, f, earth_ohm, wires=wires, geometry=geo)
+    except ModelInputError as err:
+        out["why"] = str(err)
+    try:
+        out["validity"] = wavelength_validity(planned, wires, geometry=geo)
+    except ModelInputError:
+        pass
+    return out

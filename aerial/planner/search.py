@@ -758,7 +758,10 @@ def _listed_layouts(ctx: _Context, top_rec, best: int, warnings: list):
     ev = _evaluate(ctx, top_rec[:, 0], top_rec[:, 1], top_rec[:, 2], top_rec[:, 3], details=True)
     layouts = _describe(ctx, top_rec, ev)[:max(best, SHORTLIST)]
     head, tail = layouts[:max(REPORT_MODEL_LIMIT, SHORTLIST)], layouts[max(REPORT_MODEL_LIMIT, SHORTLIST):best]
-    differences = [_apply_report_model(ctx, lay) for lay in head]
+    validity, differences = {}, []
+    for lay in head:  # each layout's wires built and resolved once for its figures, lengths and wavelength flag
+        difference, validity[id(lay)] = _apply_report_model(ctx, lay)
+        differences.append(difference)
     known = [d for d in differences if d is not None]
     for lay in tail:
         lay["screening"] = {k: lay[k] for k in ("effective_height_m", "capacitance_f", "score")}
@@ -767,7 +770,7 @@ def _listed_layouts(ctx: _Context, top_rec, best: int, warnings: list):
     layouts = (sorted(head, key=lambda lay: -lay["score"]) + tail)[:best]
     for rank, lay in enumerate(layouts, 1):
         lay["rank"] = rank
-        _flag_wavelength(ctx, lay)
+        _flag_wavelength(ctx, lay, validity.get(id(lay), NOT_COMPUTED))
     _explain(ctx, layouts)
     if any(lay.get("outside_model_range") for lay in layouts):
         warnings.append("Some layouts are long for the wavelength in the site's bands (past 1/8 wave or the first "
@@ -776,15 +779,20 @@ def _listed_layouts(ctx: _Context, top_rec, best: int, warnings: list):
     return layouts, (max(known) if known else None)
 
 
-def _flag_wavelength(ctx: _Context, lay: dict) -> None:
+#: Said of a layout whose wavelength test is still to be made (a layout past the report model's limit).
+NOT_COMPUTED = "not computed"
+
+
+def _flag_wavelength(ctx: _Context, lay: dict, validity=NOT_COMPUTED) -> None:
     """A listed layout's ``outside_model_range`` and ``rough_from_hz``: the report's own test over its own sweep.
 
     ``rough_from_hz`` only when flagged; the screening model's flag (no frequency) stays when the closed forms
-    cannot take the wires.
+    cannot take the wires. ``validity``: the test's result when already made with the layout's figures.
     """
     from aerial.planner.figures import layout_wavelength_validity
 
-    validity = layout_wavelength_validity(ctx.site, lay, ctx.size, (ctx.ex, ctx.ey, ctx.eh), floor_m=ctx.floor)
+    if validity is NOT_COMPUTED:
+        validity = layout_wavelength_validity(ctx.site, lay, ctx.size, (ctx.ex, ctx.ey, ctx.eh), floor_m=ctx.floor)
     if validity is None:
         return
     lay["outside_model_range"] = validity["rough_from_hz"] is not None
@@ -793,32 +801,35 @@ def _flag_wavelength(ctx: _Context, lay: dict) -> None:
 
 
 def _apply_report_model(ctx: _Context, lay: dict):
-    """Replace a layout's screening figures and score by the report's model; returns |difference| [dB] or None."""
-    from aerial.planner.figures import REPORT_MODEL, safe_report_figures, wire_lengths
+    """Replace a layout's screening figures and score by the report's model.
+
+    Returns (|difference| [dB] or None, the layout's wavelength test or None), its wires built and resolved once.
+    """
+    from aerial.planner.figures import REPORT_MODEL, listed_layout_figures
 
     obj = ctx.objective
     f = np.append(np.asarray(obj["frequency_hz"], float), obj["centre_hz"])
     earth = np.append(np.asarray(obj["earth_ohm"], float), obj["centre_earth_ohm"])
-    figs, why = safe_report_figures(ctx.site, lay, ctx.size, (ctx.ex, ctx.ey, ctx.eh), f, earth, floor_m=ctx.floor)
+    done = listed_layout_figures(ctx.site, lay, ctx.size, (ctx.ex, ctx.ey, ctx.eh), f, earth, floor_m=ctx.floor)
+    figs = done["figures"]
     lay["screening"] = {"effective_height_m": lay["effective_height_m"], "capacitance_f": lay["capacitance_f"],
                         "score": lay["score"]}
     if figs is None:
-        lay["figures_model"] = f"screening estimate (the report's model could not take this layout: {why})"
-        return None
+        lay["figures_model"] = f"screening estimate (the report's model could not take this layout: {done['why']})"
+        return None, done["validity"]
     penalty = PENALTY_OVER_ROOF_DB * lay["over_roof"] + PENALTY_OUTSIDE_LOT_DB * lay["outside_lot"]
     score = float(_report_score(obj, figs) - penalty)
     difference = abs(score - lay["score"])
     lay.update(_figures_json(figs))
-    top, wire = wire_lengths(ctx.site, lay, ctx.size, (ctx.ex, ctx.ey, ctx.eh), floor_m=ctx.floor)
     lay.update({
         "score": score,
         "figures_model": REPORT_MODEL + (" (heights from the balcony slab)" if ctx.floor > 0 else ""),
         "figures_at_hz": float(obj["centre_hz"]),
         "shape": figs["shape"],
-        "top_length_m": top,
-        "wire_length_m": wire,
+        "top_length_m": done["top_length_m"],
+        "wire_length_m": done["wire_length_m"],
     })
-    return difference
+    return difference, done["validity"]
 
 
 def _result(site, plan, ctx, objective, total, tally, layouts, warnings) -> dict:
