@@ -252,25 +252,26 @@ def _point_tolerances(site) -> list:
     at all take ``POLYLINE_TOLERANCE_M``.
     """
     supports = site.supports
-    anchors = []
+    anchors, anchor_tol = [], []
     for w in site.wires:
         if w.role in EARTH_ROLES:
             continue
         for xyz, mark in zip(np.asarray(w.points_m, float), list(w.support_at_point) or []):
             if mark in supports:
-                anchors.append((xyz, supports[mark].height_tolerance_m))
+                anchors.append(xyz)
+                anchor_tol.append(supports[mark].height_tolerance_m)
+    anchors = np.reshape(np.asarray(anchors, float), (-1, 3))
+    anchor_tol = np.asarray(anchor_tol, float)
     out = []
     for w in site.wires:
         if w.role in EARTH_ROLES:
             out.append(None)
             continue
         p = np.asarray(w.points_m, float)
-        tol = np.full(len(p), np.nan)
-        for n, xyz in enumerate(p):
-            for a_xyz, a_tol in anchors:
-                if np.linalg.norm(xyz - a_xyz) < JOIN_TOLERANCE_M:
-                    tol[n] = a_tol
-                    break
+        # each point takes the tolerance of the first anchor it meets
+        meets = np.sqrt(np.sum((p[:, None, :] - anchors[None, :, :]) ** 2, axis=2)) < JOIN_TOLERANCE_M
+        tol = np.where(meets.any(axis=1), anchor_tol[np.argmax(meets, axis=1)] if len(anchor_tol) else np.nan,
+                       np.nan)
         good = ~np.isnan(tol)
         if not np.any(good):
             tol[:] = POLYLINE_TOLERANCE_M
