@@ -38,6 +38,7 @@ References
 
 from __future__ import annotations
 
+import functools
 import math
 
 import numpy as np
@@ -52,15 +53,23 @@ DEFAULT_GAUSS_POINTS = 3
 NEAR_GAP_FACTOR = 2.0
 
 #: Bytes allowed for one block of kernel values during the fill. [byte]
-DEFAULT_CHUNK_BYTES = 2**20
+DEFAULT_CHUNK_BYTES = 2**19
 
 _FOUR_PI = 4.0 * np.pi
 PART_NAMES = ("A_direct", "Phi_direct", "A_image_h", "A_image_v", "Phi_image")
 
 
+@functools.lru_cache(maxsize=16)
+def _gauss01_rule(n):
+    x, w = np.polynomial.legendre.leggauss(n)  # an eigenvalue problem: worked out once per n
+    u, w = 0.5 * (x + 1.0), 0.5 * w
+    u.flags.writeable = w.flags.writeable = False
+    return u, w
+
+
 def _gauss01(n):
-    x, w = np.polynomial.legendre.leggauss(n)
-    return 0.5 * (x + 1.0), 0.5 * w
+    """Gauss-Legendre nodes and weights on [0, 1] (read-only arrays, shared)."""
+    return _gauss01_rule(int(n))
 
 
 def pair_weights(u, w):
@@ -576,7 +585,7 @@ class Filler:
         M = order + 3
         y = [np.zeros((N, N), dtype=complex) for _ in range(M)]
         coefs = ({"A_direct": 1.0, "Phi_direct": -1.0}, {"A_image_h": -1.0, "A_image_v": 1.0, "Phi_image": 1.0})
-        for r0, r1 in self._blocks(max(1, self.rows // 4)):  # every order's terms of a block are held at once (in cache)
+        for r0, r1 in self._blocks(max(1, self.rows // 2)):  # every order's terms of a block are held at once (in cache)
             x = self._series_block(r0, r1, k0, half_width, order, coefs)
             self._assemble(x, r0, r1, y)
             del x
