@@ -22,11 +22,10 @@ IEEE Std 142 (Green Book) / IEEE Std 80, typical soil resistivities.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from typing import NamedTuple
 
 
-@dataclass(frozen=True)
-class Conductor:
+class Conductor(NamedTuple):
     """A wire metal: resistivity at 20 °C [ohm m], relative permeability [1] and, for copper-clad steel, its core."""
 
     name: str
@@ -64,8 +63,7 @@ CONDUCTOR_ALIASES = {
 }
 
 
-@dataclass(frozen=True)
-class Soil:
+class Soil(NamedTuple):
     """A ground category: relative permittivity [1] and conductivity [S/m], with the bounds of its range."""
 
     name: str

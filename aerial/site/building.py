@@ -13,7 +13,7 @@ Frame: metres, x east, y north, z up; footprint corners in plan.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from typing import NamedTuple
 
 import numpy as np
 
@@ -42,8 +42,7 @@ INFERRED_RAIL_HEIGHT_M = 1.0
 INFERRED_WALL_CLEARANCE_M = 0.2
 
 
-@dataclass(frozen=True)
-class SiteBuilding:
+class SiteBuilding(NamedTuple):
     """The building as the site describes it (lengths in metres).
 
     Attributes
@@ -71,7 +70,7 @@ class SiteBuilding:
     balcony_floor_m: float | None = None
     rail_bonded: bool | None = None
     source: str = "building"
-    assumed: tuple = field(default_factory=tuple)
+    assumed: tuple = ()
 
     @property
     def outline(self) -> Polygon:

@@ -18,6 +18,7 @@ the text of :func:`shapely.is_valid_reason`.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import NamedTuple
 
 from aerial.core import units
 from aerial.site.tables import SUPPORT_KINDS, TableReader
@@ -40,8 +41,7 @@ ENTRY_FIXING_KEY = "plan.entry.fixing_height"
 PLAN_KEYS = {"lot", "building", "entry", "buildings", "supports", "obstacles", "overhead_lines", "balcony", "notes"}
 
 
-@dataclass(frozen=True)
-class PlanSupport:
+class PlanSupport(NamedTuple):
     """A place a wire can be fixed: plan position and usable height. [m]"""
 
     name: str
@@ -53,8 +53,7 @@ class PlanSupport:
     from_site: bool = False
 
 
-@dataclass(frozen=True)
-class Building:
+class Building(NamedTuple):
     """A building of ``[[plan.buildings]]``: its plan outline and roof height. [m]"""
 
     name: str
@@ -63,8 +62,7 @@ class Building:
     key: str
 
 
-@dataclass(frozen=True)
-class Obstacle:
+class Obstacle(NamedTuple):
     """Something in ``[[plan.obstacles]]`` a wire must not cross: its plan outline. [m]"""
 
     name: str
@@ -72,8 +70,7 @@ class Obstacle:
     key: str
 
 
-@dataclass(frozen=True)
-class OverheadLine:
+class OverheadLine(NamedTuple):
     """An overhead line in plan with its height; ``kind`` is "power" or "telephone/cable"."""
 
     name: str
@@ -88,8 +85,7 @@ class OverheadLine:
         return self.kind == "power"
 
 
-@dataclass(frozen=True)
-class Entry:
+class Entry(NamedTuple):
     """Where the lead-in enters the building; ``fixing_height_m`` is a fixing on the wall above it, if any."""
 
     x_m: float
@@ -100,8 +96,7 @@ class Entry:
     given: bool
 
 
-@dataclass(frozen=True)
-class Balcony:
+class Balcony(NamedTuple):
     """The flat's balcony of ``[plan.balcony]``: its floor height [m], the building's structure and the storey."""
 
     floor_height_m: float

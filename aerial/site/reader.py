@@ -18,6 +18,7 @@ import math
 import re
 import tomllib
 from dataclasses import dataclass, field, replace
+from typing import NamedTuple
 from importlib import resources
 from pathlib import Path
 
@@ -150,8 +151,7 @@ DETECTORS = ("germanium", "schottky", "silicon")
 # --------------------------------------------------------------------------- data
 
 
-@dataclass(frozen=True)
-class WireSize:
+class WireSize(NamedTuple):
     """A wire's radius [m], its metal and the size as the file gave it (for the report)."""
 
     radius_m: float
@@ -159,8 +159,7 @@ class WireSize:
     described_as: str
 
 
-@dataclass(frozen=True)
-class Support:
+class Support(NamedTuple):
     """A support of ``[supports]``: plan position, height and its uncertainty (one-sided), kind. [m]"""
 
     name: str
