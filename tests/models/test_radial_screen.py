@@ -142,9 +142,9 @@ def test_consistency_sets_of_radials_share_one_screen():
 
 
 def test_consistency_static_field_in_place_is_the_formula_as_written():
-    # consistency check: the field worked on in place buffers equals the ring integral written out as in the
-    # docstring's Notes (E from scipy.special.ellipe, the reference library), to 1e-12, for charges over the
-    # hub, beside it and far out
+    # consistency check: the field worked in blocks of radii, summed over the charges before the trapezoid rule,
+    # equals the ring integral written out charge by charge as in the docstring's Notes (E from scipy.special.ellipe,
+    # the reference library), to 1e-12, for charges over the hub, beside it and far out
     from scipy.special import ellipe
 
     rng = np.random.default_rng(3)
