@@ -53,7 +53,7 @@ DEFAULT_GAUSS_POINTS = 3
 NEAR_GAP_FACTOR = 2.0
 
 #: Bytes allowed for one block of kernel values during the fill. [byte]
-DEFAULT_CHUNK_BYTES = 2**19
+DEFAULT_CHUNK_BYTES = 2**20
 
 _FOUR_PI = 4.0 * np.pi
 PART_NAMES = ("A_direct", "Phi_direct", "A_image_h", "A_image_v", "Phi_image")
@@ -431,18 +431,20 @@ class Filler:
                 out[rows, c0:] += add[:, 0]
 
     def _cols(self, r0):
-        """The first basis function pieces r0:P touch (c0), and rows c0:N of the (N, P) incidences' columns r0:P.
+        """The first basis function pieces r0:P touch (c0), and the incidences of their ends on basis c0:N.
 
-        Cached per r0; returns (c0, (incidence of starts, incidence of ends)).
+        Returns (c0, (T_0, T_1)) with T_f of shape (N - c0, P - r0), read from the (P, N) incidences' row
+        pointers. Not cached: there is one per block, and at large N the copies would add up to more than
+        the matrix.
         """
-        hit = self._row_cache.get(("cols", r0))
-        if hit is None:
-            full = [t[:, r0:].tocsr() for t in self.te_T]
-            touched = np.concatenate([m.indptr[1:] > m.indptr[:-1] for m in full]).reshape(2, -1).any(axis=0)
-            c0 = int(np.argmax(touched)) if touched.any() else full[0].shape[0]
-            hit = (c0, tuple(m[c0:] for m in full))
-            self._row_cache[("cols", r0)] = hit
-        return hit
+        P, N = self.topo.n_pieces, self.topo.n_unknowns
+        parts = []
+        for t in self.topo.t_end:
+            lo = t.indptr[r0]
+            parts.append((t.data[lo:], t.indices[lo:], t.indptr[r0:] - lo))
+        touched = np.concatenate([idx for _, idx, _ in parts])
+        c0 = int(touched.min()) if touched.size else N
+        return c0, tuple(sp.csr_matrix((d, idx - c0, ptr), shape=(P - r0, N - c0)).T for d, idx, ptr in parts)
 
     def _rows(self, key):
         """Basis rows touched by ends e of pieces r0:r1 (key ("t", e, r0, r1)), and that (rows, Pc) block (cached).
@@ -585,7 +587,7 @@ class Filler:
         M = order + 3
         y = [np.zeros((N, N), dtype=complex) for _ in range(M)]
         coefs = ({"A_direct": 1.0, "Phi_direct": -1.0}, {"A_image_h": -1.0, "A_image_v": 1.0, "Phi_image": 1.0})
-        for r0, r1 in self._blocks(max(1, self.rows // 2)):  # every order's terms of a block are held at once (in cache)
+        for r0, r1 in self._blocks(max(1, self.rows // 4)):  # every order's terms of a block are held at once (in cache)
             x = self._series_block(r0, r1, k0, half_width, order, coefs)
             self._assemble(x, r0, r1, y)
             del x
