@@ -110,3 +110,28 @@ def test_us_units_write_a_length_alike_in_the_table_and_the_sentences(capsys):
     assert re.search(r"3\. h_e 22\.1 ft \(junction 20 ft high\); 99\.8 ft top; 39\.4 ft outside", text)
     code, out, err = run(capsys, "check", ROOT / "site_examples" / "backyard_inverted_l.toml", "--units", "us")
     assert "aerial + lead-in 117 ft" in _words(out)  # 35.56 m of wire, as the layout's #3 (consistency check)
+
+
+@pytest.mark.parametrize("example", ["high_floor_flat", "balcony_water_pipe"])
+def test_an_entry_away_from_the_receiver_measures_the_wire_as_the_report(capsys, example):
+    """The plan's entry is a door frame, the receiver further in: the lead-in runs on to the receiver in both
+    commands, so the present wire as a layout has the report's length and figures (consistency checks)."""
+    site = ROOT / "site_examples" / f"{example}.toml"
+    code, out, err = run(capsys, "report", site, "--json", "--quiet")
+    assert code == 0, err
+    report = json.loads(out)
+    code, out, err = run(capsys, "layout", site, "--json", "--quiet", "--best", "10")
+    assert code == 0, err
+    result = json.loads(out)
+    rail = {w["name"] for w in report["geometry"]["wires"] if w["role"] == "aerial"}
+    present = result["present_wire"]
+    same = [lay for lay in result["layouts"] if lay["family"] == "span"
+            and lay["score"] == pytest.approx(present["score"], abs=1e-9)]
+    assert same, (rail, [lay["description"] for lay in result["layouts"]])
+    assert same[0]["wire_length_m"] == pytest.approx(report["geometry"]["total_length_m"], rel=1e-12)
+    for key in ("effective_height_m", "capacitance_f", "available_power_w"):
+        assert same[0][key] == pytest.approx(present[key], rel=1e-9), key
+    code, out, err = run(capsys, "layout", site, "--quiet", "--best", "10", "--width", "200")
+    wire = next(line for line in out.splitlines() if same[0]["description"][:30] in line).split("│")[3].strip()
+    code, out, err = run(capsys, "check", site, "--width", "200")
+    assert f"aerial + lead-in {wire}" in out  # the layout's wire column reads as the check's summary

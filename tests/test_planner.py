@@ -189,9 +189,12 @@ def test_end_to_end_higher_or_longer_site_scores_more(stations, change):
     else:
         better = [support("west", 10, 10, 7), support("east", 40, 10, 7)]
     a = plan_layouts(site_with(base, stations=stations), best=1)["layouts"][0]
-    b = plan_layouts(site_with(better, stations=stations), best=1)["layouts"][0]
-    assert b["score"] > a["score"]
-    assert b["family"] == a["family"]
+    listed = plan_layouts(site_with(better, stations=stations), best=3)["layouts"]
+    assert listed[0]["score"] > a["score"]
+    # like for like: the base site's winning shape scores more on the better site too (the winner there may be
+    # another shape when two are within a fraction of a dB)
+    same = next(lay for lay in listed if lay["family"] == a["family"])
+    assert same["score"] > a["score"]
 
 
 # --------------------------------------------------------------------------- apartment, codes, full wave

@@ -61,13 +61,20 @@ def _flags(lay) -> str:
     return "; ".join(flags) or "—"
 
 
+def _lead_in_m(lay) -> float | None:
+    """The lead-in as the report measures it, on indoors to the receiver: the wire less its top. [m]"""
+    if lay.get("wire_length_m") is None or lay.get("top_length_m") is None:
+        return None
+    return lay["wire_length_m"] - lay["top_length_m"]
+
+
 def _layouts_table(result) -> str:
     unit = result.get("score_unit", "")
     rows = []
     for lay in result.get("layouts", []):
         margin = lay.get("clearance_margin_m")
         rows.append([f"#{lay['rank']}", lay.get("description", ""), eng(lay.get("wire_length_m"), "m"),
-                     eng(lay.get("top_length_m"), "m"), eng(lay.get("lead_in_length_m"), "m"),
+                     eng(lay.get("top_length_m"), "m"), eng(_lead_in_m(lay), "m"),
                      eng(lay.get("effective_height_m"), "m"), eng(lay.get("capacitance_f"), "F"),
                      "no power line listed" if margin is None else eng(margin, "m"),
                      f"{lay.get('score', 0):.1f}", _flags(lay)])

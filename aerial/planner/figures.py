@@ -52,28 +52,55 @@ def _top_wire(site, top) -> np.ndarray:
     return np.array(pts, dtype=float)
 
 
-def _earth_lead(site, entry) -> tuple:
-    """The earth lead from the entry: the site's own when the entry is the receiver, else to the site's earth point.
+def _earth_lead(site, start) -> tuple:
+    """The earth lead from ``start``: the site's own when it starts there, else to the site's earth point.
 
-    Returns (points [m], wire size) or (None, None) when the site's earth lead ends where it starts.
+    Returns (points [m], wire size); the size is None when the site has no earth lead (straight down).
     """
     own = next((w for w in site.wires if w.role == "earth lead"), None)
     if own is None:
-        return np.array([entry, [entry[0], entry[1], 0.0]], dtype=float), None
+        return np.array([start, [start[0], start[1], 0.0]], dtype=float), None
     p = np.asarray(own.points_m, float)
-    if _same(p[0], entry):
+    if _same(p[0], start):
         return p, own.size
-    return np.array([entry, p[-1]], dtype=float), own.size
+    return np.array([start, p[-1]], dtype=float), own.size
+
+
+def receiver_xyz(site) -> np.ndarray:
+    """Where the site's receiver terminals are: the feed of every wire set the report computes. [m]"""
+    rc = site.receiver
+    return np.array([rc.x_m, rc.y_m, rc.height_m], dtype=float)
+
+
+def indoor_run(site, entry_xyz) -> np.ndarray | None:
+    """The lead-in's run from the entry to the receiver, or None when the entry is the receiver. [m]
+
+    Along the site's own lead-in when it passes through the entry and ends at the receiver (its bends kept,
+    as the report has them); else straight from the entry to the receiver.
+    """
+    entry, rx = np.asarray(entry_xyz, dtype=float), receiver_xyz(site)
+    if _same(entry, rx):
+        return None
+    own = next((w for w in site.wires if w.role == "lead-in"), None)
+    if own is not None:
+        p = np.asarray(own.points_m, float)
+        p = p if _same(p[-1], rx) else p[::-1] if _same(p[0], rx) else None
+        hits = [] if p is None else [i for i, q in enumerate(p[:-1]) if _same(q, entry)]
+        if hits:
+            return np.concatenate([[entry], p[hits[-1] + 1:]])
+    return np.array([entry, rx], dtype=float)
 
 
 def planned_wires(site, layout: dict, size, entry_xyz, floor_m: float = 0.0) -> list:
     """The wires of a listed layout as :class:`aerial.site.reader.WireRun` objects.
 
-    The earth lead runs from the entry to where the site's own earth lead
-    meets the ground (the site's own lead, bends and size, when the entry is
-    the receiver; straight down when the site has none); a span between two
-    supports the site already joins keeps that span's sag. A layout that is
-    the site's present wire is therefore the same wires the report computes.
+    The lead-in runs on from the entry to the receiver, as the report has it
+    (:func:`indoor_run`); the earth lead runs from the receiver to where the
+    site's own earth lead meets the ground (the site's own lead, bends and
+    size; straight down when the site has none); a span between two supports
+    the site already joins keeps that span's sag. A layout that is the site's
+    present wire is therefore the same wires the report computes, and its
+    length (top + lead-in) the report's.
 
     Parameters
     ----------
@@ -84,7 +111,7 @@ def planned_wires(site, layout: dict, size, entry_xyz, floor_m: float = 0.0) -> 
     size : WireSize
         The aerial's wire.
     entry_xyz : tuple of float
-        Where the lead-in ends (the receiver's terminals). [m]
+        Where the lead-in enters the building (``[plan.entry]``; the receiver's terminals when not given). [m]
     floor_m : float
         Height subtracted from every point (a conductive balcony slab the
         heights are reckoned from); 0 for a house or a garden. [m]
@@ -97,13 +124,15 @@ def planned_wires(site, layout: dict, size, entry_xyz, floor_m: float = 0.0) -> 
             p[:, 2] = np.maximum(p[:, 2] - floor_m, 0.05)
         return p
 
-    entry = np.asarray(entry_xyz, dtype=float)
     top = lowered(_top_wire(site, np.asarray(layout["top_points_m"], float)))
     wires = [WireRun("planned top", "aerial", top, size, "plan", (None,) * len(top))]
-    if layout["lead_in_length_m"] > 0:
-        wires.append(WireRun("planned lead-in", "lead-in", lowered(layout["lead_in_points_m"]), size, "plan",
-                             (None, None)))
-    lead, lead_size = _earth_lead(site, entry)
+    lead_in = np.asarray(layout["lead_in_points_m"], float) if layout["lead_in_length_m"] > 0 else None
+    indoor = indoor_run(site, entry_xyz)
+    if indoor is not None:
+        lead_in = indoor if lead_in is None else np.concatenate([lead_in, indoor[1:]])
+    if lead_in is not None:
+        wires.append(WireRun("planned lead-in", "lead-in", lowered(lead_in), size, "plan", (None,) * len(lead_in)))
+    lead, lead_size = _earth_lead(site, receiver_xyz(site))
     if floor_m > 0:
         lead = lead.copy()
         lead[:, 2] = np.maximum(lead[:, 2] - floor_m, 0.0)
@@ -112,10 +141,10 @@ def planned_wires(site, layout: dict, size, entry_xyz, floor_m: float = 0.0) -> 
     return wires + [w for w in site.wires if w.role == "counterpoise"]
 
 
-def planned_site(site, wires, entry_xyz, floor_m: float = 0.0):
-    """``site`` with its wires replaced by ``wires`` and the receiver moved to the entry."""
-    ex, ey, eh = entry_xyz
-    return replace(site, wires=wires, receiver=replace(site.receiver, x_m=ex, y_m=ey, height_m=max(eh - floor_m, 0.0)))
+def planned_site(site, wires, floor_m: float = 0.0):
+    """``site`` with its wires replaced by ``wires`` (the receiver's height reckoned from a balcony slab)."""
+    return replace(site, wires=wires, receiver=replace(site.receiver, height_m=max(site.receiver.height_m - floor_m,
+                                                                                   0.0)))
 
 
 def report_figures(site, layout: dict, size, entry_xyz, frequency, earth_ohm=None, floor_m: float = 0.0) -> dict:
@@ -149,7 +178,7 @@ def report_figures(site, layout: dict, size, entry_xyz, frequency, earth_ohm=Non
     from aerial.estimate.assemble import headline_figures
 
     wires = planned_wires(site, layout, size, entry_xyz, floor_m)
-    return headline_figures(planned_site(site, wires, entry_xyz, floor_m), frequency, earth_ohm, wires=wires)
+    return headline_figures(planned_site(site, wires, floor_m), frequency, earth_ohm, wires=wires)
 
 
 def wavelength_validity(site, wires=None, geometry=None) -> dict:
@@ -187,7 +216,7 @@ def layout_wavelength_validity(site, layout: dict, size, entry_xyz, floor_m: flo
     """:func:`wavelength_validity` of a listed layout's wires, or None when the closed forms cannot take them."""
     wires = planned_wires(site, layout, size, entry_xyz, floor_m)
     try:
-        return wavelength_validity(planned_site(site, wires, entry_xyz, floor_m), wires)
+        return wavelength_validity(planned_site(site, wires, floor_m), wires)
     except ModelInputError:
         return None
 
@@ -226,7 +255,7 @@ def listed_layout_figures(site, layout: dict, size, entry_xyz, frequency, earth_
     from aerial.geometry.resolve import resolve
 
     wires = planned_wires(site, layout, size, entry_xyz, floor_m)
-    planned = planned_site(site, wires, entry_xyz, floor_m)
+    planned = planned_site(site, wires, floor_m)
     top, wire = wire_lengths(site, layout, size, entry_xyz, floor_m, wires=wires)
     out = {"figures": None, "why": None, "validity": None, "top_length_m": top, "wire_length_m": wire}
     f = np.atleast_1d(np.asarray(frequency, float))

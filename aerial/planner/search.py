@@ -291,6 +291,8 @@ class _Context:
     """Everything the batch evaluator needs, built once per search."""
 
     def __init__(self, site, plan, objective):
+        from aerial.planner.figures import indoor_run
+
         self.site = site
         self.plan = plan
         sup = plan.supports
@@ -301,6 +303,8 @@ class _Context:
         self.h = np.array([s.height_m for s in sup], float)
         e = plan.entry
         self.ex, self.ey, self.eh = float(e.x_m), float(e.y_m), float(e.height_m)
+        indoor = indoor_run(site, (self.ex, self.ey, self.eh))  # on from the entry to the receiver
+        self.indoor_m = 0.0 if indoor is None else float(np.sum(np.linalg.norm(np.diff(indoor, axis=0), axis=1)))
         self.floor = 0.0
         self.body, _ = building_of(site)
         if self.body is None and plan.building == "apartment" and plan.balcony is not None and plan.balcony.conductive:
@@ -965,7 +969,7 @@ def _describe(ctx: _Context, rec, ev) -> list[dict]:
             "family": FAMILIES[fam],
             "description": desc,
             "supports": sup,
-            "wire_length_m": float(g["arm1"][idx] + g["arm2"][idx] + g["lead_len"][idx]),
+            "wire_length_m": float(g["arm1"][idx] + g["arm2"][idx] + g["lead_len"][idx] + ctx.indoor_m),
             "top_length_m": float(g["arm1"][idx] + g["arm2"][idx]),
             "lead_in_length_m": float(g["lead_len"][idx]),
             "open_spans_m": spans,
@@ -1068,7 +1072,7 @@ def _refine(site, ctx: _Context, win: dict, objective: dict, allow_large: bool =
     entry = (ctx.ex, ctx.ey, ctx.eh)
     wires = planned_wires(site, win, ctx.size, entry)
     earth = float(objective["centre_earth_ohm"])
-    planned = planned_site(site, wires, entry)
+    planned = planned_site(site, wires)
     geo = resolve(planned, electrode_ohm=earth, wires=wires)
     freqs = np.asarray(objective["frequency_hz"], dtype=float)
     closed = np.asarray(win["effective_height_by_frequency_m"])
