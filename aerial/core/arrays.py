@@ -3,7 +3,8 @@
 :func:`sorted_unique` is ``numpy.unique`` for a plain 1-D array of numbers:
 the same values in the same order, without ``numpy.unique``'s test for a
 masked array, which imports ``numpy.ma`` (some milliseconds of start-up that
-a report otherwise never needs).
+a report otherwise never needs). :func:`bisection_midpoints` lets a bisection
+in log scale look several halvings ahead with one call of a costly model.
 """
 
 from __future__ import annotations
@@ -38,3 +39,87 @@ def sorted_unique(values) -> np.ndarray:
     keep[0] = True
     np.not_equal(a[1:], a[:-1], out=keep[1:])
     return a[keep]
+
+
+def bisection_midpoints(lo, hi, depth: int) -> np.ndarray:
+    """Midpoints √(lo·hi) of every bracket the next ``depth`` halvings of a bisection in log scale can reach.
+
+    Parameters
+    ----------
+    lo, hi : array_like
+        The brackets now (positive, broadcast together).
+    depth : int
+        Halvings looked ahead (≥ 1).
+
+    Returns
+    -------
+    ndarray, shape (2**depth − 1, ...)
+        Node 0 is the midpoint of [lo, hi]; node i's bracket halves to node 2i + 1 (the part
+        below its midpoint) or node 2i + 2 (the part above). The values are the very midpoints
+        the halvings taken one at a time compute, so a bisection that evaluates its model at
+        all of them in one call and then walks down the tree gives the same answer.
+
+    Examples
+    --------
+    >>> [round(float(m), 6) for m in bisection_midpoints(1.0, 16.0, 2)]
+    [4.0, 2.0, 8.0]
+    """
+    a, b = np.broadcast_arrays(np.asarray(lo, dtype=float), np.asarray(hi, dtype=float))
+    out = np.empty((2 ** int(depth) - 1,) + a.shape)
+    a, b = a[np.newaxis], b[np.newaxis]
+    for level in range(int(depth)):  # one level of the tree at a time: its 2**level brackets side by side
+        m = out[2 ** level - 1:2 ** (level + 1) - 1]
+        np.multiply(a, b, out=m)
+        np.sqrt(m, out=m)
+        if level + 1 < int(depth):
+            below, above = np.empty((2 * m.shape[0],) + m.shape[1:]), np.empty((2 * m.shape[0],) + m.shape[1:])
+            below[0::2], below[1::2] = a, m  # the bracket below each midpoint, then the one above it
+            above[0::2], above[1::2] = m, b
+            a, b = below, above
+    return out
+
+
+def bisect_ahead(good, bad, passes, halvings: int, depth: int):
+    """Bisection in log scale of brackets [good, bad], several halvings per call of the test.
+
+    Parameters
+    ----------
+    good, bad : array_like
+        Each bracket's end that passes the test and the end that fails it (positive, broadcast
+        together; either may be the larger).
+    passes : callable
+        passes(x) -> bool array of the shape of ``x``: x has shape (2**d − 1,) + the brackets'
+        shape and every value is judged on its own.
+    halvings : int
+        Halvings to take.
+    depth : int
+        Halvings looked ahead per call of ``passes``.
+
+    Returns
+    -------
+    (ndarray, ndarray)
+        ``good`` and ``bad`` after the halvings: the very values a bisection taking them one by
+        one (midpoint √(good·bad), kept as the new good end when it passes) gives.
+
+    Examples
+    --------
+    >>> g, b = bisect_ahead(1.0, 16.0, lambda x: x <= 3.0, 20, 4)
+    >>> round(float(g), 4), bool(b > 3.0)
+    (3.0, True)
+    """
+    good, bad = np.broadcast_arrays(np.asarray(good, dtype=float), np.asarray(bad, dtype=float))
+    shape = good.shape
+    good, bad = good.ravel(), bad.ravel()
+    column = np.arange(good.size)
+    taken = 0
+    while taken < int(halvings):
+        d = min(int(depth), int(halvings) - taken)
+        mids = bisection_midpoints(good, bad, d)
+        passed = np.asarray(passes(mids.reshape((-1,) + shape)), dtype=bool).reshape(mids.shape)
+        node = np.zeros(good.size, dtype=int)
+        for _ in range(d):
+            mid, ok = mids[node, column], passed[node, column]
+            good, bad = np.where(ok, mid, good), np.where(ok, bad, mid)
+            node = 2 * node + np.where(ok, 2, 1)  # node 2i + 2: the bracket from the midpoint to the bad end
+        taken += d
+    return good.reshape(shape), bad.reshape(shape)

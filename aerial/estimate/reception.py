@@ -24,7 +24,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from aerial.core.arrays import sorted_unique
+from aerial.core.arrays import bisect_ahead, sorted_unique
 from aerial.core.errors import ModelInputError
 from aerial.models import atmospheric_noise as atm_mod
 from aerial.models import coil as coil_mod
@@ -63,6 +63,8 @@ LOW_IMPEDANCE_EARPHONE_OHM = 600.0
 #: Relative tolerance and iteration limit of the tank-voltage solver.
 VOLTAGE_RTOL = 1e-9
 VOLTAGE_MAX_ITER = 200
+#: Halvings looked ahead per call of the model in the bisections here (2**LOOKAHEAD − 1 trial values per call).
+LOOKAHEAD = 5
 
 #: A designed coil that cannot cover the whole band is made this fraction of the largest
 #: inductance that reaches the top edge (room for whole turns and strays). [1]
@@ -610,10 +612,8 @@ def _reachable_ranges(f_lo, f_hi, setting, cmin, cmax, points=600, refine=30) ->
     inner_lo, inner_hi = starts > 0, ends < fine.size - 1
     g = np.concatenate([lo[inner_lo], hi[inner_hi]])
     b = np.concatenate([fine[starts[inner_lo] - 1], fine[ends[inner_hi] + 1]])
-    for _ in range(int(refine) if g.size else 0):
-        mid = np.sqrt(g * b)
-        m = ok(mid)
-        g, b = np.where(m, mid, g), np.where(m, b, mid)
+    if g.size:  # every edge bisected together, several halvings per call of the setting
+        g, b = bisect_ahead(g, b, lambda f: ok(f.ravel()).reshape(f.shape), refine, LOOKAHEAD)
     n_lo = int(inner_lo.sum())
     lo[inner_lo], hi[inner_hi] = g[:n_lo], g[n_lo:]
     return [(float(a), float(z)) for a, z in zip(lo, hi)]
@@ -631,16 +631,14 @@ def _ok_range(ok, lo, hi, points=48, refine=20):
         return None
     idx = np.flatnonzero(flags)
     i0, i1 = idx[0], idx[-1]
-    # both ends bisected together, one call of ``ok`` per halving
+    # both ends bisected together, several halvings per call of ``ok``
     inner = [(k, xs[i], xs[j]) for k, i, j in ((0, i0, i0 - 1), (1, i1, i1 + 1)) if 0 <= j < xs.size]
     ends = [xs[i0], xs[i1]]
     if inner:
         good = np.array([g for _, g, _ in inner])
         bad = np.array([b for _, _, b in inner])
-        for _ in range(refine):
-            mid = np.sqrt(good * bad)
-            m = np.asarray(ok(mid[:, np.newaxis]), dtype=bool).reshape(mid.shape)
-            good, bad = np.where(m, mid, good), np.where(m, bad, mid)
+        good, bad = bisect_ahead(good, bad, lambda x: np.asarray(ok(x.reshape(-1, 1)), dtype=bool).reshape(x.shape),
+                                 refine, LOOKAHEAD)
         for (k, _, _), g in zip(inner, good):
             ends[k] = g
     return float(ends[0]), float(ends[1])
@@ -1380,14 +1378,12 @@ def _threshold_voltage_uncached(tap, diode, load, power, refine):
     i = above[0]
     if i == 0:
         return grid[0]
-    lo, hi = grid[i - 1], grid[i]
-    for _ in range(refine):
-        mid = np.sqrt(lo * hi)
-        if _audio_power(mid, tap, diode, load) >= power:
-            hi = mid
-        else:
-            lo = mid
-    return hi
+    # bisection between the last quiet and the first loud grid point, several halvings per call of the
+    # detector model (the same midpoints as halving one at a time)
+    loud, _ = bisect_ahead(grid[i], grid[i - 1], lambda v: _audio_power(v, tap, diode, load) >= power, refine,
+                           LOOKAHEAD)
+    return loud[()]
+
 
 
 def assess_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m,

@@ -16,6 +16,7 @@ from typing import Callable, NamedTuple
 
 import numpy as np
 
+from aerial.core.arrays import bisection_midpoints
 from aerial.models import detector as det_mod
 from aerial.models import network as net_mod
 
@@ -201,7 +202,7 @@ def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL,
     taken = 0
     while taken < int(max_iter) and not np.all(hi / lo - 1.0 <= rtol):
         depth = min(LEVEL_LOOKAHEAD, int(max_iter) - taken)
-        mids = _reachable_midpoints(lo, hi, depth)
+        mids = bisection_midpoints(lo, hi, depth)
         r_mid = r_of(mids)  # every midpoint the next halvings can reach, in one call of the detector model
         node = np.zeros(np.shape(lo), dtype=int)
         for _ in range(depth):
@@ -221,20 +222,6 @@ def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL,
 #: the next few halvings can reach is worked out at once (2**LEVEL_LOOKAHEAD − 1 of them), then the
 #: halvings are taken one by one as before; the same midpoints, so the same answer, in fewer calls.
 LEVEL_LOOKAHEAD = 4
-
-
-def _reachable_midpoints(lo, hi, depth) -> np.ndarray:
-    """Midpoints √(lo·hi) of every bracket the next ``depth`` halvings can reach, shape (2**depth − 1, ...):
-    node i's bracket halves to node 2i + 1 (the root below the midpoint) or 2i + 2 (above it)."""
-    brackets = [(lo, hi)]
-    mids = []
-    for i in range(2 ** depth - 1):
-        a, b = brackets[i]
-        m = np.sqrt(a * b)
-        mids.append(m)
-        if 2 * i + 2 < 2 ** depth - 1:
-            brackets += [(a, m), (m, b)]
-    return np.stack(mids)
 
 
 class StationLevels(NamedTuple):

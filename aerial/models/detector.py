@@ -354,11 +354,11 @@ def audio_output(peak_voltage, diode: Diode, earphone_resistance,
     m = float(modulation_depth)
     if not (0 < m <= 1):
         raise ModelInputError(f"modulation_depth must lie in (0, 1], got {modulation_depth!r}")
-    vp = _check("peak_voltage", peak_voltage, allow_zero=True)
-    carrier = loaded_detector(vp, diode.saturation_current_a, diode.ideality, earphone_resistance, temperature)
-    high = loaded_detector(vp * (1 + m), diode.saturation_current_a, diode.ideality, earphone_resistance, temperature)
-    low = loaded_detector(vp * (1 - m), diode.saturation_current_a, diode.ideality, earphone_resistance, temperature)
-    va = 0.5 * (high.detected_voltage - low.detected_voltage)
-    return AudioOutput(va, va**2 / (2.0 * np.asarray(earphone_resistance, dtype=float)),
-                       carrier.detected_voltage, carrier.input_resistance,
-                       carrier.converged & high.converged & low.converged)
+    vp, rl = np.broadcast_arrays(_check("peak_voltage", peak_voltage, allow_zero=True),
+                                 np.asarray(earphone_resistance, dtype=float))
+    # the carrier and the envelope's two extremes in one call of the detector model
+    d = loaded_detector(np.stack([vp, vp * (1 + m), vp * (1 - m)]), diode.saturation_current_a, diode.ideality,
+                        np.stack([rl] * 3), temperature)
+    carrier, high, low = d.detected_voltage
+    va = 0.5 * (high - low)
+    return AudioOutput(va, va**2 / (2.0 * rl), carrier, d.input_resistance[0], np.all(d.converged, axis=0))

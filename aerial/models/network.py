@@ -46,6 +46,7 @@ from typing import Callable, NamedTuple
 
 import numpy as np
 
+from aerial.core.arrays import bisection_midpoints
 from aerial.core.errors import ModelInputError
 from aerial.core.threads import blas_threads
 
@@ -54,6 +55,10 @@ ARRANGEMENTS = ("direct", "series capacitor", "coil tap", "separate primary")
 #: Relative tolerance and iteration limit of the −3 dB edge search (bisection in frequency).
 EDGE_RTOL = 1e-9
 EDGE_MAX_ITER = 60
+#: Halvings of the edge search looked ahead per call of the response (2**EDGE_LOOKAHEAD − 1 midpoints per edge),
+#: fewer when the trial points of all edges together would pass EDGE_LOOKAHEAD_POINTS.
+EDGE_LOOKAHEAD = 4
+EDGE_LOOKAHEAD_POINTS = 256
 
 
 def block_inductance_tight(inductance: float) -> Callable:
@@ -701,7 +706,8 @@ def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER)
         Tuned frequencies f0. [Hz]
     response : callable
         response(f) -> |V_det(f)| with the tuning fixed for each f0; ``f`` has the shape of
-        ``centre`` or, for both edges at once, that shape with a leading axis of 2 (broadcast). [V]
+        ``centre`` or, for both edges and several trial points at once, that shape after leading
+        axes (K, 2) (broadcast). [V]
     rtol : float
         Relative tolerance on each edge. [1]
     max_iter : int
@@ -739,17 +745,29 @@ def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER)
     beyond = np.abs(_respond(response, far, f0.shape)) >= ref2
     floor = (beyond[:n] | beyond[n:]).reshape(f0.shape)
     active = [True, True]
-    for _ in range(int(max_iter)):
-        mid = np.sqrt(near * far)
-        inside = np.abs(_respond(response, mid, f0.shape)) >= ref2
-        for e in range(2):
-            if active[e]:
-                part = slice(e * n, (e + 1) * n)
-                near[part] = np.where(inside[part], mid[part], near[part])
-                far[part] = np.where(inside[part], far[part], mid[part])
-                active[e] = not np.all(np.abs(far[part] / near[part] - 1.0) <= rtol)
-        if not any(active):
-            break
+    column = np.arange(2 * n)
+    # look ahead only while the trial points stay few: for many edges a call costs its points, not its overhead
+    ahead = max(1, min(EDGE_LOOKAHEAD, int(math.log2(EDGE_LOOKAHEAD_POINTS / (2 * n) + 1))))
+    taken = 0
+    while taken < int(max_iter) and any(active):
+        # every midpoint the next few halvings can reach, in one call of the response; then the
+        # halvings one by one on those very midpoints, as a search evaluating each alone would
+        depth = min(ahead, int(max_iter) - taken)
+        mids = bisection_midpoints(near, far, depth)
+        reached = np.abs(_respond(response, mids, f0.shape)).reshape(mids.shape) >= ref2
+        node = np.zeros(2 * n, dtype=int)
+        for _ in range(depth):
+            mid, inside = mids[node, column], reached[node, column]
+            for e in range(2):
+                if active[e]:
+                    part = slice(e * n, (e + 1) * n)
+                    near[part] = np.where(inside[part], mid[part], near[part])
+                    far[part] = np.where(inside[part], far[part], mid[part])
+                    active[e] = not np.all(np.abs(far[part] / near[part] - 1.0) <= rtol)
+            taken += 1
+            if not any(active):
+                break
+            node = 2 * node + np.where(inside, 2, 1)  # node 2i + 2: the bracket beyond the midpoint
     both = np.sqrt(near * far)
     edges = [both[:n].reshape(f0.shape), both[n:].reshape(f0.shape)]
     bw = np.maximum(edges[1] - edges[0], 1e-9 * f0)
@@ -757,8 +775,8 @@ def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER)
 
 
 def _respond(response, f, shape):
-    """``response`` at the two halves of ``f`` (each of ``shape``) in one call, flattened."""
-    return np.ravel(response(f.reshape((2,) + tuple(shape))))
+    """``response`` at the two halves of the last axis of ``f`` (each half of ``shape``) in one call, flattened."""
+    return np.ravel(response(f.reshape(f.shape[:-1] + (2,) + tuple(shape))))
 
 
 def rejection_db(tuned, offset_response) -> np.ndarray:
