@@ -99,7 +99,9 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     name, lo, hi = _primary_band(site)
     m = (f >= lo - 1e-6) & (f <= hi + 1e-6)
     warnings: list[str] = []
-    tuning = reception.design_tuning(f[m], r[m], x[m], parts, band=(lo, hi), range_curve=True)
+    # the coil the tuning shows, resolved (or designed) once: the verdicts and the design for the stations use it too
+    coil = reception.tuning_coil(f[m], r[m], x[m], parts, band=(lo, hi))
+    tuning = reception.design_tuning(f[m], r[m], x[m], parts, band=(lo, hi), range_curve=True, coil=coil)
     curve = tuning.pop("range_curve", None)
     curve_error = tuning.pop("range_curve_error", None)
     tuning["band"] = {"name": name, "from_hz": lo, "to_hz": hi}
@@ -121,13 +123,13 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     stations = []
     if site.stations:
         own = station_effective_heights(site, f, resp)
-        stations, night_warnings = _stations_day_and_night(site, f, r, x, rr, he, parts, own, band=(lo, hi))
+        stations, night_warnings = _stations_day_and_night(site, f, r, x, rr, he, parts, own, band=(lo, hi), coil=coil)
         warnings += night_warnings
         day = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
                                  s.soil.conductivity_s_m, effective_height_m=h) for s, h in zip(site.stations, own)]
         try:
             design = reception.design_for_stations(f, r, x, rr, he, parts, day, (lo, hi),
-                                                   min(tuning["channel_spacings_hz"]))
+                                                   min(tuning["channel_spacings_hz"]), coil=coil)
         except AerialError as err:
             design = None
             warnings.append(f"tuning for the listed stations not worked out: {err}")
@@ -160,8 +162,9 @@ def station_effective_heights(site, freqs, resp) -> list:
     return out
 
 
-def _stations_day_and_night(site, f, r, x, rr, he, parts, own=None, band=None) -> tuple[list, list]:
-    """Station verdicts by day (ground wave) and by night (ground plus sky wave), each against its noise floor."""
+def _stations_day_and_night(site, f, r, x, rr, he, parts, own=None, band=None, coil=None) -> tuple[list, list]:
+    """Station verdicts by day (ground wave) and by night (ground plus sky wave), each against its noise floor
+    (heard with ``coil``, from :func:`reception.tuning_coil`, when given)."""
     from aerial.estimate import night
 
     freqs = [s.frequency_hz for s in site.stations]
@@ -181,7 +184,7 @@ def _stations_day_and_night(site, f, r, x, rr, he, parts, own=None, band=None) -
 
     stations, by_night = reception.assess_stations_by_condition(f, r, x, rr, he, parts,
                                                                 [condition("day"), condition("night")],
-                                                                noise_category=category, band=band)
+                                                                noise_category=category, band=band, coil=coil)
     for i, (s, n, sky, src) in enumerate(zip(stations, by_night, skies, site.stations)):
         s.setdefault("power_w", src.power_w)
         s.setdefault("distance_m", src.distance_m)

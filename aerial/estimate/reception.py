@@ -288,6 +288,7 @@ class _Coil:
         self.notes = notes
         self.block = block  # F(x): inductance of a block of a fraction x of the turns [H]; None: tight
         self.self_capacitance = float(self_capacitance)  # across the winding (Medhurst) [F]; 0 when not known
+        self.design_notes: list = []  # how a designed coil was chosen (said before ``notes``)
 
     def resistance(self, f):
         return 2.0 * np.pi * np.asarray(f, dtype=float) * self.inductance / self.q(f)
@@ -478,32 +479,14 @@ def _needed(f, aerial, L, q_fun, cfg, block=None, wound_like=None):
         return np.array([_needed(f, aerial, L, q_fun, {**cfg, "tap_fraction": float(t)}, block, wound_like)
                          for t in taps])
     if np.ndim(L) > 0:  # coils wound alike, of several inductances: one solve (network.solve_network)
-        return _needed_for_coils(f, aerial, np.asarray(L, dtype=float).reshape(-1, 1), q_fun, cfg,
-                                 wound_like.block if wound_like is not None else block)
-    if wound_like is not None:
+        L = np.asarray(L, dtype=float)
+        L = L if L.ndim > 1 else L.reshape(-1, 1)
+        block = wound_like.block if wound_like is not None else block
+    elif wound_like is not None:
         block = _scaled_block(wound_like, L)
     net = tn_mod.network_parts(cfg["arrangement"], L, q_fun, cfg["detector_tap"], cfg["tap_fraction"],
                                cfg["series_capacitance"], cfg["primary_inductance"], cfg["coupling_coefficient"],
                                block, self_capacitance=cfg.get("self_capacitance", 0.0))
-    return net_mod.tuning_capacitance_for(f, _za(aerial)(f), net, cfg["detector_conductance"])
-
-
-def _needed_for_coils(f, aerial, L, q_fun, cfg, block):
-    """:func:`_needed` for a column of inductances L (m, 1) [H], wound like ``block`` (None: tight). [F], (m, len(f))"""
-    def coil_r(x):
-        return 2.0 * np.pi * np.asarray(x, dtype=float) * L / q_fun(np.asarray(x, dtype=float))
-
-    lp = cfg["primary_inductance"]
-    rp = 0.0
-    if lp is not None:
-        def rp(x):
-            return 2.0 * np.pi * np.asarray(x, dtype=float) * float(lp) / q_fun(np.asarray(x, dtype=float))
-
-    sc, k = cfg["series_capacitance"], cfg["coupling_coefficient"]
-    net = net_mod.NetworkParts(cfg["arrangement"], L, coil_r, float(cfg["detector_tap"]), cfg["tap_fraction"],
-                               None if sc is None else np.asarray(sc, dtype=float), lp,
-                               None if k is None else np.asarray(k, dtype=float), rp, None,
-                               float(cfg.get("self_capacitance", 0.0)), block)
     return net_mod.tuning_capacitance_for(f, _za(aerial)(f), net, cfg["detector_conductance"])
 
 
@@ -883,14 +866,12 @@ def _first_series_with_a_coil(band, aerial, coil, parts, q_fun, capacitances, in
     f = _cover_grid(float(band[0]), float(band[1]))
     cfg = _coil_config(parts, coil, arrangement="series capacitor",
                        series_capacitance=np.asarray(capacitances, dtype=float)[:, None, None])
-    c = _needed_for_coils(f[[0, -1]], aerial, np.asarray(inductances, dtype=float)[None, :, None], q_fun, cfg,
-                          coil.block)
+    c = _needed(f[[0, -1]], aerial, np.asarray(inductances, dtype=float)[None, :, None], q_fun, cfg, coil.block)
     ok = np.all((c >= cmin) & (c <= cmax), axis=-1)
     i, j = np.nonzero(ok)
     if i.size:
         cfg_in = {**cfg, "series_capacitance": np.asarray(capacitances, dtype=float)[i][:, None]}
-        c = _needed_for_coils(f[1:-1], aerial, np.asarray(inductances, dtype=float)[j][:, None], q_fun, cfg_in,
-                              coil.block)
+        c = _needed(f[1:-1], aerial, np.asarray(inductances, dtype=float)[j][:, None], q_fun, cfg_in, coil.block)
         ok[i, j] = np.all((c >= cmin) & (c <= cmax), axis=-1)
     rows = np.flatnonzero(ok.any(axis=1))
     return int(rows[0]) if rows.size else None
@@ -900,11 +881,13 @@ def _designed_coil(band, aerial, parts, notes) -> _Coil:
     """A coil designed to cover ``band``: first without self-capacitance, then again with the one
     its winding (if known) gives, so that the coil's own capacitance is allowed for."""
     said: list = []
-    first = _resolve_coil(parts, _design_inductance(band, aerial, parts, said))
-    if first.self_capacitance <= 0:
-        notes.extend(said)
-        return first
-    return _resolve_coil(parts, _design_inductance(band, aerial, parts, notes, first.self_capacitance))
+    coil = _resolve_coil(parts, _design_inductance(band, aerial, parts, said))
+    if coil.self_capacitance > 0:
+        said = []
+        coil = _resolve_coil(parts, _design_inductance(band, aerial, parts, said, coil.self_capacitance))
+    coil.design_notes = said
+    notes.extend(said)
+    return coil
 
 
 def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0) -> float:
@@ -931,7 +914,7 @@ def _strong_signal_conductance(parts):
 
 
 def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, band=None,
-                  range_curve=False) -> dict:
+                  range_curve=False, coil=None) -> dict:
     """Tuning design across a band: capacitor settings, coverage, loaded Q, selectivity, advice.
 
     Parameters
@@ -949,6 +932,9 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
     range_curve : bool
         Add ``range_curve``, the dial picture of :func:`tuning_range_curve` for this coil, when the
         capacitor range is given (``range_curve_error``, its reason, when it cannot be drawn).
+    coil : optional
+        The coil from :func:`tuning_coil` for these arguments (worked out once for a report that
+        also judges stations); default: resolved or designed here.
 
     Returns
     -------
@@ -997,12 +983,9 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
         raise ModelInputError("band must be (f_lo, f_hi) with 0 < f_lo < f_hi")
     if aerial.outside([f_lo, f_hi]).any():
         warnings.append("the band reaches beyond the aerial's frequency grid: edge values of the aerial were used")
-    if not _coil_given(parts):
-        if parts.capacitor_min_f is None:
-            raise ModelInputError("give the coil (inductance or winding) or the capacitor range to design one")
-        coil = _designed_coil((f_lo, f_hi), aerial, parts, notes)
-    else:
-        coil = _resolve_coil(parts)
+    if coil is None:
+        coil = _station_coil(aerial, parts, (f_lo, f_hi))
+    notes.extend(coil.design_notes)
     notes.extend(coil.notes)
     grid_in = aerial.f[(aerial.f > f_lo) & (aerial.f < f_hi)]
     table_f = sorted_unique(np.concatenate([[f_lo], grid_in, [f_hi]]))
@@ -1447,7 +1430,7 @@ def assess_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, eff
 
 def assess_stations_by_condition(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m,
                                  parts: TuningParts, conditions, noise_category="residential",
-                                 modulation_depth=det_mod.DEFAULT_MODULATION_DEPTH, band=None) -> list:
+                                 modulation_depth=det_mod.DEFAULT_MODULATION_DEPTH, band=None, coil=None) -> list:
     """The same stations judged under several conditions (by day, by night) in one vectorised pass.
 
     Parameters
@@ -1461,6 +1444,9 @@ def assess_stations_by_condition(frequency_hz, aerial_r_ohm, aerial_x_ohm, aeria
         The band a coil is designed for when the parts give none, as :func:`design_tuning` was
         given it, so the stations are heard with the coil the tuning shows; default the whole
         frequency sweep. [Hz]
+    coil : optional
+        The coil from :func:`tuning_coil` (then ``band`` is not needed); default: resolved or
+        designed here.
 
     Returns
     -------
@@ -1500,7 +1486,7 @@ def assess_stations_by_condition(frequency_hz, aerial_r_ohm, aerial_x_ohm, aeria
     common: list = []
     diode = _diode(parts)
     _apply_calibration(aerial, parts, diode, common)
-    coil = _station_coil(aerial, parts, band)
+    coil = _station_coil(aerial, parts, band) if coil is None else coil
     together = _station_arrays(aerial, coil, parts, diode, every, noise_category, modulation_depth)
     return [_judged_rows(aerial, parts, stations, _condition_arrays(together, k * n, (k + 1) * n), common)
             for k, stations in enumerate(conditions)]
@@ -1545,13 +1531,48 @@ def _check_stations(stations):
 
 
 def _station_coil(aerial, parts, band=None) -> _Coil:
-    """The coil the stations are heard with: given, from its winding, or designed for the band (default the sweep)."""
+    """The tank coil: given, from its winding, or designed for the band (default the sweep); a designed
+    coil's ``design_notes`` say how it was chosen."""
     if not _coil_given(parts):
         if parts.capacitor_min_f is None:
             raise ModelInputError("give the coil (inductance or winding) or the capacitor range to design one")
         band = (aerial.f[0], aerial.f[-1]) if band is None else (float(band[0]), float(band[1]))
         return _designed_coil(band, aerial, parts, [])
     return _resolve_coil(parts)
+
+
+def tuning_coil(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, band=None):
+    """The tank coil :func:`design_tuning` works with for these arguments: the one given, or the one designed.
+
+    Worked out once per report and handed to :func:`design_tuning`, :func:`assess_stations_by_condition`
+    and :func:`design_for_stations` (``coil=``), so the stations are heard with the coil the tuning shows.
+
+    Parameters
+    ----------
+    frequency_hz, aerial_r_ohm, aerial_x_ohm, parts, band
+        As :func:`design_tuning`.
+
+    Returns
+    -------
+    object
+        The resolved coil (its inductance [H] is ``.inductance``).
+
+    Examples
+    --------
+    >>> f = [500e3, 1700e3]
+    >>> x = [-1 / (2 * 3.141592653589793 * fi * 100e-12) for fi in f]
+    >>> parts = TuningParts(capacitor_min_f=15e-12, capacitor_max_f=365e-12)
+    >>> c = tuning_coil(f, [25, 25], x, parts, band=(530e3, 1600e3))
+    >>> design_tuning(f, [25, 25], x, parts, band=(530e3, 1600e3), coil=c)["coil"]["inductance_h"] == c.inductance
+    True
+    """
+    _check_parts(parts)
+    aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm)
+    _apply_calibration(aerial, parts, _diode(parts), [])
+    f_lo, f_hi = (aerial.f[0], aerial.f[-1]) if band is None else (float(band[0]), float(band[1]))
+    if not (0 < f_lo < f_hi):
+        raise ModelInputError("band must be (f_lo, f_hi) with 0 < f_lo < f_hi")
+    return _station_coil(aerial, parts, (f_lo, f_hi))
 
 
 def _station_heights(aerial, stations, fs):
@@ -1752,7 +1773,7 @@ def _spill_over(results, stations, a):
 
 
 def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m,
-                        parts: TuningParts, stations, band, spacing_hz=9e3) -> dict | None:
+                        parts: TuningParts, stations, band, spacing_hz=9e3, coil=None) -> dict | None:
     """Coupling, taps and capacitor that hear the weakest wanted station best while keeping the others down.
 
     Parameters
@@ -1769,6 +1790,8 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
         The band the tank covers. [Hz]
     spacing_hz : float
         Channel spacing for the adjacent-channel rejection figure. [Hz]
+    coil : optional
+        The site's coil from :func:`tuning_coil`; default: resolved or designed here.
 
     Returns
     -------
@@ -1804,7 +1827,7 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
     if not wanted or (parts.capacitor_min_f is None and not coil_given):
         return None
     aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, effective_height_m)
-    scene, base = _design_scene(aerial, parts, wanted, spacing_hz, (lo, hi))
+    scene, base = _design_scene(aerial, parts, wanted, spacing_hz, (lo, hi), coil)
     rows, current = _design_rows(scene, aerial, parts, base, (lo, hi))
     if parts.capacitor_min_f is not None:
         reach = (current["capacitance_f"] >= parts.capacitor_min_f) & (current["capacitance_f"] <= parts.capacitor_max_f)
@@ -1873,8 +1896,9 @@ def _remedy_design_words(row, which, as_wired, capacitor_given, same) -> str:
     return f"for the suggested design ({how}{cap_words})"
 
 
-def _design_scene(aerial, parts, wanted, spacing_hz, band=None):
-    """The design's :class:`station_design.Scene` (aerial EMF of each wanted station) and the site's coil."""
+def _design_scene(aerial, parts, wanted, spacing_hz, band=None, coil=None):
+    """The design's :class:`station_design.Scene` (aerial EMF of each wanted station) and the site's coil
+    (``coil``, or resolved here)."""
     diode = _diode(parts)
     _apply_calibration(aerial, parts, diode, [])
     fs = np.array([s.frequency_hz for s in wanted])
@@ -1884,7 +1908,7 @@ def _design_scene(aerial, parts, wanted, spacing_hz, band=None):
     emf = np.hypot(gw.field, [s.sky_wave_field_v_per_m for s in wanted]) * _station_heights(aerial, wanted, fs)
     margin = DEFAULT_INTERFERENCE_MARGIN_DB if parts.interference_margin_db is None else parts.interference_margin_db
     load = float(parts.earphone_ohm)
-    base = _station_coil(aerial, parts, band)
+    base = _station_coil(aerial, parts, band) if coil is None else coil
     scene = sd_mod.Scene(_za(aerial), base.q, fs, emf, [s.name for s in wanted], diode, load,
                          _threshold_voltage(1.0, diode, load), float(margin), float(spacing_hz),
                          tn_mod.input_resistance_table(diode, load))

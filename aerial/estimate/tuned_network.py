@@ -32,6 +32,8 @@ def network_parts(arrangement, inductance, q_fun, detector_tap=1.0, tap_fraction
 
     A separate primary is taken as wound like the tank coil (same Q, an assumption).
     ``self_capacitance`` [F] is the coil's own (Medhurst) capacitance across the whole winding.
+    ``inductance``, ``series_capacitance`` or ``coupling_coefficient`` may be an array of values
+    (coils wound alike, or candidate parts, solved in one go by :func:`network.solve_network`).
 
     Examples
     --------
@@ -39,22 +41,29 @@ def network_parts(arrangement, inductance, q_fun, detector_tap=1.0, tap_fraction
     >>> round(float(p.coil_resistance(1e6)), 2)  # ωL/Q
     8.38
     """
-    L = float(inductance)
-    coil_r = _loss_resistance(L, q_fun)
-    rp = 0.0 if primary_inductance is None else _loss_resistance(float(primary_inductance), q_fun)
+    if np.ndim(inductance) == 0:
+        L = float(inductance)
+        coil_r = _shared_loss_resistance(L, q_fun)
+    else:
+        L = np.asarray(inductance, dtype=float)
+        coil_r = _loss_resistance(L, q_fun)
+    rp = 0.0 if primary_inductance is None else _shared_loss_resistance(float(primary_inductance), q_fun)
     return net_mod.NetworkParts(arrangement, L, coil_r, float(detector_tap), tap_fraction, series_capacitance,
                                 primary_inductance, coupling_coefficient, rp, primary_capacitance,
                                 float(self_capacitance), block)
 
 
-@functools.lru_cache(maxsize=256)
-def _loss_resistance(inductance: float, q_fun: Callable) -> Callable:
-    """ωL/Q(f) of a winding, f -> [ohm]: one function per winding and Q, so that networks sharing a coil share it
-    (a stacked solve then works it out once)."""
+def _loss_resistance(inductance, q_fun: Callable) -> Callable:
+    """ωL/Q(f) of a winding (or, for an array of inductances, of each), f -> [ohm]."""
     def resistance(f):
         return 2.0 * np.pi * np.asarray(f, dtype=float) * inductance / q_fun(f)
 
     return resistance
+
+
+#: One loss function per winding and Q, so that networks sharing a coil share it (a stacked solve then works it
+#: out once).
+_shared_loss_resistance = functools.lru_cache(maxsize=256)(_loss_resistance)
 
 
 class TunedFigures(NamedTuple):

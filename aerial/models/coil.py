@@ -34,11 +34,9 @@ from aerial.core.constants import MU_0 as mu_0
 
 from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _positive
+from aerial.models.conductor import COPPER_RESISTIVITY, skin_depth
 from aerial.models.roots import bracketed_root
 from aerial.models.special_functions import ellipe, ellipk, ive
-
-#: Resistivity of annealed copper at 20 °C (IEC 60028). [ohm m]
-COPPER_RESISTIVITY = 1.72414e-8
 
 #: Wheeler (1928) states about 1 % accuracy for winding lengths above this fraction of the diameter. [1]
 WHEELER_MIN_LENGTH_TO_DIAMETER = 0.4
@@ -318,36 +316,6 @@ def winding_for_inductance(inductance, form_diameter, wire_diameter, pitch=None,
         converged=found.converged,
         iterations=found.iterations,
     )
-
-
-def skin_depth(frequency, resistivity=COPPER_RESISTIVITY, relative_permeability=1.0):
-    """Skin depth of a good conductor.
-
-    Parameters
-    ----------
-    frequency : array_like
-        Frequency. [Hz]
-    resistivity : array_like
-        Conductor resistivity. [ohm m]
-    relative_permeability : array_like
-        Relative permeability. [1]
-
-    Returns
-    -------
-    ndarray
-        Skin depth δ = √(ρ/(π f µ0 µr)). [m]
-
-    References
-    ----------
-    Ramo, Whinnery & Van Duzer, Fields and Waves in Communication Electronics.
-
-    Examples
-    --------
-    >>> round(float(skin_depth(1e6)) * 1e6, 2)
-    66.09
-    """
-    f = _positive("frequency", frequency)
-    return np.sqrt(_positive("resistivity", resistivity) / (np.pi * f * mu_0 * _positive("relative_permeability", relative_permeability)))
 
 
 def isolated_wire_ac_factor(wire_diameter, frequency, resistivity=COPPER_RESISTIVITY):

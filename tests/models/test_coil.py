@@ -63,11 +63,6 @@ def test_winding_at_pitch_needs_more_turns():
     assert spaced.turns > close.turns
 
 
-def test_skin_depth_copper():
-    # check values §5 (IEC 60028 copper): δ = 66.09 µm at 1 MHz [num from the formula]
-    assert float(coil.skin_depth(1e6)) == pytest.approx(66.09e-6, rel=1e-3)
-
-
 def test_isolated_wire_factor_matches_exact_internal_impedance():
     # check values §5: 14 AWG at 1 MHz, 53.15 mΩ/m exact, R_dc 8.286 mΩ/m [num]
     assert float(coil.isolated_wire_ac_factor(1.628e-3, 1e6)) == pytest.approx(53.15 / 8.286, rel=2e-3)
