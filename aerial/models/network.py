@@ -317,8 +317,6 @@ def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
     shape = np.broadcast_shapes(f.shape, za.shape, np.shape(tuning_capacitance), np.shape(detector_conductance),
                                 np.shape(emf), *varied)
     f = np.broadcast_to(f, shape)
-    w = 2.0 * np.pi * f
-    za = np.broadcast_to(za, shape)
     taps, node = _taps(parts)
     if np.ndim(parts.coil_inductance) == 0:
         msec = _sections(tuple(taps), parts.block, float(parts.coil_inductance))
@@ -328,55 +326,102 @@ def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
             unit = unit / float(parts.block(1.0))
         msec = unit * np.asarray(parts.coil_inductance, dtype=float)[..., np.newaxis, np.newaxis]
     k = len(taps)
-    has_x = parts.arrangement in ("series capacitor", "separate primary")
-    primary = parts.arrangement == "separate primary"
-    n_nodes = k + int(has_x)
-    n_l = k + int(primary)
-    n = n_nodes + n_l
+    primary = None
+    if parts.arrangement == "separate primary":
+        lp = float(parts.primary_inductance)
+        share = msec.sum(axis=1) / msec.sum() if msec.ndim == 2 else msec.sum(axis=-1) / msec.sum(axis=(-2, -1))[..., None]
+        primary = _Primary(lp, parts.coupling_coefficient * np.sqrt(lp * parts.coil_inductance), share,
+                           np.broadcast_to(_value(parts.primary_resistance, f), shape), parts.primary_capacitance)
+    aer = {"direct": k - 1, "coil tap": node.get(float(parts.aerial_tap or 1.0)), "series capacitor": k,
+           "separate primary": k}[parts.arrangement]
+    lay = _Layout(parts.arrangement, node[float(parts.detector_tap)], aer, np.diff(np.concatenate([[0.0], taps])),
+                  msec, parts.self_capacitance, parts.series_capacitance,
+                  np.broadcast_to(_value(parts.coil_resistance, f), shape), primary)
+    a, rhs = _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns, lay)
+    return a, rhs, (k - 1, lay.detector_node, aer)
+
+
+class _Primary(NamedTuple):
+    """A separate primary's values in a nodal system (arrays broadcast against the systems' shape)."""
+
+    inductance: object  #: [H]
+    mutual_inductance: object  #: to the whole tank coil [H]
+    share: object  #: (..., k): each tank section's share of the mutual inductance [1]
+    resistance: np.ndarray  #: [ohm], the systems' shape
+    capacitance: object  #: across the primary [F], or None
+
+
+class _Layout(NamedTuple):
+    """What a nodal system is built from, for one network or a group of networks of one shape: plain
+    numbers, or arrays broadcast against the systems' shape (a node index per system included)."""
+
+    arrangement: str
+    detector_node: object
+    aerial_node: object
+    fractions: np.ndarray  #: (..., k): each winding section's share of the turns [1]
+    sections: np.ndarray  #: (..., k, k): the sections' self and mutual inductances [H]
+    self_capacitance: object  #: [F]
+    series_capacitance: object  #: [F] or None
+    coil_resistance: np.ndarray  #: [ohm], the systems' shape
+    primary: _Primary | None
+
+
+def _entry(a, i, j):
+    """The index of entry (i, j) of every system in the stack ``a``; i, j node numbers or arrays of them
+    broadcast against the stack's shape."""
+    if np.ndim(i) == 0 and np.ndim(j) == 0:
+        return (Ellipsis, i, j)
+    return (*np.indices(a.shape[:-2], sparse=True), i, j)
+
+
+def _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns, lay: _Layout):
+    """The nodal matrices (``shape`` of them) and right-hand sides of networks laid out as ``lay``.
+
+    Nodes: the winding's taps from the earthy end (the last one the top), then the aerial's own node for a
+    series capacitor or a separate primary; unknowns after the nodes: each winding section's current, then
+    the primary's."""
+    w = 2.0 * np.pi * f
+    za = np.broadcast_to(np.asarray(aerial_impedance, dtype=complex), shape)
+    k = lay.fractions.shape[-1]
+    top, det, aer = k - 1, lay.detector_node, lay.aerial_node
+    n_nodes = k + int(lay.arrangement in ("series capacitor", "separate primary"))
+    n = n_nodes + k + int(lay.primary is not None)
     a = np.zeros(shape + (n, n), dtype=complex)
     rhs = np.zeros(shape + (n, len(columns)), dtype=complex)
-    top, det = node[1.0], node[float(parts.detector_tap)]
-    aer = {"direct": top, "coil tap": node.get(float(parts.aerial_tap or 1.0)), "series capacitor": k,
-           "separate primary": k}[parts.arrangement]
-    a[..., aer, aer] += 1.0 / za
+    a[_entry(a, aer, aer)] += 1.0 / za
     if "emf" in columns:
-        rhs[..., aer, columns.index("emf")] = np.broadcast_to(np.asarray(emf, dtype=complex), shape) / za
+        rhs[_entry(rhs, aer, columns.index("emf"))] = np.broadcast_to(np.asarray(emf, dtype=complex), shape) / za
     if "top" in columns:
         rhs[..., top, columns.index("top")] = 1.0
     if "detector" in columns:
-        rhs[..., det, columns.index("detector")] = 1.0
-    a[..., top, top] += 1j * w * (np.asarray(tuning_capacitance, dtype=float) + parts.self_capacitance)
-    a[..., det, det] += np.asarray(detector_conductance, dtype=float)
-    if parts.arrangement == "series capacitor":
-        y = 1j * w * parts.series_capacitance
+        rhs[_entry(rhs, det, columns.index("detector"))] = 1.0
+    a[..., top, top] += 1j * w * (np.asarray(tuning_capacitance, dtype=float) + lay.self_capacitance)
+    a[_entry(a, det, det)] += np.asarray(detector_conductance, dtype=float)
+    if lay.arrangement == "series capacitor":
+        y = 1j * w * lay.series_capacitance
         a[..., k, k] += y
         a[..., top, top] += y
         a[..., k, top] -= y
         a[..., top, k] -= y
-    frac = np.diff(np.concatenate([[0.0], taps]))
-    r_coil = np.broadcast_to(_value(parts.coil_resistance, f), shape)
     # each section's current leaves its upper node and enters the lower one (entries of ±1 that nothing
     # else touches); each section's voltage is its share of the loss plus jω times the inductance matrix
     rows, cols, signs = _incidence(k, n_nodes)
     a[..., rows, cols] = signs
-    block = 0.0 - np.asarray(1j * w)[..., np.newaxis, np.newaxis] * msec
+    block = 0.0 - np.asarray(1j * w)[..., np.newaxis, np.newaxis] * lay.sections
     for s in range(k):
-        block[..., s, s] -= r_coil * frac[s]
+        block[..., s, s] -= lay.coil_resistance * lay.fractions[..., s]
     a[..., n_nodes:n_nodes + k, n_nodes:n_nodes + k] = block
-    if primary:
-        lp = float(parts.primary_inductance)
-        row = n_nodes + k
-        m_total = parts.coupling_coefficient * np.sqrt(lp * parts.coil_inductance)
-        share = msec.sum(axis=1) / msec.sum() if msec.ndim == 2 else msec.sum(axis=-1) / msec.sum(axis=(-2, -1))[..., None]
+    if lay.primary is not None:
+        pr, row = lay.primary, n_nodes + k
         a[..., k, row] += 1.0
         a[..., row, k] += 1.0
-        a[..., row, row] -= np.broadcast_to(_value(parts.primary_resistance, f), shape) + 1j * w * lp
+        a[..., row, row] -= pr.resistance + 1j * w * pr.inductance
         for s in range(k):
-            a[..., row, n_nodes + s] -= 1j * w * m_total * share[..., s]
-            a[..., n_nodes + s, row] -= 1j * w * m_total * share[..., s]
-        if parts.primary_capacitance is not None:
-            a[..., k, k] += 1j * w * parts.primary_capacitance
-    return a, rhs, (top, det, aer)
+            a[..., row, n_nodes + s] -= 1j * w * pr.mutual_inductance * pr.share[..., s]
+            a[..., n_nodes + s, row] -= 1j * w * pr.mutual_inductance * pr.share[..., s]
+        if pr.capacitance is not None:
+            a[..., k, k] += 1j * w * pr.capacitance
+    return a, rhs
 
 
 @functools.lru_cache(maxsize=32)
@@ -522,75 +567,33 @@ def _per_network(values, f, shared) -> np.ndarray:
 
 
 def _solve_group(group: StackGroup, shared, f, za, tuning_capacitance, detector_conductance, emf):
-    """Assemble and solve networks of one shape, (G, m) inputs; the order of operations of :func:`solve_network`."""
+    """Assemble (:func:`_assemble`, as for :func:`solve_network`) and solve networks of one shape, (G, m) inputs."""
     parts = group.parts
     p0 = parts[0]
-    n_g, m = f.shape
-    gi, mi = np.arange(n_g)[:, None], np.arange(m)[None, :]
-    w = 2.0 * np.pi * f
-    det, frac, msec = group.detector_node, group.fractions, group.sections
-    k = frac.shape[1]
-    top = k - 1
-    has_x = p0.arrangement in ("series capacitor", "separate primary")
-    primary = p0.arrangement == "separate primary"
-    n_nodes, n_l = k + int(has_x), k + int(primary)
-    n = n_nodes + n_l
-    aer = {"direct": top, "coil tap": group.aerial_node, "series capacitor": k, "separate primary": k}[p0.arrangement]
-    a = np.zeros((n_g, m, n, n), dtype=complex)
-    rhs = np.zeros((n_g, m, n, 3), dtype=complex)
-    a[gi, mi, aer, aer] += 1.0 / za
-    rhs[gi, mi, aer, 0] = emf / za
-    rhs[..., top, 1] = 1.0
-    rhs[gi, mi, det, 2] = 1.0
 
     def column(values):
         return np.array(values, dtype=float)[:, None]
 
-    a[..., top, top] += 1j * w * (tuning_capacitance + column([p.self_capacitance for p in parts]))
-    a[gi, mi, det, det] += detector_conductance
-    if p0.arrangement == "series capacitor":
-        y = 1j * w * column([p.series_capacitance for p in parts])
-        a[..., k, k] += y
-        a[..., top, top] += y
-        a[..., k, top] -= y
-        a[..., top, k] -= y
-    r_coil = _per_network([p.coil_resistance for p in parts], f, shared)
-    for s in range(k):
-        row = n_nodes + s
-        a[..., s, row] += 1.0
-        if s > 0:
-            a[..., s - 1, row] -= 1.0
-        a[..., row, s] += 1.0
-        if s > 0:
-            a[..., row, s - 1] -= 1.0
-        a[..., row, row] -= r_coil * frac[:, s:s + 1]
-        for j in range(k):
-            a[..., row, n_nodes + j] -= 1j * w * msec[:, s, j:j + 1]
-    if primary:
-        _primary_entries(a, group, shared, f, w, k, n_nodes, column)
-    with blas_threads(n):
+    k = group.fractions.shape[1]
+    primary = None
+    if p0.arrangement == "separate primary":
+        lp = column([float(p.primary_inductance) for p in parts])
+        primary = _Primary(lp, column([p.coupling_coefficient * np.sqrt(float(p.primary_inductance) * p.coil_inductance)
+                                       for p in parts]),
+                           np.array([ms.sum(axis=1) / ms.sum() for ms in group.sections])[:, None, :],
+                           _per_network([p.primary_resistance for p in parts], f, shared),
+                           None if p0.primary_capacitance is None else column([p.primary_capacitance for p in parts]))
+    aer = {"direct": k - 1, "coil tap": group.aerial_node, "series capacitor": k, "separate primary": k}[p0.arrangement]
+    lay = _Layout(p0.arrangement, group.detector_node, aer, group.fractions[:, None, :], group.sections[:, None],
+                  column([p.self_capacitance for p in parts]),
+                  column([p.series_capacitance for p in parts]) if p0.arrangement == "series capacitor" else None,
+                  _per_network([p.coil_resistance for p in parts], f, shared), primary)
+    a, rhs = _assemble(f.shape, f, za, emf, tuning_capacitance, detector_conductance, ("emf", "top", "detector"), lay)
+    with blas_threads(a.shape[-1]):
         x = np.linalg.solve(a, rhs)
-    return (x[..., top, 0], x[gi, mi, det, 0], x[..., top, 1], x[gi, mi, det, 2], x[gi, mi, aer, 0],
-            x[gi, mi, det, 1], x[..., top, 2])
-
-
-def _primary_entries(a, group: StackGroup, shared, f, w, k, n_nodes, column):
-    """The separate primary's rows of a group's systems (see :func:`solve_network`)."""
-    parts = group.parts
-    row = n_nodes + k
-    lp = column([float(p.primary_inductance) for p in parts])
-    m_total = column([p.coupling_coefficient * np.sqrt(float(p.primary_inductance) * p.coil_inductance)
-                      for p in parts])
-    share = np.array([ms.sum(axis=1) / ms.sum() for ms in group.sections])
-    rp = _per_network([p.primary_resistance for p in parts], f, shared)
-    a[..., k, row] += 1.0
-    a[..., row, k] += 1.0
-    a[..., row, row] -= rp + 1j * w * lp
-    for s in range(k):
-        a[..., row, n_nodes + s] -= 1j * w * m_total * share[:, s:s + 1]
-        a[..., n_nodes + s, row] -= 1j * w * m_total * share[:, s:s + 1]
-    if parts[0].primary_capacitance is not None:
-        a[..., k, k] += 1j * w * column([p.primary_capacitance for p in parts])
+    top, det = k - 1, group.detector_node
+    return (x[..., top, 0], x[_entry(x, det, 0)], x[..., top, 1], x[_entry(x, det, 2)], x[_entry(x, aer, 0)],
+            x[_entry(x, det, 1)], x[..., top, 2])
 
 
 def retuned_detector_voltage(bare: NetworkSolution, frequency, tuning_capacitance, detector_conductance):
