@@ -6,6 +6,8 @@ consistency checks of the project's own figures (no outside reference values).
 
 import json
 
+import numpy as np
+
 from aerial.cli import main
 
 from .conftest import EXAMPLES
@@ -122,3 +124,15 @@ def test_spill_over_reads_the_right_way_round(capsys, monkeypatch):
     out = " ".join(capsys.readouterr()[0].split())
     assert "heard under" not in out
     assert "also comes through when tuned to:" in out
+
+
+def test_consistency_power_words_and_table_cells_share_one_prefix_rule():
+    # consistency check: the verdicts' power words (reception.watts_words) and the report's cells
+    # (outputs.terminal.eng) write a power below 1 W alike, both by aerial.core.units.si_text
+    from aerial.estimate.reception import watts_words
+    from aerial.outputs.terminal import eng
+
+    for p in np.geomspace(1e-17, 0.99, 997):
+        assert watts_words(p, 3) == eng(p, "W", 3)
+    # prefix steps: 1 nW = 1e-9 W (SI, the BIPM SI Brochure); a value rounding up to a step takes its prefix
+    assert (watts_words(999.7e-12, 3), watts_words(1e-9), watts_words(2.4e-21)) == ("1 nW", "1 nW", "less than 0.01 fW")

@@ -434,3 +434,49 @@ def length_text(metres: float, digits: int = 3, system: str = "si") -> str:
     if "." in text:
         text = text.rstrip("0").rstrip(".")
     return f"{text} {unit}"
+
+
+#: The prefixes a value is written with, from the largest, with the value each stands for.
+WRITTEN_PREFIXES = ((1e9, "G"), (1e6, "M"), (1e3, "k"), (1.0, ""), (1e-3, "m"), (1e-6, "µ"), (1e-9, "n"), (1e-12, "p"),
+               (1e-15, "f"))
+
+
+def si_text(value: float, unit: str, digits: int = 3, largest: float = 1e9, whole: bool = False) -> str:
+    """A value with an SI prefix and ``digits`` significant figures: si_text(1.8e-10, "F") -> '180 pF'.
+
+    The one rule for a prefixed value in a command's output (the report's tables and the sentences
+    of a result). A value that would round up to the next step is written with that step's prefix
+    (0.9997 nW -> '1 nW'); below femto it stays in femto.
+
+    Parameters
+    ----------
+    value : float
+        The value in the base unit (finite).
+    unit : str
+        The unit's symbol.
+    digits : int
+        Significant figures.
+    largest : float
+        The largest prefix used (1.0: no k, M or G). [1]
+    whole : bool
+        Write every figure before the decimal point when there are more than ``digits`` of them
+        (only possible under the ``largest`` prefix): '1500 W' rather than '1.5e+03 W'.
+
+    Examples
+    --------
+    >>> si_text(1.8e-10, "F"), si_text(2.734e-9, "W", 3), si_text(999.7e-12, "W", 3), si_text(0.0, "V")
+    ('180 pF', '2.73 nW', '1 nW', '0 V')
+    >>> si_text(1500.0, "W", 2, largest=1.0, whole=True), si_text(1500.0, "W", 2)
+    ('1500 W', '1.5 kW')
+    """
+    v = float(value)
+    if v == 0:
+        return f"0 {unit}"
+    for scale, prefix in WRITTEN_PREFIXES:
+        if scale <= largest and abs(v) >= scale * 0.9995:
+            break
+    else:
+        scale, prefix = 1e-15, "f"
+    x = v / scale
+    text = f"{x:.0f}" if whole and abs(x) >= 10 ** digits - 0.5 else f"{float(f'{x:.{digits}g}'):g}"
+    return f"{text} {prefix}{unit}"

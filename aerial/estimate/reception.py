@@ -26,6 +26,7 @@ import numpy as np
 
 from aerial.core.arrays import bisect_ahead, sorted_unique
 from aerial.core.errors import ModelInputError
+from aerial.core.units import si_text
 from aerial.models import atmospheric_noise as atm_mod
 from aerial.models import coil as coil_mod
 from aerial.models.coil import CoilWinding
@@ -628,7 +629,8 @@ def _ok_range(ok, lo, hi, points=48, refine=20):
 
 
 def watts_words(p: float, digits: int = 2) -> str:
-    """A power with an SI prefix, ``digits`` figures (two by default), as people read it: 2.3e-08 -> '23 nW'.
+    """A power with an SI prefix, ``digits`` figures (two by default), as people read it: 2.3e-08 -> '23 nW'
+    (the report's one prefix rule, :func:`aerial.core.units.si_text`, in watts at most).
 
     >>> watts_words(2.3e-08), watts_words(1e-10), watts_words(1.4e-13), watts_words(2.4e-21)
     ('23 nW', '100 pW', '140 fW', 'less than 0.01 fW')
@@ -638,11 +640,7 @@ def watts_words(p: float, digits: int = 2) -> str:
     p = float(p)
     if not p >= 1e-17:
         return "less than 0.01 fW"
-    for scale, prefix in ((1.0, ""), (1e-3, "m"), (1e-6, "µ"), (1e-9, "n"), (1e-12, "p"), (1e-15, "f")):
-        if p >= scale * 0.9995 or prefix == "f":
-            x = p / scale
-            return f"{x:.{digits}g} {prefix}W" if x < 10 ** digits - 0.5 else f"{x:.0f} {prefix}W"
-    return f"{p:.{digits}g} W"
+    return si_text(p, "W", digits, largest=1.0, whole=True)
 
 
 def _pf(c):

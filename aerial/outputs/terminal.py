@@ -21,7 +21,7 @@ from rich.table import Table
 from rich.markup import escape
 from rich.text import Text
 
-from aerial.core.units import FOOT_M, length_text
+from aerial.core.units import FOOT_M, length_text, si_text
 
 
 # --------------------------------------------------------------------------- keeping numbers with their units
@@ -107,19 +107,7 @@ def eng(value, unit: str, digits: int = 3) -> str:
     if value is None:
         return "—"
     v = float(value)
-    if not math.isfinite(v):
-        return "—"
-    if v == 0:
-        return f"0 {unit}"
-    prefixes = [(1e9, "G"), (1e6, "M"), (1e3, "k"), (1, ""), (1e-3, "m"), (1e-6, "µ"), (1e-9, "n"), (1e-12, "p"), (1e-15, "f")]
-    for scale, p in prefixes:
-        if abs(v) >= scale * 0.9995:
-            break
-    else:
-        scale, p = 1e-15, "f"
-    x = v / scale
-    text = f"{float(f'{x:.{digits}g}'):g}"
-    return f"{text} {p}{unit}"
+    return si_text(v, unit, digits) if math.isfinite(v) else "—"
 
 
 #: Said under a value whose low and high ends round to the same figure.
