@@ -1134,30 +1134,35 @@ def _row_tunability(c_need, c_total, c_aerial, parts, inductive=False) -> tuple:
 
 
 def _table_rows(table_f, arr, warnings, parts) -> list:
+    # every column as a list of plain numbers first: one conversion per column, not one per cell
+    col = {key: np.asarray(arr[key]).tolist() for key in _ROW_KEYS + ("within", "aerial_inductive", "wide")
+           if key in arr}
+    rejections = [(key, np.asarray(values).tolist())
+                  for key, values in list(arr["rejection"].items()) + list(arr["rejection_weak"].items())]
     rows = []
-    for i, fi in enumerate(table_f):
+    for i, fi in enumerate(np.asarray(table_f).tolist()):
         row = {"frequency_hz": _num(fi, "frequency_hz", warnings)}
         for key in _ROW_KEYS:
             if key == "within_capacitor_range":
-                row[key] = bool(arr["within"][i])
+                row[key] = bool(col["within"][i])
             else:
-                row[key] = _num(arr[key][i], key, warnings)
-        for key, values in list(arr["rejection"].items()) + list(arr["rejection_weak"].items()):
+                row[key] = _num(col[key][i], key, warnings)
+        for key, values in rejections:
             row[key] = _num(values[i], "rejection", warnings)
-        tunable, resonates, reason = _row_tunability(arr["capacitor_setting_f"][i], arr["total_capacitance_f"][i],
-                                                     arr["aerial_shunt_capacitance_f"][i], parts,
-                                                     bool(arr["aerial_inductive"][i]))
+        tunable, resonates, reason = _row_tunability(col["capacitor_setting_f"][i], col["total_capacitance_f"][i],
+                                                     col["aerial_shunt_capacitance_f"][i], parts,
+                                                     bool(col["aerial_inductive"][i]))
         row["tunable"] = tunable
         row["resonates_with_positive_capacitor"] = resonates
         if reason:
             row["reason"] = reason
-        row["bandwidth_is_lower_bound"] = bool(arr["wide"][i])
-        if arr["wide"][i]:
+        row["bandwidth_is_lower_bound"] = bool(col["wide"][i])
+        if col["wide"][i]:
             row["bandwidth_note"] = BANDWIDTH_LOWER_BOUND_NOTE
-        row["useful_resonance"] = bool(resonates and arr["loaded_q"][i] >= 1.0)
-        if arr["loaded_q"][i] < 1.0:
+        row["useful_resonance"] = bool(resonates and col["loaded_q"][i] >= 1.0)
+        if col["loaded_q"][i] < 1.0:
             row["loaded_q_note"] = NO_RESONANCE_NOTE
-        if arr["aerial_inductive"][i]:
+        if col["aerial_inductive"][i]:
             row["note"] = "the aerial looks inductive here (above its first resonance)"
         rows.append(row)
     return rows
