@@ -57,11 +57,11 @@ def refusal_check(site) -> list[str]:
 
 
 def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=None, force=False, ground="perfect",
-               allow_large=False, page=None, units="si") -> dict:
+               allow_large=False, page=None, units="si", page_units=None) -> dict:
     """Load a site (None: the built-in example), run the whole chain, optionally draw pictures and a page.
 
     ``units`` ("si" or "us"): the what-if steps are round figures of that system, and the page's drawings
-    are in it; every figure stays SI.
+    are in it unless ``page_units`` says otherwise; every figure stays SI.
 
     ``allow_large`` lets a full-wave sweep run past the memory and time budget
     (:func:`aerial.estimate.fullwave_sweep.check_full_wave_budget`). ``page``
@@ -93,7 +93,7 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
         from aerial.outputs.page_report import report_page
         from aerial.outputs.site_drawings import site_surroundings
 
-        text = report_page(result, site_surroundings(site), units)
+        text = report_page(result, site_surroundings(site), page_units or units)
         result["page"] = str(write_atomic(page, text, force=force, protected=(site.path,)))
     return result
 

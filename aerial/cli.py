@@ -399,7 +399,8 @@ def cmd_report(args) -> int:
         result = run_report(args.site, full_wave=args.full_wave, step_hz=step, progress=update,
                             pictures=args.pictures, force=args.force,
                             ground=_ground_option(args), allow_large=args.allow_large,
-                            page=args.page, units="si" if args.json else args.units)  # JSON: the SI steps always
+                            page=args.page, units="si" if args.json else args.units,  # JSON: the SI steps always
+                            page_units=args.units)
     _note_page(result)
     return _render(args, result, "render_report")
 

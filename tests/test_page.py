@@ -242,14 +242,14 @@ def _drawing_words(page: str) -> list[str]:
     return re.findall(r"<text[^>]*>([^<]*)</text>", page[start:page.index("</section>", start)])
 
 
-@pytest.mark.parametrize("command", ["report", "layout"])
+@pytest.mark.parametrize("command", ["report", "layout", "report --json"])
 def test_page_drawings_write_lengths_in_feet_under_us_units(capsys, tmp_path, command):
     """Under --units us every length on the drawings is in feet: labels and axes (input handling).
 
     1 ft = 0.3048 m exactly (NIST SP 811): the oak support, 12 m high in the site file, reads 39.4 ft.
     """
     target = tmp_path / "page.html"
-    code, out, err = run(capsys, command, SUBURBAN, "--page", target, "--units", "us", "--quiet")
+    code, out, err = run(capsys, *command.split(), SUBURBAN, "--page", target, "--units", "us", "--quiet")
     assert code == 0, err
     words = _drawing_words(target.read_text(encoding="utf-8"))
     assert "oak 39.4 ft" in words
