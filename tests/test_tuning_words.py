@@ -5,8 +5,10 @@ consistency checks of the project's own figures (no outside reference values).
 """
 
 import json
+import re
 
 import numpy as np
+import pytest
 
 from aerial.cli import main
 
@@ -58,8 +60,20 @@ def test_terminal_says_cannot_tune_instead_of_negative_settings(capsys, monkeypa
     out = _text(capsys, SUBURBAN, monkeypatch)
     table = " ".join(out[out.index("Tuning:"):out.index("Band coverage")].split())
     assert "— (cannot tune)" in table
-    assert "up: cannot tune here: the aerial alone gives" in table
     assert "use a smaller coil, a series capacitor or a tap" in table
+    # the reason is quoted at the top of the stretch, where the excess is plain (at its first
+    # frequency the two capacitances are nearly equal: that is where tuning ends); consistency
+    # check against the JSON rows
+    rows = _json(capsys, SUBURBAN)["tuning"]["rows"]
+    stuck = [r for r in rows if not r["resonates_with_positive_capacitor"]]
+    first, last = stuck[0], stuck[-1]
+    m = re.search(r"From ([\d.]+) (kHz|MHz) up: cannot tune here; at ([\d.]+) (kHz|MHz) the aerial alone gives "
+                  r"([\d.]+) pF, more than the ([\d.]+) pF needed", table)
+    assert m, table
+    scale = {"kHz": 1e3, "MHz": 1e6}
+    assert float(m.group(1)) * scale[m.group(2)] == pytest.approx(first["frequency_hz"], rel=5e-3)
+    assert float(m.group(3)) * scale[m.group(4)] == pytest.approx(last["frequency_hz"], rel=5e-3)
+    assert float(m.group(5)) > float(m.group(6))
     assert " -" not in table.replace(" — ", " ")  # no negative figure in the table
     for token in table.split():
         if token.startswith("(") and token[1:].isdigit():
@@ -71,7 +85,7 @@ def test_page_says_cannot_tune_too(tmp_path, capsys):
     assert main(["report", str(SUBURBAN), "--page", str(page)]) == 0
     capsys.readouterr()
     html = page.read_text(encoding="utf-8")
-    assert "— (cannot tune)" in html and "cannot tune here: the aerial alone gives" in html
+    assert "— (cannot tune)" in html and "up: cannot tune here; at " in html and "the aerial alone gives" in html
 
 
 def test_loaded_q_below_one_and_lower_bound_bandwidth_in_words(capsys, monkeypatch):

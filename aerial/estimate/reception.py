@@ -1121,10 +1121,12 @@ def _row_tunability(c_need, c_total, c_aerial, parts, inductive=False) -> tuple:
             reason = ("cannot tune here: the aerial is above its own first resonance and looks like a coil, "
                       "so no capacitor setting resonates it — use a series capacitor, a tap or a shorter aerial")
         elif c_aerial >= c_total:
-            reason = (f"cannot tune here: the aerial alone gives {_pf(c_aerial)}, more than the {_pf(c_total)} "
+            reason = (f"cannot tune here: the aerial alone gives {si_text(c_aerial, 'F')}, more than the "
+                      f"{si_text(c_total, 'F')} "
                       "needed — use a smaller coil, a series capacitor or a tap")
         else:
-            reason = (f"cannot tune here: the aerial and the coupling already give more than the {_pf(c_total)} "
+            reason = (f"cannot tune here: the aerial and the coupling already give more than the "
+                      f"{si_text(c_total, 'F')} "
                       "needed — use a smaller coil, a series capacitor or a tap")
         return False, False, reason
     cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f

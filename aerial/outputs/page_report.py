@@ -12,7 +12,7 @@ from aerial.core.units import length_text
 from aerial.outputs import charts, site_drawings
 from aerial.outputs.page import (VERDICT_CLASS, VERDICT_MARK, bullets, dict_rows_table, document, esc, figure,
                                  format_value, generic_block, key_label, range_text, section, site_file_name, table)
-from aerial.outputs.terminal import (centre_index, design_power_words, design_separation_words, design_shown_rows,
+from aerial.outputs.terminal import (untunable_words, centre_index, design_power_words, design_separation_words, design_shown_rows,
                                      detector_power_words, effective_length_words, eng, tuning_cell_text)
 
 #: Top-level keys of the result the report page shows in its own sections; any other key is shown generically.
@@ -253,9 +253,9 @@ def _tuning_table(tuning) -> str:
         cells = [tuning_cell_text(r, key, unit) for _, key, unit in columns]
         out.append(cells)
     html = table([c[0] for c in columns], out, "Tuning across the band (selected frequencies)", "wide")
-    stuck = next((r for r in rows if r.get("resonates_with_positive_capacitor") is False), None)
+    stuck = untunable_words(rows)
     if stuck is not None:
-        html += bullets([f"From {eng(stuck.get('frequency_hz'), 'Hz')} up: {stuck.get('reason', 'cannot tune here')}"])
+        html += bullets([stuck])
     return html
 
 

@@ -629,10 +629,9 @@ def _render_tuning(tuning, console, L: Lengths) -> None:
             cells = []
             t.add_row(*[tuning_cell_text(r, key, unit) for _, key, unit in cols])
         show(console, t)
-        stuck = next((r for r in rows if r.get("resonates_with_positive_capacitor") is False), None)
+        stuck = untunable_words(rows)
         if stuck is not None:
-            console.print(f"[yellow]From {eng(stuck.get('frequency_hz'), 'Hz')} up: "
-                          f"{escape(L.text(stuck.get('reason', 'cannot tune here')))}[/yellow]")
+            console.print(f"[yellow]{escape(L.text(stuck))}[/yellow]")
     cov = tuning.get("coverage", {})
     if cov.get("verdict"):
         style = "green" if cov.get("covered") else "yellow"
@@ -641,6 +640,25 @@ def _render_tuning(tuning, console, L: Lengths) -> None:
         console.print(f"  → {escape(L.text(line))}")
     for line in tuning.get("notes", []):
         console.print(f"[dim]{escape(L.text(line))}[/dim]")
+
+
+def untunable_words(rows: list) -> str | None:
+    """Where the tuning table's coil cannot be tuned at all, said at the top of that stretch.
+
+    The reason is quoted at the highest such frequency, where the aerial's excess over the
+    capacitance needed is plain: at the first one the two are nearly equal, since that is where
+    tuning ends. None when every row resonates.
+    """
+    stuck = [r for r in rows if r.get("resonates_with_positive_capacitor") is False]
+    if not stuck:
+        return None
+    first, last = stuck[0], stuck[-1]
+    reason = str(last.get("reason") or "cannot tune here")
+    head, _, why = reason.partition(": ")
+    at = eng(last.get("frequency_hz"), "Hz")
+    if first is last or not why:
+        return f"At {at}: {reason}" if first is last else f"From {eng(first.get('frequency_hz'), 'Hz')} up: {reason}"
+    return f"From {eng(first.get('frequency_hz'), 'Hz')} up: {head}; at {at} {why}"
 
 
 def tuning_cell_text(row: dict, key: str, unit: str) -> str:
