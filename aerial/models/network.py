@@ -307,7 +307,7 @@ def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
     (a unit current into the top, into the detector tap, the EMF shorted)."""
     check_parts(parts)
     f = np.asarray(frequency, dtype=float)
-    if np.any(~np.isfinite(f)) or np.any(f <= 0):
+    if not (np.isfinite(f).all() and (f > 0).all()):
         raise ModelInputError("frequency must be positive and finite")
     za = np.asarray(aerial_impedance, dtype=complex)
     # the coil's inductance, a series capacitance or a coupling coefficient may be arrays too (a search
@@ -316,7 +316,7 @@ def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
               if v is not None]
     shape = np.broadcast_shapes(f.shape, za.shape, np.shape(tuning_capacitance), np.shape(detector_conductance),
                                 np.shape(emf), *varied)
-    f = np.broadcast_to(f, shape)
+    f = f if f.shape == shape else np.broadcast_to(f, shape)
     taps, node = _taps(parts)
     if np.ndim(parts.coil_inductance) == 0:
         msec = _sections(tuple(taps), parts.block, float(parts.coil_inductance))
@@ -334,9 +334,11 @@ def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
                            np.broadcast_to(_value(parts.primary_resistance, f), shape), parts.primary_capacitance)
     aer = {"direct": k - 1, "coil tap": node.get(float(parts.aerial_tap or 1.0)), "series capacitor": k,
            "separate primary": k}[parts.arrangement]
-    lay = _Layout(parts.arrangement, node[float(parts.detector_tap)], aer, np.diff(np.concatenate([[0.0], taps])),
-                  msec, parts.self_capacitance, parts.series_capacitance,
-                  np.broadcast_to(_value(parts.coil_resistance, f), shape), primary)
+    r_coil = _value(parts.coil_resistance, f)
+    lay = _Layout(parts.arrangement, node[float(parts.detector_tap)], aer,
+                  np.array([b - a for a, b in zip([0.0] + taps[:-1], taps)]), msec, parts.self_capacitance,
+                  parts.series_capacitance, r_coil if np.shape(r_coil) == shape else np.broadcast_to(r_coil, shape),
+                  primary)
     a, rhs = _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns, lay)
     return a, rhs, (k - 1, lay.detector_node, aer)
 
@@ -381,7 +383,8 @@ def _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_cond
     series capacitor or a separate primary; unknowns after the nodes: each winding section's current, then
     the primary's."""
     w = 2.0 * np.pi * f
-    za = np.broadcast_to(np.asarray(aerial_impedance, dtype=complex), shape)
+    za = np.asarray(aerial_impedance, dtype=complex)
+    za = za if za.shape == shape else np.broadcast_to(za, shape)
     k = lay.fractions.shape[-1]
     top, det, aer = k - 1, lay.detector_node, lay.aerial_node
     n_nodes = k + int(lay.arrangement in ("series capacitor", "separate primary"))
@@ -390,7 +393,7 @@ def _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_cond
     rhs = np.zeros(shape + (n, len(columns)), dtype=complex)
     a[_entry(a, aer, aer)] += 1.0 / za
     if "emf" in columns:
-        rhs[_entry(rhs, aer, columns.index("emf"))] = np.broadcast_to(np.asarray(emf, dtype=complex), shape) / za
+        rhs[_entry(rhs, aer, columns.index("emf"))] = np.asarray(emf, dtype=complex) / za
     if "top" in columns:
         rhs[..., top, columns.index("top")] = 1.0
     if "detector" in columns:
