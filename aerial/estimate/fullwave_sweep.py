@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-from dataclasses import replace
-
 import numpy as np
 
 from aerial.core.errors import ResourceLimit
@@ -265,7 +263,7 @@ def building_full_wave_response(site, geometry, frequency, earth_ohm, progress=N
         check_site_full_wave_budget(geometry, f, allow_large)
     else:
         check_full_wave_budget(gridded, f, allow_large, what="the full-wave sweep with the building as a wire grid")
-    bare = replace(geometry, building=None, building_site=None)
+    bare = geometry._replace(building=None, building_site=None)
     out = full_wave_response(site, bare, f, earth_ohm, progress=None, ground=ground, allow_large=allow_large,
                              convergence_check=convergence_check)
     series = 0.0 if not geometry.base_fed else float(earth_ohm)

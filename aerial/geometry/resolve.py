@@ -6,7 +6,7 @@ geometries are plan views (x, y) in the same frame.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 
@@ -19,8 +19,7 @@ from aerial.site.building import SiteBuilding
 EARTH_ROLES = ("earth lead", "counterpoise")
 
 
-@dataclass(frozen=True)
-class Geometry:
+class Geometry(NamedTuple):
     """The resolved wires of a site.
 
     Attributes

@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import NamedTuple
 
 import numpy as np
 
@@ -108,8 +109,7 @@ def fall_zone(path: LineString, distance: float, quad_segs: int = QUAD_SEGS):
 # --------------------------------------------------------------------------- findings
 
 
-@dataclass(frozen=True)
-class Finding:
+class Finding(NamedTuple):
     """One breach of the rule: which part, which line, distance found and needed. [m]"""
 
     part: str

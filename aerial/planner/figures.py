@@ -143,7 +143,7 @@ def planned_wires(site, layout: dict, size, entry_xyz, floor_m: float = 0.0) -> 
 
 def planned_site(site, wires, floor_m: float = 0.0):
     """``site`` with its wires replaced by ``wires`` (the receiver's height reckoned from a balcony slab)."""
-    return replace(site, wires=wires, receiver=replace(site.receiver, height_m=max(site.receiver.height_m - floor_m,
+    return replace(site, wires=wires, receiver=site.receiver._replace(height_m=max(site.receiver.height_m - floor_m,
                                                                                    0.0)))
 
 

@@ -17,7 +17,7 @@ from __future__ import annotations
 import math
 import re
 import tomllib
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field
 from typing import NamedTuple
 from importlib import resources
 from pathlib import Path
@@ -231,8 +231,7 @@ class Electrode:
     arrangement: str = ""
 
 
-@dataclass(frozen=True)
-class Station:
+class Station(NamedTuple):
     """A station of ``[[stations]]``: frequency [Hz], power [W], distance [m], the ground on the path, bearings."""
 
     name: str
@@ -247,8 +246,7 @@ class Station:
     distance_to_sea_m: float | None = None
 
 
-@dataclass(frozen=True)
-class Receiver:
+class Receiver(NamedTuple):
     """The receiver of ``[receiver]``: where it stands [m] and its tuning parts in SI units (H, F, ohm)."""
 
     x_m: float
@@ -930,7 +928,7 @@ def _lead_in(r: TableReader, raw, supports, wires, receiver: Receiver, default_s
         # no receiver position: the aerial's lowest end is the feed, straight down to ground.
         ends = _aerial_ends(wires)
         low = ends[np.argmin(ends[:, 2])] if start is None else start
-        receiver = replace(receiver, x_m=float(low[0]), y_m=float(low[1]))
+        receiver = receiver._replace(x_m=float(low[0]), y_m=float(low[1]))
     feed = np.array([receiver.x_m, receiver.y_m, receiver.height_m])
     if start is None:
         ends = _aerial_ends(wires)
