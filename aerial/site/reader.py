@@ -19,7 +19,6 @@ import re
 import tomllib
 from dataclasses import dataclass, field
 from typing import NamedTuple
-from importlib import resources
 from pathlib import Path
 
 import numpy as np
@@ -391,6 +390,8 @@ def _long_number_line(text: str):
 
 def builtin_example() -> Site:
     """The built-in example site (a backyard inverted-L)."""
+    from importlib import resources  # here: it loads tempfile and the package readers, which a site file never needs
+
     text = resources.files("aerial").joinpath("data", BUILTIN_RESOURCE).read_text(encoding="utf-8")
     return load_site_text(text, BUILTIN_NAME)
 
