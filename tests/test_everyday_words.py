@@ -74,3 +74,19 @@ def test_a_comma_in_a_number_says_what_to_write(write_site, capsys, written, adv
     assert code == 2
     line = one_line(err)
     assert f'stations[0].frequency = "{written}"' in line and advice in line
+
+
+def test_a_slip_in_an_everyday_word_is_pointed_to_that_word(write_site, capsys):
+    path = write_site(MINIMAL.replace('name = "test vertical"', 'name = "t"\nnoise = "urbn"'))
+    code, out, err = run(capsys, "check", path)
+    assert code == 2
+    assert 'site.noise = "urbn": did you mean "urban"?' in one_line(err)
+
+
+def test_a_misnamed_array_of_tables_gives_its_line(write_site, capsys):
+    path = write_site(MINIMAL.replace("[[earth.rods]]", "[[earth.rod]]"))
+    code, out, err = run(capsys, "check", path)
+    assert code == 2
+    line = one_line(err)
+    header = next(i for i, t in enumerate(path.read_text().splitlines(), 1) if t.startswith("[[earth.rod]]"))
+    assert f"site.toml:{header}: earth.rod = " in line and "unknown table" in line

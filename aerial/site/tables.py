@@ -90,7 +90,7 @@ class TableReader:
             for word, choice in (synonyms or {}).items():
                 if norm == word.replace("-", " "):
                     return choice
-            self.fail(full, value, choice_words(norm, choices))
+            self.fail(full, value, choice_words(norm, choices, synonyms))
         return value
 
     def length(self, data, key, name, default=None, minimum=None, positive=False, required=False,
@@ -205,13 +205,16 @@ class TableReader:
                 self.fail(f"{key}.notes" if key else "notes", notes, "expected free text in quotes (or a list of texts)")
 
 
-def choice_words(value, choices) -> str:
-    """ "did you mean ...? expected one of ..." for a value that is none of ``choices``.
+def choice_words(value, choices, synonyms=None) -> str:
+    """ "did you mean ...? expected one of ..." for a value that is none of ``choices`` (nor of the
+    other words in ``synonyms``, which the hint may also name).
 
     >>> choice_words("hous", ("house", "apartment"))
     'did you mean "house"? expected one of "house", "apartment"'
+    >>> choice_words("urbn", ("city", "rural"), {"urban": "city"})
+    'did you mean "urban"? expected one of "city", "rural"'
     """
-    near = units.closest_word(str(value).strip().lower(), choices)
+    near = units.closest_word(str(value).strip().lower(), [*choices, *(synonyms or {})])
     hint = f'did you mean "{near}"? ' if near else ""
     return hint + "expected one of " + ", ".join(f'"{c}"' for c in choices)
 

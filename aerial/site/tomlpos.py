@@ -38,7 +38,7 @@ def find_line(text: str, key: str) -> int | None:
                     return i + 1
                 if i > start and lines[i].lstrip().startswith("[") and found is not None:
                     break
-            header = re.compile(r"\s*\[\s*" + dotted + r"\s*\]")
+            header = re.compile(r"\s*\[\[?\s*" + dotted + r"\s*\]")  # [table] or [[array of tables]]
             for i in range(start, len(lines)):
                 if header.match(lines[i]):
                     return i + 1
