@@ -22,12 +22,17 @@ print(json.dumps({"code": code, "loaded": sorted(m for m in sys.modules if m.sta
 """
 
 
-def _loaded(*argv):
+def _fresh_process(probe, *argv):
+    """Run ``probe`` in a fresh Python with this tree's aerial; return the JSON of its last line."""
     env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
-    proc = subprocess.run([sys.executable, "-c", PROBE, *argv], capture_output=True, text=True, env=env, cwd=ROOT,
+    proc = subprocess.run([sys.executable, "-c", probe, *argv], capture_output=True, text=True, env=env, cwd=ROOT,
                           timeout=120)
     assert proc.returncode == 0, proc.stderr
     return json.loads(proc.stdout.strip().splitlines()[-1])
+
+
+def _loaded(*argv):
+    return _fresh_process(PROBE, *argv)
 
 
 def test_check_loads_no_scipy_special_constants_or_optimize():
@@ -73,11 +78,7 @@ print(json.dumps({"code": code, "loaded": sorted({m.split(".")[0] for m in sys.m
 
 
 def _packages(*argv):
-    env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
-    proc = subprocess.run([sys.executable, "-c", TOP_LEVEL, *argv], capture_output=True, text=True, env=env, cwd=ROOT,
-                          timeout=120)
-    assert proc.returncode == 0, proc.stderr
-    return json.loads(proc.stdout.strip().splitlines()[-1])
+    return _fresh_process(TOP_LEVEL, *argv)
 
 
 def test_importing_the_command_line_loads_no_numpy_shapely_scipy_or_rich():
