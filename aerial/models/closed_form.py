@@ -418,6 +418,14 @@ def wavelength_validity(total_length_m: float, frequency, too_long, past) -> dic
     The line models hold while the wire is short against the wavelength,
     l < lambda/8, i.e. f < c / (8 l).
 
+    References
+    ----------
+    The short-aerial (lumped) treatment and its limit to wires short against the wavelength:
+    Balanis, *Antenna Theory*, 3rd ed., sec. 4.2 (small dipole, l <= lambda/50) and 4.3
+    (l <= lambda/10), and Laport, *Radio Antenna Engineering*, ch. 1 (module references of
+    :mod:`aerial.models.short_aerial`). The 1/8-wave line drawn here is common practice
+    (from memory); past it, ``--full-wave`` gives the figures.
+
     Examples
     --------
     >>> v = wavelength_validity(35.6, [0.52e6, 1.71e6], [False, True], [False, False])
