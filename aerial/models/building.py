@@ -72,7 +72,7 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -426,20 +426,9 @@ def building_charge_factor(height, frequency, body: BuildingBody, case=1):
 
 def _line_constants(body: BuildingBody):
     """The building's roof loading length [m] (:func:`roof_loading_length`) and limit frequency [Hz]
-    (:func:`building_limit_frequency`), worked out once per building and kept."""
-    key = (body.footprint.tobytes(), float(body.height_m))
-    found = _LINE_CONSTANTS.get(key)
-    if found is None:
-        dh = roof_loading_length(body.height_m, roof_equivalent_radius(body.footprint))
-        found = (dh, building_limit_frequency(body.height_m, dh))
-        if len(_LINE_CONSTANTS) >= 16:
-            _LINE_CONSTANTS.pop(next(iter(_LINE_CONSTANTS)))
-        _LINE_CONSTANTS[key] = found
-    return found
-
-
-#: Roof loading and limit frequency already worked out, by building (the last 16).
-_LINE_CONSTANTS: dict = {}
+    (:func:`building_limit_frequency`)."""
+    dh = roof_loading_length(body.height_m, roof_equivalent_radius(body.footprint))
+    return dh, building_limit_frequency(body.height_m, dh)
 
 
 def scale_screened_field(static, height, factor):
@@ -1084,7 +1073,7 @@ def box_screen(body: BuildingBody, target_panels: int = BOX_TARGET_PANELS) -> Bo
         return found
     centre, au, av, hu, hv = _box_panels(body, int(target_panels))
     box = BoxScreen(centre, au, av, hu, hv, np.zeros(len(centre)), float(body.height_m), body.footprint.copy())
-    screen = BoxScreen(centre, au, av, hu, hv, _box_charges(box), float(body.height_m), body.footprint.copy())
+    screen = replace(box, charge=_box_charges(box))
     if len(_BOX_SCREENS) >= 16:
         _BOX_SCREENS.pop(next(iter(_BOX_SCREENS)))
     _BOX_SCREENS[key] = screen
