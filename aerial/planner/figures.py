@@ -147,40 +147,6 @@ def planned_site(site, wires, floor_m: float = 0.0):
                                                                                    0.0)))
 
 
-def report_figures(site, layout: dict, size, entry_xyz, frequency, earth_ohm=None, floor_m: float = 0.0) -> dict:
-    """A layout's figures as the report has them: :func:`aerial.estimate.assemble.headline_figures` of its wires.
-
-    The same closed forms, building screening and earth treatment (the
-    electrodes as lossy lines in the soil, at each frequency) as
-    ``aerial report``.
-
-    Parameters
-    ----------
-    frequency : array_like
-        [Hz]
-    earth_ohm : array_like, optional
-        The earth system's resistance at each frequency (default: the report's). [ohm]
-
-    Returns
-    -------
-    dict
-        :func:`~aerial.estimate.assemble.headline_figures`: arrays over
-        ``frequency`` (``effective_height_m``, ``capacitance_f``,
-        ``static_capacitance_f``, ``radiation_resistance_ohm``,
-        ``conductor_loss_ohm``, ``loss_resistance_ohm`` [m, F, ohm]),
-        ``shape`` (str), ``reliable`` (bool).
-
-    Raises
-    ------
-    ModelInputError
-        When the closed forms cannot take the wires.
-    """
-    from aerial.estimate.assemble import headline_figures
-
-    wires = planned_wires(site, layout, size, entry_xyz, floor_m)
-    return headline_figures(planned_site(site, wires, floor_m), frequency, earth_ohm, wires=wires)
-
-
 def wavelength_validity(site, wires=None, geometry=None) -> dict:
     """Where some wires are long for the wavelength, by the report's own test over the report's own sweep.
 
@@ -234,8 +200,9 @@ def wire_lengths(site, layout: dict, size, entry_xyz, floor_m: float = 0.0, wire
 def listed_layout_figures(site, layout: dict, size, entry_xyz, frequency, earth_ohm, floor_m: float = 0.0) -> dict:
     """All the listing needs of a layout, from one build of its wires and one resolved geometry.
 
-    The same figures as :func:`report_figures`, :func:`layout_wavelength_validity` and :func:`wire_lengths`
-    each give, without building the wires three times and resolving them twice.
+    The figures of :func:`aerial.estimate.assemble.headline_figures` of its wires (the report's closed forms,
+    building screening and earth treatment), with :func:`wavelength_validity` and :func:`wire_lengths`, from
+    one build of the wires and one resolved geometry.
 
     Parameters
     ----------
@@ -247,7 +214,8 @@ def listed_layout_figures(site, layout: dict, size, entry_xyz, frequency, earth_
     Returns
     -------
     dict
-        ``figures`` (:func:`report_figures`, or None when the closed forms cannot take the wires) and
+        ``figures`` (:func:`~aerial.estimate.assemble.headline_figures`: arrays over ``frequency``, or None when
+        the closed forms cannot take the wires) and
         ``why`` (the reason then, else None); ``validity`` (:func:`wavelength_validity`, or None);
         ``top_length_m`` and ``wire_length_m`` (top + lead-in) [m].
     """

@@ -361,17 +361,19 @@ def screened_height(body, x, y, h, frequency=None):
 def present_wire(site, objective) -> dict | None:
     """The site's own wires by the report's model, at the ranking frequencies and the report's centre frequency.
 
-    The same function computes the listed layouts (:func:`aerial.planner.figures.report_figures`), so the present
-    wire and a layout on the same supports show the same figures, and both the report's. None when the closed
-    forms cannot take the site's wires.
+    The listed layouts are computed the same way (:func:`aerial.planner.figures.listed_layout_figures`), so the
+    present wire and a layout on the same supports show the same figures, and both the report's. None when the
+    closed forms cannot take the site's wires.
     """
     from aerial.estimate.assemble import headline_figures
+    from aerial.geometry.resolve import resolve
     from aerial.planner.figures import wavelength_validity
 
     f = np.append(np.asarray(objective["frequency_hz"], float), objective["centre_hz"])
     earth = np.append(np.asarray(objective["earth_ohm"], float), objective["centre_earth_ohm"])
     try:
-        fig = headline_figures(site, f, earth)
+        geo = resolve(site, electrode_ohm=float(np.mean(earth)))  # as the headline resolves
+        fig = headline_figures(site, f, earth, geometry=geo)
     except AerialError:
         return None
     out = {"note": "your present wire, by the report's model (its building screening and RF earth included), "
@@ -379,7 +381,7 @@ def present_wire(site, objective) -> dict | None:
     out.update(_figures_json(fig))
     out["figures_at_hz"] = float(objective["centre_hz"])
     out["score"] = _report_score(objective, fig)
-    validity = wavelength_validity(site)
+    validity = wavelength_validity(site, geometry=geo)
     out["outside_model_range"] = validity["rough_from_hz"] is not None
     if validity["rough_from_hz"] is not None:
         out["rough_from_hz"] = validity["rough_from_hz"]
