@@ -25,6 +25,8 @@ from fractions import Fraction
 FOOT_M = 0.3048
 #: The inch, exact by definition (NIST SP 811). [m]
 INCH_M = 0.0254
+#: The international mile, exact by definition (NIST SP 811, B.8). [m]
+MILE_M = 1609.344
 
 
 def closest_word(word, choices):
@@ -54,16 +56,16 @@ LENGTH_UNITS: dict[str, float] = {
     "ft": FOOT_M,
     "foot": FOOT_M,
     "feet": FOOT_M,
-    "in": 0.0254,
-    "inch": 0.0254,
-    "inches": 0.0254,
+    "in": INCH_M,
+    "inch": INCH_M,
+    "inches": INCH_M,
     "yd": 0.9144,
     "yard": 0.9144,
     "yards": 0.9144,
 }
 
 #: Distances to stations also accept the international mile (NIST SP 811, B.8: 1 mi = 1609.344 m exactly).
-DISTANCE_UNITS: dict[str, float] = {**LENGTH_UNITS, "mi": 1609.344, "mile": 1609.344, "miles": 1609.344}
+DISTANCE_UNITS: dict[str, float] = {**LENGTH_UNITS, "mi": MILE_M, "mile": MILE_M, "miles": MILE_M}
 
 # SI prefixes are case-sensitive (SI Brochure, 9th edition, 3): the spellings below are exact;
 # other case spellings are accepted only when no other SI reading exists (see parse_quantity).
@@ -426,14 +428,20 @@ def length_text(metres: float, digits: int = 3, system: str = "si") -> str:
         unit, scale = ("in", INCH_M) if v != 0 and abs(v) < FOOT_M else ("ft", FOOT_M)
     else:
         unit, scale = ("mm", 1e-3) if v != 0 and abs(v) < 0.1 else ("km", 1e3) if abs(v) >= 1000 else ("m", 1.0)
-    x = v / scale
+    return f"{significant_text(v / scale, digits)} {unit}"
+
+
+def significant_text(x: float, digits: int = 3) -> str:
+    """``x`` to ``digits`` significant figures, never in exponent form, trailing zeros dropped.
+
+    >>> significant_text(22.06), significant_text(1234.6), significant_text(0.800), significant_text(0.0)
+    ('22.1', '1235', '0.8', '0')
+    """
     if x == 0:
-        return f"0 {unit}"
+        return "0"
     decimals = max(0, digits - 1 - int(math.floor(math.log10(abs(x)))))
     text = f"{x:.{decimals}f}"
-    if "." in text:
-        text = text.rstrip("0").rstrip(".")
-    return f"{text} {unit}"
+    return text.rstrip("0").rstrip(".") if "." in text else text
 
 
 #: The prefixes a value is written with, from the largest, with the value each stands for.

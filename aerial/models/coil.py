@@ -25,14 +25,14 @@ References
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import NamedTuple
 
-from dataclasses import dataclass
-
 import numpy as np
-from aerial.core.constants import MU_0 as mu_0
 
+from aerial.core.constants import MU_0 as mu_0
 from aerial.core.errors import ModelInputError
+from aerial.core.units import INCH_M
 from aerial.models.checks import positive as _positive
 from aerial.models.conductor import COPPER_RESISTIVITY, skin_depth
 from aerial.models.roots import bracketed_root
@@ -176,8 +176,8 @@ def wheeler_inductance(diameter, length, turns):
     >>> round(float(r.inductance) * 1e6, 1), bool(r.within_stated_accuracy)
     (122.2, True)
     """
-    d = _positive("diameter", diameter) / 0.0254
-    l = _positive("length", length) / 0.0254
+    d = _positive("diameter", diameter) / INCH_M
+    l = _positive("length", length) / INCH_M
     n = _positive("turns", turns)
     microhenry = d**2 * n**2 / (18.0 * d + 40.0 * l)  # [2] Wheeler 1928
     return WheelerResult(microhenry * 1e-6, np.asarray(l > WHEELER_MIN_LENGTH_TO_DIAMETER * d))

@@ -21,7 +21,7 @@ from rich.table import Table
 from rich.markup import escape
 from rich.text import Text
 
-from aerial.core.units import FOOT_M, length_text, si_text
+from aerial.core.units import FOOT_M, MILE_M, length_text, si_text, significant_text
 
 
 # --------------------------------------------------------------------------- keeping numbers with their units
@@ -135,10 +135,6 @@ def span(pair, unit: str) -> str:
     return f"[dim]{text}[/dim]"
 
 
-#: Exact by definition (NIST SP 811): 1 mi = 1609.344 m (the foot and the inch: aerial.core.units).
-MILE_M = 1609.344
-
-
 class Lengths:
     """Lengths for people in one unit system: ``"si"`` (metres) or ``"us"`` (feet, inches, miles).
 
@@ -175,7 +171,7 @@ class Lengths:
         """A station distance: km or miles."""
         if metres is None:
             return "—"
-        return f"{_trim(_sig(float(metres) / MILE_M, 3))} mi" if self.us else eng(metres, "m")
+        return f"{significant_text(float(metres) / MILE_M)} mi" if self.us else eng(metres, "m")
 
     def plain(self, metres, decimals: int = 1) -> str:
         """A bare number in the system's main unit (m or ft), for coordinates."""
@@ -216,19 +212,6 @@ class Lengths:
             return f"{show(number(low) * scale[unit]).rsplit(' ', 1)[0]}–{shown}"
 
         return self.PATTERN.sub(convert, words)
-
-
-def _sig(x: float, digits: int) -> str:
-    """``x`` to ``digits`` significant figures, never in exponent form: 22.05 -> '22.1', 1234.5 -> '1235'."""
-    if x == 0:
-        return "0"
-    decimals = max(0, digits - 1 - int(math.floor(math.log10(abs(x)))))
-    return f"{x:.{decimals}f}"
-
-
-def _trim(number: str) -> str:
-    """'0.800' -> '0.8', '22.0' -> '22'."""
-    return number.rstrip("0").rstrip(".") if "." in number else number
 
 
 FIT_LIMIT = 200
