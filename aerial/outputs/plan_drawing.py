@@ -80,10 +80,17 @@ def in_units(scene: dict, units: str = "si") -> dict:
     """The scene to draw in ``units``: as it is for "si" (metres); for "us" every coordinate, height and
     distance in feet, under the same keys, with ``scene["unit"]`` saying which.
 
+    The one conversion for the plan drawing and the page's site drawings: the keys a scene lacks stay
+    absent, and a point may have two coordinates or three.
+
     >>> feet = in_units({"lot": [[0, 0], [3.048, 0]], "buildings": [], "obstacles": [], "supports": [],
     ...                  "entry": {"x": 0, "y": 0, "height_m": 3.048}, "lines": [], "zones": [], "layouts": []}, "us")
     >>> feet["unit"], round(feet["lot"][1][0], 9), round(feet["entry"]["height_m"], 9)
     ('ft', 10.0, 10.0)
+    >>> feet = in_units({"wires": [{"label": "a", "kind": "aerial", "points": [[0, 0, 3.048]]}],
+    ...                  "supports": [{"name": "pole", "x": 3.048, "y": 0, "height_m": 6.096}]}, "us")
+    >>> feet["unit"], round(feet["wires"][0]["points"][0][2], 9), round(feet["supports"][0]["height_m"], 9)
+    ('ft', 10.0, 20.0)
     """
     if units not in UNIT_SYSTEMS:
         raise AerialError(f"'{units}' is not a valid unit system, must be one of 'si', 'us'")
@@ -92,21 +99,29 @@ def in_units(scene: dict, units: str = "si") -> dict:
     k = 1.0 / FOOT_M
 
     def pts(points):
-        return [[float(x) * k, float(y) * k] for x, y in points]
+        return [[float(v) * k for v in p] for p in points]
 
     def scaled(item, *keys):
         return {**item, **{key: float(item[key]) * k for key in keys}}
 
+    def each(key, convert):
+        return {key: [convert(item) for item in scene[key]]} if key in scene else {}
+
+    def one(key, convert):
+        return {key: convert(scene[key])} if scene.get(key) else {}
+
     return {
         **scene, "unit": "ft",
-        "lot": pts(scene["lot"]) if scene.get("lot") else scene.get("lot"),
-        "buildings": [{**scaled(b, "height_m"), "outline": pts(b["outline"])} for b in scene["buildings"]],
-        "obstacles": [{**o, "outline": pts(o["outline"])} for o in scene["obstacles"]],
-        "supports": [scaled(sp, "x", "y", "height_m") for sp in scene["supports"]],
-        "entry": scaled(scene["entry"], "x", "y", "height_m"),
-        "lines": [{**scaled(ln, "height_m"), "path": pts(ln["path"])} for ln in scene["lines"]],
-        "zones": [{**scaled(z, "distance_m"), "rings": [pts(r) for r in z["rings"]]} for z in scene["zones"]],
-        "layouts": [{**lay, "top": pts(lay["top"]), "lead": pts(lay["lead"])} for lay in scene["layouts"]],
+        **one("lot", pts),
+        **each("buildings", lambda b: {**scaled(b, "height_m"), "outline": pts(b["outline"])}),
+        **each("obstacles", lambda o: {**o, "outline": pts(o["outline"])}),
+        **each("supports", lambda sp: scaled(sp, "x", "y", "height_m")),
+        **one("entry", lambda e: scaled(e, "x", "y", "height_m")),
+        **each("lines", lambda ln: {**scaled(ln, "height_m"), "path": pts(ln["path"])}),
+        **each("zones", lambda z: {**scaled(z, "distance_m"), "rings": [pts(r) for r in z["rings"]]}),
+        **each("layouts", lambda lay: {**lay, "top": pts(lay["top"]), "lead": pts(lay["lead"])}),
+        **each("wires", lambda w: {**w, "points": pts(w["points"])}),
+        **one("receiver", lambda r: [float(v) * k for v in r]),
     }
 
 

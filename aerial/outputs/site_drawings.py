@@ -8,7 +8,7 @@ list ``wires`` of ``{"label", "kind", "points"}`` with ``kind`` one of
 (a runner-up layout). The report's scene comes from the result's resolved
 wires (:func:`report_scene`), the planner's from its ranked layouts
 (:func:`layout_scene`). The drawings are made in the unit system asked for
-(:func:`scene_in_units`): metres, or under "us" feet, every coordinate, axis
+(:func:`aerial.outputs.plan_drawing.in_units`): metres, or under "us" feet, every coordinate, axis
 and length label alike.
 """
 
@@ -20,7 +20,7 @@ import numpy as np
 
 from aerial.core.units import FOOT_M
 from aerial.outputs.charts import PALETTE, chart_svg, new_figure, plain_label
-from aerial.outputs.plan_drawing import length_label
+from aerial.outputs.plan_drawing import in_units, length_label
 
 #: Room left around the drawn things on the plan view. [m]
 PLAN_MARGIN_M = 3.0
@@ -87,42 +87,6 @@ def layout_scene(scene: dict, layouts: list) -> dict:
     return out
 
 
-def scene_in_units(scene: dict, units: str = "si") -> dict:
-    """The scene to draw in ``units``: as it is under "si" (metres); under "us" every coordinate, height and
-    distance in feet, under the same keys; ``scene["unit"]`` says which ("m" or "ft").
-
-    >>> feet = scene_in_units({"wires": [{"label": "a", "kind": "aerial", "points": [[0, 0, 3.048]]}],
-    ...                        "supports": [{"name": "pole", "x": 3.048, "y": 0, "height_m": 6.096}]}, "us")
-    >>> feet["unit"], round(feet["wires"][0]["points"][0][2], 9), round(feet["supports"][0]["height_m"], 9)
-    ('ft', 10.0, 20.0)
-    """
-    if units not in ("si", "us"):
-        raise ValueError(f"'{units}' is not a valid unit system, must be one of 'si', 'us'")
-    if units == "si":
-        return {**scene, "unit": "m"}
-    k = 1.0 / FOOT_M
-
-    def pts(points):
-        return [[float(v) * k for v in p] for p in points]
-
-    def scaled(item, *keys):
-        return {**item, **{key: float(item[key]) * k for key in keys}}
-
-    entry, receiver = scene.get("entry"), scene.get("receiver")
-    return {
-        **scene, "unit": "ft",
-        "lot": pts(scene["lot"]) if scene.get("lot") else scene.get("lot"),
-        "buildings": [{**scaled(b, "height_m"), "outline": pts(b["outline"])} for b in scene.get("buildings", [])],
-        "obstacles": [{**o, "outline": pts(o["outline"])} for o in scene.get("obstacles", [])],
-        "supports": [scaled(sp, "x", "y", "height_m") for sp in scene.get("supports", [])],
-        "entry": scaled(entry, "x", "y", "height_m") if entry else entry,
-        "lines": [{**scaled(ln, "height_m"), "path": pts(ln["path"])} for ln in scene.get("lines", [])],
-        "zones": [{**scaled(z, "distance_m"), "rings": [pts(r) for r in z["rings"]]} for z in scene.get("zones", [])],
-        "wires": [{**w, "points": pts(w["points"])} for w in scene.get("wires", [])],
-        "receiver": [float(v) * k for v in receiver] if receiver else receiver,
-    }
-
-
 def _path_middle(xs, ys):
     """The point halfway along a polyline (by length)."""
     xs, ys = np.asarray(xs, float), np.asarray(ys, float)
@@ -180,7 +144,7 @@ def _free_offset(ax, xy, text: str, offset, step: float, placed: list, fontsize:
 def _draw_surroundings(ax, scene, placed: list | None = None) -> None:
     """Zones, lot, buildings, obstacles, lines and supports; ``placed``: label boxes to keep clear of (plan).
 
-    The scene is in its own unit (``scene["unit"]``, :func:`scene_in_units`); every length label says it.
+    The scene is in its own unit (``scene["unit"]``, :func:`aerial.outputs.plan_drawing.in_units`); every length label says it.
     """
     unit = scene.get("unit", "m")
     from matplotlib.patches import PathPatch, Polygon as MplPolygon
@@ -236,7 +200,7 @@ def plan_figure(scene: dict, units: str = "si"):
 
     ``units``: "si" (metres) or "us" (feet) for the axes and every length label.
     """
-    scene = scene_in_units(scene, units)
+    scene = in_units(scene, units)
     unit = scene["unit"]
     pad = PLAN_MARGIN_M / (FOOT_M if unit == "ft" else 1.0)
     pts = [p[:2] for w in scene["wires"] for p in w["points"]]
@@ -327,7 +291,7 @@ def elevation_figure(scene: dict, units: str = "si"):
 
     ``units``: "si" (metres) or "us" (feet) for the axes and every length label.
     """
-    scene = scene_in_units(scene, units)
+    scene = in_units(scene, units)
     unit = scene["unit"]
     main = [w for w in scene["wires"] if w["kind"] == "aerial"] or scene["wires"]
     allp = np.asarray([p for w in main for p in w["points"]], float)
