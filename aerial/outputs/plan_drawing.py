@@ -19,7 +19,7 @@ from xml.sax.saxutils import escape
 import numpy as np
 
 from aerial.core.errors import AerialError
-from aerial.core.units import FOOT_M
+from aerial.core.units import FOOT_M, length_text
 from aerial.outputs.files import write_atomic
 
 PICTURE_SUFFIXES = (".svg", ".png")
@@ -131,11 +131,9 @@ def length_label(value: float, unit: str = "m") -> str:
     >>> length_label(12.0), length_label(18.0, "ft"), length_label(39.37, "ft")
     ('12 m', '18 ft', '39.4 ft')
     """
-    from aerial.outputs.terminal import Lengths
-
     if unit == "ft":
-        return Lengths("us")(float(value) * FOOT_M)
-    return Lengths("si")(float(value))
+        return length_text(float(value) * FOOT_M, 3, "us")
+    return length_text(float(value))
 
 
 def line_label(ln: dict, zones: list, unit: str = "m") -> str:
