@@ -875,16 +875,16 @@ def _first_series_with_a_coil(band, aerial, coil, parts, q_fun, capacitances, in
     return int(rows[0]) if rows.size else None
 
 
-def _designed_coil(band, aerial, parts, notes) -> _Coil:
+def _designed_coil(band, aerial, parts) -> _Coil:
     """A coil designed to cover ``band``: first without self-capacitance, then again with the one
-    its winding (if known) gives, so that the coil's own capacitance is allowed for."""
+    its winding (if known) gives, so that the coil's own capacitance is allowed for. What the design
+    says of itself is in the coil's ``design_notes``."""
     said: list = []
     coil = _resolve_coil(parts, _design_inductance(band, aerial, parts, said))
     if coil.self_capacitance > 0:
         said = []
         coil = _resolve_coil(parts, _design_inductance(band, aerial, parts, said, coil.self_capacitance))
     coil.design_notes = said
-    notes.extend(said)
     return coil
 
 
@@ -1542,7 +1542,7 @@ def _station_coil(aerial, parts, band=None) -> _Coil:
         if parts.capacitor_min_f is None:
             raise ModelInputError("give the coil (inductance or winding) or the capacitor range to design one")
         band = (aerial.f[0], aerial.f[-1]) if band is None else (float(band[0]), float(band[1]))
-        return _designed_coil(band, aerial, parts, [])
+        return _designed_coil(band, aerial, parts)
     return _resolve_coil(parts)
 
 
@@ -1965,7 +1965,7 @@ def _design_rows(scene, aerial, parts, base: _Coil, band) -> tuple:
                                  "series_capacitance_f": cfg["series_capacitance"],
                                  "primary_inductance_h": cfg["primary_inductance"],
                                  "coupling_coefficient": cfg["coupling_coefficient"]})
-            coil = _designed_coil(band, aerial, sub, [])
+            coil = _designed_coil(band, aerial, sub)
             if lp is not None:
                 cpl = {**cpl, "primary_inductance": sd_mod.PRIMARY_FRACTION * coil.inductance}
         couplings.append((cpl, {**cfg, "self_capacitance": coil.self_capacitance}, coil))
