@@ -135,3 +135,77 @@ def test_an_entry_away_from_the_receiver_measures_the_wire_as_the_report(capsys,
     wire = next(line for line in out.splitlines() if same[0]["description"][:30] in line).split("│")[3].strip()
     code, out, err = run(capsys, "check", site, "--width", "200")
     assert f"aerial + lead-in {wire}" in out  # the layout's wire column reads as the check's summary
+
+
+SLAB_SITE = """
+[site]
+name = "flat with two poles on the balcony"
+bands = ["mf"]
+soil = "intermediate"
+
+[wire]
+diameter = "1.0 mm"
+
+[[runs]]
+points = [[0.5, 1.5, 12.5], [8.0, 1.5, 12.5]]
+
+[lead_in]
+from = [0.5, 1.5, 12.5]
+
+[receiver]
+at = [0.5, 1.0]
+height = "10 m"
+coil = "220 uH"
+capacitor = ["12 pF", "400 pF"]
+
+[earth.water_pipe]
+continuous_metal = true
+at = [0.5, 1.0]
+
+[[stations]]
+name = "Town Speech"
+frequency = "700 kHz"
+power = "10 kW"
+distance = "20 km"
+
+[plan]
+building = "apartment"
+
+[plan.entry]
+at = [0.5, 1.0]
+height = "10 m"
+
+[plan.balcony]
+floor_height = "9 m"
+structure = "reinforced concrete"
+
+[[plan.supports]]
+name = "pole west"
+at = [0.5, 1.5]
+height = "12.5 m"
+kind = "pole"
+
+[[plan.supports]]
+name = "pole east"
+at = [8.0, 1.5]
+height = "12.5 m"
+kind = "pole"
+"""
+
+
+def test_the_full_wave_check_of_a_balcony_layout_solves_the_wire_the_listing_describes(capsys, write_site):
+    """Heights reckoned from a conductive balcony slab (no building outline to screen with): the full-wave check
+    solves the winner with the same heights as its listed closed-form figures, not from the street (consistency
+    check: a 7.5 m wire 3.5 m above the slab is electrically short, so the two models agree closely)."""
+    p = write_site(SLAB_SITE)
+    code, out, err = run(capsys, "layout", p, "--full-wave", "--json", "--quiet")
+    assert code == 0, err
+    result = json.loads(out)
+    assert "heights from the balcony slab" in result["layouts"][0]["figures_model"]
+    fw = result["full_wave"]
+    assert fw["available"]
+    for full, closed in zip(fw["effective_height_m"], fw["closed_form_effective_height_m"]):
+        assert full == pytest.approx(closed, rel=0.05)  # the street-height wire gave 11.8 m against 3.15 m
+    code, out, err = run(capsys, "layout", p, "--full-wave", "--width", "200", "--quiet")
+    assert code == 0, err
+    assert re.search(r"effective height 3\.1\d m \(closed form 3\.1\d m\)", _words(out))

@@ -1072,9 +1072,9 @@ def _refine(site, ctx: _Context, win: dict, objective: dict, allow_large: bool =
     from aerial.planner.figures import planned_site, planned_wires
 
     entry = (ctx.ex, ctx.ey, ctx.eh)
-    wires = planned_wires(site, win, ctx.size, entry)
+    wires = planned_wires(site, win, ctx.size, entry, ctx.floor)  # the wire the listed figures describe
     earth = float(objective["centre_earth_ohm"])
-    planned = planned_site(site, wires)
+    planned = planned_site(site, wires, ctx.floor)
     geo = resolve(planned, electrode_ohm=earth, wires=wires)
     freqs = np.asarray(objective["frequency_hz"], dtype=float)
     closed = np.asarray(win["effective_height_by_frequency_m"])
