@@ -253,6 +253,7 @@ def building_full_wave_response(site, geometry, frequency, earth_ohm, progress=N
     for a ground wave from every bearing: the site's station bearings when
     given, else the worst and best bearing, reported as a range.
     """
+    from aerial.models.building import shielding_blend
     from aerial.models.fullwave_reception import arrival_effective_height, bearing_range
 
     body = geometry.building
@@ -277,11 +278,11 @@ def building_full_wave_response(site, geometry, frequency, earth_ohm, progress=N
     bearings = [st.bearing_deg for st in site.stations if getattr(st, "bearing_deg", None) is not None]
     h_open = np.asarray(out["effective_height_m"], float)
     mean_grid = np.sqrt(span_["worst_m"] * span_["best_m"])
-    h = (1 - s_nom) * h_open + s_nom * mean_grid
+    h = shielding_blend(h_open, mean_grid, s_nom)
     rr_grid = np.asarray(res.radiation_resistance, float)
     out["effective_height_m"] = h
-    out["radiation_resistance_ohm"] = (1 - s_nom) * np.asarray(out["radiation_resistance_ohm"]) + s_nom * rr_grid
-    out["reactance_ohm"] = (1 - s_nom) * np.asarray(out["reactance_ohm"]) + s_nom * np.asarray(res.impedance).imag
+    out["radiation_resistance_ohm"] = shielding_blend(out["radiation_resistance_ohm"], rr_grid, s_nom)
+    out["reactance_ohm"] = shielding_blend(out["reactance_ohm"], np.asarray(res.impedance).imag, s_nom)
     info = {
         "grid_mesh_m": mesh,
         "grid_wires": int(len(gridded) - len(geometry.segments)),
@@ -292,13 +293,13 @@ def building_full_wave_response(site, geometry, frequency, earth_ohm, progress=N
         "grid_best_effective_height_m": span_["best_m"],
         "worst_bearing_deg": span_["worst_bearing_deg"],
         "best_bearing_deg": span_["best_bearing_deg"],
-        "effective_height_range_m": np.stack([(1 - s_hi) * h_open + s_hi * span_["worst_m"],
-                                              (1 - s_lo) * h_open + s_lo * span_["best_m"]], axis=1),
+        "effective_height_range_m": np.stack([shielding_blend(h_open, span_["worst_m"], s_hi),
+                                              shielding_blend(h_open, span_["best_m"], s_lo)], axis=1),
     }
     if bearings:
         hb = np.abs(arrival_effective_height(res, bearings))
         info["station_bearings_deg"] = [float(b) for b in bearings]
-        info["station_effective_height_m"] = (1 - s_nom) * h_open[:, None] + s_nom * hb
+        info["station_effective_height_m"] = shielding_blend(h_open[:, None], hb, s_nom)
     out["building_full_wave"] = info
     out["model"] = (res.model + f"; the building as a grounded wire grid ({mesh:.2g} m mesh, {info['grid_wires']} "
                     "wires), blended with the open-ground solution by its construction's shielding")

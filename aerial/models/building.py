@@ -537,6 +537,91 @@ def screened_field_height(body: BuildingBody, points, frequency=None, case: int 
     return scale_screened_field(static[..., None], z, factor)
 
 
+def shielding_blend(open_ground, perfect_screen, shielding):
+    """A figure beside a building of partial shielding: open ground and the perfect screen blended by s.
+
+    Parameters
+    ----------
+    open_ground : array_like
+        The figure with no building (an effective or field height [m], a capacitance [F], a resistance [ohm]).
+    perfect_screen : array_like
+        The same figure beside a perfectly conducting building, in the same unit.
+    shielding : array_like
+        The construction's shielding fraction s, 0 (open ground) to 1 (a perfect conductor)
+        (``SHIELDING_BY_CONSTRUCTION``). [1]
+
+    Returns
+    -------
+    ndarray
+        (1 - s) x_open + s x_screen, in the unit of the figures.
+
+    Notes
+    -----
+    The construction's shielding fraction interpolates linearly between the
+    two limits, each exact (module notes): h_e = (1 - s) h_e,open + s h_e,facade,
+    likewise C, Rr and X.
+
+    References
+    ----------
+    The limits: the method of images and the electrostatic box solution (module references [2], [7]; from
+    memory). The fractions s are engineering judgement (common practice, from memory).
+
+    Examples
+    --------
+    >>> float(shielding_blend(10.0, 2.0, 0.9))
+    2.8
+    >>> float(shielding_blend(10.0, 2.0, 0.0))
+    10.0
+    """
+    s = np.asarray(shielding, dtype=float)
+    return (1.0 - s) * np.asarray(open_ground, dtype=float) + s * np.asarray(perfect_screen, dtype=float)
+
+
+def blended_field_height(body: BuildingBody, points, frequency=None):
+    """Open-ground height equivalent to the field beside ``body`` at its construction's nominal shielding. [m]
+
+    Parameters
+    ----------
+    body : BuildingBody
+        The building.
+    points : array_like, shape (..., 3)
+        Where the field is wanted, x, y and the height above the ground. [m]
+    frequency : float, optional
+        One frequency at which the building's own currents are taken in; None: the static field. [Hz]
+
+    Returns
+    -------
+    ndarray, shape (...)
+        (1 - s) z + s phi, phi the field height beside the perfectly conducting building
+        (:func:`screened_field_height`) and s its construction's nominal shielding fraction. [m]
+
+    Notes
+    -----
+    :func:`shielding_blend` of the open-ground field height (the height z
+    itself) and the screened one: the field the report's closed form takes
+    for the same building (:func:`facade_static_figures`), at single points.
+
+    References
+    ----------
+    Harrington's electrostatic moment solution of the box (module reference [7]) and King's receiving line
+    ([4]). (from memory)
+
+    Examples
+    --------
+    >>> body = BuildingBody([[0, -12], [24, -12], [24, 0], [0, 0]], 21.0, "steel frame")
+    >>> round(float(blended_field_height(body, [12.0, 1.6, 12.6])), 2)
+    1.33
+    >>> round(float(blended_field_height(BuildingBody(body.footprint, 21.0, "masonry"), [12.0, 1.6, 12.6])), 2)
+    8.66
+    """
+    p = np.asarray(points, dtype=float)
+    if frequency is None:
+        screened = screened_field_height(body, p)
+    else:
+        screened = screened_field_height(body, p, [float(frequency)], 1)[..., 0]
+    return shielding_blend(p[..., 2], screened, body.shielding[1])
+
+
 def plan_distance(points_xy, footprint):
     """Distance in plan from each point to a polygon's edge, 0 inside. [m]
 
@@ -668,15 +753,15 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     charge, phi, z, q_aer = sol["charge_c"], sol["field_height_m"], sol["height_m"][:, None], sol["aerial_charge_c"]
     h_wall, c_wall = float(np.sum(charge * phi) / q_aer), sol["capacitance_f"]
     s = np.array(body.shielding)
-    he = (1 - s) * open_effective_height_m + s * h_wall
-    cap = (1 - s) * open_capacitance_f + s * c_wall
+    he = shielding_blend(open_effective_height_m, h_wall, s)
+    cap = shielding_blend(open_capacitance_f, c_wall, s)
     dynamic = {}
     if frequency is not None:
         f = np.atleast_1d(np.asarray(frequency, dtype=float))
         factors = building_charge_factor(z, f, body, (0, 1, 2))  # the static field scaled in each case
         wall_f = np.sum(charge[:, None] * scale_screened_field(phi[:, None], z, factors), axis=1) / q_aer
         dynamic = {
-            "effective_height_by_frequency_m": (1 - s)[:, None] * open_effective_height_m + s[:, None] * wall_f,
+            "effective_height_by_frequency_m": shielding_blend(open_effective_height_m, wall_f, s[:, None]),
             "facade_effective_height_by_frequency_m": wall_f,
             "limit_frequency_hz": _line_constants(body)[1],
         }

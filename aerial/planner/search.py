@@ -41,7 +41,7 @@ from aerial.models import capacitance as cap
 from aerial.models import conductor
 from aerial.models import short_aerial as sa
 from aerial.geometry.resolve import building_of
-from aerial.models.building import screened_field_height
+from aerial.models.building import blended_field_height
 
 #: Largest number of candidate layouts searched without ``allow_large``.
 MAX_CANDIDATES = 2_000_000
@@ -345,17 +345,10 @@ class _Context:
 def screened_height(body, x, y, h, frequency=None):
     """Open-ground height equivalent to the screened field at plan points (x, y) and heights h. [m]
 
-    The nominal shielding of the building's construction blends the open
-    ground (h) with the field beside a perfectly conducting building at
-    ``frequency`` [Hz] (the building's own currents taken in; None: static),
-    :func:`aerial.models.building.screened_field_height`, as the report does.
+    :func:`aerial.models.building.blended_field_height` at ``frequency`` [Hz] (None: static), as the report has it.
     """
-    x, y, h = (np.asarray(v, dtype=float) for v in (x, y, h))
-    points = np.stack([x, y, h], axis=-1)
-    s = body.shielding[1]
-    if frequency is None:
-        return (1.0 - s) * h + s * screened_field_height(body, points)
-    return (1.0 - s) * h + s * screened_field_height(body, points, [float(frequency)], 1)[..., 0]
+    points = np.stack([np.asarray(v, dtype=float) for v in np.broadcast_arrays(x, y, h)], axis=-1)
+    return blended_field_height(body, points, frequency)
 
 
 def present_wire(site, objective) -> dict | None:
