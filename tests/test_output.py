@@ -85,6 +85,43 @@ def test_us_units_convert_every_length_in_the_report(capsys):
     assert not lengths_in_metres, lengths_in_metres
 
 
+# An invented sloping wire from the receiver to a tree: 29.0 m along, 0.5 m to 7.91 m high, so
+# 29.93 m of wire. Its metric warning says "29.9 m"; in feet that rounded figure would be 98.1 ft, the exact
+# one 98.2 ft (1 ft = 0.3048 m exactly, NIST SP 811), as the header writes it.
+SLOPING_WIRE = """
+[site]
+name = "sloping wire to a tree"
+bands = ["mf"]
+
+[[runs]]
+name = "sloper"
+points = [[0, 0, 0.5], [29.0, 0, 7.91]]
+
+[receiver]
+at = [0, 0]
+height = "0.5 m"
+
+[[earth.rods]]
+length = "2.4 m"
+"""
+
+
+def test_us_units_write_a_warning_s_length_as_the_header_does(capsys, write_site):
+    site = str(write_site(SLOPING_WIRE))
+    result = report_json(capsys, site)
+    total = result["geometry"]["total_length_m"]
+    assert "total wire length 29.9 m is above 1/8 wavelength" in " ".join(result["warnings"])  # the JSON: SI
+    code, out, _ = run(capsys, "report", site, "--units", "us", "--width", "400")
+    assert code == 0
+    shown = Lengths("us")(total)
+    assert shown == "98.2 ft"  # 29.93 m / 0.3048 m
+    assert f"aerial + lead-in {shown}" in out
+    assert f"total wire length {shown} is above 1/8 wavelength" in out  # not the rounded 29.9 m's 98.1 ft
+    assert "98.1 ft" not in out
+    code, out, _ = run(capsys, "report", site, "--width", "400")
+    assert code == 0 and "total wire length 29.9 m is above 1/8 wavelength" in out  # metres as before
+
+
 def test_us_units_leave_the_json_in_si(capsys):
     assert report_json(capsys, "--units", "us") == report_json(capsys)
 

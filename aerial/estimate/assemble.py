@@ -14,6 +14,7 @@ from dataclasses import replace
 import numpy as np
 
 from aerial.core.arrays import sorted_unique
+from aerial.core.lengthtext import metres, metres_range, words
 from aerial.core.version import __version__
 from aerial.estimate.plain import finalise
 from aerial.core.errors import AerialError, ModelInputError, naming_the_file
@@ -597,9 +598,9 @@ def what_if(site, frequency: float, earth: dict, units: str = "si", *, nominal: 
     rows = [("as described", base)]
     radials_row = better = None
     if not balcony_without_ground_access(site):
-        rows.append((f"raise the wire {step['raise']:g} m",
+        rows.append(("raise the wire " + metres(step["raise"], "g"),
                      _headline(site, _perturbed_wires(site, raise_m=step["raise"]), frequency, r_earth)))
-        rows.append((f"add {step['extend']:g} m to the far end",
+        rows.append(("add " + metres(step["extend"], "g") + " to the far end",
                      _headline(site, _perturbed_wires(site, extend_m=step["extend"]), frequency, r_earth)))
         better = earth_mod.improved_earth(site.electrodes, site.soil, frequency, radial_length_m=step["radial"],
                                           aerial=earth_mod.screen_aerial(resolve(site).segments))
@@ -706,7 +707,7 @@ def _building_moves(site, frequency, earth_ohm: float, stand_off_m: float = WHAT
             w = replace(w, points_m=p)
         moved.append(w)
     try:
-        rows.append((f"hold the wire {stand_off_m:g} m further out (poles on the rail)",
+        rows.append(("hold the wire " + metres(stand_off_m, "g") + " further out (poles on the rail)",
                      _headline(site, moved, frequency, earth_ohm)))
     except ModelInputError:
         pass
@@ -1022,9 +1023,10 @@ def building_section(geometry, resp) -> dict:
     text = f"The building is taken as a grounded conductor: {CONSTRUCTION_IN_WORDS[body.construction]}."
     if fig:
         most, nominal, least = fig["static_effective_height_range_m"]
-        text += (f" Beside it the wire's effective height is about {nominal:.1f} m ({least:.1f}-{most:.1f} m as the "
-                 f"structure conducts better or worse; {fig['open_ground_static_effective_height_m']:.1f} m in open "
-                 "ground).")
+        text += words(" Beside it the wire's effective height is about {nominal} ({spread} as the structure conducts "
+                      "better or worse; {open} in open ground).", nominal=metres(nominal, ".1f"),
+                      spread=metres_range(least, most, ".1f"),
+                      open=metres(fig["open_ground_static_effective_height_m"], ".1f"))
         text += _building_currents_words(resp, fig)
         if fig.get("screened_wire_m", 0.0) > 0.05 and body.shielding[1] >= 0.5:
             text += " The lead-in and riser inside it are screened and bonded to it: earth, not aerial."

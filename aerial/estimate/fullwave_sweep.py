@@ -5,6 +5,7 @@ from __future__ import annotations
 import numpy as np
 
 from aerial.core.errors import ResourceLimit
+from aerial.core.lengthtext import metres
 from aerial.models.capacitance import electrostatic_solution
 from aerial.models.fullwave import (
     DEFAULT_MAX_SEGMENT_WAVELENGTHS,
@@ -118,8 +119,8 @@ def check_site_full_wave_budget(geometry, frequency, allow_large: bool = False) 
     est = estimate_site_full_wave(geometry, frequency)
     what = "the full-wave sweep"
     if "grid_wires" in est:
-        what += (f" with the building as a wire grid ({est['grid_wires']} wires at a {est['grid_mesh_m']:.2g} m "
-                 "mesh)")
+        what += (f" with the building as a wire grid ({est['grid_wires']} wires at a "
+                 + metres(est["grid_mesh_m"], ".2g") + " mesh)")
     return check_full_wave_budget(geometry.segments, frequency, allow_large, estimate=est, what=what)
 
 
@@ -301,8 +302,8 @@ def building_full_wave_response(site, geometry, frequency, earth_ohm, progress=N
         info["station_bearings_deg"] = [float(b) for b in bearings]
         info["station_effective_height_m"] = shielding_blend(h_open[:, None], hb, s_nom)
     out["building_full_wave"] = info
-    out["model"] = (res.model + f"; the building as a grounded wire grid ({mesh:.2g} m mesh, {info['grid_wires']} "
-                    "wires), blended with the open-ground solution by its construction's shielding")
+    out["model"] = (res.model + "; the building as a grounded wire grid (" + metres(mesh, ".2g")
+                    + f" mesh, {info['grid_wires']} wires), blended with the open-ground solution by its construction's shielding")
     out["warnings"] = list(out["warnings"]) + [
         w for w in res.warnings if "meets the ground at" not in w and "touches the ground" not in w] + [
         "full wave with the building: the effective height shown is the middle (geometric mean) of the worst and "

@@ -12,6 +12,8 @@ from json.encoder import c_make_encoder, encode_basestring_ascii
 
 import numpy as np
 
+from aerial.core.lengthtext import LengthText
+
 #: numpy kinds whose ``tolist`` gives plain JSON values (float, int, unsigned, bool) at once.
 PLAIN_KINDS = "fiub"
 
@@ -57,8 +59,9 @@ class _NonFinite(Exception):
     """A non-finite number met by :func:`_plain`."""
 
 
-#: Types :func:`_plain` passes through as they are (``finalise`` gives them back unchanged).
-PASS_TYPES = frozenset({str, int, bool, type(None)})
+#: Types :func:`_plain` passes through as they are (``finalise`` gives them back unchanged): a
+#: :class:`~aerial.core.lengthtext.LengthText` stays one, so the report can write its lengths in feet.
+PASS_TYPES = frozenset({str, LengthText, int, bool, type(None)})
 
 
 def _plain(value):
@@ -138,7 +141,7 @@ def json_text(value) -> str:
 
 #: The types written as they stand; a dict or list holding only these is written by the standard library's
 #: C encoder in one call, its items separated by a line break and the indent.
-SCALAR_TYPES = frozenset({str, float, int, bool, type(None)})
+SCALAR_TYPES = frozenset({str, LengthText, float, int, bool, type(None)})
 _encoders: dict = {}
 
 
@@ -176,7 +179,7 @@ def _write(o, out: list, nl: str) -> None:
     if t in SCALAR_TYPES:
         if t is float and "n" in float.__repr__(o):  # inf, nan
             raise _NotPlain
-        out.append(encode_basestring_ascii(o) if t is str else "null" if o is None
+        out.append(encode_basestring_ascii(o) if t is str or t is LengthText else "null" if o is None
                    else ("true" if o else "false") if t is bool else (float.__repr__(o) if t is float else int.__repr__(o)))
     elif t is dict:
         if not o:

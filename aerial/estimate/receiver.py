@@ -13,6 +13,7 @@ import numpy as np
 from aerial.estimate import reception
 from aerial.core import units
 from aerial.core.errors import AerialError
+from aerial.core.lengthtext import metres
 
 #: Tabulated frequencies per band in the tuning table.
 TUNING_ROWS = 5
@@ -372,8 +373,8 @@ def _absurd_coil(turns, winding_length_m, form_diameter_m) -> list[str]:
     """Warnings for a single-layer coil nobody would wind (e.g. 156,500 turns for 1 H)."""
     out = []
     if turns > PRACTICAL_TURNS or winding_length_m > PRACTICAL_WINDING_LENGTH_M:
-        out.append(f"{turns:,.0f} turns in a winding {winding_length_m:.3g} m long is not a practical single-layer "
-                   "coil: use a larger former, or a multilayer or ferrite-cored coil (outside this helper's model)")
+        out.append(f"{turns:,.0f} turns in a winding " + metres(winding_length_m, ".3g")
+                   + " long is not a practical single-layer coil: use a larger former, or a multilayer or ferrite-cored coil (outside this helper's model)")
     elif winding_length_m > 10 * form_diameter_m:
         out.append(f"the winding is {winding_length_m / form_diameter_m:.0f} times as long as the former is wide: "
                    "a larger former gives the inductance with fewer turns and less wire")

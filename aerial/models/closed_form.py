@@ -26,6 +26,7 @@ import numpy as np
 from aerial.core.constants import SPEED_OF_LIGHT
 
 from aerial.core.errors import ModelInputError
+from aerial.core.lengthtext import metres
 from aerial.models import short_aerial as sa
 from aerial.models.building import facade_static_figures
 from aerial.models.capacitance import electrostatic_solution
@@ -307,7 +308,8 @@ def _beside_building(segments, building, es, case, f, warnings):
     f_limit = fig["limit_frequency_hz"]
     if float(np.max(f)) > f_limit:
         warnings.append(
-            f"above {f_limit / 1e6:.3g} MHz the building ({building.height_m:.0f} m) nears its own first resonance: "
+            f"above {f_limit / 1e6:.3g} MHz the building (" + metres(building.height_m, ".0f")
+            + ") nears its own first resonance: "
             "the closed form's allowance for the building's currents stops holding there and its figures are held "
             "at their value at that frequency, which can be several dB off (--full-wave models the building)"
         )
@@ -441,7 +443,8 @@ def wavelength_validity(total_length_m: float, frequency, too_long, past) -> dic
     warnings = []
     if long_from is not None:
         warnings.append(
-            f"total wire length {total:.1f} m is above 1/8 wavelength from {long_from / 1e6:.3g} MHz up: "
+            "total wire length " + metres(total, ".1f")
+            + f" is above 1/8 wavelength from {long_from / 1e6:.3g} MHz up: "
             "reactance, capacitance, effective height and radiation resistance are unreliable there"
         )
     if resonance_from is not None:

@@ -82,6 +82,7 @@ import numpy as np
 from aerial.core.constants import MU_0 as mu_0
 from aerial.core.constants import SPEED_OF_LIGHT as C0
 from aerial.core.errors import ModelInputError
+from aerial.core.lengthtext import metres
 from aerial.models.groundwave import complex_relative_permittivity
 from aerial.models.short_aerial import ETA0
 from aerial.models.special_functions import ellipe, exp1
@@ -410,8 +411,8 @@ def radial_screen_loss(frequency, height, count, radial_length, wire_radius, con
     if np.any(k * height + delta >= np.pi / 2):
         warnings.append("the vertical is past its first resonance: the standing-wave current of the ground "
                         "field is rough there")
-    method = (f"Wait's radial screen ({int(count)} radials of {radial_length:.3g} m) and the soil beyond, "
-              "compensation theorem" if count > 0 and radial_length > 0 else "the soil's surface impedance, "
+    method = (f"Wait's radial screen ({int(count)} radials of " + metres(radial_length, ".3g")
+              + ") and the soil beyond, compensation theorem" if count > 0 and radial_length > 0 else "the soil's surface impedance, "
               "compensation theorem")
     return RadialScreenLoss(f, out, np.maximum(out.real, 0.0), np.maximum(inner, 0.0), method, tuple(warnings))
 

@@ -27,6 +27,7 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from aerial.core.errors import ModelInputError
+from aerial.core.lengthtext import metres
 from aerial.models.segments import Segments
 
 SHAPE_KINDS = ("vertical", "sloping wire", "inverted-L", "T", "irregular")
@@ -284,7 +285,7 @@ def _measure_arms(graph, arms, section, notes):
         top_r.append(float(np.average(s.radius[idx], weights=w)))
         span = float(np.max(mid_z) - np.min(mid_z))
         if span > 0.25 * top_h[-1]:
-            notes.append(f"top arm {i + 1} changes height by {span:.1f} m; its mean height is used")
+            notes.append(f"top arm {i + 1} changes height by " + metres(span, ".1f") + "; its mean height is used")
     return top_l, top_h, top_r
 
 
@@ -346,7 +347,8 @@ def classify(segments: Segments) -> AerialShape:
     earth_len = float(np.sum(lengths[segments.grounded]))
     notes = []
     if earth_len > 0:
-        notes.append(f"earth lead of {earth_len:.1f} m is part of the electrostatic solution, not of the shape")
+        notes.append("earth lead of " + metres(earth_len, ".1f") + " is part of the electrostatic solution, not of "
+                     "the shape")
 
     graph = _WireGraph(segments, aer)
     feed_node = graph.feed_node()

@@ -21,6 +21,7 @@ from rich.table import Table
 from rich.markup import escape
 from rich.text import Text
 
+from aerial.core.lengthtext import METRIC_LENGTH, text_in
 from aerial.core.units import FOOT_M, MILE_M, length_text, si_text, significant_text
 
 
@@ -150,11 +151,8 @@ class Lengths:
     ('6.72 m', '95 km')
     """
 
-    #: A number (thousands may be grouped by a space, "12 000") followed by a metric length unit in
-    #: free text (not m·pF, mV/m, mm2 ...); a range "50–12 000 km" is taken whole.
-    NUMBER = r"\d{1,3}(?:[ \u00a0\u2009\u202f]\d{3})+(?:\.\d+)?|\d+(?:\.\d+)?"
-    PATTERN = re.compile(rf"(?<![\w.])(?<!\d[ \u00a0\u2009\u202f])(?:({NUMBER})\s?[–-]\s?)?({NUMBER})\s?(km|cm|mm|m)"
-                         r"(?![\w·/²^])")
+    #: A metric length written in free text (the fallback for text that does not keep its lengths).
+    PATTERN = METRIC_LENGTH
 
     def __init__(self, system: str = "si"):
         if system not in ("si", "us"):
@@ -194,24 +192,12 @@ class Lengths:
         return f"[dim]({lo.rsplit(' ', 1)[0] if same else lo}–{hi})[/dim]"
 
     def text(self, words) -> str:
-        """Free text with every metric length in it converted (unchanged under "si")."""
-        words = str(words)
-        if not self.us:
-            return words
-        scale = {"km": 1e3, "m": 1.0, "cm": 1e-2, "mm": 1e-3}
+        """Free text with every metric length in it written in this system (unchanged under "si").
 
-        def number(group):
-            return float(re.sub(r"\s", "", group))
-
-        def convert(match):
-            low, value, unit = match.groups()
-            show = self.distance if unit == "km" else self
-            shown = show(number(value) * scale[unit])
-            if low is None:
-                return shown
-            return f"{show(number(low) * scale[unit]).rsplit(' ', 1)[0]}–{shown}"
-
-        return self.PATTERN.sub(convert, words)
+        A :class:`~aerial.core.lengthtext.LengthText` is written from its exact lengths, so a figure in a
+        sentence is the figure of the tables; other text is read back from its digits.
+        """
+        return text_in(words, "us" if self.us else "si")
 
 
 FIT_LIMIT = 200

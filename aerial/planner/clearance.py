@@ -29,6 +29,7 @@ from typing import NamedTuple
 import numpy as np
 
 from aerial.core.errors import ModelInputError, SafetyRefusal
+from aerial.core.lengthtext import join_text, metres, words
 
 #: Fall-zone factor on the tallest height of the aerial and its supports
 #: (US Consumer Product Safety Commission safety alerts; from memory). [1]
@@ -127,14 +128,16 @@ class Finding(NamedTuple):
         """One short line: which part, how far from which line, what is needed and what to do."""
         what = {"wire": "the wire", "lead-in": "the lead-in", "support": "the support"}[self.part_kind]
         why = ("the line's height" if self.line_height_m >= 1.5 * self.tallest_m
-               else f"1.5 × {self.tallest_m:.1f} m")
+               else "1.5 × " + metres(self.tallest_m, ".1f"))
         if self.crosses:
-            return (f'{what} "{self.part}" crosses the {self.line_kind} line "{self.line}" in plan: re-route it so '
-                    f"every part stays at least {self.required_m:.1f} m ({why}) away")
+            return words('{what} "{part}" crosses the {kind} line "{line}" in plan: re-route it so every part stays '
+                         "at least {needed} ({why}) away", what=what, part=self.part, kind=self.line_kind,
+                         line=self.line, needed=metres(self.required_m, ".1f"), why=why)
         more = max(self.required_m - self.distance_m, 0.0)
-        return (f'{what} "{self.part}" is {self.distance_m:.1f} m (in plan) from the {self.line_kind} line '
-                f'"{self.line}"; {self.required_m:.1f} m needed ({why}): move it at least {more:.1f} m further '
-                "from the line, or use lower supports")
+        return words('{what} "{part}" is {distance} (in plan) from the {kind} line "{line}"; {needed} needed '
+                     "({why}): move it at least {more} further from the line, or use lower supports", what=what,
+                     part=self.part, distance=metres(self.distance_m, ".1f"), kind=self.line_kind, line=self.line,
+                     needed=metres(self.required_m, ".1f"), why=why, more=metres(more, ".1f"))
 
 
 @dataclass
@@ -152,10 +155,10 @@ class ClearanceReport:
     def message(self) -> str:
         """One short line with the rule, then one line per power line with the parts inside its zone."""
         first = self.findings[0]
-        head = (f"this layout puts part of the aerial inside a power line's fall zone (1.5 × its tallest point, "
-                f"{first.tallest_m:.1f} m at {first.tallest_what}, and never less than the line's height): aerial "
-                "will not analyse it (docs/site-planner.md, safety rule)")
-        return "\n".join([head] + self.by_line())
+        head = ("this layout puts part of the aerial inside a power line's fall zone (1.5 × its tallest point, "
+                + metres(first.tallest_m, ".1f") + f" at {first.tallest_what}, and never less than the line's "
+                "height): aerial will not analyse it (docs/site-planner.md, safety rule)")
+        return join_text("\n", [head] + self.by_line())
 
     def by_line(self) -> list:
         """One line per power line: the distance needed, the parts inside, and the move that clears them."""
@@ -163,18 +166,22 @@ class ClearanceReport:
         for name in dict.fromkeys(f.line for f in self.findings):
             found = [f for f in self.findings if f.line == name]
             f0 = found[0]
-            why = "the line's height" if f0.line_height_m >= 1.5 * f0.tallest_m else f"1.5 × {f0.tallest_m:.1f} m"
+            why = ("the line's height" if f0.line_height_m >= 1.5 * f0.tallest_m
+                   else "1.5 × " + metres(f0.tallest_m, ".1f"))
             what = {"wire": "the wire", "lead-in": "the lead-in", "support": "the support"}
-            parts = ", ".join(f'{what[f.part_kind]} "{f.part}" ' + ("(crosses it)" if f.crosses else
-                                                                     f"({f.distance_m:.1f} m)") for f in found)
+            parts = join_text(", ", [f'{what[f.part_kind]} "{f.part}" '
+                                     + ("(crosses it)" if f.crosses else "(" + metres(f.distance_m, ".1f") + ")")
+                                     for f in found])
             more = max(f.required_m - f.distance_m for f in found)
-            out.append(f'{f0.line_kind} line "{name}": {f0.required_m:.1f} m needed ({why}); inside: {parts}; move '
-                       f"them at least {more:.1f} m further away (never across the line), or use lower supports")
+            out.append(words('{kind} line "{name}": {needed} needed ({why}); inside: {parts}; move them at least '
+                             "{more} further away (never across the line), or use lower supports", kind=f0.line_kind,
+                             name=name, needed=metres(f0.required_m, ".1f"), why=why, parts=parts,
+                             more=metres(more, ".1f")))
         return out
 
     def summary(self) -> str:
         """The breaches in one line, for a warning."""
-        return "; ".join(self.by_line())
+        return join_text("; ", self.by_line())
 
 
 def _plan_geometry(points_m: np.ndarray):
@@ -281,8 +288,8 @@ def check_site_clearance(site, plan=None) -> ClearanceReport:
                 outside = geom.difference(lot)
                 size = outside.length if outside.length > 0 else float(geom.distance(plan.lot))
                 report.warnings.append(
-                    f'{kind} "{name}" runs outside the lot (about {size:.1f} m of it): you need the neighbour\'s '
-                    "consent for that part.")
+                    words('{kind} "{name}" runs outside the lot (about {size} of it): you need the neighbour\'s '
+                          "consent for that part.", kind=kind, name=name, size=metres(size, ".1f")))
     return report
 
 

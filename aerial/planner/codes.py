@@ -23,6 +23,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from aerial.core import units
+from aerial.core.lengthtext import metres, words
 
 US_REGIONS = ("us", "usa", "united states")
 EUROPE_REGIONS = (
@@ -107,6 +108,13 @@ def minimum_awg(span_m: float, material: str) -> tuple[int, str]:
     return MIN_AWG_BY_MATERIAL[row][band], row
 
 
+def _lead_in_clearance():
+    """The start of the checklist line on power conductors: the lead-in's two clearances."""
+    return words("810.13 / 810.18(A) power conductors: never cross over them; keep the lead-in at least {low} from "
+                 "power circuits up to 250 V and {high} above 250 V", low=metres(LEAD_IN_CLEARANCE_M[0], ".0f", "mm"),
+                 high=metres(LEAD_IN_CLEARANCE_M[1], ".0f"))
+
+
 def _awg_diameter(n: int) -> float:
     return units.awg_diameter(n)
 
@@ -125,22 +133,19 @@ def _nfpa70(site, plan, facts: LayoutFacts) -> list[str]:
             extra = " The table row for aluminium alloy is the copper row; check yours."
         if facts.wire_material == "steel":
             extra = " Galvanised steel is not in the copper row; check the table's other rows."
-        out.append(f"810.16(A) conductor size: open span {span:.1f} m of {facts.wire_described} "
-                   f"({facts.wire_diameter_m * 1e3:.2f} mm); the table asks for at least {awg} AWG {row} "
-                   f"({need_d * 1e3:.2f} mm): {verdict}.{extra}")
+        out.append(words("810.16(A) conductor size: open span {span} of {wire} ({diameter}); the table asks for at "
+                         "least {awg} AWG {row} ({need}): {verdict}.{extra}", span=metres(span, ".1f"),
+                         wire=facts.wire_described, diameter=metres(facts.wire_diameter_m, ".2f", "mm"), awg=awg,
+                         row=row, need=metres(need_d, ".2f", "mm"), verdict=verdict, extra=extra))
     # power conductors
     power = plan.power_lines if plan is not None else []
     if power and facts.lead_in_paths:
         nearest = min(float(p.distance(ln.path)) for p in facts.lead_in_paths for ln in power)
         verdict = "pass for the overhead lines you listed" if nearest >= LEAD_IN_CLEARANCE_M[1] else "ATTENTION"
-        out.append(f"810.13 / 810.18(A) power conductors: never cross over them; keep the lead-in at least "
-                   f"{LEAD_IN_CLEARANCE_M[0] * 1e3:.0f} mm from power circuits up to 250 V and "
-                   f"{LEAD_IN_CLEARANCE_M[1]:.0f} m above 250 V. Nearest listed overhead line: {nearest:.1f} m in plan: "
-                   f"{verdict}. Wiring inside the building and lines you did not list are not checked.")
+        out.append(_lead_in_clearance() + ". Nearest listed overhead line: " + metres(nearest, ".1f")
+                   + f" in plan: {verdict}. Wiring inside the building and lines you did not list are not checked.")
     else:
-        out.append(f"810.13 / 810.18(A) power conductors: never cross over them; keep the lead-in at least "
-                   f"{LEAD_IN_CLEARANCE_M[0] * 1e3:.0f} mm from power circuits up to 250 V and "
-                   f"{LEAD_IN_CLEARANCE_M[1]:.0f} m above 250 V (no overhead lines are listed, so aerial cannot check).")
+        out.append(_lead_in_clearance() + " (no overhead lines are listed, so aerial cannot check).")
     kinds = set(facts.support_kinds)
     if "pole" in kinds:
         out.append("810.12 supports: ATTENTION — a support is a pole: it must not be a pole that carries power or "
@@ -156,12 +161,13 @@ def _nfpa70(site, plan, facts: LayoutFacts) -> list[str]:
     need = _awg_diameter(EARTH_CONDUCTOR_AWG)
     if lead is not None:
         ok = lead.size.radius_m * 2 >= need * 0.995 and lead.size.material in ("copper", "copper-clad steel", "aluminium")
-        out.append(f"810.21 grounding conductor: at least {EARTH_CONDUCTOR_AWG} AWG copper ({need * 1e3:.2f} mm), run as "
-                   f"straight as practicable; the site's earth lead is {lead.size.described_as} {lead.size.material}: "
+        out.append(f"810.21 grounding conductor: at least {EARTH_CONDUCTOR_AWG} AWG copper (" + metres(need, ".2f", "mm")
+                   + "), run as straight as practicable; the site's earth lead is "
+                   + lead.size.described_as + f" {lead.size.material}: "
                    + ("pass (size only)." if ok else "ATTENTION: thinner than that."))
     else:
-        out.append(f"810.21 grounding conductor: at least {EARTH_CONDUCTOR_AWG} AWG copper ({need * 1e3:.2f} mm), run "
-                   "as straight as practicable (no earth lead is described in the site file).")
+        out.append(f"810.21 grounding conductor: at least {EARTH_CONDUCTOR_AWG} AWG copper (" + metres(need, ".2f", "mm")
+                   + "), run as straight as practicable (no earth lead is described in the site file).")
     kinds_e = {e.kind for e in site.electrodes}
     if kinds_e & {"rods", "buried_wires", "water_pipe"} and "building_earth" not in kinds_e:
         out.append(f"810.21(F)/(J) bonding: ATTENTION — connect to the building's grounding electrode system; a "
@@ -172,9 +178,10 @@ def _nfpa70(site, plan, facts: LayoutFacts) -> list[str]:
     for e in site.electrodes:
         if e.kind == "water_pipe":
             ok = e.length_m >= WATER_PIPE_CONTACT_M
-            out.append(f"250.52(A)(1) water pipe: an electrode only with at least {WATER_PIPE_CONTACT_M:g} m of metal "
-                       f"pipe in contact with the earth, and it must be supplemented; the site gives "
-                       f"{e.length_m:.1f} m: " + ("pass (length only)." if ok else "ATTENTION: too short."))
+            out.append(words("250.52(A)(1) water pipe: an electrode only with at least {contact} of metal pipe in "
+                             "contact with the earth, and it must be supplemented; the site gives {length}: ",
+                             contact=metres(WATER_PIPE_CONTACT_M, "g"), length=metres(e.length_m, ".1f"))
+                       + ("pass (length only)." if ok else "ATTENTION: too short."))
     out.append("250.52(B): metal underground gas piping is never a grounding electrode.")
     return out
 
@@ -184,12 +191,13 @@ def _en60728(site, plan, facts: LayoutFacts) -> list[str]:
            f"{facts.layout_name}, from memory: check the edition and your national annex. {DISCLAIMER}"]
     d16 = 2 * (EN_EARTHING_AREA_M2 / 3.141592653589793) ** 0.5
     lead = next((w for w in site.wires if w.role == "earth lead"), None)
-    size = "" if lead is None else (f" The site's earth lead is {lead.size.described_as}: "
+    size = "" if lead is None else (" The site's earth lead is " + lead.size.described_as + ": "
                                     + ("pass (size only)." if lead.size.radius_m * 2 >= d16 * 0.995 else
                                        "ATTENTION: thinner than that."))
-    out.append(f"Earthing conductor: an outdoor aerial and its supports are earthed through a conductor of at least "
-               f"16 mm² copper (about {d16 * 1e3:.1f} mm solid), run straight and vertical where possible, unless the "
-               f"aerial lies in the zone the standard exempts (well below the roof edge and close to the wall).{size}")
+    out.append("Earthing conductor: an outdoor aerial and its supports are earthed through a conductor of at least "
+               "16 mm² copper (about " + metres(d16, ".1f", "mm") + " solid), run straight and vertical where "
+               "possible, unless the aerial lies in the zone the standard exempts (well below the roof edge and close "
+               "to the wall)." + size)
     out.append("Equipotential bonding: the lead-in's earth side is bonded at the building's main earthing terminal "
                "with at least 4 mm² copper (through a licensed electrician).")
     power = plan.power_lines if plan is not None else []

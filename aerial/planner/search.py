@@ -35,6 +35,7 @@ import numpy as np
 import shapely
 
 from aerial.core.errors import AerialError, ResourceLimit, naming_the_file
+from aerial.core.lengthtext import join_text, metres, words
 from aerial.core.units import length_text
 from aerial.core.materials import CONDUCTORS
 from aerial.models import capacitance as cap
@@ -854,8 +855,9 @@ def _result(site, plan, ctx, objective, total, tally, layouts, warnings) -> dict
             "fall_zone": "every wire, support and the lead-in at least max(1.5 × tallest point of the aerial or its "
                          "supports, the line's height) from any power line in plan, and no wire crossing one "
                          "(US Consumer Product Safety Commission safety alerts, from memory; aerial's own floor)",
-            "buildings": f"lead-in or sloping wire over a building: excluded; span over a roof with its lower end less "
-                         f"than {ROOF_CLEARANCE_M:g} m above the roof: excluded; higher: kept, -{PENALTY_OVER_ROOF_DB:g} dB",
+            "buildings": ("lead-in or sloping wire over a building: excluded; span over a roof with its lower end less "
+                          "than " + metres(ROOF_CLEARANCE_M, "g")
+                          + f" above the roof: excluded; higher: kept, -{PENALTY_OVER_ROOF_DB:g} dB"),
             "obstacles": "any wire crossing an obstacle or a telephone/cable line in plan: excluded",
             "lot": f"any wire outside the lot: kept, flagged, -{PENALTY_OUTSIDE_LOT_DB:g} dB",
         },
@@ -1087,7 +1089,8 @@ def _refine(site, ctx: _Context, win: dict, objective: dict, allow_large: bool =
         "convergence": float(res.convergence),
         "solver_warnings": [str(w) for w in res.warnings],
         "note": (f"the top-ranked layout solved with the full-wave wire solver ({res.model}); effective height "
-                 + ", ".join(f"{a:.2f} m (closed form {b:.2f} m)" for a, b in zip(he, closed))
+                 + join_text(", ", [words("{a} (closed form {b})", a=metres(a, ".2f"), b=metres(b, ".2f"))
+                                    for a, b in zip(he, closed)])
                  + ("" if res.converged else "; NOT converged within the solver's tolerance")),
     }
 
@@ -1115,7 +1118,8 @@ def _refine_beside_the_building(planned, geo, freqs, earth, closed, allow_large:
         "solver_warnings": [str(w) for w in out["warnings"]],
         "note": (f"the top-ranked layout solved with the full-wave wire solver and the building as a grounded wire "
                  f"grid ({out['model']}); effective height (the middle of the worst and best bearing) "
-                 + ", ".join(f"{a:.2f} m (closed form {b:.2f} m)" for a, b in zip(he, closed))
+                 + join_text(", ", [words("{a} (closed form {b})", a=metres(a, ".2f"), b=metres(b, ".2f"))
+                                    for a, b in zip(he, closed)])
                  + ("" if converged else "; NOT converged within the solver's tolerance")),
     }
 
@@ -1145,14 +1149,15 @@ def apartment_notes(site, plan, frequency) -> list[str]:
     elif b.conductive:
         what = "unknown, so it is treated as" if b.structure == "unknown" else f"{b.structure}:"
         out.append(f"Structure {what} a grounded conductor close to the wire. Assumption used: heights are reckoned "
-                   f"from the balcony's floor slab ({b.floor_height_m:.1f} m above the street), not from the street, "
-                   "so a rail wire 1 m above the slab is modelled about 1 m high. This is an assumption; the real "
-                   "figure depends on the reinforcement and the wire's distance from the façade and may be far "
-                   "lower than a free wire at the same height.")
+                   "from the balcony's floor slab (" + metres(b.floor_height_m, ".1f")
+                   + " above the street), not from the street, so a rail wire 1 m above the slab is modelled about "
+                   "1 m high. This is an assumption; the real figure depends on the reinforcement and the wire's "
+                   "distance from the façade and may be far lower than a free wire at the same height.")
     else:
         out.append(f"Structure {b.structure}: not treated as a conductor; heights are taken above the street "
-                   f"(balcony floor {b.floor_height_m:.1f} m up). Wiring, pipes and metal lintels in the walls still "
-                   "shield the wire: treat the figures as optimistic.")
+                   "(balcony floor " + metres(b.floor_height_m, ".1f")
+                   + " up). Wiring, pipes and metal lintels in the walls still shield the wire: treat the figures "
+                   "as optimistic.")
     out.append("Earth options: a metal cold-water pipe, only if no plastic section (repair, meter, filter, riser) "
                "interrupts it on the way to the ground; the building's protective earth, only at its earthing terminal "
                "and only through a licensed electrician; a counterpoise wire along the balcony if neither is possible. "

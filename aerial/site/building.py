@@ -17,6 +17,7 @@ from typing import NamedTuple
 
 import numpy as np
 
+from aerial.core.lengthtext import metres, words
 from aerial.site.plan import ENTRY_FIXING_KEY, STRUCTURES, Plan, parse_plan
 from aerial.site.tables import TableReader, choice_words
 
@@ -234,9 +235,11 @@ def _from_supports(site, plan: Plan) -> SiteBuilding | None:
     made = ("its construction unknown (anything from timber, which hardly screens, to a steel frame, which screens "
             "almost completely)" if structure == "unknown" else f"its construction {structure} (from [plan.balcony])")
     said = (f"No [building] is described, so one is assumed from the {' and '.join(kinds)} support"
-            f"{'s' if len(found) > 1 else ''}: a facade {float(np.min(reach)) - face:.1f} m behind the nearest "
-            f"wire, {height:.0f} m tall ({tall}), {hi - lo:.0f} m wide and {INFERRED_DEPTH_M:.0f} m deep, {made}. "
-            "Describe it in [building] for a firmer figure.")
+            f"{'s' if len(found) > 1 else ''}: "
+            + words("a facade {behind} behind the nearest wire, {height} tall ({tall}), {wide} wide and {deep} deep, "
+                    "{made}. ", behind=metres(float(np.min(reach)) - face, ".1f"), height=metres(height, ".0f"),
+                    tall=tall, wide=metres(hi - lo, ".0f"), deep=metres(INFERRED_DEPTH_M, ".0f"), made=made)
+            + "Describe it in [building] for a firmer figure.")
     return SiteBuilding(_corners(outline), float(height), structure, floor, None, "supports", (said,))
 
 

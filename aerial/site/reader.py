@@ -25,6 +25,7 @@ import numpy as np
 
 from aerial.core import units
 from aerial.core.errors import SiteError
+from aerial.core.lengthtext import metres
 from aerial.core.materials import CONDUCTOR_ALIASES, CONDUCTORS, SOIL_WORDS, SOILS, Soil, soil_category
 from aerial.models.coil import CoilWinding
 from aerial.site.building import SiteBuilding, parse_building
@@ -645,7 +646,7 @@ def wire_size(r: TableReader, t: dict, key: str, default: WireSize | None) -> Wi
         desc = f"{m.group(1)} {system}"
     elif what == "diameter":
         d = r.length(t, key, "diameter", positive=True)
-        desc = f"{d * 1e3:g} mm diameter"
+        desc = metres(d, "g", "mm") + " diameter"
     else:
         area = r.quantity(t, key, "cross_section", units.AREA_UNITS, "a cross-section", "mm2")
         d = 2.0 * math.sqrt(area / math.pi)

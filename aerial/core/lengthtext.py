@@ -1,0 +1,270 @@
+"""Free text that keeps the exact lengths written into it.
+
+A warning or a note says "total wire length 29.9 m ...": the figure was rounded when the sentence was
+written. Shown in feet, that rounded figure would become 98.1 ft while the table beside it, written from
+the exact 29.93 m, says 98.2 ft. A :class:`LengthText` is a ``str`` (its value is the metric sentence, so
+JSON and every reader of the result see plain text) that also carries each length it contains as an exact
+value in metres; :func:`text_in` writes the sentence again in feet, inches and miles from those values,
+in the one length format of the tables (:func:`aerial.core.units.length_text`).
+
+Lengths are put into a sentence with :func:`metres` (one length), :func:`metres_range` (a range such as
+"2.1-3.4 m"), :func:`words` (a template with named fields) and ``+`` / :func:`join_text`, all of which keep
+the values. Any other string operation gives a plain ``str``, which :func:`text_in` still converts by reading
+its metric lengths back from the digits (the rounded figures: the fallback, not the rule).
+
+Examples
+--------
+>>> w = "total wire length " + metres(29.93, ".1f") + " is long"
+>>> w, text_in(w, "us")
+('total wire length 29.9 m is long', 'total wire length 98.2 ft is long')
+>>> text_in("total wire length 29.9 m is long", "us")  # a plain string: from the rounded digits
+'total wire length 98.1 ft is long'
+"""
+
+from __future__ import annotations
+
+import math
+import re
+import string
+from dataclasses import dataclass
+
+from aerial.core.units import MILE_M, length_text, significant_text
+
+#: How a metric unit written in text is reached from metres: (multiply, divide), so that a producer's own
+#: ``x * 1e3`` (mm) or ``x / 1e3`` (km) is repeated to the last digit.
+SCALES: dict[str, tuple[float, float]] = {"m": (1.0, 1.0), "mm": (1e3, 1.0), "cm": (1e2, 1.0), "km": (1.0, 1e3)}
+
+#: The unit systems text can be written in: metres, or feet, inches and miles.
+SYSTEMS = ("si", "us")
+
+
+@dataclass(frozen=True)
+class Length:
+    """One length in a sentence: its exact value and how the metric sentence writes it.
+
+    Attributes
+    ----------
+    metres : float
+        The exact length (the upper end of a range). [m]
+    spec : str
+        The format of the metric number (``".1f"``, ``".3g"``, ...).
+    unit : str
+        The metric unit written: "m", "mm", "cm" or "km".
+    low_m : float or None
+        The lower end of a range, or None for a single length. [m]
+    dash : str
+        What the metric sentence writes between the ends of a range.
+    """
+
+    metres: float
+    spec: str = ".3g"
+    unit: str = "m"
+    low_m: float | None = None
+    dash: str = "-"
+
+    def number(self, value: float) -> str:
+        times, over = SCALES[self.unit]
+        return format(value * times / over if over == 1.0 else value / over, self.spec)
+
+    def si(self) -> str:
+        """The metric text, exactly as the sentence was always written."""
+        high = f"{self.number(self.metres)} {self.unit}"
+        return high if self.low_m is None else f"{self.number(self.low_m)}{self.dash}{high}"
+
+    def us(self) -> str:
+        """The text in feet (inches below a foot) or, for a length written in km, miles."""
+        def one(value: float) -> str:
+            if self.unit == "km":
+                return f"{significant_text(float(value) / MILE_M)} mi"
+            return length_text(float(value), 3, "us")
+
+        high = one(self.metres)
+        if self.low_m is None:
+            return high
+        low = one(self.low_m)
+        low_number, low_unit = low.rsplit(" ", 1)
+        return f"{low_number if low_unit == high.rsplit(' ', 1)[1] else low}–{high}"
+
+
+class LengthText(str):
+    """A sentence (a ``str`` in metric units) that keeps its lengths as exact values.
+
+    ``parts`` holds the sentence in order: plain strings and :class:`Length` items. ``+`` with a string
+    or another LengthText keeps the values; other ``str`` methods return a plain ``str``.
+
+    Examples
+    --------
+    >>> t = metres(0.6, ".1f") + " above " + metres(12.04, ".1f")
+    >>> t, type(t).__name__, t.text_in("us")
+    ('0.6 m above 12.0 m', 'LengthText', '1.97 ft above 39.5 ft')
+    """
+
+    parts: tuple
+
+    def __new__(cls, text: str = "", parts: tuple | None = None):
+        if parts is None:
+            parts = (str(text),) if text else ()
+        else:
+            text = "".join(p if isinstance(p, str) else p.si() for p in parts)
+        self = super().__new__(cls, text)
+        self.parts = tuple(parts)
+        return self
+
+    @classmethod
+    def of(cls, *pieces) -> LengthText:
+        """Pieces (strings, Length items, LengthTexts) one after the other."""
+        parts: list = []
+        for piece in pieces:
+            if isinstance(piece, LengthText):
+                parts.extend(piece.parts)
+            elif isinstance(piece, (str, Length)):
+                parts.append(str(piece) if isinstance(piece, str) else piece)
+            else:
+                raise TypeError(f"a LengthText is made of strings and lengths, not {type(piece).__name__}")
+        return cls(parts=tuple(parts))
+
+    def __add__(self, other):
+        if not isinstance(other, str):
+            return NotImplemented
+        return LengthText.of(self, other)
+
+    def __radd__(self, other):
+        if not isinstance(other, str):
+            return NotImplemented
+        return LengthText.of(other, self)
+
+    def __reduce__(self):  # pickled and copied with its lengths
+        return (LengthText, (str(self), self.parts))
+
+    def text_in(self, system: str) -> str:
+        """The sentence in ``system``: "si" as it stands, "us" with every length in feet, inches or miles."""
+        if system not in SYSTEMS:
+            raise ValueError(f"'{system}' is not a valid unit system, must be one of 'si', 'us'")
+        if system == "si":
+            return str(self)
+        return "".join(convert_digits(p) if isinstance(p, str) else p.us() for p in self.parts)
+
+
+def metres(value: float, spec: str = ".3g", unit: str = "m") -> LengthText:
+    """A length as a sentence writes it, ``f"{value:{spec}} {unit}"``, keeping the exact value.
+
+    Parameters
+    ----------
+    value : float
+        The length. [m]
+    spec : str
+        The format of the metric number.
+    unit : str
+        The metric unit written: "m", "mm", "cm" or "km" (``value`` stays in metres).
+
+    Examples
+    --------
+    >>> metres(29.93, ".1f"), metres(0.0016, ".2g", "mm"), metres(95e3, ".0f", "km")
+    ('29.9 m', '1.6 mm', '95 km')
+    >>> metres(95e3, ".0f", "km").text_in("us"), metres(0.0016, ".2g", "mm").text_in("us")
+    ('59 mi', '0.063 in')
+    """
+    if unit not in SCALES:
+        raise ValueError(f"'{unit}' is not a metric length unit, must be one of {', '.join(SCALES)}")
+    return LengthText(parts=(Length(float(value), spec, unit),))
+
+
+def metres_range(low: float, high: float, spec: str = ".3g", unit: str = "m", dash: str = "-") -> LengthText:
+    """A range of lengths, ``f"{low:{spec}}{dash}{high:{spec}} {unit}"``, keeping both exact values.
+
+    >>> r = metres_range(3.05, 4.572, ".1f")
+    >>> r, r.text_in("us")
+    ('3.0-4.6 m', '10–15 ft')
+    """
+    if unit not in SCALES:
+        raise ValueError(f"'{unit}' is not a metric length unit, must be one of {', '.join(SCALES)}")
+    return LengthText(parts=(Length(float(high), spec, unit, float(low), dash),))
+
+
+def join_text(separator: str, items) -> LengthText:
+    """``separator.join(items)`` keeping the lengths of every item.
+
+    >>> join_text(", ", [metres(1.0), "and " + metres(2.0)]).text_in("us")
+    '3.28 ft, and 6.56 ft'
+    """
+    pieces: list = []
+    for i, item in enumerate(items):
+        if i:
+            pieces.append(separator)
+        pieces.append(item)
+    return LengthText.of(*pieces)
+
+
+_FORMATTER = string.Formatter()
+
+
+def words(template: str, /, **fields) -> LengthText:
+    """``template.format(**fields)`` where a field holding a :class:`LengthText` keeps its lengths.
+
+    Other fields are formatted with their format spec as ``str.format`` would.
+
+    >>> w = words("{part} is {d} in plan, {n:.0f} wires", part="the mast", d=metres(3.04, ".1f"), n=2.0)
+    >>> w, w.text_in("us")
+    ('the mast is 3.0 m in plan, 2 wires', 'the mast is 9.97 ft in plan, 2 wires')
+    """
+    pieces: list = []
+    for literal, name, spec, conversion in _FORMATTER.parse(template):
+        if literal:
+            pieces.append(literal)
+        if name is None:
+            continue
+        value, _ = _FORMATTER.get_field(name, (), fields)
+        if isinstance(value, LengthText) and not spec and not conversion:
+            pieces.append(value)
+        else:
+            pieces.append(_FORMATTER.format_field(_FORMATTER.convert_field(value, conversion), spec or ""))
+    return LengthText.of(*pieces)
+
+
+#: A number (thousands may be grouped by a space, "12 000") followed by a metric length unit in
+#: free text (not m·pF, mV/m, mm2 ...); a range "50–12 000 km" is taken whole.
+NUMBER = r"\d{1,3}(?:[ \u00a0\u2009\u202f]\d{3})+(?:\.\d+)?|\d+(?:\.\d+)?"
+METRIC_LENGTH = re.compile(rf"(?<![\w.])(?<!\d[ \u00a0\u2009\u202f])(?:({NUMBER})\s?[–-]\s?)?({NUMBER})\s?(km|cm|mm|m)"
+                           r"(?![\w·/²^])")
+
+
+def convert_digits(words_: str) -> str:
+    """Every metric length written in plain text, read back from its digits and written in feet or miles.
+
+    >>> convert_digits("raise the wire 3 m; add 10 m; 2 mm2 wire at 1 m·pF and 5 mV/m")
+    'raise the wire 9.84 ft; add 32.8 ft; 2 mm2 wire at 1 m·pF and 5 mV/m'
+    >>> convert_digits("paths of 50–12 000 km; a 2-4 m pole")
+    'paths of 31.1–7456 mi; a 6.56–13.1 ft pole'
+    """
+    scale = {"km": 1e3, "m": 1.0, "cm": 1e-2, "mm": 1e-3}
+
+    def number(group):
+        return float(re.sub(r"\s", "", group))
+
+    def convert(match):
+        low, value, unit = match.groups()
+        size = number(value) * scale[unit]
+        if not math.isfinite(size):
+            return match.group(0)
+        if low is None:
+            return Length(size, unit=unit).us()
+        return Length(size, unit=unit, low_m=number(low) * scale[unit]).us()
+
+    return METRIC_LENGTH.sub(convert, words_)
+
+
+def text_in(words_, system: str) -> str:
+    """Free text in a unit system: under "si" as written, under "us" with its lengths in feet, inches, miles.
+
+    A :class:`LengthText` is written from its exact lengths; any other text has its metric lengths read
+    back from the digits (:func:`convert_digits`).
+
+    >>> text_in(metres(29.93, ".1f"), "us"), text_in("29.9 m", "us"), text_in(metres(29.93, ".1f"), "si")
+    ('98.2 ft', '98.1 ft', '29.9 m')
+    """
+    if system not in SYSTEMS:
+        raise ValueError(f"'{system}' is not a valid unit system, must be one of 'si', 'us'")
+    if isinstance(words_, LengthText):
+        return words_.text_in(system)
+    text = str(words_)
+    return text if system == "si" else convert_digits(text)
