@@ -170,7 +170,7 @@ def _output_options(progress: bool) -> argparse.ArgumentParser:
                         "COLUMNS if set, else wide enough for every table up to 200 characters, long texts wrapping); "
                         "tables that do not fit are listed row by row, never cut")
     o.add_argument("--units", choices=UNIT_SYSTEMS, default="si",
-                   help="lengths in the report and the drawings: si (metres) or us (feet and inches, station "
+                   help="lengths in the report, the shared page and the drawings: si (metres) or us (feet and inches, station "
                         "distances in miles; the report's what-if steps in round feet); --json stays SI")
     if progress:
         o.add_argument("--quiet", action="store_true",

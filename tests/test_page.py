@@ -309,3 +309,76 @@ def test_layout_page_when_every_candidate_is_refused(capsys, write_site, tmp_pat
     assert 'id="plan-view"' in page and 'id="side-elevation"' not in page
     assert "line &lt;x&gt;" in page and "<x>" not in page
     assert f">{data['candidates_refused_safety']}<" in page
+
+
+#: The minimal vertical with one station 40 km away, on a coarse sweep (invented input).
+WITH_STATION = MINIMAL.replace('name = "test vertical"', 'name = "test vertical"\nfrequency_step = "100 kHz"') + """
+[[stations]]
+name = "Demo Talk"
+frequency = "1 MHz"
+power = "10 kW"
+distance = "40 km"
+"""
+
+
+def _page_text(page: str) -> str:
+    """The words a reader sees on the page outside its drawings: tags, style and SVG removed, entities read."""
+    import html
+
+    page = re.sub(r"<svg\b.*?</svg>|<style>.*?</style>", " ", page, flags=re.S)
+    return html.unescape(re.sub(r"<[^>]+>", " ", page)).replace("\u00a0", " ")
+
+
+def test_report_page_writes_every_length_as_the_terminal_does_under_us_units(capsys, write_site, tmp_path):
+    """Under --units us the page's tables and text give the terminal's own figures, in feet and miles.
+
+    Consistency check between the outputs of one site: the wire, its height, the effective height at
+    the band's centre and the station's distance read the same on the page as in the terminal report
+    (40 km = 24.9 mi, 1 mi = 1609.344 m exactly, NIST SP 811), and nothing on the page is left in metres.
+    """
+    from aerial.outputs.terminal import Lengths, centre_index
+
+    site = write_site(WITH_STATION)
+    code, out, err = run(capsys, "report", site, "--json")
+    assert code == 0, err
+    data = json.loads(out)
+    target = tmp_path / "report.html"
+    code, out, err = run(capsys, "report", site, "--units", "us", "--page", target, "--width", "1000")
+    assert code == 0, err
+    out = out.replace("\u00a0", " ")
+    page = _page_text(target.read_text(encoding="utf-8"))
+    # the terminal's summary line, figure for figure, in the page's sentence
+    total, highest, mean = re.search(r"aerial \+ lead-in (\S+ \S+) · highest (\S+ \S+) · mean height (\S+ \S+)",
+                                     out).groups()
+    assert f"{total} of wire with its lead-in, highest point {highest}, mean height {mean}" in page
+    L = Lengths("us")
+    i = centre_index(data)
+    figures = [L(data["geometry"]["total_length_m"]), L(data["aerial"]["effective_height_m"][i]),
+               L.distance(data["stations"][0]["distance_m"])]
+    assert figures[-1] == "24.9 mi"
+    for figure in figures:
+        assert figure in out and figure in page, figure
+    metric = Lengths.PATTERN.findall(page)
+    assert not metric, metric
+
+
+def test_layout_page_writes_every_length_as_the_terminal_does_under_us_units(capsys, tmp_path):
+    """The layout page under --units us: each layout's wire and effective height, its reason line and the
+    nearest miss read as in the terminal's listing (consistency check), and nothing is left in metres."""
+    target = tmp_path / "plan.html"
+    code, out, err = run(capsys, "layout", SUBURBAN, "--units", "us", "--page", target, "--quiet", "--width", "1000")
+    assert code == 0, err
+    out = out.replace("\u00a0", " ")
+    page = _page_text(target.read_text(encoding="utf-8"))
+    rows = re.findall(r"│ (\d) │ .*? │ +(\S+ ft) │ +(\S+ ft) │", out)
+    assert len(rows) >= 2
+    for rank, wire, height in rows:
+        assert re.search(rf"#{rank} .*? {re.escape(wire)} .*? {re.escape(height)} ", page), (rank, wire, height)
+    reasons = re.findall(r"^ +\d\. +(h_e .*?) *$", out, flags=re.M)
+    assert reasons and all(reason in page for reason in reasons)
+    miss = re.search(r"nearest miss: (.*)", out).group(1).strip()
+    assert "ft short of the" in miss and miss in page
+    from aerial.outputs.terminal import Lengths
+
+    metric = Lengths.PATTERN.findall(page)
+    assert not metric, metric

@@ -21,7 +21,7 @@ from importlib import resources
 from pathlib import Path
 
 from aerial.core.version import __version__
-from aerial.outputs.terminal import NO_SPREAD, eng, quantities_kept_html
+from aerial.outputs.terminal import NO_SPREAD, Lengths, eng, quantities_kept_html
 
 #: Content-Security-Policy of the page: nothing may be fetched and no script may run.
 CSP = "default-src 'none'; style-src 'unsafe-inline'; img-src data:; base-uri 'none'; form-action 'none'"
@@ -67,29 +67,39 @@ def key_label(key: str) -> str:
     return key.replace("_", " ")
 
 
-def format_value(key: str, value) -> str:
+def format_value(key: str, value, L: Lengths | None = None) -> str:
     """Plain text of one JSON value, its unit taken from the key's suffix.
+
+    ``L`` (:class:`aerial.outputs.terminal.Lengths`) writes the lengths, station distances and the
+    lengths inside free text in its unit system, as the terminal report does; default metres.
 
     >>> format_value("bandwidth_hz", 8550.0), format_value("share_ratio", 0.25), format_value("x", None)
     ('8.55 kHz', '25 %', '—')
     >>> format_value("field_range_v_per_m", [1e-4, 1e-3]), format_value("frequencies_hz", [7e5, 1.4e6])
     ('100 µV/m – 1 mV/m', '700 kHz, 1.4 MHz')
+    >>> us = Lengths("us")
+    >>> format_value("effective_height_m", 6.72, us), format_value("distance_m", 95e3, us)
+    ('22 ft', '59 mi')
+    >>> format_value("change", "raise the wire 3.048 m", us)
+    'raise the wire 10 ft'
     """
     if value is None:
         return "—"
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, str):
-        return value
+        return value if L is None else L.text(value)
     if isinstance(value, dict):
-        return "; ".join(f"{key_label(k)}: {format_value(k, v)}" for k, v in value.items())
+        return "; ".join(f"{key_label(k)}: {format_value(k, v, L)}" for k, v in value.items())
     if isinstance(value, (list, tuple)):
         if len(value) == 2 and "range" in key \
                 and all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in value):
-            return f"{format_value(key, value[0])} – {format_value(key, value[1])}"
-        return ", ".join(format_value(key, v) for v in value) or "—"
+            return f"{format_value(key, value[0], L)} – {format_value(key, value[1], L)}"
+        return ", ".join(format_value(key, v, L) for v in value) or "—"
     unit = next((u for s, u in SUFFIX_UNITS if key.endswith(s)), None)
     v = float(value)
+    if unit == "m" and L is not None:
+        return L.distance(v) if key.endswith("distance_m") else L(v)
     if unit == "dB":
         return f"{v:+.1f} dB" if "change" in key else f"{v:.1f} dB"
     if unit == "%":
@@ -104,6 +114,18 @@ def range_text(pair, unit: str) -> str:
     if not pair or pair[0] is None or pair[1] is None:
         return ""
     lo, hi = eng(pair[0], unit), eng(pair[1], unit)
+    return NO_SPREAD if lo == hi else f"{lo} – {hi}"
+
+
+def length_range_text(pair, L: Lengths) -> str:
+    """ "low – high" of a (low, high) pair of lengths [m] in ``L``'s unit system, or an empty string.
+
+    >>> length_range_text([5.59, 7.77], Lengths("us")), length_range_text([5.59, 7.77], Lengths("si"))
+    ('18.3 ft – 25.5 ft', '5.59 m – 7.77 m')
+    """
+    if not pair or pair[0] is None or pair[1] is None:
+        return ""
+    lo, hi = L(pair[0]), L(pair[1])
     return NO_SPREAD if lo == hi else f"{lo} – {hi}"
 
 
@@ -127,23 +149,29 @@ def table(headers, rows, caption=None, cls="") -> str:
     return "".join(out)
 
 
-def dict_rows_table(rows: list, caption=None, skip=()) -> str:
-    """A table of a list of row dicts: one column per key (in first-seen order), units from the key names."""
+def dict_rows_table(rows: list, caption=None, skip=(), L: Lengths | None = None) -> str:
+    """A table of a list of row dicts: one column per key (in first-seen order), units from the key names
+    (lengths in ``L``'s unit system, as :func:`format_value` writes them)."""
     keys = []
     for r in rows:
         for k in r:
             if k not in keys and k not in skip:
                 keys.append(k)
-    headers = [key_label(k) + next((f" [{u}]" for s, u in SUFFIX_UNITS if k.endswith(s) and u != "%"), "")
+    def unit(u):
+        return L.unit if u == "m" and L is not None else u
+
+    headers = [key_label(k) + next((f" [{unit(u)}]" for s, u in SUFFIX_UNITS if k.endswith(s) and u != "%"), "")
                for k in keys]
-    return table(headers, [[format_value(k, r.get(k)) for k in keys] for r in rows], caption)
+    return table(headers, [[format_value(k, r.get(k), L) for k in keys] for r in rows], caption)
 
 
-def bullets(lines, cls="") -> str:
+def bullets(lines, cls="", L: Lengths | None = None) -> str:
+    """A list of lines; with ``L`` every length in them is written in its unit system (:meth:`Lengths.text`)."""
     if not lines:
         return ""
     klass = f' class="{esc(cls)}"' if cls else ""
-    return f"<ul{klass}>" + "".join(f"<li>{esc(x)}</li>" for x in lines) + "</ul>"
+    shown = (str(x) if L is None else L.text(x) for x in lines)
+    return f"<ul{klass}>" + "".join(f"<li>{esc(x)}</li>" for x in shown) + "</ul>"
 
 
 def figure(svg: str | None, caption: str, ident: str) -> str:
@@ -161,21 +189,22 @@ def section(ident: str, title: str, body: str, cls: str = "") -> str:
     return f'<section id="{esc(ident)}"{klass}><h2>{esc(title)}</h2>{body}</section>'
 
 
-def generic_block(key: str, value) -> str:
-    """Any JSON value as HTML: a list of row dicts as a table, strings as a list, a dict as a definition list."""
+def generic_block(key: str, value, L: Lengths | None = None) -> str:
+    """Any JSON value as HTML: a list of row dicts as a table, strings as a list, a dict as a definition list
+    (lengths in ``L``'s unit system, as :func:`format_value` writes them)."""
     if isinstance(value, list):
         if value and all(isinstance(v, dict) for v in value):
-            return dict_rows_table(value)
-        return bullets([format_value(key, v) for v in value])
+            return dict_rows_table(value, L=L)
+        return bullets([format_value(key, v, L) for v in value])
     if isinstance(value, dict):
         items = []
         for k, v in value.items():
             if isinstance(v, list) and v and all(isinstance(x, dict) for x in v):
-                items.append(f"<dt>{esc(key_label(k))}</dt><dd>{dict_rows_table(v)}</dd>")
+                items.append(f"<dt>{esc(key_label(k))}</dt><dd>{dict_rows_table(v, L=L)}</dd>")
             else:
-                items.append(f"<dt>{esc(key_label(k))}</dt><dd>{esc(format_value(k, v))}</dd>")
+                items.append(f"<dt>{esc(key_label(k))}</dt><dd>{esc(format_value(k, v, L))}</dd>")
         return "<dl class=\"facts\">" + "".join(items) + "</dl>" if items else ""
-    return f"<p>{esc(format_value(key, value))}</p>"
+    return f"<p>{esc(format_value(key, value, L))}</p>"
 
 
 # --------------------------------------------------------------------------- whole page

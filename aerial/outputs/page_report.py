@@ -8,12 +8,16 @@ from __future__ import annotations
 
 import numpy as np
 
-from aerial.core.units import length_text
 from aerial.outputs import charts, site_drawings
 from aerial.outputs.page import (VERDICT_CLASS, VERDICT_MARK, bullets, dict_rows_table, document, esc, figure,
-                                 format_value, generic_block, key_label, range_text, section, site_file_name, table)
-from aerial.outputs.terminal import (untunable_words, centre_index, design_power_words, design_separation_words, design_shown_rows,
-                                     detector_power_words, effective_length_words, eng, tuning_cell_text)
+                                 format_value, generic_block, key_label, length_range_text, range_text, section,
+                                 site_file_name, table)
+from aerial.outputs.terminal import (Lengths, untunable_words, centre_index, design_power_words, design_separation_words,
+                                     design_shown_rows, detector_power_words, effective_length_words, eng,
+                                     tuning_cell_text)
+
+#: Lengths in metres: the page's unit system when none is asked for.
+METRES = Lengths("si")
 
 #: Top-level keys of the result the report page shows in its own sections; any other key is shown generically.
 KNOWN_KEYS = {"aerial_version", "site", "geometry", "bands", "frequencies_hz", "aerial", "earth", "ranges", "what_if",
@@ -43,8 +47,9 @@ def _centre_index(result) -> int | None:
     return len(labels) // 2
 
 
-def headline(result) -> list[tuple[str, str, str]]:
-    """The headline figures: (what, value, low–high range) at the first band's centre, the earth and the verdicts."""
+def headline(result, L: Lengths = METRES) -> list[tuple[str, str, str]]:
+    """The headline figures: (what, value, low–high range) at the first band's centre, the earth and the verdicts
+    (lengths in ``L``'s unit system)."""
     a, ranges = result["aerial"], result.get("ranges") or {}
     out = []
     j = _centre_index(result)
@@ -55,8 +60,8 @@ def headline(result) -> list[tuple[str, str, str]]:
         field = eng(result["site"].get("field_strength_v_per_m"), "V/m")
         loss = a["conductor_loss_ohm"][i] + a["ground_loss_ohm"][i]
         out += [(f"capacitance presented {where}", eng(a["capacitance_f"][i], "F"), range_text(ranges["capacitance_f"][j], "F")),
-                (f"effective height {where}", eng(a["effective_height_m"][i], "m"),
-                 range_text(ranges["effective_height_m"][j], "m")),
+                (f"effective height {where}", L(a["effective_height_m"][i]),
+                 length_range_text(ranges["effective_height_m"][j], L)),
                 (f"loss resistance {where}", eng(loss, "Ω"), range_text(ranges["loss_resistance_ohm"][j], "Ω")),
                 (f"power available in {field} {where}", eng(a["available_power_w"][i], "W"),
                  range_text(ranges["available_power_w"][j], "W"))]
@@ -83,8 +88,8 @@ def headline(result) -> list[tuple[str, str, str]]:
     return out
 
 
-def site_sentence(result) -> str:
-    """The site in a sentence, from the resolved geometry and the site's settings."""
+def site_sentence(result, L: Lengths = METRES) -> str:
+    """The site in a sentence, from the resolved geometry and the site's settings (lengths in ``L``'s unit system)."""
     site, geo = result["site"], result["geometry"]
     shape = geo.get("shape")
     kind = shape.get("kind") if isinstance(shape, dict) else shape
@@ -93,12 +98,13 @@ def site_sentence(result) -> str:
     material = aerial_wires[0].get("material") if aerial_wires else None
     what = f"{'An' if (kind or 'x')[0] in 'aeiouAEIOU' else 'A'} {kind or 'wire'} aerial"
     if size:
-        what += f" of {size}{' ' + material if material else ''} wire"
-    parts = [f"{what}: {geo['total_length_m']:.1f} m of wire with its lead-in, highest point {geo['max_height_m']:.1f} m, "
-             f"mean height {geo['mean_height_m']:.1f} m"]
+        what += f" of {L.text(size)}{' ' + material if material else ''} wire"
+    parts = [f"{what}: {L(geo['total_length_m'])} of wire with its lead-in, highest point {L(geo['max_height_m'])}, "
+             f"mean height {L(geo['mean_height_m'])}"]
     earth = result.get("earth") or {}
     if earth.get("parts"):
-        parts.append("earthed through " + " and ".join(p.get("description", p.get("kind", "")) for p in earth["parts"]))
+        parts.append("earthed through " + " and ".join(L.text(p.get("description", p.get("kind", "")))
+                                                      for p in earth["parts"]))
     soil = site.get("soil")
     soil = soil.get("category") if isinstance(soil, dict) else soil
     setting = [f"{soil} soil" if soil else "", f"{site['noise_category']} man-made noise" if site.get("noise_category")
@@ -118,14 +124,14 @@ def site_sentence(result) -> str:
 
 
 def _summary(result, surroundings, units: str = "si") -> str:
-    site = result["site"]
+    site, L = result["site"], Lengths(units)
     facts = "".join(f'<div class="figure-card"><dt>{esc(what)}</dt><dd>'
                     f'<span class="value{" long" if len(value) > 24 else ""}">{esc(value)}</span>'
                     + (f'<span class="range">{esc(rng)}</span>' if rng else "") + "</dd></div>"
-                    for what, value, rng in headline(result))
+                    for what, value, rng in headline(result, L))
     scene = site_drawings.report_scene(result, surroundings)
     return (f'<header id="summary" class="sheet"><h1>{esc(site["name"])}</h1>'
-            f'<p class="sentence">{esc(site_sentence(result))}</p>'
+            f'<p class="sentence">{esc(site_sentence(result, L))}</p>'
             f'<p class="meta">Site file {esc(site_file_name(site))} · model: {esc(result["aerial"]["model"])} · '
             f'aerial {esc(result.get("aerial_version", ""))}</p>'
             f'<section id="headline"><h2>Headline figures</h2><p class="hint">Value, then the range it may take given '
@@ -139,17 +145,17 @@ def _summary(result, surroundings, units: str = "si") -> str:
             + "</header>")
 
 
-def _wires_table(geo) -> str:
+def _wires_table(geo, L: Lengths) -> str:
     rows = []
     for w in geo["wires"]:
         zs = [p[2] for p in w["points_m"]]
-        rows.append([w["name"], w["role"], length_text(w["length_m"]), w.get("size", ""), length_text(min(zs)),
-                     length_text(max(zs)), len(w["points_m"])])
+        rows.append([w["name"], w["role"], L(w["length_m"]), L.text(w.get("size", "")), L(min(zs)), L(max(zs)),
+                     len(w["points_m"])])
     return table(["wire", "role", "length", "size", "lowest", "highest", "points"], rows,
                  "Wires as aerial understood them")
 
 
-def _aerial_table(result) -> str:
+def _aerial_table(result, L: Lengths) -> str:
     a, ranges = result["aerial"], result.get("ranges") or {}
     freqs = result["frequencies_hz"]
     field = eng(result["site"].get("field_strength_v_per_m"), "V/m")
@@ -159,8 +165,9 @@ def _aerial_table(result) -> str:
         loss = a["conductor_loss_ohm"][i] + a["ground_loss_ohm"][i]
 
         def cell(value, key, unit):
-            rng = range_text(ranges.get(key, [None] * (j + 1))[j], unit)
-            return f"{eng(value, unit)}" + (f" ({rng})" if rng else "")
+            pair = ranges.get(key, [None] * (j + 1))[j]
+            rng = length_range_text(pair, L) if unit == "m" else range_text(pair, unit)
+            return (L(value) if unit == "m" else eng(value, unit)) + (f" ({rng})" if rng else "")
 
         rows.append([f"{eng(freqs[i], 'Hz', 4)} ({label})", cell(a["capacitance_f"][i], "capacitance_f", "F"),
                      cell(a["effective_height_m"][i], "effective_height_m", "m"),
@@ -173,7 +180,7 @@ def _aerial_table(result) -> str:
                  "The aerial at the band edges and centres — value (low – high from the stated tolerances)", "wide")
 
 
-def _aerial_section(result) -> str:
+def _aerial_section(result, L: Lengths) -> str:
     a = result["aerial"]
     extra = []
     conv = a.get("convergence")
@@ -183,7 +190,7 @@ def _aerial_section(result) -> str:
                      f"({'converged' if conv.get('converged') else 'NOT converged'})")
     for key, value in a.items():
         if isinstance(value, str) and key != "model":
-            extra.append(f"{key_label(key)}: {value}")
+            extra.append(f"{key_label(key)}: {L.text(value)}")
     budget = a.get("loss_budget")
     freqs = result.get("frequencies_hz")
     if budget and freqs is not None and len(freqs):
@@ -191,12 +198,12 @@ def _aerial_section(result) -> str:
         extra.append(f"loss budget at {eng(freqs[i], 'Hz', 4)}: wire {eng(a['conductor_loss_ohm'][i], 'Ω')}; soil under "
                      f"the aerial {eng(budget['soil_under_aerial_ohm'][i], 'Ω')} ({budget['soil_treatment']}); earth "
                      f"electrode {eng(budget['electrode_ohm'][i], 'Ω')} ({budget['electrode_treatment']})")
-    body = (_wires_table(result["geometry"]) + _aerial_table(result) + bullets(extra)
-            + bullets((result.get("ranges") or {}).get("notes", []), "notes"))
+    body = (_wires_table(result["geometry"], L) + _aerial_table(result, L) + bullets(extra)
+            + bullets((result.get("ranges") or {}).get("notes", []), "notes", L))
     return section("aerial", "The aerial", body, "sheet")
 
 
-def _earth_section(result) -> str:
+def _earth_section(result, L: Lengths) -> str:
     earth = result.get("earth") or {}
     if not earth:
         return ""
@@ -211,9 +218,9 @@ def _earth_section(result) -> str:
     def dc_text(p):  # the value alone: its DC range is in the JSON; the RF range is the one that matters here
         return eng(p.get("resistance_ohm"), "Ω")
 
-    rows = [[p.get("description", p.get("kind", "")), dc_text(p),
+    rows = [[L.text(p.get("description", p.get("kind", ""))), dc_text(p),
              z_text(p.get("impedance_at_centre_ohm")), r_range(p),
-             effective_length_words(p, lambda v: eng(v, "m")),
+             effective_length_words(p, L),
              p.get("method", "")]
             for p in earth.get("parts", [])]
     zt = earth.get("impedance_ohm")
@@ -226,22 +233,22 @@ def _earth_section(result) -> str:
     at = f"impedance at {eng(fc, 'Hz')}" if fc else "impedance"
     body = table(["part", "R (DC)", at, "R range", "effective length", "method"], rows)
     if earth.get("impedance_method"):
-        body += bullets([earth["impedance_method"]], "notes")
+        body += bullets([earth["impedance_method"]], "notes", L)
     others = {k: v for k, v in earth.items() if k not in ("parts", "resistance_ohm", "resistance_low_ohm",
                                                           "resistance_high_ohm", "impedance_ohm", "impedance_method",
                                                           "centre_frequency_hz", "resistance_range_at_centre_ohm")}
-    return section("earth", "Earth system", body + (generic_block("earth", others) if others else ""))
+    return section("earth", "Earth system", body + (generic_block("earth", others, L) if others else ""))
 
 
-def _what_if_section(result) -> str:
+def _what_if_section(result, L: Lengths) -> str:
     rows = result.get("what_if") or []
     if not rows:
         return ""
     f = rows[0].get("frequency_hz")
-    return section("what-if", f"What would help (at {eng(f, 'Hz', 4)})", dict_rows_table(rows, skip=("frequency_hz", "model")))
+    return section("what-if", f"What would help (at {eng(f, 'Hz', 4)})", dict_rows_table(rows, skip=("frequency_hz", "model"), L=L))
 
 
-def _tuning_table(tuning) -> str:
+def _tuning_table(tuning, L: Lengths) -> str:
     rows = tuning.get("rows") or []
     if not rows:
         return ""
@@ -255,7 +262,7 @@ def _tuning_table(tuning) -> str:
     html = table([c[0] for c in columns], out, "Tuning across the band (selected frequencies)", "wide")
     stuck = untunable_words(rows)
     if stuck is not None:
-        html += bullets([stuck])
+        html += bullets([stuck], L=L)
     return html
 
 
@@ -287,7 +294,7 @@ def _remedy_line(r) -> str:
             f"{r['wanted']} then gets {eng(r['wanted_power_w'], 'W')} at the detector{before} — {verdict}")
 
 
-def _station_design_block(result) -> str:
+def _station_design_block(result, L: Lengths) -> str:
     """The tuning designed for the listed stations: trade-off table, remedies, notes and its picture."""
     design = (result.get("tuning") or {}).get("station_design")
     if not design or not design.get("chosen") or not design.get("current"):
@@ -299,17 +306,17 @@ def _station_design_block(result) -> str:
     try:
         remedies = [_remedy_line(r) for r in design.get("remedies", [])]
     except (KeyError, TypeError):  # a remedy of a kind this page does not know: shown as plain facts
-        remedies = [format_value("remedy", r) for r in design.get("remedies", [])]
+        remedies = [format_value("remedy", r, L) for r in design.get("remedies", [])]
     body = (table(head, _design_rows(design), f"Others kept {design['margin_db']:g} dB down; best of each coupling",
                   "wide")
-            + bullets(summary + remedies, "advice") + bullets(design.get("notes", []), "notes")
+            + bullets(summary + remedies, "advice", L) + bullets(design.get("notes", []), "notes", L)
             + figure(charts.station_design_chart(result), "The weakest wanted station's power at the detector against "
                      "the rejection of the next channel, one mark per coupling and detector tap; the best with your "
                      "parts ringed, the suggestion with a standard capacitor a diamond, your parts as wired crossed", "station-tuning"))
     return section("station-design", "Tuning for your stations", body, "sheet")
 
 
-def _tuning_section(result) -> str:
+def _tuning_section(result, L: Lengths) -> str:
     tuning = result.get("tuning") or {}
     if not tuning:
         return ""
@@ -317,7 +324,8 @@ def _tuning_section(result) -> str:
     intro = (f"{tuning.get('arrangement', '')} coupling for {band.get('name', 'the band')}, coil "
              f"{eng(coil.get('inductance_h'), 'H')}")
     if coil.get("turns"):
-        intro += f" ({coil['turns']:.0f} turns)"
+        intro += f" ({coil['turns']:.0f} turns" + (f" over {L(coil['winding_length_m'])}"
+                                                   if coil.get("winding_length_m") else "") + ")"
     if coil.get("self_capacitance_f"):
         intro += (f", self-capacitance {eng(coil['self_capacitance_f'], 'F')} (Medhurst; part of the total C), "
                   f"self-resonance {eng(coil.get('self_resonance_hz'), 'Hz')}")
@@ -330,16 +338,16 @@ def _tuning_section(result) -> str:
     if cov.get("verdict"):
         klass = "good" if cov.get("covered") else "caution"
         mark = "✔" if cov.get("covered") else "⚠"
-        verdict = f'<p class="verdict {klass}"><strong>Band coverage:</strong> {mark} {esc(cov["verdict"])}</p>'
+        verdict = f'<p class="verdict {klass}"><strong>Band coverage:</strong> {mark} {esc(L.text(cov["verdict"]))}</p>'
     known = {"arrangement", "coil", "detector", "earphone_ohm", "rows", "coverage", "advice", "notes", "warnings",
              "band", "source", "range_curve",
              "station_design", "channel_spacings_hz"}  # the stations' tuning design has its own block
-    extra = "".join(f"<h3>{esc(key_label(k).capitalize())}</h3>{generic_block(k, v)}"
+    extra = "".join(f"<h3>{esc(key_label(k).capitalize())}</h3>{generic_block(k, v, L)}"
                     for k, v in tuning.items() if k not in known and v not in (None, [], {}, ""))
     body = (f"<p>{esc(intro)}; detector: {esc(tuning.get('detector', ''))}, earphone "
-            f"{esc(eng(tuning.get('earphone_ohm'), 'Ω'))}.</p>" + _tuning_table(tuning) + verdict
-            + bullets(tuning.get("advice", []), "advice") + bullets(tuning.get("notes", []), "notes")
-            + bullets(tuning.get("warnings", []) + (tuning.get("range_curve") or {}).get("warnings", []), "warn")
+            f"{esc(eng(tuning.get('earphone_ohm'), 'Ω'))}.</p>" + _tuning_table(tuning, L) + verdict
+            + bullets(tuning.get("advice", []), "advice", L) + bullets(tuning.get("notes", []), "notes", L)
+            + bullets(tuning.get("warnings", []) + (tuning.get("range_curve") or {}).get("warnings", []), "warn", L)
             + extra
             + figure(charts.tuning_chart(result), "Tuned frequency against the capacitor setting; the band shaded, each "
                      "listed station a dotted line (a dot where the capacitor reaches it)", "tuning-range"))
@@ -372,14 +380,14 @@ def _station_reasons(s) -> list[str]:
     return out
 
 
-def _stations_section(result) -> str:
+def _stations_section(result, L: Lengths) -> str:
     stations = result.get("stations") or []
     if not stations:
         return ""
     nights = any(s.get("night") for s in stations)
     rows = []
     for s in stations:
-        row = [s.get("name", ""), eng(s.get("frequency_hz"), "Hz"), eng(s.get("distance_m"), "m"),
+        row = [s.get("name", ""), eng(s.get("frequency_hz"), "Hz"), L.distance(s.get("distance_m")),
                eng(s.get("field_v_per_m"), "V/m"), detector_power_words(s),
                format_value("audio_power_w", s.get("audio_power_w")),
                "—" if s.get("signal_to_noise_db") is None else f"{s['signal_to_noise_db']:.0f} dB",
@@ -398,7 +406,7 @@ def _stations_section(result) -> str:
     shown = {s.get("verdict") for s in stations} | {(s.get("night") or {}).get("verdict") for s in stations}
     caption += ", ".join(f"{mark} {v}" for v, mark in VERDICT_MARK.items() if v in shown)
     body = (table(headers, rows, caption)
-            + bullets([line for s in stations for line in _station_reasons(s)], "reasons")
+            + bullets([line for s in stations for line in _station_reasons(s)], "reasons", L)
             + figure(charts.station_chart(result), "Power each station delivers to the detector, and the noise that "
                      "comes with it in the tuned bandwidth (the gap is the signal-to-noise ratio)"
                      + ("; hollow marks: by night" if nights else ""), "station-power"))
@@ -414,20 +422,20 @@ def _pictures_section(result) -> str:
     return section("frequency-pictures", "Across the band", body, "sheet")
 
 
-def _safety_section(result) -> str:
+def _safety_section(result, L: Lengths) -> str:
     body = ""
     if result.get("warnings"):
-        body += '<h3 id="warnings">Warnings</h3>' + bullets(result["warnings"], "warn")
-    body += ('<h3 id="cautions">Safety cautions</h3>' + bullets(result.get("cautions", []), "caution-list"))
+        body += '<h3 id="warnings">Warnings</h3>' + bullets(result["warnings"], "warn", L)
+    body += ('<h3 id="cautions">Safety cautions</h3>' + bullets(result.get("cautions", []), "caution-list", L))
     return section("safety", "Warnings and safety", body, "sheet")
 
 
-def _extras(result) -> str:
+def _extras(result, L: Lengths) -> str:
     out = ""
     for key, value in result.items():
         if key in KNOWN_KEYS or value in (None, [], {}, ""):
             continue
-        out += section(f"more-{key.replace('_', '-')}", key_label(key).capitalize(), generic_block(key, value))
+        out += section(f"more-{key.replace('_', '-')}", key_label(key).capitalize(), generic_block(key, value, L))
     return out
 
 
@@ -441,10 +449,14 @@ def report_page(result: dict, surroundings: dict | None = None, units: str = "si
     surroundings : dict, optional
         The site's plan surroundings (:func:`aerial.outputs.site_drawings.site_surroundings`) for the plan view.
     units : str
-        "si" (metres) or "us" (feet): the lengths of the plan view and the side elevation.
+        "si" (metres) or "us" (feet, inches, miles): every length and station distance on the page, in its
+        tables, its text and its drawings, written as the terminal report writes it
+        (:class:`aerial.outputs.terminal.Lengths`).
     """
-    body = _summary(result, surroundings, units) + _aerial_section(result) + _earth_section(result) + _what_if_section(result)
-    body += (_pictures_section(result) + _tuning_section(result) + _station_design_block(result)
-             + _stations_section(result) + _extras(result))
-    body += _safety_section(result)
+    L = Lengths(units)
+    body = (_summary(result, surroundings, units) + _aerial_section(result, L) + _earth_section(result, L)
+            + _what_if_section(result, L))
+    body += (_pictures_section(result) + _tuning_section(result, L) + _station_design_block(result, L)
+             + _stations_section(result, L) + _extras(result, L))
+    body += _safety_section(result, L)
     return document(f"{result['site']['name']} — aerial report", body, result["site"].get("file"))
