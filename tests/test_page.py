@@ -311,8 +311,26 @@ def test_layout_page_when_every_candidate_is_refused(capsys, write_site, tmp_pat
     assert f">{data['candidates_refused_safety']}<" in page
 
 
-#: The minimal vertical with one station 40 km away, on a coarse sweep (invented input).
-WITH_STATION = MINIMAL.replace('name = "test vertical"', 'name = "test vertical"\nfrequency_step = "100 kHz"') + """
+#: An invented sloping wire, 29.0 m along and 0.5 m to 7.91 m high (29.93 m of wire: its metric warning says
+#: "29.9 m", 98.1 ft if read back from those digits, 98.2 ft from the exact length as the tables write it;
+#: 1 ft = 0.3048 m exactly, NIST SP 811), with one station 40 km away, on a coarse sweep.
+WITH_STATION = """
+[site]
+name = "sloping wire to a tree"
+bands = ["mf"]
+frequency_step = "100 kHz"
+
+[[runs]]
+name = "sloper"
+points = [[0, 0, 0.5], [29.0, 0, 7.91]]
+
+[receiver]
+at = [0, 0]
+height = "0.5 m"
+
+[[earth.rods]]
+length = "2.4 m"
+
 [[stations]]
 name = "Demo Talk"
 frequency = "1 MHz"
@@ -334,7 +352,8 @@ def test_report_page_writes_every_length_as_the_terminal_does_under_us_units(cap
 
     Consistency check between the outputs of one site: the wire, its height, the effective height at
     the band's centre and the station's distance read the same on the page as in the terminal report
-    (40 km = 24.9 mi, 1 mi = 1609.344 m exactly, NIST SP 811), and nothing on the page is left in metres.
+    (40 km = 24.9 mi, 1 mi = 1609.344 m exactly, NIST SP 811), a warning's length is the tables' figure
+    (written from the exact length, not from its rounded metric digits), and nothing is left in metres.
     """
     from aerial.outputs.terminal import Lengths, centre_index
 
@@ -355,9 +374,11 @@ def test_report_page_writes_every_length_as_the_terminal_does_under_us_units(cap
     i = centre_index(data)
     figures = [L(data["geometry"]["total_length_m"]), L(data["aerial"]["effective_height_m"][i]),
                L.distance(data["stations"][0]["distance_m"])]
-    assert figures[-1] == "24.9 mi"
+    assert figures[0] == "98.2 ft" and figures[-1] == "24.9 mi"
     for figure in figures:
         assert figure in out and figure in page, figure
+    warning = "total wire length 98.2 ft is above 1/8 wavelength"
+    assert warning in out and warning in page and "98.1 ft" not in page
     metric = Lengths.PATTERN.findall(page)
     assert not metric, metric
 

@@ -360,21 +360,23 @@ def _verdict_cell(verdict, words=None) -> tuple[str, str]:
     return (f"{VERDICT_MARK.get(verdict, '')} {words or verdict or '—'}".strip(), f"verdict {klass}")
 
 
-def _station_reasons(s) -> list[str]:
+def _station_reasons(s, L: Lengths) -> list[str]:
+    """A station's reasons by day and by night, each sentence of the result written in ``L``'s unit system
+    from its own lengths (the station's name is left as it is)."""
     name = s.get("name", "")
-    text = s.get("reason", "")
+    text = L.text(s.get("reason", ""))
     for key, words in (("spills_over", "also comes through when tuned to"), ("heard_behind", "other stations heard behind it")):
         if s.get(key):
             text += ("; " if text else "") + words + ": " + ", ".join(
                 f"{x['name']} ({x['level_relative_db']:+.1f} dB against it)"
                 if isinstance(x, dict) and "name" in x and isinstance(x.get("level_relative_db"), (int, float))
                 else format_value(key, x) for x in s[key])
-    text += "".join(f"; {w}" for w in s.get("warnings", []))
+    text += "".join(f"; {L.text(w)}" for w in s.get("warnings", []))
     out = [f"{name}{' by day' if s.get('night') else ''}: {text}"] if text else []
     night = s.get("night") or {}
     if night.get("reason"):
         sky = night.get("sky_wave_field_v_per_m")
-        out.append(f"{name} by night: {night['reason']}" + (f" (sky wave {eng(sky, 'V/m')}" if sky else "")
+        out.append(f"{name} by night: {L.text(night['reason'])}" + (f" (sky wave {eng(sky, 'V/m')}" if sky else "")
                    + (", fading" if sky and night.get("fading") else "") + (")" if sky else "")
                    + (" (no sky wave: daylight at the path's midpoint)" if night.get("sky_wave_in_daylight") else ""))
     return out
@@ -406,7 +408,7 @@ def _stations_section(result, L: Lengths) -> str:
     shown = {s.get("verdict") for s in stations} | {(s.get("night") or {}).get("verdict") for s in stations}
     caption += ", ".join(f"{mark} {v}" for v, mark in VERDICT_MARK.items() if v in shown)
     body = (table(headers, rows, caption)
-            + bullets([line for s in stations for line in _station_reasons(s)], "reasons", L)
+            + bullets([line for s in stations for line in _station_reasons(s, L)], "reasons")
             + figure(charts.station_chart(result), "Power each station delivers to the detector, and the noise that "
                      "comes with it in the tuned bandwidth (the gap is the signal-to-noise ratio)"
                      + ("; hollow marks: by night" if nights else ""), "station-power"))
