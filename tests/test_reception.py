@@ -387,7 +387,11 @@ def test_consistency_check_the_coverage_searches_in_one_solve_match_value_by_val
         assert list(together) == [alone(float(L), cfg) for L in ls]
     first = next((k for k, cc in enumerate(ccs) if any(alone(float(L), rc._coil_config(
         parts, coil, arrangement="series capacitor", series_capacitance=float(cc))) for L in ls)), None)
-    assert rc._first_series_with_a_coil(band, aerial, coil, parts, q, ccs, ls) == first
+    index, covering = rc._first_series_with_a_coil(band, aerial, coil, parts, q, ccs, ls)
+    assert index == first
+    if first is not None:  # the coils that cover with it: what the coil range's grid asks again
+        cfg = rc._coil_config(parts, coil, arrangement="series capacitor", series_capacitance=float(ccs[first]))
+        assert list(covering) == list(rc._covers(*band, aerial, ls[:, None], q, cfg, 15e-12, 365e-12, coil.block))
     taps = np.linspace(0.05, 0.95, 10)
     cfg = rc._coil_config(parts, coil, arrangement="coil tap", tap_fraction=taps[:, None])
     together = rc._covers(*band, aerial, coil.inductance, q, cfg, 15e-12, 365e-12, coil.block)

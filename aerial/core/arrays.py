@@ -79,7 +79,7 @@ def bisection_midpoints(lo, hi, depth: int) -> np.ndarray:
     return out
 
 
-def bisect_ahead(good, bad, passes, halvings: int, depth: int):
+def bisect_ahead(good, bad, passes, halvings: int, depth: int, done=None):
     """Bisection in log scale of brackets [good, bad], several halvings per call of the test.
 
     Parameters
@@ -94,6 +94,10 @@ def bisect_ahead(good, bad, passes, halvings: int, depth: int):
         Halvings to take.
     depth : int
         Halvings looked ahead per call of ``passes``.
+    done : callable, optional
+        done(good, bad) -> bool (the brackets flattened): stop as soon as it holds, tried before
+        the first halving and after each one, so that no halving is taken past it (at most
+        ``halvings`` in any case).
 
     Returns
     -------
@@ -106,13 +110,17 @@ def bisect_ahead(good, bad, passes, halvings: int, depth: int):
     >>> g, b = bisect_ahead(1.0, 16.0, lambda x: x <= 3.0, 20, 4)
     >>> round(float(g), 4), bool(b > 3.0)
     (3.0, True)
+    >>> g, b = bisect_ahead(1.0, 16.0, lambda x: x <= 3.0, 200, 4, done=lambda g, b: bool(abs(b / g - 1) <= 0.01))
+    >>> bool(abs(b / g - 1) <= 0.01), round(float(g), 1)
+    (True, 3.0)
     """
     good, bad = np.broadcast_arrays(np.asarray(good, dtype=float), np.asarray(bad, dtype=float))
     shape = good.shape
     good, bad = good.ravel(), bad.ravel()
     column = np.arange(good.size)
     taken = 0
-    while taken < int(halvings):
+    finished = done is not None and done(good, bad)
+    while taken < int(halvings) and not finished:
         d = min(int(depth), int(halvings) - taken)
         mids = bisection_midpoints(good, bad, d)
         passed = np.asarray(passes(mids.reshape((-1,) + shape)), dtype=bool).reshape(mids.shape)
@@ -121,5 +129,8 @@ def bisect_ahead(good, bad, passes, halvings: int, depth: int):
             mid, ok = mids[node, column], passed[node, column]
             good, bad = np.where(ok, mid, good), np.where(ok, bad, mid)
             node = 2 * node + np.where(ok, 2, 1)  # node 2i + 2: the bracket from the midpoint to the bad end
-        taken += d
+            taken += 1
+            finished = done is not None and done(good, bad)
+            if finished:
+                break
     return good.reshape(shape), bad.reshape(shape)

@@ -603,14 +603,14 @@ def _reachable_ranges(f_lo, f_hi, setting, cmin, cmax, points=600, refine=30) ->
     return [(float(a), float(z)) for a, z in zip(lo, hi)]
 
 
-def _ok_range(ok, lo, hi, points=48, refine=20):
+def _ok_range(ok, lo, hi, points=48, refine=20, flags=None):
     """Range [a, b] (log grid, refined at the ends) where ``ok(x)`` holds; None if nowhere on the grid.
 
     ``ok`` takes a number, or the whole grid as a column (shape (points, 1)) and answers for
-    each value at once.
+    each value at once. ``flags``: ``ok`` on the grid, when the caller has it already.
     """
     xs = np.geomspace(lo, hi, points)
-    flags = np.asarray(ok(xs[:, np.newaxis]), dtype=bool).reshape(xs.shape)
+    flags = np.asarray(ok(xs[:, np.newaxis]) if flags is None else flags, dtype=bool).reshape(xs.shape)
     if not flags.any():
         return None
     idx = np.flatnonzero(flags)
@@ -837,13 +837,15 @@ def _advice(band, aerial, coil: _Coil, parts: TuningParts, c_edges) -> list:
         # no single change works: look for a series capacitor together with a new coil (the largest
         # capacitor, of 24 from 1 nF down, for which one of 32 coils covers the band)
         ccs = np.geomspace(1e-9, 5e-12, 24)
-        first = _first_series_with_a_coil((f_lo, f_hi), aerial, coil, parts, q, ccs, np.geomspace(1e-6, 1e-2, 32))
+        first, covering = _first_series_with_a_coil((f_lo, f_hi), aerial, coil, parts, q, ccs,
+                                                    np.geomspace(1e-6, 1e-2, 32))
         if first is not None:
             cc = ccs[first]
             cfg_cc = _coil_config(parts, coil, arrangement="series capacitor", series_capacitance=cc)
+            # the coils of that search are the range's grid: its answers for them are the grid's
             rng_l = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg_cc, cmin, cmax,
                                                  wound_like=coil), 1e-6, 1e-2,
-                              points=32, refine=20)
+                              points=32, refine=20, flags=covering)
             adv.append(f"use a series capacitor of about {_pf(cc)} together with a coil of "
                        f"{_uh(np.sqrt(rng_l[0] * rng_l[1]))}")
     ratio = (f_hi / f_lo) ** 2
@@ -855,7 +857,8 @@ def _advice(band, aerial, coil: _Coil, parts: TuningParts, c_edges) -> list:
 
 def _first_series_with_a_coil(band, aerial, coil, parts, q_fun, capacitances, inductances):
     """Index of the first series capacitor [F] with which a coil of one of ``inductances`` [H], wound like
-    ``coil``, covers the band with the site's capacitor; None when none does.
+    ``coil``, covers the band with the site's capacitor, and which of the coils do with it; (None, None)
+    when none does.
 
     Every pair is tried in one solve at the band's edges, and the pairs that pass there in one more
     over the rest of the band (each pair's settings are its own: what :func:`_covers` says pair by pair).
@@ -872,7 +875,7 @@ def _first_series_with_a_coil(band, aerial, coil, parts, q_fun, capacitances, in
         c = _needed(f[1:-1], aerial, np.asarray(inductances, dtype=float)[j][:, None], q_fun, cfg_in, coil.block)
         ok[i, j] = np.all((c >= cmin) & (c <= cmax), axis=-1)
     rows = np.flatnonzero(ok.any(axis=1))
-    return int(rows[0]) if rows.size else None
+    return (int(rows[0]), ok[rows[0]]) if rows.size else (None, None)
 
 
 def _designed_coil(band, aerial, parts) -> _Coil:
@@ -1141,16 +1144,21 @@ def _table_rows(table_f, arr, warnings, parts) -> list:
            if key in arr}
     rejections = [(key, np.asarray(values).tolist())
                   for key, values in list(arr["rejection"].items()) + list(arr["rejection_weak"].items())]
+    numeric = [np.asarray(table_f)] + [np.asarray(arr[key]) for key in _ROW_KEYS if key != "within_capacitor_range"] + \
+        [np.asarray(v) for v in list(arr["rejection"].values()) + list(arr["rejection_weak"].values())]
+    # every figure finite and within range (the usual case): the cells as they are, without a check each
+    plain = all(bool(np.all(np.abs(v) <= CLAMP)) for v in numeric)
+    num = (lambda value, name, said: float(value)) if plain else _num
     rows = []
     for i, fi in enumerate(np.asarray(table_f).tolist()):
-        row = {"frequency_hz": _num(fi, "frequency_hz", warnings)}
+        row = {"frequency_hz": num(fi, "frequency_hz", warnings)}
         for key in _ROW_KEYS:
             if key == "within_capacitor_range":
                 row[key] = bool(col["within"][i])
             else:
-                row[key] = _num(col[key][i], key, warnings)
+                row[key] = num(col[key][i], key, warnings)
         for key, values in rejections:
-            row[key] = _num(values[i], "rejection", warnings)
+            row[key] = num(values[i], "rejection", warnings)
         tunable, resonates, reason = _row_tunability(col["capacitor_setting_f"][i], col["total_capacitance_f"][i],
                                                      col["aerial_shunt_capacitance_f"][i], parts,
                                                      bool(col["aerial_inductive"][i]))
@@ -1600,8 +1608,7 @@ def _station_arrays(aerial, coil, parts, diode, stations, noise_category, modula
     v_oc = field * he
     lv = tn_mod.station_levels(fs, v_oc, _za(aerial), _net_parts(coil, parts), diode, load)
     v_det = lv.detector_voltage
-    det = det_mod.loaded_detector(np.sqrt(2.0) * v_det, diode.saturation_current_a, diode.ideality, load)
-    audio = det_mod.audio_output(np.sqrt(2.0) * v_det, diode, load, modulation_depth)
+    audio = det_mod.audio_output(np.sqrt(2.0) * v_det, diode, load, modulation_depth)  # the carrier's detection too
     fam = noise_mod.man_made_noise_figure(fs, noise_category)
     atm = np.array([-np.inf if s.atmospheric_noise_db is None else float(s.atmospheric_noise_db) for s in stations])
     fam_total, _ = atm_mod.combine_noise_figures(fam.noise_figure_db, atm)
@@ -1609,7 +1616,7 @@ def _station_arrays(aerial, coil, parts, diode, stations, noise_category, modula
     return {
         "fs": fs, "gw": gw, "he": he, "r_a": r_a, "rr": aerial.radiation_resistance(fs), "v_oc": v_oc,
         "c_need": lv.capacitance, "v_top": lv.top_voltage, "v_det": v_det,
-        "converged": lv.converged, "det": det, "audio": audio, "p_det": v_det**2 / lv.input_resistance,
+        "converged": lv.converged, "audio": audio, "p_det": v_det**2 / lv.input_resistance,
         "p_av": v_oc**2 / (4.0 * r_a), "ql": lv.loaded_q, "bw": lv.bandwidth, "fam": fam, "en": en,
         "snr": noise_mod.db_from_voltage_ratio(field / en), "field": field, "sky": sky, "fam_total": fam_total,
         "threshold": _threshold_voltage(1.0, diode, load), "others": lv.others,
@@ -1714,7 +1721,7 @@ def judge_stations(a: dict, parts: TuningParts, names) -> list:
 
 
 def _station_row(s, a, i, judged, warn) -> dict:
-    fs, gw, v_top, det, audio = a["fs"], a["gw"], a["v_top"], a["det"], a["audio"]
+    fs, gw, v_top, audio = a["fs"], a["gw"], a["v_top"], a["audio"]
     threshold, ql = a["threshold"], a["ql"]
     pa = float(audio.audio_power[i])
     r_ratio = threshold / a["v_det"][i] if np.isfinite(threshold) else np.inf
@@ -1741,8 +1748,8 @@ def _station_row(s, a, i, judged, warn) -> dict:
         **({} if judged["verdict"] != "out of the tuning range" else {
             "detector_power_note": "the capacitor cannot tune this station: the power is what the detector "
                                    "would get if it could"}),
-        "detector_input_resistance_ohm": _num(det.input_resistance[i], "detector_input_resistance_ohm", warn),
-        "detected_voltage_v": _num(det.detected_voltage[i], "detected_voltage_v", warn),
+        "detector_input_resistance_ohm": _num(audio.input_resistance[i], "detector_input_resistance_ohm", warn),
+        "detected_voltage_v": _num(audio.detected_voltage[i], "detected_voltage_v", warn),
         "audio_voltage_v": _num(audio.audio_voltage[i], "audio_voltage_v", warn),
         "audio_power_w": _num(pa, "audio_power_w", warn),
         "loaded_q": _num(ql[i], "loaded_q", warn),

@@ -16,7 +16,7 @@ from typing import Callable, NamedTuple
 
 import numpy as np
 
-from aerial.core.arrays import bisection_midpoints
+from aerial.core.arrays import bisect_ahead
 from aerial.models import detector as det_mod
 from aerial.models import network as net_mod
 
@@ -119,7 +119,7 @@ def tuned_figures(frequency, za: Callable, parts: net_mod.NetworkParts, detector
     levels = np.abs(net_mod.detector_response(every, za(every), parts, np.tile(c_pos, len(probes)),
                                               np.tile(g, len(probes))))
     tuned = levels[:n]
-    edges = net_mod.detector_bandwidth(f0, response) if bandwidth else _no_edges(f0)
+    edges = net_mod.detector_bandwidth(f0, response, tuned=tuned) if bandwidth else _no_edges(f0)
     rej = {}
     for k, d in enumerate(offsets):
         below, above = levels[(1 + 2 * k) * n:(2 + 2 * k) * n], levels[(2 + 2 * k) * n:(3 + 2 * k) * n]
@@ -208,28 +208,19 @@ def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL,
             return np.exp(np.interp(np.log(v), table[0], table[1]))
         return det_mod.loaded_detector(np.sqrt(2.0) * v, diode.saturation_current_a, diode.ideality, load).input_resistance
 
-    taken = 0
-    while taken < int(max_iter) and not np.all(hi / lo - 1.0 <= rtol):
-        depth = min(LEVEL_LOOKAHEAD, int(max_iter) - taken)
-        mids = bisection_midpoints(lo, hi, depth)
-        r_mid = r_of(mids)  # every midpoint the next halvings can reach, in one call of the detector model
-        node = np.zeros(np.shape(lo), dtype=int)
-        for _ in range(depth):
-            mid = np.take_along_axis(mids, node[np.newaxis], axis=0)[0]
-            up = mid * np.abs(1.0 + z / np.take_along_axis(r_mid, node[np.newaxis], axis=0)[0]) - v0 > 0
-            hi = np.where(up, mid, hi)
-            lo = np.where(up, lo, mid)
-            taken += 1
-            if np.all(hi / lo - 1.0 <= rtol):
-                break
-            node = 2 * node + np.where(up, 1, 2)
+    def below(v):  # v is not above the level: v·|1 + Z_s/R_in| has not passed the open voltage
+        return ~(v * np.abs(1.0 + z / r_of(v)) - v0 > 0)
+
+    # every midpoint the next few halvings can reach in one call of the detector model
+    lo, hi = bisect_ahead(lo, hi, below, int(max_iter), LEVEL_LOOKAHEAD,
+                          done=lambda g, b: bool(np.all(b / g - 1.0 <= rtol)))
     v = np.sqrt(lo * hi)
     return v, r_of(v), bool(np.all(hi / lo - 1.0 <= rtol))
 
 
-#: Halvings of the detector-level bisection looked ahead per call of the detector model: every midpoint
-#: the next few halvings can reach is worked out at once (2**LEVEL_LOOKAHEAD − 1 of them), then the
-#: halvings are taken one by one as before; the same midpoints, so the same answer, in fewer calls.
+#: Halvings of the detector-level bisection looked ahead per call of the detector model
+#: (:func:`aerial.core.arrays.bisect_ahead`: 2**LEVEL_LOOKAHEAD − 1 midpoints at once, then the halvings
+#: one by one on them; the same midpoints, so the same answer, in fewer calls).
 LEVEL_LOOKAHEAD = 4
 
 

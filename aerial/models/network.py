@@ -24,6 +24,10 @@ frequencies (and part values) at once as a batch of small complex systems:
   value for the signal level: nVT/Is for a weak signal, R_L/2 for a strong one, or the
   self-consistent value for a given station).
 
+The systems have a handful of unknowns (two to seven), which LAPACK never spreads over threads:
+they are solved without setting a BLAS thread limit around the call
+(:func:`aerial.core.threads.blas_threads` would cost more than the solve of a small stack).
+
 Results per volt of aerial EMF: the voltage at the tank top and at the detector, and the
 driving-point impedances at the top and at the detector with the aerial's EMF shorted. The
 tuning capacitance for resonance at f makes the admittance seen at the top, capacitor excluded,
@@ -48,7 +52,6 @@ import numpy as np
 
 from aerial.core.arrays import bisection_midpoints
 from aerial.core.errors import ModelInputError
-from aerial.core.threads import blas_threads
 
 ARRANGEMENTS = ("direct", "series capacitor", "coil tap", "separate primary")
 
@@ -266,8 +269,7 @@ def solve_network(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
     """
     a, rhs, (top, det, aer) = _nodal_system(frequency, aerial_impedance, parts, tuning_capacitance,
                                             detector_conductance, emf, ("emf", "top", "detector"))
-    with blas_threads(a.shape[-1]):
-        x = np.linalg.solve(a, rhs)
+    x = np.linalg.solve(a, rhs)
     return NetworkSolution(x[..., top, 0], x[..., det, 0], x[..., top, 1], x[..., det, 2], x[..., aer, 0],
                            x[..., det, 1], x[..., top, 2])
 
@@ -294,9 +296,7 @@ def detector_response(frequency, aerial_impedance, parts: NetworkParts, tuning_c
     """
     a, rhs, (_, det, _) = _nodal_system(frequency, aerial_impedance, parts, tuning_capacitance, detector_conductance,
                                         emf, ("emf",))
-    with blas_threads(a.shape[-1]):
-        x = np.linalg.solve(a, rhs)
-    return x[..., det, 0]
+    return np.linalg.solve(a, rhs)[..., det, 0]
 
 
 def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capacitance, detector_conductance, emf,
@@ -592,8 +592,7 @@ def _solve_group(group: StackGroup, shared, f, za, tuning_capacitance, detector_
                   column([p.series_capacitance for p in parts]) if p0.arrangement == "series capacitor" else None,
                   _per_network([p.coil_resistance for p in parts], f, shared), primary)
     a, rhs = _assemble(f.shape, f, za, emf, tuning_capacitance, detector_conductance, ("emf", "top", "detector"), lay)
-    with blas_threads(a.shape[-1]):
-        x = np.linalg.solve(a, rhs)
+    x = np.linalg.solve(a, rhs)
     top, det = k - 1, group.detector_node
     return (x[..., top, 0], x[_entry(x, det, 0)], x[..., top, 1], x[_entry(x, det, 2)], x[_entry(x, aer, 0)],
             x[_entry(x, det, 1)], x[..., top, 2])
@@ -689,8 +688,7 @@ def tuning_capacitance_for(frequency, aerial_impedance, parts: NetworkParts, det
     """
     # the driving-point impedance at the top alone: one right-hand side, the same figures as solve_network's
     a, rhs, (top, _, _) = _nodal_system(frequency, aerial_impedance, parts, 0.0, detector_conductance, 1.0, ("top",))
-    with blas_threads(a.shape[-1]):
-        z_top = np.linalg.solve(a, rhs)[..., top, 0]
+    z_top = np.linalg.solve(a, rhs)[..., top, 0]
     w = 2.0 * np.pi * np.asarray(frequency, dtype=float)
     return -np.imag(1.0 / z_top) / w
 
@@ -703,7 +701,7 @@ class TunedResponse(NamedTuple):
     wider_than_searched: np.ndarray  #: an edge lay beyond the search range (bandwidth is a floor) [bool]
 
 
-def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER) -> TunedResponse:
+def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER, tuned=None) -> TunedResponse:
     """−3 dB edges of a tuned response around its tuned frequency, by bisection in frequency.
 
     Parameters
@@ -718,6 +716,8 @@ def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER)
         Relative tolerance on each edge. [1]
     max_iter : int
         Bisection limit.
+    tuned : array_like, optional
+        |V_det| at ``centre``, when the caller has it already (``response(centre)`` otherwise). [V]
 
     Returns
     -------
@@ -742,7 +742,7 @@ def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER)
         raise ModelInputError(f"rtol must lie between 0 and 0.1, got {rtol!r}")
     f0 = np.asarray(centre, dtype=float)
     n = f0.size
-    ref = np.abs(response(f0)) / np.sqrt(2.0)
+    ref = np.abs(response(f0) if tuned is None else np.asarray(tuned, dtype=float)) / np.sqrt(2.0)
     # both edges searched together, one response call per halving; each edge stops halving once all
     # its own searches have converged, so every edge is exactly what a search of its own would give
     near = np.concatenate([f0.ravel(), f0.ravel()])
@@ -764,12 +764,14 @@ def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER)
         node = np.zeros(2 * n, dtype=int)
         for _ in range(depth):
             mid, inside = mids[node, column], reached[node, column]
-            for e in range(2):
-                if active[e]:
-                    part = slice(e * n, (e + 1) * n)
-                    near[part] = np.where(inside[part], mid[part], near[part])
-                    far[part] = np.where(inside[part], far[part], mid[part])
-                    active[e] = not np.all(np.abs(far[part] / near[part] - 1.0) <= rtol)
+            # the edges still searched (both, as a rule: they start alike and converge together), in one go
+            first, last = (0 if active[0] else 1), (2 if active[1] else 1)
+            part = slice(first * n, last * n)
+            near[part] = np.where(inside[part], mid[part], near[part])
+            far[part] = np.where(inside[part], far[part], mid[part])
+            close = (np.abs(far[part] / near[part] - 1.0) <= rtol).reshape(last - first, n).all(axis=1)
+            for e, done in zip(range(first, last), close):
+                active[e] = not bool(done)
             taken += 1
             if not any(active):
                 break
