@@ -126,3 +126,18 @@ def test_layout_page_names_the_frequency_and_the_present_wire(capsys, tmp_path):
     assert "effective height at 940 kHz" in html  # the report's what-if and earth-table frequency
     assert "your present wire, as &#x27;aerial report&#x27; figures it at 940 kHz" in html or \
         "your present wire, as 'aerial report' figures it at 940 kHz" in html
+
+
+def test_a_far_station_is_kilometres_on_the_terminal_and_the_page(capsys, write_site, tmp_path):
+    """A 2000 km sky-wave station reads "2000 km", never "2 Mm" (a megametre is no unit a listener reads)."""
+    from .conftest import MINIMAL
+
+    p = write_site(MINIMAL.replace('height = "0 m"', 'height = "0 m"\ncoil = "240 uH"')
+                   + '\n[[stations]]\nname = "Far clear channel"\nfrequency = "720 kHz"\npower = "50 kW"\n'
+                     'distance = "2000 km"\n')
+    page = tmp_path / "far.html"
+    code, out, err = run(capsys, "report", p, "--width", "200", "--page", page)  # the terminal report and the page
+    assert code == 0, err
+    assert "2000 km" in out and "Mm" not in out
+    text = page.read_text(encoding="utf-8")
+    assert "2000 km" in text and "2 Mm" not in text

@@ -147,8 +147,8 @@ class Lengths:
     'raise the wire 9.84 ft; add 32.8 ft; 2 mm2 wire at 1 m·pF and 5 mV/m'
     >>> Lengths("us").text("paths of 50–12 000 km; a 2-4 m pole")
     'paths of 31.1–7456 mi; a 6.56–13.1 ft pole'
-    >>> Lengths("si")(6.72), Lengths("si").distance(95e3)
-    ('6.72 m', '95 km')
+    >>> Lengths("si")(6.72), Lengths("si").distance(95e3), Lengths("si").distance(2e6)
+    ('6.72 m', '95 km', '2000 km')
     """
 
     #: A metric length written in free text (the fallback for text that does not keep its lengths).
@@ -166,10 +166,10 @@ class Lengths:
         return length_text(float(metres), digits, "us" if self.us else "si")
 
     def distance(self, metres) -> str:
-        """A station distance: km or miles."""
+        """A station distance: miles, or km (metres below 1 km; never megametres)."""
         if metres is None:
             return "—"
-        return f"{significant_text(float(metres) / MILE_M)} mi" if self.us else eng(metres, "m")
+        return f"{significant_text(float(metres) / MILE_M)} mi" if self.us else length_text(float(metres))
 
     def plain(self, metres, decimals: int = 1) -> str:
         """A bare number in the system's main unit (m or ft), for coordinates."""
