@@ -150,3 +150,47 @@ def test_consistency_power_words_and_table_cells_share_one_prefix_rule():
         assert watts_words(p, 3) == eng(p, "W", 3)
     # prefix steps: 1 nW = 1e-9 W (SI, the BIPM SI Brochure); a value rounding up to a step takes its prefix
     assert (watts_words(999.7e-12, 3), watts_words(1e-9), watts_words(2.4e-21)) == ("1 nW", "1 nW", "less than 0.01 fW")
+
+
+#: An invented backyard wire with no coil or capacitor given, its 235 pF swamping the assumed 15-365 pF
+#: capacitor: no coil covers the band, so the design note names the coil it chose.
+SWAMPED = """
+[site]
+name = "long wire, no parts given"
+bands = ["mf"]
+
+[supports.eave]
+at = [0, 0]
+height = "3.8 m"
+kind = "eave"
+
+[supports.oak]
+at = [30, 0]
+height = "10.7 m"
+kind = "tree"
+
+[[spans]]
+from = "eave"
+to = "oak"
+
+[lead_in]
+from = "eave"
+
+[receiver]
+at = [0.3, -0.6]
+height = "0.9 m"
+
+[[earth.rods]]
+length = "2.4 m"
+"""
+
+
+def test_the_designed_coil_reads_alike_in_the_tuning_heading_and_its_note(capsys, monkeypatch, write_site):
+    """consistency check: the coil the design chose is one figure (three significant), not 19.5 µH in the
+    heading and 19 µH in the note"""
+    out = _text(capsys, write_site(SWAMPED), monkeypatch)
+    heading = re.search(r"Tuning: direct coupling, MF broadcast, coil (\S+ µH)", out)
+    note = re.search(r"no single coil covers the band with this capacitor and coupling; chose (\S+ µH)", out)
+    assert heading and note, out
+    assert heading.group(1) == note.group(1)
+    assert re.fullmatch(r"\d+\.\d µH", heading.group(1))  # a coil of tens of µH keeps its decimal

@@ -648,7 +648,8 @@ def _pf(c):
 
 
 def _uh(L):
-    return f"{L * 1e6:.0f} µH"
+    """An inductance as the report's tables write it (three significant figures): 19.5 µH, 266 µH, 1.2 mH."""
+    return si_text(float(L), "H")
 
 
 def _khz(f):
