@@ -50,9 +50,8 @@ def refusal_check(site) -> list[str]:
 
     try:
         report = enforce_site_clearance(site)
-    except SafetyRefusal as err:  # name the file, as every other message does
-        first, _, rest = str(err).partition("\n")
-        raise SafetyRefusal(f"{site.path}: {first}" + (f"\n{rest}" if rest else "")) from None
+    except SafetyRefusal as err:  # name the file, as every other message does (the exact lengths kept)
+        raise SafetyRefusal(f"{site.path}: " + (err.args[0] if err.args else str(err))) from None
     return list(getattr(report, "warnings", []) or [])
 
 

@@ -450,6 +450,7 @@ def _check_empty_options(args) -> None:
 
 def main(argv=None) -> int:
     """Entry point of the ``aerial`` console script; returns the exit code."""
+    args = None
     try:
         parser = build_parser()
         args, extras = parser.parse_known_args(argv)
@@ -463,7 +464,12 @@ def main(argv=None) -> int:
         return COMMANDS[args.command](args)
     except SafetyRefusal as err:
         # one short line, then a few lines of reasons (the message's own line breaks)
-        first, *reasons = [line for line in str(err).split("\n") if line.strip()] or [""]
+        text = str(err)
+        if getattr(args, "units", "si") == "us":  # the distances to keep in the user's feet, as the report has them
+            from aerial.core.lengthtext import text_in
+
+            text = text_in(err.args[0] if err.args and isinstance(err.args[0], str) else text, "us")
+        first, *reasons = [line for line in text.split("\n") if line.strip()] or [""]
         sys.stderr.write(f"aerial: refused: {one_line(first)}\n")
         for line in reasons[:MAX_REASON_LINES]:
             sys.stderr.write(f"  {one_line(line.strip())}\n")

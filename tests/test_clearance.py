@@ -252,3 +252,18 @@ def test_example_site_passes_its_own_clearance():
 
     report = enforce_site_clearance(load_site(ROOT / "site_examples" / "suburban_lot_service_line.toml"))
     assert not report.refused and report.warnings == []
+
+
+def test_a_refusal_under_us_units_gives_the_distances_in_feet(tmp_path, capsys):
+    """--units us: the refusal names its distances in feet, from the exact metres (the oak written as 35 ft
+    reads 35 ft, not 35.1 ft from a rounded 10.7 m). 1 ft = 0.3048 m exactly (NIST SP 811)."""
+    text = SITE.format(eave_y=10.0, oak_x=20.0, oak_y=30.0, rx_x=0, rx_y=11, lead_via="", kind='kind = "power"')
+    p = tmp_path / "unsafe_ft.toml"
+    p.write_text(text.replace('height = "12 m"', 'height = "35 ft"'), encoding="utf-8")
+    assert main(["check", str(p), "--units", "us"]) == EXIT_REFUSED
+    err = capsys.readouterr().err
+    assert "(1.5 × its tallest point, 35 ft at support \"oak\"" in err, err
+    # 1.5 x 35 ft = 52.5 ft needed (worked by hand)
+    assert 'power line "street line": 52.5 ft needed (1.5 × 35 ft)' in err and " m " not in err.replace(p.name, "")
+    assert main(["check", str(p)]) == EXIT_REFUSED  # metres as before without the option
+    assert "16.0 m needed (1.5 × 10.7 m)" in capsys.readouterr().err
