@@ -1116,8 +1116,8 @@ def _refine_beside_the_building(planned, geo, freqs, earth, closed, allow_large:
         "converged": converged,
         "convergence": float(max(conv["relative_change"], conv.get("relative_change_with_building", 0.0))),
         "solver_warnings": [str(w) for w in out["warnings"]],
-        "note": (f"the top-ranked layout solved with the full-wave wire solver and the building as a grounded wire "
-                 f"grid ({out['model']}); effective height (the middle of the worst and best bearing) "
+        "note": ("the top-ranked layout solved with the full-wave wire solver and the building as a grounded wire "
+                 "grid (" + out["model"] + "); effective height (the middle of the worst and best bearing) "
                  + join_text(", ", [words("{a} (closed form {b})", a=metres(a, ".2f"), b=metres(b, ".2f"))
                                     for a, b in zip(he, closed)])
                  + ("" if converged else "; NOT converged within the solver's tolerance")),
