@@ -194,3 +194,26 @@ def test_the_designed_coil_reads_alike_in_the_tuning_heading_and_its_note(capsys
     assert heading and note, out
     assert heading.group(1) == note.group(1)
     assert re.fullmatch(r"\d+\.\d µH", heading.group(1))  # a coil of tens of µH keeps its decimal
+
+
+def test_parts_the_site_never_gave_are_called_assumed_not_yours(capsys, monkeypatch, write_site):
+    """No coil or capacitor in the site file: the tuning for the stations speaks of the designed coil and the
+    assumed capacitor, never of "your coil and capacitor" (input handling)."""
+    site = SWAMPED + '\n[[stations]]\nname = "Town speech"\nfrequency = "1.45 MHz"\npower = "1 kW"\ndistance = "24 km"\n'
+    p = write_site(site)
+    out = _text(capsys, p, monkeypatch)
+    text = " ".join(out.replace("│", " ").split())
+    assert "No coil or capacitor given" in text
+    assert "your coil and capacitor" not in text and "your parts" not in text and " yours " not in text
+    assert "with the designed coil and the assumed capacitor:" in text or "keep the assumed parts" in text
+    assert json.loads(_json_text(capsys, p))["tuning"]["station_design"]["capacitor_assumed"] is True
+    with_parts = site.replace('[receiver]\n', '[receiver]\ncoil = "240 uH"\ncapacitor = ["15 pF", "365 pF"]\n')
+    out = _text(capsys, write_site(with_parts, "own.toml"), monkeypatch)
+    assert "No coil or capacitor given" not in out and "yours" in out  # the user's own parts stay "yours"
+
+
+def _json_text(capsys, path):
+    code = main(["report", str(path), "--json"])
+    out, _ = capsys.readouterr()
+    assert code == 0
+    return out

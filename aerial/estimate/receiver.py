@@ -74,6 +74,7 @@ def tuning_parts(site) -> reception.TuningParts:
         detector_tap_fraction=rx.detector_tap_fraction,
         calibration=cal,
         interference_margin_db=rx.interference_margin_db,
+        capacitor_assumed=_needs_assumed_capacitor(rx),
     )
 
 

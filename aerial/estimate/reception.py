@@ -157,6 +157,9 @@ class TuningParts:
     interference_margin_db : float or None
         How far below the wanted station every other listed station must stay at the
         detector; None for :data:`DEFAULT_INTERFERENCE_MARGIN_DB`. [dB]
+    capacitor_assumed : bool
+        True when the site gave neither coil nor capacitor and the capacitor range is a common one
+        assumed for it (the coil then designed): the words say "the assumed parts", never "yours".
     """
 
     arrangement: str = "direct"
@@ -176,6 +179,7 @@ class TuningParts:
     detector_tap_fraction: float = 1.0
     calibration: Calibration | None = None
     interference_margin_db: float | None = None
+    capacitor_assumed: bool = False
 
 
 @dataclass(frozen=True)
@@ -1856,6 +1860,7 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
         "margin_db": scene.margin_db,
         "margin_source": "default" if parts.interference_margin_db is None else "site",
         "capacitor_given": parts.capacitor_min_f is not None,
+        "capacitor_assumed": bool(parts.capacitor_assumed),
         "wanted": scene.names,
         "channel_spacing_hz": float(spacing_hz),
         "chosen": {**_design_dict(chosen, scene), **_versus(chosen, current, scene)},
@@ -1866,7 +1871,7 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
                      for r in rows if r["fits_yours"] or r["capacitor"] is not None],
         "notes": [],
     }
-    out["summary"] = _design_summary(out, parts.capacitor_min_f is not None)
+    out["summary"] = _design_summary(out, parts.capacitor_min_f is not None, parts.capacitor_assumed)
     never = [n for n, ok in zip(scene.names, can_hear) if not ok]
     if never and can_hear.any():
         out["not_designed_for"] = never
@@ -1891,18 +1896,31 @@ def _remedies_for_designs(scene, parts, chosen, suggested, current, n_wanted) ->
         if row["meets_margin"] or not np.isfinite(row["worst_separation_db"]):
             continue
         words = _remedy_design_words(row, which, row is current, parts.capacitor_min_f is not None,
-                                     suggested is chosen)
+                                     suggested is chosen, parts.capacitor_assumed)
         for r in _remedies(scene, row, parts):
             out.append({**r, "applies_to": which, "applies_to_text": words})
     return out
 
 
-def _remedy_design_words(row, which, as_wired, capacitor_given, same) -> str:
+def parts_words(assumed: bool) -> dict:
+    """How the design's words name the site's tuning parts: the user's own, or the ones assumed for them.
+
+    >>> parts_words(False)["coil and capacitor"], parts_words(True)["parts"]
+    ('your coil and capacitor', 'the assumed parts')
+    """
+    if assumed:
+        return {"coil and capacitor": "the designed coil and the assumed capacitor", "capacitor": "the assumed capacitor",
+                "parts": "the assumed parts"}
+    return {"coil and capacitor": "your coil and capacitor", "capacitor": "your capacitor", "parts": "your parts"}
+
+
+def _remedy_design_words(row, which, as_wired, capacitor_given, same, assumed=False) -> str:
     """Which design a set of remedies is worked out for, in words ("for your parts as wired", ...)."""
     how = "the coupling and taps as wired" if as_wired else (
         f"{_setting_text(row['coupling'])}, detector at {row['detector_tap_fraction']:.2f} of the turns")
     if which == "yours" and capacitor_given:
-        who = "your parts as wired" if as_wired else f"your coil and capacitor with {how}"
+        said = parts_words(assumed)
+        who = f"{said['parts']} as wired" if as_wired else f"{said['coil and capacitor']} with {how}"
         return f"for {who}" + (" (the suggestion too)" if same else "")
     cap = row.get("capacitor")
     cap_words = f", a {cap[1] * 1e12:.0f}–{cap[0] * 1e12:.0f} pF capacitor" if cap is not None else ""
@@ -2139,19 +2157,21 @@ def eng_w(p) -> str:
 NO_WORSE_DB_WORDS = sd_mod.NO_WORSE_DB
 
 
-def _design_summary(d, capacitor_given) -> list:
-    """The recommendations in words: with the site's coil and capacitor, and with a standard capacitor."""
+def _design_summary(d, capacitor_given, assumed=False) -> list:
+    """The recommendations in words: with the site's coil and capacitor (or the ones assumed for it), and with a
+    standard capacitor."""
     m, cur = d["margin_db"], d["current"]
+    said = parts_words(assumed)
     lines = []
     if capacitor_given:
-        lines.append("with your coil and capacitor: " + _design_line(d["chosen"], cur, m, ""))
+        lines.append(f"with {said['coil and capacitor']}: " + _design_line(d["chosen"], cur, m, ""))
     s, c = d["suggested"], d["chosen"]
     same = capacitor_given and (s["setting"], s["detector_tap_ratio"]) == (c["setting"], c["detector_tap_ratio"])
     if "standard_capacitor_max_f" in s and not (s["as_wired"] and capacitor_given):
         words = (f"a {s['standard_capacitor_min_f'] * 1e12:.0f}–{s['standard_capacitor_max_f'] * 1e12:.0f} pF "
                  "variable capacitor (a common size)")
         if same:
-            lines.append(f"suggested: the same; your capacitor reaches every wanted station (a common "
+            lines.append(f"suggested: the same; {said['capacitor']} reaches every wanted station (a common "
                          f"{s['standard_capacitor_min_f'] * 1e12:.0f}–{s['standard_capacitor_max_f'] * 1e12:.0f} pF "
                          "one would too)")
         else:
@@ -2161,7 +2181,7 @@ def _design_summary(d, capacitor_given) -> list:
         if cur.get("out_of_reach"):
             why = (f"no common capacitor with another coupling or tap reaches {', '.join(cur['out_of_reach'])} "
                    "without leaving a station these parts hear worse off")
-        lines.append(f"suggested: keep your parts as wired ({why})")
+        lines.append(f"suggested: keep {said['parts']} as wired ({why})")
     elif not lines:
         lines.append("no common variable capacitor reaches every wanted station with this coil: a different coil "
                      "is needed")

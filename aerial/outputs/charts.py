@@ -316,7 +316,8 @@ def station_design_figure(result):
                 ax.scatter([r["adjacent_rejection_db"] for r in pts], [r["weakest_detector_power_w"] for r in pts],
                            s=18, facecolors=colour if ok else "none", edgecolors=colour,
                            label=plain_label(arr) + ("" if ok else " (misses the margin)"))
-    for key, marker, label in (("current", "x", "your parts as wired"), ("chosen", "o", "best with your parts"),
+    parts = "the assumed parts" if design.get("capacitor_assumed") else "your parts"
+    for key, marker, label in (("current", "x", f"{parts} as wired"), ("chosen", "o", f"best with {parts}"),
                                ("suggested", "D", "suggested (standard capacitor)")):
         r = design.get(key) or {}
         if key == "chosen" and not design.get("capacitor_given", True):

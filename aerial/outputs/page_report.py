@@ -303,6 +303,7 @@ def _station_design_block(result, L: Lengths) -> str:
     head = ["", "coupling", "detector tap", "capacitor", "weakest station at the detector", "worst separation",
             f"{eng(spacing, 'Hz')} away"]
     summary = list(design.get("summary", []))
+    parts = "the assumed parts" if design.get("capacitor_assumed") else "your parts"
     try:
         remedies = [_remedy_line(r) for r in design.get("remedies", [])]
     except (KeyError, TypeError):  # a remedy of a kind this page does not know: shown as plain facts
@@ -311,8 +312,9 @@ def _station_design_block(result, L: Lengths) -> str:
                   "wide")
             + bullets(summary + remedies, "advice", L) + bullets(design.get("notes", []), "notes", L)
             + figure(charts.station_design_chart(result), "The weakest wanted station's power at the detector against "
-                     "the rejection of the next channel, one mark per coupling and detector tap; the best with your "
-                     "parts ringed, the suggestion with a standard capacitor a diamond, your parts as wired crossed", "station-tuning"))
+                     f"the rejection of the next channel, one mark per coupling and detector tap; the best with {parts} "
+                     f"ringed, the suggestion with a standard capacitor a diamond, {parts} as wired crossed",
+                     "station-tuning"))
     return section("station-design", "Tuning for your stations", body, "sheet")
 
 

@@ -679,7 +679,7 @@ def design_capacitor_words(r, design) -> str:
     if r.get("standard_capacitor_max_f") is not None and not r.get("fits_your_capacitor"):
         return f"{eng(r['standard_capacitor_min_f'], 'F')}–{eng(r['standard_capacitor_max_f'], 'F')}"
     if r.get("fits_your_capacitor") or r is design.get("current") or r.get("as_wired"):
-        return "yours"
+        return "assumed" if design.get("capacitor_assumed") else "yours"
     return "—"
 
 
@@ -691,10 +691,13 @@ def design_shown_rows(design) -> list:
         b = best.get(r["arrangement"])
         if b is None or (r["meets_margin"], r["weakest_detector_power_w"]) > (b["meets_margin"], b["weakest_detector_power_w"]):
             best[r["arrangement"]] = r
-    shown = [("as wired", design["current"], "yours" if design.get("capacitor_given", True) else "not given")]
+    assumed = bool(design.get("capacitor_assumed"))  # the site gave no parts: a common capacitor was assumed
+    own = "assumed" if assumed else "yours"
+    shown = [("as assumed" if assumed else "as wired", design["current"],
+              own if design.get("capacitor_given", True) else "not given")]
     chosen, suggested = design["chosen"], design.get("suggested") or design["chosen"]
     if not chosen.get("as_wired") and chosen.get("fits_your_capacitor"):
-        shown.append(("your parts", chosen, "yours"))
+        shown.append(("assumed parts" if assumed else "your parts", chosen, own))
     if not suggested.get("as_wired"):
         shown.append(("suggested", suggested, design_capacitor_words({**suggested, "fits_your_capacitor": False},
                                                                     design)))
