@@ -50,19 +50,32 @@ def _safe(x):
     return np.where(np.abs(x) < 1e-12, np.where(x < 0, -1e-12, 1e-12), x)
 
 
-def _section_r_per_m(segments: Segments, frequency, mask):
-    """Length-weighted mean AC resistance per metre of the segments in ``mask``, per frequency."""
+def _segment_r_per_m(segments: Segments, frequency):
+    """AC resistance per metre of every segment at every frequency, (S, F) [ohm/m]: one evaluation per kind of wire.
+
+    The segments of one wire share its radius, resistivity and permeability, so
+    :func:`aerial.models.conductor.resistance_per_m` runs once per kind over the frequencies and the rows are
+    repeated for the segments of that kind (the values are those of a call over all segments).
+    """
+    kinds = np.column_stack([segments.radius, segments.resistivity, segments.relative_permeability])
+    unique, which = np.unique(kinds, axis=0, return_inverse=True)
+    rows = np.empty((len(unique), frequency.size))
+    for k, (radius, resistivity, permeability) in enumerate(unique):
+        rows[k] = resistance_per_m(np.full((1, 1), radius), frequency[None, :], np.full((1, 1), resistivity),
+                                   np.full((1, 1), permeability))[0]
+    return rows[np.reshape(which, -1)]
+
+
+def _section_r_per_m(segments: Segments, r_per_m, mask):
+    """Length-weighted mean AC resistance per metre of the segments in ``mask``, per frequency [ohm/m].
+
+    ``r_per_m``: every segment's, (S, F) (:func:`_segment_r_per_m`).
+    """
     idx = np.flatnonzero(mask)
     if idx.size == 0:
-        return np.zeros_like(frequency)
-    r = resistance_per_m(
-        segments.radius[idx, None],
-        frequency[None, :],
-        segments.resistivity[idx, None],
-        segments.relative_permeability[idx, None],
-    )
+        return np.zeros(r_per_m.shape[1])
     w = segments.length[idx, None]
-    return np.sum(r * w, axis=0) / np.sum(w)
+    return np.sum(r_per_m[idx] * w, axis=0) / np.sum(w)
 
 
 class _LineModel:
@@ -266,8 +279,9 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
     too_long = np.asarray(res.too_long, bool)
     past = np.asarray(res.past_resonance, bool) | ~negative
 
-    loss = _aerial_loss(segments, shape, model, f, res)
-    loss = loss + _earth_lead_loss(segments, shape, f, warnings)
+    r_per_m = _segment_r_per_m(segments, f)
+    loss = _aerial_loss(segments, shape, model, f, res, r_per_m)
+    loss = loss + _earth_lead_loss(segments, shape, f, warnings, r_per_m)
     warnings.extend(_validity_warnings(shape, f, too_long, past))
     n = f.size
     extra = {} if beside is None else {"building": beside}
@@ -354,28 +368,34 @@ def _normalised_line(model, f, c_s, he_s, total):
     return res, x, np.abs(he)
 
 
-def _aerial_loss(segments, shape, model, f, res):
-    """Skin-effect loss of the aerial wires referred to the feed current, per frequency. [ohm]"""
+def _aerial_loss(segments, shape, model, f, res, r_per_m):
+    """Skin-effect loss of the aerial wires referred to the feed current, per frequency. [ohm]
+
+    ``r_per_m``: every segment's AC resistance per metre, (S, F) (:func:`_segment_r_per_m`). [ohm/m]
+    """
     sections = np.asarray(shape.segment_section)
     weights = model.loss_weights(f, res)
     loss = np.zeros_like(f)
     if shape.kind == "irregular":
-        r_aer = _section_r_per_m(segments, f, segments.aerial)
+        r_aer = _section_r_per_m(segments, r_per_m, segments.aerial)
         return loss + r_aer * weights[SECTION_DOWN_LEAD]
     for sec, w in weights.items():
-        loss = loss + _section_r_per_m(segments, f, sections == sec) * np.asarray(w, float)
+        loss = loss + _section_r_per_m(segments, r_per_m, sections == sec) * np.asarray(w, float)
     return loss
 
 
-def _earth_lead_loss(segments, shape, f, warnings):
-    """Skin-effect loss of the earth-lead wires, per frequency [ohm]; appends its caveats to ``warnings``."""
+def _earth_lead_loss(segments, shape, f, warnings, r_per_m):
+    """Skin-effect loss of the earth-lead wires, per frequency [ohm]; appends its caveats to ``warnings``.
+
+    ``r_per_m``: every segment's AC resistance per metre, (S, F) (:func:`_segment_r_per_m`). [ohm/m]
+    """
     earth = np.asarray(shape.segment_section) == SECTION_EARTH_LEAD
     if not np.any(earth):
         return np.zeros_like(f)
     low = np.minimum(segments.start[earth, 2], segments.end[earth, 2])
     ends = np.concatenate([segments.start[earth], segments.end[earth]])
     at_feed = int(np.sum(np.linalg.norm(ends - segments.feed, axis=1) < 1e-3))
-    r_earth = _section_r_per_m(segments, f, earth)
+    r_earth = _section_r_per_m(segments, r_per_m, earth)
     if not np.any(low <= 1e-3):
         # a counterpoise: the feed current divides between its arms and falls to zero at their
         # free ends (triangular), so each of n arms dissipates R' L_i (1/n)^2 / 3
