@@ -307,7 +307,8 @@ def segment_potential_integral(point, seg_start, seg_end, radius):
     Notes
     -----
     With z the coordinate of p along the segment from its start and rho^2 the
-    squared distance from the axis plus a^2::
+    squared distance from the axis (|w x u|^2, w = p - start, u the unit direction: no cancellation for a
+    point on or near the axis) plus a^2::
 
         I = ln{[(L - z) + R2] / [R1 - z]},  R1 = sqrt(z^2 + rho^2),  R2 = sqrt((L - z)^2 + rho^2)
 
@@ -334,7 +335,8 @@ def segment_potential_integral(point, seg_start, seg_end, radius):
     w = p - a0
     z = _dot3(w, u)
     r2 = np.asarray(radius, dtype=float) ** 2
-    rho2 = np.maximum(_dot3(w, w) - z * z, 0.0) + r2
+    across = np.cross(w, u)
+    rho2 = _dot3(across, across) + r2
     z = np.where(z > 0.5 * L, L - z, z)
     r1 = np.sqrt(z * z + rho2)
     r2_ = np.sqrt((L - z) ** 2 + rho2)
@@ -343,23 +345,20 @@ def segment_potential_integral(point, seg_start, seg_end, radius):
     return np.log(num / den)
 
 
-#: Largest (rows × segments) block the potential fill works on at once: its scratch planes (a few MB
-#: in all) are kept per thread and reused, since fresh arrays of this size cost more in first-touch
-#: page faults than the arithmetic done on them. [1]
+#: Largest (rows × knots) block the potential fill works on at once: a few such planes stay in the
+#: processor's cache. [1]
 FILL_BLOCK_ELEMENTS = 1 << 16
-_FILL_PLANES = 8
 _fill_scratch = threading.local()
 
 
 def _scratch_planes(rows: int, cols: int):
-    """Eight float planes and one bool plane of shape (rows, cols), views of a per-thread buffer."""
-    buf = getattr(_fill_scratch, "buffers", None)
+    """Two float planes of shape (rows, cols), views of a per-thread buffer (fresh arrays of this size
+    cost more in first-touch page faults than the arithmetic done on them)."""
+    buf = getattr(_fill_scratch, "planes", None)
     if buf is None:
-        buf = (np.empty(_FILL_PLANES * FILL_BLOCK_ELEMENTS), np.empty(FILL_BLOCK_ELEMENTS, dtype=bool))
-        _fill_scratch.buffers = buf
+        buf = _fill_scratch.planes = np.empty(2 * FILL_BLOCK_ELEMENTS)
     n = rows * cols
-    planes = [buf[0][k * n:(k + 1) * n].reshape(rows, cols) for k in range(_FILL_PLANES)]
-    return planes, buf[1][:n].reshape(rows, cols)
+    return buf[:n].reshape(rows, cols), buf[n:2 * n].reshape(rows, cols)
 
 
 #: Largest system (unknowns + 1, squared) whose matrix is filled in a per-thread buffer kept for the next
@@ -381,106 +380,91 @@ def _system_matrix(rows: int, cols: int):
     return buf[:rows * cols].reshape(rows, cols)
 
 
-def _sources(seg_start, seg_end):
-    """Per-segment constants of the fill: start coordinates and unit direction as rows, and length."""
-    a0 = np.asarray(seg_start, dtype=float)
-    d = np.asarray(seg_end, dtype=float) - a0
-    length = np.sqrt(_dot3(d, d))
-    u = d / length[:, None]
-    return np.ascontiguousarray(a0.T), np.ascontiguousarray(u.T), length
+def _knots(length, counts):
+    """Knots of segments cut into ``counts`` equal pieces each: (segment of each knot, its distance along the
+    segment [m], the columns of the pieces among the differences of consecutive knots)."""
+    counts = np.asarray(counts, dtype=np.int64)
+    seg = np.repeat(np.arange(len(counts)), counts + 1)
+    first = np.concatenate([[0], np.cumsum(counts + 1)[:-1]])
+    k = np.arange(seg.size) - first[seg]
+    return seg, length[seg] * (k / counts[seg]), np.flatnonzero(seg[1:] == seg[:-1])
 
 
-def _potential_fill(points, seg_start, seg_end, radius, image: bool = False, wall=None, out=None):
-    """Sum of :func:`segment_potential_integral` terms: every segment, and its images, at every point.
-
-    Returns the (points, segments) matrix D - G - W + WG: D of the segments themselves, G of their
-    images in the ground plane z = 0 (``image``), W of their images in a grounded vertical plane
-    (``wall``: a point on it and its horizontal unit normal) and WG of the images of those in the
-    ground (with both planes; exact for two perpendicular planes). The terms are added in that
-    order, and each is the same operations in the same order as :func:`segment_potential_integral`
-    on whole coordinate planes: the same numbers bit for bit. A ground image shares the horizontal
-    half of the work with the sources it mirrors (start and end at -z, the horizontal offsets
-    unchanged), and the rows are done in blocks of at most ``FILL_BLOCK_ELEMENTS`` elements in
-    reused scratch planes. ``out``: a (points, segments) array (or view) to fill instead of a new one.
-    """
-    p = np.ascontiguousarray(np.asarray(points, dtype=float).T)
-    start = np.asarray(seg_start, dtype=float)
-    end = np.asarray(seg_end, dtype=float)
-    sets = [_sources(start, end)]
+def _reflections(start, u, image: bool, wall):
+    """The source lines and their images as (start [m], unit direction, charge sign): the segments, their
+    images in the ground plane z = 0 (``image``), in a grounded vertical plane (``wall``: a point on it and
+    its horizontal unit normal) and, with both, the ground images of the wall images."""
+    flip = np.array([1.0, 1.0, -1.0])
+    sets = [(start, u, 1.0)]
+    if image:
+        sets.append((start * flip, u * flip, -1.0))
     if wall is not None:
         p0, n = (np.asarray(v, dtype=float) for v in wall)
         m = np.eye(3) - 2.0 * np.outer(n, n)
-        shift = 2.0 * float(np.dot(p0, n)) * n
-        sets.append(_sources(start @ m + shift, end @ m + shift))
+        shifted = start @ m + 2.0 * float(np.dot(p0, n)) * n
+        sets.append((shifted, u @ m, -1.0))
+        if image:
+            sets.append((shifted * flip, (u @ m) * flip, 1.0))
+    return sets
+
+
+def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = False, wall=None, out=None):
+    """The potential integral of every piece of every segment, and of its images, at every point.
+
+    Each segment is cut into ``counts`` equal pieces (in order along it, the pieces of one segment after
+    those of the one before); the result is the (points, pieces) matrix D - G - W + WG of
+    :func:`segment_potential_integral` terms: D of the pieces themselves, G of their images in the ground
+    (``image``), W of their images in a grounded vertical plane (``wall``: a point on it and its horizontal
+    unit normal) and WG of the ground images of those (exact for two perpendicular planes). ``radius`` is
+    per segment; ``out``: a (points, pieces) array (or view) to fill instead of a new one.
+
+    Notes
+    -----
+    Along a straight line the integral of 1/sqrt((t - z)^2 + rho^2) has the antiderivative
+    asinh((t - z) / rho), z the point's coordinate along the line and rho^2 its squared distance from it
+    plus a^2, so a piece's integral is the difference of asinh at its two ends, and the pieces of a segment
+    share their ends: one asinh per knot instead of two square roots and a logarithm per piece. z and rho
+    are worked out once per point and segment, rho from the cross product |w x u| (no cancellation for a
+    point on or near the wire's own line, however far along it). Rounding: asinh is accurate to an ulp of
+    its value (at most ln(2 L / a) ~ 12 here), so each term is within ~1e-15 absolute of the exact integral,
+    1e-12 relative for the smallest terms of a report's wire sets (tests/models/test_capacitance.py).
+
+    References
+    ----------
+    Harrington, 1968, ch. 2 (module reference [3]); the antiderivative: Abramowitz and Stegun 3.3.44
+    (integral of 1/sqrt(x^2 + a^2)). (from memory)
+    """
+    p = np.asarray(points, dtype=float)
+    start = np.asarray(seg_start, dtype=float)
+    d = np.asarray(seg_end, dtype=float) - start
+    length = np.sqrt(_dot3(d, d))
+    seg, t, pieces = _knots(length, counts)
+    sets = _reflections(start, d / length[:, None], image, wall)
     r2 = np.asarray(radius, dtype=float) ** 2
-    rows, cols = p.shape[1], len(start)
+    rows, cols, knots = len(p), len(pieces), len(seg)
     out = np.empty((rows, cols)) if out is None else out
-    step = max(1, FILL_BLOCK_ELEMENTS // max(cols, 1))
+    step = max(1, FILL_BLOCK_ELEMENTS // max(knots, 1))
     for r0 in range(0, rows, step):
         r1 = min(rows, r0 + step)
-        w, mask = _scratch_planes(r1 - r0, cols)
         block = out[r0:r1]
-        for k, (ac, uc, length) in enumerate(sets):
-            np.subtract(p[0, r0:r1, None], ac[0], out=w[0])
-            np.subtract(p[1, r0:r1, None], ac[1], out=w[1])
-            z_xy = np.multiply(w[0], uc[0], out=w[2])      # w_x u_x + w_y u_y, as _dot3 adds it
-            np.multiply(w[1], uc[1], out=w[3])
-            z_xy += w[3]
-            rho_xy = np.multiply(w[0], w[0], out=w[0])     # w_x^2 + w_y^2
-            np.multiply(w[1], w[1], out=w[3])
-            rho_xy += w[3]
-            np.subtract(p[2, r0:r1, None], ac[2], out=w[1])
-            scratch = (w[1], w[3], w[4], w[5], w[6])
-            direct = _kernel_from_planes(z_xy, rho_xy, w[1], uc[2], length, r2, scratch, mask,
-                                         block if k == 0 else w[7])
-            if k > 0:
-                block -= direct                            # the wall's image: charge -1
-            if image:
-                # the ground image of these sources starts at -z, direction (u_x, u_y, -u_z)
-                np.add(p[2, r0:r1, None], ac[2], out=w[1])
-                mirrored = _kernel_from_planes(z_xy, rho_xy, w[1], -uc[2], length, r2, scratch, mask, w[7])
-                if k == 0:
-                    block -= mirrored
-                else:
-                    block += mirrored                      # the image of an image: charge +1
+        f, diff = _scratch_planes(r1 - r0, knots)
+        for k, (a0, u, sign) in enumerate(sets):
+            w = p[r0:r1, None, :] - a0[None]                   # (rows, segments, 3) from each line's start
+            along = _dot3(w, u)
+            across = np.cross(w, u)
+            inv_rho = 1.0 / np.sqrt(_dot3(across, across) + r2)
+            np.subtract(t, along[:, seg], out=f)
+            f *= inv_rho[:, seg]
+            np.arcsinh(f, out=f)                               # asinh((t - z) / rho) at every knot
+            np.subtract(f[:, 1:], f[:, :-1], out=diff[:, 1:])
+            term = diff[:, 1:][:, pieces]
+            if k == 0:
+                block[...] = term
+            elif sign > 0:
+                block += term
+            else:
+                block -= term
     return out
-
-
-def _kernel_from_planes(z_xy, rho_xy, wz, uz, length, r2, w, mask, out):
-    """The reduced kernel of :func:`segment_potential_integral` from the horizontal sums and w_z, into ``out``.
-
-    ``z_xy`` = w_x u_x + w_y u_y and ``rho_xy`` = w_x^2 + w_y^2 (left unchanged); ``wz`` the vertical
-    offset plane, which must be ``w[0]`` (it is overwritten); ``w`` five scratch planes, ``mask`` a
-    bool plane. The fold z -> min(z, L - z) is the reference's ``z > L/2`` branch exactly (L - z is
-    exact near L/2, Sterbenz's lemma); the denominator is r1 - z = r1 + |z| for z <= 0 and
-    rho^2 / (r1 + |z|) above.
-    """
-    rho2, z, t, lz, r1 = w
-    np.multiply(wz, uz, out=z)
-    z += z_xy                                          # (w_x u_x + w_y u_y) + w_z u_z
-    np.multiply(wz, wz, out=rho2)
-    rho2 += rho_xy                                     # (w_x^2 + w_y^2) + w_z^2
-    np.multiply(z, z, out=t)
-    rho2 -= t
-    np.maximum(rho2, 0.0, out=rho2)
-    rho2 += r2
-    np.subtract(length, z, out=lz)
-    np.minimum(z, lz, out=z)                           # fold into z <= L/2
-    np.subtract(length, z, out=lz)
-    np.multiply(z, z, out=r1)
-    r1 += rho2
-    np.sqrt(r1, out=r1)
-    num = np.multiply(lz, lz, out=out)
-    num += rho2
-    np.sqrt(num, out=num)
-    num += lz
-    s = np.abs(z, out=lz)
-    s += r1                                            # r1 + |z|
-    den = np.divide(rho2, s, out=rho2)
-    np.less_equal(z, 0.0, out=mask)
-    np.putmask(den, mask, s)
-    num /= den
-    return np.log(num, out=num)
 
 
 @dataclass(frozen=True)
@@ -525,15 +509,16 @@ class ElectrostaticSolution:
     tolerance: float
 
 
-def _subdivide(seg: Segments, counts):
-    idx = np.repeat(np.arange(len(seg)), counts)
+def _subdivide(seg_start, seg_end, counts):
+    """Segments cut into ``counts`` equal pieces each: (piece starts, piece ends, segment of each piece)."""
+    idx = np.repeat(np.arange(len(counts)), counts)
     first = np.concatenate([[0], np.cumsum(counts)[:-1]])
     k = np.arange(idx.size) - np.repeat(first, counts)
     c = counts[idx].astype(float)
     t0 = (k / c)[:, None]
     t1 = ((k + 1) / c)[:, None]
-    d = seg.end[idx] - seg.start[idx]
-    return seg.start[idx] + t0 * d, seg.start[idx] + t1 * d, idx
+    d = seg_end[idx] - seg_start[idx]
+    return seg_start[idx] + t0 * d, seg_start[idx] + t1 * d, idx
 
 
 #: Solutions kept for reuse (a report solves some wire sets more than once: the headline, the
@@ -542,8 +527,11 @@ _SOLVE_CACHE_SIZE = 64
 _solve_cache: dict = {}
 
 
-def _solve(start, end, radius, grounded, image, floating=False, wall=None):
-    """Charges for 1 V on the aerial. Returns (charge [C], midpoints, counterpoise potential [V]).
+def _solve(seg_start, seg_end, radius, grounded, counts, image, floating=False, wall=None):
+    """Charges for 1 V on the aerial, the segments cut into ``counts`` pieces each.
+
+    Returns (charge of each piece [C], piece starts, piece ends [m], segment of each piece, piece midpoints
+    [m], counterpoise potential [V]). ``radius`` and ``grounded`` are per segment.
 
     With ``floating`` the earth side (``grounded``) is a counterpoise insulated
     from the ground: its potential is an unknown and the aerial and counterpoise
@@ -551,8 +539,9 @@ def _solve(start, end, radius, grounded, image, floating=False, wall=None):
     The same wire set solved again (the same numbers bit for bit) is taken from
     a small cache.
     """
-    arrays = [np.ascontiguousarray(v, dtype=float) for v in (start, end, radius)]
+    arrays = [np.ascontiguousarray(v, dtype=float) for v in (seg_start, seg_end, radius)]
     arrays.append(np.ascontiguousarray(grounded, dtype=bool))
+    arrays.append(np.ascontiguousarray(counts, dtype=np.int64))
     wall_key = None if wall is None else tuple(np.asarray(v, dtype=float).tobytes() for v in wall)
     key = (tuple((v.shape, v.tobytes()) for v in arrays), bool(image), bool(floating), wall_key)
     hit = _solve_cache.pop(key, None)
@@ -561,8 +550,7 @@ def _solve(start, end, radius, grounded, image, floating=False, wall=None):
         if len(_solve_cache) >= _SOLVE_CACHE_SIZE:
             _solve_cache.pop(next(iter(_solve_cache)))  # the least recently used
     _solve_cache[key] = hit
-    q, mid, v_cp = hit
-    return q.copy(), mid.copy(), v_cp
+    return tuple(v.copy() if isinstance(v, np.ndarray) else v for v in hit)
 
 
 def _singular_words(mid) -> str:
@@ -588,23 +576,24 @@ def _linear_solve(matrix, rhs, mid):
     return sol
 
 
-def _solve_uncached(start, end, radius, grounded, image, floating=False, wall=None):
+def _solve_uncached(seg_start, seg_end, radius, grounded, counts, image, floating=False, wall=None):
+    start, end, parent = _subdivide(seg_start, seg_end, counts)
     mid = 0.5 * (start + end)
     lengths = np.linalg.norm(end - start, axis=1)
     # unknowns: line charge density lambda_j; potential = lambda_j * I_ij / (4 pi eps0)
-    rhs = np.where(grounded, 0.0, 1.0)
+    rhs = np.where(grounded[parent], 0.0, 1.0)
     n = len(rhs)
     if not floating:
-        pot = _potential_fill(mid, start, end, radius, image, wall, out=_system_matrix(n, n))
+        pot = _potential_fill(mid, seg_start, seg_end, counts, radius, image, wall, out=_system_matrix(n, n))
         lam = _linear_solve(pot, rhs, mid) * _FOUR_PI_EPS0
-        return lam * lengths, mid, 0.0
+        return lam * lengths, start, end, parent, mid, 0.0
     system = _system_matrix(n + 1, n + 1)
-    _potential_fill(mid, start, end, radius, image, wall, out=system[:n, :n])
-    system[:n, n] = -grounded.astype(float)  # counterpoise rows: potential - V_c = 0
+    _potential_fill(mid, seg_start, seg_end, counts, radius, image, wall, out=system[:n, :n])
+    system[:n, n] = -grounded[parent].astype(float)  # counterpoise rows: potential - V_c = 0
     system[n, n] = 0.0
     system[n, :n] = lengths  # no net charge on aerial + counterpoise
     sol = _linear_solve(system, np.append(rhs, 0.0), mid)
-    return sol[:n] * _FOUR_PI_EPS0 * lengths, mid, float(sol[n])
+    return sol[:n] * _FOUR_PI_EPS0 * lengths, start, end, parent, mid, float(sol[n])
 
 
 def _subdivision_counts(segments, target, min_subsegments, max_subsegment_fraction, min_length_to_radius):
@@ -713,7 +702,8 @@ def electrostatic_solution(
     sub-segment centres on the wire axis with the reduced kernel
     1/sqrt(R^2 + a^2), integrated exactly over every source segment and its
     image (:func:`segment_potential_integral`; no point-charge approximation
-    anywhere), so the matrix fill is one vectorised array expression::
+    anywhere; the pieces of a segment share the antiderivative at their ends,
+    :func:`_potential_fill`)::
 
         sum_j lambda_j [I(p_i; seg_j) - I(p_i; image of seg_j)] / (4 pi eps0) = V_i,
 
@@ -774,12 +764,11 @@ def electrostatic_solution(
             f"the subdivision needs {int(np.sum(counts))} unknowns, above max_unknowns = {max_unknowns}; "
             "raise max_unknowns or merge short segments"
         )
-    start, end, parent = _subdivide(segments, counts)
-    rad = segments.radius[parent]
-    gnd = segments.grounded[parent]
     # an earth side that never reaches the ground plane is a counterpoise: it floats
     floating = bool(np.any(segments.grounded)) and not _earth_touches(segments, wall)
-    q, mid, v_cp = _solve(start, end, rad, gnd, ground_plane, floating, wall)
+    q, start, end, parent, mid, v_cp = _solve(segments.start, segments.end, segments.radius, segments.grounded,
+                                              counts, ground_plane, floating, wall)
+    gnd = segments.grounded[parent]
     aerial_q = float(np.sum(q[~gnd]))
     h_e = float(np.sum(q * mid[:, 2]) / aerial_q)
     capacitance = aerial_q / (1.0 - v_cp)
@@ -791,8 +780,8 @@ def electrostatic_solution(
     elif np.array_equal(coarse, counts):
         rel = 0.0
     else:
-        s2, e2, p2 = _subdivide(segments, coarse)
-        q2, _, v2 = _solve(s2, e2, segments.radius[p2], segments.grounded[p2], ground_plane, floating, wall)
+        q2, _, _, p2, _, v2 = _solve(segments.start, segments.end, segments.radius, segments.grounded, coarse,
+                                     ground_plane, floating, wall)
         c2 = float(np.sum(q2[~segments.grounded[p2]])) / (1.0 - v2)
         rel = abs(capacitance - c2) / abs(capacitance)
     return ElectrostaticSolution(
