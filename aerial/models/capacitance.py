@@ -408,6 +408,16 @@ def _reflections(start, u, image: bool, wall):
     return sets
 
 
+def _axis_offsets(points, start, u, r2):
+    """Each point's coordinate along each line from its start [m] and 1 / rho [1/m], rho^2 the squared
+    distance from the line (from the cross product: no cancellation on or near the line) plus ``r2``:
+    (points, lines) arrays."""
+    wx, wy, wz = (points[:, k, None] - start[:, k] for k in range(3))
+    ux, uy, uz = u[:, 0], u[:, 1], u[:, 2]
+    cx, cy, cz = wy * uz - wz * uy, wz * ux - wx * uz, wx * uy - wy * ux
+    return (wx * ux + wy * uy) + wz * uz, 1.0 / np.sqrt((cx * cx + cy * cy) + cz * cz + r2)
+
+
 def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = False, wall=None, out=None):
     """The potential integral of every piece of every segment, and of its images, at every point.
 
@@ -431,16 +441,18 @@ def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = Fa
 
     References
     ----------
-    Harrington, 1968, ch. 2 (module reference [3]); the antiderivative: Abramowitz and Stegun 3.3.44
-    (integral of 1/sqrt(x^2 + a^2)). (from memory)
+    Harrington, 1968, ch. 2 (module reference [3]); the antiderivative of 1/sqrt(x^2 + a^2) is a standard
+    integral. (from memory)
     """
     p = np.asarray(points, dtype=float)
     start = np.asarray(seg_start, dtype=float)
     d = np.asarray(seg_end, dtype=float) - start
     length = np.sqrt(_dot3(d, d))
     seg, t, pieces = _knots(length, counts)
-    sets = _reflections(start, d / length[:, None], image, wall)
     r2 = np.asarray(radius, dtype=float) ** 2
+    # per set of lines: each point's coordinate along each line and 1 / rho (small: points × segments)
+    lines = [(_axis_offsets(p, a0, u, r2), sign) for a0, u, sign in _reflections(start, d / length[:, None],
+                                                                                    image, wall)]
     rows, cols, knots = len(p), len(pieces), len(seg)
     out = np.empty((rows, cols)) if out is None else out
     step = max(1, FILL_BLOCK_ELEMENTS // max(knots, 1))
@@ -448,13 +460,9 @@ def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = Fa
         r1 = min(rows, r0 + step)
         block = out[r0:r1]
         f, diff = _scratch_planes(r1 - r0, knots)
-        for k, (a0, u, sign) in enumerate(sets):
-            w = p[r0:r1, None, :] - a0[None]                   # (rows, segments, 3) from each line's start
-            along = _dot3(w, u)
-            across = np.cross(w, u)
-            inv_rho = 1.0 / np.sqrt(_dot3(across, across) + r2)
-            np.subtract(t, along[:, seg], out=f)
-            f *= inv_rho[:, seg]
+        for k, ((along, inv_rho), sign) in enumerate(lines):
+            np.subtract(t, along[r0:r1, seg], out=f)
+            f *= inv_rho[r0:r1, seg]
             np.arcsinh(f, out=f)                               # asinh((t - z) / rho) at every knot
             np.subtract(f[:, 1:], f[:, :-1], out=diff[:, 1:])
             term = diff[:, 1:][:, pieces]

@@ -358,11 +358,12 @@ def _checked_frequencies(frequency, z0_form):
 
 def _normalised_line(model, f, c_s, he_s, total):
     """The line model scaled to the electrostatic limit: (line result, reactance [ohm], |h_e| [m])."""
-    f_ref = np.array([STATIC_ELECTRICAL_LENGTH * SPEED_OF_LIGHT / (2 * np.pi * total)])
-    ref = model.evaluate(f_ref, c_s)
-    c0 = float(-1.0 / (2 * np.pi * f_ref[0] * ref.reactance_ohm[0]))
-    h0 = float(ref.effective_height_m[0])
-    res = model.evaluate(f, c_s)
+    f_ref = STATIC_ELECTRICAL_LENGTH * SPEED_OF_LIGHT / (2 * np.pi * total)
+    # the reference frequency evaluated with the others (the line models work element by element)
+    both = model.evaluate(np.concatenate([[f_ref], f]), c_s)
+    c0 = float(-1.0 / (2 * np.pi * f_ref * both.reactance_ohm[0]))
+    h0 = float(both.effective_height_m[0])
+    res = sa.ShortAerialResult(**{name: np.asarray(getattr(both, name))[1:] for name in both.__dataclass_fields__})
     x = np.asarray(res.reactance_ohm, float) * (c0 / c_s)
     he = np.asarray(res.effective_height_m, float) * (he_s / h0 if h0 != 0 else 0.0)
     return res, x, np.abs(he)

@@ -22,7 +22,7 @@ not part of the shape; their length is reported.
 
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -96,10 +96,9 @@ class AerialShape:
 
     def as_dict(self) -> dict:
         """Plain dict of the shape (JSON-ready; the per-segment map left out)."""
-        d = asdict(self)
-        d.pop("segment_section")
+        d = {name: getattr(self, name) for name in self.__dataclass_fields__ if name != "segment_section"}
         for key in ("top_lengths_m", "top_heights_m", "top_radii_m", "notes"):
-            d[key] = list(d[key])
+            d[key] = list(d[key])  # the fields hold numbers and words only: nothing deeper to copy
         return d
 
 
