@@ -584,9 +584,23 @@ def _linear_solve(matrix, rhs, mid):
     return sol
 
 
+#: Pieces whose midpoints round to the same point on this grid are on top of each other. [m]
+COINCIDENT_M = 1e-9
+
+
+def _coincident(mid) -> bool:
+    """Whether two pieces share a midpoint (to ``COINCIDENT_M``): their rows of the system are the same, so it
+    has no solution, whatever the rounding of the factorisation makes of it."""
+    grid = np.round(mid / COINCIDENT_M)
+    order = np.lexsort(grid.T)
+    return bool(np.any(np.all(grid[order[1:]] == grid[order[:-1]], axis=1)))
+
+
 def _solve_uncached(seg_start, seg_end, radius, grounded, counts, image, floating=False, wall=None):
     start, end, parent = _subdivide(seg_start, seg_end, counts)
     mid = 0.5 * (start + end)
+    if _coincident(mid):
+        raise ModelInputError(_singular_words(mid))
     lengths = np.linalg.norm(end - start, axis=1)
     # unknowns: line charge density lambda_j; potential = lambda_j * I_ij / (4 pi eps0)
     rhs = np.where(grounded[parent], 0.0, 1.0)
