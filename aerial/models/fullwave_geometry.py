@@ -41,6 +41,7 @@ import numpy as np
 import scipy.sparse as sp
 
 from aerial.core.errors import ModelInputError
+from aerial.core.lengthtext import metres
 from aerial.models.segments import Segments
 
 #: Highest feed point accepted without an earth lead: the connector from the
@@ -320,8 +321,8 @@ def _wires_with_feed_connector(seg, counts, tol, has_lead, warnings):
             n_connector = 1
             if feed[2] < MIN_LENGTH_TO_RADIUS * rad[0]:
                 warnings.append(
-                    f"the feed gap ({feed[2] * 1e3:.3g} mm) is shorter than {MIN_LENGTH_TO_RADIUS:g} wire radii: "
-                    "the thin-wire kernel is rough there"
+                    "the feed gap (" + metres(feed[2], ".3g", "mm")
+                    + f") is shorter than {MIN_LENGTH_TO_RADIUS:g} wire radii: the thin-wire kernel is rough there"
                 )
         feed = np.array([feed[0], feed[1], 0.0])
     else:
