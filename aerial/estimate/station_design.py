@@ -117,8 +117,7 @@ def evaluate_many(scene: Scene, candidates_parts) -> list:
     centre = float(np.sqrt(scene.frequency.min() * scene.frequency.max()))
     g = np.array([[1.0 / float(np.exp(np.mean(np.log(r))))] for r in lv.input_resistance])
     rej = tn_mod.rejection_stack(np.array([centre]), scene.za, plan, g, [scene.spacing_hz])[scene.spacing_hz]
-    return [merit(scene, lv.detector_voltage[p], lv.input_resistance[p], lv.others[p], lv.capacitance[p],
-                  float(rej[p, 0])) for p in range(len(parts))]
+    return merits(scene, lv.detector_voltage, lv.input_resistance, lv.others, lv.capacitance, rej[:, 0])
 
 
 def summarise(scene: Scene, lv, parts) -> dict:
@@ -132,21 +131,30 @@ def summarise(scene: Scene, lv, parts) -> dict:
 
 def merit(scene: Scene, detector_voltage, input_resistance, others, capacitance, rejection_db) -> dict:
     """The figures of merit from a candidate's solved levels and its adjacent-channel rejection [dB]."""
+    return merits(scene, np.asarray(detector_voltage)[None], np.asarray(input_resistance)[None],
+                  np.asarray(others)[None], np.asarray(capacitance)[None], [rejection_db])[0]
+
+
+def merits(scene: Scene, detector_voltage, input_resistance, others, capacitance, rejection_db) -> list:
+    """:func:`merit` of P candidates at once: arrays (P, n), ``others`` (P, n, n), ``rejection_db`` (P,).
+
+    Every step is taken for all candidates together; row p gives what :func:`merit` gives for candidate p."""
     power = detector_voltage**2 / input_resistance
-    weakest = int(np.argmin(power))
-    own = np.diag(others)
+    weakest = np.argmin(power, axis=1)
+    own = np.diagonal(others, axis1=1, axis2=2).copy()
     # a pair counts unless the other station stays inaudible while the wanted one is heard: a design
     # cannot pass by making everything too faint to hear
-    counts = (others >= scene.threshold) | (own < scene.threshold)[:, None]
-    np.fill_diagonal(counts, False)
-    sep = np.where(counts, 20.0 * np.log10(np.maximum(own, 1e-300)[:, None] / np.maximum(others, 1e-300)), np.inf)
-    i, j = np.unravel_index(int(np.argmin(sep)), sep.shape)
-    return {
-        "weakest_power_w": float(power[weakest]), "weakest": weakest, "power_w": power,
-        "worst_separation_db": float(sep[i, j]), "pair": (int(i), int(j)),
-        "rejection_db": rejection_db, "capacitance_f": capacitance,
-        "own": own, "sep": sep,
-    }
+    counts = (others >= scene.threshold) | (own < scene.threshold)[:, :, None]
+    n = own.shape[1]
+    counts[:, np.arange(n), np.arange(n)] = False
+    sep = np.where(counts, 20.0 * np.log10(np.maximum(own, 1e-300)[:, :, None] / np.maximum(others, 1e-300)), np.inf)
+    worst = np.argmin(sep.reshape(sep.shape[0], -1), axis=1)
+    return [{
+        "weakest_power_w": float(power[p, weakest[p]]), "weakest": int(weakest[p]), "power_w": power[p],
+        "worst_separation_db": float(sep[p, w // n, w % n]), "pair": (int(w // n), int(w % n)),
+        "rejection_db": float(rejection_db[p]), "capacitance_f": capacitance[p],
+        "own": own[p], "sep": sep[p],
+    } for p, w in enumerate(worst.tolist())]
 
 
 #: Variable capacitors the design picks from: (maximum, minimum) [F]. Common practice: air-spaced

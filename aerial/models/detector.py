@@ -29,7 +29,7 @@ from aerial.core.constants import ELEMENTARY_CHARGE as elementary_charge
 
 from aerial.core.errors import ModelInputError
 from aerial.models.checks import positive as _check
-from aerial.models.special_functions import ive
+from aerial.models.special_functions import ive, ive_pair
 
 #: Default junction temperature. [K]
 DEFAULT_TEMPERATURE_K = 300.0
@@ -153,10 +153,6 @@ def _log_i0(x):
     return np.log(ive(0, x)) + x
 
 
-def _log_i1(x):
-    return np.log(np.maximum(ive(1, x), 1e-300)) + x
-
-
 def open_circuit_detected_voltage(peak_voltage, ideality, temperature=DEFAULT_TEMPERATURE_K):
     """DC output of a peak detector with no load (infinite load resistance).
 
@@ -269,11 +265,13 @@ def loaded_detector(peak_voltage, saturation_current, ideality, load_resistance,
         raise ModelInputError(f"rtol must lie between 0 and 0.1, got {rtol!r}")
     vp, rl = np.broadcast_arrays(vp, rl)
     x = vp / vt
-    li0 = _log_i0(x)
+    i0, i1 = ive_pair(x)  # both orders at once: they share the region and the continued fractions
+    li0 = np.log(i0) + x  # ln I0(x), as _log_i0
     vdc, converged, it = _detector_root(li0, rl, i_s, vt, rtol, max_iter)
     small = x < 1e-6
-    xs = np.where(small, 1e-6, x)
-    r_in = vp / (2.0 * i_s) * np.exp(vdc / vt - _log_i1(xs))
+    # ln I1(x) (I1 kept off zero); a vanishing signal takes the zero-bias resistance (no exponent worked out for it)
+    exponent = np.where(small, 0.0, vdc / vt - (np.log(np.maximum(i1, 1e-300)) + x))
+    r_in = vp / (2.0 * i_s) * np.exp(exponent)
     r_in = np.where(small, vt / i_s, r_in)
     return Detection(vdc, r_in, converged, it)
 

@@ -373,7 +373,13 @@ def _entry(a, i, j):
     broadcast against the stack's shape."""
     if np.ndim(i) == 0 and np.ndim(j) == 0:
         return (Ellipsis, i, j)
-    return (*np.indices(a.shape[:-2], sparse=True), i, j)
+    return (*_stack_index(a.shape[:-2]), i, j)
+
+
+@functools.lru_cache(maxsize=64)
+def _stack_index(shape: tuple) -> tuple:
+    """``np.indices(shape, sparse=True)``, worked out once per shape (the entries of a stack are indexed often)."""
+    return tuple(np.indices(shape, sparse=True))
 
 
 def _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns, lay: _Layout):
@@ -556,7 +562,10 @@ def solve_network_stack(frequency, aerial_impedance, parts_stack, tuning_capacit
 def _per_network(values, f, shared) -> np.ndarray:
     """A frequency-dependent part value (a number, or a callable of f) of every network of a group, (G, m).
 
-    With ``shared`` frequencies (every row of ``f`` the same), a callable met again is not called again."""
+    With ``shared`` frequencies (every row of ``f`` the same), a callable met again is not called again (and
+    when every network has the very same one, its values serve every row)."""
+    if shared is not None and callable(values[0]) and all(v is values[0] for v in values):
+        return np.broadcast_to(values[0](shared), f.shape)
     seen: dict = {}
     rows = []
     for i, v in enumerate(values):

@@ -114,21 +114,17 @@ def _ascending_length(radius):
     return k + 2
 
 
-def _power_sum(x, coefficients, length):
-    """sum_k coefficients[k] x^k for k < length, over the last axis of a power table."""
-    powers = np.power(x[..., None], np.arange(length))
-    return powers @ coefficients[:length]
-
-
-def _bessel_i_series(v, z):
-    """I_v(z), v = 0 or 1, by its power series (A&S 9.6.10); for |z| <= 20.
+def _bessel_i_series(orders, z):
+    """I_v(z) for each order v (0 or 1) of ``orders``, by its power series (A&S 9.6.10); for |z| <= 20.
 
     The sum is at least its first term for real z and for |arg z| <= pi/4
     (there |I_0| >= 1 and |I_1| >= |z|/2), so the terms kept reach 1e-17 of it.
+    The orders share one table of powers of z^2/4.
     """
     length = _ascending_length(float(np.abs(z).max())) if z.size else 1
-    total = _power_sum(0.25 * z * z, _I_COEFFICIENTS[v], length)
-    return total if v == 0 else 0.5 * z * total
+    powers = np.power((0.25 * z * z)[..., None], np.arange(length))
+    return tuple(powers @ _I_COEFFICIENTS[0][:length] if v == 0 else 0.5 * z * (powers @ _I_COEFFICIENTS[1][:length])
+                 for v in orders)
 
 
 def _bessel_k_series(z):
@@ -207,33 +203,53 @@ def _hankel_coefficients(v):
 _HANKEL = (_hankel_coefficients(0), _hankel_coefficients(1))
 
 
+_HANKEL_SIZES = (np.abs(_HANKEL[0][1:]), np.abs(_HANKEL[1][1:]))
+_HANKEL_POWERS = np.arange(1, _SERIES_LENGTH)
+
+
 def _hankel_length(radius):
-    """Terms of the large-argument expansion at |z| >= radius until they fall below 1e-18 (scalar, radius >= 20)."""
-    for k in range(1, _SERIES_LENGTH):
-        if abs(_HANKEL[0][k]) / radius**k <= 1e-18 and abs(_HANKEL[1][k]) / radius**k <= 1e-18:
-            return k + 1
-    raise ValueError("large-argument expansion used below its radius")
+    """Terms of the large-argument expansion at |z| >= radius until they fall below 1e-18 (scalar, radius >= 20).
+
+    The first k (from 1) at which both orders' terms |a_k|/radius^k are that small, every k tried at once."""
+    with np.errstate(over="ignore"):  # a far argument's high powers overflow: its first terms are already small
+        scale = float(radius) ** _HANKEL_POWERS
+    small = np.flatnonzero((_HANKEL_SIZES[0] / scale <= 1e-18) & (_HANKEL_SIZES[1] / scale <= 1e-18))
+    if small.size == 0:
+        raise ValueError("large-argument expansion used below its radius")
+    return int(small[0]) + 2
 
 
-def _hankel_sums(v, z):
-    """Sums of (-1)^k a_k(v)/z^k and of a_k(v)/z^k of the large-argument expansions (DLMF 10.40.1, 10.40.2)."""
+def _hankel_powers(z):
+    """Powers 1/z^k, k < the expansion's length at min |z|, for :func:`_hankel_sums` (shared by the orders)."""
     length = _hankel_length(float(np.min(np.abs(z)))) if z.size else 1
-    powers = np.power((1.0 / z)[..., None], np.arange(length))
+    return np.power((1.0 / z)[..., None], np.arange(length))
+
+
+def _hankel_sums(v, z, powers=None):
+    """Sums of (-1)^k a_k(v)/z^k and of a_k(v)/z^k of the large-argument expansions (DLMF 10.40.1, 10.40.2)."""
+    powers = _hankel_powers(z) if powers is None else powers
+    length = powers.shape[-1]
     coefficients = _HANKEL[v][:length]
     fall = powers @ coefficients
     grow = powers @ (coefficients * (-1.0) ** np.arange(length))
     return grow, fall
 
 
-def _bessel_i_asymptotic(v, z):
-    """e^{-|Re z|} I_v(z) for |z| > 20, Re z >= 0, from the large-argument expansion (DLMF 10.40.5)."""
-    grow, fall = _hankel_sums(v, z)
+def _bessel_i_asymptotic(orders, z):
+    """e^{-|Re z|} I_v(z) for each order v of ``orders``, |z| > 20, Re z >= 0, from the large-argument
+    expansion (DLMF 10.40.5)."""
+    powers = _hankel_powers(z)
     root = np.sqrt(2.0 * np.pi * z)
-    if not np.iscomplexobj(z):
-        return grow / root  # the e^-z term is below e^-40 of the first here
-    upper = np.imag(z) >= 0
-    connect = np.where(upper, 1j * np.exp(1j * np.pi * v), -1j * np.exp(-1j * np.pi * v))
-    return (np.exp(1j * z.imag) * grow + connect * np.exp(-2.0 * z.real - 1j * z.imag) * fall) / root
+    out = []
+    for v in orders:
+        grow, fall = _hankel_sums(v, z, powers)
+        if not np.iscomplexobj(z):
+            out.append(grow / root)  # the e^-z term is below e^-40 of the first here
+            continue
+        upper = np.imag(z) >= 0
+        connect = np.where(upper, 1j * np.exp(1j * np.pi * v), -1j * np.exp(-1j * np.pi * v))
+        out.append((np.exp(1j * z.imag) * grow + connect * np.exp(-2.0 * z.real - 1j * z.imag) * fall) / root)
+    return tuple(out)
 
 
 def _bessel_k_large(z):
@@ -267,15 +283,28 @@ def _by_region(x, pieces):
     return out
 
 
-def _bessel_i_wronskian(v, z):
-    """e^{-|Re z|} I_v(z) for 2 < |z| <= 20 from I_1/I_0 and the Wronskian I_0 K_1 + I_1 K_0 = 1/z ([3]_ sec. 6.6)."""
+def _by_region_each(x, pieces, count):
+    """:func:`_by_region` for functions giving ``count`` arrays at once: a tuple of ``count`` arrays."""
+    out = tuple(np.empty_like(x) for _ in range(count))
+    for mask, function in pieces:
+        if mask.all():
+            return function(x)
+        if mask.any():
+            for o, values in zip(out, function(x[mask])):
+                o[mask] = values
+    return out
+
+
+def _bessel_i_wronskian(orders, z):
+    """e^{-|Re z|} I_v(z) for each order v of ``orders``, 2 < |z| <= 20, from I_1/I_0 and the Wronskian
+    I_0 K_1 + I_1 K_0 = 1/z ([3]_ sec. 6.6): one continued fraction of each kind serves both orders."""
     k0, k1 = _bessel_k_steed(z)
     ratio = _bessel_i_ratio(z)
     # K = kve e^{-z}, so e^{-Re z} I0 = e^{i Im z} / (z (kve1 + f kve0))
     i0 = 1.0 / (z * (k1 + ratio * k0))
     if np.iscomplexobj(z):
         i0 = i0 * np.exp(1j * z.imag)
-    return i0 if v == 0 else i0 * ratio
+    return tuple(i0 if v == 0 else i0 * ratio for v in orders)
 
 
 def ive(v, z):
@@ -321,7 +350,24 @@ def ive(v, z):
     >>> float(ive(1, 0.0))
     0.0
     """
-    v = _order(v)
+    return _ive_orders((_order(v),), z)[0]
+
+
+def ive_pair(z):
+    """e^{-|Re z|} I_0(z) and e^{-|Re z|} I_1(z) together: :func:`ive` of both orders, with the work they
+    share (region, powers, continued fractions) done once. [1]
+
+    Examples
+    --------
+    >>> i0, i1 = ive_pair(np.array([0.5, 5.0, 50.0]))
+    >>> bool(np.all(i0 == ive(0, [0.5, 5.0, 50.0])) and np.all(i1 == ive(1, [0.5, 5.0, 50.0])))
+    True
+    """
+    return _ive_orders((0, 1), z)
+
+
+def _ive_orders(orders, z):
+    """:func:`ive` of each order of ``orders`` (a tuple of arrays)."""
     z = _as_argument(z, "z")
     flip = z.real < 0
     turned = bool(flip.any())
@@ -330,17 +376,18 @@ def ive(v, z):
     top = float(mag.max()) if w.size else 0.0
     complex_arg = w.dtype.kind == "c"
     if top <= _BESSEL_ASYMPTOTIC_RADIUS and (not complex_arg or bool((np.abs(w.imag) <= w.real).all())):
-        out = _bessel_i_series(v, w) * np.exp(-w.real)  # all in the series' region (the detector's case)
+        scale = np.exp(-w.real)  # all in the series' region (the detector's case)
+        out = tuple(i * scale for i in _bessel_i_series(orders, w))
     else:
         near = mag <= _BESSEL_ASYMPTOTIC_RADIUS
         series = (mag <= _BESSEL_SERIES_RADIUS) | (near & (np.abs(w.imag) <= w.real))
-        out = _by_region(w, [
-            (series, lambda x: _bessel_i_series(v, x) * np.exp(-x.real)),
-            (near & ~series, lambda x: _bessel_i_wronskian(v, x)),
-            (~near, lambda x: _bessel_i_asymptotic(v, x)),
-        ])
-    if v == 1 and turned:
-        out = np.where(flip, -out, out)
+        out = _by_region_each(w, [
+            (series, lambda x: tuple(i * np.exp(-x.real) for i in _bessel_i_series(orders, x))),
+            (near & ~series, lambda x: _bessel_i_wronskian(orders, x)),
+            (~near, lambda x: _bessel_i_asymptotic(orders, x)),
+        ], len(orders))
+    if turned:
+        out = tuple(np.where(flip, -o, o) if v == 1 else o for v, o in zip(orders, out))
     return out
 
 
