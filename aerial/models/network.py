@@ -62,6 +62,12 @@ EDGE_MAX_ITER = 60
 #: fewer when the trial points of all edges together would pass EDGE_LOOKAHEAD_POINTS.
 EDGE_LOOKAHEAD = 4
 EDGE_LOOKAHEAD_POINTS = 256
+#: For many edges at once (one trial point per edge and call): halvings taken by evaluating the response
+#: before each crossing is pinned down (by then every bracket is 3**(1/32), about 3.5 %, wide), the relative
+#: width the crossing is pinned to and the limit on those steps.
+EDGE_OPENING_HALVINGS = 5
+EDGE_PIN_RTOL = 1e-13
+EDGE_PIN_MAX_ITER = 40
 
 
 def block_inductance_tight(inductance: float) -> Callable:
@@ -735,11 +741,19 @@ def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER,
     Notes
     -----
     Each edge is where |V(f)| = |V(f0)|/√2, searched from f0 out to f0/3 and 3·f0; the loaded Q
-    is f0/(f_high − f_low), the usual definition for a single resonance [1]_.
+    is f0/(f_high − f_low), the usual definition for a single resonance [1]_. For many edges at
+    once (one trial point each per call) the first :data:`EDGE_OPENING_HALVINGS` halvings are
+    solved, each crossing is then pinned by regula falsi with the Illinois modification [4]_ and
+    the remaining halvings are replayed against it (a midpoint outside the pinned bracket judged
+    by its side, one inside it solved): the plain bisection's edges whenever the response crosses
+    the level once in the bracket the opening halvings leave, in about a third of the calls.
 
     References
     ----------
     Terman, Radio Engineers' Handbook, 1943, section 3 (resonant circuits) (module reference [1]; from memory).
+
+    .. [4] M. Dowell, P. Jarratt, "A modified regula falsi method for computing the root of an
+       equation", BIT 11, 1971, pp. 168-174 (from memory).
 
     Examples
     --------
@@ -754,41 +768,119 @@ def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER,
     ref = np.abs(response(f0) if tuned is None else np.asarray(tuned, dtype=float)) / np.sqrt(2.0)
     # both edges searched together, one response call per halving; each edge stops halving once all
     # its own searches have converged, so every edge is exactly what a search of its own would give
-    near = np.concatenate([f0.ravel(), f0.ravel()])
-    far = np.concatenate([(f0 / 3.0).ravel(), (f0 * 3.0).ravel()])
-    ref2 = np.concatenate([ref.ravel(), ref.ravel()])
-    beyond = np.abs(_respond(response, far, f0.shape)) >= ref2
+    s = _EdgeSearch(response, f0.shape, np.concatenate([f0.ravel(), f0.ravel()]),
+                    np.concatenate([(f0 / 3.0).ravel(), (f0 * 3.0).ravel()]), np.concatenate([ref.ravel(), ref.ravel()]),
+                    rtol, int(max_iter))
+    s.level_near = s.ref * np.sqrt(2.0)
+    s.level_far = np.abs(_respond(response, s.far, f0.shape))
+    beyond = s.level_far >= s.ref
     floor = (beyond[:n] | beyond[n:]).reshape(f0.shape)
-    active = [True, True]
-    column = np.arange(2 * n)
     # look ahead only while the trial points stay few: for many edges a call costs its points, not its overhead
     ahead = max(1, min(EDGE_LOOKAHEAD, int(math.log2(EDGE_LOOKAHEAD_POINTS / (2 * n) + 1))))
-    taken = 0
-    while taken < int(max_iter) and any(active):
-        # every midpoint the next few halvings can reach, in one call of the response; then the
-        # halvings one by one on those very midpoints, as a search evaluating each alone would
-        depth = min(ahead, int(max_iter) - taken)
-        mids = bisection_midpoints(near, far, depth)
-        reached = np.abs(_respond(response, mids, f0.shape)).reshape(mids.shape) >= ref2
-        node = np.zeros(2 * n, dtype=int)
-        for _ in range(depth):
-            mid, inside = mids[node, column], reached[node, column]
-            # the edges still searched (both, as a rule: they start alike and converge together), in one go
-            first, last = (0 if active[0] else 1), (2 if active[1] else 1)
-            part = slice(first * n, last * n)
-            near[part] = np.where(inside[part], mid[part], near[part])
-            far[part] = np.where(inside[part], far[part], mid[part])
-            close = (np.abs(far[part] / near[part] - 1.0) <= rtol).reshape(last - first, n).all(axis=1)
-            for e, done in zip(range(first, last), close):
-                active[e] = not bool(done)
-            taken += 1
-            if not any(active):
-                break
-            node = 2 * node + np.where(inside, 2, 1)  # node 2i + 2: the bracket beyond the midpoint
-    both = np.sqrt(near * far)
+    if ahead > 1:
+        s.halve(ahead, s.max_iter)
+    else:  # many edges: a few halvings, then each crossing pinned down and the rest of the halvings replayed
+        s.halve(1, min(EDGE_OPENING_HALVINGS, s.max_iter))
+        s.replay(*s.pin())
+    both = np.sqrt(s.near * s.far)
     edges = [both[:n].reshape(f0.shape), both[n:].reshape(f0.shape)]
     bw = np.maximum(edges[1] - edges[0], 1e-9 * f0)
     return TunedResponse(bw, edges[0], edges[1], f0 / bw, floor)
+
+
+class _EdgeSearch:
+    """The −3 dB edge bisection of :func:`detector_bandwidth`: brackets [near, far] of 2n edges (the lower
+    edges, then the upper ones), near inside the response (|V| >= ref), far outside, halved in log f."""
+
+    def __init__(self, response, shape, near, far, ref, rtol, max_iter):
+        self.response, self.shape, self.near, self.far, self.ref = response, shape, near, far, ref
+        self.rtol, self.max_iter, self.taken, self.active = rtol, max_iter, 0, [True, True]
+        self.level_near = self.level_far = None  # |V| at the bracket ends [V]
+
+    def call(self, f):
+        """|V| at ``f`` (leading axes, then the 2n edges), in one call of the response."""
+        return np.abs(_respond(self.response, f, self.shape)).reshape(f.shape)
+
+    def step(self, mid, inside, level):
+        """One halving of the edges still searched (both, as a rule: they start alike and converge together)."""
+        n = self.near.size // 2
+        first, last = (0 if self.active[0] else 1), (2 if self.active[1] else 1)
+        part = slice(first * n, last * n)
+        self.near[part] = np.where(inside[part], mid[part], self.near[part])
+        self.far[part] = np.where(inside[part], self.far[part], mid[part])
+        if level is not None:
+            self.level_near[part] = np.where(inside[part], level[part], self.level_near[part])
+            self.level_far[part] = np.where(inside[part], self.level_far[part], level[part])
+        close = (np.abs(self.far[part] / self.near[part] - 1.0) <= self.rtol).reshape(last - first, n).all(axis=1)
+        for e, done in zip(range(first, last), close):
+            self.active[e] = not bool(done)
+        self.taken += 1
+        return any(self.active)
+
+    def halve(self, ahead, until):
+        """Halvings up to ``until`` in all, every midpoint the next ``ahead`` of them can reach in one call."""
+        column = np.arange(self.near.size)
+        while self.taken < until and any(self.active):
+            # every midpoint the next few halvings can reach, in one call of the response; then the
+            # halvings one by one on those very midpoints, as a search evaluating each alone would
+            depth = min(ahead, until - self.taken)
+            mids = bisection_midpoints(self.near, self.far, depth)
+            levels = self.call(mids)
+            node = np.zeros(self.near.size, dtype=int)
+            for _ in range(depth):
+                mid, level = mids[node, column], levels[node, column]
+                inside = level >= self.ref
+                if not self.step(mid, inside, level) or self.taken >= until:
+                    break
+                node = 2 * node + np.where(inside, 2, 1)  # node 2i + 2: the bracket beyond the midpoint
+
+    def pin(self):
+        """Each edge's crossing of ref bracketed far more tightly than ``rtol``: (inside end, outside end) [Hz].
+
+        Regula falsi with the Illinois modification on ln|V| − ln ref in ln f, all edges together,
+        from the brackets as they stand; an edge whose far end is not outside has its crossing there."""
+        a, b = self.near.copy(), self.far.copy()
+        ref = np.maximum(self.ref, 1e-300)
+        ga = np.log(np.maximum(self.level_near, 1e-300) / ref)
+        gb = np.log(np.maximum(self.level_far, 1e-300) / ref)
+        settled = gb >= 0.0  # no crossing inside: the bisection runs out to the far end
+        a = np.where(settled, b, a)
+        side = np.zeros(a.size, dtype=int)  # the end kept by the last step: -1 the inside one, +1 the outside one
+        for _ in range(EDGE_PIN_MAX_ITER):
+            settled |= np.abs(b / a - 1.0) <= EDGE_PIN_RTOL
+            if settled.all():
+                break
+            la, lb = np.log(a), np.log(b)
+            t = np.where(settled, 0.5, ga / np.where(settled, 1.0, ga - gb))
+            # a trial no nearer an end than a fraction of the pinned width: an end that meets ref to the last
+            # bit (g = 0 there) would otherwise keep the step on itself
+            keep = np.minimum(0.4 * EDGE_PIN_RTOL / np.maximum(np.abs(lb - la), 1e-300), 0.5)
+            u = la + np.clip(t, keep, 1.0 - keep) * (lb - la)
+            trial = np.exp(u)
+            stuck = ~((np.minimum(a, b) < trial) & (trial < np.maximum(a, b)))
+            trial = np.where(stuck, np.sqrt(a * b), trial)
+            g = np.log(np.maximum(self.call(trial), 1e-300) / ref)
+            inside = (g >= 0.0) & ~settled
+            outside = (g < 0.0) & ~settled
+            ga = np.where(inside, g, np.where(outside & (side == 1), 0.5 * ga, ga))
+            gb = np.where(outside, g, np.where(inside & (side == -1), 0.5 * gb, gb))
+            a, b = np.where(inside, trial, a), np.where(outside, trial, b)
+            side = np.where(inside, -1, np.where(outside, 1, side))
+        return a, b
+
+    def replay(self, a, b):
+        """The rest of the halvings, each midpoint judged by where it lies against the pinned bracket [a, b]:
+        on a's side it is inside, on b's side outside; only a midpoint within [a, b] is evaluated."""
+        lo, hi = np.minimum(a, b), np.maximum(a, b)
+        upward = self.far > self.near  # the outside end lies above the inside one (an upper edge)
+        while self.taken < self.max_iter and any(self.active):
+            mid = np.sqrt(self.near * self.far)
+            inside = np.where(upward, mid <= lo, mid >= hi)
+            unsure = (lo < mid) & (mid < hi)
+            if unsure.any():
+                inside = np.where(unsure, self.call(mid[np.newaxis])[0] >= self.ref, inside)
+            if not self.step(mid, inside, None):
+                break
 
 
 def _respond(response, f, shape):

@@ -231,3 +231,29 @@ def test_consistency_check_the_detector_voltage_alone_is_the_full_solves():
         bare = net.solve_network(f, za, parts, 0.0, 3e-4)
         assert np.array_equal(net.tuning_capacitance_for(f, za, parts, 3e-4),
                               -np.imag(1.0 / bare.top_impedance) / (2 * np.pi * f))
+
+
+@pytest.mark.parametrize("arrangement", ["direct", "series capacitor", "coil tap", "separate primary"])
+def test_consistency_check_many_edges_pinned_then_replayed_are_the_plain_bisections(arrangement, monkeypatch):
+    """For many edges at once the -3 dB search halves a few times, pins each crossing by regula falsi and
+    replays the remaining halvings from it: the edges must be the plain bisection's, bit for bit
+    (consistency check on invented networks: 150 tunings of a network with both loadings)."""
+    parts = net.NetworkParts(arrangement, 240e-6, lambda f: TWO_PI * f * 240e-6 / 150.0, detector_tap=0.6,
+                             aerial_tap=0.25, series_capacitance=60e-12, primary_inductance=60e-6,
+                             coupling_coefficient=0.3)
+    f0 = np.geomspace(5.3e5, 1.7e6, 150)
+
+    def za(f):
+        return 30.0 - 1j / (TWO_PI * f * 180e-12)
+
+    g = np.concatenate([np.full(75, 2e-4), np.full(75, 1e-6)])
+    c = np.maximum(net.tuning_capacitance_for(f0, za(f0), parts, g), 1e-12)
+
+    def response(f):
+        return np.abs(net.detector_response(f, za(f), parts, c, g))
+
+    pinned = net.detector_bandwidth(f0, response)
+    monkeypatch.setattr(net, "EDGE_OPENING_HALVINGS", net.EDGE_MAX_ITER)  # every halving evaluated
+    plain = net.detector_bandwidth(f0, response)
+    for got, want in zip(pinned, plain):
+        assert np.array_equal(got, want)
