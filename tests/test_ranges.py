@@ -51,6 +51,10 @@ def assert_ranges_hold_values(result):
     if "earth" in result:
         earth = dict(result["earth"], frequencies_hz=result["frequencies_hz"])
         assert_earth_ranges_hold_values(earth)
+    if result.get("stations"):
+        from .test_reception import assert_audible_ranges_hold
+
+        assert_audible_ranges_hold(result)
     ranges, a, freqs = result["ranges"], result["aerial"], list(result["frequencies_hz"])
     for j, f in enumerate(ranges["frequencies_hz"]):
         i = freqs.index(f)  # ranges sit on the sweep's own frequencies

@@ -396,3 +396,99 @@ def test_consistency_check_the_coverage_searches_in_one_solve_match_value_by_val
     cfg = rc._coil_config(parts, coil, arrangement="coil tap", tap_fraction=taps[:, None])
     together = rc._covers(*band, aerial, coil.inductance, q, cfg, 15e-12, 365e-12, coil.block)
     assert list(together) == [alone(coil.inductance, {**cfg, "tap_fraction": float(t)}) for t in taps]
+
+
+#: An invented flat: a 2.5 m wire on the balcony rail of a brick block, straight to the tank, a 0.5 m rod in
+#: very dry soil for its earth, and a 50 kW station 1.5 km away: a loaded Q near 2 with the local tuned in.
+BRICK_FLAT = """
+[site]
+name = "short wire on a brick flat"
+region = "EU"
+noise = "city"
+bands = ["mf"]
+soil = "very-dry"
+frequency_step = "100 kHz"
+
+[wire]
+diameter = "0.5 mm"
+material = "copper"
+
+[[runs]]
+name = "rail"
+points = [[0.5, 1.2, 9.6], [3.0, 1.2, 9.6]]
+
+[lead_in]
+from = [0.5, 1.2, 9.6]
+via = [[0.5, 0.0, 9.4]]
+
+[receiver]
+at = [0.5, -0.8]
+height = "9.4 m"
+coupling = "direct"
+coil = "220 uH"
+capacitor = ["12 pF", "450 pF"]
+detector = "germanium"
+earphone = "high-impedance"
+
+[[earth.rods]]
+length = "0.5 m"
+
+[building]
+footprint = [[-6.0, -10.0], [12.0, -10.0], [12.0, 0.0], [-6.0, 0.0]]
+height = "15 m"
+construction = "brick"
+
+[[stations]]
+name = "Demo Local"
+frequency = "1.13 MHz"
+power = "50 kW"
+distance = "1.5 km"
+
+[[stations]]
+name = "Demo Distant"
+frequency = "700 kHz"
+power = "10 kW"
+distance = "60 km"
+"""
+
+
+def assert_audible_ranges_hold(result):
+    """Each station's audible stretch of the dial holds its frequency, lies on the dial and is as wide as it says."""
+    band = result["tuning"]["band"]
+    for s in result["stations"]:
+        width = s["audible_width_hz"]
+        assert math.isfinite(width) and width >= 0
+        if "audible_range_hz" not in s:
+            assert width == 0 and s["audible_across_dial"] is False
+            continue
+        low, high = s["audible_range_hz"]
+        dial = (min(band["from_hz"], s["frequency_hz"]), max(band["to_hz"], s["frequency_hz"]))
+        assert dial[0] <= low <= s["frequency_hz"] <= high <= dial[1], (s["name"], low, high)
+        assert width == pytest.approx(high - low, rel=1e-12)
+        assert s["audible_across_dial"] == (low == dial[0] and high == dial[1])
+
+
+def test_a_broad_tank_hears_the_local_across_the_whole_dial_in_every_output(capsys, write_site, tmp_path):
+    """A loaded Q near 2 would make the local audible over many megahertz: the JSON bounds it by the band the
+    tuning covers and flags it; the terminal report and the page say it in the same words (invented site;
+    consistency checks of aerial's own outputs)."""
+    from .conftest import run
+
+    site, page = write_site(BRICK_FLAT), tmp_path / "report.html"
+    code, out, err = run(capsys, "report", site, "--json", "--page", page)
+    assert code == 0, err
+    result = json.loads(out)
+    local = next(s for s in result["stations"] if s["name"] == "Demo Local")
+    assert local["loaded_q"] < 3 and local["verdict"] == "clearly heard"
+    band = result["tuning"]["band"]
+    assert local["audible_across_dial"] is True
+    assert local["audible_range_hz"] == [band["from_hz"], band["to_hz"]]
+    assert local["audible_width_hz"] == pytest.approx(band["to_hz"] - band["from_hz"])  # 1.19 MHz, not 18 MHz
+    assert_audible_ranges_hold(result)
+    assert "NaN" not in out and "Infinity" not in out
+    code, out, err = run(capsys, "report", site, "--width", "1000")
+    assert code == 0, err
+    words = (f"audible across the whole dial (520 kHz to 1.71 MHz): at a loaded Q of {local['loaded_q']:.2g} the "
+             "tuning is too broad to tune it out")
+    assert words in out.replace("\u00a0", " ")
+    assert words in page.read_text(encoding="utf-8").replace("\u00a0", " ")

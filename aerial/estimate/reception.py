@@ -1422,7 +1422,8 @@ def assess_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm, eff
         ``verdict`` (one of "clearly heard", "marginal", "not heard") with its
         ``reason``, ``heard_behind`` (stations whose spill-over is audible when
         tuned here), ``spills_over`` (stations this one is heard behind),
-        ``audible_width_hz`` (dial width over which this station stays audible),
+        ``audible_width_hz``, ``audible_range_hz`` and ``audible_across_dial`` (where on the dial
+        this station stays audible, bounded by the dial: :func:`audible_on_dial`),
         ``warnings``.
 
     Notes
@@ -1506,6 +1507,8 @@ def assess_stations_by_condition(frequency_hz, aerial_r_ohm, aerial_x_ohm, aeria
     _apply_calibration(aerial, parts, diode, common)
     coil = _station_coil(aerial, parts, band) if coil is None else coil
     together = _station_arrays(aerial, coil, parts, diode, every, noise_category, modulation_depth)
+    # the dial an audible width is bounded by: the band the tuning is for, else the sweep [Hz]
+    together["dial_hz"] = (float(aerial.f[0]), float(aerial.f[-1])) if band is None else (float(band[0]), float(band[1]))
     return [_judged_rows(aerial, parts, stations, _condition_arrays(together, k * n, (k + 1) * n), common)
             for k, stations in enumerate(conditions)]
 
@@ -1725,12 +1728,58 @@ def judge_stations(a: dict, parts: TuningParts, names) -> list:
     return out
 
 
+def audible_on_dial(frequency_hz, loaded_q, level_ratio, dial_hz) -> dict:
+    """Where on the dial a station stays audible, bounded by the dial.
+
+    Parameters
+    ----------
+    frequency_hz : float
+        The station's frequency. [Hz]
+    loaded_q : float
+        The tank's loaded Q with the station tuned in. [1]
+    level_ratio : float
+        The just-audible detector voltage over the station's own when tuned in (≥ 1: not heard). [1]
+    dial_hz : (float, float)
+        The dial: the band the tuning is designed for, widened to the station's frequency when it
+        lies outside. [Hz]
+
+    Returns
+    -------
+    dict
+        ``audible_width_hz`` (the stretch of the dial over which the station stays audible, 0 when
+        it is not heard), ``audible_range_hz`` ([low, high] on the dial, when heard) and
+        ``audible_across_dial`` (true when it is audible wherever the dial is set).
+
+    Notes
+    -----
+    The span is :func:`aerial.models.tank.audible_tuning_span` at the station's loaded Q; at a
+    loaded Q near 1 it runs to many times the station's frequency, which no dial reaches, so it is
+    cut at the dial's ends and a station heard from one end to the other is flagged instead.
+
+    Examples
+    --------
+    >>> w = audible_on_dial(1.13e6, 0.8, 0.1, (520e3, 1710e3))  # a strong local, a very broad tank
+    >>> w["audible_across_dial"], round(w["audible_width_hz"] / 1e3)
+    (True, 1190)
+    >>> audible_on_dial(1e6, 50.0, 2.0, (520e3, 1710e3))  # not heard even when tuned in
+    {'audible_width_hz': 0.0, 'audible_across_dial': False}
+    """
+    if not level_ratio < 1.0:  # not heard even when tuned in (a failed solution included)
+        return {"audible_width_hz": 0.0, "audible_across_dial": False}
+    lo_dial, hi_dial = min(dial_hz[0], frequency_hz), max(dial_hz[1], frequency_hz)
+    low, high = (float(v) for v in tank_mod.audible_tuning_span(frequency_hz, loaded_q, level_ratio))
+    low, high = max(low, lo_dial), min(high, hi_dial)
+    return {"audible_width_hz": high - low, "audible_range_hz": [low, high],
+            "audible_across_dial": bool(low <= lo_dial and high >= hi_dial)}
+
+
 def _station_row(s, a, i, judged, warn) -> dict:
     fs, gw, v_top, audio = a["fs"], a["gw"], a["v_top"], a["audio"]
     threshold, ql = a["threshold"], a["ql"]
     pa = float(audio.audio_power[i])
     r_ratio = threshold / a["v_det"][i] if np.isfinite(threshold) else np.inf
-    width = float(fs[i] * np.sqrt(1.0 / r_ratio**2 - 1.0) / ql[i]) if r_ratio < 1 else 0.0
+    dial = a.get("dial_hz") or (float(fs[i]), float(fs[i]))
+    audible = audible_on_dial(float(fs[i]), float(ql[i]), float(r_ratio), dial)
     return {
         "name": s.name,
         "frequency_hz": _num(fs[i], "frequency_hz", warn),
@@ -1766,7 +1815,10 @@ def _station_row(s, a, i, judged, warn) -> dict:
         "reason": judged["reason"],
         **({"interference": {"name": judged["interference"]["name"], "level_relative_db": _num(
             judged["interference"]["level_relative_db"], "level_relative_db", warn)}} if "interference" in judged else {}),
-        "audible_width_hz": _num(width, "audible_width_hz", warn),
+        "audible_width_hz": _num(audible["audible_width_hz"], "audible_width_hz", warn),
+        **({"audible_range_hz": [_num(v, "audible_range_hz", warn) for v in audible["audible_range_hz"]]}
+           if "audible_range_hz" in audible else {}),
+        "audible_across_dial": audible["audible_across_dial"],
         "heard_behind": [],
         "spills_over": [],
         "warnings": warn,

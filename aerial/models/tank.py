@@ -392,6 +392,64 @@ def single_tuned_response(frequency, centre_frequency, q):
     return 1.0 / np.sqrt(1.0 + y**2)
 
 
+def audible_tuning_span(frequency, q, level_ratio):
+    """The tuned frequencies over which a signal stays at least ``level_ratio`` of its level when tuned in.
+
+    A single tuned circuit of loaded Q tuned to f_t passes a signal at f with
+    |H| = 1/√(1 + Q²(f/f_t − f_t/f)²) of the level it gives when tuned to f. The span is where
+    |H| ≥ ``level_ratio``: with a detector, the ratio of the just-audible voltage to the signal's
+    own, it is the stretch of the dial over which the signal stays audible.
+
+    Parameters
+    ----------
+    frequency : array_like
+        The signal's frequency. [Hz]
+    q : array_like
+        Loaded Q, taken as the same across the span. [1]
+    level_ratio : array_like
+        The lowest relative level that counts, r > 0; at r ≥ 1 (infinite included) the signal is not
+        heard even when tuned in, and the span is the frequency alone. [1]
+
+    Returns
+    -------
+    low, high : ndarray
+        The lowest and the highest tuned frequency; low ≤ frequency ≤ high. [Hz]
+
+    Notes
+    -----
+    |H| ≥ r ⇔ Q·|u − 1/u| ≤ x with u = f/f_t and x = √(1/r² − 1), so with y = x/Q
+
+        f_t from f·(√(y² + 4) − y)/2 to f·(√(y² + 4) + y)/2,
+
+    a width of exactly f·x/Q (the universal resonance curve's f·x/Q near resonance holds across the
+    whole curve), geometrically centred on f. The low end never reaches 0 Hz, but the high end grows
+    without bound as Q falls: at Q ≈ 1 a strong signal spans many times its own frequency, so a
+    caller bounds the span by the dial the tuning actually covers.
+
+    References
+    ----------
+    Terman, Radio Engineers' Handbook, McGraw-Hill, 1943 (universal resonance curve, from memory).
+
+    Examples
+    --------
+    >>> low, high = audible_tuning_span(1e6, 50.0, 1 / 2**0.5)  # the −3 dB points
+    >>> round(float(high - low)), round(float(low * high / 1e12), 9)  # the bandwidth f/Q, centred geometrically
+    (20000, 1.0)
+    >>> [float(v) for v in audible_tuning_span(1e6, 50.0, 2.0)]  # not heard even when tuned in
+    [1000000.0, 1000000.0]
+    """
+    f = _positive("frequency", frequency)
+    qq = _positive("q", q)
+    r = np.asarray(level_ratio, dtype=float)
+    if np.any(np.isnan(r) | (r <= 0)):
+        raise ModelInputError(f"level_ratio must be positive (infinite: not heard), got {level_ratio!r}")
+    heard = r < 1
+    x = np.sqrt(1.0 / np.where(heard, r, 0.5) ** 2 - 1.0)
+    y = np.where(heard, x / qq, 0.0)
+    root = np.sqrt(y**2 + 4.0)
+    return f * (root - y) / 2.0, f * (root + y) / 2.0
+
+
 def adjacent_rejection_db(centre_frequency, q, offset):
     """Rejection of a signal ``offset`` away, the weaker of the two sides. [dB]
 

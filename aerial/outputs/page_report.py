@@ -12,7 +12,7 @@ from aerial.outputs import charts, site_drawings
 from aerial.outputs.page import (VERDICT_CLASS, VERDICT_MARK, bullets, dict_rows_table, document, esc, figure,
                                  format_value, generic_block, key_label, length_range_text, range_text, section,
                                  site_file_name, table)
-from aerial.outputs.terminal import (Lengths, untunable_words, centre_index, design_power_words, design_separation_words,
+from aerial.outputs.terminal import (Lengths, audible_dial_words, untunable_words, centre_index, design_power_words, design_separation_words,
                                      design_shown_rows, detector_power_words, effective_length_words, eng,
                                      tuning_cell_text)
 
@@ -373,6 +373,9 @@ def _station_reasons(s, L: Lengths) -> list[str]:
                 f"{x['name']} ({x['level_relative_db']:+.1f} dB against it)"
                 if isinstance(x, dict) and "name" in x and isinstance(x.get("level_relative_db"), (int, float))
                 else format_value(key, x) for x in s[key])
+    across = audible_dial_words(s)
+    if across:
+        text += ("; " if text else "") + across
     text += "".join(f"; {L.text(w)}" for w in s.get("warnings", []))
     out = [f"{name}{' by day' if s.get('night') else ''}: {text}"] if text else []
     night = s.get("night") or {}

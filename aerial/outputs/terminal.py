@@ -765,6 +765,21 @@ def _render_station_design(tuning, console) -> None:
                       f"{eng(r['wanted_power_w'], 'W')} at the detector{before} — {escape(verdict)}")
 
 
+def audible_dial_words(station) -> str | None:
+    """A station heard wherever the dial is set, in words, the same in the report and on the page; None otherwise.
+
+    >>> audible_dial_words({"audible_across_dial": True, "audible_range_hz": [520e3, 1710e3], "loaded_q": 2.08})
+    'audible across the whole dial (520 kHz to 1.71 MHz): at a loaded Q of 2.1 the tuning is too broad to tune it out'
+    """
+    if not station.get("audible_across_dial"):
+        return None
+    low, high = station.get("audible_range_hz") or (None, None)
+    q = station.get("loaded_q")
+    at = f"at a loaded Q of {q:.2g} " if isinstance(q, (int, float)) else ""
+    return (f"audible across the whole dial ({eng(low, 'Hz')} to {eng(high, 'Hz')}): {at}the tuning is too broad "
+            "to tune it out")
+
+
 def detector_power_words(station) -> str:
     """A station's power at the detector, or what it would be if the capacitor could tune it."""
     p = eng(station.get("detector_power_w"), "W")
@@ -801,6 +816,9 @@ def _render_stations(stations, console, L: Lengths) -> None:
         why = s.get("reason", "")
         if s.get("spills_over"):
             why += ("; " if why else "") + "also comes through when tuned to: " + ", ".join(s["spills_over"])
+        across = audible_dial_words(s)
+        if across:
+            why += ("; " if why else "") + across
         if why:
             console.print(f"  {escape(s.get('name', ''))}: {escape(L.text(why))}")
         night = s.get("night") or {}

@@ -83,6 +83,35 @@ def test_universal_resonance_curve_at_half_bandwidth():
     assert float(tank.single_tuned_response(1e6 * (1 + 1 / (2 * q)), 1e6, q)) == pytest.approx(2**-0.5, rel=2e-3)
 
 
+@pytest.mark.parametrize("q, ratio", [(50.0, 2**-0.5), (8.0, 0.2), (0.8, 0.1), (2.0, 0.01)])
+def test_audible_tuning_span_edges_against_scipy_bandpass(q, ratio):
+    """At either end of the span the tank tuned there passes the signal at exactly ``ratio`` of its level.
+
+    Outside reference: the second-order band-pass H(s) = (ω_t/Q)s/(s² + (ω_t/Q)s + ω_t²) of scipy.signal.freqs
+    (the single tuned circuit of Terman's universal resonance curve), tuned to each edge and read at the signal.
+    The (Q, ratio) rows are ours: from a high-Q tank at −3 dB to a broad one (Q 0.8) with a strong signal.
+    """
+    from scipy import signal
+
+    f = 1.13e6
+    low, high = (float(v) for v in tank.audible_tuning_span(f, q, ratio))
+    assert low < f < high
+    for tuned in (low, high):
+        wt = TWO_PI * tuned
+        _, h = signal.freqs([wt / q, 0.0], [1.0, wt / q, wt**2], worN=[TWO_PI * f])
+        assert abs(h[0]) == pytest.approx(ratio, rel=1e-9)
+    # the width is f·x/Q across the whole curve, x = √(1/r² − 1) (consistency check of the closed form)
+    assert high - low == pytest.approx(f * np.sqrt(1 / ratio**2 - 1) / q, rel=1e-12)
+
+
+def test_audible_tuning_span_of_a_signal_not_heard_is_its_frequency_and_bad_ratios_are_refused():
+    low, high = tank.audible_tuning_span([1e6, 1e6], 30.0, [1.5, np.inf])
+    np.testing.assert_array_equal(low, [1e6, 1e6])
+    np.testing.assert_array_equal(high, [1e6, 1e6])
+    with pytest.raises(ModelInputError, match="level_ratio must be positive"):
+        tank.audible_tuning_span(1e6, 30.0, 0.0)
+
+
 def test_calibration_recovers_known_aerial():
     # consistency: build a tank with a known 150 pF, 30 Ω aerial, find where it resonates, recover the aerial
     L, cset, qu = 240e-6, 120e-12, 150.0
