@@ -209,3 +209,20 @@ def test_the_full_wave_check_of_a_balcony_layout_solves_the_wire_the_listing_des
     code, out, err = run(capsys, "layout", p, "--full-wave", "--width", "200", "--quiet")
     assert code == 0, err
     assert re.search(r"effective height 3\.1\d m \(closed form 3\.1\d m\)", _words(out))
+
+
+def test_the_present_wire_is_reckoned_from_the_balcony_slab_as_the_layouts_are(capsys, write_site):
+    """The site's own wire is layout #1 (the same span and lead-in): with the layouts' heights reckoned from the
+    balcony slab, the present wire's figures are that layout's, and the line says how they were reckoned
+    (consistency checks; from the street the present wire read 11.7 m against the layout's 3.15 m)."""
+    p = write_site(SLAB_SITE)
+    code, out, err = run(capsys, "layout", p, "--json", "--quiet")
+    assert code == 0, err
+    result = json.loads(out)
+    present, first = result["present_wire"], result["layouts"][0]
+    assert present["heights_from_slab_m"] == pytest.approx(9.0)
+    for key in ("effective_height_m", "capacitance_f", "available_power_w", "score"):
+        assert present[key] == pytest.approx(first[key], rel=1e-9), key
+    code, out, err = run(capsys, "layout", p, "--width", "200", "--quiet")
+    assert code == 0, err
+    assert "your present wire, with its heights from the balcony slab, as the layouts at 940 kHz: h_e 3.15 m" in out

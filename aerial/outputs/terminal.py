@@ -887,7 +887,9 @@ def present_wire_words(present: dict, label: str, unit: str, L: Lengths) -> str:
 
     where = f" at {eng(present['figures_at_hz'], 'Hz')}" if present.get("figures_at_hz") else ""
     flag = f"; {wavelength_words(present.get('rough_from_hz'))}" if present.get("outside_model_range") else ""
-    return (f"your present wire, as 'aerial report' figures it{where}: h_e {L(present['effective_height_m'])}, "
+    how = ("with its heights from the balcony slab, as the layouts" if present.get("heights_from_slab_m")
+           else "as 'aerial report' figures it")
+    return (f"your present wire, {how}{where}: h_e {L(present['effective_height_m'])}, "
             f"{eng(present['capacitance_f'], 'F')}, {label} {present['score']:.1f}" + (f" {unit}" if unit else "")
             + flag)
 

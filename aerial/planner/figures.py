@@ -141,6 +141,28 @@ def planned_wires(site, layout: dict, size, entry_xyz, floor_m: float = 0.0) -> 
     return wires + [w for w in site.wires if w.role == "counterpoise"]
 
 
+def wires_from_slab(site, floor_m: float) -> list:
+    """The site's own wires with their heights reckoned from a balcony slab ``floor_m`` up, as a layout's are.
+
+    The aerial and lead-in are lowered by ``floor_m`` (kept 5 cm above the slab), the earth lead likewise (down to
+    the slab), the counterpoises kept, as :func:`planned_wires` builds a listed layout: the present wire and a
+    layout on the same supports then describe the same wire. [m]
+    """
+    from dataclasses import replace as replaced
+
+    out = []
+    for w in site.wires:
+        if w.role == "counterpoise" or floor_m <= 0:
+            out.append(w)
+            continue
+        p = np.array(w.points_m, dtype=float)
+        p[:, 2] = np.maximum(p[:, 2] - floor_m, 0.0 if w.role == "earth lead" else 0.05)
+        if w.role == "earth lead" and (p[0, 2] <= 0.05 or float(np.linalg.norm(p[-1] - p[0])) <= SAME_POINT_M):
+            continue  # the receiver on the slab: no earth lead above it, as a planned layout has none
+        out.append(replaced(w, points_m=p))
+    return out
+
+
 def planned_site(site, wires, floor_m: float = 0.0):
     """``site`` with its wires replaced by ``wires`` (the receiver's height reckoned from a balcony slab)."""
     return replace(site, wires=wires, receiver=site.receiver._replace(height_m=max(site.receiver.height_m - floor_m,

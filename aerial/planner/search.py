@@ -352,30 +352,38 @@ def screened_height(body, x, y, h, frequency=None):
     return blended_field_height(body, points, frequency)
 
 
-def present_wire(site, objective) -> dict | None:
+def present_wire(site, objective, floor_m: float = 0.0) -> dict | None:
     """The site's own wires by the report's model, at the ranking frequencies and the report's centre frequency.
 
     The listed layouts are computed the same way (:func:`aerial.planner.figures.listed_layout_figures`), so the
-    present wire and a layout on the same supports show the same figures, and both the report's. None when the
-    closed forms cannot take the site's wires.
+    present wire and a layout on the same supports show the same figures, and both the report's. With the
+    layouts' heights reckoned from a balcony slab ``floor_m`` up [m] (a conducting slab and no building to
+    screen with), the present wire's are too (``heights_from_slab_m``). None when the closed forms cannot take
+    the site's wires.
     """
     from aerial.estimate.assemble import headline_figures
     from aerial.geometry.resolve import resolve
-    from aerial.planner.figures import wavelength_validity
+    from aerial.planner.figures import planned_site, wavelength_validity, wires_from_slab
 
     f = np.append(np.asarray(objective["frequency_hz"], float), objective["centre_hz"])
     earth = np.append(np.asarray(objective["earth_ohm"], float), objective["centre_earth_ohm"])
+    wires = wires_from_slab(site, floor_m) if floor_m > 0 else None
+    reckoned = site if wires is None else planned_site(site, wires, floor_m)
     try:
-        geo = resolve(site, electrode_ohm=float(np.mean(earth)))  # as the headline resolves
-        fig = headline_figures(site, f, earth, geometry=geo)
+        geo = resolve(reckoned, electrode_ohm=float(np.mean(earth)), wires=wires)  # as the headline resolves
+        fig = headline_figures(reckoned, f, earth, wires=wires, geometry=geo)
     except AerialError:
         return None
     out = {"note": "your present wire, by the report's model (its building screening and RF earth included), "
                    "for comparison"}
+    if floor_m > 0:
+        out = {"note": "your present wire, by the report's model with its heights from the balcony slab, as the "
+                       "layouts have them, for comparison (aerial report reckons them from the street)",
+               "heights_from_slab_m": float(floor_m)}
     out.update(_figures_json(fig))
     out["figures_at_hz"] = float(objective["centre_hz"])
     out["score"] = _report_score(objective, fig)
-    validity = wavelength_validity(site, geometry=geo)
+    validity = wavelength_validity(reckoned, wires, geometry=geo)
     out["outside_model_range"] = validity["rough_from_hz"] is not None
     if validity["rough_from_hz"] is not None:
         out["rough_from_hz"] = validity["rough_from_hz"]
@@ -864,7 +872,7 @@ def _result(site, plan, ctx, objective, total, tally, layouts, warnings) -> dict
         "figures_model": (f"the figures and scores of the listed layouts are the {REPORT_MODEL}; all "
                           f"{total:,} candidates were first screened with a faster model"),
         "layouts": layouts,
-        "present_wire": present_wire(site, objective),
+        "present_wire": present_wire(site, objective, ctx.floor),
         "apartment": apartment_notes(site, plan, objective["frequency_hz"]) if plan.building == "apartment" else [],
         "code_checklist": [],
         "picture": None,
