@@ -7,7 +7,7 @@ import math
 import numpy as np
 import pytest
 
-from aerial.core.arrays import bisect_ahead, bisection_midpoints
+from aerial.core.arrays import bisect_ahead, bisection_midpoints, pin_crossing
 
 
 def _halving_one_at_a_time(good, bad, passes, halvings):
@@ -53,3 +53,45 @@ def test_bisect_ahead_finds_a_root_from_either_side():
     # the good end may be the larger one: the root of x**2 = 2 (math.sqrt, Python standard library)
     g, b = bisect_ahead(4.0, 1.0, lambda x: x * x >= 2.0, 50, 4)
     assert float(g) == pytest.approx(math.sqrt(2.0), rel=1e-12) and float(b) < math.sqrt(2.0) <= float(g)
+
+
+def test_consistency_bisect_ahead_stops_where_a_halving_at_a_time_search_would():
+    """With ``done`` the look-ahead bisection takes exactly the halvings a one-at-a-time search stopping at the
+    same test takes (consistency check)."""
+    good, bad = np.array([1e-12, 2e-12]), np.array([1.0, 2.0])
+
+    def passes(x):
+        return x <= np.array([3e-4, 7e-7])
+
+    def close(g, b):
+        return bool(np.all(b / g - 1.0 <= 1e-9))
+
+    ref_g, ref_b = good.copy(), bad.copy()
+    while not close(ref_g, ref_b):
+        ref_g, ref_b = _halving_one_at_a_time(ref_g, ref_b, passes, 1)
+    g, b = bisect_ahead(good, bad, passes, 200, 4, done=close)
+    assert np.array_equal(g, ref_g) and np.array_equal(b, ref_b)
+
+
+def test_pin_crossing_brackets_each_change_tightly_or_settles_at_an_end():
+    """Regula falsi (Illinois) narrows every bracket round its root to 1e-13 in a few calls; a bracket whose bad
+    end passes, or whose good end fails, is settled at that end (consistency check on x^3 = r)."""
+    roots = np.array([2.0, 5.0, 0.01, 7.5])
+    good, bad = np.array([1.0, 9.0, 1e-6, 1.0]), np.array([4.0, 3.0, 1.0, 5.0])  # the last one's root lies beyond
+
+    def measure(x):
+        gap = np.log(roots**3 / x**3) * np.where(bad > good, 1.0, -1.0)
+        return gap >= 0.0, gap
+
+    calls = []
+
+    def counted(x):
+        calls.append(1)
+        return measure(x)
+
+    a, b = pin_crossing(good, bad, measure(good)[1], measure(bad)[1], counted)
+    assert len(calls) <= 12
+    for i in range(3):
+        assert min(a[i], b[i]) <= roots[i] <= max(a[i], b[i])
+        assert abs(b[i] / a[i] - 1.0) <= 1e-13
+    assert a[3] == b[3] == bad[3]

@@ -134,3 +134,79 @@ def bisect_ahead(good, bad, passes, halvings: int, depth: int, done=None):
             if finished:
                 break
     return good.reshape(shape), bad.reshape(shape)
+
+
+#: Relative width to which :func:`pin_crossing` narrows a bracket, and its limit on steps.
+PIN_RTOL = 1e-13
+PIN_MAX_ITER = 40
+
+
+def pin_crossing(good, bad, gap_good, gap_bad, measure, rtol=PIN_RTOL, max_iter=PIN_MAX_ITER):
+    """Narrow brackets [good, bad] of a test's change of answer to a relative width ``rtol``.
+
+    Parameters
+    ----------
+    good, bad : ndarray
+        Brackets' ends (positive, one shape): the test passes at ``good`` and fails at ``bad`` (either
+        may be the larger); an end that does not (a failing good end, a passing bad end) is where the
+        change is taken to lie.
+    gap_good, gap_bad : ndarray
+        A smooth signed measure of the test at the ends: at least 0 where it passes, below where it fails.
+    measure : callable
+        measure(x) -> (passes, gap) at ``x`` of the brackets' shape.
+    rtol : float
+        Relative width to reach. [1]
+    max_iter : int
+        Calls of ``measure`` at most.
+
+    Returns
+    -------
+    (ndarray, ndarray)
+        The narrowed brackets' passing and failing ends (equal where the change lies at an end).
+
+    Notes
+    -----
+    Regula falsi on the gap in ln x with the Illinois modification [1]_ (the end kept twice running
+    has its gap halved), each trial kept a little away from the ends: a superlinear search that
+    needs a handful of calls where a bisection to the same width needs forty.
+
+    References
+    ----------
+    .. [1] M. Dowell, P. Jarratt, "A modified regula falsi method for computing the root of an
+       equation", BIT 11, 1971, pp. 168-174 (from memory).
+
+    Examples
+    --------
+    >>> a, b = pin_crossing(np.array([1.0]), np.array([16.0]), np.array([2.0]), np.array([-13.0]),
+    ...                     lambda x: (x <= 3.0, 3.0 - x))
+    >>> bool(a[0] <= 3.0 < b[0]) and bool(b[0] / a[0] - 1.0 <= 1e-13)
+    True
+    """
+    pass_good = np.asarray(gap_good, dtype=float) >= 0.0
+    pass_bad = np.asarray(gap_bad, dtype=float) >= 0.0
+    a = np.where(pass_bad, bad, good)  # no change inside: it lies at the end that does not answer as it should
+    b = np.where(pass_good, bad, good)
+    ga, gb = np.maximum(gap_good, 0.0), np.minimum(gap_bad, 0.0)
+    settled = pass_bad | ~pass_good
+    side = np.zeros(np.shape(a), dtype=int)  # the end replaced last: -1 the passing one, +1 the failing one
+    for _ in range(int(max_iter)):
+        settled = settled | (np.abs(b / a - 1.0) <= rtol)
+        if settled.all():
+            break
+        la, lb = np.log(a), np.log(b)
+        flat = settled | (ga == gb)
+        t = np.where(flat, 0.5, ga / np.where(flat, 1.0, ga - gb))
+        # a trial no nearer an end than a fraction of the width sought: an end that meets the test to the
+        # last bit (gap 0 there) would otherwise keep the step on itself
+        keep = np.minimum(0.4 * rtol / np.maximum(np.abs(lb - la), 1e-300), 0.5)
+        trial = np.exp(la + np.clip(t, keep, 1.0 - keep) * (lb - la))
+        stuck = ~((np.minimum(a, b) < trial) & (trial < np.maximum(a, b)))
+        trial = np.where(stuck, np.sqrt(a * b), trial)
+        passed, gap = measure(trial)
+        inside, outside = passed & ~settled, ~passed & ~settled
+        ga = np.where(inside, np.maximum(gap, 0.0), np.where(outside & (side == 1), 0.5 * ga, ga))
+        gb = np.where(outside, np.minimum(gap, 0.0), np.where(inside & (side == -1), 0.5 * gb, gb))
+        a, b = np.where(inside, trial, a), np.where(outside, trial, b)
+        side = np.where(inside, -1, np.where(outside, 1, side))
+    return a, b
+

@@ -50,7 +50,7 @@ from typing import Callable, NamedTuple
 
 import numpy as np
 
-from aerial.core.arrays import bisection_midpoints
+from aerial.core.arrays import bisection_midpoints, pin_crossing
 from aerial.core.errors import ModelInputError
 
 ARRANGEMENTS = ("direct", "series capacitor", "coil tap", "separate primary")
@@ -63,11 +63,8 @@ EDGE_MAX_ITER = 60
 EDGE_LOOKAHEAD = 4
 EDGE_LOOKAHEAD_POINTS = 256
 #: For many edges at once (one trial point per edge and call): halvings taken by evaluating the response
-#: before each crossing is pinned down (by then every bracket is 3**(1/32), about 3.5 %, wide), the relative
-#: width the crossing is pinned to and the limit on those steps.
+#: before each crossing is pinned down (by then every bracket is 3**(1/32), about 3.5 %, wide).
 EDGE_OPENING_HALVINGS = 5
-EDGE_PIN_RTOL = 1e-13
-EDGE_PIN_MAX_ITER = 40
 
 
 def block_inductance_tight(inductance: float) -> Callable:
@@ -835,38 +832,17 @@ class _EdgeSearch:
                 node = 2 * node + np.where(inside, 2, 1)  # node 2i + 2: the bracket beyond the midpoint
 
     def pin(self):
-        """Each edge's crossing of ref bracketed far more tightly than ``rtol``: (inside end, outside end) [Hz].
-
-        Regula falsi with the Illinois modification on ln|V| − ln ref in ln f, all edges together,
-        from the brackets as they stand; an edge whose far end is not outside has its crossing there."""
-        a, b = self.near.copy(), self.far.copy()
+        """Each edge's crossing of ref bracketed far more tightly than ``rtol``: (inside end, outside end) [Hz]
+        (:func:`aerial.core.arrays.pin_crossing` on ln|V| − ln ref, all edges together, from the brackets
+        as they stand; an edge whose far end is not outside has its crossing there)."""
         ref = np.maximum(self.ref, 1e-300)
-        ga = np.log(np.maximum(self.level_near, 1e-300) / ref)
-        gb = np.log(np.maximum(self.level_far, 1e-300) / ref)
-        settled = gb >= 0.0  # no crossing inside: the bisection runs out to the far end
-        a = np.where(settled, b, a)
-        side = np.zeros(a.size, dtype=int)  # the end kept by the last step: -1 the inside one, +1 the outside one
-        for _ in range(EDGE_PIN_MAX_ITER):
-            settled |= np.abs(b / a - 1.0) <= EDGE_PIN_RTOL
-            if settled.all():
-                break
-            la, lb = np.log(a), np.log(b)
-            t = np.where(settled, 0.5, ga / np.where(settled, 1.0, ga - gb))
-            # a trial no nearer an end than a fraction of the pinned width: an end that meets ref to the last
-            # bit (g = 0 there) would otherwise keep the step on itself
-            keep = np.minimum(0.4 * EDGE_PIN_RTOL / np.maximum(np.abs(lb - la), 1e-300), 0.5)
-            u = la + np.clip(t, keep, 1.0 - keep) * (lb - la)
-            trial = np.exp(u)
-            stuck = ~((np.minimum(a, b) < trial) & (trial < np.maximum(a, b)))
-            trial = np.where(stuck, np.sqrt(a * b), trial)
-            g = np.log(np.maximum(self.call(trial), 1e-300) / ref)
-            inside = (g >= 0.0) & ~settled
-            outside = (g < 0.0) & ~settled
-            ga = np.where(inside, g, np.where(outside & (side == 1), 0.5 * ga, ga))
-            gb = np.where(outside, g, np.where(inside & (side == -1), 0.5 * gb, gb))
-            a, b = np.where(inside, trial, a), np.where(outside, trial, b)
-            side = np.where(inside, -1, np.where(outside, 1, side))
-        return a, b
+
+        def measure(f):
+            level = self.call(f[np.newaxis])[0]
+            return level >= self.ref, np.log(np.maximum(level, 1e-300) / ref)
+
+        return pin_crossing(self.near, self.far, np.log(np.maximum(self.level_near, 1e-300) / ref),
+                            np.log(np.maximum(self.level_far, 1e-300) / ref), measure)
 
     def replay(self, a, b):
         """The rest of the halvings, each midpoint judged by where it lies against the pinned bracket [a, b]:
