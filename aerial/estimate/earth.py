@@ -173,7 +173,7 @@ def _one(e, resistivity: float, radius_default: float) -> tuple[float, str, list
     return float(np.asarray(est.resistance_ohm)), est.method, list(est.warnings), what
 
 
-def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>") -> dict:
+def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>", bounds: bool = True) -> dict:
     """Combined earth resistance with a low/high range from the soil's conductivity bounds.
 
     Parameters
@@ -182,6 +182,11 @@ def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>") 
     soil : aerial.site.reader.SoilSpec
     counterpoise_wires : list of WireRun
         Counterpoise wires (used only when there is no electrode).
+    bounds : bool
+        False for a caller that reads the value alone (the soil's bounds in
+        :func:`resistance_bounds` come from its own runs): the electrode
+        formulas then run once, at the soil's conductivity, and the range is
+        that value.
 
     Returns
     -------
@@ -217,8 +222,8 @@ def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>") 
             nominal.append(r[0]); low.append(r[1]); high.append(r[2])
             continue
         rn, method, w, what = _one(e, 1.0 / soil.conductivity_s_m, radius)
-        rl, _, _, _ = _one(e, 1.0 / soil.conductivity_high_s_m, radius)
-        rh, _, _, _ = _one(e, 1.0 / soil.conductivity_low_s_m, radius)
+        rl = _one(e, 1.0 / soil.conductivity_high_s_m, radius)[0] if bounds else rn
+        rh = _one(e, 1.0 / soil.conductivity_low_s_m, radius)[0] if bounds else rn
         if not all(np.isfinite(v) and v > 0 for v in (rn, rl, rh)):
             from aerial.core.errors import SiteError
 
@@ -390,7 +395,7 @@ def resistance_bounds(electrodes, soil, frequency, counterpoise_wires=(), aerial
     runs = []
     for sg, fx in zip(sigmas, fixed):
         # the DC sums depend on the conductivity alone: once per conductivity, shared by its permittivities
-        dc = earth_system(electrodes, replace(soil, conductivity_s_m=float(sg)), counterpoise_wires)
+        dc = earth_system(electrodes, replace(soil, conductivity_s_m=float(sg)), counterpoise_wires, bounds=False)
         runs += [electrode_impedance(electrodes, replace(soil, conductivity_s_m=float(sg), relative_permittivity=float(ep)),
                                      frequency, counterpoise_wires, fixed=fx, aerial=aerial, dc=dc)
                  for ep in soil_permittivities(soil)]
