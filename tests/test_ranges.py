@@ -274,3 +274,32 @@ def test_consistency_one_run_of_the_soil_bounds_serves_the_earth_table_and_the_r
                                               allow_large=False, progress=None)
     for key in assemble.HEADLINE_KEYS:
         assert np.allclose(np.asarray(result["ranges"][key]), separate[key], rtol=1e-12, atol=0.0), key
+
+
+@pytest.mark.parametrize("name", ["backyard_inverted_l", "balcony_water_pipe", "portable_vertical_counterpoise"])
+def test_consistency_soil_bound_runs_need_only_each_runs_value(name):
+    # consistency check: the RF bounds, whose soil runs work the electrode formulas at their own conductivity
+    # only (earth_system(bounds=False)), are those of runs given the whole DC figures, range included --
+    # the counterpoise (a part that keeps its DC figure, read at the run's end of the range) too
+    from dataclasses import replace
+
+    from aerial.estimate import earth
+
+    site = aerial.load_site(ROOT / EXAMPLES / f"{name}.toml")
+    f = np.array([0.6e6, 1.2e6])
+    cp = earth.as_counterpoise_site(site)
+    got = earth.resistance_bounds(site.electrodes, site.soil, f, cp)
+    sigmas = np.geomspace(site.soil.conductivity_high_s_m, site.soil.conductivity_low_s_m,
+                          earth.INTERIOR_SOIL_POINTS + 2)
+    runs = []
+    for k, sg in enumerate(sigmas):
+        fixed = "low" if k == 0 else "high" if k == len(sigmas) - 1 else "nominal"
+        dc = earth.earth_system(site.electrodes, replace(site.soil, conductivity_s_m=float(sg)), cp)
+        runs += [earth.electrode_impedance(site.electrodes, replace(site.soil, conductivity_s_m=float(sg),
+                                                                    relative_permittivity=float(ep)),
+                                           f, cp, fixed=fixed, dc=dc)["impedance_ohm"].real
+                 for ep in earth.soil_permittivities(site.soil)]
+    assert np.array_equal(got["low_ohm"], np.min(runs, axis=0))
+    assert np.array_equal(got["high_ohm"], np.max(runs, axis=0))
+    full = earth.earth_system(site.electrodes, site.soil, cp)
+    assert earth.earth_system(site.electrodes, site.soil, cp, bounds=False)["resistance_ohm"] == full["resistance_ohm"]
