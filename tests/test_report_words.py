@@ -141,3 +141,22 @@ def test_a_far_station_is_kilometres_on_the_terminal_and_the_page(capsys, write_
     assert "2000 km" in out and "Mm" not in out
     text = page.read_text(encoding="utf-8")
     assert "2000 km" in text and "2 Mm" not in text
+
+
+def test_a_station_outside_the_swept_bands_is_said_in_the_warnings(capsys, write_site):
+    """A 198 kHz station on a site swept over MF only: the terminal's warnings name it, say its figures take the
+    band edge's and how to sweep its band; its other warnings (flat-earth range, noise line) are said there too,
+    once per text, and none claims the atmospheric noise is left out (the report adds it). Input handling."""
+    from .conftest import MINIMAL
+
+    p = write_site(MINIMAL.replace('height = "0 m"', 'height = "0 m"\ncoil = "240 uH"')
+                   + '\n[[stations]]\nname = "Longwave far"\nfrequency = "198 kHz"\npower = "500 kW"\n'
+                     'distance = "150 km"\n')
+    code, out, err = run(capsys, "report", p, "--width", "200")
+    assert code == 0, err
+    text = flat(out)
+    assert ("Longwave far: 198 kHz lies outside the swept bands (520 kHz to 1.71 MHz): its figures take the "
+            "aerial's values at the nearest band edge; add its band to [site] bands") in text
+    assert "Longwave far: beyond the flat-earth range" in text
+    assert "Longwave far: below 0.3 MHz the ITU-R P.372 man-made noise line is extended beyond its range" in text
+    assert "is not included" not in text

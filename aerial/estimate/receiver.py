@@ -126,7 +126,7 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     if site.stations:
         own = station_effective_heights(site, f, resp)
         stations, night_warnings = _stations_day_and_night(site, f, r, x, rr, he, parts, own, band=(lo, hi), coil=coil)
-        warnings += night_warnings
+        warnings += night_warnings + station_warnings(stations)
         day = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
                                  s.soil.conductivity_s_m, effective_height_m=h) for s, h in zip(site.stations, own)]
         try:
@@ -138,6 +138,24 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
         if design is not None:
             tuning["station_design"] = design
     return tuning, stations, warnings
+
+
+def station_warnings(stations) -> list:
+    """Each station's own warnings for the report's warnings, one line per text naming the stations it holds for.
+
+    The bleed-resistor warning of a series capacitor is left out: the tuning notes and the safety cautions say it.
+
+    >>> station_warnings([{"name": "A", "warnings": ["far"]}, {"name": "B", "warnings": ["far", "near"]}])
+    ['A, B: far', 'B: near']
+    """
+    from aerial.models.tank import BLEED_REMEDY
+
+    said: dict = {}
+    for s in stations:
+        for w in s.get("warnings", []):
+            if BLEED_REMEDY not in w:
+                said.setdefault(w, []).append(s.get("name", ""))
+    return [f"{', '.join(names)}: {w}" for w, names in said.items()]
 
 
 def station_effective_heights(site, freqs, resp) -> list:

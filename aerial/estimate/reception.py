@@ -1635,13 +1635,15 @@ def _station_warnings(aerial, a, i) -> list:
     warn = []
     gw, fam = a["gw"], a["fam"]
     if aerial.outside(a["fs"][i]):
-        warn.append("station lies outside the aerial's frequency grid: the aerial's edge values were used")
+        warn.append(f"{si_text(float(a['fs'][i]), 'Hz')} lies outside the swept bands ({si_text(aerial.f[0], 'Hz')} to "
+                    f"{si_text(aerial.f[-1], 'Hz')}): its figures take the aerial's values at the nearest band edge; "
+                    "add its band to [site] bands")
     if gw.beyond_flat_earth[i] if np.ndim(gw.beyond_flat_earth) else gw.beyond_flat_earth:
         warn.append("beyond the flat-earth range: curved-earth effects not included, field likely lower")
     if np.ravel(gw.too_close)[i]:
         warn.append("within one wavelength of the transmitter: the ground-wave formula is not valid this close")
-    if np.ravel(fam.below_range)[i]:
-        warn.append(noise_mod.BELOW_RANGE_NOTE)
+    if np.ravel(fam.below_range)[i]:  # the atmospheric noise is added to it here (the model's note says it is not)
+        warn.append("below 0.3 MHz the ITU-R P.372 man-made noise line is extended beyond its range")
     if not a["converged"] or not bool(np.ravel(a["audio"].converged)[i]):
         warn.append("the tank-voltage / detector solution did not converge fully")
     return warn
