@@ -293,14 +293,16 @@ def station_levels(frequency, open_circuit_voltage, za: Callable, parts: net_mod
         converged = ok
     if bandwidth:
         c_raw = net_mod.tuning_capacitance_for(fs, z_s, parts, g)
-        top = v_oc * np.abs(net_mod.solve_network(fs, z_s, parts, c, g).top_voltage)
+        tuned = net_mod.solve_network(fs, z_s, parts, c, g)  # its detector voltage is detector_response's, bit for bit
+        top = v_oc * np.abs(tuned.top_voltage)
     else:  # a design search: the tuning of the last pass and no top voltage
         c_raw, top = c, np.zeros_like(fs)
 
     def response(f):
         return np.abs(net_mod.detector_response(f, za(f), parts, c, g))
 
-    edges = net_mod.detector_bandwidth(fs, response) if bandwidth else _no_edges(fs)
+    edges = net_mod.detector_bandwidth(fs, response, tuned=np.abs(tuned.detector_voltage)) if bandwidth else \
+        _no_edges(fs)
     # every station j through the network tuned to station i: one bare solve per station, each tuning
     # added as a change of rank two (network.retuned_detector_voltage)
     cross = net_mod.retuned_detector_voltage(net_mod.solve_network(fs, z_s, parts, 0.0, 0.0), fs[np.newaxis, :],
