@@ -81,16 +81,35 @@ def one_line(text) -> str:
 
 
 class _Parser(argparse.ArgumentParser):
-    """A parser that takes an option only as spelt in full and says a mistake in one line."""
+    """A parser that takes an option only as spelt in full and says a mistake in one line.
 
-    def __init__(self, *args, **kwargs):
+    ``options(parser)``, when given, adds the parser's arguments the first time it parses or shows its help:
+    a run builds the options of its own command only.
+    """
+
+    def __init__(self, *args, options=None, **kwargs):
         kwargs.setdefault("allow_abbrev", False)  # "--unit us" is a slip to point out, not "--units us"
         super().__init__(*args, **kwargs)
         self.words: list[str] = []
+        self.options_to_add = options
+
+    def with_options(self) -> _Parser:
+        """This parser with its arguments added (once)."""
+        add, self.options_to_add = self.options_to_add, None
+        if add is not None:
+            add(self)
+        return self
 
     def parse_known_args(self, args=None, namespace=None):
+        self.with_options()
         self.words = list(sys.argv[1:] if args is None else args)  # for the error line below
         return super().parse_known_args(args, namespace)
+
+    def format_usage(self):
+        return super(_Parser, self.with_options()).format_usage()
+
+    def format_help(self):
+        return super(_Parser, self.with_options()).format_help()
 
     def error(self, message):  # one line, exit 2, no usage dump
         # main() puts "aerial: " before the line, so only a subcommand's own name goes here
@@ -163,8 +182,8 @@ def _width(text: str) -> int:
     return value
 
 
-def _output_options(progress: bool) -> argparse.ArgumentParser:
-    o = argparse.ArgumentParser(add_help=False, allow_abbrev=False)
+def _output_options(o: argparse.ArgumentParser, progress: bool) -> None:
+    """The options every command that renders a report shares."""
     o.add_argument("--width", type=_width, metavar="N",
                    help="report width in characters (default: the terminal's; when the output is not a terminal, "
                         "COLUMNS if set, else wide enough for every table up to 200 characters, long texts wrapping); "
@@ -175,26 +194,16 @@ def _output_options(progress: bool) -> argparse.ArgumentParser:
     if progress:
         o.add_argument("--quiet", action="store_true",
                        help="no progress on stderr (by default a bar on a terminal, else a line per stage)")
-    return o
 
 
-def build_parser() -> argparse.ArgumentParser:
-    p = _Parser(
-        prog="aerial",
-        description="Estimate how well a wire receiving aerial and its earth system will work.",
-        epilog="Site files are TOML; see docs/site-file.md. Figures are estimates: local codes and licensed practice govern.",
-    )
-    p.add_argument("--version", action="version", version=f"aerial {__version__}")
-    sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
-
-    plain, long_run = [_output_options(False)], [_output_options(True)]
-    c = sub.add_parser("check", parents=plain, help="validate a site file and summarise the wires as aerial understood them",
-                       description="Validate a site file and summarise the resolved wires.")
+def _check_options(c: argparse.ArgumentParser) -> None:
+    _output_options(c, False)
     c.add_argument("site", metavar="SITE", help="site file (TOML)")
     c.add_argument("--json", action="store_true", help="print machine-readable JSON instead of the report")
 
-    r = sub.add_parser("report", parents=long_run, help="run the whole chain: aerial figures, earth, tuning, stations, cautions",
-                       description="Run the whole chain for a site (the built-in example when SITE is left out).")
+
+def _report_options(r: argparse.ArgumentParser) -> None:
+    _output_options(r, True)
     r.add_argument("site", metavar="SITE", nargs="?", help="site file (TOML); omit for the built-in example")
     r.add_argument("--json", action="store_true", help="print machine-readable JSON instead of the report")
     r.add_argument("--full-wave", action="store_true", help="use the method-of-moments wire solver instead of closed forms")
@@ -212,8 +221,9 @@ def build_parser() -> argparse.ArgumentParser:
     r.add_argument("--allow-large", action="store_true",
                    help="full wave: run a sweep beyond the stated memory and time budget")
 
-    lay = sub.add_parser("layout", parents=long_run, help="search the site's supports for the best safe wire layouts",
-                         description="Rank wire layouts among the site's candidate supports, keeping clear of power lines.")
+
+def _layout_options(lay: argparse.ArgumentParser) -> None:
+    _output_options(lay, True)
     lay.add_argument("site", metavar="SITE", help="site file (TOML) with a [plan] table")
     lay.add_argument("--json", action="store_true", help="print machine-readable JSON instead of the report")
     lay.add_argument("--best", type=int, default=5, metavar="N", help="how many layouts to show (default 5)")
@@ -224,8 +234,9 @@ def build_parser() -> argparse.ArgumentParser:
     lay.add_argument("--force", action="store_true", help="replace the picture or page file if it exists")
     lay.add_argument("--allow-large", action="store_true", help="run a search beyond the stated time and memory budget")
 
-    coil = sub.add_parser("coil", parents=plain, help="single-layer coil helper: inductance from turns, or turns for an inductance",
-                          description="Single-layer solenoid: inductance from turns, or turns for a wanted inductance.")
+
+def _coil_options(coil: argparse.ArgumentParser) -> None:
+    _output_options(coil, False)
     coil.add_argument("--diameter", required=True, metavar="LEN",
                       help='the former\'s outside diameter, e.g. "50 mm" (the turns are taken at the wire centres, '
                            'one wire diameter more)')
@@ -240,6 +251,28 @@ def build_parser() -> argparse.ArgumentParser:
     coil.add_argument("--strand-size", metavar="WIRE", help='each strand\'s gauge or diameter, e.g. "40 AWG" (with --strands)')
     coil.add_argument("--frequency", metavar="FREQ", default="1 MHz", help='frequency for the Q estimate (default "1 MHz")')
     coil.add_argument("--json", action="store_true", help="print machine-readable JSON")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """The command line's parser; a command's own options are added when that command is parsed or shown."""
+    p = _Parser(
+        prog="aerial",
+        description="Estimate how well a wire receiving aerial and its earth system will work.",
+        epilog="Site files are TOML; see docs/site-file.md. Figures are estimates: local codes and licensed practice govern.",
+    )
+    p.add_argument("--version", action="version", version=f"aerial {__version__}")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    sub.add_parser("check", help="validate a site file and summarise the wires as aerial understood them",
+                   description="Validate a site file and summarise the resolved wires.", options=_check_options)
+    sub.add_parser("report", help="run the whole chain: aerial figures, earth, tuning, stations, cautions",
+                   description="Run the whole chain for a site (the built-in example when SITE is left out).",
+                   options=_report_options)
+    sub.add_parser("layout", help="search the site's supports for the best safe wire layouts",
+                   description="Rank wire layouts among the site's candidate supports, keeping clear of power lines.",
+                   options=_layout_options)
+    sub.add_parser("coil", help="single-layer coil helper: inductance from turns, or turns for an inductance",
+                   description="Single-layer solenoid: inductance from turns, or turns for a wanted inductance.",
+                   options=_coil_options)
     p.command_parsers = dict(sub.choices)  # for the line on an unrecognized option
     return p
 

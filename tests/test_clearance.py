@@ -28,7 +28,7 @@ from aerial.planner.clearance import (
     refuse_many,
 )
 from aerial.core.errors import SafetyRefusal, SiteError
-from aerial.site.plan import line_kind, parse_plan
+from aerial.site.plan import line_kind, parse_plan, site_plan
 from aerial.site.reader import load_site_text
 
 # An invented site: a 12 m oak and a 5 m eave, a span between them, the
@@ -186,6 +186,19 @@ def test_wire_outside_the_lot_is_a_warning():
     report = check_site_clearance(site)
     assert not report.refused
     assert any('wire "span eave to oak" runs outside the lot' in w for w in report.warnings)
+
+
+def test_the_plan_read_when_the_site_loads_is_the_one_the_check_uses(monkeypatch):
+    # the [plan] table is validated once, by the loader; the clearance check reads the kept plan
+    site = make(oak_x=60.0)
+    assert site.parsed_plan is not None and site.parsed_plan.lines[0].name == "street line"
+
+    def read_again(_site):
+        raise AssertionError("[plan] read a second time")
+
+    monkeypatch.setattr("aerial.site.plan.parse_plan", read_again)
+    assert site_plan(site) is site.parsed_plan
+    assert any("runs outside the lot" in w for w in check_site_clearance(site).warnings)
 
 
 def test_site_without_plan_passes():

@@ -240,8 +240,6 @@ def test_consistency_the_radials_what_if_shares_the_wires_response_and_its_earth
 def test_consistency_the_screens_effective_length_in_one_pass_is_the_length_by_length_search():
     # consistency check: every trial length of the radials in one pass gives the effective length the search
     # one length at a time (screen_loss for each) gives, three frequencies, two soils
-    from dataclasses import replace
-
     from aerial.core.constants import SPEED_OF_LIGHT
     from aerial.estimate import earth
     from aerial.estimate.assemble import resolve
@@ -251,12 +249,12 @@ def test_consistency_the_screens_effective_length_in_one_pass_is_the_length_by_l
     site = aerial.load_site(None)
     field = earth.screen_aerial(resolve(site).segments)
     extra = Electrode("buried_wires", "what-if", 8, 10.0, 1.628e-3, 0.0, 0.15, arrangement="radials")
-    fixed = [replace(extra, count=4, length_m=6.0, diameter_m=2e-3)]
+    fixed = [extra._replace(count=4, length_m=6.0, diameter_m=2e-3)]
     for f in (153e3, 600e3, 1.7e6):
-        for soil in (site.soil, replace(site.soil, conductivity_s_m=1e-4)):
+        for soil in (site.soil, site.soil._replace(conductivity_s_m=1e-4)):
             top = max(0.25 * SPEED_OF_LIGHT / f, 2.0)
             lengths = np.geomspace(1.0, top, 1 + int(np.ceil(16 * np.log10(top))))
-            loss = np.array([earth.screen_loss(fixed + [replace(extra, length_m=float(n))], soil, [f], field)
+            loss = np.array([earth.screen_loss(fixed + [extra._replace(length_m=float(n))], soil, [f], field)
                              ["impedance_ohm"][0].real for n in lengths])
             ok = loss <= loss[-1] * (1.0 + EFFECTIVE_LENGTH_CHANGE) + 1e-12
             assert earth.screen_effective_length(fixed, extra, soil, f, field) == float(lengths[int(np.argmax(ok))])

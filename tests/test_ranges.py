@@ -281,8 +281,6 @@ def test_consistency_soil_bound_runs_need_only_each_runs_value(name):
     # consistency check: the RF bounds, whose soil runs work the electrode formulas at their own conductivity
     # only (earth_system(bounds=False)), are those of runs given the whole DC figures, range included --
     # the counterpoise (a part that keeps its DC figure, read at the run's end of the range) too
-    from dataclasses import replace
-
     from aerial.estimate import earth
 
     site = aerial.load_site(ROOT / EXAMPLES / f"{name}.toml")
@@ -294,9 +292,9 @@ def test_consistency_soil_bound_runs_need_only_each_runs_value(name):
     runs = []
     for k, sg in enumerate(sigmas):
         fixed = "low" if k == 0 else "high" if k == len(sigmas) - 1 else "nominal"
-        dc = earth.earth_system(site.electrodes, replace(site.soil, conductivity_s_m=float(sg)), cp)
-        runs += [earth.electrode_impedance(site.electrodes, replace(site.soil, conductivity_s_m=float(sg),
-                                                                    relative_permittivity=float(ep)),
+        dc = earth.earth_system(site.electrodes, site.soil._replace(conductivity_s_m=float(sg)), cp)
+        runs += [earth.electrode_impedance(site.electrodes, site.soil._replace(conductivity_s_m=float(sg),
+                                                                           relative_permittivity=float(ep)),
                                            f, cp, fixed=fixed, dc=dc)["impedance_ohm"].real
                  for ep in earth.soil_permittivities(site.soil)]
     assert np.array_equal(got["low_ohm"], np.min(runs, axis=0))

@@ -312,7 +312,7 @@ def _perturbed_wires(site, delta_sign: float = 0.0, raise_m: float = 0.0, extend
             above = p[:, 2] >= feed[2]
             z = np.where(beside & above, np.maximum(z, feed[2]), np.where(beside, np.minimum(z, feed[2]), z))
             p[:, 2] = z
-            out.append(replace(w, points_m=p))
+            out.append(w._replace(points_m=p))
         if all(_keeps_length(w.points_m, w.size.radius_m) for w, t in zip(out, tolerances) if t is not None):
             break
     if extend_m > 0:
@@ -361,7 +361,7 @@ def _extend_far_end(wires, feed, extend_m):
     if end == 0:
         p = p[::-1]
     wires = list(wires)
-    wires[i] = replace(w, points_m=p, support_at_point=marks)
+    wires[i] = w._replace(points_m=p, support_at_point=marks)
     return wires
 
 
@@ -700,11 +700,11 @@ def _building_moves(site, frequency, earth_ohm: float, stand_off_m: float = WHAT
         if w.role == "aerial":
             p = np.array(w.points_m, float)
             p[:, :2] += stand_off_m * normal[:2]
-            w = replace(w, points_m=p)
+            w = w._replace(points_m=p)
         elif w.role == "lead-in":
             p = np.array(w.points_m, float)
             p[0, :2] += stand_off_m * normal[:2]  # its top follows the aerial
-            w = replace(w, points_m=p)
+            w = w._replace(points_m=p)
         moved.append(w)
     try:
         rows.append(("hold the wire " + metres(stand_off_m, "g") + " further out (poles on the rail)",
@@ -768,7 +768,7 @@ def _far_edge_wires(site, body):
         q = q[keep]
         if len(q) < 2:
             continue
-        out.append(replace(w, points_m=q))
+        out.append(w._replace(points_m=q))
     if not any(w.role == "aerial" for w in out):
         return None
     final = []
@@ -779,7 +779,7 @@ def _far_edge_wires(site, body):
                 key = tuple(np.round(p[i], 6))
                 if key in moved_points:
                     p[i] = moved_points[key]
-            w = replace(w, points_m=p)
+            w = w._replace(points_m=p)
         final.append(w)
     return final
 
@@ -805,7 +805,7 @@ def _rail_counterpoise(site):
     p = p[keep]
     if len(p) < 2:
         return None
-    return replace(aerial[0], name="counterpoise along the rail", role="counterpoise", points_m=p, key="what-if",
+    return aerial[0]._replace(name="counterpoise along the rail", role="counterpoise", points_m=p, key="what-if",
                    support_at_point=())
 
 

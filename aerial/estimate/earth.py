@@ -6,7 +6,6 @@ Pure functions over the site's electrode descriptions; the physics is in
 
 from __future__ import annotations
 
-from dataclasses import replace
 
 import numpy as np
 
@@ -107,8 +106,10 @@ def screen_loss(radials, soil, frequency, aerial) -> dict:
         ``impedance_ohm`` (complex Delta Z, its real part clipped at zero),
         ``within_radials_ohm``, ``method``, ``warnings``.
     """
+    from aerial.site.reader import Electrode
+
     f = np.atleast_1d(np.asarray(frequency, float))
-    sets = radials if isinstance(radials, (list, tuple)) else [radials]
+    sets = [radials] if isinstance(radials, Electrode) else radials  # one set, or a list of them
     counts, lengths = [e.count for e in sets], [e.length_m for e in sets]
     radius = float(np.average([e.diameter_m / 2.0 for e in sets], weights=[n * x for n, x in zip(counts, lengths)]))
     dz, inner = rs.screen_loss_of_field(f, aerial["distance_m"], aerial["field_per_m"], counts, lengths, radius,
@@ -359,8 +360,8 @@ def soil_bound(soil, end: str):
     """The soil at one end of its range: ``end`` "low" (least conductive, lowest permittivity) or "high"."""
     low, high = soil.permittivity_bounds
     if end == "low":
-        return replace(soil, conductivity_s_m=soil.conductivity_low_s_m, relative_permittivity=low)
-    return replace(soil, conductivity_s_m=soil.conductivity_high_s_m, relative_permittivity=high)
+        return soil._replace(conductivity_s_m=soil.conductivity_low_s_m, relative_permittivity=low)
+    return soil._replace(conductivity_s_m=soil.conductivity_high_s_m, relative_permittivity=high)
 
 
 def resistance_bounds(electrodes, soil, frequency, counterpoise_wires=(), aerial=None) -> dict:
@@ -395,8 +396,8 @@ def resistance_bounds(electrodes, soil, frequency, counterpoise_wires=(), aerial
     runs = []
     for sg, fx in zip(sigmas, fixed):
         # the DC sums depend on the conductivity alone: once per conductivity, shared by its permittivities
-        dc = earth_system(electrodes, replace(soil, conductivity_s_m=float(sg)), counterpoise_wires, bounds=False)
-        runs += [electrode_impedance(electrodes, replace(soil, conductivity_s_m=float(sg), relative_permittivity=float(ep)),
+        dc = earth_system(electrodes, soil._replace(conductivity_s_m=float(sg)), counterpoise_wires, bounds=False)
+        runs += [electrode_impedance(electrodes, soil._replace(conductivity_s_m=float(sg), relative_permittivity=float(ep)),
                                      frequency, counterpoise_wires, fixed=fx, aerial=aerial, dc=dc)
                  for ep in soil_permittivities(soil)]
     whole = np.stack([r["impedance_ohm"].real for r in runs])
@@ -462,6 +463,6 @@ def as_counterpoise_site(site):
     return [w for w in site.wires if w.role == "counterpoise"]
 
 
-__all__ = ["earth_system", "improved_earth", "electrode_impedance", "resistance_bounds", "BUILDING_EARTH_TYPICAL_OHM", "replace",
+__all__ = ["earth_system", "improved_earth", "electrode_impedance", "resistance_bounds", "BUILDING_EARTH_TYPICAL_OHM",
            "soil_permittivities", "soil_bound", "screen_aerial", "radial_system", "radial_sets", "screen_loss",
            "screen_effective_length"]

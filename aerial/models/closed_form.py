@@ -363,7 +363,7 @@ def _normalised_line(model, f, c_s, he_s, total):
     both = model.evaluate(np.concatenate([[f_ref], f]), c_s)
     c0 = float(-1.0 / (2 * np.pi * f_ref * both.reactance_ohm[0]))
     h0 = float(both.effective_height_m[0])
-    res = sa.ShortAerialResult(**{name: np.asarray(getattr(both, name))[1:] for name in both.__dataclass_fields__})
+    res = sa.ShortAerialResult(**{name: np.asarray(getattr(both, name))[1:] for name in both._fields})
     x = np.asarray(res.reactance_ohm, float) * (c0 / c_s)
     he = np.asarray(res.effective_height_m, float) * (he_s / h0 if h0 != 0 else 0.0)
     return res, x, np.abs(he)

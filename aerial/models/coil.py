@@ -25,7 +25,6 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import NamedTuple
 
 import numpy as np
@@ -667,8 +666,7 @@ def stranded_advantage_range(form_diameter, bundle_diameter, turns, strands, str
     return StrandedRange(lo, hi)
 
 
-@dataclass(frozen=True)
-class CoilWinding:
+class CoilWinding(NamedTuple):
     """A single-layer tank coil as wound.
 
     Attributes

@@ -48,7 +48,7 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 from aerial.core.constants import EPSILON_0 as epsilon_0
@@ -62,8 +62,7 @@ __all__ = ["LineElectrode", "buried_wire_line", "rod_line", "soil_gamma", "EFFEC
 EFFECTIVE_LENGTH_CHANGE = 0.10
 
 
-@dataclass(frozen=True)
-class LineElectrode:
+class LineElectrode(NamedTuple):
     """An electrode as a lossy line in the soil, at each frequency.
 
     Attributes

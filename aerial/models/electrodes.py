@@ -30,7 +30,7 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from typing import NamedTuple
 
 import numpy as np
 
@@ -61,8 +61,7 @@ _DWIGHT_STAR = {
 }
 
 
-@dataclass(frozen=True)
-class ElectrodeEstimate:
+class ElectrodeEstimate(NamedTuple):
     """Resistance of an earth electrode with the warnings that go with it.
 
     Attributes
@@ -77,7 +76,7 @@ class ElectrodeEstimate:
     """
 
     resistance_ohm: np.ndarray
-    warnings: tuple = field(default_factory=tuple)
+    warnings: tuple = ()
     method: str = ""
 
 

@@ -75,7 +75,7 @@ References
 from __future__ import annotations
 
 import functools
-from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 
@@ -296,8 +296,7 @@ def vertical_ground_field(distance, frequency, height, loading_angle=0.0):
     return (np.sum(g * (height * w)[None, None, :], axis=-1) + static) / (2 * np.pi)
 
 
-@dataclass(frozen=True)
-class RadialScreenLoss:
+class RadialScreenLoss(NamedTuple):
     """The ground loss of a vertical over a radial screen, per frequency.
 
     Attributes

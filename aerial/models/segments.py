@@ -21,15 +21,12 @@ Conventions
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
-
 import numpy as np
 
 #: Gap between a base-fed aerial's lowest point and the ground plane [m].
 FEED_GAP_M = 0.02
 
 
-@dataclass(frozen=True)
 class Segments:
     """Straight thin-wire segments.
 
@@ -54,34 +51,33 @@ class Segments:
         (0 when there is no earth lead; the ground loss is then added in series). [ohm]
     """
 
-    start: np.ndarray
-    end: np.ndarray
-    radius: np.ndarray
-    grounded: np.ndarray
-    feed: np.ndarray
-    wire_index: np.ndarray = field(default=None)
-    resistivity: np.ndarray = field(default=None)
-    relative_permeability: np.ndarray = field(default=None)
-    electrode_ohm: float = 0.0
+    __slots__ = ("start", "end", "radius", "grounded", "feed", "wire_index", "resistivity", "relative_permeability",
+                 "electrode_ohm")
 
-    def __post_init__(self):
-        n = len(self.start)
-        object.__setattr__(self, "start", np.asarray(self.start, dtype=float).reshape(n, 3))
-        object.__setattr__(self, "end", np.asarray(self.end, dtype=float).reshape(n, 3))
-        object.__setattr__(self, "radius", np.broadcast_to(np.asarray(self.radius, float), (n,)).copy())
-        object.__setattr__(self, "grounded", np.broadcast_to(np.asarray(self.grounded, bool), (n,)).copy())
-        object.__setattr__(self, "feed", np.asarray(self.feed, dtype=float).reshape(3))
-        if self.wire_index is None:
-            object.__setattr__(self, "wire_index", np.zeros(n, dtype=int))
-        if self.resistivity is None:
-            object.__setattr__(self, "resistivity", np.full(n, 1.72414e-8))
-        if self.relative_permeability is None:
-            object.__setattr__(self, "relative_permeability", np.ones(n))
-        object.__setattr__(self, "wire_index", np.broadcast_to(np.asarray(self.wire_index, int), (n,)).copy())
-        object.__setattr__(self, "resistivity", np.broadcast_to(np.asarray(self.resistivity, float), (n,)).copy())
-        object.__setattr__(
-            self, "relative_permeability", np.broadcast_to(np.asarray(self.relative_permeability, float), (n,)).copy()
-        )
+    def __init__(self, start, end, radius, grounded, feed, wire_index=None, resistivity=None,
+                 relative_permeability=None, electrode_ohm: float = 0.0):
+        n = len(start)
+        fill = object.__setattr__  # the fields are set once, here: a Segments is read-only afterwards
+        fill(self, "start", np.asarray(start, dtype=float).reshape(n, 3))
+        fill(self, "end", np.asarray(end, dtype=float).reshape(n, 3))
+        fill(self, "radius", np.broadcast_to(np.asarray(radius, float), (n,)).copy())
+        fill(self, "grounded", np.broadcast_to(np.asarray(grounded, bool), (n,)).copy())
+        fill(self, "feed", np.asarray(feed, dtype=float).reshape(3))
+        fill(self, "wire_index", np.broadcast_to(np.asarray(0 if wire_index is None else wire_index, int), (n,)).copy())
+        fill(self, "resistivity",
+             np.broadcast_to(np.asarray(1.72414e-8 if resistivity is None else resistivity, float), (n,)).copy())
+        fill(self, "relative_permeability", np.broadcast_to(
+            np.asarray(1.0 if relative_permeability is None else relative_permeability, float), (n,)).copy())
+        fill(self, "electrode_ohm", electrode_ohm)
+
+    def __setattr__(self, name, value):
+        raise AttributeError(f"Segments is read-only: cannot set {name!r} (make a new Segments)")
+
+    def __delattr__(self, name):
+        raise AttributeError(f"Segments is read-only: cannot delete {name!r}")
+
+    def __repr__(self) -> str:
+        return f"Segments({len(self)} segments, feed={self.feed.tolist()})"
 
     def __len__(self) -> int:
         return len(self.start)

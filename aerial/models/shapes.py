@@ -22,7 +22,7 @@ not part of the shape; their length is reported.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 
@@ -49,8 +49,7 @@ SECTION_UNASSIGNED = -1
 SECTION_DOWN_LEAD = 0
 
 
-@dataclass(frozen=True)
-class AerialShape:
+class AerialShape(NamedTuple):
     """What kind of aerial a wire set is, with the dimensions the closed forms need.
 
     Attributes
@@ -96,7 +95,8 @@ class AerialShape:
 
     def as_dict(self) -> dict:
         """Plain dict of the shape (JSON-ready; the per-segment map left out)."""
-        d = {name: getattr(self, name) for name in self.__dataclass_fields__ if name != "segment_section"}
+        d = self._asdict()
+        d.pop("segment_section")
         for key in ("top_lengths_m", "top_heights_m", "top_radii_m", "notes"):
             d[key] = list(d[key])  # the fields hold numbers and words only: nothing deeper to copy
         return d

@@ -36,7 +36,7 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 from aerial.core.constants import SPEED_OF_LIGHT
@@ -450,8 +450,7 @@ def monopole_reactance(height, radius, frequency, z0_form=DEFAULT_Z0_FORM):
 # --------------------------------------------------------------------------------------
 
 
-@dataclass(frozen=True)
-class ShortAerialResult:
+class ShortAerialResult(NamedTuple):
     """Per-geometry, per-frequency figures of a closed-form short-aerial model.
 
     Attributes

@@ -46,9 +46,9 @@ def site_surroundings(site) -> dict:
         return empty_surroundings()
     from aerial.outputs.plan_drawing import build_scene
     from aerial.planner.clearance import fall_zone, fall_zone_distance, site_parts
-    from aerial.site.plan import parse_plan
+    from aerial.site.plan import site_plan
 
-    plan = parse_plan(site)
+    plan = site_plan(site)
     _, tallest, _ = site_parts(site)
     zones = []
     for line in plan.power_lines:

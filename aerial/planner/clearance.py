@@ -23,7 +23,6 @@ at most 0.2 % with the default 16 segments per quarter circle.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
 from typing import NamedTuple
 
 import numpy as np
@@ -140,13 +139,22 @@ class Finding(NamedTuple):
                      needed=metres(self.required_m, ".1f"), why=why, more=metres(more, ".1f"))
 
 
-@dataclass
 class ClearanceReport:
-    """The outcome of checking a site's own wires: breaches (refusals) and warnings."""
+    """The outcome of checking a site's own wires: breaches (refusals) and warnings.
 
-    findings: list = field(default_factory=list)
-    warnings: list = field(default_factory=list)
-    tallest_m: float = 0.0
+    ``findings`` lists a :class:`Finding` per breach, ``warnings`` the sentences to show, ``tallest_m`` the
+    tallest point of the wires and their supports. [m]
+    """
+
+    __slots__ = ("findings", "warnings", "tallest_m")
+
+    def __init__(self, findings: list | None = None, warnings: list | None = None, tallest_m: float = 0.0):
+        self.findings = [] if findings is None else findings
+        self.warnings = [] if warnings is None else warnings
+        self.tallest_m = tallest_m
+
+    def __repr__(self) -> str:
+        return f"ClearanceReport(findings={self.findings!r}, warnings={self.warnings!r}, tallest_m={self.tallest_m!r})"
 
     @property
     def refused(self) -> bool:
@@ -268,9 +276,9 @@ def check_site_clearance(site, plan=None) -> ClearanceReport:
     if plan is None:
         if not site.plan:
             return ClearanceReport()
-        from aerial.site.plan import parse_plan
+        from aerial.site.plan import site_plan
 
-        plan = parse_plan(site)
+        plan = site_plan(site)
     parts, tallest, what = site_parts(site)
     report = ClearanceReport(check_parts(parts, tallest, what, plan.lines), [], tallest)
     for line in plan.telecom_lines:

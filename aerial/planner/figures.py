@@ -148,8 +148,6 @@ def wires_from_slab(site, floor_m: float) -> list:
     the slab), the counterpoises kept, as :func:`planned_wires` builds a listed layout: the present wire and a
     layout on the same supports then describe the same wire. [m]
     """
-    from dataclasses import replace as replaced
-
     out = []
     for w in site.wires:
         if w.role == "counterpoise" or floor_m <= 0:
@@ -159,7 +157,7 @@ def wires_from_slab(site, floor_m: float) -> list:
         p[:, 2] = np.maximum(p[:, 2] - floor_m, 0.0 if w.role == "earth lead" else 0.05)
         if w.role == "earth lead" and (p[0, 2] <= 0.05 or float(np.linalg.norm(p[-1] - p[0])) <= SAME_POINT_M):
             continue  # the receiver on the slab: no earth lead above it, as a planned layout has none
-        out.append(replaced(w, points_m=p))
+        out.append(w._replace(points_m=p))
     return out
 
 

@@ -697,11 +697,11 @@ def _plan(site, best, full_wave, draw, allow_large, progress) -> dict:
 def _prepare(site, best, allow_large):
     """Check the request and the site's own wire; returns the plan, the candidate count and the first warnings."""
     from aerial.planner.clearance import check_site_clearance
-    from aerial.site.plan import parse_plan
+    from aerial.site.plan import site_plan
 
     if isinstance(best, bool) or not isinstance(best, int) or not 1 <= best <= MAX_BEST:
         raise AerialError(f"best = {best!r}: expected a whole number from 1 to {MAX_BEST}")
-    plan = parse_plan(site)
+    plan = site_plan(site)
     warnings: list[str] = list(plan.notes)
     n = len(plan.supports)
     if n == 0:

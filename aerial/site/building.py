@@ -18,7 +18,7 @@ from typing import NamedTuple
 import numpy as np
 
 from aerial.core.lengthtext import metres, words
-from aerial.site.plan import ENTRY_FIXING_KEY, STRUCTURES, Plan, parse_plan
+from aerial.site.plan import ENTRY_FIXING_KEY, STRUCTURES, Plan, site_plan
 from aerial.site.tables import TableReader, choice_words
 
 #: Words accepted for ``construction``, each to its canonical structure.
@@ -90,7 +90,7 @@ def parse_building(site, plan: Plan | None = None) -> SiteBuilding | None:
     site : aerial.site.reader.Site
         The site as read (its wires, receiver, supports and raw tables).
     plan : Plan, optional
-        Its ``[plan]`` as :func:`aerial.site.plan.parse_plan` reads it (read here when not given).
+        Its ``[plan]`` as :func:`aerial.site.plan.parse_plan` reads it (the site's own when not given).
 
     Raises
     ------
@@ -98,7 +98,7 @@ def parse_building(site, plan: Plan | None = None) -> SiteBuilding | None:
         With the file, key, line and what is expected.
     """
     r = TableReader(site.path, site.text)
-    plan = parse_plan(site) if plan is None else plan
+    plan = site_plan(site) if plan is None else plan
     raw = site.raw.get("building") if isinstance(site.raw, dict) else None
     if raw is not None:
         return _from_table(r, r.table(site.raw, "", "building"), site, plan)
@@ -297,7 +297,7 @@ def open_ground_notes(site) -> list[str]:
 
     The supports counted are those the file lists ([supports] and [[plan.supports]], kinds as read).
     """
-    kinds = {s.kind for s in parse_plan(site).supports if s.key != ENTRY_FIXING_KEY}
+    kinds = {s.kind for s in site_plan(site).supports if s.key != ENTRY_FIXING_KEY}
     on = sorted(k for k in kinds if k in ON_BUILDING_KINDS)
     if not on:
         return []

@@ -17,7 +17,6 @@ the text of :func:`shapely.is_valid_reason`.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
 from typing import NamedTuple
 
 from aerial.core import units
@@ -109,19 +108,18 @@ class Balcony(NamedTuple):
         return self.structure in CONDUCTIVE_STRUCTURES
 
 
-@dataclass
-class Plan:
+class Plan(NamedTuple):
     """A validated ``[plan]`` table (lengths in metres)."""
 
     lot: Polygon | None
     building: str
     entry: Entry
-    buildings: list = field(default_factory=list)
-    supports: list = field(default_factory=list)
-    obstacles: list = field(default_factory=list)
-    lines: list = field(default_factory=list)
+    buildings: list | tuple = ()
+    supports: list | tuple = ()
+    obstacles: list | tuple = ()
+    lines: list | tuple = ()
     balcony: Balcony | None = None
-    notes: list = field(default_factory=list)
+    notes: list | tuple = ()
     given: bool = True
 
     @property
@@ -206,6 +204,12 @@ def parse_plan(site) -> Plan:
             if not lot.buffer(0.5, quad_segs=8).covers(Point(s.x_m, s.y_m)):
                 notes.append(f'support "{s.name}" is outside the lot: a wire fixed there needs the neighbour\'s consent')
     return Plan(lot, building, entry, buildings, supports, obstacles, lines, balcony, notes, given=bool(raw))
+
+
+def site_plan(site) -> Plan:
+    """The site's validated ``[plan]``: the one kept when the site loaded, else (a site built otherwise) read now."""
+    plan = getattr(site, "parsed_plan", None)
+    return parse_plan(site) if plan is None else plan
 
 
 def line_kind(given) -> tuple[str, str]:
@@ -295,6 +299,6 @@ def _supports(r: TableReader, raw, site, entry: Entry) -> list:
 
 
 __all__ = [
-    "Plan", "PlanSupport", "Building", "Obstacle", "OverheadLine", "Entry", "Balcony", "parse_plan", "line_kind",
+    "Plan", "PlanSupport", "Building", "Obstacle", "OverheadLine", "Entry", "Balcony", "parse_plan", "site_plan", "line_kind",
     "LINE_KINDS", "STRUCTURES", "BUILDING_TYPES",
 ]

@@ -29,7 +29,7 @@ from aerial.core.lengthtext import metres
 from aerial.core.materials import CONDUCTOR_ALIASES, CONDUCTORS, SOIL_WORDS, SOILS, Soil, soil_category
 from aerial.models.coil import CoilWinding
 from aerial.site.building import SiteBuilding, parse_building
-from aerial.site.plan import parse_plan
+from aerial.site.plan import Plan, parse_plan
 from aerial.site.tables import (  # noqa: F401  (TableReader and the words are read from here too)
     HEIGHT_TOLERANCE_M, MAX_SITE_LENGTH_M, SUPPORT_KINDS, TableReader, choice_words, shown_key, unknown_key_words,
 )
@@ -170,8 +170,7 @@ class Support(NamedTuple):
     height_tolerance_m: float
 
 
-@dataclass(frozen=True)
-class WireRun:
+class WireRun(NamedTuple):
     """One resolved wire: a 3-D polyline with its size and role.
 
     ``role`` is "aerial", "lead-in", "earth lead" or "counterpoise".
@@ -192,8 +191,7 @@ class WireRun:
         return float(np.linalg.norm(np.diff(self.points_m, axis=0), axis=1).sum())
 
 
-@dataclass(frozen=True)
-class SoilSpec:
+class SoilSpec(NamedTuple):
     """The site's ground: relative permittivity [1] and conductivity [S/m] with the bounds of their range."""
 
     name: str
@@ -213,8 +211,7 @@ class SoilSpec:
         return min(low, self.relative_permittivity), max(high, self.relative_permittivity)
 
 
-@dataclass(frozen=True)
-class Electrode:
+class Electrode(NamedTuple):
     """One part of the earth system, lengths in metres."""
 
     kind: str  # "rods", "buried_wires", "water_pipe", "building_earth"
@@ -307,6 +304,9 @@ class Site:
     building: SiteBuilding | None = None
     #: Whether ``[plan]`` says the wire is at a flat (``building = "apartment"``).
     apartment: bool = False
+    #: ``[plan]`` validated once when the site loads (``plan`` keeps the table as written); read it through
+    #: :func:`aerial.site.plan.site_plan`.
+    parsed_plan: Plan | None = None
 
     @property
     def feed_m(self) -> np.ndarray:
@@ -416,7 +416,7 @@ def load_site_text(text: str, path: str = "<text>") -> Site:
         raise SiteError(path, "", "", f"not valid TOML ({msg})", line=line) from None
     r = TableReader(path, text)
     site = _build(r, raw, text, path)
-    plan = parse_plan(site)
+    plan = site.parsed_plan = parse_plan(site)
     site.building = parse_building(site, plan)
     site.apartment = plan.building == "apartment"
     return site

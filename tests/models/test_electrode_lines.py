@@ -81,8 +81,6 @@ def test_report_shows_impedance_and_effective_length(capsys, monkeypatch):
 def test_consistency_rf_range_with_the_permittivity_varied_holds_the_fixed_permittivity_range():
     # consistency check: the range over conductivity and permittivity contains the range over conductivity alone
     # (the same runs are among its runs), and the permittivity does move the rod's RF resistance at 1.7 MHz
-    from dataclasses import replace
-
     from aerial.estimate.earth import resistance_bounds
     from aerial.site.reader import Electrode, SoilSpec
 
@@ -90,6 +88,6 @@ def test_consistency_rf_range_with_the_permittivity_varied_holds_the_fixed_permi
     rod = [Electrode("rods", "e.r", 1, 2.44, 0.015875, 0.0, 0.0)]
     f = [0.53e6, 1.7e6]
     both = resistance_bounds(rod, soil, f)
-    fixed = resistance_bounds(rod, replace(soil, relative_permittivity_low=None, relative_permittivity_high=None), f)
+    fixed = resistance_bounds(rod, soil._replace(relative_permittivity_low=None, relative_permittivity_high=None), f)
     assert np.all(both["low_ohm"] <= fixed["low_ohm"] + 1e-9) and np.all(both["high_ohm"] >= fixed["high_ohm"] - 1e-9)
     assert both["high_ohm"][1] - both["low_ohm"][1] > fixed["high_ohm"][1] - fixed["low_ohm"][1]
