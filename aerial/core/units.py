@@ -19,7 +19,6 @@ from __future__ import annotations
 import math
 import re
 from decimal import Decimal
-from fractions import Fraction
 
 #: The international foot, exact by definition (NIST SP 811). [m]
 FOOT_M = 0.3048
@@ -117,6 +116,8 @@ class UnitError(ValueError):
 
 def _amount(groups) -> Fraction:
     """The exact value of one ``_AMOUNT`` match: (whole, num, den, num, den, decimal)."""
+    from fractions import Fraction  # here: only a fraction or feet and inches needs exact fractions
+
     whole, n1, d1, n2, d2, dec = groups
     if dec is not None:
         return Fraction(Decimal(dec))
@@ -265,6 +266,8 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
         amount = _amount(fraction.groups()[:6])
     except UnitError as err:
         raise UnitError(f"{err.expected}; {expected()}") from None
+    from fractions import Fraction
+
     return float(amount * Fraction(Decimal(repr(units[unit]))))
 
 
@@ -292,17 +295,18 @@ def _comma_words(value: str) -> str:
 
 def _feet_and_inches(value: str) -> float | None:
     """ "6 ft 3 in", "6'3\"", "6'" or "3\"" in metres, exactly; None when the text is not of that form. [m]"""
-    foot, inch = Fraction(3048, 10000), Fraction(254, 10000)
     m = _FEET_INCHES.match(value)
     if m:
-        return float(_amount(m.groups()[:6]) * foot + _amount(m.groups()[6:12]) * inch)
-    m = _FEET_MARK.match(value)
-    if m:
-        return float(_amount(m.groups()[:6]) * foot)
-    m = _INCH_MARK.match(value)
-    if m:
-        return float(_amount(m.groups()[:6]) * inch)
-    return None
+        feet, inches = _amount(m.groups()[:6]), _amount(m.groups()[6:12])
+    elif m := _FEET_MARK.match(value):
+        feet, inches = _amount(m.groups()[:6]), 0
+    elif m := _INCH_MARK.match(value):
+        feet, inches = 0, _amount(m.groups()[:6])
+    else:
+        return None
+    from fractions import Fraction
+
+    return float(feet * Fraction(3048, 10000) + inches * Fraction(254, 10000))
 
 
 #: The length units of the US customary system (NIST SP 811): a length written in one of them is the user's

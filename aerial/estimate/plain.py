@@ -142,6 +142,8 @@ def json_text(value) -> str:
 #: The types written as they stand; a dict or list holding only these is written by the standard library's
 #: C encoder in one call, its items separated by a line break and the indent.
 SCALAR_TYPES = frozenset({str, LengthText, float, int, bool, type(None)})
+#: The one type of key written here (a dict with any other goes to ``json.dumps``).
+KEY_TYPES = frozenset({str})
 _encoders: dict = {}
 
 
@@ -173,18 +175,32 @@ def _flat_text(o, nl: str) -> str:
     return text[0] + inner + text[1:-1] + nl + text[-1]
 
 
+def _scalar_text(o) -> str:
+    """JSON text of one value of :data:`SCALAR_TYPES` (``_NotPlain`` for a non-finite float)."""
+    t = type(o)
+    if t is str or t is LengthText:
+        return encode_basestring_ascii(o)
+    if t is float:
+        text = float.__repr__(o)
+        if "n" in text:  # inf, nan
+            raise _NotPlain
+        return text
+    if o is None:
+        return "null"
+    if t is bool:
+        return "true" if o else "false"
+    return int.__repr__(o)
+
+
 def _write(o, out: list, nl: str) -> None:
     """Append the JSON text of ``o`` to ``out``; ``nl`` is a line break and the current indent."""
     t = type(o)
     if t in SCALAR_TYPES:
-        if t is float and "n" in float.__repr__(o):  # inf, nan
-            raise _NotPlain
-        out.append(encode_basestring_ascii(o) if t is str or t is LengthText else "null" if o is None
-                   else ("true" if o else "false") if t is bool else (float.__repr__(o) if t is float else int.__repr__(o)))
+        out.append(_scalar_text(o))
     elif t is dict:
         if not o:
             out.append("{}")
-        elif all(type(k) is str for k in o) and all(type(v) in SCALAR_TYPES for v in o.values()):
+        elif SCALAR_TYPES.issuperset(map(type, o.values())) and KEY_TYPES.issuperset(map(type, o)):
             out.append(_flat_text(o, nl))
         else:
             inner = nl + "  "
@@ -192,16 +208,17 @@ def _write(o, out: list, nl: str) -> None:
             for k, v in o.items():
                 if type(k) is not str:
                     raise _NotPlain
-                out.append(sep)
-                out.append(encode_basestring_ascii(k))
-                out.append(": ")
-                _write(v, out, inner)
+                if type(v) in SCALAR_TYPES:  # most values: written here, without a call of _write
+                    out.append(f"{sep}{encode_basestring_ascii(k)}: {_scalar_text(v)}")
+                else:
+                    out.append(f"{sep}{encode_basestring_ascii(k)}: ")
+                    _write(v, out, inner)
                 sep = "," + inner
             out.append(nl + "}")
     elif t is list or t is tuple:
         if not o:
             out.append("[]")
-        elif all(type(v) in SCALAR_TYPES for v in o):
+        elif SCALAR_TYPES.issuperset(map(type, o)):
             out.append(_flat_text(o, nl))
         else:
             inner = nl + "  "
