@@ -333,7 +333,7 @@ def test_bench_bandwidth_is_checked_against_the_network_solve():
     truth = design_tuning(grid, r, x, parts, band=(550e3, 1500e3))
     row = min(truth["rows"], key=lambda rw: abs(rw["frequency_hz"] - 600e3))
     cal = Calibration(240e-6, row["capacitor_setting_f"], row["frequency_hz"], row["bandwidth_hz"])
-    out = design_tuning(grid, r, x, TuningParts(**{**parts.__dict__, "calibration": cal}), band=(550e3, 1500e3))
+    out = design_tuning(grid, r, x, parts._replace(calibration=cal), band=(550e3, 1500e3))
     check = out["calibration"]["bench_check"]
     assert check["solved_bandwidth_hz"] == pytest.approx(check["measured_bandwidth_hz"], rel=0.05)
     assert check["model_aerial_resistance_ohm"] == pytest.approx(30.0)

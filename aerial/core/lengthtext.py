@@ -26,7 +26,7 @@ from __future__ import annotations
 import math
 import re
 import string
-from dataclasses import dataclass
+from typing import NamedTuple
 
 from aerial.core.units import MILE_M, length_text, significant_text
 
@@ -38,8 +38,7 @@ SCALES: dict[str, tuple[float, float]] = {"m": (1.0, 1.0), "mm": (1e3, 1.0), "cm
 SYSTEMS = ("si", "us")
 
 
-@dataclass(frozen=True)
-class Length:
+class Length(NamedTuple):
     """One length in a sentence: its exact value and how the metric sentence writes it.
 
     Attributes

@@ -1,6 +1,6 @@
 """From aerial to earphone: tuning design, calibration and station verdicts for a diode-detector receiver.
 
-Pure combination layer: dataclasses in, JSON-ready dicts out (plain floats,
+Pure combination layer: named tuples in, JSON-ready dicts out (plain floats,
 lists and strings, never null: a figure that is not known is left out; every
 key carries its unit: ``_hz``, ``_f``, ``_h``, ``_ohm``,
 ``_v``, ``_w``, ``_db``, ``_v_per_m``, ``_m``; ``_ratio`` for dimensionless
@@ -20,7 +20,7 @@ from __future__ import annotations
 
 import functools
 import math
-from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 
@@ -96,8 +96,7 @@ LOW_IMPEDANCE_NOTE = (
 )
 
 
-@dataclass(frozen=True)
-class Calibration:
+class Calibration(NamedTuple):
     """A measured resonance with the aerial connected.
 
     Attributes
@@ -118,8 +117,7 @@ class Calibration:
     bandwidth_hz: float | None = None
 
 
-@dataclass(frozen=True)
-class TuningParts:
+class TuningParts(NamedTuple):
     """The receiver's tuning parts, detector and earphone.
 
     Attributes
@@ -182,8 +180,7 @@ class TuningParts:
     capacitor_assumed: bool = False
 
 
-@dataclass(frozen=True)
-class Station:
+class Station(NamedTuple):
     """A transmitter to assess.
 
     Attributes
@@ -782,7 +779,7 @@ def calibrate_aerial(calibration: Calibration, parts: TuningParts) -> dict:
     >>> round(out["aerial_shunt_capacitance_f"] * 1e12)
     100
     """
-    parts = TuningParts(**{**parts.__dict__, "calibration": calibration})
+    parts = parts._replace(calibration=calibration)
     _check_parts(parts)
     aerial = _Aerial([calibration.frequency_hz], 1.0, -1e3)
     notes: list = []
@@ -1266,7 +1263,7 @@ def tuning_range_curve(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningPa
     notes: list = []
     _apply_calibration(aerial, parts, _diode(parts), notes)
     coil = _resolve_coil(
-        parts if coil_inductance_h is None else TuningParts(**{**parts.__dict__, "coil_inductance_h": coil_inductance_h}))
+        parts if coil_inductance_h is None else parts._replace(coil_inductance_h=coil_inductance_h))
     return _range_curve(aerial, coil, parts, _setting_of(aerial, coil, parts), notes, points)
 
 
@@ -2041,10 +2038,10 @@ def _design_rows(scene, aerial, parts, base: _Coil, band) -> tuple:
                       coupling_coefficient=cpl.get("coupling_coefficient"))
         coil = base
         if not coil_given:
-            sub = TuningParts(**{**parts.__dict__, "arrangement": cfg["arrangement"], "tap_fraction": cfg["tap_fraction"],
-                                 "series_capacitance_f": cfg["series_capacitance"],
-                                 "primary_inductance_h": cfg["primary_inductance"],
-                                 "coupling_coefficient": cfg["coupling_coefficient"]})
+            sub = parts._replace(arrangement=cfg["arrangement"], tap_fraction=cfg["tap_fraction"],
+                                 series_capacitance_f=cfg["series_capacitance"],
+                                 primary_inductance_h=cfg["primary_inductance"],
+                                 coupling_coefficient=cfg["coupling_coefficient"])
             coil = _designed_coil(band, aerial, sub)
             if lp is not None:
                 cpl = {**cpl, "primary_inductance": sd_mod.PRIMARY_FRACTION * coil.inductance}

@@ -72,7 +72,7 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from typing import NamedTuple
 
 import numpy as np
 
@@ -105,7 +105,6 @@ WALL_CLEARANCE_M = 0.02
 MAX_ELECTRICAL_HEIGHT_RAD = 1.0
 
 
-@dataclass(frozen=True)
 class BuildingBody:
     """A building as the models see it.
 
@@ -119,20 +118,29 @@ class BuildingBody:
         A key of ``SHIELDING_BY_CONSTRUCTION``.
     """
 
-    footprint: np.ndarray
-    height_m: float
-    construction: str
+    __slots__ = ("footprint", "height_m", "construction")
 
-    def __post_init__(self):
-        fp = np.asarray(self.footprint, dtype=float)
+    def __init__(self, footprint, height_m: float, construction: str):
+        fp = np.asarray(footprint, dtype=float)
         if fp.ndim != 2 or fp.shape[1] != 2 or len(fp) < 3:
             raise ModelInputError("a building footprint needs at least three plan corners [[x, y], ...]")
-        if not self.height_m > 0:
-            raise ModelInputError(f"a building height must be positive; got {self.height_m!r}")
-        if self.construction not in SHIELDING_BY_CONSTRUCTION:
-            raise ModelInputError(f"{self.construction!r} is not a known construction, must be one of "
+        if not height_m > 0:
+            raise ModelInputError(f"a building height must be positive; got {height_m!r}")
+        if construction not in SHIELDING_BY_CONSTRUCTION:
+            raise ModelInputError(f"{construction!r} is not a known construction, must be one of "
                                   + ", ".join(repr(k) for k in SHIELDING_BY_CONSTRUCTION))
-        object.__setattr__(self, "footprint", fp)
+        for name, value in (("footprint", fp), ("height_m", height_m), ("construction", construction)):
+            object.__setattr__(self, name, value)  # set once, here: a BuildingBody is read-only afterwards
+
+    def __setattr__(self, name, value):
+        raise AttributeError(f"BuildingBody is read-only: cannot set {name!r} (make a new BuildingBody)")
+
+    def __delattr__(self, name):
+        raise AttributeError(f"BuildingBody is read-only: cannot delete {name!r}")
+
+    def __repr__(self) -> str:
+        return (f"BuildingBody(footprint={self.footprint.tolist()!r}, height_m={self.height_m!r}, "
+                f"construction={self.construction!r})")
 
     @property
     def shielding(self) -> tuple:
@@ -840,8 +848,7 @@ _BOX_SCREENS: dict = {}
 _FIELD_HEIGHTS: dict = {}
 
 
-@dataclass(frozen=True)
-class BoxScreen:
+class BoxScreen(NamedTuple):
     """The charge a grounded box (a building on the grounded plane) takes in a uniform vertical field.
 
     Attributes
@@ -1158,7 +1165,7 @@ def box_screen(body: BuildingBody, target_panels: int = BOX_TARGET_PANELS) -> Bo
         return found
     centre, au, av, hu, hv = _box_panels(body, int(target_panels))
     box = BoxScreen(centre, au, av, hu, hv, np.zeros(len(centre)), float(body.height_m), body.footprint.copy())
-    screen = replace(box, charge=_box_charges(box))
+    screen = box._replace(charge=_box_charges(box))
     if len(_BOX_SCREENS) >= 16:
         _BOX_SCREENS.pop(next(iter(_BOX_SCREENS)))
     _BOX_SCREENS[key] = screen

@@ -30,7 +30,7 @@ References
 from __future__ import annotations
 
 import threading
-from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 from aerial.core.constants import EPSILON_0 as epsilon_0
@@ -475,8 +475,7 @@ def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = Fa
     return out
 
 
-@dataclass(frozen=True)
-class ElectrostaticSolution:
+class ElectrostaticSolution(NamedTuple):
     """Result of :func:`electrostatic_solution`.
 
     Attributes

@@ -20,7 +20,6 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import NamedTuple
 
 import numpy as np
@@ -46,8 +45,7 @@ DETECTOR_MAX_ITER = 200
 DEFAULT_MODULATION_DEPTH = 0.3
 
 
-@dataclass(frozen=True)
-class Diode:
+class Diode(NamedTuple):
     """Shockley parameters of a detector diode.
 
     Attributes
