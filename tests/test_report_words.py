@@ -160,3 +160,14 @@ def test_a_station_outside_the_swept_bands_is_said_in_the_warnings(capsys, write
     assert "Longwave far: beyond the flat-earth range" in text
     assert "Longwave far: below 0.3 MHz the ITU-R P.372 man-made noise line is extended beyond its range" in text
     assert "is not included" not in text
+
+
+def test_one_station_outside_the_sky_wave_method_reads_its_not_their(capsys, write_site):
+    """One station 20 km away (the P.1147 method starts at 50 km): "treat its night figures", not "their"."""
+    from .conftest import MINIMAL
+
+    p = write_site(MINIMAL.replace('height = "0 m"', 'height = "0 m"\ncoil = "240 uH"')
+                   + '\n[[stations]]\nname = "Town"\nfrequency = "1 MHz"\npower = "5 kW"\ndistance = "20 km"\n')
+    code, out, err = run(capsys, "report", p, "--width", "200")
+    assert code == 0, err
+    assert "extended for Town — treat its night figures with care." in flat(out)

@@ -250,7 +250,8 @@ def _stations_day_and_night(site, f, r, x, rr, he, parts, own=None, band=None, c
     outside = [s.name for s, sky in zip(site.stations, skies) if sky["outside_method"]]
     if outside:
         warnings.append("Sky wave: the ITU-R P.1147 method holds for 150–1700 kHz and paths of 50–12 000 km; "
-                        "extended for " + ", ".join(outside) + " — treat their night figures with care.")
+                        "extended for " + ", ".join(outside)
+                        + f" — treat {'its' if len(outside) == 1 else 'their'} night figures with care.")
     atm_night = [st["name"] for st in stations if st["night"]["noise_dominant"] == "atmospheric"]
     if atm_night:
         warnings.append("By night atmospheric noise (distant lightning), not man-made noise, sets the noise floor "
