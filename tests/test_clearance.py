@@ -280,3 +280,21 @@ def test_a_refusal_under_us_units_gives_the_distances_in_feet(tmp_path, capsys):
     assert 'power line "street line": 52.5 ft needed (1.5 × 35 ft)' in err and " m " not in err.replace(p.name, "")
     assert main(["check", str(p)]) == EXIT_REFUSED  # metres as before without the option
     assert "16.0 m needed (1.5 × 10.7 m)" in capsys.readouterr().err
+
+
+def test_layout_does_not_analyse_a_present_wire_that_breaks_the_rule(tmp_path, capsys):
+    """aerial report refuses the site's own wire inside a fall zone; aerial layout does not print figures for it
+    either (no "as 'aerial report' figures it" line, present_wire null), and its warnings say why."""
+    import json
+
+    text = SITE.format(eave_y=10.0, oak_x=20.0, oak_y=30.0, rx_x=0, rx_y=11, lead_via="", kind='kind = "power"')
+    p = tmp_path / "unsafe_present.toml"
+    p.write_text(text, encoding="utf-8")
+    assert main(["report", str(p)]) == EXIT_REFUSED
+    capsys.readouterr()
+    assert main(["layout", str(p), "--width", "200"]) == 0
+    out = capsys.readouterr().out
+    assert "your present wire" not in out
+    assert "Your present wire breaks the power-line rule" in " ".join(out.replace("│", " ").split())
+    assert main(["layout", str(p), "--json"]) == 0
+    assert json.loads(capsys.readouterr().out)["present_wire"] is None

@@ -678,14 +678,14 @@ def _plan(site, best, full_wave, draw, allow_large, progress) -> dict:
     """:func:`plan_layouts`, its messages named by the caller."""
     from aerial.estimate.assemble import stage
 
-    plan, total, warnings = _prepare(site, best, allow_large)
+    plan, total, warnings, present_refused = _prepare(site, best, allow_large)
     objective = _objective(site, warnings)
     ctx = _Context(site, plan, objective)
     stage(progress, f"screening {total:,} candidate layouts")
     top_rec, tally = _search(ctx, total, max(best, SHORTLIST), progress)
     stage(progress, "the listed layouts with the report's model")
     layouts, screening_error_db = _listed_layouts(ctx, top_rec, best, warnings)
-    result = _result(site, plan, ctx, objective, total, tally, layouts, warnings)
+    result = _result(site, plan, ctx, objective, total, tally, layouts, warnings, present_refused)
     result["screening_difference_db"] = screening_error_db
     if layouts:
         _winner_extras(result, site, plan, ctx, objective, full_wave, warnings, progress, allow_large=allow_large)
@@ -695,7 +695,8 @@ def _plan(site, best, full_wave, draw, allow_large, progress) -> dict:
 
 
 def _prepare(site, best, allow_large):
-    """Check the request and the site's own wire; returns the plan, the candidate count and the first warnings."""
+    """Check the request and the site's own wire; returns the plan, the candidate count, the first warnings and
+    whether the site's own wire breaks the power-line rule."""
     from aerial.planner.clearance import check_site_clearance
     from aerial.site.plan import site_plan
 
@@ -723,7 +724,7 @@ def _prepare(site, best, allow_large):
         warnings.append("Your present wire breaks the power-line rule (aerial report and aerial check will refuse it): "
                         + own.summary())
     warnings += own.warnings
-    return plan, total, warnings
+    return plan, total, warnings, bool(own.refused)
 
 
 def _search(ctx: _Context, total: int, keep: int, progress):
@@ -840,8 +841,12 @@ def _apply_report_model(ctx: _Context, lay: dict):
     return difference, done["validity"]
 
 
-def _result(site, plan, ctx, objective, total, tally, layouts, warnings) -> dict:
-    """The JSON-ready result, before the winner's extras."""
+def _result(site, plan, ctx, objective, total, tally, layouts, warnings, present_refused=False) -> dict:
+    """The JSON-ready result, before the winner's extras.
+
+    A present wire that breaks the power-line rule is not analysed (``present_wire`` None; the warnings say why),
+    as ``aerial report`` refuses it.
+    """
     from aerial.estimate.cautions import cautions_for
     from aerial.planner.figures import REPORT_MODEL
 
@@ -872,7 +877,7 @@ def _result(site, plan, ctx, objective, total, tally, layouts, warnings) -> dict
         "figures_model": (f"the figures and scores of the listed layouts are the {REPORT_MODEL}; all "
                           f"{total:,} candidates were first screened with a faster model"),
         "layouts": layouts,
-        "present_wire": present_wire(site, objective, ctx.floor),
+        "present_wire": None if present_refused else present_wire(site, objective, ctx.floor),
         "apartment": apartment_notes(site, plan, objective["frequency_hz"]) if plan.building == "apartment" else [],
         "code_checklist": [],
         "picture": None,
