@@ -413,3 +413,20 @@ def test_every_parser_takes_options_only_in_full():
     parser = build_parser()
     assert not parser.allow_abbrev
     assert all(not sub.allow_abbrev for sub in parser.command_parsers.values())
+
+
+def test_coil_helper_says_when_the_q_frequency_is_at_or_near_the_coils_self_resonance(capsys):
+    """A 10 mH single-layer coil on a 10 mm former resonates by itself below 1 MHz: the helper says its Q at
+    1 MHz does not apply; a 1.57 mH coil (self-resonance 2.41 MHz) acts as L / (1 - (f/f_s)^2) = 1.21 L there
+    (the lumped coil with its self-capacitance across it, common practice); a 240 µH coil is left alone."""
+    code, out, err = run(capsys, "coil", "--diameter", "10 mm", "--wire", "40 AWG", "--inductance", "10 mH",
+                         "--width", "200")
+    assert code == 0, err
+    assert "1 MHz is above the coil's self-resonance (658 kHz)" in out and "do not apply" in out
+    code, out, err = run(capsys, "coil", "--diameter", "50 mm", "--wire", "26 AWG", "--turns", "300", "--json")
+    assert code == 0, err
+    data = json.loads(out)
+    factor = 1.0 / (1.0 - (data["frequency_hz"] / data["self_resonance_hz"]) ** 2)
+    assert any(f"act as {factor:.2f} times its inductance" in w for w in data["warnings"]), data["warnings"]
+    code, out, err = run(capsys, "coil", "--diameter", "50 mm", "--wire", "26 AWG", "--inductance", "240 uH", "--json")
+    assert not any("self-resonance" in w for w in json.loads(out)["warnings"])

@@ -372,6 +372,9 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
     note = coil_mod.self_capacitance_note(c_self, d + wd, length)
     if note:
         out["warnings"].append(note)
+    near = self_resonance_note(f, out["self_resonance_hz"])
+    if near:
+        out["warnings"].append(near)
     loss = coil_mod.coil_loss(f, out["inductance_h"], d, wd, turns, pitch=p, strands=strands, strand_diameter=sd)
     for k, v in loss._asdict().items():
         if isinstance(v, (int, float, np.floating, np.ndarray)):
@@ -387,6 +390,35 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
     if "converged" in out:
         out["converged"] = bool(out["converged"])
     return finalise(out)
+
+
+#: A coil is used well below its self-resonance: above this fraction of it the inductance it shows has risen by
+#: more than 1 / (1 - (1/3)^2) - 1 = 12.5 % (common practice; the lumped coil with its self-capacitance across it).
+SELF_RESONANCE_FRACTION = 1.0 / 3.0
+
+
+def self_resonance_note(frequency_hz: float, self_resonance_hz: float) -> str | None:
+    """A warning when the coil is used at or near its self-resonance, else None.
+
+    The coil with its self-capacitance C_s across it shows L / (1 - (f / f_s)^2) below f_s and is no inductor
+    above it.
+
+    >>> self_resonance_note(1e6, 6.56e6) is None
+    True
+    >>> self_resonance_note(1e6, 658e3).startswith("1 MHz is above the coil's self-resonance (658 kHz)")
+    True
+    >>> self_resonance_note(1e6, 2.41e6).endswith("act as 1.21 times its inductance there (L / (1 - (f/f_s)^2))")
+    True
+    """
+    ratio = float(frequency_hz) / float(self_resonance_hz)
+    f, fs = units.si_text(frequency_hz, "Hz"), units.si_text(self_resonance_hz, "Hz")
+    if ratio >= 1.0:
+        return (f"{f} is above the coil's self-resonance ({fs}): there it is no inductor and the loss and Q shown do "
+                "not apply; use fewer turns, spaced wider, or a multilayer or ferrite-cored coil")
+    if ratio > SELF_RESONANCE_FRACTION:
+        return (f"{f} is within a third of the coil's self-resonance ({fs}): its self-capacitance makes it act as "
+                f"{1.0 / (1.0 - ratio ** 2):.2f} times its inductance there (L / (1 - (f/f_s)^2))")
+    return None
 
 
 def _absurd_coil(turns, winding_length_m, form_diameter_m) -> list[str]:
