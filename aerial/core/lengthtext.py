@@ -23,6 +23,7 @@ Examples
 
 from __future__ import annotations
 
+import functools
 import math
 import re
 import string
@@ -223,8 +224,14 @@ def words(template: str, /, **fields) -> LengthText:
 #: A number (thousands may be grouped by a space, "12 000") followed by a metric length unit in
 #: free text (not m·pF, mV/m, mm2 ...); a range "50–12 000 km" is taken whole.
 NUMBER = r"\d{1,3}(?:[ \u00a0\u2009\u202f]\d{3})+(?:\.\d+)?|\d+(?:\.\d+)?"
-METRIC_LENGTH = re.compile(rf"(?<![\w.])(?<!\d[ \u00a0\u2009\u202f])(?:({NUMBER})\s?[–-]\s?)?({NUMBER})\s?(km|cm|mm|m)"
-                           r"(?![\w·/²^])")
+METRIC_LENGTH_TEXT = (rf"(?<![\w.])(?<!\d[ \u00a0\u2009\u202f])(?:({NUMBER})\s?[–-]\s?)?({NUMBER})\s?(km|cm|mm|m)"
+                      r"(?![\w·/²^])")
+
+
+@functools.cache
+def metric_length() -> re.Pattern:
+    """:data:`METRIC_LENGTH_TEXT` compiled, on first use (text in metres only never needs it)."""
+    return re.compile(METRIC_LENGTH_TEXT)
 
 
 def convert_digits(words_: str) -> str:
@@ -249,7 +256,7 @@ def convert_digits(words_: str) -> str:
             return Length(size, unit=unit).us()
         return Length(size, unit=unit, low_m=number(low) * scale[unit]).us()
 
-    return METRIC_LENGTH.sub(convert, words_)
+    return metric_length().sub(convert, words_)
 
 
 def text_in(words_, system: str) -> str:

@@ -21,7 +21,7 @@ from rich.table import Table
 from rich.markup import escape
 from rich.text import Text
 
-from aerial.core.lengthtext import METRIC_LENGTH, text_in
+from aerial.core.lengthtext import metric_length, text_in
 from aerial.core.units import FOOT_M, MILE_M, length_text, si_text, significant_text
 
 
@@ -152,7 +152,7 @@ class Lengths:
     """
 
     #: A metric length written in free text (the fallback for text that does not keep its lengths).
-    PATTERN = METRIC_LENGTH
+    PATTERN = metric_length()
 
     def __init__(self, system: str = "si"):
         if system not in ("si", "us"):
