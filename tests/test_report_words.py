@@ -171,3 +171,18 @@ def test_one_station_outside_the_sky_wave_method_reads_its_not_their(capsys, wri
     code, out, err = run(capsys, "report", p, "--width", "200")
     assert code == 0, err
     assert "extended for Town — treat its night figures with care." in flat(out)
+
+
+def test_a_bench_calibration_note_is_not_repeated_as_a_station_warning(capsys, write_site):
+    """The tuning notes say where the aerial's capacitance came from; the warnings do not say it again per
+    station (input handling)."""
+    from .conftest import MINIMAL
+
+    site = (MINIMAL.replace('height = "0 m"', 'height = "0 m"\ncoil = "240 uH"\ncapacitor = ["15 pF", "365 pF"]')
+            + '\n[receiver.measured]\ncoil = "240 uH"\ncapacitor = "150 pF"\nfrequency = "700 kHz"\n'
+            + '\n[[stations]]\nname = "Near one"\nfrequency = "1 MHz"\npower = "5 kW"\ndistance = "20 km"\n')
+    code, out, err = run(capsys, "report", write_site(site), "--width", "200")
+    assert code == 0, err
+    text = flat(out)
+    assert "taken from your measured resonance at 700 kHz" in text
+    assert "Near one: aerial capacitance" not in text

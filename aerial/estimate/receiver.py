@@ -126,7 +126,7 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     if site.stations:
         own = station_effective_heights(site, f, resp)
         stations, night_warnings = _stations_day_and_night(site, f, r, x, rr, he, parts, own, band=(lo, hi), coil=coil)
-        warnings += night_warnings + station_warnings(stations)
+        warnings += night_warnings
         day = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
                                  s.soil.conductivity_s_m, effective_height_m=h) for s, h in zip(site.stations, own)]
         try:
@@ -137,25 +137,30 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
             warnings.append(f"tuning for the listed stations not worked out: {err}")
         if design is not None:
             tuning["station_design"] = design
+        said = set(warnings) | set(tuning.get("notes", [])) | set(tuning.get("warnings", []))
+        warnings += station_warnings(stations, said)  # once the tuning's own notes are all written
     return tuning, stations, warnings
 
 
-def station_warnings(stations) -> list:
+def station_warnings(stations, said=frozenset()) -> list:
     """Each station's own warnings for the report's warnings, one line per text naming the stations it holds for.
 
-    The bleed-resistor warning of a series capacitor is left out: the tuning notes and the safety cautions say it.
+    Texts in ``said`` (the tuning's notes and warnings: a bench calibration's, say) are left out, and so is the
+    bleed-resistor warning of a series capacitor, which the tuning notes and the safety cautions say.
 
     >>> station_warnings([{"name": "A", "warnings": ["far"]}, {"name": "B", "warnings": ["far", "near"]}])
     ['A, B: far', 'B: near']
+    >>> station_warnings([{"name": "A", "warnings": ["far", "calibrated"]}], {"calibrated"})
+    ['A: far']
     """
     from aerial.models.tank import BLEED_REMEDY
 
-    said: dict = {}
+    by_text: dict = {}
     for s in stations:
         for w in s.get("warnings", []):
-            if BLEED_REMEDY not in w:
-                said.setdefault(w, []).append(s.get("name", ""))
-    return [f"{', '.join(names)}: {w}" for w, names in said.items()]
+            if BLEED_REMEDY not in w and w not in said:
+                by_text.setdefault(w, []).append(s.get("name", ""))
+    return [f"{', '.join(names)}: {w}" for w, names in by_text.items()]
 
 
 def station_effective_heights(site, freqs, resp) -> list:
