@@ -430,3 +430,17 @@ def test_coil_helper_says_when_the_q_frequency_is_at_or_near_the_coils_self_reso
     assert any(f"act as {factor:.2f} times its inductance" in w for w in data["warnings"]), data["warnings"]
     code, out, err = run(capsys, "coil", "--diameter", "50 mm", "--wire", "26 AWG", "--inductance", "240 uH", "--json")
     assert not any("self-resonance" in w for w in json.loads(out)["warnings"])
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["--diameter", "50", "--wire", "26 AWG", "--turns", "60"], '--diameter 50: a unit is never guessed; write it, e.g. "50 mm"'),
+    (["--diameter", "50 mm", "--wire", "26 AWG", "--inductance", "240"], 'e.g. "240 uH"'),
+    (["--diameter", "50 mm", "--wire", "26 AWG", "--turns", "60", "--frequency", "800"], 'e.g. "800 kHz"'),
+    (["--diameter", "50 mm", "--wire", "26 AWG", "--turns", "60", "--pitch", "0.5"], 'e.g. "0.5 mm"'),
+])
+def test_coil_helper_asks_for_the_unit_of_a_bare_number(capsys, argv, words):
+    """On the command line every option is text: a bare number is told to carry its unit, not that "a number given
+    as text" needs one (input handling)."""
+    code, out, err = run(capsys, "coil", *argv)
+    assert code == 2 and out == ""
+    assert words in err and "a number in m" not in err and "a number in H" not in err and err.count("\n") == 1

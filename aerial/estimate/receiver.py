@@ -294,12 +294,23 @@ def wire_option(text, option: str) -> float:
     return d
 
 
+def _bare_number(text) -> bool:
+    """Whether an option's text is a number with no unit (every option is text on the command line)."""
+    try:
+        float(str(text).strip())
+    except ValueError:
+        return False
+    return True
+
+
 def _coil_inputs(diameter, wire, pitch, frequency, strands, strand_size):
     """The ``aerial coil`` options in SI units: (form diameter, wire diameter, pitch, frequency, strand diameter)."""
     def length(text, what):
         try:
             return units.parse_length(text)
         except units.UnitError as err:
+            if _bare_number(text):
+                raise AerialError(f'{what} {text}: a unit is never guessed; write it, e.g. "{text.strip()} mm"') from None
             raise AerialError(f"{what} {text}: {err.expected}") from None
 
     d = length(diameter, "--diameter")
@@ -310,6 +321,9 @@ def _coil_inputs(diameter, wire, pitch, frequency, strands, strand_size):
     try:
         f = units.parse_quantity(frequency, units.FREQUENCY_UNITS, "a frequency", "Hz")
     except units.UnitError as err:
+        if _bare_number(frequency):
+            raise AerialError(f'--frequency {frequency}: a unit is never guessed; write it, e.g. '
+                              f'"{frequency.strip()} kHz"') from None
         raise AerialError(f"--frequency {frequency}: {err.expected}") from None
     if not 10e3 <= f <= 30e6:
         raise AerialError(f"--frequency {frequency}: expected a frequency from 10 kHz to 30 MHz")
@@ -357,6 +371,9 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
         try:
             want = units.parse_quantity(inductance, units.INDUCTANCE_UNITS, "an inductance", "H")
         except units.UnitError as err:
+            if _bare_number(inductance):
+                raise AerialError(f'--inductance {inductance}: a unit is never guessed; write it, e.g. '
+                                  f'"{inductance.strip()} uH"') from None
             raise AerialError(f"--inductance {inductance}: {err.expected}") from None
         if not 10e-9 <= want <= 1.0:
             raise AerialError(f"--inductance {inductance}: expected an inductance from 10 nH to 1 H")
