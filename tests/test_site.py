@@ -239,3 +239,16 @@ def test_a_given_permittivity_is_kept_and_a_category_brings_its_range():
     assert measured.permittivity_bounds == (12.0, 12.0)
     only_sigma = load_site_text('[soil]\nconductivity = "2 mS/m"\n' + MINIMAL, "s.toml").soil
     assert (only_sigma.relative_permittivity, only_sigma.permittivity_bounds) == (15.0, (7.0, 22.0))
+
+
+def test_a_band_in_everyday_words_gets_a_hint_on_its_own_line(tmp_path, capsys):
+    """ "am" is not read silently (AM could be any band) but the message names the band meant, and the line is the
+    one the bands are written on, not the [site] header (input handling)."""
+    from aerial.cli import main
+
+    p = tmp_path / "bands.toml"
+    p.write_text('[site]\nname = "x"\nnoise = "rural"\nbands = ["AM"]\n\n[[runs]]\npoints = [[0, 0, 0.5], [0, 0, 10]]\n'
+                 '\n[receiver]\nat = [0, 0]\nheight = "0 m"\n', encoding="utf-8")
+    assert main(["check", str(p)]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith(f'aerial: {p}:4: site.bands[0] = "AM": did you mean "mf" (the medium-wave AM broadcast band')

@@ -53,6 +53,16 @@ MAX_SUPPORTS = 200
 #: Most entries in site.bands (the named "hf" counts as one entry and holds 14 bands).
 MAX_BAND_ENTRIES = 32
 
+#: What people call the broadcast bands, and the band name aerial reads for it (a hint in the message; never read
+#: silently: "am" could be any AM band). Common practice.
+BAND_EVERYDAY_NAMES = {
+    "am": ("mf", "the medium-wave AM broadcast band, 520-1710 kHz"),
+    "mw": ("mf", "medium wave, 520-1710 kHz"), "medium wave": ("mf", "medium wave, 520-1710 kHz"),
+    "lw": ("lf", "long wave, 148.5-283.5 kHz"), "long wave": ("lf", "long wave, 148.5-283.5 kHz"),
+    "longwave": ("lf", "long wave, 148.5-283.5 kHz"), "mediumwave": ("mf", "medium wave, 520-1710 kHz"),
+    "sw": ("hf", "the short-wave broadcast bands"), "short wave": ("hf", "the short-wave broadcast bands"),
+    "shortwave": ("hf", "the short-wave broadcast bands"),
+}
 #: Most sweep frequencies a report computes (all bands together). The worst named set, "lf", "mf" and
 #: "hf" at the finest step of 100 Hz, gives 51,616; the closed-form report on it takes about 4 s and
 #: writes 21 MB of JSON on the reference machine (benchmarks/bench_limits.py).
@@ -498,7 +508,9 @@ def _bands(r: TableReader, site_t) -> list:
         if isinstance(item, str):
             named = NAMED_BANDS.get(item.strip().lower())
             if named is None:
-                r.fail(key, item, "expected a band name: " + ", ".join(f'"{n}"' for n in NAMED_BANDS))
+                common = BAND_EVERYDAY_NAMES.get(" ".join(item.strip().lower().replace("-", " ").split()))
+                hint = f'did you mean "{common[0]}" ({common[1]})? ' if common else ""
+                r.fail(key, item, hint + "expected a band name: " + ", ".join(f'"{n}"' for n in NAMED_BANDS))
             out += named
         elif isinstance(item, dict):
             r.check_keys(item, key, {"from", "to", "name"})

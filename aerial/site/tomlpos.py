@@ -29,8 +29,8 @@ def find_line(text: str, key: str) -> int | None:
                     if seen == int(index):
                         start, found = i, i + 1
                         break
-            else:
-                return found
+            else:  # not an array of tables: an array value, "bands = [...]", in the table found so far
+                return _assignment_line(lines, start, name, found)
         elif number == len(parts) - 1:
             assign = re.compile(r"\s*[\"']?" + re.escape(name) + r"[\"']?\s*=")
             for i in range(start, len(lines)):
@@ -49,4 +49,15 @@ def find_line(text: str, key: str) -> int | None:
                 if header.match(lines[i]):
                     start, found = i, i + 1
                     break
+    return found
+
+
+def _assignment_line(lines: list, start: int, name: str, found: int | None) -> int | None:
+    """Line (1-based) of ``name = ...`` from ``start`` up to the next table header, else ``found``."""
+    assign = re.compile(r"\s*[\"']?" + re.escape(name) + r"[\"']?\s*=")
+    for i in range(start, len(lines)):
+        if assign.match(lines[i]):
+            return i + 1
+        if i > start and lines[i].lstrip().startswith("["):
+            break
     return found
