@@ -254,7 +254,8 @@ def _bessel_i_asymptotic(orders, z):
 
 def _bessel_k_large(z):
     root = np.sqrt(np.pi / (2.0 * z))
-    return root * _hankel_sums(0, z)[1], root * _hankel_sums(1, z)[1]
+    powers = _hankel_powers(z)  # shared by the orders
+    return root * _hankel_sums(0, z, powers)[1], root * _hankel_sums(1, z, powers)[1]
 
 
 def _bessel_k_small(z):
@@ -269,22 +270,12 @@ def _bessel_k_pair(z):
     small = mag <= _BESSEL_SERIES_RADIUS
     large = mag > _BESSEL_ASYMPTOTIC_RADIUS
     pieces = [(small, _bessel_k_small), (~(small | large), _bessel_k_steed), (large, _bessel_k_large)]
-    return tuple(_by_region(z, [(mask, lambda x, f=f, i=i: f(x)[i]) for mask, f in pieces]) for i in (0, 1))
+    return _by_region(z, pieces, 2)  # each region's function once, for both orders
 
 
-def _by_region(x, pieces):
-    """Evaluate ``[(mask, function), ...]`` into one array; a mask that covers everything skips the indexing."""
-    out = np.empty_like(x)
-    for mask, function in pieces:
-        if mask.all():
-            return function(x)
-        if mask.any():
-            out[mask] = function(x[mask])
-    return out
-
-
-def _by_region_each(x, pieces, count):
-    """:func:`_by_region` for functions giving ``count`` arrays at once: a tuple of ``count`` arrays."""
+def _by_region(x, pieces, count):
+    """Evaluate ``[(mask, function), ...]``, each function giving ``count`` arrays at once, into a tuple of
+    ``count`` arrays; a mask that covers everything skips the indexing."""
     out = tuple(np.empty_like(x) for _ in range(count))
     for mask, function in pieces:
         if mask.all():
@@ -381,7 +372,7 @@ def _ive_orders(orders, z):
     else:
         near = mag <= _BESSEL_ASYMPTOTIC_RADIUS
         series = (mag <= _BESSEL_SERIES_RADIUS) | (near & (np.abs(w.imag) <= w.real))
-        out = _by_region_each(w, [
+        out = _by_region(w, [
             (series, lambda x: tuple(i * np.exp(-x.real) for i in _bessel_i_series(orders, x))),
             (near & ~series, lambda x: _bessel_i_wronskian(orders, x)),
             (~near, lambda x: _bessel_i_asymptotic(orders, x)),
