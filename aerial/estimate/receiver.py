@@ -303,28 +303,30 @@ def _bare_number(text) -> bool:
     return True
 
 
+def _option_quantity(text, option: str, parse, example_unit: str) -> float:
+    """An option's quantity in SI units by ``parse`` (text -> float, raising units.UnitError); a refusal names the
+    option, and a bare number is told to carry its unit (``example_unit`` in the example)."""
+    try:
+        return parse(text)
+    except units.UnitError as err:
+        if _bare_number(text):
+            raise AerialError(f'{option} {text}: a unit is never guessed; write it, e.g. '
+                              f'"{str(text).strip()} {example_unit}"') from None
+        raise AerialError(f"{option} {text}: {err.expected}") from None
+
+
 def _coil_inputs(diameter, wire, pitch, frequency, strands, strand_size):
     """The ``aerial coil`` options in SI units: (form diameter, wire diameter, pitch, frequency, strand diameter)."""
     def length(text, what):
-        try:
-            return units.parse_length(text)
-        except units.UnitError as err:
-            if _bare_number(text):
-                raise AerialError(f'{what} {text}: a unit is never guessed; write it, e.g. "{text.strip()} mm"') from None
-            raise AerialError(f"{what} {text}: {err.expected}") from None
+        return _option_quantity(text, what, units.parse_length, "mm")
 
     d = length(diameter, "--diameter")
     if not 1e-3 <= d <= 10.0:
         raise AerialError(f"--diameter {diameter}: expected a former diameter from 1 mm to 10 m")
     wd = wire_option(wire, "--wire")
     p = length(pitch, "--pitch") if pitch else None
-    try:
-        f = units.parse_quantity(frequency, units.FREQUENCY_UNITS, "a frequency", "Hz")
-    except units.UnitError as err:
-        if _bare_number(frequency):
-            raise AerialError(f'--frequency {frequency}: a unit is never guessed; write it, e.g. '
-                              f'"{frequency.strip()} kHz"') from None
-        raise AerialError(f"--frequency {frequency}: {err.expected}") from None
+    f = _option_quantity(frequency, "--frequency",
+                         lambda t: units.parse_quantity(t, units.FREQUENCY_UNITS, "a frequency", "Hz"), "kHz")
     if not 10e3 <= f <= 30e6:
         raise AerialError(f"--frequency {frequency}: expected a frequency from 10 kHz to 30 MHz")
     if p is not None and p < wd:
@@ -368,13 +370,8 @@ def coil_design(*, diameter, wire, turns=None, inductance=None, pitch=None, stra
         out.update({"turns": turns, "inductance_h": L, "winding_length_m": turns * (p or wd),
                     "wire_length_m": turns * math.pi * (d + wd)})  # as winding_for_inductance counts it
     else:
-        try:
-            want = units.parse_quantity(inductance, units.INDUCTANCE_UNITS, "an inductance", "H")
-        except units.UnitError as err:
-            if _bare_number(inductance):
-                raise AerialError(f'--inductance {inductance}: a unit is never guessed; write it, e.g. '
-                                  f'"{inductance.strip()} uH"') from None
-            raise AerialError(f"--inductance {inductance}: {err.expected}") from None
+        want = _option_quantity(inductance, "--inductance",
+                                lambda t: units.parse_quantity(t, units.INDUCTANCE_UNITS, "an inductance", "H"), "uH")
         if not 10e-9 <= want <= 1.0:
             raise AerialError(f"--inductance {inductance}: expected an inductance from 10 nH to 1 H")
         one = float(np.asarray(coil_mod.solenoid_inductance(d, wd, 1.0, pitch=p)))
