@@ -147,8 +147,9 @@ def conduction_voltage(saturation_current, ideality, current=CONDUCTION_CURRENT_
     return n * thermal_voltage(temperature) * np.log1p(_check("current", current) / _check("saturation_current", saturation_current))
 
 
-def _log_i0(x):
-    return np.log(ive(0, x)) + x
+def _log_i0(x, scaled=None):
+    """ln I0(x) from e^-x I0(x) (``scaled``, when the caller has it already)."""
+    return np.log(ive(0, x) if scaled is None else scaled) + x
 
 
 def open_circuit_detected_voltage(peak_voltage, ideality, temperature=DEFAULT_TEMPERATURE_K):
@@ -264,7 +265,7 @@ def loaded_detector(peak_voltage, saturation_current, ideality, load_resistance,
     vp, rl = np.broadcast_arrays(vp, rl)
     x = vp / vt
     i0, i1 = ive_pair(x)  # both orders at once: they share the region and the continued fractions
-    li0 = np.log(i0) + x  # ln I0(x), as _log_i0
+    li0 = _log_i0(x, i0)
     vdc, converged, it = _detector_root(li0, rl, i_s, vt, rtol, max_iter)
     small = x < 1e-6
     # ln I1(x) (I1 kept off zero); a vanishing signal takes the zero-bias resistance (no exponent worked out for it)
