@@ -1640,7 +1640,7 @@ def _station_warnings(aerial, a, i) -> list:
     if np.ravel(gw.too_close)[i]:
         warn.append("within one wavelength of the transmitter: the ground-wave formula is not valid this close")
     if np.ravel(fam.below_range)[i]:  # the atmospheric noise is added to it here (the model's note says it is not)
-        warn.append("below 0.3 MHz the ITU-R P.372 man-made noise line is extended beyond its range")
+        warn.append(noise_mod.BELOW_RANGE_EXTENDED)
     if not a["converged"] or not bool(np.ravel(a["audio"].converged)[i]):
         warn.append("the tank-voltage / detector solution did not converge fully")
     return warn

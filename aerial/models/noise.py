@@ -31,9 +31,11 @@ MAN_MADE_NOISE_COEFFICIENTS: dict[str, tuple[float, float]] = {
 #: Frequency range of the man-made noise lines in ITU-R P.372. [Hz]
 MAN_MADE_NOISE_RANGE_HZ = (0.3e6, 250e6)
 
+#: Said of a figure below the lines' range: the line extended (alone, where the atmospheric noise is added to it),
+#: and with the atmospheric noise this model leaves out.
+BELOW_RANGE_EXTENDED = "below 0.3 MHz the ITU-R P.372 man-made noise line is extended beyond its range"
 BELOW_RANGE_NOTE = (
-    "below 0.3 MHz the ITU-R P.372 man-made noise line is extended beyond its range; "
-    "atmospheric noise at LF/MF needs the P.372 world maps and is not included"
+    BELOW_RANGE_EXTENDED + "; atmospheric noise at LF/MF needs the P.372 world maps and is not included"
 )
 
 
