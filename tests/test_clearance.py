@@ -128,9 +128,9 @@ def test_wire_inside_the_zone_is_refused_with_distances():
     with pytest.raises(SafetyRefusal) as err:
         enforce_site_clearance(site)
     msg = str(err.value)
-    assert 'power line "street line": 18.0 m needed (1.5 × 12.0 m); inside: the wire "span eave to oak" (10.0 m)' in msg
+    assert 'power line "street line": 18 m needed (1.5 × 12 m); inside: the wire "span eave to oak" (10 m)' in msg
     assert 'support "oak"' in msg
-    assert "move them at least 8.0 m further away" in msg
+    assert "move them at least 8 m further away" in msg
     assert "never less than the line's height" in msg
     # one short line with the rule, then a line per breach; no rule repeated
     lines = msg.splitlines()
@@ -158,9 +158,9 @@ def test_support_whose_fall_zone_reaches_the_line_is_refused():
     site = make(eave_y=30.0, oak_x=20.0, oak_y=16.0)
     with pytest.raises(SafetyRefusal) as err:
         enforce_site_clearance(site)
-    assert 'power line "street line": 18.0 m needed (1.5 × 12.0 m); inside: ' in str(err.value)
-    assert 'the support "oak" (16.0 m)' in str(err.value)
-    assert "at least 2.0 m further" in str(err.value)
+    assert 'power line "street line": 18 m needed (1.5 × 12 m); inside: ' in str(err.value)
+    assert 'the support "oak" (16 m)' in str(err.value)
+    assert "at least 2 m further" in str(err.value)
 
 
 def test_unknown_line_kind_is_a_power_line():
@@ -236,7 +236,7 @@ def test_check_refuses_an_unsafe_site_with_exit_3(tmp_path, capsys):
     assert "Traceback" not in err
     lines = err.strip().splitlines()  # one short line plus a line per reason, not a paragraph repeating the rule
     assert len(lines) == 2 and len(err) < 700, err
-    assert lines[1].startswith('  power line "street line": 18.0 m needed')
+    assert lines[1].startswith('  power line "street line": 18 m needed')
 
 
 def test_check_reports_an_invalid_plan_with_exit_2(tmp_path, capsys):
@@ -255,7 +255,7 @@ def test_report_refuses_an_unsafe_site_with_exit_3(tmp_path, capsys):
     assert main(["report", str(p), "--json"]) == EXIT_REFUSED
     captured = capsys.readouterr()
     assert captured.out == ""
-    assert 'the support "oak" (16.0 m)' in captured.err and 'power line "street line"' in captured.err
+    assert 'the support "oak" (16 m)' in captured.err and 'power line "street line"' in captured.err
 
 
 def test_example_site_passes_its_own_clearance():
@@ -279,7 +279,7 @@ def test_a_refusal_under_us_units_gives_the_distances_in_feet(tmp_path, capsys):
     # 1.5 x 35 ft = 52.5 ft needed (worked by hand)
     assert 'power line "street line": 52.5 ft needed (1.5 × 35 ft)' in err and " m " not in err.replace(p.name, "")
     assert main(["check", str(p)]) == EXIT_REFUSED  # metres as before without the option
-    assert "16.0 m needed (1.5 × 10.7 m)" in capsys.readouterr().err
+    assert "16 m needed (1.5 × 10.7 m)" in capsys.readouterr().err
 
 
 def test_layout_does_not_analyse_a_present_wire_that_breaks_the_rule(tmp_path, capsys):

@@ -77,7 +77,7 @@ def test_a_wire_long_for_the_top_of_the_band_is_flagged_by_both_commands_from_th
     assert f"{limit_mhz:.3g}" == "1.29"
     code, out, err = run(capsys, "report", p)
     assert code == 0, err
-    assert "29.0 m is above 1/8 wavelength from 1.29 MHz up" in _words(out)
+    assert "29 m is above 1/8 wavelength from 1.29 MHz up" in _words(out)
     code, out, err = run(capsys, "layout", p)
     assert code == 0, err
     text = _words(out)
@@ -97,6 +97,27 @@ def test_a_short_wire_is_flagged_by_neither_command(capsys, write_site):
     assert code == 0 and "1/8 wavelength" not in _words(out)
     code, out, err = run(capsys, "layout", p)
     assert code == 0 and "long for the wavelength" not in _words(out)
+
+
+def test_si_sentences_write_the_wire_and_frequency_as_the_header_and_tables(capsys, write_site):
+    # 304 m span + 5 m lead-in = 309 m (invented input). The header says "309 m"; the warning must say the
+    # same, not "309.0 m", and its 1/8-wave frequency c / (8 × 309 m) = 121.3 kHz as the tables write a
+    # frequency, "121 kHz", not "0.121 MHz" (speed of light from scipy.constants).
+    p = write_site(SITE.format(span=304))
+    assert f"{SPEED_OF_LIGHT / (8 * 309.0) / 1e3:.3g}" == "121"
+    code, out, err = run(capsys, "report", p, "--width", "200")
+    assert code == 0, err
+    text = _words(out)
+    assert "aerial + lead-in 309 m" in text
+    assert "total wire length 309 m is above 1/8 wavelength from 121 kHz up" in text
+    assert "309.0 m" not in text and "0.121 MHz" not in text
+    code, out, err = run(capsys, "report", p, "--json", "--quiet")
+    assert code == 0, err
+    assert any(w.startswith("total wire length 309 m is above") for w in json.loads(out)["warnings"])
+    code, out, err = run(capsys, "report", p, "--units", "us", "--width", "200")
+    assert code == 0, err
+    # 309 m / 0.3048 m = 1013.8 ft (NIST SP 811: 1 ft = 0.3048 m exactly), in the header and the warning alike
+    assert "aerial + lead-in 1014 ft" in _words(out) and "total wire length 1014 ft is above" in _words(out)
 
 
 def test_us_units_write_a_length_alike_in_the_table_and_the_sentences(capsys):

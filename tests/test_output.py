@@ -136,11 +136,11 @@ def test_us_units_in_check_layout_and_coil(capsys):
 
 
 def test_us_units_convert_grouped_numbers_and_ranges_whole(capsys):
-    # The built-in example's sky-wave warning says "paths of 50–12 000 km": a grouped number and a
+    # The built-in example's sky-wave warning says "paths of 50–12000 km": a grouped number and a
     # range must convert whole (it once printed "50–12 0 mi"). 1 mi = 1609.344 m exactly (NIST SP 811).
     code, out, _ = run(capsys, "report", "--units", "us", "--width", "400", "--quiet")
     assert code == 0
-    assert "paths of 31.1–7456 mi" in out
+    assert "paths of 31.1–7460 mi" in out
     assert " 0 mi" not in out and not Lengths.PATTERN.findall(out)
 
 

@@ -238,7 +238,7 @@ def test_checklist_flags_a_thin_wire_on_a_long_span():
     assert "NFPA 70" in text and "not a compliance check" in text
     assert "ATTENTION: thinner than the table minimum" in text
     # NFPA 70 810.18(A) (from memory): lead-in at least 600 mm from power circuits up to 250 V, 3 m above 250 V
-    assert "at least 600 mm from power circuits up to 250 V and 3 m above 250 V" in text
+    assert "at least 0.6 m from power circuits up to 250 V and 3 m above 250 V" in text
     assert "compliant" not in text.replace("not a compliance check", "")
 
 

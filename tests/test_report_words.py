@@ -53,12 +53,13 @@ def test_what_if_steps_are_round_feet_under_us_units(capsys):
     site = load_site(BACKYARD)
     f = report_centre_frequency(site)
     rows = {r["change"]: r for r in what_if(site, f, {}, units="us")}
-    # figures stay SI: the step is 10 ft = 3.048 m exactly (NIST SP 811: 1 ft = 0.3048 m, exact by definition)
-    assert "raise the wire 3.048 m" in rows and "add 9.144 m to the far end" in rows
+    # figures stay SI: the step is 10 ft = 3.048 m exactly (NIST SP 811: 1 ft = 0.3048 m, exact by definition),
+    # its label written as the tables write a length
+    assert "raise the wire 3.05 m" in rows and "add 9.14 m to the far end" in rows
     si = {r["change"]: r for r in what_if(site, f, {})}
     assert "raise the wire 3 m" in si
     # consistency check: raised 3.048 m rather than 3 m, the wire's effective height is a little higher
-    assert rows["raise the wire 3.048 m"]["effective_height_m"] > si["raise the wire 3 m"]["effective_height_m"]
+    assert rows["raise the wire 3.05 m"]["effective_height_m"] > si["raise the wire 3 m"]["effective_height_m"]
 
 
 def test_the_bandwidth_note_names_the_range_the_search_covers():

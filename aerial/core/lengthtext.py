@@ -4,8 +4,9 @@ A warning or a note says "total wire length 29.9 m ...": the figure was rounded 
 written. Shown in feet, that rounded figure would become 98.1 ft while the table beside it, written from
 the exact 29.93 m, says 98.2 ft. A :class:`LengthText` is a ``str`` (its value is the metric sentence, so
 JSON and every reader of the result see plain text) that also carries each length it contains as an exact
-value in metres; :func:`text_in` writes the sentence again in feet, inches and miles from those values,
-in the one length format of the tables (:func:`aerial.core.units.length_text`).
+value in metres; :func:`text_in` writes the sentence again in feet, inches and miles from those values.
+In both unit systems a length is written in the one length format of the tables
+(:func:`aerial.core.units.length_text`: "309 m" in a sentence as in the table, never "309.0 m").
 
 Lengths are put into a sentence with :func:`metres` (one length), :func:`metres_range` (a range such as
 "2.1-3.4 m"), :func:`words` (a template with named fields) and ``+`` / :func:`join_text`, all of which keep
@@ -14,7 +15,7 @@ its metric lengths back from the digits (the rounded figures: the fallback, not 
 
 Examples
 --------
->>> w = "total wire length " + metres(29.93, ".1f") + " is long"
+>>> w = "total wire length " + metres(29.93) + " is long"
 >>> w, text_in(w, "us")
 ('total wire length 29.9 m is long', 'total wire length 98.2 ft is long')
 >>> text_in("total wire length 29.9 m is long", "us")  # a plain string: from the rounded digits
@@ -31,25 +32,22 @@ from typing import NamedTuple
 
 from aerial.core.units import MILE_M, length_text, significant_text
 
-#: How a metric unit written in text is reached from metres: (multiply, divide), so that a producer's own
-#: ``x * 1e3`` (mm) or ``x / 1e3`` (km) is repeated to the last digit.
-SCALES: dict[str, tuple[float, float]] = {"m": (1.0, 1.0), "mm": (1e3, 1.0), "cm": (1e2, 1.0), "km": (1.0, 1e3)}
+#: The metric units a length may be said to be written in ("km": a distance, in miles under "us").
+METRIC_UNITS = ("m", "mm", "cm", "km")
 
 #: The unit systems text can be written in: metres, or feet, inches and miles.
 SYSTEMS = ("si", "us")
 
 
 class Length(NamedTuple):
-    """One length in a sentence: its exact value and how the metric sentence writes it.
+    """One length in a sentence: its exact value, written in the one length format of the tables.
 
     Attributes
     ----------
     metres : float
         The exact length (the upper end of a range). [m]
-    spec : str
-        The format of the metric number (``".1f"``, ``".3g"``, ...).
     unit : str
-        The metric unit written: "m", "mm", "cm" or "km".
+        "km" for a distance over the ground (written in miles under "us"), else "m" (mm, cm: the same).
     low_m : float or None
         The lower end of a range, or None for a single length. [m]
     dash : str
@@ -57,33 +55,32 @@ class Length(NamedTuple):
     """
 
     metres: float
-    spec: str = ".3g"
     unit: str = "m"
     low_m: float | None = None
     dash: str = "-"
 
-    def number(self, value: float) -> str:
-        times, over = SCALES[self.unit]
-        return format(value * times / over if over == 1.0 else value / over, self.spec)
+    def one(self, value: float, system: str) -> str:
+        """One end in ``system``: :func:`length_text`, or under "us" miles for a distance written in km."""
+        if system == "us" and self.unit == "km":
+            return f"{significant_text(float(f'{float(value) / MILE_M:.3g}'))} mi"
+        return length_text(float(value), 3, system)
+
+    def text(self, system: str, dash: str) -> str:
+        """The length (or range, the unit once where both ends share it) in ``system``."""
+        high = self.one(self.metres, system)
+        if self.low_m is None:
+            return high
+        low = self.one(self.low_m, system)
+        low_number, low_unit = low.rsplit(" ", 1)
+        return f"{low_number if low_unit == high.rsplit(' ', 1)[1] else low}{dash}{high}"
 
     def si(self) -> str:
-        """The metric text, exactly as the sentence was always written."""
-        high = f"{self.number(self.metres)} {self.unit}"
-        return high if self.low_m is None else f"{self.number(self.low_m)}{self.dash}{high}"
+        """The metric text, as the tables write a length (:func:`length_text`: 309 m, 1.63 mm, 12.4 km)."""
+        return self.text("si", self.dash)
 
     def us(self) -> str:
         """The text in feet (inches below a foot) or, for a length written in km, miles."""
-        def one(value: float) -> str:
-            if self.unit == "km":
-                return f"{significant_text(float(value) / MILE_M)} mi"
-            return length_text(float(value), 3, "us")
-
-        high = one(self.metres)
-        if self.low_m is None:
-            return high
-        low = one(self.low_m)
-        low_number, low_unit = low.rsplit(" ", 1)
-        return f"{low_number if low_unit == high.rsplit(' ', 1)[1] else low}–{high}"
+        return self.text("us", "–")
 
 
 class LengthText(str):
@@ -94,9 +91,9 @@ class LengthText(str):
 
     Examples
     --------
-    >>> t = metres(0.6, ".1f") + " above " + metres(12.04, ".1f")
+    >>> t = metres(0.6) + " above " + metres(12.04)
     >>> t, type(t).__name__, t.text_in("us")
-    ('0.6 m above 12.0 m', 'LengthText', '1.97 ft above 39.5 ft')
+    ('0.6 m above 12 m', 'LengthText', '1.97 ft above 39.5 ft')
     """
 
     parts: tuple
@@ -145,40 +142,42 @@ class LengthText(str):
         return "".join(convert_digits(p) if isinstance(p, str) else p.us() for p in self.parts)
 
 
-def metres(value: float, spec: str = ".3g", unit: str = "m") -> LengthText:
-    """A length as a sentence writes it, ``f"{value:{spec}} {unit}"``, keeping the exact value.
+def metres(value: float, unit: str = "m") -> LengthText:
+    """A length in a sentence, written as the tables write it (:func:`length_text`), keeping the exact value.
 
     Parameters
     ----------
     value : float
         The length. [m]
-    spec : str
-        The format of the metric number.
     unit : str
-        The metric unit written: "m", "mm", "cm" or "km" (``value`` stays in metres).
+        "km" for a distance over the ground (miles under "us"); "m", "cm" or "mm" otherwise (feet or inches).
+        The metric text picks mm, m or km by the size, as the tables do.
 
     Examples
     --------
-    >>> metres(29.93, ".1f"), metres(0.0016, ".2g", "mm"), metres(95e3, ".0f", "km")
-    ('29.9 m', '1.6 mm', '95 km')
-    >>> metres(95e3, ".0f", "km").text_in("us"), metres(0.0016, ".2g", "mm").text_in("us")
+    >>> metres(309.0), metres(29.93), metres(0.0016), metres(95e3, "km")
+    ('309 m', '29.9 m', '1.6 mm', '95 km')
+    >>> metres(95e3, "km").text_in("us"), metres(0.0016).text_in("us")
     ('59 mi', '0.063 in')
     """
-    if unit not in SCALES:
-        raise ValueError(f"'{unit}' is not a metric length unit, must be one of {', '.join(SCALES)}")
-    return LengthText(parts=(Length(float(value), spec, unit),))
+    if unit not in METRIC_UNITS:
+        raise ValueError(f"'{unit}' is not a metric length unit, must be one of {', '.join(METRIC_UNITS)}")
+    return LengthText(parts=(Length(float(value), unit),))
 
 
-def metres_range(low: float, high: float, spec: str = ".3g", unit: str = "m", dash: str = "-") -> LengthText:
-    """A range of lengths, ``f"{low:{spec}}{dash}{high:{spec}} {unit}"``, keeping both exact values.
+def metres_range(low: float, high: float, unit: str = "m", dash: str = "-") -> LengthText:
+    """A range of lengths, each end written as the tables write a length, keeping both exact values.
 
-    >>> r = metres_range(3.05, 4.572, ".1f")
+    >>> r = metres_range(3.05, 4.572)
     >>> r, r.text_in("us")
-    ('3.0-4.6 m', '10–15 ft')
+    ('3.05-4.57 m', '10–15 ft')
+    >>> r = metres_range(50e3, 12e6, "km", "–")
+    >>> r, r.text_in("us")
+    ('50–12000 km', '31.1–7460 mi')
     """
-    if unit not in SCALES:
-        raise ValueError(f"'{unit}' is not a metric length unit, must be one of {', '.join(SCALES)}")
-    return LengthText(parts=(Length(float(high), spec, unit, float(low), dash),))
+    if unit not in METRIC_UNITS:
+        raise ValueError(f"'{unit}' is not a metric length unit, must be one of {', '.join(METRIC_UNITS)}")
+    return LengthText(parts=(Length(float(high), unit, float(low), dash),))
 
 
 def join_text(separator: str, items) -> LengthText:
@@ -203,9 +202,9 @@ def words(template: str, /, **fields) -> LengthText:
 
     Other fields are formatted with their format spec as ``str.format`` would.
 
-    >>> w = words("{part} is {d} in plan, {n:.0f} wires", part="the mast", d=metres(3.04, ".1f"), n=2.0)
+    >>> w = words("{part} is {d} in plan, {n:.0f} wires", part="the mast", d=metres(3.04), n=2.0)
     >>> w, w.text_in("us")
-    ('the mast is 3.0 m in plan, 2 wires', 'the mast is 9.97 ft in plan, 2 wires')
+    ('the mast is 3.04 m in plan, 2 wires', 'the mast is 9.97 ft in plan, 2 wires')
     """
     pieces: list = []
     for literal, name, spec, conversion in _FORMATTER.parse(template):
@@ -240,7 +239,7 @@ def convert_digits(words_: str) -> str:
     >>> convert_digits("raise the wire 3 m; add 10 m; 2 mm2 wire at 1 m·pF and 5 mV/m")
     'raise the wire 9.84 ft; add 32.8 ft; 2 mm2 wire at 1 m·pF and 5 mV/m'
     >>> convert_digits("paths of 50–12 000 km; a 2-4 m pole")
-    'paths of 31.1–7456 mi; a 6.56–13.1 ft pole'
+    'paths of 31.1–7460 mi; a 6.56–13.1 ft pole'
     """
     scale = {"km": 1e3, "m": 1.0, "cm": 1e-2, "mm": 1e-3}
 
@@ -265,7 +264,7 @@ def text_in(words_, system: str) -> str:
     A :class:`LengthText` is written from its exact lengths; any other text has its metric lengths read
     back from the digits (:func:`convert_digits`).
 
-    >>> text_in(metres(29.93, ".1f"), "us"), text_in("29.9 m", "us"), text_in(metres(29.93, ".1f"), "si")
+    >>> text_in(metres(29.93), "us"), text_in("29.9 m", "us"), text_in(metres(29.93), "si")
     ('98.2 ft', '98.1 ft', '29.9 m')
     """
     if system not in SYSTEMS:

@@ -18,7 +18,7 @@ from aerial.core.lengthtext import metres, metres_range, words
 from aerial.core.version import __version__
 from aerial.estimate.plain import finalise
 from aerial.core.errors import AerialError, ModelInputError, naming_the_file
-from aerial.core.units import FOOT_M
+from aerial.core.units import FOOT_M, si_text
 from aerial.geometry.resolve import EARTH_ROLES, resolve, wires_json
 from aerial.estimate.cautions import cautions_for
 from aerial.site.reader import JOIN_TOLERANCE_M, MAX_POINTS_PER_BAND, check_sweep_size
@@ -598,9 +598,9 @@ def what_if(site, frequency: float, earth: dict, units: str = "si", *, nominal: 
     rows = [("as described", base)]
     radials_row = better = None
     if not balcony_without_ground_access(site):
-        rows.append(("raise the wire " + metres(step["raise"], "g"),
+        rows.append(("raise the wire " + metres(step["raise"]),
                      _headline(site, _perturbed_wires(site, raise_m=step["raise"]), frequency, r_earth)))
-        rows.append(("add " + metres(step["extend"], "g") + " to the far end",
+        rows.append(("add " + metres(step["extend"]) + " to the far end",
                      _headline(site, _perturbed_wires(site, extend_m=step["extend"]), frequency, r_earth)))
         better = earth_mod.improved_earth(site.electrodes, site.soil, frequency, radial_length_m=step["radial"],
                                           aerial=earth_mod.screen_aerial(resolve(site).segments))
@@ -707,7 +707,7 @@ def _building_moves(site, frequency, earth_ohm: float, stand_off_m: float = WHAT
             w = w._replace(points_m=p)
         moved.append(w)
     try:
-        rows.append(("hold the wire " + metres(stand_off_m, "g") + " further out (poles on the rail)",
+        rows.append(("hold the wire " + metres(stand_off_m) + " further out (poles on the rail)",
                      _headline(site, moved, frequency, earth_ohm)))
     except ModelInputError:
         pass
@@ -1013,7 +1013,7 @@ def _building_currents_words(resp, fig) -> str:
         return ""
     i = int(np.argmax(f))
     return (f" The building's own induced currents raise that with frequency: by {20 * np.log10(ratio[i]):.1f} dB "
-            f"at {f[i] / 1e6:.3g} MHz.")
+            f"at {si_text(f[i], 'Hz')}.")
 
 
 def building_section(geometry, resp) -> dict:
@@ -1024,9 +1024,9 @@ def building_section(geometry, resp) -> dict:
     if fig:
         most, nominal, least = fig["static_effective_height_range_m"]
         text += words(" Beside it the wire's effective height is about {nominal} ({spread} as the structure conducts "
-                      "better or worse; {open} in open ground).", nominal=metres(nominal, ".1f"),
-                      spread=metres_range(least, most, ".1f"),
-                      open=metres(fig["open_ground_static_effective_height_m"], ".1f"))
+                      "better or worse; {open} in open ground).", nominal=metres(nominal),
+                      spread=metres_range(least, most),
+                      open=metres(fig["open_ground_static_effective_height_m"]))
         text += _building_currents_words(resp, fig)
         if fig.get("screened_wire_m", 0.0) > 0.05 and body.shielding[1] >= 0.5:
             text += " The lead-in and riser inside it are screened and bonded to it: earth, not aerial."

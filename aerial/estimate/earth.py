@@ -10,6 +10,7 @@ from __future__ import annotations
 import numpy as np
 
 from aerial.core.lengthtext import join_text, metres, words
+from aerial.core.units import si_text
 from aerial.models import electrode_lines as lines
 from aerial.models import electrodes as el
 from aerial.models import radial_screen as rs
@@ -120,8 +121,8 @@ def screen_loss(radials, soil, frequency, aerial) -> dict:
     if skin > max(lengths):
         warnings.append(words("Wait's radial screen treats the soil as a surface impedance: rough where the soil's skin "
                               "depth ({skin} here) is not short against the radials ({longest})",
-                              skin=metres(skin, ".0f"), longest=metres(max(lengths), ".0f")))
-    what = join_text(" and ", [f"{n} radials of " + metres(x, ".3g") for n, x in zip(counts, lengths)])
+                              skin=metres(skin), longest=metres(max(lengths))))
+    what = join_text(" and ", [f"{n} radials of " + metres(x) for n, x in zip(counts, lengths)])
     method = "Wait's radial screen (" + what + ") and the soil beyond, compensation theorem"
     return {"impedance_ohm": np.maximum(dz.real, 0.0) + 1j * dz.imag, "within_radials_ohm": np.maximum(inner, 0.0),
             "method": method, "warnings": warnings}
@@ -139,13 +140,13 @@ def _one(e, resistivity: float, radius_default: float) -> tuple[float, str, list
             est = el.multiple_rods(e.count, e.length_m, a, e.spacing_m, resistivity)
         # enough digits that a rod given in feet and inches reads back exactly under --units us (8 ft, 5/8 in)
         what = words("{count} rod{s} {length} × {diameter}", count=e.count, s="s" if e.count > 1 else "",
-                     length=metres(e.length_m, ".4g"), diameter=metres(e.diameter_m, ".4g", "mm"))
+                     length=metres(e.length_m), diameter=metres(e.diameter_m))
     elif e.kind == "buried_wires":
         a = e.diameter_m / 2.0
         if e.arrangement == "radials" and e.count >= 2:
             est = el.dwight_star(e.count, e.length_m, a, e.depth_m, resistivity)
             what = words("{count} buried radials {length} at {depth}", count=e.count,
-                         length=metres(e.length_m, ".1f"), depth=metres(e.depth_m, ".2f"))
+                         length=metres(e.length_m), depth=metres(e.depth_m))
         else:
             one = el.sunde_buried_wire(e.length_m, a, e.depth_m, resistivity)
             if e.count > 1:
@@ -154,7 +155,7 @@ def _one(e, resistivity: float, radius_default: float) -> tuple[float, str, list
             else:
                 est = one
             what = words("{count} buried wire{s} {length} at {depth}", count=e.count, s="s" if e.count > 1 else "",
-                         length=metres(e.length_m, ".1f"), depth=metres(e.depth_m, ".2f"))
+                         length=metres(e.length_m), depth=metres(e.depth_m))
     elif e.kind == "water_pipe":
         est = el.water_pipe(e.length_m, e.diameter_m / 2.0, e.depth_m, resistivity)
         # Continuity is the site's business: unknown is warned by the site reader, checked (true) needs no
@@ -162,13 +163,13 @@ def _one(e, resistivity: float, radius_default: float) -> tuple[float, str, list
         if e.continuous_metal is not False:
             est = el.ElectrodeEstimate(est.resistance_ohm, tuple(w for w in est.warnings if w != el.WATER_PIPE_CONTINUITY),
                                        est.method)
-        what = "metal water pipe, " + metres(e.length_m, ".1f") + " buried"
+        what = "metal water pipe, " + metres(e.length_m) + " buried"
     elif e.kind == "counterpoise":
         est = el.dwight_star(max(e.count, 2), e.length_m, radius_default, max(e.depth_m, 0.05), resistivity)
         est = el.ElectrodeEstimate(est.resistance_ohm, est.warnings + (
             "counterpoise loss estimated as if its wires were buried radials at their height: a rough guide only",),
             "counterpoise as radials (rough)")
-        what = f"counterpoise, {e.count} wire(s) " + metres(e.length_m, ".1f")
+        what = f"counterpoise, {e.count} wire(s) " + metres(e.length_m)
     else:
         raise ValueError(e.kind)
     return float(np.asarray(est.resistance_ohm)), est.method, list(est.warnings), what
@@ -419,7 +420,7 @@ def improved_earth(electrodes, soil, frequency=None, radial_length_m: float | No
     length = length if radial_length_m is None else float(radial_length_m)
     extra = Electrode("buried_wires", "what-if", n, length, 1.628e-3, 0.0, depth, arrangement="radials")
     out = earth_system(list(electrodes) + [extra], soil)
-    out["description"] = f"add {n} buried radials of " + metres(length, "g")
+    out["description"] = f"add {n} buried radials of " + metres(length)
     if frequency is not None:
         rf = electrode_impedance(list(electrodes) + [extra], soil, [float(frequency)], aerial=aerial, dc=out)
         out["resistance_ohm"] = float(rf["impedance_ohm"][0].real)
@@ -429,8 +430,8 @@ def improved_earth(electrodes, soil, frequency=None, radial_length_m: float | No
             l_eff = screen_effective_length(radial_sets(electrodes), extra, soil, float(frequency), aerial)
             how = "Wait's screen"
         out["effective_length_m"] = l_eff
-        out["note"] = ("radials longer than " + metres(l_eff, ".0f")
-                       + f" add nothing at {float(frequency) / 1e6:.2g} MHz in this soil ({how})")
+        out["note"] = ("radials longer than " + metres(l_eff)
+                       + f" add nothing at {si_text(float(frequency), 'Hz')} in this soil ({how})")
     return out
 
 

@@ -120,7 +120,7 @@ def check_site_full_wave_budget(geometry, frequency, allow_large: bool = False) 
     what = "the full-wave sweep"
     if "grid_wires" in est:
         what += (f" with the building as a wire grid ({est['grid_wires']} wires at a "
-                 + metres(est["grid_mesh_m"], ".2g") + " mesh)")
+                 + metres(est["grid_mesh_m"]) + " mesh)")
     return check_full_wave_budget(geometry.segments, frequency, allow_large, estimate=est, what=what)
 
 
@@ -302,7 +302,7 @@ def building_full_wave_response(site, geometry, frequency, earth_ohm, progress=N
         info["station_bearings_deg"] = [float(b) for b in bearings]
         info["station_effective_height_m"] = shielding_blend(h_open[:, None], hb, s_nom)
     out["building_full_wave"] = info
-    out["model"] = (res.model + "; the building as a grounded wire grid (" + metres(mesh, ".2g")
+    out["model"] = (res.model + "; the building as a grounded wire grid (" + metres(mesh)
                     + f" mesh, {info['grid_wires']} wires), blended with the open-ground solution by its construction's shielding")
     out["warnings"] = list(out["warnings"]) + [
         w for w in res.warnings if "meets the ground at" not in w and "touches the ground" not in w] + [

@@ -13,7 +13,8 @@ import numpy as np
 from aerial.estimate import reception
 from aerial.core import units
 from aerial.core.errors import AerialError
-from aerial.core.lengthtext import metres
+from aerial.core.lengthtext import metres, metres_range
+from aerial.models.skywave import SKY_WAVE_DISTANCE_RANGE_M
 
 #: Tabulated frequencies per band in the tuning table.
 TUNING_ROWS = 5
@@ -254,8 +255,8 @@ def _stations_day_and_night(site, f, r, x, rr, he, parts, own=None, band=None, c
     warnings = list(moment["notes"]) + list(floor["notes"])
     outside = [s.name for s, sky in zip(site.stations, skies) if sky["outside_method"]]
     if outside:
-        warnings.append("Sky wave: the ITU-R P.1147 method holds for 150–1700 kHz and paths of 50–12 000 km; "
-                        "extended for " + ", ".join(outside)
+        warnings.append("Sky wave: the ITU-R P.1147 method holds for 150–1700 kHz and paths of "
+                        + metres_range(*SKY_WAVE_DISTANCE_RANGE_M, "km", "–") + "; extended for " + ", ".join(outside)
                         + f" — treat {'its' if len(outside) == 1 else 'their'} night figures with care.")
     atm_night = [st["name"] for st in stations if st["night"]["noise_dominant"] == "atmospheric"]
     if atm_night:
@@ -444,7 +445,7 @@ def _absurd_coil(turns, winding_length_m, form_diameter_m) -> list[str]:
     """Warnings for a single-layer coil nobody would wind (e.g. 156,500 turns for 1 H)."""
     out = []
     if turns > PRACTICAL_TURNS or winding_length_m > PRACTICAL_WINDING_LENGTH_M:
-        out.append(f"{turns:,.0f} turns in a winding " + metres(winding_length_m, ".3g")
+        out.append(f"{turns:,.0f} turns in a winding " + metres(winding_length_m)
                    + " long is not a practical single-layer coil: use a larger former, or a multilayer or ferrite-cored coil (outside this helper's model)")
     elif winding_length_m > 10 * form_diameter_m:
         out.append(f"the winding is {winding_length_m / form_diameter_m:.0f} times as long as the former is wide: "

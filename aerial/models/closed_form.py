@@ -27,6 +27,7 @@ from aerial.core.constants import SPEED_OF_LIGHT
 
 from aerial.core.errors import ModelInputError
 from aerial.core.lengthtext import metres
+from aerial.core.units import si_text
 from aerial.models import short_aerial as sa
 from aerial.models.building import facade_static_figures
 from aerial.models.capacitance import electrostatic_solution
@@ -322,7 +323,7 @@ def _beside_building(segments, building, es, case, f, warnings):
     f_limit = fig["limit_frequency_hz"]
     if float(np.max(f)) > f_limit:
         warnings.append(
-            f"above {f_limit / 1e6:.3g} MHz the building (" + metres(building.height_m, ".0f")
+            f"above {si_text(f_limit, 'Hz')} the building (" + metres(building.height_m)
             + ") nears its own first resonance: "
             "the closed form's allowance for the building's currents stops holding there and its figures are held "
             "at their value at that frequency, which can be several dB off (--full-wave models the building)"
@@ -464,14 +465,14 @@ def wavelength_validity(total_length_m: float, frequency, too_long, past) -> dic
     warnings = []
     if long_from is not None:
         warnings.append(
-            "total wire length " + metres(total, ".1f")
-            + f" is above 1/8 wavelength from {long_from / 1e6:.3g} MHz up: "
+            "total wire length " + metres(total)
+            + f" is above 1/8 wavelength from {si_text(long_from, 'Hz')} up: "
             "reactance, capacitance, effective height and radiation resistance are unreliable there"
         )
     if resonance_from is not None:
         warnings.append(
             "at or past the first resonance at "
-            + f"{resonance_from / 1e6:.3g} MHz and above: the line model does not describe the aerial there; "
+            + f"{si_text(resonance_from, 'Hz')} and above: the line model does not describe the aerial there; "
             "the capacitance shown there is the static value"
         )
     known = [v for v in (long_from, resonance_from) if v is not None]

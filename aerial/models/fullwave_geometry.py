@@ -321,7 +321,7 @@ def _wires_with_feed_connector(seg, counts, tol, has_lead, warnings):
             n_connector = 1
             if feed[2] < MIN_LENGTH_TO_RADIUS * rad[0]:
                 warnings.append(
-                    "the feed gap (" + metres(feed[2], ".3g", "mm")
+                    "the feed gap (" + metres(feed[2])
                     + f") is shorter than {MIN_LENGTH_TO_RADIUS:g} wire radii: the thin-wire kernel is rough there"
                 )
         feed = np.array([feed[0], feed[1], 0.0])

@@ -410,7 +410,7 @@ def radial_screen_loss(frequency, height, count, radial_length, wire_radius, con
     if np.any(k * height + delta >= np.pi / 2):
         warnings.append("the vertical is past its first resonance: the standing-wave current of the ground "
                         "field is rough there")
-    method = (f"Wait's radial screen ({int(count)} radials of " + metres(radial_length, ".3g")
+    method = (f"Wait's radial screen ({int(count)} radials of " + metres(radial_length)
               + ") and the soil beyond, compensation theorem" if count > 0 and radial_length > 0 else "the soil's surface impedance, "
               "compensation theorem")
     return RadialScreenLoss(f, out, np.maximum(out.real, 0.0), np.maximum(inner, 0.0), method, tuple(warnings))

@@ -284,7 +284,7 @@ def _measure_arms(graph, arms, section, notes):
         top_r.append(float(np.average(s.radius[idx], weights=w)))
         span = float(np.max(mid_z) - np.min(mid_z))
         if span > 0.25 * top_h[-1]:
-            notes.append(f"top arm {i + 1} changes height by " + metres(span, ".1f") + "; its mean height is used")
+            notes.append(f"top arm {i + 1} changes height by " + metres(span) + "; its mean height is used")
     return top_l, top_h, top_r
 
 
@@ -346,7 +346,7 @@ def classify(segments: Segments) -> AerialShape:
     earth_len = float(np.sum(lengths[segments.grounded]))
     notes = []
     if earth_len > 0:
-        notes.append("earth lead of " + metres(earth_len, ".1f") + " is part of the electrostatic solution, not of "
+        notes.append("earth lead of " + metres(earth_len) + " is part of the electrostatic solution, not of "
                      "the shape")
 
     graph = _WireGraph(segments, aer)

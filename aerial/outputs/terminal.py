@@ -146,7 +146,7 @@ class Lengths:
     >>> Lengths("us").text("raise the wire 3 m; add 10 m; 2 mm2 wire at 1 m·pF and 5 mV/m")
     'raise the wire 9.84 ft; add 32.8 ft; 2 mm2 wire at 1 m·pF and 5 mV/m'
     >>> Lengths("us").text("paths of 50–12 000 km; a 2-4 m pole")
-    'paths of 31.1–7456 mi; a 6.56–13.1 ft pole'
+    'paths of 31.1–7460 mi; a 6.56–13.1 ft pole'
     >>> Lengths("si")(6.72), Lengths("si").distance(95e3), Lengths("si").distance(2e6)
     ('6.72 m', '95 km', '2000 km')
     """

@@ -127,16 +127,16 @@ class Finding(NamedTuple):
         """One short line: which part, how far from which line, what is needed and what to do."""
         what = {"wire": "the wire", "lead-in": "the lead-in", "support": "the support"}[self.part_kind]
         why = ("the line's height" if self.line_height_m >= 1.5 * self.tallest_m
-               else "1.5 × " + metres(self.tallest_m, ".1f"))
+               else "1.5 × " + metres(self.tallest_m))
         if self.crosses:
             return words('{what} "{part}" crosses the {kind} line "{line}" in plan: re-route it so every part stays '
                          "at least {needed} ({why}) away", what=what, part=self.part, kind=self.line_kind,
-                         line=self.line, needed=metres(self.required_m, ".1f"), why=why)
+                         line=self.line, needed=metres(self.required_m), why=why)
         more = max(self.required_m - self.distance_m, 0.0)
         return words('{what} "{part}" is {distance} (in plan) from the {kind} line "{line}"; {needed} needed '
                      "({why}): move it at least {more} further from the line, or use lower supports", what=what,
-                     part=self.part, distance=metres(self.distance_m, ".1f"), kind=self.line_kind, line=self.line,
-                     needed=metres(self.required_m, ".1f"), why=why, more=metres(more, ".1f"))
+                     part=self.part, distance=metres(self.distance_m), kind=self.line_kind, line=self.line,
+                     needed=metres(self.required_m), why=why, more=metres(more))
 
 
 class ClearanceReport:
@@ -164,7 +164,7 @@ class ClearanceReport:
         """One short line with the rule, then one line per power line with the parts inside its zone."""
         first = self.findings[0]
         head = ("this layout puts part of the aerial inside a power line's fall zone (1.5 × its tallest point, "
-                + metres(first.tallest_m, ".1f") + f" at {first.tallest_what}, and never less than the line's "
+                + metres(first.tallest_m) + f" at {first.tallest_what}, and never less than the line's "
                 "height): aerial will not analyse it (docs/site-planner.md, safety rule)")
         return join_text("\n", [head] + self.by_line())
 
@@ -175,16 +175,16 @@ class ClearanceReport:
             found = [f for f in self.findings if f.line == name]
             f0 = found[0]
             why = ("the line's height" if f0.line_height_m >= 1.5 * f0.tallest_m
-                   else "1.5 × " + metres(f0.tallest_m, ".1f"))
+                   else "1.5 × " + metres(f0.tallest_m))
             what = {"wire": "the wire", "lead-in": "the lead-in", "support": "the support"}
             parts = join_text(", ", [f'{what[f.part_kind]} "{f.part}" '
-                                     + ("(crosses it)" if f.crosses else "(" + metres(f.distance_m, ".1f") + ")")
+                                     + ("(crosses it)" if f.crosses else "(" + metres(f.distance_m) + ")")
                                      for f in found])
             more = max(f.required_m - f.distance_m for f in found)
             out.append(words('{kind} line "{name}": {needed} needed ({why}); inside: {parts}; move them at least '
                              "{more} further away (never across the line), or use lower supports", kind=f0.line_kind,
-                             name=name, needed=metres(f0.required_m, ".1f"), why=why, parts=parts,
-                             more=metres(more, ".1f")))
+                             name=name, needed=metres(f0.required_m), why=why, parts=parts,
+                             more=metres(more)))
         return out
 
     def summary(self) -> str:
@@ -297,7 +297,7 @@ def check_site_clearance(site, plan=None) -> ClearanceReport:
                 size = outside.length if outside.length > 0 else float(geom.distance(plan.lot))
                 report.warnings.append(
                     words('{kind} "{name}" runs outside the lot (about {size} of it): you need the neighbour\'s '
-                          "consent for that part.", kind=kind, name=name, size=metres(size, ".1f")))
+                          "consent for that part.", kind=kind, name=name, size=metres(size)))
     return report
 
 

@@ -111,8 +111,8 @@ def minimum_awg(span_m: float, material: str) -> tuple[int, str]:
 def _lead_in_clearance():
     """The start of the checklist line on power conductors: the lead-in's two clearances."""
     return words("810.13 / 810.18(A) power conductors: never cross over them; keep the lead-in at least {low} from "
-                 "power circuits up to 250 V and {high} above 250 V", low=metres(LEAD_IN_CLEARANCE_M[0], ".0f", "mm"),
-                 high=metres(LEAD_IN_CLEARANCE_M[1], ".0f"))
+                 "power circuits up to 250 V and {high} above 250 V", low=metres(LEAD_IN_CLEARANCE_M[0]),
+                 high=metres(LEAD_IN_CLEARANCE_M[1]))
 
 
 def _awg_diameter(n: int) -> float:
@@ -134,15 +134,15 @@ def _nfpa70(site, plan, facts: LayoutFacts) -> list[str]:
         if facts.wire_material == "steel":
             extra = " Galvanised steel is not in the copper row; check the table's other rows."
         out.append(words("810.16(A) conductor size: open span {span} of {wire} ({diameter}); the table asks for at "
-                         "least {awg} AWG {row} ({need}): {verdict}.{extra}", span=metres(span, ".1f"),
-                         wire=facts.wire_described, diameter=metres(facts.wire_diameter_m, ".2f", "mm"), awg=awg,
-                         row=row, need=metres(need_d, ".2f", "mm"), verdict=verdict, extra=extra))
+                         "least {awg} AWG {row} ({need}): {verdict}.{extra}", span=metres(span),
+                         wire=facts.wire_described, diameter=metres(facts.wire_diameter_m), awg=awg,
+                         row=row, need=metres(need_d), verdict=verdict, extra=extra))
     # power conductors
     power = plan.power_lines if plan is not None else []
     if power and facts.lead_in_paths:
         nearest = min(float(p.distance(ln.path)) for p in facts.lead_in_paths for ln in power)
         verdict = "pass for the overhead lines you listed" if nearest >= LEAD_IN_CLEARANCE_M[1] else "ATTENTION"
-        out.append(_lead_in_clearance() + ". Nearest listed overhead line: " + metres(nearest, ".1f")
+        out.append(_lead_in_clearance() + ". Nearest listed overhead line: " + metres(nearest)
                    + f" in plan: {verdict}. Wiring inside the building and lines you did not list are not checked.")
     else:
         out.append(_lead_in_clearance() + " (no overhead lines are listed, so aerial cannot check).")
@@ -161,12 +161,12 @@ def _nfpa70(site, plan, facts: LayoutFacts) -> list[str]:
     need = _awg_diameter(EARTH_CONDUCTOR_AWG)
     if lead is not None:
         ok = lead.size.radius_m * 2 >= need * 0.995 and lead.size.material in ("copper", "copper-clad steel", "aluminium")
-        out.append(f"810.21 grounding conductor: at least {EARTH_CONDUCTOR_AWG} AWG copper (" + metres(need, ".2f", "mm")
+        out.append(f"810.21 grounding conductor: at least {EARTH_CONDUCTOR_AWG} AWG copper (" + metres(need)
                    + "), run as straight as practicable; the site's earth lead is "
                    + lead.size.described_as + f" {lead.size.material}: "
                    + ("pass (size only)." if ok else "ATTENTION: thinner than that."))
     else:
-        out.append(f"810.21 grounding conductor: at least {EARTH_CONDUCTOR_AWG} AWG copper (" + metres(need, ".2f", "mm")
+        out.append(f"810.21 grounding conductor: at least {EARTH_CONDUCTOR_AWG} AWG copper (" + metres(need)
                    + "), run as straight as practicable (no earth lead is described in the site file).")
     kinds_e = {e.kind for e in site.electrodes}
     if kinds_e & {"rods", "buried_wires", "water_pipe"} and "building_earth" not in kinds_e:
@@ -180,7 +180,7 @@ def _nfpa70(site, plan, facts: LayoutFacts) -> list[str]:
             ok = e.length_m >= WATER_PIPE_CONTACT_M
             out.append(words("250.52(A)(1) water pipe: an electrode only with at least {contact} of metal pipe in "
                              "contact with the earth, and it must be supplemented; the site gives {length}: ",
-                             contact=metres(WATER_PIPE_CONTACT_M, "g"), length=metres(e.length_m, ".1f"))
+                             contact=metres(WATER_PIPE_CONTACT_M), length=metres(e.length_m))
                        + ("pass (length only)." if ok else "ATTENTION: too short."))
     out.append("250.52(B): metal underground gas piping is never a grounding electrode.")
     return out
@@ -195,7 +195,7 @@ def _en60728(site, plan, facts: LayoutFacts) -> list[str]:
                                     + ("pass (size only)." if lead.size.radius_m * 2 >= d16 * 0.995 else
                                        "ATTENTION: thinner than that."))
     out.append("Earthing conductor: an outdoor aerial and its supports are earthed through a conductor of at least "
-               "16 mm² copper (about " + metres(d16, ".1f", "mm") + " solid), run straight and vertical where "
+               "16 mm² copper (about " + metres(d16) + " solid), run straight and vertical where "
                "possible, unless the aerial lies in the zone the standard exempts (well below the roof edge and close "
                "to the wall)." + size)
     out.append("Equipotential bonding: the lead-in's earth side is bonded at the building's main earthing terminal "

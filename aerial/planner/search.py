@@ -36,7 +36,7 @@ import shapely
 
 from aerial.core.errors import AerialError, ResourceLimit, naming_the_file
 from aerial.core.lengthtext import join_text, metres, words
-from aerial.core.units import length_text
+from aerial.core.units import length_text, si_text
 from aerial.core.materials import CONDUCTORS
 from aerial.models import capacitance as cap
 from aerial.models import conductor
@@ -869,7 +869,7 @@ def _result(site, plan, ctx, objective, total, tally, layouts, warnings, present
                          "supports, the line's height) from any power line in plan, and no wire crossing one "
                          "(US Consumer Product Safety Commission safety alerts, from memory; aerial's own floor)",
             "buildings": ("lead-in or sloping wire over a building: excluded; span over a roof with its lower end less "
-                          "than " + metres(ROOF_CLEARANCE_M, "g")
+                          "than " + metres(ROOF_CLEARANCE_M)
                           + f" above the roof: excluded; higher: kept, -{PENALTY_OVER_ROOF_DB:g} dB"),
             "obstacles": "any wire crossing an obstacle or a telephone/cable line in plan: excluded",
             "lot": f"any wire outside the lot: kept, flagged, -{PENALTY_OUTSIDE_LOT_DB:g} dB",
@@ -1060,7 +1060,7 @@ def wavelength_words(rough_from_hz) -> str:
     """The flag of a wire long for the wavelength, with the frequency from which its figures are rough when known."""
     if rough_from_hz is None:
         return "long for the wavelength: figures rough"
-    return f"long for the wavelength from {rough_from_hz / 1e6:.3g} MHz up: figures rough there"
+    return f"long for the wavelength from {si_text(rough_from_hz, 'Hz')} up: figures rough there"
 
 
 def _refine(site, ctx: _Context, win: dict, objective: dict, allow_large: bool = False) -> dict:
@@ -1102,7 +1102,7 @@ def _refine(site, ctx: _Context, win: dict, objective: dict, allow_large: bool =
         "convergence": float(res.convergence),
         "solver_warnings": [str(w) for w in res.warnings],
         "note": (f"the top-ranked layout solved with the full-wave wire solver ({res.model}); effective height "
-                 + join_text(", ", [words("{a} (closed form {b})", a=metres(a, ".2f"), b=metres(b, ".2f"))
+                 + join_text(", ", [words("{a} (closed form {b})", a=metres(a), b=metres(b))
                                     for a, b in zip(he, closed)])
                  + ("" if res.converged else "; NOT converged within the solver's tolerance")),
     }
@@ -1131,7 +1131,7 @@ def _refine_beside_the_building(planned, geo, freqs, earth, closed, allow_large:
         "solver_warnings": [str(w) for w in out["warnings"]],
         "note": ("the top-ranked layout solved with the full-wave wire solver and the building as a grounded wire "
                  "grid (" + out["model"] + "); effective height (the middle of the worst and best bearing) "
-                 + join_text(", ", [words("{a} (closed form {b})", a=metres(a, ".2f"), b=metres(b, ".2f"))
+                 + join_text(", ", [words("{a} (closed form {b})", a=metres(a), b=metres(b))
                                     for a, b in zip(he, closed)])
                  + ("" if converged else "; NOT converged within the solver's tolerance")),
     }
@@ -1162,13 +1162,13 @@ def apartment_notes(site, plan, frequency) -> list[str]:
     elif b.conductive:
         what = "unknown, so it is treated as" if b.structure == "unknown" else f"{b.structure}:"
         out.append(f"Structure {what} a grounded conductor close to the wire. Assumption used: heights are reckoned "
-                   "from the balcony's floor slab (" + metres(b.floor_height_m, ".1f")
+                   "from the balcony's floor slab (" + metres(b.floor_height_m)
                    + " above the street), not from the street, so a rail wire 1 m above the slab is modelled about "
                    "1 m high. This is an assumption; the real figure depends on the reinforcement and the wire's "
                    "distance from the façade and may be far lower than a free wire at the same height.")
     else:
         out.append(f"Structure {b.structure}: not treated as a conductor; heights are taken above the street "
-                   "(balcony floor " + metres(b.floor_height_m, ".1f")
+                   "(balcony floor " + metres(b.floor_height_m)
                    + " up). Wiring, pipes and metal lintels in the walls still shield the wire: treat the figures "
                    "as optimistic.")
     out.append("Earth options: a metal cold-water pipe, only if no plastic section (repair, meter, filter, riser) "

@@ -237,8 +237,8 @@ def _from_supports(site, plan: Plan) -> SiteBuilding | None:
     said = (f"No [building] is described, so one is assumed from the {' and '.join(kinds)} support"
             f"{'s' if len(found) > 1 else ''}: "
             + words("a facade {behind} behind the nearest wire, {height} tall ({tall}), {wide} wide and {deep} deep, "
-                    "{made}. ", behind=metres(float(np.min(reach)) - face, ".1f"), height=metres(height, ".0f"),
-                    tall=tall, wide=metres(hi - lo, ".0f"), deep=metres(INFERRED_DEPTH_M, ".0f"), made=made)
+                    "{made}. ", behind=metres(float(np.min(reach)) - face), height=metres(height),
+                    tall=tall, wide=metres(hi - lo), deep=metres(INFERRED_DEPTH_M), made=made)
             + "Describe it in [building] for a firmer figure.")
     return SiteBuilding(_corners(outline), float(height), structure, floor, None, "supports", (said,))
 

@@ -658,7 +658,7 @@ def wire_size(r: TableReader, t: dict, key: str, default: WireSize | None) -> Wi
         desc = f"{m.group(1)} {system}"
     elif what == "diameter":
         d = r.length(t, key, "diameter", positive=True)
-        desc = metres(d, "g", "mm") + " diameter"
+        desc = metres(d) + " diameter"
     else:
         area = r.quantity(t, key, "cross_section", units.AREA_UNITS, "a cross-section", "mm2")
         d = 2.0 * math.sqrt(area / math.pi)
