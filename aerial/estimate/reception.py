@@ -893,12 +893,21 @@ def _designed_coil(band, aerial, parts) -> _Coil:
     return coil
 
 
-def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0) -> float:
+def _covering_coils(band, aerial, parts, self_capacitance=0.0):
+    """The range (L_lo, L_hi) [H] of coils that cover ``band`` with the parts' capacitor and coupling; None if none."""
     f_lo, f_hi = band
     cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
     q = _constant_q(DEFAULT_COIL_Q if parts.coil_unloaded_q is None else parts.coil_unloaded_q)
     cfg = _config(parts, self_capacitance=float(self_capacitance))
-    rng = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax), 1e-6, 1e-2)
+    return _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax), 1e-6, 1e-2)
+
+
+def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0) -> float:
+    f_lo, f_hi = band
+    cmin = parts.capacitor_min_f
+    q = _constant_q(DEFAULT_COIL_Q if parts.coil_unloaded_q is None else parts.coil_unloaded_q)
+    cfg = _config(parts, self_capacitance=float(self_capacitance))
+    rng = _covering_coils(band, aerial, parts, self_capacitance)
     if rng:
         L = float(np.sqrt(rng[0] * rng[1]))
         notes.append(f"any coil from {_uh(rng[0])} to {_uh(rng[1])} covers the band; chose {_uh(L)} "
@@ -909,6 +918,86 @@ def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0) -> floa
     notes.append(f"no single coil covers the band with this capacitor and coupling; chose {_uh(L)}, "
                  f"{(1 - DESIGN_MARGIN) * 100:.0f} % below the largest that still reaches {_khz(f_hi)}")
     return L
+
+
+#: Series capacitors tried, largest first, for a coil still to be designed when no coil covers the band
+#: with the aerial straight to the tank: the E6 preferred values (IEC 60063) from 470 pF down to 10 pF. [F]
+DESIGN_SERIES_CAPACITORS_F = (470e-12, 330e-12, 220e-12, 150e-12, 100e-12, 68e-12, 47e-12, 33e-12, 22e-12,
+                              15e-12, 10e-12)
+#: Aerial taps tried, highest first, when no series capacitor does (fraction of the turns from the earthy end). [1]
+DESIGN_TAPS = (0.5, 0.3, 0.2, 0.1, 0.05)
+
+
+def _roomy(rng) -> bool:
+    """Whether a range of covering coils leaves the design margin (:data:`DESIGN_MARGIN`) each way
+    around its geometric mean, room for whole turns and strays."""
+    return rng is not None and rng[0] <= rng[1] * DESIGN_MARGIN ** 2
+
+
+def design_coupling(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, band,
+                    coupling_open: bool = True) -> tuple:
+    """The coupling chosen together with a coil still to be designed, so that the designed parts cover the band.
+
+    With no coil given and the coupling left open (``coupling_open``, the parts' arrangement then the
+    default "direct"), a coil is designed for the capacitor. When the aerial's own capacitance (or the
+    capacitor's range) lets no coil cover the band with the aerial straight to the tank, the largest
+    series capacitor of :data:`DESIGN_SERIES_CAPACITORS_F` with which a range of coils covers it (the
+    largest passes the most signal), else the highest tap of :data:`DESIGN_TAPS`, is chosen; the covering
+    coils must leave the design margin each way (:func:`_roomy`). When none does, the parts come back
+    unchanged and the coverage and advice of :func:`design_tuning` say what is covered and what would
+    cover the rest.
+
+    Parameters
+    ----------
+    frequency_hz, aerial_r_ohm, aerial_x_ohm, parts
+        As :func:`design_tuning`.
+    band : (float, float)
+        Band edges (f_lo, f_hi). [Hz]
+    coupling_open : bool
+        False when the site names its coupling: it is then kept.
+
+    Returns
+    -------
+    tuple
+        (parts, notes): the parts with the coupling chosen (unchanged when nothing is to be chosen or
+        nothing covers the band), and the sentences saying why.
+
+    Examples
+    --------
+    >>> f = [500e3, 1000e3, 1800e3]
+    >>> x = [-1 / (2 * 3.141592653589793 * fi * 500e-12) for fi in f]
+    >>> parts = TuningParts(capacitor_min_f=15e-12, capacitor_max_f=365e-12)
+    >>> chosen, notes = design_coupling(f, [50, 50, 50], x, parts, (520e3, 1710e3))
+    >>> chosen.arrangement, chosen.series_capacitance_f is not None
+    ('series capacitor', True)
+    """
+    _check_parts(parts)
+    if (not coupling_open or _coil_given(parts) or parts.capacitor_min_f is None
+            or parts.arrangement != "direct" or parts.calibration is not None):
+        return parts, []
+    band = (float(band[0]), float(band[1]))
+    if not (0 < band[0] < band[1]):
+        raise ModelInputError("band must be (f_lo, f_hi) with 0 < f_lo < f_hi")
+    aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm)
+    if _roomy(_covering_coils(band, aerial, parts)):
+        return parts, []
+    straight = (f"with the aerial straight to the tank no coil covers {_khz(band[0])} to {_khz(band[1])} "
+                "with room to spare, with this capacitor")
+    for cc in DESIGN_SERIES_CAPACITORS_F:
+        trial = parts._replace(arrangement="series capacitor", series_capacitance_f=cc)
+        if _roomy(_covering_coils(band, aerial, trial)):
+            return trial, [f"{straight}: the coupling is designed with the coil, a {_pf(cc)} series capacitor "
+                           "between aerial and tank (the largest common value, E6 series, with which a coil covers "
+                           "the band; a larger one passes more signal)"]
+    for n in DESIGN_TAPS:
+        trial = parts._replace(arrangement="coil tap", tap_fraction=n)
+        if _roomy(_covering_coils(band, aerial, trial)):
+            return trial, [f"{straight}, nor through a series capacitor of {_pf(DESIGN_SERIES_CAPACITORS_F[-1])} to "
+                           f"{_pf(DESIGN_SERIES_CAPACITORS_F[0])}: the coupling is designed with the coil, the aerial "
+                           f"on a tap at {n:.2f} of the turns from the earthy end (the highest tried that covers it)"]
+    return parts, [f"{straight}, through a series capacitor of {_pf(DESIGN_SERIES_CAPACITORS_F[-1])} to "
+                   f"{_pf(DESIGN_SERIES_CAPACITORS_F[0])} or on a tap of {DESIGN_TAPS[-1]:.2f} to {DESIGN_TAPS[0]:.2f} "
+                   "of the turns: the designed coil covers only part of it (see the band coverage)"]
 
 
 def _strong_signal_conductance(parts):

@@ -1,0 +1,111 @@
+"""A site that gives no coil and no capacitor: the designed parts (coil and coupling) cover the band.
+
+The aerial's own capacitance can tune every coil below the top of the band when it goes straight to
+the tank; the coupling is then designed with the coil. Run through the command line on an invented
+site (input handling: a crystal-set builder asking what parts cover the band); the physics checks
+compare the figures with textbook circuit laws computed with scipy.constants.
+"""
+
+import json
+
+import numpy as np
+from scipy import constants
+
+from aerial.cli import main
+
+#: A 30 m wire 10 m up with no tuning parts; three invented stations across the band.
+NO_PARTS = """
+[site]
+name = "Backyard wire, no parts yet"
+bands = ["mf"]
+
+[[runs]]
+points = [[0, 0, 1], [0, 0, 10], [30, 0, 10]]
+
+[receiver]
+at = [0, 0]
+height = "1 m"
+
+[[earth.rods]]
+length = "2.4 m"
+
+[[stations]]
+name = "Low end talk"
+frequency = "560 kHz"
+power = "5 kW"
+distance = "40 km"
+
+[[stations]]
+name = "Middle music"
+frequency = "1000 kHz"
+power = "10 kW"
+distance = "60 km"
+
+[[stations]]
+name = "Top end news"
+frequency = "1580 kHz"
+power = "5 kW"
+distance = "30 km"
+"""
+
+#: The common variable capacitor assumed when none is given (docs/models-receiver.md). [F]
+ASSUMED_CAPACITOR_F = (15e-12, 365e-12)
+
+
+def _report(capsys, path, *extra):
+    code = main(["report", str(path), *extra])
+    out, _ = capsys.readouterr()
+    assert code == 0
+    return out
+
+
+def test_designed_parts_reach_every_listed_station_in_the_band(capsys, write_site):
+    """With direct coupling no coil covers 520-1710 kHz under this wire (the aerial's capacitance tunes
+    it below the top); the designed coil and coupling reach every listed station, and the report says so."""
+    path = write_site(NO_PARTS)
+    d = json.loads(_report(capsys, path, "--json"))
+    tuning = d["tuning"]
+    assert tuning["coverage"]["covered"] is True, tuning["coverage"]
+    assert tuning["coupling_designed"] is True
+    assert tuning["arrangement"] in ("series capacitor", "coil tap")
+    for s in d["stations"]:
+        assert s["tunable"] is True, s["name"]
+        assert ASSUMED_CAPACITOR_F[0] <= s["capacitor_setting_f"] <= ASSUMED_CAPACITOR_F[1], s["name"]
+        assert "out of the tuning range" not in s["verdict_text"]
+    text = " ".join(_report(capsys, path, "--width", "400").replace("│", " ").split())
+    assert "Band coverage: covers the band" in text
+    assert "the coupling is designed with the coil" in text
+    assert "out of the tuning range" not in text
+
+
+def test_designed_rows_resonate_by_the_textbook_formula(capsys, write_site):
+    """Every row of the designed tuning satisfies f = 1/(2π√(LC)) (Thomson's formula; pi from
+    scipy.constants), and the aerial's share of C at the bottom of the band is the aerial's series
+    R + jX_a with the designed coupling capacitor in series (X = X_a - 1/(ωC_c)), turned into its shunt
+    equivalent C_p = -X/(ω(R² + X²)) (the series-to-parallel conversion, common practice); 1 % for the
+    coil's self-capacitance and the detector, which the network solve includes."""
+    d = json.loads(_report(capsys, write_site(NO_PARTS), "--json"))
+    rows = d["tuning"]["rows"]
+    for r in rows:
+        f = 1.0 / (2.0 * constants.pi * np.sqrt(r["inductance_h"] * r["total_capacitance_f"]))
+        assert abs(f / r["frequency_hz"] - 1.0) < 1e-6, r["frequency_hz"]
+    assert d["tuning"]["arrangement"] == "series capacitor"
+    cc = d["tuning"]["designed_series_capacitance_f"]
+    f0 = rows[0]["frequency_hz"]
+    i = int(np.argmin(np.abs(np.asarray(d["frequencies_hz"]) - f0)))
+    assert abs(d["frequencies_hz"][i] / f0 - 1.0) < 1e-9
+    w = 2.0 * constants.pi * f0
+    r_a, x = d["aerial"]["series_resistance_ohm"][i], d["aerial"]["reactance_ohm"][i] - 1.0 / (w * cc)
+    c_shunt = -x / (r_a**2 + x**2) / w  # series R + jX seen as a shunt capacitance: B = -X/(R² + X²)
+    assert abs(rows[0]["aerial_shunt_capacitance_f"] / c_shunt - 1.0) < 0.01
+
+
+def test_a_coupling_the_site_names_is_kept(capsys, write_site):
+    """Input handling: coupling = "direct" written in the site is the builder's choice; the coil is designed
+    for it and the report says what it covers instead of changing the coupling."""
+    site = NO_PARTS.replace('[receiver]\n', '[receiver]\ncoupling = "direct"\n')
+    d = json.loads(_report(capsys, write_site(site), "--json"))
+    assert d["tuning"]["arrangement"] == "direct"
+    assert "coupling_designed" not in d["tuning"]
+    assert d["tuning"]["coverage"]["covered"] is False
+    assert any("together with a coil" in a or "series capacitor" in a for a in d["tuning"]["advice"])
