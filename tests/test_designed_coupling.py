@@ -76,6 +76,7 @@ def test_designed_parts_reach_every_listed_station_in_the_band(capsys, write_sit
     assert "Band coverage: covers the band" in text
     assert "the coupling is designed with the coil" in text
     assert "out of the tuning range" not in text
+    assert any("Series coupling capacitor" in c for c in d["cautions"])  # the designed one needs its bleed too
 
 
 def test_designed_rows_resonate_by_the_textbook_formula(capsys, write_site):

@@ -951,7 +951,7 @@ def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large
     result["stations"] = stations
     warnings += rx_warnings
 
-    result["cautions"] = cautions_for(site)
+    result["cautions"] = cautions_for(site, tuning.get("arrangement"))
     result["warnings"] = _unique(warnings)
     return finalise(result)
 

@@ -22,8 +22,9 @@ GENERAL_CAUTIONS: tuple[str, ...] = (
 )
 
 
-def cautions_for(site) -> list[str]:
-    """The general cautions plus those the site's own earth system calls for."""
+def cautions_for(site, coupling: str | None = None) -> list[str]:
+    """The general cautions plus those the site's own earth system calls for; ``coupling``: the tuning's
+    coupling when it differs from the site's (designed with the coil), default the site's."""
     out = list(GENERAL_CAUTIONS)
     kinds = {e.kind for e in site.electrodes}
     if "water_pipe" in kinds:
@@ -49,7 +50,7 @@ def cautions_for(site) -> list[str]:
             "Counterpoise: it is not an earth for lightning or static; keep a separate earth connection for "
             "the discharge unit."
         )
-    if site.receiver.coupling == "series capacitor":
+    if (coupling or site.receiver.coupling) == "series capacitor":
         out.append(
             "Series coupling capacitor: the aerial has no DC path to earth and will build up static charge; add "
             f"{BLEED_REMEDY}."

@@ -981,8 +981,8 @@ def design_coupling(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts
     aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm)
     if _roomy(_covering_coils(band, aerial, parts)):
         return parts, []
-    straight = (f"with the aerial straight to the tank no coil covers {_khz(band[0])} to {_khz(band[1])} "
-                "with room to spare, with this capacitor")
+    straight = (f"no coil covers {_khz(band[0])} to {_khz(band[1])} with room to spare with this capacitor "
+                "and the aerial straight to the tank")
     for cc in DESIGN_SERIES_CAPACITORS_F:
         trial = parts._replace(arrangement="series capacitor", series_capacitance_f=cc)
         if _roomy(_covering_coils(band, aerial, trial)):
@@ -995,8 +995,8 @@ def design_coupling(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts
             return trial, [f"{straight}, nor through a series capacitor of {_pf(DESIGN_SERIES_CAPACITORS_F[-1])} to "
                            f"{_pf(DESIGN_SERIES_CAPACITORS_F[0])}: the coupling is designed with the coil, the aerial "
                            f"on a tap at {n:.2f} of the turns from the earthy end (the highest tried that covers it)"]
-    return parts, [f"{straight}, through a series capacitor of {_pf(DESIGN_SERIES_CAPACITORS_F[-1])} to "
-                   f"{_pf(DESIGN_SERIES_CAPACITORS_F[0])} or on a tap of {DESIGN_TAPS[-1]:.2f} to {DESIGN_TAPS[0]:.2f} "
+    return parts, [f"{straight}, nor through a series capacitor of {_pf(DESIGN_SERIES_CAPACITORS_F[-1])} to "
+                   f"{_pf(DESIGN_SERIES_CAPACITORS_F[0])}, nor on a tap of {DESIGN_TAPS[-1]:.2f} to {DESIGN_TAPS[0]:.2f} "
                    "of the turns: the designed coil covers only part of it (see the band coverage)"]
 
 
