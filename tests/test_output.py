@@ -287,3 +287,13 @@ def test_the_wires_table_writes_lengths_as_the_text_does(capsys, command, units,
     code, out, err = run(capsys, "check", site, "--json")
     lead = next(w for w in json.loads(out)["geometry"]["wires"] if w["name"] == "lead-in")
     assert Lengths(units)(lead["length_m"]) == expected["lead-in"][0]  # the same as every sentence writes it
+
+
+@pytest.mark.parametrize(("units", "expected"), [("si", "building: steel frame, 21 m high"),
+                                                  ("us", "building: steel frame, 68.9 ft high")])
+def test_building_line_writes_its_height_as_the_tables_write_a_length(capsys, units, expected):
+    # 21 m / 0.3048 m per ft (exact, NIST SP 811) = 68.9 ft; the header's lengths use the same format
+    code, out, _ = run(capsys, "report", EXAMPLES + "high_floor_flat.toml", "--units", units, "--width", "100")
+    assert code == 0
+    assert expected in out
+    assert "21.0 m high" not in out

@@ -429,7 +429,7 @@ def render_check(summary: dict, console, units: str = "si") -> None:
 def _building_line(building, console, L) -> None:
     """One line naming the building the wire hangs on, when the site describes one."""
     if building:
-        console.print(f"building: {escape(building['construction'])}, {L.plain(building['height_m'])} {L.unit} high "
+        console.print(f"building: {escape(building['construction'])}, {L(building['height_m'])} high "
                       f"(from the {escape('[' + building['source'] + ']')} table)")
 
 
