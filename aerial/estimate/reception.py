@@ -1866,8 +1866,7 @@ def _station_row(s, a, i, judged, warn) -> dict:
     threshold, ql = a["threshold"], a["ql"]
     pa = float(audio.audio_power[i])
     r_ratio = threshold / a["v_det"][i] if np.isfinite(threshold) else np.inf
-    dial = a.get("dial_hz") or (float(fs[i]), float(fs[i]))
-    audible = audible_on_dial(float(fs[i]), float(ql[i]), float(r_ratio), dial)
+    audible = audible_on_dial(float(fs[i]), float(ql[i]), float(r_ratio), a["dial_hz"])
     return {
         "name": s.name,
         "frequency_hz": _num(fs[i], "frequency_hz", warn),
