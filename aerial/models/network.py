@@ -743,7 +743,11 @@ def detector_bandwidth(centre, response, rtol=EDGE_RTOL, max_iter=EDGE_MAX_ITER,
     solved, each crossing is then pinned by regula falsi with the Illinois modification [4]_ and
     the remaining halvings are replayed against it (a midpoint outside the pinned bracket judged
     by its side, one inside it solved): the plain bisection's edges whenever the response crosses
-    the level once in the bracket the opening halvings leave, in about a third of the calls.
+    the level once in the bracket the opening halvings leave, in about a third of the calls. Where
+    it crosses more than once there, each edge still lies within ``rtol`` of a crossing (the final
+    bracket overlaps the pinned one, whose ends were solved on either side of the level), though
+    not always the one the plain bisection reaches: which of several a bisection finds is arbitrary
+    either way.
 
     References
     ----------

@@ -257,3 +257,22 @@ def test_consistency_check_many_edges_pinned_then_replayed_are_the_plain_bisecti
     plain = net.detector_bandwidth(f0, response)
     for got, want in zip(pinned, plain):
         assert np.array_equal(got, want)
+
+
+def test_consistency_check_many_edges_land_on_a_crossing_where_the_response_crosses_the_level_often():
+    """A response rippling across the -3 dB level near its edges (several crossings in the bracket the opening
+    halvings leave): every edge of the pinned-then-replayed search still lies within the tolerance of a crossing,
+    the response solved on either side of it landing on either side of the level (consistency check on an
+    invented response: a single-tuned curve of Q 50 with a 5 % ripple of period 0.4 % of the tuned frequency)."""
+    f0 = np.geomspace(5.3e5, 1.7e6, 150)
+
+    def response(f):  # f: any leading axes, then one value per tuning
+        u = np.asarray(f, dtype=float) / f0
+        return (1.0 + 0.05 * np.sin(TWO_PI * u / 0.004)) / np.sqrt(1.0 + (50.0 * (u - 1.0 / u)) ** 2)
+
+    r = net.detector_bandwidth(f0, response)
+    ref = response(f0) / np.sqrt(2.0)
+    edges = np.stack([r.low_edge, r.high_edge])
+    below, above = response(edges * (1.0 - 1e-9)), response(edges * (1.0 + 1e-9))
+    assert np.all((below >= ref) != (above >= ref))  # a crossing between them, at every edge
+    assert np.all((r.low_edge < f0 * 0.995) & (r.high_edge > f0 * 1.005))  # near the curve's own edges
