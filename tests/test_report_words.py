@@ -8,6 +8,7 @@ import json
 import re
 
 import numpy as np
+import pytest
 
 from aerial.models.network import detector_bandwidth
 from aerial.models.tank import BLEED_REMEDY
@@ -145,8 +146,8 @@ def test_a_far_station_is_kilometres_on_the_terminal_and_the_page(capsys, write_
 
 
 def test_a_station_outside_the_swept_bands_is_said_in_the_warnings(capsys, write_site):
-    """A 198 kHz station on a site swept over MF only: the terminal's warnings name it, say its figures take the
-    band edge's and how to sweep its band; its other warnings (flat-earth range, noise line) are said there too,
+    """A 198 kHz station on a site swept over MF only: the terminal's warnings name it, say its aerial figures are
+    worked out at its own frequency but the tuning covers the MF band, and how to sweep its band; its other warnings (flat-earth range, noise line) are said there too,
     once per text, and none claims the atmospheric noise is left out (the report adds it). Input handling."""
     from .conftest import MINIMAL
 
@@ -156,8 +157,10 @@ def test_a_station_outside_the_swept_bands_is_said_in_the_warnings(capsys, write
     code, out, err = run(capsys, "report", p, "--width", "200")
     assert code == 0, err
     text = flat(out)
-    assert ("Longwave far: 198 kHz lies outside the swept bands (520 kHz to 1.71 MHz): its figures take the "
-            "aerial's values at the nearest band edge; add its band to [site] bands") in text
+    assert ("Longwave far: 198 kHz lies outside the swept bands (520 kHz to 1.71 MHz): the aerial's and the earth's "
+            "figures are worked out at its own frequency, but the tuning parts are designed for the MF broadcast band "
+            "only; add its band to [site] bands for its own tuning") in text
+    assert "nearest band edge" not in text
     assert "Longwave far: beyond the flat-earth range" in text
     assert "Longwave far: below 0.3 MHz the ITU-R P.372 man-made noise line is extended beyond its range" in text
     assert "is not included" not in text
@@ -187,3 +190,32 @@ def test_a_bench_calibration_note_is_not_repeated_as_a_station_warning(capsys, w
     text = flat(out)
     assert "taken from your measured resonance at 700 kHz" in text
     assert "Near one: aerial capacitance" not in text
+
+
+def test_a_station_outside_the_swept_bands_gets_the_aerial_at_its_own_frequency(capsys, write_site):
+    """Consistency check: a 198 kHz station on a site swept over MF only is heard with the aerial's figures at
+    198 kHz, not the 520 kHz band edge's: its effective height and its aerial efficiency (radiation resistance over
+    radiation + conductor + earth loss) in the JSON equal the closed forms evaluated at 198 kHz through the public
+    model function, with the earth system's impedance at 198 kHz."""
+    from aerial import load_site
+    from aerial.estimate.assemble import earth_at_frequency
+    from aerial.geometry.resolve import resolve
+    from aerial.models.closed_form import closed_form_response
+    from .conftest import MINIMAL
+
+    p = write_site(MINIMAL.replace('height = "0 m"', 'height = "0 m"\ncoil = "240 uH"')
+                   + '\n[[stations]]\nname = "Longwave far"\nfrequency = "198 kHz"\npower = "500 kW"\n'
+                     'distance = "150 km"\n')
+    code, out, err = run(capsys, "report", p, "--json")
+    assert code == 0, err
+    station = json.loads(out)["stations"][0]
+    site = load_site(p)
+    f = np.array([198e3])
+    model = closed_form_response(resolve(site).segments, f)
+    earth_ohm = earth_at_frequency(site, f)["impedance_ohm"].real
+    rr = float(model["radiation_resistance_ohm"][0])
+    assert station["effective_height_m"] == pytest.approx(float(model["effective_height_m"][0]), rel=1e-9)
+    assert station["aerial_efficiency_ratio"] == pytest.approx(
+        rr / (rr + float(model["conductor_loss_ohm"][0]) + float(earth_ohm[0])), rel=1e-9)
+    edge = closed_form_response(resolve(site).segments, np.array([520e3]))
+    assert station["effective_height_m"] != pytest.approx(float(edge["effective_height_m"][0]), rel=1e-6)

@@ -946,7 +946,8 @@ def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large
     from aerial.estimate import receiver as receiver_bridge
 
     stage(progress, "tuning and stations")
-    tuning, stations, rx_warnings = receiver_bridge.receiver_results(site, freqs, resp)
+    beyond = station_points(site, geometry, freqs, method=method, ground=ground, allow_large=allow_large)
+    tuning, stations, rx_warnings = receiver_bridge.receiver_results(site, freqs, resp, beyond=beyond)
     result["tuning"] = tuning
     result["stations"] = stations
     warnings += rx_warnings
@@ -954,6 +955,28 @@ def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large
     result["cautions"] = cautions_for(site, tuning.get("arrangement"))
     result["warnings"] = _unique(warnings)
     return finalise(result)
+
+
+def station_points(site, geometry, freqs, *, method="closed-form", ground="perfect", allow_large=False):
+    """The aerial with its earth at each station frequency beyond the swept grid, by the sweep's own model.
+
+    A station below or above every swept band (a long-wave station on a site swept over MF, say) is heard
+    with the aerial's figures at its own frequency, not the band edge's: the earth system's impedance and
+    the aerial's response are worked out there as for the sweep (:func:`earth_at_frequency`,
+    :func:`aerial_response`). Returns ``(frequencies [Hz], response)``, or None when every station lies
+    within the grid (its figures are interpolated on the sweep).
+    """
+    f = np.asarray(freqs, float)
+    fs = sorted_unique([float(s.frequency_hz) for s in site.stations
+                        if s.frequency_hz < f[0] * (1 - 1e-9) or s.frequency_hz > f[-1] * (1 + 1e-9)])
+    if len(fs) == 0:
+        return None
+    fs = np.asarray(fs, float)
+    earth_rf = earth_at_frequency(site, fs, screen=method != "full-wave")
+    screen = earth_rf.get("screen")
+    resp = aerial_response(site, geometry, fs, np.asarray(earth_rf["impedance_ohm"].real, float), method=method,
+                           ground=ground, allow_large=allow_large, screen_method=screen["method"] if screen else None)
+    return fs, resp
 
 
 def stage(progress, text: str) -> None:

@@ -91,8 +91,42 @@ def _primary_band(site):
     return site.bands[0]
 
 
-def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
-    """Tuning design and station verdicts for the site. Returns (tuning, stations, warnings)."""
+#: Said of a station beyond the swept bands, whose aerial figures are worked out at its own frequency.
+BEYOND_BANDS_NOTE = ("{f} lies outside the swept bands ({lo} to {hi}): the aerial's and the earth's figures are "
+                     "worked out at its own frequency, but the tuning parts are designed for the {band} band only; "
+                     "add its band to [site] bands for its own tuning")
+
+
+def with_station_points(freqs, resp, beyond):
+    """The sweep's frequencies and aerial arrays with the points ``beyond`` the grid merged in, in order.
+
+    ``beyond``: ``(frequencies [Hz], response)`` from :func:`aerial.estimate.assemble.station_points`, or None.
+    Returns ``(f, r, x, rr, he, station_columns)``: frequency [Hz], series resistance [ohm], reactance [ohm],
+    radiation resistance [ohm], effective height [m] and the full-wave building solution's per-station
+    effective heights [m] (None without one).
+    """
+    keys = ("series_resistance_ohm", "reactance_ohm", "radiation_resistance_ohm", "effective_height_m")
+    f = np.asarray(freqs, float)
+    cols = [np.asarray(resp[k], float) for k in keys]
+    own = (resp.get("building_full_wave") or {}).get("station_effective_height_m")
+    own = None if own is None else np.asarray(own, float).reshape(len(f), -1)
+    if beyond is not None:
+        fb, rb = np.asarray(beyond[0], float), beyond[1]
+        order = np.argsort(np.concatenate([f, fb]), kind="stable")
+        cols = [np.concatenate([c, np.asarray(rb[k], float)])[order] for c, k in zip(cols, keys)]
+        if own is not None:
+            extra = np.asarray(rb["building_full_wave"]["station_effective_height_m"], float).reshape(len(fb), -1)
+            own = np.concatenate([own, extra])[order]
+        f = np.concatenate([f, fb])[order]
+    return (f, *cols, own)
+
+
+def receiver_results(site, freqs, resp, beyond=None) -> tuple[dict, list, list]:
+    """Tuning design and station verdicts for the site. Returns (tuning, stations, warnings).
+
+    ``beyond``: the aerial at the station frequencies outside the swept grid
+    (:func:`aerial.estimate.assemble.station_points`); those stations are heard with it.
+    """
     parts = tuning_parts(site)
     f = np.asarray(freqs, float)
     r = np.asarray(resp["series_resistance_ohm"], float)
@@ -136,8 +170,11 @@ def receiver_results(site, freqs, resp) -> tuple[dict, list, list]:
     warnings += list(tuning.get("warnings", []))
     stations = []
     if site.stations:
-        own = station_effective_heights(site, f, resp)
+        sweep = (f[0], f[-1])
+        f, r, x, rr, he, columns = with_station_points(f, resp, beyond)
+        own = station_effective_heights(site, f, columns)
         stations, night_warnings = _stations_day_and_night(site, f, r, x, rr, he, parts, own, band=(lo, hi), coil=coil)
+        _say_beyond_bands(site, stations, sweep, name)
         warnings += night_warnings
         day = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
                                  s.soil.conductivity_s_m, effective_height_m=h) for s, h in zip(site.stations, own)]
@@ -175,17 +212,24 @@ def station_warnings(stations, said=frozenset()) -> list:
     return [f"{', '.join(names)}: {w}" for w, names in by_text.items()]
 
 
-def station_effective_heights(site, freqs, resp) -> list:
+def _say_beyond_bands(site, stations, sweep, band) -> None:
+    """Each station outside the swept grid ``sweep`` (lowest, highest [Hz]) says what its figures stand on."""
+    for s, src in zip(stations, site.stations):
+        if src.frequency_hz < sweep[0] * (1 - 1e-9) or src.frequency_hz > sweep[1] * (1 + 1e-9):
+            s.setdefault("warnings", []).insert(0, BEYOND_BANDS_NOTE.format(
+                f=units.si_text(src.frequency_hz, "Hz"), lo=units.si_text(sweep[0], "Hz"),
+                hi=units.si_text(sweep[1], "Hz"), band=band))
+
+
+def station_effective_heights(site, freqs, cols) -> list:
     """Each station's own effective height where the full-wave building solution gives one for its bearing. [m]
 
-    ``resp["building_full_wave"]["station_effective_height_m"]`` holds, per
+    ``cols`` (``resp["building_full_wave"]["station_effective_height_m"]``) holds, per
     frequency, one column for each station with a bearing, in the site's
     order; each is taken at the station's frequency. None for a station
     without a bearing (or without a full-wave building solution): it keeps
     the aerial's middle figure, with the range over bearings beside it.
     """
-    info = resp.get("building_full_wave") or {}
-    cols = info.get("station_effective_height_m")
     if cols is None:
         return [None] * len(site.stations)
     cols = np.asarray(cols, float).reshape(len(freqs), -1)

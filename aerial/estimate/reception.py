@@ -11,7 +11,8 @@ The aerial arrives as arrays on a frequency grid: series resistance (radiation
 plus every loss) [ohm], series reactance [ohm], radiation resistance [ohm] and
 effective height [m]. Values at other frequencies are interpolated linearly on
 the grid (``np.interp``); frequencies outside the grid take the nearest edge
-value and are flagged.
+value and are flagged (the report's glue, :mod:`aerial.estimate.receiver`, adds
+each out-of-grid station's own frequency to the grid first).
 
 Assumptions (stated, not published figures) are module constants below.
 """
