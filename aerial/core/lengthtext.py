@@ -30,7 +30,7 @@ import re
 import string
 from typing import NamedTuple
 
-from aerial.core.units import MILE_M, length_text, significant_text
+from aerial.core.units import distance_text, length_text
 
 #: The metric units a length may be said to be written in ("km": a distance, in miles under "us").
 METRIC_UNITS = ("m", "mm", "cm", "km")
@@ -61,9 +61,7 @@ class Length(NamedTuple):
 
     def one(self, value: float, system: str) -> str:
         """One end in ``system``: :func:`length_text`, or under "us" miles for a distance written in km."""
-        if system == "us" and self.unit == "km":
-            return f"{significant_text(float(f'{float(value) / MILE_M:.3g}'))} mi"
-        return length_text(float(value), 3, system)
+        return distance_text(value, system) if self.unit == "km" else length_text(float(value), 3, system)
 
     def text(self, system: str, dash: str) -> str:
         """The length (or range, the unit once where both ends share it) in ``system``."""

@@ -435,6 +435,25 @@ def length_text(metres: float, digits: int = 3, system: str = "si") -> str:
     return f"{significant_text(v / scale, digits)} {unit}"
 
 
+def distance_text(metres: float, system: str = "si") -> str:
+    """A distance such as a station's as people read it: under "si" as :func:`length_text` writes it (km from
+    1000 m), under "us" in miles to three significant figures; "—" when not finite.
+
+    The one rule for a distance in a command's output: the stations' tables and a sentence's km alike.
+
+    Examples
+    --------
+    >>> distance_text(95e3), distance_text(95e3, "us"), distance_text(2e6), distance_text(float("inf"), "us")
+    ('95 km', '59 mi', '2000 km', '—')
+    >>> distance_text(12e6, "us")  # 7456.5 mi to three significant figures (1 mi = 1609.344 m, NIST SP 811)
+    '7460 mi'
+    """
+    v = float(metres)
+    if system != "us":
+        return length_text(v)
+    return f"{significant_text(float(f'{v / MILE_M:.3g}'))} mi" if math.isfinite(v) else "—"
+
+
 def significant_text(x: float, digits: int = 3) -> str:
     """``x`` to ``digits`` significant figures, never in exponent form, trailing zeros dropped.
 

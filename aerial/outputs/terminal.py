@@ -22,7 +22,7 @@ from rich.markup import escape
 from rich.text import Text
 
 from aerial.core.lengthtext import metric_length, text_in
-from aerial.core.units import FOOT_M, MILE_M, length_text, si_text, significant_text
+from aerial.core.units import FOOT_M, distance_text, length_text, si_text
 
 
 # --------------------------------------------------------------------------- keeping numbers with their units
@@ -169,7 +169,7 @@ class Lengths:
         """A station distance: miles, or km (metres below 1 km; never megametres)."""
         if metres is None:
             return "—"
-        return f"{significant_text(float(metres) / MILE_M)} mi" if self.us else length_text(float(metres))
+        return distance_text(metres, "us" if self.us else "si")
 
     def plain(self, metres, decimals: int = 1) -> str:
         """A bare number in the system's main unit (m or ft), for coordinates."""
