@@ -76,22 +76,39 @@ def test_designed_parts_reach_every_listed_station_in_the_band(capsys, write_sit
     assert "Band coverage: covers the band" in text
     assert "the coupling is designed with the coil" in text
     assert "out of the tuning range" not in text
-    assert any("Series coupling capacitor" in c for c in d["cautions"])  # the designed one needs its bleed too
+    # a designed series capacitor needs its bleed caution too; a tap keeps the aerial's DC path through the coil
+    bleed = any("Series coupling capacitor" in c for c in d["cautions"])
+    assert bleed == (tuning["arrangement"] == "series capacitor")
+
+
+def test_the_designed_coupling_serves_the_detector_best_here(capsys, write_site):
+    """Input handling on the invented wire: of the couplings that cover the band, the designed one is the one
+    that gives the detector the most at the worst frequency of the tuning table. Here that is a tap (a 10 pF
+    series capacitor, the largest that covers, lets through at worst about 0.6 %, the tap 13 %); the note says
+    which coupling came next."""
+    d = json.loads(_report(capsys, write_site(NO_PARTS), "--json"))
+    tuning = d["tuning"]
+    assert tuning["arrangement"] == "coil tap"
+    assert 0.05 <= tuning["designed_tap_ratio"] <= 0.5
+    note = next(n for n in tuning["notes"] if "the coupling is designed with the coil" in n)
+    assert "the next best" in note and "reaches the detector" in note
 
 
 def test_designed_rows_resonate_by_the_textbook_formula(capsys, write_site):
-    """Every row of the designed tuning satisfies f = 1/(2π√(LC)) (Thomson's formula; pi from
+    """With a 10 pF series capacitor written in the site and the coil left to the design, every row of the
+    tuning satisfies f = 1/(2π√(LC)) (Thomson's formula; pi from
     scipy.constants), and the aerial's share of C at the bottom of the band is the aerial's series
     R + jX_a with the designed coupling capacitor in series (X = X_a - 1/(ωC_c)), turned into its shunt
     equivalent C_p = -X/(ω(R² + X²)) (the series-to-parallel conversion, common practice); 1 % for the
     coil's self-capacitance and the detector, which the network solve includes."""
-    d = json.loads(_report(capsys, write_site(NO_PARTS), "--json"))
+    cc = 10e-12  # the coupling capacitor written below [F]
+    site = NO_PARTS.replace('[receiver]\n', '[receiver]\ncoupling = "series capacitor"\ncoupling_capacitor = "10 pF"\n')
+    d = json.loads(_report(capsys, write_site(site), "--json"))
     rows = d["tuning"]["rows"]
     for r in rows:
         f = 1.0 / (2.0 * constants.pi * np.sqrt(r["inductance_h"] * r["total_capacitance_f"]))
         assert abs(f / r["frequency_hz"] - 1.0) < 1e-6, r["frequency_hz"]
     assert d["tuning"]["arrangement"] == "series capacitor"
-    cc = d["tuning"]["designed_series_capacitance_f"]
     f0 = rows[0]["frequency_hz"]
     i = int(np.argmin(np.abs(np.asarray(d["frequencies_hz"]) - f0)))
     assert abs(d["frequencies_hz"][i] / f0 - 1.0) < 1e-9
@@ -110,3 +127,73 @@ def test_a_coupling_the_site_names_is_kept(capsys, write_site):
     assert "coupling_designed" not in d["tuning"]
     assert d["tuning"]["coverage"]["covered"] is False
     assert any("together with a coil" in a or "series capacitor" in a for a in d["tuning"]["advice"])
+
+
+#: A 120 ft long wire 25-30 ft up over average ground with an 8 ft rod, no coil and no capacitor: a
+#: crystal-set builder's first wire; two invented stations.
+LONG_WIRE = """
+[site]
+name = "Long wire crystal set"
+bands = ["mf"]
+soil = "medium-dry"
+
+[supports.gable]
+at = [0, 0]
+height = "25 ft"
+kind = "gable"
+
+[supports.tree]
+at = ["120 ft", 0]
+height = "30 ft"
+kind = "tree"
+
+[[spans]]
+from = "gable"
+to = "tree"
+
+[lead_in]
+from = "gable"
+
+[receiver]
+at = ["-2 ft", "2 ft"]
+height = "3 ft"
+detector = "germanium"
+earphone = "high-impedance"
+
+[[earth.rods]]
+length = "8 ft"
+
+[[stations]]
+name = "Valley talk"
+frequency = "610 kHz"
+power = "10 kW"
+distance = "35 mi"
+
+[[stations]]
+name = "Town music"
+frequency = "1230 kHz"
+power = "1 kW"
+distance = "12 mi"
+"""
+
+
+def _weakest_to_detector(d) -> float:
+    return min(r["power_transfer_ratio"] for r in d["tuning"]["rows"])
+
+
+def test_long_wire_designed_coupling_gives_the_detector_the_most_of_the_covering_ones(capsys, write_site):
+    """Input handling through the command line on a builder's long wire: the designed coupling covers the band,
+    and its weakest "to detector" across the tuning table is at least what each other coupling that covers the
+    band gives with its coil designed the same way: here a tap at 0.20 of the turns and a 10 pF series
+    capacitor (the largest E6 value that covers, whose weakest share is about 40 times smaller). The report
+    says why it chose the coupling."""
+    designed = json.loads(_report(capsys, write_site(LONG_WIRE), "--json"))
+    assert designed["tuning"]["coupling_designed"] is True
+    assert designed["tuning"]["coverage"]["covered"] is True
+    for coupling in ('coupling = "coil tap"\ntap = 0.2', 'coupling = "series capacitor"\ncoupling_capacitor = "10 pF"'):
+        other = json.loads(_report(capsys, write_site(LONG_WIRE.replace('[receiver]\n', f"[receiver]\n{coupling}\n")),
+                                   "--json"))
+        assert other["tuning"]["coverage"]["covered"] is True, coupling
+        assert _weakest_to_detector(designed) >= _weakest_to_detector(other), coupling
+    text = " ".join(_report(capsys, write_site(LONG_WIRE), "--width", "300").split())
+    assert "the coupling is designed with the coil" in text and "the next best" in text

@@ -881,12 +881,13 @@ def _first_series_with_a_coil(band, aerial, coil, parts, q_fun, capacitances, in
     return (int(rows[0]), ok[rows[0]]) if rows.size else (None, None)
 
 
-def _designed_coil(band, aerial, parts) -> _Coil:
+def _designed_coil(band, aerial, parts, covering=None) -> _Coil:
     """A coil designed to cover ``band``: first without self-capacitance, then again with the one
     its winding (if known) gives, so that the coil's own capacitance is allowed for. What the design
-    says of itself is in the coil's ``design_notes``."""
+    says of itself is in the coil's ``design_notes``. ``covering``: the range of :func:`_covering_coils`
+    without self-capacitance when already worked out."""
     said: list = []
-    coil = _resolve_coil(parts, _design_inductance(band, aerial, parts, said))
+    coil = _resolve_coil(parts, _design_inductance(band, aerial, parts, said, covering=covering))
     if coil.self_capacitance > 0:
         said = []
         coil = _resolve_coil(parts, _design_inductance(band, aerial, parts, said, coil.self_capacitance))
@@ -903,12 +904,13 @@ def _covering_coils(band, aerial, parts, self_capacitance=0.0):
     return _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax), 1e-6, 1e-2)
 
 
-def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0) -> float:
+def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0, covering=None) -> float:
     f_lo, f_hi = band
     cmin = parts.capacitor_min_f
     q = _constant_q(DEFAULT_COIL_Q if parts.coil_unloaded_q is None else parts.coil_unloaded_q)
     cfg = _config(parts, self_capacitance=float(self_capacitance))
-    rng = _covering_coils(band, aerial, parts, self_capacitance)
+    rng = covering if covering is not None and self_capacitance == 0 else \
+        _covering_coils(band, aerial, parts, self_capacitance)
     if rng:
         L = float(np.sqrt(rng[0] * rng[1]))
         notes.append(f"any coil from {_uh(rng[0])} to {_uh(rng[1])} covers the band; chose {_uh(L)} "
@@ -921,12 +923,13 @@ def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0) -> floa
     return L
 
 
-#: Series capacitors tried, largest first, for a coil still to be designed when no coil covers the band
-#: with the aerial straight to the tank: the E6 preferred values (IEC 60063) from 470 pF down to 10 pF. [F]
+#: Series capacitors tried for a coil still to be designed: the E6 preferred values (IEC 60063) from
+#: 470 pF down to 10 pF. [F]
 DESIGN_SERIES_CAPACITORS_F = (470e-12, 330e-12, 220e-12, 150e-12, 100e-12, 68e-12, 47e-12, 33e-12, 22e-12,
                               15e-12, 10e-12)
-#: Aerial taps tried, highest first, when no series capacitor does (fraction of the turns from the earthy end). [1]
-DESIGN_TAPS = (0.5, 0.3, 0.2, 0.1, 0.05)
+#: Aerial taps tried for a coil still to be designed (fraction of the turns from the earthy end): the
+#: steps a builder winds taps at, from half the turns down to a twentieth. [1]
+DESIGN_TAPS = (0.5, 0.4, 0.3, 0.25, 0.2, 0.15, 0.1, 0.05)
 
 
 def _roomy(rng) -> bool:
@@ -935,18 +938,52 @@ def _roomy(rng) -> bool:
     return rng is not None and rng[0] <= rng[1] * DESIGN_MARGIN ** 2
 
 
+def _coupling_candidates(parts: TuningParts) -> list:
+    """Every coupling tried with a coil still to be designed, as (parts, words): the aerial straight to
+    the tank, each series capacitor of :data:`DESIGN_SERIES_CAPACITORS_F`, each tap of :data:`DESIGN_TAPS`."""
+    out = [(parts, "the aerial straight to the tank")]
+    out += [(parts._replace(arrangement="series capacitor", series_capacitance_f=cc),
+             f"a {_pf(cc)} series capacitor between aerial and tank") for cc in DESIGN_SERIES_CAPACITORS_F]
+    out += [(parts._replace(arrangement="coil tap", tap_fraction=n),
+             f"the aerial on a tap at {n:.2f} of the turns from the earthy end") for n in DESIGN_TAPS]
+    return out
+
+
+def _table_frequencies(aerial: _Aerial, f_lo: float, f_hi: float) -> np.ndarray:
+    """The tuning table's frequencies: the band's edges and the aerial's grid between them. [Hz]"""
+    grid_in = aerial.f[(aerial.f > f_lo) & (aerial.f < f_hi)]
+    return sorted_unique(np.concatenate([[f_lo], grid_in, [f_hi]]))
+
+
+def _weakest_to_detector(band, aerial: _Aerial, parts: TuningParts):
+    """The smallest share of the aerial's available power that reaches the detector across the tuning
+    table's frequencies (its "to detector" column, :func:`_table_arrays`) with a coil designed for
+    ``parts`` as :func:`_designed_coil` designs it; None when no coil covers the band with room. [1]"""
+    covering = _covering_coils(band, aerial, parts)
+    if not _roomy(covering):
+        return None
+    coil = _designed_coil(band, aerial, parts, covering)
+    ratio = _table_arrays(_table_frequencies(aerial, *band), aerial, coil, parts)["power_transfer_ratio"]
+    return float(np.min(np.nan_to_num(ratio, nan=0.0)))
+
+
+def _percent(x: float) -> str:
+    return f"{100.0 * x:.2g} %"
+
+
 def design_coupling(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, band,
                     coupling_open: bool = True) -> tuple:
-    """The coupling chosen together with a coil still to be designed, so that the designed parts cover the band.
+    """The coupling chosen together with a coil still to be designed: of those that cover the band, the
+    one that serves the detector best.
 
     With no coil given and the coupling left open (``coupling_open``, the parts' arrangement then the
-    default "direct"), a coil is designed for the capacitor. When the aerial's own capacitance (or the
-    capacitor's range) lets no coil cover the band with the aerial straight to the tank, the largest
-    series capacitor of :data:`DESIGN_SERIES_CAPACITORS_F` with which a range of coils covers it (the
-    largest passes the most signal), else the highest tap of :data:`DESIGN_TAPS`, is chosen; the covering
-    coils must leave the design margin each way (:func:`_roomy`). When none does, the parts come back
+    default "direct"), every coupling of :func:`_coupling_candidates` (straight to the tank, each E6
+    series capacitor, each tap) whose range of covering coils leaves the design margin each way
+    (:func:`_roomy`) gets its coil designed as :func:`design_tuning` would, and the one whose weakest
+    share of the aerial's power to the detector across the band (the tuning table's "to detector",
+    :func:`_weakest_to_detector`) is largest is chosen. When none covers the band, the parts come back
     unchanged and the coverage and advice of :func:`design_tuning` say what is covered and what would
-    cover the rest.
+    cover the rest; so they do when the aerial straight to the tank is the best.
 
     Parameters
     ----------
@@ -960,8 +997,8 @@ def design_coupling(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts
     Returns
     -------
     tuple
-        (parts, notes): the parts with the coupling chosen (unchanged when nothing is to be chosen or
-        nothing covers the band), and the sentences saying why.
+        (parts, notes): the parts with the coupling chosen (unchanged when nothing is to be chosen, the
+        aerial straight to the tank serves best, or nothing covers the band), and the sentences saying why.
 
     Examples
     --------
@@ -969,8 +1006,8 @@ def design_coupling(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts
     >>> x = [-1 / (2 * 3.141592653589793 * fi * 500e-12) for fi in f]
     >>> parts = TuningParts(capacitor_min_f=15e-12, capacitor_max_f=365e-12)
     >>> chosen, notes = design_coupling(f, [50, 50, 50], x, parts, (520e3, 1710e3))
-    >>> chosen.arrangement, chosen.series_capacitance_f is not None
-    ('series capacitor', True)
+    >>> chosen.arrangement != "direct"
+    True
     """
     _check_parts(parts)
     if (not coupling_open or _coil_given(parts) or parts.capacitor_min_f is None
@@ -980,25 +1017,25 @@ def design_coupling(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts
     if not (0 < band[0] < band[1]):
         raise ModelInputError("band must be (f_lo, f_hi) with 0 < f_lo < f_hi")
     aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm)
-    if _roomy(_covering_coils(band, aerial, parts)):
-        return parts, []
+    scored = [(w, trial, words) for trial, words in _coupling_candidates(parts)
+              if (w := _weakest_to_detector(band, aerial, trial)) is not None]
     straight = (f"no coil covers {_khz(band[0])} to {_khz(band[1])} with room to spare with this capacitor "
                 "and the aerial straight to the tank")
-    for cc in DESIGN_SERIES_CAPACITORS_F:
-        trial = parts._replace(arrangement="series capacitor", series_capacitance_f=cc)
-        if _roomy(_covering_coils(band, aerial, trial)):
-            return trial, [f"{straight}: the coupling is designed with the coil, a {_pf(cc)} series capacitor "
-                           "between aerial and tank (the largest common value, E6 series, with which a coil covers "
-                           "the band; a larger one passes more signal)"]
-    for n in DESIGN_TAPS:
-        trial = parts._replace(arrangement="coil tap", tap_fraction=n)
-        if _roomy(_covering_coils(band, aerial, trial)):
-            return trial, [f"{straight}, nor through a series capacitor of {_pf(DESIGN_SERIES_CAPACITORS_F[-1])} to "
-                           f"{_pf(DESIGN_SERIES_CAPACITORS_F[0])}: the coupling is designed with the coil, the aerial "
-                           f"on a tap at {n:.2f} of the turns from the earthy end (the highest tried that covers it)"]
-    return parts, [f"{straight}, nor through a series capacitor of {_pf(DESIGN_SERIES_CAPACITORS_F[-1])} to "
-                   f"{_pf(DESIGN_SERIES_CAPACITORS_F[0])}, nor on a tap of {DESIGN_TAPS[-1]:.2f} to {DESIGN_TAPS[0]:.2f} "
-                   "of the turns: the designed coil covers only part of it (see the band coverage)"]
+    if not scored:
+        return parts, [f"{straight}, nor through a series capacitor of {_pf(DESIGN_SERIES_CAPACITORS_F[-1])} to "
+                       f"{_pf(DESIGN_SERIES_CAPACITORS_F[0])}, nor on a tap of {DESIGN_TAPS[-1]:.2f} to "
+                       f"{DESIGN_TAPS[0]:.2f} of the turns: the designed coil covers only part of it (see the band "
+                       "coverage)"]
+    ranked = sorted(scored, key=lambda s: -s[0])  # stable: the first listed wins a tie
+    best, trial, words = ranked[0]
+    if trial is parts:
+        return parts, []
+    why = (f"{words}: at worst {_percent(best)} of the aerial's available power reaches the detector across the "
+           f"band (the tuning table's \"to detector\"), the most of the {len(scored)} couplings tried that cover it")
+    if len(ranked) > 1:
+        why += f"; the next best, {ranked[1][2]}, gives {_percent(ranked[1][0])}"
+    lead = straight if scored[0][1] is not parts else "the aerial straight to the tank serves the detector less"
+    return trial, [f"{lead}: the coupling is designed with the coil, {why}"]
 
 
 def _strong_signal_conductance(parts):
@@ -1080,8 +1117,7 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
         coil = _station_coil(aerial, parts, (f_lo, f_hi))
     notes.extend(coil.design_notes)
     notes.extend(coil.notes)
-    grid_in = aerial.f[(aerial.f > f_lo) & (aerial.f < f_hi)]
-    table_f = sorted_unique(np.concatenate([[f_lo], grid_in, [f_hi]]))
+    table_f = _table_frequencies(aerial, f_lo, f_hi)
     rows = _table_rows(table_f, _table_arrays(table_f, aerial, coil, parts), warnings, parts)
     setting = _setting_of(aerial, coil, parts)
     coverage, advice = _coverage((f_lo, f_hi), aerial, coil, parts, warnings, setting)
