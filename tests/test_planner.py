@@ -237,8 +237,9 @@ def test_checklist_flags_a_thin_wire_on_a_long_span():
     text = "\n".join(result["code_checklist"])
     assert "NFPA 70" in text and "not a compliance check" in text
     assert "ATTENTION: thinner than the table minimum" in text
-    # NFPA 70 810.18(A) (from memory): lead-in at least 600 mm from power circuits up to 250 V, 3 m above 250 V
-    assert "at least 0.6 m from power circuits up to 250 V and 3 m above 250 V" in text
+    # NFPA 70 810.18(A) (from memory): lead-in at least 600 mm (2 ft) from power circuits up to 250 V,
+    # 3.0 m (10 ft) above 250 V; written as the code writes them
+    assert "at least 600 mm from power circuits up to 250 V and 3.0 m above 250 V" in text
     assert "compliant" not in text.replace("not a compliance check", "")
 
 
@@ -374,3 +375,14 @@ def test_cli_layout_builds_and_resolves_each_listed_layout_once(capsys, monkeypa
     assert len(json.loads(capsys.readouterr().out)["layouts"]) == 5
     assert built and set(built.values()) == {1}
     assert resolved and set(resolved.values()) == {1}
+
+
+def test_code_figures_are_written_as_the_code_states_them_in_feet(capsys):
+    # NFPA 70 (from memory): 810.18(A) 600 mm (2 ft) and 3.0 m (10 ft) from power circuits, 1.8 m (6 ft) from
+    # lightning-protection conductors; converted from the metric figures they would read 1.97, 9.84 and 5.91 ft
+    code = main(["layout", str(EXAMPLE), "--units", "us", "--width", "250"])
+    out = capsys.readouterr().out
+    assert code == EXIT_OK
+    assert "at least 2 ft from power circuits up to 250 V and 10 ft above 250 V" in out
+    assert "at least 6 ft from lightning-protection conductors" in out
+    assert "1.97 ft" not in out and "5.91 ft" not in out and "9.84 ft" not in out

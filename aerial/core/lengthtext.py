@@ -52,12 +52,16 @@ class Length(NamedTuple):
         The lower end of a range, or None for a single length. [m]
     dash : str
         What the metric sentence writes between the ends of a range.
+    stated : (str, str) or None
+        A figure a standard states in both systems, written as it states them (metric, US customary)
+        instead of converted: a code's "600 mm (2 ft)" is 2 ft under "us", never 1.97 ft.
     """
 
     metres: float
     unit: str = "m"
     low_m: float | None = None
     dash: str = "-"
+    stated: tuple[str, str] | None = None
 
     def one(self, value: float, system: str) -> str:
         """One end in ``system``: :func:`length_text`, or under "us" miles for a distance written in km."""
@@ -74,11 +78,11 @@ class Length(NamedTuple):
 
     def si(self) -> str:
         """The metric text, as the tables write a length (:func:`length_text`: 309 m, 1.63 mm, 12.4 km)."""
-        return self.text("si", self.dash)
+        return self.stated[0] if self.stated else self.text("si", self.dash)
 
     def us(self) -> str:
         """The text in feet (inches below a foot) or, for a length written in km, miles."""
-        return self.text("us", "–")
+        return self.stated[1] if self.stated else self.text("us", "–")
 
 
 class LengthText(str):
@@ -176,6 +180,25 @@ def metres_range(low: float, high: float, unit: str = "m", dash: str = "-") -> L
     if unit not in METRIC_UNITS:
         raise ValueError(f"'{unit}' is not a metric length unit, must be one of {', '.join(METRIC_UNITS)}")
     return LengthText(parts=(Length(float(high), unit, float(low), dash),))
+
+
+def stated_length(value: float, si_text: str, us_text: str) -> LengthText:
+    """A length a standard states in both systems, written as it states it in each (not converted).
+
+    Parameters
+    ----------
+    value : float
+        The length, for comparisons. [m]
+    si_text, us_text : str
+        The standard's own metric and US customary figures, e.g. "600 mm" and "2 ft".
+
+    Examples
+    --------
+    >>> t = stated_length(0.6, "600 mm", "2 ft")
+    >>> t, t.text_in("us")
+    ('600 mm', '2 ft')
+    """
+    return LengthText(parts=(Length(float(value), stated=(si_text, us_text)),))
 
 
 def join_text(separator: str, items) -> LengthText:

@@ -23,7 +23,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from aerial.core import units
-from aerial.core.lengthtext import metres, words
+from aerial.core.lengthtext import metres, stated_length, words
 
 US_REGIONS = ("us", "usa", "united states")
 EUROPE_REGIONS = (
@@ -43,10 +43,17 @@ MIN_AWG_BY_MATERIAL = {
 EARTH_CONDUCTOR_AWG = 10
 #: Bonding jumper from a separate electrode to the building's electrode system: 6 AWG copper (810.21(J); from memory).
 BONDING_AWG = 6
-#: Lead-in clearance from open power conductors: 600 mm for circuits up to 250 V, 3 m above (810.18(A); from memory). [m]
+#: Lead-in clearance from open power conductors: 600 mm (2 ft) for circuits up to 250 V, 3.0 m (10 ft) above
+#: (810.18(A); from memory). [m]
 LEAD_IN_CLEARANCE_M = (0.6, 3.0)
+#: The same clearances as the code writes them, metric and US customary.
+LEAD_IN_CLEARANCE_STATED = (("600 mm", "2 ft"), ("3.0 m", "10 ft"))
+#: Lead-in clearance from lightning-protection conductors: 1.8 m (6 ft) (810.18(A); from memory). [m]
+LIGHTNING_CONDUCTOR_CLEARANCE_M = 1.8
 #: A metal underground water pipe is an electrode with at least 3 m in contact with the earth (250.52(A)(1); from memory). [m]
 WATER_PIPE_CONTACT_M = 3.0
+#: The same as the code writes it, metric and US customary.
+WATER_PIPE_CONTACT_STATED = ("3.0 m", "10 ft")
 #: EN 60728-11 earthing conductor (16 mm² copper) and bonding conductor (4 mm² copper), from memory. [m²]
 EN_EARTHING_AREA_M2 = 16e-6
 EN_BONDING_AREA_M2 = 4e-6
@@ -111,8 +118,9 @@ def minimum_awg(span_m: float, material: str) -> tuple[int, str]:
 def _lead_in_clearance():
     """The start of the checklist line on power conductors: the lead-in's two clearances."""
     return words("810.13 / 810.18(A) power conductors: never cross over them; keep the lead-in at least {low} from "
-                 "power circuits up to 250 V and {high} above 250 V", low=metres(LEAD_IN_CLEARANCE_M[0]),
-                 high=metres(LEAD_IN_CLEARANCE_M[1]))
+                 "power circuits up to 250 V and {high} above 250 V",
+                 low=stated_length(LEAD_IN_CLEARANCE_M[0], *LEAD_IN_CLEARANCE_STATED[0]),
+                 high=stated_length(LEAD_IN_CLEARANCE_M[1], *LEAD_IN_CLEARANCE_STATED[1]))
 
 
 def _awg_diameter(n: int) -> float:
@@ -155,7 +163,8 @@ def _nfpa70(site, plan, facts: LayoutFacts) -> list[str]:
                    "conductors (no support here is described as a pole).")
     out.append("810.20 discharge unit: each lead-in needs a listed antenna discharge unit, outside or inside at the "
                "point nearest where the lead-in enters, away from combustible material (aerial cannot see it: check).")
-    out.append("810.18(A): keep the lead-in at least 1.8 m from lightning-protection conductors, if the building has them.")
+    out.append(words("810.18(A): keep the lead-in at least {gap} from lightning-protection conductors, if the building "
+                     "has them.", gap=stated_length(LIGHTNING_CONDUCTOR_CLEARANCE_M, "1.8 m", "6 ft")))
     # grounding conductor
     lead = next((w for w in site.wires if w.role == "earth lead"), None)
     need = _awg_diameter(EARTH_CONDUCTOR_AWG)
@@ -180,7 +189,8 @@ def _nfpa70(site, plan, facts: LayoutFacts) -> list[str]:
             ok = e.length_m >= WATER_PIPE_CONTACT_M
             out.append(words("250.52(A)(1) water pipe: an electrode only with at least {contact} of metal pipe in "
                              "contact with the earth, and it must be supplemented; the site gives {length}: ",
-                             contact=metres(WATER_PIPE_CONTACT_M), length=metres(e.length_m))
+                             contact=stated_length(WATER_PIPE_CONTACT_M, *WATER_PIPE_CONTACT_STATED),
+                             length=metres(e.length_m))
                        + ("pass (length only)." if ok else "ATTENTION: too short."))
     out.append("250.52(B): metal underground gas piping is never a grounding electrode.")
     return out
