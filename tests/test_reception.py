@@ -373,7 +373,7 @@ def test_consistency_check_the_coverage_searches_in_one_solve_match_value_by_val
     aerial = rc._Aerial(*capacitive_aerial(600e-12))
     coil = rc._resolve_coil(parts)
     band, q = (530e3, 1700e3), coil.q
-    grid = rc._cover_grid(*band)
+    grid = rc._cover_grid(aerial, *band)
 
     def alone(L, cfg):
         c = rc._needed(grid, aerial, L, q, cfg, coil.block)

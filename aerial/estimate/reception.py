@@ -503,17 +503,41 @@ def _scaled_block(coil, inductance):
     return lambda x: base(x) * ratio
 
 
-#: Frequencies (log-spaced, band edges included) at which a band's coverage is checked. A tapped
-#: winding or a series capacitor can give the network a second resonance inside the band, where the
-#: setting needed jumps through infinity: the edges alone do not tell whether the band is covered.
-COVER_CHECK_POINTS = 25
+#: Frequencies (log-spaced over the aerial's grid and the band together) at which a band's coverage is
+#: checked, by the coverage verdict and by every design search alike. A tapped winding or a series
+#: capacitor can give the network a second resonance inside the band, where the setting needed jumps
+#: through infinity: the edges alone do not tell whether the band is covered.
+COVER_CHECK_POINTS = 600
+
+
+def _check_span(aerial, f_lo, f_hi) -> tuple:
+    """The frequencies [Hz] coverage is looked at over: the aerial's grid and the band together."""
+    return min(float(aerial.f[0]), float(f_lo)), max(float(aerial.f[-1]), float(f_hi))
 
 
 @functools.lru_cache(maxsize=64)
-def _cover_grid(f_lo, f_hi):
-    f = np.geomspace(f_lo, f_hi, COVER_CHECK_POINTS)
+def _check_grid(span_lo, span_hi):
+    """The coverage check's log grid over a span [Hz]: :data:`COVER_CHECK_POINTS` points, ends included."""
+    f = np.geomspace(span_lo, span_hi, COVER_CHECK_POINTS)
     f.setflags(write=False)
     return f
+
+
+@functools.lru_cache(maxsize=64)
+def _band_check_grid(f_lo, f_hi, span_lo, span_hi):
+    """The band's edges and the points of the coverage check's grid (:func:`_check_grid`) between them. [Hz]
+
+    A setting found inside the capacitor's range at all of these is what the coverage verdict of
+    :func:`_coverage` calls covered, so a designed part is chosen by the check that judges it.
+    """
+    fine = _check_grid(span_lo, span_hi)
+    f = np.concatenate([[f_lo], fine[(fine > f_lo) & (fine < f_hi)], [f_hi]])
+    f.setflags(write=False)
+    return f
+
+
+def _cover_grid(aerial, f_lo, f_hi):
+    return _band_check_grid(float(f_lo), float(f_hi), *_check_span(aerial, f_lo, f_hi))
 
 
 def _remembered_q(q_fun):
@@ -540,7 +564,7 @@ def _covers(f_lo, f_hi, aerial, L, q_fun, cfg, cmin, cmax, block=None, wound_lik
     of the band only for the values that pass there (each value's settings are its own, so the
     answer is the one trying the whole band for every value gives).
     """
-    f = _cover_grid(float(f_lo), float(f_hi))
+    f = _cover_grid(aerial, f_lo, f_hi)
 
     def inside(freq, L_, cfg_):
         c = _needed(freq, aerial, L_, q_fun, cfg_, block, wound_like)
@@ -568,16 +592,17 @@ def _column_subset(L, cfg, keep) -> tuple:
     return L, {**cfg, **cut}
 
 
-def _reachable_ranges(f_lo, f_hi, setting, cmin, cmax, points=600, refine=30) -> list:
+def _reachable_ranges(f_lo, f_hi, setting, cmin, cmax, points=COVER_CHECK_POINTS, refine=30) -> list:
     """The pieces of [f_lo, f_hi] [Hz] where ``setting(f)`` [F] lies within [cmin, cmax].
 
-    Found on a log grid of ``points``; every edge then refined by bisection in frequency, all
+    Found on a log grid of ``points`` (the coverage check's grid, :func:`_check_grid`, by default); every edge then refined by bisection in frequency, all
     edges at once (``refine`` halvings of the grid step). Returns [(low, high), ...] in order [Hz].
 
     >>> _reachable_ranges(500e3, 1700e3, lambda f: 1 / ((2 * np.pi * f) ** 2 * 240e-6), 15e-12, 365e-12)[0][0] > 500e3
     True
     """
-    fine = np.geomspace(f_lo, f_hi, int(points))
+    fine = _check_grid(float(f_lo), float(f_hi)) if points == COVER_CHECK_POINTS else np.geomspace(f_lo, f_hi,
+                                                                                                      int(points))
 
     def ok(f):
         c = setting(f)
@@ -867,7 +892,7 @@ def _first_series_with_a_coil(band, aerial, coil, parts, q_fun, capacitances, in
     over the rest of the band (each pair's settings are its own: what :func:`_covers` says pair by pair).
     """
     cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
-    f = _cover_grid(float(band[0]), float(band[1]))
+    f = _cover_grid(aerial, band[0], band[1])
     cfg = _coil_config(parts, coil, arrangement="series capacitor",
                        series_capacitance=np.asarray(capacitances, dtype=float)[:, None, None])
     c = _needed(f[[0, -1]], aerial, np.asarray(inductances, dtype=float)[None, :, None], q_fun, cfg, coil.block)
@@ -1328,7 +1353,7 @@ def _coverage(band, aerial, coil, parts, warnings, setting=None) -> tuple:
         coverage["verdict"] = "no capacitor range given: the settings needed are listed"
         return coverage, []
     # over the aerial's grid (and the band): what the capacitor reaches, inside the band or beyond it
-    span = (min(float(aerial.f[0]), f_lo), max(float(aerial.f[-1]), f_hi))
+    span = _check_span(aerial, f_lo, f_hi)
     pieces = _reachable_ranges(*span, setting or _setting_of(aerial, coil, parts), parts.capacitor_min_f,
                                parts.capacitor_max_f)
     covered = any(a <= f_lo * (1 + 1e-9) and b >= f_hi * (1 - 1e-9) for a, b in pieces)
