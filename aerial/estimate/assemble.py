@@ -958,17 +958,23 @@ def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large
 
 
 def station_points(site, geometry, freqs, *, method="closed-form", ground="perfect", allow_large=False):
-    """The aerial with its earth at each station frequency beyond the swept grid, by the sweep's own model.
+    """The aerial with its earth at each station frequency off the swept grid, by the sweep's own model.
 
-    A station below or above every swept band (a long-wave station on a site swept over MF, say) is heard
-    with the aerial's figures at its own frequency, not the band edge's: the earth system's impedance and
-    the aerial's response are worked out there as for the sweep (:func:`earth_at_frequency`,
-    :func:`aerial_response`). Returns ``(frequencies [Hz], response)``, or None when every station lies
-    within the grid (its figures are interpolated on the sweep).
+    A station below or above every swept band (a long-wave station on a site swept over MF, say), or in
+    the gap between two swept bands (a 400 kHz station on a site swept over LF and MF), is heard with the
+    aerial's figures at its own frequency, not the band edge's nor a line drawn across the gap: the earth
+    system's impedance and the aerial's response are worked out there as for the sweep
+    (:func:`earth_at_frequency`, :func:`aerial_response`). Returns ``(frequencies [Hz], response)``, or
+    None when every station lies within a swept band (its figures are interpolated on the sweep).
     """
     f = np.asarray(freqs, float)
-    fs = sorted_unique([float(s.frequency_hz) for s in site.stations
-                        if s.frequency_hz < f[0] * (1 - 1e-9) or s.frequency_hz > f[-1] * (1 + 1e-9)])
+
+    def off_grid(fs_hz: float) -> bool:
+        if fs_hz < f[0] * (1 - 1e-9) or fs_hz > f[-1] * (1 + 1e-9):
+            return True
+        return not any(lo * (1 - 1e-9) <= fs_hz <= hi * (1 + 1e-9) for _, lo, hi in site.bands)
+
+    fs = sorted_unique([float(s.frequency_hz) for s in site.stations if off_grid(float(s.frequency_hz))])
     if len(fs) == 0:
         return None
     fs = np.asarray(fs, float)
