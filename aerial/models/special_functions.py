@@ -348,6 +348,11 @@ def ive_pair(z):
     """e^{-|Re z|} I_0(z) and e^{-|Re z|} I_1(z) together: :func:`ive` of both orders, with the work they
     share (region, powers, continued fractions) done once. [1]
 
+    References
+    ----------
+    As :func:`ive`: Abramowitz and Stegun 9.6.10; DLMF 10.40.5; Press et al., *Numerical Recipes*,
+    3rd ed., sec. 6.6 (from memory).
+
     Examples
     --------
     >>> i0, i1 = ive_pair(np.array([0.5, 5.0, 50.0]))

@@ -233,3 +233,12 @@ def test_wofz_table_values_and_edges():
     for z in (1e200, 1e200j, -1e200, 1e200 * np.exp(1j * 3 * np.pi / 4)):
         assert sf.wofz(z) == pytest.approx(1j / (np.sqrt(np.pi) * z), rel=1e-15)
     assert np.isfinite(sf.wofz(np.array([1e-300, 1e-300j, 6.0, 6.0 - 1e-300j, 5.999999j]))).all()
+
+
+def test_ive_pair_against_scipy_on_real_and_complex_arguments():
+    # general reference library: scipy.special.ive of orders 0 and 1, the detector's real arguments and
+    # the wire impedances' arguments at 45 degrees
+    for z in (MAGNITUDES, MAGNITUDES * np.exp(0.25j * np.pi)):
+        i0, i1 = sf.ive_pair(z)
+        assert _rel(i0, ref.ive(0, z)) < 1e-13
+        assert _rel(i1, ref.ive(1, z)) < 1e-13
