@@ -27,6 +27,27 @@ length = "2.4 m"
 """
 
 
+# An invented sloping wire from the receiver to a tree: 29.0 m along, 0.5 m to 7.91 m high, so
+# 29.93 m of wire. Its metric warning says "29.9 m"; in feet that rounded figure would be 98.1 ft, the exact
+# one 98.2 ft (1 ft = 0.3048 m exactly, NIST SP 811), as the header writes it.
+SLOPING_WIRE = """
+[site]
+name = "sloping wire to a tree"
+bands = ["mf"]
+
+[[runs]]
+name = "sloper"
+points = [[0, 0, 0.5], [29.0, 0, 7.91]]
+
+[receiver]
+at = [0, 0]
+height = "0.5 m"
+
+[[earth.rods]]
+length = "2.4 m"
+"""
+
+
 @pytest.fixture(autouse=True)
 def _no_columns_from_outside(monkeypatch):
     """A piped report honours COLUMNS: a value exported in the shell that runs the tests must not change them."""

@@ -12,7 +12,7 @@ import pytest
 from aerial import cli
 from aerial.outputs.terminal import Lengths, eng
 
-from .conftest import run
+from .conftest import SLOPING_WIRE, run
 
 EXAMPLES = "site_examples/"
 
@@ -83,27 +83,6 @@ def test_us_units_convert_every_length_in_the_report(capsys):
     assert "points (x, y, height) ft" in out
     lengths_in_metres = Lengths.PATTERN.findall(out)
     assert not lengths_in_metres, lengths_in_metres
-
-
-# An invented sloping wire from the receiver to a tree: 29.0 m along, 0.5 m to 7.91 m high, so
-# 29.93 m of wire. Its metric warning says "29.9 m"; in feet that rounded figure would be 98.1 ft, the exact
-# one 98.2 ft (1 ft = 0.3048 m exactly, NIST SP 811), as the header writes it.
-SLOPING_WIRE = """
-[site]
-name = "sloping wire to a tree"
-bands = ["mf"]
-
-[[runs]]
-name = "sloper"
-points = [[0, 0, 0.5], [29.0, 0, 7.91]]
-
-[receiver]
-at = [0, 0]
-height = "0.5 m"
-
-[[earth.rods]]
-length = "2.4 m"
-"""
 
 
 def test_us_units_write_a_warning_s_length_as_the_header_does(capsys, write_site):

@@ -16,7 +16,7 @@ import pytest
 
 from aerial.outputs.terminal import eng
 
-from .conftest import EXAMPLES, MINIMAL, run
+from .conftest import EXAMPLES, MINIMAL, SLOPING_WIRE, run
 
 SUBURBAN = next(p for p in EXAMPLES if p.name == "suburban_lot_service_line.toml")
 
@@ -311,32 +311,11 @@ def test_layout_page_when_every_candidate_is_refused(capsys, write_site, tmp_pat
     assert f">{data['candidates_refused_safety']}<" in page
 
 
-#: An invented sloping wire, 29.0 m along and 0.5 m to 7.91 m high (29.93 m of wire: its metric warning says
+#: The invented sloping wire of ``conftest.SLOPING_WIRE`` (29.93 m of wire: its metric warning says
 #: "29.9 m", 98.1 ft if read back from those digits, 98.2 ft from the exact length as the tables write it;
 #: 1 ft = 0.3048 m exactly, NIST SP 811), with one station 40 km away, on a coarse sweep.
-WITH_STATION = """
-[site]
-name = "sloping wire to a tree"
-bands = ["mf"]
-frequency_step = "100 kHz"
-
-[[runs]]
-name = "sloper"
-points = [[0, 0, 0.5], [29.0, 0, 7.91]]
-
-[receiver]
-at = [0, 0]
-height = "0.5 m"
-
-[[earth.rods]]
-length = "2.4 m"
-
-[[stations]]
-name = "Demo Talk"
-frequency = "1 MHz"
-power = "10 kW"
-distance = "40 km"
-"""
+WITH_STATION = (SLOPING_WIRE.replace('bands = ["mf"]', 'bands = ["mf"]\nfrequency_step = "100 kHz"')
+                + '\n[[stations]]\nname = "Demo Talk"\nfrequency = "1 MHz"\npower = "10 kW"\ndistance = "40 km"\n')
 
 
 def _page_text(page: str) -> str:

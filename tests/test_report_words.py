@@ -192,58 +192,40 @@ def test_a_bench_calibration_note_is_not_repeated_as_a_station_warning(capsys, w
     assert "Near one: aerial capacitance" not in text
 
 
-def test_a_station_outside_the_swept_bands_gets_the_aerial_at_its_own_frequency(capsys, write_site):
-    """Consistency check: a 198 kHz station on a site swept over MF only is heard with the aerial's figures at
-    198 kHz, not the 520 kHz band edge's: its effective height and its aerial efficiency (radiation resistance over
-    radiation + conductor + earth loss) in the JSON equal the closed forms evaluated at 198 kHz through the public
-    model function, with the earth system's impedance at 198 kHz."""
+@pytest.mark.parametrize(("bands", "station", "edge_hz"), [
+    # below every swept band: not the 520 kHz band edge's figures
+    (None, 'name = "Longwave far"\nfrequency = "198 kHz"\npower = "500 kW"\ndistance = "150 km"', 520e3),
+    # in the gap between LF (to 283.5 kHz) and MF (from 520 kHz): not a straight line drawn across the gap
+    # (the radiation resistance grows as f², so a line across the gap overstates it: about 9 % on the
+    # efficiency here)
+    ('["lf", "mf"]', 'name = "Between"\nfrequency = "400 kHz"\npower = "50 kW"\ndistance = "100 km"', None),
+])
+def test_a_station_off_the_swept_bands_gets_the_aerial_at_its_own_frequency(capsys, write_site, bands, station,
+                                                                             edge_hz):
+    """Consistency check: a station below every swept band, or between two of them, is heard with the aerial's
+    figures at its own frequency: its effective height and its aerial efficiency (radiation resistance over
+    radiation + conductor + earth loss) in the JSON equal the closed forms evaluated there through the public
+    model function, with the earth system's impedance there."""
     from aerial import load_site
     from aerial.estimate.assemble import earth_at_frequency
     from aerial.geometry.resolve import resolve
     from aerial.models.closed_form import closed_form_response
     from .conftest import MINIMAL
 
-    p = write_site(MINIMAL.replace('height = "0 m"', 'height = "0 m"\ncoil = "240 uH"')
-                   + '\n[[stations]]\nname = "Longwave far"\nfrequency = "198 kHz"\npower = "500 kW"\n'
-                     'distance = "150 km"\n')
+    text = MINIMAL if bands is None else MINIMAL.replace('name = "test vertical"',
+                                                         f'name = "test vertical"\nbands = {bands}')
+    p = write_site(text.replace('height = "0 m"', 'height = "0 m"\ncoil = "240 uH"') + f"\n[[stations]]\n{station}\n")
     code, out, err = run(capsys, "report", p, "--json")
     assert code == 0, err
-    station = json.loads(out)["stations"][0]
+    result = json.loads(out)["stations"][0]
     site = load_site(p)
-    f = np.array([198e3])
+    f = np.array([site.stations[0].frequency_hz])
     model = closed_form_response(resolve(site).segments, f)
     earth_ohm = earth_at_frequency(site, f)["impedance_ohm"].real
     rr = float(model["radiation_resistance_ohm"][0])
-    assert station["effective_height_m"] == pytest.approx(float(model["effective_height_m"][0]), rel=1e-9)
-    assert station["aerial_efficiency_ratio"] == pytest.approx(
+    assert result["effective_height_m"] == pytest.approx(float(model["effective_height_m"][0]), rel=1e-9)
+    assert result["aerial_efficiency_ratio"] == pytest.approx(
         rr / (rr + float(model["conductor_loss_ohm"][0]) + float(earth_ohm[0])), rel=1e-9)
-    edge = closed_form_response(resolve(site).segments, np.array([520e3]))
-    assert station["effective_height_m"] != pytest.approx(float(edge["effective_height_m"][0]), rel=1e-6)
-
-
-def test_a_station_between_two_swept_bands_gets_the_aerial_at_its_own_frequency(capsys, write_site):
-    """Consistency check: a 400 kHz station on a site swept over LF (to 283.5 kHz) and MF (from 520 kHz) is
-    heard with the closed forms evaluated at 400 kHz, with the earth's impedance there, not a straight line
-    drawn across the gap between the bands (the radiation resistance grows as f², so a line across the gap
-    overstates it: about 9 % on the efficiency here)."""
-    from aerial import load_site
-    from aerial.estimate.assemble import earth_at_frequency
-    from aerial.geometry.resolve import resolve
-    from aerial.models.closed_form import closed_form_response
-    from .conftest import MINIMAL
-
-    p = write_site(MINIMAL.replace('name = "test vertical"', 'name = "test vertical"\nbands = ["lf", "mf"]')
-                   .replace('height = "0 m"', 'height = "0 m"\ncoil = "240 uH"')
-                   + '\n[[stations]]\nname = "Between"\nfrequency = "400 kHz"\npower = "50 kW"\n'
-                     'distance = "100 km"\n')
-    code, out, err = run(capsys, "report", p, "--json")
-    assert code == 0, err
-    station = json.loads(out)["stations"][0]
-    site = load_site(p)
-    f = np.array([400e3])
-    model = closed_form_response(resolve(site).segments, f)
-    earth_ohm = earth_at_frequency(site, f)["impedance_ohm"].real
-    rr = float(model["radiation_resistance_ohm"][0])
-    assert station["effective_height_m"] == pytest.approx(float(model["effective_height_m"][0]), rel=1e-9)
-    assert station["aerial_efficiency_ratio"] == pytest.approx(
-        rr / (rr + float(model["conductor_loss_ohm"][0]) + float(earth_ohm[0])), rel=1e-9)
+    if edge_hz is not None:
+        edge = closed_form_response(resolve(site).segments, np.array([edge_hz]))
+        assert result["effective_height_m"] != pytest.approx(float(edge["effective_height_m"][0]), rel=1e-6)
