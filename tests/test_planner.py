@@ -32,7 +32,7 @@ from aerial.planner.search import (
 )
 from aerial.site.reader import load_site, load_site_text
 
-from .conftest import ROOT
+from .conftest import ROOT, run
 
 EXAMPLE = ROOT / "site_examples" / "suburban_lot_service_line.toml"
 
@@ -386,3 +386,21 @@ def test_code_figures_are_written_as_the_code_states_them_in_feet(capsys):
     assert "at least 2 ft from power circuits up to 250 V and 10 ft above 250 V" in out
     assert "at least 6 ft from lightning-protection conductors" in out
     assert "1.97 ft" not in out and "5.91 ft" not in out and "9.84 ft" not in out
+
+
+def test_no_safe_layout_leaves_no_null_figure(capsys, tmp_path):
+    """A power line moved next to the present wire: every candidate and the present wire are refused, and the
+    JSON carries no null figure (docs/json-output.md: "No NaN or infinity ever appears"); found by the fuzzing
+    harness (benchmarks/fuzz_sites.py --seed 61 --only 3127)."""
+    text = (ROOT / "site_examples" / "backyard_inverted_l.toml").read_text(encoding="utf-8")
+    moved = text.replace("path = [[-40, -26], [60, -26]]", "path = [[1.5, -1.0], [60, -26]]")
+    assert moved != text
+    site = tmp_path / "site.toml"
+    site.write_text(moved, encoding="utf-8")
+    code, out, err = run(capsys, "layout", site, "--json")
+    assert code == 0 and err == ""
+    data = json.loads(out)
+    assert data["layouts"] == [] and "screening_difference_db" not in data
+    assert any("No safe layout" in w for w in data["warnings"])
+    code, out, _ = run(capsys, "layout", site)
+    assert code == 0 and "No safe layout" in out

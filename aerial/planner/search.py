@@ -686,7 +686,8 @@ def _plan(site, best, full_wave, draw, allow_large, progress) -> dict:
     stage(progress, "the listed layouts with the report's model")
     layouts, screening_error_db = _listed_layouts(ctx, top_rec, best, warnings)
     result = _result(site, plan, ctx, objective, total, tally, layouts, warnings, present_refused)
-    result["screening_difference_db"] = screening_error_db
+    if screening_error_db is not None:  # no listed layout re-computed: nothing to compare (no null figure)
+        result["screening_difference_db"] = screening_error_db
     if layouts:
         _winner_extras(result, site, plan, ctx, objective, full_wave, warnings, progress, allow_large=allow_large)
     if draw is not None:
