@@ -371,3 +371,30 @@ def test_a_misspelt_construction_names_the_closest_one(capsys, tmp_path):
     assert code == 2
     assert 'did you mean "reinforced concrete"?' in err and "building.construction" in err
     assert len(err.strip().splitlines()) == 1
+
+
+@pytest.mark.parametrize("footprint, points", [
+    # the wire 2 m over a flat roof, wholly inside the outline in plan
+    ("[[-6.0, -12.0], [18.0, -12.0], [18.0, 0.0], [-6.0, 0.0]]", "[[0.5, -0.5, 23.0], [12.0, -8.0, 23.0]]"),
+    # a sloping facade: one end of the rail outside, the rail's middle inside (found by the fuzzing harness,
+    # benchmarks/fuzz_sites.py --seed 61 --only 3907)
+    ("[[-6.0, -12.0], [18.0, -12.0], [18.0, 0.0], [-6.0, 3]]", "[[0.5, 1.6, 12.6], [6.5, 1.6, 12.6]]"),
+])
+def test_a_wire_with_no_piece_beside_the_building_is_refused_naming_the_footprint(capsys, tmp_path, footprint,
+                                                                                   points):
+    """The building's model stands the wire in front of a facade; a wire with no piece outside the outline is
+    refused by the loader with the footprint's line, key and value (exit 2), not by the model later."""
+    text = (ROOT / "site_examples" / "high_floor_flat.toml").read_text(encoding="utf-8")
+    text = text.replace("footprint = [[-6.0, -12.0], [18.0, -12.0], [18.0, 0.0], [-6.0, 0.0]]",
+                        f"footprint = {footprint}")
+    text = text.replace("points = [[0.5, 1.6, 12.6], [6.5, 1.6, 12.6]]", f"points = {points}")
+    start = points[1:points.index("]") + 1]
+    text = text.replace("from = [0.5, 1.6, 12.6]", f"from = {start}")
+    site = tmp_path / "site.toml"
+    site.write_text(text, encoding="utf-8")
+    for command in ("check", "report", "layout"):
+        code, out, err = run(capsys, command, site, "--json")
+        line = one_line(err)
+        assert code == 2 and out == ""
+        assert re.search(r"site\.toml:\d+: building\.footprint = \[\[", line), line
+        assert "not one over its roof" in line

@@ -102,7 +102,7 @@ def parse_building(site, plan: Plan | None = None) -> SiteBuilding | None:
     raw = site.raw.get("building") if isinstance(site.raw, dict) else None
     if raw is not None:
         return _from_table(r, r.table(site.raw, "", "building"), site, plan)
-    return _from_plan(site, plan) or _from_supports(site, plan)
+    return _from_plan(r, site, plan) or _from_supports(site, plan)
 
 
 def _from_table(r: TableReader, t: dict, site, plan: Plan) -> SiteBuilding:
@@ -128,11 +128,11 @@ def _from_table(r: TableReader, t: dict, site, plan: Plan) -> SiteBuilding:
     bonded = r.boolean(t, key, "rail_bonded")
     if floor is None:
         floor = _plan_floor(plan)
-    _check_wire_outside(r, site, outline, height)
+    _check_wire_outside(r, site, outline, f"{key}.footprint", t["footprint"])
     return SiteBuilding(_corners(outline), height, construction, floor, bonded, "building", tuple(assumed))
 
 
-def _from_plan(site, plan: Plan) -> SiteBuilding | None:
+def _from_plan(r: TableReader, site, plan: Plan) -> SiteBuilding | None:
     """The block of flats of an ``apartment`` plan: the ``[[plan.buildings]]`` outline that holds the entry."""
     if plan.building != "apartment":
         return None
@@ -142,6 +142,7 @@ def _from_plan(site, plan: Plan) -> SiteBuilding | None:
     for b in plan.buildings:
         outline = _oriented(b.outline)
         if outline.buffer(1.0).covers(here):
+            _check_wire_outside(r, site, outline, f"{b.key}.outline", [list(c) for c in _corners(outline)])
             structure = _plan_structure(plan)
             assumed = [f"the block of flats is {b.key} (it holds the entry); its construction is "
                        f"taken from [plan.balcony]: {structure}"]
@@ -278,18 +279,25 @@ def _plan_structure(plan: Plan) -> str:
     return plan.balcony.structure if plan.balcony is not None else "unknown"
 
 
-def _check_wire_outside(r: TableReader, site, outline: Polygon, height: float):
-    """The aerial wire must run somewhere outside the building (or above its roof)."""
+def _check_wire_outside(r: TableReader, site, outline: Polygon, key: str, value):
+    """Some piece of the aerial must run outside the building's outline in plan (beside it), as the building's
+    model needs: it finds the facade the wire stands in front of from the pieces' midpoints (the aerial and its
+    lead-in, as :func:`aerial.models.building.facade_static_figures` has them). A wire above the roof, inside
+    the outline in plan, is refused here, naming the outline, rather than by the model later."""
     from shapely.geometry import Point
 
     for w in site.wires:
-        if w.role != "aerial":
+        if w.role in ("earth lead", "counterpoise"):
             continue
-        for p in np.asarray(w.points_m, float):
-            if not outline.contains(Point(p[0], p[1])) or p[2] > height:
+        p = np.asarray(w.points_m, float)
+        for x, y in 0.5 * (p[1:, :2] + p[:-1, :2]):
+            pt = Point(x, y)
+            if not outline.covers(pt):
                 return
-    r.fail("building.footprint", "", "every aerial wire point is inside the building: give the footprint of the "
-           "building, with the wire outside it (on the balcony, along the garden)")
+    r.fail(key, value, "every aerial wire is inside the building's outline in plan (above its roof or within it); "
+           "aerial models a wire beside a building (on a balcony, along a facade, across a garden), not one over "
+           "its roof: give the outline with the wire outside it, or, for a wire on the roof's edge, leave "
+           "[building] out and hang the wire on supports of kind \"roof\" (a building is then assumed behind it)")
 
 
 def open_ground_notes(site) -> list[str]:
