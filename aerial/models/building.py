@@ -980,7 +980,8 @@ def _panels_potential(points, box):
 
     A panel farther than ``BOX_NEAR_HALF_DIAGONALS`` of its half-diagonals is a point charge (area over
     distance); nearer ones are integrated exactly (:func:`rectangle_potential_integral`). The squared plan
-    distances are shared by a panel and its image, and the dense work is done in place in three arrays.
+    distances are shared by a panel and its image (and so is the short list of pairs near in plan, the only
+    ones that can be near), and the dense work is done in place in three arrays.
     """
     reach2 = (BOX_NEAR_HALF_DIAGONALS ** 2) * (box.half_u ** 2 + box.half_v ** 2)
     area = 4.0 * box.half_u * box.half_v
@@ -991,11 +992,15 @@ def _panels_potential(points, box):
     parts = [np.subtract.outer(p[:, 1], box.centre[:, 1]), np.empty_like(plan2)]
     parts[0] *= parts[0]
     plan2 += parts[0]  # squared plan distance
+    near_m, near_n = np.nonzero(plan2 <= reach2)  # the only pairs that can be near, for a panel or its image
+    plan2_near = plan2[near_m, near_n]
     for part, cz in zip(parts, (box.centre[:, 2], -box.centre[:, 2])):  # the panels, then their ground images
         np.subtract.outer(p[:, 2], cz, out=part)
         part *= part
         part += plan2  # squared distance
-        m, n = np.nonzero(part <= reach2)
+        dz = p[near_m, 2] - cz[near_n]
+        near = dz * dz + plan2_near <= reach2[near_n]  # part <= reach2, looked at where it can hold
+        m, n = near_m[near], near_n[near]
         np.maximum(part, 1e-300, out=part)
         np.sqrt(part, out=part)
         np.divide(area, part, out=part)  # a point charge, far off

@@ -460,12 +460,13 @@ def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = Fa
     out = np.empty((rows, cols)) if out is None else out
     step = max(1, FILL_BLOCK_ELEMENTS // max(knots, 1))
     step = -(-rows // -(-rows // step))  # blocks of even size
+    knots_per_segment = np.asarray(counts) + 1
     for r0 in range(0, rows, step):
         r1 = min(rows, r0 + step)
         total, x, root, f = _scratch_planes(r1 - r0, knots, 4)
         for k, ((along, inv_rho), sign) in enumerate(lines):
-            np.subtract(t, along[r0:r1, seg], out=x)
-            x *= inv_rho[r0:r1, seg]                           # (t - z) / rho at every knot
+            np.subtract(t, np.repeat(along[r0:r1], knots_per_segment, axis=1), out=x)
+            x *= np.repeat(inv_rho[r0:r1], knots_per_segment, axis=1)  # (t - z) / rho at every knot
             _asinh(x, root, total if k == 0 else f)
             if k == 0:
                 continue

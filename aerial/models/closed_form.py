@@ -56,15 +56,29 @@ def _segment_r_per_m(segments: Segments, frequency):
 
     The segments of one wire share its radius, resistivity and permeability, so
     :func:`aerial.models.conductor.resistance_per_m` runs once per kind over the frequencies and the rows are
-    repeated for the segments of that kind (the values are those of a call over all segments).
+    repeated for the segments of that kind (the values are those of a call over all segments). A kind's row at
+    the same frequencies is kept for the next call (a report's tolerance and what-if runs move the wires, not
+    their kind).
     """
     kinds = np.column_stack([segments.radius, segments.resistivity, segments.relative_permeability])
     unique, which = np.unique(kinds, axis=0, return_inverse=True)
     rows = np.empty((len(unique), frequency.size))
+    freq_key = frequency.tobytes()
     for k, (radius, resistivity, permeability) in enumerate(unique):
-        rows[k] = resistance_per_m(np.full((1, 1), radius), frequency[None, :], np.full((1, 1), resistivity),
+        key = (float(radius), float(resistivity), float(permeability), freq_key)
+        row = _R_PER_M_ROWS.get(key)
+        if row is None:
+            row = resistance_per_m(np.full((1, 1), radius), frequency[None, :], np.full((1, 1), resistivity),
                                    np.full((1, 1), permeability))[0]
+            if len(_R_PER_M_ROWS) >= 32:
+                _R_PER_M_ROWS.pop(next(iter(_R_PER_M_ROWS)))
+            _R_PER_M_ROWS[key] = row
+        rows[k] = row
     return rows[np.reshape(which, -1)]
+
+
+#: Each kind of wire's AC resistance per metre by frequencies, from earlier calls (the last 32). [ohm/m]
+_R_PER_M_ROWS: dict = {}
 
 
 def _section_r_per_m(segments: Segments, r_per_m, mask):

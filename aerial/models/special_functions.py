@@ -483,10 +483,19 @@ def _agm_group(m, big_k, big_e):
 
 
 def _elliptic_parameter(m):
-    m = _as_argument(m, "m")
-    if np.iscomplexobj(m) or np.any(m > 1.0):
+    """m as a float array, and its largest value; raises unless every m is real, finite and at most 1."""
+    arr = np.asarray(m)
+    if arr.dtype.kind in "fiu" and arr.size:
+        arr = arr.astype(np.float64, copy=False)
+        low, high = float(np.min(arr)), float(np.max(arr))  # NaN in either: not finite
+        if not (np.isfinite(low) and np.isfinite(high)):
+            raise ModelInputError("m must be finite")
+    else:
+        arr = _as_argument(m, "m")
+        high = float(np.max(arr.real)) if arr.size else 0.0
+    if np.iscomplexobj(arr) or high > 1.0:
         raise ModelInputError("the elliptic parameter m must be real and at most 1")
-    return m
+    return arr, high
 
 
 def ellipk(m):
@@ -553,7 +562,9 @@ def ellipe(m):
 
 def _complete_elliptic(m, which, at_one):
     """K(m) (``which`` 0) or E(m) (1) by the arithmetic-geometric mean, ``at_one`` at m = 1."""
-    m = _elliptic_parameter(m)
+    m, high = _elliptic_parameter(m)
+    if high < 1.0:  # no m at 1: the mean of every value as it is
+        return _agm_elliptic(np.atleast_1d(m))[which].reshape(m.shape)
     edge = m == 1.0
     value = _agm_elliptic(np.atleast_1d(np.where(edge, 0.0, m)))[which]
     return np.where(edge, at_one, value.reshape(m.shape))
