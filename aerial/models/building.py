@@ -72,6 +72,7 @@ References
 
 from __future__ import annotations
 
+import threading
 from typing import NamedTuple
 
 import numpy as np
@@ -888,7 +889,7 @@ class BoxScreen(NamedTuple):
         if found is not None:  # the report's tolerance runs ask again for the same wire's charges
             return found.copy()
         flat = p.reshape(-1, 3)
-        pot = _panels_potential(flat, self) @ self.charge
+        pot = _panels_potential(flat, self, self.charge)
         z = np.maximum(flat[:, 2], 0.0)
         phi = np.clip(z + pot, 0.0, z)
         inside = flat[:, 2] < self.height_m  # below the roof, and then over the footprint
@@ -975,8 +976,28 @@ def rectangle_potential_integral(u, v, w, half_u, half_v):
     return total
 
 
-def _panels_potential(points, box):
+#: Largest (points × panels) plane :func:`_panels_potential` works in a per-thread buffer kept for the next
+#: call instead of fresh arrays (whose first-touch page faults cost about as much as the arithmetic). [1]
+PANEL_BUFFER_ELEMENTS = 1 << 17
+_panel_scratch = threading.local()
+
+
+def _panel_planes(rows: int, cols: int, fresh: bool):
+    """Three (rows, cols) float planes: fresh arrays, or views of a per-thread buffer when small enough and
+    the caller keeps none of them."""
+    n = rows * cols
+    if fresh or n > PANEL_BUFFER_ELEMENTS:
+        return [np.empty((rows, cols)) for _ in range(3)]
+    buf = getattr(_panel_scratch, "planes", None)
+    if buf is None:
+        buf = _panel_scratch.planes = np.empty(3 * PANEL_BUFFER_ELEMENTS)
+    return [buf[k * n:(k + 1) * n].reshape(rows, cols) for k in range(3)]
+
+
+def _panels_potential(points, box, weights=None):
     """Matrix (M, N): potential at each point of each panel's unit charge density and its ground image. [m]
+
+    With ``weights`` (N,), the matrix times them instead, (M,) [m] (worked out in a reused buffer).
 
     A panel farther than ``BOX_NEAR_HALF_DIAGONALS`` of its half-diagonals is a point charge (area over
     distance); nearer ones are integrated exactly (:func:`rectangle_potential_integral`). The squared plan
@@ -987,9 +1008,10 @@ def _panels_potential(points, box):
     area = 4.0 * box.half_u * box.half_v
     nrm = np.cross(box.axis_u, box.axis_v)
     p = np.asarray(points, dtype=float)
-    plan2 = np.subtract.outer(p[:, 0], box.centre[:, 0])
+    plan2, *parts = _panel_planes(len(p), len(box.centre), weights is None)
+    np.subtract.outer(p[:, 0], box.centre[:, 0], out=plan2)
     plan2 *= plan2
-    parts = [np.subtract.outer(p[:, 1], box.centre[:, 1]), np.empty_like(plan2)]
+    np.subtract.outer(p[:, 1], box.centre[:, 1], out=parts[0])
     parts[0] *= parts[0]
     plan2 += parts[0]  # squared plan distance
     near_m, near_n = np.nonzero(plan2 <= reach2)  # the only pairs that can be near, for a panel or its image
@@ -1009,7 +1031,8 @@ def _panels_potential(points, box):
             part[m, n] = rectangle_potential_integral(
                 *(r[:, 0] * axis[n, 0] + r[:, 1] * axis[n, 1] + r[:, 2] * axis[n, 2]
                   for axis in (box.axis_u, box.axis_v, nrm)), box.half_u[n], box.half_v[n])
-    return np.subtract(parts[0], parts[1], out=parts[0])
+    np.subtract(parts[0], parts[1], out=parts[0])
+    return parts[0] if weights is None else parts[0] @ np.asarray(weights, dtype=float)
 
 
 def _graded(n, top_only=False):
