@@ -72,12 +72,11 @@ References
 
 from __future__ import annotations
 
-import threading
 from typing import NamedTuple
 
 import numpy as np
 
-from aerial.core.arrays import sorted_unique
+from aerial.core.arrays import scratch_planes, sorted_unique
 from aerial.core.constants import EPSILON_0, SPEED_OF_LIGHT
 from aerial.core.errors import ModelInputError
 from aerial.models.capacitance import electrostatic_solution
@@ -976,28 +975,26 @@ def rectangle_potential_integral(u, v, w, half_u, half_v):
     return total
 
 
-#: Largest (points × panels) plane :func:`_panels_potential` works in a per-thread buffer kept for the next
-#: call instead of fresh arrays (whose first-touch page faults cost about as much as the arithmetic). [1]
+#: Largest (points × panels) plane :func:`_panels_potential` takes from
+#: :func:`aerial.core.arrays.scratch_planes` (reused memory, no first-touch page faults) instead of fresh
+#: arrays. [1]
 PANEL_BUFFER_ELEMENTS = 1 << 17
-_panel_scratch = threading.local()
 
 
 def _panel_planes(rows: int, cols: int, fresh: bool):
-    """Three (rows, cols) float planes: fresh arrays, or views of a per-thread buffer when small enough and
-    the caller keeps none of them."""
-    n = rows * cols
-    if fresh or n > PANEL_BUFFER_ELEMENTS:
+    """Three (rows, cols) float planes: fresh arrays, or reused scratch when small enough and the caller keeps
+    none of them."""
+    if fresh or rows * cols > PANEL_BUFFER_ELEMENTS:
         return [np.empty((rows, cols)) for _ in range(3)]
-    buf = getattr(_panel_scratch, "planes", None)
-    if buf is None:
-        buf = _panel_scratch.planes = np.empty(3 * PANEL_BUFFER_ELEMENTS)
-    return [buf[k * n:(k + 1) * n].reshape(rows, cols) for k in range(3)]
+    return list(scratch_planes(rows, cols, 3))
 
 
-def _panels_potential(points, box, weights=None):
+def _panels_potential(points, box, weights=None, keep: bool = True):
     """Matrix (M, N): potential at each point of each panel's unit charge density and its ground image. [m]
 
-    With ``weights`` (N,), the matrix times them instead, (M,) [m] (worked out in a reused buffer).
+    With ``weights`` (N,), the matrix times them instead, (M,) [m]. Worked out in reused scratch
+    (:func:`aerial.core.arrays.scratch_planes`) unless the caller keeps the matrix (``keep`` and no
+    ``weights``).
 
     A panel farther than ``BOX_NEAR_HALF_DIAGONALS`` of its half-diagonals is a point charge (area over
     distance); nearer ones are integrated exactly (:func:`rectangle_potential_integral`). The squared plan
@@ -1008,7 +1005,7 @@ def _panels_potential(points, box, weights=None):
     area = 4.0 * box.half_u * box.half_v
     nrm = np.cross(box.axis_u, box.axis_v)
     p = np.asarray(points, dtype=float)
-    plan2, *parts = _panel_planes(len(p), len(box.centre), weights is None)
+    plan2, *parts = _panel_planes(len(p), len(box.centre), keep and weights is None)
     np.subtract.outer(p[:, 0], box.centre[:, 0], out=plan2)
     plan2 *= plan2
     np.subtract.outer(p[:, 1], box.centre[:, 1], out=parts[0])
@@ -1132,7 +1129,7 @@ def _box_charges(box):
     from a quarter of the matrix for a rectangular building (every panel its own class for an asymmetric one).
     """
     reps, cls = _mirror_classes(box)
-    rows = _panels_potential(box.centre[reps], box)
+    rows = _panels_potential(box.centre[reps], box, keep=False)  # read once, just below
     order = np.argsort(cls, kind="stable")
     folded = np.add.reduceat(rows[:, order], np.searchsorted(cls[order], np.arange(len(reps))), axis=1)
     return np.linalg.solve(folded, -box.centre[reps, 2])[cls]

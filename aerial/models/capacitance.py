@@ -35,6 +35,7 @@ from typing import NamedTuple
 import numpy as np
 from aerial.core.constants import EPSILON_0 as epsilon_0
 
+from aerial.core.arrays import scratch_planes
 from aerial.core.threads import blas_threads
 from aerial.core.errors import ModelInputError
 from aerial.models.segments import FEED_GAP_M, Segments
@@ -345,21 +346,10 @@ def segment_potential_integral(point, seg_start, seg_end, radius):
     return np.log(num / den)
 
 
-#: Largest (rows × knots) block the potential fill works on at once: a few such planes stay in the
-#: processor's cache. [1]
+#: Largest (rows × knots) block the potential fill works on at once, in four planes of
+#: :func:`aerial.core.arrays.scratch_planes`: a few such planes stay in the processor's cache. [1]
 FILL_BLOCK_ELEMENTS = 1 << 16
 _fill_scratch = threading.local()
-
-
-def _scratch_planes(rows: int, cols: int, count: int = 2):
-    """``count`` float planes of shape (rows, cols), views of a per-thread buffer (fresh arrays of this size
-    cost more in first-touch page faults than the arithmetic done on them); rows * cols at most
-    ``FILL_BLOCK_ELEMENTS``, ``count`` at most 4."""
-    buf = getattr(_fill_scratch, "planes", None)
-    if buf is None or buf.size < 4 * FILL_BLOCK_ELEMENTS:
-        buf = _fill_scratch.planes = np.empty(4 * FILL_BLOCK_ELEMENTS)
-    n = rows * cols
-    return tuple(buf[k * n:(k + 1) * n].reshape(rows, cols) for k in range(count))
 
 
 #: Largest system (unknowns + 1, squared) whose matrix is filled in a per-thread buffer kept for the next
@@ -463,7 +453,7 @@ def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = Fa
     knots_per_segment = np.asarray(counts) + 1
     for r0 in range(0, rows, step):
         r1 = min(rows, r0 + step)
-        total, x, root, f = _scratch_planes(r1 - r0, knots, 4)
+        total, x, root, f = scratch_planes(r1 - r0, knots, 4)
         for k, ((along, inv_rho), sign) in enumerate(lines):
             np.subtract(t, np.repeat(along[r0:r1], knots_per_segment, axis=1), out=x)
             x *= np.repeat(inv_rho[r0:r1], knots_per_segment, axis=1)  # (t - z) / rho at every knot
