@@ -434,9 +434,20 @@ def building_charge_factor(height, frequency, body: BuildingBody, case=1):
 
 def _line_constants(body: BuildingBody):
     """The building's roof loading length [m] (:func:`roof_loading_length`) and limit frequency [Hz]
-    (:func:`building_limit_frequency`)."""
-    dh = roof_loading_length(body.height_m, roof_equivalent_radius(body.footprint))
-    return dh, building_limit_frequency(body.height_m, dh)
+    (:func:`building_limit_frequency`), worked out once per footprint and height."""
+    key = (body.footprint.tobytes(), body.footprint.shape, float(body.height_m))
+    found = _LINE_CONSTANTS.get(key)
+    if found is None:
+        dh = roof_loading_length(body.height_m, roof_equivalent_radius(body.footprint))
+        found = (dh, building_limit_frequency(body.height_m, dh))
+        if len(_LINE_CONSTANTS) >= 16:
+            _LINE_CONSTANTS.pop(next(iter(_LINE_CONSTANTS)))
+        _LINE_CONSTANTS[key] = found
+    return found
+
+
+#: Roof loading lengths and limit frequencies already worked out, by footprint and height (the last 16).
+_LINE_CONSTANTS: dict = {}
 
 
 def scale_screened_field(static, height, factor):
@@ -1093,8 +1104,8 @@ def _panel_mirror(box, point, normal):
     image = np.empty(len(c), dtype=np.int64)
     image[order_theirs] = order_mine
     same = (np.max(np.abs(box.centre[image] - c)) <= 1e-10 * size
-            and np.allclose(box.half_u[image], box.half_u, rtol=1e-9, atol=0.0)
-            and np.allclose(box.half_v[image], box.half_v, rtol=1e-9, atol=0.0)
+            and np.all(np.abs(box.half_u[image] - box.half_u) <= 1e-9 * np.abs(box.half_u))  # numpy.allclose's
+            and np.all(np.abs(box.half_v[image] - box.half_v) <= 1e-9 * np.abs(box.half_v))  # test, without its cost
             and np.all(np.abs(np.einsum("kj,kj->k", axis, box.axis_u[image])) > 1.0 - 1e-9))
     return image if same else None
 
