@@ -6,6 +6,7 @@ Pure functions over the site's electrode descriptions; the physics is in
 
 from __future__ import annotations
 
+import functools
 
 import numpy as np
 
@@ -138,15 +139,10 @@ def _one(e, resistivity: float, radius_default: float) -> tuple[float, str, list
             est = el.dwight_two_rods(e.length_m, a, e.spacing_m, resistivity)
         else:
             est = el.multiple_rods(e.count, e.length_m, a, e.spacing_m, resistivity)
-        # enough digits that a rod given in feet and inches reads back exactly under --units us (8 ft, 5/8 in)
-        what = words("{count} rod{s} {length} × {diameter}", count=e.count, s="s" if e.count > 1 else "",
-                     length=metres(e.length_m), diameter=metres(e.diameter_m))
     elif e.kind == "buried_wires":
         a = e.diameter_m / 2.0
         if e.arrangement == "radials" and e.count >= 2:
             est = el.dwight_star(e.count, e.length_m, a, e.depth_m, resistivity)
-            what = words("{count} buried radials {length} at {depth}", count=e.count,
-                         length=metres(e.length_m), depth=metres(e.depth_m))
         else:
             one = el.sunde_buried_wire(e.length_m, a, e.depth_m, resistivity)
             if e.count > 1:
@@ -154,8 +150,6 @@ def _one(e, resistivity: float, radius_default: float) -> tuple[float, str, list
                 est = el.ElectrodeEstimate(par.resistance_ohm, one.warnings + par.warnings, one.method + ", in parallel")
             else:
                 est = one
-            what = words("{count} buried wire{s} {length} at {depth}", count=e.count, s="s" if e.count > 1 else "",
-                         length=metres(e.length_m), depth=metres(e.depth_m))
     elif e.kind == "water_pipe":
         est = el.water_pipe(e.length_m, e.diameter_m / 2.0, e.depth_m, resistivity)
         # Continuity is the site's business: unknown is warned by the site reader, checked (true) needs no
@@ -163,16 +157,32 @@ def _one(e, resistivity: float, radius_default: float) -> tuple[float, str, list
         if e.continuous_metal is not False:
             est = el.ElectrodeEstimate(est.resistance_ohm, tuple(w for w in est.warnings if w != el.WATER_PIPE_CONTINUITY),
                                        est.method)
-        what = "metal water pipe, " + metres(e.length_m) + " buried"
     elif e.kind == "counterpoise":
         est = el.dwight_star(max(e.count, 2), e.length_m, radius_default, max(e.depth_m, 0.05), resistivity)
         est = el.ElectrodeEstimate(est.resistance_ohm, est.warnings + (
             "counterpoise loss estimated as if its wires were buried radials at their height: a rough guide only",),
             "counterpoise as radials (rough)")
-        what = f"counterpoise, {e.count} wire(s) " + metres(e.length_m)
     else:
         raise ValueError(e.kind)
-    return float(np.asarray(est.resistance_ohm)), est.method, list(est.warnings), what
+    return float(np.asarray(est.resistance_ohm)), est.method, list(est.warnings), _description(e)
+
+
+@functools.lru_cache(maxsize=64)  # the soil's bounds run the same electrodes again and again
+def _description(e) -> str:
+    """What one electrode is, in words (the same whatever the soil)."""
+    if e.kind == "rods":
+        # enough digits that a rod given in feet and inches reads back exactly under --units us (8 ft, 5/8 in)
+        return words("{count} rod{s} {length} × {diameter}", count=e.count, s="s" if e.count > 1 else "",
+                     length=metres(e.length_m), diameter=metres(e.diameter_m))
+    if e.kind == "buried_wires":
+        if e.arrangement == "radials" and e.count >= 2:
+            return words("{count} buried radials {length} at {depth}", count=e.count,
+                         length=metres(e.length_m), depth=metres(e.depth_m))
+        return words("{count} buried wire{s} {length} at {depth}", count=e.count, s="s" if e.count > 1 else "",
+                     length=metres(e.length_m), depth=metres(e.depth_m))
+    if e.kind == "water_pipe":
+        return "metal water pipe, " + metres(e.length_m) + " buried"
+    return f"counterpoise, {e.count} wire(s) " + metres(e.length_m)
 
 
 def earth_system(electrodes, soil, counterpoise_wires=(), path: str = "<site>", bounds: bool = True) -> dict:
