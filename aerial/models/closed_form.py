@@ -297,7 +297,8 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
     r_per_m = _segment_r_per_m(segments, f)
     loss = _aerial_loss(segments, shape, model, f, res, r_per_m)
     loss = loss + _earth_lead_loss(segments, shape, f, warnings, r_per_m)
-    warnings.extend(_validity_warnings(shape, f, too_long, past))
+    validity = wavelength_validity(total, f, too_long, past)
+    warnings.extend(_validity_warnings(shape, validity))
     n = f.size
     extra = {} if beside is None else {"building": beside}
     return extra | {
@@ -310,7 +311,7 @@ def closed_form_response(segments: Segments, frequency, *, z0_form: str = sa.DEF
         "reactance_ohm": x,
         "conductor_loss_ohm": np.asarray(loss, float),
         "reliable": ~(too_long | past),
-        "wavelength_validity": wavelength_validity(total, f, too_long, past),
+        "wavelength_validity": validity,
         "model": f"closed form: {kind}, {_METHOD_OF_KIND[kind]} normalised to electrostatic moment solution",
         "shape": shape.as_dict(),
         "warnings": warnings,
@@ -494,10 +495,11 @@ def wavelength_validity(total_length_m: float, frequency, too_long, past) -> dic
             "rough_from_hz": min(known) if known else None, "warnings": warnings}
 
 
-def _validity_warnings(shape, f, too_long, past) -> list:
-    """Plain-English warnings on where the closed form leaves its validity range."""
+def _validity_warnings(shape, validity: dict) -> list:
+    """Plain-English warnings on where the closed form leaves its validity range (``validity``: its
+    :func:`wavelength_validity`)."""
     kind = shape.kind
-    warnings = list(wavelength_validity(shape.total_length_m, f, too_long, past)["warnings"])
+    warnings = list(validity["warnings"])
     if kind == "irregular":
         warnings.append(
             "irregular shape (" + "; ".join(shape.notes[-1:]) + "): the frequency dependence comes from a "

@@ -52,7 +52,7 @@ class Segments:
     """
 
     __slots__ = ("start", "end", "radius", "grounded", "feed", "wire_index", "resistivity", "relative_permeability",
-                 "electrode_ohm")
+                 "electrode_ohm", "_length")
 
     def __init__(self, start, end, radius, grounded, feed, wire_index=None, resistivity=None,
                  relative_permeability=None, electrode_ohm: float = 0.0):
@@ -69,6 +69,7 @@ class Segments:
         fill(self, "relative_permeability", np.broadcast_to(
             np.asarray(1.0 if relative_permeability is None else relative_permeability, float), (n,)).copy())
         fill(self, "electrode_ohm", electrode_ohm)
+        fill(self, "_length", None)
 
     def __setattr__(self, name, value):
         raise AttributeError(f"Segments is read-only: cannot set {name!r} (make a new Segments)")
@@ -84,8 +85,10 @@ class Segments:
 
     @property
     def length(self) -> np.ndarray:
-        """Segment lengths. [m]"""
-        return np.linalg.norm(self.end - self.start, axis=1)
+        """Segment lengths (a new array each time; worked out once, the segments being read-only). [m]"""
+        if self._length is None:
+            object.__setattr__(self, "_length", np.linalg.norm(self.end - self.start, axis=1))
+        return self._length.copy()
 
     @property
     def midpoint(self) -> np.ndarray:
