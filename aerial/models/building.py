@@ -662,7 +662,9 @@ def plan_distance(points_xy, footprint):
     # inside: odd number of edge crossings of a ray towards +x
     ya, yb = ay, b[:, 1:2]
     straddle = (ya > py) != (yb > py)
-    x_cross = ax + (py - ya) / np.where(yb - ya == 0, 1.0, yb - ya) * abx
+    # only where an edge straddles the ray (there |py - ya| <= |yb - ya| and yb != ya): elsewhere the ratio is
+    # not used, and for an edge a denormal apart in y it would overflow
+    x_cross = ax + np.where(straddle, py - ya, 0.0) / np.where(straddle, yb - ya, 1.0) * abx
     inside = np.sum(straddle & (px < x_cross), axis=0) % 2 == 1
     return np.where(inside, 0.0, dist)
 

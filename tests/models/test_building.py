@@ -344,3 +344,13 @@ def test_consistency_box_solution_folded_on_the_footprints_mirrors_is_the_full_s
         assert (n / 4 <= len(reps) < n / 3) if folds else len(reps) == n
         full = np.linalg.solve(_panels_potential(screen.centre, screen), -screen.centre[:, 2])
         assert screen.charge == pytest.approx(full, rel=1e-11, abs=1e-11 * np.max(np.abs(full)))
+
+
+def test_plan_distance_of_an_outline_with_an_edge_a_denormal_apart_raises_no_warning():
+    """A footprint corner at 5e-324 m (found by benchmarks/fuzz_sites.py --seed 61 --only 3420): the ray test's
+    ratio is taken only where an edge straddles the ray, so nothing overflows; the distances are plane geometry
+    (a point 1 m outside the 10 m square's west wall, one inside)."""
+    square = np.array([[0.0, 0.0], [10.0, 5e-324], [10.0, 10.0], [0.0, 10.0]])
+    with np.errstate(over="raise", divide="raise", invalid="raise"):  # numpy's own default ignores underflow
+        d = plan_distance([[-1.0, 5.0], [5.0, 5.0]], square)
+    assert [float(v) for v in d] == [1.0, 0.0]
