@@ -2,7 +2,11 @@
 
 Everything from the aerial to the detector is one linear network, solved by modified nodal
 analysis (node voltages plus the current in every winding) with numpy at each frequency, many
-frequencies (and part values) at once as a batch of small complex systems:
+frequencies (and part values) at once as a batch of small complex systems. Each system is first
+reduced exactly: the voltage of every node a winding reaches is the sum of its sections' voltages,
+so those voltages leave the system with pivots of ±1 (the inductance matrix is never inverted),
+which leaves one to three unknowns, eliminated entry by entry over the whole batch (:func:`_assemble`,
+:func:`_eliminate`):
 
 * the aerial: its EMF V (open-circuit voltage E·h_e) behind its impedance Za(f) = Ra + jXa,
   radiation and every loss included, entered as a Norton source V/Za in parallel with 1/Za at
@@ -24,9 +28,8 @@ frequencies (and part values) at once as a batch of small complex systems:
   value for the signal level: nVT/Is for a weak signal, R_L/2 for a strong one, or the
   self-consistent value for a given station).
 
-The systems have a handful of unknowns (two to seven), which LAPACK never spreads over threads:
-they are solved without setting a BLAS thread limit around the call
-(:func:`aerial.core.threads.blas_threads` would cost more than the solve of a small stack).
+The reduced systems are solved with numpy's elementwise arithmetic, not LAPACK: one call of the
+solver per small system cost far more than the few operations over the whole stack.
 
 Results per volt of aerial EMF: the voltage at the tank top and at the detector, and the
 driving-point impedances at the top and at the detector with the aerial's EMF shorted. The
@@ -270,11 +273,11 @@ def solve_network(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
     >>> round(float(abs(s.top_impedance)) / 1e3, 1)
     111.6
     """
-    a, rhs, (top, det, aer) = _nodal_system(frequency, aerial_impedance, parts, tuning_capacitance,
-                                            detector_conductance, emf, ("emf", "top", "detector"))
-    x = np.linalg.solve(a, rhs)
-    return NetworkSolution(x[..., top, 0], x[..., det, 0], x[..., top, 1], x[..., det, 2], x[..., aer, 0],
-                           x[..., det, 1], x[..., top, 2])
+    system, shape, (top, det, aer) = _nodal_system(frequency, aerial_impedance, parts, tuning_capacitance,
+                                                   detector_conductance, emf, ("emf", "top", "detector"))
+    x = _eliminate(system.matrix, system.rhs)
+    return NetworkSolution(*(_voltage(system, x, node, col, shape)
+                             for node, col in ((top, 0), (det, 0), (top, 1), (det, 2), (aer, 0), (det, 1), (top, 2))))
 
 
 def detector_response(frequency, aerial_impedance, parts: NetworkParts, tuning_capacitance=0.0,
@@ -297,14 +300,15 @@ def detector_response(frequency, aerial_impedance, parts: NetworkParts, tuning_c
     ...                  rtol=1e-12))
     True
     """
-    a, rhs, (_, det, _) = _nodal_system(frequency, aerial_impedance, parts, tuning_capacitance, detector_conductance,
-                                        emf, ("emf",))
-    return np.linalg.solve(a, rhs)[..., det, 0]
+    system, shape, (_, det, _) = _nodal_system(frequency, aerial_impedance, parts, tuning_capacitance,
+                                               detector_conductance, emf, ("emf",))
+    return _voltage(system, _eliminate(system.matrix, system.rhs), det, 0, shape)
 
 
 def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capacitance, detector_conductance, emf,
                   columns):
-    """The nodal matrix of :func:`solve_network`, its right-hand sides, and the top, detector and aerial nodes.
+    """The nodal system of :func:`solve_network` (:func:`_assemble`), the systems' shape, and the top, detector
+    and aerial nodes.
 
     ``columns`` names the right-hand sides, in order: "emf" (the aerial's EMF), "top" and "detector"
     (a unit current into the top, into the detector tap, the EMF shorted)."""
@@ -342,8 +346,8 @@ def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
                   np.array([b - a for a, b in zip([0.0] + taps[:-1], taps)]), msec, parts.self_capacitance,
                   parts.series_capacitance, r_coil if np.shape(r_coil) == shape else np.broadcast_to(r_coil, shape),
                   primary)
-    a, rhs = _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns, lay)
-    return a, rhs, (k - 1, lay.detector_node, aer)
+    system = _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns, lay)
+    return system, shape, (k - 1, lay.detector_node, aer)
 
 
 class _Primary(NamedTuple):
@@ -371,85 +375,183 @@ class _Layout(NamedTuple):
     primary: _Primary | None
 
 
-def _entry(a, i, j):
-    """The index of entry (i, j) of every system in the stack ``a``; i, j node numbers or arrays of them
-    broadcast against the stack's shape."""
-    if np.ndim(i) == 0 and np.ndim(j) == 0:
-        return (Ellipsis, i, j)
-    return (*_stack_index(a.shape[:-2]), i, j)
+class _Reduced(NamedTuple):
+    """A network's nodal system with the voltages of the inductive branches' nodes eliminated (see
+    :func:`_assemble`): n × n entries and n × m right-hand sides (arrays or numbers broadcast against the
+    systems' shape), and per node its voltage's coefficients on the n unknowns."""
+
+    matrix: list
+    rhs: list
+    volts: list
 
 
-@functools.lru_cache(maxsize=64)
-def _stack_index(shape: tuple) -> tuple:
-    """``np.indices(shape, sparse=True)``, worked out once per shape (the entries of a stack are indexed often)."""
-    return tuple(np.indices(shape, sparse=True))
-
-
-def _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns, lay: _Layout):
-    """The nodal matrices (``shape`` of them) and right-hand sides of networks laid out as ``lay``.
+def _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns,
+              lay: _Layout) -> _Reduced:
+    """The nodal systems (``shape`` of them) of networks laid out as ``lay``, reduced to one or three unknowns.
 
     Nodes: the winding's taps from the earthy end (the last one the top), then the aerial's own node for a
-    series capacitor or a separate primary; unknowns after the nodes: each winding section's current, then
-    the primary's."""
+    series capacitor or a separate primary. The modified nodal system [2]_ has, besides the node voltages,
+    one unknown per inductive branch (each winding section, and the primary from the aerial's node to
+    earth): its current, with the branch equation V_hi − V_lo = Σ_j Z_ij I_j, Z = R + jωM. Every node an
+    inductive branch reaches has its voltage given by the currents: a tap's is the sum of the section
+    voltages below it, the primary's node's the primary's voltage (V = W I, W = T Z, T the cumulative sum
+    over the sections). So those voltages are eliminated exactly — the pivots are the incidence's ±1, the
+    inductance matrix is never inverted, so a tight (singular) coupling between sections is as welcome as
+    in the full system — and Kirchhoff's current law at the nodes, summed from the top down to each
+    section (Tᵀ), leaves (1 + Tᵀ Y W) I + Tᵀ Y_F V_F = Tᵀ b, Y the nodes' own admittances (diagonal but
+    for a series capacitor, whose aerial node V_F stays an unknown). Unknowns: each branch's current,
+    then V_F; at most three."""
     w = 2.0 * np.pi * f
+    jw = 1j * w
     za = np.asarray(aerial_impedance, dtype=complex)
-    za = za if za.shape == shape else np.broadcast_to(za, shape)
+    y_aer = 1.0 / za
     k = lay.fractions.shape[-1]
     top, det, aer = k - 1, lay.detector_node, lay.aerial_node
-    n_nodes = k + int(lay.arrangement in ("series capacitor", "separate primary"))
-    n = n_nodes + k + int(lay.primary is not None)
-    a = np.zeros(shape + (n, n), dtype=complex)
-    rhs = np.zeros(shape + (n, len(columns)), dtype=complex)
-    a[_entry(a, aer, aer)] += 1.0 / za
-    if "emf" in columns:
-        rhs[_entry(rhs, aer, columns.index("emf"))] = np.asarray(emf, dtype=complex) / za
-    if "top" in columns:
-        rhs[..., top, columns.index("top")] = 1.0
-    if "detector" in columns:
-        rhs[_entry(rhs, det, columns.index("detector"))] = 1.0
-    a[..., top, top] += 1j * w * (np.asarray(tuning_capacitance, dtype=float) + lay.self_capacitance)
-    a[_entry(a, det, det)] += np.asarray(detector_conductance, dtype=float)
-    if lay.arrangement == "series capacitor":
-        y = 1j * w * lay.series_capacitance
-        a[..., k, k] += y
-        a[..., top, top] += y
-        a[..., k, top] -= y
-        a[..., top, k] -= y
-    # each section's current leaves its upper node and enters the lower one (entries of ±1 that nothing
-    # else touches); each section's voltage is its share of the loss plus jω times the inductance matrix
-    rows, cols, signs = _incidence(k, n_nodes)
-    a[..., rows, cols] = signs
-    block = 0.0 - np.asarray(1j * w)[..., np.newaxis, np.newaxis] * lay.sections
+    series = lay.arrangement == "series capacitor"
+    pr = lay.primary
+    nb = k + int(pr is not None)  # inductive branches
+    n = nb + int(series)
+    # the branches' impedance matrix Z
+    z = [[jw * lay.sections[..., s, t] for t in range(k)] for s in range(k)]
     for s in range(k):
-        block[..., s, s] -= lay.coil_resistance * lay.fractions[..., s]
-    a[..., n_nodes:n_nodes + k, n_nodes:n_nodes + k] = block
-    if lay.primary is not None:
-        pr, row = lay.primary, n_nodes + k
-        a[..., k, row] += 1.0
-        a[..., row, k] += 1.0
-        a[..., row, row] -= pr.resistance + 1j * w * pr.inductance
+        z[s][s] = z[s][s] + lay.coil_resistance * lay.fractions[..., s]
+    if pr is not None:
+        zps = [jw * pr.mutual_inductance * pr.share[..., s] for s in range(k)]
         for s in range(k):
-            a[..., row, n_nodes + s] -= 1j * w * pr.mutual_inductance * pr.share[..., s]
-            a[..., n_nodes + s, row] -= 1j * w * pr.mutual_inductance * pr.share[..., s]
-        if pr.capacitance is not None:
-            a[..., k, k] += 1j * w * pr.capacitance
-    return a, rhs
+            z[s].append(zps[s])
+        z.append(zps + [pr.resistance + jw * pr.inductance])
+    # W: each inductive node's voltage per branch current (taps: the cumulative sum of the sections' rows)
+    wv = [z[0]]
+    for s in range(1, k):
+        wv.append([a + b for a, b in zip(wv[-1], z[s])])
+    if pr is not None:
+        wv.append(z[k])
+    # the nodes' own admittances, and the right-hand sides' injections
+    c_top = np.asarray(tuning_capacitance, dtype=float) + lay.self_capacitance
+    if series:
+        y_cc = jw * lay.series_capacitance
+    y = [0.0] * (nb)
+    y[top] = jw * (c_top + lay.series_capacitance) if series else jw * c_top
+    g = np.asarray(detector_conductance, dtype=float)
+    for node in range(k):
+        y[node] = y[node] + _at(det, node, g)
+    if pr is not None:
+        y[k] = y_aer if pr.capacitance is None else y_aer + jw * pr.capacitance
+    elif not series:
+        for node in range(k):
+            y[node] = y[node] + _at(aer, node, y_aer)
+    inject = {"emf": (aer, np.asarray(emf, dtype=complex) * y_aer), "top": (top, 1.0), "detector": (det, 1.0)}
+    rhs_nodes = [[_at(inject[c][0], node, inject[c][1]) for c in columns] for node in range(nb + int(series))]
+    # rows: Kirchhoff's current law summed over the nodes from the top down to each section (Tᵀ)
+    matrix, rhs = [None] * n, [None] * n
+    acc, acc_b = None, None
+    for r in range(k - 1, -1, -1):
+        terms = [y[r] * wc for wc in wv[r]]
+        acc = terms if acc is None else [a + t for a, t in zip(acc, terms)]
+        acc_b = rhs_nodes[r] if acc_b is None else [a + t for a, t in zip(acc_b, rhs_nodes[r])]
+        matrix[r], rhs[r] = list(acc), list(acc_b)
+    if pr is not None:
+        matrix[k], rhs[k] = [y[k] * wc for wc in wv[k]], list(rhs_nodes[k])
+    for r in range(nb):
+        matrix[r][r] = matrix[r][r] + 1.0
+    volts = [list(row) for row in wv]
+    if series:
+        for r in range(k):
+            matrix[r].append(-y_cc)
+        matrix[k] = [-y_cc * wc for wc in wv[top]] + [y_aer + y_cc]
+        rhs[k] = list(rhs_nodes[k])
+        volts = [row + [0.0] for row in volts] + [[0.0] * k + [1.0]]
+    return _Reduced(matrix, rhs, volts)
 
 
-@functools.lru_cache(maxsize=32)
-def _incidence(k: int, n_nodes: int) -> tuple:
-    """Rows, columns and signs (±1) joining k winding sections to their nodes in the nodal matrix."""
-    rows, cols, signs = [], [], []
-    for s in range(k):
-        row = n_nodes + s
-        rows += [s, row]
-        cols += [row, s]
-        signs += [1.0, 1.0]
-        if s > 0:
-            rows += [s - 1, row]
-            cols += [row, s - 1]
-            signs += [-1.0, -1.0]
-    return np.array(rows), np.array(cols), np.array(signs)
+def _at(node, i, value):
+    """``value`` where ``node`` (a node number, or an array of them) is node ``i``; 0 elsewhere."""
+    if np.ndim(node) == 0:
+        return value if node == i else 0.0
+    return np.where(node == i, value, 0.0)
+
+
+def _eliminate(a, b) -> list:
+    """Solve the systems a x = b entry by entry over a stack: Gaussian elimination with partial pivoting
+    (the larger |Re| + |Im| of each column's candidates, as LAPACK's pivot search [4]_), written out for
+    the few unknowns of :func:`_assemble`. ``a``: n × n entries, ``b``: n × m; each an array or a number,
+    broadcast together. Returns x, n × m.
+
+    Row exchanges are made only where a system needs one (none, or every system alike, costs nothing);
+    each pivot is inverted once (:func:`_inverse`).
+
+    References
+    ----------
+    .. [4] G. H. Golub, C. F. Van Loan, Matrix Computations, 3rd ed., Johns Hopkins, 1996, section 3.4
+       (Gaussian elimination with partial pivoting).
+    """
+    n = len(a)
+    a, b = [list(row) for row in a], [list(row) for row in b]
+    inverse = [None] * n
+    for j in range(n):
+        for i in range(j + 1, n):
+            if np.ndim(a[i][j]) == 0 and a[i][j] == 0:
+                continue
+            swap = _size(a[i][j]) > _size(a[j][j])
+            if swap.all():
+                a[i], a[j], b[i], b[j] = a[j], a[i], b[j], b[i]
+            elif swap.any():
+                for rows in (a, b):
+                    hi, lo = rows[j], rows[i]
+                    rows[j] = [np.where(swap, v, u) for u, v in zip(hi, lo)]
+                    rows[i] = [np.where(swap, u, v) for u, v in zip(hi, lo)]
+        inverse[j] = _inverse(a[j][j])
+        for i in range(j + 1, n):
+            if np.ndim(a[i][j]) == 0 and a[i][j] == 0:
+                continue
+            lead = a[i][j] * inverse[j]
+            a[i][j + 1:] = [u - lead * v for u, v in zip(a[i][j + 1:], a[j][j + 1:])]
+            b[i] = [u - lead * v for u, v in zip(b[i], b[j])]
+    x = [None] * n
+    for i in range(n - 1, -1, -1):
+        row = b[i]
+        for c in range(i + 1, n):
+            row = [u - a[i][c] * v for u, v in zip(row, x[c])]
+        x[i] = [u * inverse[i] for u in row]
+    return x
+
+
+def _size(v):
+    """|Re| + |Im| (LAPACK's measure of a complex pivot)."""
+    v = np.asarray(v)
+    return np.abs(v.real) + np.abs(v.imag)
+
+
+def _inverse(v):
+    """1/v for complex v, as conj(v)/|v|² in real arithmetic (numpy's complex division is several times
+    slower); for the magnitudes of these systems, far from overflow."""
+    v = np.asarray(v, dtype=complex)
+    re, im = v.real, v.imag
+    scale = 1.0 / (re * re + im * im)
+    out = np.empty(v.shape, dtype=complex)
+    out.real = re * scale
+    out.imag = -im * scale
+    return out
+
+
+def _voltage(system: _Reduced, x, node, column: int, shape):
+    """Voltage at ``node`` (a node number, or an array of them over the stack) of right-hand side
+    ``column`` from the solution ``x`` of :func:`_eliminate`, an array of ``shape``."""
+    def at(i):
+        v = 0.0
+        for coef, xc in zip(system.volts[i], x):
+            if np.ndim(coef) == 0 and coef == 0.0:
+                continue
+            v = v + (xc[column] if np.ndim(coef) == 0 and coef == 1.0 else coef * xc[column])
+        return v
+
+    if np.ndim(node) == 0:
+        v = at(int(node))
+    else:
+        v = np.choose(np.broadcast_to(node, shape), [np.broadcast_to(at(i), shape) for i in range(len(system.volts))])
+    if isinstance(v, np.ndarray) and v.shape == shape and v.dtype == complex:
+        return v  # a new array already
+    return np.array(np.broadcast_to(v, shape), dtype=complex)
 
 
 class StackGroup(NamedTuple):
@@ -603,11 +705,12 @@ def _solve_group(group: StackGroup, shared, f, za, tuning_capacitance, detector_
                   column([p.self_capacitance for p in parts]),
                   column([p.series_capacitance for p in parts]) if p0.arrangement == "series capacitor" else None,
                   _per_network([p.coil_resistance for p in parts], f, shared), primary)
-    a, rhs = _assemble(f.shape, f, za, emf, tuning_capacitance, detector_conductance, ("emf", "top", "detector"), lay)
-    x = np.linalg.solve(a, rhs)
+    system = _assemble(f.shape, f, za, emf, tuning_capacitance, detector_conductance, ("emf", "top", "detector"),
+                       lay)
+    x = _eliminate(system.matrix, system.rhs)
     top, det = k - 1, group.detector_node
-    return (x[..., top, 0], x[_entry(x, det, 0)], x[..., top, 1], x[_entry(x, det, 2)], x[_entry(x, aer, 0)],
-            x[_entry(x, det, 1)], x[..., top, 2])
+    return tuple(_voltage(system, x, node, col, f.shape)
+                 for node, col in ((top, 0), (det, 0), (top, 1), (det, 2), (aer, 0), (det, 1), (top, 2)))
 
 
 def retuned_detector_voltage(bare: NetworkSolution, frequency, tuning_capacitance, detector_conductance):
@@ -699,8 +802,9 @@ def tuning_capacitance_for(frequency, aerial_impedance, parts: NetworkParts, det
     105.54
     """
     # the driving-point impedance at the top alone: one right-hand side, the same figures as solve_network's
-    a, rhs, (top, _, _) = _nodal_system(frequency, aerial_impedance, parts, 0.0, detector_conductance, 1.0, ("top",))
-    z_top = np.linalg.solve(a, rhs)[..., top, 0]
+    system, shape, (top, _, _) = _nodal_system(frequency, aerial_impedance, parts, 0.0, detector_conductance, 1.0,
+                                               ("top",))
+    z_top = _voltage(system, _eliminate(system.matrix, system.rhs), top, 0, shape)
     w = 2.0 * np.pi * np.asarray(frequency, dtype=float)
     return -np.imag(1.0 / z_top) / w
 

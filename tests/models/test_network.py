@@ -276,3 +276,71 @@ def test_consistency_check_many_edges_land_on_a_crossing_where_the_response_cros
     below, above = response(edges * (1.0 - 1e-9)), response(edges * (1.0 + 1e-9))
     assert np.all((below >= ref) != (above >= ref))  # a crossing between them, at every edge
     assert np.all((r.low_edge < f0 * 0.995) & (r.high_edge > f0 * 1.005))  # near the curve's own edges
+
+
+def _full_nodal_solution(f, za, parts, c_tune, g_det):
+    """The unreduced modified nodal system (Ho, Ruehli and Brennan, 1975, from memory), written out plainly
+    here, solved by LAPACK (numpy.linalg.solve) one frequency at a time: the top voltage and detector voltage
+    per volt of EMF, and the driving-point impedances at the top and at the detector."""
+    taps = sorted({1.0, parts.detector_tap} | ({parts.aerial_tap} if parts.arrangement == "coil tap" else set()))
+    k = len(taps)
+    block = parts.block or net.block_inductance_tight(parts.coil_inductance)
+    m = net.section_inductances(taps, block)
+    frac = np.diff([0.0] + taps)
+    extra = parts.arrangement in ("series capacitor", "separate primary")
+    nodes = k + extra
+    n = nodes + k + (parts.arrangement == "separate primary")
+    top, det = k - 1, taps.index(parts.detector_tap)
+    aer = {"direct": top, "coil tap": taps.index(parts.aerial_tap or 1.0)}.get(parts.arrangement, k)
+    out = []
+    for fi, zi in zip(f, za):
+        w = TWO_PI * fi
+        r = parts.coil_resistance(fi) if callable(parts.coil_resistance) else parts.coil_resistance
+        a = np.zeros((n, n), complex)
+        a[aer, aer] += 1 / zi
+        a[top, top] += 1j * w * (c_tune + parts.self_capacitance)
+        a[det, det] += g_det
+        if parts.arrangement == "series capacitor":
+            y = 1j * w * parts.series_capacitance
+            a[np.ix_([top, k], [top, k])] += [[y, -y], [-y, y]]
+        for s in range(k):  # section s from tap s-1 (earth for s = 0) up to tap s
+            a[s, nodes + s] = a[nodes + s, s] = 1.0
+            if s:
+                a[s - 1, nodes + s] = a[nodes + s, s - 1] = -1.0
+            a[nodes + s, nodes:nodes + k] -= 1j * w * m[s]
+            a[nodes + s, nodes + s] -= r * frac[s]
+        if parts.arrangement == "separate primary":
+            lp, row = parts.primary_inductance, n - 1
+            mut = parts.coupling_coefficient * np.sqrt(lp * parts.coil_inductance) * m.sum(axis=1) / m.sum()
+            a[k, row] = a[row, k] = 1.0
+            a[row, row] -= parts.primary_resistance + 1j * w * lp
+            a[row, nodes:nodes + k] -= 1j * w * mut
+            a[nodes:nodes + k, row] -= 1j * w * mut
+            if parts.primary_capacitance is not None:
+                a[k, k] += 1j * w * parts.primary_capacitance
+        b = np.zeros((n, 3), complex)
+        b[aer, 0], b[top, 1], b[det, 2] = 1 / zi, 1.0, 1.0
+        x = np.linalg.solve(a, b)
+        out.append((x[top, 0], x[det, 0], x[top, 1], x[det, 2]))
+    return np.array(out).T
+
+
+@pytest.mark.parametrize("parts", [
+    net.NetworkParts("direct", 240e-6, 6.0, detector_tap=0.37, self_capacitance=4e-12),
+    net.NetworkParts("coil tap", 240e-6, 6.0, detector_tap=0.5, aerial_tap=0.05),  # tight: a singular M
+    net.NetworkParts("coil tap", 240e-6, 6.0, detector_tap=0.3, aerial_tap=0.6, block=lambda x: 240e-6 * x ** 1.6),
+    net.NetworkParts("series capacitor", 240e-6, 6.0, detector_tap=0.5, series_capacitance=47e-12),
+    net.NetworkParts("separate primary", 240e-6, 6.0, detector_tap=0.7, primary_inductance=240e-6,
+                     coupling_coefficient=0.95, primary_resistance=1.0, primary_capacitance=100e-12),
+])
+def test_consistency_check_the_reduced_solve_is_lapacks_solution_of_the_full_nodal_system(parts):
+    """The solver eliminates the winding's node voltages exactly before solving; its figures must be
+    LAPACK's solution of the whole modified nodal system within 1e-12 (consistency check on invented parts,
+    the reference being numpy.linalg.solve on the system written out above)."""
+    f = np.geomspace(150e3, 1.8e6, 40)
+    for za in (40.0 - 1j / (TWO_PI * f * 150e-12), 5.0 - 1j / (TWO_PI * f * 2000e-12)):
+        for c, g in ((0.0, 0.0), (120e-12, 3e-4), (30e-12, 0.05)):
+            s = net.solve_network(f, za, parts, c, g)
+            want = _full_nodal_solution(f, za, parts, c, g)
+            for got, ref in zip((s.top_voltage, s.detector_voltage, s.top_impedance, s.detector_impedance), want):
+                assert np.allclose(got, ref, rtol=1e-12, atol=0)
