@@ -276,8 +276,8 @@ def solve_network(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
     system, shape, (top, det, aer) = _nodal_system(frequency, aerial_impedance, parts, tuning_capacitance,
                                                    detector_conductance, emf, ("emf", "top", "detector"))
     x = _eliminate(system.matrix, system.rhs)
-    return NetworkSolution(*(_voltage(system, x, node, col, shape)
-                             for node, col in ((top, 0), (det, 0), (top, 1), (det, 2), (aer, 0), (det, 1), (top, 2))))
+    return NetworkSolution(*_voltages(system, x, ((top, 0), (det, 0), (top, 1), (det, 2), (aer, 0), (det, 1),
+                                                 (top, 2)), shape))
 
 
 def detector_response(frequency, aerial_impedance, parts: NetworkParts, tuning_capacitance=0.0,
@@ -302,7 +302,7 @@ def detector_response(frequency, aerial_impedance, parts: NetworkParts, tuning_c
     """
     system, shape, (_, det, _) = _nodal_system(frequency, aerial_impedance, parts, tuning_capacitance,
                                                detector_conductance, emf, ("emf",))
-    return _voltage(system, _eliminate(system.matrix, system.rhs), det, 0, shape)
+    return _voltages(system, _eliminate(system.matrix, system.rhs), ((det, 0),), shape)[0]
 
 
 def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capacitance, detector_conductance, emf,
@@ -378,7 +378,7 @@ class _Layout(NamedTuple):
 class _Reduced(NamedTuple):
     """A network's nodal system with the voltages of the inductive branches' nodes eliminated (see
     :func:`_assemble`): n × n entries and n × m right-hand sides (arrays or numbers broadcast against the
-    systems' shape), and per node its voltage's coefficients on the n unknowns."""
+    systems' shape), and per node its voltage's terms: (unknown, coefficient, None for 1)."""
 
     matrix: list
     rhs: list
@@ -434,7 +434,8 @@ def _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_cond
     y[top] = jw * (c_top + lay.series_capacitance) if series else jw * c_top
     g = np.asarray(detector_conductance, dtype=float)
     for node in range(k):
-        y[node] = y[node] + _at(det, node, g)
+        if not (g.ndim == 0 and g == 0.0):
+            y[node] = y[node] + _at(det, node, g)
     if pr is not None:
         y[k] = y_aer if pr.capacitance is None else y_aer + jw * pr.capacitance
     elif not series:
@@ -446,27 +447,34 @@ def _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_cond
     matrix, rhs = [None] * n, [None] * n
     acc, acc_b = None, None
     for r in range(k - 1, -1, -1):
-        terms = [y[r] * wc for wc in wv[r]]
-        acc = terms if acc is None else [a + t for a, t in zip(acc, terms)]
+        if not _is_zero(y[r]):  # a node with nothing of its own (a tap with no detector on it) adds nothing
+            terms = [y[r] * wc for wc in wv[r]]
+            acc = terms if acc is None else [a + t for a, t in zip(acc, terms)]
+        elif acc is None:
+            acc = [0.0] * nb
         acc_b = rhs_nodes[r] if acc_b is None else [a + t for a, t in zip(acc_b, rhs_nodes[r])]
         matrix[r], rhs[r] = list(acc), list(acc_b)
     if pr is not None:
         matrix[k], rhs[k] = [y[k] * wc for wc in wv[k]], list(rhs_nodes[k])
     for r in range(nb):
         matrix[r][r] = matrix[r][r] + 1.0
-    volts = [list(row) for row in wv]
+    volts = [list(enumerate(row)) for row in wv]
     if series:
         for r in range(k):
             matrix[r].append(-y_cc)
         matrix[k] = [-y_cc * wc for wc in wv[top]] + [y_aer + y_cc]
         rhs[k] = list(rhs_nodes[k])
-        volts = [row + [0.0] for row in volts] + [[0.0] * k + [1.0]]
+        volts.append([(k, None)])
     return _Reduced(matrix, rhs, volts)
+
+
+def _is_zero(v) -> bool:
+    return isinstance(v, float) and v == 0.0
 
 
 def _at(node, i, value):
     """``value`` where ``node`` (a node number, or an array of them) is node ``i``; 0 elsewhere."""
-    if np.ndim(node) == 0:
+    if not isinstance(node, np.ndarray):
         return value if node == i else 0.0
     return np.where(node == i, value, 0.0)
 
@@ -478,7 +486,7 @@ def _eliminate(a, b) -> list:
     broadcast together. Returns x, n × m.
 
     Row exchanges are made only where a system needs one (none, or every system alike, costs nothing);
-    each pivot is inverted once (:func:`_inverse`).
+    each pivot is inverted once.
 
     References
     ----------
@@ -490,7 +498,7 @@ def _eliminate(a, b) -> list:
     inverse = [None] * n
     for j in range(n):
         for i in range(j + 1, n):
-            if np.ndim(a[i][j]) == 0 and a[i][j] == 0:
+            if _is_zero(a[i][j]):
                 continue
             swap = _size(a[i][j]) > _size(a[j][j])
             if swap.all():
@@ -500,9 +508,9 @@ def _eliminate(a, b) -> list:
                     hi, lo = rows[j], rows[i]
                     rows[j] = [np.where(swap, v, u) for u, v in zip(hi, lo)]
                     rows[i] = [np.where(swap, u, v) for u, v in zip(hi, lo)]
-        inverse[j] = _inverse(a[j][j])
+        inverse[j] = 1.0 / a[j][j]
         for i in range(j + 1, n):
-            if np.ndim(a[i][j]) == 0 and a[i][j] == 0:
+            if _is_zero(a[i][j]):
                 continue
             lead = a[i][j] * inverse[j]
             a[i][j + 1:] = [u - lead * v for u, v in zip(a[i][j + 1:], a[j][j + 1:])]
@@ -522,36 +530,32 @@ def _size(v):
     return np.abs(v.real) + np.abs(v.imag)
 
 
-def _inverse(v):
-    """1/v for complex v, as conj(v)/|v|² in real arithmetic (numpy's complex division is several times
-    slower); for the magnitudes of these systems, far from overflow."""
-    v = np.asarray(v, dtype=complex)
-    re, im = v.real, v.imag
-    scale = 1.0 / (re * re + im * im)
-    out = np.empty(v.shape, dtype=complex)
-    out.real = re * scale
-    out.imag = -im * scale
+def _voltages(system: _Reduced, x, wanted, shape) -> list:
+    """Voltages from the solution ``x`` of :func:`_eliminate`: for each (node, right-hand side) of ``wanted``
+    (the node a number, or an array of them over the stack), an array of ``shape``; each node's voltage
+    worked out once per right-hand side."""
+    seen: dict = {}
+
+    def at(i, column):
+        if (i, column) not in seen:
+            v = None
+            for c, coef in system.volts[i]:
+                term = x[c][column] if coef is None else coef * x[c][column]
+                v = term if v is None else v + term
+            seen[i, column] = v
+        return seen[i, column]
+
+    out = []
+    for node, column in wanted:
+        if np.ndim(node) == 0:
+            v = at(int(node), column)
+        else:
+            v = np.choose(node, [at(i, column) for i in range(len(system.volts))])
+        if not (isinstance(v, np.ndarray) and v.shape == shape and v.dtype == complex and v.base is None
+                and not any(v is o for o in out)):
+            v = np.array(np.broadcast_to(v, shape), dtype=complex)
+        out.append(v)
     return out
-
-
-def _voltage(system: _Reduced, x, node, column: int, shape):
-    """Voltage at ``node`` (a node number, or an array of them over the stack) of right-hand side
-    ``column`` from the solution ``x`` of :func:`_eliminate`, an array of ``shape``."""
-    def at(i):
-        v = 0.0
-        for coef, xc in zip(system.volts[i], x):
-            if np.ndim(coef) == 0 and coef == 0.0:
-                continue
-            v = v + (xc[column] if np.ndim(coef) == 0 and coef == 1.0 else coef * xc[column])
-        return v
-
-    if np.ndim(node) == 0:
-        v = at(int(node))
-    else:
-        v = np.choose(np.broadcast_to(node, shape), [np.broadcast_to(at(i), shape) for i in range(len(system.volts))])
-    if isinstance(v, np.ndarray) and v.shape == shape and v.dtype == complex:
-        return v  # a new array already
-    return np.array(np.broadcast_to(v, shape), dtype=complex)
 
 
 class StackGroup(NamedTuple):
@@ -709,8 +713,7 @@ def _solve_group(group: StackGroup, shared, f, za, tuning_capacitance, detector_
                        lay)
     x = _eliminate(system.matrix, system.rhs)
     top, det = k - 1, group.detector_node
-    return tuple(_voltage(system, x, node, col, f.shape)
-                 for node, col in ((top, 0), (det, 0), (top, 1), (det, 2), (aer, 0), (det, 1), (top, 2)))
+    return tuple(_voltages(system, x, ((top, 0), (det, 0), (top, 1), (det, 2), (aer, 0), (det, 1), (top, 2)), f.shape))
 
 
 def retuned_detector_voltage(bare: NetworkSolution, frequency, tuning_capacitance, detector_conductance):
@@ -804,7 +807,7 @@ def tuning_capacitance_for(frequency, aerial_impedance, parts: NetworkParts, det
     # the driving-point impedance at the top alone: one right-hand side, the same figures as solve_network's
     system, shape, (top, _, _) = _nodal_system(frequency, aerial_impedance, parts, 0.0, detector_conductance, 1.0,
                                                ("top",))
-    z_top = _voltage(system, _eliminate(system.matrix, system.rhs), top, 0, shape)
+    z_top = _voltages(system, _eliminate(system.matrix, system.rhs), ((top, 0),), shape)[0]
     w = 2.0 * np.pi * np.asarray(frequency, dtype=float)
     return -np.imag(1.0 / z_top) / w
 
