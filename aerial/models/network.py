@@ -494,6 +494,8 @@ def _eliminate(a, b) -> list:
        (Gaussian elimination with partial pivoting).
     """
     n = len(a)
+    if n == 2:
+        return _cramer(a, b)
     a, b = [list(row) for row in a], [list(row) for row in b]
     inverse = [None] * n
     for j in range(n):
@@ -522,6 +524,28 @@ def _eliminate(a, b) -> list:
             row = [u - a[i][c] * v for u, v in zip(row, x[c])]
         x[i] = [u * inverse[i] for u in row]
     return x
+
+
+def _cramer(a, b) -> list:
+    """Two unknowns by Cramer's rule, forward stable for a 2 × 2 system [5]_ (as accurate as elimination
+    with pivoting, in a third of the operations); arguments and result as :func:`_eliminate`.
+
+    References
+    ----------
+    .. [5] N. J. Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., SIAM, 2002,
+       section 1.10.1 (from memory).
+    """
+    (a00, a01), (a10, a11) = a
+    inverse = 1.0 / (a00 * a11 - a01 * a10)
+
+    def combine(p, u, q, v):  # (p·u − q·v)/det, a right-hand side's zeros skipped
+        if _is_zero(v):
+            return (p * u) * inverse if not _is_zero(u) else 0.0 * inverse
+        if _is_zero(u):
+            return (-(q * v)) * inverse
+        return (p * u - q * v) * inverse
+
+    return [[combine(a11, u, a01, v) for u, v in zip(*b)], [combine(a00, v, a10, u) for u, v in zip(*b)]]
 
 
 def _size(v):
