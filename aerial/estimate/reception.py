@@ -921,12 +921,25 @@ def _designed_coil(band, aerial, parts, covering=None) -> _Coil:
 
 
 def _covering_coils(band, aerial, parts, self_capacitance=0.0):
-    """The range (L_lo, L_hi) [H] of coils that cover ``band`` with the parts' capacitor and coupling; None if none."""
+    """The range (L_lo, L_hi) [H] of coils that cover ``band`` with the parts' capacitor and coupling; None if none.
+
+    Remembered per band, aerial (its arrays and calibration), capacitor, coil Q and coupling: a report
+    designing the coupling with the coil asks again for many of the searches the station design asks for."""
     f_lo, f_hi = band
     cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
-    q = _constant_q(DEFAULT_COIL_Q if parts.coil_unloaded_q is None else parts.coil_unloaded_q)
+    q_value = DEFAULT_COIL_Q if parts.coil_unloaded_q is None else parts.coil_unloaded_q
     cfg = _config(parts, self_capacitance=float(self_capacitance))
-    return _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax), 1e-6, 1e-2)
+    key = (float(f_lo), float(f_hi), aerial.f.tobytes(), aerial.r.tobytes(), aerial.x.tobytes(), aerial.cal_capacitance,
+           aerial.cal_resistance, cmin, cmax, float(q_value), tuple(sorted(cfg.items())))
+    if key not in _COVERING_SEEN:
+        if len(_COVERING_SEEN) > 256:
+            _COVERING_SEEN.clear()
+        q = _constant_q(q_value)
+        _COVERING_SEEN[key] = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax), 1e-6, 1e-2)
+    return _COVERING_SEEN[key]
+
+
+_COVERING_SEEN: dict = {}
 
 
 def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0, covering=None) -> float:
@@ -988,7 +1001,13 @@ def _weakest_to_detector(band, aerial: _Aerial, parts: TuningParts):
     if not _roomy(covering):
         return None
     coil = _designed_coil(band, aerial, parts, covering)
-    ratio = _table_arrays(_table_frequencies(aerial, *band), aerial, coil, parts)["power_transfer_ratio"]
+    # the table's column alone: the network tuned at each frequency with the detector at its strong-signal
+    # loading, no bandwidth or rejection searched (each frequency's figure is the table's own)
+    table_f = _table_frequencies(aerial, *band)
+    g_strong = _strong_signal_conductance(parts)
+    strong = tn_mod.tuned_figures(table_f, _za(aerial), _net_parts(coil, parts), np.full(table_f.size, g_strong),
+                                  bandwidth=False)
+    ratio = strong.detector_per_volt**2 * g_strong * 4.0 * aerial.impedance(table_f)[0]
     return float(np.min(np.nan_to_num(ratio, nan=0.0)))
 
 
