@@ -387,7 +387,7 @@ class _Reduced(NamedTuple):
 
 def _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns,
               lay: _Layout) -> _Reduced:
-    """The nodal systems (``shape`` of them) of networks laid out as ``lay``, reduced to one or three unknowns.
+    """The nodal systems (``shape`` of them) of networks laid out as ``lay``, reduced to one to three unknowns.
 
     Nodes: the winding's taps from the earthy end (the last one the top), then the aerial's own node for a
     series capacitor or a separate primary. The modified nodal system [2]_ has, besides the node voltages,
@@ -430,7 +430,7 @@ def _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_cond
     c_top = np.asarray(tuning_capacitance, dtype=float) + lay.self_capacitance
     if series:
         y_cc = jw * lay.series_capacitance
-    y = [0.0] * (nb)
+    y = [0.0] * nb
     y[top] = jw * (c_top + lay.series_capacitance) if series else jw * c_top
     g = np.asarray(detector_conductance, dtype=float)
     for node in range(k):
