@@ -510,7 +510,7 @@ def _eliminate(a, b) -> list:
                     hi, lo = rows[j], rows[i]
                     rows[j] = [np.where(swap, v, u) for u, v in zip(hi, lo)]
                     rows[i] = [np.where(swap, u, v) for u, v in zip(hi, lo)]
-        inverse[j] = 1.0 / a[j][j]
+        inverse[j] = _pivot_inverse(a[j][j])
         for i in range(j + 1, n):
             if _is_zero(a[i][j]):
                 continue
@@ -536,7 +536,7 @@ def _cramer(a, b) -> list:
        section 1.10.1 (from memory).
     """
     (a00, a01), (a10, a11) = a
-    inverse = 1.0 / (a00 * a11 - a01 * a10)
+    inverse = _pivot_inverse(a00 * a11 - a01 * a10)
 
     def combine(p, u, q, v):  # (p·u − q·v)/det, a right-hand side's zeros skipped
         if _is_zero(v):
@@ -546,6 +546,14 @@ def _cramer(a, b) -> list:
         return (p * u - q * v) * inverse
 
     return [[combine(a11, u, a01, v) for u, v in zip(*b)], [combine(a00, v, a10, u) for u, v in zip(*b)]]
+
+
+def _pivot_inverse(v):
+    """1 / ``v`` for a pivot (or a 2 × 2 determinant); ``numpy.linalg.LinAlgError`` where one is exactly zero, as
+    LAPACK's solve raises for an exactly singular system (rather than an infinity and a warning)."""
+    if not np.all(v):
+        raise np.linalg.LinAlgError("singular receiving-network system")
+    return 1.0 / v
 
 
 def _size(v):

@@ -344,3 +344,18 @@ def test_consistency_check_the_reduced_solve_is_lapacks_solution_of_the_full_nod
             want = _full_nodal_solution(f, za, parts, c, g)
             for got, ref in zip((s.top_voltage, s.detector_voltage, s.top_impedance, s.detector_impedance), want):
                 assert np.allclose(got, ref, rtol=1e-12, atol=0)
+
+
+def test_an_exactly_singular_reduced_system_raises_as_lapack_does():
+    """A zero pivot (or a zero 2 x 2 determinant) raises numpy.linalg.LinAlgError, as numpy.linalg.solve does
+    for an exactly singular system, instead of an infinity and a printed warning; a regular 3 x 3 system gives
+    numpy.linalg.solve's answer."""
+    from aerial.models.network import _eliminate
+
+    with pytest.raises(np.linalg.LinAlgError):
+        _eliminate([[1.0, 2.0], [2.0, 4.0]], [[1.0], [1.0]])
+    with pytest.raises(np.linalg.LinAlgError):
+        _eliminate([[1.0, 2.0, 3.0], [2.0, 4.0, 6.0], [0.0, 1.0, 1.0]], [[1.0], [1.0], [1.0]])
+    a = [[1.0, 2.0, 0.0], [2.0, 1.0, 1.0], [0.0, 1.0, 3.0]]
+    x = [float(np.real(v[0])) for v in _eliminate(a, [[1.0], [1.0], [1.0]])]
+    assert np.allclose(x, np.linalg.solve(a, [1.0, 1.0, 1.0]), rtol=1e-15, atol=0)
