@@ -560,8 +560,11 @@ def _unreadable(path: Path):
         finally:
             os.chmod(path, stat.S_IRUSR | stat.S_IWUSR)
         return
+    import builtins
+
     original = Path.read_bytes
     original_open = Path.open
+    original_builtin_open = builtins.open
     target = str(path)
 
     def read_bytes(self):
@@ -574,13 +577,20 @@ def _unreadable(path: Path):
             raise PermissionError(13, "Permission denied", target)
         return original_open(self, *a, **k)
 
+    def builtin_open(file, *a, **k):  # the site reader opens the file by name
+        if isinstance(file, (str, os.PathLike)) and os.fspath(file) == target:
+            raise PermissionError(13, "Permission denied", target)
+        return original_builtin_open(file, *a, **k)
+
     Path.read_bytes = read_bytes
     Path.open = open_
+    builtins.open = builtin_open
     try:
         yield
     finally:
         Path.read_bytes = original
         Path.open = original_open
+        builtins.open = original_builtin_open
 
 
 def materialise(case: Case, folder: Path) -> Path:

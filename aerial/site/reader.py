@@ -15,11 +15,11 @@ Frame: metres, x east, y north, z up; z = 0 is the ground surface.
 from __future__ import annotations
 
 import math
+import os
 import re
 import tomllib
 from dataclasses import dataclass, field
 from typing import NamedTuple
-from pathlib import Path
 
 import numpy as np
 
@@ -348,17 +348,18 @@ def load_site(path) -> Site:
     shown = str(path)
     if not shown.strip():
         raise SiteError('""', "", "", "the site file name is empty; expected the path of a site file (.toml)")
-    p = Path(path)
+    p = _path_form(os.fspath(path))  # os, not pathlib: a report never needs pathlib's own imports
     _check_path(p, shown)
-    if p.is_dir():
+    if os.path.isdir(p):
         raise SiteError(shown, "", "", "is a folder; expected a site file (.toml)")
-    if not p.is_file():  # a named pipe or a device would block or never end
+    if not os.path.isfile(p):  # a named pipe or a device would block or never end
         raise SiteError(shown, "", "", "is not a regular file; expected a site file (.toml)")
     try:
-        size = p.stat().st_size
+        size = os.stat(p).st_size
         if size > MAX_FILE_BYTES:
             raise SiteError(shown, "", "", f"is {size / 1e6:.1f} MB; a site file is at most {MAX_FILE_BYTES / 1e6:.0f} MB")
-        data = p.read_bytes()
+        with open(p, "rb") as f:
+            data = f.read()
     except PermissionError:
         raise SiteError(shown, "", "", "cannot be read (permission denied)") from None
     except OSError as err:
@@ -372,10 +373,9 @@ def load_site(path) -> Site:
     return load_site_text(text, shown)
 
 
-def _check_path(p: Path, shown: str) -> None:
+def _check_path(p: str, shown: str) -> None:
     """Refuse a path that cannot be opened, saying why (a loop of links is not a missing file)."""
     import errno
-    import os
 
     try:
         os.stat(p)
@@ -387,11 +387,42 @@ def _check_path(p: Path, shown: str) -> None:
             errno.ENOTDIR: "a part of the path is a file, not a folder",
             errno.EACCES: "cannot be read (permission denied)",
         }.get(err.errno, f"cannot be read ({err.strerror or err})")
-        if err.errno == errno.ENOENT and p.is_symlink():
+        if err.errno == errno.ENOENT and os.path.islink(p):
             why = "a symbolic link to a file that does not exist"
         raise SiteError(shown, "", "", why) from None
     except ValueError:  # a NUL character in the name
         raise SiteError(shown, "", "", "not a usable file name") from None
+
+
+def _path_parts(path: str) -> tuple[str, list]:
+    """The root ("", "/" or "//") and the names of a POSIX path, as ``pathlib`` splits it.
+
+    Repeated slashes, a trailing slash and "." parts count for nothing; ".." is kept.
+    """
+    root = "//" if path.startswith("//") and not path.startswith("///") else "/" if path.startswith("/") else ""
+    return root, [x for x in path.split("/") if x and x != "."]
+
+
+def _path_form(path: str) -> str:
+    """``path`` as ``str(pathlib.Path(path))`` writes it: the name the file is opened by."""
+    if os.name != "posix":  # pragma: no cover - the other flavour's rules are pathlib's to know
+        from pathlib import Path
+
+        return str(Path(path))
+    root, names = _path_parts(path)
+    return root + "/".join(names) or "."
+
+
+def _stem(path: str) -> str:
+    """The file name without its last suffix, as ``pathlib.Path(path).stem`` gives it ("a/b.c.toml": "b.c")."""
+    if os.name != "posix":  # pragma: no cover
+        from pathlib import Path
+
+        return Path(path).stem
+    names = _path_parts(path)[1]
+    name = names[-1] if names else ""
+    i = name.rfind(".")
+    return name[:i] if 0 < i < len(name) - 1 else name
 
 
 def _long_number_line(text: str):
@@ -444,7 +475,7 @@ def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
     r.check_keys(site_t, "site", {"name", "notes", "region", "noise", "bands", "frequency_step", "field_strength", "soil",
                                   "latitude", "longitude", "season", "atmospheric_noise", "sunspots",
                                   "listening_time", "date", "utc_offset", "distance_to_sea", "sea_bearing"})
-    name = r.string(site_t, "site", "name", default=Path(path).stem if not path.startswith("<") else "example site")
+    name = r.string(site_t, "site", "name", default=_stem(path) if not path.startswith("<") else "example site")
     region = r.string(site_t, "site", "region")
     noise = r.string(site_t, "site", "noise", default="residential", choices=NOISE_CATEGORIES, synonyms=NOISE_WORDS)
     bands = _bands(r, site_t)
