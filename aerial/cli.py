@@ -80,6 +80,38 @@ def one_line(text) -> str:
     return "".join(ch if ch.isprintable() else repr(ch)[1:-1] for ch in str(text))
 
 
+def _terminal_columns() -> int:
+    """The terminal's width as ``shutil.get_terminal_size().columns`` gives it (COLUMNS first, else 80).
+
+    argparse asks shutil for it each time it checks an option; shutil loads the compression
+    libraries, which nothing else in a run needs.
+    """
+    try:
+        columns = int(os.environ["COLUMNS"])
+    except (KeyError, ValueError):
+        columns = 0
+    try:
+        lines = int(os.environ["LINES"])
+    except (KeyError, ValueError):
+        lines = 0
+    if columns <= 0 or lines <= 0:
+        try:
+            size = os.get_terminal_size(sys.__stdout__.fileno())
+        except (AttributeError, ValueError, OSError):
+            size = os.terminal_size((80, 24))
+        if columns <= 0:
+            columns = size.columns or 80
+    return columns
+
+
+class _HelpFormatter(argparse.HelpFormatter):
+    """argparse's help layout, its width found without loading shutil (:func:`_terminal_columns`)."""
+
+    def __init__(self, prog, indent_increment=2, max_help_position=24, width=None):
+        super().__init__(prog, indent_increment, max_help_position,
+                         _terminal_columns() - 2 if width is None else width)
+
+
 class _Parser(argparse.ArgumentParser):
     """A parser that takes an option only as spelt in full and says a mistake in one line.
 
@@ -89,6 +121,7 @@ class _Parser(argparse.ArgumentParser):
 
     def __init__(self, *args, options=None, **kwargs):
         kwargs.setdefault("allow_abbrev", False)  # "--unit us" is a slip to point out, not "--units us"
+        kwargs.setdefault("formatter_class", _HelpFormatter)
         super().__init__(*args, **kwargs)
         self.words: list[str] = []
         self.options_to_add = options
