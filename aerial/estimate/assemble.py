@@ -428,12 +428,16 @@ def _headline(site, wires, frequency, earth_ohm, *, like=None, method="closed-fo
     }
 
 
-def _nominal_shape(site):
-    """The closed forms' classification of the site's own wires (None when it cannot be had)."""
+def _nominal_shape(site, geometry=None):
+    """The closed forms' classification of the site's own wires (None when it cannot be had).
+
+    ``geometry``: the site's own wires already resolved (:func:`aerial.geometry.resolve.resolve`; its
+    segments do not depend on the electrode resistance it was given).
+    """
     from aerial.models.shapes import classify
 
     try:
-        return classify(resolve(site).segments)
+        return classify((resolve(site) if geometry is None else geometry).segments)
     except ModelInputError:
         return None
 
@@ -497,7 +501,7 @@ def report_centre_frequency(site, freqs=None) -> float:
 
 def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", nominal: dict | None = None,
                 ground: str = "perfect", full_wave_ranges: bool = True, progress=None,
-                centre_hz: float | None = None, bounds: dict | None = None) -> dict:
+                centre_hz: float | None = None, bounds: dict | None = None, geometry=None) -> dict:
     """Low and high values of the headline figures from the inputs' tolerances.
 
     Heights move by each support's tolerance (points where wires meet move
@@ -518,7 +522,8 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
     load was taken (default: the middle of ``frequency``). ``bounds``: that
     :func:`earth_bounds` over ``frequency`` and then ``centre_hz``, when the
     caller has it already (the report's earth table takes its last entry). ``earth`` (the DC
-    figures) is kept for compatibility and not used.
+    figures) is kept for compatibility and not used. ``geometry``: the site's own wires already resolved,
+    when the caller has them.
 
     Returns
     -------
@@ -526,7 +531,7 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
         key -> (F, 2) arrays of [low, high]; ``method`` (str): the model of the ranges.
     """
     f = np.atleast_1d(np.asarray(frequency, float))
-    like = _nominal_shape(site)
+    like = _nominal_shape(site, geometry)
     f_c = float(f[len(f) // 2]) if centre_hz is None else float(centre_hz)
     b = earth_bounds(site, np.append(f, f_c), screen=method != "full-wave") if bounds is None else bounds
     lo_ohm, hi_ohm = b["high_ohm"][:-1], b["low_ohm"][:-1]
@@ -565,7 +570,8 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
     return out
 
 
-def what_if(site, frequency: float, earth: dict, units: str = "si", *, nominal: dict | None = None) -> list[dict]:
+def what_if(site, frequency: float, earth: dict, units: str = "si", *, nominal: dict | None = None,
+            geometry=None) -> list[dict]:
     """What raising the wire, lengthening it, or improving the earth buys, at one frequency.
 
     ``units``: "si" or "us"; the steps are round figures of that system
@@ -577,6 +583,7 @@ def what_if(site, frequency: float, earth: dict, units: str = "si", *, nominal: 
     ``effective_height_m``, ``capacitance_f``, ``ground_loss_ohm``), when
     the caller has it (the report's closed-form sweep): the first row and
     the earth's resistance are then taken from it instead of computed again.
+    ``geometry``: the site's own wires already resolved, when the caller has them.
 
     A wire on the balcony of a flat whose earth is the building's (a water
     pipe, the protective earth: nothing in the soil the user can reach) gets
@@ -603,7 +610,8 @@ def what_if(site, frequency: float, earth: dict, units: str = "si", *, nominal: 
         rows.append(("add " + metres(step["extend"]) + " to the far end",
                      _headline(site, _perturbed_wires(site, extend_m=step["extend"]), frequency, r_earth)))
         better = earth_mod.improved_earth(site.electrodes, site.soil, frequency, radial_length_m=step["radial"],
-                                          aerial=earth_mod.screen_aerial(resolve(site).segments))
+                                          aerial=earth_mod.screen_aerial((resolve(site) if geometry is None
+                                                                          else geometry).segments))
         rows.append((better["description"], _headline(site, site.wires, frequency, better["resistance_ohm"],
                                                       response=base["response"])))
         radials_row = len(rows) - 1
@@ -635,11 +643,11 @@ def band_point_indices(freqs, pts) -> np.ndarray:
 
 
 def ranges_at_band_points(site, freqs, resp, earth, pts, *, method, ground, allow_large, progress,
-                          bounds: dict | None = None) -> dict:
+                          bounds: dict | None = None, geometry=None) -> dict:
     """Ranges of the headline figures at the band points, on the sweep's own frequencies (beside their values).
 
     ``bounds``: :func:`earth_bounds` at the band points' sweep frequencies and then the centre frequency, when
-    the caller has it already (:func:`uncertainty`).
+    the caller has it already (:func:`uncertainty`); ``geometry``: the site's own wires already resolved.
     """
     pick = band_point_indices(freqs, pts)
     pf = freqs[pick]
@@ -651,7 +659,7 @@ def ranges_at_band_points(site, freqs, resp, earth, pts, *, method, ground, allo
     nominal = {k: np.asarray(v, float)[pick] for k, v in nominal.items()}
     fits = method != "full-wave" or _full_wave_ranges_fit(site, pf, freqs, allow_large)
     unc = uncertainty(site, pf, earth, method=method, nominal=nominal, ground=ground, full_wave_ranges=fits,
-                      progress=progress, bounds=bounds,
+                      progress=progress, bounds=bounds, geometry=geometry,
                       centre_hz=float(freqs[np.argmin(np.abs(freqs - what_if_frequency(site, pts)))]))
     range_method = unc.pop("method")
     return {
@@ -935,13 +943,14 @@ def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large
 
     stage(progress, "ranges from the tolerances")
     result["ranges"] = ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground,
-                                             allow_large=allow_large, progress=progress, bounds=bounds)
+                                             allow_large=allow_large, progress=progress, bounds=bounds,
+                                             geometry=geometry)
     if what_ifs:
         # at the frequency of the earth table and the ranges; the closed-form sweep has the first row already
         here = None if method == "full-wave" else {
             k: np.asarray(resp[k], float)[centre_i:centre_i + 1] for k in
             ("radiation_resistance_ohm", "conductor_loss_ohm", "effective_height_m", "capacitance_f", "ground_loss_ohm")}
-        result["what_if"] = what_if(site, float(freqs[centre_i]), earth, units, nominal=here)
+        result["what_if"] = what_if(site, float(freqs[centre_i]), earth, units, nominal=here, geometry=geometry)
 
     from aerial.estimate import receiver as receiver_bridge
 
