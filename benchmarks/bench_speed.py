@@ -12,7 +12,8 @@ reported. On a shared machine expect ±30 % on absolute times; the ratios
 (each measured against a reference taken in the same round) are steadier.
 
 1. Start-up: wall time of ``aerial report EXAMPLE --json`` and ``aerial
-   check EXAMPLE --json`` against ``python -c "import numpy, scipy, shapely,
+   check EXAMPLE --json`` (run as the console script runs them, through
+   ``aerial.__main__.run``) against ``python -c "import numpy, scipy, shapely,
    rich"`` (goal: report <= 1.5 x). Byte-code caches are allowed (the
    variable PYTHONDONTWRITEBYTECODE is removed) and warmed first. The
    processor time of each run (user + system) is shown beside it: on a
@@ -158,7 +159,8 @@ def child_json(code: str, args, env, cwd) -> dict:
 
 
 def cli(tree: Path, *args) -> list[str]:
-    return [sys.executable, "-c", "import sys; from aerial.cli import main; sys.exit(main(sys.argv[1:]))", *args]
+    """The command as the ``aerial`` console script runs it (``aerial.__main__.run``), from ``tree``."""
+    return [sys.executable, "-c", "import sys; sys.argv[0] = 'aerial'; from aerial.__main__ import run; run()", *args]
 
 
 def startup(trees, rounds):
