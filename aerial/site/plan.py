@@ -15,8 +15,9 @@ key (with its line) and what is expected; an invalid polygon is rejected with
 the text of :func:`shapely.is_valid_reason`.
 """
 
-from __future__ import annotations
-
+# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
+# string that typing compiles when the class is made, a cost paid at each start-up. The shapely types
+# stay quoted (shapely loads only when a plan has outlines).
 from typing import NamedTuple
 
 from aerial.core import units
@@ -56,7 +57,7 @@ class Building(NamedTuple):
     """A building of ``[[plan.buildings]]``: its plan outline and roof height. [m]"""
 
     name: str
-    outline: Polygon
+    outline: "Polygon"
     height_m: float
     key: str
 
@@ -65,7 +66,7 @@ class Obstacle(NamedTuple):
     """Something in ``[[plan.obstacles]]`` a wire must not cross: its plan outline. [m]"""
 
     name: str
-    outline: Polygon
+    outline: "Polygon"
     key: str
 
 
@@ -73,7 +74,7 @@ class OverheadLine(NamedTuple):
     """An overhead line in plan with its height; ``kind`` is "power" or "telephone/cable"."""
 
     name: str
-    path: LineString
+    path: "LineString"
     height_m: float
     kind: str
     key: str
@@ -111,7 +112,7 @@ class Balcony(NamedTuple):
 class Plan(NamedTuple):
     """A validated ``[plan]`` table (lengths in metres)."""
 
-    lot: Polygon | None
+    lot: "Polygon | None"
     building: str
     entry: Entry
     buildings: list | tuple = ()
@@ -230,7 +231,7 @@ def line_kind(given) -> tuple[str, str]:
     return "power", (f'kind "{given}" not understood (expected "power" or "telephone/cable"): treated as a power line')
 
 
-def _polygon(r: TableReader, value, key) -> Polygon:
+def _polygon(r: TableReader, value, key) -> "Polygon":
     import shapely
     from shapely.geometry import Polygon
 
@@ -244,7 +245,7 @@ def _polygon(r: TableReader, value, key) -> Polygon:
     return poly
 
 
-def _path(r: TableReader, value, key) -> LineString:
+def _path(r: TableReader, value, key) -> "LineString":
     from shapely.geometry import LineString
 
     if not isinstance(value, list) or len(value) < 2:
