@@ -64,3 +64,14 @@ def test_not_finite_is_refused():
     for bad in (math.nan, math.inf, "inf m", "nan m", True):
         with pytest.raises(units.UnitError):
             units.parse_length(bad)
+
+
+@pytest.mark.parametrize("written, wanted", [
+    ("12 fet 6 in", 'unknown unit "fet" in "fet 6 in" (did you mean "feet"?)'),
+    ("30 fet", 'unknown unit "fet" (did you mean "feet"?)'),
+])
+def test_a_misspelt_length_unit_is_named_with_a_suggestion_even_before_an_inch_part(written, wanted):
+    """Feet and inches written with a typo in the feet: the message names the misspelt word and suggests the unit."""
+    with pytest.raises(units.UnitError) as err:
+        units.parse_quantity(written, units.LENGTH_UNITS, "a length", "m")
+    assert wanted in str(err.value)

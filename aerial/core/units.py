@@ -148,6 +148,11 @@ def find_unit(written: str, units: dict[str, float], number: str = "1") -> str:
     matches = [u for u in units if u.casefold() == key]
     if not matches:
         near = closest_word(written, units)
+        head = written.split()[0] if written.split() else written
+        if near is None and head != written and head.casefold() not in {u.casefold() for u in units}:
+            near = closest_word(head, units)  # a misspelt first unit of two ("12 fet 6 in")
+            if near is not None:
+                raise UnitError(f"unknown unit \"{head}\" in \"{written}\" (did you mean \"{near}\"?)")
         raise UnitError(f"unknown unit \"{written}\"" + (f" (did you mean \"{near}\"?)" if near else ""))
     readings: dict[str, float] = {u: units[u] for u in matches}
     # the same letters with the prefix in the other case: an SI unit of its own ("Mm" is a megametre)
