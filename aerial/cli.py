@@ -90,17 +90,11 @@ def _terminal_columns() -> int:
         columns = int(os.environ["COLUMNS"])
     except (KeyError, ValueError):
         columns = 0
-    try:
-        lines = int(os.environ["LINES"])
-    except (KeyError, ValueError):
-        lines = 0
-    if columns <= 0 or lines <= 0:
+    if columns <= 0:
         try:
-            size = os.get_terminal_size(sys.__stdout__.fileno())
+            columns = os.get_terminal_size(sys.__stdout__.fileno()).columns or 80
         except (AttributeError, ValueError, OSError):
-            size = os.terminal_size((80, 24))
-        if columns <= 0:
-            columns = size.columns or 80
+            columns = 80
     return columns
 
 
