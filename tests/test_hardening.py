@@ -48,6 +48,27 @@ def test_milliwatts_are_milliwatts(capsys, write_site):
     station = json.loads(out)["stations"][0]
     assert station["power_w"] == pytest.approx(0.5)
     assert station["distance_m"] == pytest.approx(1609.344)  # NIST SP 811, B.8: 1 mi = 1609.344 m exactly
+    # read as written, but a power below any broadcaster's is pointed out with both spellings (SI prefixes: m is
+    # milli, M is mega, BIPM SI Brochure, 9th edition, Table 7)
+    words = " ".join(json.loads(out)["warnings"])
+    assert 'stations[0].power: "500 mW" is read as 500 mW' in words and '"MW"' in words
+
+
+def test_a_broadcast_power_draws_no_power_note(capsys, write_site):
+    p = write_site(MINIMAL + '\n[[stations]]\nfrequency = "810 kHz"\npower = "5 kW"\ndistance = "20 km"\n')
+    code, out, err = run(capsys, "report", str(p), "--json")
+    assert code == 0, err
+    import json
+
+    assert not any(".power:" in w for w in json.loads(out)["warnings"])
+
+
+@pytest.mark.parametrize("written, suggested", [("20 AGW", "20 AWG"), ("16 swq", "16 SWG"), ("1/0 AWGG", "1/0 AWG")])
+def test_a_misspelt_gauge_system_is_named_with_a_suggestion(capsys, write_site, written, suggested):
+    p = write_site(MINIMAL + f'\n[wire]\ngauge = "{written}"\n')
+    code, out, err = run(capsys, "check", str(p))
+    assert code == EXIT_USER and out == ""
+    assert f'wire.gauge = "{written}": did you mean "{suggested}"?' in one_line(err)
 
 
 @pytest.mark.parametrize("digits", [400, 5000])

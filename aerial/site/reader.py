@@ -85,6 +85,9 @@ MIN_STATION_DISTANCE_M = 100.0
 #: Transmitter powers accepted (the largest broadcast transmitters are about 2 MW). [W]
 STATION_POWER_W = (1e-3, 10e6)
 
+#: A station below this power is read as written but noted: a broadcaster's is 100 W or more. [W]
+QUIET_STATION_POWER_W = 1.0
+
 #: Reference field strengths accepted for site.field_strength. [V/m]
 FIELD_STRENGTH_V_PER_M = (1e-7, 10.0)
 
@@ -592,6 +595,19 @@ SOIL_CHOICES = ("expected a soil category (" + ", ".join(f'"{c}"' for c in SOILS
                 + ", ".join(f'"{w}"' for w in SOIL_WORDS) + ") or how good it is (\"good\", \"average\", \"poor\")")
 
 
+def _gauge_hint(text) -> str:
+    """ 'did you mean "20 AWG"? ' for a gauge whose system is misspelt ("20 AGW", "20 awgg"); else "".
+
+    >>> _gauge_hint("20 AGW")
+    'did you mean "20 AWG"? '
+    >>> _gauge_hint("twenty")
+    ''
+    """
+    m = re.fullmatch(r"(\S+?)\s*([A-Za-z]+)", text or "")
+    near = units.closest_word(m.group(2).lower(), ["awg", "swg"]) if m else None
+    return f'did you mean "{m.group(1)} {near.upper()}"? ' if near else ""
+
+
 def soil_base(r: TableReader, written, key, notes: list) -> Soil:
     """The soil category a category name or a homeowner's word stands for; the mapping goes into ``notes``."""
     found = soil_category(written) if isinstance(written, str) else None
@@ -673,7 +689,8 @@ def wire_size(r: TableReader, t: dict, key: str, default: WireSize | None) -> Wi
         text = str(value).strip() if isinstance(value, (str, int)) and not isinstance(value, bool) else None
         m = re.fullmatch(r"(\S+)\s*(awg|swg)", text, re.IGNORECASE) if text else None
         if not m:
-            r.fail(f"{key}.{given[0]}", value, 'expected a gauge with its system, such as "14 AWG" or "16 SWG"')
+            r.fail(f"{key}.{given[0]}", value, _gauge_hint(text) + 'expected a gauge with its system, such as "14 AWG" '
+                   'or "16 SWG"')
         try:
             n = units.parse_gauge(m.group(1))
         except units.UnitError as err:
@@ -1177,6 +1194,9 @@ def _stations(r: TableReader, raw, soil: SoilSpec, notes: list, site_position=No
         if not STATION_POWER_W[0] <= p <= STATION_POWER_W[1]:
             r.fail(f"{key}.power", t["power"], f"expected a transmitter power from {STATION_POWER_W[0] * 1e3:g} mW "
                    f"to {STATION_POWER_W[1] / 1e6:g} MW")
+        if p < QUIET_STATION_POWER_W:
+            notes.append(f"{key}.power: \"{t['power']}\" is read as {units.si_text(p, 'W')}, far below a broadcast "
+                         "transmitter's (about 100 W to 2 MW); megawatts are written \"MW\", milliwatts \"mW\"")
         where = _position(r, t, key)
         bearing = _degrees(r, t, key, "bearing", -360.0, 360.0)
         if where is not None and ("distance" in t or bearing is not None):
