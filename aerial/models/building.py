@@ -79,6 +79,7 @@ import numpy as np
 from aerial.core.arrays import scratch_planes, sorted_unique
 from aerial.core.constants import EPSILON_0, SPEED_OF_LIGHT
 from aerial.core.errors import ModelInputError
+from aerial.core.lengthtext import metres, words
 from aerial.models.capacitance import electrostatic_solution
 from aerial.models.short_aerial import monopole_z0_schelkunoff
 from aerial.models.segments import Segments
@@ -669,6 +670,48 @@ def plan_distance(points_xy, footprint):
     return np.where(inside, 0.0, dist)
 
 
+def length_over_roof(start, end, footprint, roof_height_m) -> float:
+    """Length of straight wires that runs inside a footprint in plan and above the roof's height. [m]
+
+    Each wire is cut where it crosses an edge of the footprint in plan or the roof's height, and each piece
+    counted by its midpoint.
+
+    Parameters
+    ----------
+    start, end : array_like, shape (N, 3)
+        Wire ends. [m]
+    footprint : array_like, shape (K, 2)
+        The building's outline in plan. [m]
+    roof_height_m : float
+        Height of the roof. [m]
+
+    Examples
+    --------
+    >>> float(length_over_roof([[2, 5, 9]], [[40, 5, 9]], [[0, 0], [10, 0], [10, 8], [0, 8]], 7.0))
+    8.0
+    >>> float(length_over_roof([[2, 5, 9]], [[2, 5, 1]], [[0, 0], [10, 0], [10, 8], [0, 8]], 7.0))
+    2.0
+    """
+    s, e = np.atleast_2d(np.asarray(start, dtype=float)), np.atleast_2d(np.asarray(end, dtype=float))
+    a = np.asarray(footprint, dtype=float)
+    ab = np.roll(a, -1, axis=0) - a
+    d = (e - s)[:, None, :2]  # wires down, edges across
+    denom = d[..., 0] * ab[None, :, 1] - d[..., 1] * ab[None, :, 0]
+    rel = a[None] - s[:, None, :2]
+    safe = np.where(denom == 0.0, 1.0, denom)
+    t = (rel[..., 0] * ab[None, :, 1] - rel[..., 1] * ab[None, :, 0]) / safe  # along the wire
+    u = (rel[..., 0] * d[..., 1] - rel[..., 1] * d[..., 0]) / safe  # along the edge
+    t = np.where((denom != 0.0) & (u >= 0.0) & (u <= 1.0), t, 0.0)
+    dz = e[:, 2] - s[:, 2]
+    t_roof = np.where(dz != 0.0, (roof_height_m - s[:, 2]) / np.where(dz == 0.0, 1.0, dz), 0.0)
+    cuts = np.sort(np.clip(np.concatenate([np.zeros((len(s), 1)), t, t_roof[:, None], np.ones((len(s), 1))],
+                                          axis=1), 0.0, 1.0), axis=1)
+    mid_t = 0.5 * (cuts[:, 1:] + cuts[:, :-1])
+    mid = s[:, None, :] + mid_t[..., None] * (e - s)[:, None, :]
+    inside = (plan_distance(mid[..., :2].reshape(-1, 2), a).reshape(mid_t.shape) <= 0.0) & (mid[..., 2] > roof_height_m)
+    return float(np.sum(np.where(inside, np.diff(cuts, axis=1), 0.0) * np.linalg.norm(e - s, axis=1)[:, None]))
+
+
 def nearest_facade(footprint, points_xy):
     """The footprint edge nearest the points (mean distance): (point on it, outward unit normal).
 
@@ -816,7 +859,9 @@ def _facade_solution(segments: Segments, body: BuildingBody) -> dict:
     if not np.any(dist > 0):
         raise ModelInputError("every aerial wire is inside the building's footprint; a wire inside a building "
                               "is not modelled")
-    ends = np.concatenate([segments.start, segments.end])[:, :2]
+    # the facade the aerial stands in front of, from the aerial's own ends: an earth lead or lead-in that ends at
+    # a rod by another wall (or a receiver indoors) does not choose it
+    ends = np.concatenate([segments.start[segments.aerial], segments.end[segments.aerial]])[:, :2]
     p0, n = nearest_facade(body.footprint, ends[plan_distance(ends, body.footprint) > 0])
     front = _in_front(segments, p0, n)
     if not np.any(front.aerial):
@@ -828,6 +873,12 @@ def _facade_solution(segments: Segments, body: BuildingBody) -> dict:
     if np.any(plan_distance(mid[:, :2], body.footprint) <= 0):
         notes = ("part of the wire is over the roof or round a corner of the building; the facade images there are "
                  "approximate",)
+    over_roof = length_over_roof(segments.start[segments.aerial], segments.end[segments.aerial], body.footprint,
+                                 body.height_m)
+    if over_roof > 0:
+        notes += (words("{l} of the wire runs over the roof (inside the outline in plan): it is counted with the lead-in "
+                        "as screened by the building, which understates a wire high above a conducting roof",
+                        l=metres(over_roof)),)
     found = {
         "charge_c": es.charge_c, "height_m": mid[:, 2], "field_height_m": screened_field_height(body, mid),
         "aerial_charge_c": float(np.sum(es.charge_c[~es.grounded])), "capacitance_f": float(es.capacitance_f),
@@ -1211,6 +1262,7 @@ def box_screen(body: BuildingBody, target_panels: int = BOX_TARGET_PANELS) -> Bo
 
 
 __all__ = [
+    "length_over_roof",
     "BuildingBody", "SHIELDING_BY_CONSTRUCTION", "facade_field_height", "facade_static_figures", "nearest_facade",
     "plan_distance", "MAX_ELECTRICAL_HEIGHT_RAD", "footprint_area",
     "roof_equivalent_radius",
