@@ -73,7 +73,7 @@ DEFAULT_CASE_TIMEOUT_S = 90.0
 DEFAULT_MEMORY_LIMIT_BYTES = 3 * 2**30
 
 FAILURE_CLASSES = ("internal-error", "escaped-exception", "bad-exit", "bad-stderr", "bad-json", "null-figure",
-                   "hang", "worker-crash")
+                   "hang", "worker-crash", "check-passes-report-refuses")
 
 # JSON keys that are figures (carry a unit suffix): a null there is a figure that was not computed.
 _FIGURE_KEY = re.compile(r"(_(m|hz|ohm|f|h|v|w|db|dbw|dbuv|s_m|v_per_m|a|c|percent|s)$)|^(efficiency|q|score)$")
@@ -793,6 +793,17 @@ def run_case(case: Case, folder: Path, commands=COMMANDS) -> list[dict]:
                             also_named=(str(folder),) if case.special == "os-fault" else ())
         results.append({"command": template[0], "argv": argv, "exit": code, "class": cls, "why": why,
                         "stderr": err[:2000], "seconds": round(seconds, 3)})
+    return _agreeing(results, case)
+
+
+def _agreeing(results: list[dict], case: Case) -> list[dict]:
+    """A site ``check`` accepts must not be refused as bad input by ``report`` (its own options are fixed here):
+    such a report is re-classed ``check-passes-report-refuses``, since the check told the user the file was fine."""
+    by = {r["command"]: r for r in results}
+    check, report = by.get("check"), by.get("report")
+    if (check and report and check["class"] == "ok" and report["exit"] == 2 and case.special != "os-fault"
+            and not case.extra_args.get("report")):
+        report["class"], report["why"] = "check-passes-report-refuses", report["stderr"].strip()[:400]
     return results
 
 
