@@ -468,3 +468,78 @@ def test_consistency_length_over_roof_cuts_at_edges_and_height():
     assert length_over_roof([[-5, 9, 12]], [[15, 9, 12]], square, 7.0) == 0.0
     # diagonal across the whole roof, 3-4-5 in plan
     assert length_over_roof([[-3, -4, 9]], [[9, 12, 9]], [[0, 0], [6, 0], [6, 8], [0, 8]], 7.0) == pytest.approx(10.0)
+
+
+LEAD_IN_ACROSS_THE_GARDEN = """
+[site]
+name = "span east of a block, receiver in a shed farther east"
+
+[supports.corner]
+at = [9.27, 11.34]
+height = 9.77
+
+[supports.pole]
+at = [24.0, 9.97]
+height = 11.82
+
+[[spans]]
+from = "corner"
+to = "pole"
+
+[lead_in]
+from = "corner"
+
+[receiver]
+at = [38.88, -0.48]
+height = 1
+
+[building]
+footprint = [[0, 0], [8.39, 0], [8.39, 13.0], [0, 13.0]]
+height = 13.46
+construction = "reinforced concrete"
+
+[[earth.rods]]
+length = "2.4 m"
+at = [-10.51, 0.89]
+"""
+
+
+def test_the_far_end_is_the_spans_free_end_even_when_the_lead_in_runs_past_it(capsys, tmp_path):
+    """An invented site (found by a generator of random houses): the lead-in runs from the span's corner end 30 m
+    past the pole to a shed, so the corner end is farther from the receiver than the pole end. "Add 10 m to the far
+    end" lengthens the span at its free end (the pole), away from the building -- not back through the building
+    from the corner, which the building's model refused, failing the whole report. The longer wire has more
+    capacitance (consistency check: every added metre of a wire adds capacitance)."""
+    site = tmp_path / "site.toml"
+    site.write_text(LEAD_IN_ACROSS_THE_GARDEN, encoding="utf-8")
+    code, out, err = run(capsys, "report", site, "--json")
+    assert code == 0, err
+    rows = {r["change"]: r for r in json.loads(out)["what_if"]}
+    longer = rows["add 10 m to the far end"]
+    assert longer["capacitance_f"] > rows["as described"]["capacitance_f"]
+
+
+def test_a_move_the_models_refuse_is_left_out_and_said(monkeypatch):
+    """A what-if move whose wire the models refuse (say it would run into the building) is left out of the table
+    and the warnings say which and why; the rest of the report stands."""
+    from aerial.core.errors import ModelInputError
+    from aerial.estimate import assemble
+    from aerial.site.reader import load_site
+
+    site = load_site(BACKYARD)
+    real = assemble._headline
+
+    def refusing(site_, wires, *args, **kwargs):
+        if wires is not site_.wires:
+            raise ModelInputError("no aerial wire is in front of the building's nearest facade")
+        return real(site_, wires, *args, **kwargs)
+
+    monkeypatch.setattr(assemble, "_headline", refusing)
+    notes: list = []
+    rows = assemble.what_if(site, 940e3, {}, notes=notes)
+    changes = [r["change"] for r in rows]
+    assert "as described" in changes and not any(str(c).startswith(("raise", "add 10")) for c in changes)
+    text = " ".join(str(n) for n in notes)
+    assert 'What would help: "raise the wire 3 m" is left out' in text and "in front of the building" in text
+    with pytest.raises(ModelInputError):
+        assemble.what_if(site, 940e3, {})

@@ -332,15 +332,25 @@ def _keeps_length(points, radius_m: float) -> bool:
 
 
 def _extend_far_end(wires, feed, extend_m):
-    """Add ``extend_m`` of wire at the aerial end farthest from the feed, continuing its last piece."""
+    """Add ``extend_m`` of wire at the aerial's far end, continuing its last piece.
+
+    The far end is the free end of an aerial wire (joined to no other wire) farthest from the feed; where
+    every end is joined (a loop), the end farthest from the feed. A lead-in that runs a long way from the
+    span to the receiver can put the span's joined end farther from the feed than its free one: the free
+    end is still the one a longer wire would reach out from.
+    """
+    points = [np.asarray(w.points_m, dtype=float) for w in wires]
     best = None
     for i, w in enumerate(wires):
         if w.role != "aerial":
             continue
         for end in (0, -1):
-            d = np.linalg.norm(w.points_m[end] - feed)
-            if best is None or d > best[0]:
-                best = (d, i, end)
+            p = points[i][end]
+            joined = any(np.any(np.linalg.norm(q - p, axis=1) < JOIN_TOLERANCE_M)
+                         for j, q in enumerate(points) if j != i)
+            d = np.linalg.norm(p - feed)
+            if best is None or (not joined, d) > best[0]:
+                best = ((not joined, d), i, end)
     if best is None:
         return wires
     _, i, end = best
@@ -571,7 +581,7 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
 
 
 def what_if(site, frequency: float, earth: dict, units: str = "si", *, nominal: dict | None = None,
-            geometry=None) -> list[dict]:
+            geometry=None, notes: list | None = None) -> list[dict]:
     """What raising the wire, lengthening it, or improving the earth buys, at one frequency.
 
     ``units``: "si" or "us"; the steps are round figures of that system
@@ -584,6 +594,8 @@ def what_if(site, frequency: float, earth: dict, units: str = "si", *, nominal: 
     the caller has it (the report's closed-form sweep): the first row and
     the earth's resistance are then taken from it instead of computed again.
     ``geometry``: the site's own wires already resolved, when the caller has them.
+    ``notes``: where to say why a move is left out (the raised or lengthened wire would run into the
+    building, which the models refuse); without it such a move raises as the model does.
 
     A wire on the balcony of a flat whose earth is the building's (a water
     pipe, the protective earth: nothing in the soil the user can reach) gets
@@ -605,10 +617,15 @@ def what_if(site, frequency: float, earth: dict, units: str = "si", *, nominal: 
     rows = [("as described", base)]
     radials_row = better = None
     if not balcony_without_ground_access(site):
-        rows.append(("raise the wire " + metres(step["raise"]),
-                     _headline(site, _perturbed_wires(site, raise_m=step["raise"]), frequency, r_earth)))
-        rows.append(("add " + metres(step["extend"]) + " to the far end",
-                     _headline(site, _perturbed_wires(site, extend_m=step["extend"]), frequency, r_earth)))
+        for label, move in (("raise the wire " + metres(step["raise"]), {"raise_m": step["raise"]}),
+                            ("add " + metres(step["extend"]) + " to the far end", {"extend_m": step["extend"]})):
+            try:
+                rows.append((label, _headline(site, _perturbed_wires(site, **move), frequency, r_earth)))
+            except ModelInputError as err:
+                if notes is None:
+                    raise
+                notes.append(words("What would help: \"{what}\" is left out: with it, {why}", what=label,
+                                   why=str(err)))
         better = earth_mod.improved_earth(site.electrodes, site.soil, frequency, radial_length_m=step["radial"],
                                           aerial=earth_mod.screen_aerial((resolve(site) if geometry is None
                                                                           else geometry).segments))
@@ -950,7 +967,8 @@ def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large
         here = None if method == "full-wave" else {
             k: np.asarray(resp[k], float)[centre_i:centre_i + 1] for k in
             ("radiation_resistance_ohm", "conductor_loss_ohm", "effective_height_m", "capacitance_f", "ground_loss_ohm")}
-        result["what_if"] = what_if(site, float(freqs[centre_i]), earth, units, nominal=here, geometry=geometry)
+        result["what_if"] = what_if(site, float(freqs[centre_i]), earth, units, nominal=here, geometry=geometry,
+                                    notes=warnings)
 
     from aerial.estimate import receiver as receiver_bridge
 

@@ -738,6 +738,50 @@ def nearest_facade(footprint, points_xy):
     return np.array([a[k, 0], a[k, 1], 0.0]), np.array([normals[k, 0], normals[k, 1], 0.0])
 
 
+def facade_for_wires(footprint, start, end):
+    """The facade a set of aerial wires stands in front of: (point on it, outward unit normal).
+
+    The wires' own ends choose it (an earth lead to a rod by another wall or a receiver indoors does not):
+    the nearest facade with every end outside the footprint in front of its plane (:func:`nearest_facade`).
+    Where no facade has them all in front -- a lead-in that crosses to the building's far side, a span that
+    wraps round a corner -- it is the facade with the most wire in front of its plane, then the nearest.
+
+    Parameters
+    ----------
+    footprint : array_like, shape (K, 2)
+        The building's outline in plan. [m]
+    start, end : array_like, shape (N, 3)
+        The aerial wires' ends (the lead-in's included; no earth wire). [m]
+
+    Examples
+    --------
+    >>> p0, n = facade_for_wires([[0, 0], [10, 0], [10, 8], [0, 8]], [[12, 4, 8], [12, 4, 8]],
+    ...                          [[30, 4, 9], [-5, 4, 1]])
+    >>> [float(v) + 0.0 for v in n]  # the east facade (+ 0.0: no minus zero)
+    [1.0, 0.0, 0.0]
+    """
+    a = np.asarray(footprint, dtype=float)
+    s, e = np.atleast_2d(np.asarray(start, dtype=float)), np.atleast_2d(np.asarray(end, dtype=float))
+    ends = np.concatenate([s, e])[:, :2]
+    outside = ends[plan_distance(ends, a) > 0]
+    p0, n = nearest_facade(a, outside)
+    if np.min((outside - p0[:2]) @ n[:2]) >= -WALL_CLEARANCE_M:
+        return p0, n
+    ab = np.roll(a, -1, axis=0) - a
+    normals = np.stack([ab[:, 1], -ab[:, 0]], axis=1) / np.linalg.norm(ab, axis=1)[:, None]
+    normals *= np.where(np.einsum("kj,kj->k", np.mean(a, axis=0) - a, normals) > 0, -1.0, 1.0)[:, None]
+    d0 = np.einsum("nkj,kj->nk", s[:, None, :2] - a[None], normals)  # wires down, facades across
+    d1 = np.einsum("nkj,kj->nk", e[:, None, :2] - a[None], normals)
+    crossing = (d0 > 0) != (d1 > 0)
+    t = np.where(crossing, d0 / np.where(crossing, d0 - d1, 1.0), 0.0)  # where the wire meets the plane
+    fraction = np.where(crossing, np.where(d0 > 0, t, 1.0 - t), (d0 > 0).astype(float))
+    in_front = np.round(np.sum(fraction * np.linalg.norm(e - s, axis=1)[:, None], axis=0), 3)  # [m], to the mm
+    tt = np.clip(np.einsum("pkj,kj->pk", outside[:, None, :] - a[None], ab) / np.einsum("kj,kj->k", ab, ab), 0.0, 1.0)
+    mean_distance = np.mean(np.linalg.norm(outside[:, None, :] - (a[None] + tt[..., None] * ab[None]), axis=-1), axis=0)
+    k = int(np.lexsort((mean_distance, -in_front))[0])  # the most wire in front, then the nearest
+    return np.array([a[k, 0], a[k, 1], 0.0]), np.array([normals[k, 0], normals[k, 1], 0.0])
+
+
 def _in_front(segments: Segments, p0, n):
     """The wires cut at the facade plane, only the pieces in front of it kept (a new Segments)."""
     s0 = (segments.start - p0) @ n
@@ -859,10 +903,7 @@ def _facade_solution(segments: Segments, body: BuildingBody) -> dict:
     if not np.any(dist > 0):
         raise ModelInputError("every aerial wire is inside the building's footprint; a wire inside a building "
                               "is not modelled")
-    # the facade the aerial stands in front of, from the aerial's own ends: an earth lead or lead-in that ends at
-    # a rod by another wall (or a receiver indoors) does not choose it
-    ends = np.concatenate([segments.start[segments.aerial], segments.end[segments.aerial]])[:, :2]
-    p0, n = nearest_facade(body.footprint, ends[plan_distance(ends, body.footprint) > 0])
+    p0, n = facade_for_wires(body.footprint, segments.start[segments.aerial], segments.end[segments.aerial])
     front = _in_front(segments, p0, n)
     if not np.any(front.aerial):
         raise ModelInputError("no aerial wire is in front of the building's nearest facade")
@@ -1262,7 +1303,7 @@ def box_screen(body: BuildingBody, target_panels: int = BOX_TARGET_PANELS) -> Bo
 
 
 __all__ = [
-    "length_over_roof",
+    "length_over_roof", "facade_for_wires",
     "BuildingBody", "SHIELDING_BY_CONSTRUCTION", "facade_field_height", "facade_static_figures", "nearest_facade",
     "plan_distance", "MAX_ELECTRICAL_HEIGHT_RAD", "footprint_area",
     "roof_equivalent_radius",
