@@ -372,6 +372,7 @@ def test_a_winding_outside_medhursts_table_is_flagged_in_one_wording_by_coil_and
 def test_consistency_check_stations_are_heard_with_the_coil_the_tuning_designs(capsys, tmp_path):
     # A two-band site (LF and MF) that gives no coil: the tuning designs one for its primary band; the station
     # verdicts and the design for the stations must use that same coil, not one designed over the whole sweep.
+    # The band design taps the detector down with the coil: the site with the coil written gives that tap too.
     text = (ROOT / "site_examples" / "rural_long_wire.toml").read_text(encoding="utf-8")
     bare = tmp_path / "no_coil.toml"
     bare.write_text("\n".join(l for l in text.splitlines() if not l.startswith("coil = ")), encoding="utf-8")
@@ -381,7 +382,10 @@ def test_consistency_check_stations_are_heard_with_the_coil_the_tuning_designs(c
     inductance = designed["tuning"]["coil"]["inductance_h"]
     assert designed["tuning"]["station_design"]["current"]["coil_inductance_h"] == inductance
     given = tmp_path / "given_coil.toml"
-    given.write_text(text.replace('coil = "250 uH"', f'coil = "{inductance * 1e6!r} uH"'), encoding="utf-8")
+    tap = designed["tuning"]["detector_tap_ratio"]
+    assert designed["tuning"]["station_design"]["current"]["detector_tap_ratio"] == tap
+    given.write_text(text.replace('coil = "250 uH"', f'coil = "{inductance * 1e6!r} uH"\ndetector_tap = {tap!r}'),
+                     encoding="utf-8")
     code, out, err = run(capsys, "report", str(given), "--json")
     assert code == 0, err
     written = json.loads(out)

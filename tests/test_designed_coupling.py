@@ -83,9 +83,8 @@ def test_designed_parts_reach_every_listed_station_in_the_band(capsys, write_sit
 
 def test_the_designed_coupling_serves_the_detector_best_here(capsys, write_site):
     """Input handling on the invented wire: of the couplings that cover the band, the designed one is the one
-    that gives the detector the most at the worst frequency of the tuning table. Here that is a tap (a 10 pF
-    series capacitor, the largest that covers, lets through at worst about 0.6 %, the tap 13 %); the note says
-    which coupling came next."""
+    that gives the detector the most at the worst frequency of the tuning table. Here that is a tap (the detector's
+    tap designed with it); the note says which coupling came next."""
     d = json.loads(_report(capsys, write_site(NO_PARTS), "--json"))
     tuning = d["tuning"]
     assert tuning["arrangement"] == "coil tap"
@@ -184,9 +183,9 @@ def _weakest_to_detector(d) -> float:
 def test_long_wire_designed_coupling_gives_the_detector_the_most_of_the_covering_ones(capsys, write_site):
     """Input handling through the command line on a builder's long wire: the designed coupling covers the band,
     and its weakest "to detector" across the tuning table is at least what each other coupling that covers the
-    band gives with its coil designed the same way: here a tap at 0.20 of the turns and a 10 pF series
-    capacitor (the largest E6 value that covers, whose weakest share is about 40 times smaller). The report
-    says why it chose the coupling."""
+    band gives with its coil designed the same way (and the detector's tap designed with each): here a tap at 0.20
+    of the turns and a 10 pF series capacitor (the largest E6 value that covers, whose weakest share is far
+    smaller). The report says why it chose the coupling."""
     designed = json.loads(_report(capsys, write_site(LONG_WIRE), "--json"))
     assert designed["tuning"]["coupling_designed"] is True
     assert designed["tuning"]["coverage"]["covered"] is True

@@ -138,7 +138,8 @@ def receiver_results(site, freqs, resp, beyond=None) -> tuple[dict, list, list]:
     warnings: list[str] = []
     # a coil still to be designed: its coupling too, unless the site names one, so that the parts cover the band
     parts, coupling_notes = reception.design_coupling(f[m], r[m], x[m], parts, (lo, hi),
-                                                      coupling_open=not site.receiver.coupling_given)
+                                                      coupling_open=not site.receiver.coupling_given,
+                                                      detector_tap_open=not site.receiver.detector_tap_given)
     # the coil the tuning shows, resolved (or designed) once: the verdicts and the design for the stations use it too
     coil = reception.tuning_coil(f[m], r[m], x[m], parts, band=(lo, hi))
     tuning = reception.design_tuning(f[m], r[m], x[m], parts, band=(lo, hi), range_curve=True, coil=coil)
@@ -155,11 +156,14 @@ def receiver_results(site, freqs, resp, beyond=None) -> tuple[dict, list, list]:
     if coupling_notes:
         at = 1 if _needs_assumed_capacitor(site.receiver) else 0
         tuning.setdefault("notes", [])[at:at] = coupling_notes
-        tuning["coupling_designed"] = parts.arrangement != site.receiver.coupling
-        if parts.arrangement == "series capacitor":
-            tuning["designed_series_capacitance_f"] = float(parts.series_capacitance_f)
-        elif parts.arrangement == "coil tap":
-            tuning["designed_tap_ratio"] = float(parts.tap_fraction)
+        if parts.arrangement != site.receiver.coupling:
+            tuning["coupling_designed"] = True
+            if parts.arrangement == "series capacitor":
+                tuning["designed_series_capacitance_f"] = float(parts.series_capacitance_f)
+            elif parts.arrangement == "coil tap":
+                tuning["designed_tap_ratio"] = float(parts.tap_fraction)
+        if parts.detector_tap_designed:
+            tuning["detector_tap_designed"] = True
     if len(site.bands) > 1:
         tuning.setdefault("notes", []).append(
             f"The tuning parts are designed for the {name} band; other bands need their own coil.")

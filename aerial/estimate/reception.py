@@ -159,6 +159,9 @@ class TuningParts(NamedTuple):
     capacitor_assumed : bool
         True when the site gave neither coil nor capacitor and the capacitor range is a common one
         assumed for it (the coil then designed): the words say "the assumed parts", never "yours".
+    detector_tap_designed : bool
+        True when ``detector_tap_fraction`` was chosen by :func:`design_coupling` with a coil still to
+        be designed (the site gave none): the words say the tap is designed, never the site's.
     """
 
     arrangement: str = "direct"
@@ -179,6 +182,7 @@ class TuningParts(NamedTuple):
     calibration: Calibration | None = None
     interference_margin_db: float | None = None
     capacitor_assumed: bool = False
+    detector_tap_designed: bool = False
 
 
 class Station(NamedTuple):
@@ -923,12 +927,14 @@ def _designed_coil(band, aerial, parts, covering=None) -> _Coil:
 def _covering_coils(band, aerial, parts, self_capacitance=0.0):
     """The range (L_lo, L_hi) [H] of coils that cover ``band`` with the parts' capacitor and coupling; None if none.
 
+    The search, like the coil it sizes, takes the winding as tight and the detector across its top
+    (:func:`_sizing_config`): which detector tap a builder uses, or the design chooses, leaves the coil alone.
     Remembered per band, aerial (its arrays and calibration), capacitor, coil Q and coupling: a report
     designing the coupling with the coil asks again for many of the searches the station design asks for."""
     f_lo, f_hi = band
     cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
     q_value = DEFAULT_COIL_Q if parts.coil_unloaded_q is None else parts.coil_unloaded_q
-    cfg = _config(parts, self_capacitance=float(self_capacitance))
+    cfg = _sizing_config(parts, self_capacitance)
     key = (float(f_lo), float(f_hi), aerial.f.tobytes(), aerial.r.tobytes(), aerial.x.tobytes(), aerial.cal_capacitance,
            aerial.cal_resistance, cmin, cmax, float(q_value), tuple(sorted(cfg.items())))
     if key not in _COVERING_SEEN:
@@ -942,11 +948,20 @@ def _covering_coils(band, aerial, parts, self_capacitance=0.0):
 _COVERING_SEEN: dict = {}
 
 
+def _sizing_config(parts: TuningParts, self_capacitance=0.0) -> dict:
+    """:func:`_config` for sizing a coil still to be designed: the detector's weak-signal loading across the
+    whole coil, whatever its tap. With the tight winding the sizing takes, a tapped detector only adds its
+    conductance, stepped by the square of the tap, across the tank (the capacitor setting moves by a few
+    parts in 10^4 through the sections' loss), so a designed coil does not depend on the detector's tap: the
+    band design tries the taps on one coil per coupling, and the station design tries them on the same coils."""
+    return _config(parts, self_capacitance=float(self_capacitance), detector_tap=1.0)
+
+
 def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0, covering=None) -> float:
     f_lo, f_hi = band
     cmin = parts.capacitor_min_f
     q = _constant_q(DEFAULT_COIL_Q if parts.coil_unloaded_q is None else parts.coil_unloaded_q)
-    cfg = _config(parts, self_capacitance=float(self_capacitance))
+    cfg = _sizing_config(parts, self_capacitance)
     rng = covering if covering is not None and self_capacitance == 0 else \
         _covering_coils(band, aerial, parts, self_capacitance)
     if rng:
@@ -993,41 +1008,76 @@ def _table_frequencies(aerial: _Aerial, f_lo: float, f_hi: float) -> np.ndarray:
     return sorted_unique(np.concatenate([[f_lo], grid_in, [f_hi]]))
 
 
-def _weakest_to_detector(band, aerial: _Aerial, parts: TuningParts):
+def _weakest_to_detector(band, aerial: _Aerial, parts: TuningParts, taps=(None,), need_room=True):
     """The smallest share of the aerial's available power that reaches the detector across the tuning
     table's frequencies (its "to detector" column, :func:`_table_arrays`) with a coil designed for
-    ``parts`` as :func:`_designed_coil` designs it; None when no coil covers the band with room. [1]"""
+    ``parts`` as :func:`_designed_coil` designs it, for each detector tap of ``taps`` (a fraction of the
+    turns; None: the parts' own) on that one coil (its sizing leaves the detector's tap aside,
+    :func:`_sizing_config`). A list of one share per tap [1]; None when no coil covers the band with room
+    (with ``need_room``: else the coil :func:`_designed_coil` falls back to is taken)."""
     covering = _covering_coils(band, aerial, parts)
-    if not _roomy(covering):
+    if need_room and not _roomy(covering):
         return None
     coil = _designed_coil(band, aerial, parts, covering)
     # the table's column alone: the network tuned at each frequency with the detector at its strong-signal
-    # loading, no bandwidth or rejection searched (each frequency's figure is the table's own)
+    # loading, no bandwidth or rejection searched (each frequency's figure is the table's own); every tap
+    # from one stacked solve of the bare networks, the capacitor and the detector then added to each
+    # (network.retuned_detector_voltage: the same figures as tuned_figures to rounding)
     table_f = _table_frequencies(aerial, *band)
-    g_strong = _strong_signal_conductance(parts)
-    strong = tn_mod.tuned_figures(table_f, _za(aerial), _net_parts(coil, parts), np.full(table_f.size, g_strong),
-                                  bandwidth=False)
-    ratio = strong.detector_per_volt**2 * g_strong * 4.0 * aerial.impedance(table_f)[0]
-    return float(np.min(np.nan_to_num(ratio, nan=0.0)))
+    g = _strong_signal_conductance(parts)
+    nets = [_net_parts(coil, parts) if m is None else _net_parts(coil, parts, detector_tap=float(m)) for m in taps]
+    bare = net_mod.solve_network_stack(table_f, _za(aerial)(table_f), nets)
+    # the top's admittance with the detector in place (a rank-one change), then the setting that resonates it
+    z_top = bare.top_impedance - bare.top_per_detector_current * g * bare.detector_per_top_current / (
+        1.0 + g * bare.detector_impedance)
+    c = np.maximum(-np.imag(1.0 / z_top) / (2.0 * np.pi * table_f), 0.0)
+    v = np.abs(net_mod.retuned_detector_voltage(bare, table_f, c, g))
+    ratio = v**2 * g * 4.0 * aerial.impedance(table_f)[0]
+    return np.min(np.nan_to_num(ratio, nan=0.0), axis=-1).tolist()
 
 
 def _percent(x: float) -> str:
     return f"{100.0 * x:.2g} %"
 
 
+#: Detector taps tried with a coil still to be designed (fraction of the turns from the earthy end): the
+#: station design's own (:data:`station_design.DETECTOR_TAPS`), so the two designs speak the same taps. [1]
+DESIGN_DETECTOR_TAPS = sd_mod.DETECTOR_TAPS
+
+
+def _tap_words(m: float, earthy=False) -> str:
+    """Where the detector joins the coil, in words (``earthy``: saying where the turns are counted from)."""
+    if m >= 1.0:
+        return "the detector across the whole coil"
+    return f"the detector on a tap at {m:.2f} of the turns" + (" from the earthy end" if earthy else "")
+
+
+def _taps_tried(taps) -> str:
+    """The detector taps tried, in words."""
+    top = "the whole coil" if max(taps) >= 1.0 else f"{max(taps):.2f} of the turns"
+    return f"the {len(taps)} detector taps from {min(taps):.2f} of the turns to {top}"
+
+
 def design_coupling(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, band,
-                    coupling_open: bool = True) -> tuple:
-    """The coupling chosen together with a coil still to be designed: of those that cover the band, the
-    one that serves the detector best.
+                    coupling_open: bool = True, detector_tap_open: bool = True) -> tuple:
+    """The coupling and the detector's tap chosen together with a coil still to be designed: of those that
+    cover the band, the pair that serves the detector best.
 
     With no coil given and the coupling left open (``coupling_open``, the parts' arrangement then the
     default "direct"), every coupling of :func:`_coupling_candidates` (straight to the tank, each E6
     series capacitor, each tap) whose range of covering coils leaves the design margin each way
-    (:func:`_roomy`) gets its coil designed as :func:`design_tuning` would, and the one whose weakest
-    share of the aerial's power to the detector across the band (the tuning table's "to detector",
-    :func:`_weakest_to_detector`) is largest is chosen. When none covers the band, the parts come back
-    unchanged and the coverage and advice of :func:`design_tuning` say what is covered and what would
-    cover the rest; so they do when the aerial straight to the tank is the best.
+    (:func:`_roomy`) gets its coil designed as :func:`design_tuning` would; with the detector's tap left
+    open too (``detector_tap_open``, the parts' tap then the default 1, the top), each tap of
+    :data:`DESIGN_DETECTOR_TAPS` is tried on that coil. The pair whose weakest share of the aerial's power
+    to the detector across the band (the tuning table's "to detector", :func:`_weakest_to_detector`) is
+    largest is chosen. A coupling the site names is kept and only the tap chosen (with the coil designed
+    for that coupling even when it leaves no room), and a tap the site gives is kept. When no coupling
+    covers the band, the coupling is left as it is (the coverage and advice of :func:`design_tuning` say
+    what is covered and what would cover the rest) and the tap is chosen for it.
+
+    Tapping the detector down the coil matches its input resistance, stepped up by the square of the
+    turns ratio, to the tank's dynamic resistance (the maximum power transfer theorem): across the whole
+    coil, a detector of a few kilohms loads a tank of a few hundred kilohms down to no useful resonance.
 
     Parameters
     ----------
@@ -1037,12 +1087,14 @@ def design_coupling(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts
         Band edges (f_lo, f_hi). [Hz]
     coupling_open : bool
         False when the site names its coupling: it is then kept.
+    detector_tap_open : bool
+        False when the site gives the detector's tap: it is then kept.
 
     Returns
     -------
     tuple
-        (parts, notes): the parts with the coupling chosen (unchanged when nothing is to be chosen, the
-        aerial straight to the tank serves best, or nothing covers the band), and the sentences saying why.
+        (parts, notes): the parts with the coupling and the detector's tap chosen (``detector_tap_designed``
+        set when the tap was; unchanged when nothing is to be chosen), and the sentences saying why.
 
     Examples
     --------
@@ -1050,36 +1102,86 @@ def design_coupling(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts
     >>> x = [-1 / (2 * 3.141592653589793 * fi * 500e-12) for fi in f]
     >>> parts = TuningParts(capacitor_min_f=15e-12, capacitor_max_f=365e-12)
     >>> chosen, notes = design_coupling(f, [50, 50, 50], x, parts, (520e3, 1710e3))
-    >>> chosen.arrangement != "direct"
-    True
+    >>> chosen.arrangement != "direct", chosen.detector_tap_fraction < 1.0, chosen.detector_tap_designed
+    (True, True, True)
     """
     _check_parts(parts)
-    if (not coupling_open or _coil_given(parts) or parts.capacitor_min_f is None
-            or parts.arrangement != "direct" or parts.calibration is not None):
+    couple = coupling_open and parts.arrangement == "direct"
+    tap_open = detector_tap_open and parts.detector_tap_fraction == 1.0
+    if not (couple or tap_open) or _coil_given(parts) or parts.capacitor_min_f is None or parts.calibration is not None:
         return parts, []
     band = (float(band[0]), float(band[1]))
     if not (0 < band[0] < band[1]):
         raise ModelInputError("band must be (f_lo, f_hi) with 0 < f_lo < f_hi")
     aerial = _Aerial(frequency_hz, aerial_r_ohm, aerial_x_ohm)
-    scored = [(w, trial, words) for trial, words in _coupling_candidates(parts)
-              if (w := _weakest_to_detector(band, aerial, trial)) is not None]
-    straight = (f"no coil covers {_khz(band[0])} to {_khz(band[1])} with room to spare with this capacitor "
-                "and the aerial straight to the tank")
+    # the whole coil first: on a tie it stays
+    taps = (1.0,) + tuple(m for m in DESIGN_DETECTOR_TAPS if m != 1.0) if tap_open else (parts.detector_tap_fraction,)
+    scored = []
+    for trial, words in (_coupling_candidates(parts) if couple else [(parts, "")]):
+        shares = _weakest_to_detector(band, aerial, trial, taps, need_room=couple)
+        scored += [(w, trial, words, m) for w, m in zip(shares or (), taps)]
+    notes = []
+    if couple and not scored:
+        notes.append(_nothing_covers(band))
+        if tap_open:
+            scored = [(w, parts, "", m) for w, m in zip(_weakest_to_detector(band, aerial, parts, taps, False), taps)]
     if not scored:
-        return parts, [f"{straight}, nor through a series capacitor of {_pf(DESIGN_SERIES_CAPACITORS_F[-1])} to "
-                       f"{_pf(DESIGN_SERIES_CAPACITORS_F[0])}, nor on a tap of {DESIGN_TAPS[-1]:.2f} to "
-                       f"{DESIGN_TAPS[0]:.2f} of the turns: the designed coil covers only part of it (see the band "
-                       "coverage)"]
+        return parts, notes
     ranked = sorted(scored, key=lambda s: -s[0])  # stable: the first listed wins a tie
-    best, trial, words = ranked[0]
-    if trial is parts:
-        return parts, []
-    why = (f"{words}: at worst {_percent(best)} of the aerial's available power reaches the detector across the "
-           f"band (the tuning table's \"to detector\"), the most of the {len(scored)} couplings tried that cover it")
-    if len(ranked) > 1:
-        why += f"; the next best, {ranked[1][2]}, gives {_percent(ranked[1][0])}"
-    lead = straight if scored[0][1] is not parts else "the aerial straight to the tank serves the detector less"
-    return trial, [f"{lead}: the coupling is designed with the coil, {why}"]
+    chosen = ranked[0][1]._replace(detector_tap_fraction=ranked[0][3], detector_tap_designed=tap_open)
+    notes += _design_words(band, parts, ranked, couple and not notes, tap_open)
+    return chosen, notes
+
+
+def _nothing_covers(band) -> str:
+    return (f"{_straight_words(band)}, nor through a series capacitor of {_pf(DESIGN_SERIES_CAPACITORS_F[-1])} to "
+            f"{_pf(DESIGN_SERIES_CAPACITORS_F[0])}, nor on a tap of {DESIGN_TAPS[-1]:.2f} to "
+            f"{DESIGN_TAPS[0]:.2f} of the turns: the designed coil covers only part of it (see the band coverage)")
+
+
+def _straight_words(band) -> str:
+    return (f"no coil covers {_khz(band[0])} to {_khz(band[1])} with room to spare with this capacitor "
+            "and the aerial straight to the tank")
+
+
+def _design_words(band, parts, ranked, couple, tap_open) -> list:
+    """Why :func:`design_coupling` chose its coupling and tap, in words: ``ranked`` is every (share, parts,
+    words, tap) tried, best first."""
+    best, trial, words, m = ranked[0]
+    taps = sorted({r[3] for r in ranked})
+    share = (f"at worst {_percent(best)} of the aerial's available power reaches the detector across the band "
+             "(the tuning table's \"to detector\")")
+    coupling_changed = couple and trial is not parts
+    if not coupling_changed and not tap_open:
+        return []
+    if coupling_changed:
+        others = [r for r in ranked[1:] if r[1] is not trial]
+        n = len({id(r[1]) for r in ranked})
+        lead = _straight_words(band) if not any(r[1] is parts for r in ranked) else \
+            "the aerial straight to the tank serves the detector less"
+        if tap_open:
+            text = (f"{lead}: the coupling is designed with the coil, and the detector's tap with them: {words} and "
+                    f"{_tap_words(m)}; {share}, the most of the {n} couplings that cover it, each tried with "
+                    f"{_taps_tried(taps)}")
+            if others:
+                text += (f"; the next best coupling, {others[0][2]} with {_tap_words(others[0][3])}, gives "
+                         f"{_percent(others[0][0])}")
+        else:
+            text = (f"{lead}: the coupling is designed with the coil, {words}: {share}, the most of the {n} "
+                    "couplings tried that cover it")
+            if len(ranked) > 1:
+                text += f"; the next best, {ranked[1][2]}, gives {_percent(ranked[1][0])}"
+    else:
+        text = (f"the detector's tap is designed with the coil, {_tap_words(m, True)}: {share}, the most of "
+                f"{_taps_tried(taps)}")
+    out = [text]
+    whole = next((r[0] for r in ranked if r[1] is trial and r[3] == 1.0), None)
+    if tap_open and m < 1.0 and whole is not None:
+        out.append(f"across the whole coil the detector would get at worst {_percent(whole)}: its input resistance, "
+                   "about half the earphone's impedance, is far below the tank's own and would load it heavily; on "
+                   "a tap it is stepped up by the square of the turns ratio towards the tank's resistance, which "
+                   "gives the detector the most power and keeps the tank selective")
+    return out
 
 
 def _strong_signal_conductance(parts):
@@ -1176,6 +1278,7 @@ def design_tuning(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts, 
         "coil": dict(coil.info),
         "detector": parts.detector,
         "earphone_ohm": float(parts.earphone_ohm),
+        "detector_tap_ratio": float(parts.detector_tap_fraction),
         "rows": rows,
         "coverage": coverage,
         "advice": advice,
@@ -2081,6 +2184,7 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
         "margin_source": "default" if parts.interference_margin_db is None else "site",
         "capacitor_given": parts.capacitor_min_f is not None,
         "capacitor_assumed": bool(parts.capacitor_assumed),
+        "detector_tap_designed": bool(parts.detector_tap_designed),
         "wanted": scene.names,
         "channel_spacing_hz": float(spacing_hz),
         "chosen": {**_design_dict(chosen, scene), **_versus(chosen, current, scene)},
@@ -2091,7 +2195,8 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
                      for r in rows if r["fits_yours"] or r["capacitor"] is not None],
         "notes": [],
     }
-    out["summary"] = _design_summary(out, parts.capacitor_min_f is not None, parts.capacitor_assumed)
+    out["summary"] = _design_summary(out, parts.capacitor_min_f is not None, parts.capacitor_assumed,
+                                     parts.detector_tap_designed)
     never = [n for n, ok in zip(scene.names, can_hear) if not ok]
     if never and can_hear.any():
         out["not_designed_for"] = never
@@ -2116,31 +2221,38 @@ def _remedies_for_designs(scene, parts, chosen, suggested, current, n_wanted) ->
         if row["meets_margin"] or not np.isfinite(row["worst_separation_db"]):
             continue
         words = _remedy_design_words(row, which, row is current, parts.capacitor_min_f is not None,
-                                     suggested is chosen, parts.capacitor_assumed)
+                                     suggested is chosen, parts.capacitor_assumed, parts.detector_tap_designed)
         for r in _remedies(scene, row, parts):
             out.append({**r, "applies_to": which, "applies_to_text": words})
     return out
 
 
-def parts_words(assumed: bool) -> dict:
-    """How the design's words name the site's tuning parts: the user's own, or the ones assumed for them.
+def parts_words(assumed: bool, designed: bool = False) -> dict:
+    """How the design's words name the site's tuning parts: the user's own, or the ones assumed for them;
+    and the parts as the site wires them ("as wired"), or as the band design chose them (``designed``: the
+    detector's tap, with the coil and perhaps the coupling, chosen by :func:`design_coupling`).
 
-    >>> parts_words(False)["coil and capacitor"], parts_words(True)["parts"]
-    ('your coil and capacitor', 'the assumed parts')
+    >>> parts_words(False)["coil and capacitor"], parts_words(True)["parts"], parts_words(True, True)["as wired"]
+    ('your coil and capacitor', 'the assumed parts', 'as designed for the band')
     """
+    wired = "as designed for the band" if designed else "as wired"
     if assumed:
         return {"coil and capacitor": "the designed coil and the assumed capacitor", "capacitor": "the assumed capacitor",
-                "parts": "the assumed parts"}
-    return {"coil and capacitor": "your coil and capacitor", "capacitor": "your capacitor", "parts": "your parts"}
+                "parts": "the assumed parts", "as wired": wired}
+    if designed:
+        return {"coil and capacitor": "the designed coil and your capacitor", "capacitor": "your capacitor",
+                "parts": "the designed parts", "as wired": wired}
+    return {"coil and capacitor": "your coil and capacitor", "capacitor": "your capacitor", "parts": "your parts",
+            "as wired": wired}
 
 
-def _remedy_design_words(row, which, as_wired, capacitor_given, same, assumed=False) -> str:
+def _remedy_design_words(row, which, as_wired, capacitor_given, same, assumed=False, designed=False) -> str:
     """Which design a set of remedies is worked out for, in words ("for your parts as wired", ...)."""
-    how = "the coupling and taps as wired" if as_wired else (
+    said = parts_words(assumed, designed)
+    how = f"the coupling and taps {said['as wired']}" if as_wired else (
         f"{_setting_text(row['coupling'])}, detector at {row['detector_tap_fraction']:.2f} of the turns")
     if which == "yours" and capacitor_given:
-        said = parts_words(assumed)
-        who = f"{said['parts']} as wired" if as_wired else f"{said['coil and capacitor']} with {how}"
+        who = f"{said['parts']} {said['as wired']}" if as_wired else f"{said['coil and capacitor']} with {how}"
         return f"for {who}" + (" (the suggestion too)" if same else "")
     cap = row.get("capacitor")
     cap_words = f", a {cap[1] * 1e12:.0f}–{cap[0] * 1e12:.0f} pF capacitor" if cap is not None else ""
@@ -2315,12 +2427,12 @@ def _versus(row, current, scene) -> dict:
     return out
 
 
-def _design_line(r, cur, margin, capacitor_words) -> str:
-    """One recommendation in words, its numbers beside it."""
-    what = "keep the coupling and taps as wired" if r["as_wired"] else \
+def _design_line(r, cur, margin, capacitor_words, wired="as wired") -> str:
+    """One recommendation in words, its numbers beside it; ``wired`` names the parts the design is compared with."""
+    what = f"keep the coupling and taps {wired}" if r["as_wired"] else \
         f"{r['setting']}, detector at {r['detector_tap_ratio']:.2f} of the turns"
     if capacitor_words:
-        what = f"{capacitor_words}, keeping the coupling and taps as wired" if r["as_wired"] else \
+        what = f"{capacitor_words}, keeping the coupling and taps {wired}" if r["as_wired"] else \
             f"{capacitor_words} with {what}"
     name = r["weakest_station"]
     if r["weakest_detector_power_w"] > 0:
@@ -2331,21 +2443,21 @@ def _design_line(r, cur, margin, capacitor_words) -> str:
         pass
     else:
         before = r["weakest_station_as_wired_w"]
-        text += f" ({eng_w(before)} as wired" if before > 0 else " (out of the capacitor's reach as wired"
+        text += f" ({eng_w(before)} {wired}" if before > 0 else f" (out of the capacitor's reach {wired}"
         if before > 0:
             ch = 10.0 * np.log10(max(r["weakest_detector_power_w"], 1e-300) / before)
             text += f": {abs(ch):.1f} dB {'more' if ch >= 0 else 'less'}"
         text += ")"
     missed = [n for n in cur.get("out_of_reach", []) if r["as_wired"] is False and n != name]
     if missed:
-        text += f"; as wired, the capacitor cannot reach {', '.join(missed)}"
+        text += f"; {wired}, the capacitor cannot reach {', '.join(missed)}"
     if r["meets_margin"]:
         text += f"; every other listed station stays at least {margin:g} dB below"
         before = r.get("weakest_station_as_wired_w", 0.0)
         if before > 0 and r["weakest_detector_power_w"] < before * 10.0 ** (-NO_WORSE_DB_WORDS / 10.0):
             loss = 10.0 * np.log10(before / max(r["weakest_detector_power_w"], 1e-300))
-            text += (f" — {loss:.1f} dB less for {name} than as wired, accepted because it buys the {margin:g} dB "
-                     "margin the parts as wired miss")
+            text += (f" — {loss:.1f} dB less for {name} than {wired}, accepted because it buys the {margin:g} dB "
+                     f"margin the parts {wired} miss")
     elif r["separated"] and r["inaudible"]:
         text += (f"; the others stay {margin:g} dB down but {', '.join(r['inaudible'])} stays below the earphone's "
                  "audibility threshold — not a success")
@@ -2377,14 +2489,14 @@ def eng_w(p) -> str:
 NO_WORSE_DB_WORDS = sd_mod.NO_WORSE_DB
 
 
-def _design_summary(d, capacitor_given, assumed=False) -> list:
+def _design_summary(d, capacitor_given, assumed=False, designed=False) -> list:
     """The recommendations in words: with the site's coil and capacitor (or the ones assumed for it), and with a
-    standard capacitor."""
+    standard capacitor; against the parts as wired, or as the band design chose them (``designed``)."""
     m, cur = d["margin_db"], d["current"]
-    said = parts_words(assumed)
+    said = parts_words(assumed, designed)
     lines = []
     if capacitor_given:
-        lines.append(f"with {said['coil and capacitor']}: " + _design_line(d["chosen"], cur, m, ""))
+        lines.append(f"with {said['coil and capacitor']}: " + _design_line(d["chosen"], cur, m, "", said["as wired"]))
     s, c = d["suggested"], d["chosen"]
     same = capacitor_given and (s["setting"], s["detector_tap_ratio"]) == (c["setting"], c["detector_tap_ratio"])
     if "standard_capacitor_max_f" in s and not (s["as_wired"] and capacitor_given):
@@ -2395,13 +2507,13 @@ def _design_summary(d, capacitor_given, assumed=False) -> list:
                          f"{s['standard_capacitor_min_f'] * 1e12:.0f}–{s['standard_capacitor_max_f'] * 1e12:.0f} pF "
                          "one would too)")
         else:
-            lines.append("suggested: " + _design_line(s, cur, m, words))
+            lines.append("suggested: " + _design_line(s, cur, m, words, said["as wired"]))
     elif capacitor_given and s["as_wired"]:
         why = ("no common capacitor with another coupling or tap does better for the weakest wanted station")
         if cur.get("out_of_reach"):
             why = (f"no common capacitor with another coupling or tap reaches {', '.join(cur['out_of_reach'])} "
                    "without leaving a station these parts hear worse off")
-        lines.append(f"suggested: keep {said['parts']} as wired ({why})")
+        lines.append(f"suggested: keep {said['parts']} {said['as wired']} ({why})")
     elif not lines:
         lines.append("no common variable capacitor reaches every wanted station with this coil: a different coil "
                      "is needed")

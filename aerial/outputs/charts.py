@@ -317,7 +317,8 @@ def station_design_figure(result):
                            s=18, facecolors=colour if ok else "none", edgecolors=colour,
                            label=plain_label(arr) + ("" if ok else " (misses the margin)"))
     parts = "the assumed parts" if design.get("capacitor_assumed") else "your parts"
-    for key, marker, label in (("current", "x", f"{parts} as wired"), ("chosen", "o", f"best with {parts}"),
+    wired = "as designed for the band" if design.get("detector_tap_designed") else "as wired"
+    for key, marker, label in (("current", "x", f"{parts} {wired}"), ("chosen", "o", f"best with {parts}"),
                                ("suggested", "D", "suggested (standard capacitor)")):
         r = design.get(key) or {}
         if key == "chosen" and not design.get("capacitor_given", True):

@@ -13,6 +13,7 @@ from aerial.outputs.page import (VERDICT_CLASS, VERDICT_MARK, bullets, dict_rows
                                  format_value, generic_block, key_label, length_range_text, range_text, section,
                                  site_file_name, table)
 from aerial.outputs.terminal import (Lengths, audible_dial_words, untunable_words, centre_index, design_power_words, design_separation_words,
+                                     coupling_words, detector_tap_words,
                                      design_shown_rows, detector_power_words, effective_length_words, eng,
                                      tuning_cell_text)
 
@@ -313,7 +314,8 @@ def _station_design_block(result, L: Lengths) -> str:
             + bullets(summary + remedies, "advice", L) + bullets(design.get("notes", []), "notes", L)
             + figure(charts.station_design_chart(result), "The weakest wanted station's power at the detector against "
                      f"the rejection of the next channel, one mark per coupling and detector tap; the best with {parts} "
-                     f"ringed, the suggestion with a standard capacitor a diamond, {parts} as wired crossed",
+                     f"ringed, the suggestion with a standard capacitor a diamond, {parts} "
+                     f"{'as designed for the band' if design.get('detector_tap_designed') else 'as wired'} crossed",
                      "station-tuning"))
     return section("station-design", "Tuning for your stations", body, "sheet")
 
@@ -323,7 +325,7 @@ def _tuning_section(result, L: Lengths) -> str:
     if not tuning:
         return ""
     band, coil = tuning.get("band") or {}, tuning.get("coil") or {}
-    intro = (f"{tuning.get('arrangement', '')} coupling for {band.get('name', 'the band')}, coil "
+    intro = (f"{coupling_words(tuning)} for {band.get('name', 'the band')}, coil "
              f"{eng(coil.get('inductance_h'), 'H')}")
     if coil.get("turns"):
         intro += f" ({coil['turns']:.0f} turns" + (f" over {L(coil['winding_length_m'])}"
@@ -331,6 +333,8 @@ def _tuning_section(result, L: Lengths) -> str:
     if coil.get("self_capacitance_f"):
         intro += (f", self-capacitance {eng(coil['self_capacitance_f'], 'F')} (Medhurst; part of the total C), "
                   f"self-resonance {eng(coil.get('self_resonance_hz'), 'Hz')}")
+    if detector_tap_words(tuning):
+        intro += f", {detector_tap_words(tuning)}"
     if tuning.get("source") == "measured":
         intro += "; aerial from the bench measurement"
     if tuning.get("channel_spacings_hz"):
@@ -342,7 +346,8 @@ def _tuning_section(result, L: Lengths) -> str:
         mark = "✔" if cov.get("covered") else "⚠"
         verdict = f'<p class="verdict {klass}"><strong>Band coverage:</strong> {mark} {esc(L.text(cov["verdict"]))}</p>'
     known = {"arrangement", "coil", "detector", "earphone_ohm", "rows", "coverage", "advice", "notes", "warnings",
-             "band", "source", "range_curve",
+             "band", "source", "range_curve", "detector_tap_ratio", "detector_tap_designed", "coupling_designed",
+             "designed_tap_ratio", "designed_series_capacitance_f",  # said in the intro
              "station_design", "channel_spacings_hz"}  # the stations' tuning design has its own block
     extra = "".join(f"<h3>{esc(key_label(k).capitalize())}</h3>{generic_block(k, v, L)}"
                     for k, v in tuning.items() if k not in known and v not in (None, [], {}, ""))

@@ -570,7 +570,7 @@ def _render_tuning(tuning, console, L: Lengths) -> None:
     rows = tuning.get("rows") or []
     band = tuning.get("band", {})
     coil = tuning.get("coil", {})
-    title = f"Tuning: {tuning.get('arrangement', '')} coupling, {band.get('name', '')}, coil {eng(coil.get('inductance_h'), 'H')}"
+    title = f"Tuning: {coupling_words(tuning)}, {band.get('name', '')}, coil {eng(coil.get('inductance_h'), 'H')}"
     if coil.get("turns"):
         title += f" ({coil['turns']:.0f} turns"
         if coil.get("winding_length_m"):
@@ -579,6 +579,9 @@ def _render_tuning(tuning, console, L: Lengths) -> None:
     if coil.get("self_capacitance_f"):
         title += (f", self-capacitance {eng(coil['self_capacitance_f'], 'F')} (Medhurst; in the total C), "
                   f"self-resonance {eng(coil.get('self_resonance_hz'), 'Hz')}")
+    detector = detector_tap_words(tuning)
+    if detector:
+        title += f", {detector}"
     if tuning.get("source") == "measured":
         title += " — aerial from the bench measurement"
     if rows:
@@ -609,6 +612,38 @@ def _render_tuning(tuning, console, L: Lengths) -> None:
         console.print(f"  → {escape(L.text(line))}")
     for line in tuning.get("notes", []):
         console.print(f"[dim]{escape(L.text(line))}[/dim]")
+
+
+def coupling_words(tuning: dict) -> str:
+    """The tuning's coupling in words, with its part when the band design chose it, the same in the report and on
+    the page.
+
+    >>> coupling_words({"arrangement": "coil tap", "coupling_designed": True, "designed_tap_ratio": 0.1})
+    'coil tap coupling (aerial at 0.10 of the turns, designed)'
+    """
+    text = f"{tuning.get('arrangement', '')} coupling"
+    if tuning.get("coupling_designed") and tuning.get("designed_tap_ratio") is not None:
+        text += f" (aerial at {tuning['designed_tap_ratio']:.2f} of the turns, designed)"
+    elif tuning.get("coupling_designed") and tuning.get("designed_series_capacitance_f") is not None:
+        text += f" ({eng(tuning['designed_series_capacitance_f'], 'F')}, designed)"
+    return text
+
+
+def detector_tap_words(tuning: dict) -> str:
+    """Where the tuning's detector joins the coil, in words, the same in the report and on the page; "" for
+    the top of the coil as the site leaves it (the usual case, not said).
+
+    >>> detector_tap_words({"detector_tap_ratio": 0.2, "detector_tap_designed": True})
+    'detector at 0.20 of the turns (designed)'
+    >>> detector_tap_words({"detector_tap_ratio": 1.0})
+    ''
+    """
+    tap = tuning.get("detector_tap_ratio")
+    designed = bool(tuning.get("detector_tap_designed"))
+    if tap is None or (tap >= 1.0 and not designed):
+        return ""
+    where = "detector across the whole coil" if tap >= 1.0 else f"detector at {tap:.2f} of the turns"
+    return where + (" (designed)" if designed else "")
 
 
 def untunable_words(rows: list) -> str | None:
@@ -693,7 +728,9 @@ def design_shown_rows(design) -> list:
             best[r["arrangement"]] = r
     assumed = bool(design.get("capacitor_assumed"))  # the site gave no parts: a common capacitor was assumed
     own = "assumed" if assumed else "yours"
-    shown = [("as assumed" if assumed else "as wired", design["current"],
+    # the parts the band design chose (its detector tap, with the coil): "as designed", never the site's own
+    first = "as designed" if design.get("detector_tap_designed") else ("as assumed" if assumed else "as wired")
+    shown = [(first, design["current"],
               own if design.get("capacitor_given", True) else "not given")]
     chosen, suggested = design["chosen"], design.get("suggested") or design["chosen"]
     if not chosen.get("as_wired") and chosen.get("fits_your_capacitor"):

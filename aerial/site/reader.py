@@ -278,6 +278,7 @@ class Receiver(NamedTuple):
     detector_tap_fraction: float = 1.0
     interference_margin_db: float | None = None
     coupling_given: bool = False  # whether [receiver] names its coupling (else "direct" by default)
+    detector_tap_given: bool = False  # whether [receiver] gives detector_tap (else the top, 1, or a designed one)
 
 
 @dataclass
@@ -916,7 +917,7 @@ def _receiver(r: TableReader, raw) -> Receiver:
         coupling_capacitor_f=cc, tap_fraction=tap, primary_inductance_h=primary, coupling_factor=kf,
         detector=detector, earphone_ohm=ear_ohm, measured=measured, given="at" in t,
         detector_tap_fraction=1.0 if det_tap is None else det_tap, interference_margin_db=margin,
-        coupling_given="coupling" in t,
+        coupling_given="coupling" in t, detector_tap_given=det_tap is not None,
     )
 
 
