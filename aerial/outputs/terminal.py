@@ -973,6 +973,18 @@ COIL_ROWS = (
 )
 
 
+def _plain_number(value) -> str:
+    """A count or ratio as a winder reads it: four significant figures, thousands grouped, never 3.881e+04.
+
+    >>> _plain_number(38806), _plain_number(68.7949), _plain_number(5.1109), _plain_number(69)
+    ('38,806', '68.79', '5.111', '69')
+    """
+    v = float(value)
+    if abs(v) >= 1e4:
+        return f"{round(v):,}"
+    return f"{v:.4g}"
+
+
 def render_coil(result: dict, console, units: str = "si") -> None:
     L = Lengths(units)
     t = Table(title="Single-layer coil", title_justify="left")
@@ -982,7 +994,7 @@ def render_coil(result: dict, console, units: str = "si") -> None:
         value = result.get(key)
         if value is None:
             continue
-        text = L(value, 4) if unit == "m" else eng(value, unit) if unit else f"{value:.4g}"
+        text = L(value, 4) if unit == "m" else eng(value, unit) if unit else _plain_number(value)
         t.add_row(label, text)
     show(console, t)
     if result.get("converged") is False:
