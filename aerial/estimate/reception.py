@@ -17,7 +17,8 @@ each out-of-grid station's own frequency to the grid first).
 Assumptions (stated, not published figures) are module constants below.
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
+# string that typing compiles when the class is made, a cost paid at each start-up.
 
 import functools
 import math

@@ -4,7 +4,8 @@ Frame: metres, x east, y north, z up; z = 0 is the ground surface. Shapely
 geometries are plan views (x, y) in the same frame.
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
+# string that typing compiles when the class is made, a cost paid at each start-up.
 
 from typing import NamedTuple
 

@@ -27,7 +27,8 @@ References
    matching). (from memory)
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
+# string that typing compiles when the class is made, a cost paid at each start-up.
 
 import threading
 from typing import NamedTuple

@@ -23,7 +23,8 @@ References
    solenoids", Wireless Engineer, vol. 24, pp. 35-43 and 80-92, 1947 (from memory).
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
+# string that typing compiles when the class is made, a cost paid at each start-up.
 
 from typing import NamedTuple
 

@@ -45,7 +45,8 @@ References
    analysis", IEEE Trans. Circuits and Systems 22(6), 1975 (from memory).
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
+# string that typing compiles when the class is made, a cost paid at each start-up.
 
 import functools
 import math

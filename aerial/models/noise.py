@@ -12,7 +12,8 @@ References
    match a secondary quotation).
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
+# string that typing compiles when the class is made, a cost paid at each start-up.
 
 from typing import NamedTuple
 

@@ -72,7 +72,8 @@ References
    (from memory)
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
+# string that typing compiles when the class is made, a cost paid at each start-up.
 
 import functools
 from typing import NamedTuple

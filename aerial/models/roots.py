@@ -14,7 +14,8 @@ References
    (van Wijngaarden-Dekker-Brent method). (from memory)
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
+# string that typing compiles when the class is made, a cost paid at each start-up.
 
 import math
 from typing import Callable, NamedTuple

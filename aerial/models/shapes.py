@@ -20,7 +20,8 @@ Frame: metres, x east, y north, z up. Earth-lead (``grounded``) segments are
 not part of the shape; their length is reported.
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
+# string that typing compiles when the class is made, a cost paid at each start-up.
 
 from typing import NamedTuple
 

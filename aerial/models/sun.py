@@ -22,7 +22,8 @@ References
    (rising and setting; the standard altitude −0°50′ for the sun).
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
+# string that typing compiles when the class is made, a cost paid at each start-up.
 
 from typing import NamedTuple
 

@@ -20,7 +20,8 @@ distance is always inside the polygon: the polygon errs on the safe side by
 at most 0.2 % with the default 16 segments per quarter circle.
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
+# string that typing compiles when the class is made, a cost paid at each start-up.
 
 import math
 from typing import NamedTuple
@@ -81,7 +82,7 @@ def fall_zone_distance(tallest_height, line_height):
     return np.maximum(FALL_ZONE_FACTOR * h, hl)
 
 
-def fall_zone(path: LineString, distance: float, quad_segs: int = QUAD_SEGS):
+def fall_zone(path: "LineString", distance: float, quad_segs: int = QUAD_SEGS):
     """The fall zone around a line in plan: a polygon containing every point within ``distance``.
 
     Parameters

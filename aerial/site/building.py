@@ -11,7 +11,8 @@ building described gets a note that it is modelled in open ground.
 Frame: metres, x east, y north, z up; footprint corners in plan.
 """
 
-from __future__ import annotations
+# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
+# string that typing compiles when the class is made, a cost paid at each start-up.
 
 from typing import NamedTuple
 
@@ -74,7 +75,7 @@ class SiteBuilding(NamedTuple):
     assumed: tuple = ()
 
     @property
-    def outline(self) -> Polygon:
+    def outline(self) -> "Polygon":
         from shapely.geometry import Polygon
 
         return Polygon(self.footprint)
@@ -249,7 +250,7 @@ def _plan_floor(plan: Plan):
     return plan.balcony.floor_height_m if plan.balcony is not None else None
 
 
-def _outline(r: TableReader, value, key) -> Polygon:
+def _outline(r: TableReader, value, key) -> "Polygon":
     import shapely
     from shapely.geometry import Polygon
 
@@ -262,14 +263,14 @@ def _outline(r: TableReader, value, key) -> Polygon:
     return _oriented(poly)
 
 
-def _oriented(poly: Polygon) -> Polygon:
+def _oriented(poly: "Polygon") -> "Polygon":
     """The outline with its corners in the standard order (where shapely can orient it)."""
     import shapely
 
     return shapely.orient_polygons(poly) if hasattr(shapely, "orient_polygons") else poly
 
 
-def _corners(outline: Polygon) -> tuple:
+def _corners(outline: "Polygon") -> tuple:
     """The outline's plan corners, in order, the closing corner not repeated."""
     return tuple(map(tuple, np.asarray(outline.exterior.coords)[:-1]))
 
@@ -279,7 +280,7 @@ def _plan_structure(plan: Plan) -> str:
     return plan.balcony.structure if plan.balcony is not None else "unknown"
 
 
-def _check_wire_outside(r: TableReader, site, outline: Polygon, key: str, value):
+def _check_wire_outside(r: TableReader, site, outline: "Polygon", key: str, value):
     """Some piece of the aerial must run outside the building's outline in plan (beside it), as the building's
     model needs: it finds the facade the wire stands in front of from the pieces' midpoints (the aerial and its
     lead-in, as :func:`aerial.models.building.facade_static_figures` has them). A wire above the roof, inside
