@@ -16,7 +16,6 @@ import time
 
 from aerial.core.version import __version__
 from aerial.core.errors import AerialError, SafetyRefusal
-from aerial.core.units import closest_word
 
 EXIT_OK = 0
 EXIT_USER = 2
@@ -171,6 +170,8 @@ def _unknown_options(parser: argparse.ArgumentParser, words) -> list[str]:
 
 def _closest_option(parser: argparse.ArgumentParser, words) -> str | None:
     """The option of ``parser`` closest to the first of ``words`` that is a misspelt option, or None."""
+    from aerial.core.units import closest_word  # only for a mistake: ``aerial --version`` never loads the units
+
     options = {o.lstrip("-"): o for action in parser._actions for o in action.option_strings if o.startswith("--")}
     for word in _unknown_options(parser, words):
         close = closest_word(word.partition("=")[0].lstrip("-"), list(options))
@@ -182,6 +183,8 @@ def _closest_option(parser: argparse.ArgumentParser, words) -> str | None:
 def _closest_choice(message: str) -> str:
     """'; did you mean "report"?' for argparse's invalid-choice message when a choice is close, else ''."""
     import re
+
+    from aerial.core.units import closest_word
 
     m = re.search(r"invalid choice: '([^']*)' \(choose from (.*)\)", message)
     if not m:

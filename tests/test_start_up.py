@@ -87,6 +87,9 @@ def test_importing_the_command_line_loads_no_numpy_shapely_scipy_or_rich():
     out = _packages()
     for heavy in ("numpy", "shapely", "scipy", "rich", "matplotlib"):
         assert heavy not in out["loaded"], heavy
+    # nor the unit reader and its decimal arithmetic: ``aerial --version`` needs neither (a misspelt option
+    # loads the units for its "did you mean")
+    assert "decimal" not in out["loaded"]
 
 
 def test_a_report_with_no_plan_or_building_loads_no_shapely():

@@ -96,14 +96,15 @@ _SI_SYMBOLS = {"m": "metre", "hz": "hertz", "f": "farad", "h": "henry", "w": "wa
                "m^2": "square metre"}
 
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
-_QUANTITY = re.compile(r"^\s*(" + _NUMBER + r")\s*([^\s\d].*?)?\s*$")
+_QUANTITY = re.compile(r"^\s*(" + _NUMBER + r")\s*([^\s\d].*?)?\s*$")  # every quantity written as text
+# The patterns below are large to compile (about 1 ms at start-up together) and most site files need none of
+# them, so they stay texts that ``re`` compiles (and keeps) the first time a value may be of their form.
 # a fraction "5/8", a mixed number "1 1/2" or "1-1/2", or a decimal number
 _AMOUNT = r"(?:(\d+)(?:\s+|-)(\d+)\s*/\s*(\d+)|(\d+)\s*/\s*(\d+)|(\d+\.?\d*|\.\d+))"
-_FRACTION_QUANTITY = re.compile(r"^\s*" + _AMOUNT + r"\s*([^\s\d/].*?)\s*$")
-_FEET_INCHES = re.compile(r"^\s*" + _AMOUNT + r"\s*(?:ft|foot|feet|')\s*" + _AMOUNT + r"\s*(?:in|inch|inches|\")\s*$",
-                          re.IGNORECASE)
-_FEET_MARK = re.compile(r"^\s*" + _AMOUNT + r"\s*(')\s*$")
-_INCH_MARK = re.compile(r"^\s*" + _AMOUNT + r"\s*(\")\s*$")
+_FRACTION_QUANTITY = r"^\s*" + _AMOUNT + r"\s*([^\s\d/].*?)\s*$"
+_FEET_INCHES = r"^\s*" + _AMOUNT + r"\s*(?:ft|foot|feet|')\s*" + _AMOUNT + r"\s*(?:in|inch|inches|\")\s*$"  # any case
+_FEET_MARK = r"^\s*" + _AMOUNT + r"\s*(')\s*$"
+_INCH_MARK = r"^\s*" + _AMOUNT + r"\s*(\")\s*$"
 
 
 class UnitError(ValueError):
@@ -243,7 +244,7 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
         compound = _feet_and_inches(value)
         if compound is not None:
             return compound
-    fraction = _FRACTION_QUANTITY.match(value)
+    fraction = re.match(_FRACTION_QUANTITY, value) if "/" in value else None  # no "/": a decimal at most
     if fraction and fraction.group(6) is not None:
         fraction = None  # a plain decimal: read below, in full (exponent included)
     match = None if fraction else _QUANTITY.match(value)
@@ -299,13 +300,20 @@ def _comma_words(value: str) -> str:
 
 
 def _feet_and_inches(value: str) -> float | None:
-    """ "6 ft 3 in", "6'3\"", "6'" or "3\"" in metres, exactly; None when the text is not of that form. [m]"""
-    m = _FEET_INCHES.match(value)
+    """ "6 ft 3 in", "6'3\"", "6'" or "3\"" in metres, exactly; None when the text is not of that form. [m]
+
+    A text with neither mark (' or ") and not both an "f" and an "n" (a foot word and an inch word, in any
+    case) is none of these forms, and is turned down before any pattern is compiled.
+    """
+    lower = value.lower()
+    if "'" not in value and '"' not in value and ("f" not in lower or "n" not in lower):
+        return None
+    m = re.match(_FEET_INCHES, value, re.IGNORECASE)
     if m:
         feet, inches = _amount(m.groups()[:6]), _amount(m.groups()[6:12])
-    elif m := _FEET_MARK.match(value):
+    elif m := re.match(_FEET_MARK, value):
         feet, inches = _amount(m.groups()[:6]), 0
-    elif m := _INCH_MARK.match(value):
+    elif m := re.match(_INCH_MARK, value):
         feet, inches = 0, _amount(m.groups()[:6])
     else:
         return None
