@@ -543,3 +543,25 @@ def test_a_move_the_models_refuse_is_left_out_and_said(monkeypatch):
     assert 'What would help: "raise the wire 3 m" is left out' in text and "in front of the building" in text
     with pytest.raises(ModelInputError):
         assemble.what_if(site, 940e3, {})
+
+
+@pytest.mark.parametrize("written", [
+    "[[-10, -9], [-10, -9], [1, -9], [1, -0.3], [-10, -0.3]]",  # a corner written twice (found by the fuzzer,
+    # benchmarks/fuzz_sites.py --seed 72 --only 782: the check passed and the report refused)
+    "[[-10, -9], [1, -9], [1, -0.3], [-10, -0.3], [-10, -9]]",  # the ring closed by repeating the first corner
+])
+def test_a_corner_written_twice_is_one_corner(capsys, tmp_path, written):
+    """Consistency check between two spellings of the backyard example's house: the same figures."""
+    text = BACKYARD.read_text(encoding="utf-8")
+    original = "footprint = [[-10, -9], [1, -9], [1, -0.3], [-10, -0.3]]"
+    assert original in text
+    site = tmp_path / "site.toml"
+    site.write_text(text.replace(original, f"footprint = {written}"), encoding="utf-8")
+    code, out, err = run(capsys, "report", site, "--json")
+    assert code == 0, err
+    code, ref, err = run(capsys, "report", BACKYARD, "--json")
+    assert code == 0, err
+    got, want = json.loads(out), json.loads(ref)
+    assert got["building"]["facade_static_effective_height_m"] == pytest.approx(
+        want["building"]["facade_static_effective_height_m"], rel=1e-9)
+    assert got["what_if"][0]["available_power_w"] == pytest.approx(want["what_if"][0]["available_power_w"], rel=1e-9)

@@ -658,7 +658,9 @@ def plan_distance(points_xy, footprint):
     ab = b - a
     ax, ay, abx, aby = a[:, 0:1], a[:, 1:2], ab[:, 0:1], ab[:, 1:2]  # edges down the rows, points across
     px, py = p[:, 0], p[:, 1]
-    t = np.clip(((px - ax) * abx + (py - ay) * aby) / (abx * abx + aby * aby), 0.0, 1.0)
+    length2 = abx * abx + aby * aby
+    # a corner given twice makes an edge of no length: its nearest point is the corner itself (t = 0)
+    t = np.clip(((px - ax) * abx + (py - ay) * aby) / np.where(length2 > 0, length2, 1.0), 0.0, 1.0)
     ex, ey = px - (ax + t * abx), py - (ay + t * aby)  # from the nearest point of each edge
     dist = np.sqrt(np.min(ex * ex + ey * ey, axis=0))
     # inside: odd number of edge crossings of a ray towards +x

@@ -260,7 +260,7 @@ def _outline(r: TableReader, value, key) -> "Polygon":
     if not shapely.is_valid(poly) or poly.area <= 0:
         reason = shapely.is_valid_reason(poly) if not shapely.is_valid(poly) else "the corners enclose no area"
         r.fail(key, value, f"not a valid outline ({reason}); list the corners in order around the edge, without crossing")
-    return _oriented(poly)
+    return _oriented(shapely.remove_repeated_points(poly))  # a corner written twice is one corner
 
 
 def _oriented(poly: "Polygon") -> "Polygon":
