@@ -9,7 +9,6 @@ nothing of rich or the terminal.
 from __future__ import annotations
 
 import math
-from dataclasses import replace
 
 import numpy as np
 
@@ -552,7 +551,7 @@ def uncertainty(site, frequency, earth: dict, *, method: str = "closed-form", no
         # over real soil the soil under the aerial moves with the electrodes' soil: the worse end with the lowered wires
         site_lo, site_hi = site, site
         if ground != "perfect":
-            site_lo, site_hi = replace(site, soil=soil_bound(site.soil, "low")), replace(site, soil=soil_bound(site.soil, "high"))
+            site_lo, site_hi = site._replace(soil=soil_bound(site.soil, "low")), site._replace(soil=soil_bound(site.soil, "high"))
         lo = _headline(site_lo, _perturbed_wires(site, -1.0), f, lo_ohm, lumped_ohm=b["high_ohm"][-1], **run)
         hi = _headline(site_hi, _perturbed_wires(site, +1.0), f, hi_ohm, lumped_ohm=b["low_ohm"][-1], **run)
         label = "full wave" if ground == "perfect" else "full wave, the soil under the aerial at its bounds too"

@@ -12,8 +12,6 @@ Frame: metres, x east, y north, z up.
 
 from __future__ import annotations
 
-from dataclasses import replace
-
 import numpy as np
 
 from aerial.core.errors import ModelInputError
@@ -163,7 +161,7 @@ def wires_from_slab(site, floor_m: float) -> list:
 
 def planned_site(site, wires, floor_m: float = 0.0):
     """``site`` with its wires replaced by ``wires`` (the receiver's height reckoned from a balcony slab)."""
-    return replace(site, wires=wires, receiver=site.receiver._replace(height_m=max(site.receiver.height_m - floor_m,
+    return site._replace(wires=wires, receiver=site.receiver._replace(height_m=max(site.receiver.height_m - floor_m,
                                                                                    0.0)))
 
 

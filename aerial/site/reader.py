@@ -18,7 +18,6 @@ import math
 import os
 import re
 import tomllib
-from dataclasses import dataclass, field
 from typing import NamedTuple
 
 import numpy as np
@@ -281,9 +280,11 @@ class Receiver(NamedTuple):
     detector_tap_given: bool = False  # whether [receiver] gives detector_tap (else the top, 1, or a designed one)
 
 
-@dataclass
-class Site:
-    """A validated site: what the user described, resolved to metres and SI units."""
+class Site(NamedTuple):
+    """A validated site: what the user described, resolved to metres and SI units.
+
+    Immutable, as the records inside it are: ``site._replace(...)`` gives a changed copy.
+    """
 
     path: str
     name: str
@@ -299,9 +300,9 @@ class Site:
     electrodes: list
     stations: list
     field_strength_v_per_m: float
-    plan: dict = field(default_factory=dict)
-    notes: list = field(default_factory=list)
-    raw: dict = field(default_factory=dict)
+    plan: dict
+    notes: list
+    raw: dict
     latitude_deg: float | None = None
     longitude_deg: float | None = None
     season: str | None = None
@@ -462,10 +463,9 @@ def load_site_text(text: str, path: str = "<text>") -> Site:
         raise SiteError(path, "", "", f"not valid TOML ({msg})", line=line) from None
     r = TableReader(path, text)
     site = _build(r, raw, text, path)
-    plan = site.parsed_plan = parse_plan(site)
-    site.building = parse_building(site, plan)
-    site.apartment = plan.building == "apartment"
-    return site
+    plan = parse_plan(site)
+    site = site._replace(parsed_plan=plan)
+    return site._replace(building=parse_building(site, plan), apartment=plan.building == "apartment")
 
 
 TOP_KEYS = {
