@@ -105,6 +105,23 @@ class _HelpFormatter(argparse.HelpFormatter):
                          _terminal_columns() - 2 if width is None else width)
 
 
+class _Version(argparse.Action):
+    """``--version``: print ``aerial X.Y.Z`` and exit, as argparse's own version action does.
+
+    argparse's lays the line out with its help formatter, which loads textwrap for one short line.
+    """
+
+    def __init__(self, option_strings, dest=argparse.SUPPRESS, default=argparse.SUPPRESS, help=None):
+        super().__init__(option_strings=option_strings, dest=dest, default=default, nargs=0, help=help)
+
+    def __call__(self, parser, namespace, values, option_string=None):
+        try:
+            sys.stdout.write(f"aerial {__version__}\n")
+        except (AttributeError, OSError):  # no stdout, or a closed one: as argparse's action, say nothing
+            pass
+        parser.exit()
+
+
 class _Parser(argparse.ArgumentParser):
     """A parser that takes an option only as spelt in full and says a mistake in one line.
 
@@ -149,9 +166,40 @@ class _Parser(argparse.ArgumentParser):
                           f"(see '{self.prog} --help')")
 
 
+class _Later:
+    """A command's parser as ``add_parser`` describes it, kept until :meth:`_Commands.parser` makes it."""
+
+    def __init__(self, **kwargs):
+        self.kwargs = kwargs
+
+
+class _Commands(argparse._SubParsersAction):
+    """The commands, each one's parser made the first time it is needed (its command run or its help shown).
+
+    argparse looks its message catalogue up three times to set a parser up (a few file-system checks each),
+    so a run makes the parser of its own command only; ``aerial --help`` lists the commands from their help
+    lines alone.
+    """
+
+    def __call__(self, parser, namespace, values, option_string=None):
+        self.parser(values[0])
+        super().__call__(parser, namespace, values, option_string)
+
+    def parser(self, name: str) -> _Parser:
+        """The parser of command ``name``, made now if it was not yet."""
+        made = self.choices[name]
+        if isinstance(made, _Later):
+            made = self.choices[name] = _Parser(**made.kwargs)
+        return made
+
+    def parsers(self) -> dict:
+        """Every command's parser by name (the docs' command reference shows them all)."""
+        return {name: self.parser(name) for name in self.choices}
+
+
 def _unrecognized(parser: argparse.ArgumentParser, command: str | None, extras: list[str]) -> AerialError:
     """The one line for words no option takes: the command, the words, the closest option when one is near."""
-    own = parser.command_parsers.get(command, parser) if command else parser
+    own = parser.commands.parser(command) if command else parser
     close = _closest_option(own, extras)
     return AerialError(f"{command + ': ' if command else ''}unrecognized arguments: {' '.join(extras)}"
                        + (f'; did you mean "{close}"?' if close else "") + f" (see '{own.prog} --help')")
@@ -284,14 +332,14 @@ def _coil_options(coil: argparse.ArgumentParser) -> None:
 
 
 def build_parser() -> argparse.ArgumentParser:
-    """The command line's parser; a command's own options are added when that command is parsed or shown."""
+    """The command line's parser; a command's parser and options are made when that command is parsed or shown."""
     p = _Parser(
         prog="aerial",
         description="Estimate how well a wire receiving aerial and its earth system will work.",
         epilog="Site files are TOML; see docs/site-file.md. Figures are estimates: local codes and licensed practice govern.",
     )
-    p.add_argument("--version", action="version", version=f"aerial {__version__}")
-    sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    p.add_argument("--version", action=_Version, help="show program's version number and exit")
+    sub = p.commands = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Later, action=_Commands)
     sub.add_parser("check", help="validate a site file and summarise the wires as aerial understood them",
                    description="Validate a site file and summarise the resolved wires.", options=_check_options)
     sub.add_parser("report", help="run the whole chain: aerial figures, earth, tuning, stations, cautions",
@@ -303,7 +351,6 @@ def build_parser() -> argparse.ArgumentParser:
     sub.add_parser("coil", help="single-layer coil helper: inductance from turns, or turns for an inductance",
                    description="Single-layer solenoid: inductance from turns, or turns for a wanted inductance.",
                    options=_coil_options)
-    p.command_parsers = dict(sub.choices)  # for the line on an unrecognized option
     return p
 
 

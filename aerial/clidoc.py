@@ -17,8 +17,7 @@ def cli_markdown() -> str:
         parser = build_parser()
         parts = ["# Command reference", "", "Generated from `aerial --help` by `python -m aerial.clidoc`; do not edit by hand.", ""]
         parts += ["## aerial", "", "```", parser.format_help().rstrip(), "```", ""]
-        sub = next(a for a in parser._actions if a.__class__.__name__ == "_SubParsersAction")
-        for name, p in sub.choices.items():
+        for name, p in parser.commands.parsers().items():
             parts += [f"## aerial {name}", "", "```", p.format_help().rstrip(), "```", ""]
         parts += [
             "## Exit codes",

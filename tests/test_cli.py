@@ -416,7 +416,7 @@ def test_every_parser_takes_options_only_in_full():
 
     parser = build_parser()
     assert not parser.allow_abbrev
-    assert all(not sub.allow_abbrev for sub in parser.command_parsers.values())
+    assert all(not sub.allow_abbrev for sub in parser.commands.parsers().values())
 
 
 def test_coil_helper_says_when_the_q_frequency_is_at_or_near_the_coils_self_resonance(capsys):
