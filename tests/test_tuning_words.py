@@ -217,3 +217,24 @@ def _json_text(capsys, path):
     out, _ = capsys.readouterr()
     assert code == 0
     return out
+
+
+def test_consistency_untunable_stretches_each_named():
+    # consistency check: a long wire that cannot be tuned at the bottom of the band, tunes again
+    # between its resonances and cannot at the top; the sentence names both stretches and never
+    # says "from the bottom up" over rows the table shows tuned (rows invented, 10 kHz apart)
+    from aerial.outputs.terminal import untunable_words
+
+    freqs = np.arange(520e3, 1711e3, 10e3)
+    stuck = (freqs <= 780e3) | (freqs >= 1600e3)
+    rows = [{"frequency_hz": float(f), "resonates_with_positive_capacitor": not s,
+             "reason": "cannot tune here: the aerial alone gives 65.1 pF, more than the 26.1 pF needed"}
+            for f, s in zip(freqs, stuck)]
+    said = untunable_words(rows)
+    assert said.startswith("From 520 kHz to 780 kHz and from 1.6 MHz up: cannot tune here; at 1.71 MHz ")
+    # one stretch ending below the top of the band is closed, not "up"
+    low_only = [dict(r, resonates_with_positive_capacitor=r["frequency_hz"] > 780e3) for r in rows]
+    assert untunable_words(low_only).startswith("From 520 kHz to 780 kHz: cannot tune here; at 780 kHz ")
+    # one stretch to the top of the band reads as before
+    top_only = [dict(r, resonates_with_positive_capacitor=r["frequency_hz"] < 1600e3) for r in rows]
+    assert untunable_words(top_only).startswith("From 1.6 MHz up: cannot tune here; at 1.71 MHz ")

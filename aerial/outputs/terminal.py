@@ -651,18 +651,44 @@ def untunable_words(rows: list) -> str | None:
 
     The reason is quoted at the highest such frequency, where the aerial's excess over the
     capacitance needed is plain: at the first one the two are nearly equal, since that is where
-    tuning ends. None when every row resonates.
+    tuning ends. Where the rows that cannot be tuned come in more than one stretch (a long wire
+    tunes again between its resonances), each stretch is named. None when every row resonates.
+
+    >>> rows = [{"frequency_hz": f, "resonates_with_positive_capacitor": 7e5 < f < 1.6e6,
+    ...          "reason": "cannot tune here: the aerial alone gives 65 pF"} for f in (5.2e5, 6e5, 1e6, 1.7e6)]
+    >>> untunable_words(rows)
+    'From 520 kHz to 600 kHz and from 1.7 MHz up: cannot tune here; at 1.7 MHz the aerial alone gives 65 pF'
     """
-    stuck = [r for r in rows if r.get("resonates_with_positive_capacitor") is False]
-    if not stuck:
+    stretches: list[list] = []
+    previous = False
+    for r in rows:
+        stuck_here = r.get("resonates_with_positive_capacitor") is False
+        if stuck_here:
+            if previous:
+                stretches[-1].append(r)
+            else:
+                stretches.append([r])
+        previous = stuck_here
+    if not stretches:
         return None
-    first, last = stuck[0], stuck[-1]
+    last = stretches[-1][-1]
     reason = str(last.get("reason") or "cannot tune here")
     head, _, why = reason.partition(": ")
     at = eng(last.get("frequency_hz"), "Hz")
-    if first is last or not why:
-        return f"At {at}: {reason}" if first is last else f"From {eng(first.get('frequency_hz'), 'Hz')} up: {reason}"
-    return f"From {eng(first.get('frequency_hz'), 'Hz')} up: {head}; at {at} {why}"
+    if len(stretches) == 1 and len(stretches[0]) == 1:
+        return f"At {at}: {reason}"
+    where = []
+    for i, s in enumerate(stretches):
+        low, high = eng(s[0].get("frequency_hz"), "Hz"), eng(s[-1].get("frequency_hz"), "Hz")
+        if i == len(stretches) - 1 and s[-1] is rows[-1]:
+            where.append(f"from {low} up")
+        elif len(s) == 1:
+            where.append(f"at {low}")
+        else:
+            where.append(f"from {low} to {high}")
+    said = " and ".join(where)
+    said = said[0].upper() + said[1:]
+    return f"{said}: {reason}" if not why else f"{said}: {head}; at {at} {why}"
 
 
 def tuning_cell_text(row: dict, key: str, unit: str) -> str:
