@@ -235,7 +235,7 @@ def test_receiver_without_coil_or_capacitor_gets_a_designed_coil(capsys, write_s
     assert code == 0, err
     tuning = json.loads(out)["tuning"]
     assert tuning["coil"]["inductance_h"] > 0
-    assert any("15-365 pF" in n for n in tuning["notes"])
+    assert any("15–365 pF" in n for n in tuning["notes"])
 
 
 @pytest.mark.parametrize("key, value, words", [

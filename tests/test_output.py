@@ -276,3 +276,16 @@ def test_building_line_writes_its_height_as_the_tables_write_a_length(capsys, un
     assert code == 0
     assert expected in out
     assert "21.0 m high" not in out
+
+
+def test_consistency_ranges_in_sentences_take_the_tables_en_dash(capsys):
+    # consistency check: the tables write a range "6.5–6.7 m"; a sentence giving one (the building's
+    # effective-height spread, the no-building caution, the assumed capacitor) writes it the same way
+    import re
+
+    code, out, _ = run(capsys, "report", EXAMPLES + "backyard_inverted_l.toml", "--width", "400", "--quiet")
+    assert code == 0
+    spread = re.search(r"effective height is about [\d.]+ m \(([\d.]+)(.)([\d.]+) m as the structure", out)
+    assert spread and spread.group(2) == "–", out
+    code, out, _ = run(capsys, "report", EXAMPLES + "backyard_inverted_l.toml", "--json", "--quiet")
+    assert code == 0 and not re.search(r"\d-\d", " ".join(json.loads(out)["warnings"]))

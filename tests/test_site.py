@@ -252,3 +252,21 @@ def test_a_band_in_everyday_words_gets_a_hint_on_its_own_line(tmp_path, capsys):
     assert main(["check", str(p)]) == 2
     err = capsys.readouterr().err
     assert err.startswith(f'aerial: {p}:4: site.bands[0] = "AM": did you mean "mf" (the medium-wave AM broadcast band')
+
+
+def test_consistency_soil_word_notes_give_the_resistivities_as_the_site_file_guide_does():
+    # consistency check: the note a soil word brings writes its typical resistivity (BS 7430, from
+    # memory) as docs/site-file.md's table does: an en dash between the ends and the unit Ω·m
+    import re
+    from pathlib import Path
+
+    from aerial.core.materials import SOIL_WORDS, soil_category
+
+    guide = (Path(__file__).resolve().parents[1] / "docs" / "site-file.md").read_text(encoding="utf-8")
+    for word in SOIL_WORDS:
+        category, note = soil_category(word)
+        figure = re.search(r"(\d[\d.–]* Ω·m)", note)
+        assert figure, note
+        row = next(line for line in guide.splitlines() if line.startswith(f"| `{word}`"))
+        assert figure.group(1) in row, (note, row)
+        assert "ohm m" not in note and not re.search(r"\d-\d", note)

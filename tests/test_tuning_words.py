@@ -152,7 +152,7 @@ def test_consistency_power_words_and_table_cells_share_one_prefix_rule():
     assert (watts_words(999.7e-12, 3), watts_words(1e-9), watts_words(2.4e-21)) == ("1 nW", "1 nW", "less than 0.01 fW")
 
 
-#: An invented backyard wire with no coil or capacitor given, its 235 pF swamping the assumed 15-365 pF
+#: An invented backyard wire with no coil or capacitor given, its 235 pF swamping the assumed 15–365 pF
 #: capacitor: no coil covers the band, so the design note names the coil it chose.
 SWAMPED = """
 [site]

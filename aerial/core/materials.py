@@ -108,13 +108,13 @@ SOILS: dict[str, Soil] = {
 #: upwards, rock 1000 ohm m and upwards. Where a range spans two categories the drier is taken, so a
 #: word never promises a better earth than the ground gives.
 SOIL_WORDS: dict[str, tuple[str, str]] = {
-    "marsh": ("wet", "marshy ground, 2-2.7 ohm m"),
-    "clay": ("wet", "loam and clay, 4-150 ohm m"),
-    "loam": ("wet", "loam and clay, 4-150 ohm m"),
-    "chalk": ("intermediate", "chalk, 60-400 ohm m"),
-    "peat": ("intermediate", "peat, 200 ohm m and upwards"),
-    "sand": ("dry", "sand, 90-8000 ohm m"),
-    "rock": ("very-dry", "rock, 1000 ohm m and upwards"),
+    "marsh": ("wet", "marshy ground, 2–2.7 Ω·m"),
+    "clay": ("wet", "loam and clay, 4–150 Ω·m"),
+    "loam": ("wet", "loam and clay, 4–150 Ω·m"),
+    "chalk": ("intermediate", "chalk, 60–400 Ω·m"),
+    "peat": ("intermediate", "peat, 200 Ω·m and upwards"),
+    "sand": ("dry", "sand, 90–8000 Ω·m"),
+    "rock": ("very-dry", "rock, 1000 Ω·m and upwards"),
 }
 #: Other spellings of the same words.
 SOIL_WORD_ALIASES: dict[str, str] = {

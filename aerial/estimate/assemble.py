@@ -1080,7 +1080,7 @@ def building_section(geometry, resp) -> dict:
         most, nominal, least = fig["static_effective_height_range_m"]
         text += words(" Beside it the wire's effective height is about {nominal} ({spread} as the structure conducts "
                       "better or worse; {open} in open ground).", nominal=metres(nominal),
-                      spread=metres_range(least, most),
+                      spread=metres_range(least, most, "m", "–"),
                       open=metres(fig["open_ground_static_effective_height_m"]))
         text += _building_currents_words(resp, fig)
         if fig.get("screened_wire_m", 0.0) > 0.05 and body.shielding[1] >= 0.5:

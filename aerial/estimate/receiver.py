@@ -151,7 +151,7 @@ def receiver_results(site, freqs, resp, beyond=None) -> tuple[dict, list, list]:
     tuning["source"] = "measured" if parts.calibration else "estimate"
     if _needs_assumed_capacitor(site.receiver):
         tuning.setdefault("notes", []).insert(0, (
-            "No coil or capacitor given: the coil is designed for a common 15-365 pF variable capacitor (an "
+            "No coil or capacitor given: the coil is designed for a common 15–365 pF variable capacitor (an "
             "assumption). Give [receiver] coil and capacitor to check your own parts."))
     if coupling_notes:
         at = 1 if _needs_assumed_capacitor(site.receiver) else 0

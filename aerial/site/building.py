@@ -311,7 +311,7 @@ def open_ground_notes(site) -> list[str]:
     if not on:
         return []
     return [f"The wire is fixed to a building ({', '.join(on)}) but no [building] is described, so it is modelled "
-            "as a wire over open ground; a concrete or steel building beside it can take 10-20 dB off the signal. "
+            "as a wire over open ground; a concrete or steel building beside it can take 10–20 dB off the signal. "
             "Add [building] (footprint, height, construction) to include it."]
 
 
