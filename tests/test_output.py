@@ -289,3 +289,15 @@ def test_consistency_ranges_in_sentences_take_the_tables_en_dash(capsys):
     assert spread and spread.group(2) == "–", out
     code, out, _ = run(capsys, "report", EXAMPLES + "backyard_inverted_l.toml", "--json", "--quiet")
     assert code == 0 and not re.search(r"\d-\d", " ".join(json.loads(out)["warnings"]))
+
+
+def test_consistency_radials_note_names_the_what_if_tables_frequency(capsys):
+    # consistency check: the rural example's what-if table is at the LF centre, 203.5 kHz; the note
+    # under it (how long radials help) names the same frequency, not a rounded "204 kHz"
+    import re
+
+    code, out, _ = run(capsys, "report", EXAMPLES + "rural_long_wire.toml", "--width", "400", "--quiet")
+    assert code == 0
+    heading = re.search(r"What would help \(at ([\d.]+ k?Hz)", out).group(1)
+    note = re.search(r"add nothing at ([\d.]+ k?Hz) in this soil", out).group(1)
+    assert heading == note == "203.5 kHz"

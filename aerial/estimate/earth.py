@@ -441,7 +441,7 @@ def improved_earth(electrodes, soil, frequency=None, radial_length_m: float | No
             how = "Wait's screen"
         out["effective_length_m"] = l_eff
         out["note"] = ("radials longer than " + metres(l_eff)
-                       + f" add nothing at {si_text(float(frequency), 'Hz')} in this soil ({how})")
+                       + f" add nothing at {si_text(float(frequency), 'Hz', 4)} in this soil ({how})")  # as the table's heading
     return out
 
 
