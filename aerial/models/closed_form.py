@@ -488,7 +488,7 @@ def wavelength_validity(total_length_m: float, frequency, too_long, past) -> dic
         warnings.append(
             "at or past the first resonance at "
             + f"{si_text(resonance_from, 'Hz')} and above: the line model does not describe the aerial there; "
-            "the capacitance shown there is the static value"
+            "where its reactance comes out inductive, the capacitance shown is the static value"
         )
     known = [v for v in (long_from, resonance_from) if v is not None]
     return {"long_from_hz": long_from, "resonance_from_hz": resonance_from,

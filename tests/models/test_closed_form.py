@@ -216,3 +216,18 @@ def test_consistency_skipping_the_convergence_solve_keeps_every_figure():
     es, quick = electrostatic_solution(s), electrostatic_solution(s, convergence_check=False)
     assert es.capacitance_f == quick.capacitance_f and np.array_equal(es.charge_c, quick.charge_c)
     assert np.isnan(quick.relative_change) and not quick.converged
+
+
+def test_consistency_past_resonance_static_capacitance_only_where_inductive():
+    # consistency check: past the first resonance the line model turns capacitive again beyond the
+    # half-wave; the capacitance shown there is -1/(omega X), not the static value, so the warning
+    # says the static value stands only where the reactance comes out inductive
+    f = np.linspace(0.5e6, 30e6, 400)
+    r = closed_form_response(INV_L, f)
+    x, c, cs = r["reactance_ohm"], r["capacitance_f"], r["static_capacitance_f"]
+    past = ~np.asarray(r["reliable"]) & (f >= r["wavelength_validity"]["resonance_from_hz"])
+    assert np.any(past & (x < 0)) and np.any(past & (x >= 0))
+    assert np.all(c[x >= 0] == cs[x >= 0])
+    assert np.allclose(c[x < 0], -1.0 / (2 * np.pi * f[x < 0] * x[x < 0]))
+    text = " ".join(r["warnings"])
+    assert "where its reactance comes out inductive, the capacitance shown is the static value" in text
