@@ -225,7 +225,12 @@ def test_effective_length_is_a_length_for_wires_and_words_for_a_rod():
     def metres(v):
         return f"{v:.1f} m"
 
-    assert effective_length_words({"kind": "buried_wires", "effective_length_m": 23.0, "length_m": 10.0}, metres) == "23.0 m"
+    # a buried wire or pipe is said against its own length: a bare "23.0 m" beside a 10 m wire misleads
+    assert effective_length_words({"kind": "buried_wires", "effective_length_m": 23.0, "length_m": 10.0}, metres) == \
+        "all of it; a longer one helps up to about 23.0 m"
+    assert effective_length_words({"kind": "water_pipe", "effective_length_m": 22.6, "length_m": 61.0}, metres) == \
+        "about 22.6 m of it; more adds little"
+    assert effective_length_words({"kind": "water_pipe", "effective_length_m": 22.6}, metres) == "22.6 m"
     assert effective_length_words({"kind": "rods", "effective_length_m": 16.5, "length_m": 2.44}, metres) == \
         "a longer rod helps up to about 16.5 m"
     assert effective_length_words({"kind": "rods", "effective_length_m": 2.0, "length_m": 2.44}, metres) == \

@@ -300,20 +300,26 @@ def db(x) -> str:
 
 
 def effective_length_words(part: dict, L) -> str:
-    """The earth table's effective-length cell: a length for wires, radials and pipes; words for a driven rod.
+    """The earth table's effective-length cell, said against the electrode's own length.
 
     ``L`` formats a length in metres as text.
 
     A rod's effective length is usually far beyond any rod one can drive, so a
     bare "16.5 m" beside a 2.4 m rod misleads; it is said as how far a longer
-    rod would keep helping.
+    rod would keep helping. A buried wire or pipe is said the same way when it is
+    shorter than its effective length (a bare "101 m" beside an 18 m pipe reads as
+    nonsense), and as the part of it that counts when it is longer.
     """
     le = part.get("effective_length_m")
     if le is None:
         return "—"
-    if part.get("kind") != "rods":
-        return L(le)
     own = part.get("length_m")
+    if part.get("kind") != "rods":
+        if own is None:
+            return L(le)
+        if le >= own:
+            return f"all of it; a longer one helps up to about {L(le)}"
+        return f"about {L(le)} of it; more adds little"
     if own is not None and le <= own:
         return "a longer rod would not help here"
     return f"a longer rod helps up to about {L(le)}"
