@@ -296,3 +296,14 @@ def test_consistency_check_remedies_solved_together_match_each_solved_alone():
         assert got["separation_db"] == pytest.approx(float(20 * np.log10(lv.others[0, 0] / lv.others[0, 1])),
                                                      rel=1e-12)
     assert sd.remedies(scene, net, coil.inductance, coil.block, 1.0, 0, 1)[1:] == together[-2:]
+
+
+def test_consistency_one_listed_station_is_not_called_the_weakest_nor_kept_above_others(capsys):
+    # consistency check: the portable example lists one station; the design's sentence names it as the
+    # only one and claims no margin over "every other listed station" (there is none)
+    code, out, _ = run(capsys, "report", "site_examples/portable_vertical_counterpoise.toml", "--width", "400",
+                       "--quiet")
+    assert code == 0
+    line = next(ln for ln in out.splitlines() if ln.strip().startswith("→ with"))
+    assert "the only listed station, Lakeside Community Radio, gets" in line
+    assert "weakest" not in line and "every other listed station" not in line and "the others" not in line

@@ -2436,8 +2436,10 @@ def _design_line(r, cur, margin, capacitor_words, wired="as wired") -> str:
         what = f"{capacitor_words}, keeping the coupling and taps {wired}" if r["as_wired"] else \
             f"{capacitor_words} with {what}"
     name = r["weakest_station"]
+    alone = len(r.get("stations", [])) == 1  # one station listed: no other to keep down, none weaker
     if r["weakest_detector_power_w"] > 0:
-        text = f"{what}: the weakest wanted station, {name}, gets {eng_w(r['weakest_detector_power_w'])} at the detector"
+        who = f"the only listed station, {name}," if alone else f"the weakest wanted station, {name},"
+        text = f"{what}: {who} gets {eng_w(r['weakest_detector_power_w'])} at the detector"
     else:
         text = f"{what}: {name} stays out of the capacitor's reach"
     if r["as_wired"]:
@@ -2453,14 +2455,16 @@ def _design_line(r, cur, margin, capacitor_words, wired="as wired") -> str:
     if missed:
         text += f"; {wired}, the capacitor cannot reach {', '.join(missed)}"
     if r["meets_margin"]:
-        text += f"; every other listed station stays at least {margin:g} dB below"
+        if not alone:
+            text += f"; every other listed station stays at least {margin:g} dB below"
         before = r.get("weakest_station_as_wired_w", 0.0)
         if before > 0 and r["weakest_detector_power_w"] < before * 10.0 ** (-NO_WORSE_DB_WORDS / 10.0):
             loss = 10.0 * np.log10(before / max(r["weakest_detector_power_w"], 1e-300))
             text += (f" — {loss:.1f} dB less for {name} than {wired}, accepted because it buys the {margin:g} dB "
                      f"margin the parts {wired} miss")
     elif r["separated"] and r["inaudible"]:
-        text += (f"; the others stay {margin:g} dB down but {', '.join(r['inaudible'])} stays below the earphone's "
+        others = "" if alone else f" the others stay {margin:g} dB down but"
+        text += (f";{others} {', '.join(r['inaudible'])} stays below the earphone's "
                  "audibility threshold — not a success")
     else:
         faint = [n for n in r["inaudible"] if n not in r.get("out_of_reach", [])]
