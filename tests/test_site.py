@@ -270,3 +270,14 @@ def test_consistency_soil_word_notes_give_the_resistivities_as_the_site_file_gui
         row = next(line for line in guide.splitlines() if line.startswith(f"| `{word}`"))
         assert figure.group(1) in row, (note, row)
         assert "ohm m" not in note and not re.search(r"\d-\d", note)
+
+
+def test_a_lead_in_point_off_the_wire_is_refused_with_the_nearest_point_of_the_aerial():
+    # input handling: a T's down-lead written at a round height where the span, with its sag, hangs a
+    # little lower; the message gives how far off it is and the nearest point, to paste in instead
+    # (invented site: 6 m and 10 m supports 20 m apart, no sag: 8 m high mid-span)
+    text = span_site() + '\n[lead_in]\nfrom = [10, 0, 8.3]\n'
+    msg = rejects(text, "lead_in.from", "not on any span or run", "the nearest point of the aerial is 0.294 m away",
+                  "at [10.06, 0.00, 8.01] (metres",
+                  "straight above or below that plan position the aerial is 8 m high")
+    assert msg.count("\n") == 0

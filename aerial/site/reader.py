@@ -988,7 +988,11 @@ def _lead_in(r: TableReader, raw, supports, wires, receiver: Receiver, default_s
         else:
             start = np.array(r.point3(v, "lead_in.from"))
             if not _on_any_wire(start, wires):
-                r.fail("lead_in.from", v, "the lead-in must start on the aerial wire: this point is not on any span or run")
+                near, gap = _nearest_on_wires(start, wires)
+                r.fail("lead_in.from", v, "the lead-in must start on the aerial wire: this point is not on any span or "
+                       f"run; the nearest point of the aerial is {metres(gap)} away, at "
+                       f"[{near[0]:.2f}, {near[1]:.2f}, {near[2]:.2f}] (metres; a span with sag hangs lower mid-span)"
+                       + _height_above(start, wires))
     if math.isnan(receiver.x_m):
         # no receiver position: the aerial's lowest end is the feed, straight down to ground.
         ends = _aerial_ends(wires)
@@ -1012,6 +1016,38 @@ def _lead_in(r: TableReader, raw, supports, wires, receiver: Receiver, default_s
         return None, receiver  # the aerial comes straight to the receiver
     size = wire_size(r, t, key, default_size)
     return WireRun("lead-in", "lead-in", pts, size, key, (None,) * len(pts)), receiver
+
+
+def _nearest_on_wires(point, wires) -> tuple:
+    """The point of the wires nearest ``point`` and its distance from it. ([m] x3, [m])"""
+    best = (None, math.inf)
+    for w in wires:
+        p = w.points_m
+        a, b = p[:-1], p[1:]
+        ab = b - a
+        t = np.clip(np.einsum("ij,ij->i", point - a, ab) / np.maximum(np.einsum("ij,ij->i", ab, ab), 1e-30), 0, 1)
+        q = a + t[:, None] * ab
+        d = np.linalg.norm(q - point, axis=1)
+        i = int(np.argmin(d))
+        if d[i] < best[1]:
+            best = (q[i], float(d[i]))
+    return best
+
+
+def _height_above(point, wires) -> str:
+    """Where the aerial passes over the point's plan position, its height there in words ("" if it does not)."""
+    for w in wires:
+        p = w.points_m
+        for a, b in zip(p[:-1], p[1:]):
+            ab = b[:2] - a[:2]
+            n2 = float(ab @ ab)
+            if n2 < 1e-12:
+                continue
+            t = float(np.clip((point[:2] - a[:2]) @ ab / n2, 0.0, 1.0))
+            if np.linalg.norm(a[:2] + t * ab - point[:2]) <= JOIN_TOLERANCE_M:
+                z = a[2] + t * (b[2] - a[2])
+                return f"; straight above or below that plan position the aerial is {metres(z)} high"
+    return ""
 
 
 def _on_any_wire(point, wires) -> bool:
