@@ -244,7 +244,8 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
         compound = _feet_and_inches(value)
         if compound is not None:
             return compound
-    fraction = re.match(_FRACTION_QUANTITY, value) if "/" in value else None  # no "/": a decimal at most
+    # a fraction has a digit, a "/" and a digit ("5/8"); "mV/m" alone is no reason to compile its pattern
+    fraction = re.match(_FRACTION_QUANTITY, value) if re.search(r"\d\s*/\s*\d", value) else None
     if fraction and fraction.group(6) is not None:
         fraction = None  # a plain decimal: read below, in full (exponent included)
     match = None if fraction else _QUANTITY.match(value)
