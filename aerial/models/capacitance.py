@@ -359,17 +359,19 @@ SYSTEM_BUFFER_ELEMENTS = 1 << 19
 
 
 def _system_matrix(rows: int, cols: int):
-    """An uninitialised (rows, cols) array for a system matrix: a view of a per-thread buffer when small.
+    """An uninitialised (rows, cols) array in column order for a system matrix: a view of a per-thread buffer
+    when small.
 
-    The matrix is only read by the solve that follows (``numpy.linalg.solve`` works on a copy), so the
-    next solve may fill the same memory.
+    The matrix is only read by the solve that follows (``numpy.linalg.solve`` works on a copy, in LAPACK's
+    column order: a column-ordered matrix is copied a column at a time), so the next solve may fill the same
+    memory. The fill (:func:`_potential_fill`) writes a piece's column at a time too.
     """
     if rows * cols > SYSTEM_BUFFER_ELEMENTS:
-        return np.empty((rows, cols))
+        return np.empty((rows, cols), order="F")
     buf = getattr(_fill_scratch, "system", None)
     if buf is None:
         buf = _fill_scratch.system = np.empty(SYSTEM_BUFFER_ELEMENTS)
-    return buf[:rows * cols].reshape(rows, cols)
+    return buf[:rows * cols].reshape(cols, rows).T
 
 
 def _knots(length, counts):
@@ -452,12 +454,15 @@ def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = Fa
     step = max(1, FILL_BLOCK_ELEMENTS // max(knots, 1))
     step = -(-rows // -(-rows // step))  # blocks of even size
     knots_per_segment = np.asarray(counts) + 1
+    t = t[:, None]
+    # the planes run (knots, points): a segment's z and 1 / rho repeated for its knots are whole rows
+    lines = [((np.ascontiguousarray(along.T), np.ascontiguousarray(inv_rho.T)), sign) for (along, inv_rho), sign in lines]
     for r0 in range(0, rows, step):
         r1 = min(rows, r0 + step)
-        total, x, root, f = scratch_planes(r1 - r0, knots, 4)
+        total, x, root, f = scratch_planes(knots, r1 - r0, 4)
         for k, ((along, inv_rho), sign) in enumerate(lines):
-            np.subtract(t, np.repeat(along[r0:r1], knots_per_segment, axis=1), out=x)
-            x *= np.repeat(inv_rho[r0:r1], knots_per_segment, axis=1)  # (t - z) / rho at every knot
+            np.subtract(t, np.repeat(along[:, r0:r1], knots_per_segment, axis=0), out=x)
+            x *= np.repeat(inv_rho[:, r0:r1], knots_per_segment, axis=0)  # (t - z) / rho at every knot
             _asinh(x, root, total if k == 0 else f)
             if k == 0:
                 continue
@@ -465,13 +470,14 @@ def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = Fa
                 total += f
             else:
                 total -= f
-        np.subtract(total[:, 1:], total[:, :-1], out=x[:, :-1])  # each piece: the sum's change along it
-        out[r0:r1] = x[:, pieces]
+        np.subtract(total[1:], total[:-1], out=x[:-1])  # each piece: the sum's change along it
+        np.take(x, pieces, axis=0, out=out[r0:r1].T, mode="clip")  # the pieces' rows (in range: no clipping)
     return out
 
 
 def _asinh(x, root, out):
-    """asinh(x) into ``out`` as sgn(x) ln(|x| + sqrt(x^2 + 1)) (``root`` a scratch array of x's shape).
+    """asinh(x) into ``out`` as sgn(x) ln(|x| + sqrt(x^2 + 1)) (``root`` a scratch array of x's shape; all
+    three contiguous float64).
 
     Within a few ulp of 1 absolute of asinh for small |x| and a few ulp relative for large |x|: the
     accuracy the fill's differences of asinh need, at about half the cost of ``numpy.arcsinh``. [1]
@@ -489,7 +495,15 @@ def _asinh(x, root, out):
     np.abs(x, out=out)
     out += root
     np.log(out, out=out)
-    np.copysign(out, x, out=out)
+    # copysign(out, x): the logarithm of a number >= 1 is >= +0, so x's sign bit set on it is the same value
+    # (two integer passes numpy vectorises, where its copysign goes element by element)
+    sign = root.view(np.int64)
+    np.bitwise_and(x.view(np.int64), _SIGN_BIT, out=sign)
+    np.bitwise_or(out.view(np.int64), sign, out=out.view(np.int64))
+
+
+#: The sign bit of a float64, as the int64 of the same bits.
+_SIGN_BIT = np.int64(-0x8000000000000000)
 
 
 class ElectrostaticSolution(NamedTuple):
