@@ -1113,24 +1113,27 @@ def _panels_potential(points, box, weights=None, keep: bool = True):
     area = 4.0 * box.half_u * box.half_v
     nrm = np.cross(box.axis_u, box.axis_v)
     p = np.asarray(points, dtype=float)
+    # the coordinates as contiguous columns (points down, panels across): each row a point's scalar against
+    # a contiguous row of panels, numpy's quickest broadcast
+    px, py, pz = (np.ascontiguousarray(p[:, k, None]) for k in range(3))
     plan2, *parts = _panel_planes(len(p), len(box.centre), keep and weights is None)
-    np.subtract.outer(p[:, 0], box.centre[:, 0], out=plan2)
+    np.subtract(px, np.ascontiguousarray(box.centre[:, 0]), out=plan2)
     plan2 *= plan2
-    np.subtract.outer(p[:, 1], box.centre[:, 1], out=parts[0])
+    np.subtract(py, np.ascontiguousarray(box.centre[:, 1]), out=parts[0])
     parts[0] *= parts[0]
     plan2 += parts[0]  # squared plan distance
     near_m, near_n = np.nonzero(plan2 <= reach2)  # the only pairs that can be near, for a panel or its image
     plan2_near = plan2[near_m, near_n]
     for part, cz in zip(parts, (box.centre[:, 2], -box.centre[:, 2])):  # the panels, then their ground images
-        np.subtract.outer(p[:, 2], cz, out=part)
+        np.subtract(pz, cz, out=part)
         part *= part
         part += plan2  # squared distance
         dz = p[near_m, 2] - cz[near_n]
         near = dz * dz + plan2_near <= reach2[near_n]  # part <= reach2, looked at where it can hold
         m, n = near_m[near], near_n[near]
-        np.maximum(part, 1e-300, out=part)
         np.sqrt(part, out=part)
-        np.divide(area, part, out=part)  # a point charge, far off
+        with np.errstate(divide="ignore"):  # a zero distance is a near pair, worked out exactly just below
+            np.divide(area, part, out=part)  # a point charge, far off
         if len(m):
             r = p[m] - np.column_stack([box.centre[n, 0], box.centre[n, 1], cz[n]])
             part[m, n] = rectangle_potential_integral(
