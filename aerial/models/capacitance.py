@@ -405,11 +405,11 @@ def _reflections(start, u, image: bool, wall):
 def _axis_offsets(points, start, u, r2):
     """Each point's coordinate along each line from its start [m] and 1 / rho [1/m], rho^2 the squared
     distance from the line (from the cross product: no cancellation on or near the line) plus ``r2``:
-    (points, lines) arrays."""
-    wx, wy, wz = (points[:, k, None] - start[:, k] for k in range(3))
-    ux, uy, uz = u[:, 0], u[:, 1], u[:, 2]
+    (lines, points) arrays (a line's row runs over the points: the long axis in numpy's inner loop)."""
+    wx, wy, wz = (np.ascontiguousarray(points[:, k]) - start[:, k, None] for k in range(3))
+    ux, uy, uz = u[:, 0, None], u[:, 1, None], u[:, 2, None]
     cx, cy, cz = wy * uz - wz * uy, wz * ux - wx * uz, wx * uy - wy * ux
-    return (wx * ux + wy * uy) + wz * uz, 1.0 / np.sqrt((cx * cx + cy * cy) + cz * cz + r2)
+    return (wx * ux + wy * uy) + wz * uz, 1.0 / np.sqrt((cx * cx + cy * cy) + cz * cz + np.reshape(r2, (-1, 1)))
 
 
 def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = False, wall=None, out=None):
@@ -446,7 +446,7 @@ def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = Fa
     length = np.sqrt(_dot3(d, d))
     seg, t, pieces = _knots(length, counts)
     r2 = np.asarray(radius, dtype=float) ** 2
-    # per set of lines: each point's coordinate along each line and 1 / rho (small: points × segments)
+    # per set of lines: each point's coordinate along each line and 1 / rho (small: segments × points)
     lines = [(_axis_offsets(p, a0, u, r2), sign) for a0, u, sign in _reflections(start, d / length[:, None],
                                                                                     image, wall)]
     rows, cols, knots = len(p), len(pieces), len(seg)
@@ -456,7 +456,6 @@ def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = Fa
     knots_per_segment = np.asarray(counts) + 1
     t = t[:, None]
     # the planes run (knots, points): a segment's z and 1 / rho repeated for its knots are whole rows
-    lines = [((np.ascontiguousarray(along.T), np.ascontiguousarray(inv_rho.T)), sign) for (along, inv_rho), sign in lines]
     for r0 in range(0, rows, step):
         r1 = min(rows, r0 + step)
         total, x, root, f = scratch_planes(knots, r1 - r0, 4)
