@@ -347,7 +347,7 @@ def segment_potential_integral(point, seg_start, seg_end, radius):
     return np.log(num / den)
 
 
-#: Largest (rows × knots) block the potential fill works on at once, in four planes of
+#: Largest (rows × knots) block the potential fill works on at once, in five planes of
 #: :func:`aerial.core.arrays.scratch_planes`: a few such planes stay in the processor's cache. [1]
 FILL_BLOCK_ELEMENTS = 1 << 16
 _fill_scratch = threading.local()
@@ -458,9 +458,10 @@ def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = Fa
     # the planes run (knots, points): a segment's z and 1 / rho repeated for its knots are whole rows
     for r0 in range(0, rows, step):
         r1 = min(rows, r0 + step)
-        total, x, root, f = scratch_planes(knots, r1 - r0, 4)
+        total, x, root, f, t_plane = scratch_planes(knots, r1 - r0, 5)
+        np.copyto(t_plane, t)  # spread once here for every line set (a broadcast column costs numpy a copy per use)
         for k, ((along, inv_rho), sign) in enumerate(lines):
-            np.subtract(t, np.repeat(along[:, r0:r1], knots_per_segment, axis=0), out=x)
+            np.subtract(t_plane, np.repeat(along[:, r0:r1], knots_per_segment, axis=0), out=x)
             x *= np.repeat(inv_rho[:, r0:r1], knots_per_segment, axis=0)  # (t - z) / rho at every knot
             _asinh(x, root, total if k == 0 else f)
             if k == 0:
