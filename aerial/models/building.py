@@ -660,7 +660,8 @@ def plan_distance(points_xy, footprint):
     px, py = p[:, 0], p[:, 1]
     length2 = abx * abx + aby * aby
     # a corner given twice makes an edge of no length: its nearest point is the corner itself (t = 0)
-    t = np.clip(((px - ax) * abx + (py - ay) * aby) / np.where(length2 > 0, length2, 1.0), 0.0, 1.0)
+    t = np.minimum(np.maximum(((px - ax) * abx + (py - ay) * aby) / np.where(length2 > 0, length2, 1.0), 0.0),
+                   1.0)  # clipped to the edge
     ex, ey = px - (ax + t * abx), py - (ay + t * aby)  # from the nearest point of each edge
     dist = np.sqrt(np.min(ex * ex + ey * ey, axis=0))
     # inside: odd number of edge crossings of a ray towards +x
@@ -669,7 +670,7 @@ def plan_distance(points_xy, footprint):
     # only where an edge straddles the ray (there |py - ya| <= |yb - ya| and yb != ya): elsewhere the ratio is
     # not used, and for an edge a denormal apart in y it would overflow
     x_cross = ax + np.where(straddle, py - ya, 0.0) / np.where(straddle, yb - ya, 1.0) * abx
-    inside = np.sum(straddle & (px < x_cross), axis=0) % 2 == 1
+    inside = np.logical_xor.reduce(straddle & (px < x_cross), axis=0)  # an odd count
     return np.where(inside, 0.0, dist)
 
 
