@@ -335,12 +335,23 @@ def induced_charge_factor(height, frequency, building_height, loading_length):
     >>> round(float(induced_charge_factor(21.0, 1.71e6, 21.0, 0.0)), 4)
     1.2443
     """
+    k, sinc = _height_sinc(height, frequency, building_height)
+    return _loaded_line(k, sinc, building_height, loading_length)
+
+
+def _height_sinc(height, frequency, building_height):
+    """The wavenumber k [1/m] and sin(kz) / kz [1] of :func:`induced_charge_factor`, z held to the roof: the
+    part of F that does not depend on the roof's loading."""
     z = np.minimum(np.maximum(np.asarray(height, dtype=float), 0.0), float(building_height))
     k = 2 * np.pi * np.asarray(frequency, dtype=float) / SPEED_OF_LIGHT
-    delta = np.arctan(k * float(loading_length))
     kz = k * z
     small = kz < 1e-6
-    sinc = np.where(small, 1.0 - kz * kz / 6.0, np.sin(kz) / np.where(small, 1.0, kz))
+    return k, np.where(small, 1.0 - kz * kz / 6.0, np.sin(kz) / np.where(small, 1.0, kz))
+
+
+def _loaded_line(k, sinc, building_height, loading_length):
+    """:func:`induced_charge_factor` from its :func:`_height_sinc` for a roof loading length [m]. [1]"""
+    delta = np.arctan(k * float(loading_length))
     return sinc * np.cos(delta) / np.maximum(np.cos(k * float(building_height) + delta), 1e-6)
 
 
@@ -428,8 +439,9 @@ def building_charge_factor(height, frequency, body: BuildingBody, case=1):
             raise ModelInputError(f"case must be 0, 1 or 2; got {c!r}")
     dh, f_limit = _line_constants(body)
     f = np.minimum(np.asarray(frequency, dtype=float), f_limit)
-    loaded = induced_charge_factor(height, f, body.height_m, dh)
-    bare = induced_charge_factor(height, f, body.height_m, 0.0) if any(c != 1 for c in cases) else None
+    k, sinc = _height_sinc(height, f, body.height_m)  # shared by the loaded and the bare line
+    loaded = _loaded_line(k, sinc, body.height_m, dh)
+    bare = _loaded_line(k, sinc, body.height_m, 0.0) if any(c != 1 for c in cases) else None
     factors = [loaded if c == 1 else bare if c == 2 else loaded * loaded / bare for c in cases]
     return factors[0] if np.ndim(case) == 0 else np.stack(factors)
 
