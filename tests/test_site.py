@@ -281,3 +281,17 @@ def test_a_lead_in_point_off_the_wire_is_refused_with_the_nearest_point_of_the_a
                   "at [10.06, 0.00, 8.01] (metres",
                   "straight above or below that plan position the aerial is 8 m high")
     assert msg.count("\n") == 0
+
+
+@pytest.mark.parametrize("written, noted", [('"2000 ohm"', True), ("2000", True), ('"4 kohm"', True),
+                                            ('"high-impedance"', False), ('"32 ohm"', False), ('"20 kohm"', False)])
+def test_an_earphone_given_as_a_headset_marking_brings_a_note(written, noted):
+    # input handling: a magnetic headset is marked with its DC resistance ("2000 ohm"), roughly 10 kohm at
+    # 1 kHz (common practice, from memory); a figure in that marking's range is read as written, with a note
+    text = span_site().replace("[receiver]\n", f"[receiver]\nearphone = {written}\n")
+    site = load_site_text(text, "t.toml")
+    notes = [n for n in site.notes if n.startswith("receiver.earphone")]
+    assert bool(notes) == noted
+    if noted:
+        assert f"receiver.earphone = {written} is taken as the earphone's impedance" in notes[0]
+        assert 'write earphone = "high-impedance"' in notes[0]

@@ -527,9 +527,28 @@ def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
     return Site(
         path=path, name=name, text=text, region=region, noise=noise, soil=soil, bands=bands,
         frequency_step_hz=steps, supports=supports, wires=wires, receiver=receiver, electrodes=electrodes,
-        stations=stations, field_strength_v_per_m=field_strength, plan=plan, notes=soil_notes + notes, raw=raw,
+        stations=stations, field_strength_v_per_m=field_strength, plan=plan,
+        notes=soil_notes + _earphone_notes(raw, receiver) + notes, raw=raw,
         latitude_deg=position[0] if position else None, longitude_deg=position[1] if position else None, **night,
     )
+
+
+#: Earphone impedances, as written, that are most likely a headset's marking: its DC resistance. [ohm]
+MARKED_HEADSET_OHM = (1000.0, 5000.0)
+
+
+def _earphone_notes(raw, receiver) -> list[str]:
+    """A note when the earphone is given as a figure a magnetic headset is marked with (its DC resistance)."""
+    ear = (raw.get("receiver") or {}).get("earphone")
+    if ear is None or (isinstance(ear, str) and "impedance" in ear.lower()):
+        return []
+    if not MARKED_HEADSET_OHM[0] <= receiver.earphone_ohm <= MARKED_HEADSET_OHM[1]:
+        return []
+    written = f'"{ear}"' if isinstance(ear, str) else f"{ear}"
+    return [f"receiver.earphone = {written} is taken as the earphone's impedance at audio frequencies; a magnetic "
+            "headset is marked with its DC resistance (2000 Ω) and is roughly 10 kΩ at 1 kHz: write "
+            'earphone = "high-impedance" for one (the detector\'s load on the tank, and so the loaded Q, follows '
+            "this figure)"]
 
 
 def _bands(r: TableReader, site_t) -> list:
