@@ -295,3 +295,21 @@ def test_an_earphone_given_as_a_headset_marking_brings_a_note(written, noted):
     if noted:
         assert f"receiver.earphone = {written} is taken as the earphone's impedance" in notes[0]
         assert 'write earphone = "high-impedance"' in notes[0]
+
+
+@pytest.mark.parametrize("line, key, hint", [
+    ("frequency = 1340\npower = \"1 kW\"\ndistance = \"10 km\"", "stations[0].frequency",
+     'a plain number is in Hz: write "1340 kHz" for kilohertz'),
+    ("frequency = \"1340 kHz\"\npower = \"1 kW\"\ndistance = 45", "stations[0].distance",
+     'a plain number is in metres: write "45 km" or "45 mi"'),
+])
+def test_a_plain_number_meant_in_kilohertz_or_kilometres_is_refused_with_the_unit_to_write(line, key, hint):
+    # input handling: a station's frequency or distance written without its unit reads as Hz or metres
+    rejects(MINIMAL + f"\n[[stations]]\nname = \"Demo\"\n{line}\n", key, hint)
+
+
+def test_a_written_unit_too_small_is_refused_without_the_plain_number_hint():
+    # input handling: "45 m" has its unit; the hint for a bare number is not given
+    msg = rejects(MINIMAL + '\n[[stations]]\nname = "Demo"\nfrequency = "1340 kHz"\npower = "1 kW"\ndistance = "45 m"\n',
+                  "stations[0].distance", "at least 100 m")
+    assert "plain number" not in msg

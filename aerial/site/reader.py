@@ -1243,7 +1243,9 @@ def _stations(r: TableReader, raw, soil: SoilSpec, notes: list, site_position=No
         if f is None:
             r.fail(f"{key}.frequency", "", 'missing: expected a frequency such as "810 kHz"')
         if not 10e3 <= f <= 30e6:
-            r.fail(f"{key}.frequency", t["frequency"], "expected a frequency from 10 kHz to 30 MHz")
+            plain = isinstance(t["frequency"], (int, float)) and 10 <= t["frequency"] < 30e3
+            r.fail(f"{key}.frequency", t["frequency"], "expected a frequency from 10 kHz to 30 MHz"
+                   + (f'; a plain number is in Hz: write "{t["frequency"]:g} kHz" for kilohertz' if plain else ""))
         p = r.quantity(t, key, "power", units.POWER_UNITS, "a transmitter power", "W")
         if p is None:
             r.fail(f"{key}.power", "", 'missing: expected a transmitter power such as "10 kW"')
@@ -1273,8 +1275,11 @@ def _stations(r: TableReader, raw, soil: SoilSpec, notes: list, site_position=No
             d = r.length(t, key, "distance", required=True, positive=True, maximum=MAX_STATION_DISTANCE_M,
                          units_table=units.DISTANCE_UNITS)
         if d < MIN_STATION_DISTANCE_M:
+            plain = isinstance(t.get("distance"), (int, float))
             r.fail(f"{key}.distance", t["distance"], f"expected a distance of at least {MIN_STATION_DISTANCE_M:g} m "
-                   "(the ground-wave model needs the receiver well away from the transmitter)")
+                   "(the ground-wave model needs the receiver well away from the transmitter)"
+                   + (f'; a plain number is in metres: write "{t["distance"]:g} km" or "{t["distance"]:g} mi"'
+                      if plain else ""))
         st_soil = soil
         if "soil" in t:
             b = soil_base(r, t["soil"], f"{key}.soil", notes)
