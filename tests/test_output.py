@@ -306,3 +306,21 @@ def test_consistency_radials_note_names_the_what_if_tables_frequency(capsys):
     heading = re.search(r"What would help \(at ([\d.]+ k?Hz)", out).group(1)
     note = re.search(r"add nothing at ([\d.]+ k?Hz) in this soil", out).group(1)
     assert heading == note == "203.5 kHz"
+
+
+def test_consistency_earth_resistance_range_at_the_working_frequency_same_on_terminal_and_page(capsys, tmp_path):
+    # consistency check: the earth's resistance range at the centre frequency is one figure pair in the
+    # terminal's earth table, the page's earth table and the page's headline (it was "13 Ω – 110 Ω" in
+    # the terminal beside "12.5 Ω – 114 Ω" on the page)
+    import re
+
+    page = tmp_path / "p.html"
+    code, out, _ = run(capsys, "report", EXAMPLES + "backyard_inverted_l.toml", "--width", "400", "--quiet",
+                       "--page", str(page))
+    assert code == 0
+    ranges = re.findall(r"\(R ([^)]*)\)", out)
+    assert ranges and len(set(ranges)) == 1
+    html = page.read_text(encoding="utf-8")
+    text = " ".join(re.sub(r"<[^>]*>", " ", html).split())
+    words = " ".join(ranges[0].split())
+    assert text.count(words) >= 3, words  # the page's earth table (part and whole system) and its headline

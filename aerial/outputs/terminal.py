@@ -115,11 +115,15 @@ def eng(value, unit: str, digits: int = 3) -> str:
 NO_SPREAD = "no spread"
 
 
-def rng(pair, unit: str) -> str:
-    """ "low – high" of a pair; one figure when both ends round to it."""
+def rng(pair, unit: str, digits: int = 2) -> str:
+    """ "low – high" of a pair; one figure when both ends round to it.
+
+    Two figures for the DC earth resistance's spread over a soil category (a factor of ten); the
+    resistance at the working frequency takes three, as the page and its headline give it.
+    """
     if pair is None:
         return "—"
-    lo, hi = eng(pair[0], unit, 2), eng(pair[1], unit, 2)
+    lo, hi = eng(pair[0], unit, digits), eng(pair[1], unit, digits)
     return lo if lo == hi else f"{lo} – {hi}"
 
 
@@ -504,7 +508,7 @@ def render_report(result: dict, console, units: str = "si") -> None:
             z = part.get("impedance_at_centre_ohm")
             zs = f"{eng(z[0], 'Ω')} {'+' if z[1] >= 0 else '−'} j{eng(abs(z[1]), 'Ω')}" if z else ""
             if z and part.get("resistance_range_at_centre_ohm"):
-                zs += f"\n[dim](R {rng(part['resistance_range_at_centre_ohm'], 'Ω')})[/dim]"
+                zs += f"\n[dim](R {rng(part['resistance_range_at_centre_ohm'], 'Ω', 3)})[/dim]"
             et.add_row(escape(L.text(part.get("description", ""))), rng([part.get("resistance_low_ohm"), part.get("resistance_high_ohm")], "Ω")
                        if part.get("resistance_low_ohm") is not None else eng(part.get("resistance_ohm"), "Ω"),
                        zs, effective_length_words(part, L), escape(part.get("method", "")))
@@ -514,7 +518,7 @@ def render_report(result: dict, console, units: str = "si") -> None:
             j = int(np.argmin(np.abs(np.asarray(result["frequencies_hz"]) - fc)))
             zt_s = f"[bold]{eng(zt[j][0], 'Ω')} {'+' if zt[j][1] >= 0 else '−'} j{eng(abs(zt[j][1]), 'Ω')}[/bold]"
             if earth.get("resistance_range_at_centre_ohm"):
-                zt_s += f"\n(R {rng(earth['resistance_range_at_centre_ohm'], 'Ω')})"
+                zt_s += f"\n(R {rng(earth['resistance_range_at_centre_ohm'], 'Ω', 3)})"
         et.add_row("[bold]whole earth system[/bold]",
                    f"[bold]{eng(earth.get('resistance_ohm'), 'Ω')}[/bold] ({rng([earth.get('resistance_low_ohm'), earth.get('resistance_high_ohm')], 'Ω')})",
                    zt_s, "", "")
