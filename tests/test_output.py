@@ -324,3 +324,11 @@ def test_consistency_earth_resistance_range_at_the_working_frequency_same_on_ter
     text = " ".join(re.sub(r"<[^>]*>", " ", html).split())
     words = " ".join(ranges[0].split())
     assert text.count(words) >= 3, words  # the page's earth table (part and whole system) and its headline
+
+
+def test_consistency_layout_names_the_frequency_as_the_reports_tables_do(capsys):
+    # consistency check: the rural example's figures are at the LF centre, 203.5 kHz, in the report's
+    # what-if heading; the layout's table heading and its present-wire line say the same, not "204 kHz"
+    code, out, _ = run(capsys, "layout", EXAMPLES + "rural_long_wire.toml", "--width", "400", "--quiet")
+    assert code == 0
+    assert "eff. height at 203.5 kHz" in out and "figures it at 203.5 kHz" in out and "204 kHz" not in out

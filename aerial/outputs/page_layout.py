@@ -91,7 +91,7 @@ def _layouts_table(result, L: Lengths) -> str:
     present = result.get("present_wire")
     if present:  # the terminal's own sentence, wavelength flag included
         reasons.append(present_wire_words(present, result.get("score_label", "score"), unit, L))
-    at = f" at {eng(lays[0]['figures_at_hz'], 'Hz')}" if lays and lays[0].get("figures_at_hz") else ""
+    at = f" at {eng(lays[0]['figures_at_hz'], 'Hz', 4)}" if lays and lays[0].get("figures_at_hz") else ""
     return (table(["rank", "layout", "wire", "top", "lead-in", f"effective height{at}", f"capacitance{at}",
                    "margin outside the fall zone", f"score [{unit}]" if unit else "score", "flags"], rows,
                   "Best safe layouts, best first", "wide") + bullets(reasons, "reasons"))
@@ -108,7 +108,7 @@ def _summary(result, scene, units: str = "si") -> str:
     if layouts:
         win = layouts[0]
         cards = [("top-ranked layout", win.get("description", ""), ""),
-                 ("effective height" + (f" at {eng(win['figures_at_hz'], 'Hz')}" if win.get("figures_at_hz") else ""),
+                 ("effective height" + (f" at {eng(win['figures_at_hz'], 'Hz', 4)}" if win.get("figures_at_hz") else ""),
                   L(win.get("effective_height_m")), ""),
                  ("wire (top and lead-in)", L(win.get("wire_length_m")), ""),
                  ("capacitance", eng(win.get("capacitance_f"), "F"), ""),

@@ -912,7 +912,7 @@ def render_layout(result: dict, console, units: str = "si") -> None:
     _render_refusals(result, console, L)
     unit = result.get("score_unit", "")
     label = result.get("score_label", "score")
-    at = f" at {eng(result['layouts'][0]['figures_at_hz'], 'Hz')}" if result.get("layouts") and \
+    at = f" at {eng(result['layouts'][0]['figures_at_hz'], 'Hz', 4)}" if result.get("layouts") and \
         result["layouts"][0].get("figures_at_hz") else ""
     t = Table(title="Best safe layouts", title_justify="left")
     for col in ("#", "layout", "wire", f"eff. height{at}", f"capacitance{at}", f"{label} [{unit}]" if unit else label,
@@ -958,7 +958,7 @@ def present_wire_words(present: dict, label: str, unit: str, L: Lengths) -> str:
     """The layout's line on the site's present wire: the report's figures of it and its wavelength flag."""
     from aerial.planner.search import wavelength_words
 
-    where = f" at {eng(present['figures_at_hz'], 'Hz')}" if present.get("figures_at_hz") else ""
+    where = f" at {eng(present['figures_at_hz'], 'Hz', 4)}" if present.get("figures_at_hz") else ""
     flag = f"; {wavelength_words(present.get('rough_from_hz'))}" if present.get("outside_model_range") else ""
     how = ("with its heights from the balcony slab, as the layouts" if present.get("heights_from_slab_m")
            else "as 'aerial report' figures it")
