@@ -382,3 +382,19 @@ def test_layout_page_writes_every_length_as_the_terminal_does_under_us_units(cap
 
     metric = Lengths.PATTERN.findall(page)
     assert not metric, metric
+
+
+def test_consistency_stations_card_gives_day_and_night_verdicts_when_they_differ():
+    # consistency check: the headline's stations card counts the stations table's verdicts; a station
+    # not heard by day but heard by night (sky wave) is said with both, not as "not heard" alone
+    # (invented verdicts)
+    from aerial.outputs.page_report import headline
+
+    result = {"frequencies_hz": [9.4e5], "aerial": {}, "stations": [
+        {"verdict": "not heard", "night": {"verdict": "marginal"}},
+        {"verdict": "clearly heard", "night": {"verdict": "clearly heard"}}]}
+    cards = dict((label, text) for label, text, _ in headline(result))
+    assert cards["stations (2 listed)"] == "by day 1 not heard, 1 clearly heard; by night 1 marginal, 1 clearly heard"
+    result["stations"][0]["night"]["verdict"] = "not heard"
+    cards = dict((label, text) for label, text, _ in headline(result))
+    assert cards["stations (2 listed)"] == "1 not heard, 1 clearly heard"

@@ -81,10 +81,17 @@ def headline(result, L: Lengths = METRES) -> list[tuple[str, str, str]]:
         out.append(("band coverage", cov["verdict"], ""))
     stations = result.get("stations") or []
     if stations:
-        counts = {}
-        for s in stations:
-            counts[s.get("verdict", "")] = counts.get(s.get("verdict", ""), 0) + 1
-        text = ", ".join(f"{n} {v}" for v, n in counts.items())
+        def counted(verdicts) -> str:
+            counts: dict = {}
+            for v in verdicts:
+                counts[v] = counts.get(v, 0) + 1
+            return ", ".join(f"{n} {v}" for v, n in counts.items())
+
+        day = counted(s.get("verdict", "") for s in stations)
+        night = counted((s.get("night") or {}).get("verdict", "") for s in stations) \
+            if all(s.get("night") for s in stations) else ""
+        # the stations table's two verdict columns: by day, and by night when that differs
+        text = f"by day {day}; by night {night}" if night and night != day else day
         out.append((f"stations ({len(stations)} listed)", text, ""))
     return out
 
