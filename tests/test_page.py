@@ -398,3 +398,14 @@ def test_consistency_stations_card_gives_day_and_night_verdicts_when_they_differ
     result["stations"][0]["night"]["verdict"] = "not heard"
     cards = dict((label, text) for label, text, _ in headline(result))
     assert cards["stations (2 listed)"] == "1 not heard, 1 clearly heard"
+
+
+def test_what_if_headings_name_quantities_and_cells_carry_units(built_in):
+    """Consistency check of the page against its own cells: the what-if table wrote "capacitance [F]" over cells in
+    picofarads; each cell says its unit and prefix, so a heading names the quantity alone."""
+    _, page = built_in
+    part = page[page.index('<section id="what-if"'):]
+    part = part[:part.index("</section>")]
+    headings = re.findall(r"<th[^>]*>(.*?)</th>", part)
+    assert "capacitance" in headings and not any("[" in h for h in headings), headings
+    assert re.search(r"<td><span class=\"q\">[\d.]+ pF</span></td>", part)

@@ -150,18 +150,16 @@ def table(headers, rows, caption=None, cls="") -> str:
 
 
 def dict_rows_table(rows: list, caption=None, skip=(), L: Lengths | None = None) -> str:
-    """A table of a list of row dicts: one column per key (in first-seen order), units from the key names
-    (lengths in ``L``'s unit system, as :func:`format_value` writes them)."""
+    """A table of a list of row dicts: one column per key (in first-seen order), each cell with its unit from the key
+    name (lengths in ``L``'s unit system, as :func:`format_value` writes them)."""
     keys = []
     for r in rows:
         for k in r:
             if k not in keys and k not in skip:
                 keys.append(k)
-    def unit(u):
-        return L.unit if u == "m" and L is not None else u
-
-    headers = [key_label(k) + next((f" [{unit(u)}]" for s, u in SUFFIX_UNITS if k.endswith(s) and u != "%"), "")
-               for k in keys]
+    # every cell carries its own unit and prefix ("58.5 pF", "25.4 ft"), as :func:`format_value` writes it: a unit
+    # in the heading as well would say "[F]" over picofarads
+    headers = [key_label(k) for k in keys]
     return table(headers, [[format_value(k, r.get(k), L) for k in keys] for r in rows], caption)
 
 
