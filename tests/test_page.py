@@ -409,3 +409,18 @@ def test_what_if_headings_name_quantities_and_cells_carry_units(built_in):
     headings = re.findall(r"<th[^>]*>(.*?)</th>", part)
     assert "capacitance" in headings and not any("[" in h for h in headings), headings
     assert re.search(r"<td><span class=\"q\">[\d.]+ pF</span></td>", part)
+
+
+def test_plan_view_draws_the_building_the_figures_take_in(capsys, tmp_path):
+    """Input-handling check on the balcony example less its [plan]: the plan view still draws the [building]
+    footprint the report models (it drew only the [plan]'s buildings, so a flat's block was missing)."""
+    text = (EXAMPLES[0].parent / "balcony_water_pipe.toml").read_text(encoding="utf-8")
+    site = tmp_path / "site.toml"
+    site.write_text(text[:text.index("[plan]")], encoding="utf-8")
+    page = tmp_path / "report.html"
+    code, _, err = run(capsys, "report", site, "--page", page)
+    assert code == 0, err
+    html = page.read_text(encoding="utf-8")
+    plan = html[html.index('id="plan-view"'):]
+    plan = plan[:plan.index("</figure>")]
+    assert "building (reinforced concrete)" in plan

@@ -63,6 +63,11 @@ def site_surroundings(site) -> dict:
 def report_scene(result, surroundings=None) -> dict:
     """A scene of the report's resolved wires (and the site's surroundings, when known)."""
     scene = dict(surroundings or empty_surroundings())
+    building = result.get("building")
+    if isinstance(building, dict) and building.get("footprint_m") and not scene.get("buildings"):
+        # the building the figures take in ([building], or inferred), where no [plan] drew its own
+        scene["buildings"] = [{"name": f"building ({building.get('construction', 'unknown')})",
+                               "outline": building["footprint_m"], "height_m": building["height_m"]}]
     kinds = {"aerial": "aerial", "lead-in": "lead-in", "earth lead": "earth lead"}
     scene["wires"] = [{"label": w["name"], "kind": kinds.get(w["role"], "aerial"), "points": w["points_m"]}
                       for w in result["geometry"]["wires"]]
