@@ -68,6 +68,10 @@ VOLTAGE_RTOL = 1e-9
 VOLTAGE_MAX_ITER = 200
 #: Halvings looked ahead per call of the model in the bisections here (2**LOOKAHEAD − 1 trial values per call).
 LOOKAHEAD = 5
+#: The same for the part-value ranges of :func:`_ok_range`, whose every trial value is a network solved over the
+#: band's check grid (hundreds of frequencies): looking further ahead costs more in trial values, and in the page
+#: faults of their large temporary arrays, than it saves in calls (the answer is the same at any depth).
+RANGE_LOOKAHEAD = 2
 
 #: A designed coil that cannot cover the whole band is made this fraction of the largest
 #: inductance that reaches the top edge (room for whole turns and strays). [1]
@@ -654,7 +658,7 @@ def _ok_range(ok, lo, hi, points=48, refine=20, flags=None):
         good = np.array([g for _, g, _ in inner])
         bad = np.array([b for _, _, b in inner])
         good, bad = bisect_ahead(good, bad, lambda x: np.asarray(ok(x.reshape(-1, 1)), dtype=bool).reshape(x.shape),
-                                 refine, LOOKAHEAD)
+                                 refine, RANGE_LOOKAHEAD)
         for (k, _, _), g in zip(inner, good):
             ends[k] = g
     return float(ends[0]), float(ends[1])
