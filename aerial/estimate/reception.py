@@ -68,9 +68,10 @@ VOLTAGE_RTOL = 1e-9
 VOLTAGE_MAX_ITER = 200
 #: Halvings looked ahead per call of the model in the bisections here (2**LOOKAHEAD − 1 trial values per call).
 LOOKAHEAD = 5
-#: The same for the part-value ranges of :func:`_ok_range`, whose every trial value is a network solved over the
-#: band's check grid (hundreds of frequencies): looking further ahead costs more in trial values, and in the page
-#: faults of their large temporary arrays, than it saves in calls (the answer is the same at any depth).
+#: The same for the part-value ranges of :func:`_ok_range` (by default), whose every trial value is as a rule a
+#: network solved over the band's check grid (hundreds of frequencies): looking further ahead costs more in trial
+#: values, and in the page faults of their large temporary arrays, than it saves in calls (the answer is the same
+#: at any depth).
 RANGE_LOOKAHEAD = 2
 
 #: A designed coil that cannot cover the whole band is made this fraction of the largest
@@ -639,11 +640,12 @@ def _reachable_ranges(f_lo, f_hi, setting, cmin, cmax, points=COVER_CHECK_POINTS
     return [(float(a), float(z)) for a, z in zip(lo, hi)]
 
 
-def _ok_range(ok, lo, hi, points=48, refine=20, flags=None):
+def _ok_range(ok, lo, hi, points=48, refine=20, flags=None, depth=RANGE_LOOKAHEAD):
     """Range [a, b] (log grid, refined at the ends) where ``ok(x)`` holds; None if nowhere on the grid.
 
     ``ok`` takes a number, or the whole grid as a column (shape (points, 1)) and answers for
-    each value at once. ``flags``: ``ok`` on the grid, when the caller has it already.
+    each value at once. ``flags``: ``ok`` on the grid, when the caller has it already. ``depth``:
+    halvings looked ahead per call of ``ok`` in refining the ends (the range is the same at any).
     """
     xs = np.geomspace(lo, hi, points)
     flags = np.asarray(ok(xs[:, np.newaxis]) if flags is None else flags, dtype=bool).reshape(xs.shape)
@@ -658,7 +660,7 @@ def _ok_range(ok, lo, hi, points=48, refine=20, flags=None):
         good = np.array([g for _, g, _ in inner])
         bad = np.array([b for _, _, b in inner])
         good, bad = bisect_ahead(good, bad, lambda x: np.asarray(ok(x.reshape(-1, 1)), dtype=bool).reshape(x.shape),
-                                 refine, RANGE_LOOKAHEAD)
+                                 refine, depth)
         for (k, _, _), g in zip(inner, good):
             ends[k] = g
     return float(ends[0]), float(ends[1])
@@ -974,7 +976,9 @@ def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0, coverin
         notes.append(f"any coil from {_uh(rng[0])} to {_uh(rng[1])} covers the band; chose {_uh(L)} "
                      "for equal margin at both ends")
         return L
-    top = _ok_range(lambda Lx: _needed(np.array([f_hi]), aerial, Lx, q, cfg)[..., 0] >= cmin, 1e-6, 1e-2)
+    # one frequency per trial value: cheap trials, so the search looks as far ahead as the others here
+    top = _ok_range(lambda Lx: _needed(np.array([f_hi]), aerial, Lx, q, cfg)[..., 0] >= cmin, 1e-6, 1e-2,
+                    depth=LOOKAHEAD)
     L = top[1] * DESIGN_MARGIN if top else 1e-6
     notes.append(f"no single coil covers the band with this capacitor and coupling; chose {_uh(L)}, "
                  f"{(1 - DESIGN_MARGIN) * 100:.0f} % below the largest that still reaches {_khz(f_hi)}")
