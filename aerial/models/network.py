@@ -165,11 +165,11 @@ def _value(v, f):
 
 def _positive(value) -> bool:
     """Whether every value is positive and finite (a plain number, or an array of them)."""
-    if np.ndim(value) == 0:
+    if isinstance(value, float) or np.ndim(value) == 0:
         v = float(value)
         return v > 0 and math.isfinite(v)
     a = np.asarray(value, dtype=float)
-    return bool(np.all(a > 0) and np.all(np.isfinite(a)))
+    return bool(((a > 0) & (a < math.inf)).all())  # NaN fails both comparisons
 
 
 def check_parts(parts: NetworkParts) -> NetworkParts:
@@ -314,17 +314,18 @@ def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
     ``columns`` names the right-hand sides, in order: "emf" (the aerial's EMF), "top" and "detector"
     (a unit current into the top, into the detector tap, the EMF shorted)."""
     check_parts(parts)
-    f = np.asarray(frequency, dtype=float)
-    if not (np.isfinite(f).all() and (f > 0).all()):
+    f_own = np.asarray(frequency, dtype=float)
+    if not ((f_own > 0) & (f_own < math.inf)).all():
         raise ModelInputError("frequency must be positive and finite")
     za = np.asarray(aerial_impedance, dtype=complex)
     # the coil's inductance, a series capacitance or a coupling coefficient may be arrays too (a search
     # over part values in one solve)
-    varied = [np.shape(v) for v in (parts.coil_inductance, parts.series_capacitance, parts.coupling_coefficient)
-              if v is not None]
-    shape = np.broadcast_shapes(f.shape, za.shape, np.shape(tuning_capacitance), np.shape(detector_conductance),
-                                np.shape(emf), *varied)
-    f = f if f.shape == shape else np.broadcast_to(f, shape)
+    shape = np.broadcast_shapes(f_own.shape, za.shape, *(_shape(v) for v in (
+        tuning_capacitance, detector_conductance, emf, parts.coil_inductance, parts.series_capacitance,
+        parts.coupling_coefficient) if v is not None))
+    # the loss callables see every system's frequency (as they always have); the arithmetic of the
+    # assembly broadcasts the frequencies as it goes (the same figures, fewer operations)
+    f = f_own if f_own.shape == shape else np.broadcast_to(f_own, shape)
     taps, node = _taps(parts)
     if np.ndim(parts.coil_inductance) == 0:
         msec = _sections(tuple(taps), parts.block, float(parts.coil_inductance))
@@ -347,8 +348,13 @@ def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
                   np.array([b - a for a, b in zip([0.0] + taps[:-1], taps)]), msec, parts.self_capacitance,
                   parts.series_capacitance, r_coil if np.shape(r_coil) == shape else np.broadcast_to(r_coil, shape),
                   primary)
-    system = _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns, lay)
+    system = _assemble(shape, f_own, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns, lay)
     return system, shape, (k - 1, lay.detector_node, aer)
+
+
+def _shape(v) -> tuple:
+    """``numpy.shape`` of a value, a plain number's without a trip through numpy."""
+    return () if isinstance(v, (float, int)) else np.shape(v)
 
 
 class _Primary(NamedTuple):
@@ -388,7 +394,8 @@ class _Reduced(NamedTuple):
 
 def _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns,
               lay: _Layout) -> _Reduced:
-    """The nodal systems (``shape`` of them) of networks laid out as ``lay``, reduced to one to three unknowns.
+    """The nodal systems (``shape`` of them) of networks laid out as ``lay``, reduced to one to three unknowns
+    (``f``, the frequencies [Hz], and every other input broadcast against ``shape`` as the arithmetic goes).
 
     Nodes: the winding's taps from the earthy end (the last one the top), then the aerial's own node for a
     series capacitor or a separate primary. The modified nodal system [2]_ has, besides the node voltages,
@@ -442,7 +449,9 @@ def _assemble(shape, f, aerial_impedance, emf, tuning_capacitance, detector_cond
     elif not series:
         for node in range(k):
             y[node] = y[node] + _at(aer, node, y_aer)
-    inject = {"emf": (aer, np.asarray(emf, dtype=complex) * y_aer), "top": (top, 1.0), "detector": (det, 1.0)}
+    inject = {"top": (top, 1.0), "detector": (det, 1.0)}
+    if "emf" in columns:
+        inject["emf"] = (aer, np.asarray(emf, dtype=complex) * y_aer)
     rhs_nodes = [[_at(inject[c][0], node, inject[c][1]) for c in columns] for node in range(nb + int(series))]
     # rows: Kirchhoff's current law summed over the nodes from the top down to each section (Tᵀ)
     matrix, rhs = [None] * n, [None] * n
@@ -552,7 +561,7 @@ def _cramer(a, b) -> list:
 def _pivot_inverse(v):
     """1 / ``v`` for a pivot (or a 2 × 2 determinant); ``numpy.linalg.LinAlgError`` where one is exactly zero, as
     LAPACK's solve raises for an exactly singular system (rather than an infinity and a warning)."""
-    if not np.all(v):
+    if not (v.all() if isinstance(v, np.ndarray) else np.all(v)):
         raise np.linalg.LinAlgError("singular receiving-network system")
     return 1.0 / v
 
@@ -580,7 +589,7 @@ def _voltages(system: _Reduced, x, wanted, shape) -> list:
 
     out = []
     for node, column in wanted:
-        if np.ndim(node) == 0:
+        if isinstance(node, int) or np.ndim(node) == 0:
             v = at(int(node), column)
         else:
             v = np.choose(node, [at(i, column) for i in range(len(system.volts))])
