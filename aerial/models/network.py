@@ -746,16 +746,25 @@ def _solve_group(group: StackGroup, shared, f, za, tuning_capacitance, detector_
                            np.array([ms.sum(axis=1) / ms.sum() for ms in group.sections])[:, None, :],
                            _per_network([p.primary_resistance for p in parts], f, shared),
                            None if p0.primary_capacitance is None else column([p.primary_capacitance for p in parts]))
-    aer = {"direct": k - 1, "coil tap": group.aerial_node, "series capacitor": k, "separate primary": k}[p0.arrangement]
-    lay = _Layout(p0.arrangement, group.detector_node, aer, group.fractions[:, None, :], group.sections[:, None],
+    aer = {"direct": k - 1, "coil tap": _one_node(group.aerial_node), "series capacitor": k,
+           "separate primary": k}[p0.arrangement]
+    det = _one_node(group.detector_node)
+    lay = _Layout(p0.arrangement, det, aer, group.fractions[:, None, :], group.sections[:, None],
                   column([p.self_capacitance for p in parts]),
                   column([p.series_capacitance for p in parts]) if p0.arrangement == "series capacitor" else None,
                   _per_network([p.coil_resistance for p in parts], f, shared), primary)
     system = _assemble(f.shape, f, za, emf, tuning_capacitance, detector_conductance, ("emf", "top", "detector"),
                        lay)
     x = _eliminate(system.matrix, system.rhs)
-    top, det = k - 1, group.detector_node
+    top = k - 1
     return tuple(_voltages(system, x, ((top, 0), (det, 0), (top, 1), (det, 2), (aer, 0), (det, 1), (top, 2)), f.shape))
+
+
+def _one_node(nodes):
+    """A group's node numbers (G, 1), or the one number they all are: the same figures, without a choice per
+    network in the assembly and the voltages."""
+    first = int(nodes.flat[0])
+    return first if (nodes == first).all() else nodes
 
 
 def retuned_detector_voltage(bare: NetworkSolution, frequency, tuning_capacitance, detector_conductance):
