@@ -261,6 +261,7 @@ class _Aerial:
         self.he = None if he_m is None else self._arr(he_m, "effective_height_m", nonneg=True)
         self.cal_capacitance = None
         self.cal_resistance = None
+        self._complex: dict = {}  # complex_impedance's values per frequency grid
 
     def _arr(self, v, name, positive=False, nonneg=False):
         a = np.broadcast_to(np.asarray(v, dtype=float), self.f.shape).copy()
@@ -285,6 +286,22 @@ class _Aerial:
         if self.cal_resistance is not None:
             r = np.full_like(f, self.cal_resistance)
         return r, x
+
+    def complex_impedance(self, f):
+        """Ra + jXa at ``f`` [ohm] (:meth:`impedance`), read-only, remembered per frequency grid and calibration:
+        the searches solve the network on the same few grids again and again."""
+        f = np.asarray(f, dtype=float)
+        key = (f.shape, f.tobytes(), None if self.cal_capacitance is None else float(self.cal_capacitance),
+               None if self.cal_resistance is None else float(self.cal_resistance))
+        z = self._complex.get(key)
+        if z is None:
+            if len(self._complex) > 64:
+                self._complex.clear()
+            r, x = self.impedance(f)
+            z = r + 1j * x
+            z.setflags(write=False)
+            self._complex[key] = z
+        return z
 
     def radiation_resistance(self, f):
         return np.interp(f, self.f, self.rr)
@@ -1312,11 +1329,7 @@ def _net_parts(coil: _Coil, parts: TuningParts, **override):
 
 
 def _za(aerial: _Aerial):
-    def za(f):
-        r, x = aerial.impedance(f)
-        return r + 1j * x
-
-    return za
+    return aerial.complex_impedance
 
 
 def _table_arrays(table_f, aerial, coil, parts) -> dict:
