@@ -642,7 +642,8 @@ def plan_network_stack(parts_stack) -> NetworkStack:
         taps, node = _taps(p)
         keyed.setdefault((p.arrangement, len(taps), p.primary_capacitance is not None), []).append(
             (i, p, node[float(p.detector_tap)], node.get(float(p.aerial_tap or 1.0)),
-             np.diff(np.concatenate([[0.0], taps])), _sections(tuple(taps), p.block, float(p.coil_inductance))))
+             [b - a for a, b in zip([0.0] + taps[:-1], taps)],
+             _sections(tuple(taps), p.block, float(p.coil_inductance))))
     groups = []
     for rows in keyed.values():
         idx, parts, det, aer, frac, msec = zip(*rows)
