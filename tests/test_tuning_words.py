@@ -12,7 +12,7 @@ import pytest
 
 from aerial.cli import main
 
-from .conftest import EXAMPLES
+from .conftest import EXAMPLES, run
 
 SUBURBAN = next(p for p in EXAMPLES if p.name == "suburban_lot_service_line.toml")
 RURAL = next(p for p in EXAMPLES if p.name == "rural_long_wire.toml")
@@ -238,3 +238,50 @@ def test_consistency_untunable_stretches_each_named():
     # one stretch to the top of the band reads as before
     top_only = [dict(r, resonates_with_positive_capacitor=r["frequency_hz"] < 1600e3) for r in rows]
     assert untunable_words(top_only).startswith("From 1.6 MHz up: cannot tune here; at 1.71 MHz ")
+
+
+def test_a_station_the_aerial_alone_tunes_past_says_so_plainly(capsys, tmp_path):
+    """Input-handling check on an invented 25 m wire with a 500 µH coil: at 1500 kHz the tank needs
+    1/((2π·1.5 MHz)²·500 µH) = 22.5 pF in all (Thomson's resonance formula), less than the aerial presents, so
+    no capacitor setting reaches it; the words say that plainly (they said "needs less than no capacitance")."""
+    site = tmp_path / "site.toml"
+    site.write_text("""
+[site]
+name = "short wire, big coil"
+bands = ["mf"]
+
+[supports.a]
+at = [0, 0]
+height = "10 m"
+
+[supports.b]
+at = [25, 0]
+height = "10 m"
+
+[[spans]]
+from = "a"
+to = "b"
+
+[lead_in]
+from = "a"
+
+[receiver]
+at = [0.5, 0]
+height = "1 m"
+coil = "500 uH"
+capacitor = ["15 pF", "365 pF"]
+
+[[earth.rods]]
+length = "2.4 m"
+
+[[stations]]
+name = "High End 1500"
+frequency = "1500 kHz"
+power = "10 kW"
+distance = "20 km"
+""", encoding="utf-8")
+    code, out, err = run(capsys, "report", site)
+    assert code == 0, err
+    text = " ".join(out.split())
+    assert "needs less capacitance than the aerial alone gives: even with no capacitor the coil tunes below" in text
+    assert "less than no capacitance" not in text

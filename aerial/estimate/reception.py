@@ -1948,8 +1948,8 @@ def _tuning_need(parts, c_need) -> str:
         return ""
     rng = f"the capacitor gives {_pf(cmin)} to {_pf(cmax)}"
     if c_need < 0:
-        return (f"needs less than no capacitance: the aerial alone tunes the coil lower; {rng}; "
-                "use a smaller coil, a tap or a series capacitor")
+        return (f"needs less capacitance than the aerial alone gives: even with no capacitor the coil tunes below "
+                f"this station; {rng}; use a smaller coil, a tap or a series capacitor")
     if c_need < cmin:
         return f"needs {_pf(c_need)}; {rng}: use a smaller coil, or a tap or series capacitor for the aerial"
     return f"needs {_pf(c_need)}; {rng}: use a larger coil or add fixed capacitance"
