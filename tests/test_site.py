@@ -313,3 +313,28 @@ def test_a_written_unit_too_small_is_refused_without_the_plain_number_hint():
     msg = rejects(MINIMAL + '\n[[stations]]\nname = "Demo"\nfrequency = "1340 kHz"\npower = "1 kW"\ndistance = "45 m"\n',
                   "stations[0].distance", "at least 100 m")
     assert "plain number" not in msg
+
+
+@pytest.mark.parametrize("height, side", [(7.9, "below"), (8.12, "above")])
+def test_a_lead_in_point_a_little_off_a_span_starts_on_the_wire_with_a_note(height, side):
+    # input handling: the invented span of the test above (6 m and 10 m supports 20 m apart, 8 m high mid-span);
+    # a down-lead written 10 or 12 cm from the wire starts on it, and the warning says where the wire is
+    site = load_site_text(span_site() + f'\n[lead_in]\nfrom = [10, 0, {height}]\nvia = [[10, 3, 5]]\n', "t.toml")
+    lead = next(w for w in site.wires if w.role == "lead-in")
+    assert lead.points_m[0][2] == pytest.approx(8.0, abs=1e-9)
+    note = next(str(n) for n in site.notes if str(n).startswith("lead_in.from"))
+    assert "the aerial wire is 8 m high at that point" in note and f"m {side} it" in note
+
+
+@pytest.mark.parametrize("start", ["[10, 0, 8]", "[5, 0, 7]", "[15, 0, 9]"])
+def test_a_down_lead_from_a_straight_span_at_a_quarter_or_the_middle_is_a_t_not_a_duplicate(start):
+    # input handling: the invented straight span above (no sag: one piece); a lead-in leaving it exactly where the
+    # duplicate-wire check samples the piece (a quarter, half, three quarters along) was refused as "two wires in
+    # one place"; it is a junction, as at a piece's own end
+    site = load_site_text(span_site() + f"\n[lead_in]\nfrom = {start}\n", "t.toml")
+    assert any(w.role == "lead-in" for w in site.wires)
+
+
+def test_a_lead_in_laid_along_a_span_is_still_refused_as_a_duplicate():
+    # input handling: the same span, and a lead-in that runs along it from the middle to the house end
+    rejects(span_site() + "\n[lead_in]\nfrom = [10, 0, 8]\nvia = [[0.5, 0, 6.1]]\n", "lies along", "two wires in one place")

@@ -24,7 +24,7 @@ import numpy as np
 
 from aerial.core import units
 from aerial.core.errors import SiteError
-from aerial.core.lengthtext import metres
+from aerial.core.lengthtext import metres, words
 from aerial.core.materials import CONDUCTOR_ALIASES, CONDUCTORS, SOIL_WORDS, SOILS, Soil, soil_category
 from aerial.models.coil import CoilWinding
 from aerial.site.building import SiteBuilding, parse_building
@@ -80,6 +80,10 @@ MAX_STATION_DISTANCE_M = 20_000e3
 
 #: Nearest station accepted (the ground-wave field is a far-field model). [m]
 MIN_STATION_DISTANCE_M = 100.0
+
+#: A lead-in start written this close above or below the aerial wire (a round height under a sagging span) starts
+#: on the wire, with a note; farther off it is refused with the wire's height there. [m]
+LEAD_IN_SNAP_M = 0.15
 
 #: Transmitter powers accepted (the largest broadcast transmitters are about 2 MW). [W]
 STATION_POWER_W = (1e-3, 10e6)
@@ -511,10 +515,12 @@ def _build(r: TableReader, raw: dict, text: str, path: str) -> Site:
     if not wires:
         r.fail("spans", "", "the site has no aerial wire: add [[spans]] between [supports] or a [[runs]] polyline")
     receiver = _receiver(r, raw)
-    lead, receiver = _lead_in(r, raw, supports, wires, receiver, default_size)
+    lead_notes: list[str] = []
+    lead, receiver = _lead_in(r, raw, supports, wires, receiver, default_size, lead_notes)
     if lead is not None:
         wires.append(lead)
     electrodes, earth_wires, notes = _earth(r, raw, receiver, default_size, soil)
+    notes = lead_notes + notes
     wires += earth_wires
     _check_counterpoise(r, wires, receiver)
     position = _position(r, site_t, "site")
@@ -988,7 +994,7 @@ def _aerial_ends(wires):
     return np.array(pts)
 
 
-def _lead_in(r: TableReader, raw, supports, wires, receiver: Receiver, default_size) -> tuple:
+def _lead_in(r: TableReader, raw, supports, wires, receiver: Receiver, default_size, notes: list) -> tuple:
     t = r.table(raw, "", "lead_in")
     key = "lead_in"
     r.check_keys(t, key, {"from", "via", "notes"} | _SIZE_KEYS)
@@ -1006,6 +1012,13 @@ def _lead_in(r: TableReader, raw, supports, wires, receiver: Receiver, default_s
                 r.fail("lead_in.from", v, "the lead-in must start on the aerial: no span or run reaches that support")
         else:
             start = np.array(r.point3(v, "lead_in.from"))
+            z = _wire_height_over(start, wires)
+            if not _on_any_wire(start, wires) and z is not None and abs(z - start[2]) <= LEAD_IN_SNAP_M:
+                # a down-lead written at a round height under a sagging span: it starts on the wire above or below
+                notes.append(words("lead_in.from: the aerial wire is {z} high at that point (the point given is {d} "
+                                   "{way}); the lead-in starts on the wire there", z=metres(z),
+                                   d=metres(abs(z - start[2])), way="above it" if start[2] > z else "below it"))
+                start = np.array([start[0], start[1], z])
             if not _on_any_wire(start, wires):
                 near, gap = _nearest_on_wires(start, wires)
                 r.fail("lead_in.from", v, "the lead-in must start on the aerial wire: this point is not on any span or "
@@ -1053,8 +1066,8 @@ def _nearest_on_wires(point, wires) -> tuple:
     return best
 
 
-def _height_above(point, wires) -> str:
-    """Where the aerial passes over the point's plan position, its height there in words ("" if it does not)."""
+def _wire_height_over(point, wires):
+    """The aerial's height where it passes over (or under) the point's plan position, None where it does not. [m]"""
     for w in wires:
         p = w.points_m
         for a, b in zip(p[:-1], p[1:]):
@@ -1064,9 +1077,14 @@ def _height_above(point, wires) -> str:
                 continue
             t = float(np.clip((point[:2] - a[:2]) @ ab / n2, 0.0, 1.0))
             if np.linalg.norm(a[:2] + t * ab - point[:2]) <= JOIN_TOLERANCE_M:
-                z = a[2] + t * (b[2] - a[2])
-                return f"; straight above or below that plan position the aerial is {metres(z)} high"
-    return ""
+                return float(a[2] + t * (b[2] - a[2]))
+    return None
+
+
+def _height_above(point, wires) -> str:
+    """Where the aerial passes over the point's plan position, its height there in words ("" if it does not)."""
+    z = _wire_height_over(point, wires)
+    return "" if z is None else f"; straight above or below that plan position the aerial is {metres(z)} high"
 
 
 def _on_any_wire(point, wires) -> bool:
@@ -1621,6 +1639,10 @@ def _check_overlaps(r: TableReader, wires):
         # a sample within the join tolerance of its own piece's ends sits at a joint, where wires meet by design
         own_end = np.minimum(np.linalg.norm(q - a[i], axis=1), np.linalg.norm(q - b[i], axis=1))
         d[own_end <= JOIN_TOLERANCE_M, :] = np.inf
+        # so does a sample at the other piece's end: a T's down-lead leaving a straight span at its middle
+        other_end = np.minimum(np.linalg.norm(q[:, None, :] - a[None], axis=2),
+                               np.linalg.norm(q[:, None, :] - b[None], axis=2))
+        d[other_end <= JOIN_TOLERANCE_M] = np.inf
         hit = np.argwhere(d < JOIN_TOLERANCE_M)
         if hit.size:
             j = int(hit[0][1])
