@@ -728,6 +728,27 @@ def length_over_roof(start, end, footprint, roof_height_m) -> float:
     return float(np.sum(np.where(inside, np.diff(cuts, axis=1), 0.0) * np.linalg.norm(e - s, axis=1)[:, None]))
 
 
+def _facades(footprint, points_xy) -> tuple:
+    """Each footprint edge as a facade seen from the points: (corners (K, 2), edge vectors (K, 2), outward unit
+    normals (K, 2), the points' mean distance from each edge (K,) [m], whether every point is in front of each
+    edge's plane (K,))."""
+    a = np.asarray(footprint, dtype=float)
+    ab = np.roll(a, -1, axis=0) - a
+    p = np.asarray(points_xy, dtype=float).reshape(-1, 2)
+    t = np.clip(np.einsum("pkj,kj->pk", p[:, None, :] - a[None], ab) / np.einsum("kj,kj->k", ab, ab), 0.0, 1.0)
+    d = np.linalg.norm(p[:, None, :] - (a[None] + t[..., None] * ab[None]), axis=-1)
+    normals = np.stack([ab[:, 1], -ab[:, 0]], axis=1) / np.linalg.norm(ab, axis=1)[:, None]
+    flip = np.einsum("kj,kj->k", np.mean(a, axis=0)[None] - a, normals) > 0  # point each away from the building
+    normals = np.where(flip[:, None], -normals, normals)
+    signed = np.einsum("pkj,kj->pk", p[:, None, :] - a[None], normals)
+    return a, ab, normals, np.mean(d, axis=0), np.min(signed, axis=0) >= -WALL_CLEARANCE_M
+
+
+def _facade(a, normals, k) -> tuple:
+    """Facade ``k`` as (a point on it, its outward unit normal), both in 3-D. [m], [1]"""
+    return np.array([a[k, 0], a[k, 1], 0.0]), np.array([normals[k, 0], normals[k, 1], 0.0])
+
+
 def nearest_facade(footprint, points_xy):
     """The footprint edge nearest the points (mean distance): (point on it, outward unit normal).
 
@@ -737,21 +758,9 @@ def nearest_facade(footprint, points_xy):
     >>> [float(v) for v in n]
     [0.0, 1.0, 0.0]
     """
-    a = np.asarray(footprint, dtype=float)
-    b = np.roll(a, -1, axis=0)
-    ab = b - a
-    p = np.asarray(points_xy, dtype=float).reshape(-1, 2)
-    t = np.clip(np.einsum("pkj,kj->pk", p[:, None, :] - a[None], ab) / np.einsum("kj,kj->k", ab, ab), 0.0, 1.0)
-    d = np.linalg.norm(p[:, None, :] - (a[None] + t[..., None] * ab[None]), axis=-1)
-    normals = np.stack([ab[:, 1], -ab[:, 0]], axis=1) / np.linalg.norm(ab, axis=1)[:, None]
-    centroid = np.mean(a, axis=0)
-    flip = np.einsum("kj,kj->k", centroid[None] - a, normals) > 0  # point each away from the building
-    normals = np.where(flip[:, None], -normals, normals)
-    signed = np.einsum("pkj,kj->pk", p[:, None, :] - a[None], normals)
+    a, _, normals, mean_distance, all_in_front = _facades(footprint, points_xy)
     # prefer a facade with every point in front of its plane, then the nearest
-    score = np.mean(d, axis=0) + np.where(np.min(signed, axis=0) >= -WALL_CLEARANCE_M, 0.0, 1e12)
-    k = int(np.argmin(score))
-    return np.array([a[k, 0], a[k, 1], 0.0]), np.array([normals[k, 0], normals[k, 1], 0.0])
+    return _facade(a, normals, int(np.argmin(mean_distance + np.where(all_in_front, 0.0, 1e12))))
 
 
 def facade_for_wires(footprint, start, end):
@@ -776,26 +785,18 @@ def facade_for_wires(footprint, start, end):
     >>> [float(v) + 0.0 for v in n]  # the east facade (+ 0.0: no minus zero)
     [1.0, 0.0, 0.0]
     """
-    a = np.asarray(footprint, dtype=float)
     s, e = np.atleast_2d(np.asarray(start, dtype=float)), np.atleast_2d(np.asarray(end, dtype=float))
     ends = np.concatenate([s, e])[:, :2]
-    outside = ends[plan_distance(ends, a) > 0]
-    p0, n = nearest_facade(a, outside)
-    if np.min((outside - p0[:2]) @ n[:2]) >= -WALL_CLEARANCE_M:
-        return p0, n
-    ab = np.roll(a, -1, axis=0) - a
-    normals = np.stack([ab[:, 1], -ab[:, 0]], axis=1) / np.linalg.norm(ab, axis=1)[:, None]
-    normals *= np.where(np.einsum("kj,kj->k", np.mean(a, axis=0) - a, normals) > 0, -1.0, 1.0)[:, None]
+    a, _, normals, mean_distance, all_in_front = _facades(footprint, ends[plan_distance(ends, footprint) > 0])
+    if np.any(all_in_front):
+        return _facade(a, normals, int(np.argmin(mean_distance + np.where(all_in_front, 0.0, 1e12))))
     d0 = np.einsum("nkj,kj->nk", s[:, None, :2] - a[None], normals)  # wires down, facades across
     d1 = np.einsum("nkj,kj->nk", e[:, None, :2] - a[None], normals)
     crossing = (d0 > 0) != (d1 > 0)
     t = np.where(crossing, d0 / np.where(crossing, d0 - d1, 1.0), 0.0)  # where the wire meets the plane
     fraction = np.where(crossing, np.where(d0 > 0, t, 1.0 - t), (d0 > 0).astype(float))
     in_front = np.round(np.sum(fraction * np.linalg.norm(e - s, axis=1)[:, None], axis=0), 3)  # [m], to the mm
-    tt = np.clip(np.einsum("pkj,kj->pk", outside[:, None, :] - a[None], ab) / np.einsum("kj,kj->k", ab, ab), 0.0, 1.0)
-    mean_distance = np.mean(np.linalg.norm(outside[:, None, :] - (a[None] + tt[..., None] * ab[None]), axis=-1), axis=0)
-    k = int(np.lexsort((mean_distance, -in_front))[0])  # the most wire in front, then the nearest
-    return np.array([a[k, 0], a[k, 1], 0.0]), np.array([normals[k, 0], normals[k, 1], 0.0])
+    return _facade(a, normals, int(np.lexsort((mean_distance, -in_front))[0]))  # the most wire in front, then nearest
 
 
 def _in_front(segments: Segments, p0, n):

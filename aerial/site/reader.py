@@ -1088,15 +1088,8 @@ def _height_above(point, wires) -> str:
 
 
 def _on_any_wire(point, wires) -> bool:
-    for w in wires:
-        p = w.points_m
-        a, b = p[:-1], p[1:]
-        ab = b - a
-        t = np.clip(np.einsum("ij,ij->i", point - a, ab) / np.maximum(np.einsum("ij,ij->i", ab, ab), 1e-30), 0, 1)
-        d = np.linalg.norm(a + t[:, None] * ab - point, axis=1)
-        if np.min(d) <= JOIN_TOLERANCE_M:
-            return True
-    return False
+    """Whether ``point`` lies on one of the wires (within the join tolerance)."""
+    return _nearest_on_wires(point, wires)[1] <= JOIN_TOLERANCE_M
 
 
 #: Gas in any spelling, case or punctuation ("gas-pipe", "Gas, yellow pipe", "GAS", "gaspipe", "natural_gas"),
