@@ -56,11 +56,12 @@ def refusal_check(site) -> list[str]:
 
 
 def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=None, force=False, ground="perfect",
-               allow_large=False, page=None, units="si", page_units=None) -> dict:
+               allow_large=False, page=None, units="si", page_units=None, beside=False) -> dict:
     """Load a site (None: the built-in example), run the whole chain, optionally draw pictures and a page.
 
     ``units`` ("si" or "us"): the what-if steps are round figures of that system, and the page's drawings
-    are in it unless ``page_units`` says otherwise; every figure stays SI.
+    are in it unless ``page_units`` says otherwise; every figure stays SI. ``beside``: the ranges and the what-if
+    table worked out on the second core (:func:`aerial.estimate.assemble.analyse`); the result is the same.
 
     ``allow_large`` lets a full-wave sweep run past the memory and time budget
     (:func:`aerial.estimate.fullwave_sweep.check_full_wave_budget`). ``page``
@@ -80,7 +81,7 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
     if page:
         check_page_file(page, force, site)
     result = analyse(site, method="full-wave" if full_wave else "closed-form", step_hz=step_hz, progress=progress,
-                     ground=ground, allow_large=allow_large, units=units)
+                     ground=ground, allow_large=allow_large, units=units, beside=beside)
     if clearance_warnings:
         result["warnings"] = clearance_warnings + [w for w in result["warnings"] if w not in clearance_warnings]
     if pictures:

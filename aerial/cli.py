@@ -510,7 +510,7 @@ def cmd_report(args) -> int:
                             pictures=args.pictures, force=args.force,
                             ground=_ground_option(args), allow_large=args.allow_large,
                             page=args.page, units="si" if args.json else args.units,  # JSON: the SI steps always
-                            page_units=args.units)
+                            page_units=args.units, beside=True)
     _note_page(result)
     return _render(args, result, "render_report")
 

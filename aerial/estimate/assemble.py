@@ -13,6 +13,7 @@ import math
 import numpy as np
 
 from aerial.core.arrays import sorted_unique
+from aerial.core.beside import in_order
 from aerial.core.lengthtext import metres, metres_range, words
 from aerial.core.version import __version__
 from aerial.estimate.plain import finalise
@@ -837,7 +838,7 @@ def _rail_counterpoise(site):
 
 
 def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, progress=None, what_ifs: bool = True,
-            ground: str = "perfect", allow_large: bool = False, units: str = "si") -> dict:
+            ground: str = "perfect", allow_large: bool = False, units: str = "si", beside: bool = False) -> dict:
     """Run the whole chain for a site.
 
     Parameters
@@ -860,6 +861,11 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     units : {"si", "us"}
         The unit system the what-if steps are round figures of (3 m or
         10 ft raised, ...); every figure stays SI.
+    beside : bool
+        Work out the ranges and the what-if table in a forked copy of this
+        process on the second core while this one works out the tuning and
+        the stations (:class:`aerial.core.beside.Beside`; Linux, two cores,
+        closed forms only, else in line). The result is the same either way.
 
     Returns
     -------
@@ -873,10 +879,29 @@ def analyse(site, *, method: str = "closed-form", step_hz: float | None = None, 
     if units not in WHAT_IF_STEPS_M:
         raise ModelInputError(f"'{units}' is not a valid unit system, must be one of 'si', 'us'")
     with naming_the_file(site):  # a model's complaint about the site's wires names the file, as a site error does
-        return _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large, units)
+        return _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large, units, beside)
 
 
-def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large, units) -> dict:
+def _site_json(site) -> dict:
+    """The report's ``site`` section: the site's name, file, region, noise, soil and field strength."""
+    return {
+        "name": site.name,
+        "file": site.path,
+        "region": site.region,
+        "noise_category": site.noise,
+        "soil": {
+            "category": site.soil.name,
+            "relative_permittivity": site.soil.relative_permittivity,
+            "conductivity_s_m": site.soil.conductivity_s_m,
+            "conductivity_range_s_m": [site.soil.conductivity_low_s_m, site.soil.conductivity_high_s_m],
+            "relative_permittivity_range": list(site.soil.permittivity_bounds),
+            "source": site.soil.source,
+        },
+        "field_strength_v_per_m": site.field_strength_v_per_m,
+    }
+
+
+def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large, units, beside=False) -> dict:
     """:func:`analyse` once its options are checked."""
     warnings: list[str] = list(site.notes)
     freqs = frequency_grid(site, step_hz)
@@ -900,21 +925,7 @@ def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large
 
     result: dict = {
         "aerial_version": __version__,
-        "site": {
-            "name": site.name,
-            "file": site.path,
-            "region": site.region,
-            "noise_category": site.noise,
-            "soil": {
-                "category": site.soil.name,
-                "relative_permittivity": site.soil.relative_permittivity,
-                "conductivity_s_m": site.soil.conductivity_s_m,
-                "conductivity_range_s_m": [site.soil.conductivity_low_s_m, site.soil.conductivity_high_s_m],
-                "relative_permittivity_range": list(site.soil.permittivity_bounds),
-                "source": site.soil.source,
-            },
-            "field_strength_v_per_m": site.field_strength_v_per_m,
-        },
+        "site": _site_json(site),
         "geometry": {
             "wires": wires_json(geometry),
             "feed_m": [float(v) for v in geometry.feed_m],
@@ -958,22 +969,33 @@ def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large
         warnings[:0] = [result["building"]["assumption"]] + _building_warnings(geometry.building_site)
 
     stage(progress, "ranges from the tolerances")
-    result["ranges"] = ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground,
-                                             allow_large=allow_large, progress=progress, bounds=bounds,
-                                             geometry=geometry)
-    if what_ifs:
+
+    def ranges_and_moves():
+        """The ranges and the what-if table, with the what-if's notes: they do not need the tuning."""
+        notes: list[str] = []
+        ranges = ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground,
+                                       allow_large=allow_large, progress=progress, bounds=bounds, geometry=geometry)
         # at the frequency of the earth table and the ranges; the closed-form sweep has the first row already
         here = None if method == "full-wave" else {
             k: np.asarray(resp[k], float)[centre_i:centre_i + 1] for k in
             ("radiation_resistance_ohm", "conductor_loss_ohm", "effective_height_m", "capacitance_f", "ground_loss_ohm")}
-        result["what_if"] = what_if(site, float(freqs[centre_i]), earth, units, nominal=here, geometry=geometry,
-                                    notes=warnings)
+        moves = what_if(site, float(freqs[centre_i]), earth, units, nominal=here, geometry=geometry,
+                        notes=notes) if what_ifs else None
+        return ranges, moves, notes
 
-    from aerial.estimate import receiver as receiver_bridge
+    def tuning_and_stations():
+        from aerial.estimate import receiver as receiver_bridge
 
-    stage(progress, "tuning and stations")
-    beyond = station_points(site, geometry, freqs, method=method, ground=ground, allow_large=allow_large)
-    tuning, stations, rx_warnings = receiver_bridge.receiver_results(site, freqs, resp, beyond=beyond)
+        stage(progress, "tuning and stations")
+        beyond = station_points(site, geometry, freqs, method=method, ground=ground, allow_large=allow_large)
+        return receiver_bridge.receiver_results(site, freqs, resp, beyond=beyond)
+
+    # the full wave's ranges report progress and may use every core: they stay in line
+    (result["ranges"], moves, notes), (tuning, stations, rx_warnings) = in_order(
+        ranges_and_moves, tuning_and_stations, fork=beside and method != "full-wave")
+    if moves is not None:
+        result["what_if"] = moves
+    warnings += notes
     result["tuning"] = tuning
     result["stations"] = stations
     warnings += rx_warnings
