@@ -196,3 +196,69 @@ def test_interrupt_while_writing_pictures_leaves_no_empty_folder(capsys, monkeyp
     _, err = capsys.readouterr()
     assert code == EXIT_INTERRUPTED and err == "aerial: interrupted\n"
     assert not pics.exists()
+
+
+#: The child for the report's second process: the what-if table, worked out in the forked copy, leaves a marker
+#: with the copy's process id and then waits, so that Ctrl-C arrives while both processes are at work.
+BESIDE_CHILD = """
+import os
+import signal
+import sys
+import time
+from pathlib import Path
+
+signal.signal(signal.SIGINT, signal.default_int_handler)
+
+import aerial.estimate.assemble as assemble
+from aerial.cli import main
+
+marker = Path(sys.argv[1])
+real_what_if = assemble.what_if
+
+
+def what_if(*args, **kwargs):
+    marker.write_text(str(os.getpid()), encoding="utf-8")
+    time.sleep(120)
+    return real_what_if(*args, **kwargs)
+
+
+assemble.what_if = what_if
+sys.exit(main(sys.argv[2:]))
+"""
+
+
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="the second process is used on Linux only")
+@pytest.mark.parametrize("to", ["group", "parent"])
+def test_ctrl_c_while_the_second_process_works_stops_both(tmp_path, to):
+    """From a terminal the whole process group gets SIGINT; sent to the first process alone, it stops the copy."""
+    from aerial.core.beside import second_core_free
+
+    if not second_core_free():
+        pytest.skip("one core, or the second process is switched off")
+    marker = tmp_path / "copy.pid"
+    env = dict(os.environ, PYTHONPATH=str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", ""))
+    env.pop("AERIAL_DEBUG", None)
+    proc = subprocess.Popen([sys.executable, "-c", BESIDE_CHILD, str(marker), "report", str(BACKYARD), "--json"],
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, env=env, cwd=tmp_path,
+                            start_new_session=True)
+    try:
+        deadline = time.monotonic() + SWEEP_START_TIMEOUT_S
+        while not marker.exists() or not marker.read_text(encoding="utf-8"):
+            assert proc.poll() is None, proc.communicate()
+            assert time.monotonic() < deadline, "the second process never started its work"
+            time.sleep(0.05)
+        copy = int(marker.read_text(encoding="utf-8"))
+        assert copy != proc.pid
+        if to == "group":
+            os.killpg(proc.pid, signal.SIGINT)  # as the terminal does
+        else:
+            os.kill(proc.pid, signal.SIGINT)
+        out, err = proc.communicate(timeout=60)
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+    assert proc.returncode == EXIT_INTERRUPTED, err.decode()
+    assert err.decode().endswith("aerial: interrupted\n") and b"Traceback" not in err and out == b""
+    time.sleep(0.2)  # an orphan would be taken over by init, which reaps it once it has ended
+    with pytest.raises(ProcessLookupError):
+        os.kill(copy, 0)  # the copy is gone, not left sleeping
