@@ -956,11 +956,7 @@ def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large
         },
     }
     pts = band_points(site)
-    # one run of the soil's bounds serves the ranges (at the band points) and the earth table (at the centre)
-    bounds = earth_bounds(site, np.append(freqs[band_point_indices(freqs, pts)], freqs[centre_i]),
-                          screen=method != "full-wave")
-    result["earth"] = _earth_json(earth, _with_screen_length(site, earth_rf, centre_i), centre_i,
-                                  {k: [v[-1:] for v in b] if k.startswith("parts") else b[-1:] for k, b in bounds.items()})
+    result["earth"] = None  # in its place among the keys; worked out with the ranges, which share its soil bounds
     for key in ("convergence", "ground_treatment", "segments", "loss_budget", "building_full_wave"):
         if key in resp:
             result["aerial"][key] = resp[key]
@@ -971,8 +967,13 @@ def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large
     stage(progress, "ranges from the tolerances")
 
     def ranges_and_moves():
-        """The ranges and the what-if table, with the what-if's notes: they do not need the tuning."""
+        """The earth table, the ranges and the what-if table, with the what-if's notes: they do not need the tuning."""
         notes: list[str] = []
+        # one run of the soil's bounds serves the ranges (at the band points) and the earth table (at the centre)
+        bounds = earth_bounds(site, np.append(freqs[band_point_indices(freqs, pts)], freqs[centre_i]),
+                              screen=method != "full-wave")
+        earth_table = _earth_json(earth, _with_screen_length(site, earth_rf, centre_i), centre_i,
+                                  {k: [v[-1:] for v in b] if k.startswith("parts") else b[-1:] for k, b in bounds.items()})
         ranges = ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground,
                                        allow_large=allow_large, progress=progress, bounds=bounds, geometry=geometry)
         # at the frequency of the earth table and the ranges; the closed-form sweep has the first row already
@@ -981,7 +982,7 @@ def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large
             ("radiation_resistance_ohm", "conductor_loss_ohm", "effective_height_m", "capacitance_f", "ground_loss_ohm")}
         moves = what_if(site, float(freqs[centre_i]), earth, units, nominal=here, geometry=geometry,
                         notes=notes) if what_ifs else None
-        return ranges, moves, notes
+        return earth_table, ranges, moves, notes
 
     def tuning_and_stations():
         from aerial.estimate import receiver as receiver_bridge
@@ -991,7 +992,7 @@ def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large
         return receiver_bridge.receiver_results(site, freqs, resp, beyond=beyond)
 
     # the full wave's ranges report progress and may use every core: they stay in line
-    (result["ranges"], moves, notes), (tuning, stations, rx_warnings) = in_order(
+    (result["earth"], result["ranges"], moves, notes), (tuning, stations, rx_warnings) = in_order(
         ranges_and_moves, tuning_and_stations, fork=beside and method != "full-wave")
     if moves is not None:
         result["what_if"] = moves
