@@ -146,3 +146,18 @@ def test_functions_are_short_enough_to_hold_in_ones_head():
     assert not new, f"functions over {MAX_FUNCTION_LINES} lines of code: {new}"
     done = LONG_FUNCTIONS_BEING_SPLIT - set(long)
     assert not done, f"these are short now: remove them from LONG_FUNCTIONS_BEING_SPLIT: {sorted(done)}"
+
+
+def test_records_come_from_the_core_named_tuple():
+    """Every record class is made by aerial.core.records.NamedTuple, not typing's (its field checks cost start-up)."""
+    found = []
+    for p in MODULES:
+        for node in ast.walk(ast.parse(p.read_text(encoding="utf-8"))):
+            if isinstance(node, ast.ImportFrom) and node.module == "typing" \
+                    and any(a.name == "NamedTuple" for a in node.names):
+                found.append(f"{_module_name(p)}:{node.lineno}")
+            elif isinstance(node, ast.Attribute) and node.attr == "NamedTuple" \
+                    and isinstance(node.value, ast.Name) and node.value.id == "typing":
+                found.append(f"{_module_name(p)}:{node.lineno}")
+    allowed = {"aerial.core.records"}  # the helper itself (typing's, for type checkers)
+    assert [f for f in found if f.split(":")[0] not in allowed] == []

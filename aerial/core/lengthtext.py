@@ -22,15 +22,14 @@ Examples
 'total wire length 98.1 ft is long'
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
+from __future__ import annotations
 
 import functools
 import math
 import re
 import string
-from typing import NamedTuple
 
+from aerial.core.records import NamedTuple
 from aerial.core.units import distance_text, length_text
 
 #: The metric units a length may be said to be written in ("km": a distance, in miles under "us").

@@ -20,9 +20,9 @@ ITU-R P.368, Ground-wave propagation curves for frequencies between 10 kHz and
 IEEE Std 142 (Green Book) / IEEE Std 80, typical soil resistivities.
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-from typing import NamedTuple
+from __future__ import annotations
+
+from aerial.core.records import NamedTuple
 
 
 class Conductor(NamedTuple):

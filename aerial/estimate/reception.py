@@ -17,17 +17,16 @@ each out-of-grid station's own frequency to the grid first).
 Assumptions (stated, not published figures) are module constants below.
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
+from __future__ import annotations
 
 import functools
 import math
-from typing import NamedTuple
 
 import numpy as np
 
 from aerial.core.arrays import bisect_ahead, sorted_unique
 from aerial.core.errors import ModelInputError
+from aerial.core.records import NamedTuple
 from aerial.core.units import si_text
 from aerial.models import atmospheric_noise as atm_mod
 from aerial.models import coil as coil_mod

@@ -13,13 +13,13 @@ interfering station.
 Arrays and plain dicts in and out; no wording beyond short labels.
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
+from __future__ import annotations
 
-from typing import Callable, NamedTuple
+from typing import Callable
 
 import numpy as np
 
+from aerial.core.records import NamedTuple
 from aerial.estimate import tuned_network as tn_mod
 from aerial.models import detector as det_mod
 from aerial.models import network as net_mod

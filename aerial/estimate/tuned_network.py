@@ -9,15 +9,15 @@ out; no dicts, no wording.
 Voltages are RMS unless said otherwise; the detector model takes the RF peak (√2 × RMS).
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
+from __future__ import annotations
 
 import functools
-from typing import Callable, NamedTuple
+from typing import Callable
 
 import numpy as np
 
 from aerial.core.arrays import bisect_ahead
+from aerial.core.records import NamedTuple
 from aerial.models import detector as det_mod
 from aerial.models import network as net_mod
 

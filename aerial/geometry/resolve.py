@@ -4,14 +4,12 @@ Frame: metres, x east, y north, z up; z = 0 is the ground surface. Shapely
 geometries are plan views (x, y) in the same frame.
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 
 from aerial.core.materials import CONDUCTORS
+from aerial.core.records import NamedTuple
 from aerial.models.building import BuildingBody
 from aerial.models.segments import FEED_GAP_M, Segments
 from aerial.site.building import SiteBuilding

@@ -31,14 +31,12 @@ References
    the curves of the variation of Fam with frequency. Recalled from memory.
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 
 from aerial.core.errors import ModelInputError
+from aerial.core.records import NamedTuple
 
 #: Seasons as P.372 groups the maps. [-]
 SEASONS = ("winter", "spring", "summer", "autumn")

@@ -70,10 +70,7 @@ References
    (from memory)
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 
@@ -81,6 +78,7 @@ from aerial.core.arrays import scratch_planes, sorted_unique
 from aerial.core.constants import EPSILON_0, SPEED_OF_LIGHT
 from aerial.core.errors import ModelInputError
 from aerial.core.lengthtext import metres, words
+from aerial.core.records import NamedTuple
 from aerial.models.capacitance import electrostatic_solution
 from aerial.models.short_aerial import monopole_z0_schelkunoff
 from aerial.models.segments import Segments

@@ -27,16 +27,15 @@ References
    matching). (from memory)
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
+from __future__ import annotations
 
 import threading
-from typing import NamedTuple
 
 import numpy as np
 from aerial.core.constants import EPSILON_0 as epsilon_0
 
 from aerial.core.arrays import scratch_planes
+from aerial.core.records import NamedTuple
 from aerial.core.threads import blas_threads
 from aerial.core.errors import ModelInputError
 from aerial.models.segments import FEED_GAP_M, Segments

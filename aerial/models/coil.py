@@ -23,15 +23,13 @@ References
    solenoids", Wireless Engineer, vol. 24, pp. 35-43 and 80-92, 1947 (from memory).
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 
 from aerial.core.constants import MU_0 as mu_0
 from aerial.core.errors import ModelInputError
+from aerial.core.records import NamedTuple
 from aerial.core.units import INCH_M
 from aerial.models.checks import positive as _positive
 from aerial.models.conductor import COPPER_RESISTIVITY, skin_depth

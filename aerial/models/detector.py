@@ -18,16 +18,14 @@ References
    diode detectors: square-law and linear (peak) detection (from memory).
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 from aerial.core.constants import BOLTZMANN as Boltzmann
 from aerial.core.constants import ELEMENTARY_CHARGE as elementary_charge
 
 from aerial.core.errors import ModelInputError
+from aerial.core.records import NamedTuple
 from aerial.models.checks import positive as _check
 from aerial.models.special_functions import ive, ive_pair
 

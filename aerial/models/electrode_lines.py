@@ -46,16 +46,14 @@ References
    Engineering 55, 1319-1328, 1936 (the rod formula).
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 from aerial.core.constants import EPSILON_0 as epsilon_0
 from aerial.core.constants import MU_0 as mu_0
 
 from aerial.core.errors import ModelInputError
+from aerial.core.records import NamedTuple
 
 __all__ = ["LineElectrode", "buried_wire_line", "rod_line", "soil_gamma", "EFFECTIVE_LENGTH_CHANGE"]
 

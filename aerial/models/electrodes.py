@@ -28,14 +28,12 @@ References
    (from memory; check the edition)
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 
 from aerial.core.errors import ModelInputError
+from aerial.core.records import NamedTuple
 from aerial.models.checks import positive as _positive
 
 #: IEEE Std 142 multiple-rod factors F for n rods about one rod length apart

@@ -12,16 +12,14 @@ References
    Proc. IRE 25, 1203-1236, 1937.
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 from aerial.core.constants import EPSILON_0 as epsilon_0
 from aerial.core.constants import SPEED_OF_LIGHT as c
 
 from aerial.core.errors import ModelInputError
+from aerial.core.records import NamedTuple
 from aerial.models.checks import positive as _positive
 from aerial.models.special_functions import wofz
 

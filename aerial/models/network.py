@@ -45,17 +45,17 @@ References
    analysis", IEEE Trans. Circuits and Systems 22(6), 1975 (from memory).
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
+from __future__ import annotations
 
 import functools
 import math
-from typing import Callable, NamedTuple
+from typing import Callable
 
 import numpy as np
 
 from aerial.core.arrays import bisection_midpoints, pin_crossing
 from aerial.core.errors import ModelInputError
+from aerial.core.records import NamedTuple
 
 ARRANGEMENTS = ("direct", "series capacitor", "coil tap", "separate primary")
 

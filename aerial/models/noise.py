@@ -12,14 +12,12 @@ References
    match a secondary quotation).
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 
 from aerial.core.errors import ModelInputError
+from aerial.core.records import NamedTuple
 
 #: ITU-R P.372 Table 1: median man-made noise Fam = c − d·log10(f_MHz), dB above kT0b.
 MAN_MADE_NOISE_COEFFICIENTS: dict[str, tuple[float, float]] = {

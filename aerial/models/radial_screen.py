@@ -72,11 +72,9 @@ References
    (from memory)
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
+from __future__ import annotations
 
 import functools
-from typing import NamedTuple
 
 import numpy as np
 
@@ -84,6 +82,7 @@ from aerial.core.constants import MU_0 as mu_0
 from aerial.core.constants import SPEED_OF_LIGHT as C0
 from aerial.core.errors import ModelInputError
 from aerial.core.lengthtext import metres
+from aerial.core.records import NamedTuple
 from aerial.models.groundwave import complex_relative_permittivity
 from aerial.models.short_aerial import ETA0
 from aerial.models.special_functions import ellipe, exp1

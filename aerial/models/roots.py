@@ -14,13 +14,13 @@ References
    (van Wijngaarden-Dekker-Brent method). (from memory)
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
+from __future__ import annotations
 
 import math
-from typing import Callable, NamedTuple
+from typing import Callable
 
 from aerial.core.errors import ModelInputError
+from aerial.core.records import NamedTuple
 
 _EPS = 2.0**-52
 

@@ -20,15 +20,13 @@ Frame: metres, x east, y north, z up. Earth-lead (``grounded``) segments are
 not part of the shape; their length is reported.
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 
 from aerial.core.errors import ModelInputError
 from aerial.core.lengthtext import metres
+from aerial.core.records import NamedTuple
 from aerial.models.segments import Segments
 
 SHAPE_KINDS = ("vertical", "sloping wire", "inverted-L", "T", "irregular")

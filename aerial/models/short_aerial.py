@@ -34,16 +34,14 @@ References
    uniform-charge, capacitance of a wire). (from memory)
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 from aerial.core.constants import SPEED_OF_LIGHT
 from aerial.core.constants import MU_0 as mu_0
 
 from aerial.core.errors import ModelInputError
+from aerial.core.records import NamedTuple
 from aerial.models.checks import positive as _positive
 from aerial.models.checks import option as _check_option
 

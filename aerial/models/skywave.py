@@ -34,15 +34,13 @@ References
    and 3). Recalled from memory.
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 
 from aerial.core.constants import SPEED_OF_LIGHT
 from aerial.core.errors import ModelInputError
+from aerial.core.records import NamedTuple
 
 #: Mean Earth radius used for great-circle distances. [m]
 EARTH_RADIUS_M = 6_371_000.0

@@ -22,14 +22,12 @@ References
    (rising and setting; the standard altitude −0°50′ for the sun).
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 
 from aerial.core.errors import ModelInputError
+from aerial.core.records import NamedTuple
 
 #: Zenith angle of the sun's centre at sunrise and sunset: 90° + 50′ (refraction 34′, semi-diameter 16′). [deg]
 SUNRISE_ZENITH_DEG = 90.833

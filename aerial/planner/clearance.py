@@ -20,16 +20,15 @@ distance is always inside the polygon: the polygon errs on the safe side by
 at most 0.2 % with the default 16 segments per quarter circle.
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
+from __future__ import annotations
 
 import math
-from typing import NamedTuple
 
 import numpy as np
 
 from aerial.core.errors import ModelInputError, SafetyRefusal
 from aerial.core.lengthtext import join_text, metres, words
+from aerial.core.records import NamedTuple
 
 #: Fall-zone factor on the tallest height of the aerial and its supports
 #: (US Consumer Product Safety Commission safety alerts; from memory). [1]

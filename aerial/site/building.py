@@ -11,14 +11,12 @@ building described gets a note that it is modelled in open ground.
 Frame: metres, x east, y north, z up; footprint corners in plan.
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
-
-from typing import NamedTuple
+from __future__ import annotations
 
 import numpy as np
 
 from aerial.core.lengthtext import metres, words
+from aerial.core.records import NamedTuple
 from aerial.site.plan import ENTRY_FIXING_KEY, STRUCTURES, Plan, site_plan
 from aerial.site.tables import TableReader, choice_words
 

@@ -15,12 +15,10 @@ key (with its line) and what is expected; an invalid polygon is rejected with
 the text of :func:`shapely.is_valid_reason`.
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up. The shapely types
-# stay quoted (shapely loads only when a plan has outlines).
-from typing import NamedTuple
+from __future__ import annotations
 
 from aerial.core import units
+from aerial.core.records import NamedTuple
 from aerial.site.tables import SUPPORT_KINDS, TableReader
 
 #: Words accepted for an overhead line's ``kind``; anything else (or nothing) is a power line.

@@ -12,13 +12,12 @@ file is only ever read.
 Frame: metres, x east, y north, z up; z = 0 is the ground surface.
 """
 
-# No ``from __future__ import annotations`` here: with it every field of the NamedTuples below is a
-# string that typing compiles when the class is made, a cost paid at each start-up.
+from __future__ import annotations
+
 import math
 import os
 import re
 import tomllib
-from typing import NamedTuple
 
 import numpy as np
 
@@ -26,6 +25,7 @@ from aerial.core import units
 from aerial.core.errors import SiteError
 from aerial.core.lengthtext import metres, words
 from aerial.core.materials import CONDUCTOR_ALIASES, CONDUCTORS, SOIL_WORDS, SOILS, Soil, soil_category
+from aerial.core.records import NamedTuple
 from aerial.models.coil import CoilWinding
 from aerial.site.building import SiteBuilding, parse_building
 from aerial.site.plan import Plan, parse_plan
