@@ -98,3 +98,28 @@ def test_a_report_with_no_plan_or_building_loads_no_shapely():
     out = _packages("report", str(ROOT / "site_examples" / "rural_long_wire.toml"), "--json")
     assert out["code"] == 0
     assert "shapely" not in out["loaded"] and "numpy" in out["loaded"]
+
+
+AERIAL_MODULES = """
+import contextlib, io, json, sys
+from aerial.cli import main
+with contextlib.redirect_stdout(io.StringIO()):
+    code = main(sys.argv[1:])
+print(json.dumps({"code": code, "loaded": sorted(m for m in sys.modules if m.startswith("aerial."))}))
+"""
+
+
+def test_a_report_loads_the_coil_physics_only_for_a_coil_to_work_out(tmp_path):
+    # consistency check: a coil given as an inductance needs the winding record, not the coil's physics
+    # (aerial.models.coil and its root finder); a winding given by its turns does
+    out = _fresh_process(AERIAL_MODULES, "report", str(ROOT / "site_examples" / "backyard_inverted_l.toml"), "--json")
+    assert out["code"] == 0
+    assert "aerial.models.winding" in out["loaded"]
+    assert "aerial.models.coil" not in out["loaded"] and "aerial.models.roots" not in out["loaded"]
+    text = (ROOT / "site_examples" / "backyard_inverted_l.toml").read_text(encoding="utf-8")
+    assert 'coil = "240 uH"' in text
+    wound = tmp_path / "wound.toml"
+    wound.write_text(text.replace('coil = "240 uH"', 'coil = { diameter = "60 mm", turns = 70, gauge = "24 AWG", '
+                                                      'length = "45 mm" }'), encoding="utf-8")
+    out = _fresh_process(AERIAL_MODULES, "report", str(wound), "--json")
+    assert out["code"] == 0 and "aerial.models.coil" in out["loaded"]

@@ -29,13 +29,12 @@ from aerial.core.errors import ModelInputError
 from aerial.core.records import NamedTuple
 from aerial.core.units import si_text
 from aerial.models import atmospheric_noise as atm_mod
-from aerial.models import coil as coil_mod
-from aerial.models.coil import CoilWinding
 from aerial.models import detector as det_mod
 from aerial.models import groundwave as gw_mod
 from aerial.models import network as net_mod
 from aerial.models import noise as noise_mod
 from aerial.models import tank as tank_mod
+from aerial.models.winding import CoilWinding
 from aerial.estimate import station_design as sd_mod
 from aerial.estimate import tuned_network as tn_mod
 
@@ -328,6 +327,8 @@ def _constant_q(q):
 
 
 def _coil_from_winding(w: CoilWinding, inductance=None, design_freq=1e6):
+    from aerial.models import coil as coil_mod  # loaded for a coil to work out only
+
     notes = []
     pitch = w.pitch()
     if w.turns is None:
@@ -382,6 +383,8 @@ def _coil_from_winding(w: CoilWinding, inductance=None, design_freq=1e6):
 
 def _winding_block(w: CoilWinding, turns, pitch, L):
     """F(x) of a single-layer winding (Nagaoka), scaled so that F(1) is the coil's inductance."""
+    from aerial.models import coil as coil_mod
+
     whole = float(coil_mod.solenoid_inductance(w.form_diameter_m, w.wire_diameter_m, turns, pitch))
 
     @functools.lru_cache(maxsize=256)  # the same few tap positions come back in every search

@@ -35,6 +35,7 @@ from aerial.models.checks import positive as _positive
 from aerial.models.conductor import COPPER_RESISTIVITY, skin_depth
 from aerial.models.roots import bracketed_root
 from aerial.models.special_functions import ellipe, ellipk, ive
+from aerial.models.winding import CoilWinding  # noqa: F401  (the coil as wound, read from here too)
 
 #: Wheeler (1928) states about 1 % accuracy for winding lengths above this fraction of the diameter. [1]
 WHEELER_MIN_LENGTH_TO_DIAMETER = 0.4
@@ -663,45 +664,3 @@ def stranded_advantage_range(form_diameter, bundle_diameter, turns, strands, str
     lo = None if better[0] == 0 else float(f[better[0]])
     hi = None if better[-1] == f.size - 1 else float(f[better[-1]])
     return StrandedRange(lo, hi)
-
-
-class CoilWinding(NamedTuple):
-    """A single-layer tank coil as wound.
-
-    Attributes
-    ----------
-    form_diameter_m : float
-        Outside diameter of the former. [m]
-    wire_diameter_m : float
-        Outside diameter of the wire (of the bundle for stranded wire). [m]
-    turns : float or None
-        Number of turns; None when the coil is still to be designed (the
-        result then gives the turns and winding length). [1]
-    winding_length_m : float or None
-        Length of the winding; gives the pitch as length/turns. [m]
-    pitch_m : float or None
-        Turn spacing; default close-wound (one wire diameter). [m]
-    strands : int
-        Number of strands of a stranded (litz) wire; 1 for solid wire. [1]
-    strand_diameter_m : float or None
-        Bare diameter of one strand, needed when ``strands`` > 1. [m]
-    resistivity_ohm_m : float
-        Conductor resistivity, default annealed copper. [ohm m]
-    """
-
-    form_diameter_m: float
-    wire_diameter_m: float
-    turns: float | None = None
-    winding_length_m: float | None = None
-    pitch_m: float | None = None
-    strands: int = 1
-    strand_diameter_m: float | None = None
-    resistivity_ohm_m: float = COPPER_RESISTIVITY
-
-    def pitch(self) -> float:
-        """Turn spacing. [m]"""
-        if self.pitch_m is not None:
-            return float(self.pitch_m)
-        if self.winding_length_m is not None and self.turns:
-            return float(self.winding_length_m) / float(self.turns)
-        return float(self.wire_diameter_m)

@@ -26,7 +26,7 @@ from aerial.core.errors import SiteError
 from aerial.core.lengthtext import metres, words
 from aerial.core.materials import CONDUCTOR_ALIASES, CONDUCTORS, SOIL_WORDS, SOILS, Soil, soil_category
 from aerial.core.records import NamedTuple
-from aerial.models.coil import CoilWinding
+from aerial.models.winding import CoilWinding
 from aerial.site.building import SiteBuilding, parse_building
 from aerial.site.plan import Plan, parse_plan
 from aerial.site.tables import (  # noqa: F401  (TableReader and the words are read from here too)
