@@ -1123,36 +1123,45 @@ def _panels_potential(points, box, weights=None, keep: bool = True):
     """
     reach2 = (BOX_NEAR_HALF_DIAGONALS ** 2) * (box.half_u ** 2 + box.half_v ** 2)
     area = 4.0 * box.half_u * box.half_v
-    nrm = np.cross(box.axis_u, box.axis_v)
     p = np.asarray(points, dtype=float)
     # the coordinates as contiguous columns (points down, panels across): each row a point's scalar against
     # a contiguous row of panels, numpy's quickest broadcast
     px, py, pz = (np.ascontiguousarray(p[:, k, None]) for k in range(3))
+    cx, cy = np.ascontiguousarray(box.centre[:, 0]), np.ascontiguousarray(box.centre[:, 1])
     plan2, *parts = _panel_planes(len(p), len(box.centre), keep and weights is None)
-    np.subtract(px, np.ascontiguousarray(box.centre[:, 0]), out=plan2)
+    np.subtract(px, cx, out=plan2)
     plan2 *= plan2
-    np.subtract(py, np.ascontiguousarray(box.centre[:, 1]), out=parts[0])
+    np.subtract(py, cy, out=parts[0])
     parts[0] *= parts[0]
     plan2 += parts[0]  # squared plan distance
-    near_m, near_n = np.nonzero(plan2 <= reach2)  # the only pairs that can be near, for a panel or its image
-    plan2_near = plan2[near_m, near_n]
-    for part, cz in zip(parts, (box.centre[:, 2], -box.centre[:, 2])):  # the panels, then their ground images
+    # the only pairs that can be near, for a panel or its image, as flat indices into the planes (gathers by
+    # one index are numpy's quick ``take``, where a pair of index arrays goes element by element)
+    flat = np.flatnonzero(plan2 <= reach2)
+    near_m, near_n = np.divmod(flat, len(box.centre))
+    plan2_near, reach2_near = plan2.reshape(-1).take(flat), reach2.take(near_n)
+    pz_near = pz.reshape(-1).take(near_m)
+    for part, cz in zip(parts, (np.ascontiguousarray(box.centre[:, 2]), -box.centre[:, 2])):  # panels, images
         np.subtract(pz, cz, out=part)
         part *= part
         part += plan2  # squared distance
-        dz = p[near_m, 2] - cz[near_n]
-        near = dz * dz + plan2_near <= reach2[near_n]  # part <= reach2, looked at where it can hold
-        m, n = near_m[near], near_n[near]
+        dz = pz_near - cz.take(near_n)
+        near = dz * dz + plan2_near <= reach2_near  # part <= reach2, looked at where it can hold
         np.sqrt(part, out=part)
         with np.errstate(divide="ignore"):  # a zero distance is a near pair, worked out exactly just below
             np.divide(area, part, out=part)  # a point charge, far off
-        if len(m):
-            r = p[m] - np.column_stack([box.centre[n, 0], box.centre[n, 1], cz[n]])
-            part[m, n] = rectangle_potential_integral(
-                *(r[:, 0] * axis[n, 0] + r[:, 1] * axis[n, 1] + r[:, 2] * axis[n, 2]
-                  for axis in (box.axis_u, box.axis_v, nrm)), box.half_u[n], box.half_v[n])
+        if np.any(near):
+            m, n = near_m[near], near_n[near]
+            r = [c.reshape(-1).take(m) - pc.take(n) for c, pc in ((px, cx), (py, cy), (pz, cz))]
+            part.reshape(-1)[flat[near]] = rectangle_potential_integral(
+                *(r[0] * axis[:, 0].take(n) + r[1] * axis[:, 1].take(n) + r[2] * axis[:, 2].take(n)
+                  for axis in (box.axis_u, box.axis_v, _panel_normals(box))), box.half_u.take(n), box.half_v.take(n))
     np.subtract(parts[0], parts[1], out=parts[0])
     return parts[0] if weights is None else parts[0] @ np.asarray(weights, dtype=float)
+
+
+def _panel_normals(box):
+    """Each panel's unit normal, axis_u x axis_v. [1]"""
+    return np.cross(box.axis_u, box.axis_v)
 
 
 def _graded(n, top_only=False):
@@ -1200,18 +1209,28 @@ def _box_panels(body: BuildingBody, target: int):
     return tuple(np.concatenate([part[i] for part in parts]) for i in range(5))
 
 
-def _panel_mirror(box, point, normal):
+def _panel_grid(box):
+    """The panels' centres on a grid far finer than any panel: (grid step [m], the box's size [m], the
+    centres' grid points sorted, the order that sorts them), shared by every mirror plane tried."""
+    size = max(float(np.ptp(box.centre)), 1.0)
+    step = 1e-6 * size  # pair the panels on a grid far finer than any panel, then check them far closer
+    mine = np.round(box.centre / step).astype(np.int64)
+    order_mine = np.lexsort(mine.T[::-1])
+    return step, size, mine[order_mine], order_mine
+
+
+def _panel_mirror(box, point, normal, grid=None):
     """Index of each panel's mirror image across the vertical plane through ``point`` (plan) with the unit
-    ``normal`` (plan), or None when the panels are not symmetric about that plane."""
+    ``normal`` (plan), or None when the panels are not symmetric about that plane. ``grid``: the box's
+    :func:`_panel_grid`, when the caller has it."""
     c = box.centre.copy()
     c[:, :2] -= 2.0 * ((c[:, :2] - point) @ normal)[:, None] * normal
     axis = box.axis_u.copy()
     axis[:, :2] -= 2.0 * (axis[:, :2] @ normal)[:, None] * normal
-    size = max(float(np.ptp(box.centre)), 1.0)
-    step = 1e-6 * size  # pair the panels on a grid far finer than any panel, then check them far closer
-    mine, theirs = np.round(box.centre / step).astype(np.int64), np.round(c / step).astype(np.int64)
-    order_mine, order_theirs = np.lexsort(mine.T[::-1]), np.lexsort(theirs.T[::-1])
-    if not np.array_equal(mine[order_mine], theirs[order_theirs]):
+    step, size, mine_sorted, order_mine = _panel_grid(box) if grid is None else grid
+    theirs = np.round(c / step).astype(np.int64)
+    order_theirs = np.lexsort(theirs.T[::-1])
+    if not np.array_equal(mine_sorted, theirs[order_theirs]):
         return None
     image = np.empty(len(c), dtype=np.int64)
     image[order_theirs] = order_mine
@@ -1228,9 +1247,10 @@ def _mirror_classes(box):
     a = box.footprint
     b = np.roll(a, -1, axis=0)
     images = []
+    grid = _panel_grid(box)
     for p, q in zip(a, b):
         length = float(np.hypot(*(q - p)))
-        image = _panel_mirror(box, 0.5 * (p + q), (q - p) / length) if length > 0 else None
+        image = _panel_mirror(box, 0.5 * (p + q), (q - p) / length, grid) if length > 0 else None
         if image is not None:
             images.append(image)
     label = np.arange(len(box.centre))
