@@ -452,16 +452,17 @@ def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = Fa
     out = np.empty((rows, cols)) if out is None else out
     step = max(1, FILL_BLOCK_ELEMENTS // max(knots, 1))
     step = -(-rows // -(-rows // step))  # blocks of even size
-    knots_per_segment = np.asarray(counts) + 1
     t = t[:, None]
-    # the planes run (knots, points): a segment's z and 1 / rho repeated for its knots are whole rows
+    # the planes run (knots, points): a segment's z and 1 / rho taken for its knots are whole rows, gathered
+    # straight into the scratch planes (no temporary arrays)
     for r0 in range(0, rows, step):
         r1 = min(rows, r0 + step)
         total, x, root, f, t_plane = scratch_planes(knots, r1 - r0, 5)
         np.copyto(t_plane, t)  # spread once here for every line set (a broadcast column costs numpy a copy per use)
         for k, ((along, inv_rho), sign) in enumerate(lines):
-            np.subtract(t_plane, np.repeat(along[:, r0:r1], knots_per_segment, axis=0), out=x)
-            x *= np.repeat(inv_rho[:, r0:r1], knots_per_segment, axis=0)  # (t - z) / rho at every knot
+            np.take(along[:, r0:r1], seg, axis=0, out=x, mode="clip")  # (in range: no clipping)
+            np.subtract(t_plane, x, out=x)
+            x *= np.take(inv_rho[:, r0:r1], seg, axis=0, out=root, mode="clip")  # (t - z) / rho at every knot
             _asinh(x, root, total if k == 0 else f)
             if k == 0:
                 continue
@@ -470,7 +471,10 @@ def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = Fa
             else:
                 total -= f
         np.subtract(total[1:], total[:-1], out=x[:-1])  # each piece: the sum's change along it
-        np.take(x, pieces, axis=0, out=out[r0:r1].T, mode="clip")  # the pieces' rows (in range: no clipping)
+        # the pieces' rows (in range: no clipping), gathered into a contiguous plane and copied into place (numpy
+        # gathers into a strided ``out`` through a temporary array of its own)
+        np.take(x, pieces, axis=0, out=f[:cols], mode="clip")
+        np.copyto(out[r0:r1].T, f[:cols])
     return out
 
 
