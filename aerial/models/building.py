@@ -1272,9 +1272,12 @@ def _box_charges(box):
     from a quarter of the matrix for a rectangular building (every panel its own class for an asymmetric one).
     """
     reps, cls = _mirror_classes(box)
-    rows = _panels_potential(box.centre[reps], box, keep=False)  # read once, just below
     order = np.argsort(cls, kind="stable")
-    folded = np.add.reduceat(rows[:, order], np.searchsorted(cls[order], np.arange(len(reps))), axis=1)
+    # the panels taken in the order of their classes, so that each class's columns come out side by side
+    by_class = box._replace(**{name: getattr(box, name)[order] for name in ("centre", "axis_u", "axis_v", "half_u",
+                                                                              "half_v")})
+    rows = _panels_potential(box.centre[reps], by_class, keep=False)  # read once, just below
+    folded = np.add.reduceat(rows, np.searchsorted(cls[order], np.arange(len(reps))), axis=1)
     return np.linalg.solve(folded, -box.centre[reps, 2])[cls]
 
 

@@ -1619,28 +1619,27 @@ def _check_overlaps(r: TableReader, wires):
     if n < 2:
         return
     t = np.array([0.25, 0.5, 0.75])
-    samples = a[:, None, :] + t[None, :, None] * (b - a)[:, None, :]  # (n, 3, 3)
+    samples = a[:, None, :] + t[None, :, None] * (b - a)[:, None, :]  # (n, 3, 3): piece, sample, xyz
     ab = b - a
     ab2 = np.maximum(np.einsum("ij,ij->i", ab, ab), 1e-30)
-    for i in range(n):
-        q = samples[i]  # (3, 3)
-        s = np.clip(np.einsum("kj,mj->km", q, ab) - np.einsum("mj,mj->m", a, ab)[None, :], 0, None) / ab2[None, :]
-        s = np.clip(s, 0.0, 1.0)
-        nearest = a[None, :, :] + s[:, :, None] * ab[None, :, :]
-        d = np.linalg.norm(nearest - q[:, None, :], axis=2)  # (3, n)
-        d[:, i] = np.inf
-        # a sample within the join tolerance of its own piece's ends sits at a joint, where wires meet by design
-        own_end = np.minimum(np.linalg.norm(q - a[i], axis=1), np.linalg.norm(q - b[i], axis=1))
-        d[own_end <= JOIN_TOLERANCE_M, :] = np.inf
-        # so does a sample at the other piece's end: a T's down-lead leaving a straight span at its middle
-        other_end = np.minimum(np.linalg.norm(q[:, None, :] - a[None], axis=2),
-                               np.linalg.norm(q[:, None, :] - b[None], axis=2))
-        d[other_end <= JOIN_TOLERANCE_M] = np.inf
-        hit = np.argwhere(d < JOIN_TOLERANCE_M)
-        if hit.size:
-            j = int(hit[0][1])
-            wi, wj = wires[owner[i][0]], wires[owner[j][0]]
-            if wi is wj:
-                r.fail(wi.key, wi.name, "the wire doubles back along itself; each wire must go somewhere new")
-            r.fail(wj.key, wj.name, f"lies along \"{wi.name}\" (closer than {JOIN_TOLERANCE_M * 100:g} cm over its "
-                   "length): two wires in one place; remove the duplicate")
+    # every sample against every piece at once: (piece, sample, other piece)
+    s = np.clip(np.einsum("ikj,mj->ikm", samples, ab) - np.einsum("mj,mj->m", a, ab), 0, None) / ab2
+    s = np.clip(s, 0.0, 1.0)
+    nearest = a + s[..., None] * ab
+    d = np.linalg.norm(nearest - samples[:, :, None, :], axis=3)
+    d[np.arange(n), :, np.arange(n)] = np.inf  # a piece against itself
+    # a sample within the join tolerance of its own piece's ends sits at a joint, where wires meet by design
+    own_end = np.minimum(np.linalg.norm(samples - a[:, None], axis=2), np.linalg.norm(samples - b[:, None], axis=2))
+    d[own_end <= JOIN_TOLERANCE_M] = np.inf
+    # so does a sample at the other piece's end: a T's down-lead leaving a straight span at its middle
+    other_end = np.minimum(np.linalg.norm(samples[:, :, None, :] - a, axis=3),
+                           np.linalg.norm(samples[:, :, None, :] - b, axis=3))
+    d[other_end <= JOIN_TOLERANCE_M] = np.inf
+    hits = np.argwhere(d < JOIN_TOLERANCE_M)  # in the order of the pieces, then of their samples
+    if hits.size:
+        i, j = int(hits[0][0]), int(hits[0][2])
+        wi, wj = wires[owner[i][0]], wires[owner[j][0]]
+        if wi is wj:
+            r.fail(wi.key, wi.name, "the wire doubles back along itself; each wire must go somewhere new")
+        r.fail(wj.key, wj.name, f"lies along \"{wi.name}\" (closer than {JOIN_TOLERANCE_M * 100:g} cm over its "
+               "length): two wires in one place; remove the duplicate")
