@@ -91,18 +91,20 @@ def bisection_midpoints(lo, hi, depth: int) -> np.ndarray:
     >>> [round(float(m), 6) for m in bisection_midpoints(1.0, 16.0, 2)]
     [4.0, 2.0, 8.0]
     """
-    a, b = np.broadcast_arrays(np.asarray(lo, dtype=float), np.asarray(hi, dtype=float))
-    out = np.empty((2 ** int(depth) - 1,) + a.shape)
-    a, b = a[np.newaxis], b[np.newaxis]
+    lo, hi = np.asarray(lo, dtype=float), np.asarray(hi, dtype=float)
+    shape = lo.shape if lo.shape == hi.shape else np.broadcast_shapes(lo.shape, hi.shape)
+    out = np.empty((2 ** int(depth) - 1,) + shape)
+    # the level's bracket ends in order from lo to hi: bracket i is [ends[i], ends[i + 1]]
+    ends = np.empty((2,) + shape)
+    ends[0], ends[1] = lo, hi
     for level in range(int(depth)):  # one level of the tree at a time: its 2**level brackets side by side
         m = out[2 ** level - 1:2 ** (level + 1) - 1]
-        np.multiply(a, b, out=m)
+        np.multiply(ends[:-1], ends[1:], out=m)
         np.sqrt(m, out=m)
-        if level + 1 < int(depth):
-            below, above = np.empty((2 * m.shape[0],) + m.shape[1:]), np.empty((2 * m.shape[0],) + m.shape[1:])
-            below[0::2], below[1::2] = a, m  # the bracket below each midpoint, then the one above it
-            above[0::2], above[1::2] = m, b
-            a, b = below, above
+        if level + 1 < int(depth):  # each midpoint splits its bracket: the part below it, then the one above
+            finer = np.empty((2 * ends.shape[0] - 1,) + shape)
+            finer[0::2], finer[1::2] = ends, m
+            ends = finer
     return out
 
 
@@ -151,11 +153,12 @@ def bisect_ahead(good, bad, passes, halvings: int, depth: int, done=None):
         d = min(int(depth), int(halvings) - taken)
         mids = bisection_midpoints(good, bad, d)
         passed = np.asarray(passes(mids.reshape((-1,) + shape)), dtype=bool).reshape(mids.shape)
-        node = np.zeros(good.size, dtype=int)
+        node = None  # every bracket at the root, node 0
         for _ in range(d):
-            mid, ok = mids[node, column], passed[node, column]
+            mid, ok = (mids[0], passed[0]) if node is None else (mids[node, column], passed[node, column])
             good, bad = np.where(ok, mid, good), np.where(ok, bad, mid)
-            node = 2 * node + np.where(ok, 2, 1)  # node 2i + 2: the bracket from the midpoint to the bad end
+            step = np.where(ok, 2, 1)  # node 2i + 2: the bracket from the midpoint to the bad end
+            node = step if node is None else 2 * node + step
             taken += 1
             finished = done is not None and done(good, bad)
             if finished:

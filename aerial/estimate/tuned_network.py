@@ -214,7 +214,7 @@ def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL,
 
     # every midpoint the next few halvings can reach in one call of the detector model
     lo, hi = bisect_ahead(lo, hi, below, int(max_iter), LEVEL_LOOKAHEAD,
-                          done=lambda g, b: bool(np.all(b / g - 1.0 <= rtol)))
+                          done=lambda g, b: bool((b / g - 1.0 <= rtol).all()))
     v = np.sqrt(lo * hi)
     return v, r_of(v), bool(np.all(hi / lo - 1.0 <= rtol))
 

@@ -320,7 +320,7 @@ def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
     za = np.asarray(aerial_impedance, dtype=complex)
     # the coil's inductance, a series capacitance or a coupling coefficient may be arrays too (a search
     # over part values in one solve)
-    shape = np.broadcast_shapes(f_own.shape, za.shape, *(_shape(v) for v in (
+    shape = _broadcast_shapes(f_own.shape, za.shape, *(_shape(v) for v in (
         tuning_capacitance, detector_conductance, emf, parts.coil_inductance, parts.series_capacitance,
         parts.coupling_coefficient) if v is not None))
     # the loss callables see every system's frequency (as they always have); the arithmetic of the
@@ -350,6 +350,17 @@ def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
                   primary)
     system = _assemble(shape, f_own, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns, lay)
     return system, shape, (k - 1, lay.detector_node, aer)
+
+
+def _broadcast_shapes(*shapes) -> tuple:
+    """``numpy.broadcast_shapes``, with the usual case (every shape () or one and the same) answered without it."""
+    out = ()
+    for s in shapes:
+        if s and s != out:
+            if out:
+                return np.broadcast_shapes(*shapes)
+            out = s
+    return out
 
 
 def _shape(v) -> tuple:
@@ -703,8 +714,10 @@ def solve_network_stack(frequency, aerial_impedance, parts_stack, tuning_capacit
               np.broadcast_to(np.asarray(tuning_capacitance, dtype=float), shape),
               np.broadcast_to(np.asarray(detector_conductance, dtype=float), shape),
               np.broadcast_to(np.asarray(emf, dtype=complex), shape)]
-    out = [np.empty(shape, dtype=complex) for _ in range(7)]
     shared = f if f.ndim == 1 else None  # one row of frequencies for every network: each loss callable met once
+    if len(plan.groups) == 1:  # one group of every network in order: its solution as it comes
+        return NetworkSolution(*_solve_group(plan.groups[0], shared, *inputs))
+    out = [np.empty(shape, dtype=complex) for _ in range(7)]
     for group in plan.groups:
         for o, v in zip(out, _solve_group(group, shared, *(x[group.index] for x in inputs))):
             o[group.index] = v
@@ -966,11 +979,13 @@ class _EdgeSearch:
         n = self.near.size // 2
         first, last = (0 if self.active[0] else 1), (2 if self.active[1] else 1)
         part = slice(first * n, last * n)
-        self.near[part] = np.where(inside[part], mid[part], self.near[part])
-        self.far[part] = np.where(inside[part], self.far[part], mid[part])
+        ins = inside[part]
+        out = ~ins
+        np.copyto(self.near[part], mid[part], where=ins)  # a midpoint inside the response is the new near end
+        np.copyto(self.far[part], mid[part], where=out)
         if level is not None:
-            self.level_near[part] = np.where(inside[part], level[part], self.level_near[part])
-            self.level_far[part] = np.where(inside[part], self.level_far[part], level[part])
+            np.copyto(self.level_near[part], level[part], where=ins)
+            np.copyto(self.level_far[part], level[part], where=out)
         close = (np.abs(self.far[part] / self.near[part] - 1.0) <= self.rtol).reshape(last - first, n).all(axis=1)
         for e, done in zip(range(first, last), close):
             self.active[e] = not bool(done)
