@@ -1585,23 +1585,17 @@ def _range_curve(aerial, coil, parts, setting, notes, points=60) -> dict:
     fine = np.geomspace(aerial.f[0], aerial.f[-1], 600) if aerial.f.size > 1 else aerial.f.copy()
     c_need = setting(fine)
     settings = np.linspace(parts.capacitor_min_f, parts.capacitor_max_f, int(points))
-    def crossing(cs):
-        diff = c_need - cs
-        # only where the setting falls through cs (the resonance moving up the dial): a jump from
-        # below to above it is a second resonance's pole, not a crossing
-        idx = np.flatnonzero((diff[:-1] >= 0) & (diff[1:] < 0))
-        if idx.size == 0:
-            return None
-        i = idx[0]
-        t = diff[i] / (diff[i] - diff[i + 1])
-        return float(fine[i] * (fine[i + 1] / fine[i]) ** t)
-
+    # each setting's first crossing, every setting at once: only where the setting needed falls through it
+    # (the resonance moving up the dial); a jump from below to above it is a second resonance's pole
+    diff = c_need[np.newaxis, :] - settings[:, np.newaxis]
+    falls = (diff[:, :-1] >= 0) & (diff[:, 1:] < 0)
+    first = falls.argmax(axis=1) if falls.shape[1] else np.zeros(settings.size, dtype=int)
     out_c, out_f = [], []
-    for cs in settings:
-        fr = crossing(cs)
-        if fr is not None:
-            out_c.append(float(cs))
-            out_f.append(fr)
+    for cs, found, i, d in zip(settings.tolist(), falls.any(axis=1).tolist(), first.tolist(), diff):
+        if found:
+            t = d[i] / (d[i] - d[i + 1])
+            out_c.append(cs)
+            out_f.append(float(fine[i] * (fine[i + 1] / fine[i]) ** t))
     pieces = []
     if aerial.f.size > 1:
         pieces = _reachable_ranges(fine[0], fine[-1], setting, parts.capacitor_min_f, parts.capacitor_max_f,
