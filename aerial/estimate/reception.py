@@ -2194,8 +2194,7 @@ def design_for_stations(frequency_hz, aerial_r_ohm, aerial_x_ohm, aerial_rr_ohm,
     if not usable:
         return None
     can_hear = sd_mod.hearable(usable + [current], scene.threshold)
-    rows = [sd_mod.rescore(r, can_hear, scene.margin_db, scene.threshold) for r in rows]
-    current = sd_mod.rescore(current, can_hear, scene.margin_db, scene.threshold)
+    *rows, current = sd_mod.rescore_many(rows + [current], can_hear, scene.margin_db, scene.threshold)
     chosen, suggested = _pick(rows, current, parts)
     out = {
         "margin_db": scene.margin_db,

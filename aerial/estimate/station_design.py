@@ -116,7 +116,7 @@ def evaluate_many(scene: Scene, candidates_parts) -> list:
     lv = tn_mod.station_levels_stack(scene.frequency, scene.emf, scene.za, plan, scene.diode, scene.load,
                                      table=scene.table)
     centre = float(np.sqrt(scene.frequency.min() * scene.frequency.max()))
-    g = np.array([[1.0 / float(np.exp(np.mean(np.log(r))))] for r in lv.input_resistance])
+    g = 1.0 / np.exp(np.mean(np.log(lv.input_resistance), axis=1, keepdims=True))
     rej = tn_mod.rejection_stack(np.array([centre]), scene.za, plan, g, [scene.spacing_hz])[scene.spacing_hz]
     return merits(scene, lv.detector_voltage, lv.input_resistance, lv.others, lv.capacitance, rej[:, 0])
 
@@ -235,20 +235,32 @@ def rescore(row: dict, wanted, margin_db, threshold) -> dict:
     at least ``threshold`` [V]): keeping interferers down while the wanted station is too faint to
     hear is no success. ``inaudible`` lists the wanted stations left below the threshold.
     """
+    return rescore_many([row], wanted, margin_db, threshold)[0]
+
+
+def rescore_many(rows, wanted, margin_db, threshold) -> list:
+    """:func:`rescore` of many rows (candidates of one scene: the same stations) at once, in one pass over
+    arrays of them all; each row's figures are those :func:`rescore` gives it alone."""
+    n = len(rows[0]["power_w"])
     idx = np.flatnonzero(wanted)
     if idx.size == 0:
-        idx = np.arange(len(row["power_w"]))
-    weakest = int(idx[np.argmin(row["power_w"][idx])])
-    sep = row["sep"][idx]
-    k = int(np.argmin(sep))
-    i, j = int(idx[k // sep.shape[1]]), int(k % sep.shape[1])
-    worst = float(row["sep"][i, j])
-    inaudible = [int(n) for n in idx if row["own"][n] < threshold]
-    designed = np.zeros(len(row["power_w"]), dtype=bool)
+        idx = np.arange(n)
+    power = np.array([r["power_w"] for r in rows])
+    sep = np.array([r["sep"] for r in rows])[:, idx].reshape(len(rows), -1)  # wanted rows of each (m x n), flat
+    quiet = np.array([r["own"] for r in rows])[:, idx] < threshold
+    weakest = idx[np.argmin(power[:, idx], axis=1)]
+    k = np.argmin(sep, axis=1)  # the first smallest separation, as each row's own search finds it
+    worst = sep[np.arange(len(rows)), k]
+    designed = np.zeros(n, dtype=bool)
     designed[idx] = True
-    return {**row, "weakest": weakest, "weakest_power_w": float(row["power_w"][weakest]), "designed": designed,
-            "worst_separation_db": worst, "pair": (i, j), "separated": bool(worst >= margin_db),
-            "inaudible": inaudible, "meets_margin": bool(worst >= margin_db and not inaudible)}
+    out = []
+    for p, row in enumerate(rows):
+        w, inaudible, worst_p = int(weakest[p]), idx[quiet[p]].tolist(), float(worst[p])
+        out.append({**row, "weakest": w, "weakest_power_w": float(power[p, w]), "designed": designed.copy(),
+                    "worst_separation_db": worst_p, "pair": (int(idx[k[p] // n]), int(k[p] % n)),
+                    "separated": bool(worst_p >= margin_db), "inaudible": inaudible,
+                    "meets_margin": bool(worst_p >= margin_db and not inaudible)})
+    return out
 
 
 #: An interferer less than this far below the wanted station (or above it) swamps it; the station

@@ -290,9 +290,9 @@ def _detector_root(li0, rl, i_s, vt, rtol, max_iter):
         np.copyto(hi, v, where=~below)
         step = h / (1.0 / (v + a) + inv_vt)
         nxt = v - step
-        outside = ~((nxt >= lo) & (nxt <= hi))
-        if outside.any():
-            nxt = np.where(outside, 0.5 * (lo + hi), nxt)
+        inside = (nxt >= lo) & (nxt <= hi)
+        if not inside.all():
+            nxt = np.where(inside, nxt, 0.5 * (lo + hi))
         done = done | (np.abs(nxt - v) <= rtol * nxt) | (hi - lo <= rtol * hi + 1e-300)
         v = nxt
         if done.all():
