@@ -2346,16 +2346,18 @@ def _design_rows(scene, aerial, parts, base: _Coil, band) -> tuple:
         couplings.append((cpl, {**cfg, "self_capacitance": coil.self_capacitance}, coil))
     settings = _needed_stack(scene.frequency, aerial, scene.q_fun, [(cfg, coil) for _, cfg, coil in couplings])
     todo = []
-    for (cpl, _, coil), c in zip(couplings, settings):
-        yours = parts.capacitor_min_f is not None and sd_mod.fits(c, parts.capacitor_min_f, parts.capacitor_max_f)
-        if not yours and sd_mod.standard_capacitor(c) is None:
+    for (cpl, _, coil), c, ends in zip(couplings, settings, sd_mod.row_extremes(settings)):
+        yours = parts.capacitor_min_f is not None and sd_mod.fits(c, parts.capacitor_min_f, parts.capacitor_max_f,
+                                                                  extremes=ends)
+        if not yours and sd_mod.standard_capacitor(c, ends) is None:
             continue  # no capacitor reaches every wanted station with this coil and coupling (closed form)
         todo += [(cpl, coil, m) for m in sd_mod.DETECTOR_TAPS]
     todo.append((_current_coupling(parts), base, parts.detector_tap_fraction))
     nets = [sd_mod.candidate_parts(scene, cpl, coil.inductance, coil.block, m, coil.self_capacitance)
             for cpl, coil, m in todo]
-    rows = [_design_row(scene, ev, cpl, coil, m, parts)
-            for ev, (cpl, coil, m) in zip(sd_mod.evaluate_many(scene, nets), todo)]
+    solved = sd_mod.evaluate_many(scene, nets)
+    ends = sd_mod.row_extremes([ev["capacitance_f"] for ev in solved])
+    rows = [_design_row(scene, ev, cpl, coil, m, parts, e) for ev, (cpl, coil, m), e in zip(solved, todo, ends)]
     return rows[:-1], rows[-1]
 
 
@@ -2373,14 +2375,15 @@ def _needed_stack(f, aerial, q_fun, configs) -> np.ndarray:
     return -np.imag(1.0 / s.top_impedance) / (2.0 * np.pi * f)
 
 
-def _design_row(scene, ev, cpl, coil: _Coil, m, parts) -> dict:
+def _design_row(scene, ev, cpl, coil: _Coil, m, parts, extremes=None) -> dict:
     """One solved candidate (:func:`station_design.evaluate`); whether the site's capacitor and which standard
-    one reach its settings."""
+    one reach its settings (``extremes``: the settings' smallest and largest, when worked out already)."""
     c = ev["capacitance_f"]
-    fits_yours = parts.capacitor_min_f is not None and sd_mod.fits(c, parts.capacitor_min_f, parts.capacitor_max_f)
+    fits_yours = parts.capacitor_min_f is not None and sd_mod.fits(c, parts.capacitor_min_f, parts.capacitor_max_f,
+                                                                   extremes=extremes)
     return {**ev, "coupling": cpl, "coil_inductance_h": coil.inductance, "block": coil.block,
             "self_capacitance_f": coil.self_capacitance, "detector_tap_fraction": float(m),
-            "fits_yours": bool(fits_yours), "capacitor": sd_mod.standard_capacitor(c),
+            "fits_yours": bool(fits_yours), "capacitor": sd_mod.standard_capacitor(c, extremes),
             "your_capacitor": (parts.capacitor_max_f, parts.capacitor_min_f) if parts.capacitor_min_f is not None else None,
             "meets_margin": bool(ev["worst_separation_db"] >= scene.margin_db)}
 

@@ -172,13 +172,14 @@ CAPACITOR_ROOM = 0.05
 NO_WORSE_DB = 1.0
 
 
-def fits(capacitance, cmin, cmax, room=0.0) -> bool:
-    """Whether every tuning setting in ``capacitance`` [F] lies in [cmin·(1+room), cmax·(1−room)].
+def fits(capacitance, cmin, cmax, room=0.0, extremes=None) -> bool:
+    """Whether every tuning setting in ``capacitance`` [F] lies in [cmin·(1+room), cmax·(1−room)]
+    (``extremes``: its :func:`row_extremes`, when worked out already).
 
     >>> fits([20e-12, 300e-12], 12e-12, 365e-12, 0.05)
     True
     """
-    lo, hi = _extremes(capacitance)
+    lo, hi = _extremes(capacitance) if extremes is None else extremes
     return _within(lo, hi, cmin, cmax, room)
 
 
@@ -190,20 +191,33 @@ def _extremes(capacitance) -> tuple:
     return float(c.min()), float(c.max())
 
 
+def row_extremes(capacitance) -> list:
+    """:func:`_extremes` of each row of ``capacitance`` [F] (rows of settings, one per candidate), in one pass.
+
+    >>> row_extremes([[20e-12, 300e-12], [5e-12, 1e-12]]) == [(20e-12, 300e-12), (1e-12, 5e-12)]
+    True
+    """
+    c = np.asarray(capacitance, dtype=float)
+    if c.ndim != 2 or c.shape[1] == 0:
+        return [_extremes(row) for row in c]
+    return list(zip(c.min(axis=1).tolist(), c.max(axis=1).tolist()))
+
+
 def _within(lo, hi, cmin, cmax, room) -> bool:
     return bool(lo >= cmin * (1.0 + room) and hi <= cmax * (1.0 - room))
 
 
-def standard_capacitor(capacitance):
+def standard_capacitor(capacitance, extremes=None):
     """The smallest standard variable capacitor (:data:`STANDARD_CAPACITORS_F`) whose range, with
-    :data:`CAPACITOR_ROOM` at each end, holds every setting in ``capacitance`` [F]; None when none does.
+    :data:`CAPACITOR_ROOM` at each end, holds every setting in ``capacitance`` [F]; None when none does
+    (``extremes``: its :func:`row_extremes`, when worked out already).
 
     >>> [round(c * 1e12) for c in standard_capacitor([30e-12, 200e-12])]  # [max, min] pF
     [250, 10]
     >>> standard_capacitor([3e-12, 100e-12]) is None
     True
     """
-    lo, hi = _extremes(capacitance)
+    lo, hi = _extremes(capacitance) if extremes is None else extremes
     for cmax, cmin in STANDARD_CAPACITORS_F:
         if _within(lo, hi, cmin, cmax, CAPACITOR_ROOM):
             return cmax, cmin
