@@ -322,8 +322,19 @@ class _Coil:
         return 2.0 * np.pi * np.asarray(f, dtype=float) * self.inductance / self.q(f)
 
 
+class _ConstantQ:
+    """A coil's unloaded Q the same at every frequency: q(f) [1] in the shape of ``f``; ``constant``, the number
+    (a loss worked out from it divides by the number, :func:`tuned_network.network_parts`: the same figures)."""
+
+    def __init__(self, q):
+        self.constant = float(q)
+
+    def __call__(self, f):
+        return np.full(np.shape(np.asarray(f, dtype=float)), self.constant)
+
+
 def _constant_q(q):
-    return lambda f: np.full(np.shape(np.asarray(f, dtype=float)), float(q))
+    return _ConstantQ(q)
 
 
 def _coil_from_winding(w: CoilWinding, inductance=None, design_freq=1e6):

@@ -55,9 +55,14 @@ def network_parts(arrangement, inductance, q_fun, detector_tap=1.0, tap_fraction
 
 
 def _loss_resistance(inductance, q_fun: Callable) -> Callable:
-    """ωL/Q(f) of a winding (or, for an array of inductances, of each), f -> [ohm]."""
+    """ωL/Q(f) of a winding (or, for an array of inductances, of each), f -> [ohm].
+
+    A Q the same at every frequency (``q_fun.constant``, a number) divides as that number: the same quotients as
+    by an array of it, without the array made at every solve."""
+    q = getattr(q_fun, "constant", None)
+
     def resistance(f):
-        return 2.0 * np.pi * np.asarray(f, dtype=float) * inductance / q_fun(f)
+        return 2.0 * np.pi * np.asarray(f, dtype=float) * inductance / (q_fun(f) if q is None else q)
 
     return resistance
 
