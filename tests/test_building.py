@@ -470,6 +470,21 @@ def test_consistency_length_over_roof_cuts_at_edges_and_height():
     assert length_over_roof([[-3, -4, 9]], [[9, 12, 9]], [[0, 0], [6, 0], [6, 8], [0, 8]], 7.0) == pytest.approx(10.0)
 
 
+def test_a_wire_of_next_to_no_length_in_plan_cuts_nothing_and_warns_nothing():
+    """A lead-in written from 5e-324 m off the wall (fuzz seed 75, case 1379): its crossing with an edge divides by
+    a subnormal number. It is a vertical wire on the wall, cut at the roof's height only, with no overflow warning
+    on stderr (hand arithmetic: 9 m - 7 m = 2 m above the roof)."""
+    import warnings
+
+    from aerial.models.building import length_over_roof
+
+    square = [[0, 0], [10, 0], [10, 8], [0, 8]]
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        assert length_over_roof([[5e-324, 5, 1]], [[0, 5, 9]], square, 7.0) == pytest.approx(2.0, rel=1e-12)
+        assert length_over_roof([[5e-324, 5, 9]], [[0, 5, 9]], square, 7.0) == 0.0
+
+
 LEAD_IN_ACROSS_THE_GARDEN = """
 [site]
 name = "span east of a block, receiver in a shed farther east"

@@ -713,9 +713,10 @@ def length_over_roof(start, end, footprint, roof_height_m) -> float:
     denom = d[..., 0] * ab[None, :, 1] - d[..., 1] * ab[None, :, 0]
     rel = a[None] - s[:, None, :2]
     safe = np.where(denom == 0.0, 1.0, denom)
-    t = (rel[..., 0] * ab[None, :, 1] - rel[..., 1] * ab[None, :, 0]) / safe  # along the wire
-    u = (rel[..., 0] * d[..., 1] - rel[..., 1] * d[..., 0]) / safe  # along the edge
-    t = np.where((denom != 0.0) & (u >= 0.0) & (u <= 1.0), t, 0.0)
+    with np.errstate(over="ignore", invalid="ignore"):  # a wire of next to no length in plan: no cut, not inf
+        t = (rel[..., 0] * ab[None, :, 1] - rel[..., 1] * ab[None, :, 0]) / safe  # along the wire
+        u = (rel[..., 0] * d[..., 1] - rel[..., 1] * d[..., 0]) / safe  # along the edge
+    t = np.where((denom != 0.0) & np.isfinite(t) & (u >= 0.0) & (u <= 1.0), t, 0.0)
     dz = e[:, 2] - s[:, 2]
     t_roof = np.where(dz != 0.0, (roof_height_m - s[:, 2]) / np.where(dz == 0.0, 1.0, dz), 0.0)
     cuts = np.sort(np.clip(np.concatenate([np.zeros((len(s), 1)), t, t_roof[:, None], np.ones((len(s), 1))],
