@@ -21,6 +21,16 @@ from aerial.site.reader import load_site
 
 EXAMPLES = Path(__file__).resolve().parents[1] / "site_examples"
 
+def _possible() -> bool:
+    """Whether this machine could fork beside, the variable aside."""
+    saved = os.environ.pop(ONE_PROCESS_VARIABLE, None)
+    try:
+        return second_core_free()
+    finally:
+        if saved is not None:
+            os.environ[ONE_PROCESS_VARIABLE] = saved
+
+
 needs_fork = pytest.mark.skipif(not second_core_free(), reason="no second core, no fork, or other threads running")
 
 
@@ -66,6 +76,9 @@ def test_leaving_early_stops_the_copy():
 
 
 def test_the_environment_variable_keeps_one_process(monkeypatch):
+    for off in ("0", "no", " False ", "OFF"):  # the words people write for "not set" leave the choice to aerial
+        monkeypatch.setenv(ONE_PROCESS_VARIABLE, off)
+        assert second_core_free() == _possible()
     monkeypatch.setenv(ONE_PROCESS_VARIABLE, "1")
     assert not second_core_free()
     with Beside(os.getpid) as side:

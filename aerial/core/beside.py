@@ -11,8 +11,8 @@ work is simply done in line, so errors are raised exactly as they would be.
 
 Only the command line asks for this (``analyse(..., beside=True)``): a
 notebook or a program calling the API keeps one process. Setting the
-environment variable :data:`ONE_PROCESS_VARIABLE` to anything but "" or "0"
-keeps one process on the command line too.
+environment variable :data:`ONE_PROCESS_VARIABLE` to anything but "", "0",
+"no", "false" or "off" keeps one process on the command line too.
 
 >>> with Beside(lambda: sum(range(10)), fork=False) as side:
 ...     side.forked, side.result()
@@ -31,6 +31,8 @@ import threading
 
 #: Environment variable: set (to "1", say) to keep every computation in one process.
 ONE_PROCESS_VARIABLE = "AERIAL_ONE_PROCESS"
+#: Values of :data:`ONE_PROCESS_VARIABLE` that leave the second process on (any case, spaces ignored).
+SWITCHED_OFF = ("", "0", "no", "false", "off")
 
 
 def second_core_free() -> bool:
@@ -40,7 +42,7 @@ def second_core_free() -> bool:
     not the threads; macOS and Windows are left out (fork is unsafe beside
     some system libraries there, or missing).
     """
-    if os.environ.get(ONE_PROCESS_VARIABLE, "").strip() not in ("", "0"):
+    if os.environ.get(ONE_PROCESS_VARIABLE, "").strip().lower() not in SWITCHED_OFF:
         return False
     if not sys.platform.startswith("linux") or not hasattr(os, "fork"):
         return False
@@ -69,13 +71,9 @@ class Beside:
         self._fn = fn
         self._pid: int | None = None
         self._read = -1
+        self.forked = False  # whether a copy is (or was) working out fn
         if fork and second_core_free():
             self._start()
-
-    @property
-    def forked(self) -> bool:
-        """Whether a copy is (or was) working out ``fn``."""
-        return self._pid is not None or self._read == -2
 
     def _start(self) -> None:
         try:
@@ -104,7 +102,7 @@ class Beside:
             finally:
                 os._exit(code)  # never back into the caller's code, no exit handlers, no buffers flushed
         os.close(write)
-        self._pid, self._read = pid, read
+        self._pid, self._read, self.forked = pid, read, True
 
     def result(self):
         """``fn()``'s return value (from the copy, or in line)."""
@@ -143,7 +141,6 @@ class Beside:
             os.close(self._read)
         except OSError:
             pass
-        self._read = -2  # forked, and done with
         if stop:
             try:
                 os.kill(pid, signal.SIGKILL)
