@@ -79,3 +79,36 @@ def test_consistency_a_site_stays_a_named_tuple_that_pickles():
     again = pickle.loads(pickle.dumps(site))
     assert type(again) is Site and Site.__bases__ == (tuple,) and again._fields == site._fields
     assert again.name == site.name and again._replace(name="x").name == "x"
+
+
+def test_consistency_a_record_class_behaves_as_the_standard_librarys_named_tuple():
+    # reference: collections.namedtuple (Python standard library), the class typing.NamedTuple is made from
+    import collections
+
+    theirs = collections.namedtuple("Mast", ["height_m", "guys", "note"], defaults=[3, None], module=__name__)
+    ours = records.record_class("Mast", ("height_m", "guys", "note"), (3, None), __name__)
+    for name in ("__new__", "_replace", "__repr__", "_asdict", "__getnewargs__"):
+        a, b = getattr(theirs, name), getattr(ours, name)
+        assert (a.__name__, a.__qualname__, a.__doc__) == (b.__name__, b.__qualname__, b.__doc__), name
+    assert (theirs._make.__doc__, theirs._make.__qualname__) == (ours._make.__doc__, ours._make.__qualname__)
+    assert theirs.__new__.__defaults__ == ours.__new__.__defaults__ and theirs.__doc__ == ours.__doc__
+    assert [getattr(theirs, f).__doc__ for f in theirs._fields] == [getattr(ours, f).__doc__ for f in ours._fields]
+    assert (theirs._fields, theirs._field_defaults, theirs.__match_args__) == (
+        ours._fields, ours._field_defaults, ours.__match_args__)
+    calls = [((9.5,), {}), ((9.5, 4), {"note": "x"}), ((), {"height_m": 2.0, "guys": 0}), ((1, 2, 3), {})]
+    for args, kwargs in calls:
+        a, b = theirs(*args, **kwargs), ours(*args, **kwargs)
+        assert (tuple(a), repr(a), a._asdict(), a.__getnewargs__()) == (tuple(b), repr(b), b._asdict(), b.__getnewargs__())
+        assert tuple(a._replace(guys=7)) == tuple(b._replace(guys=7)) and type(b._replace(guys=7)) is ours
+    # the same errors, word for word
+    bad = [lambda c: c(), lambda c: c(1, 2, 3, 4), lambda c: c(1, height_m=2), lambda c: c(1, mast=2),
+           lambda c: c._make([1, 2]), lambda c: c(1)._replace(tall=2)]
+    for call in bad:
+        errors = []
+        for cls in (theirs, ours):
+            with pytest.raises((TypeError, ValueError)) as caught:
+                call(cls)
+            errors.append((type(caught.value), str(caught.value)))
+        assert errors[0] == errors[1]
+    with pytest.raises(ValueError, match="underscore"):
+        records.record_class("Mast", ("_height",), (), __name__)
