@@ -696,6 +696,39 @@ def _ok_range(ok, lo, hi, points=48, refine=20, flags=None, depth=RANGE_LOOKAHEA
     return float(ends[0]), float(ends[1])
 
 
+def _ok_ranges(ok, n, lo, hi, points=48, refine=20, depth=RANGE_LOOKAHEAD) -> list:
+    """:func:`_ok_range` for ``n`` tests at once: one call of ``ok`` per step for all of them.
+
+    ``ok(x, owner)`` answers for trial values ``x`` (a column, shape (r, 1)) of the tests ``owner`` (r indices
+    into the n); each test's range is the one :func:`_ok_range` finds for it alone (the same grid, the same
+    halvings of the same brackets). Returns one (a, b) or None per test.
+    """
+    xs = np.geomspace(lo, hi, points)
+    flags = np.asarray(ok(np.tile(xs, n)[:, np.newaxis], np.repeat(np.arange(n), points)), dtype=bool)
+    flags = flags.reshape(n, points)
+    ends: list = [None] * n
+    good, bad, owner, which = [], [], [], []
+    for t in range(n):
+        idx = np.flatnonzero(flags[t])
+        if not idx.size:
+            continue
+        i0, i1 = idx[0], idx[-1]
+        ends[t] = [xs[i0], xs[i1]]
+        for k, i, j in ((0, i0, i0 - 1), (1, i1, i1 + 1)):
+            if 0 <= j < xs.size:
+                good.append(xs[i])
+                bad.append(xs[j])
+                owner.append(t)
+                which.append(k)
+    if good:  # every test's ends bisected together, several halvings per call of ``ok``
+        owner_row = np.array(owner)
+        good, _ = bisect_ahead(np.array(good), np.array(bad), lambda x: np.asarray(ok(
+            x.reshape(-1, 1), np.broadcast_to(owner_row, x.shape).ravel()), dtype=bool).reshape(x.shape), refine, depth)
+        for t, k, g in zip(owner, which, good):
+            ends[t][k] = g
+    return [None if e is None else (float(e[0]), float(e[1])) for e in ends]
+
+
 def watts_words(p: float, digits: int = 2) -> str:
     """A power with an SI prefix, ``digits`` figures (two by default), as people read it: 2.3e-08 -> '23 nW'
     (the report's one prefix rule, :func:`aerial.core.units.si_text`, in watts at most).
@@ -967,19 +1000,62 @@ def _covering_coils(band, aerial, parts, self_capacitance=0.0):
     The search, like the coil it sizes, takes the winding as tight and the detector across its top
     (:func:`_sizing_config`): which detector tap a builder uses, or the design chooses, leaves the coil alone.
     Remembered per band, aerial (its arrays and calibration), capacitor, coil Q and coupling: a report
-    designing the coupling with the coil asks again for many of the searches the station design asks for."""
+    designing the coupling with the coil asks again for many of the searches the station design asks for
+    (and :func:`_covering_coils_many` works out many couplings' searches together beforehand)."""
     f_lo, f_hi = band
-    cmin, cmax = parts.capacitor_min_f, parts.capacitor_max_f
-    q_value = DEFAULT_COIL_Q if parts.coil_unloaded_q is None else parts.coil_unloaded_q
-    cfg = _sizing_config(parts, self_capacitance)
-    key = (float(f_lo), float(f_hi), aerial.f.tobytes(), aerial.r.tobytes(), aerial.x.tobytes(), aerial.cal_capacitance,
-           aerial.cal_resistance, cmin, cmax, float(q_value), tuple(sorted(cfg.items())))
+    key, cfg, q_value = _covering_key(band, aerial, parts, self_capacitance)
     if key not in _COVERING_SEEN:
         if len(_COVERING_SEEN) > 256:
             _COVERING_SEEN.clear()
-        q = _constant_q(q_value)
+        q, cmin, cmax = _constant_q(q_value), parts.capacitor_min_f, parts.capacitor_max_f
         _COVERING_SEEN[key] = _ok_range(lambda Lx: _covers(f_lo, f_hi, aerial, Lx, q, cfg, cmin, cmax), 1e-6, 1e-2)
     return _COVERING_SEEN[key]
+
+
+def _covering_key(band, aerial, parts, self_capacitance=0.0) -> tuple:
+    """(key, cfg, Q) of :func:`_covering_coils`' search: what it is remembered by, its :func:`_sizing_config` and the
+    coil's unloaded Q [1]."""
+    q_value = DEFAULT_COIL_Q if parts.coil_unloaded_q is None else parts.coil_unloaded_q
+    cfg = _sizing_config(parts, self_capacitance)
+    key = (float(band[0]), float(band[1]), aerial.f.tobytes(), aerial.r.tobytes(), aerial.x.tobytes(),
+           aerial.cal_capacitance, aerial.cal_resistance, parts.capacitor_min_f, parts.capacitor_max_f, float(q_value),
+           tuple(sorted(cfg.items())))
+    return key, cfg, q_value
+
+
+#: The coupling part that may differ from one network to the next in one solve of :func:`_needed` (a column of
+#: values beside the column of coil inductances), by arrangement.
+_STACKED_PART = {"series capacitor": "series_capacitance", "separate primary": "coupling_coefficient"}
+
+
+def _covering_coils_many(band, aerial, trials) -> None:
+    """:func:`_covering_coils` (without self-capacitance) for every parts of ``trials``, remembered for it.
+
+    Couplings that differ only in the value of one part (a series capacitor's capacitance, a separate primary's
+    coupling coefficient) are searched together: every trial coil of every one of them in one network solve per
+    step (:func:`_ok_ranges`), each value's rows worked out as its own search works them out (the same ranges, in
+    a few solves instead of a few per coupling). The others are left to :func:`_covering_coils` as they come."""
+    groups: dict = {}
+    for p in trials:
+        key, cfg, q_value = _covering_key(band, aerial, p)
+        part = _STACKED_PART.get(cfg["arrangement"])
+        if key in _COVERING_SEEN or part is None:
+            continue
+        shared = tuple(sorted((k, v) for k, v in cfg.items() if k != part))
+        rows = groups.setdefault((shared, part, p.capacitor_min_f, p.capacitor_max_f, float(q_value)), {})
+        rows.setdefault(key, (cfg[part], cfg))
+    for (_, part, cmin, cmax, q_value), rows in groups.items():
+        if len(rows) < 2:
+            continue
+        if len(_COVERING_SEEN) + len(rows) > 256:
+            _COVERING_SEEN.clear()
+        values = np.array([v for v, _ in rows.values()], dtype=float)
+        cfg, q = next(iter(rows.values()))[1], _constant_q(q_value)
+
+        def ok(Lx, owner):
+            return _covers(*band, aerial, Lx, q, {**cfg, part: values[owner][:, np.newaxis]}, cmin, cmax)
+
+        _COVERING_SEEN.update(zip(rows, _ok_ranges(ok, len(values), 1e-6, 1e-2)))
 
 
 _COVERING_SEEN: dict = {}
@@ -1156,7 +1232,9 @@ def design_coupling(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts
     # the whole coil first: on a tie it stays
     taps = (1.0,) + tuple(m for m in DESIGN_DETECTOR_TAPS if m != 1.0) if tap_open else (parts.detector_tap_fraction,)
     scored = []
-    for trial, words in (_coupling_candidates(parts) if couple else [(parts, "")]):
+    trials = _coupling_candidates(parts) if couple else [(parts, "")]
+    _covering_coils_many(band, aerial, [trial for trial, _ in trials])
+    for trial, words in trials:
         shares = _weakest_to_detector(band, aerial, trial, taps, need_room=couple)
         scored += [(w, trial, words, m) for w, m in zip(shares or (), taps)]
     notes = []
@@ -2336,7 +2414,7 @@ def _design_rows(scene, aerial, parts, base: _Coil, band) -> tuple:
 
     Every candidate is solved in one stacked pass (:func:`station_design.evaluate_many`)."""
     coil_given = _coil_given(parts)
-    couplings = []
+    tried = []
     for cpl in sd_mod.candidates(parts.arrangement):
         lp = None
         if cpl["arrangement"] == "separate primary":
@@ -2345,14 +2423,18 @@ def _design_rows(scene, aerial, parts, base: _Coil, band) -> tuple:
         cfg = _config(parts, arrangement=cpl["arrangement"], tap_fraction=cpl.get("tap_fraction"),
                       series_capacitance=cpl.get("series_capacitance"), primary_inductance=lp,
                       coupling_coefficient=cpl.get("coupling_coefficient"))
+        tried.append((cpl, cfg, parts._replace(arrangement=cfg["arrangement"], tap_fraction=cfg["tap_fraction"],
+                                               series_capacitance_f=cfg["series_capacitance"],
+                                               primary_inductance_h=cfg["primary_inductance"],
+                                               coupling_coefficient=cfg["coupling_coefficient"])))
+    if not coil_given:  # every coupling's coil searched for together first
+        _covering_coils_many(band, aerial, [sub for _, _, sub in tried])
+    couplings = []
+    for cpl, cfg, sub in tried:
         coil = base
         if not coil_given:
-            sub = parts._replace(arrangement=cfg["arrangement"], tap_fraction=cfg["tap_fraction"],
-                                 series_capacitance_f=cfg["series_capacitance"],
-                                 primary_inductance_h=cfg["primary_inductance"],
-                                 coupling_coefficient=cfg["coupling_coefficient"])
             coil = _designed_coil(band, aerial, sub)
-            if lp is not None:
+            if cpl.get("primary_inductance") is not None:
                 cpl = {**cpl, "primary_inductance": sd_mod.PRIMARY_FRACTION * coil.inductance}
         couplings.append((cpl, {**cfg, "self_capacitance": coil.self_capacitance}, coil))
     settings = _needed_stack(scene.frequency, aerial, scene.q_fun, [(cfg, coil) for _, cfg, coil in couplings])
