@@ -233,3 +233,29 @@ def test_designed_parts_are_chosen_by_the_check_the_coverage_makes(capsys, write
     assert np.isin(inside, rc._check_grid(*rc._check_span(aerial, 520e3, 1710e3))).all()
     text = " ".join(_report(capsys, write_site(LONG_WIRE_NO_PARTS), "--width", "400").replace("│", " ").split())
     assert "Band coverage: covers the band" in text
+
+
+def test_consistency_check_coverings_searched_together_are_each_search_alone():
+    """The covering coils of many couplings searched together (reception._covering_coils_many) are, to the last
+    bit, those each coupling's own search finds, and so are the coils that only reach the band's top (consistency
+    check on an invented short aerial)."""
+    from aerial.estimate import reception as rc
+
+    f = np.geomspace(400e3, 2e6, 40)
+    x = -1 / (2 * np.pi * f * 180e-12)
+    aerial = rc._Aerial(f, np.full(f.size, 30.0), x)
+    parts = rc.TuningParts(capacitor_min_f=15e-12, capacitor_max_f=365e-12, earphone_ohm=2000.0)
+    band = (530e3, 1700e3)
+    trials = [t for t, _ in rc._coupling_candidates(parts)]
+    trials += [parts._replace(arrangement="separate primary", primary_inductance_h=30e-6, coupling_coefficient=k)
+               for k in (0.05, 0.1, 0.2, 0.4)]
+    rc._COVERING_SEEN.clear()
+    rc._REACHING_SEEN.clear()
+    rc._covering_coils_many(band, aerial, trials)
+    together = [rc._covering_coils(band, aerial, t) for t in trials]
+    reach = [rc._reaching_coils(band, aerial, t) for t, c in zip(trials, together) if c is None]
+    rc._COVERING_SEEN.clear()
+    rc._REACHING_SEEN.clear()
+    alone = [rc._covering_coils(band, aerial, t) for t in trials]
+    assert together == alone and any(c is not None for c in alone)
+    assert reach == [rc._reaching_coils(band, aerial, t) for t, c in zip(trials, alone) if c is None]

@@ -508,7 +508,8 @@ def _needed(f, aerial, L, q_fun, cfg, block=None, wound_like=None):
     may be a column of values, shape (m, 1): the settings then come back as (m, len(f)).
     """
     f = np.atleast_1d(np.asarray(f, dtype=float))
-    if cfg.get("tap_fraction") is not None and np.ndim(cfg["tap_fraction"]) > 0:  # taps change the winding's cut
+    paired = cfg.get("tap_per_coil", False)  # one aerial tap per coil of ``L``, in a column beside it: one solve
+    if cfg.get("tap_fraction") is not None and np.ndim(cfg["tap_fraction"]) > 0 and not paired:  # taps cut the winding
         taps = np.ravel(cfg["tap_fraction"])
         if np.ndim(L) == 0:  # one stacked solve over the taps
             if wound_like is not None:
@@ -1025,7 +1026,8 @@ def _covering_key(band, aerial, parts, self_capacitance=0.0) -> tuple:
 
 #: The coupling part that may differ from one network to the next in one solve of :func:`_needed` (a column of
 #: values beside the column of coil inductances), by arrangement.
-_STACKED_PART = {"series capacitor": "series_capacitance", "separate primary": "coupling_coefficient"}
+_STACKED_PART = {"series capacitor": "series_capacitance", "separate primary": "coupling_coefficient",
+                 "coil tap": "tap_fraction"}
 
 
 def _covering_coils_many(band, aerial, trials) -> None:
@@ -1039,7 +1041,7 @@ def _covering_coils_many(band, aerial, trials) -> None:
     for p in trials:
         key, cfg, q_value = _covering_key(band, aerial, p)
         part = _STACKED_PART.get(cfg["arrangement"])
-        if key in _COVERING_SEEN or part is None:
+        if key in _COVERING_SEEN or part is None or (part == "tap_fraction" and not 0 < cfg[part] < cfg["detector_tap"]):
             continue
         shared = tuple(sorted((k, v) for k, v in cfg.items() if k != part))
         rows = groups.setdefault((shared, part, p.capacitor_min_f, p.capacitor_max_f, float(q_value)), {})
@@ -1053,12 +1055,41 @@ def _covering_coils_many(band, aerial, trials) -> None:
         cfg, q = next(iter(rows.values()))[1], _constant_q(q_value)
 
         def ok(Lx, owner):
-            return _covers(*band, aerial, Lx, q, {**cfg, part: values[owner][:, np.newaxis]}, cmin, cmax)
+            return _covers(*band, aerial, Lx, q, {**cfg, part: values[owner][:, np.newaxis], "tap_per_coil": True},
+                           cmin, cmax)
 
         _COVERING_SEEN.update(zip(rows, _ok_ranges(ok, len(values), 1e-6, 1e-2)))
+        # the couplings no coil covers the band with: their coil is sized by the top of the band alone
+        short = [i for i, key in enumerate(rows) if _COVERING_SEEN[key] is None]
+        if len(short) > 1:
+            if len(_REACHING_SEEN) + len(short) > 256:
+                _REACHING_SEEN.clear()
+            _REACHING_SEEN.update(zip([list(rows)[i] for i in short], _ok_ranges(
+                lambda Lx, owner: _needed(np.array([band[1]]), aerial, Lx, q, {
+                    **cfg, part: values[short][owner][:, np.newaxis], "tap_per_coil": True})[..., 0] >= cmin,
+                len(short), 1e-6, 1e-2, depth=LOOKAHEAD)))
 
 
 _COVERING_SEEN: dict = {}
+
+
+def _reaching_coils(band, aerial, parts, self_capacitance=0.0):
+    """The range (L_lo, L_hi) [H] of coils whose setting at the band's top is not below the capacitor's minimum
+    (the parts' capacitor and coupling, sized as :func:`_covering_coils`); None if none. Remembered as
+    :func:`_covering_coils` is (and worked out beforehand by :func:`_covering_coils_many` for the couplings it
+    finds no covering coil for)."""
+    key, cfg, q_value = _covering_key(band, aerial, parts, self_capacitance)
+    if key not in _REACHING_SEEN:
+        if len(_REACHING_SEEN) > 256:
+            _REACHING_SEEN.clear()
+        q, cmin, f_hi = _constant_q(q_value), parts.capacitor_min_f, band[1]
+        # one frequency per trial value: cheap trials, so the search looks as far ahead as the others here
+        _REACHING_SEEN[key] = _ok_range(lambda Lx: _needed(np.array([f_hi]), aerial, Lx, q, cfg)[..., 0] >= cmin,
+                                        1e-6, 1e-2, depth=LOOKAHEAD)
+    return _REACHING_SEEN[key]
+
+
+_REACHING_SEEN: dict = {}
 
 
 def _sizing_config(parts: TuningParts, self_capacitance=0.0) -> dict:
@@ -1071,10 +1102,7 @@ def _sizing_config(parts: TuningParts, self_capacitance=0.0) -> dict:
 
 
 def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0, covering=None) -> float:
-    f_lo, f_hi = band
-    cmin = parts.capacitor_min_f
-    q = _constant_q(DEFAULT_COIL_Q if parts.coil_unloaded_q is None else parts.coil_unloaded_q)
-    cfg = _sizing_config(parts, self_capacitance)
+    f_hi = band[1]
     rng = covering if covering is not None and self_capacitance == 0 else \
         _covering_coils(band, aerial, parts, self_capacitance)
     if rng:
@@ -1082,9 +1110,7 @@ def _design_inductance(band, aerial, parts, notes, self_capacitance=0.0, coverin
         notes.append(f"any coil from {_uh(rng[0])} to {_uh(rng[1])} covers the band; chose {_uh(L)} "
                      "for equal margin at both ends")
         return L
-    # one frequency per trial value: cheap trials, so the search looks as far ahead as the others here
-    top = _ok_range(lambda Lx: _needed(np.array([f_hi]), aerial, Lx, q, cfg)[..., 0] >= cmin, 1e-6, 1e-2,
-                    depth=LOOKAHEAD)
+    top = _reaching_coils(band, aerial, parts, self_capacitance)
     L = top[1] * DESIGN_MARGIN if top else 1e-6
     notes.append(f"no single coil covers the band with this capacitor and coupling; chose {_uh(L)}, "
                  f"{(1 - DESIGN_MARGIN) * 100:.0f} % below the largest that still reaches {_khz(f_hi)}")

@@ -192,7 +192,7 @@ def check_parts(parts: NetworkParts) -> NetworkParts:
         v = getattr(parts, name)
         if v is None or not _positive(v):
             raise ModelInputError(f"the '{parts.arrangement}' arrangement needs a positive {name}")
-    if parts.arrangement == "coil tap" and parts.aerial_tap > 1:
+    if parts.arrangement == "coil tap" and np.any(np.asarray(parts.aerial_tap) > 1):
         raise ModelInputError(f"aerial_tap must not exceed 1, got {parts.aerial_tap!r}")
     if parts.arrangement == "separate primary" and np.any(np.asarray(parts.coupling_coefficient) >= 1):
         raise ModelInputError(f"coupling_coefficient must be below 1, got {parts.coupling_coefficient!r}")
@@ -326,14 +326,18 @@ def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
     # the loss callables see every system's frequency (as they always have); the arithmetic of the
     # assembly broadcasts the frequencies as it goes (the same figures, fewer operations)
     f = f_own if f_own.shape == shape else np.broadcast_to(f_own, shape)
-    taps, node = _taps(parts)
-    if np.ndim(parts.coil_inductance) == 0:
+    per_coil = parts.arrangement == "coil tap" and np.ndim(parts.aerial_tap) > 0
+    first = float(np.ravel(parts.aerial_tap)[0]) if per_coil else parts.aerial_tap
+    taps, node = _taps(parts._replace(aerial_tap=first) if per_coil else parts)
+    fractions = np.array([b - a for a, b in zip([0.0] + taps[:-1], taps)])
+    if per_coil:  # each coil its own aerial tap: each its own sections and shares of the turns
+        fractions, unit = _per_coil_taps(parts, node[first], len(taps))
+        msec = unit * np.asarray(parts.coil_inductance, dtype=float)[..., np.newaxis, np.newaxis]
+    elif np.ndim(parts.coil_inductance) == 0:
         msec = _sections(tuple(taps), parts.block, float(parts.coil_inductance))
     else:  # coils of several inductances wound alike: the winding's sections scaled to each
-        unit = _sections(tuple(taps), parts.block, 1.0)
-        if parts.block is not None:
-            unit = unit / float(parts.block(1.0))
-        msec = unit * np.asarray(parts.coil_inductance, dtype=float)[..., np.newaxis, np.newaxis]
+        msec = _unit_sections(taps, parts.block) * np.asarray(parts.coil_inductance, dtype=float)[..., np.newaxis,
+                                                                                                   np.newaxis]
     k = len(taps)
     primary = None
     if parts.arrangement == "separate primary":
@@ -341,15 +345,39 @@ def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
         share = msec.sum(axis=1) / msec.sum() if msec.ndim == 2 else msec.sum(axis=-1) / msec.sum(axis=(-2, -1))[..., None]
         primary = _Primary(lp, parts.coupling_coefficient * np.sqrt(lp * parts.coil_inductance), share,
                            np.broadcast_to(_value(parts.primary_resistance, f), shape), parts.primary_capacitance)
-    aer = {"direct": k - 1, "coil tap": node.get(float(parts.aerial_tap or 1.0)), "series capacitor": k,
-           "separate primary": k}[parts.arrangement]
+    aer = {"direct": k - 1, "coil tap": node.get(float(first or 1.0)),
+           "series capacitor": k, "separate primary": k}[parts.arrangement]
     r_coil = _value(parts.coil_resistance, f)
-    lay = _Layout(parts.arrangement, node[float(parts.detector_tap)], aer,
-                  np.array([b - a for a, b in zip([0.0] + taps[:-1], taps)]), msec, parts.self_capacitance,
+    lay = _Layout(parts.arrangement, node[float(parts.detector_tap)], aer, fractions, msec, parts.self_capacitance,
                   parts.series_capacitance, r_coil if np.shape(r_coil) == shape else np.broadcast_to(r_coil, shape),
                   primary)
     system = _assemble(shape, f_own, aerial_impedance, emf, tuning_capacitance, detector_conductance, columns, lay)
     return system, shape, (k - 1, lay.detector_node, aer)
+
+
+def _unit_sections(taps, block) -> np.ndarray:
+    """The sections' inductances of a winding with ``taps`` (a tuple) of 1 H in all. [H]"""
+    unit = _sections(tuple(taps), block, 1.0)
+    return unit / float(block(1.0)) if block is not None else unit
+
+
+def _per_coil_taps(parts: NetworkParts, aerial_node: int, k: int) -> tuple:
+    """Shares of the turns (..., k) [1] and sections of 1 H (..., k, k) [H] of coils each with its own aerial tap
+    (``parts.aerial_tap``, an array of the coils' shape), each what a solve of that coil alone takes; every tap
+    must give the layout of the first (k taps, the aerial at node ``aerial_node``, the detector where it is),
+    else ModelInputError."""
+    values, which = np.unique(np.asarray(parts.aerial_tap, dtype=float), return_inverse=True)
+    first = _taps(parts._replace(aerial_tap=float(np.ravel(parts.aerial_tap)[0])))[1]
+    fractions, units = [], []
+    for t in values:
+        own, at = _taps(parts._replace(aerial_tap=float(t)))
+        if len(own) != k or at[float(t)] != aerial_node or at[float(parts.detector_tap)] != \
+                first[float(parts.detector_tap)]:
+            raise ModelInputError("aerial taps solved together must give the winding one layout")
+        fractions.append([b - a for a, b in zip([0.0] + own[:-1], own)])
+        units.append(_unit_sections(own, parts.block))
+    shape = np.shape(parts.aerial_tap)
+    return np.array(fractions)[which].reshape(shape + (k,)), np.array(units)[which].reshape(shape + (k, k))
 
 
 def _broadcast_shapes(*shapes) -> tuple:

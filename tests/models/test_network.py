@@ -359,3 +359,25 @@ def test_an_exactly_singular_reduced_system_raises_as_lapack_does():
     a = [[1.0, 2.0, 0.0], [2.0, 1.0, 1.0], [0.0, 1.0, 3.0]]
     x = [float(np.real(v[0])) for v in _eliminate(a, [[1.0], [1.0], [1.0]])]
     assert np.allclose(x, np.linalg.solve(a, [1.0, 1.0, 1.0]), rtol=1e-15, atol=0)
+
+
+def test_consistency_check_coils_each_with_their_own_aerial_tap_solve_as_each_tap_alone():
+    """A column of coils, each with its own aerial tap, solved in one go gives, row by row, what solving the
+    coils of each tap alone gives, to the last bit (consistency check on invented parts, tight and loose
+    windings); taps that would change the winding's layout are refused."""
+    f = np.linspace(550e3, 1650e3, 5)
+    za = 40.0 - 1j / (2 * np.pi * f * 150e-12)
+    taps = np.array([0.05, 0.3, 0.05, 0.5, 0.2, 0.3])[:, np.newaxis]
+    coils = np.geomspace(100e-6, 600e-6, taps.size)[:, np.newaxis]
+    for block in (None, lambda x: 240e-6 * float(x) ** 1.6):
+        together = net.tuning_capacitance_for(f, za, net.NetworkParts(
+            "coil tap", coils, lambda f_: TWO_PI * f_ * coils / 150.0, aerial_tap=taps, block=block), 2e-4)
+        for t in np.unique(taps):
+            rows = np.flatnonzero(taps[:, 0] == t)
+            L = coils[rows]
+            alone = net.tuning_capacitance_for(f, za, net.NetworkParts(
+                "coil tap", L, lambda f_: TWO_PI * f_ * L / 150.0, aerial_tap=float(t), block=block), 2e-4)
+            assert np.array_equal(together[rows], alone)
+    with pytest.raises(ModelInputError, match="one layout"):
+        net.tuning_capacitance_for(f, za, net.NetworkParts("coil tap", coils[:2], 6.0, detector_tap=0.4,
+                                                           aerial_tap=np.array([[0.2], [0.6]])))
