@@ -1041,7 +1041,8 @@ def _covering_coils_many(band, aerial, trials) -> None:
     for p in trials:
         key, cfg, q_value = _covering_key(band, aerial, p)
         part = _STACKED_PART.get(cfg["arrangement"])
-        if key in _COVERING_SEEN or part is None or (part == "tap_fraction" and not 0 < cfg[part] < cfg["detector_tap"]):
+        if key in _COVERING_SEEN or part is None or \
+                (part == "tap_fraction" and not 0 < cfg[part] < cfg["detector_tap"]):  # a tap of the winding's layout
             continue
         shared = tuple(sorted((k, v) for k, v in cfg.items() if k != part))
         rows = groups.setdefault((shared, part, p.capacitor_min_f, p.capacitor_max_f, float(q_value)), {})
@@ -2449,10 +2450,9 @@ def _design_rows(scene, aerial, parts, base: _Coil, band) -> tuple:
         cfg = _config(parts, arrangement=cpl["arrangement"], tap_fraction=cpl.get("tap_fraction"),
                       series_capacitance=cpl.get("series_capacitance"), primary_inductance=lp,
                       coupling_coefficient=cpl.get("coupling_coefficient"))
-        tried.append((cpl, cfg, parts._replace(arrangement=cfg["arrangement"], tap_fraction=cfg["tap_fraction"],
-                                               series_capacitance_f=cfg["series_capacitance"],
-                                               primary_inductance_h=cfg["primary_inductance"],
-                                               coupling_coefficient=cfg["coupling_coefficient"])))
+        tried.append((cpl, cfg, None if coil_given else parts._replace(
+            arrangement=cfg["arrangement"], tap_fraction=cfg["tap_fraction"], series_capacitance_f=cfg["series_capacitance"],
+            primary_inductance_h=cfg["primary_inductance"], coupling_coefficient=cfg["coupling_coefficient"])))
     if not coil_given:  # every coupling's coil searched for together first
         _covering_coils_many(band, aerial, [sub for _, _, sub in tried])
     couplings = []

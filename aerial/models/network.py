@@ -192,7 +192,8 @@ def check_parts(parts: NetworkParts) -> NetworkParts:
         v = getattr(parts, name)
         if v is None or not _positive(v):
             raise ModelInputError(f"the '{parts.arrangement}' arrangement needs a positive {name}")
-    if parts.arrangement == "coil tap" and np.any(np.asarray(parts.aerial_tap) > 1):
+    if parts.arrangement == "coil tap" and (parts.aerial_tap > 1 if np.ndim(parts.aerial_tap) == 0 else
+                                            bool((np.asarray(parts.aerial_tap) > 1).any())):
         raise ModelInputError(f"aerial_tap must not exceed 1, got {parts.aerial_tap!r}")
     if parts.arrangement == "separate primary" and np.any(np.asarray(parts.coupling_coefficient) >= 1):
         raise ModelInputError(f"coupling_coefficient must be below 1, got {parts.coupling_coefficient!r}")
