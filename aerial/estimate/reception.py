@@ -505,7 +505,9 @@ def _needed(f, aerial, L, q_fun, cfg, block=None, wound_like=None):
     the network already tunes above ``f``.
 
     ``L`` or one of the coupling's parts in ``cfg`` (series capacitance, tap, coupling coefficient)
-    may be a column of values, shape (m, 1): the settings then come back as (m, len(f)).
+    may be a column of values, shape (m, 1): the settings then come back as (m, len(f)). ``L`` and a
+    column of series capacitances or coupling coefficients beside it pair row by row; so do ``L`` and
+    a column of taps with ``cfg["tap_per_coil"]`` set (else every tap is tried with every coil).
     """
     f = np.atleast_1d(np.asarray(f, dtype=float))
     paired = cfg.get("tap_per_coil", False)  # one aerial tap per coil of ``L``, in a column beside it: one solve
@@ -1055,7 +1057,7 @@ def _covering_coils_many(band, aerial, trials) -> None:
         values = np.array([v for v, _ in rows.values()], dtype=float)
         cfg, q = next(iter(rows.values()))[1], _constant_q(q_value)
 
-        def ok(Lx, owner):
+        def ok(Lx, owner):  # each trial coil with its own coupling's value beside it
             return _covers(*band, aerial, Lx, q, {**cfg, part: values[owner][:, np.newaxis], "tap_per_coil": True},
                            cmin, cmax)
 
