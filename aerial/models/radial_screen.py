@@ -497,12 +497,13 @@ def _ring_charge_density(s, z, q, rr):
     The ring integral of :func:`static_ground_field` (its Notes) for every radius and charge, the
     (N, M) values in blocks of radii, each block summed over the charges with their shares at once:
     the trapezoid rule from the hub then runs once over the sum instead of once per charge. The
-    charges' s^2 + z^2 and z 4 / (2 pi) are taken once for every block. A + B > 0 everywhere, as z > 0.
+    charges' s^2 + z^2 and their shares times z 4 / (2 pi) are taken once for every block, and the
+    factor r' once for each radius after the sum. A + B > 0 everywhere, as z > 0.
     """
     out = np.empty(rr.size)
     step = max(1, RING_BLOCK_ELEMENTS // max(s.size, 1))
     s2z2 = s * s + z * z
-    z_scaled = z * (4.0 / (2 * np.pi))
+    weight = q * z * (4.0 / (2 * np.pi))
     for i in range(0, rr.size, step):
         r = rr[i:i + step, None]
         a = np.add(r * r, s2z2)                        # r'^2 + s^2 + z^2
@@ -510,13 +511,13 @@ def _ring_charge_density(s, z, q, rr):
         apb = np.add(a, b)
         m = np.multiply(2, b)
         m /= apb
-        ring = np.multiply(r, z_scaled)
-        ring *= ellipe(m)
+        ring = ellipe(m)
         np.sqrt(apb, out=apb)
         a -= b
         a *= apb
-        ring /= a                                      # z r' / (2 pi) * 4 E(m) / ((A - B) sqrt(A + B))
-        np.dot(ring, q, out=out[i:i + step])
+        ring /= a                                      # E(m) / ((A - B) sqrt(A + B))
+        np.dot(ring, weight, out=out[i:i + step])
+    out *= rr                                          # sum of q z r' / (2 pi) * 4 E(m) / ((A - B) sqrt(A + B))
     return out
 
 

@@ -458,15 +458,22 @@ def _agm_group(m, big_k, big_e):
     The mean stops when every term (1/2) 2^n c_n^2 is below a quarter ulp of max(1, |m|), the
     scale of 1 - (1/2) sum 2^n c_n^2 in E = K (1 - ...).
     """
-    a = np.ones_like(m)
     b = np.sqrt(1.0 - m)
     total = 0.5 * m  # (1/2) 2^0 c_0^2 with c_0^2 = m
-    c = np.empty_like(m)
     # a quarter ulp of max(1, |m|): one figure for the whole group unless it holds m below -1
     limit = 0.25 * _EPS if float(np.min(m)) >= -1.0 else 0.25 * _EPS * np.maximum(1.0, np.abs(m))
     scalar_limit = np.ndim(limit) == 0
-    weight = 0.5
-    for _ in range(64):
+    # the first step from a_0 = 1 (the same numbers as the general step: 1 b_0 = b_0), then the rest
+    c = np.subtract(1.0, b)
+    c *= 0.5  # c_1 = (1 - b_0) / 2
+    np.sqrt(b, out=b)  # b_1 = sqrt(b_0)
+    a = np.subtract(1.0, c)  # a_1 = (1 + b_0) / 2
+    weight = 1.0
+    c *= c
+    total += c  # (1/2) 2 c_1^2
+    if (c.max() <= limit) if scalar_limit else np.all(c <= limit):
+        return _agm_finish(a, total, big_k, big_e)
+    for _ in range(63):
         np.subtract(a, b, out=c)
         c *= 0.5  # c_n = (a_{n-1} - b_{n-1}) / 2
         b *= a
@@ -478,6 +485,12 @@ def _agm_group(m, big_k, big_e):
         total += c  # (1/2) 2^n c_n^2
         if (c.max() <= limit) if scalar_limit else np.all(c <= limit):
             break
+    _agm_finish(a, total, big_k, big_e)
+
+
+def _agm_finish(a, total, big_k, big_e):
+    """K = pi / (2 a) and E = K (1 - total) into ``big_k`` and ``big_e``, from the mean's last ``a`` and the
+    sum ``total`` of (1/2) 2^n c_n^2 (both overwritten)."""
     a *= 2.0
     np.divide(np.pi, a, out=big_k)  # K = pi / (2 a)
     np.subtract(1.0, total, out=total)
