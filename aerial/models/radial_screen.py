@@ -85,7 +85,8 @@ from aerial.core.lengthtext import metres
 from aerial.core.records import NamedTuple
 from aerial.models.groundwave import complex_relative_permittivity
 from aerial.models.short_aerial import ETA0
-from aerial.models.special_functions import ellipe, exp1
+from aerial.core.arrays import scratch_planes
+from aerial.models.special_functions import ellipe_into, exp1
 
 __all__ = ["soil_surface_impedance", "wait_screen_impedance", "radial_screen_impedance", "vertical_ground_field",
            "radial_screen_loss", "RadialScreenLoss", "FAR_WAVELENGTHS", "static_ground_field", "screen_loss_of_field",
@@ -498,20 +499,25 @@ def _ring_charge_density(s, z, q, rr):
     (N, M) values in blocks of radii, each block summed over the charges with their shares at once:
     the trapezoid rule from the hub then runs once over the sum instead of once per charge. The
     charges' s^2 + z^2 and their shares times z 4 / (2 pi) are taken once for every block, and the
-    factor r' once for each radius after the sum. A + B > 0 everywhere, as z > 0.
+    factor r' once for each radius after the sum. A + B > 0 everywhere, as z > 0. Every block works
+    in the same reused scratch planes (:func:`aerial.core.arrays.scratch_planes`), the elliptic
+    integral's steps too (:func:`aerial.models.special_functions.ellipe_into`).
     """
     out = np.empty(rr.size)
     step = max(1, RING_BLOCK_ELEMENTS // max(s.size, 1))
     s2z2 = s * s + z * z
     weight = q * z * (4.0 / (2 * np.pi))
+    planes = scratch_planes(min(step, rr.size), s.size, 10)
     for i in range(0, rr.size, step):
         r = rr[i:i + step, None]
-        a = np.add(r * r, s2z2)                        # r'^2 + s^2 + z^2
-        b = np.multiply(2 * r, s)                      # 2 r' s
-        apb = np.add(a, b)
-        m = np.multiply(2, b)
+        a, b, apb, m, ring, *work = (plane[:len(r)] for plane in planes)
+        np.multiply(r, r, out=a)
+        a += s2z2                                      # r'^2 + s^2 + z^2
+        np.multiply(2 * r, s, out=b)                   # 2 r' s
+        np.add(a, b, out=apb)
+        np.multiply(2, b, out=m)
         m /= apb
-        ring = ellipe(m)
+        ellipe_into(m, ring, work)
         np.sqrt(apb, out=apb)
         a -= b
         a *= apb

@@ -452,22 +452,25 @@ def _agm_elliptic(m):
     return big_k.reshape(m.shape), big_e.reshape(m.shape)
 
 
-def _agm_group(m, big_k, big_e):
+def _agm_group(m, big_k, big_e, work=None):
     """:func:`_agm_elliptic` of one group, into ``big_k`` and ``big_e``; the steps work in place.
 
-    The mean stops when every term (1/2) 2^n c_n^2 is below a quarter ulp of max(1, |m|), the
-    scale of 1 - (1/2) sum 2^n c_n^2 in E = K (1 - ...).
+    ``work``: four float arrays of m's shape to work in (none of them ``m``, ``big_k`` or ``big_e``),
+    else fresh ones. The mean stops when every term (1/2) 2^n c_n^2 is below a quarter ulp of
+    max(1, |m|), the scale of 1 - (1/2) sum 2^n c_n^2 in E = K (1 - ...).
     """
-    b = np.sqrt(1.0 - m)
-    total = 0.5 * m  # (1/2) 2^0 c_0^2 with c_0^2 = m
+    b, total, c, a = (np.empty_like(m) for _ in range(4)) if work is None else work
+    np.subtract(1.0, m, out=b)
+    np.sqrt(b, out=b)
+    np.multiply(0.5, m, out=total)  # (1/2) 2^0 c_0^2 with c_0^2 = m
     # a quarter ulp of max(1, |m|): one figure for the whole group unless it holds m below -1
     limit = 0.25 * _EPS if float(np.min(m)) >= -1.0 else 0.25 * _EPS * np.maximum(1.0, np.abs(m))
     scalar_limit = np.ndim(limit) == 0
     # the first step from a_0 = 1 (the same numbers as the general step: 1 b_0 = b_0), then the rest
-    c = np.subtract(1.0, b)
+    np.subtract(1.0, b, out=c)
     c *= 0.5  # c_1 = (1 - b_0) / 2
     np.sqrt(b, out=b)  # b_1 = sqrt(b_0)
-    a = np.subtract(1.0, c)  # a_1 = (1 + b_0) / 2
+    np.subtract(1.0, c, out=a)  # a_1 = (1 + b_0) / 2
     weight = 1.0
     c *= c
     total += c  # (1/2) 2 c_1^2
@@ -495,6 +498,38 @@ def _agm_finish(a, total, big_k, big_e):
     np.divide(np.pi, a, out=big_k)  # K = pi / (2 a)
     np.subtract(1.0, total, out=total)
     np.multiply(big_k, total, out=big_e)
+
+
+def ellipe_into(m, out, work):
+    """E(m) of :func:`ellipe` into ``out``, working in ``work``: for a caller's loop over blocks of one shape.
+
+    Parameters
+    ----------
+    m : ndarray
+        Parameter, real float64, m <= 1. [1]
+    out : ndarray
+        Where E(m) goes, m's shape. [1]
+    work : sequence of 5 ndarray
+        Scratch arrays of m's shape (none of them ``m`` or ``out``), overwritten. [1]
+
+    Returns
+    -------
+    ndarray
+        ``out``, the same values :func:`ellipe` gives.
+
+    Examples
+    --------
+    >>> m = np.array([0.5, 1.0])
+    >>> e = ellipe_into(m, np.empty(2), [np.empty(2) for _ in range(5)])
+    >>> bool(np.array_equal(e, ellipe(m)))
+    True
+    """
+    m, high = _elliptic_parameter(m)
+    if high < 1.0 and m.size <= AGM_GROUP:  # every value as it is, in one group
+        _agm_group(m, work[4], out, work[:4])
+    else:
+        out[...] = ellipe(m)
+    return out
 
 
 def _elliptic_parameter(m):
