@@ -459,9 +459,10 @@ def screen_effective_length(fixed, radials, soil, frequency: float, aerial) -> f
     # every length in one pass: the loss :func:`screen_loss` gives each (its real part, clipped at zero)
     sets = list(fixed) + [radials]
     counts = [e.count for e in sets]
-    rows = [[e.length_m for e in fixed] + [float(n)] for n in lengths]
-    radii = [float(np.average([e.diameter_m / 2.0 for e in sets], weights=[c * x for c, x in zip(counts, row)]))
-             for row in rows]
+    rows = np.array([[e.length_m for e in fixed] + [float(n)] for n in lengths])
+    # each system's wire radius: the sets' radii averaged with their wire lengths as weights, every row at once
+    wire = np.multiply(counts, rows)
+    radii = np.multiply([e.diameter_m / 2.0 for e in sets], wire).sum(axis=1) / wire.sum(axis=1)
     dz = rs.screen_loss_by_length(frequency, aerial["distance_m"], aerial["field_per_m"], counts, rows, radii,
                                   soil.conductivity_s_m, soil.relative_permittivity)
     loss = np.maximum(dz.real, 0.0)
