@@ -517,6 +517,10 @@ def ellipe_into(m, out, work):
     ndarray
         ``out``, the same values :func:`ellipe` gives.
 
+    References
+    ----------
+    As :func:`ellipe`: Abramowitz and Stegun 17.6; DLMF 19.8.
+
     Examples
     --------
     >>> m = np.array([0.5, 1.0])

@@ -122,6 +122,10 @@ def test_ellipk_and_ellipe_match_scipy():
     # general reference library: scipy.special.ellipk / ellipe; the ground-charge model sends 0 <= m < 0.99
     assert _rel(sf.ellipk(PARAMETERS), ref.ellipk(PARAMETERS)) < 2e-14
     assert _rel(sf.ellipe(PARAMETERS), ref.ellipe(PARAMETERS)) < 2e-14
+    # the same through the caller's own arrays (the ring integrals' blocks), in groups of the ring's size
+    block = PARAMETERS[PARAMETERS >= 0][:sf.AGM_GROUP]
+    into = sf.ellipe_into(block, np.empty_like(block), [np.empty_like(block) for _ in range(5)])
+    assert _rel(into, ref.ellipe(block)) < 2e-14
 
 
 def test_consistency_elliptic_values_do_not_depend_on_the_values_beside_them():
