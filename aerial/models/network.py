@@ -330,15 +330,16 @@ def _nodal_system(frequency, aerial_impedance, parts: NetworkParts, tuning_capac
     per_coil = parts.arrangement == "coil tap" and np.ndim(parts.aerial_tap) > 0
     first = float(np.ravel(parts.aerial_tap)[0]) if per_coil else parts.aerial_tap
     taps, node = _taps(parts._replace(aerial_tap=first) if per_coil else parts)
-    fractions = np.array([b - a for a, b in zip([0.0] + taps[:-1], taps)])
     if per_coil:  # each coil its own aerial tap: each its own sections and shares of the turns
-        fractions, unit = _per_coil_taps(parts, node[first], len(taps))
+        fractions, unit = _per_coil_taps(parts, node[first], node[float(parts.detector_tap)], len(taps))
         msec = unit * np.asarray(parts.coil_inductance, dtype=float)[..., np.newaxis, np.newaxis]
-    elif np.ndim(parts.coil_inductance) == 0:
-        msec = _sections(tuple(taps), parts.block, float(parts.coil_inductance))
-    else:  # coils of several inductances wound alike: the winding's sections scaled to each
-        msec = _unit_sections(taps, parts.block) * np.asarray(parts.coil_inductance, dtype=float)[..., np.newaxis,
-                                                                                                   np.newaxis]
+    else:
+        fractions = np.array([b - a for a, b in zip([0.0] + taps[:-1], taps)])
+        if np.ndim(parts.coil_inductance) == 0:
+            msec = _sections(tuple(taps), parts.block, float(parts.coil_inductance))
+        else:  # coils of several inductances wound alike: the winding's sections scaled to each
+            msec = _unit_sections(taps, parts.block) * np.asarray(parts.coil_inductance, dtype=float)[
+                ..., np.newaxis, np.newaxis]
     k = len(taps)
     primary = None
     if parts.arrangement == "separate primary":
@@ -362,18 +363,16 @@ def _unit_sections(taps, block) -> np.ndarray:
     return unit / float(block(1.0)) if block is not None else unit
 
 
-def _per_coil_taps(parts: NetworkParts, aerial_node: int, k: int) -> tuple:
+def _per_coil_taps(parts: NetworkParts, aerial_node: int, detector_node: int, k: int) -> tuple:
     """Shares of the turns (..., k) [1] and sections of 1 H (..., k, k) [H] of coils each with its own aerial tap
     (``parts.aerial_tap``, an array of the coils' shape), each what a solve of that coil alone takes; every tap
-    must give the layout of the first (k taps, the aerial at node ``aerial_node``, the detector where it is),
-    else ModelInputError."""
+    must give the layout of the first (k taps, the aerial at node ``aerial_node``, the detector at
+    ``detector_node``), else ModelInputError."""
     values, which = np.unique(np.asarray(parts.aerial_tap, dtype=float), return_inverse=True)
-    first = _taps(parts._replace(aerial_tap=float(np.ravel(parts.aerial_tap)[0])))[1]
     fractions, units = [], []
     for t in values:
         own, at = _taps(parts._replace(aerial_tap=float(t)))
-        if len(own) != k or at[float(t)] != aerial_node or at[float(parts.detector_tap)] != \
-                first[float(parts.detector_tap)]:
+        if len(own) != k or at[float(t)] != aerial_node or at[float(parts.detector_tap)] != detector_node:
             raise ModelInputError("aerial taps solved together must give the winding one layout")
         fractions.append([b - a for a, b in zip([0.0] + own[:-1], own)])
         units.append(_unit_sections(own, parts.block))

@@ -81,11 +81,11 @@ import numpy as np
 from aerial.core.constants import MU_0 as mu_0
 from aerial.core.constants import SPEED_OF_LIGHT as C0
 from aerial.core.errors import ModelInputError
+from aerial.core.arrays import scratch_planes
 from aerial.core.lengthtext import metres
 from aerial.core.records import NamedTuple
 from aerial.models.groundwave import complex_relative_permittivity
 from aerial.models.short_aerial import ETA0
-from aerial.core.arrays import scratch_planes
 from aerial.models.special_functions import ellipe_into, exp1
 
 __all__ = ["soil_surface_impedance", "wait_screen_impedance", "radial_screen_impedance", "vertical_ground_field",
