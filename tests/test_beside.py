@@ -13,7 +13,7 @@ import pytest
 
 import aerial.estimate.assemble
 import aerial.estimate.receiver
-from aerial.core.beside import ONE_PROCESS_VARIABLE, Beside, second_core_free
+from aerial.core.beside import ONE_PROCESS_VARIABLE, Beside, in_copy, second_core_free, shared
 from aerial.core.errors import AerialError, ModelInputError
 from aerial.estimate.assemble import analyse
 from aerial.estimate.plain import json_text
@@ -119,8 +119,8 @@ def test_the_ranges_error_comes_first_as_in_line(monkeypatch):
     def no_tuning(*a, **k):
         raise AerialError("tuning refused")
 
-    monkeypatch.setattr(aerial.estimate.assemble, "what_if", no_moves)
-    monkeypatch.setattr(aerial.estimate.receiver, "receiver_results", no_tuning)
+    monkeypatch.setattr(aerial.estimate.assemble, "_building_moves", no_moves)  # the what-if table's last piece
+    monkeypatch.setattr(aerial.estimate.receiver.ReceiverWork, "tuning", no_tuning)
     site = load_site(EXAMPLES / "backyard_inverted_l.toml")
     for side_by_side in (False, True):
         with pytest.raises(ModelInputError, match="what-if refused"):
@@ -132,8 +132,105 @@ def test_the_tuning_error_still_comes_when_the_copy_succeeds(monkeypatch):
     def no_tuning(*a, **k):
         raise AerialError("tuning refused")
 
-    monkeypatch.setattr(aerial.estimate.receiver, "receiver_results", no_tuning)
+    monkeypatch.setattr(aerial.estimate.receiver.ReceiverWork, "tuning", no_tuning)
     site = load_site(EXAMPLES / "backyard_inverted_l.toml")
     with pytest.raises(AerialError, match="tuning refused"):
         analyse(site, beside=True)
 
+
+def _wait_for(path: Path, seconds: float = 30.0) -> None:
+    deadline = time.monotonic() + seconds
+    while not path.exists():
+        assert time.monotonic() < deadline, f"{path.name} never appeared"
+        time.sleep(0.005)
+
+
+@needs_fork
+def test_shared_tasks_come_back_in_order_and_the_faster_process_does_more(tmp_path):
+    """The copy is held in the first task until this process has done every other: the two meet where the copy
+    stands, and the values come back in the list's order whoever worked them out."""
+    parent, started, go = os.getpid(), tmp_path / "started", tmp_path / "go"
+
+    def first():
+        if in_copy():
+            started.write_text("", encoding="utf-8")  # the copy holds the first task
+            _wait_for(go)
+        return "first", os.getpid()
+
+    def task(i):
+        def run():
+            if i == 4:
+                _wait_for(started)
+            if i == 1:
+                go.write_text("", encoding="utf-8")  # this process has reached the front
+            return i, os.getpid()
+        return run
+
+    out = shared([first, task(1), task(2), task(3), task(4)])
+    assert [v for v, _ in out] == ["first", 1, 2, 3, 4]
+    assert out[0][1] != parent and all(pid == parent for _, pid in out[1:])
+
+
+@needs_fork
+def test_a_slow_process_here_leaves_the_work_to_the_copy(tmp_path):
+    """This process is held in its first task (the last one) until the copy has done all the others."""
+    parent, started, done = os.getpid(), tmp_path / "started", tmp_path / "done"
+
+    def task(i):
+        def run():
+            if not in_copy():
+                started.write_text("", encoding="utf-8")
+                _wait_for(done)
+            elif i == 0:
+                _wait_for(started)  # this process holds its task
+            elif i == 3:
+                done.write_text("", encoding="utf-8")
+            return i, os.getpid()
+        return run
+
+    out = shared([task(i) for i in range(5)])
+    assert [v for v, _ in out] == [0, 1, 2, 3, 4]
+    assert [pid == parent for _, pid in out] == [False, False, False, False, True]
+
+
+@needs_fork
+def test_shared_errors_come_in_the_lists_order(tmp_path):
+    """The copy's task fails (first in the list) and so does one of this process's: the first task's error is
+    raised, by the task itself run again in line, as a plain loop over the tasks would raise it."""
+    parent, calls = os.getpid(), []
+
+    def early():
+        calls.append(os.getpid())
+        raise ModelInputError("the first task's error")
+
+    def late():
+        raise AerialError("a later task's error")
+
+    with pytest.raises(ModelInputError, match="the first task's error"):
+        shared([early, lambda: 1, lambda: 2, late])
+    assert calls == [parent]  # worked out again here; the copy's own call was in the copy
+
+
+@needs_fork
+def test_shared_work_of_a_copy_that_dies_is_done_in_line():
+    parent = os.getpid()
+
+    def dies_in_the_copy(i):
+        def run():
+            if in_copy():
+                os._exit(3)
+            return i, os.getpid()
+        return run
+
+    out = shared([dies_in_the_copy(i) for i in range(4)])
+    assert out == [(i, parent) for i in range(4)]
+
+
+def test_shared_without_fork_runs_in_order():
+    calls = []
+    assert shared([lambda: calls.append(0) or "a", lambda: calls.append(1) or "b"], fork=False) == ["a", "b"]
+    assert calls == [0, 1]
+    with pytest.raises(ModelInputError):
+        shared([lambda: calls.append(2), lambda: (_ for _ in ()).throw(ModelInputError("x")),
+                lambda: calls.append(3)], fork=False)
+    assert calls == [0, 1, 2]

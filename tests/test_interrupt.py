@@ -198,8 +198,8 @@ def test_interrupt_while_writing_pictures_leaves_no_empty_folder(capsys, monkeyp
     assert not pics.exists()
 
 
-#: The child for the report's second process: the what-if table, worked out in the forked copy, leaves a marker
-#: with the copy's process id and then waits, so that Ctrl-C arrives while both processes are at work.
+#: The child for the report's second process: the ranges, the copy's first piece of work, leave a marker with the
+#: copy's process id and then wait, so that Ctrl-C arrives while the copy is at work.
 BESIDE_CHILD = """
 import os
 import signal
@@ -213,16 +213,16 @@ import aerial.estimate.assemble as assemble
 from aerial.cli import main
 
 marker = Path(sys.argv[1])
-real_what_if = assemble.what_if
+real_ranges = assemble.ranges_at_band_points
 
 
-def what_if(*args, **kwargs):
+def ranges_at_band_points(*args, **kwargs):
     marker.write_text(str(os.getpid()), encoding="utf-8")
     time.sleep(120)
-    return real_what_if(*args, **kwargs)
+    return real_ranges(*args, **kwargs)
 
 
-assemble.what_if = what_if
+assemble.ranges_at_band_points = ranges_at_band_points
 sys.exit(main(sys.argv[2:]))
 """
 

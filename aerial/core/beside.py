@@ -19,6 +19,8 @@ environment variable :data:`ONE_PROCESS_VARIABLE` to anything but "", "0",
 (False, 45)
 >>> in_order(lambda: "ranges", lambda: "tuning", fork=False)
 ('ranges', 'tuning')
+>>> shared([lambda: "ranges", lambda: "what-ifs", lambda: "tuning"], fork=False)
+['ranges', 'what-ifs', 'tuning']
 """
 
 from __future__ import annotations
@@ -33,6 +35,13 @@ import threading
 ONE_PROCESS_VARIABLE = "AERIAL_ONE_PROCESS"
 #: Values of :data:`ONE_PROCESS_VARIABLE` that leave the second process on (any case, spaces ignored).
 SWITCHED_OFF = ("", "0", "no", "false", "off")
+
+_in_copy = False  # set in a forked copy, which must not report progress: the terminal is the caller's
+
+
+def in_copy() -> bool:
+    """Whether this process is a forked copy working beside the caller (it must not write to the terminal)."""
+    return _in_copy
 
 
 def second_core_free() -> bool:
@@ -87,6 +96,8 @@ class Beside:
             os.close(write)
             return
         if pid == 0:  # pragma: no cover - the copy: measured through the parent's result
+            global _in_copy
+            _in_copy = True
             code = 1
             try:
                 signal.signal(signal.SIGINT, signal.SIG_DFL)  # Ctrl-C: the parent reports it, the copy just stops
@@ -106,17 +117,22 @@ class Beside:
 
     def result(self):
         """``fn()``'s return value (from the copy, or in line)."""
+        got, value = self.delivered()
+        return value if got else self._fn()
+
+    def delivered(self) -> tuple[bool, object]:
+        """``(True, value)`` with the copy's value, or ``(False, None)`` when there is no copy or it delivered none."""
         if self._pid is None:
-            return self._fn()
+            return False, None
         data, ok = self._collect()
         if ok and data:
             try:
                 status, value = pickle.loads(data)  # our own copy's bytes
-            except Exception:  # noqa: BLE001 - anything unreadable: do it in line
-                status, value = None, None
+            except Exception:  # noqa: BLE001 - anything unreadable: not delivered
+                return False, None
             if status == "done":
-                return value
-        return self._fn()
+                return True, value
+        return False, None
 
     def _collect(self) -> tuple[bytes, bool]:
         """Everything the copy wrote, and whether it ended cleanly."""
@@ -184,3 +200,115 @@ def in_order(first, second, *, fork: bool = True) -> tuple:
             side.result()  # in line, first's error would have come before second's
             raise
         return side.result(), then
+
+
+def shared(tasks, *, fork: bool = True) -> list:
+    """``[task() for task in tasks]``, the tasks shared out between this process and a forked copy of it.
+
+    The copy takes tasks from the front of the list and this process from the
+    back, each claiming a task just before it starts it, until the two meet:
+    whichever process runs faster does more of the work, so neither waits long
+    for the other on a machine whose second core is busier than the first, or
+    the other way round. A task is claimed by reading its one token from a pipe
+    of its own, which only one of the two processes can do.
+
+    Every task must be independent of the others (work out the same value
+    whichever process runs it and in whatever order), its value must pickle,
+    and it must not write to the terminal or to files (:func:`in_copy` tells a
+    task it runs in the copy). Errors come as they would in line: the first
+    task, in the list's order, that fails raises its error, after every task
+    before it has run; a task the copy did not deliver (it failed there, or
+    the copy died) is worked out again in line. With ``fork`` false, or no
+    second core (:func:`second_core_free`), the tasks simply run in order.
+    """
+    tasks = list(tasks)
+    if len(tasks) < 2 or not fork or not second_core_free():
+        return [task() for task in tasks]
+    try:
+        tokens = _token_pipes(len(tasks))
+    except OSError:
+        return [task() for task in tasks]
+    try:
+        with Beside(lambda: _from_the_front(tasks, tokens)) as side:
+            if not side.forked:
+                return [task() for task in tasks]
+            mine, failed = _from_the_back(tasks, tokens)
+            theirs = side.delivered()[1] or {}
+    finally:
+        for read, write in tokens:
+            for fd in (read, write):
+                try:
+                    os.close(fd)
+                except OSError:
+                    pass
+    out = []
+    for i, task in enumerate(tasks):
+        if i in mine:
+            out.append(mine[i])
+        elif i in failed:
+            raise failed[i]
+        elif i in theirs:
+            out.append(theirs[i])
+        else:  # not delivered by the copy (or claimed by nobody, after an error here): in line, as it would run
+            out.append(task())
+    return out
+
+
+def _token_pipes(n: int) -> list:
+    """``n`` (read, write) pipes, each holding one token byte, reads not blocking: a claim per task."""
+    pipes = []
+    try:
+        for _ in range(n):
+            read, write = os.pipe()
+            pipes.append((read, write))
+            os.set_blocking(read, False)
+            os.write(write, b"t")
+    except OSError:
+        for pair in pipes:
+            for fd in pair:
+                os.close(fd)
+        raise
+    return pipes
+
+
+def _claim(tokens, i: int) -> bool:
+    """Take task ``i``'s token: True when this process got it (the other process has not)."""
+    try:
+        return os.read(tokens[i][0], 1) == b"t"
+    except BlockingIOError:
+        return False
+
+
+def _from_the_front(tasks, tokens) -> dict:
+    """In the copy: the tasks from the first on, as long as it can claim them; {index: value}.
+
+    The copy stops at the first task it cannot claim (this process has it, and every task after it) and at
+    the first that fails (this process works it out again in line, and raises its error there).
+    """
+    done = {}
+    for i, task in enumerate(tasks):
+        if not _claim(tokens, i):
+            break
+        try:
+            done[i] = task()
+        except Exception:  # noqa: BLE001 - raised again by the in-line call
+            break
+    return done
+
+
+def _from_the_back(tasks, tokens) -> tuple[dict, dict]:
+    """In this process: the tasks from the last back, as long as it can claim them; ({index: value}, {index: error}).
+
+    It stops at the first task it cannot claim (the copy has it, and every task before it) and at the first that
+    fails: the tasks before that one are the copy's, or are worked out in line before its error is raised.
+    """
+    done, failed = {}, {}
+    for i in range(len(tasks) - 1, -1, -1):
+        if not _claim(tokens, i):
+            break
+        try:
+            done[i] = tasks[i]()
+        except Exception as err:  # raised once every task before it has run
+            failed[i] = err
+            break
+    return done, failed

@@ -13,7 +13,7 @@ import math
 import numpy as np
 
 from aerial.core.arrays import sorted_unique
-from aerial.core.beside import in_order
+from aerial.core.beside import in_copy, shared
 from aerial.core.lengthtext import metres, metres_range, words
 from aerial.core.version import __version__
 from aerial.estimate.plain import finalise
@@ -603,55 +603,102 @@ def what_if(site, frequency: float, earth: dict, units: str = "si", *, nominal: 
     the facade, the wire on the rail's far, outer edge only, and a
     counterpoise along the rail instead of the long riser earth.
     """
-    from aerial.estimate import earth as earth_mod
+    pieces, join = what_if_pieces(site, frequency, units, nominal=nominal, geometry=geometry,
+                                  refusals_as_notes=notes is not None)
+    return join([piece() for piece in pieces], notes)
 
+
+def what_if_pieces(site, frequency: float, units: str = "si", *, nominal: dict | None = None, geometry=None,
+                   refusals_as_notes: bool = False) -> tuple[list, object]:
+    """:func:`what_if` as independent pieces of work and the step that joins them: ``(pieces, join)``.
+
+    Each piece is a function of no arguments that works out some of the table's rows (the wire raised, the
+    wire lengthened, the better earth, the balcony's moves) the same in any process, and returns them with
+    the notes it has (a move the models refuse, with ``refusals_as_notes``; without it, the refusal is
+    raised). ``join(results, notes)`` gives :func:`what_if`'s table from the pieces' results in order, and
+    adds their notes to the list ``notes`` (when not None). The report shares the pieces out between two
+    processes (:func:`aerial.core.beside.shared`). Arguments as :func:`what_if`'s.
+    """
     if units not in WHAT_IF_STEPS_M:
         raise ModelInputError(f"'{units}' is not a valid unit system, must be one of 'si', 'us'")
     step = WHAT_IF_STEPS_M[units]
-    if nominal is None:
-        r_earth = float(earth_at_frequency(site, [frequency])["impedance_ohm"][0].real)
-        base = _headline(site, site.wires, frequency, r_earth, raw=True)
-    else:
-        r_earth = float(nominal["ground_loss_ohm"][0])
-        base = _headline(site, site.wires, frequency, r_earth, raw=True, response=nominal)
-    rows = [("as described", base)]
-    radials_row = better = None
-    if not balcony_without_ground_access(site):
-        for label, move in (("raise the wire " + metres(step["raise"]), {"raise_m": step["raise"]}),
-                            ("add " + metres(step["extend"]) + " to the far end", {"extend_m": step["extend"]})):
+    first: list = []
+
+    def base():
+        """The first row's figures (the site as described, with its response) and the earth's resistance [ohm]."""
+        if not first:
+            if nominal is None:
+                r_earth = float(earth_at_frequency(site, [frequency])["impedance_ohm"][0].real)
+                first.append((_headline(site, site.wires, frequency, r_earth, raw=True), r_earth))
+            else:
+                r_earth = float(nominal["ground_loss_ohm"][0])
+                first.append((_headline(site, site.wires, frequency, r_earth, raw=True, response=nominal), r_earth))
+        return first[0]
+
+    def moved(label, move):
+        def piece():
+            _, r_earth = base()
             try:
-                rows.append((label, _headline(site, _perturbed_wires(site, **move), frequency, r_earth)))
+                return [(label, _row_figures(_headline(site, _perturbed_wires(site, **move), frequency, r_earth)),
+                         {})], []
             except ModelInputError as err:
-                if notes is None:
+                if not refusals_as_notes:
                     raise
-                notes.append(words("What would help: \"{what}\" is left out: with it, {why}", what=label,
-                                   why=str(err)))
+                return [], [words("What would help: \"{what}\" is left out: with it, {why}", what=label,
+                                  why=str(err))]
+        return piece
+
+    def better_earth():
+        from aerial.estimate import earth as earth_mod
+
+        h0, _ = base()
         better = earth_mod.improved_earth(site.electrodes, site.soil, frequency, radial_length_m=step["radial"],
                                           aerial=earth_mod.screen_aerial((resolve(site) if geometry is None
                                                                           else geometry).segments))
-        rows.append((better["description"], _headline(site, site.wires, frequency, better["resistance_ohm"],
-                                                      response=base["response"])))
-        radials_row = len(rows) - 1
-    rows += _building_moves(site, frequency, r_earth, step["stand_off"])
-    out = []
-    p0 = float(base["available_power_w"][0])
-    for label, h in rows:
-        p = float(h["available_power_w"][0])
-        out.append({
-            "change": label,
-            "frequency_hz": float(frequency),
-            "effective_height_m": float(h["effective_height_m"][0]),
-            "capacitance_f": float(h["capacitance_f"][0]),
-            "loss_resistance_ohm": float(h["loss_resistance_ohm"][0]),
-            "open_circuit_voltage_v": float(h["open_circuit_voltage_v"][0]),
-            "available_power_w": p,
-            "power_change_db": 10.0 * math.log10(p / p0) if p > 0 and p0 > 0 else 0.0,
-            "model": "closed form",
-        })
-    if better is not None and better.get("note"):
-        out[radials_row]["note"] = better["note"]
-        out[radials_row]["effective_length_m"] = better["effective_length_m"]
-    return out
+        h = _headline(site, site.wires, frequency, better["resistance_ohm"], response=h0["response"])
+        extra = {"note": better["note"], "effective_length_m": better["effective_length_m"]} if better.get("note") \
+            else {}
+        return [(better["description"], _row_figures(h), extra)], []
+
+    def balcony():
+        _, r_earth = base()
+        return [(label, _row_figures(h), {}) for label, h in _building_moves(site, frequency, r_earth,
+                                                                              step["stand_off"])], []
+
+    pieces = []
+    if not balcony_without_ground_access(site):
+        pieces += [moved("raise the wire " + metres(step["raise"]), {"raise_m": step["raise"]}),
+                   moved("add " + metres(step["extend"]) + " to the far end", {"extend_m": step["extend"]}),
+                   better_earth]
+    pieces.append(balcony)
+
+    def join(results, notes=None) -> list[dict]:
+        rows = [("as described", _row_figures(base()[0]), {})]
+        for more, said in results:
+            rows += more
+            if notes is not None:
+                notes += said
+        p0 = rows[0][1]["available_power_w"]
+        out = []
+        for label, h, extra in rows:
+            p = h["available_power_w"]
+            out.append({
+                "change": label,
+                "frequency_hz": float(frequency),
+                **h,
+                "power_change_db": 10.0 * math.log10(p / p0) if p > 0 and p0 > 0 else 0.0,
+                "model": "closed form",
+                **extra,
+            })
+        return out
+
+    return pieces, join
+
+
+def _row_figures(h) -> dict:
+    """A what-if row's figures (at its one frequency) from :func:`_headline`'s arrays: floats, in the row's order."""
+    return {key: float(h[key][0]) for key in ("effective_height_m", "capacitance_f", "loss_resistance_ohm",
+                                               "open_circuit_voltage_v", "available_power_w")}
 
 
 def band_point_indices(freqs, pts) -> np.ndarray:
@@ -966,37 +1013,47 @@ def _analyse_site(site, method, step_hz, progress, what_ifs, ground, allow_large
 
     stage(progress, "ranges from the tolerances")
 
-    def ranges_and_moves():
-        """The earth table, the ranges and the what-if table, with the what-if's notes: they do not need the tuning."""
-        notes: list[str] = []
+    def earth_and_ranges():
+        """The earth table and the ranges: they do not need the tuning."""
         # one run of the soil's bounds serves the ranges (at the band points) and the earth table (at the centre)
         bounds = earth_bounds(site, np.append(freqs[band_point_indices(freqs, pts)], freqs[centre_i]),
                               screen=method != "full-wave")
         earth_table = _earth_json(earth, _with_screen_length(site, earth_rf, centre_i), centre_i,
                                   {k: [v[-1:] for v in b] if k.startswith("parts") else b[-1:] for k, b in bounds.items()})
-        ranges = ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground,
-                                       allow_large=allow_large, progress=progress, bounds=bounds, geometry=geometry)
+        return earth_table, ranges_at_band_points(site, freqs, resp, earth, pts, method=method, ground=ground,
+                                                  allow_large=allow_large, progress=progress, bounds=bounds,
+                                                  geometry=geometry)
+
+    moves, join_moves = [], None
+    if what_ifs:
         # at the frequency of the earth table and the ranges; the closed-form sweep has the first row already
         here = None if method == "full-wave" else {
             k: np.asarray(resp[k], float)[centre_i:centre_i + 1] for k in
             ("radiation_resistance_ohm", "conductor_loss_ohm", "effective_height_m", "capacitance_f", "ground_loss_ohm")}
-        moves = what_if(site, float(freqs[centre_i]), earth, units, nominal=here, geometry=geometry,
-                        notes=notes) if what_ifs else None
-        return earth_table, ranges, moves, notes
+        moves, join_moves = what_if_pieces(site, float(freqs[centre_i]), units, nominal=here, geometry=geometry,
+                                           refusals_as_notes=True)
+    receiver: list = []
 
-    def tuning_and_stations():
-        from aerial.estimate import receiver as receiver_bridge
+    def rx():
+        """The tuning and the stations' work (:class:`aerial.estimate.receiver.ReceiverWork`), made on first use."""
+        if not receiver:
+            from aerial.estimate.receiver import ReceiverWork
 
-        stage(progress, "tuning and stations")
-        beyond = station_points(site, geometry, freqs, method=method, ground=ground, allow_large=allow_large)
-        return receiver_bridge.receiver_results(site, freqs, resp, beyond=beyond)
+            stage(progress, "tuning and stations")
+            receiver.append(ReceiverWork(site, freqs, resp, lambda: station_points(
+                site, geometry, freqs, method=method, ground=ground, allow_large=allow_large)))
+        return receiver[0]
 
-    # the full wave's ranges report progress and may use every core: they stay in line
-    (result["earth"], result["ranges"], moves, notes), (tuning, stations, rx_warnings) = in_order(
-        ranges_and_moves, tuning_and_stations, fork=beside and method != "full-wave")
-    if moves is not None:
-        result["what_if"] = moves
-    warnings += notes
+    # in line in this order; with a second core, shared with a forked copy (the full wave's ranges report
+    # progress and may use every core: they stay in line)
+    done = shared([earth_and_ranges, *moves, lambda: rx().tuning(), lambda: rx().stations(),
+                   lambda: rx().station_design()], fork=beside and method != "full-wave")
+    result["earth"], result["ranges"] = done[0]
+    if join_moves is not None:
+        notes: list[str] = []
+        result["what_if"] = join_moves(done[1:1 + len(moves)], notes)
+        warnings += notes
+    tuning, stations, rx_warnings = rx().join(*done[-3:])
     result["tuning"] = tuning
     result["stations"] = stations
     warnings += rx_warnings
@@ -1035,9 +1092,10 @@ def station_points(site, geometry, freqs, *, method="closed-form", ground="perfe
 
 
 def stage(progress, text: str) -> None:
-    """Tell a ``progress`` callback that has a ``stage`` method what the run is doing now."""
+    """Tell a ``progress`` callback that has a ``stage`` method what the run is doing now (not from a forked
+    copy working beside this process: the terminal is the caller's)."""
     say = getattr(progress, "stage", None)
-    if callable(say):
+    if callable(say) and not in_copy():
         say(text)
 
 

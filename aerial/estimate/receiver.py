@@ -127,72 +127,133 @@ def receiver_results(site, freqs, resp, beyond=None) -> tuple[dict, list, list]:
     ``beyond``: the aerial at the station frequencies outside the swept grid
     (:func:`aerial.estimate.assemble.station_points`); those stations are heard with it.
     """
-    parts = tuning_parts(site)
-    f = np.asarray(freqs, float)
-    r = np.asarray(resp["series_resistance_ohm"], float)
-    x = np.asarray(resp["reactance_ohm"], float)
-    rr = np.asarray(resp["radiation_resistance_ohm"], float)
-    he = np.asarray(resp["effective_height_m"], float)
-    name, lo, hi = _primary_band(site)
-    m = (f >= lo - 1e-6) & (f <= hi + 1e-6)
-    warnings: list[str] = []
-    # a coil still to be designed: its coupling too, unless the site names one, so that the parts cover the band
-    parts, coupling_notes = reception.design_coupling(f[m], r[m], x[m], parts, (lo, hi),
-                                                      coupling_open=not site.receiver.coupling_given,
-                                                      detector_tap_open=not site.receiver.detector_tap_given)
-    # the coil the tuning shows, resolved (or designed) once: the verdicts and the design for the stations use it too
-    coil = reception.tuning_coil(f[m], r[m], x[m], parts, band=(lo, hi))
-    tuning = reception.design_tuning(f[m], r[m], x[m], parts, band=(lo, hi), range_curve=True, coil=coil)
-    curve = tuning.pop("range_curve", None)
-    curve_error = tuning.pop("range_curve_error", None)
-    tuning["band"] = {"name": name, "from_hz": lo, "to_hz": hi}
-    tuning["arrangement"] = parts.arrangement
-    tuning["channel_spacings_hz"] = channel_spacings(site.region)
-    tuning["source"] = "measured" if parts.calibration else "estimate"
-    if _needs_assumed_capacitor(site.receiver):
-        tuning.setdefault("notes", []).insert(0, (
-            "No coil or capacitor given: the coil is designed for a common 15–365 pF variable capacitor (an "
-            "assumption). Give [receiver] coil and capacitor to check your own parts."))
-    if coupling_notes:
-        at = 1 if _needs_assumed_capacitor(site.receiver) else 0
-        tuning.setdefault("notes", [])[at:at] = coupling_notes
-        if parts.arrangement != site.receiver.coupling:
-            tuning["coupling_designed"] = True
-            if parts.arrangement == "series capacitor":
-                tuning["designed_series_capacitance_f"] = float(parts.series_capacitance_f)
-            elif parts.arrangement == "coil tap":
-                tuning["designed_tap_ratio"] = float(parts.tap_fraction)
-        if parts.detector_tap_designed:
-            tuning["detector_tap_designed"] = True
-    if len(site.bands) > 1:
-        tuning.setdefault("notes", []).append(
-            f"The tuning parts are designed for the {name} band; other bands need their own coil.")
-    if curve is not None:
-        tuning["range_curve"] = curve
-    if curve_error is not None:
-        warnings.append(f"tuning-range picture not drawn: {curve_error}")
-    warnings += list(tuning.get("warnings", []))
-    stations = []
-    if site.stations:
-        sweep = (f[0], f[-1])
-        f, r, x, rr, he, columns = with_station_points(f, resp, beyond)
-        own = station_effective_heights(site, f, columns)
-        stations, night_warnings = _stations_day_and_night(site, f, r, x, rr, he, parts, own, band=(lo, hi), coil=coil)
-        _say_beyond_bands(site, stations, sweep, name)
-        warnings += night_warnings
+    work = ReceiverWork(site, freqs, resp, lambda: beyond)
+    return work.join(work.tuning(), work.stations(), work.station_design())
+
+
+class ReceiverWork:
+    """:func:`receiver_results` as three independent pieces of work and the step that joins them.
+
+    :meth:`tuning` (the tuning design), :meth:`stations` (each station's verdict by day and by night) and
+    :meth:`station_design` (the tuning for the listed stations) need only the site, the sweep and the coil,
+    which each works out on first use (:meth:`coil_and_parts`, the same in any process): the report shares
+    them out between two processes (:func:`aerial.core.beside.shared`). :meth:`join` puts their results
+    together as :func:`receiver_results` returns them, warnings in the same order.
+
+    ``beyond``: a function of no arguments giving :func:`receiver_results`'s ``beyond``, called when a piece
+    first needs it.
+    """
+
+    def __init__(self, site, freqs, resp, beyond):
+        self.site, self.resp, self._beyond = site, resp, beyond
+        f = np.asarray(freqs, float)
+        self.f = f
+        self.name, lo, hi = _primary_band(site)
+        self.band = (lo, hi)
+        self.in_band = (f >= lo - 1e-6) & (f <= hi + 1e-6)
+        self._prepared = self._station_columns = None
+
+    def coil_and_parts(self):
+        """(band arrays (f, r, x) [Hz], [ohm], [ohm], the tuning parts with any coupling designed, the coupling's
+        notes, the coil the tuning shows): resolved (or designed) once, the verdicts and the design for the
+        stations use them too."""
+        if self._prepared is None:
+            site, m = self.site, self.in_band
+            f = self.f[m]
+            r = np.asarray(self.resp["series_resistance_ohm"], float)[m]
+            x = np.asarray(self.resp["reactance_ohm"], float)[m]
+            # a coil still to be designed: its coupling too, unless the site names one, so that the parts cover
+            # the band
+            parts, coupling_notes = reception.design_coupling(f, r, x, tuning_parts(site), self.band,
+                                                              coupling_open=not site.receiver.coupling_given,
+                                                              detector_tap_open=not site.receiver.detector_tap_given)
+            coil = reception.tuning_coil(f, r, x, parts, band=self.band)
+            self._prepared = (f, r, x), parts, coupling_notes, coil
+        return self._prepared
+
+    def _stations_at(self):
+        """The sweep with the stations' own points merged in, and each station's own effective height."""
+        if self._station_columns is None:
+            f, r, x, rr, he, columns = with_station_points(self.f, self.resp, self._beyond())
+            self._station_columns = (f, r, x, rr, he), station_effective_heights(self.site, f, columns)
+        return self._station_columns
+
+    def tuning(self) -> tuple[dict, list]:
+        """The tuning design (the report's ``tuning`` less ``station_design``) and its warnings."""
+        site = self.site
+        (f, r, x), parts, coupling_notes, coil = self.coil_and_parts()
+        warnings: list[str] = []
+        tuning = reception.design_tuning(f, r, x, parts, band=self.band, range_curve=True, coil=coil)
+        curve = tuning.pop("range_curve", None)
+        curve_error = tuning.pop("range_curve_error", None)
+        tuning["band"] = {"name": self.name, "from_hz": self.band[0], "to_hz": self.band[1]}
+        tuning["arrangement"] = parts.arrangement
+        tuning["channel_spacings_hz"] = channel_spacings(site.region)
+        tuning["source"] = "measured" if parts.calibration else "estimate"
+        if _needs_assumed_capacitor(site.receiver):
+            tuning.setdefault("notes", []).insert(0, (
+                "No coil or capacitor given: the coil is designed for a common 15–365 pF variable capacitor (an "
+                "assumption). Give [receiver] coil and capacitor to check your own parts."))
+        if coupling_notes:
+            at = 1 if _needs_assumed_capacitor(site.receiver) else 0
+            tuning.setdefault("notes", [])[at:at] = coupling_notes
+            if parts.arrangement != site.receiver.coupling:
+                tuning["coupling_designed"] = True
+                if parts.arrangement == "series capacitor":
+                    tuning["designed_series_capacitance_f"] = float(parts.series_capacitance_f)
+                elif parts.arrangement == "coil tap":
+                    tuning["designed_tap_ratio"] = float(parts.tap_fraction)
+            if parts.detector_tap_designed:
+                tuning["detector_tap_designed"] = True
+        if len(site.bands) > 1:
+            tuning.setdefault("notes", []).append(
+                f"The tuning parts are designed for the {self.name} band; other bands need their own coil.")
+        if curve is not None:
+            tuning["range_curve"] = curve
+        if curve_error is not None:
+            warnings.append(f"tuning-range picture not drawn: {curve_error}")
+        warnings += list(tuning.get("warnings", []))
+        return tuning, warnings
+
+    def stations(self) -> tuple[list, list]:
+        """Each listed station's verdict by day and by night (the report's ``stations``) and their warnings."""
+        site = self.site
+        if not site.stations:
+            return [], []
+        _, parts, _, coil = self.coil_and_parts()
+        (f, r, x, rr, he), own = self._stations_at()
+        stations, night_warnings = _stations_day_and_night(site, f, r, x, rr, he, parts, own, band=self.band,
+                                                           coil=coil)
+        _say_beyond_bands(site, stations, (self.f[0], self.f[-1]), self.name)
+        return stations, night_warnings
+
+    def station_design(self) -> tuple[dict | None, list]:
+        """The tuning for the listed stations (None without stations, or when it cannot be worked out) and the
+        warning that says why not."""
+        site = self.site
+        if not site.stations:
+            return None, []
+        _, parts, _, coil = self.coil_and_parts()
+        (f, r, x, rr, he), own = self._stations_at()
         day = [reception.Station(s.name, s.frequency_hz, s.power_w, s.distance_m, s.soil.relative_permittivity,
                                  s.soil.conductivity_s_m, effective_height_m=h) for s, h in zip(site.stations, own)]
         try:
-            design = reception.design_for_stations(f, r, x, rr, he, parts, day, (lo, hi),
-                                                   min(tuning["channel_spacings_hz"]), coil=coil)
+            return reception.design_for_stations(f, r, x, rr, he, parts, day, self.band,
+                                                 min(channel_spacings(site.region)), coil=coil), []
         except AerialError as err:
-            design = None
-            warnings.append(f"tuning for the listed stations not worked out: {err}")
-        if design is not None:
-            tuning["station_design"] = design
-        said = set(warnings) | set(tuning.get("notes", [])) | set(tuning.get("warnings", []))
-        warnings += station_warnings(stations, said)  # once the tuning's own notes are all written
-    return tuning, stations, warnings
+            return None, [f"tuning for the listed stations not worked out: {err}"]
+
+    def join(self, tuning, stations, design) -> tuple[dict, list, list]:
+        """:func:`receiver_results`'s (tuning, stations, warnings) from the three pieces' results."""
+        (tuning, warnings), (stations, night_warnings), (design, design_warnings) = tuning, stations, design
+        warnings = list(warnings)
+        if self.site.stations:
+            warnings += night_warnings + design_warnings
+            if design is not None:
+                tuning["station_design"] = design
+            said = set(warnings) | set(tuning.get("notes", [])) | set(tuning.get("warnings", []))
+            warnings += station_warnings(stations, said)  # once the tuning's own notes are all written
+        return tuning, stations, warnings
 
 
 def station_warnings(stations, said=frozenset()) -> list:
