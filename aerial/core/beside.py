@@ -1,13 +1,15 @@
 """Independent work done beside the main process, on the second core, with exactly the in-line result.
 
-The report's ranges and what-if table need the aerial's response but not the
-tuning or the stations, and the tuning and the stations need neither. On a
-machine with two cores the command line works out one while a forked copy of
-itself works out the other, and takes the copy's result back through a pipe.
-The copy runs the very same code on the very same inputs, so the result is
-the one the in-line call gives, bit for bit; where the copy cannot deliver
-(no fork on this system, one core, a failure of any kind in the copy), the
-work is simply done in line, so errors are raised exactly as they would be.
+Once the report has the aerial's response, its remaining work falls into
+independent pieces: the ranges, each row of the what-if table, the tuning, the
+stations' verdicts, the tuning for the stations. On a machine with two cores
+the command line shares them out between itself and a forked copy of itself
+(:func:`shared`), each process claiming the next piece from its own end of the
+list, and takes the copy's results back through a pipe. The copy runs the very
+same code on the very same inputs, so the result is the one the in-line calls
+give, bit for bit; where the copy cannot deliver (no fork on this system, one
+core, a failure of any kind in the copy), the work is simply done in line, so
+errors are raised exactly as they would be.
 
 Only the command line asks for this (``analyse(..., beside=True)``): a
 notebook or a program calling the API keeps one process. Setting the
@@ -17,8 +19,6 @@ environment variable :data:`ONE_PROCESS_VARIABLE` to anything but "", "0",
 >>> with Beside(lambda: sum(range(10)), fork=False) as side:
 ...     side.forked, side.result()
 (False, 45)
->>> in_order(lambda: "ranges", lambda: "tuning", fork=False)
-('ranges', 'tuning')
 >>> shared([lambda: "ranges", lambda: "what-ifs", lambda: "tuning"], fork=False)
 ['ranges', 'what-ifs', 'tuning']
 """
@@ -180,26 +180,6 @@ class Beside:
 
     def __exit__(self, *exc) -> None:
         self.close()
-
-
-def in_order(first, second, *, fork: bool = True) -> tuple:
-    """``(first(), second())``: ``first`` in a forked copy (:class:`Beside`) while this process works out ``second``.
-
-    Errors come as they would in line, ``first``'s before ``second``'s: when
-    ``second`` fails, ``first``'s result is taken first (raising its own
-    error if it has one). With ``fork`` false, or no second core, the two
-    simply run one after the other.
-    """
-    with Beside(first, fork=fork) as side:
-        if not side.forked:
-            done = side.result()
-            return done, second()
-        try:
-            then = second()
-        except Exception:
-            side.result()  # in line, first's error would have come before second's
-            raise
-        return side.result(), then
 
 
 def shared(tasks, *, fork: bool = True) -> list:
