@@ -445,9 +445,14 @@ def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = Fa
     length = np.sqrt(_dot3(d, d))
     seg, t, pieces = _knots(length, counts)
     r2 = np.asarray(radius, dtype=float) ** 2
-    # per set of lines: each point's coordinate along each line and 1 / rho (small: segments × points)
-    lines = [(_axis_offsets(p, a0, u, r2), sign) for a0, u, sign in _reflections(start, d / length[:, None],
-                                                                                    image, wall)]
+    # each point's coordinate along each line and 1 / rho (small: segments × points), for every set of lines
+    # at once (the sets stacked), then taken apart by set
+    sets = _reflections(start, d / length[:, None], image, wall)
+    along, inv_rho = _axis_offsets(p, np.concatenate([v[0] for v in sets]), np.concatenate([v[1] for v in sets]),
+                                   np.tile(r2, len(sets)))
+    n_seg = len(start)
+    lines = [((along[k * n_seg:(k + 1) * n_seg], inv_rho[k * n_seg:(k + 1) * n_seg]), v[2])
+             for k, v in enumerate(sets)]
     rows, cols, knots = len(p), len(pieces), len(seg)
     out = np.empty((rows, cols)) if out is None else out
     step = max(1, FILL_BLOCK_ELEMENTS // max(knots, 1))
