@@ -1141,23 +1141,43 @@ def _panels_potential(points, box, weights=None, keep: bool = True):
     near_m, near_n = np.divmod(flat, len(box.centre))
     plan2_near, reach2_near = plan2.reshape(-1).take(flat), reach2.take(near_n)
     pz_near = pz.reshape(-1).take(near_m)
-    for part, cz in zip(parts, (np.ascontiguousarray(box.centre[:, 2]), -box.centre[:, 2])):  # panels, images
+    heights = (np.ascontiguousarray(box.centre[:, 2]), -box.centre[:, 2])  # panels, images
+    near = []
+    for part, cz in zip(parts, heights):
         np.subtract(pz, cz, out=part)
         part *= part
         part += plan2  # squared distance
         dz = pz_near - cz.take(near_n)
-        near = dz * dz + plan2_near <= reach2_near  # part <= reach2, looked at where it can hold
+        near.append(np.flatnonzero(dz * dz + plan2_near <= reach2_near))  # part <= reach2, looked at where it can hold
         np.sqrt(part, out=part)
         with np.errstate(divide="ignore"):  # a zero distance is a near pair, worked out exactly just below
             np.divide(area, part, out=part)  # a point charge, far off
-        if np.any(near):
-            m, n = near_m[near], near_n[near]
-            r = [c.reshape(-1).take(m) - pc.take(n) for c, pc in ((px, cx), (py, cy), (pz, cz))]
-            part.reshape(-1)[flat[near]] = rectangle_potential_integral(
-                *(r[0] * axis[:, 0].take(n) + r[1] * axis[:, 1].take(n) + r[2] * axis[:, 2].take(n)
-                  for axis in (box.axis_u, box.axis_v, _panel_normals(box))), box.half_u.take(n), box.half_v.take(n))
+    _near_panels_exact(parts, near, flat, (near_m, near_n), p, box)
     np.subtract(parts[0], parts[1], out=parts[0])
     return parts[0] if weights is None else parts[0] @ np.asarray(weights, dtype=float)
+
+
+def _near_panels_exact(parts, near, flat, pairs, points, box):
+    """Overwrite the near pairs of the panels' and the images' planes (``parts``) with the exact integral over
+    the panel (:func:`rectangle_potential_integral`), both planes' pairs in one call. [m]
+
+    ``near``: per plane, the near pairs among the pairs near in plan (``flat``: their flat indices into the
+    planes, ``pairs``: their point and panel); ``points``: the points, (M, 3). [m]
+    """
+    sizes = [len(k) for k in near]
+    if sum(sizes) == 0:
+        return
+    near_m, near_n = pairs
+    both = np.concatenate(near)
+    m, n = near_m.take(both), near_n.take(both)
+    cz = box.centre[:, 2].take(n)
+    cz[sizes[0]:] *= -1.0  # the images' pairs: the panel mirrored in the ground
+    r = [points[:, k].take(m) - c for k, c in enumerate((box.centre[:, 0].take(n), box.centre[:, 1].take(n), cz))]
+    exact = rectangle_potential_integral(
+        *(r[0] * axis[:, 0].take(n) + r[1] * axis[:, 1].take(n) + r[2] * axis[:, 2].take(n)
+          for axis in (box.axis_u, box.axis_v, _panel_normals(box))), box.half_u.take(n), box.half_v.take(n))
+    for part, idx, values in zip(parts, near, np.split(exact, [sizes[0]])):
+        part.reshape(-1)[flat.take(idx)] = values
 
 
 def _panel_normals(box):
