@@ -60,12 +60,13 @@ def _segment_r_per_m(segments: Segments, frequency):
     the same frequencies is kept for the next call (a report's tolerance and what-if runs move the wires, not
     their kind).
     """
-    kinds = np.column_stack([segments.radius, segments.resistivity, segments.relative_permeability])
-    unique, which = np.unique(kinds, axis=0, return_inverse=True)
+    kinds = list(zip(segments.radius.tolist(), segments.resistivity.tolist(), segments.relative_permeability.tolist()))
+    unique = {kind: k for k, kind in enumerate(dict.fromkeys(kinds))}  # each kind once, numbered as first met
+    which = [unique[kind] for kind in kinds]
     rows = np.empty((len(unique), frequency.size))
     freq_key = frequency.tobytes()
     for k, (radius, resistivity, permeability) in enumerate(unique):
-        key = (float(radius), float(resistivity), float(permeability), freq_key)
+        key = (radius, resistivity, permeability, freq_key)
         row = _R_PER_M_ROWS.get(key)
         if row is None:
             row = resistance_per_m(np.full((1, 1), radius), frequency[None, :], np.full((1, 1), resistivity),
@@ -74,7 +75,7 @@ def _segment_r_per_m(segments: Segments, frequency):
                 _R_PER_M_ROWS.pop(next(iter(_R_PER_M_ROWS)))
             _R_PER_M_ROWS[key] = row
         rows[k] = row
-    return rows[np.reshape(which, -1)]
+    return rows[which]
 
 
 #: Each kind of wire's AC resistance per metre by frequencies, from earlier calls (the last 32). [ohm/m]
