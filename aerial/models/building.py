@@ -786,7 +786,14 @@ def facade_for_wires(footprint, start, end):
     """
     s, e = np.atleast_2d(np.asarray(start, dtype=float)), np.atleast_2d(np.asarray(end, dtype=float))
     ends = np.concatenate([s, e])[:, :2]
-    a, _, normals, mean_distance, all_in_front = _facades(footprint, ends[plan_distance(ends, footprint) > 0])
+    return _facade_for_ends(footprint, s, e, plan_distance(ends, footprint))
+
+
+def _facade_for_ends(footprint, s, e, ends_distance):
+    """:func:`facade_for_wires` of the wires ``s`` -> ``e`` (N, 3) [m], given the plan distance of their ends
+    (the N starts, then the N ends) from the footprint [m]."""
+    ends = np.concatenate([s, e])[:, :2]
+    a, _, normals, mean_distance, all_in_front = _facades(footprint, ends[ends_distance > 0])
     if np.any(all_in_front):
         return _facade(a, normals, int(np.argmin(mean_distance + np.where(all_in_front, 0.0, 1e12))))
     d0 = np.einsum("nkj,kj->nk", s[:, None, :2] - a[None], normals)  # wires down, facades across
@@ -914,20 +921,23 @@ def _facade_solution(segments: Segments, body: BuildingBody) -> dict:
     found = _FACADE_SOLUTIONS.get(key)
     if found is not None:
         return found
-    aer_mid = 0.5 * (segments.start + segments.end)[segments.aerial]
-    dist = plan_distance(aer_mid[:, :2], body.footprint)
+    s, e = segments.start[segments.aerial], segments.end[segments.aerial]
+    # the plan distances of the aerial wires' midpoints and of their ends, in one call
+    dist, ends_distance = np.split(plan_distance(np.concatenate([0.5 * (s + e), s, e])[:, :2], body.footprint),
+                                   [len(s)])
     if not np.any(dist > 0):
         raise ModelInputError("every aerial wire is inside the building's footprint; a wire inside a building "
                               "is not modelled")
-    p0, n = facade_for_wires(body.footprint, segments.start[segments.aerial], segments.end[segments.aerial])
+    p0, n = _facade_for_ends(body.footprint, s, e, ends_distance)
     front = _in_front(segments, p0, n)
     if not np.any(front.aerial):
         raise ModelInputError("no aerial wire is in front of the building's nearest facade")
     es = electrostatic_solution(front, wall=(p0, n), target_unknowns=FACADE_TARGET_UNKNOWNS,
                                 max_subsegment_fraction=1.0 / 8.0, convergence_check=False)  # its report is not read
     mid = 0.5 * (es.start + es.end)
+    mid_distance = plan_distance(mid[:, :2], body.footprint)  # for the note just below and the field heights
     notes = ()
-    if np.any(plan_distance(mid[:, :2], body.footprint) <= 0):
+    if np.any(mid_distance <= 0):
         notes = ("part of the wire is over the roof or round a corner of the building; the facade images there are "
                  "approximate",)
     over_roof = length_over_roof(segments.start[segments.aerial], segments.end[segments.aerial], body.footprint,
@@ -937,7 +947,7 @@ def _facade_solution(segments: Segments, body: BuildingBody) -> dict:
                         "as screened by the building, which understates a wire high above a conducting roof",
                         l=metres(over_roof)),)
     found = {
-        "charge_c": es.charge_c, "height_m": mid[:, 2], "field_height_m": screened_field_height(body, mid),
+        "charge_c": es.charge_c, "height_m": mid[:, 2], "field_height_m": box_screen(body).field_height(mid, mid_distance),
         "aerial_charge_c": float(np.sum(es.charge_c[~es.grounded])), "capacitance_f": float(es.capacitance_f),
         "facade_distance_m": float(np.average(dist, weights=segments.length[segments.aerial])),
         "shielded_lead_m": float(np.sum(segments.length) - np.sum(front.length)), "notes": notes,
@@ -998,10 +1008,11 @@ class BoxScreen(NamedTuple):
     height_m: float
     footprint: np.ndarray
 
-    def field_height(self, points):
+    def field_height(self, points, plan_distance_m=None):
         """phi / E0 at ``points`` (..., 3): z plus the potential of the box's charges and their images. [m]
 
         Held to [0, z] (the grounded box's induced charge is all of one sign) and 0 inside the box.
+        ``plan_distance_m`` (...): the points' :func:`plan_distance` from the footprint, when the caller has it. [m]
         """
         p = np.asarray(points, dtype=float)
         key = (self.footprint.tobytes(), self.height_m, len(self.charge), p.shape, p.tobytes())
@@ -1014,7 +1025,8 @@ class BoxScreen(NamedTuple):
         phi = np.clip(z + pot, 0.0, z)
         inside = flat[:, 2] < self.height_m  # below the roof, and then over the footprint
         if np.any(inside):
-            inside[inside] = plan_distance(flat[inside, :2], self.footprint) <= 0.0
+            inside[inside] = (plan_distance(flat[inside, :2], self.footprint) if plan_distance_m is None
+                              else np.reshape(plan_distance_m, -1)[inside]) <= 0.0
         out = np.where(inside, 0.0, phi).reshape(p.shape[:-1])
         if len(_FIELD_HEIGHTS) >= 32:
             _FIELD_HEIGHTS.pop(next(iter(_FIELD_HEIGHTS)))
