@@ -1274,18 +1274,31 @@ def _panel_mirror(box, point, normal, grid=None):
     return image if same else None
 
 
+def _same_plane(point, normal, point_0, normal_0, size) -> bool:
+    """Whether two vertical planes (a point on each and its unit normal, in plan [m], [1]) are one, to within
+    1e-12 of the box's ``size`` [m]: the panels' images in them are then the same."""
+    return (abs(abs(float(np.dot(normal, normal_0))) - 1.0) <= 1e-12
+            and abs(float(np.dot(point - point_0, normal_0))) <= 1e-12 * size)
+
+
 def _mirror_classes(box):
     """Each panel's class under the footprint's mirror planes (the perpendicular bisectors of its edges that
     map the panels onto themselves): (representative panels, class of every panel)."""
     a = box.footprint
     b = np.roll(a, -1, axis=0)
-    images = []
+    images, planes = [], []
     grid = _panel_grid(box)
     for p, q in zip(a, b):
         length = float(np.hypot(*(q - p)))
-        image = _panel_mirror(box, 0.5 * (p + q), (q - p) / length, grid) if length > 0 else None
+        if length <= 0:
+            continue
+        point, normal = 0.5 * (p + q), (q - p) / length
+        if any(_same_plane(point, normal, *plane, grid[1]) for plane in planes):
+            continue  # the bisector of the opposite side of a rectangle: the same mirror, the same image
+        image = _panel_mirror(box, point, normal, grid)
         if image is not None:
             images.append(image)
+            planes.append((point, normal))
     label = np.arange(len(box.centre))
     while True:  # the smallest index reachable by the mirrors labels its class
         new = label
