@@ -1213,18 +1213,20 @@ def _box_panels(body: BuildingBody, target: int):
     roof = footprint_area(a)
     h = np.sqrt((float(np.sum(edge)) * body.height_m + roof) / target)
     zk = body.height_m * _graded(max(int(np.ceil(body.height_m / h)), 4), top_only=True)
+    zm, hv = 0.5 * (zk[1:] + zk[:-1]), 0.5 * np.diff(zk)  # every wall's rows of panels
     parts = []
     for p, q, length in zip(a, b, edge):
         if length <= 0:
             continue
         t = _graded(max(int(np.ceil(length / h)), 2))
         along = (q - p) / length
-        tm, zm = np.meshgrid(0.5 * (t[1:] + t[:-1]), 0.5 * (zk[1:] + zk[:-1]), indexing="ij")
-        hu, hv = np.meshgrid(0.5 * length * np.diff(t), 0.5 * np.diff(zk), indexing="ij")
+        # the wall's grid, along the wall down the columns and up the wall along the rows, flattened
+        tm = np.repeat(0.5 * (t[1:] + t[:-1]), zm.size)
         xy = p + tm.reshape(-1, 1) * (q - p)
         k = xy.shape[0]
-        parts.append((np.column_stack([xy, zm.reshape(-1)]), np.tile([along[0], along[1], 0.0], (k, 1)),
-                      np.tile([0.0, 0.0, 1.0], (k, 1)), hu.reshape(-1), hv.reshape(-1)))
+        parts.append((np.column_stack([xy, np.tile(zm, t.size - 1)]),
+                      np.broadcast_to([along[0], along[1], 0.0], (k, 3)), np.broadcast_to([0.0, 0.0, 1.0], (k, 3)),
+                      np.repeat(0.5 * length * np.diff(t), zm.size), np.tile(hv, t.size - 1)))
     # the roof: a grid aligned with the longest edge, the cells whose centre is over the footprint
     k = int(np.argmax(edge))
     e1 = (b[k] - a[k]) / edge[k]
@@ -1232,13 +1234,14 @@ def _box_panels(body: BuildingBody, target: int):
     lu, lv = a @ e1, a @ e2
     tu = lu.min() + (lu.max() - lu.min()) * _graded(max(int(np.ceil((lu.max() - lu.min()) / h)), 2))
     tv = lv.min() + (lv.max() - lv.min()) * _graded(max(int(np.ceil((lv.max() - lv.min()) / h)), 2))
-    um, vm = np.meshgrid(0.5 * (tu[1:] + tu[:-1]), 0.5 * (tv[1:] + tv[:-1]), indexing="ij")
-    hu, hv = np.meshgrid(0.5 * np.diff(tu), 0.5 * np.diff(tv), indexing="ij")
-    xy = um.reshape(-1, 1) * e1 + vm.reshape(-1, 1) * e2
+    nu, nv = tu.size - 1, tv.size - 1
+    xy = (np.repeat(0.5 * (tu[1:] + tu[:-1]), nv).reshape(-1, 1) * e1
+          + np.tile(0.5 * (tv[1:] + tv[:-1]), nu).reshape(-1, 1) * e2)
     over = plan_distance(xy, a) <= 0.0
     n = int(np.sum(over))
-    parts.append((np.column_stack([xy[over], np.full(n, body.height_m)]), np.tile([e1[0], e1[1], 0.0], (n, 1)),
-                  np.tile([e2[0], e2[1], 0.0], (n, 1)), hu.reshape(-1)[over], hv.reshape(-1)[over]))
+    parts.append((np.column_stack([xy[over], np.full(n, body.height_m)]), np.broadcast_to([e1[0], e1[1], 0.0], (n, 3)),
+                  np.broadcast_to([e2[0], e2[1], 0.0], (n, 3)), np.repeat(0.5 * np.diff(tu), nv)[over],
+                  np.tile(0.5 * np.diff(tv), nu)[over]))
     return tuple(np.concatenate([part[i] for part in parts]) for i in range(5))
 
 
