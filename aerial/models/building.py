@@ -1098,14 +1098,34 @@ def rectangle_potential_integral(u, v, w, half_u, half_v):
     log_x = [0.5 * np.log(np.maximum(x2 + w2, _LOG_FLOOR)) for _, x2 in xs]
     log_y = [0.5 * np.log(np.maximum(y2 + w2, _LOG_FLOOR)) for _, y2 in ys]
     total = np.zeros(u.shape)
+    r, first, second = (np.empty(u.shape) for _ in range(3))  # worked in place: few arrays alive at once
     for ix, iy, sign in ((0, 0, 1.0), (1, 0, -1.0), (0, 1, -1.0), (1, 1, 1.0)):
         (x, x2), (y, y2) = xs[ix], ys[iy]
-        r = np.sqrt(x2 + y2 + w2)
-        corner = (x * np.copysign(np.log(np.maximum(np.abs(y) + r, _LOG_FLOOR)) - log_x[ix], y)
-                  + y * np.copysign(np.log(np.maximum(np.abs(x) + r, _LOG_FLOOR)) - log_y[iy], x)
-                  - w * np.arctan2(x * y, w * r))
-        total += sign * corner
+        np.add(x2, y2, out=r)
+        r += w2
+        np.sqrt(r, out=r)
+        _log_term(x, y, r, log_x[ix], first)  # x sgn(y) [ln(|y| + r) - ln rho_X]
+        _log_term(y, x, r, log_y[iy], second)  # y sgn(x) [ln(|x| + r) - ln rho_Y]
+        first += second
+        np.multiply(x, y, out=second)
+        r *= w
+        np.arctan2(second, r, out=second)
+        second *= w
+        first -= second  # the corner's G(X, Y)
+        first *= sign
+        total += first
     return total
+
+
+def _log_term(x, y, r, log_rho, out):
+    """x sgn(y) [ln(max(|y| + r, floor)) - ln rho] into ``out`` (an array of x's shape), in place. [m]"""
+    np.abs(y, out=out)
+    out += r
+    np.maximum(out, _LOG_FLOOR, out=out)
+    np.log(out, out=out)
+    out -= log_rho
+    np.copysign(out, y, out=out)
+    out *= x
 
 
 #: Largest (points × panels) plane :func:`_panels_potential` takes from
