@@ -407,8 +407,22 @@ def _axis_offsets(points, start, u, r2):
     (lines, points) arrays (a line's row runs over the points: the long axis in numpy's inner loop)."""
     wx, wy, wz = (np.ascontiguousarray(points[:, k]) - start[:, k, None] for k in range(3))
     ux, uy, uz = u[:, 0, None], u[:, 1, None], u[:, 2, None]
-    cx, cy, cz = wy * uz - wz * uy, wz * ux - wx * uz, wx * uy - wy * ux
-    return (wx * ux + wy * uy) + wz * uz, 1.0 / np.sqrt((cx * cx + cy * cy) + cz * cz + np.reshape(r2, (-1, 1)))
+    # in place, the same operations in the same order as (wx ux + wy uy) + wz uz and |w x u|^2 + r2
+    along, part = wx * ux, wy * uy
+    along += part
+    along += np.multiply(wz, uz, out=part)
+    cx, cy, cz = wy * uz, wz * ux, wx * uy
+    cx -= np.multiply(wz, uy, out=part)
+    cy -= np.multiply(wx, uz, out=part)
+    cz -= np.multiply(wy, ux, out=part)
+    cx *= cx
+    cy *= cy
+    cx += cy
+    cz *= cz
+    cx += cz
+    cx += np.reshape(r2, (-1, 1))
+    np.sqrt(cx, out=cx)
+    return along, np.divide(1.0, cx, out=cx)
 
 
 def _potential_fill(points, seg_start, seg_end, counts, radius, image: bool = False, wall=None, out=None):
