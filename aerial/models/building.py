@@ -1205,9 +1205,15 @@ def _near_panels_exact(parts, near, flat, pairs, points, box):
     cz = box.centre[:, 2].take(n)
     cz[sizes[0]:] *= -1.0  # the images' pairs: the panel mirrored in the ground
     r = [points[:, k].take(m) - c for k, c in enumerate((box.centre[:, 0].take(n), box.centre[:, 1].take(n), cz))]
-    exact = rectangle_potential_integral(
-        *(r[0] * axis[:, 0].take(n) + r[1] * axis[:, 1].take(n) + r[2] * axis[:, 2].take(n)
-          for axis in (box.axis_u, box.axis_v, _panel_normals(box))), box.half_u.take(n), box.half_v.take(n))
+    part = np.empty(len(n))
+    uvw = []
+    for axis in (box.axis_u, box.axis_v, _panel_normals(box)):  # r_x a_x + r_y a_y + r_z a_z, in place
+        along = axis[:, 0].take(n)
+        along *= r[0]
+        along += np.multiply(axis[:, 1].take(n, out=part), r[1], out=part)
+        along += np.multiply(axis[:, 2].take(n, out=part), r[2], out=part)
+        uvw.append(along)
+    exact = rectangle_potential_integral(*uvw, box.half_u.take(n), box.half_v.take(n))
     for part, idx, values in zip(parts, near, np.split(exact, [sizes[0]])):
         part.reshape(-1)[flat.take(idx)] = values
 
