@@ -452,19 +452,21 @@ def _agm_elliptic(m):
     return big_k.reshape(m.shape), big_e.reshape(m.shape)
 
 
-def _agm_group(m, big_k, big_e, work=None):
+def _agm_group(m, big_k, big_e, work=None, low=None):
     """:func:`_agm_elliptic` of one group, into ``big_k`` and ``big_e``; the steps work in place.
 
     ``work``: four float arrays of m's shape to work in (none of them ``m``, ``big_k`` or ``big_e``),
-    else fresh ones. The mean stops when every term (1/2) 2^n c_n^2 is below a quarter ulp of
-    max(1, |m|), the scale of 1 - (1/2) sum 2^n c_n^2 in E = K (1 - ...).
+    else fresh ones; ``low``: the smallest m, when the caller has it. The mean stops when every term
+    (1/2) 2^n c_n^2 is below a quarter ulp of max(1, |m|), the scale of 1 - (1/2) sum 2^n c_n^2 in
+    E = K (1 - ...).
     """
     b, total, c, a = (np.empty_like(m) for _ in range(4)) if work is None else work
     np.subtract(1.0, m, out=b)
     np.sqrt(b, out=b)
     np.multiply(0.5, m, out=total)  # (1/2) 2^0 c_0^2 with c_0^2 = m
     # a quarter ulp of max(1, |m|): one figure for the whole group unless it holds m below -1
-    limit = 0.25 * _EPS if float(np.min(m)) >= -1.0 else 0.25 * _EPS * np.maximum(1.0, np.abs(m))
+    low = float(np.min(m)) if low is None else low
+    limit = 0.25 * _EPS if low >= -1.0 else 0.25 * _EPS * np.maximum(1.0, np.abs(m))
     scalar_limit = np.ndim(limit) == 0
     # the first step from a_0 = 1 (the same numbers as the general step: 1 b_0 = b_0), then the rest
     np.subtract(1.0, b, out=c)
@@ -528,17 +530,19 @@ def ellipe_into(m, out, work):
     >>> bool(np.array_equal(e, ellipe(m)))
     True
     """
-    m, high = _elliptic_parameter(m)
+    m, low, high = _elliptic_parameter(m)
     if high < 1.0 and m.size <= AGM_GROUP:  # every value as it is, in one group
-        _agm_group(m, work[4], out, work[:4])
+        _agm_group(m, work[4], out, work[:4], low)
     else:
         out[...] = ellipe(m)
     return out
 
 
 def _elliptic_parameter(m):
-    """m as a float array, and its largest value; raises unless every m is real, finite and at most 1."""
+    """m as a float array, its smallest value (None when not worked out) and its largest; raises unless every
+    m is real, finite and at most 1."""
     arr = np.asarray(m)
+    low = None
     if arr.dtype.kind in "fiu" and arr.size:
         arr = arr.astype(np.float64, copy=False)
         low, high = float(np.min(arr)), float(np.max(arr))  # NaN in either: not finite
@@ -549,7 +553,7 @@ def _elliptic_parameter(m):
         high = float(np.max(arr.real)) if arr.size else 0.0
     if np.iscomplexobj(arr) or high > 1.0:
         raise ModelInputError("the elliptic parameter m must be real and at most 1")
-    return arr, high
+    return arr, low, high
 
 
 def ellipk(m):
@@ -616,7 +620,7 @@ def ellipe(m):
 
 def _complete_elliptic(m, which, at_one):
     """K(m) (``which`` 0) or E(m) (1) by the arithmetic-geometric mean, ``at_one`` at m = 1."""
-    m, high = _elliptic_parameter(m)
+    m, _, high = _elliptic_parameter(m)
     if high < 1.0:  # no m at 1: the mean of every value as it is
         return _agm_elliptic(np.atleast_1d(m))[which].reshape(m.shape)
     edge = m == 1.0
