@@ -121,26 +121,24 @@ def resolve(site, electrode_ohm: float = 0.0, wires=None, building: bool = True)
     base_fed = not has_earth_lead
     if base_fed and feed[2] < FEED_GAP_M:
         feed[2] = FEED_GAP_M
-    starts, ends, radius, grounded, index, rho, mur = [], [], [], [], [], [], []
+    starts, ends, per_wire = [], [], []
     for i, w in enumerate(wires):
         p = np.array(w.points_m, dtype=float)
-        # a base-fed aerial's lowest point stays one feed gap above its image
-        p[:, 2] = np.where((p[:, 2] < FEED_GAP_M) & (w.role not in EARTH_ROLES), FEED_GAP_M, p[:, 2])
+        if w.role not in EARTH_ROLES:  # a base-fed aerial's lowest point stays one feed gap above its image
+            p[:, 2] = np.where(p[:, 2] < FEED_GAP_M, FEED_GAP_M, p[:, 2])
         if w.role == "counterpoise":
             p[:, 2] = np.maximum(p[:, 2], FEED_GAP_M)
         cond = CONDUCTORS[w.size.material]
-        n = len(p) - 1
         starts.append(p[:-1])
         ends.append(p[1:])
-        radius.append(np.full(n, w.size.radius_m))
-        grounded.append(np.full(n, w.role in EARTH_ROLES))
-        index.append(np.full(n, i))
-        rho.append(np.full(n, cond.resistivity_ohm_m))
-        mur.append(np.full(n, cond.relative_permeability))
+        # the wire's own figures, one per segment (below)
+        per_wire.append((len(p) - 1, w.size.radius_m, w.role in EARTH_ROLES, i, cond.resistivity_ohm_m,
+                         cond.relative_permeability))
+    counts, radius, grounded, index, rho, mur = zip(*per_wire)
+    radius, grounded, index, rho, mur = (np.repeat(v, counts) for v in (radius, grounded, index, rho, mur))
     seg = Segments(
-        np.vstack(starts), np.vstack(ends), np.concatenate(radius), np.concatenate(grounded), feed,
-        wire_index=np.concatenate(index), resistivity=np.concatenate(rho),
-        relative_permeability=np.concatenate(mur), electrode_ohm=float(electrode_ohm),
+        np.vstack(starts), np.vstack(ends), radius, grounded, feed,
+        wire_index=index, resistivity=rho, relative_permeability=mur, electrode_ohm=float(electrode_ohm),
     )
     body, described = building_of(site) if building else (None, None)
     return Geometry(wires, seg, feed, base_fed, body, described)
