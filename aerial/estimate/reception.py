@@ -520,7 +520,8 @@ def _needed(f, aerial, L, q_fun, cfg, block=None, wound_like=None):
                                          cfg["series_capacitance"], cfg["primary_inductance"],
                                          cfg["coupling_coefficient"], block,
                                          self_capacitance=cfg.get("self_capacitance", 0.0)) for t in taps]
-            s = net_mod.solve_network_stack(f, _za(aerial)(f), nets, 0.0, cfg["detector_conductance"])
+            s = net_mod.solve_network_stack(f, _za(aerial)(f), nets, 0.0, cfg["detector_conductance"],
+                                            outputs=("top_impedance",))
             return -np.imag(1.0 / s.top_impedance) / (2.0 * np.pi * f)
         return np.array([_needed(f, aerial, L, q_fun, {**cfg, "tap_fraction": float(t)}, block, wound_like)
                          for t in taps])
@@ -1170,7 +1171,7 @@ def _weakest_to_detector(band, aerial: _Aerial, parts: TuningParts, taps=(None,)
     table_f = _table_frequencies(aerial, *band)
     g = _strong_signal_conductance(parts)
     nets = [_net_parts(coil, parts) if m is None else _net_parts(coil, parts, detector_tap=float(m)) for m in taps]
-    bare = net_mod.solve_network_stack(table_f, _za(aerial)(table_f), nets)
+    bare = net_mod.solve_network_stack(table_f, _za(aerial)(table_f), nets, outputs=_RETUNED)
     # the top's admittance with the detector in place (a rank-one change), then the setting that resonates it
     z_top = bare.top_impedance - bare.top_per_detector_current * g * bare.detector_per_top_current / (
         1.0 + g * bare.detector_impedance)
@@ -1178,6 +1179,11 @@ def _weakest_to_detector(band, aerial: _Aerial, parts: TuningParts, taps=(None,)
     v = np.abs(net_mod.retuned_detector_voltage(bare, table_f, c, g))
     ratio = v**2 * g * 4.0 * aerial.impedance(table_f)[0]
     return np.min(np.nan_to_num(ratio, nan=0.0), axis=-1).tolist()
+
+
+#: What :func:`network.retuned_detector_voltage` and the detector's loading of the top take from a bare solve.
+_RETUNED = ("top_voltage", "detector_voltage", "top_impedance", "detector_impedance", "detector_per_top_current",
+            "top_per_detector_current")
 
 
 def _percent(x: float) -> str:
@@ -2492,7 +2498,7 @@ def _needed_stack(f, aerial, q_fun, configs) -> np.ndarray:
                                  coil.block, self_capacitance=cfg.get("self_capacitance", 0.0))
             for cfg, coil in configs]
     g = np.array([[cfg["detector_conductance"]] for cfg, _ in configs])
-    s = net_mod.solve_network_stack(f, _za(aerial)(f), nets, 0.0, g)
+    s = net_mod.solve_network_stack(f, _za(aerial)(f), nets, 0.0, g, outputs=("top_impedance",))
     return -np.imag(1.0 / s.top_impedance) / (2.0 * np.pi * f)
 
 

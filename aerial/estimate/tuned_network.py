@@ -230,6 +230,11 @@ def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL,
 LEVEL_LOOKAHEAD = 4
 
 
+#: The fields of a bare solve :func:`aerial.models.network.retuned_detector_voltage` takes (and the top's impedance).
+_RETUNED = ("top_voltage", "detector_voltage", "top_impedance", "detector_impedance", "detector_per_top_current",
+            "top_per_detector_current")
+
+
 class StationLevels(NamedTuple):
     capacitance: np.ndarray  #: tuning capacitor setting for each station [F]
     detector_voltage: np.ndarray  #: RMS at the detector [V]
@@ -362,14 +367,14 @@ def station_levels_stack(frequency, open_circuit_voltage, za: Callable, parts_st
     g = np.full((n_p,) + fs.shape, weak_signal_conductance(diode))
     # the weak-signal tuning and the bare network (no capacitor, no detector) in one stacked solve
     first = net_mod.solve_network_stack(fs, np.concatenate([z_s, z_s]) if z_s.ndim == 2 else z_s, plan.repeated(2),
-                                        0.0, np.concatenate([g, np.zeros_like(g)]))
+                                        0.0, np.concatenate([g, np.zeros_like(g)]), outputs=_RETUNED)
     w = 2.0 * np.pi * fs
     c = np.maximum(-np.imag(1.0 / first.top_impedance[:n_p]) / w, 0.0)
-    bare = net_mod.solve_network_stack(fs, z_s, plan, c, 0.0)
+    bare = net_mod.solve_network_stack(fs, z_s, plan, c, 0.0, outputs=("detector_voltage", "detector_impedance"))
     v, r_in, ok = detector_level(v_oc * np.abs(bare.detector_voltage), bare.detector_impedance, diode, load,
                                  table=table)
     g = 1.0 / r_in
-    open_net = net_mod.NetworkSolution(*(x[n_p:, np.newaxis, :] for x in first))
+    open_net = net_mod.NetworkSolution(*(None if x is None else x[n_p:, np.newaxis, :] for x in first))
     cross = net_mod.retuned_detector_voltage(open_net, fs[np.newaxis, np.newaxis, :], c[:, :, np.newaxis],
                                              g[:, :, np.newaxis])
     others = v_oc[..., np.newaxis, :] * np.abs(cross)
@@ -410,13 +415,14 @@ def rejection_stack(frequency, za: Callable, parts_stack, detector_conductance, 
     f0 = np.asarray(frequency, dtype=float)
     g = np.asarray(detector_conductance, dtype=float)
     plan = parts_stack if isinstance(parts_stack, net_mod.NetworkStack) else net_mod.plan_network_stack(parts_stack)
-    s = net_mod.solve_network_stack(f0, za(f0), plan, 0.0, g)
+    s = net_mod.solve_network_stack(f0, za(f0), plan, 0.0, g, outputs=("top_impedance",))
     c_pos = np.maximum(-np.imag(1.0 / s.top_impedance) / (2.0 * np.pi * f0), 0.0)
     n = f0.size
     probes = [f0] + [p for d in offsets for p in (np.maximum(f0 - d, f0 * 1e-3), f0 + d)]
     every = np.concatenate(probes)
     levels = np.abs(net_mod.solve_network_stack(every, za(every), plan, np.tile(c_pos, (1, len(probes))),
-                                                np.tile(g, (1, len(probes)))).detector_voltage)
+                                                np.tile(g, (1, len(probes))),
+                                                outputs=("detector_voltage",)).detector_voltage)
     tuned = levels[:, :n]
     return {d: net_mod.rejection_db(tuned, (levels[:, (1 + 2 * k) * n:(2 + 2 * k) * n],
                                             levels[:, (2 + 2 * k) * n:(3 + 2 * k) * n]))

@@ -692,8 +692,14 @@ def plan_network_stack(parts_stack) -> NetworkStack:
     return NetworkStack(len(parts_stack), tuple(groups))
 
 
+#: Each field of :class:`NetworkSolution`, in order, as the node it is read at and the right-hand side it answers:
+#: the aerial's EMF, or a unit current into the top or into the detector tap (the EMF shorted).
+_FIELDS = (("top", "emf"), ("detector", "emf"), ("top", "top"), ("detector", "detector"), ("aerial", "emf"),
+           ("detector", "top"), ("top", "detector"))
+
+
 def solve_network_stack(frequency, aerial_impedance, parts_stack, tuning_capacitance=0.0, detector_conductance=0.0,
-                        emf=1.0) -> NetworkSolution:
+                        emf=1.0, outputs=None) -> NetworkSolution:
     """:func:`solve_network` for many networks at once: row p of every input and output belongs to ``parts_stack[p]``.
 
     Parameters
@@ -707,6 +713,9 @@ def solve_network_stack(frequency, aerial_impedance, parts_stack, tuning_capacit
         arrangements and taps may differ (:func:`plan_network_stack` prepares them once for many solves).
     tuning_capacitance, detector_conductance, emf : array_like
         Broadcast to (P, m). [F], [S], [V]
+    outputs : sequence of str, optional
+        The fields of :class:`NetworkSolution` wanted (default: every one); the others come back None,
+        and the right-hand sides only they need are not solved for.
 
     Returns
     -------
@@ -743,13 +752,20 @@ def solve_network_stack(frequency, aerial_impedance, parts_stack, tuning_capacit
               np.broadcast_to(np.asarray(detector_conductance, dtype=float), shape),
               np.broadcast_to(np.asarray(emf, dtype=complex), shape)]
     shared = f if f.ndim == 1 else None  # one row of frequencies for every network: each loss callable met once
+    wanted = NetworkSolution._fields if outputs is None else tuple(outputs)
     if len(plan.groups) == 1:  # one group of every network in order: its solution as it comes
-        return NetworkSolution(*_solve_group(plan.groups[0], shared, *inputs))
-    out = [np.empty(shape, dtype=complex) for _ in range(7)]
+        return _solution(wanted, _solve_group(plan.groups[0], shared, *inputs, wanted))
+    out = [np.empty(shape, dtype=complex) for _ in wanted]
     for group in plan.groups:
-        for o, v in zip(out, _solve_group(group, shared, *(x[group.index] for x in inputs))):
+        for o, v in zip(out, _solve_group(group, shared, *(x[group.index] for x in inputs), wanted)):
             o[group.index] = v
-    return NetworkSolution(*out)
+    return _solution(wanted, out)
+
+
+def _solution(wanted, values) -> NetworkSolution:
+    """A NetworkSolution of the fields ``wanted`` (their ``values`` in the same order), None for the others."""
+    got = dict(zip(wanted, values))
+    return NetworkSolution(*(got.get(name) for name in NetworkSolution._fields))
 
 
 def _per_network(values, f, shared) -> np.ndarray:
@@ -771,8 +787,11 @@ def _per_network(values, f, shared) -> np.ndarray:
     return np.array(rows)
 
 
-def _solve_group(group: StackGroup, shared, f, za, tuning_capacitance, detector_conductance, emf):
-    """Assemble (:func:`_assemble`, as for :func:`solve_network`) and solve networks of one shape, (G, m) inputs."""
+def _solve_group(group: StackGroup, shared, f, za, tuning_capacitance, detector_conductance, emf,
+                 wanted=NetworkSolution._fields):
+    """Assemble (:func:`_assemble`, as for :func:`solve_network`) and solve networks of one shape, (G, m) inputs;
+    the fields of :class:`NetworkSolution` ``wanted``, in order, each right-hand side solved for only when one
+    of them needs it (each column is eliminated on its own: the same figures as with every column)."""
     parts = group.parts
     p0 = parts[0]
 
@@ -795,11 +814,12 @@ def _solve_group(group: StackGroup, shared, f, za, tuning_capacitance, detector_
                   column([p.self_capacitance for p in parts]),
                   column([p.series_capacitance for p in parts]) if p0.arrangement == "series capacitor" else None,
                   _per_network([p.coil_resistance for p in parts], f, shared), primary)
-    system = _assemble(f.shape, f, za, emf, tuning_capacitance, detector_conductance, ("emf", "top", "detector"),
-                       lay)
+    pairs = [dict(zip(NetworkSolution._fields, _FIELDS))[name] for name in wanted]
+    columns = tuple(c for c in ("emf", "top", "detector") if any(c == rhs for _, rhs in pairs))
+    system = _assemble(f.shape, f, za, emf, tuning_capacitance, detector_conductance, columns, lay)
     x = _eliminate(system.matrix, system.rhs)
-    top = k - 1
-    return tuple(_voltages(system, x, ((top, 0), (det, 0), (top, 1), (det, 2), (aer, 0), (det, 1), (top, 2)), f.shape))
+    node = {"top": k - 1, "detector": det, "aerial": aer}
+    return tuple(_voltages(system, x, [(node[at], columns.index(rhs)) for at, rhs in pairs], f.shape))
 
 
 def _one_node(nodes):

@@ -218,6 +218,28 @@ def test_consistency_check_a_stack_of_networks_solves_as_each_one_alone():
             assert np.allclose(got[p], want, rtol=1e-12, atol=0)
 
 
+def test_consistency_check_a_stack_solved_for_some_fields_gives_the_full_solves():
+    """A stack solved for some fields of the solution only gives those fields to the last bit, the others None
+    (consistency check on invented parts: each right-hand side is eliminated on its own)."""
+    stack = [net.NetworkParts("coil tap", 240e-6, 6.0, detector_tap=m, aerial_tap=0.2) for m in (0.1, 0.5, 1.0)]
+    stack += [net.NetworkParts("series capacitor", 240e-6, 6.0, detector_tap=0.3, series_capacitance=47e-12),
+              net.NetworkParts("separate primary", 240e-6, 6.0, detector_tap=0.7, primary_inductance=24e-6,
+                               coupling_coefficient=0.3, primary_resistance=1.0)]
+    f = np.linspace(550e3, 1650e3, 5)
+    za = 40.0 - 1j / (2 * np.pi * f * 150e-12)
+    full = net.solve_network_stack(f, za, stack, 90e-12, 2e-4)
+    for wanted in (("top_impedance",), ("detector_voltage",), ("detector_voltage", "detector_impedance"),
+                   ("top_per_detector_current", "primary_voltage")):
+        some = net.solve_network_stack(f, za, stack, 90e-12, 2e-4, outputs=wanted)
+        for name in net.NetworkSolution._fields:
+            if name in wanted:
+                assert np.array_equal(getattr(some, name), getattr(full, name))
+            else:
+                assert getattr(some, name) is None
+    one = net.solve_network_stack(f, za, stack[:1], 90e-12, 2e-4, outputs=("detector_impedance",))
+    assert np.array_equal(one.detector_impedance, full.detector_impedance[:1]) and one.top_voltage is None
+
+
 def test_consistency_check_the_detector_voltage_alone_is_the_full_solves():
     """The detector voltage solved for the aerial's EMF alone, and the tuning capacitance from the top's
     impedance alone, are the full solve's figures to the last bit (consistency check on invented parts)."""
