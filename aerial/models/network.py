@@ -369,6 +369,23 @@ def _per_coil_taps(parts: NetworkParts, aerial_node: int, detector_node: int, k:
     must give the layout of the first (k taps, the aerial at node ``aerial_node``, the detector at
     ``detector_node``), else ModelInputError."""
     values, which = np.unique(np.asarray(parts.aerial_tap, dtype=float), return_inverse=True)
+    key = (tuple(values.tolist()), float(parts.detector_tap), id(parts.block), aerial_node, detector_node, k)
+    hit = _TAP_LAYOUT_CACHE.get(key)
+    if hit is None or hit[0] is not parts.block:
+        if len(_TAP_LAYOUT_CACHE) > 512:
+            _TAP_LAYOUT_CACHE.clear()
+        hit = _TAP_LAYOUT_CACHE[key] = (parts.block, *_tap_layouts(parts, values, aerial_node, detector_node, k))
+    shape = np.shape(parts.aerial_tap)
+    return hit[1][which].reshape(shape + (k,)), hit[2][which].reshape(shape + (k, k))
+
+
+_TAP_LAYOUT_CACHE: dict = {}
+
+
+def _tap_layouts(parts: NetworkParts, values, aerial_node: int, detector_node: int, k: int) -> tuple:
+    """Shares of the turns (U, k) [1] and sections of 1 H (U, k, k) [H] of the winding with its aerial tap at
+    each of ``values`` (U distinct taps), remembered by :func:`_per_coil_taps` per taps and winding as
+    :func:`_sections` remembers its own (a search asks for the same few taps at every step)."""
     fractions, units = [], []
     for t in values:
         own, at = _taps(parts._replace(aerial_tap=float(t)))
@@ -376,8 +393,7 @@ def _per_coil_taps(parts: NetworkParts, aerial_node: int, detector_node: int, k:
             raise ModelInputError("aerial taps solved together must give the winding one layout")
         fractions.append([b - a for a, b in zip([0.0] + own[:-1], own)])
         units.append(_unit_sections(own, parts.block))
-    shape = np.shape(parts.aerial_tap)
-    return np.array(fractions)[which].reshape(shape + (k,)), np.array(units)[which].reshape(shape + (k, k))
+    return np.array(fractions), np.array(units)
 
 
 def _broadcast_shapes(*shapes) -> tuple:
