@@ -113,18 +113,22 @@ def section_inductances(taps, block) -> np.ndarray:
     t = np.asarray(taps, dtype=float)
     if t.ndim != 1 or t.size < 1 or abs(t[-1] - 1.0) > 1e-12 or np.any(np.diff(np.concatenate([[0.0], t])) <= 0):
         raise ModelInputError("taps must increase from above 0 to exactly 1")
-    edges = np.concatenate([[0.0], t])
+    edges = [0.0] + t.tolist()
     k = t.size
     out = np.empty((k, k))
+    seen: dict = {}
+
+    def block_of(x):  # each block's inductance worked out once (blocks of one length recur between the pairs)
+        if x not in seen:
+            seen[x] = float(block(x))
+        return seen[x]
+
     for a in range(k):
-        for b in range(k):
-            if a == b:
-                out[a, a] = float(block(edges[a + 1] - edges[a]))
-                continue
-            i, j = min(a, b), max(a, b)
-            p, q, r, s = edges[i], edges[i + 1], edges[j], edges[j + 1]
-            gap = float(block(r - q)) if r > q else 0.0
-            out[a, b] = 0.5 * (float(block(s - p)) - float(block(r - p)) - float(block(s - q)) + gap)
+        out[a, a] = block_of(edges[a + 1] - edges[a])
+        for b in range(a + 1, k):  # M_ab = M_ba
+            p, q, r, s = edges[a], edges[a + 1], edges[b], edges[b + 1]
+            gap = block_of(r - q) if r > q else 0.0
+            out[a, b] = out[b, a] = 0.5 * (block_of(s - p) - block_of(r - p) - block_of(s - q) + gap)
     return out
 
 
