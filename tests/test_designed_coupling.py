@@ -259,3 +259,21 @@ def test_consistency_check_coverings_searched_together_are_each_search_alone():
     alone = [rc._covering_coils(band, aerial, t) for t in trials]
     assert together == alone and any(c is not None for c in alone)
     assert reach == [rc._reaching_coils(band, aerial, t) for t, c in zip(trials, alone) if c is None]
+
+
+def test_consistency_check_couplings_weighed_together_are_each_weighed_alone():
+    """The weakest shares to the detector of many couplings, each with its designed coil, weighed in one stacked
+    solve (reception._weakest_shares) are, to the last bit, those each coupling's own solve gives (consistency
+    check on invented aerials, every coupling tried with a coil still to be designed and every detector tap)."""
+    from aerial.estimate import reception as rc
+
+    f = np.geomspace(400e3, 2e6, 40)
+    parts = rc.TuningParts(capacitor_min_f=15e-12, capacitor_max_f=365e-12, earphone_ohm=2000.0)
+    band = (530e3, 1700e3)
+    taps = (1.0,) + tuple(m for m in rc.DESIGN_DETECTOR_TAPS if m != 1.0)
+    for c_aerial, r_aerial in ((180e-12, 30.0), (400e-12, 12.0), (90e-12, 60.0)):
+        aerial = rc._Aerial(f, np.full(f.size, r_aerial), -1 / (2 * np.pi * f * c_aerial))
+        designs = [(t, rc._share_coil(band, aerial, t, need_room=False)) for t, _ in rc._coupling_candidates(parts)]
+        together = rc._weakest_shares(band, aerial, designs, taps)
+        assert together == [rc._weakest_shares(band, aerial, [d], taps)[0] for d in designs]
+        assert together[0] == rc._weakest_to_detector(band, aerial, designs[0][0], taps, need_room=False)

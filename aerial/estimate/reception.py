@@ -1160,17 +1160,32 @@ def _weakest_to_detector(band, aerial: _Aerial, parts: TuningParts, taps=(None,)
     turns; None: the parts' own) on that one coil (its sizing leaves the detector's tap aside,
     :func:`_sizing_config`). A list of one share per tap [1]; None when no coil covers the band with room
     (with ``need_room``: else the coil :func:`_designed_coil` falls back to is taken)."""
+    coil = _share_coil(band, aerial, parts, need_room)
+    return None if coil is None else _weakest_shares(band, aerial, [(parts, coil)], taps)[0]
+
+
+def _share_coil(band, aerial: _Aerial, parts: TuningParts, need_room=True):
+    """The coil :func:`_weakest_to_detector` weighs ``parts`` with (:func:`_designed_coil`); None when no coil
+    covers the band with room and ``need_room``."""
     covering = _covering_coils(band, aerial, parts)
     if need_room and not _roomy(covering):
         return None
-    coil = _designed_coil(band, aerial, parts, covering)
+    return _designed_coil(band, aerial, parts, covering)
+
+
+def _weakest_shares(band, aerial: _Aerial, designs, taps=(None,)) -> list:
+    """:func:`_weakest_to_detector` of each (parts, coil) of ``designs`` (the coil from :func:`_share_coil`), one
+    list of shares per tap each, every network of every design in one stacked solve."""
     # the table's column alone: the network tuned at each frequency with the detector at its strong-signal
     # loading, no bandwidth or rejection searched (each frequency's figure is the table's own); every tap
     # from one stacked solve of the bare networks, the capacitor and the detector then added to each
     # (network.retuned_detector_voltage: the same figures as tuned_figures to rounding)
+    if not designs:
+        return []
     table_f = _table_frequencies(aerial, *band)
-    g = _strong_signal_conductance(parts)
-    nets = [_net_parts(coil, parts) if m is None else _net_parts(coil, parts, detector_tap=float(m)) for m in taps]
+    nets = [_net_parts(coil, parts) if m is None else _net_parts(coil, parts, detector_tap=float(m))
+            for parts, coil in designs for m in taps]
+    g = np.repeat([_strong_signal_conductance(parts) for parts, _ in designs], len(taps))[:, np.newaxis]
     bare = net_mod.solve_network_stack(table_f, _za(aerial)(table_f), nets, outputs=_RETUNED)
     # the top's admittance with the detector in place (a rank-one change), then the setting that resonates it
     z_top = bare.top_impedance - bare.top_per_detector_current * g * bare.detector_per_top_current / (
@@ -1178,7 +1193,8 @@ def _weakest_to_detector(band, aerial: _Aerial, parts: TuningParts, taps=(None,)
     c = np.maximum(-np.imag(1.0 / z_top) / (2.0 * np.pi * table_f), 0.0)
     v = np.abs(net_mod.retuned_detector_voltage(bare, table_f, c, g))
     ratio = v**2 * g * 4.0 * aerial.impedance(table_f)[0]
-    return np.min(np.nan_to_num(ratio, nan=0.0), axis=-1).tolist()
+    weakest = np.min(np.nan_to_num(ratio, nan=0.0), axis=-1).tolist()
+    return [weakest[i:i + len(taps)] for i in range(0, len(weakest), len(taps))]
 
 
 #: What :func:`network.retuned_detector_voltage` and the detector's loading of the top take from a bare solve.
@@ -1269,9 +1285,12 @@ def design_coupling(frequency_hz, aerial_r_ohm, aerial_x_ohm, parts: TuningParts
     scored = []
     trials = _coupling_candidates(parts) if couple else [(parts, "")]
     _covering_coils_many(band, aerial, [trial for trial, _ in trials])
-    for trial, words in trials:
-        shares = _weakest_to_detector(band, aerial, trial, taps, need_room=couple)
-        scored += [(w, trial, words, m) for w, m in zip(shares or (), taps)]
+    # each coupling's coil first, then every coupling with a coil weighed in one solve
+    designs = [(trial, words, _share_coil(band, aerial, trial, need_room=couple)) for trial, words in trials]
+    designs = [(trial, words, coil) for trial, words, coil in designs if coil is not None]
+    for (trial, words, _), shares in zip(designs, _weakest_shares(band, aerial, [(t, c) for t, _, c in designs],
+                                                                   taps)):
+        scored += [(w, trial, words, m) for w, m in zip(shares, taps)]
     notes = []
     if couple and not scored:
         notes.append(_nothing_covers(band))
