@@ -372,8 +372,13 @@ def _per_coil_taps(parts: NetworkParts, aerial_node: int, detector_node: int, k:
     (``parts.aerial_tap``, an array of the coils' shape), each what a solve of that coil alone takes; every tap
     must give the layout of the first (k taps, the aerial at node ``aerial_node``, the detector at
     ``detector_node``), else ModelInputError."""
-    values, which = np.unique(np.asarray(parts.aerial_tap, dtype=float), return_inverse=True)
-    key = (tuple(values.tolist()), float(parts.detector_tap), id(parts.block), aerial_node, detector_node, k)
+    # the distinct taps in order and each coil's among them (numpy.unique's answer, without its sorting machinery
+    # for the few values of a search)
+    listed = np.asarray(parts.aerial_tap, dtype=float).ravel().tolist()
+    values = sorted(set(listed))
+    position = {t: i for i, t in enumerate(values)}
+    which = np.array([position[t] for t in listed], dtype=np.intp)
+    key = (tuple(values), float(parts.detector_tap), id(parts.block), aerial_node, detector_node, k)
     hit = _TAP_LAYOUT_CACHE.get(key)
     if hit is None or hit[0] is not parts.block:
         if len(_TAP_LAYOUT_CACHE) > 512:
