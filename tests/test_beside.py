@@ -75,6 +75,23 @@ def test_leaving_early_stops_the_copy():
         os.kill(pid, 0)
 
 
+@needs_fork
+def test_a_copy_that_delivered_is_collected_and_leaves_no_zombie():
+    """The result is taken as soon as the copy has written it; the copy, still giving its memory back, is
+    collected then or later (at the next copy, or at exit), never left as a zombie."""
+    from aerial.core import beside
+
+    with Beside(os.getpid) as side:
+        pid = side.result()
+    deadline = time.monotonic() + 30
+    while pid in beside._ENDING and time.monotonic() < deadline:
+        time.sleep(0.01)
+        beside._collect_ended()
+    assert pid not in beside._ENDING
+    with pytest.raises(ChildProcessError):
+        os.waitpid(pid, os.WNOHANG)  # collected: no zombie left behind
+
+
 def test_the_environment_variable_keeps_one_process(monkeypatch):
     for off in ("0", "no", " False ", "OFF"):  # the words people write for "not set" leave the choice to aerial
         monkeypatch.setenv(ONE_PROCESS_VARIABLE, off)

@@ -25,6 +25,7 @@ environment variable :data:`ONE_PROCESS_VARIABLE` to anything but "", "0",
 
 from __future__ import annotations
 
+import atexit
 import os
 import pickle
 import signal
@@ -85,6 +86,7 @@ class Beside:
             self._start()
 
     def _start(self) -> None:
+        _collect_ended()
         try:
             read, write = os.pipe()
         except OSError:
@@ -109,6 +111,7 @@ class Beside:
                 view = memoryview(payload)
                 while view:
                     view = view[os.write(write, view):]
+                os.close(write)  # the caller has it all now, not once this process's memory is given back
                 code = 0
             finally:
                 os._exit(code)  # never back into the caller's code, no exit handlers, no buffers flushed
@@ -146,10 +149,15 @@ class Beside:
         except BaseException:
             self.close()
             raise
-        return b"".join(chunks), self._reap(stop=False) == 0
+        return b"".join(chunks), self._reap(stop=False) in (0, None)
 
     def _reap(self, stop: bool) -> int | None:
-        """Close the pipe and wait for the copy (stopping it first if ``stop``); its exit code, None if unknown."""
+        """Close the pipe and end with the copy; its exit code, None when unknown.
+
+        With ``stop`` the copy is stopped first and waited for. Without, the copy has delivered (its pipe is
+        closed) and is only giving its memory back: it is collected if it has ended, else left for
+        :func:`_collect_ended`, so the caller does not wait for that.
+        """
         pid, self._pid = self._pid, None
         if pid is None:
             return None
@@ -162,14 +170,11 @@ class Beside:
                 os.kill(pid, signal.SIGKILL)
             except OSError:
                 pass
-        while True:
-            try:
-                _, status = os.waitpid(pid, 0)
-            except InterruptedError:  # pragma: no cover - retried by Python itself since 3.5
-                continue
-            except ChildProcessError:
-                return None
-            return os.waitstatus_to_exitcode(status)
+        status = _wait(pid, block=stop)
+        if status is None and not stop:
+            _ENDING.append(pid)
+        return status
+
 
     def close(self) -> None:
         """Stop a copy still working and wait for it."""
@@ -180,6 +185,37 @@ class Beside:
 
     def __exit__(self, *exc) -> None:
         self.close()
+
+
+#: Copies that delivered but had not ended when their result was taken (collected by :func:`_collect_ended`).
+_ENDING: list = []
+
+
+def _wait(pid: int, block: bool) -> int | None:
+    """The exit code of the copy ``pid`` once it has ended (collecting it); None if unknown or, unless
+    ``block``, not ended yet."""
+    while True:
+        try:
+            done, status = os.waitpid(pid, 0 if block else os.WNOHANG)
+        except InterruptedError:  # pragma: no cover - retried by Python itself since 3.5
+            continue
+        except ChildProcessError:
+            return None
+        return os.waitstatus_to_exitcode(status) if done else None
+
+
+def _collect_ended() -> None:
+    """Collect the copies that have ended since they delivered, so none is left behind as a zombie."""
+    for pid in list(_ENDING):
+        try:
+            done, _ = os.waitpid(pid, os.WNOHANG)
+        except ChildProcessError:
+            done = pid
+        if done:
+            _ENDING.remove(pid)
+
+
+atexit.register(_collect_ended)
 
 
 def shared(tasks, *, fork: bool = True) -> list:
