@@ -1186,7 +1186,7 @@ def _weakest_shares(band, aerial: _Aerial, designs, taps=(None,)) -> list:
     nets = [_net_parts(coil, parts) if m is None else _net_parts(coil, parts, detector_tap=float(m))
             for parts, coil in designs for m in taps]
     g = np.repeat([_strong_signal_conductance(parts) for parts, _ in designs], len(taps))[:, np.newaxis]
-    bare = net_mod.solve_network_stack(table_f, _za(aerial)(table_f), nets, outputs=_RETUNED)
+    bare = net_mod.solve_network_stack(table_f, _za(aerial)(table_f), nets, outputs=net_mod.RETUNED_FIELDS)
     # the top's admittance with the detector in place (a rank-one change), then the setting that resonates it
     z_top = bare.top_impedance - bare.top_per_detector_current * g * bare.detector_per_top_current / (
         1.0 + g * bare.detector_impedance)
@@ -1195,11 +1195,6 @@ def _weakest_shares(band, aerial: _Aerial, designs, taps=(None,)) -> list:
     ratio = v**2 * g * 4.0 * aerial.impedance(table_f)[0]
     weakest = np.min(np.nan_to_num(ratio, nan=0.0), axis=-1).tolist()
     return [weakest[i:i + len(taps)] for i in range(0, len(weakest), len(taps))]
-
-
-#: What :func:`network.retuned_detector_voltage` and the detector's loading of the top take from a bare solve.
-_RETUNED = ("top_voltage", "detector_voltage", "top_impedance", "detector_impedance", "detector_per_top_current",
-            "top_per_detector_current")
 
 
 def _percent(x: float) -> str:

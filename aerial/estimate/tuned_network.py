@@ -230,11 +230,6 @@ def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL,
 LEVEL_LOOKAHEAD = 4
 
 
-#: The fields of a bare solve :func:`aerial.models.network.retuned_detector_voltage` takes (and the top's impedance).
-_RETUNED = ("top_voltage", "detector_voltage", "top_impedance", "detector_impedance", "detector_per_top_current",
-            "top_per_detector_current")
-
-
 class StationLevels(NamedTuple):
     capacitance: np.ndarray  #: tuning capacitor setting for each station [F]
     detector_voltage: np.ndarray  #: RMS at the detector [V]
@@ -367,7 +362,7 @@ def station_levels_stack(frequency, open_circuit_voltage, za: Callable, parts_st
     g = np.full((n_p,) + fs.shape, weak_signal_conductance(diode))
     # the weak-signal tuning and the bare network (no capacitor, no detector) in one stacked solve
     first = net_mod.solve_network_stack(fs, np.concatenate([z_s, z_s]) if z_s.ndim == 2 else z_s, plan.repeated(2),
-                                        0.0, np.concatenate([g, np.zeros_like(g)]), outputs=_RETUNED)
+                                        0.0, np.concatenate([g, np.zeros_like(g)]), outputs=net_mod.RETUNED_FIELDS)
     w = 2.0 * np.pi * fs
     c = np.maximum(-np.imag(1.0 / first.top_impedance[:n_p]) / w, 0.0)
     bare = net_mod.solve_network_stack(fs, z_s, plan, c, 0.0, outputs=("detector_voltage", "detector_impedance"))

@@ -854,6 +854,12 @@ def _one_node(nodes):
     return first if (nodes == first).all() else nodes
 
 
+#: The fields of a bare solve that :func:`retuned_detector_voltage` reads, and the top's impedance (for the
+#: detector's loading of the top): what to ask :func:`solve_network_stack` for (``outputs=``).
+RETUNED_FIELDS = ("top_voltage", "detector_voltage", "top_impedance", "detector_impedance", "detector_per_top_current",
+                  "top_per_detector_current")
+
+
 def retuned_detector_voltage(bare: NetworkSolution, frequency, tuning_capacitance, detector_conductance):
     """Detector voltage with a tuning capacitor and a detector conductance added to a solved network.
 
