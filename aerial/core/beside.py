@@ -161,10 +161,7 @@ class Beside:
         pid, self._pid = self._pid, None
         if pid is None:
             return None
-        try:
-            os.close(self._read)
-        except OSError:
-            pass
+        _close(self._read)
         if stop:
             try:
                 os.kill(pid, signal.SIGKILL)
@@ -174,7 +171,6 @@ class Beside:
         if status is None and not stop:
             _ENDING.append(pid)
         return status
-
 
     def close(self) -> None:
         """Stop a copy still working and wait for it."""
@@ -251,12 +247,8 @@ def shared(tasks, *, fork: bool = True) -> list:
             mine, failed = _from_the_back(tasks, tokens)
             theirs = side.delivered()[1] or {}
     finally:
-        for read, write in tokens:
-            for fd in (read, write):
-                try:
-                    os.close(fd)
-                except OSError:
-                    pass
+        for pair in tokens:
+            _close(*pair)
     out = []
     for i, task in enumerate(tasks):
         if i in mine:
@@ -281,10 +273,18 @@ def _token_pipes(n: int) -> list:
             os.write(write, b"t")
     except OSError:
         for pair in pipes:
-            for fd in pair:
-                os.close(fd)
+            _close(*pair)
         raise
     return pipes
+
+
+def _close(*fds: int) -> None:
+    """Close each file descriptor, one already closed or never opened being no error."""
+    for fd in fds:
+        try:
+            os.close(fd)
+        except OSError:
+            pass
 
 
 def _claim(tokens, i: int) -> bool:
