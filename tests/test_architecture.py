@@ -8,6 +8,7 @@ A module may import from its own layer or a lower one.
 from __future__ import annotations
 
 import ast
+import functools
 import pathlib
 
 import pytest
@@ -32,9 +33,16 @@ def _layer(module: str) -> int:
     return DOORS
 
 
+@functools.lru_cache(maxsize=None)
+def _parsed(path: pathlib.Path) -> tuple[str, ast.Module]:
+    """A module's text and syntax tree, read and parsed once for all the checks here."""
+    text = path.read_text(encoding="utf-8")
+    return text, ast.parse(text)
+
+
 def _imports(path: pathlib.Path):
     """Yield (imported module, imported names, line) for every aerial import in a file, lazy ones included."""
-    tree = ast.parse(path.read_text(encoding="utf-8"))
+    tree = _parsed(path)[1]
     for node in ast.walk(tree):
         if isinstance(node, ast.ImportFrom) and node.module and node.module.split(".")[0] == "aerial" and node.level == 0:
             names = [a.name for a in node.names]
@@ -124,9 +132,9 @@ MAX_FUNCTION_LINES = 100
 def _long_functions():
     out = {}
     for p in MODULES:
-        text = p.read_text(encoding="utf-8")
+        text, tree = _parsed(p)
         lines = text.splitlines()
-        for node in ast.walk(ast.parse(text)):
+        for node in ast.walk(tree):
             if isinstance(node, (ast.FunctionDef, ast.AsyncFunctionDef)):
                 body = node.body
                 start = body[0].lineno
@@ -152,7 +160,7 @@ def test_records_come_from_the_core_named_tuple():
     """Every record class is made by aerial.core.records.NamedTuple, not typing's (its field checks cost start-up)."""
     found = []
     for p in MODULES:
-        for node in ast.walk(ast.parse(p.read_text(encoding="utf-8"))):
+        for node in ast.walk(_parsed(p)[1]):
             if isinstance(node, ast.ImportFrom) and node.module == "typing" \
                     and any(a.name == "NamedTuple" for a in node.names):
                 found.append(f"{_module_name(p)}:{node.lineno}")
