@@ -64,6 +64,7 @@ def svg_of(fig, name: str, label: str) -> str:
 
     buf = io.StringIO()
     with matplotlib.rc_context({**_RC, "svg.hashsalt": f"aerial-{name}"}):
+        _lay_out(fig)
         fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": "aerial", "Title": label})
     text = buf.getvalue()
     # ids unique across charts: matplotlib's ids come from a hash; prefix them with the chart's name
@@ -71,6 +72,29 @@ def svg_of(fig, name: str, label: str) -> str:
     text = re.sub(r'(url\(#|xlink:href="#|href="#)([^)"]+)', lambda m: f"{m.group(1)}{name}-{m.group(2)}", text)
     text = text.replace("<svg ", f'<svg role="img" aria-label={quoteattr(label)} class="chart" ', 1)
     return re.sub(r"(<svg[^>]*>)", lambda m: m.group(1) + f"\n <title>{escape(label)}</title>", text, count=1)
+
+
+def _lay_out(fig) -> None:
+    """Run the figure's layout engine once, as ``savefig`` would, then switch it off for the one drawing pass.
+
+    ``savefig`` with a layout engine draws the figure twice: a pass with drawing switched off (which runs
+    the engine, at the SVG resolution of 72 dots an inch) and then the SVG itself. The engine alone gives
+    the same positions, so the figure is drawn once.
+    """
+    engine = fig.get_layout_engine()
+    if engine is None:
+        return
+    from matplotlib.backends.backend_svg import FigureCanvasSVG
+
+    canvas, dpi = fig.canvas, fig.dpi
+    FigureCanvasSVG(fig)  # the canvas savefig switches to for SVG; it measures text as the SVG is written
+    try:
+        fig.dpi = FigureCanvasSVG.fixed_dpi
+        engine.execute(fig)
+    finally:
+        fig.dpi = dpi
+        fig.set_canvas(canvas)
+    fig.set_layout_engine(None)
 
 
 def _axes_style(ax) -> None:
