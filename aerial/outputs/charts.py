@@ -62,10 +62,17 @@ def svg_of(fig, name: str, label: str) -> str:
     import matplotlib
     from xml.sax.saxutils import escape, quoteattr
 
+    from aerial.outputs.svg_canvas import measuring_svg_canvas
+
     buf = io.StringIO()
+    canvas = fig.canvas
     with matplotlib.rc_context({**_RC, "svg.hashsalt": f"aerial-{name}"}):
-        _lay_out(fig)
-        fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": "aerial", "Title": label})
+        measuring_svg_canvas(fig)  # the SVG canvas savefig would take, measuring each string once per process
+        try:
+            _lay_out(fig)
+            fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": "aerial", "Title": label})
+        finally:
+            fig.set_canvas(canvas)
     text = buf.getvalue()
     # ids unique across charts: matplotlib's ids come from a hash; prefix them with the chart's name
     text = re.sub(r'id="([^"]+)"', lambda m: f'id="{name}-{m.group(1)}"', text)
@@ -77,6 +84,8 @@ def svg_of(fig, name: str, label: str) -> str:
 def _lay_out(fig) -> None:
     """Run the figure's layout engine once, as ``savefig`` would, then switch it off for the one drawing pass.
 
+    The figure's canvas must be the SVG canvas (as in :func:`svg_of`).
+
     ``savefig`` with a layout engine draws the figure twice: a pass with drawing switched off (which runs
     the engine, at the SVG resolution of 72 dots an inch) and then the SVG itself. The engine alone gives
     the same positions, so the figure is drawn once.
@@ -84,16 +93,12 @@ def _lay_out(fig) -> None:
     engine = fig.get_layout_engine()
     if engine is None:
         return
-    from matplotlib.backends.backend_svg import FigureCanvasSVG
-
-    canvas, dpi = fig.canvas, fig.dpi
-    FigureCanvasSVG(fig)  # the canvas savefig switches to for SVG; it measures text as the SVG is written
+    dpi = fig.dpi
     try:
-        fig.dpi = FigureCanvasSVG.fixed_dpi
+        fig.dpi = fig.canvas.fixed_dpi  # the SVG canvas's 72 dots an inch, as in savefig's layout pass
         engine.execute(fig)
     finally:
         fig.dpi = dpi
-        fig.set_canvas(canvas)
     fig.set_layout_engine(None)
 
 
