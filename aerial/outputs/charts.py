@@ -14,6 +14,7 @@ files of ``aerial report --pictures`` (:mod:`aerial.outputs.pictures`).
 
 from __future__ import annotations
 
+import contextlib
 import io
 import re
 
@@ -373,7 +374,7 @@ def station_design_figure(result):
 
 
 def station_design_chart(result) -> str | None:
-    return chart_svg(station_design_figure(result))
+    return _report_chart(station_design_figure, result)
 
 
 def chart_svg(fig) -> str | None:
@@ -381,17 +382,44 @@ def chart_svg(fig) -> str | None:
     return None if fig is None else svg_of(fig, *fig.aerial_svg)
 
 
+#: The report charts drawn inside :func:`drawn_once`: {(figure function's name, id(result)): (result, SVG)}.
+_kept: dict | None = None
+
+
+@contextlib.contextmanager
+def drawn_once():
+    """Within the block, a report chart asked for again of the same result (the pictures, then the page) is
+    the SVG text drawn the first time instead of a second drawing of it (the very same text)."""
+    global _kept
+    outer = _kept
+    _kept = {} if outer is None else outer
+    try:
+        yield
+    finally:
+        _kept = outer
+
+
+def _report_chart(figure_of, result) -> str | None:
+    kept = _kept
+    if kept is None:
+        return chart_svg(figure_of(result))
+    key = (figure_of.__name__, id(result))
+    if key not in kept or kept[key][0] is not result:
+        kept[key] = (result, chart_svg(figure_of(result)))
+    return kept[key][1]
+
+
 def impedance_chart(result) -> str:
-    return chart_svg(impedance_figure(result))
+    return _report_chart(impedance_figure, result)
 
 
 def capacitance_chart(result) -> str:
-    return chart_svg(capacitance_figure(result))
+    return _report_chart(capacitance_figure, result)
 
 
 def tuning_chart(result) -> str | None:
-    return chart_svg(tuning_figure(result))
+    return _report_chart(tuning_figure, result)
 
 
 def station_chart(result) -> str | None:
-    return chart_svg(station_figure(result))
+    return _report_chart(station_figure, result)
