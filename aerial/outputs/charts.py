@@ -61,7 +61,6 @@ def svg_of(fig, name: str, label: str) -> str:
     clashing); ``label`` becomes the picture's ``<title>`` and ``aria-label``.
     """
     import matplotlib
-    from xml.sax.saxutils import escape, quoteattr
 
     from aerial.outputs.svg_canvas import measuring_svg_canvas
 
@@ -74,7 +73,13 @@ def svg_of(fig, name: str, label: str) -> str:
             fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": "aerial", "Title": label})
         finally:
             fig.set_canvas(canvas)
-    text = buf.getvalue()
+    return named_svg(buf.getvalue(), name, label)
+
+
+def named_svg(text: str, name: str, label: str) -> str:
+    """matplotlib's SVG text with its ids prefixed by ``name`` and ``label`` as its title and accessible name."""
+    from xml.sax.saxutils import escape, quoteattr
+
     # ids unique across charts: matplotlib's ids come from a hash; prefix them with the chart's name
     text = re.sub(r'id="([^"]+)"', lambda m: f'id="{name}-{m.group(1)}"', text)
     text = re.sub(r'(url\(#|xlink:href="#|href="#)([^)"]+)', lambda m: f"{m.group(1)}{name}-{m.group(2)}", text)
