@@ -84,6 +84,16 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
                      ground=ground, allow_large=allow_large, units=units, beside=beside)
     if clearance_warnings:
         result["warnings"] = clearance_warnings + [w for w in result["warnings"] if w not in clearance_warnings]
+    if pictures or page:
+        from aerial.outputs.charts import drawn_once
+
+        with drawn_once():  # the pictures and the page share their charts: each drawn once
+            _draw_outputs(result, site, pictures, page, force, page_units or units)
+    return result
+
+
+def _draw_outputs(result, site, pictures, page, force, page_units) -> None:
+    """The report's pictures and page, when asked for (their paths go into the result)."""
     if pictures:
         from aerial.outputs.pictures import draw_report_pictures
 
@@ -93,9 +103,8 @@ def run_report(path, *, full_wave=False, step_hz=None, progress=None, pictures=N
         from aerial.outputs.page_report import report_page
         from aerial.outputs.site_drawings import site_surroundings
 
-        text = report_page(result, site_surroundings(site), page_units or units)
+        text = report_page(result, site_surroundings(site), page_units)
         result["page"] = str(write_atomic(page, text, force=force, protected=(site.path,)))
-    return result
 
 
 def check_page_file(page, force, site) -> None:

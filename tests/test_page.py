@@ -424,3 +424,54 @@ def test_plan_view_draws_the_building_the_figures_take_in(capsys, tmp_path):
     plan = html[html.index('id="plan-view"'):]
     plan = plan[:plan.index("</figure>")]
     assert "building (reinforced concrete)" in plan
+
+
+def _matplotlib_svg(fig) -> str:
+    """``fig`` saved by matplotlib's own ``savefig`` (its SVG canvas, its layout pass), named as the charts name it."""
+    import io
+
+    import matplotlib
+
+    from aerial.outputs import charts
+
+    name, label = fig.aerial_svg
+    buf = io.StringIO()
+    with matplotlib.rc_context({**charts._RC, "svg.hashsalt": f"aerial-{name}"}):
+        fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": "aerial", "Title": label})
+    return charts.named_svg(buf.getvalue(), name, label)
+
+
+def test_charts_are_the_svg_matplotlib_itself_saves(built_in):
+    """The one-pass drawing with text measured once per process (aerial.outputs.svg_canvas) changes no byte:
+    each chart, drawn with the measurement store emptied and again with it full, is the very text
+    matplotlib's own savefig writes (layout pass and all). Our own check; matplotlib is the reference."""
+    from aerial.outputs import charts, site_drawings, svg_canvas
+
+    result, _ = built_in
+    scene = site_drawings.report_scene(result)
+    makers = [(charts.station_design_figure, result), (charts.impedance_figure, result),
+              (charts.station_figure, result), (site_drawings.plan_figure, scene)]
+    for make, arg in makers:
+        svg_canvas._STORES.clear()
+        first = charts.chart_svg(make(arg))
+        again = charts.chart_svg(make(arg))
+        assert first == again == _matplotlib_svg(make(arg)), make.__name__
+
+
+def test_pictures_and_page_of_one_run_draw_each_chart_once(monkeypatch, tmp_path):
+    import aerial.outputs.charts
+    from aerial.api import run_report
+
+    real_svg, drawn = aerial.outputs.charts.svg_of, []
+
+    def counted(fig, name, label):
+        drawn.append(name)
+        return real_svg(fig, name, label)
+
+    monkeypatch.setattr(aerial.outputs.charts, "svg_of", counted)
+    result = run_report(None, page=str(tmp_path / "p.html"), pictures=str(tmp_path / "pics"))
+    assert sorted(drawn) == sorted(set(drawn)) and len(drawn) == 7  # five shared charts, plan and elevation
+    page = (tmp_path / "p.html").read_text(encoding="utf-8")
+    for path in result["pictures"]:
+        picture = open(path, encoding="utf-8").read()
+        assert re.search(r"<svg\b.*?</svg>", picture, flags=re.S).group(0) in page, path

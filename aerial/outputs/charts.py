@@ -14,6 +14,7 @@ files of ``aerial report --pictures`` (:mod:`aerial.outputs.pictures`).
 
 from __future__ import annotations
 
+import contextlib
 import io
 import re
 
@@ -60,17 +61,51 @@ def svg_of(fig, name: str, label: str) -> str:
     clashing); ``label`` becomes the picture's ``<title>`` and ``aria-label``.
     """
     import matplotlib
-    from xml.sax.saxutils import escape, quoteattr
+
+    from aerial.outputs.svg_canvas import measuring_svg_canvas
 
     buf = io.StringIO()
+    canvas = fig.canvas
     with matplotlib.rc_context({**_RC, "svg.hashsalt": f"aerial-{name}"}):
-        fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": "aerial", "Title": label})
-    text = buf.getvalue()
+        measuring_svg_canvas(fig)  # the SVG canvas savefig would take, measuring each string once per process
+        try:
+            _lay_out(fig)
+            fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": "aerial", "Title": label})
+        finally:
+            fig.set_canvas(canvas)
+    return named_svg(buf.getvalue(), name, label)
+
+
+def named_svg(text: str, name: str, label: str) -> str:
+    """matplotlib's SVG text with its ids prefixed by ``name`` and ``label`` as its title and accessible name."""
+    from xml.sax.saxutils import escape, quoteattr
+
     # ids unique across charts: matplotlib's ids come from a hash; prefix them with the chart's name
     text = re.sub(r'id="([^"]+)"', lambda m: f'id="{name}-{m.group(1)}"', text)
     text = re.sub(r'(url\(#|xlink:href="#|href="#)([^)"]+)', lambda m: f"{m.group(1)}{name}-{m.group(2)}", text)
     text = text.replace("<svg ", f'<svg role="img" aria-label={quoteattr(label)} class="chart" ', 1)
     return re.sub(r"(<svg[^>]*>)", lambda m: m.group(1) + f"\n <title>{escape(label)}</title>", text, count=1)
+
+
+def _lay_out(fig) -> None:
+    """Run the figure's layout engine once, as ``savefig`` would, then switch it off for the one drawing pass.
+
+    The figure's canvas must be the SVG canvas (as in :func:`svg_of`).
+
+    ``savefig`` with a layout engine draws the figure twice: a pass with drawing switched off (which runs
+    the engine, at the SVG resolution of 72 dots an inch) and then the SVG itself. The engine alone gives
+    the same positions, so the figure is drawn once.
+    """
+    engine = fig.get_layout_engine()
+    if engine is None:
+        return
+    dpi = fig.dpi
+    try:
+        fig.dpi = fig.canvas.fixed_dpi  # the SVG canvas's 72 dots an inch, as in savefig's layout pass
+        engine.execute(fig)
+    finally:
+        fig.dpi = dpi
+    fig.set_layout_engine(None)
 
 
 def _axes_style(ax) -> None:
@@ -344,7 +379,7 @@ def station_design_figure(result):
 
 
 def station_design_chart(result) -> str | None:
-    return chart_svg(station_design_figure(result))
+    return _report_chart(station_design_figure, result)
 
 
 def chart_svg(fig) -> str | None:
@@ -352,17 +387,44 @@ def chart_svg(fig) -> str | None:
     return None if fig is None else svg_of(fig, *fig.aerial_svg)
 
 
+#: The report charts drawn inside :func:`drawn_once`: {(figure function's name, id(result)): (result, SVG)}.
+_kept: dict | None = None
+
+
+@contextlib.contextmanager
+def drawn_once():
+    """Within the block, a report chart asked for again of the same result (the pictures, then the page) is
+    the SVG text drawn the first time instead of a second drawing of it (the very same text)."""
+    global _kept
+    outer = _kept
+    _kept = {} if outer is None else outer
+    try:
+        yield
+    finally:
+        _kept = outer
+
+
+def _report_chart(figure_of, result) -> str | None:
+    kept = _kept
+    if kept is None:
+        return chart_svg(figure_of(result))
+    key = (figure_of.__name__, id(result))
+    if key not in kept or kept[key][0] is not result:
+        kept[key] = (result, chart_svg(figure_of(result)))
+    return kept[key][1]
+
+
 def impedance_chart(result) -> str:
-    return chart_svg(impedance_figure(result))
+    return _report_chart(impedance_figure, result)
 
 
 def capacitance_chart(result) -> str:
-    return chart_svg(capacitance_figure(result))
+    return _report_chart(capacitance_figure, result)
 
 
 def tuning_chart(result) -> str | None:
-    return chart_svg(tuning_figure(result))
+    return _report_chart(tuning_figure, result)
 
 
 def station_chart(result) -> str | None:
-    return chart_svg(station_figure(result))
+    return _report_chart(station_figure, result)
