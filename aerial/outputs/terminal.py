@@ -34,6 +34,8 @@ GLUE = "\u00a0"
 #: cell wide, not a space, never printed.
 _HOLD = "\ue000"
 _UNIT = r"(?:[GMkmµunpf]?(?:Hz|F|H|Ω|W|V/m|V|m|s)|cm|dB|%|ft|in|mi|AWG|SWG|turns)"
+#: Where rich may break a line in glued text: any run of white space other than :data:`GLUE`.
+_WORD_BREAK = re.compile(rf"[^\S{GLUE}]+")
 _GLUE_AT = re.compile(rf"(?<=\d) (?={_UNIT}(?![\w/]))|(?<=\d), (?=[-−]?\d)|(?<=\d) (?=\d{{3}}(?![\d.]))")
 
 
@@ -54,11 +56,18 @@ class Glued(Text):
 
     def __rich_measure__(self, console, options) -> Measurement:
         plain = self.plain
+        known = getattr(self, "_measured", None)  # a table measures each cell several times
+        if known is not None and known[0] == plain:
+            return known[1]
         widest = max((cell_len(line) for line in plain.splitlines()), default=0)
-        words = [w for w in re.split(rf"[^\S{GLUE}]+", plain) if w]
-        return Measurement(max((cell_len(w) for w in words), default=widest), widest)
+        words = [w for w in _WORD_BREAK.split(plain) if w]
+        measured = Measurement(max((cell_len(w) for w in words), default=widest), widest)
+        self._measured = (plain, measured)
+        return measured
 
     def wrap(self, console, width, **options):
+        if GLUE not in self.plain and _HOLD not in self.plain:  # nothing to hold together
+            return Text.wrap(self, console, width, **options)
         held = self.copy()
         held.plain = self.plain.replace(GLUE, _HOLD)
         lines = Text.wrap(held, console, width, **options)
@@ -221,10 +230,9 @@ def show(console, table: Table) -> None:
     """
     for column in table.columns:
         column.overflow = "fold"  # a last resort: a squeezed cell folds, never ends in "…"
-    # measured without the console's width, which would clamp both figures
-    wide = Measurement.get(console, console.options.update_width(100_000), table)
+    _render_cells(console, table)
+    natural = _natural_width(console, table)
     if getattr(console, "fit_to_content", False):
-        natural = wide.maximum
         if natural <= console.width:
             console.print(table)
             return
@@ -239,10 +247,31 @@ def show(console, table: Table) -> None:
         finally:
             console.width = old
         return
-    if wide.maximum > console.width and not _share_width(console, table, wide.maximum):
+    if natural > console.width and not _share_width(console, table, natural):
         _list_rows(console, table)
         return
     console.print(table)
+
+
+def _render_cells(console, table: Table) -> None:
+    """Turn the table's markup strings into text once, as rich would each time it measures or draws them.
+
+    Rich parses a string cell's markup afresh at every measurement and again to draw it; the
+    text it gets is the same each time, so it is made here once (an empty cell stays "").
+    """
+    highlight = table.highlight
+    for column in table.columns:
+        if isinstance(column.header, str) and column.header:
+            column.header = console.render_str(column.header, highlight=highlight)
+        column._cells = [console.render_str(cell, highlight=highlight) if isinstance(cell, str) and cell else cell
+                         for cell in column._cells]
+
+
+def _natural_width(console, table: Table) -> int:
+    """The table's width with every cell on one line, as rich measures it (without the console's width)."""
+    options = console.options.update_width(100_000 - table._extra_width)
+    return sum(table._measure_column(console, options, column).maximum for column in table.columns) + \
+        table._extra_width
 
 
 def _share_width(console, table: Table, natural: int) -> bool:
@@ -273,7 +302,8 @@ def _list_rows(console, table: Table) -> None:
     """A table too wide for the console, one field per line; a long field goes on indented under itself."""
     if table.title:
         console.print(Text(str(table.title), style="italic"))
-    headers = [console.render_str(c.header) if isinstance(c.header, str) else Text(str(c.header)) for c in table.columns]
+    headers = [console.render_str(h) if isinstance(h, str) else h if isinstance(h, Text) else Text(str(h))
+               for h in (c.header for c in table.columns)]
     cells = [list(c.cells) for c in table.columns]
     for row in range(table.row_count):
         for col, header in enumerate(headers):
