@@ -19,7 +19,8 @@ from rich.measure import Measurement
 from rich.panel import Panel
 from rich.table import Table
 from rich.markup import escape
-from rich.text import Text
+from rich.containers import Lines
+from rich.text import DEFAULT_JUSTIFY, DEFAULT_OVERFLOW, Text
 
 from aerial.core.lengthtext import metric_length, text_in
 from aerial.core.units import FOOT_M, distance_text, length_text, si_text
@@ -66,14 +67,36 @@ class Glued(Text):
         return measured
 
     def wrap(self, console, width, **options):
-        if GLUE not in self.plain and _HOLD not in self.plain:  # nothing to hold together
-            return Text.wrap(self, console, width, **options)
+        plain = self.plain
+        if _HOLD not in plain:
+            if _one_short_line(plain, width):
+                return self._one_line(console, width, options)
+            if GLUE not in plain:  # nothing to hold together
+                return Text.wrap(self, console, width, **options)
         held = self.copy()
         held.plain = self.plain.replace(GLUE, _HOLD)
         lines = Text.wrap(held, console, width, **options)
         for line in lines:
             line.plain = line.plain.replace(_HOLD, " ")
         return lines
+
+    def _one_line(self, console, width, options) -> Lines:
+        """What :meth:`wrap` gives for text that fits on one line: the text, justified as rich justifies it."""
+        line = self.copy()
+        lines = Lines([line])
+        if options.get("overflow") != "ignore":  # rich neither justifies nor pads text it is told to let overflow
+            lines.justify(console, width, justify=options.get("justify") or self.justify or DEFAULT_JUSTIFY,
+                          overflow=options.get("overflow") or self.overflow or DEFAULT_OVERFLOW)
+        if GLUE in line.plain:
+            line.plain = line.plain.replace(GLUE, " ")
+        return lines
+
+
+def _one_short_line(plain: str, width: int) -> bool:
+    """True when rich would not break ``plain`` at ``width``, nor strip or crop it: one line, no tab, fits, and
+    no white space at its end (which right or centred justification would strip)."""
+    return ("\n" not in plain and "\t" not in plain and len(plain) <= width and cell_len(plain) <= width
+            and not plain[-1:].isspace())
 
 
 def glue(text) -> Glued:
@@ -231,10 +254,11 @@ def show(console, table: Table) -> None:
     for column in table.columns:
         column.overflow = "fold"  # a last resort: a squeezed cell folds, never ends in "…"
     _render_cells(console, table)
-    natural = _natural_width(console, table)
+    widths = _natural_widths(console, table)
+    natural = sum(widths) + table._extra_width
     if getattr(console, "fit_to_content", False):
         if natural <= console.width:
-            console.print(table)
+            _print_at(console, table, widths)
             return
         old = console.width
         # up to FIT_LIMIT the table keeps its natural width; past it (long verdict texts) its
@@ -243,13 +267,28 @@ def show(console, table: Table) -> None:
         try:
             if natural <= FIT_LIMIT or not _share_width(console, table, natural):
                 console.width = natural
-            console.print(table)
+                _print_at(console, table, widths)
+            else:
+                console.print(table)
         finally:
             console.width = old
         return
-    if natural > console.width and not _share_width(console, table, natural):
-        _list_rows(console, table)
+    if natural > console.width:
+        if _share_width(console, table, natural):
+            console.print(table)
+        else:
+            _list_rows(console, table)
         return
+    _print_at(console, table, widths)
+
+
+def _print_at(console, table: Table, widths: list[int]) -> None:
+    """Print a table that fits with each column at its natural width (padding included), as rich would.
+
+    Rich measures every cell again to lay out the table; given its columns' widths it does not.
+    """
+    for index, (column, width) in enumerate(zip(table.columns, widths)):
+        column.width = width - table._get_padding_width(index)
     console.print(table)
 
 
@@ -267,11 +306,10 @@ def _render_cells(console, table: Table) -> None:
                          for cell in column._cells]
 
 
-def _natural_width(console, table: Table) -> int:
-    """The table's width with every cell on one line, as rich measures it (without the console's width)."""
+def _natural_widths(console, table: Table) -> list[int]:
+    """Each column's width with every cell on one line, padding included, as rich measures it."""
     options = console.options.update_width(100_000 - table._extra_width)
-    return sum(table._measure_column(console, options, column).maximum for column in table.columns) + \
-        table._extra_width
+    return [table._measure_column(console, options, column).maximum for column in table.columns]
 
 
 def _share_width(console, table: Table, natural: int) -> bool:
