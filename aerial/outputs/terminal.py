@@ -120,6 +120,8 @@ class ReportConsole(Console):
     """A rich console whose printed strings and table cells keep every number with its unit."""
 
     def render_str(self, text, **options) -> Text:
+        if ":" not in text and "emoji" not in options:  # no emoji code to look for (rich looks at every string)
+            options["emoji"] = False
         return glue(super().render_str(text, **options))
 
     def print(self, *objects, sep: str = " ", end: str = "\n", **options) -> None:
@@ -307,9 +309,27 @@ def _render_cells(console, table: Table) -> None:
 
 
 def _natural_widths(console, table: Table) -> list[int]:
-    """Each column's width with every cell on one line, padding included, as rich measures it."""
+    """Each column's width with every cell on one line, padding included, as rich measures it.
+
+    Rich measures a column through a padding object made for each of its cells; a column with
+    no size limits of its own is its widest cell plus its padding, taken here from the cells.
+    """
     options = console.options.update_width(100_000 - table._extra_width)
-    return [table._measure_column(console, options, column).maximum for column in table.columns]
+    widths = []
+    for index, column in enumerate(table.columns):
+        parts = [*([column.header] if table.show_header else []), *column._cells,
+                 *([column.footer] if table.show_footer else [])]
+        if table.collapse_padding or not parts or (column.width, column.min_width, column.max_width) != (None,) * 3:
+            widths.append(table._measure_column(console, options, column).maximum)
+            continue
+        pad = table._get_padding_width(index)
+        widths.append(max(_padded(Measurement.get(console, options, part).maximum, pad) for part in parts))
+    return widths
+
+
+def _padded(width: int, pad: int) -> int:
+    """A cell's width with its padding, as rich's measurement gives it (nothing when under one cell)."""
+    return width + pad if width + pad >= 1 else 0
 
 
 def _share_width(console, table: Table, natural: int) -> bool:
