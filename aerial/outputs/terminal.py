@@ -69,8 +69,8 @@ class Glued(Text):
     def wrap(self, console, width, **options):
         plain = self.plain
         if _HOLD not in plain:
-            if _one_short_line(plain, width):
-                return self._one_line(console, width, options)
+            if "\t" not in plain and all(_fits_unbroken(line, width) for line in plain.split("\n")):
+                return self._unbroken(console, width, options)
             if GLUE not in plain:  # nothing to hold together
                 return Text.wrap(self, console, width, **options)
         held = self.copy()
@@ -80,23 +80,23 @@ class Glued(Text):
             line.plain = line.plain.replace(_HOLD, " ")
         return lines
 
-    def _one_line(self, console, width, options) -> Lines:
-        """What :meth:`wrap` gives for text that fits on one line: the text, justified as rich justifies it."""
-        line = self.copy()
-        lines = Lines([line])
-        if options.get("overflow") != "ignore":  # rich neither justifies nor pads text it is told to let overflow
-            lines.justify(console, width, justify=options.get("justify") or self.justify or DEFAULT_JUSTIFY,
-                          overflow=options.get("overflow") or self.overflow or DEFAULT_OVERFLOW)
-        if GLUE in line.plain:
-            line.plain = line.plain.replace(GLUE, " ")
+    def _unbroken(self, console, width, options) -> Lines:
+        """What :meth:`wrap` gives for text whose every line fits: its lines, each justified as rich justifies it."""
+        lines = self.split(allow_blank=True)
+        justify = options.get("justify") or self.justify or DEFAULT_JUSTIFY
+        overflow = options.get("overflow") or self.overflow or DEFAULT_OVERFLOW
+        for line in lines:
+            if options.get("overflow") != "ignore":  # rich neither justifies nor pads text told to overflow
+                Lines([line]).justify(console, width, justify=justify, overflow=overflow)
+            if GLUE in line.plain:
+                line.plain = line.plain.replace(GLUE, " ")
         return lines
 
 
-def _one_short_line(plain: str, width: int) -> bool:
-    """True when rich would not break ``plain`` at ``width``, nor strip or crop it: one line, no tab, fits, and
-    no white space at its end (which right or centred justification would strip)."""
-    return ("\n" not in plain and "\t" not in plain and len(plain) <= width and cell_len(plain) <= width
-            and not plain[-1:].isspace())
+def _fits_unbroken(line: str, width: int) -> bool:
+    """True when rich would neither break ``line`` (no line break in it) at ``width`` nor strip or crop it: it fits,
+    and has no white space at its end (which right or centred justification would strip)."""
+    return len(line) <= width and cell_len(line) <= width and not line[-1:].isspace()
 
 
 def glue(text) -> Glued:
@@ -323,8 +323,15 @@ def _natural_widths(console, table: Table) -> list[int]:
             widths.append(table._measure_column(console, options, column).maximum)
             continue
         pad = table._get_padding_width(index)
-        widths.append(max(_padded(Measurement.get(console, options, part).maximum, pad) for part in parts))
+        widths.append(max(_padded(_widest(console, options, part), pad) for part in parts))
     return widths
+
+
+def _widest(console, options, cell) -> int:
+    """A cell's width on one line, as rich's measurement gives it (read directly from glued text)."""
+    if type(cell) is Glued:
+        return min(max(cell.__rich_measure__(console, options).maximum, 0), options.max_width)
+    return Measurement.get(console, options, cell).maximum
 
 
 def _padded(width: int, pad: int) -> int:
