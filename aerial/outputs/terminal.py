@@ -287,8 +287,12 @@ def show(console, table: Table) -> None:
 def _print_at(console, table: Table, widths: list[int]) -> None:
     """Print a table that fits with each column at its natural width (padding included), as rich would.
 
-    Rich measures every cell again to lay out the table; given its columns' widths it does not.
+    Rich measures every cell again to lay out the table; given its columns' widths it does not. (A table
+    stretched to the console's width is left to rich: its stretching reads the columns' own widths.)
     """
+    if table.expand or any(column.ratio is not None for column in table.columns):
+        console.print(table)
+        return
     for index, (column, width) in enumerate(zip(table.columns, widths)):
         column.width = width - table._get_padding_width(index)
     console.print(table)
