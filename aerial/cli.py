@@ -378,7 +378,12 @@ def _console(stderr=False, width=None):
     if piped:
         width = _columns()
     fit = piped and width is None
-    console = _Console(stderr=stderr, highlight=False, soft_wrap=False, width=PIPE_WIDTH if fit else width)
+    width = PIPE_WIDTH if fit else width
+    console = _Console(stderr=stderr, highlight=False, soft_wrap=False, width=width)
+    if width is not None:
+        # with its width given, rich still asks the terminals for their height at every print and
+        # every look at its width: taken once, as it would find it each time
+        console.height = console.height
     console.fit_to_content = fit
     return console
 

@@ -19,7 +19,8 @@ from rich.measure import Measurement
 from rich.panel import Panel
 from rich.table import Table
 from rich.markup import escape
-from rich.text import Text
+from rich.containers import Lines
+from rich.text import DEFAULT_JUSTIFY, DEFAULT_OVERFLOW, Text
 
 from aerial.core.lengthtext import metric_length, text_in
 from aerial.core.units import FOOT_M, distance_text, length_text, si_text
@@ -34,6 +35,8 @@ GLUE = "\u00a0"
 #: cell wide, not a space, never printed.
 _HOLD = "\ue000"
 _UNIT = r"(?:[GMkmµunpf]?(?:Hz|F|H|Ω|W|V/m|V|m|s)|cm|dB|%|ft|in|mi|AWG|SWG|turns)"
+#: Where rich may break a line in glued text: any run of white space other than :data:`GLUE`.
+_WORD_BREAK = re.compile(rf"[^\S{GLUE}]+")
 _GLUE_AT = re.compile(rf"(?<=\d) (?={_UNIT}(?![\w/]))|(?<=\d), (?=[-−]?\d)|(?<=\d) (?=\d{{3}}(?![\d.]))")
 
 
@@ -54,17 +57,46 @@ class Glued(Text):
 
     def __rich_measure__(self, console, options) -> Measurement:
         plain = self.plain
+        known = getattr(self, "_measured", None)  # a table measures each cell several times
+        if known is not None and known[0] == plain:
+            return known[1]
         widest = max((cell_len(line) for line in plain.splitlines()), default=0)
-        words = [w for w in re.split(rf"[^\S{GLUE}]+", plain) if w]
-        return Measurement(max((cell_len(w) for w in words), default=widest), widest)
+        words = [w for w in _WORD_BREAK.split(plain) if w]
+        measured = Measurement(max((cell_len(w) for w in words), default=widest), widest)
+        self._measured = (plain, measured)
+        return measured
 
     def wrap(self, console, width, **options):
+        plain = self.plain
+        if _HOLD not in plain:
+            if "\t" not in plain and all(_fits_unbroken(line, width) for line in plain.split("\n")):
+                return self._unbroken(console, width, options)
+            if GLUE not in plain:  # nothing to hold together
+                return Text.wrap(self, console, width, **options)
         held = self.copy()
         held.plain = self.plain.replace(GLUE, _HOLD)
         lines = Text.wrap(held, console, width, **options)
         for line in lines:
             line.plain = line.plain.replace(_HOLD, " ")
         return lines
+
+    def _unbroken(self, console, width, options) -> Lines:
+        """What :meth:`wrap` gives for text whose every line fits: its lines, each justified as rich justifies it."""
+        lines = self.split(allow_blank=True)
+        justify = options.get("justify") or self.justify or DEFAULT_JUSTIFY
+        overflow = options.get("overflow") or self.overflow or DEFAULT_OVERFLOW
+        for line in lines:
+            if options.get("overflow") != "ignore":  # rich neither justifies nor pads text told to overflow
+                Lines([line]).justify(console, width, justify=justify, overflow=overflow)
+            if GLUE in line.plain:
+                line.plain = line.plain.replace(GLUE, " ")
+        return lines
+
+
+def _fits_unbroken(line: str, width: int) -> bool:
+    """True when rich would neither break ``line`` (no line break in it) at ``width`` nor strip or crop it: it fits,
+    and has no white space at its end (which right or centred justification would strip)."""
+    return len(line) <= width and cell_len(line) <= width and not line[-1:].isspace()
 
 
 def glue(text) -> Glued:
@@ -88,6 +120,8 @@ class ReportConsole(Console):
     """A rich console whose printed strings and table cells keep every number with its unit."""
 
     def render_str(self, text, **options) -> Text:
+        if ":" not in text and "emoji" not in options:  # no emoji code to look for (rich looks at every string)
+            options["emoji"] = False
         return glue(super().render_str(text, **options))
 
     def print(self, *objects, sep: str = " ", end: str = "\n", **options) -> None:
@@ -221,12 +255,12 @@ def show(console, table: Table) -> None:
     """
     for column in table.columns:
         column.overflow = "fold"  # a last resort: a squeezed cell folds, never ends in "…"
-    # measured without the console's width, which would clamp both figures
-    wide = Measurement.get(console, console.options.update_width(100_000), table)
+    _render_cells(console, table)
+    widths = _natural_widths(console, table)
+    natural = sum(widths) + table._extra_width
     if getattr(console, "fit_to_content", False):
-        natural = wide.maximum
         if natural <= console.width:
-            console.print(table)
+            _print_at(console, table, widths)
             return
         old = console.width
         # up to FIT_LIMIT the table keeps its natural width; past it (long verdict texts) its
@@ -235,14 +269,78 @@ def show(console, table: Table) -> None:
         try:
             if natural <= FIT_LIMIT or not _share_width(console, table, natural):
                 console.width = natural
-            console.print(table)
+                _print_at(console, table, widths)
+            else:
+                console.print(table)
         finally:
             console.width = old
         return
-    if wide.maximum > console.width and not _share_width(console, table, wide.maximum):
-        _list_rows(console, table)
+    if natural > console.width:
+        if _share_width(console, table, natural):
+            console.print(table)
+        else:
+            _list_rows(console, table)
         return
+    _print_at(console, table, widths)
+
+
+def _print_at(console, table: Table, widths: list[int]) -> None:
+    """Print a table that fits with each column at its natural width (padding included), as rich would.
+
+    Rich measures every cell again to lay out the table; given its columns' widths it does not. (A table
+    stretched to the console's width is left to rich: its stretching reads the columns' own widths.)
+    """
+    if table.expand or any(column.ratio is not None for column in table.columns):
+        console.print(table)
+        return
+    for index, (column, width) in enumerate(zip(table.columns, widths)):
+        column.width = width - table._get_padding_width(index)
     console.print(table)
+
+
+def _render_cells(console, table: Table) -> None:
+    """Turn the table's markup strings into text once, as rich would each time it measures or draws them.
+
+    Rich parses a string cell's markup afresh at every measurement and again to draw it; the
+    text it gets is the same each time, so it is made here once (an empty cell stays "").
+    """
+    highlight = table.highlight
+    for column in table.columns:
+        if isinstance(column.header, str) and column.header:
+            column.header = console.render_str(column.header, highlight=highlight)
+        column._cells = [console.render_str(cell, highlight=highlight) if isinstance(cell, str) and cell else cell
+                         for cell in column._cells]
+
+
+def _natural_widths(console, table: Table) -> list[int]:
+    """Each column's width with every cell on one line, padding included, as rich measures it.
+
+    Rich measures a column through a padding object made for each of its cells; a column with
+    no size limits of its own is its widest cell plus its padding, taken here from the cells.
+    """
+    options = console.options.update_width(100_000 - table._extra_width)
+    widths = []
+    for index, column in enumerate(table.columns):
+        parts = [*([column.header] if table.show_header else []), *column._cells,
+                 *([column.footer] if table.show_footer else [])]
+        if table.collapse_padding or not parts or (column.width, column.min_width, column.max_width) != (None,) * 3:
+            widths.append(table._measure_column(console, options, column).maximum)
+            continue
+        pad = table._get_padding_width(index)
+        widths.append(max(_padded(_widest(console, options, part), pad) for part in parts))
+    return widths
+
+
+def _widest(console, options, cell) -> int:
+    """A cell's width on one line, as rich's measurement gives it (read directly from glued text)."""
+    if type(cell) is Glued:
+        return min(max(cell.__rich_measure__(console, options).maximum, 0), options.max_width)
+    return Measurement.get(console, options, cell).maximum
+
+
+def _padded(width: int, pad: int) -> int:
+    """A cell's width with its padding, as rich's measurement gives it (nothing when under one cell)."""
+    return width + pad if width + pad >= 1 else 0
 
 
 def _share_width(console, table: Table, natural: int) -> bool:
@@ -273,7 +371,8 @@ def _list_rows(console, table: Table) -> None:
     """A table too wide for the console, one field per line; a long field goes on indented under itself."""
     if table.title:
         console.print(Text(str(table.title), style="italic"))
-    headers = [console.render_str(c.header) if isinstance(c.header, str) else Text(str(c.header)) for c in table.columns]
+    headers = [console.render_str(h) if isinstance(h, str) else h if isinstance(h, Text) else Text(str(h))
+               for h in (c.header for c in table.columns)]
     cells = [list(c.cells) for c in table.columns]
     for row in range(table.row_count):
         for col, header in enumerate(headers):
