@@ -73,12 +73,7 @@ class Glued(Text):
                 return self._unbroken(console, width, options)
             if GLUE not in plain:  # nothing to hold together
                 return Text.wrap(self, console, width, **options)
-        held = self.copy()
-        held.plain = self.plain.replace(GLUE, _HOLD)
-        lines = Text.wrap(held, console, width, **options)
-        for line in lines:
-            line.plain = line.plain.replace(_HOLD, " ")
-        return lines
+        return wrap_held(self, console, width, **options)
 
     def _unbroken(self, console, width, options) -> Lines:
         """What :meth:`wrap` gives for text whose every line fits: its lines, each justified as rich justifies it."""
@@ -91,6 +86,16 @@ class Glued(Text):
             if GLUE in line.plain:
                 line.plain = line.plain.replace(GLUE, " ")
         return lines
+
+
+def wrap_held(text: Text, console, width: int, **options) -> Lines:
+    """rich's line breaking of ``text`` with its glued spaces held (a copy breaks, then they print as spaces)."""
+    held = text.copy()
+    held.plain = text.plain.replace(GLUE, _HOLD)
+    lines = Text.wrap(held, console, width, **options)
+    for line in lines:
+        line.plain = line.plain.replace(_HOLD, " ")
+    return lines
 
 
 def _fits_unbroken(line: str, width: int) -> bool:
