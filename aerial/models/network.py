@@ -717,10 +717,12 @@ def plan_network_stack(parts_stack) -> NetworkStack:
     return NetworkStack(len(parts_stack), tuple(groups))
 
 
-#: Each field of :class:`NetworkSolution`, in order, as the node it is read at and the right-hand side it answers:
-#: the aerial's EMF, or a unit current into the top or into the detector tap (the EMF shorted).
-_FIELDS = (("top", "emf"), ("detector", "emf"), ("top", "top"), ("detector", "detector"), ("aerial", "emf"),
-           ("detector", "top"), ("top", "detector"))
+#: Each field of :class:`NetworkSolution`: the node it is read at and the right-hand side it answers (the
+#: aerial's EMF, or a unit current into the top or into the detector tap, the EMF shorted).
+_FIELD_SOURCES = {"top_voltage": ("top", "emf"), "detector_voltage": ("detector", "emf"),
+                  "top_impedance": ("top", "top"), "detector_impedance": ("detector", "detector"),
+                  "primary_voltage": ("aerial", "emf"), "detector_per_top_current": ("detector", "top"),
+                  "top_per_detector_current": ("top", "detector")}
 
 
 def solve_network_stack(frequency, aerial_impedance, parts_stack, tuning_capacitance=0.0, detector_conductance=0.0,
@@ -839,7 +841,7 @@ def _solve_group(group: StackGroup, shared, f, za, tuning_capacitance, detector_
                   column([p.self_capacitance for p in parts]),
                   column([p.series_capacitance for p in parts]) if p0.arrangement == "series capacitor" else None,
                   _per_network([p.coil_resistance for p in parts], f, shared), primary)
-    pairs = [dict(zip(NetworkSolution._fields, _FIELDS))[name] for name in wanted]
+    pairs = [_FIELD_SOURCES[name] for name in wanted]
     columns = tuple(c for c in ("emf", "top", "detector") if any(c == rhs for _, rhs in pairs))
     system = _assemble(f.shape, f, za, emf, tuning_capacitance, detector_conductance, columns, lay)
     x = _eliminate(system.matrix, system.rhs)
