@@ -75,3 +75,51 @@ def test_a_misspelt_length_unit_is_named_with_a_suggestion_even_before_an_inch_p
     with pytest.raises(units.UnitError) as err:
         units.parse_quantity(written, units.LENGTH_UNITS, "a length", "m")
     assert wanted in str(err.value)
+
+
+# reference: the standard library's decimal module (default context: 28 significant digits, half to even),
+# whose product units.decimal_product gives without loading it
+_DIGITS = st.text("0123456789", min_size=1, max_size=40)
+
+
+@st.composite
+def _number_texts(draw):
+    """Numbers as _QUANTITY reads them: sign, digits, a point, an exponent ("-12.", ".5", "3e-7", "1.25E+3")."""
+    sign = draw(st.sampled_from(["", "-", "+"]))
+    whole = draw(st.one_of(st.just(""), _DIGITS))
+    point = draw(st.sampled_from([".", ""])) if whole else "."
+    fraction = draw(st.one_of(st.just(""), _DIGITS)) if point else ""
+    if not whole and not fraction:
+        fraction = "5"
+    exponent = draw(st.one_of(st.just(""), st.builds(lambda e, n: f"{e}{n}", st.sampled_from(["e", "E", "e-", "e+"]),
+                                                           st.integers(0, 400))))
+    return sign + whole + point + fraction + exponent
+
+
+FACTORS = sorted({f for table in (units.LENGTH_UNITS, units.DISTANCE_UNITS, units.FREQUENCY_UNITS, units.CAPACITANCE_UNITS,
+                                  units.INDUCTANCE_UNITS, units.POWER_UNITS, units.RESISTANCE_UNITS,
+                                  units.FIELD_STRENGTH_UNITS, units.CONDUCTIVITY_UNITS, units.AREA_UNITS)
+                  for f in table.values()})
+
+
+@given(_number_texts(), st.one_of(st.sampled_from(FACTORS), st.floats(allow_nan=False, allow_infinity=False)))
+def test_consistency_decimal_product_is_the_decimal_modules(number, factor):
+    from decimal import Decimal
+
+    ours = units.decimal_product(number, factor)
+    theirs = float(Decimal(number) * Decimal(repr(factor)))
+    assert math.copysign(1.0, ours) == math.copysign(1.0, theirs) and (ours == theirs or (
+        math.isnan(ours) and math.isnan(theirs))), (number, factor, ours, theirs)
+
+
+@pytest.mark.parametrize("number, factor", [
+    ("1234567890123456789012345", 0.3048),  # 29 and more digits: rounded half to even at the 28th
+    ("1000000000000000000000000000005", 1.0), ("1000000000000000000000000000015", 1.0),
+    ("9999999999999999999999999999.5", 1.0), ("-0", 0.0254), ("0e999", 1e-12), ("1e-400", 1e-12),
+    ("1" * 120, 0.0254),  # longer than LONGEST_NUMBER: the decimal module's own product
+])
+def test_consistency_decimal_product_edges(number, factor):
+    from decimal import Decimal
+
+    ours, theirs = units.decimal_product(number, factor), float(Decimal(number) * Decimal(repr(factor)))
+    assert (ours, math.copysign(1.0, ours)) == (theirs, math.copysign(1.0, theirs))

@@ -18,7 +18,6 @@ from __future__ import annotations
 
 import math
 import re
-from decimal import Decimal
 
 #: The international foot, exact by definition (NIST SP 811). [m]
 FOOT_M = 0.3048
@@ -117,7 +116,8 @@ class UnitError(ValueError):
 
 def _amount(groups) -> Fraction:
     """The exact value of one ``_AMOUNT`` match: (whole, num, den, num, den, decimal)."""
-    from fractions import Fraction  # here: only a fraction or feet and inches needs exact fractions
+    from decimal import Decimal  # here: only a fraction or feet and inches needs exact fractions
+    from fractions import Fraction
 
     whole, n1, d1, n2, d2, dec = groups
     if dec is not None:
@@ -268,14 +268,63 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
         if not math.isfinite(number):
             raise UnitError(expected() + "; got a value that is not finite")
         # decimal arithmetic so that "12 in" is exactly 0.3048 m, as NIST SP 811 defines it
-        return float(Decimal(match.group(1)) * Decimal(repr(units[unit])))
+        return decimal_product(match.group(1), units[unit])
     try:
         amount = _amount(fraction.groups()[:6])
     except UnitError as err:
         raise UnitError(f"{err.expected}; {expected()}") from None
+    from decimal import Decimal
     from fractions import Fraction
 
     return float(amount * Fraction(Decimal(repr(units[unit]))))
+
+
+#: Significant digits a product of two decimal numbers keeps: those of the standard library's default decimal
+#: context, whose arithmetic :func:`decimal_product` does.
+PRODUCT_DIGITS = 28
+#: Longest number text :func:`decimal_product` reads itself; a longer one is left to the decimal module.
+LONGEST_NUMBER = 100
+
+
+def _decimal_digits(text: str) -> tuple[bool, int, int]:
+    """A decimal number's text ("-12.5e3", ".5", "1e-06") as (negative, digits, exponent of ten), exactly.
+
+    >>> _decimal_digits("-12.5e3"), _decimal_digits(".05"), _decimal_digits("1e-06")
+    ((True, 125, 2), (False, 5, -2), (False, 1, -6))
+    """
+    mantissa, _, exponent = text.lower().partition("e")
+    negative = mantissa.startswith("-")
+    whole, _, fraction = mantissa.lstrip("+-").partition(".")
+    return negative, int(whole + fraction or "0"), int(exponent or "0") - len(fraction)
+
+
+def decimal_product(number: str, factor: float) -> float:
+    """``float(Decimal(number) * Decimal(repr(factor)))``, worked out in whole numbers.
+
+    The product of the two decimal texts exactly, rounded as the decimal module's default context rounds
+    it (:data:`PRODUCT_DIGITS` significant digits, half to even), then to the nearest float: the same
+    float, bit for bit, without loading the decimal module for every quantity a site file writes as text
+    (``tests/test_units.py`` checks it against the decimal module). A number of more than
+    :data:`LONGEST_NUMBER` characters is left to the decimal module itself.
+
+    >>> decimal_product("12", 0.0254), decimal_product("20", 0.3048), decimal_product("-0", 0.01)
+    (0.3048, 6.096, -0.0)
+    """
+    if len(number) > LONGEST_NUMBER:
+        from decimal import Decimal
+
+        return float(Decimal(number) * Decimal(repr(factor)))
+    negative, digits, exponent = _decimal_digits(number)
+    negative_factor, factor_digits, factor_exponent = _decimal_digits(repr(factor))
+    digits, exponent = digits * factor_digits, exponent + factor_exponent
+    extra = len(str(digits)) - PRODUCT_DIGITS
+    if extra > 0:
+        digits, rest = divmod(digits, 10 ** extra)
+        half = 5 * 10 ** (extra - 1)
+        if rest > half or (rest == half and digits % 2):
+            digits += 1
+        exponent += extra
+    return float(f"{'-' if negative != negative_factor else ''}{digits}e{exponent}")
 
 
 def _comma_words(value: str) -> str:
