@@ -41,7 +41,6 @@ References
 
 from __future__ import annotations
 
-import bisect
 import math
 
 import numpy as np
@@ -110,7 +109,13 @@ _ASCENDING_RADII = [2.0 * math.exp((math.log(1e-17) / 2.0 + math.lgamma(k + 1.0)
 
 def _ascending_length(radius):
     """Terms of sum (r^2/4)^k / (k!)^2 needed to bring the last one below 1e-17 of the first (scalar)."""
-    k = bisect.bisect_left(_ASCENDING_RADII, radius)
+    k, above = 0, len(_ASCENDING_RADII)  # k: the radii below ``radius`` (bisect_left, without loading bisect)
+    while k < above:
+        middle = (k + above) // 2
+        if _ASCENDING_RADII[middle] < radius:
+            k = middle + 1
+        else:
+            above = middle
     if k >= len(_ASCENDING_RADII):
         raise ValueError("ascending series used beyond its radius")
     return k + 2

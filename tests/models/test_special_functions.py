@@ -246,3 +246,17 @@ def test_ive_pair_against_scipy_on_real_and_complex_arguments():
         i0, i1 = sf.ive_pair(z)
         assert _rel(i0, ref.ive(0, z)) < 1e-13
         assert _rel(i1, ref.ive(1, z)) < 1e-13
+
+
+def test_consistency_the_series_length_search_is_bisect_left():
+    # reference: the standard library's bisect.bisect_left, which the search repeats without loading bisect
+    import bisect
+
+    radii = sf._ASCENDING_RADII
+    for radius in [*radii, 0.0, -1.0, 1e-300, *np.linspace(0.0, 2.0 * radii[-1], 997), np.nextafter(radii[5], 0.0)]:
+        k = bisect.bisect_left(radii, radius)
+        if k >= len(radii):
+            with pytest.raises(ValueError, match="beyond its radius"):
+                sf._ascending_length(radius)
+        else:
+            assert sf._ascending_length(radius) == k + 2, radius
