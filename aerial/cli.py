@@ -8,14 +8,18 @@ user can fix come out as one line on stderr and exit code 2; Ctrl-C exits
 
 from __future__ import annotations
 
-import argparse
 import contextlib
 import os
 import sys
 import time
+import types
+import typing
 
 from aerial.core.version import __version__
 from aerial.core.errors import AerialError, SafetyRefusal
+
+if typing.TYPE_CHECKING:
+    import argparse
 
 EXIT_OK = 0
 EXIT_USER = 2
@@ -79,169 +83,6 @@ def one_line(text) -> str:
     return "".join(ch if ch.isprintable() else repr(ch)[1:-1] for ch in str(text))
 
 
-def _terminal_columns() -> int:
-    """The terminal's width as ``shutil.get_terminal_size().columns`` gives it (COLUMNS first, else 80).
-
-    argparse asks shutil for it each time it checks an option; shutil loads the compression
-    libraries, which nothing else in a run needs.
-    """
-    try:
-        columns = int(os.environ["COLUMNS"])
-    except (KeyError, ValueError):
-        columns = 0
-    if columns <= 0:
-        try:
-            columns = os.get_terminal_size(sys.__stdout__.fileno()).columns or 80
-        except (AttributeError, ValueError, OSError):
-            columns = 80
-    return columns
-
-
-class _HelpFormatter(argparse.HelpFormatter):
-    """argparse's help layout, its width found without loading shutil (:func:`_terminal_columns`)."""
-
-    def __init__(self, prog, indent_increment=2, max_help_position=24, width=None):
-        super().__init__(prog, indent_increment, max_help_position,
-                         _terminal_columns() - 2 if width is None else width)
-
-
-class _Version(argparse.Action):
-    """``--version``: print ``aerial X.Y.Z`` and exit, as argparse's own version action does.
-
-    argparse's lays the line out with its help formatter, which loads textwrap for one short line.
-    """
-
-    def __init__(self, option_strings, dest=argparse.SUPPRESS, default=argparse.SUPPRESS, help=None):
-        super().__init__(option_strings=option_strings, dest=dest, default=default, nargs=0, help=help)
-
-    def __call__(self, parser, namespace, values, option_string=None):
-        try:
-            sys.stdout.write(f"aerial {__version__}\n")
-        except (AttributeError, OSError):  # no stdout, or a closed one: as argparse's action, say nothing
-            pass
-        parser.exit()
-
-
-class _Parser(argparse.ArgumentParser):
-    """A parser that takes an option only as spelt in full and says a mistake in one line.
-
-    ``options(parser)``, when given, adds the parser's arguments the first time it parses or shows its help:
-    a run builds the options of its own command only.
-    """
-
-    def __init__(self, *args, options=None, **kwargs):
-        kwargs.setdefault("allow_abbrev", False)  # "--unit us" is a slip to point out, not "--units us"
-        kwargs.setdefault("formatter_class", _HelpFormatter)
-        super().__init__(*args, **kwargs)
-        self.words: list[str] = []
-        self.options_to_add = options
-
-    def with_options(self) -> _Parser:
-        """This parser with its arguments added (once)."""
-        add, self.options_to_add = self.options_to_add, None
-        if add is not None:
-            add(self)
-        return self
-
-    def parse_known_args(self, args=None, namespace=None):
-        self.with_options()
-        self.words = list(sys.argv[1:] if args is None else args)  # for the error line below
-        return super().parse_known_args(args, namespace)
-
-    def format_usage(self):
-        return super(_Parser, self.with_options()).format_usage()
-
-    def format_help(self):
-        return super(_Parser, self.with_options()).format_help()
-
-    def error(self, message):  # one line, exit 2, no usage dump
-        # main() puts "aerial: " before the line, so only a subcommand's own name goes here
-        command = self.prog.partition(" ")[2]
-        unknown = _unknown_options(self, self.words)
-        if unknown and "required" in message:  # "--diam 50mm": the misspelling, not what it left missing
-            close = _closest_option(self, unknown)
-            raise AerialError(f"{command + ': ' if command else ''}unrecognized arguments: {' '.join(unknown)}"
-                              + (f'; did you mean "{close}"?' if close else "") + f" (see '{self.prog} --help')")
-        raise AerialError(f"{command + ': ' if command else ''}{message}{_closest_choice(message)} "
-                          f"(see '{self.prog} --help')")
-
-
-class _Later:
-    """A command's parser as ``add_parser`` describes it, kept until :meth:`_Commands.parser` makes it."""
-
-    def __init__(self, **kwargs):
-        self.kwargs = kwargs
-
-
-class _Commands(argparse._SubParsersAction):
-    """The commands, each one's parser made the first time it is needed (its command run or its help shown).
-
-    argparse looks its message catalogue up three times to set a parser up (a few file-system checks each),
-    so a run makes the parser of its own command only; ``aerial --help`` lists the commands from their help
-    lines alone.
-    """
-
-    def __call__(self, parser, namespace, values, option_string=None):
-        self.parser(values[0])
-        super().__call__(parser, namespace, values, option_string)
-
-    def parser(self, name: str) -> _Parser:
-        """The parser of command ``name``, made now if it was not yet."""
-        made = self.choices[name]
-        if isinstance(made, _Later):
-            made = self.choices[name] = _Parser(**made.kwargs)
-        return made
-
-    def parsers(self) -> dict:
-        """Every command's parser by name (the docs' command reference shows them all)."""
-        return {name: self.parser(name) for name in self.choices}
-
-
-def _unrecognized(parser: argparse.ArgumentParser, command: str | None, extras: list[str]) -> AerialError:
-    """The one line for words no option takes: the command, the words, the closest option when one is near."""
-    own = parser.commands.parser(command) if command else parser
-    close = _closest_option(own, extras)
-    return AerialError(f"{command + ': ' if command else ''}unrecognized arguments: {' '.join(extras)}"
-                       + (f'; did you mean "{close}"?' if close else "") + f" (see '{own.prog} --help')")
-
-
-def _looks_like_option(word: str) -> bool:
-    """'--unit' or '-x', not a negative number given as a value."""
-    return word.startswith("--") and len(word) > 2 or (len(word) > 1 and word[0] == "-" and word[1].isalpha())
-
-
-def _unknown_options(parser: argparse.ArgumentParser, words) -> list[str]:
-    """The words that look like options but are none of ``parser``'s, as written ("--unit", "--unitz=us")."""
-    known = {o for action in parser._actions for o in action.option_strings}
-    return [w for w in words if _looks_like_option(w) and w.partition("=")[0] not in known]
-
-
-def _closest_option(parser: argparse.ArgumentParser, words) -> str | None:
-    """The option of ``parser`` closest to the first of ``words`` that is a misspelt option, or None."""
-    from aerial.core.units import closest_word  # only for a mistake: ``aerial --version`` never loads the units
-
-    options = {o.lstrip("-"): o for action in parser._actions for o in action.option_strings if o.startswith("--")}
-    for word in _unknown_options(parser, words):
-        close = closest_word(word.partition("=")[0].lstrip("-"), list(options))
-        if close:
-            return options[close]
-    return None
-
-
-def _closest_choice(message: str) -> str:
-    """'; did you mean "report"?' for argparse's invalid-choice message when a choice is close, else ''."""
-    import re
-
-    from aerial.core.units import closest_word
-
-    m = re.search(r"invalid choice: '([^']*)' \(choose from (.*)\)", message)
-    if not m:
-        return ""
-    choices = [c.strip().strip("'\"") for c in m.group(2).split(",")]
-    close = closest_word(m.group(1).lower(), choices)
-    return f'; did you mean "{close}"?' if close else ""
-
-
 #: Width of the report when stdout is not a terminal and no --width is given: prose wraps here,
 #: tables widen to their content (never cut).
 PIPE_WIDTH = 100
@@ -254,10 +95,14 @@ def _width(text: str) -> int:
     try:
         value = int(text)
     except ValueError:
-        raise argparse.ArgumentTypeError(f"invalid width {text!r}: expected a whole number of characters") from None
-    if not 40 <= value <= 1000:
-        raise argparse.ArgumentTypeError(f"invalid width {value}: expected 40 to 1000 characters")
-    return value
+        value = None
+    if value is not None and 40 <= value <= 1000:
+        return value
+    from argparse import ArgumentTypeError  # only for a mistake, which argparse then words
+
+    if value is None:
+        raise ArgumentTypeError(f"invalid width {text!r}: expected a whole number of characters")
+    raise ArgumentTypeError(f"invalid width {value}: expected 40 to 1000 characters")
 
 
 def _output_options(o: argparse.ArgumentParser, progress: bool) -> None:
@@ -333,13 +178,15 @@ def _coil_options(coil: argparse.ArgumentParser) -> None:
 
 def build_parser() -> argparse.ArgumentParser:
     """The command line's parser; a command's parser and options are made when that command is parsed or shown."""
-    p = _Parser(
+    from aerial.cliparser import CommandParser, Commands, Later, VersionAction
+
+    p = CommandParser(
         prog="aerial",
         description="Estimate how well a wire receiving aerial and its earth system will work.",
         epilog="Site files are TOML; see docs/site-file.md. Figures are estimates: local codes and licensed practice govern.",
     )
-    p.add_argument("--version", action=_Version, help="show program's version number and exit")
-    sub = p.commands = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Later, action=_Commands)
+    p.add_argument("--version", action=VersionAction, help="show program's version number and exit")
+    sub = p.commands = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=Later, action=Commands)
     sub.add_parser("check", help="validate a site file and summarise the wires as aerial understood them",
                    description="Validate a site file and summarise the resolved wires.", options=_check_options)
     sub.add_parser("report", help="run the whole chain: aerial figures, earth, tuning, stations, cautions",
@@ -352,6 +199,113 @@ def build_parser() -> argparse.ArgumentParser:
                    description="Single-layer solenoid: inductance from turns, or turns for a wanted inductance.",
                    options=_coil_options)
     return p
+
+
+#: The options of each command, as given to argparse (:func:`build_parser`) and to the quick reading.
+COMMAND_OPTIONS = {"check": _check_options, "report": _report_options, "layout": _layout_options,
+                   "coil": _coil_options}
+
+
+class _Options:
+    """A command's options as its ``..._options`` function gives them to argparse's ``add_argument``."""
+
+    def __init__(self):
+        self.arguments: list[tuple[tuple, dict]] = []  # (option strings or the positional's name, settings)
+        self.grouped = False
+
+    def add_argument(self, *names, **settings) -> None:
+        self.arguments.append((names, settings))
+
+    def add_mutually_exclusive_group(self, **settings) -> _Options:
+        self.grouped = True
+        return self
+
+
+#: What :func:`_quick_value` gives for a word argparse would refuse.
+_MISTAKE = object()
+
+
+def _quick_value(settings: dict, word: str):
+    """``word`` converted and checked as argparse does (``type``, ``choices``); ``_MISTAKE`` when it fails."""
+    try:
+        value = settings["type"](word) if "type" in settings else word
+    except Exception:  # argparse words the mistake, reading the line again
+        return _MISTAKE
+    return value if "choices" not in settings or value in settings["choices"] else _MISTAKE
+
+
+
+def _command_options(command: str):
+    """The options of ``command`` for the quick reading, or None when they are not all plain.
+
+    (defaults by destination in argparse's order, option strings -> (destination, settings), the positionals
+    in order as (destination, settings), the destinations a command line must give)
+    """
+    options = _Options()
+    COMMAND_OPTIONS[command](options)
+    if options.grouped:
+        return None
+    defaults, flags, positionals, required = {"command": command}, {}, [], set()
+    for names, settings in options.arguments:
+        if settings.get("action", "store") not in ("store", "store_true"):
+            return None
+        if isinstance(settings.get("default"), str) and "type" in settings:
+            return None  # argparse converts such a default: none of ours has one
+        if names[0].startswith("-"):
+            if "nargs" in settings:
+                return None
+            dest = settings.get("dest") or next((n for n in names if n.startswith("--")), names[0]).lstrip("-")
+            dest = dest.replace("-", "_")
+            flags.update((name, (dest, settings)) for name in names)
+            if settings.get("required"):
+                required.add(dest)
+        else:
+            if settings.get("nargs", "?") != "?":
+                return None
+            dest = names[0]
+            positionals.append((dest, settings))
+            if "nargs" not in settings:
+                required.add(dest)
+        defaults[dest] = settings.get("default", False if settings.get("action") == "store_true" else None)
+    return defaults, flags, positionals, required
+
+
+def quick_arguments(words):
+    """The arguments of a plain command line, read as argparse reads them; None for any other command line.
+
+    Plain: a command, then its options spelt in full, each at most once (a value as the next word, never one
+    starting with "-"), and its positional words, none starting with "-". Anything else -- no command, help,
+    ``--version``, ``--option=value``, "--", a mistake of any kind, the coil command's group of options --
+    is left to argparse (:func:`build_parser`), which reads it or says what is wrong. Loading and setting
+    argparse up costs about 5 ms of every run's start-up; tests/test_cli.py checks that both read a command
+    line alike.
+    """
+    command = _command_options(words[0]) if words and words[0] in COMMAND_OPTIONS else None
+    if command is None:
+        return None
+    values, flags, positionals, required = command
+    given = set()
+    rest = iter(words[1:])
+    for word in rest:
+        if word.startswith("-"):
+            dest, settings = flags.get(word, (None, None))
+            if dest is None or dest in given:
+                return None
+            if settings.get("action") == "store_true":
+                value = True
+            else:
+                word = next(rest, "-")
+                value = _MISTAKE if word.startswith("-") else _quick_value(settings, word)
+        elif positionals:
+            dest, settings = positionals.pop(0)
+            value = _quick_value(settings, word)
+        else:
+            return None
+        if value is _MISTAKE:
+            return None
+        values[dest] = value
+        given.add(dest)
+    return None if required - given else types.SimpleNamespace(**values)
 
 
 def _console(stderr=False, width=None):
@@ -563,17 +517,33 @@ def _check_empty_options(args) -> None:
             raise AerialError(f"--{option.replace('_', '-')} is empty; expected a value (see 'aerial {args.command} --help')")
 
 
+def _arguments(argv):
+    """The command line read: at once when it is plain (:func:`quick_arguments`), else by argparse.
+
+    None when it names no command (the usage and one line are shown on stderr).
+    """
+    args = quick_arguments(sys.argv[1:] if argv is None else list(argv))
+    if args is not None:
+        return args
+    parser = build_parser()
+    args, extras = parser.parse_known_args(argv)
+    if extras:
+        from aerial.cliparser import unrecognized
+
+        raise unrecognized(parser, args.command, extras)
+    if args.command is None:
+        parser.print_usage(sys.stderr)
+        sys.stderr.write("aerial: a command is needed; 'aerial --help' lists them\n")
+        return None
+    return args
+
+
 def main(argv=None) -> int:
     """Entry point of the ``aerial`` console script; returns the exit code."""
     args = None
     try:
-        parser = build_parser()
-        args, extras = parser.parse_known_args(argv)
-        if extras:
-            raise _unrecognized(parser, args.command, extras)
-        if args.command is None:
-            parser.print_usage(sys.stderr)
-            sys.stderr.write("aerial: a command is needed; 'aerial --help' lists them\n")
+        args = _arguments(argv)
+        if args is None:
             return EXIT_USER
         _check_empty_options(args)
         return COMMANDS[args.command](args)

@@ -8,6 +8,8 @@ import json
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from aerial.cli import main
 from aerial.estimate.reception import VERDICTS
@@ -448,3 +450,67 @@ def test_coil_helper_asks_for_the_unit_of_a_bare_number(capsys, argv, words):
     code, out, err = run(capsys, "coil", *argv)
     assert code == 2 and out == ""
     assert words in err and "a number in m" not in err and "a number in H" not in err and err.count("\n") == 1
+
+
+# The quick reading of a plain command line (aerial.cli.quick_arguments) against argparse, the reference for
+# what a command line means: whatever it reads, argparse reads the same, in the same order, without a word left.
+_OPTIONS = ["--json", "--width", "--units", "--quiet", "--full-wave", "--lossy-ground", "--quick-ground", "--step",
+            "--pictures", "--page", "--force", "--allow-large", "--best", "--picture", "--diameter", "--wire",
+            "--turns", "--inductance"]
+_WORDS = ["check", "report", "layout", "coil", *_OPTIONS, "--version", "-h", "--help", "--", "-", "--json=1",
+          "--width=90", "--unit", "-5", "80", "30", "3", "abc", "si", "us", "US", "x.toml", "", " ", "1 kHz", "a b"]
+
+
+def _argparse_reading(argv):
+    from aerial.cli import build_parser
+
+    try:
+        args, extras = build_parser().parse_known_args(argv)
+    except (SystemExit, Exception) as err:  # a mistake (AerialError), help or the version
+        return type(err).__name__
+    return list(vars(args).items()), extras
+
+
+_VALUES = ["80", "30", "3", "abc", "si", "us", "x.toml", "", "1 kHz", "-5", "--json"]
+#: a word, or an option and a value (most plain command lines have some of these)
+_PIECES = st.one_of(st.sampled_from(_WORDS).map(lambda w: [w]),
+                    st.tuples(st.sampled_from(_OPTIONS), st.sampled_from(_VALUES)).map(list))
+
+
+@given(st.sampled_from(["check", "report", "layout", "coil", "repor", "--version", ""]),
+       st.lists(_PIECES, max_size=6))
+@settings(max_examples=400, deadline=None)
+def test_consistency_the_quick_reading_of_a_command_line_is_argparses(command, pieces):
+    from aerial.cli import quick_arguments
+
+    argv = [command, *(word for piece in pieces for word in piece)]
+    quick = quick_arguments(argv)
+    if quick is not None:
+        assert _argparse_reading(argv) == (list(vars(quick).items()), []), argv
+
+
+@pytest.mark.parametrize("argv", [
+    ["report", "site.toml", "--json"], ["report", "--json", "site.toml"], ["report"], ["report", "--json"],
+    ["report", "s.toml", "--width", "80", "--units", "us", "--quiet", "--full-wave", "--lossy-ground",
+     "--quick-ground", "--step", "1 kHz", "--pictures", "pics", "--page", "p.html", "--force", "--allow-large"],
+    ["check", "s.toml", "--json", "--units", "us"], ["layout", "s.toml", "--best", "3", "--picture", "p.svg"],
+    ["report", ""],
+])
+def test_consistency_plain_command_lines_are_read_quickly_as_argparse_reads_them(argv):
+    from aerial.cli import quick_arguments
+
+    quick = quick_arguments(argv)
+    assert quick is not None and _argparse_reading(argv) == (list(vars(quick).items()), [])
+
+
+@pytest.mark.parametrize("argv", [
+    [], ["--version"], ["--help"], ["report", "-h"], ["report", "--json=1"], ["report", "a", "b"],
+    ["report", "--width", "30"], ["report", "--units", "metric"], ["report", "--json", "--json"],
+    ["report", "--", "s.toml"], ["report", "--page"], ["report", "--page", "--json"], ["check"],
+    ["layout", "s.toml", "--best", "many"], ["coil", "--diameter", "5 cm", "--wire", "26 AWG", "--turns", "9"],
+    ["report", "--jsn"], ["report", "-5"],
+])
+def test_every_other_command_line_is_left_to_argparse(argv):
+    from aerial.cli import quick_arguments
+
+    assert quick_arguments(argv) is None

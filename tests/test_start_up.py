@@ -123,3 +123,12 @@ def test_a_report_loads_the_coil_physics_only_for_a_coil_to_work_out(tmp_path):
                                                       'length = "45 mm" }'), encoding="utf-8")
     out = _fresh_process(AERIAL_MODULES, "report", str(wound), "--json")
     assert out["code"] == 0 and "aerial.models.coil" in out["loaded"]
+
+
+def test_a_plain_report_loads_no_argparse_decimal_or_bisect():
+    # consistency check: a plain command line is read without argparse (and gettext and locale under it), the
+    # units' decimal products are worked out in whole numbers and the series lengths by a search of our own
+    out = _packages("report", str(ROOT / "site_examples" / "backyard_inverted_l.toml"), "--json")
+    assert out["code"] == 0
+    for module in ("argparse", "gettext", "locale", "decimal", "bisect"):
+        assert module not in out["loaded"], module
