@@ -112,3 +112,13 @@ def test_consistency_a_record_class_behaves_as_the_standard_librarys_named_tuple
         assert errors[0] == errors[1]
     with pytest.raises(ValueError, match="underscore"):
         records.record_class("Mast", ("_height",), (), __name__)
+
+
+def test_consistency_the_written_out_new_is_the_compiled_one():
+    # consistency check: each ``__new__`` written out in records.py is the code compile makes from its text
+    for count in range(1, 14):
+        written, compiled = records._NEW_BY_COUNT[count], records.new_code(count)
+        assert (written.co_code, written.co_varnames, written.co_argcount, written.co_names, written.co_consts) == (
+            compiled.co_code, compiled.co_varnames, compiled.co_argcount, compiled.co_names, compiled.co_consts), count
+    big = records.record_class("Big", tuple(f"f{i}" for i in range(20)), (), __name__)
+    assert tuple(big(*range(20))) == tuple(range(20)) and big(*range(20)).f19 == 19

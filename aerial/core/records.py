@@ -46,18 +46,40 @@ RESERVED_NAMES = frozenset({"_fields", "_replace", "_source", "_asdict", "__slot
 CLASS_BODY_NAMES = frozenset({"__module__", "__annotations__", "__name__"})
 
 
-#: ``__new__`` of a record of n fields, compiled once for each n: its arguments are renamed for each class.
-_NEW_BY_COUNT: dict = {}
+#: ``__new__`` of a record of n fields, one code for each n: its arguments are renamed for each class. Those of up
+#: to 13 fields are written out here, so they come compiled with this module (``compile`` takes about 0.1 ms a
+#: text, 1.3 ms at a report's start-up when they were made there); one of more fields is compiled when first
+#: needed. ``_tuple_new`` is looked up in the globals each ``__new__`` is given (:func:`_new_of`).
+_tuple_new = tuple.__new__
+_NEW_BY_COUNT: dict = {
+    1: (lambda _cls, _0: _tuple_new(_cls, (_0,))).__code__,
+    2: (lambda _cls, _0, _1: _tuple_new(_cls, (_0, _1))).__code__,
+    3: (lambda _cls, _0, _1, _2: _tuple_new(_cls, (_0, _1, _2))).__code__,
+    4: (lambda _cls, _0, _1, _2, _3: _tuple_new(_cls, (_0, _1, _2, _3))).__code__,
+    5: (lambda _cls, _0, _1, _2, _3, _4: _tuple_new(_cls, (_0, _1, _2, _3, _4))).__code__,
+    6: (lambda _cls, _0, _1, _2, _3, _4, _5: _tuple_new(_cls, (_0, _1, _2, _3, _4, _5))).__code__,
+    7: (lambda _cls, _0, _1, _2, _3, _4, _5, _6: _tuple_new(_cls, (_0, _1, _2, _3, _4, _5, _6))).__code__,
+    8: (lambda _cls, _0, _1, _2, _3, _4, _5, _6, _7: _tuple_new(_cls, (_0, _1, _2, _3, _4, _5, _6, _7))).__code__,
+    9: (lambda _cls, _0, _1, _2, _3, _4, _5, _6, _7, _8: _tuple_new(_cls, (_0, _1, _2, _3, _4, _5, _6, _7, _8))).__code__,
+    10: (lambda _cls, _0, _1, _2, _3, _4, _5, _6, _7, _8, _9: _tuple_new(_cls, (_0, _1, _2, _3, _4, _5, _6, _7, _8, _9))).__code__,
+    11: (lambda _cls, _0, _1, _2, _3, _4, _5, _6, _7, _8, _9, _10: _tuple_new(_cls, (_0, _1, _2, _3, _4, _5, _6, _7, _8, _9, _10))).__code__,
+    12: (lambda _cls, _0, _1, _2, _3, _4, _5, _6, _7, _8, _9, _10, _11: _tuple_new(_cls, (_0, _1, _2, _3, _4, _5, _6, _7, _8, _9, _10, _11))).__code__,
+    13: (lambda _cls, _0, _1, _2, _3, _4, _5, _6, _7, _8, _9, _10, _11, _12: _tuple_new(_cls, (_0, _1, _2, _3, _4, _5, _6, _7, _8, _9, _10, _11, _12))).__code__,
+}
+
+
+def new_code(count: int):
+    """The code of ``lambda _cls, _0, _1, ...: _tuple_new(_cls, (_0, _1, ...))`` for ``count`` fields, compiled now."""
+    args = ", ".join(f"_{i}" for i in range(count))
+    return compile(f"lambda _cls, {args}: _tuple_new(_cls, ({args}{',' if count == 1 else ''}))", "<record>",
+                   "eval").co_consts[0]
 
 
 def _new_of(typename: str, field_names: tuple, defaults: tuple):
     """The record's ``__new__``: ``__new__(cls, field_1, field_2, ...)`` -> the tuple of the fields, as a class of it."""
     template = _NEW_BY_COUNT.get(len(field_names))
     if template is None:
-        args = ", ".join(f"_{i}" for i in range(len(field_names)))
-        template = _NEW_BY_COUNT[len(field_names)] = compile(
-            f"lambda _cls, {args}: _tuple_new(_cls, ({args}{',' if len(field_names) == 1 else ''}))",
-            "<record>", "eval").co_consts[0]
+        template = _NEW_BY_COUNT[len(field_names)] = new_code(len(field_names))
     space = {"_tuple_new": tuple.__new__, "__builtins__": {}, "__name__": f"namedtuple_{typename}"}
     new = types.FunctionType(template.replace(co_varnames=("_cls",) + field_names), space, "__new__", defaults)
     new.__qualname__ = f"{typename}.__new__"
