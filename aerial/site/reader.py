@@ -384,11 +384,11 @@ def load_site(path) -> Site:
 
 def _check_path(p: str, shown: str) -> None:
     """Refuse a path that cannot be opened, saying why (a loop of links is not a missing file)."""
-    import errno
-
     try:
         os.stat(p)
     except OSError as err:
+        import errno  # only for a path that cannot be opened
+
         why = {
             errno.ENOENT: "no such file",
             errno.ELOOP: "the path is a loop of symbolic links",

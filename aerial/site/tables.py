@@ -11,7 +11,6 @@ import math
 
 from aerial.core import units
 from aerial.core.errors import SiteError
-from aerial.site.tomlpos import find_line
 
 #: Largest coordinate, height or length inside a site (a lot, its supports and its wires). [m]
 MAX_SITE_LENGTH_M = 10_000.0
@@ -49,6 +48,8 @@ class TableReader:
         self.text = text
 
     def fail(self, key, value, expected):
+        from aerial.site.tomlpos import find_line  # only for a refusal: a site that loads never needs it
+
         raise SiteError(self.path, key, value, expected, line=find_line(self.text, key))
 
     # typed getters -----------------------------------------------------------
