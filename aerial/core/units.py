@@ -245,7 +245,7 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
         if compound is not None:
             return compound
     # a fraction has a digit, a "/" and a digit ("5/8"); "mV/m" alone is no reason to compile its pattern
-    fraction = re.match(_FRACTION_QUANTITY, value) if re.search(r"\d\s*/\s*\d", value) else None
+    fraction = re.match(_FRACTION_QUANTITY, value) if "/" in value and re.search(r"\d\s*/\s*\d", value) else None
     if fraction and fraction.group(6) is not None:
         fraction = None  # a plain decimal: read below, in full (exponent included)
     match = None if fraction else _QUANTITY.match(value)
@@ -255,7 +255,7 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
     written = written.strip()
     if not written:
         raise UnitError(expected() + "; a number given as text needs its unit written out")
-    if re.match(r",\d", written):
+    if written.startswith(",") and re.match(r",\d", written):  # "2,5 m": the pattern compiled only for a comma
         raise UnitError(_comma_words(value) + "; " + expected())
     try:
         unit = find_unit(written, units, match.group(1) if match else "1")
@@ -466,7 +466,7 @@ def parse_gauge(text) -> int:
         return int(text)
     if isinstance(text, str):
         t = text.strip()
-        m = re.fullmatch(r"(\d)/0", t)
+        m = re.fullmatch(r"(\d)/0", t) if "/" in t else None
         if m:
             return 1 - int(m.group(1))
         if re.fullmatch(r"\d{1,2}", t):
