@@ -199,8 +199,9 @@ def parse_plan(site) -> Plan:
     if lot is not None:
         from shapely.geometry import Point
 
+        grown = lot.buffer(0.5, quad_segs=8)  # once, not once a support
         for s in supports:
-            if not lot.buffer(0.5, quad_segs=8).covers(Point(s.x_m, s.y_m)):
+            if not grown.covers(Point(s.x_m, s.y_m)):
                 notes.append(f'support "{s.name}" is outside the lot: a wire fixed there needs the neighbour\'s consent')
     return Plan(lot, building, entry, buildings, supports, obstacles, lines, balcony, notes, given=bool(raw))
 
