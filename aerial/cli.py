@@ -280,7 +280,9 @@ def quick_arguments(words):
     argparse up costs about 5 ms of every run's start-up; tests/test_cli.py checks that both read a command
     line alike.
     """
-    command = _command_options(words[0]) if words and words[0] in COMMAND_OPTIONS else None
+    if not words or not all(isinstance(word, str) for word in words) or words[0] not in COMMAND_OPTIONS:
+        return None
+    command = _command_options(words[0])
     if command is None:
         return None
     values, flags, positionals, required = command
