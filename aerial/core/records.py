@@ -9,9 +9,10 @@ members :func:`collections.namedtuple` gives (``__new__`` taking the fields by p
 defaults, ``_make``, ``_replace``, ``_asdict``, ``__repr__``, ``__getnewargs__``, ``_fields``,
 ``_field_defaults``, ``__match_args__``, a read-only property per field), with the same names, documentation
 and behaviour, plus the docstring and whatever else the class body defines (methods, properties, constants)
--- less those checks and compilations: ``__new__`` is compiled once per number of fields and renamed for
-each class, and the other methods are copies of one function each. ``__annotations__`` holds the annotations
-as written. A type checker reads :class:`typing.NamedTuple` itself, so a record's fields are typed as before.
+-- less those checks and compilations: ``__new__`` is one code per number of fields (written out here for up
+to 13 fields, compiled once for more) renamed for each class, and the other methods are copies of one
+function each. ``__annotations__`` holds the annotations as written. A type checker reads
+:class:`typing.NamedTuple` itself, so a record's fields are typed as before.
 tests/test_records.py checks the class against the one typing.NamedTuple makes.
 
 >>> class Span(NamedTuple):
