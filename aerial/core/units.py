@@ -305,7 +305,10 @@ def decimal_product(number: str, factor: float) -> float:
     it (:data:`PRODUCT_DIGITS` significant digits, half to even), then to the nearest float: the same
     float, bit for bit, without loading the decimal module for every quantity a site file writes as text
     (``tests/test_units.py`` checks it against the decimal module). A number of more than
-    :data:`LONGEST_NUMBER` characters is left to the decimal module itself.
+    :data:`LONGEST_NUMBER` characters is left to the decimal module itself. Decimal arithmetic also puts its
+    context among the thread's context variables, where numpy looks its error settings up at every ufunc
+    call: each of the report's numpy calls then took a little longer (about 9 million instructions of the
+    backyard report, on top of the module's loading).
 
     >>> decimal_product("12", 0.0254), decimal_product("20", 0.3048), decimal_product("-0", 0.01)
     (0.3048, 6.096, -0.0)
