@@ -123,3 +123,26 @@ def test_consistency_decimal_product_edges(number, factor):
 
     ours, theirs = units.decimal_product(number, factor), float(Decimal(number) * Decimal(repr(factor)))
     assert (ours, math.copysign(1.0, ours)) == (theirs, math.copysign(1.0, theirs))
+
+
+@given(st.one_of(_number_texts().filter(lambda t: "e" not in t.lower() and not t.startswith(("-", "+"))),
+                 st.floats(allow_nan=False, allow_infinity=False).map(repr)))
+def test_consistency_exact_fraction_is_the_decimal_modules(text):
+    # reference: Fraction(Decimal(text)), the standard library's exact reading of a decimal text
+    from decimal import Decimal
+    from fractions import Fraction
+
+    assert units.exact_fraction(text) == Fraction(Decimal(text))
+
+
+def test_a_fraction_or_feet_and_inches_reads_without_decimal_arithmetic():
+    # consistency check: "5/8 in" and "6 ft 3.5 in" leave the thread's context variables as they were (decimal
+    # arithmetic would put its context there, which slows every numpy call after it)
+    import contextvars
+
+    def read():
+        return units.parse_length("5/8 in"), units.parse_length("6 ft 3.5 in"), units.parse_length("12 in")
+
+    context = contextvars.Context()  # a fresh one, with no variable set
+    assert context.run(read) == (0.015875, 1.9177, 0.3048)
+    assert len(context) == 0

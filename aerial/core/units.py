@@ -116,12 +116,11 @@ class UnitError(ValueError):
 
 def _amount(groups) -> Fraction:
     """The exact value of one ``_AMOUNT`` match: (whole, num, den, num, den, decimal)."""
-    from decimal import Decimal  # here: only a fraction or feet and inches needs exact fractions
-    from fractions import Fraction
+    from fractions import Fraction  # here: only a fraction or feet and inches needs exact fractions
 
     whole, n1, d1, n2, d2, dec = groups
     if dec is not None:
-        return Fraction(Decimal(dec))
+        return exact_fraction(dec)
     num, den = (n1, d1) if n1 is not None else (n2, d2)
     if int(den) == 0:
         raise UnitError(f"a fraction with a zero denominator ({num}/{den})")
@@ -273,10 +272,26 @@ def parse_quantity(value, units: dict[str, float], kind: str, default_unit: str)
         amount = _amount(fraction.groups()[:6])
     except UnitError as err:
         raise UnitError(f"{err.expected}; {expected()}") from None
-    from decimal import Decimal
+    return float(amount * exact_fraction(repr(units[unit])))
+
+
+def exact_fraction(text: str) -> Fraction:
+    """``Fraction(Decimal(text))`` for a decimal number's text: its exact value, read without decimal arithmetic.
+
+    ``Fraction`` reads the text exactly itself; only a text longer than :data:`LONGEST_NUMBER`
+    characters, past what ``int`` reads at once, goes through the decimal module (see :func:`decimal_product`
+    for why a report keeps clear of it; ``tests/test_units.py`` checks both against the decimal module).
+
+    >>> exact_fraction("1.5"), exact_fraction("1e-06")
+    (Fraction(3, 2), Fraction(1, 1000000))
+    """
     from fractions import Fraction
 
-    return float(amount * Fraction(Decimal(repr(units[unit]))))
+    if len(text) > LONGEST_NUMBER:
+        from decimal import Decimal
+
+        return Fraction(Decimal(text))
+    return Fraction(text)
 
 
 #: Significant digits a product of two decimal numbers keeps: those of the standard library's default decimal
