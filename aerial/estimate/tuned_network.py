@@ -219,8 +219,11 @@ def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL,
 
     # the level pinned down first (a few calls of the detector model), then the bisection's halvings replayed
     # against it: the bisection's very brackets
+    # the input resistance's two limits start the search: a vanishing signal's and a strong one's (R_L/2)
+    limits = (np.exp(table[1][0]), np.exp(table[1][-1])) if table is not None else (
+        1.0 / weak_signal_conductance(diode), 0.5 * np.asarray(load, dtype=float))
     with np.errstate(all="ignore"):  # a level that cannot be pinned (no signal, say) keeps the plain bisection
-        a, b = _pinned_level(v0, z, lo, hi, r_of)
+        a, b = _pinned_level(v0, z, lo, hi, r_of, limits)
     lo, hi = replay_bisection(lo, hi, a, b, below, int(max_iter),
                               done=lambda g, b: bool((b / g - 1.0 <= rtol).all()))
     v = np.sqrt(lo * hi)
@@ -233,13 +236,14 @@ PIN_STEPS = 12
 PIN_HALF_WIDTH = 1e-12
 
 
-def _pinned_level(v0, z, lo, hi, r_of):
+def _pinned_level(v0, z, lo, hi, r_of, limits):
     """Each detector level bracketed tightly: (passing end, failing end) of :func:`detector_level`'s test ``below``
     [V], or the bisection's own ends (``lo``, ``hi``) where none was found.
 
-    The level V solves ln(V·|1 + Z_s/R_in(V)|) = ln V_open; R_in lies between its values at the bracket's ends, so
-    V_open/|1 + Z_s/R_in| at those two starts a secant in ln V, which ends with the test at V·(1 ∓ 1e-12)."""
-    r_ends = r_of(np.stack([lo, hi]))
+    The level V solves ln(V·|1 + Z_s/R_in(V)|) = ln V_open; R_in lies between its weak- and strong-signal
+    ``limits`` [ohm], so V_open/|1 + Z_s/R| at those two starts a secant in ln V, which ends with the test at
+    V·(1 ∓ 1e-12)."""
+    r_ends = np.stack([np.broadcast_to(limits[0], np.shape(v0)), np.broadcast_to(limits[1], np.shape(v0))])
     u = np.log(v0 / np.abs(1.0 + z / r_ends))  # two starting points, (2, ...)
     log_v0 = np.log(v0)
 
