@@ -217,9 +217,9 @@ def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL,
     def below(v):  # v is not above the level: v·|1 + Z_s/R_in| has not passed the open voltage
         return ~(v * np.abs(1.0 + z / r_of(v)) - v0 > 0)
 
-    # the level pinned down first (a few calls of the detector model), then the bisection's halvings replayed
-    # against it: the bisection's very brackets
-    # the input resistance's two limits start the search: a vanishing signal's and a strong one's (R_L/2)
+    # the level pinned down first (a few calls of the detector model, from the input resistance's two limits: a
+    # vanishing signal's and a strong one's, R_L/2), then the bisection's halvings replayed against it: the
+    # bisection's very brackets
     limits = (np.exp(table[1][0]), np.exp(table[1][-1])) if table is not None else (
         1.0 / weak_signal_conductance(diode), 0.5 * np.asarray(load, dtype=float))
     with np.errstate(all="ignore"):  # a level that cannot be pinned (no signal, say) keeps the plain bisection
@@ -267,7 +267,6 @@ def _pinned_level(v0, z, lo, hi, r_of, limits):
             break
         u0, g0, u1, g1 = u1, g1, u2, np.log(level[0]) - log_v0
     return a, b
-
 
 
 class StationLevels(NamedTuple):
