@@ -7,7 +7,7 @@ import math
 import numpy as np
 import pytest
 
-from aerial.core.arrays import bisect_ahead, bisection_midpoints, pin_crossing
+from aerial.core.arrays import bisect_ahead, bisection_midpoints, pin_crossing, replay_bisection
 
 
 def _halving_one_at_a_time(good, bad, passes, halvings):
@@ -95,3 +95,37 @@ def test_pin_crossing_brackets_each_change_tightly_or_settles_at_an_end():
         assert min(a[i], b[i]) <= roots[i] <= max(a[i], b[i])
         assert abs(b[i] / a[i] - 1.0) <= 1e-13
     assert a[3] == b[3] == bad[3]
+
+
+@pytest.mark.parametrize("width", [1e-13, 1e-6, None])
+def test_consistency_replay_bisection_is_the_one_at_a_time_bisection_exactly(width):
+    """Halvings replayed against a pinned crossing (tight, loose, or none: the brackets' own ends) give the
+    one-at-a-time bisection's brackets, stopping where it would, and test only midpoints inside the pin
+    (consistency check)."""
+    rng = np.random.default_rng(5)
+    target = rng.uniform(1.0, 100.0, size=(2, 3))
+    good, bad = np.full(target.shape, 1e4), np.full(target.shape, 0.01)  # the good end the larger here
+    if width is None:
+        a, b = good, bad
+    else:
+        a, b = target * (1.0 + width), target * (1.0 - width)
+    tested = []
+
+    def passes(x):
+        tested.append(1)
+        return x >= target
+
+    def close(g, z):
+        return bool(np.all(g / z - 1.0 <= 1e-9))
+
+    ref_g, ref_b = good.copy(), bad.copy()
+    while not close(ref_g, ref_b):
+        ref_g, ref_b = _halving_one_at_a_time(ref_g, ref_b, lambda x: x >= target, 1)
+    g, z = replay_bisection(good, bad, a, b, passes, 200, done=close)
+    assert np.array_equal(g, ref_g) and np.array_equal(z, ref_b)
+    if width == 1e-13:
+        assert len(tested) <= 2  # a 1e-9 bracket rarely has its midpoint within 1e-13 of the root
+    one_g, one_b = replay_bisection(good[0, 0], bad[0, 0], a[0, 0] if width else good[0, 0],
+                                    b[0, 0] if width else bad[0, 0], lambda x: x >= target[0, 0], 40)
+    want = _halving_one_at_a_time(good[0, 0], bad[0, 0], lambda x: x >= target[0, 0], 40)
+    assert float(one_g) == float(want[0]) and float(one_b) == float(want[1])

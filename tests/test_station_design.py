@@ -307,3 +307,26 @@ def test_consistency_one_listed_station_is_not_called_the_weakest_nor_kept_above
     line = next(ln for ln in out.splitlines() if ln.strip().startswith("→ with"))
     assert "the only listed station, Lakeside Community Radio, gets" in line
     assert "weakest" not in line and "every other listed station" not in line and "the others" not in line
+
+
+def test_consistency_detector_level_is_the_plain_bisection():
+    """The detector level pinned down and its halvings replayed is the look-ahead bisection's level exactly,
+    with the detector model and with its look-up table (consistency check)."""
+    from aerial.core.arrays import bisect_ahead
+    from aerial.estimate import tuned_network as tn
+    from aerial.models import detector as det
+
+    d = det.get_diode("germanium")
+    v0 = np.geomspace(1e-7, 3.0, 7)
+    z = np.array([2e3 + 500j, 40e3 - 9e3j, 300.0 + 0j, 8e3 + 8e3j, 1e5 + 0j, 12e3 - 1e3j, 50.0 + 20j])
+    table = tn.input_resistance_table(d, 2000.0)
+    for tab in (None, table):
+        def r_of(v):
+            if tab is not None:
+                return np.exp(np.interp(np.log(v), tab[0], tab[1]))
+            return det.loaded_detector(np.sqrt(2.0) * v, d.saturation_current_a, d.ideality, 2000.0).input_resistance
+
+        lo, hi = bisect_ahead(v0 * 1e-12, v0, lambda v: ~(v * np.abs(1.0 + z / r_of(v)) - v0 > 0), 200, 4,
+                              done=lambda g, b: bool((b / g - 1.0 <= 1e-9).all()))
+        v, r, ok = tn.detector_level(v0, z, d, 2000.0, table=tab)
+        assert ok and np.array_equal(v, np.sqrt(lo * hi))

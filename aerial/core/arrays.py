@@ -11,6 +11,7 @@ reused buffer.
 
 from __future__ import annotations
 
+import math
 import threading
 
 import numpy as np
@@ -164,6 +165,82 @@ def bisect_ahead(good, bad, passes, halvings: int, depth: int, done=None):
             if finished:
                 break
     return good.reshape(shape), bad.reshape(shape)
+
+
+def replay_bisection(good, bad, a, b, passes, halvings: int, done=None):
+    """:func:`bisect_ahead`'s brackets, the halvings replayed against each bracket's crossing pinned beforehand.
+
+    Parameters
+    ----------
+    good, bad : array_like
+        The brackets as :func:`bisect_ahead` takes them (positive, one shape; either end may be the larger).
+    a, b : array_like
+        Each bracket's crossing pinned (:func:`pin_crossing`): the test passes at ``a`` and fails at ``b``,
+        both within [good, bad], ``a`` the nearer to ``good``.
+    passes : callable
+        passes(x) -> bool array of the shape of ``x`` (the brackets' shape).
+    halvings : int
+        Halvings to take.
+    done : callable, optional
+        As :func:`bisect_ahead`'s.
+
+    Returns
+    -------
+    (ndarray, ndarray)
+        ``good`` and ``bad`` after the halvings: what :func:`bisect_ahead` gives whenever the test changes
+        answer once between the brackets' ends (it passes all the way from ``good`` to ``a`` and fails from
+        ``b`` on). A midpoint on ``a``'s side of [a, b] (or at ``a``) is taken to pass, one on ``b``'s side
+        (or at ``b``) to fail, and only a midpoint strictly between them is tested: a step with any such
+        calls ``passes`` once, at every bracket's midpoint.
+
+    Examples
+    --------
+    >>> g, b = replay_bisection(1.0, 16.0, 2.9999999, 3.0000001, lambda x: x <= 3.0, 30)
+    >>> (g, b) == bisect_ahead(1.0, 16.0, lambda x: x <= 3.0, 30, 4)
+    True
+    """
+    good, bad, a, b = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in (good, bad, a, b)))
+    shape = good.shape
+    if good.size == 1:  # one bracket: the halvings in plain floats (the same products and square roots)
+        g, z = _replay_one(float(good.flat[0]), float(bad.flat[0]), float(a.flat[0]), float(b.flat[0]),
+                           lambda x: bool(np.asarray(passes(np.full(shape, x))).flat[0]), int(halvings), done)
+        return np.full(shape, g), np.full(shape, z)
+    up = np.where(bad > good, 1.0, -1.0)  # the failing side lies above (+1) or below (−1)
+    good, bad = good.ravel().copy(), bad.ravel().copy()
+    a, b, up = a.ravel(), b.ravel(), up.ravel()
+    taken = 0
+    finished = done is not None and done(good, bad)
+    while taken < int(halvings) and not finished:
+        mid = np.sqrt(good * bad)
+        ok = (mid - a) * up <= 0.0
+        unsure = ~ok & ((mid - b) * up < 0.0)
+        if unsure.any():
+            ok = np.where(unsure, np.asarray(passes(mid.reshape(shape)), dtype=bool).ravel(), ok)
+        np.copyto(good, mid, where=ok)
+        np.copyto(bad, mid, where=~ok)
+        taken += 1
+        finished = done is not None and done(good, bad)
+    return good.reshape(shape), bad.reshape(shape)
+
+
+def _replay_one(good: float, bad: float, a: float, b: float, passes, halvings: int, done):
+    """:func:`replay_bisection` of one bracket in plain floats."""
+    up = 1.0 if bad > good else -1.0
+    taken = 0
+    finished = done is not None and done(np.array([good]), np.array([bad]))
+    while taken < halvings and not finished:
+        mid = math.sqrt(good * bad)
+        if (mid - a) * up <= 0.0:
+            good = mid
+        elif (mid - b) * up >= 0.0:
+            bad = mid
+        elif passes(mid):
+            good = mid
+        else:
+            bad = mid
+        taken += 1
+        finished = done is not None and done(np.array([good]), np.array([bad]))
+    return good, bad
 
 
 #: Relative width to which :func:`pin_crossing` narrows a bracket, and its limit on steps.

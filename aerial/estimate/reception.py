@@ -24,7 +24,7 @@ import math
 
 import numpy as np
 
-from aerial.core.arrays import bisect_ahead, sorted_unique
+from aerial.core.arrays import bisect_ahead, pin_crossing, replay_bisection, sorted_unique
 from aerial.core.errors import ModelInputError
 from aerial.core.records import NamedTuple
 from aerial.core.units import si_text
@@ -1796,20 +1796,61 @@ def _threshold_voltage_cached(tap, diode, load, power, refine):
     return _threshold_voltage_uncached(tap, diode, load, power, refine)
 
 
+#: Points of the threshold's log grid (1 nV to 1 kV) and the stride of its first, coarse look.
+THRESHOLD_GRID_POINTS = 241
+THRESHOLD_GRID_STRIDE = 16
+
+
 def _threshold_voltage_uncached(tap, diode, load, power, refine):
-    grid = np.geomspace(1e-9, 1e3, 241)
-    p = _audio_power(grid, tap, diode, load)
-    above = np.flatnonzero(p >= power)
-    if above.size == 0:
+    """The first point of a log grid at which the audio reaches ``power``, then ``refine`` halvings in log V
+    of the step below it.
+
+    The audio power rises with the voltage, so the grid's first loud point is found from every
+    :data:`THRESHOLD_GRID_STRIDE`-th point and then the points of the one stride that holds it; the crossing is
+    then pinned down (:func:`aerial.core.arrays.pin_crossing`, on ln P) and the halvings replayed against it
+    (:func:`aerial.core.arrays.replay_bisection`): the threshold the plain bisection gives, in a few calls of the
+    detector model instead of one per few halvings.
+    """
+    grid = np.geomspace(1e-9, 1e3, THRESHOLD_GRID_POINTS)
+    found = _first_loud(grid, tap, diode, load, power)
+    if found is None:
         return np.inf
-    i = above[0]
+    i, p_quiet, p_loud = found
     if i == 0:
         return grid[0]
-    # bisection between the last quiet and the first loud grid point, several halvings per call of the
-    # detector model (the same midpoints as halving one at a time)
-    loud, _ = bisect_ahead(grid[i], grid[i - 1], lambda v: _audio_power(v, tap, diode, load) >= power, refine,
-                           LOOKAHEAD)
-    return loud[()]
+
+    def measure(v):
+        p = _audio_power(v, tap, diode, load)
+        return p >= power, np.log(np.maximum(p, 1e-300) / power)
+
+    good, bad = np.array([grid[i]]), np.array([grid[i - 1]])
+    gap_good = np.array([max(math.log(p_loud / power), 0.0)])
+    gap_bad = np.array([min(math.log(max(p_quiet, 1e-300) / power), -1e-300)])
+    a, b = pin_crossing(good, bad, gap_good, gap_bad, measure)
+    loud, _ = replay_bisection(good, bad, a, b, lambda v: measure(v)[0], refine)
+    return np.float64(loud[0])
+
+
+def _first_loud(grid, tap, diode, load, power):
+    """(index of the first point of ``grid`` [V] whose audio reaches ``power`` [W], the audio power at the point
+    before it and at it), or None when none does: from every :data:`THRESHOLD_GRID_STRIDE`-th point first, then
+    the points between the last quiet one and the first loud one of those."""
+    step = THRESHOLD_GRID_STRIDE
+    coarse = np.arange(0, grid.size, step)
+    if coarse[-1] != grid.size - 1:
+        coarse = np.append(coarse, grid.size - 1)
+    p = _audio_power(grid[coarse], tap, diode, load)
+    loud = np.flatnonzero(p >= power)
+    if loud.size == 0:
+        return None
+    j = int(loud[0])
+    if j == 0:
+        return 0, None, float(p[0])
+    lo, hi = int(coarse[j - 1]), int(coarse[j])
+    fine = _audio_power(grid[lo + 1:hi], tap, diode, load)
+    powers = [float(p[j - 1])] + fine.tolist() + [float(p[j])]
+    k = next(k for k, pk in enumerate(powers) if pk >= power)
+    return lo + k, powers[k - 1], powers[k]
 
 
 

@@ -16,7 +16,7 @@ from typing import Callable
 
 import numpy as np
 
-from aerial.core.arrays import bisect_ahead
+from aerial.core.arrays import replay_bisection
 from aerial.core.records import NamedTuple
 from aerial.models import detector as det_mod
 from aerial.models import network as net_mod
@@ -217,17 +217,56 @@ def detector_level(open_voltage, source_impedance, diode, load, rtol=LEVEL_RTOL,
     def below(v):  # v is not above the level: v·|1 + Z_s/R_in| has not passed the open voltage
         return ~(v * np.abs(1.0 + z / r_of(v)) - v0 > 0)
 
-    # every midpoint the next few halvings can reach in one call of the detector model
-    lo, hi = bisect_ahead(lo, hi, below, int(max_iter), LEVEL_LOOKAHEAD,
-                          done=lambda g, b: bool((b / g - 1.0 <= rtol).all()))
+    # the level pinned down first (a few calls of the detector model, from the input resistance's two limits: a
+    # vanishing signal's and a strong one's, R_L/2), then the bisection's halvings replayed against it: the
+    # bisection's very brackets
+    limits = (np.exp(table[1][0]), np.exp(table[1][-1])) if table is not None else (
+        1.0 / weak_signal_conductance(diode), 0.5 * np.asarray(load, dtype=float))
+    with np.errstate(all="ignore"):  # a level that cannot be pinned (no signal, say) keeps the plain bisection
+        a, b = _pinned_level(v0, z, lo, hi, r_of, limits)
+    lo, hi = replay_bisection(lo, hi, a, b, below, int(max_iter),
+                              done=lambda g, b: bool((b / g - 1.0 <= rtol).all()))
     v = np.sqrt(lo * hi)
     return v, r_of(v), bool(np.all(hi / lo - 1.0 <= rtol))
 
 
-#: Halvings of the detector-level bisection looked ahead per call of the detector model
-#: (:func:`aerial.core.arrays.bisect_ahead`: 2**LEVEL_LOOKAHEAD − 1 midpoints at once, then the halvings
-#: one by one on them; the same midpoints, so the same answer, in fewer calls).
-LEVEL_LOOKAHEAD = 4
+#: Secant steps in ln V at most, and the relative half-width of the bracket checked around their result, in
+#: :func:`_pinned_level`.
+PIN_STEPS = 12
+PIN_HALF_WIDTH = 1e-12
+
+
+def _pinned_level(v0, z, lo, hi, r_of, limits):
+    """Each detector level bracketed tightly: (passing end, failing end) of :func:`detector_level`'s test ``below``
+    [V], or the bisection's own ends (``lo``, ``hi``) where none was found.
+
+    The level V solves ln(V·|1 + Z_s/R_in(V)|) = ln V_open; R_in lies between its weak- and strong-signal
+    ``limits`` [ohm], so V_open/|1 + Z_s/R| at those two starts a secant in ln V, which ends with the test at
+    V·(1 ∓ 1e-12)."""
+    r_ends = np.stack([np.broadcast_to(limits[0], np.shape(v0)), np.broadcast_to(limits[1], np.shape(v0))])
+    u = np.log(v0 / np.abs(1.0 + z / r_ends))  # two starting points, (2, ...)
+    log_v0 = np.log(v0)
+
+    def gap(v):
+        return np.log(v * np.abs(1.0 + z / r_of(v))) - log_v0
+
+    u0, u1 = u[0], u[1]
+    g = gap(np.exp(u))
+    g0, g1 = g[0], g[1]
+    a, b = lo.copy(), hi.copy()
+    for _ in range(PIN_STEPS):
+        flat = g1 == g0
+        u2 = np.where(flat, u1, u1 - g1 * (u1 - u0) / np.where(flat, 1.0, g1 - g0))
+        v = np.exp(u2)
+        trial = np.stack([v, v * (1.0 - PIN_HALF_WIDTH), v * (1.0 + PIN_HALF_WIDTH)])
+        level = trial * np.abs(1.0 + z / r_of(trial))
+        ok = ~(level - v0 > 0)
+        pinned = ok[1] & ~ok[2] & (lo < trial[1]) & (trial[2] < hi)
+        a, b = np.where(pinned, trial[1], a), np.where(pinned, trial[2], b)
+        if pinned.all():
+            break
+        u0, g0, u1, g1 = u1, g1, u2, np.log(level[0]) - log_v0
+    return a, b
 
 
 class StationLevels(NamedTuple):

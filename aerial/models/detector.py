@@ -275,25 +275,42 @@ def loaded_detector(peak_voltage, saturation_current, ideality, load_resistance,
 
 
 def _detector_root(li0, rl, i_s, vt, rtol, max_iter):
-    """Root of ln(V/R_L + Is) − ln Is + V/nVT − ln I0 = 0 in V (Newton from V = 0 inside a bracket)."""
+    """Root of ln(V/R_L + Is) − ln Is + V/nVT − ln I0 = 0 in V (Newton from V = 0 inside a bracket).
+
+    While every value lies below its root (the usual climb: h <= 0 everywhere) the bracket's lower ends are the
+    values themselves and a Newton step cannot fall below them, so only the upper ends are checked: the same
+    steps, in fewer array operations.
+    """
     lo = np.zeros(np.shape(li0))
     hi = np.asarray(vt * np.maximum(li0, 0.0))  # ln I0(x) >= 0; round-off can make it a hair negative
     a = rl * i_s  # the load's share of the diode current's scale: h'(V) = 1/(V + R_L·Is) + 1/nVT
     inv_vt = 1.0 / vt
     v = lo.copy()
     done = hi <= 0.0
+    closed = None  # rtol·hi + 1e-300, worked out again only when hi moves
     it = 0
     for it in range(1, int(max_iter) + 1):
         h = np.log1p(v / a) + v * inv_vt - li0  # ln(1 + V/(R_L·Is)) = ln(V/R_L + Is) − ln Is, without the cancellation
         below = h <= 0.0
-        np.copyto(lo, v, where=below)
-        np.copyto(hi, v, where=~below)
+        climbing = bool(below.all())
+        if climbing:  # lo = v everywhere, hi as it was (lo may then share v's array: v is rebound, never written to)
+            lo = v
+        else:
+            if not isinstance(lo, np.ndarray):  # v of a single value comes back a numpy scalar
+                lo = np.array(lo)
+            np.copyto(lo, v, where=below)
+            np.copyto(hi, v, where=~below)
+            closed = None
         step = h / (1.0 / (v + a) + inv_vt)
         nxt = v - step
-        inside = (nxt >= lo) & (nxt <= hi)
+        # a step from below the root never falls below v = lo (step <= 0): only the upper end can be passed
+        inside = (nxt <= hi) if climbing else (nxt >= lo) & (nxt <= hi)
         if not inside.all():
             nxt = np.where(inside, nxt, 0.5 * (lo + hi))
-        done = done | (np.abs(nxt - v) <= rtol * nxt) | (hi - lo <= rtol * hi + 1e-300)
+        if closed is None:
+            closed = rtol * hi + 1e-300
+        moved = (nxt - v) if climbing else np.abs(nxt - v)  # nxt >= v while climbing
+        done = done | (moved <= rtol * nxt) | (hi - lo <= closed)
         v = nxt
         if done.all():
             break
