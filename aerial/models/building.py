@@ -1135,11 +1135,45 @@ PANEL_BUFFER_ELEMENTS = 1 << 17
 
 
 def _panel_planes(rows: int, cols: int, fresh: bool):
-    """Three (rows, cols) float planes: fresh arrays, or reused scratch when small enough and the caller keeps
-    none of them."""
+    """Two (rows, cols) float planes: fresh arrays, or reused scratch when small enough and the caller keeps
+    neither of them."""
     if fresh or rows * cols > PANEL_BUFFER_ELEMENTS:
-        return [np.empty((rows, cols)) for _ in range(3)]
-    return list(scratch_planes(rows, cols, 3))
+        return [np.empty((rows, cols)) for _ in range(2)]
+    return list(scratch_planes(rows, cols, 2))
+
+
+def _squared_distances(points, box, out):
+    """Squared distances from every point to every panel's centre and to its image in the ground, into the two
+    (M, N) planes ``out``. [m^2]
+
+    Each plane is one matrix product: with q the points and c the centres taken from a point on the ground
+    under the box (the centres' mean in plan), |q - c|^2 = |q|^2 + |c|^2 - 2 q . c is the product of the rows
+    (q, |q|^2, 1) and the columns (-2 c, 1, |c|^2); the image's centre is c with its height negated. Taken
+    from that point, |q|^2 + |c|^2 is at most (d + 2 R)^2 + R^2 for a pair a distance d apart in a box of
+    radius R, so the rounding is a few parts in 1e15 of the squared distance of any pair the panel's charge
+    is taken as a point for (d > five half-diagonals); nearer pairs are integrated exactly afterwards.
+    """
+    centre = box.centre
+    origin = np.array([float(np.mean(centre[:, 0])), float(np.mean(centre[:, 1])), 0.0])
+    q = points - origin
+    c = centre - origin
+    left = np.empty((len(q), 5))
+    left[:, :3] = q
+    left[:, 3] = _row_squares(q)
+    left[:, 4] = 1.0
+    right = np.empty((5, len(c)))
+    np.multiply(c.T, -2.0, out=right[:3])
+    right[3] = 1.0
+    right[4] = _row_squares(c)
+    np.matmul(left, right, out=out[0])
+    right[2] *= -1.0  # the images: the centres' heights negated
+    np.matmul(left, right, out=out[1])
+    return out
+
+
+def _row_squares(v):
+    """|v|^2 of each row of an (K, 3) array, added left to right. [m^2]"""
+    return (v[:, 0] * v[:, 0] + v[:, 1] * v[:, 1]) + v[:, 2] * v[:, 2]
 
 
 def _panels_potential(points, box, weights=None, keep: bool = True):
@@ -1150,39 +1184,23 @@ def _panels_potential(points, box, weights=None, keep: bool = True):
     ``weights``).
 
     A panel farther than ``BOX_NEAR_HALF_DIAGONALS`` of its half-diagonals is a point charge (area over
-    distance); nearer ones are integrated exactly (:func:`rectangle_potential_integral`). The squared plan
-    distances are shared by a panel and its image (and so is the short list of pairs near in plan, the only
-    ones that can be near), and the dense work is done in place in three arrays.
+    distance); nearer ones are integrated exactly (:func:`rectangle_potential_integral`). The squared
+    distances to the panels and to their images come from two matrix products (:func:`_squared_distances`),
+    and a pair can be near its image only where it is near the panel itself (the points and the panels are
+    above the ground), so the near pairs are looked for once.
     """
     reach2 = (BOX_NEAR_HALF_DIAGONALS ** 2) * (box.half_u ** 2 + box.half_v ** 2)
     area = 4.0 * box.half_u * box.half_v
-    p = np.asarray(points, dtype=float)
-    # the coordinates as contiguous columns (points down, panels across): each row a point's scalar against
-    # a contiguous row of panels, numpy's quickest broadcast
-    px, py, pz = (np.ascontiguousarray(p[:, k, None]) for k in range(3))
-    cx, cy = np.ascontiguousarray(box.centre[:, 0]), np.ascontiguousarray(box.centre[:, 1])
-    plan2, *parts = _panel_planes(len(p), len(box.centre), keep and weights is None)
-    np.subtract(px, cx, out=plan2)
-    plan2 *= plan2
-    np.subtract(py, cy, out=parts[0])
-    parts[0] *= parts[0]
-    plan2 += parts[0]  # squared plan distance
-    # the only pairs that can be near, for a panel or its image, as flat indices into the planes (gathers by
-    # one index are numpy's quick ``take``, where a pair of index arrays goes element by element)
-    flat = np.flatnonzero(plan2 <= reach2)
+    p = np.asarray(points, dtype=float).reshape(-1, 3)
+    parts = _squared_distances(p, box, _panel_planes(len(p), len(box.centre), keep and weights is None))
+    # the near pairs, as flat indices into the planes (gathers by one index are numpy's quick ``take``, where a
+    # pair of index arrays goes element by element)
+    flat = np.flatnonzero(parts[0] <= reach2)
     near_m, near_n = np.divmod(flat, len(box.centre))
-    plan2_near, reach2_near = plan2.reshape(-1).take(flat), reach2.take(near_n)
-    pz_near = pz.reshape(-1).take(near_m)
-    heights = (np.ascontiguousarray(box.centre[:, 2]), -box.centre[:, 2])  # panels, images
-    near = []
-    for part, cz in zip(parts, heights):
-        np.subtract(pz, cz, out=part)
-        part *= part
-        part += plan2  # squared distance
-        dz = pz_near - cz.take(near_n)
-        near.append(np.flatnonzero(dz * dz + plan2_near <= reach2_near))  # part <= reach2, looked at where it can hold
-        np.sqrt(part, out=part)
-        with np.errstate(divide="ignore"):  # a zero distance is a near pair, worked out exactly just below
+    near = [np.arange(flat.size), np.flatnonzero(parts[1].reshape(-1).take(flat) <= reach2.take(near_n))]
+    with np.errstate(divide="ignore", invalid="ignore"):  # a pair on one spot is near: worked out exactly below
+        for part in parts:
+            np.sqrt(part, out=part)
             np.divide(area, part, out=part)  # a point charge, far off
     _near_panels_exact(parts, near, flat, (near_m, near_n), p, box)
     np.subtract(parts[0], parts[1], out=parts[0])
