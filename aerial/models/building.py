@@ -708,6 +708,11 @@ def length_over_roof(start, end, footprint, roof_height_m) -> float:
     """
     s, e = np.atleast_2d(np.asarray(start, dtype=float)), np.atleast_2d(np.asarray(end, dtype=float))
     a = np.asarray(footprint, dtype=float)
+    lo, hi = np.minimum(s, e), np.maximum(s, e)
+    # a wire counts only where it rises above the roof and comes over the footprint's bounding box in plan
+    if not np.any((hi[:, 2] > roof_height_m) & np.all(hi[:, :2] >= a.min(axis=0), axis=1)
+                  & np.all(lo[:, :2] <= a.max(axis=0), axis=1)):
+        return 0.0
     ab = np.roll(a, -1, axis=0) - a
     d = (e - s)[:, None, :2]  # wires down, edges across
     denom = d[..., 0] * ab[None, :, 1] - d[..., 1] * ab[None, :, 0]
