@@ -708,10 +708,7 @@ def length_over_roof(start, end, footprint, roof_height_m) -> float:
     """
     s, e = np.atleast_2d(np.asarray(start, dtype=float)), np.atleast_2d(np.asarray(end, dtype=float))
     a = np.asarray(footprint, dtype=float)
-    lo, hi = np.minimum(s, e), np.maximum(s, e)
-    # a wire counts only where it rises above the roof and comes over the footprint's bounding box in plan
-    if not np.any((hi[:, 2] > roof_height_m) & np.all(hi[:, :2] >= a.min(axis=0), axis=1)
-                  & np.all(lo[:, :2] <= a.max(axis=0), axis=1)):
+    if not _may_cross_roof(s, e, a, roof_height_m):
         return 0.0
     ab = np.roll(a, -1, axis=0) - a
     d = (e - s)[:, None, :2]  # wires down, edges across
@@ -730,6 +727,25 @@ def length_over_roof(start, end, footprint, roof_height_m) -> float:
     mid = s[:, None, :] + mid_t[..., None] * (e - s)[:, None, :]
     inside = (plan_distance(mid[..., :2].reshape(-1, 2), a).reshape(mid_t.shape) <= 0.0) & (mid[..., 2] > roof_height_m)
     return float(np.sum(np.where(inside, np.diff(cuts, axis=1), 0.0) * np.linalg.norm(e - s, axis=1)[:, None]))
+
+
+def _may_cross_roof(s, e, footprint, roof_height_m) -> bool:
+    """Whether any wire ``s`` -> ``e`` (N, 3) [m] has a part above the roof's height [m] whose bounding box in plan
+    (widened by a micrometre against rounding) meets the footprint's: where none has, no wire runs over the roof."""
+    dz = e[:, 2] - s[:, 2]
+    # the part of each wire above the roof's height, as a range of its parameter (empty where it stays below)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t_roof = np.where(dz != 0.0, (roof_height_m - s[:, 2]) / np.where(dz == 0.0, 1.0, dz), 0.0)
+    t0 = np.where(dz > 0.0, np.clip(t_roof, 0.0, 1.0), 0.0)
+    t1 = np.where(dz < 0.0, np.clip(t_roof, 0.0, 1.0), 1.0)
+    above = (np.maximum(s[:, 2], e[:, 2]) > roof_height_m) & (t1 >= t0)
+    if not np.any(above):
+        return False
+    p0 = s[:, :2] + t0[:, None] * (e - s)[:, :2]
+    p1 = s[:, :2] + t1[:, None] * (e - s)[:, :2]
+    margin = 1e-6
+    return bool(np.any(above & np.all(np.maximum(p0, p1) >= footprint.min(axis=0) - margin, axis=1)
+                       & np.all(np.minimum(p0, p1) <= footprint.max(axis=0) + margin, axis=1)))
 
 
 def _facades(footprint, points_xy) -> tuple:
