@@ -902,7 +902,7 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     True
     """
     sol = _facade_solution(segments, body)
-    charge, phi, z, q_aer = sol["charge_c"], sol["field_height_m"], sol["height_m"][:, None], sol["aerial_charge_c"]
+    charge, phi, q_aer = sol["charge_c"], sol["field_height_m"], sol["aerial_charge_c"]
     h_wall, c_wall = float(np.sum(charge * phi) / q_aer), sol["capacitance_f"]
     s = np.array(body.shielding)
     he = shielding_blend(open_effective_height_m, h_wall, s)
@@ -910,8 +910,7 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     dynamic = {}
     if frequency is not None:
         f = np.atleast_1d(np.asarray(frequency, dtype=float))
-        factors = building_charge_factor(z, f, body, (0, 1, 2))  # the static field scaled in each case
-        wall_f = np.sum(charge[:, None] * scale_screened_field(phi[:, None], z, factors), axis=1) / q_aer
+        wall_f = _scaled_field_sums(charge, phi, sol["height_m"], f, body) / q_aer
         dynamic = {
             "effective_height_by_frequency_m": shielding_blend(open_effective_height_m, wall_f, s[:, None]),
             "facade_effective_height_by_frequency_m": wall_f,
@@ -927,6 +926,29 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
         "shielded_lead_m": sol["shielded_lead_m"],
         "notes": list(sol["notes"]),
     }
+
+
+def _scaled_field_sums(charge, phi, height, frequency, body: BuildingBody):
+    """sum_i q_i phi_i(f) over the charges for the three cases of :func:`building_charge_factor`, (3, F)
+    [C m]: the static field heights ``phi`` [m] at the charges' ``height`` [m] scaled by
+    :func:`scale_screened_field` at each ``frequency`` [Hz].
+
+    The building's factor is sin(k z)/(k z) times a function of the frequency alone, g_c(f)
+    (:func:`induced_charge_factor`: cos(delta) / cos(kH + delta), the bare line's 1 / cos(kH), and
+    g_1^2 / g_2 for case 0), and :func:`scale_screened_field` is linear in it, so the sum is
+    sum q phi (1 - S) + g_c(f) sum q phi S sin(k z)/(k z), S the screened share clip(1 - phi / z, 0, 1):
+    one (charges, frequencies) array instead of three, the same sum in another order.
+    """
+    dh, f_limit = _line_constants(body)
+    k, sinc = _height_sinc(np.reshape(height, (-1, 1)), np.minimum(frequency, f_limit), body.height_m)
+    loaded = _loaded_line(k, 1.0, body.height_m, dh)
+    bare = _loaded_line(k, 1.0, body.height_m, 0.0)
+    z = np.maximum(np.asarray(height, dtype=float), 0.0)
+    screened = np.clip(np.where(z > 0, 1.0 - phi / np.where(z > 0, z, 1.0), 0.0), 0.0, 1.0)
+    weight = charge * phi
+    static = float(np.sum(weight * (1.0 - screened)))
+    moving = (weight * screened) @ sinc  # (F,)
+    return static + np.stack([loaded * loaded / bare, loaded, bare]) * moving
 
 
 def _facade_solution(segments: Segments, body: BuildingBody) -> dict:
