@@ -708,6 +708,8 @@ def length_over_roof(start, end, footprint, roof_height_m) -> float:
     """
     s, e = np.atleast_2d(np.asarray(start, dtype=float)), np.atleast_2d(np.asarray(end, dtype=float))
     a = np.asarray(footprint, dtype=float)
+    if not _may_cross_roof(s, e, a, roof_height_m):
+        return 0.0
     ab = np.roll(a, -1, axis=0) - a
     d = (e - s)[:, None, :2]  # wires down, edges across
     denom = d[..., 0] * ab[None, :, 1] - d[..., 1] * ab[None, :, 0]
@@ -725,6 +727,25 @@ def length_over_roof(start, end, footprint, roof_height_m) -> float:
     mid = s[:, None, :] + mid_t[..., None] * (e - s)[:, None, :]
     inside = (plan_distance(mid[..., :2].reshape(-1, 2), a).reshape(mid_t.shape) <= 0.0) & (mid[..., 2] > roof_height_m)
     return float(np.sum(np.where(inside, np.diff(cuts, axis=1), 0.0) * np.linalg.norm(e - s, axis=1)[:, None]))
+
+
+def _may_cross_roof(s, e, footprint, roof_height_m) -> bool:
+    """Whether any wire ``s`` -> ``e`` (N, 3) [m] has a part above the roof's height [m] whose bounding box in plan
+    (widened by a micrometre against rounding) meets the footprint's: where none has, no wire runs over the roof."""
+    dz = e[:, 2] - s[:, 2]
+    # the part of each wire above the roof's height, as a range of its parameter (empty where it stays below)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t_roof = np.where(dz != 0.0, (roof_height_m - s[:, 2]) / np.where(dz == 0.0, 1.0, dz), 0.0)
+    t0 = np.where(dz > 0.0, np.clip(t_roof, 0.0, 1.0), 0.0)
+    t1 = np.where(dz < 0.0, np.clip(t_roof, 0.0, 1.0), 1.0)
+    above = (np.maximum(s[:, 2], e[:, 2]) > roof_height_m) & (t1 >= t0)
+    if not np.any(above):
+        return False
+    p0 = s[:, :2] + t0[:, None] * (e - s)[:, :2]
+    p1 = s[:, :2] + t1[:, None] * (e - s)[:, :2]
+    margin = 1e-6
+    return bool(np.any(above & np.all(np.maximum(p0, p1) >= footprint.min(axis=0) - margin, axis=1)
+                       & np.all(np.minimum(p0, p1) <= footprint.max(axis=0) + margin, axis=1)))
 
 
 def _facades(footprint, points_xy) -> tuple:
@@ -881,7 +902,7 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     True
     """
     sol = _facade_solution(segments, body)
-    charge, phi, z, q_aer = sol["charge_c"], sol["field_height_m"], sol["height_m"][:, None], sol["aerial_charge_c"]
+    charge, phi, q_aer = sol["charge_c"], sol["field_height_m"], sol["aerial_charge_c"]
     h_wall, c_wall = float(np.sum(charge * phi) / q_aer), sol["capacitance_f"]
     s = np.array(body.shielding)
     he = shielding_blend(open_effective_height_m, h_wall, s)
@@ -889,8 +910,7 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
     dynamic = {}
     if frequency is not None:
         f = np.atleast_1d(np.asarray(frequency, dtype=float))
-        factors = building_charge_factor(z, f, body, (0, 1, 2))  # the static field scaled in each case
-        wall_f = np.sum(charge[:, None] * scale_screened_field(phi[:, None], z, factors), axis=1) / q_aer
+        wall_f = _scaled_field_sums(charge, phi, sol["height_m"], f, body) / q_aer
         dynamic = {
             "effective_height_by_frequency_m": shielding_blend(open_effective_height_m, wall_f, s[:, None]),
             "facade_effective_height_by_frequency_m": wall_f,
@@ -906,6 +926,29 @@ def facade_static_figures(segments: Segments, body: BuildingBody, open_capacitan
         "shielded_lead_m": sol["shielded_lead_m"],
         "notes": list(sol["notes"]),
     }
+
+
+def _scaled_field_sums(charge, phi, height, frequency, body: BuildingBody):
+    """sum_i q_i phi_i(f) over the charges for the three cases of :func:`building_charge_factor`, (3, F)
+    [C m]: the static field heights ``phi`` [m] at the charges' ``height`` [m] scaled by
+    :func:`scale_screened_field` at each ``frequency`` [Hz].
+
+    The building's factor is sin(k z)/(k z) times a function of the frequency alone, g_c(f)
+    (:func:`induced_charge_factor`: cos(delta) / cos(kH + delta), the bare line's 1 / cos(kH), and
+    g_1^2 / g_2 for case 0), and :func:`scale_screened_field` is linear in it, so the sum is
+    sum q phi (1 - S) + g_c(f) sum q phi S sin(k z)/(k z), S the screened share clip(1 - phi / z, 0, 1):
+    one (charges, frequencies) array instead of three, the same sum in another order.
+    """
+    dh, f_limit = _line_constants(body)
+    k, sinc = _height_sinc(np.reshape(height, (-1, 1)), np.minimum(frequency, f_limit), body.height_m)
+    loaded = _loaded_line(k, 1.0, body.height_m, dh)
+    bare = _loaded_line(k, 1.0, body.height_m, 0.0)
+    z = np.maximum(np.asarray(height, dtype=float), 0.0)
+    screened = np.clip(np.where(z > 0, 1.0 - phi / np.where(z > 0, z, 1.0), 0.0), 0.0, 1.0)
+    weight = charge * phi
+    static = float(np.sum(weight * (1.0 - screened)))
+    moving = (weight * screened) @ sinc  # (F,)
+    return static + np.stack([loaded * loaded / bare, loaded, bare]) * moving
 
 
 def _facade_solution(segments: Segments, body: BuildingBody) -> dict:
@@ -1135,11 +1178,45 @@ PANEL_BUFFER_ELEMENTS = 1 << 17
 
 
 def _panel_planes(rows: int, cols: int, fresh: bool):
-    """Three (rows, cols) float planes: fresh arrays, or reused scratch when small enough and the caller keeps
-    none of them."""
+    """Two (rows, cols) float planes: fresh arrays, or reused scratch when small enough and the caller keeps
+    neither of them."""
     if fresh or rows * cols > PANEL_BUFFER_ELEMENTS:
-        return [np.empty((rows, cols)) for _ in range(3)]
-    return list(scratch_planes(rows, cols, 3))
+        return [np.empty((rows, cols)) for _ in range(2)]
+    return list(scratch_planes(rows, cols, 2))
+
+
+def _squared_distances(points, box, out):
+    """Squared distances from every point to every panel's centre and to its image in the ground, into the two
+    (M, N) planes ``out``. [m^2]
+
+    Each plane is one matrix product: with q the points and c the centres taken from a point on the ground
+    under the box (the centres' mean in plan), |q - c|^2 = |q|^2 + |c|^2 - 2 q . c is the product of the rows
+    (q, |q|^2, 1) and the columns (-2 c, 1, |c|^2); the image's centre is c with its height negated. Taken
+    from that point, |q|^2 + |c|^2 is at most (d + 2 R)^2 + R^2 for a pair a distance d apart in a box of
+    radius R, so the rounding is a few parts in 1e15 of the squared distance of any pair the panel's charge
+    is taken as a point for (d > five half-diagonals); nearer pairs are integrated exactly afterwards.
+    """
+    centre = box.centre
+    origin = np.array([float(np.mean(centre[:, 0])), float(np.mean(centre[:, 1])), 0.0])
+    q = points - origin
+    c = centre - origin
+    left = np.empty((len(q), 5))
+    left[:, :3] = q
+    left[:, 3] = _row_squares(q)
+    left[:, 4] = 1.0
+    right = np.empty((5, len(c)))
+    np.multiply(c.T, -2.0, out=right[:3])
+    right[3] = 1.0
+    right[4] = _row_squares(c)
+    np.matmul(left, right, out=out[0])
+    right[2] *= -1.0  # the images: the centres' heights negated
+    np.matmul(left, right, out=out[1])
+    return out
+
+
+def _row_squares(v):
+    """|v|^2 of each row of an (K, 3) array, added left to right. [m^2]"""
+    return (v[:, 0] * v[:, 0] + v[:, 1] * v[:, 1]) + v[:, 2] * v[:, 2]
 
 
 def _panels_potential(points, box, weights=None, keep: bool = True):
@@ -1150,39 +1227,23 @@ def _panels_potential(points, box, weights=None, keep: bool = True):
     ``weights``).
 
     A panel farther than ``BOX_NEAR_HALF_DIAGONALS`` of its half-diagonals is a point charge (area over
-    distance); nearer ones are integrated exactly (:func:`rectangle_potential_integral`). The squared plan
-    distances are shared by a panel and its image (and so is the short list of pairs near in plan, the only
-    ones that can be near), and the dense work is done in place in three arrays.
+    distance); nearer ones are integrated exactly (:func:`rectangle_potential_integral`). The squared
+    distances to the panels and to their images come from two matrix products (:func:`_squared_distances`),
+    and a pair can be near its image only where it is near the panel itself (the points and the panels are
+    above the ground), so the near pairs are looked for once.
     """
     reach2 = (BOX_NEAR_HALF_DIAGONALS ** 2) * (box.half_u ** 2 + box.half_v ** 2)
     area = 4.0 * box.half_u * box.half_v
-    p = np.asarray(points, dtype=float)
-    # the coordinates as contiguous columns (points down, panels across): each row a point's scalar against
-    # a contiguous row of panels, numpy's quickest broadcast
-    px, py, pz = (np.ascontiguousarray(p[:, k, None]) for k in range(3))
-    cx, cy = np.ascontiguousarray(box.centre[:, 0]), np.ascontiguousarray(box.centre[:, 1])
-    plan2, *parts = _panel_planes(len(p), len(box.centre), keep and weights is None)
-    np.subtract(px, cx, out=plan2)
-    plan2 *= plan2
-    np.subtract(py, cy, out=parts[0])
-    parts[0] *= parts[0]
-    plan2 += parts[0]  # squared plan distance
-    # the only pairs that can be near, for a panel or its image, as flat indices into the planes (gathers by
-    # one index are numpy's quick ``take``, where a pair of index arrays goes element by element)
-    flat = np.flatnonzero(plan2 <= reach2)
+    p = np.asarray(points, dtype=float).reshape(-1, 3)
+    parts = _squared_distances(p, box, _panel_planes(len(p), len(box.centre), keep and weights is None))
+    # the near pairs, as flat indices into the planes (gathers by one index are numpy's quick ``take``, where a
+    # pair of index arrays goes element by element)
+    flat = np.flatnonzero(parts[0] <= reach2)
     near_m, near_n = np.divmod(flat, len(box.centre))
-    plan2_near, reach2_near = plan2.reshape(-1).take(flat), reach2.take(near_n)
-    pz_near = pz.reshape(-1).take(near_m)
-    heights = (np.ascontiguousarray(box.centre[:, 2]), -box.centre[:, 2])  # panels, images
-    near = []
-    for part, cz in zip(parts, heights):
-        np.subtract(pz, cz, out=part)
-        part *= part
-        part += plan2  # squared distance
-        dz = pz_near - cz.take(near_n)
-        near.append(np.flatnonzero(dz * dz + plan2_near <= reach2_near))  # part <= reach2, looked at where it can hold
-        np.sqrt(part, out=part)
-        with np.errstate(divide="ignore"):  # a zero distance is a near pair, worked out exactly just below
+    near = [np.arange(flat.size), np.flatnonzero(parts[1].reshape(-1).take(flat) <= reach2.take(near_n))]
+    with np.errstate(divide="ignore", invalid="ignore"):  # a pair on one spot is near: worked out exactly below
+        for part in parts:
+            np.sqrt(part, out=part)
             np.divide(area, part, out=part)  # a point charge, far off
     _near_panels_exact(parts, near, flat, (near_m, near_n), p, box)
     np.subtract(parts[0], parts[1], out=parts[0])

@@ -86,7 +86,7 @@ from aerial.core.lengthtext import metres
 from aerial.core.records import NamedTuple
 from aerial.models.groundwave import complex_relative_permittivity
 from aerial.models.short_aerial import ETA0
-from aerial.models.special_functions import ellipe_into, exp1
+from aerial.models.special_functions import exp1
 
 __all__ = ["soil_surface_impedance", "wait_screen_impedance", "radial_screen_impedance", "vertical_ground_field",
            "radial_screen_loss", "RadialScreenLoss", "FAR_WAVELENGTHS", "static_ground_field", "screen_loss_of_field",
@@ -497,34 +497,78 @@ def _ring_charge_density(s, z, q, rr):
     -----
     The ring integral of :func:`static_ground_field` (its Notes) for every radius and charge, the
     (N, M) values in blocks of radii, each block summed over the charges with their shares at once:
-    the trapezoid rule from the hub then runs once over the sum instead of once per charge. The
-    charges' s^2 + z^2 and their shares times z 4 / (2 pi) are taken once for every block, and the
-    factor r' once for each radius after the sum. A + B > 0 everywhere, as z > 0. Every block works
-    in the same reused scratch planes (:func:`aerial.core.arrays.scratch_planes`), the elliptic
-    integral's steps too (:func:`aerial.models.special_functions.ellipe_into`).
+    the trapezoid rule from the hub then runs once over the sum instead of once per charge.
+
+    The elliptic integral is taken by the arithmetic-geometric mean in its homogeneous form (A&S
+    17.6.3, 17.6.4 with every term scaled by d+): with d+^2 = A + B and d-^2 = A - B (the largest and
+    the smallest squared distance from the charge to the ring), a_0 = d+, b_0 = d-, C_n = (a_(n-1) -
+    b_(n-1)) / 2 and S = B + sum_(n>=1) 2^(n-1) C_n^2 (the first term, 2^-1 C_0^2 = d+^2 m / 2, is B),
+    K(m) = pi d+ / (2 a_N) and E(m) = K (1 - S / d+^2), so that::
+
+        4 E(m) / ((A - B) sqrt(A + B)) = 2 pi (A + B - S) / (a_N (A - B) (A + B))
+
+    with no division to form m and no square root of A + B apart from d+ itself. The mean stops when
+    every term 2^(n-1) C_n^2 is below a quarter ulp of the smallest d+^2 of the block (E's own
+    rounding). The charges' s^2 + z^2 and their shares times z are taken once for every block, and
+    the factor r' once for each radius after the sum. A - B > 0 everywhere, as z > 0. Every block
+    works in the same reused scratch planes (:func:`aerial.core.arrays.scratch_planes`).
+
+    References
+    ----------
+    M. Abramowitz and I. A. Stegun, *Handbook of Mathematical Functions*, 1964, 17.6.3 and 17.6.4
+    (the arithmetic-geometric mean for K and E); checked against ``scipy.special.ellipe`` in
+    tests/models/test_radial_screen.py. (from memory)
     """
     out = np.empty(rr.size)
     step = max(1, RING_BLOCK_ELEMENTS // max(s.size, 1))
     s2z2 = s * s + z * z
-    weight = q * z * (4.0 / (2 * np.pi))
-    planes = scratch_planes(min(step, rr.size), s.size, 10)
-    for i in range(0, rr.size, step):
-        r = rr[i:i + step, None]
-        a, b, apb, m, ring, *work = (plane[:len(r)] for plane in planes)
-        np.multiply(r, r, out=a)
-        a += s2z2                                      # r'^2 + s^2 + z^2
-        np.multiply(2 * r, s, out=b)                   # 2 r' s
-        np.add(a, b, out=apb)
-        np.multiply(2, b, out=m)
-        m /= apb
-        ellipe_into(m, ring, work)
-        np.sqrt(apb, out=apb)
-        a -= b
-        a *= apb
-        ring /= a                                      # E(m) / ((A - B) sqrt(A + B))
-        np.dot(ring, weight, out=out[i:i + step])
+    z2 = z * z
+    weight = q * z  # q z 4 / (2 pi) times the pi / 2 of K
+    planes = scratch_planes(min(step, rr.size), s.size, 6)
+    with np.errstate(all="ignore"):  # a charge on the ground (A - B = 0) is caught just below
+        for i in range(0, rr.size, step):
+            _ring_block(rr[i:i + step, None], s, s2z2, z2, weight, planes, out[i:i + step])
+    if not np.all(np.isfinite(out)):
+        raise ModelInputError("a charge lies on the ground (its height is zero against its distance from the hub): "
+                              "the ground's ring integral has no value there")
     out *= rr                                          # sum of q z r' / (2 pi) * 4 E(m) / ((A - B) sqrt(A + B))
     return out
+
+
+def _ring_block(r, s, s2z2, z2, weight, planes, out):
+    """:func:`_ring_charge_density` at the radii ``r`` (a column, (N, 1)) [m], before the factor r', into
+    ``out`` (N,); ``planes``: its scratch planes, six of at least (N, M)."""
+    plus, minus, total, a, b, c = (plane[:len(r)] for plane in planes)
+    np.add(r * r, s2z2, out=minus)                 # A = r'^2 + s^2 + z^2
+    np.multiply(2 * r, s, out=total)               # B = 2 r' s, the first term of S
+    np.add(minus, total, out=plus)                 # A + B = d+^2
+    minus -= total                                 # A - B = d-^2
+    np.sqrt(plus, out=a)
+    np.sqrt(minus, out=b)
+    shift = float(r[0, 0]) + s                     # the block's smallest d+^2 is at its smallest radius
+    limit = 0.25 * _EPS * float(np.min(shift * shift + z2))
+    scale = 0.5
+    for _ in range(64):
+        np.subtract(a, b, out=c)
+        c *= 0.5                                   # C_n
+        b *= a
+        np.sqrt(b, out=b)                          # b_n = sqrt(a_(n-1) b_(n-1))
+        a -= c                                     # a_n = (a_(n-1) + b_(n-1)) / 2
+        scale *= 2.0
+        c *= c
+        c *= scale
+        total += c                                 # S += 2^(n-1) C_n^2
+        if c.max() <= limit:
+            break
+    np.subtract(plus, total, out=c)                # A + B - S
+    a *= minus
+    a *= plus
+    c /= a                                         # 2 E(m) / (pi (A - B) sqrt(A + B))
+    np.dot(c, weight, out=out)
+
+
+#: Half the spacing of doubles at 1. [1]
+_EPS = 2.0 ** -53
 
 
 def screen_loss_of_field(frequency, distance, field, count, radial_length, wire_radius, conductivity,
