@@ -404,16 +404,27 @@ def station_levels_stack(frequency, open_circuit_voltage, za: Callable, parts_st
                                         0.0, np.concatenate([g, np.zeros_like(g)]), outputs=net_mod.RETUNED_FIELDS)
     w = 2.0 * np.pi * fs
     c = np.maximum(-np.imag(1.0 / first.top_impedance[:n_p]) / w, 0.0)
-    bare = net_mod.solve_network_stack(fs, z_s, plan, c, 0.0, outputs=("detector_voltage", "detector_impedance"))
-    v, r_in, ok = detector_level(v_oc * np.abs(bare.detector_voltage), bare.detector_impedance, diode, load,
-                                 table=table)
+    open_net = net_mod.NetworkSolution(*(None if x is None else x[n_p:] for x in first))
+    tuned_v, tuned_z = _with_capacitor(open_net, w, c)
+    v, r_in, ok = detector_level(v_oc * np.abs(tuned_v), tuned_z, diode, load, table=table)
     g = 1.0 / r_in
-    open_net = net_mod.NetworkSolution(*(None if x is None else x[n_p:, np.newaxis, :] for x in first))
+    open_net = net_mod.NetworkSolution(*(None if x is None else x[:, np.newaxis, :] for x in open_net))
     cross = net_mod.retuned_detector_voltage(open_net, fs[np.newaxis, np.newaxis, :], c[:, :, np.newaxis],
                                              g[:, :, np.newaxis])
     others = v_oc[..., np.newaxis, :] * np.abs(cross)
     zero = np.zeros_like(c)
     return StationLevels(c, v, r_in, zero, ok, zero, zero, others)
+
+
+def _with_capacitor(bare, w, c) -> tuple:
+    """The detector voltage and the detector's driving-point impedance of a bare network (no capacitor, no
+    detector: a solve with :data:`aerial.models.network.RETUNED_FIELDS`) with a tuning capacitor ``c`` [F]
+    added across the coil at angular frequency ``w`` [rad/s]: a change of rank one, by the Sherman–Morrison
+    formula (as :func:`aerial.models.network.retuned_detector_voltage`, with no detector conductance), which
+    spares a second solve of the network."""
+    d = 1j * w * c
+    k = bare.detector_per_top_current * (d / (1.0 + d * bare.top_impedance))
+    return bare.detector_voltage - k * bare.top_voltage, bare.detector_impedance - k * bare.top_per_detector_current
 
 
 def rejection_stack(frequency, za: Callable, parts_stack, detector_conductance, offsets) -> dict:
