@@ -460,14 +460,17 @@ def rejection_stack(frequency, za: Callable, parts_stack, detector_conductance, 
     f0 = np.asarray(frequency, dtype=float)
     g = np.asarray(detector_conductance, dtype=float)
     plan = parts_stack if isinstance(parts_stack, net_mod.NetworkStack) else net_mod.plan_network_stack(parts_stack)
-    s = net_mod.solve_network_stack(f0, za(f0), plan, 0.0, g, outputs=("top_impedance",))
-    c_pos = np.maximum(-np.imag(1.0 / s.top_impedance) / (2.0 * np.pi * f0), 0.0)
     n = f0.size
     probes = [f0] + [p for d in offsets for p in (np.maximum(f0 - d, f0 * 1e-3), f0 + d)]
     every = np.concatenate(probes)
-    levels = np.abs(net_mod.solve_network_stack(every, za(every), plan, np.tile(c_pos, (1, len(probes))),
-                                                np.tile(g, (1, len(probes))),
-                                                outputs=("detector_voltage",)).detector_voltage)
+    # one bare solve at every probe (the tuned frequencies first); the detector's conductance and the
+    # tuning capacitor added to it as changes of rank one and two (network.retuned_detector_voltage)
+    bare = net_mod.solve_network_stack(every, za(every), plan, 0.0, 0.0, outputs=net_mod.RETUNED_FIELDS)
+    z_dt, z_td = bare.detector_per_top_current[:, :n], bare.top_per_detector_current[:, :n]
+    z_top = bare.top_impedance[:, :n] - z_td * (g / (1.0 + g * bare.detector_impedance[:, :n])) * z_dt
+    c_pos = np.maximum(-np.imag(1.0 / z_top) / (2.0 * np.pi * f0), 0.0)
+    reps = len(probes)
+    levels = np.abs(net_mod.retuned_detector_voltage(bare, every, np.tile(c_pos, (1, reps)), np.tile(g, (1, reps))))
     tuned = levels[:, :n]
     return {d: net_mod.rejection_db(tuned, (levels[:, (1 + 2 * k) * n:(2 + 2 * k) * n],
                                             levels[:, (2 + 2 * k) * n:(3 + 2 * k) * n]))
