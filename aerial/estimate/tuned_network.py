@@ -382,9 +382,10 @@ def station_levels_stack(frequency, open_circuit_voltage, za: Callable, parts_st
     Notes
     -----
     The same steps as :func:`station_levels`, each taken for every network together
-    (:func:`aerial.models.network.solve_network_stack`): the weak-signal tuning and the bare
-    network in one stacked solve, the tuned network in a second, the detector's operating point
-    of every network and station in one bisection.
+    (:func:`aerial.models.network.solve_network_stack`): one stacked solve of the bare networks, the
+    weak-signal tuning and the tuned networks from it (the detector's conductance and the capacitor
+    added as changes of rank one), the detector's operating point of every network and station in one
+    bisection.
 
     Examples
     --------
