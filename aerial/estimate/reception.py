@@ -1585,17 +1585,21 @@ def _table_rows(table_f, arr, warnings, parts) -> list:
         [np.asarray(v) for v in list(arr["rejection"].values()) + list(arr["rejection_weak"].values())]
     # every figure finite and within range (the usual case): the cells as they are, without a check each
     plain = all(bool(np.all(np.abs(v) <= CLAMP)) for v in numeric)
-    num = (lambda value, name, said: float(value)) if plain else _num
+    names = ("frequency_hz",) + _ROW_KEYS + tuple(key for key, _ in rejections)
+    within = [bool(v) for v in col["within"]]
+    freqs = np.asarray(table_f).tolist()
+    if plain:  # the cells as they are, a column at a time
+        cells = zip(*([np.asarray(freqs, dtype=float).tolist()] +
+                      [within if key == "within_capacitor_range" else np.asarray(col[key], dtype=float).tolist()
+                       for key in _ROW_KEYS] + [np.asarray(values, dtype=float).tolist() for _, values in rejections]))
+    else:  # each cell checked (and clamped, with a warning), a row at a time
+        cells = ([_num(fi, "frequency_hz", warnings)] +
+                 [within[i] if key == "within_capacitor_range" else _num(col[key][i], key, warnings)
+                  for key in _ROW_KEYS] + [_num(values[i], "rejection", warnings) for _, values in rejections]
+                 for i, fi in enumerate(freqs))
     rows = []
-    for i, fi in enumerate(np.asarray(table_f).tolist()):
-        row = {"frequency_hz": num(fi, "frequency_hz", warnings)}
-        for key in _ROW_KEYS:
-            if key == "within_capacitor_range":
-                row[key] = bool(col["within"][i])
-            else:
-                row[key] = num(col[key][i], key, warnings)
-        for key, values in rejections:
-            row[key] = num(values[i], "rejection", warnings)
+    for i, values in enumerate(cells):
+        row = dict(zip(names, values))
         tunable, resonates, reason = _row_tunability(col["capacitor_setting_f"][i], col["total_capacitance_f"][i],
                                                      col["aerial_shunt_capacitance_f"][i], parts,
                                                      bool(col["aerial_inductive"][i]))

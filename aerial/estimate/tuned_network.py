@@ -329,15 +329,18 @@ def station_levels(frequency, open_circuit_voltage, za: Callable, parts: net_mod
     z_s = za(fs)
     g = np.full(fs.shape, weak_signal_conductance(diode))
     converged = True
+    w = 2.0 * np.pi * fs
+    # one solve of the bare network (no capacitor, no detector) serves every pass and the cross levels: the
+    # detector's conductance and the capacitor are added to it as changes of rank one
+    open_net = net_mod.solve_network(fs, z_s, parts, 0.0, 0.0)
     for _ in range(max(int(passes), 1)):
-        c = np.maximum(net_mod.tuning_capacitance_for(fs, z_s, parts, g), 0.0)
-        bare = net_mod.solve_network(fs, z_s, parts, c, 0.0)
-        v, r_in, ok = detector_level(v_oc * np.abs(bare.detector_voltage), bare.detector_impedance, diode, load,
-                                     table=table)
+        c = np.maximum(_tuning_capacitance(open_net, w, g), 0.0)
+        tuned_v, tuned_z = _with_capacitor(open_net, w, c)
+        v, r_in, ok = detector_level(v_oc * np.abs(tuned_v), tuned_z, diode, load, table=table)
         g = 1.0 / r_in
         converged = ok
     if bandwidth:
-        c_raw = net_mod.tuning_capacitance_for(fs, z_s, parts, g)
+        c_raw = _tuning_capacitance(open_net, w, g)
         tuned = net_mod.solve_network(fs, z_s, parts, c, g)  # its detector voltage is detector_response's, bit for bit
         top = v_oc * np.abs(tuned.top_voltage)
     else:  # a design search: the tuning of the last pass and no top voltage
@@ -350,8 +353,7 @@ def station_levels(frequency, open_circuit_voltage, za: Callable, parts: net_mod
         _no_edges(fs)
     # every station j through the network tuned to station i: one bare solve per station, each tuning
     # added as a change of rank two (network.retuned_detector_voltage)
-    cross = net_mod.retuned_detector_voltage(net_mod.solve_network(fs, z_s, parts, 0.0, 0.0), fs[np.newaxis, :],
-                                             c[:, np.newaxis], g[:, np.newaxis])
+    cross = net_mod.retuned_detector_voltage(open_net, fs[np.newaxis, :], c[:, np.newaxis], g[:, np.newaxis])
     others = v_oc[np.newaxis, :] * np.abs(cross)
     return StationLevels(c_raw, v, r_in, top, converged, edges.loaded_q, edges.bandwidth, others)
 
@@ -380,9 +382,10 @@ def station_levels_stack(frequency, open_circuit_voltage, za: Callable, parts_st
     Notes
     -----
     The same steps as :func:`station_levels`, each taken for every network together
-    (:func:`aerial.models.network.solve_network_stack`): the weak-signal tuning and the bare
-    network in one stacked solve, the tuned network in a second, the detector's operating point
-    of every network and station in one bisection.
+    (:func:`aerial.models.network.solve_network_stack`): one stacked solve of the bare networks, the
+    weak-signal tuning and the tuned networks from it (the detector's conductance and the capacitor
+    added as changes of rank one), the detector's operating point of every network and station in one
+    bisection.
 
     Examples
     --------
@@ -399,21 +402,40 @@ def station_levels_stack(frequency, open_circuit_voltage, za: Callable, parts_st
     n_p = plan.size
     z_s = za(fs) if callable(za) else np.asarray(za, dtype=complex)
     g = np.full((n_p,) + fs.shape, weak_signal_conductance(diode))
-    # the weak-signal tuning and the bare network (no capacitor, no detector) in one stacked solve
-    first = net_mod.solve_network_stack(fs, np.concatenate([z_s, z_s]) if z_s.ndim == 2 else z_s, plan.repeated(2),
-                                        0.0, np.concatenate([g, np.zeros_like(g)]), outputs=net_mod.RETUNED_FIELDS)
+    # one stacked solve of the bare networks (no capacitor, no detector); the detector's weak-signal
+    # conductance and the tuning capacitor added to it as changes of rank one
+    open_net = net_mod.solve_network_stack(fs, z_s, plan, 0.0, 0.0, outputs=net_mod.RETUNED_FIELDS)
     w = 2.0 * np.pi * fs
-    c = np.maximum(-np.imag(1.0 / first.top_impedance[:n_p]) / w, 0.0)
-    bare = net_mod.solve_network_stack(fs, z_s, plan, c, 0.0, outputs=("detector_voltage", "detector_impedance"))
-    v, r_in, ok = detector_level(v_oc * np.abs(bare.detector_voltage), bare.detector_impedance, diode, load,
-                                 table=table)
+    c = np.maximum(_tuning_capacitance(open_net, w, g), 0.0)
+    tuned_v, tuned_z = _with_capacitor(open_net, w, c)
+    v, r_in, ok = detector_level(v_oc * np.abs(tuned_v), tuned_z, diode, load, table=table)
     g = 1.0 / r_in
-    open_net = net_mod.NetworkSolution(*(None if x is None else x[n_p:, np.newaxis, :] for x in first))
+    open_net = net_mod.NetworkSolution(*(None if x is None else x[:, np.newaxis, :] for x in open_net))
     cross = net_mod.retuned_detector_voltage(open_net, fs[np.newaxis, np.newaxis, :], c[:, :, np.newaxis],
                                              g[:, :, np.newaxis])
     others = v_oc[..., np.newaxis, :] * np.abs(cross)
     zero = np.zeros_like(c)
     return StationLevels(c, v, r_in, zero, ok, zero, zero, others)
+
+
+def _tuning_capacitance(bare, w, g):
+    """:func:`aerial.models.network.tuning_capacitance_for` with detector conductance ``g`` [S], from a bare
+    network's solve (:data:`aerial.models.network.RETUNED_FIELDS`): the top's impedance with the conductance
+    added at the detector's tap (a change of rank one, by the Sherman–Morrison formula). [F]"""
+    z_top = bare.top_impedance - bare.top_per_detector_current * (g / (1.0 + g * bare.detector_impedance)) * \
+        bare.detector_per_top_current
+    return -np.imag(1.0 / z_top) / w
+
+
+def _with_capacitor(bare, w, c) -> tuple:
+    """The detector voltage and the detector's driving-point impedance of a bare network (no capacitor, no
+    detector: a solve with :data:`aerial.models.network.RETUNED_FIELDS`) with a tuning capacitor ``c`` [F]
+    added across the coil at angular frequency ``w`` [rad/s]: a change of rank one, by the Sherman–Morrison
+    formula (as :func:`aerial.models.network.retuned_detector_voltage`, with no detector conductance), which
+    spares a second solve of the network."""
+    d = 1j * w * c
+    k = bare.detector_per_top_current * (d / (1.0 + d * bare.top_impedance))
+    return bare.detector_voltage - k * bare.top_voltage, bare.detector_impedance - k * bare.top_per_detector_current
 
 
 def rejection_stack(frequency, za: Callable, parts_stack, detector_conductance, offsets) -> dict:
@@ -449,14 +471,16 @@ def rejection_stack(frequency, za: Callable, parts_stack, detector_conductance, 
     f0 = np.asarray(frequency, dtype=float)
     g = np.asarray(detector_conductance, dtype=float)
     plan = parts_stack if isinstance(parts_stack, net_mod.NetworkStack) else net_mod.plan_network_stack(parts_stack)
-    s = net_mod.solve_network_stack(f0, za(f0), plan, 0.0, g, outputs=("top_impedance",))
-    c_pos = np.maximum(-np.imag(1.0 / s.top_impedance) / (2.0 * np.pi * f0), 0.0)
     n = f0.size
     probes = [f0] + [p for d in offsets for p in (np.maximum(f0 - d, f0 * 1e-3), f0 + d)]
     every = np.concatenate(probes)
-    levels = np.abs(net_mod.solve_network_stack(every, za(every), plan, np.tile(c_pos, (1, len(probes))),
-                                                np.tile(g, (1, len(probes))),
-                                                outputs=("detector_voltage",)).detector_voltage)
+    # one bare solve at every probe (the tuned frequencies first); the detector's conductance and the
+    # tuning capacitor added to it as changes of rank one and two (network.retuned_detector_voltage)
+    bare = net_mod.solve_network_stack(every, za(every), plan, 0.0, 0.0, outputs=net_mod.RETUNED_FIELDS)
+    at_f0 = net_mod.NetworkSolution(*(None if x is None else x[:, :n] for x in bare))
+    c_pos = np.maximum(_tuning_capacitance(at_f0, 2.0 * np.pi * f0, g), 0.0)
+    reps = len(probes)
+    levels = np.abs(net_mod.retuned_detector_voltage(bare, every, np.tile(c_pos, (1, reps)), np.tile(g, (1, reps))))
     tuned = levels[:, :n]
     return {d: net_mod.rejection_db(tuned, (levels[:, (1 + 2 * k) * n:(2 + 2 * k) * n],
                                             levels[:, (2 + 2 * k) * n:(3 + 2 * k) * n]))
