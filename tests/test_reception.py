@@ -492,3 +492,36 @@ def test_a_broad_tank_hears_the_local_across_the_whole_dial_in_every_output(caps
              "tuning is too broad to tune it out")
     assert words in out.replace("\u00a0", " ")
     assert words in page.read_text(encoding="utf-8").replace("\u00a0", " ")
+
+
+def test_consistency_a_table_cell_out_of_range_is_clamped_with_a_warning_and_the_rest_kept(monkeypatch):
+    """The tuning table's rows written cell by cell (a figure not finite or past the clamp) against the rows
+    written a column at a time (every figure fine): the same rows but for the bad cells, each clamped (a NaN to 0,
+    1e300 to the clamp) and named in a warning. The aerial and parts are the hand-worked case above (invented)."""
+    import aerial.estimate.reception as rec
+
+    plain = design_tuning(*capacitive_aerial(200e-12), HAND, band=(550e3, 1100e3))
+    arrays = rec._table_arrays
+
+    def spoilt(table_f, aerial, coil, parts):
+        arr = arrays(table_f, aerial, coil, parts)
+        arr["loaded_q"] = np.array(arr["loaded_q"], dtype=float)
+        arr["loaded_q"][1] = np.nan
+        arr["bandwidth_hz"] = np.array(arr["bandwidth_hz"], dtype=float)
+        arr["bandwidth_hz"][2] = 1e300
+        return arr
+
+    monkeypatch.setattr(rec, "_table_arrays", spoilt)
+    checked = design_tuning(*capacitive_aerial(200e-12), HAND, band=(550e3, 1100e3))
+    assert [list(r) for r in checked["rows"]] == [list(r) for r in plain["rows"]]  # the same keys, in order
+    for i, (a, b) in enumerate(zip(checked["rows"], plain["rows"])):
+        for key, value in a.items():
+            if (i, key) == (1, "loaded_q"):
+                assert value == 0.0
+            elif (i, key) == (2, "bandwidth_hz"):
+                assert value == rec.CLAMP
+            elif key not in ("useful_resonance", "loaded_q_note"):  # follow the spoilt Q
+                assert value == b[key], (i, key)
+    said = " ".join(checked.get("warnings", []))
+    assert "loaded_q was not finite or out of range and was clamped to 0" in said
+    assert "bandwidth_hz was not finite or out of range and was clamped to 1e+30" in said
