@@ -330,3 +330,23 @@ def test_consistency_detector_level_is_the_plain_bisection():
                               done=lambda g, b: bool((b / g - 1.0 <= 1e-9).all()))
         v, r, ok = tn.detector_level(v0, z, d, 2000.0, table=tab)
         assert ok and np.array_equal(v, np.sqrt(lo * hi))
+
+
+def test_consistency_rank_one_retuning_is_the_direct_solve():
+    """The station design's short cuts from a bare network's solve -- the tuning capacitance with the detector's
+    conductance added, and the detector's voltage and impedance with the tuning capacitor added -- against the
+    network solved again with them in place (the Sherman–Morrison formula: Golub & Van Loan, Matrix
+    Computations, 3rd ed., section 2.1.3; the direct solve is numpy's LU). Parts are an invented demo set."""
+    from aerial.estimate.tuned_network import _tuning_capacitance, _with_capacitor
+    from aerial.models.network import NetworkParts, solve_network, tuning_capacitance_for
+
+    p = NetworkParts("coil tap", 240e-6, 8.0, detector_tap=0.5, aerial_tap=0.2)
+    f = np.array([6e5, 8e5, 1e6, 1.4e6])
+    za = np.array([30 - 1100j, 30 - 900j, 35 - 700j, 40 - 450j])
+    w, g, c = 2 * np.pi * f, 2e-4, np.array([300e-12, 150e-12, 90e-12, 40e-12])
+    bare = solve_network(f, za, p)
+    assert np.allclose(_tuning_capacitance(bare, w, g), tuning_capacitance_for(f, za, p, g), rtol=1e-12, atol=0)
+    v, z = _with_capacitor(bare, w, c)
+    direct = solve_network(f, za, p, c)
+    assert np.allclose(v, direct.detector_voltage, rtol=1e-12, atol=0)
+    assert np.allclose(z, direct.detector_impedance, rtol=1e-12, atol=0)

@@ -421,7 +421,13 @@ def station_levels_stack(frequency, open_circuit_voltage, za: Callable, parts_st
 def _tuning_capacitance(bare, w, g):
     """:func:`aerial.models.network.tuning_capacitance_for` with detector conductance ``g`` [S], from a bare
     network's solve (:data:`aerial.models.network.RETUNED_FIELDS`): the top's impedance with the conductance
-    added at the detector's tap (a change of rank one, by the Sherman–Morrison formula). [F]"""
+    added at the detector's tap (a change of rank one, by the Sherman–Morrison formula). [F]
+
+    References
+    ----------
+    G. H. Golub, C. F. Van Loan, Matrix Computations, 3rd ed., 1996, section 2.1.3 (the Sherman–Morrison
+    formula); checked against a direct solve in tests/test_station_design.py.
+    """
     z_top = bare.top_impedance - bare.top_per_detector_current * (g / (1.0 + g * bare.detector_impedance)) * \
         bare.detector_per_top_current
     return -np.imag(1.0 / z_top) / w
@@ -432,7 +438,13 @@ def _with_capacitor(bare, w, c) -> tuple:
     detector: a solve with :data:`aerial.models.network.RETUNED_FIELDS`) with a tuning capacitor ``c`` [F]
     added across the coil at angular frequency ``w`` [rad/s]: a change of rank one, by the Sherman–Morrison
     formula (as :func:`aerial.models.network.retuned_detector_voltage`, with no detector conductance), which
-    spares a second solve of the network."""
+    spares a second solve of the network. Detector voltage per volt of aerial EMF [1]; impedance [ohm].
+
+    References
+    ----------
+    G. H. Golub, C. F. Van Loan, Matrix Computations, 3rd ed., 1996, section 2.1.3 (the Sherman–Morrison
+    formula); checked against a direct solve in tests/test_station_design.py.
+    """
     d = 1j * w * c
     k = bare.detector_per_top_current * (d / (1.0 + d * bare.top_impedance))
     return bare.detector_voltage - k * bare.top_voltage, bare.detector_impedance - k * bare.top_per_detector_current
