@@ -6,8 +6,6 @@ value, so a caller (or the command line) can say exactly what was wrong.
 
 from __future__ import annotations
 
-import math
-
 import numpy as np
 
 from aerial.core.errors import ModelInputError
@@ -24,17 +22,15 @@ def positive(name: str, value, allow_zero: bool = False) -> np.ndarray:
     aerial.core.errors.ModelInputError: radius must be finite and positive; got -1.0
     """
     arr = np.asarray(value, dtype=float)
-    if type(value) is float:  # a plain number (the usual case): the same test without two array reductions
-        if not ((value >= 0.0 if allow_zero else value > 0.0) and value < math.inf):
-            need = "zero or positive" if allow_zero else "positive"
-            raise ModelInputError(f"{name} must be finite and {need}; got {value!r}")
-    elif arr.size:
-        # two reductions instead of a mask: NaN makes both comparisons false, -inf fails the first
+    if type(value) is float:  # a plain number (the usual case): no array reductions
+        lo = hi = value
+    elif arr.size:  # two reductions instead of a mask: NaN makes both comparisons false, -inf fails the first
         lo, hi = arr.min(), arr.max()
-        ok = (lo >= 0.0 if allow_zero else lo > 0.0) and hi < np.inf
-        if not ok:
-            need = "zero or positive" if allow_zero else "positive"
-            raise ModelInputError(f"{name} must be finite and {need}; got {value!r}")
+    else:
+        return arr
+    if not ((lo >= 0.0 if allow_zero else lo > 0.0) and hi < np.inf):
+        need = "zero or positive" if allow_zero else "positive"
+        raise ModelInputError(f"{name} must be finite and {need}; got {value!r}")
     return arr
 
 
