@@ -242,7 +242,14 @@ def _pinned_level(v0, z, lo, hi, r_of, limits):
 
     The level V solves ln(V·|1 + Z_s/R_in(V)|) = ln V_open; R_in lies between its weak- and strong-signal
     ``limits`` [ohm], so V_open/|1 + Z_s/R| at those two starts a secant in ln V, which ends with the test at
-    V·(1 ∓ 1e-12)."""
+    V·(1 ∓ 1e-12). The bracket is then narrowed by the bisection's own halvings
+    (:func:`aerial.core.arrays.replay_bisection`), so the level is the plain bisection's.
+
+    References
+    ----------
+    W. H. Press et al., Numerical Recipes, 3rd ed., 2007, section 9.2 (the secant method); from memory.
+    Checked against the plain bisection in tests/test_station_design.py.
+    """
     r_ends = np.stack([np.broadcast_to(limits[0], np.shape(v0)), np.broadcast_to(limits[1], np.shape(v0))])
     u = np.log(v0 / np.abs(1.0 + z / r_ends))  # two starting points, (2, ...)
     log_v0 = np.log(v0)
